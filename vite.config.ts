@@ -1,0 +1,40 @@
+/// <reference types="vitest/config" />
+import { fileURLToPath } from 'node:url';
+import { defineConfig } from 'vite';
+import react from '@vitejs/plugin-react';
+import tailwindcss from '@tailwindcss/vite';
+
+const apiPort = process.env.PORT ?? '3000';
+const webSrc = fileURLToPath(new URL('./apps/web/src', import.meta.url));
+
+export default defineConfig({
+  root: '.',
+  plugins: [react(), tailwindcss()],
+  resolve: { alias: { '@': webSrc } },
+  build: { outDir: 'apps/web/dist', emptyOutDir: true, chunkSizeWarningLimit: 600 },
+  server: { port: 5173, proxy: { '/api': `http://127.0.0.1:${apiPort}` } },
+  test: {
+    projects: [
+      { extends: false, test: { name: 'calc', include: ['packages/calc/src/**/*.test.ts'] } },
+      { extends: false, test: { name: 'contract', include: ['packages/contract/src/**/*.test.ts'] } },
+      {
+        extends: false,
+        test: { name: 'api', include: ['apps/api/src/**/*.test.ts'], testTimeout: 30_000, hookTimeout: 60_000 },
+      },
+      {
+        extends: false,
+        resolve: { alias: { '@': webSrc } },
+        test: { name: 'web', include: ['apps/web/src/**/*.test.{ts,tsx}'] },
+      },
+      {
+        extends: false,
+        test: {
+          name: 'tests',
+          include: ['tests/api/**/*.test.ts', 'tests/reference/**/*.test.ts'],
+          testTimeout: 60_000,
+          hookTimeout: 120_000,
+        },
+      },
+    ],
+  },
+});
