@@ -1,1 +1,3 @@
-export {};
+export * from './vocabulary';
+export * from './common';
+export * from './auth';

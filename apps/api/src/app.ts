@@ -1,0 +1,82 @@
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import express, { type NextFunction, type Request, type Response } from 'express';
+import cookieParser from 'cookie-parser';
+import helmet from 'helmet';
+import { ZodError } from 'zod';
+import type { AppContext } from './context';
+import { authenticate, requireAuth } from './auth/middleware';
+import { HttpError } from './lib/errors';
+import { apiRoutes } from './routes';
+
+/** Methods that change data: their bodies must be JSON (multipart only where a route says so). */
+const mutating = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
+
+function requireJsonBodies(req: Request, _res: Response, next: NextFunction) {
+  if (!mutating.has(req.method)) return next();
+  const length = Number(req.headers['content-length'] ?? 0);
+  const chunked = req.headers['transfer-encoding'] !== undefined;
+  if (length === 0 && !chunked) return next();
+  if (req.is('application/json') || req.is('multipart/form-data')) return next();
+  next(new HttpError(415, 'unsupported_media_type', 'Send the request body as JSON (Content-Type: application/json).'));
+}
+
+/**
+ * Builds the Express app around injected dependencies. It does not listen: `server.ts` does, and
+ * tests drive it with supertest.
+ */
+export function createApp(ctx: AppContext): express.Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'upgrade-insecure-requests': ctx.config.secureCookies ? [] : null,
+        },
+      },
+      strictTransportSecurity: ctx.config.secureCookies,
+    }),
+  );
+  app.use('/api', requireJsonBodies);
+  app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', cookieParser());
+  app.use('/api', authenticate(ctx));
+
+  app.use('/api', apiRoutes(ctx));
+  app.use('/api', (_req, _res, next) => next(new HttpError(404, 'not_found', 'No such API route.')));
+
+  if (ctx.config.webDist && existsSync(join(ctx.config.webDist, 'index.html'))) {
+    const dist = ctx.config.webDist;
+    app.use(express.static(dist, { index: false, maxAge: '1h' }));
+    app.get('/{*splat}', (_req, res) => res.sendFile(join(dist, 'index.html')));
+  }
+
+  app.use(errorHandler);
+  return app;
+}
+
+export { requireAuth };
+
+function errorHandler(err: unknown, _req: Request, res: Response, _next: NextFunction) {
+  const send = (status: number, code: string, message: string, details?: unknown) =>
+    res.status(status).json({ error: details === undefined ? { code, message } : { code, message, details } });
+
+  if (err instanceof HttpError) return send(err.status, err.code, err.message, err.details);
+  if (err instanceof ZodError) {
+    const fields = err.issues.map((i) => ({ path: i.path.join('.') || '(body)', message: i.message }));
+    const names = [...new Set(fields.map((f) => f.path))].join(', ');
+    return send(400, 'invalid', `Check these fields: ${names}.`, { fields });
+  }
+  const e = err as { type?: string; status?: number; code?: string; message?: string; field?: string };
+  if (e?.type === 'entity.parse.failed') return send(400, 'malformed_json', 'The request body is not valid JSON.');
+  if (e?.type === 'entity.too.large' || e?.code === 'LIMIT_FILE_SIZE')
+    return send(413, 'too_large', e.code === 'LIMIT_FILE_SIZE' ? 'The file is larger than the limit.' : 'The request body is too large.');
+  if (e?.code?.startsWith?.('LIMIT_')) return send(400, 'bad_upload', e.message ?? 'The upload was refused.');
+  if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500)
+    return send(e.status, 'bad_request', e.message ?? 'Bad request.');
+  console.error('[coilpath] unexpected error', err);
+  return send(500, 'internal', 'Something went wrong on the server. The change was not saved; try again.');
+}

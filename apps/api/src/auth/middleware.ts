@@ -1,0 +1,81 @@
+import type { NextFunction, Request, Response } from 'express';
+import { eq } from 'drizzle-orm';
+import type { Role, SessionUser } from '@coilpath/contract';
+import type { AppContext } from '../context';
+import { users } from '../db/schema';
+import { forbidden, notFound, unauthorized } from '../lib/errors';
+import { SESSION_COOKIE, verifySession } from './session';
+
+/** Reads the session cookie; sets `req.user` when it is valid and the user is active and not signed out. */
+export function authenticate(ctx: AppContext) {
+  return async (req: Request, _res: Response, next: NextFunction) => {
+    const token: unknown = req.cookies?.[SESSION_COOKIE];
+    if (typeof token === 'string' && token) {
+      const claims = await verifySession(ctx.secret, token, ctx.clock.now());
+      if (claims) {
+        const [u] = await ctx.db
+          .select({
+            id: users.id,
+            name: users.name,
+            email: users.email,
+            role: users.role,
+            branchId: users.branchId,
+            active: users.active,
+            sessionVersion: users.sessionVersion,
+          })
+          .from(users)
+          .where(eq(users.id, claims.sub))
+          .limit(1);
+        if (u && u.active && u.sessionVersion === claims.sv) {
+          req.user = { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId };
+        }
+      }
+    }
+    next();
+  };
+}
+
+export function requireAuth(req: Request, _res: Response, next: NextFunction) {
+  if (!req.user) throw unauthorized();
+  next();
+}
+
+const roleNames: Record<Role, string> = {
+  owner: 'owners',
+  branch_manager: 'branch managers',
+  dispatcher: 'dispatchers',
+  technician: 'technicians',
+};
+
+/** 401 without a session, 403 when the role may not use the route. */
+export function requireRole(...allowed: Role[]) {
+  return (req: Request, _res: Response, next: NextFunction) => {
+    if (!req.user) throw unauthorized();
+    if (!allowed.includes(req.user.role)) {
+      throw forbidden(`Only ${allowed.map((r) => roleNames[r]).join(', ')} may do this.`);
+    }
+    next();
+  };
+}
+
+/**
+ * The branches a user may see: `null` = every branch (owner). A request for another branch's data is
+ * answered 404, never 403, so it does not reveal that the record exists.
+ */
+export function branchScope(user: SessionUser): string[] | null {
+  if (user.role === 'owner') return null;
+  return user.branchId ? [user.branchId] : [];
+}
+
+/** Resolves the branch a list request is about; refuses another branch with 404. */
+export function resolveBranch(user: SessionUser, requested: string | undefined): string | undefined {
+  if (user.role === 'owner') return requested;
+  if (requested && requested !== user.branchId) throw notFound('branch');
+  return user.branchId ?? undefined;
+}
+
+/** Throws 404 when a record's branch is outside the user's scope. */
+export function assertBranch(user: SessionUser, branchId: string | null | undefined, what = 'record'): void {
+  if (user.role === 'owner') return;
+  if (!branchId || branchId !== user.branchId) throw notFound(what);
+}

@@ -1,0 +1,24 @@
+import type { Database, Db } from './db/client';
+import type { Mailer } from './mail/mailer';
+import type { Storage } from './storage/storage';
+import type { Clock } from './lib/clock';
+
+/** Everything a module needs, injected by createApp (tests pass in-memory stand-ins). */
+export interface AppContext {
+  database: Database;
+  db: Db;
+  mailer: Mailer;
+  storage: Storage;
+  clock: Clock;
+  secret: Uint8Array;
+  config: {
+    sessionHours: number;
+    /** Served over HTTPS: the session cookie gets `Secure`. */
+    secureCookies: boolean;
+    publicUrl: string;
+    /** Sign-in attempts allowed per 15 minutes per client and e-mail. */
+    signInLimit: number;
+    /** Serve the built web app from this folder when it exists. */
+    webDist?: string | undefined;
+  };
+}

@@ -1,0 +1,73 @@
+import { fileURLToPath } from 'node:url';
+import { mkdirSync } from 'node:fs';
+import { PGlite } from '@electric-sql/pglite';
+import { drizzle as drizzlePglite, type PgliteDatabase } from 'drizzle-orm/pglite';
+import { migrate as migratePglite } from 'drizzle-orm/pglite/migrator';
+import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
+import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
+import pg from 'pg';
+import * as schema from './schema';
+
+export type Schema = typeof schema;
+/** The one database type services use; the node-postgres database has the same query API. */
+export type Db = PgliteDatabase<Schema>;
+/** A database or a transaction on it. */
+export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0] | Db;
+
+export interface Database {
+  db: Db;
+  kind: 'pglite' | 'postgres';
+  /** Raw SQL for maintenance (backups, advisory locks). */
+  exec(sql: string): Promise<void>;
+  close(): Promise<void>;
+  pglite?: PGlite;
+  pool?: pg.Pool;
+}
+
+export const migrationsFolder = fileURLToPath(new URL('./migrations', import.meta.url));
+
+export interface OpenOptions {
+  /** `postgres://…` runs on a real PostgreSQL server. */
+  databaseUrl?: string | undefined;
+  /** PGlite data directory; omitted = in memory. */
+  dataDir?: string | undefined;
+  migrate?: boolean;
+}
+
+export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
+  let database: Database;
+  if (opts.databaseUrl) {
+    const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 10 });
+    // Short API queries: JIT costs more than it saves (measured, STACK.md).
+    pool.on('connect', (client) => {
+      client.query('SET jit = off').catch(() => undefined);
+    });
+    const db = drizzlePg(pool, { schema, casing: 'snake_case' }) as unknown as Db;
+    database = {
+      db,
+      kind: 'postgres',
+      pool,
+      exec: async (s) => {
+        await pool.query(s);
+      },
+      close: () => pool.end(),
+    };
+    if (opts.migrate !== false) await migratePg(db as never, { migrationsFolder });
+  } else {
+    if (opts.dataDir) mkdirSync(opts.dataDir, { recursive: true });
+    const client = opts.dataDir ? new PGlite(opts.dataDir) : new PGlite();
+    await client.waitReady;
+    const db = drizzlePglite(client, { schema, casing: 'snake_case' });
+    database = {
+      db,
+      kind: 'pglite',
+      pglite: client,
+      exec: async (s) => {
+        await client.exec(s);
+      },
+      close: () => client.close(),
+    };
+    if (opts.migrate !== false) await migratePglite(db, { migrationsFolder });
+  }
+  return database;
+}

@@ -1,0 +1,479 @@
+/**
+ * Coilpath's data model (DESIGN §4). All instants are `timestamptz` (UTC); calendar dates are `date`
+ * strings; column names are snake_case (drizzle `casing`).
+ */
+import { sql } from 'drizzle-orm';
+import {
+  boolean,
+  date,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgTable,
+  primaryKey,
+  text,
+  timestamp,
+  uniqueIndex,
+  uuid,
+  type AnyPgColumn,
+} from 'drizzle-orm/pg-core';
+import type {
+  AlarmSource,
+  ApplianceCategory,
+  AttachmentKind,
+  CauseCode,
+  CauseOrigin,
+  Epa608Type,
+  LeakCaseStatus,
+  Priority,
+  RefrigerantEventReason,
+  ReturnNeed,
+  Role,
+  UnitKind,
+  VisitOutcome,
+  WarrantyClaimStatus,
+  WorkingHours,
+  WorkOrderKind,
+  WorkOrderState,
+} from '@coilpath/contract';
+
+const id = () => uuid().primaryKey().defaultRandom();
+const instant = () => timestamp({ withTimezone: true, mode: 'date' });
+const createdAt = () => instant().notNull().defaultNow();
+
+export const branches = pgTable('branches', {
+  id: id(),
+  name: text().notNull(),
+  code: text().notNull(),
+  timeZone: text().notNull(),
+  baseAddress: text().notNull().default(''),
+  baseLat: doublePrecision().notNull(),
+  baseLon: doublePrecision().notNull(),
+  /** Holiday dates `YYYY-MM-DD` in the branch's own calendar. */
+  holidays: jsonb().$type<string[]>().notNull().default([]),
+  labourRateCents: integer().notNull().default(0),
+  refrigerantPriceCentsPerLb: integer().notNull().default(0),
+  currency: text().notNull().default('USD'),
+  unitSystem: text().$type<'imperial' | 'si'>().notNull().default('imperial'),
+  sensorTolerancePercent: doublePrecision().notNull().default(3),
+  sensorToleranceAbsolute: doublePrecision().notNull().default(5),
+  repeatAlarmCount: integer().notNull().default(2),
+  repeatAlarmDays: integer().notNull().default(30),
+  callbackWindowDays: integer().notNull().default(30),
+  /** The branch manager's daily digest is sent at this local hour. */
+  digestHour: integer().notNull().default(7),
+  archivedAt: instant(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('branches_code_uq').on(t.code)]);
+
+export const users = pgTable('users', {
+  id: id(),
+  email: text().notNull(),
+  name: text().notNull(),
+  role: text().$type<Role>().notNull(),
+  branchId: uuid().references(() => branches.id),
+  passwordHash: text(),
+  phone: text(),
+  skills: jsonb().$type<string[]>().notNull().default([]),
+  epa608Type: text().$type<Epa608Type>().notNull().default('none'),
+  epa608Number: text(),
+  workingHours: jsonb().$type<WorkingHours | null>(),
+  startAddress: text(),
+  startLat: doublePrecision(),
+  startLon: doublePrecision(),
+  /** Index into the Roster's technician palette. */
+  colorIndex: integer().notNull().default(0),
+  active: boolean().notNull().default(true),
+  deactivatedAt: instant(),
+  /** Raised to sign out every session of the user (deactivation, password reset). */
+  sessionVersion: integer().notNull().default(1),
+  /** Secret of the private iCalendar feed; null when revoked. */
+  calendarToken: text(),
+  lastSignInAt: instant(),
+  createdAt: createdAt(),
+}, (t) => [
+  uniqueIndex('users_email_uq').on(t.email),
+  uniqueIndex('users_calendar_token_uq').on(t.calendarToken),
+  index('users_branch_role_idx').on(t.branchId, t.role),
+]);
+
+export const invitations = pgTable('invitations', {
+  id: id(),
+  email: text().notNull(),
+  name: text().notNull(),
+  role: text().$type<Role>().notNull(),
+  branchId: uuid().references(() => branches.id),
+  /** The profile the invited person starts with. */
+  profile: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+  tokenHash: text().notNull(),
+  expiresAt: instant().notNull(),
+  usedAt: instant(),
+  revokedAt: instant(),
+  invitedById: uuid().references(() => users.id),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('invitations_token_uq').on(t.tokenHash)]);
+
+export const passwordResets = pgTable('password_resets', {
+  id: id(),
+  userId: uuid().notNull().references(() => users.id),
+  tokenHash: text().notNull(),
+  expiresAt: instant().notNull(),
+  usedAt: instant(),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('password_resets_token_uq').on(t.tokenHash)]);
+
+export const customers = pgTable('customers', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  name: text().notNull(),
+  contactName: text(),
+  contactEmail: text(),
+  contactPhone: text(),
+  billingAddress: text(),
+  notes: text(),
+  archivedAt: instant(),
+  createdAt: createdAt(),
+}, (t) => [index('customers_branch_idx').on(t.branchId, t.name)]);
+
+export const sites = pgTable('sites', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  customerId: uuid().notNull().references(() => customers.id),
+  name: text().notNull(),
+  address: text().notNull(),
+  city: text().notNull().default(''),
+  region: text().notNull().default(''),
+  postalCode: text().notNull().default(''),
+  lat: doublePrecision().notNull(),
+  lon: doublePrecision().notNull(),
+  accessNotes: text(),
+  contactName: text(),
+  contactEmail: text(),
+  contactPhone: text(),
+  archivedAt: instant(),
+  createdAt: createdAt(),
+}, (t) => [index('sites_branch_idx').on(t.branchId, t.name), index('sites_customer_idx').on(t.customerId)]);
+
+export const units = pgTable('units', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  siteId: uuid().notNull().references(() => sites.id),
+  /** The site's own label for the unit, e.g. "RTU-3". */
+  tag: text().notNull(),
+  kind: text().$type<UnitKind>().notNull(),
+  make: text().notNull(),
+  model: text().notNull(),
+  serial: text().notNull(),
+  installDate: date({ mode: 'string' }),
+  warrantyEnd: date({ mode: 'string' }),
+  refrigerant: text().notNull(),
+  fullChargeLb: doublePrecision().notNull(),
+  applianceCategory: text().$type<ApplianceCategory>().notNull(),
+  tonnage: doublePrecision(),
+  nameplateAttachmentId: uuid(),
+  notes: text(),
+  archivedAt: instant(),
+  createdAt: createdAt(),
+}, (t) => [
+  uniqueIndex('units_make_serial_uq').on(t.make, t.serial),
+  index('units_site_idx').on(t.siteId),
+  index('units_branch_idx').on(t.branchId),
+  index('units_make_model_idx').on(t.make, t.model),
+]);
+
+export const circuits = pgTable('circuits', {
+  id: id(),
+  unitId: uuid().notNull().references(() => units.id, { onDelete: 'cascade' }),
+  number: integer().notNull(),
+  compressorCount: integer().notNull().default(1),
+  chargeLb: doublePrecision(),
+}, (t) => [uniqueIndex('circuits_unit_number_uq').on(t.unitId, t.number)]);
+
+export const agreements = pgTable('agreements', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  siteId: uuid().notNull().references(() => sites.id),
+  name: text().notNull(),
+  /** RFC 5545 recurrence rule, e.g. `FREQ=MONTHLY;INTERVAL=3;BYMONTHDAY=15`. */
+  rrule: text().notNull(),
+  seasonNotes: text(),
+  termStart: date({ mode: 'string' }).notNull(),
+  termEnd: date({ mode: 'string' }).notNull(),
+  slaHours: integer().notNull(),
+  priceCents: integer().notNull(),
+  visitMinutes: integer().notNull().default(90),
+  tasks: jsonb().$type<string[]>().notNull().default([]),
+  status: text().$type<'active' | 'ended' | 'cancelled'>().notNull().default('active'),
+  createdAt: createdAt(),
+  updatedAt: createdAt(),
+}, (t) => [index('agreements_branch_idx').on(t.branchId, t.termEnd), index('agreements_site_idx').on(t.siteId)]);
+
+export const agreementUnits = pgTable('agreement_units', {
+  agreementId: uuid().notNull().references(() => agreements.id, { onDelete: 'cascade' }),
+  unitId: uuid().notNull().references(() => units.id),
+}, (t) => [primaryKey({ columns: [t.agreementId, t.unitId] }), index('agreement_units_unit_idx').on(t.unitId)]);
+
+export const workOrders = pgTable('work_orders', {
+  id: id(),
+  /** Human-facing number, e.g. WO-10234. */
+  number: integer().generatedAlwaysAsIdentity({ startWith: 10001 }),
+  branchId: uuid().notNull().references(() => branches.id),
+  siteId: uuid().notNull().references(() => sites.id),
+  unitId: uuid().references(() => units.id),
+  agreementId: uuid().references(() => agreements.id),
+  kind: text().$type<WorkOrderKind>().notNull(),
+  state: text().$type<WorkOrderState>().notNull().default('unplaced'),
+  priority: text().$type<Priority>().notNull().default('normal'),
+  complaint: text().notNull().default(''),
+  requestedFrom: instant(),
+  requestedTo: instant(),
+  slaDueAt: instant(),
+  /** Latest acceptable booking (return visits, leak-repair deadlines). */
+  latestAt: instant(),
+  /** Planned maintenance: the date the visit plan placed it on. */
+  plannedDate: date({ mode: 'string' }),
+  requiredSkill: text(),
+  requiredCertification: text().$type<Exclude<Epa608Type, 'none'>>(),
+  estimatedMinutes: integer().notNull().default(60),
+  originWorkOrderId: uuid().references((): AnyPgColumn => workOrders.id),
+  leakCaseId: uuid(),
+  returnNeeds: jsonb().$type<ReturnNeed[]>().notNull().default([]),
+  /** Why the work exists beyond its kind, e.g. `model-alert:<key>` for inspections. */
+  purpose: text(),
+  outcome: text().$type<VisitOutcome>(),
+  createdById: uuid().references(() => users.id),
+  createdAt: createdAt(),
+  updatedAt: createdAt(),
+  closedAt: instant(),
+}, (t) => [
+  index('work_orders_branch_state_idx').on(t.branchId, t.state),
+  index('work_orders_unit_idx').on(t.unitId, t.createdAt),
+  index('work_orders_origin_idx').on(t.originWorkOrderId),
+  index('work_orders_agreement_idx').on(t.agreementId, t.plannedDate),
+  index('work_orders_created_idx').on(t.createdAt),
+]);
+
+export const bookings = pgTable('bookings', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  workOrderId: uuid().notNull().references(() => workOrders.id),
+  techId: uuid().notNull().references(() => users.id),
+  startAt: instant().notNull(),
+  endAt: instant().notNull(),
+  /** Optimistic-concurrency version: a move based on a stale version is refused. */
+  version: integer().notNull().default(1),
+  fixed: boolean().notNull().default(false),
+  hoursOverride: boolean().notNull().default(false),
+  overrideReason: text(),
+  overrideById: uuid().references(() => users.id),
+  createdById: uuid().references(() => users.id),
+  createdAt: createdAt(),
+  updatedAt: createdAt(),
+}, (t) => [
+  index('bookings_branch_start_idx').on(t.branchId, t.startAt),
+  index('bookings_tech_start_idx').on(t.techId, t.startAt),
+  index('bookings_work_order_idx').on(t.workOrderId),
+]);
+
+export const visits = pgTable('visits', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  workOrderId: uuid().notNull().references(() => workOrders.id),
+  bookingId: uuid().references(() => bookings.id, { onDelete: 'set null' }),
+  techId: uuid().notNull().references(() => users.id),
+  enRouteAt: instant(),
+  onSiteAt: instant(),
+  closedAt: instant(),
+  outcome: text().$type<VisitOutcome>(),
+  returnNeeds: jsonb().$type<ReturnNeed[]>().notNull().default([]),
+  returnNotes: text(),
+  notes: text(),
+  labourMinutes: integer(),
+  summarySentAt: instant(),
+  version: integer().notNull().default(1),
+  createdAt: createdAt(),
+  updatedAt: createdAt(),
+}, (t) => [
+  index('visits_work_order_idx').on(t.workOrderId),
+  index('visits_tech_idx').on(t.techId, t.createdAt),
+  index('visits_closed_idx').on(t.branchId, t.closedAt),
+  uniqueIndex('visits_booking_uq').on(t.bookingId),
+]);
+
+export const visitEvents = pgTable('visit_events', {
+  id: id(),
+  visitId: uuid().notNull().references(() => visits.id, { onDelete: 'cascade' }),
+  state: text().$type<WorkOrderState>().notNull(),
+  at: instant().notNull(),
+  byUserId: uuid().references(() => users.id),
+}, (t) => [index('visit_events_visit_idx').on(t.visitId, t.at)]);
+
+export const readings = pgTable('readings', {
+  id: id(),
+  visitId: uuid().notNull().references(() => visits.id),
+  unitId: uuid().notNull().references(() => units.id),
+  circuitId: uuid().notNull().references(() => circuits.id),
+  takenAt: instant().notNull(),
+  refrigerant: text().notNull(),
+  /** Reference-gauge values, psig / °F. */
+  suctionPressure: doublePrecision(),
+  liquidPressure: doublePrecision(),
+  dischargePressure: doublePrecision(),
+  suctionLineTemp: doublePrecision(),
+  liquidLineTemp: doublePrecision(),
+  outdoorTemp: doublePrecision(),
+  /** What the unit's own controller showed beside each gauge value. */
+  suctionPressureController: doublePrecision(),
+  liquidPressureController: doublePrecision(),
+  dischargePressureController: doublePrecision(),
+  /** Computed with @coilpath/calc when saved. */
+  suctionSaturationTemp: doublePrecision(),
+  liquidSaturationTemp: doublePrecision(),
+  superheat: doublePrecision(),
+  subcooling: doublePrecision(),
+  notes: text(),
+  createdAt: createdAt(),
+}, (t) => [index('readings_unit_idx').on(t.unitId, t.takenAt), index('readings_visit_idx').on(t.visitId)]);
+
+export const findings = pgTable('findings', {
+  id: id(),
+  visitId: uuid().notNull().references(() => visits.id),
+  unitId: uuid().references(() => units.id),
+  causeCode: text().$type<CauseCode>().notNull(),
+  origin: text().$type<CauseOrigin>().notNull(),
+  alarmCode: text(),
+  reportedCircuit: integer(),
+  actualCircuit: integer(),
+  notes: text(),
+  createdAt: createdAt(),
+}, (t) => [index('findings_visit_idx').on(t.visitId), index('findings_unit_idx').on(t.unitId, t.createdAt)]);
+
+export const refrigerantEvents = pgTable('refrigerant_events', {
+  id: id(),
+  unitId: uuid().notNull().references(() => units.id),
+  visitId: uuid().references(() => visits.id),
+  date: date({ mode: 'string' }).notNull(),
+  refrigerant: text().notNull(),
+  poundsAdded: doublePrecision().notNull().default(0),
+  poundsRecovered: doublePrecision().notNull().default(0),
+  reason: text().$type<RefrigerantEventReason>().notNull(),
+  cylinderLot: text(),
+  techId: uuid().references(() => users.id),
+  createdAt: createdAt(),
+}, (t) => [index('refrigerant_events_unit_idx').on(t.unitId, t.date)]);
+
+export const leakCases = pgTable('leak_cases', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  unitId: uuid().notNull().references(() => units.id),
+  triggeringEventId: uuid().references(() => refrigerantEvents.id),
+  openedOn: date({ mode: 'string' }).notNull(),
+  rule: text().notNull(),
+  method: text().$type<'annualizing' | 'rolling-average'>().notNull(),
+  thresholdPercent: doublePrecision().notNull(),
+  leakRatePercent: doublePrecision().notNull(),
+  repairDueDate: date({ mode: 'string' }).notNull(),
+  chronic: boolean().notNull().default(false),
+  status: text().$type<LeakCaseStatus>().notNull().default('open'),
+  planKind: text().$type<'retrofit' | 'retire'>(),
+  planDueDate: date({ mode: 'string' }),
+  repairWorkOrderId: uuid().references(() => workOrders.id),
+  repairedOn: date({ mode: 'string' }),
+  closedAt: instant(),
+  notes: text(),
+  createdAt: createdAt(),
+  updatedAt: createdAt(),
+}, (t) => [index('leak_cases_branch_status_idx').on(t.branchId, t.status), index('leak_cases_unit_idx').on(t.unitId)]);
+
+export const verificationTests = pgTable('verification_tests', {
+  id: id(),
+  leakCaseId: uuid().notNull().references(() => leakCases.id, { onDelete: 'cascade' }),
+  kind: text().$type<'initial' | 'follow_up'>().notNull(),
+  testedOn: date({ mode: 'string' }).notNull(),
+  passed: boolean().notNull(),
+  notes: text(),
+  byUserId: uuid().references(() => users.id),
+  createdAt: createdAt(),
+}, (t) => [index('verification_tests_case_idx').on(t.leakCaseId)]);
+
+export const alarms = pgTable('alarms', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  unitId: uuid().notNull().references(() => units.id),
+  circuit: integer(),
+  code: text().notNull(),
+  description: text(),
+  raisedAt: instant().notNull(),
+  clearedAt: instant(),
+  source: text().$type<AlarmSource>().notNull(),
+  createdAt: createdAt(),
+}, (t) => [
+  index('alarms_branch_raised_idx').on(t.branchId, t.raisedAt),
+  index('alarms_unit_raised_idx').on(t.unitId, t.raisedAt),
+]);
+
+export const attachments = pgTable('attachments', {
+  id: id(),
+  visitId: uuid().references(() => visits.id),
+  unitId: uuid().references(() => units.id),
+  kind: text().$type<AttachmentKind>().notNull(),
+  storageKey: text().notNull(),
+  thumbnailKey: text(),
+  /** The client's file name, cleaned; shown only, never used to store. */
+  displayName: text().notNull(),
+  contentType: text().notNull(),
+  sizeBytes: integer().notNull(),
+  uploadedById: uuid().references(() => users.id),
+  createdAt: createdAt(),
+}, (t) => [index('attachments_visit_idx').on(t.visitId), index('attachments_unit_idx').on(t.unitId, t.createdAt)]);
+
+export const warrantyClaims = pgTable('warranty_claims', {
+  id: id(),
+  workOrderId: uuid().notNull().references(() => workOrders.id),
+  status: text().$type<WarrantyClaimStatus>().notNull().default('to_claim'),
+  amountCents: integer(),
+  reference: text(),
+  notes: text(),
+  updatedById: uuid().references(() => users.id),
+  updatedAt: createdAt(),
+}, (t) => [uniqueIndex('warranty_claims_work_order_uq').on(t.workOrderId)]);
+
+export const mailOutbox = pgTable('mail_outbox', {
+  id: id(),
+  messageId: text(),
+  from: text().notNull(),
+  to: text().notNull(),
+  subject: text().notNull(),
+  text: text(),
+  html: text(),
+  attachments: jsonb().$type<{ filename: string; contentType: string; size: number; storageKey?: string }[]>()
+    .notNull()
+    .default([]),
+  receivedAt: createdAt(),
+}, (t) => [index('mail_outbox_received_idx').on(t.receivedAt)]);
+
+/** Idempotency of scheduled jobs: one row per job and period (e.g. `digest:<branch>:2026-12-02`). */
+export const jobRuns = pgTable('job_runs', {
+  runKey: text().primaryKey(),
+  job: text().notNull(),
+  startedAt: createdAt(),
+  finishedAt: instant(),
+  result: jsonb().$type<Record<string, unknown>>(),
+});
+
+export const auditEvents = pgTable('audit_events', {
+  id: id(),
+  actorId: uuid().references(() => users.id),
+  action: text().notNull(),
+  entity: text().notNull(),
+  entityId: uuid(),
+  details: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+  at: createdAt(),
+}, (t) => [index('audit_events_entity_idx').on(t.entity, t.entityId)]);
+
+export const appMeta = pgTable('app_meta', {
+  key: text().primaryKey(),
+  value: jsonb().$type<unknown>().notNull(),
+  updatedAt: instant().notNull().default(sql`now()`),
+});

@@ -1,0 +1,32 @@
+import { z } from 'zod';
+
+const envSchema = z.object({
+  PORT: z.coerce.number().int().min(0).max(65535).default(3000),
+  HOST: z.string().default('0.0.0.0'),
+  DATABASE_URL: z.string().regex(/^postgres(ql)?:\/\//, 'DATABASE_URL must be a postgres:// URL').optional(),
+  COILPATH_DATA_DIR: z.string().default('./data'),
+  COILPATH_SECRET: z.string().min(32, 'COILPATH_SECRET needs at least 32 characters').optional(),
+  /** `smtp://host:port` of a real relay; empty = the local sink. */
+  SMTP_URL: z.string().optional(),
+  MAIL_FROM: z.string().default('Coilpath <no-reply@coilpath.example>'),
+  /** Public address used in e-mailed links. */
+  PUBLIC_URL: z.string().optional(),
+  COILPATH_SEED: z.enum(['auto', 'never']).default('auto'),
+  /** Cron-like minute interval at which scheduled jobs check whether they are due. */
+  COILPATH_JOBS_INTERVAL_SECONDS: z.coerce.number().int().min(5).default(300),
+  COILPATH_JOBS: z.enum(['on', 'off']).default('on'),
+  SESSION_HOURS: z.coerce.number().min(1).max(24 * 30).default(12),
+  NODE_ENV: z.string().default('development'),
+});
+
+export type Env = z.infer<typeof envSchema>;
+
+/** Reads the environment once; fails fast with the names of bad variables. */
+export function readEnv(source: NodeJS.ProcessEnv = process.env): Env {
+  const parsed = envSchema.safeParse(source);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`);
+    throw new Error(`Bad configuration:\n${lines.join('\n')}`);
+  }
+  return parsed.data;
+}

@@ -1,0 +1,20 @@
+/** An error that answers with a status and a stable code: `{ error: { code, message, details? } }`. */
+export class HttpError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly details?: unknown,
+  ) {
+    super(message);
+    this.name = 'HttpError';
+  }
+}
+
+export const badRequest = (message: string, details?: unknown) => new HttpError(400, 'bad_request', message, details);
+export const unauthorized = (message = 'Sign in to continue.') => new HttpError(401, 'unauthorized', message);
+export const forbidden = (message = 'Your role may not do this.') => new HttpError(403, 'forbidden', message);
+export const notFound = (what = 'record') => new HttpError(404, 'not_found', `No such ${what}.`);
+export const conflict = (code: string, message: string, details?: unknown) => new HttpError(409, code, message, details);
+export const unprocessable = (message: string, details?: unknown) =>
+  new HttpError(422, 'unprocessable', message, details);

@@ -1,0 +1,68 @@
+import { resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { createServer } from 'node:http';
+import { createApp } from './app';
+import type { AppContext } from './context';
+import { openDatabase } from './db/client';
+import { DEMO_PASSWORD, seedDemo } from './db/seed';
+import { readEnv } from './lib/config';
+import { systemClock } from './lib/clock';
+import { createSmtpMailer } from './mail/mailer';
+import { startMailSink } from './mail/sink';
+import { createDiskStorage } from './storage/storage';
+import { loadSecret } from './secret';
+import { startScheduler } from './jobs/scheduler';
+
+const env = readEnv();
+const dataDir = resolve(env.COILPATH_DATA_DIR);
+const database = await openDatabase({ databaseUrl: env.DATABASE_URL, dataDir: env.DATABASE_URL ? undefined : resolve(dataDir, 'pg') });
+const storage = createDiskStorage(resolve(dataDir, 'files'));
+const sink = env.SMTP_URL ? null : await startMailSink(database.db, storage);
+const mailer = createSmtpMailer(env.SMTP_URL ?? sink!.url, env.MAIL_FROM);
+
+let seeded = false;
+if (env.COILPATH_SEED === 'auto') seeded = (await seedDemo(database.db)).seeded;
+
+const ctx: AppContext = {
+  database,
+  db: database.db,
+  mailer,
+  storage,
+  clock: systemClock,
+  secret: loadSecret(env.COILPATH_SECRET, dataDir),
+  config: {
+    sessionHours: env.SESSION_HOURS,
+    secureCookies: (env.PUBLIC_URL ?? '').startsWith('https://'),
+    publicUrl: env.PUBLIC_URL ?? `http://localhost:${env.PORT}`,
+    signInLimit: 20,
+    webDist: fileURLToPath(new URL('../../web/dist', import.meta.url)),
+  },
+};
+
+const app = createApp(ctx);
+const server = createServer(app);
+server.listen(env.PORT, env.HOST, () => {
+  const address = server.address();
+  const port = typeof address === 'object' && address ? address.port : env.PORT;
+  console.log(`Coilpath is running on http://localhost:${port} (database: ${database.kind}${database.kind === 'pglite' ? `, ${dataDir}` : ''})`);
+  if (seeded) console.log('Demo data loaded.');
+  console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example, tech@coilpath.example — password "${DEMO_PASSWORD}"`);
+  if (sink) console.log(`Mail goes to the local sink (smtp port ${sink.port}); read it at /outbox as the owner.`);
+});
+
+const scheduler = env.COILPATH_JOBS === 'on' ? startScheduler(ctx, env.COILPATH_JOBS_INTERVAL_SECONDS) : null;
+
+let closing = false;
+async function shutdown(signal: string) {
+  if (closing) return;
+  closing = true;
+  console.log(`${signal}: closing Coilpath…`);
+  scheduler?.stop();
+  server.close();
+  server.closeAllConnections();
+  await sink?.close();
+  await database.close();
+  process.exit(0);
+}
+process.on('SIGINT', () => void shutdown('SIGINT'));
+process.on('SIGTERM', () => void shutdown('SIGTERM'));

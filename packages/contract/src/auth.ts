@@ -1,0 +1,29 @@
+import { z } from 'zod';
+import { emailSchema, idSchema, limits } from './common';
+import { roleSchema } from './vocabulary';
+
+export const signInSchema = z.strictObject({
+  email: emailSchema,
+  password: z.string().min(1, 'Enter your password').max(limits.password.max),
+});
+export type SignIn = z.infer<typeof signInSchema>;
+
+export const sessionUserSchema = z.object({
+  id: idSchema,
+  name: z.string(),
+  email: z.string(),
+  role: roleSchema,
+  branchId: idSchema.nullable(),
+});
+export type SessionUser = z.infer<typeof sessionUserSchema>;
+
+export const signInResponseSchema = z.object({ user: sessionUserSchema });
+
+export const healthSchema = z.object({ ok: z.literal(true), database: z.enum(['pglite', 'postgres']) });
+export type Health = z.infer<typeof healthSchema>;
+
+export const publicConfigSchema = z.object({
+  demo: z.boolean(),
+  demoPassword: z.string().nullable(),
+});
+export type PublicConfig = z.infer<typeof publicConfigSchema>;

@@ -1,0 +1,52 @@
+import { z } from 'zod';
+
+/** Shared limits, used by forms and routes alike. */
+export const limits = {
+  name: 120,
+  email: 254,
+  shortText: 200,
+  longText: 4000,
+  password: { min: 10, max: 200 },
+} as const;
+
+export const idSchema = z.uuid({ message: 'Must be an id' });
+
+/** A calendar date `YYYY-MM-DD` that really exists (2026-02-30 is refused). */
+export const isoDateSchema = z.iso.date({ message: 'Use a real date as YYYY-MM-DD' });
+
+/** An ISO-8601 instant with an offset or `Z`. */
+export const instantSchema = z.iso.datetime({ offset: true, message: 'Use an ISO-8601 instant such as 2026-12-02T14:00:00Z' });
+
+export const latitudeSchema = z.number().min(-90).max(90);
+export const longitudeSchema = z.number().min(-180).max(180);
+
+export const emailSchema = z
+  .email({ message: 'Enter a valid e-mail address' })
+  .max(limits.email)
+  .transform((e) => e.trim().toLowerCase());
+
+/** The JSON error every API failure answers with. */
+export const apiErrorSchema = z.object({
+  error: z.object({
+    code: z.string(),
+    message: z.string(),
+    details: z.unknown().optional(),
+  }),
+});
+export type ApiError = z.infer<typeof apiErrorSchema>;
+
+/** A page of rows for server-side paged tables. */
+export interface Page<T> {
+  rows: T[];
+  total: number;
+  page: number;
+  pageSize: number;
+}
+
+export const pageQuerySchema = z.object({
+  page: z.coerce.number().int().min(1).max(100_000).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(25),
+  sort: z.string().max(60).optional(),
+  dir: z.enum(['asc', 'desc']).default('asc'),
+  q: z.string().max(limits.shortText).optional(),
+});

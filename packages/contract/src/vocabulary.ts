@@ -1,0 +1,195 @@
+import { z } from 'zod';
+
+/** Roles of DESIGN §2. */
+export const roles = ['owner', 'branch_manager', 'dispatcher', 'technician'] as const;
+export const roleSchema = z.enum(roles);
+export type Role = z.infer<typeof roleSchema>;
+export const roleLabels: Record<Role, string> = {
+  owner: 'Owner',
+  branch_manager: 'Branch manager',
+  dispatcher: 'Dispatcher',
+  technician: 'Technician',
+};
+
+/** EPA Section 608 certification types (40 CFR 82.161). `none` = not certified. */
+export const epa608Types = ['none', 'I', 'II', 'III', 'universal'] as const;
+export const epa608TypeSchema = z.enum(epa608Types);
+export type Epa608Type = z.infer<typeof epa608TypeSchema>;
+export const epa608Labels: Record<Epa608Type, string> = {
+  none: 'Not certified',
+  I: 'Type I',
+  II: 'Type II',
+  III: 'Type III',
+  universal: 'Universal',
+};
+
+export const workOrderKinds = ['service_call', 'return_visit', 'callback', 'planned_maintenance'] as const;
+export const workOrderKindSchema = z.enum(workOrderKinds);
+export type WorkOrderKind = z.infer<typeof workOrderKindSchema>;
+export const workOrderKindLabels: Record<WorkOrderKind, string> = {
+  service_call: 'Service call',
+  return_visit: 'Return visit',
+  callback: 'Callback',
+  planned_maintenance: 'Planned maintenance',
+};
+
+export const workOrderStates = ['unplaced', 'booked', 'en_route', 'on_site', 'closed', 'cancelled'] as const;
+export const workOrderStateSchema = z.enum(workOrderStates);
+export type WorkOrderState = z.infer<typeof workOrderStateSchema>;
+export const workOrderStateLabels: Record<WorkOrderState, string> = {
+  unplaced: 'Unplaced',
+  booked: 'Booked',
+  en_route: 'En route',
+  on_site: 'On site',
+  closed: 'Closed',
+  cancelled: 'Cancelled',
+};
+
+export const priorities = ['emergency', 'high', 'normal', 'low'] as const;
+export const prioritySchema = z.enum(priorities);
+export type Priority = z.infer<typeof prioritySchema>;
+export const priorityLabels: Record<Priority, string> = {
+  emergency: 'Emergency',
+  high: 'High',
+  normal: 'Normal',
+  low: 'Low',
+};
+
+export const visitOutcomes = ['resolved', 'needs_return', 'declined'] as const;
+export const visitOutcomeSchema = z.enum(visitOutcomes);
+export type VisitOutcome = z.infer<typeof visitOutcomeSchema>;
+export const visitOutcomeLabels: Record<VisitOutcome, string> = {
+  resolved: 'Resolved',
+  needs_return: 'Needs return',
+  declined: 'Declined',
+};
+
+/** What a return visit needs (Visit close-out). */
+export const returnNeeds = ['parts', 'leak_search', 'manufacturer', 'second_tech'] as const;
+export const returnNeedSchema = z.enum(returnNeeds);
+export type ReturnNeed = z.infer<typeof returnNeedSchema>;
+export const returnNeedLabels: Record<ReturnNeed, string> = {
+  parts: 'Parts',
+  leak_search: 'Leak search',
+  manufacturer: 'Manufacturer',
+  second_tech: 'Second technician',
+};
+
+export const causeCodes = [
+  'refrigerant_leak',
+  'sensor_fault',
+  'wiring_fault',
+  'control_fault',
+  'component_failure',
+  'airflow',
+  'settings',
+  'no_fault_found',
+] as const;
+export const causeCodeSchema = z.enum(causeCodes);
+export type CauseCode = z.infer<typeof causeCodeSchema>;
+export const causeCodeLabels: Record<CauseCode, string> = {
+  refrigerant_leak: 'Refrigerant leak',
+  sensor_fault: 'Sensor fault',
+  wiring_fault: 'Wiring fault',
+  control_fault: 'Control fault',
+  component_failure: 'Component failure',
+  airflow: 'Airflow',
+  settings: 'Settings',
+  no_fault_found: 'No fault found',
+};
+
+export const causeOrigins = ['factory_defect', 'installation', 'wear', 'prior_service', 'external'] as const;
+export const causeOriginSchema = z.enum(causeOrigins);
+export type CauseOrigin = z.infer<typeof causeOriginSchema>;
+export const causeOriginLabels: Record<CauseOrigin, string> = {
+  factory_defect: 'Factory defect',
+  installation: 'Installation',
+  wear: 'Wear',
+  prior_service: 'Prior service',
+  external: 'External',
+};
+
+export const unitKinds = [
+  'rooftop_unit',
+  'split_system',
+  'heat_pump',
+  'chiller',
+  'walk_in_cooler',
+  'walk_in_freezer',
+  'reach_in',
+  'condensing_unit',
+  'ice_machine',
+  'boiler',
+] as const;
+export const unitKindSchema = z.enum(unitKinds);
+export type UnitKind = z.infer<typeof unitKindSchema>;
+export const unitKindLabels: Record<UnitKind, string> = {
+  rooftop_unit: 'Rooftop unit',
+  split_system: 'Split system',
+  heat_pump: 'Heat pump',
+  chiller: 'Chiller',
+  walk_in_cooler: 'Walk-in cooler',
+  walk_in_freezer: 'Walk-in freezer',
+  reach_in: 'Reach-in',
+  condensing_unit: 'Condensing unit',
+  ice_machine: 'Ice machine',
+  boiler: 'Boiler',
+};
+
+/** Appliance categories of the refrigerant leak rules (40 CFR 82.157(c), 84.106(c)). */
+export const applianceCategories = ['comfort_cooling', 'commercial_refrigeration', 'industrial_process', 'other'] as const;
+export const applianceCategorySchema = z.enum(applianceCategories);
+export type ApplianceCategory = z.infer<typeof applianceCategorySchema>;
+export const applianceCategoryLabels: Record<ApplianceCategory, string> = {
+  comfort_cooling: 'Comfort cooling',
+  commercial_refrigeration: 'Commercial refrigeration',
+  industrial_process: 'Industrial process refrigeration',
+  other: 'Other appliance',
+};
+
+export const refrigerantEventReasons = [
+  'leak_top_off',
+  'repair_recharge',
+  'initial_charge',
+  'recovery',
+  'retrofit',
+  'seasonal_variance',
+  'other',
+] as const;
+export const refrigerantEventReasonSchema = z.enum(refrigerantEventReasons);
+export type RefrigerantEventReason = z.infer<typeof refrigerantEventReasonSchema>;
+
+export const leakCaseStatuses = ['open', 'repaired', 'closed', 'retrofit_planned', 'retire_planned'] as const;
+export const leakCaseStatusSchema = z.enum(leakCaseStatuses);
+export type LeakCaseStatus = z.infer<typeof leakCaseStatusSchema>;
+
+export const alarmSources = ['form', 'csv', 'api', 'controller'] as const;
+export const alarmSourceSchema = z.enum(alarmSources);
+export type AlarmSource = z.infer<typeof alarmSourceSchema>;
+
+export const attachmentKinds = ['photo', 'nameplate', 'document'] as const;
+export const attachmentKindSchema = z.enum(attachmentKinds);
+export type AttachmentKind = z.infer<typeof attachmentKindSchema>;
+
+export const warrantyClaimStatuses = ['to_claim', 'claimed', 'paid', 'denied'] as const;
+export const warrantyClaimStatusSchema = z.enum(warrantyClaimStatuses);
+export type WarrantyClaimStatus = z.infer<typeof warrantyClaimStatusSchema>;
+
+export const weekdays = ['sun', 'mon', 'tue', 'wed', 'thu', 'fri', 'sat'] as const;
+export type Weekday = (typeof weekdays)[number];
+
+const hhmm = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use 24-hour HH:MM');
+export const dayHoursSchema = z
+  .object({ start: hhmm, end: hhmm })
+  .refine((h) => h.start < h.end, { message: 'The day must end after it starts', path: ['end'] })
+  .nullable();
+export const workingHoursSchema = z.object({
+  sun: dayHoursSchema,
+  mon: dayHoursSchema,
+  tue: dayHoursSchema,
+  wed: dayHoursSchema,
+  thu: dayHoursSchema,
+  fri: dayHoursSchema,
+  sat: dayHoursSchema,
+});
+export type WorkingHours = z.infer<typeof workingHoursSchema>;
