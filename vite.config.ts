@@ -9,6 +9,7 @@ const webSrc = fileURLToPath(new URL('./apps/web/src', import.meta.url));
 
 export default defineConfig({
   root: '.',
+  publicDir: 'apps/web/public',
   plugins: [react(), tailwindcss()],
   resolve: { alias: { '@': webSrc } },
   build: { outDir: 'apps/web/dist', emptyOutDir: true, chunkSizeWarningLimit: 600 },

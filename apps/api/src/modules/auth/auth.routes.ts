@@ -1,5 +1,5 @@
 import { Router, type Response } from 'express';
-import { rateLimit } from 'express-rate-limit';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import { signInSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { SESSION_COOKIE } from '../../auth/session';
@@ -23,7 +23,7 @@ export function authRoutes(ctx: AppContext): Router {
     limit: ctx.config.signInLimit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
-    keyGenerator: (req) => `${req.ip}|${String((req.body as { email?: unknown })?.email ?? '').toLowerCase()}`,
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String((req.body as { email?: unknown })?.email ?? '').toLowerCase()}`,
     handler: (_req, res) => {
       res.status(429).json({
         error: { code: 'too_many_attempts', message: 'Too many sign-in attempts. Wait 15 minutes and try again.' },

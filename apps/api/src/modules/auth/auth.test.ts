@@ -1,0 +1,185 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import request from 'supertest';
+import { SignJWT } from 'jose';
+import { eq } from 'drizzle-orm';
+import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
+import { makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
+import { users } from '../../db/schema';
+import { signSession, SESSION_COOKIE } from '../../auth/session';
+
+let t: TestApp;
+let f: Awaited<ReturnType<typeof makeTwoBranches>>;
+
+beforeAll(async () => {
+  t = await createTestApp();
+  f = await makeTwoBranches(t.ctx.db);
+});
+afterAll(() => t.close());
+
+describe('sign-in', () => {
+  it('signs in with the right password and sets an httpOnly SameSite=Lax cookie', async () => {
+    const res = await request(t.app).post('/api/auth/sign-in').send({ email: f.inA.dispatcher.email, password: TEST_PASSWORD });
+    expect(res.status).toBe(200);
+    expect(res.body.user).toEqual({
+      id: f.inA.dispatcher.id,
+      name: f.inA.dispatcher.name,
+      email: f.inA.dispatcher.email,
+      role: 'dispatcher',
+      branchId: f.a.id,
+    });
+    const cookie = String(res.headers['set-cookie']);
+    expect(cookie).toContain(`${SESSION_COOKIE}=`);
+    expect(cookie).toMatch(/HttpOnly/i);
+    expect(cookie).toMatch(/SameSite=Lax/i);
+    expect(cookie).not.toMatch(/Secure/i);
+  });
+
+  it('accepts the e-mail in any case', async () => {
+    const res = await request(t.app).post('/api/auth/sign-in').send({ email: f.owner.email.toUpperCase(), password: TEST_PASSWORD });
+    expect(res.status).toBe(200);
+    expect(res.body.user.role).toBe('owner');
+  });
+
+  it('refuses a wrong password and an unknown e-mail with the same answer in a similar time', async () => {
+    const timed = async (email: string) => {
+      const start = performance.now();
+      const res = await request(t.app).post('/api/auth/sign-in').send({ email, password: 'not-the-password' });
+      return { res, ms: performance.now() - start };
+    };
+    await timed('warm-up@test.example');
+    const wrong = await timed(f.owner.email);
+    const unknown = await timed('nobody@test.example');
+    expect(wrong.res.status).toBe(401);
+    expect(unknown.res.status).toBe(401);
+    expect(unknown.res.body).toEqual(wrong.res.body);
+    expect(wrong.res.body.error.code).toBe('unauthorized');
+    // Both paths run one argon2 verification; the unknown e-mail must not answer in a fraction of the time.
+    expect(unknown.ms).toBeGreaterThan(wrong.ms * 0.4);
+  });
+
+  it('refuses a deactivated user', async () => {
+    const [u] = await t.ctx.db.select().from(users).where(eq(users.id, f.inB.technician.id));
+    await t.ctx.db.update(users).set({ active: false }).where(eq(users.id, u!.id));
+    const res = await request(t.app).post('/api/auth/sign-in').send({ email: u!.email, password: TEST_PASSWORD });
+    expect(res.status).toBe(401);
+    await t.ctx.db.update(users).set({ active: true }).where(eq(users.id, u!.id));
+  });
+
+  it('answers a missing field with 400 naming it', async () => {
+    const res = await request(t.app).post('/api/auth/sign-in').send({ email: f.owner.email });
+    expect(res.status).toBe(400);
+    expect(res.body.error.code).toBe('invalid');
+    expect(res.body.error.message).toContain('password');
+    expect(res.body.error.details.fields[0].path).toBe('password');
+  });
+
+  it('rate-limits repeated sign-in attempts', async () => {
+    const limited = await createTestApp({ signInLimit: 3 });
+    try {
+      const codes: number[] = [];
+      for (let i = 0; i < 4; i++) {
+        const r = await request(limited.app).post('/api/auth/sign-in').send({ email: 'x@test.example', password: 'wrong-password' });
+        codes.push(r.status);
+      }
+      expect(codes).toEqual([401, 401, 401, 429]);
+    } finally {
+      await limited.close();
+    }
+  });
+});
+
+describe('sessions', () => {
+  it('GET /api/auth/me answers the signed-in user, and 401 after sign-out', async () => {
+    const agent = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
+    const me = await agent.get('/api/auth/me');
+    expect(me.status).toBe(200);
+    expect(me.body.user.id).toBe(f.inA.technician.id);
+    const out = await agent.post('/api/auth/sign-out');
+    expect(out.status).toBe(204);
+    expect((await agent.get('/api/auth/me')).status).toBe(401);
+  });
+
+  it('refuses a missing, tampered, expired or foreign-signed token with 401', async () => {
+    expect((await request(t.app).get('/api/auth/me')).status).toBe(401);
+
+    const good = await signSession(t.ctx.secret, { sub: f.owner.id, sv: 1 }, 12, new Date());
+    const [h, p, s] = good.split('.');
+    const payload = JSON.parse(Buffer.from(p!, 'base64url').toString());
+    payload.sub = f.inA.manager.id;
+    const tampered = `${h}.${Buffer.from(JSON.stringify(payload)).toString('base64url')}.${s}`;
+    const expired = await signSession(t.ctx.secret, { sub: f.owner.id, sv: 1 }, 1, new Date(Date.now() - 2 * 3600_000));
+    const foreign = await new SignJWT({ sv: 1 })
+      .setProtectedHeader({ alg: 'HS256' })
+      .setSubject(f.owner.id)
+      .setIssuer('coilpath')
+      .setExpirationTime('1h')
+      .sign(new TextEncoder().encode('some-other-secret-some-other-secret!!'));
+
+    for (const token of [tampered, expired, foreign, 'not-a-jwt']) {
+      const res = await request(t.app).get('/api/auth/me').set('Cookie', `${SESSION_COOKIE}=${token}`);
+      expect(res.status, token.slice(0, 12)).toBe(401);
+      expect(res.body.error.code).toBe('unauthorized');
+    }
+    const ok = await request(t.app).get('/api/auth/me').set('Cookie', `${SESSION_COOKIE}=${good}`);
+    expect(ok.status).toBe(200);
+  });
+
+  it('a raised session version signs every session out', async () => {
+    const agent = await signedInAgent(t.app, f.inB.dispatcher.email, TEST_PASSWORD);
+    expect((await agent.get('/api/auth/me')).status).toBe(200);
+    await t.ctx.db.update(users).set({ sessionVersion: 2 }).where(eq(users.id, f.inB.dispatcher.id));
+    expect((await agent.get('/api/auth/me')).status).toBe(401);
+  });
+});
+
+describe('roles, branches and errors', () => {
+  it('a role that may not use a route gets 403', async () => {
+    const agent = await signedInAgent(t.app, f.inA.manager.email, TEST_PASSWORD);
+    const res = await agent.get('/api/outbox');
+    expect(res.status).toBe(403);
+    expect(res.body.error.code).toBe('forbidden');
+    const owner = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD);
+    expect((await owner.get('/api/outbox')).status).toBe(200);
+  });
+
+  it('a branch user sees only their branch; the owner sees all', async () => {
+    const mgr = await signedInAgent(t.app, f.inA.manager.email, TEST_PASSWORD);
+    const mine = await mgr.get('/api/branches');
+    expect(mine.body.branches.map((b: { id: string }) => b.id)).toEqual([f.a.id]);
+    const owner = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD);
+    const all = await owner.get('/api/branches');
+    expect(all.body.branches.map((b: { id: string }) => b.id).sort()).toEqual([f.a.id, f.b.id].sort());
+  });
+
+  it('malformed JSON → 400, oversized body → 413, non-JSON body → 415, unknown route → 404', async () => {
+    const bad = await request(t.app).post('/api/auth/sign-in').set('Content-Type', 'application/json').send('{"email": ');
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.code).toBe('malformed_json');
+
+    const huge = await request(t.app)
+      .post('/api/auth/sign-in')
+      .set('Content-Type', 'application/json')
+      .send(JSON.stringify({ email: 'a@b.example', password: 'x'.repeat(2 * 1024 * 1024) }));
+    expect(huge.status).toBe(413);
+    expect(huge.body.error.code).toBe('too_large');
+
+    const form = await request(t.app).post('/api/auth/sign-in').type('form').send('email=a@b.example&password=x');
+    expect(form.status).toBe(415);
+
+    const unknown = await request(t.app).get('/api/no-such-thing');
+    expect(unknown.status).toBe(404);
+    expect(unknown.body).toEqual({ error: { code: 'not_found', message: 'No such API route.' } });
+  });
+
+  it('health names the database', async () => {
+    const res = await request(t.app).get('/api/health');
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual({ ok: true, database: process.env.DATABASE_URL ? 'postgres' : 'pglite' });
+  });
+
+  it('sets helmet headers', async () => {
+    const res = await request(t.app).get('/api/health');
+    expect(res.headers['x-content-type-options']).toBe('nosniff');
+    expect(res.headers['content-security-policy']).toContain("default-src 'self'");
+  });
+});

@@ -1,0 +1,67 @@
+import { Suspense, useState } from 'react';
+import { QueryClientProvider } from '@tanstack/react-query';
+import { createBrowserRouter, Navigate, RouterProvider, useLocation } from 'react-router-dom';
+import { createQueryClient } from '@/lib/query-client';
+import { LoadingState, ErrorState } from '@/components/ui/states';
+import { NoticesProvider } from '@/components/ui/notices';
+import { SignInPage } from '@/features/auth/sign-in-page';
+import { SessionProvider, useSessionQuery, useUser } from './session';
+import { BranchProvider } from './branch';
+import { AppFrame } from './layout';
+import { homeFor } from './screens';
+import { RouterErrorElement } from './route-error';
+import { publicRoutes, screenRoutes } from './routes';
+
+function RequireSession() {
+  const session = useSessionQuery();
+  const location = useLocation();
+  if (session.isPending) return <LoadingState label="Opening Coilpath…" />;
+  if (session.isError) return <div className="p-6"><ErrorState error={session.error} onRetry={() => session.refetch()} /></div>;
+  if (!session.data) return <Navigate to="/sign-in" replace state={{ from: location.pathname + location.search }} />;
+  return (
+    <SessionProvider user={session.data}>
+      <BranchProvider>
+        <AppFrame />
+      </BranchProvider>
+    </SessionProvider>
+  );
+}
+
+function Home() {
+  const user = useUser();
+  return <Navigate to={homeFor(user.role)} replace />;
+}
+
+function SignInRoute() {
+  const session = useSessionQuery();
+  if (session.data) return <Navigate to={homeFor(session.data.role)} replace />;
+  return <SignInPage />;
+}
+
+const router = createBrowserRouter([
+  { path: '/sign-in', element: <SignInRoute />, errorElement: <RouterErrorElement /> },
+  ...publicRoutes.map((r) => ({ ...r, errorElement: <RouterErrorElement /> })),
+  {
+    element: <RequireSession />,
+    errorElement: <RouterErrorElement />,
+    children: [{ index: true, element: <Home /> }, ...screenRoutes, { path: '*', element: <NotFound /> }],
+  },
+]);
+
+function NotFound() {
+  return <ErrorState title="No such page" error={new Error('Check the address, or pick a screen from the navigation.')} />;
+}
+
+export function App() {
+  const [client] = useState(createQueryClient);
+  return (
+    <QueryClientProvider client={client}>
+      <NoticesProvider>
+        <Suspense fallback={<LoadingState />}>
+          <RouterProvider router={router} />
+        </Suspense>
+      </NoticesProvider>
+    </QueryClientProvider>
+  );
+}
+

@@ -1,0 +1,72 @@
+/** The one HTTP client of the web app: JSON in and out, the API's error shape turned into ApiError. */
+export class ApiError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly details?: unknown,
+  ) {
+    super(message);
+    this.name = 'ApiError';
+  }
+  /** Field messages of a 400 `invalid` answer, keyed by path. */
+  get fieldErrors(): Record<string, string> {
+    const d = this.details as { fields?: { path: string; message: string }[] } | undefined;
+    return Object.fromEntries((d?.fields ?? []).map((f) => [f.path, f.message]));
+  }
+}
+
+let onUnauthorized: (() => void) | undefined;
+/** Called when a request answers 401 (the session ended): the app returns to sign-in. */
+export function setUnauthorizedHandler(fn: () => void) {
+  onUnauthorized = fn;
+}
+
+type Query = Record<string, string | number | boolean | null | undefined>;
+
+export function withQuery(path: string, query?: Query): string {
+  if (!query) return path;
+  const q = new URLSearchParams();
+  for (const [k, v] of Object.entries(query)) if (v !== undefined && v !== null && v !== '') q.set(k, String(v));
+  const s = q.toString();
+  return s ? `${path}?${s}` : path;
+}
+
+async function request<T>(method: string, path: string, body?: unknown, init?: RequestInit): Promise<T> {
+  let res: Response;
+  try {
+    res = await fetch(path, {
+      method,
+      credentials: 'same-origin',
+      headers: body !== undefined && !(body instanceof FormData) ? { 'Content-Type': 'application/json' } : undefined,
+      body: body === undefined ? undefined : body instanceof FormData ? body : JSON.stringify(body),
+      ...init,
+    });
+  } catch {
+    throw new ApiError(0, 'network', 'Coilpath could not reach the server. Check the connection and try again.');
+  }
+  if (res.status === 204) return undefined as T;
+  const type = res.headers.get('content-type') ?? '';
+  const data: unknown = type.includes('application/json') ? await res.json().catch(() => null) : null;
+  if (!res.ok) {
+    const e = (data as { error?: { code?: string; message?: string; details?: unknown } } | null)?.error;
+    if (res.status === 401 && !path.startsWith('/api/auth/')) onUnauthorized?.();
+    throw new ApiError(res.status, e?.code ?? 'http_error', e?.message ?? `The server answered ${res.status}.`, e?.details);
+  }
+  return data as T;
+}
+
+export const api = {
+  get: <T>(path: string, query?: Query) => request<T>('GET', withQuery(path, query)),
+  post: <T>(path: string, body?: unknown) => request<T>('POST', path, body ?? {}),
+  patch: <T>(path: string, body?: unknown) => request<T>('PATCH', path, body ?? {}),
+  put: <T>(path: string, body?: unknown) => request<T>('PUT', path, body ?? {}),
+  delete: <T>(path: string) => request<T>('DELETE', path),
+  upload: <T>(path: string, form: FormData) => request<T>('POST', path, form),
+};
+
+export function errorMessage(err: unknown): string {
+  if (err instanceof ApiError) return err.message;
+  if (err instanceof Error) return err.message;
+  return 'Something went wrong.';
+}
