@@ -5,7 +5,7 @@ import { Button } from './button';
 
 export function LoadingState({ label = 'Loading…' }: { label?: string }) {
   return (
-    <div role="status" className="flex items-center gap-3 p-6 text-slate">
+    <div role="status" aria-busy="true" className="flex items-center gap-3 p-6 text-slate">
       <LoaderCircle className="size-5 animate-spin" aria-hidden="true" />
       <span>{label}</span>
     </div>

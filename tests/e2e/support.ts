@@ -1,0 +1,59 @@
+/** Steps several journeys share. Assertions are `node:assert`; Playwright's waits are bounded by its timeouts. */
+import assert from 'node:assert/strict';
+import type { Page } from 'playwright-core';
+import type { Role } from '@coilpath/contract';
+import { homeFor, screensFor } from '../../apps/web/src/app/screens';
+import type { JourneyContext } from './harness';
+
+export const DEMO_PASSWORD = process.env.COILPATH_PASSWORD ?? 'coilpath-demo';
+
+/** The demo sign-ins (DESIGN §8; printed by the server at start). */
+export const demo: Record<Role, string> = {
+  owner: 'owner@coilpath.example',
+  branch_manager: 'manager@coilpath.example',
+  dispatcher: 'dispatch@coilpath.example',
+  technician: 'tech@coilpath.example',
+};
+
+/** Opens the app, checks the sign-in page (screenshot + axe), signs in through the form, lands on the role's home. */
+export async function signInThroughForm(ctx: JourneyContext, page: Page, role: Role): Promise<void> {
+  await page.goto(`${ctx.base}/`);
+  await page.getByRole('heading', { name: 'Sign in' }).waitFor();
+  assert.match(new URL(page.url()).pathname, /\/sign-in$/, 'an anonymous visitor is sent to the sign-in page');
+  await ctx.screen(page, 'sign-in');
+  await page.getByLabel('E-mail').fill(demo[role]);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.waitForURL((u) => u.pathname === homeFor(role), { timeout: 15_000 });
+  ctx.step(`signed in as ${demo[role]} → ${homeFor(role)}`);
+}
+
+/** The labels the visible "Screens" navigation shows, in order. */
+export async function navigationLabels(page: Page): Promise<string[]> {
+  const nav = page.getByRole('navigation', { name: 'Screens' });
+  await nav.waitFor();
+  return (await nav.getByRole('link').allInnerTexts()).map((t) => t.trim());
+}
+
+/**
+ * The navigation a role should see (apps/web/src/app/screens.ts): on a phone the technician's
+ * bottom bar shows every screen of the role; office roles on a desktop see the rail without the
+ * phone-only entries.
+ */
+export function expectedNavigation(role: Role, viewport: 'phone' | 'desktop'): string[] {
+  const items = screensFor(role);
+  return (viewport === 'phone' ? items : items.filter((s) => !('navOnly' in s))).map((s) => s.label);
+}
+
+/** Visits every other screen in the navigation (screenshot + axe each) by clicking its link. */
+export async function visitEveryScreen(ctx: JourneyContext, page: Page, labels: string[]): Promise<void> {
+  const nav = page.getByRole('navigation', { name: 'Screens' });
+  for (const label of labels) {
+    const link = nav.getByRole('link', { name: label, exact: true });
+    if ((await link.getAttribute('aria-current')) === 'page') continue; // already shown
+    await link.click();
+    await page.waitForFunction((l) => document.querySelector('nav a[aria-current="page"]')?.textContent?.trim() === l, label);
+    await page.getByRole('heading', { level: 1 }).first().waitFor();
+    await ctx.screen(page, label.toLowerCase());
+  }
+}
