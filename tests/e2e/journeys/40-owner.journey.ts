@@ -17,7 +17,7 @@ export async function run(ctx: JourneyContext) {
   await signInThroughForm(ctx, page, 'owner');
   const labels = await navigationLabels(page);
   assert.deepEqual(labels, expectedNavigation('owner', 'desktop'), 'the owner sees every office screen');
-  assert.equal(await page.getByLabel('Branch').count(), 1, 'the owner can switch branches');
+  assert.equal(await page.getByRole('combobox', { name: 'Branch' }).count(), 1, 'the owner can switch branches');
   await page.getByRole('heading', { level: 1, name: 'Fix Quality' }).waitFor();
   await ctx.screen(page, 'fix-quality');
 
