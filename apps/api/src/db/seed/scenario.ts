@@ -318,15 +318,15 @@ export function buildScenario(today: string, passwordHash: string): Rows {
         break;
       case 'grocery':
         rtus(1);
-        list.push([rng.chance(0.6) ? MODELS.walkInCooler! : MODELS.walkInCoolerOld!, 'WIC-1']);
-        list.push([sd.special === 'leak-walk-in' || rng.chance(0.7) ? MODELS.walkInFreezer! : MODELS.walkInFreezer407!, 'WIF-1']);
+        list.push([rng.pick([MODELS.walkInCooler!, MODELS.walkInCooler!, MODELS.walkInCoolerOld!, MODELS.walkInCooler407!]), 'WIC-1']);
+        list.push([MODELS.walkInFreezer!, 'WIF-1']);
         list.push([MODELS.reachIn!, 'RI-1']);
         if (rng.chance(0.25)) list.push([MODELS.reachIn!, 'RI-2']);
         break;
       case 'restaurant':
         list.push([MODELS.rtuSmall!, 'RTU-1']);
-        list.push([MODELS.walkInCoolerOld!, 'WIC-1']);
-        if (rng.chance(0.5)) list.push([MODELS.walkInFreezer407!, 'WIF-1']);
+        list.push([rng.chance(0.5) ? MODELS.walkInCoolerOld! : MODELS.walkInCooler407!, 'WIC-1']);
+        if (rng.chance(0.5)) list.push([MODELS.walkInFreezer!, 'WIF-1']);
         list.push([MODELS.reachIn!, 'RI-1']);
         if (rng.chance(0.35)) list.push([MODELS.iceMachine!, 'IM-1']);
         break;
@@ -971,7 +971,8 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     })!;
     // Annualizing (40 CFR 84.106 via 82.152): % = lb added ÷ full charge × 365 ÷ min(days since the previous addition, 365) × 100.
     // With the previous addition 41 days earlier in 2026: 9.5 ÷ 180 × 365 ÷ 41 × 100 = 46.98 % > 10 % (comfort cooling) → repair within
-    // 30 days of the addition, i.e. about 6 days from today. If the previous addition fell before 2026-01-01, the first Part 84
+    // 30 days of the addition, i.e. about 6 days from today. (Both visits move to the previous working day when they fall on a
+    // weekend, so the day count and rate shift slightly — e.g. 42 days gives 45.87 %; the stored rate is computed, not typed.) If the previous addition fell before 2026-01-01, the first Part 84
     // calculation uses 365 days (84.106(b)(1)), so the addition is sized to exceed the threshold either way.
     const cover = coveredBy({ refrigerant: u.refrigerant, fullChargeLb: u.fullChargeLb, applianceCategory: u.applianceCategory }, triggerDate)!;
     const days = cover ? annualizingDays(cover, sc1.slot.date, triggerDate, daysBetween) : 365;
