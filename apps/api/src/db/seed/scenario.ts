@@ -994,19 +994,12 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     const caseId = rng.uuid();
     const due = addDays(triggerDate, 30);
     chillerCase = { id: caseId, due };
-    const repairDay = weekDays[weekDays.length - 1]!;
-    const repairCreated = addMinutes(rv1.slot.closedAt, 30);
-    const repair = newWorkOrder({
-      branch: chicago, site: u.site, unit: u, kind: 'return_visit', state: 'booked', createdAt: repairCreated, priority: 'high',
-      complaint: `Leak repair on CH-1 circuit 2 (condenser header braze joint) — repair due ${due}`, estimatedMinutes: 240,
-      originWorkOrderId: sc2.wo.id, requiredSkill: 'brazing', requiredCertification: 'II', returnNeeds: ['parts', 'second_tech'],
-      latestAt: wallTime(due, 17 * 60, chicago.tz), slaDueAt: null, leakCaseId: caseId,
-    });
-    stops.push({ tech: chillerTech, date: repairDay, wo: repair, minutes: 240, first: true });
+    // The repair itself is not booked yet: the branch manager books it from the Watchlist (return visit, EPA 608
+    // Type II, the due date as its booking deadline).
     rows.leakCases.push({
       id: caseId, branchId: chicago.id, unitId: u.id, triggeringEventId: triggerId, openedOn: triggerDate, rule: cover?.rule ?? '40 CFR 84.106',
       method: 'annualizing', thresholdPercent: cover?.thresholdPercent ?? 10, leakRatePercent: round2(rate), repairDueDate: due, status: 'open',
-      repairWorkOrderId: repair.id,
+      repairWorkOrderId: null,
       notes: `Annualized leak rate ${round2(rate)} % (${lb} lb ÷ ${u.fullChargeLb} lb × 365 ÷ ${days} d) over the 10 % comfort-cooling threshold.`,
       createdAt: sc2.slot.closedAt, updatedAt: rv1.slot.closedAt,
     });
