@@ -5,6 +5,9 @@ import { authRoutes } from './modules/auth/auth.routes';
 import { healthRoutes } from './modules/health/health.routes';
 import { outboxRoutes } from './modules/outbox/outbox.routes';
 import { branchesRoutes } from './modules/branches/branches.routes';
+import { customersRoutes, sitesRoutes } from './modules/sites/sites.routes';
+import { unitsRoutes } from './modules/units/units.routes';
+import { invitationsRoutes, usersRoutes } from './modules/team/team.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -16,5 +19,11 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/auth', authRoutes(ctx));
   api.use('/branches', requireAuth, branchesRoutes(ctx));
   api.use('/outbox', requireAuth, outboxRoutes(ctx));
+  api.use('/customers', requireAuth, customersRoutes(ctx));
+  api.use('/sites', requireAuth, sitesRoutes(ctx));
+  api.use('/units', requireAuth, unitsRoutes(ctx));
+  api.use('/users', requireAuth, usersRoutes(ctx));
+  // Public `check` and `accept` (the e-mailed token is the credential); the rest needs the owner.
+  api.use('/invitations', invitationsRoutes(ctx));
   return api;
 }
