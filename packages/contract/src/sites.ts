@@ -276,6 +276,17 @@ export const unitImportExample: Record<UnitImportColumn, string> = {
   notes: 'North end of the roof',
 };
 
+/** A header as typed → the template's column name ("Full charge (lb)" → full_charge_lb). */
+export function normalizeImportHeader(h: string): string {
+  return h
+    .replace(/^\uFEFF/, '')
+    .trim()
+    .toLowerCase()
+    .replace(/\(lbs?\)/g, 'lb')
+    .replace(/[^a-z0-9]+/g, '_')
+    .replace(/^_|_$/g, '');
+}
+
 /** Largest import accepted in one request. */
 export const unitImportLimits = { maxRows: 20_000, maxBytes: 6 * 1024 * 1024 } as const;
 

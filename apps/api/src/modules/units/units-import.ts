@@ -5,6 +5,7 @@ import {
   applianceCategories,
   applianceCategoryLabels,
   isoDateSchema,
+  normalizeImportHeader,
   unitImportColumns,
   unitImportLimits,
   unitImportRequiredColumns,
@@ -22,17 +23,6 @@ import type { AppContext } from '../../context';
 import { circuits, sites, units } from '../../db/schema';
 import { badRequest, conflict, HttpError } from '../../lib/errors';
 import { getSite } from '../sites/sites.service';
-
-/** A header as typed → the template's column name ("Full charge (lb)" → full_charge_lb). */
-export function normalizeHeader(h: string): string {
-  return h
-    .replace(/^\uFEFF/, '')
-    .trim()
-    .toLowerCase()
-    .replace(/\(lb\)|\(lbs\)/g, 'lb')
-    .replace(/[^a-z0-9]+/g, '_')
-    .replace(/^_|_$/g, '');
-}
 
 const squash = (s: string) => s.toLowerCase().replace(/[^a-z0-9]/g, '');
 
@@ -84,7 +74,7 @@ export function parseUnitCsv(text: string): { units: ImportedUnit[]; errors: Uni
   const parsed = Papa.parse<Record<string, string>>(text, {
     header: true,
     skipEmptyLines: 'greedy',
-    transformHeader: normalizeHeader,
+    transformHeader: normalizeImportHeader,
   });
   const fields = (parsed.meta.fields ?? []).filter(Boolean);
   const missing = unitImportRequiredColumns.filter((c) => !fields.includes(c));
