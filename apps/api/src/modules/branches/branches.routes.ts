@@ -28,11 +28,16 @@ export function branchesRoutes(ctx: AppContext): Router {
           repeatAlarmCount: branches.repeatAlarmCount,
           repeatAlarmDays: branches.repeatAlarmDays,
           callbackWindowDays: branches.callbackWindowDays,
+          baseAddress: branches.baseAddress,
+          baseLat: branches.baseLat,
+          baseLon: branches.baseLon,
+          holidays: branches.holidays,
+          labourRateCents: branches.labourRateCents,
         })
         .from(branches)
         .where(and(isNull(branches.archivedAt), scope ? inArray(branches.id, scope) : undefined))
         .orderBy(asc(branches.name));
-      return { branches: rows };
+      return { branches: rows.map(({ labourRateCents, ...b }) => ({ ...b, labourRate: labourRateCents / 100, archivedAt: null })) };
     }),
   );
   /** Full settings; branch people may read their own branch, only the owner changes branches. */
