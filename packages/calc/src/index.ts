@@ -1,1 +1,5 @@
-export {};
+export * from './refrigerants';
+export * from './saturation-data';
+export * from './sensor-check';
+export * from './leak-rules';
+export * from './dates';
