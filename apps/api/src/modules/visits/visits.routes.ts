@@ -14,7 +14,7 @@ import { z } from 'zod';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
-import { unauthorized } from '../../lib/errors';
+import { badRequest, unauthorized } from '../../lib/errors';
 import { assertVisitWritable, loadVisit } from './access';
 import { addAttachment, readAttachment } from './attachments.service';
 import { unitBriefing } from './briefing.service';
@@ -46,7 +46,16 @@ export function visitsRoutes(ctx: AppContext): Router {
   );
 
   // The visit is checked before the upload is read, so a refused request never buffers 15 MB.
-  const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: attachmentMaxBytes, files: 1, fields: 5 } }).single('file');
+  const multerUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: attachmentMaxBytes, files: 1, fields: 5 } }).single('file');
+  // Multer's own limit errors (LIMIT_FILE_SIZE → 413) pass through; an unreadable body is the client's 400.
+  const upload = (req: Request, res: Response, next: NextFunction) =>
+    multerUpload(req, res, (err?: unknown) => {
+      const code = (err as { code?: unknown } | undefined)?.code;
+      if (err && !(typeof code === 'string' && code.startsWith('LIMIT_'))) {
+        return next(badRequest('The upload could not be read. Send the file again as multipart/form-data in the field "file".'));
+      }
+      next(err);
+    });
   r.post(
     '/:id/attachments',
     async (req: Request, _res: Response, next: NextFunction) => {
