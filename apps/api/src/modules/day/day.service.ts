@@ -21,7 +21,7 @@ export function addDaysIso(date: string, days: number): string {
 }
 
 /** A non-fixed booking may be reached up to this many minutes before it starts. */
-const LOOSE_EARLY_MINUTES = 120;
+const LOOSE_EARLY_MINUTES = 30;
 
 export function calendarFeedUrl(ctx: AppContext, token: string | null): string | null {
   return token ? `${ctx.config.publicUrl.replace(/\/$/, '')}/api/calendar/${token}.ics` : null;

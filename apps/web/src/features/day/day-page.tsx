@@ -156,13 +156,15 @@ function StopCard({
         </p>
 
         <div className="mt-3 flex flex-wrap gap-2">
-          <StateButton visit={{ id: stop.visitId, status: stop.status, canWrite: !done }} />
-          <Link
-            to={`/visits/${stop.visitId}`}
-            className="inline-flex min-h-12 items-center justify-center gap-2 rounded-md border border-slate-line bg-white px-5 text-base font-medium hover:bg-slate-faint"
-          >
-            <ClipboardCheck className="size-5" aria-hidden="true" /> Open visit
-          </Link>
+          <StateButton where="day" visit={{ id: stop.visitId, status: stop.status, canWrite: !done }} />
+          {stop.status !== 'on_site' && (
+            <Link
+              to={`/visits/${stop.visitId}`}
+              className="inline-flex min-h-12 items-center justify-center gap-2 rounded-md border border-slate-line bg-white px-5 text-base font-medium hover:bg-slate-faint"
+            >
+              <ClipboardCheck className="size-5" aria-hidden="true" /> Open visit
+            </Link>
+          )}
         </div>
 
         {stop.units.map((u) => (
@@ -242,7 +244,7 @@ export default function DayPage() {
         }
         actions={
           next ? (
-            <StateButton visit={{ id: next.visitId, status: next.status, canWrite: true }} />
+            <StateButton where="day" visit={{ id: next.visitId, status: next.status, canWrite: true }} />
           ) : undefined
         }
       />

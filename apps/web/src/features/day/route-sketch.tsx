@@ -27,7 +27,22 @@ export function RouteSketch({ start, stops }: { start: { lat: number; lon: numbe
   const scale = Math.min((W - 2 * pad) / Math.max(maxX - minX, span * 0.3), (H - 2 * pad) / Math.max(maxY - minY, span * 0.3));
   const ox = (W - (maxX - minX) * scale) / 2;
   const oy = (H - (maxY - minY) * scale) / 2;
-  const pt = (p: { lat: number; lon: number }) => [ox + (p.lon * k - minX) * scale, oy + (-p.lat - minY) * scale] as const;
+  const raw = (p: { lat: number; lon: number }) => [ox + (p.lon * k - minX) * scale, oy + (-p.lat - minY) * scale] as const;
+  // Stops at the same place (two units at one site) are nudged apart so each number shows.
+  const placed: (readonly [number, number])[] = [];
+  for (const p of all) {
+    const [x0, y0] = raw(p);
+    let [x, y] = [x0, y0];
+    for (let n = 1; placed.some(([px, py]) => Math.hypot(px - x, py - y) < 20) && n < 40; n++) {
+      const ring = Math.ceil(n / 4) * 22;
+      const dir = n % 4;
+      x = Math.min(Math.max(x0 + (dir === 1 ? ring : dir === 3 ? -ring : 0), 12), W - 12);
+      y = Math.min(Math.max(y0 + (dir === 2 ? ring : dir === 0 ? -ring : 0), 12), H - 12);
+    }
+    placed.push([x, y] as const);
+  }
+  const at = new Map(all.map((p, i) => [p, placed[i]!]));
+  const pt = (p: { lat: number; lon: number }) => at.get(p as SketchPoint) ?? raw(p);
   const path = all.map((p, i) => `${i ? 'L' : 'M'}${pt(p)[0].toFixed(1)},${pt(p)[1].toFixed(1)}`).join(' ');
   const [sx, sy] = pt(start);
   const description = `Route sketch: from ${start.label}, ${stops.map((s, i) => `${i + 1}. ${s.label}`).join(', ')}.`;

@@ -129,7 +129,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
               ))}
             </SelectField>
           )}
-          <SelectField label="Cause" error={form.formState.errors.causeCode?.message} {...form.register('causeCode')}>
+          <SelectField label="Cause code" error={form.formState.errors.causeCode?.message} {...form.register('causeCode')}>
             <option value="">Choose…</option>
             {causeCodes.map((c) => (
               <option key={c} value={c}>
@@ -137,7 +137,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
               </option>
             ))}
           </SelectField>
-          <SelectField label="Origin of the cause" error={form.formState.errors.origin?.message} {...form.register('origin')}>
+          <SelectField label="Origin" error={form.formState.errors.origin?.message} {...form.register('origin')}>
             <option value="">Choose…</option>
             {causeOrigins.map((c) => (
               <option key={c} value={c}>

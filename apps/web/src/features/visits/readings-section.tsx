@@ -52,7 +52,7 @@ function fromServer(r: ReadingDto | undefined): Record<string, string> {
 function NumberInput({ id, label, value, onChange, disabled }: { id: string; label: string; value: string; onChange(v: string): void; disabled: boolean }) {
   const invalid = value.trim() !== '' && num(value) === null;
   return (
-    <div className="flex flex-col gap-1">
+    <div className="flex h-full flex-col justify-end gap-1">
       <label htmlFor={id} className="text-sm font-medium">
         {label}
       </label>
@@ -221,27 +221,32 @@ export function ReadingsSection({
                 <legend className="px-1 text-base font-semibold">
                   {multi ? `${u.tag} · ` : ''}Circuit {c.number} <span className="text-sm font-normal text-slate">({u.refrigerant})</span>
                 </legend>
-                <div className="grid grid-cols-2 gap-3 lg:grid-cols-3">
-                  {input('suctionPressure')}
-                  {input('suctionPressureController')}
-                  <div className="col-span-2 lg:col-span-1 lg:self-end">
-                    <SensorMark controller={num(v.suctionPressureController)} reference={num(v.suctionPressure)} branch={visit.branch} />
+                <div className="flex flex-col gap-4">
+                  <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">
+                    {input('suctionPressure')}
+                    {input('suctionPressureController')}
+                    <div className="col-span-2 lg:col-span-1">
+                      <SensorMark controller={num(v.suctionPressureController)} reference={num(v.suctionPressure)} branch={visit.branch} />
+                    </div>
                   </div>
-                  {input('suctionLineTemp')}
-                  {input('outdoorTemp')}
-                  <span className="hidden lg:block" />
-                  {input('liquidPressure')}
-                  {input('liquidPressureController')}
-                  <div className="col-span-2 lg:col-span-1 lg:self-end">
-                    <SensorMark controller={num(v.liquidPressureController)} reference={num(v.liquidPressure)} branch={visit.branch} />
+                  <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">
+                    {input('suctionLineTemp')}
+                    {input('outdoorTemp')}
                   </div>
-                  {input('liquidLineTemp')}
-                  <span className="hidden lg:block" />
-                  <span className="hidden lg:block" />
-                  {input('dischargePressure')}
-                  {input('dischargePressureController')}
-                  <div className="col-span-2 lg:col-span-1 lg:self-end">
-                    <SensorMark controller={num(v.dischargePressureController)} reference={num(v.dischargePressure)} branch={visit.branch} />
+                  <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">
+                    {input('liquidPressure')}
+                    {input('liquidPressureController')}
+                    <div className="col-span-2 lg:col-span-1">
+                      <SensorMark controller={num(v.liquidPressureController)} reference={num(v.liquidPressure)} branch={visit.branch} />
+                    </div>
+                  </div>
+                  <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">{input('liquidLineTemp')}</div>
+                  <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">
+                    {input('dischargePressure')}
+                    {input('dischargePressureController')}
+                    <div className="col-span-2 lg:col-span-1">
+                      <SensorMark controller={num(v.dischargePressureController)} reference={num(v.dischargePressure)} branch={visit.branch} />
+                    </div>
                   </div>
                 </div>
                 <div className="mt-3 rounded-md bg-frost p-3">

@@ -40,7 +40,7 @@ function CurrentVisit() {
   );
 }
 
-export function StateButton({ visit }: { visit: Pick<VisitDetail, 'id' | 'status' | 'canWrite'> }) {
+export function StateButton({ visit, where = 'visit' }: { visit: Pick<VisitDetail, 'id' | 'status' | 'canWrite'>; where?: 'visit' | 'day' }) {
   const notify = useNotify();
   const m = useVisitState(visit.id);
   if (!visit.canWrite) return null;
@@ -63,6 +63,15 @@ export function StateButton({ visit }: { visit: Pick<VisitDetail, 'id' | 'status
       <Button size="lg" onClick={() => go('on_site')} busy={m.isPending}>
         <MapPin className="size-5" aria-hidden="true" /> On site
       </Button>
+    );
+  if (visit.status === 'on_site' && where === 'day')
+    return (
+      <Link
+        to={`/visits/${visit.id}`}
+        className="inline-flex min-h-12 items-center justify-center gap-2 rounded-md bg-copper px-5 text-base font-medium text-white hover:bg-copper-hover"
+      >
+        <Wrench className="size-5" aria-hidden="true" /> Record the visit
+      </Link>
     );
   if (visit.status === 'on_site')
     return (
@@ -106,16 +115,7 @@ function VisitScreen({ id }: { id: string }) {
         <p className="mb-4 rounded-md bg-slate-faint p-3 text-sm">Read only: only {v.techName}, the assigned technician, records this visit’s work.</p>
       )}
       <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
-        <div className="flex flex-col gap-4">
-          <ReadingsSection visit={v} draft={draft} update={update} />
-          <FindingsSection visit={v} draft={draft} update={update} />
-          <RefrigerantSection visit={v} draft={draft} update={update} />
-          <AttachmentsSection visit={v} />
-          <div id="close-out">
-            <CloseSection visit={v} unsaved={hasUnsaved(draft)} />
-          </div>
-        </div>
-        <div className="flex flex-col gap-4 lg:order-first lg:col-start-2 lg:row-start-1">
+        <div className="flex flex-col gap-4 lg:col-start-2 lg:row-start-1">
           <Card title="The job">
             <dl className="flex flex-col gap-2 text-sm">
               <div>
@@ -182,6 +182,15 @@ function VisitScreen({ id }: { id: string }) {
               </ol>
             </Card>
           )}
+        </div>
+        <div className="flex flex-col gap-4 lg:col-start-1 lg:row-start-1">
+          <ReadingsSection visit={v} draft={draft} update={update} />
+          <FindingsSection visit={v} draft={draft} update={update} />
+          <RefrigerantSection visit={v} draft={draft} update={update} />
+          <AttachmentsSection visit={v} />
+          <div id="close-out">
+            <CloseSection visit={v} unsaved={hasUnsaved(draft)} />
+          </div>
         </div>
       </div>
     </>
