@@ -8,6 +8,8 @@ import { branchesRoutes } from './modules/branches/branches.routes';
 import { customersRoutes, sitesRoutes } from './modules/sites/sites.routes';
 import { unitsRoutes } from './modules/units/units.routes';
 import { invitationsRoutes, usersRoutes } from './modules/team/team.routes';
+import { calendarRoutes, dayRoutes } from './modules/day/day.routes';
+import { attachmentsRoutes, briefingRoutes, visitsRoutes } from './modules/visits/visits.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -25,5 +27,10 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/users', requireAuth, usersRoutes(ctx));
   // Public `check` and `accept` (the e-mailed token is the credential); the rest needs the owner.
   api.use('/invitations', invitationsRoutes(ctx));
+  api.use('/day', requireAuth, dayRoutes(ctx));
+  api.use('/calendar', calendarRoutes(ctx));
+  api.use('/visits', requireAuth, visitsRoutes(ctx));
+  api.use('/attachments', requireAuth, attachmentsRoutes(ctx));
+  api.use('/units', requireAuth, briefingRoutes(ctx));
   return api;
 }

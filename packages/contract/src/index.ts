@@ -3,3 +3,5 @@ export * from './common';
 export * from './auth';
 export * from './sites';
 export * from './team';
+export * from './visits';
+export * from './day';
