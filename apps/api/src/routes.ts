@@ -5,6 +5,8 @@ import { authRoutes } from './modules/auth/auth.routes';
 import { healthRoutes } from './modules/health/health.routes';
 import { outboxRoutes } from './modules/outbox/outbox.routes';
 import { branchesRoutes } from './modules/branches/branches.routes';
+import { workOrdersRoutes } from './modules/work-orders/work-orders.routes';
+import { bookingsRoutes, rosterRoutes } from './modules/roster/roster.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -16,5 +18,8 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/auth', authRoutes(ctx));
   api.use('/branches', requireAuth, branchesRoutes(ctx));
   api.use('/outbox', requireAuth, outboxRoutes(ctx));
+  api.use('/work-orders', requireAuth, workOrdersRoutes(ctx));
+  api.use('/bookings', requireAuth, bookingsRoutes(ctx));
+  api.use('/roster', requireAuth, rosterRoutes(ctx));
   return api;
 }
