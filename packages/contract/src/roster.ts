@@ -184,3 +184,13 @@ export const evenOutApplySchema = z.strictObject({
 });
 export type EvenOutApply = z.input<typeof evenOutApplySchema>;
 export const evenOutApplyResultSchema = z.object({ bookings: z.array(bookingSchema) });
+
+/** Sites of the branch with their units, for the work-order form's pickers. */
+export const rosterSiteSchema = z.object({
+  id: idSchema,
+  name: z.string(),
+  address: z.string(),
+  units: z.array(z.object({ id: idSchema, tag: z.string(), make: z.string(), model: z.string(), refrigerant: z.string() })),
+});
+export type RosterSite = z.infer<typeof rosterSiteSchema>;
+export const rosterSiteListSchema = z.object({ sites: z.array(rosterSiteSchema) });

@@ -13,7 +13,7 @@ import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
 import { createBooking, deleteBooking, listBookings, updateBooking } from './bookings.service';
-import { evenOutApply, evenOutPreview, listTechnicians, load, rosterBranch, suggest } from './roster.service';
+import { evenOutApply, evenOutPreview, listSites, listTechnicians, load, rosterBranch, suggest } from './roster.service';
 
 const bookers = requireRole('owner', 'branch_manager', 'dispatcher');
 
@@ -53,6 +53,10 @@ export function rosterRoutes(ctx: AppContext): Router {
       const branch = await rosterBranch(ctx.db, user, query.branchId);
       return { timeZone: branch.timeZone, technicians: await listTechnicians(ctx.db, branch) };
     }),
+  );
+  r.get(
+    '/sites',
+    endpoint({ query: rosterBranchQuerySchema }, async ({ user, query }) => ({ sites: await listSites(ctx.db, await rosterBranch(ctx.db, user, query.branchId)) })),
   );
   r.get('/load', endpoint({ query: loadQuerySchema }, ({ user, query }) => load(ctx.db, user, query)));
   r.post('/suggest', endpoint({ body: suggestSchema }, ({ user, body }) => suggest(ctx.db, user, body, ctx.clock.now())));

@@ -1,11 +1,11 @@
 /** The Roster's read side and proposals: technicians, load per day, suggestions, evening out a week. */
-import { and, asc, eq, gt, inArray, lt, ne } from 'drizzle-orm';
-import type { Booking, Candidate, EvenOutPreview, SessionUser, Technician, TechnicianDayLoad } from '@coilpath/contract';
+import { and, asc, eq, gt, inArray, isNull, lt, ne } from 'drizzle-orm';
+import type { Booking, Candidate, EvenOutPreview, RosterSite, SessionUser, Technician, TechnicianDayLoad } from '@coilpath/contract';
 import { evenOutApplySchema, evenOutSchema, loadQuerySchema, suggestSchema, workOrderLabel } from '@coilpath/contract';
 import { addDays, evenOut, rankTechnicians, technicianLoad, type SchedulingJob } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
-import { bookings, branches, sites, users, workOrders } from '../../db/schema';
+import { bookings, branches, sites, units, users, workOrders } from '../../db/schema';
 import { assertBranch, resolveBranch } from '../../auth/middleware';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
 import { createBooking } from './bookings.service';
@@ -279,4 +279,24 @@ export async function evenOutApply(db: Db, user: SessionUser, input: z.output<ty
     }
     return out;
   });
+}
+
+/** Active sites of the branch with their active units (two queries, no N+1). */
+export async function listSites(db: Db, branch: BranchRow): Promise<RosterSite[]> {
+  const siteRows = await db
+    .select({ id: sites.id, name: sites.name, address: sites.address })
+    .from(sites)
+    .where(and(eq(sites.branchId, branch.id), isNull(sites.archivedAt)))
+    .orderBy(asc(sites.name));
+  const unitRows = siteRows.length
+    ? await db
+        .select({ id: units.id, siteId: units.siteId, tag: units.tag, make: units.make, model: units.model, refrigerant: units.refrigerant })
+        .from(units)
+        .where(and(inArray(units.siteId, siteRows.map((s) => s.id)), isNull(units.archivedAt)))
+        .orderBy(asc(units.tag))
+    : [];
+  return siteRows.map((s) => ({
+    ...s,
+    units: unitRows.filter((u) => u.siteId === s.id).map(({ siteId: _siteId, ...u }) => u),
+  }));
 }

@@ -18,7 +18,7 @@ let dispatcherA: Awaited<ReturnType<typeof signedInAgent>>;
 let dispatcherB: Awaited<ReturnType<typeof signedInAgent>>;
 let techA: string;
 
-const job = (over: Partial<typeof workOrders.$inferInsert> = {}) =>
+const job = (over: Omit<Partial<typeof workOrders.$inferInsert>, 'unitId'> = {}) =>
   makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: siteA.site.id, unitId: siteA.unit.id, estimatedMinutes: 90, ...over });
 
 async function book(agent: typeof dispatcherA, workOrderId: string, techId: string, startAt: string, extra: Record<string, unknown> = {}) {
@@ -277,6 +277,17 @@ describe('GET /api/bookings and /api/roster/technicians', () => {
     const owner = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD);
     expect((await owner.get('/api/roster/technicians')).status).toBe(400);
     expect((await owner.get('/api/roster/technicians').query({ branchId: f.b.id })).status).toBe(200);
+  });
+});
+
+describe('GET /api/roster/sites', () => {
+  it('lists the branch’s sites with their units for the work-order form', async () => {
+    const res = await dispatcherA.get('/api/roster/sites');
+    expect(res.status).toBe(200);
+    const s = res.body.sites.find((x: { id: string }) => x.id === siteA.site.id);
+    expect(s.units).toEqual([{ id: siteA.unit.id, tag: siteA.unit.tag, make: 'Testmake', model: 'TM-10', refrigerant: 'R-410A' }]);
+    expect(res.body.sites.some((x: { id: string }) => x.id === siteB.site.id)).toBe(false);
+    expect((await dispatcherA.get('/api/roster/sites').query({ branchId: f.b.id })).status).toBe(404);
   });
 });
 
