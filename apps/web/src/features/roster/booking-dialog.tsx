@@ -174,7 +174,11 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
         </form>
       ) : (
         <>
-          <p className="text-sm text-slate">The technician has started this visit; the booking can no longer be moved or unbooked.</p>
+          <p className="text-sm text-slate">
+            {w.state === 'closed' || w.state === 'cancelled'
+              ? `This work order is ${workOrderStateLabels[w.state].toLowerCase()}; its booking stays as a record.`
+              : 'The technician has started this visit; the booking can no longer be moved or unbooked.'}
+          </p>
           <Refusal message={refusal} />
         </>
       )}

@@ -32,19 +32,19 @@ function Gauge({ l, techName }: { l: TechnicianDayLoad; techName: string }) {
   const text = gaugeText(l);
   return (
     <div
-      className={`flex min-w-36 flex-col gap-1 rounded-md px-2 py-1.5 ${state === 'over' ? 'bg-alarm-tint' : ''}`}
+      className={`flex min-w-24 flex-col gap-1 rounded-md px-1.5 py-1.5 ${state === 'over' ? 'bg-alarm-tint' : ''}`}
       aria-label={`${techName}, ${dayHeading(l.day)}: ${text}${word ? `. ${word}` : ''}`}
       data-testid={`load-${l.techId}-${l.day}`}
     >
-      <div className="flex items-center gap-1 text-xs">
+      <div className="flex items-start gap-1 text-xs leading-snug">
         {offDay && l.bookedMinutes === 0 ? (
-          <Moon className="size-3.5 text-slate" aria-hidden="true" />
+          <Moon className="mt-px size-3.5 shrink-0 text-slate" aria-hidden="true" />
         ) : state === 'over' ? (
-          <AlertTriangle className="size-3.5 text-alarm" aria-hidden="true" />
+          <AlertTriangle className="mt-px size-3.5 shrink-0 text-alarm" aria-hidden="true" />
         ) : state === 'near' ? (
-          <AlertTriangle className="size-3.5 text-watch" aria-hidden="true" />
+          <AlertTriangle className="mt-px size-3.5 shrink-0 text-watch" aria-hidden="true" />
         ) : (
-          <CheckCircle2 className="size-3.5 text-ok" aria-hidden="true" />
+          <CheckCircle2 className="mt-px size-3.5 shrink-0 text-ok" aria-hidden="true" />
         )}
         <span className={`tabular ${offDay && l.bookedMinutes === 0 ? 'text-slate' : ''}`}>{text}</span>
       </div>

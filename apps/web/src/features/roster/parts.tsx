@@ -101,7 +101,8 @@ export function EventBody({
   return (
     <div className="flex h-full flex-col gap-0.5 overflow-hidden px-1 py-0.5 text-[0.72rem] leading-tight text-white">
       <div className="font-semibold">
-        {time} · {workOrderKindLabels[w.kind]}
+        {time}
+        {compact ? '' : ` · ${workOrderKindLabels[w.kind]}`}
       </div>
       <div className="truncate">
         {workOrderLabel(w.number)} · {w.siteName}
@@ -113,7 +114,7 @@ export function EventBody({
       )}
       <div className="truncate">
         <span className="font-semibold">{priorityLabels[w.priority]}</span>
-        {showTech && tech ? ` · ${tech.name}` : ''}
+        {showTech && tech ? ` · ${compact ? tech.name.split(' ')[0] : tech.name}` : ''}
         {booking.hoursOverride ? ' · outside hours' : ''}
         {booking.fixed ? ' · fixed' : ''}
       </div>

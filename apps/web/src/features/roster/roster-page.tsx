@@ -29,6 +29,7 @@ const viewNames: Record<View, string> = { timeGridDay: 'Day', timeGridWeek: 'Wee
 const stepNames: Record<View, string> = { timeGridDay: 'day', timeGridWeek: 'week', dayGridMonth: 'month' };
 
 const addDaysTo = (day: string, n: number) => wallDate(new Date(wallFrom(day).getTime() + n * 86_400_000));
+const dayLabel = (day: string) => wallFrom(day).toLocaleDateString('en-US', { weekday: 'short', day: 'numeric', month: 'short', timeZone: 'UTC' });
 const mondayOf = (day: string) => addDaysTo(day, -((wallFrom(day).getUTCDay() + 6) % 7));
 
 function businessHoursOf(t: Technician | undefined): BusinessHoursInput {
@@ -152,22 +153,30 @@ export default function RosterPage() {
 
   const openBook = useCallback(
     (wo: WorkOrder) => {
-      const date = range && days.length <= 7 ? (days.includes(today) ? today : days[0]!) : today;
+      // Late in the branch's day, suggest tomorrow: today's working hours are mostly gone.
+      const lateToday = Number(toWallClock(Date.now(), tz).toISOString().slice(11, 13)) >= 14;
+      const soonest = lateToday ? addDaysTo(today, 1) : today;
+      const date = range && days.length <= 7 && !days.includes(today) && days[0]! > today ? days[0]! : soonest;
       setBookFor({ wo, initial: { techId: focusTech?.id, date, time: '08:00' } });
     },
-    [range, days, today, focusTech],
+    [range, days, today, focusTech, tz],
   );
 
-  const renderEvent = (arg: EventContentArg) => (
+  const renderEvent = (arg: EventContentArg) => {
+    const b = arg.event.extendedProps.booking as Booking | undefined;
+    // The mirror of a job being dragged in from the queue has no booking yet.
+    if (!b) return <div className="truncate px-1 text-xs text-white">{arg.event.title}</div>;
+    return (
     <EventBody
-      booking={arg.event.extendedProps.booking as Booking}
-      tech={techById.get((arg.event.extendedProps.booking as Booking).techId)}
+      booking={b}
+      tech={techById.get(b.techId)}
       showTech={!focusTech}
       timeZone={tz}
       today={today}
-      compact={arg.view.type === 'dayGridMonth'}
+      compact={arg.view.type === 'dayGridMonth' || (arg.view.type === 'timeGridWeek' && !focusTech)}
     />
-  );
+    );
+  };
 
   if (!branchId) {
     return (
@@ -309,6 +318,7 @@ export default function RosterPage() {
                     eventTimeFormat={{ hour: '2-digit', minute: '2-digit', hour12: false }}
                     dayHeaderFormat={view === 'dayGridMonth' ? { weekday: 'short' } : { weekday: 'short', day: 'numeric', month: 'short' }}
                     nowIndicator
+                    slotEventOverlap={false}
                     editable
                     droppable
                     eventInteractive
@@ -318,12 +328,14 @@ export default function RosterPage() {
                     events={events}
                     eventContent={renderEvent}
                     eventDidMount={(arg) => {
-                      const b = arg.event.extendedProps.booking as Booking;
+                      const b = arg.event.extendedProps.booking as Booking | undefined;
+                      if (!b) return;
                       arg.el.setAttribute('aria-label', `${bookingSummary(b, techById.get(b.techId), tz)}, ${b.workOrder.siteName}. Open to move, reassign or unbook.`);
                     }}
                     eventClick={(arg: EventClickArg) => {
                       arg.jsEvent.preventDefault();
-                      setEdit({ booking: arg.event.extendedProps.booking as Booking });
+                      const b = arg.event.extendedProps.booking as Booking | undefined;
+                      if (b) setEdit({ booking: b });
                     }}
                     eventDrop={(info) => saveMove('move', info)}
                     eventResize={(info) => saveMove('resize', info)}
@@ -334,7 +346,7 @@ export default function RosterPage() {
               </div>
             </Card>
 
-            <Card title={`Load ${gaugeDays.length === 1 ? 'today' : `${gaugeDays[0] ?? ''} to ${gaugeDays[gaugeDays.length - 1] ?? ''}`}`}>
+            <Card title={`Load, ${gaugeDays.map(dayLabel).filter((_, i, a) => i === 0 || i === a.length - 1).join(' to ')}`}>
               <p className="mb-2 text-sm text-slate">Booked time against each technician’s working hours. Over capacity shows in red with the word “Over”.</p>
               {loadQ.isError ? (
                 <ErrorState error={loadQ.error} onRetry={() => loadQ.refetch()} />
