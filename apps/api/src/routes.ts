@@ -10,6 +10,8 @@ import { unitsRoutes } from './modules/units/units.routes';
 import { invitationsRoutes, usersRoutes } from './modules/team/team.routes';
 import { calendarRoutes, dayRoutes } from './modules/day/day.routes';
 import { attachmentsRoutes, briefingRoutes, visitsRoutes } from './modules/visits/visits.routes';
+import { workOrdersRoutes } from './modules/work-orders/work-orders.routes';
+import { bookingsRoutes, rosterRoutes } from './modules/roster/roster.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -32,5 +34,8 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/visits', requireAuth, visitsRoutes(ctx));
   api.use('/attachments', requireAuth, attachmentsRoutes(ctx));
   api.use('/units', requireAuth, briefingRoutes(ctx));
+  api.use('/work-orders', requireAuth, workOrdersRoutes(ctx));
+  api.use('/bookings', requireAuth, bookingsRoutes(ctx));
+  api.use('/roster', requireAuth, rosterRoutes(ctx));
   return api;
 }

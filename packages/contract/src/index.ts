@@ -5,3 +5,5 @@ export * from './sites';
 export * from './team';
 export * from './visits';
 export * from './day';
+export * from './work-orders';
+export * from './roster';
