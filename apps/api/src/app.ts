@@ -41,6 +41,8 @@ export function createApp(ctx: AppContext): express.Express {
     }),
   );
   app.use('/api', requireJsonBodies);
+  // Equipment CSV imports carry a whole file (up to 6 MB of text); every other body stays small.
+  app.use('/api/units/import', express.json({ limit: '8mb' }));
   app.use('/api', express.json({ limit: '1mb' }));
   app.use('/api', cookieParser());
   app.use('/api', authenticate(ctx));

@@ -5,6 +5,13 @@ import { authRoutes } from './modules/auth/auth.routes';
 import { healthRoutes } from './modules/health/health.routes';
 import { outboxRoutes } from './modules/outbox/outbox.routes';
 import { branchesRoutes } from './modules/branches/branches.routes';
+import { customersRoutes, sitesRoutes } from './modules/sites/sites.routes';
+import { unitsRoutes } from './modules/units/units.routes';
+import { invitationsRoutes, usersRoutes } from './modules/team/team.routes';
+import { calendarRoutes, dayRoutes } from './modules/day/day.routes';
+import { attachmentsRoutes, briefingRoutes, visitsRoutes } from './modules/visits/visits.routes';
+import { workOrdersRoutes } from './modules/work-orders/work-orders.routes';
+import { bookingsRoutes, rosterRoutes } from './modules/roster/roster.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -16,5 +23,19 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/auth', authRoutes(ctx));
   api.use('/branches', requireAuth, branchesRoutes(ctx));
   api.use('/outbox', requireAuth, outboxRoutes(ctx));
+  api.use('/customers', requireAuth, customersRoutes(ctx));
+  api.use('/sites', requireAuth, sitesRoutes(ctx));
+  api.use('/units', requireAuth, unitsRoutes(ctx));
+  api.use('/users', requireAuth, usersRoutes(ctx));
+  // Public `check` and `accept` (the e-mailed token is the credential); the rest needs the owner.
+  api.use('/invitations', invitationsRoutes(ctx));
+  api.use('/day', requireAuth, dayRoutes(ctx));
+  api.use('/calendar', calendarRoutes(ctx));
+  api.use('/visits', requireAuth, visitsRoutes(ctx));
+  api.use('/attachments', requireAuth, attachmentsRoutes(ctx));
+  api.use('/units', requireAuth, briefingRoutes(ctx));
+  api.use('/work-orders', requireAuth, workOrdersRoutes(ctx));
+  api.use('/bookings', requireAuth, bookingsRoutes(ctx));
+  api.use('/roster', requireAuth, rosterRoutes(ctx));
   return api;
 }

@@ -1,4 +1,4 @@
-import { createHash, randomBytes } from 'node:crypto';
+import { createHash, createHmac, randomBytes, timingSafeEqual } from 'node:crypto';
 
 /** A single-use link token: the link carries the token, the database only its SHA-256. */
 export function newLinkToken(): { token: string; hash: string } {
@@ -8,4 +8,27 @@ export function newLinkToken(): { token: string; hash: string } {
 
 export function hashLinkToken(token: string): string {
   return createHash('sha256').update(token).digest('hex');
+}
+
+/**
+ * Signs a link token for one purpose (HMAC-SHA-256 with the app secret), so a tampered or
+ * foreign link is refused before any database lookup. The link carries `<token>.<signature>`.
+ */
+export function signLinkToken(secret: Uint8Array, purpose: 'invitation' | 'password-reset', token: string): string {
+  return `${token}.${linkSignature(secret, purpose, token)}`;
+}
+
+/** The token inside a signed link, or `null` when the signature does not match. */
+export function verifyLinkToken(secret: Uint8Array, purpose: 'invitation' | 'password-reset', signed: string): string | null {
+  const dot = signed.lastIndexOf('.');
+  if (dot <= 0) return null;
+  const token = signed.slice(0, dot);
+  const given = Buffer.from(signed.slice(dot + 1), 'base64url');
+  const expected = Buffer.from(linkSignature(secret, purpose, token), 'base64url');
+  if (given.length !== expected.length || !timingSafeEqual(given, expected)) return null;
+  return token;
+}
+
+function linkSignature(secret: Uint8Array, purpose: string, token: string): string {
+  return createHmac('sha256', secret).update(`coilpath:${purpose}:${token}`).digest('base64url');
 }

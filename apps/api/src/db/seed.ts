@@ -2,6 +2,7 @@ import { count, eq } from 'drizzle-orm';
 import { hashPassword } from '../auth/password';
 import type { Db, Tx } from './client';
 import * as schema from './schema';
+import { isRefrigerantId, subcooling, superheat } from '@coilpath/calc';
 import { buildScenario, type Rows } from './seed/scenario';
 
 /** The one demo password, printed at start and shown on the sign-in page when demo data is loaded. */
@@ -35,7 +36,7 @@ function inOrder(rows: Rows): [Parameters<Tx['insert']>[0], object[]][] {
     [schema.bookings, rows.bookings],
     [schema.visits, rows.visits],
     [schema.visitEvents, rows.visitEvents],
-    [schema.readings, rows.readings],
+    [schema.readings, rows.readings.map(withDerivedValues)],
     [schema.findings, rows.findings],
     [schema.refrigerantEvents, rows.refrigerantEvents],
     [schema.leakCases, rows.leakCases],
@@ -62,6 +63,33 @@ export async function seedDemo(db: Db, opts: SeedOptions = {}): Promise<{ seeded
     await tx.insert(schema.appMeta).values({ key: 'demo_seeded', value: { today } });
     return { seeded: true };
   });
+}
+
+type ReadingRow = Rows['readings'][number];
+
+/** Saturation temperatures, superheat and subcooling, computed with @coilpath/calc as the API does on save. */
+function withDerivedValues(r: ReadingRow): ReadingRow {
+  if (!isRefrigerantId(r.refrigerant)) return r;
+  const out = { ...r };
+  if (r.suctionPressure != null && r.suctionLineTemp != null) {
+    try {
+      const sh = superheat({ refrigerant: r.refrigerant, suctionPressure: r.suctionPressure, suctionLineTemp: r.suctionLineTemp });
+      out.suctionSaturationTemp = Math.round(sh.saturationTemp * 10) / 10;
+      out.superheat = Math.round(sh.superheat * 10) / 10;
+    } catch {
+      /* outside the refrigerant's table: left empty, as the API would refuse to guess */
+    }
+  }
+  if (r.liquidPressure != null && r.liquidLineTemp != null) {
+    try {
+      const sc = subcooling({ refrigerant: r.refrigerant, liquidPressure: r.liquidPressure, liquidLineTemp: r.liquidLineTemp });
+      out.liquidSaturationTemp = Math.round(sc.saturationTemp * 10) / 10;
+      out.subcooling = Math.round(sc.subcooling * 10) / 10;
+    } catch {
+      /* as above */
+    }
+  }
+  return out;
 }
 
 async function alreadySeeded(db: Tx): Promise<boolean> {

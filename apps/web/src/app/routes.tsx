@@ -14,8 +14,12 @@ const AgreementsPage = lazy(() => import('@/features/agreements/agreements-page'
 const UnitPage = lazy(() => import('@/features/units/unit-page'));
 const FixQualityPage = lazy(() => import('@/features/fix-quality/fix-quality-page'));
 const SitesPage = lazy(() => import('@/features/sites/sites-page'));
+const SitePage = lazy(() => import('@/features/sites/site-page'));
 const TeamPage = lazy(() => import('@/features/team/team-page'));
 const OutboxPage = lazy(() => import('@/features/outbox/outbox-page'));
+const ForgotPasswordPage = lazy(() => import('@/features/auth/forgot-password-page'));
+const ResetPasswordPage = lazy(() => import('@/features/auth/reset-password-page'));
+const AcceptInvitationPage = lazy(() => import('@/features/team/accept-invitation-page'));
 
 const all = ['owner', 'branch_manager', 'dispatcher', 'technician'] as const;
 
@@ -31,9 +35,14 @@ export const screenRoutes: RouteObject[] = [
   { path: 'units/:id', element: <RoleGate roles={all}><UnitPage /></RoleGate> },
   { path: 'fix-quality', element: <RoleGate roles={['owner', 'branch_manager']}><FixQualityPage /></RoleGate> },
   { path: 'sites', element: <RoleGate roles={['branch_manager', 'dispatcher', 'owner']}><SitesPage /></RoleGate> },
+  { path: 'sites/:siteId', element: <RoleGate roles={['branch_manager', 'dispatcher', 'owner']}><SitePage /></RoleGate> },
   { path: 'team', element: <RoleGate roles={['owner']}><TeamPage /></RoleGate> },
   { path: 'outbox', element: <RoleGate roles={['owner']}><OutboxPage /></RoleGate> },
 ];
 
 /** Pages reachable without a session (password reset, invitation sign-up). */
-export const publicRoutes: RouteObject[] = [];
+export const publicRoutes: RouteObject[] = [
+  { path: '/forgot-password', element: <ForgotPasswordPage /> },
+  { path: '/reset-password', element: <ResetPasswordPage /> },
+  { path: '/accept-invitation', element: <AcceptInvitationPage /> },
+];

@@ -1,10 +1,11 @@
 import { Router, type Response } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
-import { signInSchema } from '@coilpath/contract';
+import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { SESSION_COOKIE } from '../../auth/session';
 import { unauthorized } from '../../lib/errors';
 import { signIn } from './auth.service';
+import { checkPasswordReset, requestPasswordReset, resetPassword } from './password-reset.service';
 
 export function setSessionCookie(ctx: AppContext, res: Response, token: string) {
   res.cookie(SESSION_COOKIE, token, {
@@ -34,6 +35,33 @@ export function authRoutes(ctx: AppContext): Router {
   r.post('/sign-in', limiter, async (req, res) => {
     const input = signInSchema.parse(req.body ?? {});
     const { user, token } = await signIn(ctx, input);
+    setSessionCookie(ctx, res, token);
+    res.json({ user });
+  });
+
+  // Password reset: public and rate limited; the answer never says whether the address exists.
+  const resetLimiter = rateLimit({
+    windowMs: 15 * 60 * 1000,
+    limit: ctx.config.signInLimit,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|reset`,
+    handler: (_req, res) => {
+      res.status(429).json({ error: { code: 'too_many_attempts', message: 'Too many attempts. Wait 15 minutes and try again.' } });
+    },
+  });
+  r.post('/forgot-password', resetLimiter, async (req, res) => {
+    const { email } = forgotPasswordSchema.parse(req.body ?? {});
+    await requestPasswordReset(ctx, email);
+    res.status(202).json({ message: forgotPasswordAnswer });
+  });
+  r.post('/reset-password/check', resetLimiter, async (req, res) => {
+    const { token } = linkCheckSchema.parse(req.body ?? {});
+    res.json(await checkPasswordReset(ctx, token));
+  });
+  r.post('/reset-password', resetLimiter, async (req, res) => {
+    const input = resetPasswordSchema.parse(req.body ?? {});
+    const { user, token } = await resetPassword(ctx, input.token, input.password);
     setSessionCookie(ctx, res, token);
     res.json({ user });
   });

@@ -2,10 +2,13 @@ import { Router } from 'express';
 import { asc, inArray, isNull, and } from 'drizzle-orm';
 import type { AppContext } from '../../context';
 import { branches } from '../../db/schema';
-import { branchScope } from '../../auth/middleware';
-import { endpoint } from '../../lib/endpoint';
+import { branchInputSchema, branchPatchSchema } from '@coilpath/contract';
+import { branchScope, requireRole } from '../../auth/middleware';
+import { endpoint, idParams } from '../../lib/endpoint';
+import { onlySent } from '../sites/list-query';
+import { createBranch, getBranch, updateBranch } from './branches.service';
 
-/** Branches the signed-in person may see (the owner's branch switcher). */
+/** `/api/branches` — the branches a person may see (the owner's branch switcher) and their settings. */
 export function branchesRoutes(ctx: AppContext): Router {
   const r = Router();
   r.get(
@@ -25,12 +28,21 @@ export function branchesRoutes(ctx: AppContext): Router {
           repeatAlarmCount: branches.repeatAlarmCount,
           repeatAlarmDays: branches.repeatAlarmDays,
           callbackWindowDays: branches.callbackWindowDays,
+          baseAddress: branches.baseAddress,
+          baseLat: branches.baseLat,
+          baseLon: branches.baseLon,
+          holidays: branches.holidays,
+          labourRateCents: branches.labourRateCents,
         })
         .from(branches)
         .where(and(isNull(branches.archivedAt), scope ? inArray(branches.id, scope) : undefined))
         .orderBy(asc(branches.name));
-      return { branches: rows };
+      return { branches: rows.map(({ labourRateCents, ...b }) => ({ ...b, labourRate: labourRateCents / 100, archivedAt: null })) };
     }),
   );
+  /** Full settings; branch people may read their own branch, only the owner changes branches. */
+  r.get('/:id', endpoint({ params: idParams }, ({ user, params }) => getBranch(ctx, user, params.id)));
+  r.post('/', requireRole('owner'), endpoint({ body: branchInputSchema, status: 201 }, ({ user, body }) => createBranch(ctx, user, body)));
+  r.patch('/:id', requireRole('owner'), endpoint({ params: idParams, body: branchPatchSchema }, ({ user, params, body, req }) => updateBranch(ctx, user, params.id, onlySent(body, req.body))));
   return r;
 }

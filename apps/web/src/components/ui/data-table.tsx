@@ -61,7 +61,8 @@ export function DataTable<T extends RowData>({ columns, data, caption, sorting, 
 
   return (
     <div className="overflow-hidden rounded-lg border border-slate-line bg-white">
-      <div className="overflow-x-auto">
+      {/* relative: visually hidden (sr-only) header text is positioned inside the scroller, not the page */}
+      <div className="relative overflow-x-auto">
         <table className="w-full border-collapse text-sm">
           <caption className="sr-only">{caption}</caption>
           <thead className="bg-frost text-left text-xs uppercase tracking-wide text-slate">

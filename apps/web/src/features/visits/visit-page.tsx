@@ -1,5 +1,203 @@
-import { NotBuiltYet } from '@/components/ui/not-built';
+import { useEffect } from 'react';
+import { Link, useNavigate, useParams } from 'react-router-dom';
+import { useQuery } from '@tanstack/react-query';
+import { MapPin, Navigation, Phone, Wrench } from 'lucide-react';
+import { workOrderKindLabels, type VisitDetail } from '@coilpath/contract';
+import { Button } from '@/components/ui/button';
+import { Badge, Card, PageHeader } from '@/components/ui/page';
+import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
+import { useNotify } from '@/components/ui/notices';
+import { errorMessage } from '@/lib/api-client';
+import { formatInZone } from '@/lib/format';
+import { hasUnsaved, useVisitDraft } from './draft';
+import { ReadingsSection } from './readings-section';
+import { FindingsSection } from './findings-section';
+import { RefrigerantSection } from './refrigerant-section';
+import { AttachmentsSection } from './attachments-section';
+import { CloseSection } from './close-section';
+import { currentVisitQuery, useVisitState, visitQuery } from './visit-api';
+
+const statusText = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' } as const;
+const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
+
+/** `/visits` without an id: the technician's current visit, or an honest empty state. */
+function CurrentVisit() {
+  const navigate = useNavigate();
+  const q = useQuery(currentVisitQuery);
+  useEffect(() => {
+    if (q.data?.visitId) navigate(`/visits/${q.data.visitId}`, { replace: true });
+  }, [q.data, navigate]);
+  if (q.isPending || q.data?.visitId) return <LoadingState label="Finding your current visit…" />;
+  if (q.isError) return <ErrorState error={q.error} onRetry={() => q.refetch()} />;
+  return (
+    <>
+      <PageHeader title="Visit" subtitle="Record readings, findings, refrigerant and photos, and close the visit." />
+      <EmptyState title="No current visit" action={<Link to="/day" className="text-coolant underline">Open My Day</Link>}>
+        You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on My Day; press “En route” there
+        to start it.
+      </EmptyState>
+    </>
+  );
+}
+
+export function StateButton({ visit, where = 'visit' }: { visit: Pick<VisitDetail, 'id' | 'status' | 'canWrite'>; where?: 'visit' | 'day' }) {
+  const notify = useNotify();
+  const m = useVisitState(visit.id);
+  if (!visit.canWrite) return null;
+  const go = (state: 'en_route' | 'on_site') =>
+    m.mutate(
+      { state },
+      {
+        onSuccess: () => notify(state === 'en_route' ? 'Marked en route.' : 'Marked on site.'),
+        onError: (e) => notify(`Not changed: ${errorMessage(e)}`, 'alarm'),
+      },
+    );
+  if (visit.status === 'booked')
+    return (
+      <Button size="lg" onClick={() => go('en_route')} busy={m.isPending}>
+        <Navigation className="size-5" aria-hidden="true" /> En route
+      </Button>
+    );
+  if (visit.status === 'en_route')
+    return (
+      <Button size="lg" onClick={() => go('on_site')} busy={m.isPending}>
+        <MapPin className="size-5" aria-hidden="true" /> On site
+      </Button>
+    );
+  if (visit.status === 'on_site' && where === 'day')
+    return (
+      <Link
+        to={`/visits/${visit.id}`}
+        className="inline-flex min-h-12 items-center justify-center gap-2 rounded-md bg-copper px-5 text-base font-medium text-white hover:bg-copper-hover"
+      >
+        <Wrench className="size-5" aria-hidden="true" /> Record the visit
+      </Link>
+    );
+  if (visit.status === 'on_site')
+    return (
+      <Button size="lg" variant="secondary" onClick={() => document.getElementById('close-out')?.scrollIntoView({ behavior: 'smooth' })}>
+        <Wrench className="size-5" aria-hidden="true" /> Go to close-out
+      </Button>
+    );
+  return null;
+}
+
+function VisitScreen({ id }: { id: string }) {
+  const q = useQuery(visitQuery(id));
+  const { draft, update, restored } = useVisitDraft(id);
+  if (q.isPending) return <LoadingState label="Loading the visit…" />;
+  if (q.isError) return <ErrorState error={q.error} onRetry={() => q.refetch()} />;
+  const v = q.data;
+  const tz = v.branch.timeZone;
+  return (
+    <>
+      <PageHeader
+        title={`Visit · WO-${v.workOrder.number ?? ''} ${workOrderKindLabels[v.workOrder.kind]}`}
+        subtitle={
+          <>
+            {v.site.name} · {v.branch.name} · {v.booking ? `${formatInZone(v.booking.startAt, tz)}–${formatInZone(v.booking.endAt, tz, 'HH:mm')}` : 'not booked'} ·{' '}
+            {v.techName}
+          </>
+        }
+        actions={
+          <>
+            <Badge tone={statusTone[v.status]}>{statusText[v.status]}</Badge>
+            <StateButton visit={v} />
+          </>
+        }
+      />
+      {restored && hasUnsaved(draft) && (
+        <p role="status" className="mb-4 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm">
+          Entries from your last session on this phone were restored. They are not saved yet: save them below.
+        </p>
+      )}
+      {!v.canWrite && v.status !== 'closed' && (
+        <p className="mb-4 rounded-md bg-slate-faint p-3 text-sm">Read only: only {v.techName}, the assigned technician, records this visit’s work.</p>
+      )}
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
+        <div className="flex flex-col gap-4 lg:col-start-2 lg:row-start-1">
+          <Card title="The job">
+            <dl className="flex flex-col gap-2 text-sm">
+              <div>
+                <dt className="text-slate">Complaint</dt>
+                <dd>{v.workOrder.complaint || '—'}</dd>
+              </div>
+              <div>
+                <dt className="text-slate">Site</dt>
+                <dd>
+                  {v.site.name}, {v.site.address}
+                  {v.site.city ? `, ${v.site.city}` : ''}
+                </dd>
+              </div>
+              {v.site.accessNotes && (
+                <div>
+                  <dt className="text-slate">Access</dt>
+                  <dd>{v.site.accessNotes}</dd>
+                </div>
+              )}
+              {v.site.contactName && (
+                <div>
+                  <dt className="text-slate">Contact</dt>
+                  <dd className="flex flex-wrap items-center gap-2">
+                    {v.site.contactName}
+                    {v.site.contactPhone && (
+                      <a href={`tel:${v.site.contactPhone}`} className="inline-flex min-h-11 items-center gap-1 text-coolant">
+                        <Phone className="size-4" aria-hidden="true" /> {v.site.contactPhone}
+                      </a>
+                    )}
+                  </dd>
+                </div>
+              )}
+              <div>
+                <dt className="text-slate">Units</dt>
+                <dd>
+                  <ul>
+                    {v.units.map((u) => (
+                      <li key={u.id}>
+                        <Link to={`/units/${u.id}`} className="text-coolant underline">
+                          {u.tag}
+                        </Link>{' '}
+                        {u.make} {u.model} · {u.refrigerant}, full charge {u.fullChargeLb} lb · {u.circuits.length} circuit{u.circuits.length === 1 ? '' : 's'}
+                      </li>
+                    ))}
+                  </ul>
+                </dd>
+              </div>
+              {v.workOrder.requiredCertification && (
+                <div>
+                  <dt className="text-slate">Certification needed</dt>
+                  <dd>EPA 608 Type {v.workOrder.requiredCertification === 'universal' ? 'Universal' : v.workOrder.requiredCertification}</dd>
+                </div>
+              )}
+            </dl>
+          </Card>
+          {v.events.length > 0 && (
+            <Card title="Timeline">
+              <ol className="flex flex-col gap-1 text-sm">
+                {v.events.map((e, i) => (
+                  <li key={i} className="tabular-nums">
+                    {formatInZone(e.at, tz, 'HH:mm')} · {statusText[e.state as keyof typeof statusText] ?? e.state}
+                  </li>
+                ))}
+              </ol>
+            </Card>
+          )}
+        </div>
+        <div className="flex flex-col gap-4 lg:col-start-1 lg:row-start-1">
+          <ReadingsSection visit={v} draft={draft} update={update} />
+          <FindingsSection visit={v} draft={draft} update={update} />
+          <RefrigerantSection visit={v} draft={draft} update={update} />
+          <AttachmentsSection visit={v} />
+          <div id="close-out">
+            <CloseSection visit={v} unsaved={hasUnsaved(draft)} />
+          </div>
+        </div>
+      </div>
+    </>
+  );
+}
 
 export default function VisitPage() {
-  return <NotBuiltYet title="Visit" purpose="Readings, findings, refrigerant and photos for one visit, closed with an outcome." />;
+  const { id } = useParams();
+  return id ? <VisitScreen key={id} id={id} /> : <CurrentVisit />;
 }

@@ -1,0 +1,95 @@
+import { and, eq, isNull, sql } from 'drizzle-orm';
+import type { SessionUser } from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { passwordResets, users } from '../../db/schema';
+import { hashPassword } from '../../auth/password';
+import { signSession } from '../../auth/session';
+import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
+import { linkErrors } from '../team/team.service';
+
+export const RESET_MINUTES = 60;
+
+/**
+ * Sends a single-use reset link when the address belongs to an active account. The caller answers
+ * the same either way, so the answer does not reveal who has an account.
+ */
+export async function requestPasswordReset(ctx: AppContext, email: string): Promise<void> {
+  const [u] = await ctx.db.select({ id: users.id, name: users.name, active: users.active }).from(users).where(eq(users.email, email)).limit(1);
+  if (!u || !u.active) return;
+  const now = ctx.clock.now();
+  const { token, hash } = newLinkToken();
+  const expiresAt = new Date(now.getTime() + RESET_MINUTES * 60_000);
+  await ctx.db.transaction(async (tx) => {
+    // Only the newest link works.
+    await tx.update(passwordResets).set({ usedAt: now }).where(and(eq(passwordResets.userId, u.id), isNull(passwordResets.usedAt)));
+    await tx.insert(passwordResets).values({ userId: u.id, tokenHash: hash, expiresAt, createdAt: now });
+  });
+  const link = `${ctx.config.publicUrl.replace(/\/$/, '')}/reset-password?token=${encodeURIComponent(signLinkToken(ctx.secret, 'password-reset', token))}`;
+  // A mail failure must not change the answer (that would tell who has an account): log it.
+  await ctx.mailer
+    .send({
+    to: email,
+    subject: 'Choose a new Coilpath password',
+    text: [
+      `Hello ${u.name},`,
+      '',
+      'Someone (we hope you) asked to choose a new password for this Coilpath account.',
+      'Open this link to choose it:',
+      '',
+      link,
+      '',
+      `The link works once and expires in ${RESET_MINUTES} minutes. Choosing a new password signs you out on every other device.`,
+      'If you did not ask for this, ignore this message: your password stays as it is.',
+    ].join('\n'),
+    })
+    .catch((e: unknown) => console.error('[coilpath] password-reset mail failed', e));
+}
+
+const RESET = 'password reset';
+const again = 'Ask for a new link from "Forgot your password?" on the sign-in page.';
+
+async function openReset(ctx: AppContext, signed: string) {
+  const token = verifyLinkToken(ctx.secret, 'password-reset', signed);
+  if (!token) throw linkErrors.invalid(RESET);
+  const [r] = await ctx.db
+    .select({ id: passwordResets.id, userId: passwordResets.userId, usedAt: passwordResets.usedAt, expiresAt: passwordResets.expiresAt, email: users.email, active: users.active })
+    .from(passwordResets)
+    .innerJoin(users, eq(users.id, passwordResets.userId))
+    .where(eq(passwordResets.tokenHash, hashLinkToken(token)))
+    .limit(1);
+  if (!r || !r.active) throw linkErrors.invalid(RESET);
+  if (r.usedAt) throw linkErrors.used(RESET, again);
+  if (r.expiresAt <= ctx.clock.now()) throw linkErrors.expired(RESET, again);
+  return r;
+}
+
+export async function checkPasswordReset(ctx: AppContext, signed: string): Promise<{ email: string }> {
+  const r = await openReset(ctx, signed);
+  return { email: r.email };
+}
+
+/**
+ * Sets the new password, spends the link, and raises the session version so every other session
+ * ends; the browser that reset gets a fresh session.
+ */
+export async function resetPassword(ctx: AppContext, signed: string, password: string): Promise<{ user: SessionUser; token: string }> {
+  const r = await openReset(ctx, signed);
+  const passwordHash = await hashPassword(password);
+  const now = ctx.clock.now();
+  const u = await ctx.db.transaction(async (tx) => {
+    const spent = await tx
+      .update(passwordResets)
+      .set({ usedAt: now })
+      .where(and(eq(passwordResets.id, r.id), isNull(passwordResets.usedAt)))
+      .returning({ id: passwordResets.id });
+    if (spent.length === 0) throw linkErrors.used(RESET, again);
+    const [updated] = await tx
+      .update(users)
+      .set({ passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, lastSignInAt: now })
+      .where(eq(users.id, r.userId))
+      .returning();
+    return updated!;
+  });
+  const token = await signSession(ctx.secret, { sub: u.id, sv: u.sessionVersion }, ctx.config.sessionHours, now);
+  return { user: { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId }, token };
+}

@@ -1,0 +1,83 @@
+/**
+ * The technician's private iCalendar (RFC 5545) feed. The URL's secret is `users.calendarToken`;
+ * rotating it ends the old URL, revoking it ends the feed.
+ */
+import { randomBytes } from 'node:crypto';
+import { and, asc, eq, gte, lt, ne } from 'drizzle-orm';
+import { createEvents, type EventAttributes } from 'ics';
+import { workOrderKindLabels } from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { bookings, sites, users, visits, workOrders } from '../../db/schema';
+import { notFound } from '../../lib/errors';
+import { calendarFeedUrl } from './day.service';
+
+/** The feed covers bookings from this many days back to this many days ahead. */
+const PAST_DAYS = 14;
+const AHEAD_DAYS = 60;
+
+export async function rotateCalendarToken(ctx: AppContext, userId: string): Promise<{ url: string }> {
+  const token = randomBytes(24).toString('base64url');
+  await ctx.db.update(users).set({ calendarToken: token }).where(eq(users.id, userId));
+  return { url: calendarFeedUrl(ctx, token)! };
+}
+
+export async function revokeCalendarToken(ctx: AppContext, userId: string): Promise<void> {
+  await ctx.db.update(users).set({ calendarToken: null }).where(eq(users.id, userId));
+}
+
+const utcArray = (d: Date): [number, number, number, number, number] => [
+  d.getUTCFullYear(),
+  d.getUTCMonth() + 1,
+  d.getUTCDate(),
+  d.getUTCHours(),
+  d.getUTCMinutes(),
+];
+
+/** The .ics text for a feed token; 404 for an unknown or revoked token or an inactive user. */
+export async function calendarFeed(ctx: AppContext, token: string): Promise<string> {
+  if (!/^[A-Za-z0-9_-]{20,100}$/.test(token)) throw notFound('calendar');
+  const [u] = await ctx.db
+    .select({ id: users.id, name: users.name, active: users.active })
+    .from(users)
+    .where(eq(users.calendarToken, token))
+    .limit(1);
+  if (!u || !u.active) throw notFound('calendar');
+  const now = ctx.clock.now().getTime();
+  const rows = await ctx.db
+    .select({ booking: bookings, visitId: visits.id, wo: workOrders, site: sites })
+    .from(bookings)
+    .innerJoin(workOrders, eq(workOrders.id, bookings.workOrderId))
+    .innerJoin(sites, eq(sites.id, workOrders.siteId))
+    .leftJoin(visits, eq(visits.bookingId, bookings.id))
+    .where(
+      and(
+        eq(bookings.techId, u.id),
+        gte(bookings.startAt, new Date(now - PAST_DAYS * 86_400_000)),
+        lt(bookings.startAt, new Date(now + AHEAD_DAYS * 86_400_000)),
+        ne(workOrders.state, 'cancelled'),
+      ),
+    )
+    .orderBy(asc(bookings.startAt));
+  const base = ctx.config.publicUrl.replace(/\/$/, '');
+  const events: EventAttributes[] = rows.map(({ booking: b, visitId, wo, site }) => ({
+    uid: `${b.id}@coilpath`,
+    start: utcArray(b.startAt),
+    startInputType: 'utc',
+    startOutputType: 'utc',
+    end: utcArray(b.endAt),
+    endInputType: 'utc',
+    endOutputType: 'utc',
+    title: `WO-${wo.number} ${workOrderKindLabels[wo.kind]}: ${site.name}`,
+    location: [site.address, site.city].filter(Boolean).join(', '),
+    geo: { lat: site.lat, lon: site.lon },
+    description: [wo.complaint, site.accessNotes ? `Access: ${site.accessNotes}` : null].filter(Boolean).join('\n'),
+    ...(visitId ? { url: `${base}/visits/${visitId}` } : {}),
+    status: 'CONFIRMED',
+    busyStatus: 'BUSY',
+    sequence: b.version,
+    lastModified: utcArray(b.updatedAt),
+  }));
+  const { error, value } = createEvents(events, { productId: '-//Coilpath//My Day//EN', calName: `Coilpath: ${u.name}` });
+  if (error || !value) throw error ?? new Error('calendar feed failed');
+  return value;
+}

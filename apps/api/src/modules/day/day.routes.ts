@@ -1,0 +1,35 @@
+import { Router } from 'express';
+import { dayQuerySchema } from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { requireRole } from '../../auth/middleware';
+import { endpoint } from '../../lib/endpoint';
+import { calendarFeed, revokeCalendarToken, rotateCalendarToken } from './calendar.service';
+import { technicianDay } from './day.service';
+
+/** `/api/day`: My Day, technicians only. */
+export function dayRoutes(ctx: AppContext): Router {
+  const r = Router();
+  r.use(requireRole('technician'));
+  r.get('/', endpoint({ query: dayQuerySchema }, ({ user, query }) => technicianDay(ctx, user, query.date)));
+  return r;
+}
+
+/**
+ * `/api/calendar`: the feed itself is public (its URL carries the secret, for a phone's calendar);
+ * creating, rotating and revoking the secret needs the technician's own session.
+ */
+export function calendarRoutes(ctx: AppContext): Router {
+  const r = Router();
+  r.post('/token', requireRole('technician'), endpoint({ status: 201 }, ({ user }) => rotateCalendarToken(ctx, user.id)));
+  r.delete('/token', requireRole('technician'), endpoint({}, async ({ user }) => {
+    await revokeCalendarToken(ctx, user.id);
+  }));
+  r.get('/:token.ics', async (req, res) => {
+    const text = await calendarFeed(ctx, String(req.params.token));
+    res.setHeader('Content-Type', 'text/calendar; charset=utf-8');
+    res.setHeader('Cache-Control', 'private, max-age=300');
+    res.setHeader('Content-Disposition', 'inline; filename="coilpath-day.ics"');
+    res.send(text);
+  });
+  return r;
+}

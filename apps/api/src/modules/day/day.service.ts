@@ -1,0 +1,166 @@
+import { and, asc, eq, gte, inArray, isNull, lt, ne, or } from 'drizzle-orm';
+import { TZDate } from '@date-fns/tz';
+import { format } from 'date-fns';
+import { planRoute } from '@coilpath/calc';
+import { weekdays, type DayResponse, type DayStop, type SessionUser } from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
+import { notFound } from '../../lib/errors';
+import { visitStatus } from '../visits/access';
+
+/** Midnight of a `YYYY-MM-DD` date in a zone, as an instant. */
+export function startOfDayIn(date: string, timeZone: string, hh = 0, mm = 0): Date {
+  const [y, m, d] = date.split('-').map(Number) as [number, number, number];
+  return new Date(new TZDate(y, m - 1, d, hh, mm, 0, timeZone).getTime());
+}
+
+export function addDaysIso(date: string, days: number): string {
+  const t = new Date(`${date}T00:00:00Z`);
+  t.setUTCDate(t.getUTCDate() + days);
+  return t.toISOString().slice(0, 10);
+}
+
+/** A non-fixed booking may be reached up to this many minutes before it starts. */
+const LOOSE_EARLY_MINUTES = 30;
+
+export function calendarFeedUrl(ctx: AppContext, token: string | null): string | null {
+  return token ? `${ctx.config.publicUrl.replace(/\/$/, '')}/api/calendar/${token}.ics` : null;
+}
+
+/**
+ * The technician's day: the visits booked for them on the date (branch time zone), with site, access
+ * notes, units and work order, and the route `planRoute` suggests from their start location with
+ * each stop's appointment window respected.
+ */
+export async function technicianDay(ctx: AppContext, user: SessionUser, date: string | undefined): Promise<DayResponse> {
+  const [me] = await ctx.db
+    .select({
+      id: users.id,
+      name: users.name,
+      startLat: users.startLat,
+      startLon: users.startLon,
+      startAddress: users.startAddress,
+      workingHours: users.workingHours,
+      calendarToken: users.calendarToken,
+      branch: branches,
+    })
+    .from(users)
+    .innerJoin(branches, eq(branches.id, users.branchId))
+    .where(eq(users.id, user.id))
+    .limit(1);
+  if (!me) throw notFound('branch');
+  const tz = me.branch.timeZone;
+  const day = date ?? format(new TZDate(ctx.clock.now().getTime(), tz), 'yyyy-MM-dd');
+  const from = startOfDayIn(day, tz);
+  const to = startOfDayIn(addDaysIso(day, 1), tz);
+
+  const rows = await ctx.db
+    .select({ visit: visits, booking: bookings, wo: workOrders, site: sites })
+    .from(visits)
+    .innerJoin(bookings, eq(bookings.id, visits.bookingId))
+    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
+    .innerJoin(sites, eq(sites.id, workOrders.siteId))
+    .where(and(eq(visits.techId, user.id), gte(bookings.startAt, from), lt(bookings.startAt, to), ne(workOrders.state, 'cancelled')))
+    .orderBy(asc(bookings.startAt));
+
+  const unitIds = [...new Set(rows.flatMap((r) => (r.wo.unitId ? [r.wo.unitId] : [])))];
+  const siteWide = [...new Set(rows.filter((r) => !r.wo.unitId).map((r) => r.site.id))];
+  const unitRows =
+    unitIds.length || siteWide.length
+      ? await ctx.db
+          .select({ id: units.id, siteId: units.siteId, tag: units.tag, kind: units.kind, make: units.make, model: units.model, refrigerant: units.refrigerant })
+          .from(units)
+          .where(
+            or(
+              unitIds.length ? inArray(units.id, unitIds) : undefined,
+              siteWide.length ? and(inArray(units.siteId, siteWide), isNull(units.archivedAt)) : undefined,
+            ),
+          )
+          .orderBy(asc(units.tag))
+      : [];
+
+  // The day starts when the technician's working hours do (07:00 when none are set).
+  const weekday = weekdays[new TZDate(from.getTime(), tz).getDay()]!;
+  const hours = me.workingHours?.[weekday];
+  const [hh, mm] = (hours?.start ?? '07:00').split(':').map(Number) as [number, number];
+  const dayStart = startOfDayIn(day, tz, hh, mm);
+  const minutes = (d: Date) => (d.getTime() - dayStart.getTime()) / 60_000;
+
+  const stops: DayStop[] = rows.map(({ visit: v, booking: b, wo, site }) => {
+    const service = Math.max(0, wo.estimatedMinutes);
+    let window: { from: number; to: number };
+    if (wo.requestedFrom && wo.requestedTo && wo.requestedTo > wo.requestedFrom) {
+      const f = minutes(wo.requestedFrom);
+      window = { from: f, to: Math.max(f, minutes(wo.requestedTo) - service) };
+    } else {
+      const f = minutes(b.startAt) - (b.fixed ? 0 : LOOSE_EARLY_MINUTES);
+      window = { from: f, to: Math.max(minutes(b.startAt), minutes(b.endAt) - service) };
+    }
+    return {
+      visitId: v.id,
+      status: visitStatus(v),
+      enRouteAt: v.enRouteAt?.toISOString() ?? null,
+      onSiteAt: v.onSiteAt?.toISOString() ?? null,
+      closedAt: v.closedAt?.toISOString() ?? null,
+      outcome: v.outcome,
+      booking: { id: b.id, startAt: b.startAt.toISOString(), endAt: b.endAt.toISOString(), fixed: b.fixed },
+      workOrder: {
+        id: wo.id,
+        number: wo.number,
+        kind: wo.kind,
+        state: wo.state,
+        priority: wo.priority,
+        complaint: wo.complaint,
+        estimatedMinutes: wo.estimatedMinutes,
+        requestedFrom: wo.requestedFrom?.toISOString() ?? null,
+        requestedTo: wo.requestedTo?.toISOString() ?? null,
+      },
+      site: {
+        id: site.id,
+        name: site.name,
+        address: site.address,
+        city: site.city,
+        lat: site.lat,
+        lon: site.lon,
+        accessNotes: site.accessNotes,
+        contactName: site.contactName,
+        contactPhone: site.contactPhone,
+      },
+      units: unitRows
+        .filter((u) => (wo.unitId ? u.id === wo.unitId : u.siteId === site.id))
+        .map(({ siteId: _s, ...u }) => u),
+      routeStop: { id: v.id, lat: site.lat, lon: site.lon, serviceMinutes: service, window },
+    };
+  });
+
+  const start = {
+    lat: me.startLat ?? me.branch.baseLat,
+    lon: me.startLon ?? me.branch.baseLon,
+    label: me.startLat !== null && me.startLon !== null ? me.startAddress || 'Start' : me.branch.baseAddress || `${me.branch.name} shop`,
+  };
+  const plan = planRoute({ start, stops: stops.map((s) => s.routeStop), dayStart });
+  let prevDepart = 0;
+  const arrivals = plan.arrivals.map((a) => {
+    const leg = a.arrive - prevDepart;
+    prevDepart = a.depart;
+    return { ...a, legMinutes: leg };
+  });
+
+  return {
+    date: day,
+    timeZone: tz,
+    branch: { id: me.branch.id, name: me.branch.name },
+    tech: { id: me.id, name: me.name },
+    stops,
+    route: {
+      start,
+      dayStart: dayStart.toISOString(),
+      order: plan.order,
+      arrivals,
+      totalMiles: plan.totalMiles,
+      driveMinutes: plan.driveMinutes,
+      lateStops: plan.lateStops,
+    },
+    calendarFeed: { active: !!me.calendarToken, url: calendarFeedUrl(ctx, me.calendarToken) },
+  };
+}

@@ -1,0 +1,131 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import request from 'supertest';
+import { eq } from 'drizzle-orm';
+import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
+import { makeSiteWithUnit, makeTwoBranches, makeUser, TEST_PASSWORD } from '../../testing/fixtures';
+import { sites, units, workOrders } from '../../db/schema';
+import { makeBookedVisit } from '../visits/visits.fixtures';
+
+// 23:00 on 10 March in Chicago (CDT, UTC−5) is already 11 March in UTC.
+const NOW = '2026-03-11T04:00:00Z';
+
+let t: TestApp;
+let f: Awaited<ReturnType<typeof makeTwoBranches>>;
+type Agent = Awaited<ReturnType<typeof signedInAgent>>;
+let tech: Agent, manager: Agent;
+const ids: Record<string, string> = {};
+
+beforeAll(async () => {
+  t = await createTestApp({ now: NOW });
+  f = await makeTwoBranches(t.ctx.db);
+  const db = t.ctx.db;
+  const techId = f.inA.technician.id; // starts at 41.88, -87.63; works 07:00–15:30
+  const near = await makeSiteWithUnit(db, f.a.id);
+  await db.update(sites).set({ lat: 41.89, lon: -87.64, accessNotes: 'Roof hatch key at the front desk' }).where(eq(sites.id, near.site.id));
+  const far = await makeSiteWithUnit(db, f.a.id);
+  await db.update(sites).set({ lat: 42.05, lon: -87.9 }).where(eq(sites.id, far.site.id));
+  const wide = await makeSiteWithUnit(db, f.a.id);
+  await db.update(sites).set({ lat: 41.8, lon: -87.6 }).where(eq(sites.id, wide.site.id));
+  await db.insert(units).values({ branchId: f.a.id, siteId: wide.site.id, tag: 'WIC-1', kind: 'walk_in_cooler', make: 'Testmake', model: 'W1', serial: 'W-1', refrigerant: 'R-448A', fullChargeLb: 30, applianceCategory: 'commercial_refrigeration' });
+
+  // The far site has a fixed 08:00 appointment; the near one a fixed 13:00: windows decide the order.
+  const a = await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId, startAt: '2026-03-10T18:00:00Z', fixed: true, minutes: 60 });
+  const b = await makeBookedVisit(db, { branchId: f.a.id, siteId: far.site.id, unitId: far.unit.id, techId, startAt: '2026-03-10T13:00:00Z', fixed: true, minutes: 60 });
+  const c = await makeBookedVisit(db, { branchId: f.a.id, siteId: wide.site.id, unitId: null, techId, startAt: '2026-03-10T15:30:00Z', minutes: 90, workOrder: { kind: 'planned_maintenance' } });
+  ids.near = a.visit.id;
+  ids.far = b.visit.id;
+  ids.wide = c.visit.id;
+  // Not on the day: a cancelled job, tomorrow's job, another technician's job.
+  const x = await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId, startAt: '2026-03-10T16:00:00Z' });
+  await db.update(workOrders).set({ state: 'cancelled' }).where(eq(workOrders.id, x.workOrder.id));
+  await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId, startAt: '2026-03-11T14:00:00Z' });
+  const other = await makeUser(db, 'technician', f.a.id);
+  await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId: other.id, startAt: '2026-03-10T14:00:00Z' });
+
+  tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
+  manager = await signedInAgent(t.app, f.inA.manager.email, TEST_PASSWORD);
+});
+afterAll(() => t.close());
+
+describe('GET /api/day', () => {
+  it('defaults to today in the branch’s time zone and lists the day’s stops with site, access notes and units', async () => {
+    const res = await tech.get('/api/day');
+    expect(res.status).toBe(200);
+    expect(res.body.date).toBe('2026-03-10');
+    expect(res.body.timeZone).toBe('America/Chicago');
+    expect(res.body.stops.map((s: { visitId: string }) => s.visitId).sort()).toEqual([ids.near, ids.far, ids.wide].sort());
+    const near = res.body.stops.find((s: { visitId: string }) => s.visitId === ids.near);
+    expect(near.site.accessNotes).toBe('Roof hatch key at the front desk');
+    expect(near.units).toHaveLength(1);
+    expect(near.status).toBe('booked');
+    const wide = res.body.stops.find((s: { visitId: string }) => s.visitId === ids.wide);
+    expect(wide.units.map((u: { tag: string }) => u.tag).sort()).toHaveLength(2); // site-wide job: every unit at the site
+    expect(res.body.calendarFeed).toEqual({ active: false, url: null });
+  });
+
+  it('orders the route with appointment windows respected and gives arrival estimates and drive minutes', async () => {
+    const res = await tech.get('/api/day?date=2026-03-10');
+    const route = res.body.route;
+    // Working hours start 07:00 local = 12:00Z.
+    expect(route.dayStart).toBe('2026-03-10T12:00:00.000Z');
+    expect(route.order).toHaveLength(3);
+    expect(route.order.indexOf(ids.far)).toBeLessThan(route.order.indexOf(ids.near));
+    expect(route.lateStops).toEqual([]);
+    const far = route.arrivals.find((a: { id: string }) => a.id === ids.far);
+    // The 08:00 window opens 60 minutes after the day starts: the technician waits for it or is on time.
+    expect(far.arrive + far.waitMinutes).toBeGreaterThanOrEqual(60);
+    expect(Math.abs(new Date(far.arriveAt).getTime() - (new Date(route.dayStart).getTime() + far.arrive * 60_000))).toBeLessThan(1);
+    const legs = route.arrivals.reduce((s: number, a: { legMinutes: number }) => s + a.legMinutes, 0);
+    // Each leg is the arrival minus the previous departure; the legs add up to the route's drive minutes.
+    expect(legs).toBeCloseTo(route.driveMinutes, 6);
+    expect(route.driveMinutes).toBeGreaterThan(0);
+  });
+
+  it('answers an empty day honestly and refuses a bad date', async () => {
+    const res = await tech.get('/api/day?date=2026-03-14');
+    expect(res.status).toBe(200);
+    expect(res.body.stops).toEqual([]);
+    expect(res.body.route.order).toEqual([]);
+    expect((await tech.get('/api/day?date=2026-02-30')).status).toBe(400);
+  });
+
+  it('is for technicians only', async () => {
+    expect((await manager.get('/api/day')).status).toBe(403);
+    expect((await request(t.app).get('/api/day')).status).toBe(401);
+  });
+});
+
+describe('calendar feed', () => {
+  it('creates a private feed URL that a phone can read without a session', async () => {
+    const made = await tech.post('/api/calendar/token');
+    expect(made.status).toBe(201);
+    const url = new URL(made.body.url);
+    expect(url.pathname).toMatch(/^\/api\/calendar\/[A-Za-z0-9_-]{32}\.ics$/);
+    const feed = await request(t.app).get(url.pathname);
+    expect(feed.status).toBe(200);
+    expect(feed.headers['content-type']).toMatch(/^text\/calendar/);
+    const text = feed.text.replace(/\r\n[ \t]/g, '');
+    expect(text).toContain('BEGIN:VCALENDAR');
+    expect(text.match(/BEGIN:VEVENT/g)).toHaveLength(4); // three today and tomorrow's; not the cancelled one
+    // RFC 5545 DATE-TIME in UTC for the 08:00 Chicago appointment.
+    expect(text).toContain('DTSTART:20260310T130000Z');
+    expect(text).toContain('Roof hatch key at the front desk');
+    expect((await tech.get('/api/day')).body.calendarFeed).toEqual({ active: true, url: made.body.url });
+  });
+
+  it('rotating ends the old URL and revoking ends the feed', async () => {
+    const first = new URL((await tech.post('/api/calendar/token')).body.url).pathname;
+    const second = new URL((await tech.post('/api/calendar/token')).body.url).pathname;
+    expect(second).not.toBe(first);
+    expect((await request(t.app).get(first)).status).toBe(404);
+    expect((await request(t.app).get(second)).status).toBe(200);
+    expect((await tech.delete('/api/calendar/token')).status).toBe(204);
+    expect((await request(t.app).get(second)).status).toBe(404);
+    expect((await request(t.app).get('/api/calendar/not-a-token.ics')).status).toBe(404);
+  });
+
+  it('lets only a signed-in technician manage their own feed', async () => {
+    expect((await request(t.app).post('/api/calendar/token')).status).toBe(401);
+    expect((await manager.post('/api/calendar/token')).status).toBe(403);
+  });
+});

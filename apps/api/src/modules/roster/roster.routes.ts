@@ -1,0 +1,69 @@
+import { Router } from 'express';
+import {
+  bookingCreateSchema,
+  bookingListQuerySchema,
+  bookingUpdateSchema,
+  evenOutApplySchema,
+  evenOutSchema,
+  loadQuerySchema,
+  rosterBranchQuerySchema,
+  suggestSchema,
+} from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { requireRole } from '../../auth/middleware';
+import { endpoint, idParams } from '../../lib/endpoint';
+import { createBooking, deleteBooking, listBookings, updateBooking } from './bookings.service';
+import { evenOutApply, evenOutPreview, listSites, listTechnicians, load, rosterBranch, suggest } from './roster.service';
+
+const bookers = requireRole('owner', 'branch_manager', 'dispatcher');
+
+/** `/api/bookings`: the technicians' calendars (book, move, resize, reassign, unbook). */
+export function bookingsRoutes(ctx: AppContext): Router {
+  const r = Router();
+  r.use(bookers);
+  r.get('/', endpoint({ query: bookingListQuerySchema }, async ({ user, query }) => ({ bookings: await listBookings(ctx.db, user, query) })));
+  r.post(
+    '/',
+    endpoint({ body: bookingCreateSchema, status: 201 }, async ({ user, body }) => ({
+      booking: await ctx.db.transaction((tx) => createBooking(tx, user, body, ctx.clock.now())),
+    })),
+  );
+  r.patch(
+    '/:id',
+    endpoint({ params: idParams, body: bookingUpdateSchema }, async ({ user, params, body }) => ({
+      booking: await ctx.db.transaction((tx) => updateBooking(tx, user, params.id, body, ctx.clock.now())),
+    })),
+  );
+  r.delete(
+    '/:id',
+    endpoint({ params: idParams }, async ({ user, params }) => {
+      await ctx.db.transaction((tx) => deleteBooking(tx, user, params.id, ctx.clock.now()));
+    }),
+  );
+  return r;
+}
+
+/** `/api/roster`: technicians, load per day, suggestions and evening out a week. */
+export function rosterRoutes(ctx: AppContext): Router {
+  const r = Router();
+  r.use(bookers);
+  r.get(
+    '/technicians',
+    endpoint({ query: rosterBranchQuerySchema }, async ({ user, query }) => {
+      const branch = await rosterBranch(ctx.db, user, query.branchId);
+      return { timeZone: branch.timeZone, technicians: await listTechnicians(ctx.db, branch) };
+    }),
+  );
+  r.get(
+    '/sites',
+    endpoint({ query: rosterBranchQuerySchema }, async ({ user, query }) => ({ sites: await listSites(ctx.db, await rosterBranch(ctx.db, user, query.branchId)) })),
+  );
+  r.get('/load', endpoint({ query: loadQuerySchema }, ({ user, query }) => load(ctx.db, user, query)));
+  r.post('/suggest', endpoint({ body: suggestSchema }, ({ user, body }) => suggest(ctx.db, user, body, ctx.clock.now())));
+  r.post('/even-out', endpoint({ body: evenOutSchema }, ({ user, body }) => evenOutPreview(ctx.db, user, body, ctx.clock.now())));
+  r.post(
+    '/even-out/apply',
+    endpoint({ body: evenOutApplySchema }, async ({ user, body }) => ({ bookings: await evenOutApply(ctx.db, user, body, ctx.clock.now()) })),
+  );
+  return r;
+}

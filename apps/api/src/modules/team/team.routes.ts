@@ -1,0 +1,59 @@
+import { Router } from 'express';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { acceptInvitationSchema, invitationInputSchema, linkCheckSchema, userProfileSchema, usersQuerySchema } from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { requireAuth, requireRole } from '../../auth/middleware';
+import { endpoint, idParams } from '../../lib/endpoint';
+import { setSessionCookie } from '../auth/auth.routes';
+import * as svc from './team.service';
+
+/**
+ * `/api/users` — the owner manages people; branch managers and dispatchers read their own
+ * branch's people (the Roster's technicians). Technicians: 403.
+ */
+export function usersRoutes(ctx: AppContext): Router {
+  const r = Router();
+  const readers = requireRole('owner', 'branch_manager', 'dispatcher');
+  const owner = requireRole('owner');
+  r.get('/', readers, endpoint({ query: usersQuerySchema }, ({ user, query }) => svc.listUsers(ctx, user, query)));
+  r.get('/:id', readers, endpoint({ params: idParams }, ({ user, params }) => svc.getUser(ctx.db, user, params.id)));
+  r.patch('/:id', owner, endpoint({ params: idParams, body: userProfileSchema }, ({ user, params, body }) => svc.updateUser(ctx, user, params.id, body)));
+  r.post('/:id/deactivate', owner, endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, false)));
+  r.post('/:id/reactivate', owner, endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, true)));
+  return r;
+}
+
+/**
+ * `/api/invitations` — the owner invites, lists, resends and withdraws. `check` and `accept` are
+ * public (the signed token in the e-mailed link is the credential) and rate limited.
+ */
+export function invitationsRoutes(ctx: AppContext): Router {
+  const r = Router();
+  const limiter = rateLimit({
+    windowMs: 15 * 60 * 1000,
+    limit: Math.max(ctx.config.signInLimit, 10),
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => ipKeyGenerator(req.ip ?? ''),
+    handler: (_req, res) => {
+      res.status(429).json({ error: { code: 'too_many_attempts', message: 'Too many attempts. Wait 15 minutes and try again.' } });
+    },
+  });
+  r.post('/check', limiter, async (req, res) => {
+    const { token } = linkCheckSchema.parse(req.body ?? {});
+    res.json({ invitation: await svc.previewInvitation(ctx, token) });
+  });
+  r.post('/accept', limiter, async (req, res) => {
+    const input = acceptInvitationSchema.parse(req.body ?? {});
+    const { user, token } = await svc.acceptInvitation(ctx, input);
+    setSessionCookie(ctx, res, token);
+    res.status(201).json({ user });
+  });
+
+  const owner = [requireAuth, requireRole('owner')];
+  r.get('/', ...owner, endpoint({}, async () => ({ invitations: await svc.listInvitations(ctx) })));
+  r.post('/', ...owner, endpoint({ body: invitationInputSchema, status: 201 }, ({ user, body }) => svc.createInvitation(ctx, user, body.email, body.profile)));
+  r.post('/:id/resend', ...owner, endpoint({ params: idParams }, ({ user, params }) => svc.resendInvitation(ctx, user, params.id)));
+  r.delete('/:id', ...owner, endpoint({ params: idParams }, ({ params }) => svc.revokeInvitation(ctx, params.id)));
+  return r;
+}

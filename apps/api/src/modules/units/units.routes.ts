@@ -1,0 +1,25 @@
+import { Router } from 'express';
+import { unitImportSchema, unitInputSchema, unitsQuerySchema, unitUpdateSchema } from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { requireRole } from '../../auth/middleware';
+import { endpoint, idParams } from '../../lib/endpoint';
+import * as svc from './units.service';
+import { importUnits } from './units-import';
+
+/**
+ * `/api/units` — the office's unit records (list, CRUD, CSV import, archive). Branch-scoped; the
+ * Unit file's own routes (briefing, history) are separate and open to technicians.
+ */
+export function unitsRoutes(ctx: AppContext): Router {
+  const r = Router();
+  const office = requireRole('owner', 'branch_manager', 'dispatcher');
+  r.get('/', office, endpoint({ query: unitsQuerySchema }, ({ user, query }) => svc.listUnits(ctx, user, query)));
+  r.post('/', office, endpoint({ body: unitInputSchema, status: 201 }, ({ user, body }) => svc.createUnit(ctx, user, body)));
+  r.post('/import', office, endpoint({ body: unitImportSchema }, ({ user, body }) => importUnits(ctx, user, body)));
+  r.get('/:id', office, endpoint({ params: idParams }, ({ user, params }) => svc.getUnit(ctx.db, user, params.id)));
+  r.put('/:id', office, endpoint({ params: idParams, body: unitUpdateSchema }, ({ user, params, body }) => svc.updateUnit(ctx, user, params.id, body)));
+  r.post('/:id/archive', office, endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, true)));
+  r.post('/:id/unarchive', office, endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, false)));
+  r.delete('/:id', office, endpoint({ params: idParams }, ({ user, params }) => svc.deleteUnit(ctx, user, params.id)));
+  return r;
+}

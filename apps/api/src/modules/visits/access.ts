@@ -1,0 +1,97 @@
+/**
+ * Who may read and write a visit, and whose unit history a technician may read.
+ *
+ * - A technician reads and writes only visits assigned to them; anyone else's visit answers 404.
+ * - Office roles (owner, branch manager, dispatcher) read visits in their branch scope (owner: all);
+ *   another branch's visit answers 404. They may not record work on a visit: 403.
+ * - A closed visit takes no more work: 409.
+ * - A technician reads the history of a unit only when it is on one of their assignments (a visit
+ *   assigned to them whose work order names the unit, or names no unit at the unit's site); else 404.
+ */
+import { and, eq, exists, isNull, or, sql } from 'drizzle-orm';
+import type { AnyPgColumn } from 'drizzle-orm/pg-core';
+import type { SessionUser } from '@coilpath/contract';
+import type { Tx } from '../../db/client';
+import { units, visits, workOrders } from '../../db/schema';
+import { conflict, forbidden, notFound } from '../../lib/errors';
+
+export type VisitRow = typeof visits.$inferSelect;
+
+export async function loadVisit(db: Tx, id: string, opts: { lock?: boolean } = {}): Promise<VisitRow | undefined> {
+  const q = db.select().from(visits).where(eq(visits.id, id)).limit(1);
+  const [v] = opts.lock ? await q.for('update') : await q;
+  return v;
+}
+
+/** Throws 404 when the signed-in person may not see the visit. */
+export function assertVisitReadable(user: SessionUser, v: VisitRow | undefined): asserts v is VisitRow {
+  if (!v) throw notFound('visit');
+  if (user.role === 'technician') {
+    if (v.techId !== user.id) throw notFound('visit');
+    return;
+  }
+  if (user.role === 'owner') return;
+  if (!user.branchId || v.branchId !== user.branchId) throw notFound('visit');
+}
+
+/** Throws 404/403/409 unless the signed-in person is the assigned technician of an open visit. */
+export function assertVisitWritable(user: SessionUser, v: VisitRow | undefined): asserts v is VisitRow {
+  assertVisitReadable(user, v);
+  if (user.role !== 'technician') {
+    throw forbidden('Only the technician assigned to this visit records its work. Ask them, or reassign the visit on the Roster.');
+  }
+  if (v.closedAt) {
+    throw conflict('visit_closed', 'This visit is already closed; it takes no more work. Add a return visit if more is needed.');
+  }
+}
+
+/** The visit's state as the technician's buttons see it. */
+export function visitStatus(v: Pick<VisitRow, 'enRouteAt' | 'onSiteAt' | 'closedAt'>): 'booked' | 'en_route' | 'on_site' | 'closed' {
+  if (v.closedAt) return 'closed';
+  if (v.onSiteAt) return 'on_site';
+  if (v.enRouteAt) return 'en_route';
+  return 'booked';
+}
+
+/** SQL condition: the unit (by id and site) is on one of the technician's assignments. */
+export function unitOnAssignments(db: Tx, techId: string, unitId: string | AnyPgColumn, siteId: string | AnyPgColumn) {
+  return exists(
+    db
+      .select({ one: sql`1` })
+      .from(visits)
+      .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
+      .where(
+        and(
+          eq(visits.techId, techId),
+          or(eq(workOrders.unitId, unitId), and(isNull(workOrders.unitId), eq(workOrders.siteId, siteId))),
+        ),
+      ),
+  );
+}
+
+export type UnitRow = typeof units.$inferSelect;
+
+/**
+ * Loads a unit the signed-in person may read, else 404: office roles within their branch scope,
+ * technicians only for units on their assignments.
+ */
+export async function loadReadableUnit(db: Tx, user: SessionUser, unitId: string): Promise<UnitRow> {
+  const [row] = await db
+    .select({
+      unit: units,
+      assigned:
+        user.role === 'technician'
+          ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}`
+          : sql<boolean>`true`,
+    })
+    .from(units)
+    .where(eq(units.id, unitId))
+    .limit(1);
+  if (!row) throw notFound('unit');
+  if (user.role === 'technician') {
+    if (!row.assigned) throw notFound('unit');
+  } else if (user.role !== 'owner' && row.unit.branchId !== user.branchId) {
+    throw notFound('unit');
+  }
+  return row.unit;
+}

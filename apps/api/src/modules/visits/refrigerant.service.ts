@@ -1,0 +1,149 @@
+import { and, asc, eq, gt, inArray } from 'drizzle-orm';
+import { TZDate } from '@date-fns/tz';
+import { format } from 'date-fns';
+import { leakRepairObligation, listRefrigerants } from '@coilpath/calc';
+import type { LeakCheckDto, RefrigerantEventResult, SessionUser } from '@coilpath/contract';
+import { refrigerantEventInputSchema } from '@coilpath/contract';
+import type { z } from 'zod';
+import type { AppContext } from '../../context';
+import type { Tx } from '../../db/client';
+import { branches, leakCases, refrigerantEvents, units } from '../../db/schema';
+import { badRequest, conflict, forbidden, notFound } from '../../lib/errors';
+import { assertVisitWritable, loadReadableUnit, loadVisit, type UnitRow } from './access';
+import { leakCaseDto, refrigerantEventDto } from './dto';
+import { unitsOfWorkOrder } from './visits.service';
+import { workOrders } from '../../db/schema';
+
+/** Leak cases in these states still stand: a new case is not opened beside one. */
+export const OPEN_LEAK_CASE_STATUSES = ['open', 'retrofit_planned', 'retire_planned'] as const;
+
+/** The leak-rate method Coilpath applies (40 CFR 82.152 allows annualizing or rolling average, one per facility). */
+const METHOD = 'annualizing' as const;
+
+type Input = z.output<typeof refrigerantEventInputSchema>;
+
+/** The unit's leak rate and repair obligation as of a date, over every addition on record. */
+async function leakCheck(tx: Tx, unit: UnitRow, asOf: string): Promise<LeakCheckDto | null> {
+  const adds = await tx
+    .select({ date: refrigerantEvents.date, pounds: refrigerantEvents.poundsAdded })
+    .from(refrigerantEvents)
+    .where(and(eq(refrigerantEvents.unitId, unit.id), gt(refrigerantEvents.poundsAdded, 0)))
+    .orderBy(asc(refrigerantEvents.date));
+  try {
+    const o = leakRepairObligation({
+      appliance: { category: unit.applianceCategory, fullCharge: unit.fullChargeLb, refrigerant: unit.refrigerant },
+      additions: adds,
+      asOf,
+      method: METHOD,
+    });
+    return {
+      inScope: o.inScope,
+      rule: o.rule,
+      method: METHOD,
+      leakRatePercent: Math.round(o.leakRate * 100) / 100,
+      thresholdPercent: o.thresholdPercent,
+      exceeds: o.exceeds,
+      repairDueDate: o.repairDueDate,
+      chronic: o.chronic,
+    };
+  } catch {
+    // A refrigerant or charge Coilpath cannot compute: the event is kept, the leak check left empty.
+    return null;
+  }
+}
+
+/**
+ * Records refrigerant added to or recovered from a unit (technicians only, on their own open visit
+ * when one is named). In the same transaction it recomputes the unit's leak rate with
+ * `leakRepairObligation` and opens a leak case when the rate is over the threshold and no case is
+ * open for the unit yet.
+ */
+export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser, unitId: string, input: Input): Promise<RefrigerantEventResult & { created: boolean }> {
+  const unit = await loadReadableUnit(ctx.db, user, unitId);
+  if (user.role !== 'technician') {
+    throw forbidden('Only the technician doing the work records refrigerant added or recovered.');
+  }
+  if (!listRefrigerants().some((r) => r.id === input.refrigerant)) {
+    throw badRequest(`Unknown refrigerant ${input.refrigerant}.`, { fields: [{ path: 'refrigerant', message: 'Choose a refrigerant from the list' }] });
+  }
+  return ctx.db.transaction(async (tx) => {
+    // One writer per unit at a time, so two saves cannot open two leak cases.
+    await tx.select({ id: units.id }).from(units).where(eq(units.id, unit.id)).for('update');
+
+    if (input.id) {
+      const [existing] = await tx.select().from(refrigerantEvents).where(eq(refrigerantEvents.id, input.id)).limit(1);
+      if (existing) {
+        if (existing.unitId !== unit.id) throw conflict('id_taken', 'That refrigerant entry id belongs to another unit.');
+        const [open] = await tx.select().from(leakCases).where(and(eq(leakCases.unitId, unit.id), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES]))).limit(1);
+        return {
+          event: refrigerantEventDto(existing),
+          leakCheck: await leakCheck(tx, unit, existing.date),
+          leakCase: open ? leakCaseDto(open) : null,
+          leakCaseOpened: false,
+          created: false,
+        };
+      }
+    }
+
+    if (input.visitId) {
+      const v = await loadVisit(tx, input.visitId, { lock: true });
+      assertVisitWritable(user, v);
+      const [wo] = await tx.select({ unitId: workOrders.unitId, siteId: workOrders.siteId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+      const us = await unitsOfWorkOrder(tx, wo!);
+      if (!us.some((u) => u.id === unit.id)) {
+        throw badRequest('That unit is not on this visit.', { fields: [{ path: 'visitId', message: 'The visit does not cover this unit' }] });
+      }
+    }
+
+    const [branch] = await tx.select({ timeZone: branches.timeZone }).from(branches).where(eq(branches.id, unit.branchId));
+    if (!branch) throw notFound('branch');
+    const today = format(new TZDate(ctx.clock.now().getTime(), branch.timeZone), 'yyyy-MM-dd');
+    const date = input.date ?? today;
+    if (date > today) {
+      throw badRequest('The date is in the future.', { fields: [{ path: 'date', message: 'Use today or an earlier date' }] });
+    }
+
+    const [event] = await tx
+      .insert(refrigerantEvents)
+      .values({
+        ...(input.id ? { id: input.id } : {}),
+        unitId: unit.id,
+        visitId: input.visitId ?? null,
+        date,
+        refrigerant: input.refrigerant,
+        poundsAdded: input.poundsAdded,
+        poundsRecovered: input.poundsRecovered,
+        reason: input.reason,
+        cylinderLot: input.cylinderLot ?? null,
+        techId: user.id,
+      })
+      .returning();
+
+    const check = input.poundsAdded > 0 ? await leakCheck(tx, unit, date) : null;
+    const [open] = await tx
+      .select()
+      .from(leakCases)
+      .where(and(eq(leakCases.unitId, unit.id), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
+      .limit(1);
+    if (check?.exceeds && check.rule && check.thresholdPercent !== null && check.repairDueDate && !open) {
+      const [created] = await tx
+        .insert(leakCases)
+        .values({
+          branchId: unit.branchId,
+          unitId: unit.id,
+          triggeringEventId: event!.id,
+          openedOn: date,
+          rule: check.rule,
+          method: check.method,
+          thresholdPercent: check.thresholdPercent,
+          leakRatePercent: check.leakRatePercent,
+          repairDueDate: check.repairDueDate,
+          chronic: check.chronic,
+          status: 'open',
+        })
+        .returning();
+      return { event: refrigerantEventDto(event!), leakCheck: check, leakCase: leakCaseDto(created!), leakCaseOpened: true, created: true };
+    }
+    return { event: refrigerantEventDto(event!), leakCheck: check, leakCase: open ? leakCaseDto(open) : null, leakCaseOpened: false, created: true };
+  });
+}

@@ -1,0 +1,59 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { eq } from 'drizzle-orm';
+import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
+import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
+import { circuits, mailOutbox } from '../../db/schema';
+import { startMailSink } from '../../mail/sink';
+import { createSmtpMailer, type Mailer } from '../../mail/mailer';
+import { makeBookedVisit } from './visits.fixtures';
+
+let t: TestApp;
+let sink: Awaited<ReturnType<typeof startMailSink>>;
+
+beforeAll(async () => {
+  // The sink writes into the app's own database, so the app is built first with a mailer that
+  // forwards to the SMTP transport once the sink is listening.
+  let smtp: Mailer | undefined;
+  t = await createTestApp({ now: '2026-03-10T15:00:00Z', mailer: { send: (m) => smtp!.send(m) } });
+  sink = await startMailSink(t.ctx.db, t.storage);
+  smtp = createSmtpMailer(sink.url, 'Coilpath <service@coilpath.example>');
+});
+afterAll(async () => {
+  await sink?.close();
+  await t?.close();
+});
+
+describe('service summary through the real SMTP sink', () => {
+  it('lands in mail_outbox with the readings, the finding and the PDF attached', async () => {
+    const f = await makeTwoBranches(t.ctx.db);
+    const p = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    const [c1] = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, p.unit.id)).orderBy(circuits.number);
+    const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z' });
+    const tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
+    await tech.patch(`/api/visits/${visit.id}`).send({ state: 'on_site' });
+    await tech.post(`/api/visits/${visit.id}/readings`).send({ readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
+    await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'wiring_fault', origin: 'factory_defect', reportedCircuit: 1, actualCircuit: 2 });
+
+    const res = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'needs_return', returnNeeds: ['manufacturer'], returnNotes: 'Factory to confirm the wiring change' });
+    expect(res.status).toBe(200);
+    expect(res.body.summary).toMatchObject({ sent: true, to: p.site.contactEmail });
+
+    // The sink files the message after the SMTP session ends: wait for the row, bounded.
+    let rows: (typeof mailOutbox.$inferSelect)[] = [];
+    for (let i = 0; i < 250 && rows.length === 0; i++) {
+      rows = await t.ctx.db.select().from(mailOutbox).where(eq(mailOutbox.to, p.site.contactEmail!));
+      if (rows.length === 0) await new Promise((r) => setTimeout(r, 20));
+    }
+    expect(rows).toHaveLength(1);
+    const m = rows[0]!;
+    expect(m.subject).toMatch(/^Service summary WO-\d+/);
+    expect(m.text).toContain('Wiring fault (origin: Factory defect)');
+    expect(m.text).toContain('reported on circuit 1, found on circuit 2');
+    expect(m.text).toMatch(/superheat 11\.8 °F/);
+    expect(m.attachments).toHaveLength(1);
+    expect(m.attachments[0]).toMatchObject({ contentType: 'application/pdf' });
+    expect(m.attachments[0]!.filename).toMatch(/^service-summary-WO-\d+\.pdf$/);
+    const pdf = await t.storage.get(m.attachments[0]!.storageKey!);
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+  });
+});

@@ -1,0 +1,121 @@
+/** The service summary a customer receives when a visit closes: plain text and a PDF copy. */
+import PDFDocument from 'pdfkit';
+import { TZDate } from '@date-fns/tz';
+import { format } from 'date-fns';
+import {
+  causeCodeLabels,
+  causeOriginLabels,
+  refrigerantEventReasonLabels,
+  returnNeedLabels,
+  visitOutcomeLabels,
+  workOrderKindLabels,
+  type ReadingDto,
+  type VisitDetail,
+} from '@coilpath/contract';
+
+const num = (n: number | null, unit: string) => (n === null ? '-' : `${n.toFixed(1)} ${unit}`);
+const when = (iso: string | null, tz: string) => (iso ? format(new TZDate(new Date(iso).getTime(), tz), 'EEE d MMM yyyy, HH:mm') : '-');
+
+function readingLines(r: ReadingDto, unitTag: string): string[] {
+  const lines = [`${unitTag}, circuit ${r.circuitNumber} (${r.refrigerant})`];
+  lines.push(`  Suction pressure ${num(r.suctionPressure, 'psig')} (controller ${num(r.suctionPressureController, 'psig')}), saturation ${num(r.suctionSaturationTemp, '°F')}`);
+  lines.push(`  Suction line ${num(r.suctionLineTemp, '°F')}, superheat ${num(r.superheat, '°F')}`);
+  if (r.liquidPressure !== null || r.liquidPressureController !== null)
+    lines.push(`  Liquid pressure ${num(r.liquidPressure, 'psig')} (controller ${num(r.liquidPressureController, 'psig')}), saturation ${num(r.liquidSaturationTemp, '°F')}`);
+  if (r.dischargePressure !== null || r.dischargePressureController !== null)
+    lines.push(`  Discharge pressure ${num(r.dischargePressure, 'psig')} (controller ${num(r.dischargePressureController, 'psig')})`);
+  lines.push(`  Liquid line ${num(r.liquidLineTemp, '°F')}, subcooling ${num(r.subcooling, '°F')}`);
+  if (r.outdoorTemp !== null) lines.push(`  Outdoor air ${num(r.outdoorTemp, '°F')}`);
+  if (r.notes) lines.push(`  Notes: ${r.notes}`);
+  return lines;
+}
+
+export interface SummarySections {
+  title: string;
+  facts: [string, string][];
+  readings: string[];
+  findings: string[];
+  refrigerant: string[];
+  outcome: string[];
+}
+
+export function summarySections(v: VisitDetail): SummarySections {
+  const tz = v.branch.timeZone;
+  const tagOf = new Map(v.units.map((u) => [u.id, `${u.tag} (${u.make} ${u.model}, serial ${u.serial})`]));
+  const wo = `WO-${v.workOrder.number ?? '?'}`;
+  const outcome = [`Outcome: ${v.outcome ? visitOutcomeLabels[v.outcome] : '-'}`];
+  if (v.outcome === 'needs_return') {
+    outcome.push(`A return visit is needed for: ${v.returnNeeds.map((n) => returnNeedLabels[n]).join(', ') || '-'}. The branch will book it with you.`);
+    if (v.returnNotes) outcome.push(`What is needed: ${v.returnNotes}`);
+  }
+  if (v.notes) outcome.push(`Technician's notes: ${v.notes}`);
+  return {
+    title: `Service summary ${wo} - ${v.site.name}`,
+    facts: [
+      ['Work order', `${wo}, ${workOrderKindLabels[v.workOrder.kind]}`],
+      ['Site', `${v.site.name}, ${v.site.address}${v.site.city ? `, ${v.site.city}` : ''}`],
+      ['Reported problem', v.workOrder.complaint || '-'],
+      ['Units', v.units.map((u) => tagOf.get(u.id)).join('; ') || '-'],
+      ['Technician', v.techName],
+      ['Arrived', when(v.onSiteAt, tz)],
+      ['Closed', when(v.closedAt, tz)],
+      ['Branch', v.branch.name],
+    ],
+    readings: v.readings.flatMap((r) => readingLines(r, v.units.find((u) => u.id === r.unitId)?.tag ?? 'Unit')),
+    findings: v.findings.map((f) => {
+      const parts = [`${causeCodeLabels[f.causeCode]} (origin: ${causeOriginLabels[f.origin]})`];
+      if (f.alarmCode) parts.push(`alarm ${f.alarmCode}`);
+      if (f.reportedCircuit !== null || f.actualCircuit !== null)
+        parts.push(`reported on circuit ${f.reportedCircuit ?? '-'}, found on circuit ${f.actualCircuit ?? '-'}`);
+      return `${parts.join('; ')}${f.notes ? `. ${f.notes}` : ''}`;
+    }),
+    refrigerant: v.refrigerantEvents.map(
+      (e) =>
+        `${e.date}: ${e.refrigerant}, added ${e.poundsAdded.toFixed(1)} lb, recovered ${e.poundsRecovered.toFixed(1)} lb (${refrigerantEventReasonLabels[e.reason]})${e.cylinderLot ? `, cylinder/lot ${e.cylinderLot}` : ''}`,
+    ),
+    outcome,
+  };
+}
+
+export function summaryText(s: SummarySections): string {
+  const out: string[] = [s.title, ''];
+  for (const [k, val] of s.facts) out.push(`${k}: ${val}`);
+  out.push('', 'Readings', ...(s.readings.length ? s.readings : ['No readings were recorded.']));
+  out.push('', 'Findings', ...(s.findings.length ? s.findings.map((f) => `- ${f}`) : ['No findings were recorded.']));
+  if (s.refrigerant.length) out.push('', 'Refrigerant', ...s.refrigerant.map((r) => `- ${r}`));
+  out.push('', ...s.outcome);
+  out.push('', 'A PDF copy of this summary is attached.', '', 'Coilpath');
+  return out.join('\n');
+}
+
+/** The same summary as a PDF (pdfkit, standard fonts). */
+export function summaryPdf(s: SummarySections): Promise<Buffer> {
+  return new Promise((resolve, reject) => {
+    const doc = new PDFDocument({ size: 'LETTER', margin: 54, info: { Title: s.title, Producer: 'Coilpath' } });
+    const chunks: Buffer[] = [];
+    doc.on('data', (c: Buffer) => chunks.push(c));
+    doc.on('end', () => resolve(Buffer.concat(chunks)));
+    doc.on('error', reject);
+    // Helvetica's WinAnsi set has no U+2212 minus sign: use the hyphen.
+    const t = (x: string) => x.replace(/\u2212/g, '-');
+    doc.font('Helvetica-Bold').fontSize(16).fillColor('#17212B').text(t(s.title));
+    doc.moveDown(0.5);
+    doc.fontSize(10);
+    for (const [k, val] of s.facts) doc.font('Helvetica-Bold').text(`${k}: `, { continued: true }).font('Helvetica').text(t(val));
+    const section = (title: string, lines: string[], empty: string) => {
+      doc.moveDown(0.8).font('Helvetica-Bold').fontSize(12).text(title).fontSize(10).font('Helvetica');
+      if (!lines.length) doc.fillColor('#5B6B7A').text(empty).fillColor('#17212B');
+      for (const l of lines) doc.text(t(l));
+    };
+    section('Readings', s.readings, 'No readings were recorded.');
+    section('Findings', s.findings.map((f) => `- ${f}`), 'No findings were recorded.');
+    if (s.refrigerant.length) section('Refrigerant', s.refrigerant.map((r) => `- ${r}`), '');
+    section('Outcome', s.outcome, '');
+    doc
+      .moveDown(1)
+      .fontSize(8)
+      .fillColor('#5B6B7A')
+      .text('Readings guide diagnosis alongside the equipment manufacturer’s data. Refrigerant work is done under EPA Section 608 certification.'.replace('’', "'"));
+    doc.end();
+  });
+}

@@ -1,0 +1,115 @@
+import { Router, type NextFunction, type Request, type Response } from 'express';
+import multer from 'multer';
+import {
+  attachmentMaxBytes,
+  attachmentUploadFieldsSchema,
+  closeVisitSchema,
+  findingInputSchema,
+  idSchema,
+  refrigerantEventInputSchema,
+  saveReadingsSchema,
+  visitStateChangeSchema,
+} from '@coilpath/contract';
+import { z } from 'zod';
+import type { AppContext } from '../../context';
+import { requireRole } from '../../auth/middleware';
+import { endpoint, idParams } from '../../lib/endpoint';
+import { badRequest, unauthorized } from '../../lib/errors';
+import { assertVisitWritable, loadVisit } from './access';
+import { addAttachment, readAttachment } from './attachments.service';
+import { unitBriefing } from './briefing.service';
+import { closeVisit, resendSummary } from './closeout.service';
+import { recordRefrigerantEvent } from './refrigerant.service';
+import { addFinding, changeState, currentVisit, saveReadings, visitDetail } from './visits.service';
+
+/** `/api/visits`: the Visit screen's reads and the assigned technician's writes. */
+export function visitsRoutes(ctx: AppContext): Router {
+  const r = Router();
+
+  r.get('/current', requireRole('technician'), endpoint({}, ({ user }) => currentVisit(ctx, user)));
+
+  r.get('/:id', endpoint({ params: idParams }, ({ user, params }) => visitDetail(ctx.db, user, params.id)));
+
+  r.patch('/:id', endpoint({ params: idParams, body: visitStateChangeSchema }, ({ user, params, body }) => changeState(ctx, user, params.id, body)));
+
+  r.post(
+    '/:id/readings',
+    endpoint({ params: idParams, body: saveReadingsSchema }, ({ user, params, body }) => saveReadings(ctx, user, params.id, body)),
+  );
+
+  r.post(
+    '/:id/findings',
+    endpoint({ params: idParams, body: findingInputSchema }, async ({ user, params, body, res }) => {
+      const out = await addFinding(ctx, user, params.id, body);
+      res.status(out.created ? 201 : 200).json({ finding: out.finding });
+    }),
+  );
+
+  // The visit is checked before the upload is read, so a refused request never buffers 15 MB.
+  const multerUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: attachmentMaxBytes, files: 1, fields: 5 } }).single('file');
+  // Multer's own limit errors (LIMIT_FILE_SIZE → 413) pass through; an unreadable body is the client's 400.
+  const upload = (req: Request, res: Response, next: NextFunction) =>
+    multerUpload(req, res, (err?: unknown) => {
+      const code = (err as { code?: unknown } | undefined)?.code;
+      if (err && !(typeof code === 'string' && code.startsWith('LIMIT_'))) {
+        return next(badRequest('The upload could not be read. Send the file again as multipart/form-data in the field "file".'));
+      }
+      next(err);
+    });
+  r.post(
+    '/:id/attachments',
+    async (req: Request, _res: Response, next: NextFunction) => {
+      if (!req.user) throw unauthorized();
+      const id = idSchema.parse(req.params.id);
+      assertVisitWritable(req.user, await loadVisit(ctx.db, id));
+      next();
+    },
+    upload,
+    endpoint(
+      { params: idParams, body: attachmentUploadFieldsSchema.extend({ unitId: idSchema.optional() }), status: 201 },
+      async ({ user, params, body, req }) => ({
+        attachment: await addAttachment(ctx, user, params.id, req.file, { kind: body.kind, unitId: body.unitId }),
+      }),
+    ),
+  );
+
+  r.post(
+    '/:id/close',
+    endpoint({ params: idParams, body: closeVisitSchema }, ({ user, params, body }) => closeVisit(ctx, user, params.id, body)),
+  );
+
+  r.post('/:id/summary', endpoint({ params: idParams }, async ({ user, params }) => ({ summary: await resendSummary(ctx, user, params.id) })));
+
+  return r;
+}
+
+/** `/api/attachments/:id`: the file itself (`?thumb=1` serves the same file, sized by the screen). */
+export function attachmentsRoutes(ctx: AppContext): Router {
+  const r = Router();
+  r.get(
+    '/:id',
+    endpoint({ params: idParams, query: z.object({ thumb: z.string().optional() }) }, async ({ user, params, res }) => {
+      const { attachment: a, content } = await readAttachment(ctx, user, params.id);
+      res.setHeader('Content-Type', a.contentType);
+      res.setHeader('Content-Length', String(content.length));
+      res.setHeader('Cache-Control', 'private, max-age=3600');
+      res.setHeader('Content-Disposition', `inline; filename="${a.displayName.replace(/[^\w.-]+/g, '_')}"`);
+      res.send(content);
+    }),
+  );
+  return r;
+}
+
+/** `/api/units/:id/briefing` and `/api/units/:id/refrigerant-events` (the units CRUD lives in modules/units). */
+export function briefingRoutes(ctx: AppContext): Router {
+  const r = Router();
+  r.get('/:id/briefing', endpoint({ params: idParams }, ({ user, params }) => unitBriefing(ctx, user, params.id)));
+  r.post(
+    '/:id/refrigerant-events',
+    endpoint({ params: idParams, body: refrigerantEventInputSchema }, async ({ user, params, body, res }) => {
+      const { created, ...out } = await recordRefrigerantEvent(ctx, user, params.id, body);
+      res.status(created ? 201 : 200).json(out);
+    }),
+  );
+  return r;
+}

@@ -1,0 +1,282 @@
+import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm';
+import type {
+  CurrentVisitResult,
+  FindingDto,
+  FindingInput,
+  ReadingDto,
+  SaveReadings,
+  SessionUser,
+  VisitDetail,
+  VisitStateChange,
+  VisitUnitDto,
+} from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import type { Tx } from '../../db/client';
+import {
+  attachments,
+  bookings,
+  branches,
+  circuits,
+  findings,
+  readings,
+  refrigerantEvents,
+  sites,
+  units,
+  users,
+  visitEvents,
+  visits,
+  workOrders,
+} from '../../db/schema';
+import { badRequest, conflict } from '../../lib/errors';
+import { assertVisitReadable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
+import { attachmentDto, findingDto, readingDto, refrigerantEventDto } from './dto';
+import { computeReading } from './reading-calc';
+
+/** The units a visit covers: the work order's unit, or every active unit at the site when it names none. */
+export async function unitsOfWorkOrder(db: Tx, wo: { unitId: string | null; siteId: string }) {
+  return db
+    .select()
+    .from(units)
+    .where(wo.unitId ? eq(units.id, wo.unitId) : and(eq(units.siteId, wo.siteId), isNull(units.archivedAt)))
+    .orderBy(asc(units.tag));
+}
+
+async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: string }): Promise<VisitUnitDto[]> {
+  const us = await unitsOfWorkOrder(db, wo);
+  const cs = us.length
+    ? await db.select().from(circuits).where(inArray(circuits.unitId, us.map((u) => u.id))).orderBy(asc(circuits.number))
+    : [];
+  return us.map((u) => ({
+    id: u.id,
+    tag: u.tag,
+    kind: u.kind,
+    make: u.make,
+    model: u.model,
+    serial: u.serial,
+    refrigerant: u.refrigerant,
+    fullChargeLb: u.fullChargeLb,
+    applianceCategory: u.applianceCategory,
+    circuits: cs
+      .filter((c) => c.unitId === u.id)
+      .map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb })),
+  }));
+}
+
+/** Everything the Visit screen shows, one query per section. */
+export async function visitDetail(db: Tx, user: SessionUser, id: string): Promise<VisitDetail> {
+  const [row] = await db
+    .select({
+      visit: visits,
+      wo: workOrders,
+      site: sites,
+      branch: branches,
+      techName: users.name,
+      booking: { id: bookings.id, startAt: bookings.startAt, endAt: bookings.endAt },
+    })
+    .from(visits)
+    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
+    .innerJoin(sites, eq(sites.id, workOrders.siteId))
+    .innerJoin(branches, eq(branches.id, visits.branchId))
+    .innerJoin(users, eq(users.id, visits.techId))
+    .leftJoin(bookings, eq(bookings.id, visits.bookingId))
+    .where(eq(visits.id, id))
+    .limit(1);
+  assertVisitReadable(user, row?.visit);
+  const { visit: v, wo, site, branch } = row!;
+
+  const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows] = await Promise.all([
+    unitsWithCircuits(db, wo),
+    db
+      .select({ r: readings, number: circuits.number })
+      .from(readings)
+      .innerJoin(circuits, eq(circuits.id, readings.circuitId))
+      .where(eq(readings.visitId, id))
+      .orderBy(asc(circuits.number)),
+    db.select().from(findings).where(eq(findings.visitId, id)).orderBy(asc(findings.createdAt)),
+    db.select().from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id)).orderBy(asc(refrigerantEvents.createdAt)),
+    db.select().from(attachments).where(eq(attachments.visitId, id)).orderBy(asc(attachments.createdAt)),
+    db.select().from(visitEvents).where(eq(visitEvents.visitId, id)).orderBy(asc(visitEvents.at)),
+  ]);
+
+  return {
+    id: v.id,
+    branchId: v.branchId,
+    status: visitStatus(v),
+    techId: v.techId,
+    techName: row!.techName,
+    enRouteAt: v.enRouteAt?.toISOString() ?? null,
+    onSiteAt: v.onSiteAt?.toISOString() ?? null,
+    closedAt: v.closedAt?.toISOString() ?? null,
+    outcome: v.outcome,
+    returnNeeds: v.returnNeeds,
+    returnNotes: v.returnNotes,
+    notes: v.notes,
+    summarySentAt: v.summarySentAt?.toISOString() ?? null,
+    version: v.version,
+    booking: row!.booking ? { id: row!.booking.id, startAt: row!.booking.startAt.toISOString(), endAt: row!.booking.endAt.toISOString() } : null,
+    workOrder: {
+      id: wo.id,
+      number: wo.number,
+      kind: wo.kind,
+      state: wo.state,
+      priority: wo.priority,
+      complaint: wo.complaint,
+      requiredCertification: wo.requiredCertification,
+    },
+    site: {
+      id: site.id,
+      name: site.name,
+      address: site.address,
+      city: site.city,
+      accessNotes: site.accessNotes,
+      contactName: site.contactName,
+      contactPhone: site.contactPhone,
+    },
+    branch: {
+      id: branch.id,
+      name: branch.name,
+      timeZone: branch.timeZone,
+      sensorTolerancePercent: branch.sensorTolerancePercent,
+      sensorToleranceAbsolute: branch.sensorToleranceAbsolute,
+    },
+    units: unitList,
+    readings: readingRows.map((x) => readingDto(x.r, x.number)),
+    findings: findingRows.map(findingDto),
+    refrigerantEvents: eventRows.map(refrigerantEventDto),
+    attachments: attachmentRows.map(attachmentDto),
+    events: stateRows.map((e) => ({ state: e.state, at: e.at.toISOString(), byUserId: e.byUserId })),
+    canWrite: user.role === 'technician' && v.techId === user.id && !v.closedAt,
+  };
+}
+
+/** The technician's current visit: on site, else en route, else the next booked one (today or later). */
+export async function currentVisit(ctx: AppContext, user: SessionUser): Promise<CurrentVisitResult> {
+  const open = await ctx.db
+    .select({ id: visits.id, enRouteAt: visits.enRouteAt, onSiteAt: visits.onSiteAt, startAt: bookings.startAt, endAt: bookings.endAt })
+    .from(visits)
+    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
+    .leftJoin(bookings, eq(bookings.id, visits.bookingId))
+    .where(and(eq(visits.techId, user.id), isNull(visits.closedAt), sql`${workOrders.state} <> 'cancelled'`))
+    .orderBy(asc(bookings.startAt));
+  const onSite = open.filter((v) => v.onSiteAt).sort((a, b) => b.onSiteAt!.getTime() - a.onSiteAt!.getTime())[0];
+  if (onSite) return { visitId: onSite.id, reason: 'on_site' };
+  const enRoute = open.filter((v) => v.enRouteAt).sort((a, b) => b.enRouteAt!.getTime() - a.enRouteAt!.getTime())[0];
+  if (enRoute) return { visitId: enRoute.id, reason: 'en_route' };
+  // The next booked visit: the first whose booking ended less than 12 hours ago or is still ahead
+  // (a technician running late today still gets the stop they have not started).
+  const since = ctx.clock.now().getTime() - 12 * 3600_000;
+  const next = open.find((v) => v.endAt && v.endAt.getTime() >= since);
+  return next ? { visitId: next.id, reason: 'next_booked' } : { visitId: null, reason: null };
+}
+
+/** En route → on site: timestamps on the visit, a visit event, and the work order's state. */
+export async function changeState(ctx: AppContext, user: SessionUser, id: string, input: VisitStateChange): Promise<VisitDetail> {
+  await ctx.db.transaction(async (tx) => {
+    const v = await loadVisit(tx, id, { lock: true });
+    assertVisitWritable(user, v);
+    const now = ctx.clock.now();
+    if (input.state === 'en_route') {
+      if (v.onSiteAt) throw conflict('bad_state', 'You are already on site for this visit; it cannot go back to en route.');
+      if (v.enRouteAt) return; // already en route: nothing to change (a retried tap)
+      await tx.update(visits).set({ enRouteAt: now, version: v.version + 1, updatedAt: now }).where(eq(visits.id, id));
+    } else {
+      if (v.onSiteAt) return;
+      await tx.update(visits).set({ onSiteAt: now, version: v.version + 1, updatedAt: now }).where(eq(visits.id, id));
+    }
+    await tx.insert(visitEvents).values({ visitId: id, state: input.state, at: now, byUserId: user.id });
+    await tx.update(workOrders).set({ state: input.state, updatedAt: now }).where(eq(workOrders.id, v.workOrderId));
+  });
+  return visitDetail(ctx.db, user, id);
+}
+
+async function visitUnitIds(tx: Tx, v: VisitRow): Promise<Map<string, { refrigerant: string }>> {
+  const [wo] = await tx.select({ unitId: workOrders.unitId, siteId: workOrders.siteId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+  const us = await unitsOfWorkOrder(tx, wo!);
+  return new Map(us.map((u) => [u.id, { refrigerant: u.refrigerant }]));
+}
+
+/**
+ * Saves one entry per circuit, replacing this visit's earlier entry for the same circuit (so a
+ * retried save from a phone on a bad connection never doubles a reading). Saturation temperatures,
+ * superheat and subcooling are computed here with @coilpath/calc.
+ */
+export async function saveReadings(ctx: AppContext, user: SessionUser, id: string, input: SaveReadings): Promise<{ readings: ReadingDto[] }> {
+  return ctx.db.transaction(async (tx) => {
+    const v = await loadVisit(tx, id, { lock: true });
+    assertVisitWritable(user, v);
+    const unitMap = await visitUnitIds(tx, v);
+    const circuitIds = input.readings.map((r) => r.circuitId);
+    const cs = await tx.select().from(circuits).where(inArray(circuits.id, circuitIds));
+    const byId = new Map(cs.map((c) => [c.id, c]));
+    const bad = circuitIds.filter((c) => !byId.has(c) || !unitMap.has(byId.get(c)!.unitId));
+    if (bad.length) throw badRequest('A circuit is not on this visit’s units.', { fields: [{ path: 'readings.circuitId', message: 'Not a circuit of this visit' }] });
+    const now = ctx.clock.now();
+    await tx.delete(readings).where(and(eq(readings.visitId, id), inArray(readings.circuitId, circuitIds)));
+    const rows = await tx
+      .insert(readings)
+      .values(
+        input.readings.map((r) => {
+          const c = byId.get(r.circuitId)!;
+          const refrigerant = unitMap.get(c.unitId)!.refrigerant;
+          return {
+            visitId: id,
+            unitId: c.unitId,
+            circuitId: c.id,
+            takenAt: now,
+            refrigerant,
+            suctionPressure: r.suctionPressure ?? null,
+            liquidPressure: r.liquidPressure ?? null,
+            dischargePressure: r.dischargePressure ?? null,
+            suctionLineTemp: r.suctionLineTemp ?? null,
+            liquidLineTemp: r.liquidLineTemp ?? null,
+            outdoorTemp: r.outdoorTemp ?? null,
+            suctionPressureController: r.suctionPressureController ?? null,
+            liquidPressureController: r.liquidPressureController ?? null,
+            dischargePressureController: r.dischargePressureController ?? null,
+            notes: r.notes ?? null,
+            ...computeReading(refrigerant, r),
+          };
+        }),
+      )
+      .returning();
+    return { readings: rows.map((r) => readingDto(r, byId.get(r.circuitId)!.number)).sort((a, b) => a.circuitNumber - b.circuitNumber) };
+  });
+}
+
+/** Records a finding. A client-made `id` seen before answers the saved finding (a retried save). */
+export async function addFinding(ctx: AppContext, user: SessionUser, id: string, input: FindingInput): Promise<{ finding: FindingDto; created: boolean }> {
+  return ctx.db.transaction(async (tx) => {
+    const v = await loadVisit(tx, id, { lock: true });
+    if (input.id) {
+      assertVisitReadable(user, v);
+      const [existing] = await tx.select().from(findings).where(eq(findings.id, input.id)).limit(1);
+      if (existing) {
+        if (existing.visitId !== id) throw conflict('id_taken', 'That finding id belongs to another visit.');
+        return { finding: findingDto(existing), created: false };
+      }
+    }
+    assertVisitWritable(user, v);
+    const unitMap = await visitUnitIds(tx, v);
+    let unitId = input.unitId ?? null;
+    if (unitId && !unitMap.has(unitId)) {
+      throw badRequest('That unit is not on this visit.', { fields: [{ path: 'unitId', message: 'Not a unit of this visit' }] });
+    }
+    if (!unitId && unitMap.size === 1) unitId = [...unitMap.keys()][0]!;
+    const [f] = await tx
+      .insert(findings)
+      .values({
+        ...(input.id ? { id: input.id } : {}),
+        visitId: id,
+        unitId,
+        causeCode: input.causeCode,
+        origin: input.origin,
+        alarmCode: input.alarmCode ?? null,
+        reportedCircuit: input.reportedCircuit ?? null,
+        actualCircuit: input.actualCircuit ?? null,
+        notes: input.notes ?? null,
+      })
+      .returning();
+    return { finding: findingDto(f!), created: true };
+  });
+}
+

@@ -1,0 +1,146 @@
+import { useQuery } from '@tanstack/react-query';
+import { Link } from 'react-router-dom';
+import { AlertTriangle, Droplets, History, Siren } from 'lucide-react';
+import { causeCodeLabels, causeOriginLabels, visitOutcomeLabels } from '@coilpath/contract';
+import { Badge } from '@/components/ui/page';
+import { ErrorState, LoadingState } from '@/components/ui/states';
+import { formatInZone } from '@/lib/format';
+import { AttachmentThumb } from '../visits/attachments-section';
+import { briefingQuery } from '../visits/visit-api';
+
+const f1 = (n: number | null) => (n === null ? '—' : n.toFixed(1));
+
+/** The "prior findings" a technician wants before arriving at a unit. */
+export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; timeZone: string; today: string }) {
+  const q = useQuery(briefingQuery(unitId));
+  if (q.isPending) return <LoadingState label="Loading the unit briefing…" />;
+  if (q.isError) return <ErrorState error={q.error} onRetry={() => q.refetch()} title="The briefing could not be loaded" />;
+  const b = q.data;
+  const r = b.refrigerantThisYear;
+  const leakDaysLeft = b.openLeakCase ? Math.round((Date.parse(b.openLeakCase.repairDueDate) - Date.parse(today)) / 86_400_000) : null;
+  return (
+    <div className="flex flex-col gap-3 text-sm">
+      <p className="text-slate">
+        <Link to={`/units/${b.unit.id}`} className="font-medium text-coolant underline">
+          {b.unit.tag}
+        </Link>{' '}
+        · {b.unit.make} {b.unit.model} · serial {b.unit.serial} · {b.unit.refrigerant}, full charge {b.unit.fullChargeLb} lb
+      </p>
+
+      {b.openLeakCase && (
+        <div className="flex items-start gap-2 rounded-md border border-alarm/40 bg-alarm-tint p-2">
+          <AlertTriangle className="mt-0.5 size-4 shrink-0 text-alarm" aria-hidden="true" />
+          <p>
+            <strong className="text-alarm">Open leak case</strong>: leak rate {b.openLeakCase.leakRatePercent.toFixed(1)} % a year over the{' '}
+            {b.openLeakCase.thresholdPercent} % threshold ({b.openLeakCase.rule}); repair due <strong>{b.openLeakCase.repairDueDate}</strong>
+            {leakDaysLeft !== null && (leakDaysLeft < 0 ? ` — ${-leakDaysLeft} days overdue` : ` — in ${leakDaysLeft} days`)}
+            {b.openLeakCase.chronic ? '; chronic leaker' : ''}.
+          </p>
+        </div>
+      )}
+
+      <div className="flex items-start gap-2">
+        <Droplets className="mt-0.5 size-4 shrink-0 text-slate" aria-hidden="true" />
+        <p className="tabular-nums">
+          Refrigerant added in {r.year}: <strong>{r.poundsAdded.toFixed(1)} lb</strong> of {r.fullChargeLb} lb full charge ({r.percentOfFullCharge.toFixed(1)} %)
+          {r.poundsRecovered > 0 ? `; recovered ${r.poundsRecovered.toFixed(1)} lb` : ''}.
+        </p>
+      </div>
+
+      <div className="flex items-start gap-2">
+        <Siren className="mt-0.5 size-4 shrink-0 text-slate" aria-hidden="true" />
+        {b.repeatAlarms.length === 0 ? (
+          <p>
+            No repeat alarms in the last {b.repeatAlarmWindow.days} days.
+          </p>
+        ) : (
+          <div>
+            <p>
+              Repeat alarms in the last {b.repeatAlarmWindow.days} days:
+            </p>
+            <ul className="flex flex-wrap gap-1">
+              {b.repeatAlarms.map((a) => (
+                <li key={`${a.code}-${a.circuit}`}>
+                  <Badge tone="watch">
+                    {a.code}
+                    {a.circuit !== null ? ` circuit ${a.circuit}` : ''} × {a.count}, last {formatInZone(a.lastRaisedAt, timeZone, 'd MMM')}
+                  </Badge>
+                </li>
+              ))}
+            </ul>
+          </div>
+        )}
+      </div>
+
+      <div className="flex items-start gap-2">
+        <History className="mt-0.5 size-4 shrink-0 text-slate" aria-hidden="true" />
+        {b.lastVisit ? (
+          <div>
+            <p>
+              Last visit {formatInZone(b.lastVisit.closedAt, timeZone, 'd MMM yyyy')} by {b.lastVisit.techName}:{' '}
+              {b.lastVisit.outcome ? visitOutcomeLabels[b.lastVisit.outcome] : '—'}.
+            </p>
+            {b.lastVisit.findings.length === 0 ? (
+              <p className="text-slate">No findings recorded.</p>
+            ) : (
+              <ul className="list-disc pl-5">
+                {b.lastVisit.findings.map((f) => (
+                  <li key={f.id}>
+                    {causeCodeLabels[f.causeCode]} ({causeOriginLabels[f.origin]})
+                    {f.alarmCode ? `, alarm ${f.alarmCode}` : ''}
+                    {f.reportedCircuit !== null && f.actualCircuit !== null && f.reportedCircuit !== f.actualCircuit
+                      ? ` — reported on circuit ${f.reportedCircuit}, really circuit ${f.actualCircuit}`
+                      : ''}
+                    {f.notes ? `: ${f.notes}` : ''}
+                  </li>
+                ))}
+              </ul>
+            )}
+          </div>
+        ) : (
+          <p>No earlier visit on record.</p>
+        )}
+      </div>
+
+      {b.lastReadings.length > 0 && (
+        <div className="overflow-x-auto">
+          <table className="w-full text-left tabular-nums">
+            <caption className="text-left text-slate">Last readings per circuit</caption>
+            <thead>
+              <tr className="text-xs text-slate">
+                <th scope="col" className="pr-2 font-medium">Circuit</th>
+                <th scope="col" className="pr-2 font-medium">Suction psig</th>
+                <th scope="col" className="pr-2 font-medium">Superheat °F</th>
+                <th scope="col" className="pr-2 font-medium">Liquid psig</th>
+                <th scope="col" className="pr-2 font-medium">Subcooling °F</th>
+                <th scope="col" className="font-medium">Taken</th>
+              </tr>
+            </thead>
+            <tbody>
+              {b.lastReadings.map((x) => (
+                <tr key={x.id}>
+                  <th scope="row" className="pr-2 font-normal">{x.circuitNumber}</th>
+                  <td className="pr-2">{f1(x.suctionPressure)}</td>
+                  <td className="pr-2">{f1(x.superheat)}</td>
+                  <td className="pr-2">{f1(x.liquidPressure ?? x.dischargePressure)}</td>
+                  <td className="pr-2">{f1(x.subcooling)}</td>
+                  <td>{formatInZone(x.takenAt, timeZone, 'd MMM')}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      )}
+
+      {b.photos.length > 0 && (
+        <ul className="flex flex-wrap gap-2" aria-label="Photos of the unit">
+          {b.photos.map((a) => (
+            <li key={a.id}>
+              <AttachmentThumb a={a} />
+            </li>
+          ))}
+        </ul>
+      )}
+    </div>
+  );
+}

@@ -1,0 +1,202 @@
+import { useEffect, useState } from 'react';
+import { useForm } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { z } from 'zod';
+import { CheckCircle2, Sparkles, XCircle } from 'lucide-react';
+import type { Technician, WorkOrder } from '@coilpath/contract';
+import { idSchema, isoDateSchema, limits, maxBookingMinutes, priorityLabels, workOrderLabel } from '@coilpath/contract';
+import { Button } from '@/components/ui/button';
+import { SafetyNote } from '@/components/ui/page';
+import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
+import { useNotify } from '@/components/ui/notices';
+import { errorMessage } from '@/lib/api-client';
+import { formatInZone } from '@/lib/format';
+import { isOutsideHours, useCreateBooking, useSuggest } from './api';
+import { certLabel, Modal, Refusal, TechSwatch, workOrderTitle } from './parts';
+import { instantToLocal, localToInstant } from './zone';
+
+/** The booking form: local date and time in the branch's zone, turned into instants for the API. */
+export const bookFormSchema = z
+  .object({
+    techId: idSchema.or(z.literal('')).refine((v) => v !== '', 'Choose a technician'),
+    date: isoDateSchema,
+    time: z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use 24-hour HH:MM'),
+    minutes: z.coerce.number({ message: 'Enter minutes' }).int('Use whole minutes').min(15, 'At least 15 minutes').max(maxBookingMinutes, 'At most 16 hours'),
+    overrideHours: z.boolean(),
+    overrideReason: z.string().trim().max(limits.shortText),
+  })
+  .refine((v) => !v.overrideHours || v.overrideReason.length > 0, { message: 'Say why this booking is outside the working hours', path: ['overrideReason'] });
+type BookForm = z.input<typeof bookFormSchema>;
+type BookFormOut = z.output<typeof bookFormSchema>;
+
+export interface BookInitial {
+  techId?: string | undefined;
+  date: string;
+  time: string;
+  error?: string | undefined;
+  outsideHours?: boolean | undefined;
+}
+
+export function BookDialog({
+  workOrder,
+  techs,
+  timeZone,
+  initial,
+  onClose,
+}: {
+  workOrder: WorkOrder | null;
+  techs: Technician[];
+  timeZone: string;
+  initial: BookInitial;
+  onClose: () => void;
+}) {
+  return (
+    <Modal open={!!workOrder} onClose={onClose} title={workOrder ? `Book ${workOrderTitle(workOrder)}` : ''} wide>
+      {workOrder && <BookBody workOrder={workOrder} techs={techs} timeZone={timeZone} initial={initial} onClose={onClose} />}
+    </Modal>
+  );
+}
+
+function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrder: WorkOrder; techs: Technician[]; timeZone: string; initial: BookInitial; onClose: () => void }) {
+  const notify = useNotify();
+  const create = useCreateBooking();
+  const suggest = useSuggest();
+  const [refusal, setRefusal] = useState<string | undefined>(initial.error);
+  const [canOverride, setCanOverride] = useState(!!initial.outsideHours);
+  const form = useForm<BookForm, unknown, BookFormOut>({
+    resolver: zodResolver(bookFormSchema),
+    defaultValues: { techId: initial.techId ?? '', date: initial.date, time: initial.time, minutes: w.estimatedMinutes, overrideHours: false, overrideReason: '' },
+  });
+  const { register, handleSubmit, watch, formState } = form;
+  const date = watch('date');
+  const override = watch('overrideHours');
+
+  const { mutate: runSuggest } = suggest;
+  useEffect(() => {
+    if (/^\d{4}-\d{2}-\d{2}$/.test(date)) runSuggest({ workOrderId: w.id, day: date });
+  }, [date, w.id, runSuggest]);
+
+  const techName = (id: string) => techs.find((t) => t.id === id)?.name ?? 'the technician';
+
+  function book(body: { techId: string; startAt: string; endAt: string; overrideHours?: boolean; overrideReason?: string }) {
+    setRefusal(undefined);
+    create.mutate(
+      { workOrderId: w.id, ...body },
+      {
+        onSuccess: (b) => {
+          notify(`Booked ${workOrderLabel(w.number)} with ${techName(b.techId)}, ${formatInZone(b.startAt, timeZone, 'EEE d MMM, HH:mm')}–${formatInZone(b.endAt, timeZone, 'HH:mm')}.`);
+          onClose();
+        },
+        onError: (e) => {
+          setRefusal(errorMessage(e));
+          if (isOutsideHours(e)) setCanOverride(true);
+        },
+      },
+    );
+  }
+
+  const onSubmit = handleSubmit((v) => {
+    const startAt = localToInstant(v.date, v.time, timeZone);
+    const endAt = new Date(Date.parse(startAt) + v.minutes * 60_000).toISOString();
+    book({ techId: v.techId, startAt, endAt, ...(v.overrideHours ? { overrideHours: true, overrideReason: v.overrideReason } : {}) });
+  });
+
+  return (
+    <div className="grid gap-5 md:grid-cols-2">
+      <form onSubmit={onSubmit} noValidate className="flex flex-col gap-3" aria-label="Book at a time you choose">
+        <p className="text-sm text-slate">
+          {w.siteName}
+          {w.unitTag ? ` · ${w.unitTag} ${w.unitMake ?? ''} ${w.unitModel ?? ''}` : ''} · {priorityLabels[w.priority]} · {w.complaint}
+        </p>
+        {w.requiredCertification && (
+          <SafetyNote>
+            This work opens the refrigerant circuit: only a technician holding EPA 608{' '}
+            {w.requiredCertification === 'universal' ? 'Universal' : `Type ${w.requiredCertification} or Universal`} may do it. Follow the manufacturer’s
+            data, local codes and licensed practice.
+          </SafetyNote>
+        )}
+        <SelectField label="Technician" error={formState.errors.techId?.message} {...register('techId')}>
+          <option value="">Choose a technician</option>
+          {techs.map((t) => (
+            <option key={t.id} value={t.id}>
+              {t.name} ({certLabel(t)})
+            </option>
+          ))}
+        </SelectField>
+        <div className="grid grid-cols-2 gap-3">
+          <TextField label="Date" type="date" error={formState.errors.date?.message} {...register('date')} />
+          <TextField label={`Start (${timeZone})`} type="time" step={300} error={formState.errors.time?.message} {...register('time')} />
+        </div>
+        <TextField label="Length in minutes" type="number" inputMode="numeric" min={15} step={15} error={formState.errors.minutes?.message} {...register('minutes')} />
+        {(canOverride || override) && (
+          <fieldset className="flex flex-col gap-2 rounded-md border border-watch-base/50 bg-watch-tint p-3">
+            <legend className="px-1 text-sm font-medium">Working hours</legend>
+            <label className="flex items-center gap-2 text-sm">
+              <input type="checkbox" className="size-5" {...register('overrideHours')} />
+              Book outside the technician’s working hours anyway
+            </label>
+            {override && <TextAreaField label="Why (kept with the booking)" error={formState.errors.overrideReason?.message} {...register('overrideReason')} />}
+          </fieldset>
+        )}
+        <Refusal message={refusal} />
+        <div className="flex flex-wrap gap-2">
+          <Button type="submit" busy={create.isPending}>
+            Book
+          </Button>
+          <Button variant="secondary" onClick={onClose}>
+            Cancel
+          </Button>
+        </div>
+      </form>
+
+      <section aria-labelledby="suggest-heading" className="flex flex-col gap-2">
+        <h3 id="suggest-heading" className="flex items-center gap-2 text-base font-semibold">
+          <Sparkles className="size-4 text-coolant" aria-hidden="true" /> Suggested technicians for {date}
+        </h3>
+        <p className="text-xs text-slate">Ranked by skills, certification, free time, drive from the previous stop and earlier visits to this unit.</p>
+        {suggest.isPending ? (
+          <p role="status" className="text-sm text-slate">
+            Ranking technicians…
+          </p>
+        ) : suggest.isError ? (
+          <Refusal message={errorMessage(suggest.error)} />
+        ) : suggest.data ? (
+          <ol className="flex flex-col gap-2">
+            {suggest.data.candidates.map((c) => {
+              const tech = techs.find((t) => t.id === c.techId);
+              return (
+                <li key={c.techId} className={`rounded-md border p-2 ${c.eligible ? 'border-slate-line' : 'border-dashed border-slate-line bg-frost text-slate'}`}>
+                  <div className="flex flex-wrap items-center justify-between gap-2">
+                    <span className="inline-flex items-center gap-2 font-medium">
+                      <TechSwatch tech={tech} />
+                      {c.name}
+                      {c.eligible ? (
+                        <span className="inline-flex items-center gap-1 text-xs text-ok">
+                          <CheckCircle2 className="size-3.5" aria-hidden="true" /> score {c.score}
+                        </span>
+                      ) : (
+                        <span className="inline-flex items-center gap-1 text-xs text-alarm">
+                          <XCircle className="size-3.5" aria-hidden="true" /> not available
+                        </span>
+                      )}
+                    </span>
+                    {c.eligible && c.proposedStart && c.proposedEnd && (
+                      <Button size="sm" busy={create.isPending} onClick={() => book({ techId: c.techId, startAt: c.proposedStart!, endAt: c.proposedEnd! })}>
+                        Book {c.name.split(' ')[0]} at {instantToLocal(c.proposedStart, timeZone).time}
+                      </Button>
+                    )}
+                  </div>
+                  <ul className="mt-1 list-disc pl-5 text-xs">
+                    {c.reasons.map((r) => (
+                      <li key={r}>{r}</li>
+                    ))}
+                  </ul>
+                </li>
+              );
+            })}
+          </ol>
+        ) : null}
+      </section>
+    </div>
+  );
+}

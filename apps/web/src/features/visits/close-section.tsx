@@ -1,0 +1,184 @@
+import { useState } from 'react';
+import { Link } from 'react-router-dom';
+import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
+import {
+  returnNeedLabels,
+  returnNeeds,
+  visitOutcomeLabels,
+  visitOutcomes,
+  type CloseVisitResult,
+  type ReturnNeed,
+  type SummaryMailResult,
+  type VisitDetail,
+  type VisitOutcome,
+} from '@coilpath/contract';
+import { Button } from '@/components/ui/button';
+import { TextAreaField } from '@/components/ui/field';
+import { Card } from '@/components/ui/page';
+import { useNotify } from '@/components/ui/notices';
+import { ApiError, errorMessage } from '@/lib/api-client';
+import { formatInZone } from '@/lib/format';
+import { useCloseVisit, useResendSummary } from './visit-api';
+
+const outcomeHelp: Record<VisitOutcome, string> = {
+  resolved: 'Fixed; nothing more is needed.',
+  needs_return: 'More work is needed: a return visit goes to the unplaced queue for the office to book.',
+  declined: 'The customer declined the work.',
+};
+
+function SummaryLine({ s, onResend, busy }: { s: SummaryMailResult; onResend(): void; busy: boolean }) {
+  return s.sent ? (
+    <p className="inline-flex items-center gap-1 text-sm text-ok">
+      <CheckCircle2 className="size-4" aria-hidden="true" /> Service summary (with PDF) sent to {s.to}.
+    </p>
+  ) : (
+    <div role="alert" className="flex flex-col items-start gap-2 rounded-md border border-alarm/40 bg-alarm-tint p-3 text-sm">
+      <span className="inline-flex items-center gap-1 font-medium text-alarm">
+        <MailWarning className="size-4" aria-hidden="true" /> Service summary not sent
+      </span>
+      <span>{s.error}</span>
+      {s.to && (
+        <Button size="sm" variant="secondary" onClick={onResend} busy={busy}>
+          Send summary again
+        </Button>
+      )}
+    </div>
+  );
+}
+
+export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: boolean }) {
+  const notify = useNotify();
+  const close = useCloseVisit(visit.id);
+  const resend = useResendSummary(visit.id);
+  const [outcome, setOutcome] = useState<VisitOutcome | ''>('');
+  const [needs, setNeeds] = useState<ReturnNeed[]>([]);
+  const [returnNotes, setReturnNotes] = useState('');
+  const [notes, setNotes] = useState('');
+  const [error, setError] = useState<string | null>(null);
+  const [result, setResult] = useState<CloseVisitResult | null>(null);
+  const [summary, setSummary] = useState<SummaryMailResult | null>(null);
+
+  const doResend = () =>
+    resend.mutate(undefined, {
+      onSuccess: (s) => {
+        setSummary(s);
+        notify(s.sent ? `Summary sent to ${s.to}.` : `Summary not sent: ${s.error}`, s.sent ? 'ok' : 'alarm');
+      },
+      onError: (e) => notify(`Summary not sent: ${errorMessage(e)}`, 'alarm'),
+    });
+
+  if (visit.status === 'closed') {
+    const s = summary ?? result?.summary ?? (visit.summarySentAt ? null : null);
+    return (
+      <Card title="Close-out">
+        <div className="flex flex-col gap-2 text-sm">
+          <p>
+            Closed {visit.closedAt ? formatInZone(visit.closedAt, visit.branch.timeZone) : ''} as <strong>{visit.outcome ? visitOutcomeLabels[visit.outcome] : '—'}</strong>
+            {visit.outcome === 'needs_return' && visit.returnNeeds.length > 0 && <> — needs {visit.returnNeeds.map((n) => returnNeedLabels[n].toLowerCase()).join(', ')}</>}.
+          </p>
+          {result?.returnWorkOrder && (
+            <p className="inline-flex items-center gap-1 text-ok">
+              <CheckCircle2 className="size-4" aria-hidden="true" /> Return visit WO-{result.returnWorkOrder.number} is in the unplaced queue for the office to book.
+            </p>
+          )}
+          {s ? (
+            <SummaryLine s={s} onResend={doResend} busy={resend.isPending} />
+          ) : visit.summarySentAt ? (
+            <p className="inline-flex items-center gap-1 text-ok">
+              <CheckCircle2 className="size-4" aria-hidden="true" /> Service summary sent {formatInZone(visit.summarySentAt, visit.branch.timeZone)}.
+            </p>
+          ) : (
+            <SummaryLine s={{ sent: false, to: 'the site contact', error: 'The service summary has not been sent.' }} onResend={doResend} busy={resend.isPending} />
+          )}
+          <p>
+            <Link to="/day" className="text-coolant underline">
+              Back to My Day
+            </Link>
+          </p>
+        </div>
+      </Card>
+    );
+  }
+  if (!visit.canWrite) return null;
+
+  const notOnSite = visit.status !== 'on_site';
+  const submit = (e: React.FormEvent) => {
+    e.preventDefault();
+    setError(null);
+    if (!outcome) return setError('Choose the outcome of the visit.');
+    if (outcome === 'needs_return' && needs.length === 0) return setError('Say what the return visit needs.');
+    close.mutate(
+      { outcome, returnNeeds: outcome === 'needs_return' ? needs : [], returnNotes: returnNotes.trim() || null, notes: notes.trim() || null },
+      {
+        onSuccess: (r) => {
+          setResult(r);
+          notify(
+            `Visit closed as ${visitOutcomeLabels[r.visit.outcome ?? 'resolved'].toLowerCase()}.${r.returnWorkOrder ? ` Return visit WO-${r.returnWorkOrder.number} created.` : ''}${r.summary.sent ? ` Summary sent to ${r.summary.to}.` : ' The summary e-mail was not sent.'}`,
+            r.summary.sent ? 'ok' : 'alarm',
+          );
+        },
+        onError: (err) => {
+          setError(err instanceof ApiError ? err.message : errorMessage(err));
+        },
+      },
+    );
+  };
+
+  return (
+    <Card title="Close-out">
+      <form onSubmit={submit} noValidate className="flex flex-col gap-4">
+        <fieldset>
+          <legend className="mb-2 text-sm font-medium">Outcome</legend>
+          <div className="flex flex-col gap-2">
+            {visitOutcomes.map((o) => (
+              <label key={o} className="flex min-h-12 cursor-pointer items-start gap-3 rounded-md border border-slate-line p-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint">
+                <input type="radio" name="outcome" value={o} checked={outcome === o} onChange={() => setOutcome(o)} className="mt-1 size-5" />
+                <span>
+                  <span className="block font-medium">{visitOutcomeLabels[o]}</span>
+                  <span className="block text-sm text-slate">{outcomeHelp[o]}</span>
+                </span>
+              </label>
+            ))}
+          </div>
+        </fieldset>
+        {outcome === 'needs_return' && (
+          <fieldset>
+            <legend className="mb-2 text-sm font-medium">What the return visit needs</legend>
+            <div className="grid grid-cols-2 gap-2">
+              {returnNeeds.map((n) => (
+                <label key={n} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3">
+                  <input
+                    type="checkbox"
+                    className="size-5"
+                    checked={needs.includes(n)}
+                    onChange={(e) => setNeeds((xs) => (e.target.checked ? [...xs, n] : xs.filter((x) => x !== n)))}
+                  />
+                  {returnNeedLabels[n]}
+                </label>
+              ))}
+            </div>
+            <div className="mt-3">
+              <TextAreaField label="Return visit notes (parts, who to bring)" value={returnNotes} onChange={(e) => setReturnNotes(e.target.value)} />
+            </div>
+          </fieldset>
+        )}
+        <TextAreaField label="Notes for the summary" value={notes} onChange={(e) => setNotes(e.target.value)} />
+        {unsaved && (
+          <p className="inline-flex items-center gap-1 text-sm text-watch">
+            <AlertTriangle className="size-4" aria-hidden="true" /> Some entries are not saved yet; they will not be in the summary. Save them first.
+          </p>
+        )}
+        {notOnSite && <p className="text-sm text-slate">Mark yourself on site before closing, so the visit’s times are right.</p>}
+        {error && (
+          <p role="alert" className="text-sm text-alarm">
+            {error}
+          </p>
+        )}
+        <Button type="submit" size="lg" busy={close.isPending} disabled={notOnSite || unsaved}>
+          Close visit
+        </Button>
+        <p className="text-xs text-slate">Closing sends the service summary with a PDF copy to the site contact.</p>
+      </form>
+    </Card>
+  );
+}

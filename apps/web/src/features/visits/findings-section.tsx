@@ -1,0 +1,177 @@
+import { useEffect, useRef } from 'react';
+import { useForm } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { z } from 'zod';
+import { causeCodeLabels, causeCodes, causeOriginLabels, causeOrigins, findingInputSchema, type FindingInput, type VisitDetail } from '@coilpath/contract';
+import { Button } from '@/components/ui/button';
+import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
+import { Badge, Card } from '@/components/ui/page';
+import { useNotify } from '@/components/ui/notices';
+import { errorMessage } from '@/lib/api-client';
+import type { VisitDraft } from './draft';
+import { SaveStatus } from './save-status';
+import { isRetryable, useAddFinding } from './visit-api';
+
+/** The form's own shape: selects and text give strings; the contract schema checks the result. */
+const formSchema = z.object({
+  unitId: z.string(),
+  causeCode: z.enum(causeCodes, { message: 'Choose a cause' }),
+  origin: z.enum(causeOrigins, { message: 'Choose where the cause came from' }),
+  alarmCode: z.string().max(40),
+  reportedCircuit: z.string(),
+  actualCircuit: z.string(),
+  notes: z.string().max(4000),
+});
+type FormValues = z.input<typeof formSchema>;
+
+const toInput = (v: z.output<typeof formSchema>, id: string): FindingInput & { id: string } =>
+  findingInputSchema.parse({
+    id,
+    unitId: v.unitId || null,
+    causeCode: v.causeCode,
+    origin: v.origin,
+    alarmCode: v.alarmCode.trim() || null,
+    reportedCircuit: v.reportedCircuit ? Number(v.reportedCircuit) : null,
+    actualCircuit: v.actualCircuit ? Number(v.actualCircuit) : null,
+    notes: v.notes.trim() || null,
+  }) as FindingInput & { id: string };
+
+export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; draft: VisitDraft; update(fn: (d: VisitDraft) => VisitDraft): void }) {
+  const notify = useNotify();
+  const add = useAddFinding(visit.id);
+  const circuits = [...new Set(visit.units.flatMap((u) => u.circuits.map((c) => c.number)))].sort((a, b) => a - b);
+  const form = useForm<FormValues>({
+    resolver: zodResolver(formSchema),
+    defaultValues: { unitId: visit.units.length === 1 ? visit.units[0]!.id : '', causeCode: undefined, origin: undefined, alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '' },
+  });
+  const unitTag = (id: string | null | undefined) => visit.units.find((u) => u.id === id)?.tag;
+
+  const send = (f: FindingInput & { id: string }) =>
+    add.mutate(f, {
+      onSuccess: () => {
+        update((d) => ({ ...d, findings: d.findings.filter((x) => x.id !== f.id) }));
+        notify(`Finding saved: ${causeCodeLabels[f.causeCode]}.`);
+      },
+      onError: (e) => {
+        // A refusal (4xx) will not succeed on retry: drop it from the queue and say why.
+        if (!isRetryable(e)) update((d) => ({ ...d, findings: d.findings.filter((x) => x.id !== f.id) }));
+        notify(`Finding not saved: ${errorMessage(e)}`, 'alarm');
+      },
+    });
+
+  // Findings queued on this phone (a reload, or saved while offline) are sent again on open.
+  const resent = useRef(false);
+  useEffect(() => {
+    if (resent.current || !visit.canWrite) return;
+    resent.current = true;
+    for (const f of draft.findings) send(f);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, []);
+
+  const onSubmit = form.handleSubmit((v) => {
+    const f = toInput(formSchema.parse(v), crypto.randomUUID());
+    update((d) => ({ ...d, findings: [...d.findings, f] }));
+    form.reset({ ...form.getValues(), alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '' });
+    send(f);
+  });
+
+  const saved = visit.findings;
+  const pending = draft.findings.filter((p) => !saved.some((s) => s.id === p.id));
+  return (
+    <Card title="Findings">
+      {saved.length + pending.length === 0 ? (
+        <p className="mb-3 text-sm text-slate">No findings yet. Record what caused the problem and where it came from.</p>
+      ) : (
+        <ul className="mb-4 flex flex-col gap-2">
+          {[...saved.map((f) => ({ f, isPending: false })), ...pending.map((f) => ({ f, isPending: true }))].map(({ f, isPending }) => (
+            <li key={f.id} className="rounded-md border border-slate-line p-3 text-sm">
+              <div className="flex flex-wrap items-center gap-2">
+                <strong>{causeCodeLabels[f.causeCode]}</strong>
+                <Badge>{causeOriginLabels[f.origin]}</Badge>
+                {f.alarmCode && <Badge tone="info">Alarm {f.alarmCode}</Badge>}
+                {unitTag(f.unitId) && visit.units.length > 1 && <Badge>{unitTag(f.unitId)}</Badge>}
+                {isPending && <Badge tone="watch">Not saved yet</Badge>}
+              </div>
+              {(f.reportedCircuit != null || f.actualCircuit != null) && (
+                <p className="mt-1">
+                  Reported on circuit {f.reportedCircuit ?? '—'}, fault found on circuit {f.actualCircuit ?? '—'}
+                  {f.reportedCircuit != null && f.actualCircuit != null && f.reportedCircuit !== f.actualCircuit && (
+                    <strong className="text-alarm"> — circuits differ</strong>
+                  )}
+                </p>
+              )}
+              {f.notes && <p className="mt-1 text-slate">{f.notes}</p>}
+            </li>
+          ))}
+        </ul>
+      )}
+      {pending.length > 0 && (
+        <div className="mb-3">
+          <SaveStatus
+            pending={add.isPending}
+            failureCount={add.failureCount}
+            paused={add.isPaused}
+            error={add.error}
+            dirty
+            onRetry={() => pending.forEach(send)}
+          />
+        </div>
+      )}
+      {visit.canWrite && (
+        <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">
+          {visit.units.length > 1 && (
+            <SelectField label="Unit" {...form.register('unitId')}>
+              <option value="">Not one unit</option>
+              {visit.units.map((u) => (
+                <option key={u.id} value={u.id}>
+                  {u.tag}
+                </option>
+              ))}
+            </SelectField>
+          )}
+          <SelectField label="Cause code" error={form.formState.errors.causeCode?.message} {...form.register('causeCode')}>
+            <option value="">Choose…</option>
+            {causeCodes.map((c) => (
+              <option key={c} value={c}>
+                {causeCodeLabels[c]}
+              </option>
+            ))}
+          </SelectField>
+          <SelectField label="Origin" error={form.formState.errors.origin?.message} {...form.register('origin')}>
+            <option value="">Choose…</option>
+            {causeOrigins.map((c) => (
+              <option key={c} value={c}>
+                {causeOriginLabels[c]}
+              </option>
+            ))}
+          </SelectField>
+          <TextField label="Alarm code (if any)" autoComplete="off" {...form.register('alarmCode')} />
+          <SelectField label="Circuit the alarm was reported on" {...form.register('reportedCircuit')}>
+            <option value="">None</option>
+            {circuits.map((n) => (
+              <option key={n} value={n}>
+                Circuit {n}
+              </option>
+            ))}
+          </SelectField>
+          <SelectField label="Circuit where the fault really was" {...form.register('actualCircuit')}>
+            <option value="">None</option>
+            {circuits.map((n) => (
+              <option key={n} value={n}>
+                Circuit {n}
+              </option>
+            ))}
+          </SelectField>
+          <div className="sm:col-span-2">
+            <TextAreaField label="Notes" {...form.register('notes')} />
+          </div>
+          <div className="sm:col-span-2">
+            <Button type="submit" size="lg" variant="secondary" className="w-full sm:w-auto">
+              Add finding
+            </Button>
+          </div>
+        </form>
+      )}
+    </Card>
+  );
+}

@@ -1,0 +1,162 @@
+import { useEffect, useRef, useState } from 'react';
+import { AlertTriangle } from 'lucide-react';
+import { listRefrigerants } from '@coilpath/calc';
+import { refrigerantEventReasonLabels, refrigerantEventReasons, type RefrigerantEventReason, type VisitDetail } from '@coilpath/contract';
+import { Button } from '@/components/ui/button';
+import { SelectField, TextField } from '@/components/ui/field';
+import { Badge, Card, SafetyNote } from '@/components/ui/page';
+import { useNotify } from '@/components/ui/notices';
+import { ApiError, errorMessage } from '@/lib/api-client';
+import type { PendingRefrigerant, VisitDraft } from './draft';
+import { SaveStatus } from './save-status';
+import { isRetryable, useAddRefrigerant } from './visit-api';
+
+const refrigerants = listRefrigerants();
+
+export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetail; draft: VisitDraft; update(fn: (d: VisitDraft) => VisitDraft): void }) {
+  const notify = useNotify();
+  const add = useAddRefrigerant(visit.id);
+  const first = visit.units[0];
+  const [unitId, setUnitId] = useState(first?.id ?? '');
+  const unit = visit.units.find((u) => u.id === unitId);
+  const [refrigerant, setRefrigerant] = useState(unit?.refrigerant ?? 'R-410A');
+  const [added, setAdded] = useState('');
+  const [recovered, setRecovered] = useState('');
+  const [reason, setReason] = useState<RefrigerantEventReason>('leak_top_off');
+  const [lot, setLot] = useState('');
+  const [errors, setErrors] = useState<Record<string, string>>({});
+  const [lastResult, setLastResult] = useState<string | null>(null);
+
+  const send = (p: PendingRefrigerant) =>
+    add.mutate(p, {
+      onSuccess: (r) => {
+        update((d) => ({ ...d, refrigerant: d.refrigerant.filter((x) => x.body.id !== p.body.id) }));
+        const rate = r.leakCheck ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.` : '';
+        const text = r.leakCaseOpened && r.leakCase
+          ? `Refrigerant saved.${rate} A leak case is open: repair due ${r.leakCase.repairDueDate}. The branch manager sees it on the Watchlist.`
+          : `Refrigerant saved.${rate}`;
+        setLastResult(text);
+        notify(text, r.leakCaseOpened ? 'alarm' : 'ok');
+      },
+      onError: (e) => {
+        if (!isRetryable(e)) update((d) => ({ ...d, refrigerant: d.refrigerant.filter((x) => x.body.id !== p.body.id) }));
+        if (e instanceof ApiError) setErrors(e.fieldErrors);
+        notify(`Refrigerant not saved: ${errorMessage(e)}`, 'alarm');
+      },
+    });
+
+  const resent = useRef(false);
+  useEffect(() => {
+    if (resent.current || !visit.canWrite) return;
+    resent.current = true;
+    for (const p of draft.refrigerant) send(p);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, []);
+
+  const submit = (e: React.FormEvent) => {
+    e.preventDefault();
+    const a = added.trim() === '' ? 0 : Number(added);
+    const r = recovered.trim() === '' ? 0 : Number(recovered);
+    const errs: Record<string, string> = {};
+    if (!Number.isFinite(a) || a < 0) errs.poundsAdded = 'Pounds cannot be negative';
+    if (!Number.isFinite(r) || r < 0) errs.poundsRecovered = 'Pounds cannot be negative';
+    if (!errs.poundsAdded && !errs.poundsRecovered && a === 0 && r === 0) errs.poundsAdded = 'Enter the pounds added or recovered';
+    setErrors(errs);
+    if (Object.keys(errs).length || !unit) return;
+    const p: PendingRefrigerant = {
+      unitId: unit.id,
+      body: { id: crypto.randomUUID(), visitId: visit.id, refrigerant, poundsAdded: a, poundsRecovered: r, reason, cylinderLot: lot.trim() || null },
+    };
+    update((d) => ({ ...d, refrigerant: [...d.refrigerant, p] }));
+    setAdded('');
+    setRecovered('');
+    setLot('');
+    send(p);
+  };
+
+  const pending = draft.refrigerant.filter((p) => !visit.refrigerantEvents.some((e) => e.id === p.body.id));
+  const mismatch = unit && refrigerant !== unit.refrigerant;
+  return (
+    <Card title="Refrigerant">
+      <div className="flex flex-col gap-3">
+        <SafetyNote>
+          Refrigerant may be added or recovered only under the proper EPA 608 certification, following the manufacturer’s charging data. Coilpath computes
+          the leak rate by the annualizing method of 40 CFR 82.152; check the current rules before relying on it.
+        </SafetyNote>
+        {visit.refrigerantEvents.length + pending.length > 0 && (
+          <ul className="flex flex-col gap-1 text-sm">
+            {visit.refrigerantEvents.map((ev) => (
+              <li key={ev.id} className="tabular-nums">
+                {ev.refrigerant}: added {ev.poundsAdded.toFixed(1)} lb, recovered {ev.poundsRecovered.toFixed(1)} lb · {refrigerantEventReasonLabels[ev.reason]}
+                {ev.cylinderLot ? ` · lot ${ev.cylinderLot}` : ''}
+              </li>
+            ))}
+            {pending.map((p) => (
+              <li key={p.body.id} className="tabular-nums">
+                {p.body.refrigerant}: added {(p.body.poundsAdded ?? 0).toFixed(1)} lb, recovered {(p.body.poundsRecovered ?? 0).toFixed(1)} lb <Badge tone="watch">Not saved yet</Badge>
+              </li>
+            ))}
+          </ul>
+        )}
+        {pending.length > 0 && (
+          <SaveStatus pending={add.isPending} failureCount={add.failureCount} paused={add.isPaused} error={add.error} dirty onRetry={() => pending.forEach(send)} />
+        )}
+        {lastResult && (
+          <p role="status" className="rounded-md bg-frost p-2 text-sm">
+            {lastResult}
+          </p>
+        )}
+        {visit.canWrite && (
+          <form onSubmit={submit} noValidate className="grid grid-cols-2 gap-3 lg:grid-cols-3">
+            {visit.units.length > 1 && (
+              <div className="col-span-2 lg:col-span-1">
+                <SelectField
+                  label="Unit"
+                  value={unitId}
+                  onChange={(e) => {
+                    setUnitId(e.target.value);
+                    const u = visit.units.find((x) => x.id === e.target.value);
+                    if (u) setRefrigerant(u.refrigerant);
+                  }}
+                >
+                  {visit.units.map((u) => (
+                    <option key={u.id} value={u.id}>
+                      {u.tag} ({u.refrigerant}, full charge {u.fullChargeLb} lb)
+                    </option>
+                  ))}
+                </SelectField>
+              </div>
+            )}
+            <TextField label="Pounds added (lb)" inputMode="decimal" value={added} onChange={(e) => setAdded(e.target.value)} error={errors.poundsAdded} />
+            <TextField label="Pounds recovered (lb)" inputMode="decimal" value={recovered} onChange={(e) => setRecovered(e.target.value)} error={errors.poundsRecovered} />
+            <SelectField label="Refrigerant" value={refrigerant} onChange={(e) => setRefrigerant(e.target.value)} error={errors.refrigerant}>
+              {refrigerants.map((r) => (
+                <option key={r.id} value={r.id}>
+                  {r.id}
+                </option>
+              ))}
+            </SelectField>
+            <SelectField label="Reason" value={reason} onChange={(e) => setReason(e.target.value as RefrigerantEventReason)}>
+              {refrigerantEventReasons.map((r) => (
+                <option key={r} value={r}>
+                  {refrigerantEventReasonLabels[r]}
+                </option>
+              ))}
+            </SelectField>
+            <TextField label="Cylinder or lot number" value={lot} onChange={(e) => setLot(e.target.value)} autoComplete="off" />
+            {mismatch && (
+              <p className="col-span-2 inline-flex items-center gap-1 text-sm text-watch lg:col-span-3">
+                <AlertTriangle className="size-4" aria-hidden="true" /> The unit is on file with {unit.refrigerant}; check the nameplate before adding {refrigerant}.
+              </p>
+            )}
+            <div className="col-span-2 lg:col-span-3">
+              <Button type="submit" size="lg" variant="secondary" className="w-full sm:w-auto">
+                Save refrigerant
+              </Button>
+            </div>
+          </form>
+        )}
+      </div>
+    </Card>
+  );
+}

@@ -1,0 +1,120 @@
+import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
+import type {
+  AttachmentDto,
+  CloseVisit,
+  CloseVisitResult,
+  CurrentVisitResult,
+  FindingDto,
+  FindingInput,
+  ReadingDto,
+  RefrigerantEventInput,
+  RefrigerantEventResult,
+  SaveReadings,
+  SummaryMailResult,
+  UnitBriefing,
+  VisitDetail,
+  VisitStateChange,
+} from '@coilpath/contract';
+import { api, ApiError } from '@/lib/api-client';
+
+export const visitQuery = (id: string) =>
+  queryOptions({ queryKey: ['visit', id], queryFn: () => api.get<VisitDetail>(`/api/visits/${id}`) });
+
+export const currentVisitQuery = queryOptions({
+  queryKey: ['visit', 'current'],
+  queryFn: () => api.get<CurrentVisitResult>('/api/visits/current'),
+  staleTime: 0,
+});
+
+export const briefingQuery = (unitId: string) =>
+  queryOptions({ queryKey: ['unit-briefing', unitId], queryFn: () => api.get<UnitBriefing>(`/api/units/${unitId}/briefing`), staleTime: 5 * 60_000 });
+
+/** A save worth retrying: the network failed or the server had a problem (not a refusal). */
+export function isRetryable(err: unknown): boolean {
+  return err instanceof ApiError && (err.status === 0 || err.status >= 500 || err.status === 408 || err.status === 429);
+}
+
+/** Retries a failed save with backoff (1 s, 2 s, 4 s … up to 30 s), for phones on a bad connection. */
+export const saveRetry = {
+  retry: (count: number, err: unknown) => count < 6 && isRetryable(err),
+  retryDelay: (attempt: number) => Math.min(1000 * 2 ** attempt, 30_000),
+};
+
+export function useVisitState(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (body: VisitStateChange) => api.patch<VisitDetail>(`/api/visits/${id}`, body),
+    ...saveRetry,
+    onSuccess: (v) => {
+      qc.setQueryData(['visit', id], v);
+      void qc.invalidateQueries({ queryKey: ['day'] });
+      void qc.invalidateQueries({ queryKey: ['visit', 'current'] });
+    },
+  });
+}
+
+export function useSaveReadings(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationKey: ['save-readings', id],
+    mutationFn: (body: SaveReadings) => api.post<{ readings: ReadingDto[] }>(`/api/visits/${id}/readings`, body),
+    ...saveRetry,
+    onSuccess: () => qc.invalidateQueries({ queryKey: ['visit', id] }),
+  });
+}
+
+export function useAddFinding(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (body: FindingInput) => api.post<{ finding: FindingDto }>(`/api/visits/${id}/findings`, body),
+    ...saveRetry,
+    onSuccess: () => qc.invalidateQueries({ queryKey: ['visit', id] }),
+  });
+}
+
+export function useAddRefrigerant(visitId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ unitId, body }: { unitId: string; body: RefrigerantEventInput }) =>
+      api.post<RefrigerantEventResult>(`/api/units/${unitId}/refrigerant-events`, body),
+    ...saveRetry,
+    onSuccess: (_r, v) => {
+      void qc.invalidateQueries({ queryKey: ['visit', visitId] });
+      void qc.invalidateQueries({ queryKey: ['unit-briefing', v.unitId] });
+    },
+  });
+}
+
+export function useUpload(visitId: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ file, kind }: { file: File; kind: 'photo' | 'nameplate' | 'document' }) => {
+      const form = new FormData();
+      form.set('kind', kind);
+      form.set('file', file);
+      return api.upload<{ attachment: AttachmentDto }>(`/api/visits/${visitId}/attachments`, form);
+    },
+    ...saveRetry,
+    onSuccess: () => qc.invalidateQueries({ queryKey: ['visit', visitId] }),
+  });
+}
+
+export function useCloseVisit(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (body: CloseVisit) => api.post<CloseVisitResult>(`/api/visits/${id}/close`, body),
+    onSuccess: (r) => {
+      qc.setQueryData(['visit', id], r.visit);
+      void qc.invalidateQueries({ queryKey: ['day'] });
+      void qc.invalidateQueries({ queryKey: ['visit', 'current'] });
+    },
+  });
+}
+
+export function useResendSummary(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => api.post<{ summary: SummaryMailResult }>(`/api/visits/${id}/summary`).then((r) => r.summary),
+    onSuccess: () => qc.invalidateQueries({ queryKey: ['visit', id] }),
+  });
+}

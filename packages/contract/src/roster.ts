@@ -1,0 +1,196 @@
+import { z } from 'zod';
+import { idSchema, instantSchema, isoDateSchema, limits } from './common';
+import { epa608TypeSchema, prioritySchema, workingHoursSchema, workOrderKindSchema, workOrderStateSchema } from './vocabulary';
+import { requiredCertificationSchema } from './work-orders';
+
+/** The longest single booking (a job longer than a day is split into several visits). */
+export const maxBookingMinutes = 16 * 60;
+
+const overrideFields = {
+  /** The dispatcher books outside the technician's working hours on purpose (recorded with the reason). */
+  overrideHours: z.boolean().optional(),
+  overrideReason: z.string().trim().max(limits.shortText).optional(),
+};
+
+function spanOk(v: { startAt?: string | undefined; endAt?: string | undefined }) {
+  if (!v.startAt || !v.endAt) return true;
+  const d = Date.parse(v.endAt) - Date.parse(v.startAt);
+  return d > 0 && d <= maxBookingMinutes * 60_000;
+}
+const spanIssue = { message: 'The booking must end after it starts and last at most 16 hours', path: ['endAt'] };
+const reasonOk = (v: { overrideHours?: boolean | undefined; overrideReason?: string | undefined }) =>
+  !v.overrideHours || !!v.overrideReason;
+const reasonIssue = { message: 'Say why this booking is outside the working hours', path: ['overrideReason'] };
+
+/** Book an unplaced work order on a technician's calendar. `endAt` defaults to start + the job's estimate. */
+export const bookingCreateSchema = z
+  .strictObject({
+    workOrderId: idSchema,
+    techId: idSchema,
+    startAt: instantSchema,
+    endAt: instantSchema.optional(),
+    fixed: z.boolean().optional(),
+    ...overrideFields,
+  })
+  .refine(spanOk, spanIssue)
+  .refine(reasonOk, reasonIssue);
+export type BookingCreate = z.input<typeof bookingCreateSchema>;
+
+/** Move, resize or reassign a booking; `version` is the version the change is based on. */
+export const bookingUpdateSchema = z
+  .strictObject({
+    version: z.number().int().min(1),
+    techId: idSchema.optional(),
+    startAt: instantSchema.optional(),
+    endAt: instantSchema.optional(),
+    fixed: z.boolean().optional(),
+    ...overrideFields,
+  })
+  .refine(spanOk, spanIssue)
+  .refine(reasonOk, reasonIssue);
+export type BookingUpdate = z.input<typeof bookingUpdateSchema>;
+
+export const bookingListQuerySchema = z
+  .object({
+    branchId: idSchema.optional(),
+    from: instantSchema,
+    to: instantSchema,
+    techId: idSchema.optional(),
+  })
+  .refine((q) => Date.parse(q.from) < Date.parse(q.to), { message: '`to` must be after `from`', path: ['to'] })
+  .refine((q) => Date.parse(q.to) - Date.parse(q.from) <= 62 * 86_400_000, { message: 'Ask for at most 62 days', path: ['to'] });
+export type BookingListQuery = z.input<typeof bookingListQuerySchema>;
+
+/** A booking with what a calendar event shows at a glance. */
+export const bookingSchema = z.object({
+  id: idSchema,
+  branchId: idSchema,
+  workOrderId: idSchema,
+  techId: idSchema,
+  startAt: z.string(),
+  endAt: z.string(),
+  version: z.number().int(),
+  fixed: z.boolean(),
+  hoursOverride: z.boolean(),
+  overrideReason: z.string().nullable(),
+  visitId: idSchema.nullable(),
+  workOrder: z.object({
+    number: z.number().int(),
+    kind: workOrderKindSchema,
+    state: workOrderStateSchema,
+    priority: prioritySchema,
+    complaint: z.string(),
+    siteName: z.string(),
+    unitTag: z.string().nullable(),
+    unitMake: z.string().nullable(),
+    unitModel: z.string().nullable(),
+    requiredCertification: requiredCertificationSchema.nullable(),
+    estimatedMinutes: z.number().int(),
+    leakRepairDueDate: isoDateSchema.nullable(),
+  }),
+});
+export type Booking = z.infer<typeof bookingSchema>;
+export const bookingListSchema = z.object({ bookings: z.array(bookingSchema) });
+
+/** Details of a 409 `stale_version`: the booking as it is now. */
+export interface StaleVersionDetails {
+  current: Booking;
+}
+
+export const rosterBranchQuerySchema = z.object({ branchId: idSchema.optional() });
+
+export const technicianSchema = z.object({
+  id: idSchema,
+  name: z.string(),
+  colorIndex: z.number().int(),
+  epa608Type: epa608TypeSchema,
+  skills: z.array(z.string()),
+  workingHours: workingHoursSchema.nullable(),
+  startLat: z.number().nullable(),
+  startLon: z.number().nullable(),
+});
+export type Technician = z.infer<typeof technicianSchema>;
+export const technicianListSchema = z.object({ timeZone: z.string(), technicians: z.array(technicianSchema) });
+
+export const loadQuerySchema = z
+  .object({ branchId: idSchema.optional(), from: isoDateSchema, to: isoDateSchema })
+  .refine((q) => q.from <= q.to, { message: '`to` must not be before `from`', path: ['to'] })
+  .refine((q) => Date.parse(q.to) - Date.parse(q.from) <= 41 * 86_400_000, { message: 'Ask for at most 6 weeks', path: ['to'] });
+export type LoadQuery = z.input<typeof loadQuerySchema>;
+
+export const technicianDayLoadSchema = z.object({
+  techId: idSchema,
+  day: isoDateSchema,
+  bookedMinutes: z.number(),
+  capacityMinutes: z.number(),
+  ratio: z.number().nullable(),
+  overloaded: z.boolean(),
+});
+export type TechnicianDayLoad = z.infer<typeof technicianDayLoadSchema>;
+export const loadSchema = z.object({ timeZone: z.string(), load: z.array(technicianDayLoadSchema) });
+
+export const suggestSchema = z.strictObject({
+  workOrderId: idSchema,
+  /** The branch-local day to book on. */
+  day: isoDateSchema,
+});
+export type SuggestRequest = z.input<typeof suggestSchema>;
+
+export const candidateSchema = z.object({
+  techId: idSchema,
+  name: z.string(),
+  eligible: z.boolean(),
+  score: z.number().nullable(),
+  reasons: z.array(z.string()),
+  proposedStart: z.string().nullable(),
+  proposedEnd: z.string().nullable(),
+  travelMinutes: z.number().nullable(),
+  freeMinutes: z.number(),
+});
+export type Candidate = z.infer<typeof candidateSchema>;
+export const suggestResultSchema = z.object({ workOrderId: idSchema, day: isoDateSchema, candidates: z.array(candidateSchema) });
+export type SuggestResult = z.infer<typeof suggestResultSchema>;
+
+export const evenOutSchema = z.strictObject({
+  branchId: idSchema.optional(),
+  /** Any branch-local day of the week to even out; the week runs Monday to Sunday. */
+  week: isoDateSchema,
+});
+export type EvenOutRequest = z.input<typeof evenOutSchema>;
+
+export const proposalSchema = z.strictObject({
+  workOrderId: idSchema,
+  techId: idSchema,
+  startAt: instantSchema,
+  endAt: instantSchema,
+});
+export type Proposal = z.infer<typeof proposalSchema>;
+
+export const evenOutPreviewSchema = z.object({
+  week: z.object({ from: isoDateSchema, to: isoDateSchema }),
+  proposals: z.array(
+    proposalSchema.extend({ number: z.number().int(), siteName: z.string(), travelMinutes: z.number().nullable(), reason: z.string() }),
+  ),
+  leftUnplaced: z.array(z.object({ workOrderId: idSchema, number: z.number().int(), reason: z.string() })),
+  /** Week totals per technician, before and after the proposals. */
+  load: z.array(z.object({ techId: idSchema, capacityMinutes: z.number(), beforeMinutes: z.number(), afterMinutes: z.number() })),
+  /** Estimated drive minutes of the week, before and after. */
+  driveMinutes: z.object({ before: z.number(), after: z.number() }),
+});
+export type EvenOutPreview = z.infer<typeof evenOutPreviewSchema>;
+
+export const evenOutApplySchema = z.strictObject({
+  proposals: z.array(proposalSchema).min(1, 'Choose at least one proposal').max(500),
+});
+export type EvenOutApply = z.input<typeof evenOutApplySchema>;
+export const evenOutApplyResultSchema = z.object({ bookings: z.array(bookingSchema) });
+
+/** Sites of the branch with their units, for the work-order form's pickers. */
+export const rosterSiteSchema = z.object({
+  id: idSchema,
+  name: z.string(),
+  address: z.string(),
+  units: z.array(z.object({ id: idSchema, tag: z.string(), make: z.string(), model: z.string(), refrigerant: z.string() })),
+});
+export type RosterSite = z.infer<typeof rosterSiteSchema>;
+export const rosterSiteListSchema = z.object({ sites: z.array(rosterSiteSchema) });

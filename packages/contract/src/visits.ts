@@ -1,0 +1,357 @@
+import { z } from 'zod';
+import { idSchema, isoDateSchema, limits } from './common';
+import {
+  attachmentKindSchema,
+  causeCodeSchema,
+  causeOriginSchema,
+  refrigerantEventReasonSchema,
+  returnNeedSchema,
+  visitOutcomeSchema,
+  type AttachmentKind,
+  type CauseCode,
+  type CauseOrigin,
+  type ReturnNeed,
+  type VisitOutcome,
+  type WorkOrderKind,
+  type WorkOrderState,
+  type Priority,
+  type UnitKind,
+  type ApplianceCategory,
+  type RefrigerantEventReason,
+} from './vocabulary';
+
+/** Largest file a visit upload may be (photos, nameplates, PDFs). */
+export const attachmentMaxBytes = 15 * 1024 * 1024;
+/** Content types a visit upload may have (checked on the server by content, not by name). */
+export const attachmentContentTypes = ['image/jpeg', 'image/png', 'image/webp', 'image/heic', 'image/heif', 'application/pdf'] as const;
+
+export const refrigerantEventReasonLabels: Record<RefrigerantEventReason, string> = {
+  leak_top_off: 'Leak top-off',
+  repair_recharge: 'Recharge after repair',
+  initial_charge: 'Initial charge',
+  recovery: 'Recovery',
+  retrofit: 'Retrofit',
+  seasonal_variance: 'Seasonal variance',
+  other: 'Other',
+};
+
+/** PATCH /api/visits/:id — the technician's state buttons (closing has its own route). */
+export const visitStateChangeSchema = z.strictObject({
+  state: z.enum(['en_route', 'on_site']),
+});
+export type VisitStateChange = z.infer<typeof visitStateChangeSchema>;
+
+/** A gauge or controller pressure, psig. Vacuum down to −14.7 psig is allowed; 1,000 psig is past any field gauge. */
+const pressure = z.number({ message: 'Enter a number' }).min(-14.7, 'Below a full vacuum').max(1000, 'Above 1,000 psig');
+/** A line or air temperature, °F. */
+const temperature = z.number({ message: 'Enter a number' }).min(-100, 'Below −100 °F').max(400, 'Above 400 °F');
+
+/** One circuit's readings: reference-gauge values, and the controller's value beside each pressure. */
+export const readingInputSchema = z.strictObject({
+  circuitId: idSchema,
+  suctionPressure: pressure.nullable().optional(),
+  liquidPressure: pressure.nullable().optional(),
+  dischargePressure: pressure.nullable().optional(),
+  suctionLineTemp: temperature.nullable().optional(),
+  liquidLineTemp: temperature.nullable().optional(),
+  outdoorTemp: temperature.nullable().optional(),
+  suctionPressureController: pressure.nullable().optional(),
+  liquidPressureController: pressure.nullable().optional(),
+  dischargePressureController: pressure.nullable().optional(),
+  notes: z.string().trim().max(limits.longText).nullable().optional(),
+});
+export type ReadingInput = z.infer<typeof readingInputSchema>;
+
+/** POST /api/visits/:id/readings — one entry per circuit; saving a circuit again replaces this visit's earlier entry. */
+export const saveReadingsSchema = z
+  .strictObject({ readings: z.array(readingInputSchema).min(1, 'Enter readings for at least one circuit').max(20) })
+  .refine((v) => new Set(v.readings.map((r) => r.circuitId)).size === v.readings.length, {
+    message: 'Each circuit may appear once',
+    path: ['readings'],
+  });
+export type SaveReadings = z.infer<typeof saveReadingsSchema>;
+
+/** POST /api/visits/:id/findings. `id` (made by the client) makes a retried save idempotent. */
+export const findingInputSchema = z.strictObject({
+  id: idSchema.optional(),
+  unitId: idSchema.nullable().optional(),
+  causeCode: causeCodeSchema,
+  origin: causeOriginSchema,
+  alarmCode: z.string().trim().max(40).nullable().optional(),
+  reportedCircuit: z.number().int().min(1).max(20).nullable().optional(),
+  actualCircuit: z.number().int().min(1).max(20).nullable().optional(),
+  notes: z.string().trim().max(limits.longText).nullable().optional(),
+});
+export type FindingInput = z.infer<typeof findingInputSchema>;
+
+const pounds = z.number({ message: 'Enter pounds as a number' }).min(0, 'Pounds cannot be negative').max(10_000, 'Above 10,000 lb');
+
+/** POST /api/units/:id/refrigerant-events. `id` (made by the client) makes a retried save idempotent. */
+export const refrigerantEventInputSchema = z
+  .strictObject({
+    id: idSchema.optional(),
+    visitId: idSchema.nullable().optional(),
+    /** Defaults to today in the branch's time zone. */
+    date: isoDateSchema.optional(),
+    refrigerant: z.string().trim().min(1, 'Choose the refrigerant').max(20),
+    poundsAdded: pounds.default(0),
+    poundsRecovered: pounds.default(0),
+    reason: refrigerantEventReasonSchema,
+    cylinderLot: z.string().trim().max(60).nullable().optional(),
+  })
+  .refine((v) => v.poundsAdded > 0 || v.poundsRecovered > 0, {
+    message: 'Enter the pounds added or recovered',
+    path: ['poundsAdded'],
+  });
+export type RefrigerantEventInput = z.input<typeof refrigerantEventInputSchema>;
+
+/** POST /api/visits/:id/close. */
+export const closeVisitSchema = z
+  .strictObject({
+    outcome: visitOutcomeSchema,
+    returnNeeds: z.array(returnNeedSchema).max(4).default([]),
+    returnNotes: z.string().trim().max(limits.longText).nullable().optional(),
+    notes: z.string().trim().max(limits.longText).nullable().optional(),
+    labourMinutes: z.number().int().min(0).max(24 * 60).nullable().optional(),
+  })
+  .refine((v) => v.outcome !== 'needs_return' || v.returnNeeds.length > 0, {
+    message: 'Say what the return visit needs',
+    path: ['returnNeeds'],
+  });
+export type CloseVisit = z.input<typeof closeVisitSchema>;
+
+export const attachmentUploadFieldsSchema = z.object({
+  kind: attachmentKindSchema.optional(),
+});
+
+// ---- Response shapes -------------------------------------------------------------------------
+
+export interface ReadingDto {
+  id: string;
+  visitId: string;
+  unitId: string;
+  circuitId: string;
+  circuitNumber: number;
+  takenAt: string;
+  refrigerant: string;
+  suctionPressure: number | null;
+  liquidPressure: number | null;
+  dischargePressure: number | null;
+  suctionLineTemp: number | null;
+  liquidLineTemp: number | null;
+  outdoorTemp: number | null;
+  suctionPressureController: number | null;
+  liquidPressureController: number | null;
+  dischargePressureController: number | null;
+  suctionSaturationTemp: number | null;
+  liquidSaturationTemp: number | null;
+  superheat: number | null;
+  subcooling: number | null;
+  notes: string | null;
+}
+
+export interface FindingDto {
+  id: string;
+  visitId: string;
+  unitId: string | null;
+  causeCode: CauseCode;
+  origin: CauseOrigin;
+  alarmCode: string | null;
+  reportedCircuit: number | null;
+  actualCircuit: number | null;
+  notes: string | null;
+  createdAt: string;
+}
+
+export interface RefrigerantEventDto {
+  id: string;
+  unitId: string;
+  visitId: string | null;
+  date: string;
+  refrigerant: string;
+  poundsAdded: number;
+  poundsRecovered: number;
+  reason: RefrigerantEventReason;
+  cylinderLot: string | null;
+  techId: string | null;
+  createdAt: string;
+}
+
+export interface LeakCaseDto {
+  id: string;
+  unitId: string;
+  openedOn: string;
+  rule: string;
+  method: 'annualizing' | 'rolling-average';
+  thresholdPercent: number;
+  leakRatePercent: number;
+  repairDueDate: string;
+  chronic: boolean;
+  status: string;
+}
+
+export interface LeakCheckDto {
+  inScope: boolean;
+  rule: string | null;
+  method: 'annualizing' | 'rolling-average';
+  leakRatePercent: number;
+  thresholdPercent: number | null;
+  exceeds: boolean;
+  repairDueDate: string | null;
+  chronic: boolean;
+}
+
+export interface RefrigerantEventResult {
+  event: RefrigerantEventDto;
+  /** null when the unit's refrigerant or charge is outside what Coilpath can compute. */
+  leakCheck: LeakCheckDto | null;
+  leakCase: LeakCaseDto | null;
+  leakCaseOpened: boolean;
+}
+
+export interface AttachmentDto {
+  id: string;
+  visitId: string | null;
+  unitId: string | null;
+  kind: AttachmentKind;
+  displayName: string;
+  contentType: string;
+  sizeBytes: number;
+  createdAt: string;
+  url: string;
+  thumbUrl: string;
+}
+
+export interface VisitEventDto {
+  state: WorkOrderState;
+  at: string;
+  byUserId: string | null;
+}
+
+export interface VisitCircuitDto {
+  id: string;
+  number: number;
+  compressorCount: number;
+  chargeLb: number | null;
+}
+
+export interface VisitUnitDto {
+  id: string;
+  tag: string;
+  kind: UnitKind;
+  make: string;
+  model: string;
+  serial: string;
+  refrigerant: string;
+  fullChargeLb: number;
+  applianceCategory: ApplianceCategory;
+  circuits: VisitCircuitDto[];
+}
+
+export type VisitStatus = 'booked' | 'en_route' | 'on_site' | 'closed';
+
+export interface VisitDetail {
+  id: string;
+  branchId: string;
+  status: VisitStatus;
+  techId: string;
+  techName: string;
+  enRouteAt: string | null;
+  onSiteAt: string | null;
+  closedAt: string | null;
+  outcome: VisitOutcome | null;
+  returnNeeds: ReturnNeed[];
+  returnNotes: string | null;
+  notes: string | null;
+  summarySentAt: string | null;
+  version: number;
+  booking: { id: string; startAt: string; endAt: string } | null;
+  workOrder: {
+    id: string;
+    number: number | null;
+    kind: WorkOrderKind;
+    state: WorkOrderState;
+    priority: Priority;
+    complaint: string;
+    requiredCertification: string | null;
+  };
+  site: {
+    id: string;
+    name: string;
+    address: string;
+    city: string;
+    accessNotes: string | null;
+    contactName: string | null;
+    contactPhone: string | null;
+  };
+  branch: { id: string; name: string; timeZone: string; sensorTolerancePercent: number; sensorToleranceAbsolute: number };
+  units: VisitUnitDto[];
+  readings: ReadingDto[];
+  findings: FindingDto[];
+  refrigerantEvents: RefrigerantEventDto[];
+  attachments: AttachmentDto[];
+  events: VisitEventDto[];
+  /** True when the signed-in person is the assigned technician and the visit is not closed. */
+  canWrite: boolean;
+}
+
+export interface SummaryMailResult {
+  sent: boolean;
+  to: string | null;
+  /** Why the summary was not sent (no address, the mail server refused…). */
+  error: string | null;
+}
+
+export interface CloseVisitResult {
+  visit: VisitDetail;
+  returnWorkOrder: { id: string; number: number | null; state: WorkOrderState } | null;
+  summary: SummaryMailResult;
+}
+
+export interface CurrentVisitResult {
+  visitId: string | null;
+  /** Why this visit was chosen. */
+  reason: 'on_site' | 'en_route' | 'next_booked' | null;
+}
+
+// ---- Unit briefing ---------------------------------------------------------------------------
+
+export interface UnitBriefing {
+  unit: {
+    id: string;
+    tag: string;
+    kind: UnitKind;
+    make: string;
+    model: string;
+    serial: string;
+    refrigerant: string;
+    fullChargeLb: number;
+    applianceCategory: ApplianceCategory;
+    siteId: string;
+    siteName: string;
+  };
+  circuits: VisitCircuitDto[];
+  lastVisit: {
+    visitId: string;
+    closedAt: string;
+    outcome: VisitOutcome | null;
+    techName: string;
+    workOrderKind: WorkOrderKind;
+    notes: string | null;
+    findings: FindingDto[];
+  } | null;
+  /** The latest reading of each circuit. */
+  lastReadings: ReadingDto[];
+  openLeakCase: LeakCaseDto | null;
+  refrigerantThisYear: {
+    year: string;
+    poundsAdded: number;
+    poundsRecovered: number;
+    fullChargeLb: number;
+    /** poundsAdded ÷ full charge × 100. */
+    percentOfFullCharge: number;
+  };
+  repeatAlarms: { code: string; circuit: number | null; count: number; lastRaisedAt: string }[];
+  repeatAlarmWindow: { days: number; minCount: number };
+  photos: AttachmentDto[];
+}
