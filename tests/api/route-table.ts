@@ -13,10 +13,38 @@
  *     (and `textFields` naming body fields that are free text and come back verbatim).
  */
 import type { z } from 'zod';
-import { signInSchema, type Role } from '@coilpath/contract';
+import {
+  acceptInvitationSchema,
+  branchInputSchema,
+  branchPatchSchema,
+  customerInputSchema,
+  customerPatchSchema,
+  customersQuerySchema,
+  forgotPasswordSchema,
+  invitationInputSchema,
+  linkCheckSchema,
+  resetPasswordSchema,
+  signInSchema,
+  siteInputSchema,
+  sitePatchSchema,
+  sitesQuerySchema,
+  unitImportColumns,
+  unitImportExample,
+  unitImportSchema,
+  unitInputSchema,
+  unitsQuerySchema,
+  unitUpdateSchema,
+  userProfileSchema,
+  usersQuerySchema,
+  type Role,
+} from '@coilpath/contract';
+import { randomBytes } from 'node:crypto';
+import type { MailMessage } from '../../apps/api/src/mail/mailer';
+import { requestPasswordReset } from '../../apps/api/src/modules/auth/password-reset.service';
+import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { z as zod } from 'zod';
-import { mailOutbox } from '../../apps/api/src/db/schema';
-import { TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
+import { customers, mailOutbox, sites, units } from '../../apps/api/src/db/schema';
+import { makeUser, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
 import type { Caller, MatrixFixture, Side } from './matrix-fixture';
 
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
@@ -71,6 +99,64 @@ export function roles(allowed: readonly Role[], status: number, opts: { scoped?:
 
 export { allRoles };
 
+const office: readonly Role[] = ['owner', 'branch_manager', 'dispatcher'];
+const unique = () => randomBytes(4).toString('hex');
+
+/** The token of the last link e-mailed (invitation, password reset) through the test app's mailer. */
+function lastMailedToken(f: MatrixFixture): string {
+  const sent = (f.ctx.mailer as unknown as { sent: MailMessage[] }).sent;
+  const m = /[?&]token=([^\s&]+)/.exec(sent.at(-1)?.text ?? '');
+  if (!m) throw new Error('no link token in the last e-mail');
+  return decodeURIComponent(m[1]!);
+}
+
+async function invitationToken(f: MatrixFixture, side: Side) {
+  const owner = { id: f.owner.id, name: f.owner.name, email: f.owner.email, role: f.owner.role, branchId: null };
+  const inv = await createInvitation(f.ctx, owner, `invitee.${unique()}@test.example`, userProfileSchema.parse({ name: 'Invitee', role: 'technician', branchId: side.branch.id }));
+  return { id: inv.id, token: lastMailedToken(f) };
+}
+
+async function resetToken(f: MatrixFixture, side: Side) {
+  const u = await makeUser(f.db, 'technician', side.branch.id);
+  await requestPasswordReset(f.ctx, u.email);
+  return lastMailedToken(f);
+}
+
+const unitBody = (over: Record<string, unknown> = {}) => ({
+  tag: `RTU-${unique()}`,
+  kind: 'rooftop_unit',
+  make: 'Testmake',
+  model: 'TM-10',
+  serial: `SN-${unique()}`,
+  refrigerant: 'R-410A',
+  fullChargeLb: 12,
+  applianceCategory: 'comfort_cooling',
+  notes: 'Roof hatch on the north side',
+  circuits: [{ number: 1, compressorCount: 1 }],
+  ...over,
+});
+
+/** A customer with no sites, a site with no units, a unit with no history: deletable. */
+async function bareCustomer(f: MatrixFixture, side: Side) {
+  const [c] = await f.db.insert(customers).values({ branchId: side.branch.id, name: `Bare ${unique()}` }).returning();
+  return c!;
+}
+async function bareSite(f: MatrixFixture, side: Side) {
+  const [s] = await f.db
+    .insert(sites)
+    .values({ branchId: side.branch.id, customerId: side.customer.id, name: `Bare ${unique()}`, address: '1 Empty Lot', lat: 41.9, lon: -87.7 })
+    .returning();
+  return s!;
+}
+async function bareUnit(f: MatrixFixture, side: Side) {
+  const [u] = await f.db
+    .insert(units)
+    .values({ branchId: side.branch.id, siteId: side.site.id, tag: `RTU-${unique()}`, kind: 'rooftop_unit', make: 'M', model: 'X', serial: unique(), refrigerant: 'R-410A', fullChargeLb: 5, applianceCategory: 'comfort_cooling' })
+    .returning();
+  return u!;
+}
+
+
 export const routeTable: RouteRow[] = [
   // ── health, config, auth ────────────────────────────────────────────────────────────────
   { method: 'GET', path: '/api/health', expect: open(200) },
@@ -85,8 +171,313 @@ export const routeTable: RouteRow[] = [
   { method: 'POST', path: '/api/auth/sign-out', expect: open(204) },
   { method: 'GET', path: '/api/auth/me', expect: signedIn(200) },
 
+
+  {
+    method: 'POST',
+    path: '/api/auth/forgot-password',
+    expect: open(202),
+    body: forgotPasswordSchema,
+    request: (f) => ({ path: '/api/auth/forgot-password', body: { email: f.inA.technician.email } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/auth/reset-password/check',
+    expect: open(200),
+    body: linkCheckSchema,
+    request: async (f, side) => ({ path: '/api/auth/reset-password/check', body: { token: await resetToken(f, side) } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/auth/reset-password',
+    expect: open(200),
+    body: resetPasswordSchema,
+    request: async (f, side) => ({
+      path: '/api/auth/reset-password',
+      body: { token: await resetToken(f, side), password: 'a-new-password-42', confirm: 'a-new-password-42' },
+    }),
+  },
+
   // ── branches ────────────────────────────────────────────────────────────────────────────
   { method: 'GET', path: '/api/branches', expect: signedIn(200) },
+  {
+    method: 'GET',
+    path: '/api/branches/:id',
+    expect: roles(allRoles, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/branches/${side.branch.id}` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/branches',
+    expect: roles(['owner'], 201),
+    body: branchInputSchema,
+    textFields: ['name', 'baseAddress'],
+    request: () => ({
+      path: '/api/branches',
+      body: {
+        name: 'Denver',
+        code: `D${unique().slice(0, 6)}`,
+        timeZone: 'America/Denver',
+        baseAddress: '1 Depot Road',
+        baseLat: 39.74,
+        baseLon: -104.99,
+        labourRate: 95,
+        sensorTolerancePercent: 3,
+        sensorToleranceAbsolute: 5,
+        repeatAlarmCount: 2,
+        repeatAlarmDays: 30,
+        callbackWindowDays: 30,
+      },
+    }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/branches/:id',
+    expect: roles(['owner'], 200),
+    body: branchPatchSchema,
+    textFields: ['name', 'baseAddress'],
+    request: (_f, side) => ({ path: `/api/branches/${side.branch.id}`, body: { baseAddress: '2 Depot Road' } }),
+  },
+
+  // ── customers, sites, units (offices; branch-scoped) ────────────────────────────────────
+  {
+    method: 'GET',
+    path: '/api/customers',
+    expect: roles(office, 200, { scoped: true }),
+    query: customersQuerySchema,
+    request: (_f, side) => ({ path: '/api/customers', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/customers',
+    expect: roles(office, 201, { scoped: true }),
+    body: customerInputSchema,
+    textFields: ['name', 'notes', 'billingAddress'],
+    request: (_f, side) => ({ path: '/api/customers', body: { branchId: side.branch.id, name: 'Lakeside Foods', notes: 'Gate code at the office' } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/customers/:id',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/customers/${side.customer.id}` }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/customers/:id',
+    expect: roles(office, 200, { scoped: true }),
+    body: customerPatchSchema,
+    textFields: ['name', 'notes', 'billingAddress'],
+    request: (_f, side) => ({ path: `/api/customers/${side.customer.id}`, body: { notes: 'Call ahead' } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/customers/:id/archive',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/customers/${side.customer.id}/archive` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/customers/:id/unarchive',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/customers/${side.customer.id}/unarchive` }),
+  },
+  {
+    method: 'DELETE',
+    path: '/api/customers/:id',
+    expect: roles(office, 204, { scoped: true }),
+    request: async (f, side) => ({ path: `/api/customers/${(await bareCustomer(f, side)).id}` }),
+  },
+  {
+    method: 'GET',
+    path: '/api/sites',
+    expect: roles(office, 200, { scoped: true }),
+    query: sitesQuerySchema,
+    request: (_f, side) => ({ path: '/api/sites', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/sites',
+    expect: roles(office, 201, { scoped: true }),
+    body: siteInputSchema,
+    textFields: ['name', 'address', 'accessNotes'],
+    request: (_f, side) => ({
+      path: '/api/sites',
+      body: { customerId: side.customer.id, name: 'North plant', address: '5 Mill Road', lat: 41.9, lon: -87.7, accessNotes: 'Ladder in the boiler room' },
+    }),
+  },
+  {
+    method: 'GET',
+    path: '/api/sites/:id',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/sites/${side.site.id}` }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/sites/:id',
+    expect: roles(office, 200, { scoped: true }),
+    body: sitePatchSchema,
+    textFields: ['name', 'address', 'accessNotes'],
+    request: (_f, side) => ({ path: `/api/sites/${side.site.id}`, body: { accessNotes: 'Key at reception' } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/sites/:id/archive',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/sites/${side.site.id}/archive` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/sites/:id/unarchive',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/sites/${side.site.id}/unarchive` }),
+  },
+  {
+    method: 'DELETE',
+    path: '/api/sites/:id',
+    expect: roles(office, 204, { scoped: true }),
+    request: async (f, side) => ({ path: `/api/sites/${(await bareSite(f, side)).id}` }),
+  },
+  {
+    method: 'GET',
+    path: '/api/units',
+    expect: roles(office, 200, { scoped: true }),
+    query: unitsQuerySchema,
+    request: (_f, side) => ({ path: '/api/units', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/units',
+    expect: roles(office, 201, { scoped: true }),
+    body: unitInputSchema,
+    textFields: ['notes', 'make', 'model'],
+    request: (_f, side) => ({ path: '/api/units', body: unitBody({ siteId: side.site.id }) }),
+  },
+  {
+    method: 'POST',
+    path: '/api/units/import',
+    expect: roles(office, 200, { scoped: true }),
+    body: unitImportSchema,
+    request: (_f, side) => ({
+      path: '/api/units/import',
+      body: {
+        siteId: side.site.id,
+        mode: 'dry-run',
+        csv: `${unitImportColumns.join(',')}\n${unitImportColumns.map((c) => unitImportExample[c]).join(',')}\n`,
+      },
+    }),
+  },
+  {
+    method: 'GET',
+    path: '/api/units/:id',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/units/${side.unit.id}` }),
+  },
+  {
+    method: 'PUT',
+    path: '/api/units/:id',
+    expect: roles(office, 200, { scoped: true }),
+    body: unitUpdateSchema,
+    textFields: ['notes', 'make', 'model'],
+    request: (_f, side) => ({ path: `/api/units/${side.unit.id}`, body: unitBody({ tag: side.unit.tag, circuits: [{ number: 1, compressorCount: 1 }, { number: 2, compressorCount: 1 }] }) }),
+  },
+  {
+    method: 'POST',
+    path: '/api/units/:id/archive',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/units/${side.unit.id}/archive` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/units/:id/unarchive',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/units/${side.unit.id}/unarchive` }),
+  },
+  {
+    method: 'DELETE',
+    path: '/api/units/:id',
+    expect: roles(office, 204, { scoped: true }),
+    request: async (f, side) => ({ path: `/api/units/${(await bareUnit(f, side)).id}` }),
+  },
+
+  // ── people (owner manages; offices read their branch) ───────────────────────────────────
+  {
+    method: 'GET',
+    path: '/api/users',
+    expect: roles(office, 200, { scoped: true }),
+    query: usersQuerySchema,
+    request: (_f, side) => ({ path: '/api/users', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/users/:id',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/users/${side.technician.id}` }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/users/:id',
+    expect: roles(['owner'], 200),
+    body: userProfileSchema,
+    textFields: ['name', 'startAddress'],
+    request: async (f, side) => {
+      const u = await makeUser(f.db, 'technician', side.branch.id);
+      return { path: `/api/users/${u.id}`, body: { name: 'Renamed Tech', role: 'technician', branchId: side.branch.id } };
+    },
+  },
+  {
+    method: 'POST',
+    path: '/api/users/:id/deactivate',
+    expect: roles(['owner'], 200),
+    request: async (f, side) => ({ path: `/api/users/${(await makeUser(f.db, 'technician', side.branch.id)).id}/deactivate` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/users/:id/reactivate',
+    expect: roles(['owner'], 200),
+    request: async (f, side) => ({ path: `/api/users/${(await makeUser(f.db, 'technician', side.branch.id, { active: false })).id}/reactivate` }),
+  },
+
+  // ── invitations (owner; check/accept are public, the e-mailed token is the credential) ──
+  { method: 'GET', path: '/api/invitations', expect: roles(['owner'], 200) },
+  {
+    method: 'POST',
+    path: '/api/invitations',
+    expect: roles(['owner'], 201),
+    body: invitationInputSchema,
+    request: (_f, side) => ({
+      path: '/api/invitations',
+      body: { email: `new.${unique()}@test.example`, profile: { name: 'New Tech', role: 'technician', branchId: side.branch.id } },
+    }),
+  },
+  {
+    method: 'POST',
+    path: '/api/invitations/:id/resend',
+    expect: roles(['owner'], 200),
+    request: async (f, side) => ({ path: `/api/invitations/${(await invitationToken(f, side)).id}/resend` }),
+  },
+  {
+    method: 'DELETE',
+    path: '/api/invitations/:id',
+    expect: roles(['owner'], 200),
+    request: async (f, side) => ({ path: `/api/invitations/${(await invitationToken(f, side)).id}` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/invitations/check',
+    expect: open(200),
+    body: linkCheckSchema,
+    request: async (f, side) => ({ path: '/api/invitations/check', body: { token: (await invitationToken(f, side)).token } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/invitations/accept',
+    expect: open(201),
+    body: acceptInvitationSchema,
+    textFields: ['name'],
+    request: async (f, side) => ({
+      path: '/api/invitations/accept',
+      body: { token: (await invitationToken(f, side)).token, name: 'Robin Field', password: 'a-new-password-42', confirm: 'a-new-password-42' },
+    }),
+  },
 
   // ── outbox (owner) ──────────────────────────────────────────────────────────────────────
   {
