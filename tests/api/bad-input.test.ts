@@ -166,6 +166,7 @@ async function check(
     const echoed = valuesAt(res.body, textField.key).filter((v) => typeof v === 'string');
     if (echoed.length > 0) expect(echoed, `${where} — text must come back verbatim`).toContain(textField.value);
   }
+  return res;
 }
 
 const rowsWithInput = routeTable.filter((r) => !r.noBadInput && (r.body || r.query || r.path.includes(':')));
@@ -192,7 +193,26 @@ describe('bad input', () => {
       const { own } = await f.makeSides();
       const valid = row.request ? await row.request(f, own, who) : { path: row.path };
 
-      if (row.body) {
+      if (valid.files) {
+        // Uploads: traversal and markup in file names are accepted only as harmless display names;
+        // content that is not what it claims, a missing file and a bad kind are refused.
+        const file = valid.files[0]!;
+        const upload = (name: string, content: Buffer, body: Record<string, string> = (valid.body ?? {}) as Record<string, string>) => (spec: RequestSpec) => ({
+          ...spec,
+          body,
+          files: [{ ...file, name, content }],
+        });
+        for (const name of [...nasty.traversal.map((t) => `${t}.png`), '<img src=x onerror=alert(1)>.png', `${'n'.repeat(400)}.png`, 'CON.png', '.htaccess']) {
+          const res = await check(row, who, own, `file name ${name.slice(0, 40)}`, false, upload(name, file.content));
+          const names = valuesAt(res.body, 'displayName').filter((v): v is string => typeof v === 'string');
+          for (const n of names) expect(n, `stored display name for ${name.slice(0, 40)}`).not.toMatch(/[\\/]|\.\./);
+        }
+        await check(row, who, own, 'text content named .png', true, upload('photo.png', Buffer.from('just text, not a picture')));
+        await check(row, who, own, 'HTML content named .png', true, upload('photo.png', Buffer.from('<html><script>alert(1)</script></html>')));
+        await check(row, who, own, 'empty file', true, upload('photo.png', Buffer.alloc(0)));
+        await check(row, who, own, 'kind is not a kind', true, upload('photo.png', file.content, { kind: 'executable' }));
+        await check(row, who, own, 'no file at all', true, (spec) => ({ ...spec, files: undefined, body: undefined }));
+      } else if (row.body) {
         const schema = row.body;
         const validBody = (valid.body ?? {}) as Record<string, unknown>;
         await fc.assert(
@@ -212,6 +232,10 @@ describe('bad input', () => {
           }),
           { numRuns: RUNS },
         );
+        // Every free-text field, deterministically: PostgreSQL text cannot hold U+0000.
+        for (const k of row.textFields ?? []) {
+          await check(row, who, own, `NUL character in ${k}`, true, (spec) => ({ ...spec, body: { ...validBody, [k]: 'a\u0000b' } }));
+        }
       }
 
       if (row.query) {

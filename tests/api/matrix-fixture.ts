@@ -10,6 +10,7 @@ import { sql } from 'drizzle-orm';
 import type { Role } from '@coilpath/contract';
 import type { AppContext } from '../../apps/api/src/context';
 import type { Db } from '../../apps/api/src/db/client';
+import { bookings, visits } from '../../apps/api/src/db/schema';
 import { SESSION_COOKIE, signSession } from '../../apps/api/src/auth/session';
 import type { RequestSpec, RouteRow } from './route-table';
 import { makeSiteWithUnit, makeTwoBranches, makeWorkOrder } from '../../apps/api/src/testing/fixtures';
@@ -30,6 +31,19 @@ export interface Side {
   workOrder: Awaited<ReturnType<typeof makeWorkOrder>>;
   /** The technician of this branch (bookings, visits). */
   technician: User;
+  /** A second work order, booked for `technician` on the next weekday at 15:00Z, with its open visit (on site). */
+  booked: {
+    workOrder: Awaited<ReturnType<typeof makeWorkOrder>>;
+    booking: typeof bookings.$inferSelect;
+    visit: typeof visits.$inferSelect;
+  };
+}
+
+/** The next Monday–Friday (UTC) after today, at `hourUtc`:00Z. */
+export function nextWeekday(now: Date, hourUtc = 15): Date {
+  const d = new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate() + 1, hourUtc));
+  while (d.getUTCDay() === 0 || d.getUTCDay() === 6) d.setUTCDate(d.getUTCDate() + 1);
+  return d;
 }
 
 export interface MatrixFixture extends People {
@@ -47,7 +61,18 @@ export async function makeMatrixFixture(ctx: AppContext): Promise<MatrixFixture>
   const makeSide = async (branch: Branch, technician: User): Promise<Side> => {
     const { customer, site, unit } = await makeSiteWithUnit(db, branch.id);
     const workOrder = await makeWorkOrder(db, { branchId: branch.id, siteId: site.id, unitId: unit.id });
-    return { branch, customer, site, unit, workOrder, technician };
+    const bookedOrder = await makeWorkOrder(db, { branchId: branch.id, siteId: site.id, unitId: unit.id, state: 'booked' });
+    const startAt = nextWeekday(ctx.clock.now());
+    const [booking] = await db
+      .insert(bookings)
+      .values({ branchId: branch.id, workOrderId: bookedOrder.id, techId: technician.id, startAt, endAt: new Date(startAt.getTime() + 3600_000) })
+      .returning();
+    const now = ctx.clock.now();
+    const [visit] = await db
+      .insert(visits)
+      .values({ branchId: branch.id, workOrderId: bookedOrder.id, bookingId: booking!.id, techId: technician.id, enRouteAt: now, onSiteAt: now })
+      .returning();
+    return { branch, customer, site, unit, workOrder, technician, booked: { workOrder: bookedOrder, booking: booking!, visit: visit! } };
   };
   return {
     ...people,
@@ -101,7 +126,11 @@ export async function sendRequest(
   if (user) req = req.set('Cookie', await sessionCookie(f.ctx, user));
   if (spec.query) req = req.query(spec.query);
   let res;
-  if (spec.rawBody !== undefined) res = await req.set('Content-Type', 'application/json').send(spec.rawBody);
+  if (spec.files) {
+    for (const [k, v] of Object.entries((spec.body ?? {}) as Record<string, unknown>)) req = req.field(k, typeof v === 'string' ? v : JSON.stringify(v));
+    for (const file of spec.files) req = req.attach(file.field, file.content, { filename: file.name, contentType: file.contentType });
+    res = await req;
+  } else if (spec.rawBody !== undefined) res = await req.set('Content-Type', 'application/json').send(spec.rawBody);
   else if (spec.body !== undefined) res = await req.send(spec.body as object);
   else res = await req;
   return { status: res.status, body: res.body };

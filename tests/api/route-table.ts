@@ -36,16 +36,35 @@ import {
   unitUpdateSchema,
   userProfileSchema,
   usersQuerySchema,
+  dayQuerySchema,
+  visitStateChangeSchema,
+  saveReadingsSchema,
+  findingInputSchema,
+  closeVisitSchema,
+  refrigerantEventInputSchema,
+  attachmentUploadFieldsSchema,
+  bookingCreateSchema,
+  bookingUpdateSchema,
+  bookingListQuerySchema,
+  rosterBranchQuerySchema,
+  loadQuerySchema,
+  suggestSchema,
+  evenOutSchema,
+  evenOutApplySchema,
+  workOrderCreateSchema,
+  workOrderUpdateSchema,
+  workOrderListQuerySchema,
   type Role,
 } from '@coilpath/contract';
+import { eq } from 'drizzle-orm';
 import { randomBytes } from 'node:crypto';
 import type { MailMessage } from '../../apps/api/src/mail/mailer';
 import { requestPasswordReset } from '../../apps/api/src/modules/auth/password-reset.service';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { z as zod } from 'zod';
-import { customers, mailOutbox, sites, units } from '../../apps/api/src/db/schema';
+import { attachments, bookings, circuits, customers, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
 import { makeUser, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
-import type { Caller, MatrixFixture, Side } from './matrix-fixture';
+import { nextWeekday, type Caller, type MatrixFixture, type Side } from './matrix-fixture';
 
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
 /** One status, or the statuses for the caller's own branch and another branch. */
@@ -56,6 +75,8 @@ export interface RequestSpec {
   path: string;
   body?: unknown;
   query?: Record<string, string>;
+  /** Sent as multipart/form-data (with `body`'s fields as form fields). */
+  files?: { field: string; name: string; content: Buffer; contentType: string }[];
 }
 
 export interface RouteRow {
@@ -120,6 +141,27 @@ async function resetToken(f: MatrixFixture, side: Side) {
   const u = await makeUser(f.db, 'technician', side.branch.id);
   await requestPasswordReset(f.ctx, u.email);
   return lastMailedToken(f);
+}
+
+/**
+ * Work on a visit: only its assigned technician (another's visit: 404); office roles may read it
+ * but not record work (403 in their scope, 404 outside it).
+ */
+function visitWork(status: number): Record<Caller, Outcome> {
+  return { anonymous: 401, owner: 403, branch_manager: { own: 403, other: 404 }, dispatcher: { own: 403, other: 404 }, technician: { own: status, other: 404 } };
+}
+
+const isoDay = (d: Date) => d.toISOString().slice(0, 10);
+/** A 1×1 PNG. */
+const tinyPng = Buffer.from('iVBORw0KGgoAAAANSUhEUgAAAAEAAAABCAYAAAAfFcSJAAAADUlEQVR42mP8z8BQDwAEhQGAhKmMIQAAAABJRU5ErkJggg==', 'base64');
+
+/** A technician of the side's branch with an empty calendar (bookings of one call never collide with another's). */
+function freeTechnician(f: MatrixFixture, side: Side) {
+  return makeUser(f.db, 'technician', side.branch.id);
+}
+
+async function circuitsOf(f: MatrixFixture, unitId: string) {
+  return f.db.select().from(circuits).where(eq(circuits.unitId, unitId));
 }
 
 const unitBody = (over: Record<string, unknown> = {}) => ({
@@ -503,6 +545,265 @@ export const routeTable: RouteRow[] = [
         })
         .returning();
       return { path: `/api/outbox/${m!.id}/attachments/0` };
+    },
+  },
+
+
+  // ── My Day, calendar feed (technicians) ─────────────────────────────────────────────────
+  {
+    method: 'GET',
+    path: '/api/day',
+    expect: roles(['technician'], 200),
+    query: dayQuerySchema,
+    request: (f) => ({ path: '/api/day', query: { date: isoDay(nextWeekday(f.ctx.clock.now())) } }),
+  },
+  { method: 'POST', path: '/api/calendar/token', expect: roles(['technician'], 201) },
+  { method: 'DELETE', path: '/api/calendar/token', expect: roles(['technician'], 204) },
+  {
+    method: 'GET',
+    path: '/api/calendar/:token.ics',
+    // The secret in the URL is the credential (calendar apps send no cookie).
+    expect: open(200),
+    request: async (f, side) => {
+      const token = `cal${unique()}${unique()}${unique()}`;
+      await f.db.update(users).set({ calendarToken: token }).where(eq(users.id, side.technician.id));
+      return { path: `/api/calendar/${token}.ics` };
+    },
+    noBadInput: 'the token is opaque; a wrong one answers 404 (covered by the day module tests)',
+  },
+
+  // ── visits (the assigned technician records; offices read) ──────────────────────────────
+  { method: 'GET', path: '/api/visits/current', expect: roles(['technician'], 200) },
+  {
+    method: 'GET',
+    path: '/api/visits/:id',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    request: (_f, side) => ({ path: `/api/visits/${side.booked.visit.id}` }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/visits/:id',
+    expect: visitWork(200),
+    body: visitStateChangeSchema,
+    request: async (f, side) => {
+      await f.db.update(visits).set({ enRouteAt: null, onSiteAt: null }).where(eq(visits.id, side.booked.visit.id));
+      return { path: `/api/visits/${side.booked.visit.id}`, body: { state: 'en_route' } };
+    },
+  },
+  {
+    method: 'POST',
+    path: '/api/visits/:id/readings',
+    expect: visitWork(200),
+    body: saveReadingsSchema,
+    request: async (f, side) => {
+      const [c] = await circuitsOf(f, side.unit.id);
+      return {
+        path: `/api/visits/${side.booked.visit.id}/readings`,
+        body: { readings: [{ circuitId: c!.id, suctionPressure: 118, liquidPressure: 340, suctionLineTemp: 52, liquidLineTemp: 95 }] },
+      };
+    },
+  },
+  {
+    method: 'POST',
+    path: '/api/visits/:id/findings',
+    expect: visitWork(201),
+    body: findingInputSchema,
+    textFields: ['notes', 'alarmCode'],
+    request: (_f, side) => ({
+      path: `/api/visits/${side.booked.visit.id}/findings`,
+      body: { unitId: side.unit.id, causeCode: 'refrigerant_leak', origin: 'wear', notes: 'Oil at the flare nut' },
+    }),
+  },
+  {
+    method: 'POST',
+    path: '/api/visits/:id/attachments',
+    expect: visitWork(201),
+    body: attachmentUploadFieldsSchema,
+    request: (_f, side) => ({
+      path: `/api/visits/${side.booked.visit.id}/attachments`,
+      body: { kind: 'photo' },
+      files: [{ field: 'file', name: 'nameplate.png', content: tinyPng, contentType: 'image/png' }],
+    }),
+  },
+  {
+    method: 'POST',
+    path: '/api/visits/:id/close',
+    expect: visitWork(200),
+    body: closeVisitSchema,
+    textFields: ['notes', 'returnNotes'],
+    request: (_f, side) => ({
+      path: `/api/visits/${side.booked.visit.id}/close`,
+      body: { outcome: 'needs_return', returnNeeds: ['parts'], returnNotes: 'Bring a TXV', notes: 'Leak at the TXV' },
+    }),
+  },
+  {
+    method: 'POST',
+    path: '/api/visits/:id/summary',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    request: async (f, side) => {
+      const now = f.ctx.clock.now();
+      await f.db.update(visits).set({ closedAt: now, outcome: 'resolved' }).where(eq(visits.id, side.booked.visit.id));
+      return { path: `/api/visits/${side.booked.visit.id}/summary` };
+    },
+  },
+  {
+    method: 'GET',
+    path: '/api/attachments/:id',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    request: async (f, side) => {
+      const storageKey = await f.ctx.storage.put(tinyPng, { contentType: 'image/png' });
+      const [a] = await f.db
+        .insert(attachments)
+        .values({ visitId: side.booked.visit.id, unitId: side.unit.id, kind: 'photo', storageKey, displayName: 'nameplate.png', contentType: 'image/png', sizeBytes: tinyPng.length })
+        .returning();
+      return { path: `/api/attachments/${a!.id}` };
+    },
+  },
+  {
+    method: 'GET',
+    path: '/api/units/:id/briefing',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    request: (_f, side) => ({ path: `/api/units/${side.unit.id}/briefing` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/units/:id/refrigerant-events',
+    expect: visitWork(201),
+    body: refrigerantEventInputSchema,
+    request: (_f, side) => ({
+      path: `/api/units/${side.unit.id}/refrigerant-events`,
+      body: { visitId: side.booked.visit.id, refrigerant: 'R-410A', poundsAdded: 2, reason: 'leak_top_off', cylinderLot: 'LOT-7' },
+    }),
+  },
+
+  // ── work orders (offices) ───────────────────────────────────────────────────────────────
+  {
+    method: 'GET',
+    path: '/api/work-orders',
+    expect: roles(office, 200, { scoped: true }),
+    query: workOrderListQuerySchema,
+    request: (_f, side) => ({ path: '/api/work-orders', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/work-orders/:id',
+    expect: roles(office, 200, { scoped: true }),
+    request: (_f, side) => ({ path: `/api/work-orders/${side.workOrder.id}` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/work-orders',
+    expect: roles(office, 201, { scoped: true }),
+    body: workOrderCreateSchema,
+    textFields: ['complaint'],
+    request: (_f, side) => ({
+      path: '/api/work-orders',
+      body: { siteId: side.site.id, unitId: side.unit.id, kind: 'service_call', complaint: 'Walk-in cooler warm' },
+    }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/work-orders/:id',
+    expect: roles(office, 200, { scoped: true }),
+    body: workOrderUpdateSchema,
+    request: (_f, side) => ({ path: `/api/work-orders/${side.workOrder.id}`, body: { state: 'cancelled' } }),
+  },
+
+  // ── Roster: bookings, technicians, load, suggestions, evening out (offices) ─────────────
+  {
+    method: 'GET',
+    path: '/api/bookings',
+    expect: roles(office, 200, { scoped: true }),
+    query: bookingListQuerySchema,
+    request: (f, side) => {
+      const from = nextWeekday(f.ctx.clock.now(), 0);
+      return { path: '/api/bookings', query: { branchId: side.branch.id, from: from.toISOString(), to: new Date(from.getTime() + 7 * 86_400_000).toISOString() } };
+    },
+  },
+  {
+    method: 'POST',
+    path: '/api/bookings',
+    expect: roles(office, 201, { scoped: true }),
+    body: bookingCreateSchema,
+    request: async (f, side) => ({
+      path: '/api/bookings',
+      body: { workOrderId: side.workOrder.id, techId: (await freeTechnician(f, side)).id, startAt: nextWeekday(f.ctx.clock.now(), 18).toISOString() },
+    }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/bookings/:id',
+    expect: roles(office, 200, { scoped: true }),
+    body: bookingUpdateSchema,
+    request: async (f, side) => {
+      const tech = await freeTechnician(f, side);
+      await f.db.update(visits).set({ enRouteAt: null, onSiteAt: null, techId: tech.id }).where(eq(visits.id, side.booked.visit.id));
+      await f.db.update(bookings).set({ techId: tech.id }).where(eq(bookings.id, side.booked.booking.id));
+      return {
+        path: `/api/bookings/${side.booked.booking.id}`,
+        body: { version: side.booked.booking.version, startAt: nextWeekday(f.ctx.clock.now(), 17).toISOString() },
+      };
+    },
+  },
+  {
+    method: 'DELETE',
+    path: '/api/bookings/:id',
+    expect: roles(office, 204, { scoped: true }),
+    request: async (f, side) => {
+      await f.db.update(visits).set({ enRouteAt: null, onSiteAt: null }).where(eq(visits.id, side.booked.visit.id));
+      return { path: `/api/bookings/${side.booked.booking.id}` };
+    },
+  },
+  {
+    method: 'GET',
+    path: '/api/roster/technicians',
+    expect: roles(office, 200, { scoped: true }),
+    query: rosterBranchQuerySchema,
+    request: (_f, side) => ({ path: '/api/roster/technicians', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/roster/sites',
+    expect: roles(office, 200, { scoped: true }),
+    query: rosterBranchQuerySchema,
+    request: (_f, side) => ({ path: '/api/roster/sites', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/roster/load',
+    expect: roles(office, 200, { scoped: true }),
+    query: loadQuerySchema,
+    request: (f, side) => {
+      const from = nextWeekday(f.ctx.clock.now());
+      return { path: '/api/roster/load', query: { branchId: side.branch.id, from: isoDay(from), to: isoDay(new Date(from.getTime() + 6 * 86_400_000)) } };
+    },
+  },
+  {
+    method: 'POST',
+    path: '/api/roster/suggest',
+    expect: roles(office, 200, { scoped: true }),
+    body: suggestSchema,
+    request: (f, side) => ({ path: '/api/roster/suggest', body: { workOrderId: side.workOrder.id, day: isoDay(nextWeekday(f.ctx.clock.now())) } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/roster/even-out',
+    expect: roles(office, 200, { scoped: true }),
+    body: evenOutSchema,
+    request: (f, side) => ({ path: '/api/roster/even-out', body: { branchId: side.branch.id, week: isoDay(nextWeekday(f.ctx.clock.now())) } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/roster/even-out/apply',
+    expect: roles(office, 200, { scoped: true }),
+    body: evenOutApplySchema,
+    request: async (f, side) => {
+      const startAt = nextWeekday(f.ctx.clock.now(), 19);
+      const tech = await freeTechnician(f, side);
+      return {
+        path: '/api/roster/even-out/apply',
+        body: { proposals: [{ workOrderId: side.workOrder.id, techId: tech.id, startAt: startAt.toISOString(), endAt: new Date(startAt.getTime() + 3600_000).toISOString() }] },
+      };
     },
   },
 

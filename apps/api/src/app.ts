@@ -21,6 +21,20 @@ function requireJsonBodies(req: Request, _res: Response, next: NextFunction) {
   next(new HttpError(415, 'unsupported_media_type', 'Send the request body as JSON (Content-Type: application/json).'));
 }
 
+function hasNul(v: unknown, depth = 0): boolean {
+  if (typeof v === 'string') return v.includes('\u0000');
+  if (depth > 32 || !v || typeof v !== 'object') return false;
+  return Object.entries(v).some(([k, x]) => k.includes('\u0000') || hasNul(x, depth + 1));
+}
+
+/** PostgreSQL text cannot hold U+0000: refuse it up front (400) rather than fail in the database (500). */
+function refuseNulCharacters(req: Request, _res: Response, next: NextFunction) {
+  if (hasNul(req.body) || hasNul(req.query)) {
+    return next(new HttpError(400, 'invalid', 'Text may not contain the NUL character (U+0000).'));
+  }
+  next();
+}
+
 /**
  * Builds the Express app around injected dependencies. It does not listen: `server.ts` does, and
  * tests drive it with supertest.
@@ -44,6 +58,7 @@ export function createApp(ctx: AppContext): express.Express {
   // Equipment CSV imports carry a whole file (up to 6 MB of text); every other body stays small.
   app.use('/api/units/import', express.json({ limit: '8mb' }));
   app.use('/api', express.json({ limit: '1mb' }));
+  app.use('/api', refuseNulCharacters);
   app.use('/api', cookieParser());
   app.use('/api', authenticate(ctx));
 
