@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { driveMinutes } from './geo';
-import { localDayBounds, rankTechnicians, technicianLoad, workingWindow, zonedDate, zonedInstant, type Booking, type SchedulingJob, type Technician } from './schedule';
+import { localDayBounds, rankTechnicians, weekdayOf, technicianLoad, workingWindow, zonedDate, zonedInstant, type Booking, type SchedulingJob, type Technician } from './schedule';
 
 const hours = { start: '07:00', end: '17:00' };
 const tech = (over: Partial<Technician> & { id: string }): Technician => ({
@@ -29,6 +29,10 @@ describe('time-zone helpers', () => {
     expect(zonedDate('2027-03-15T04:59:00Z', 'America/Chicago')).toBe('2027-03-14');
     expect(() => zonedInstant('2027-03-15', '25:00', 'America/Chicago')).toThrow(RangeError);
     expect(() => zonedInstant('2027-03-15', '07:00', 'Mars/Olympus')).toThrow(RangeError);
+  });
+  it('weekdayOf gives 0 for Sunday', () => {
+    expect(weekdayOf('2027-03-14')).toBe(0);
+    expect(weekdayOf('2027-03-15')).toBe(1);
   });
   it('reads working hours by number or weekday name', () => {
     const t = tech({ id: 'a', workingHours: { 0: { start: '00:00', end: '06:00' }, sat: null } });
