@@ -283,7 +283,13 @@ export const NONE = '(none recorded)';
 export async function fixQualityReport(db: Db, period: Period, branchId: string | undefined): Promise<FixQualityReport> {
   const prev = previousPeriod(period);
   const cur = bounds(period);
-  const all = await loadJobs(db, { start: bounds(prev).start, end: cur.end }, branchId);
+  // An analytic read over up to hundreds of thousands of rows: hash joins and in-memory sorts beat the
+  // nested loops the planner picks from its (low) row estimate of the period filter. Local to this transaction.
+  const all = await db.transaction(async (tx) => {
+    await tx.execute(sql`SET LOCAL work_mem = '64MB'`);
+    await tx.execute(sql`SET LOCAL enable_nestloop = off`);
+    return loadJobs(tx, { start: bounds(prev).start, end: cur.end }, branchId);
+  });
   const curStartMs = Date.parse(cur.start);
   const current = all.filter((j) => j.closedMs >= curStartMs);
   const previous = all.filter((j) => j.closedMs < curStartMs);
