@@ -378,9 +378,9 @@ const textArray = (v: string[] | string): string[] => (Array.isArray(v) ? v : v.
 
 /**
  * The factory-defect cases: callbacks and return visits opened in the period with a finding of origin
- * `factory_defect` on one of their visits. A case costs the labour of its visits (recorded labour minutes,
- * else on-site to close) at the branch's labour rate and the refrigerant added on its visits at the branch's
- * price per pound.
+ * `factory_defect` on one of their visits. A case costs the labour of its visits and of the visits of work
+ * booked off it (a return visit whose origin is the callback) — recorded labour minutes, else on-site to
+ * close — at the branch's labour rate, and the refrigerant added on those visits at the branch's price per pound.
  */
 export async function factoryDefectCases(db: Tx, opts: { period?: Period; branchId?: string | undefined; workOrderId?: string }): Promise<FactoryDefectCase[]> {
   const range = opts.period ? bounds(opts.period) : null;
@@ -401,19 +401,24 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
       WHERE fd.origin = 'factory_defect' AND w.kind IN ('callback', 'return_visit') ${sql.join(filters, sql` `)}
       GROUP BY w.id, w.unit_id
     ),
+    case_work AS (
+      SELECT c.id AS case_id, c.id AS wo_id FROM cases c
+      UNION ALL
+      SELECT c.id, w2.id FROM cases c JOIN work_orders w2 ON w2.origin_work_order_id = c.id
+    ),
     labour AS (
-      SELECT v.work_order_id,
+      SELECT cw.case_id AS work_order_id,
         (count(*) FILTER (WHERE v.closed_at IS NOT NULL))::int AS visits,
         coalesce(sum(coalesce(v.labour_minutes::float8,
           CASE WHEN v.closed_at IS NOT NULL AND v.on_site_at IS NOT NULL
             THEN extract(epoch FROM v.closed_at - v.on_site_at) / 60 END)), 0)::float8 AS labour_minutes
-      FROM visits v JOIN cases c ON c.id = v.work_order_id
-      GROUP BY v.work_order_id
+      FROM visits v JOIN case_work cw ON cw.wo_id = v.work_order_id
+      GROUP BY cw.case_id
     ),
     gas AS (
-      SELECT v.work_order_id, sum(re.pounds_added)::float8 AS refrigerant_lb
-      FROM refrigerant_events re JOIN visits v ON v.id = re.visit_id JOIN cases c ON c.id = v.work_order_id
-      GROUP BY v.work_order_id
+      SELECT cw.case_id AS work_order_id, sum(re.pounds_added)::float8 AS refrigerant_lb
+      FROM refrigerant_events re JOIN visits v ON v.id = re.visit_id JOIN case_work cw ON cw.wo_id = v.work_order_id
+      GROUP BY cw.case_id
     )
     SELECT w.id, w.number, w.kind, w.branch_id, b.name AS branch_name, b.currency, b.labour_rate_cents,
       b.refrigerant_price_cents_per_lb, w.site_id, s.name AS site_name, u.id AS unit_id, u.tag AS unit_tag,

@@ -27,7 +27,8 @@ import { branches, findings, refrigerantEvents, units, visits, workOrders } from
  *      (39 d, outside 30), no visit yet.
  *  J6  B U3 TB1 opened 03-15 08:00, closed 03-15 12:00 resolved (settings/external); callback opened
  *      03-25 12:00 (10 d, inside 14), its visit on site 03-26 10:00 closed 12:00 resolved,
- *      finding wiring_fault/factory_defect, no labour minutes recorded (on site → close = 120 min).
+ *      finding wiring_fault/factory_defect, no labour minutes recorded (on site → close = 120 min); a return
+ *      visit booked off that callback (origin = the callback) took 30 labour minutes.
  *  J7  B U3 TB1 opened 03-16 08:00, closed 03-16 12:00 resolved; callback opened 04-05 12:00
  *      (20 d: outside B's 14-day window although inside 30), no visit.
  *  J10 A U1 TA2 opened 03-31 20:00, closed 03-31 23:30 resolved (last half hour of the period).
@@ -163,6 +164,10 @@ beforeAll(async () => {
   const j6cb = await workOrder({ branchId: B, ...at(u3), kind: 'callback', openedAt: '2026-03-25T12:00:00Z', originWorkOrderId: j6.id });
   ids.J6cb = j6cb.id;
   await visit({ branchId: B, workOrderId: j6cb.id, techId: tb1.id, onSiteAt: '2026-03-26T10:00:00Z', closedAt: '2026-03-26T12:00:00Z', outcome: 'resolved', finding: { unitId: u3.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect' } });
+
+  // A return visit booked off J6's callback (origin = the callback, so not a follow-up of J6 itself): 30 labour minutes.
+  const j6rv = await workOrder({ branchId: B, ...at(u3), kind: 'return_visit', openedAt: '2026-03-27T08:00:00Z', originWorkOrderId: j6cb.id });
+  await visit({ branchId: B, workOrderId: j6rv.id, techId: tb1.id, closedAt: '2026-03-28T12:00:00Z', outcome: 'resolved', labourMinutes: 30 });
 
   const j7 = await job('J7', { branchId: B, ...at(u3), techId: tb1.id, openedAt: '2026-03-16T08:00:00Z', closedAt: '2026-03-16T12:00:00Z', outcome: 'resolved' });
   await workOrder({ branchId: B, ...at(u3), kind: 'callback', openedAt: '2026-04-05T12:00:00Z', originWorkOrderId: j7.id, state: 'unplaced' });
@@ -312,13 +317,14 @@ describe('factory-defect review and warranty claims', () => {
     // 90 min × $90/h = $135.00; 2.5 lb × $50 = $125.00.
     expect([j2cb.labourCostCents, j2cb.refrigerantCostCents, j2cb.costCents]).toEqual([13_500, 12_500, 26_000]);
     expect(j2cb.claim.status).toBe('to_claim');
-    // No labour minutes recorded: on site 10:00 → closed 12:00 = 2 h × $120/h = $240.00 (branch B).
-    expect(cases.find((c) => c.workOrderId === ids.J6cb)!.costCents).toBe(24_000);
+    // No labour minutes recorded: on site 10:00 → closed 12:00 = 120 min, plus the 30 min return visit booked off
+    // the callback = 150 min = 2.5 h × $120/h = $300.00 (branch B).
+    expect(cases.find((c) => c.workOrderId === ids.J6cb)!.costCents).toBe(30_000);
     const tm = (res.body.models as { key: string; cases: number; callbacks: number; unitsAffected: number; sitesAffected: number; labourHours: number; costCents: number }[]).find(
       (m) => m.key === 'Testmake|TM-10',
     )!;
-    // 1.5 h + 2 h = 3.5 h; $260 + $240 = $500.
-    expect([tm.cases, tm.callbacks, tm.unitsAffected, tm.sitesAffected, tm.labourHours, tm.costCents]).toEqual([2, 2, 2, 2, 3.5, 50_000]);
+    // 1.5 h + 2.5 h = 4 h; $260 + $300 = $560.
+    expect([tm.cases, tm.callbacks, tm.unitsAffected, tm.sitesAffected, tm.labourHours, tm.costCents]).toEqual([2, 2, 2, 2, 4, 56_000]);
   });
 
   it('records a claim (owner), refuses a work order without a factory defect and other branches', async () => {
@@ -333,7 +339,7 @@ describe('factory-defect review and warranty claims', () => {
     const review = await o.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31');
     const tm = review.body.models.find((m: { key: string }) => m.key === 'Testmake|TM-10');
     expect(tm.paidCents).toBe(26_000);
-    expect(tm.toClaimCents).toBe(24_000);
+    expect(tm.toClaimCents).toBe(30_000); // J6's callback, still to claim, at its cost
     expect((await o.patch(`/api/warranty-claims/${ids.J1}`).send({ status: 'claimed', amountCents: 1 })).status).toBe(422);
     const mB = await signedInAgent(t.app, f.inB.manager.email, TEST_PASSWORD);
     expect((await mB.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'denied' })).status).toBe(404);

@@ -233,11 +233,16 @@ export default function FixQualityPage() {
             </ul>
           </details>
 
-          <Card title="Trend by month" actions={<a className="text-sm text-coolant underline" href={csvUrl(query, 'byMonth')} download>CSV</a>}>
-            <MonthTrendChart months={q.data.byMonth} />
-          </Card>
-
-          <div className="grid gap-5 xl:grid-cols-2">
+          
+          <div className="flex flex-col gap-5">
+            <GroupSection
+              title="Trend by month"
+              first="Month (UTC)"
+              groups={q.data.byMonth}
+              csvHref={csvUrl(query, 'byMonth')}
+              note="Months are calendar months in UTC, by when the first visit closed. The latest month fills in as callbacks have time to come in."
+              chart={<MonthTrendChart months={q.data.byMonth} />}
+            />
             {!branchId && (
               <GroupSection
                 title="By branch"
@@ -275,7 +280,6 @@ export default function FixQualityPage() {
               csvHref={csvUrl(query, 'byOrigin')}
               chart={<GroupRateChart groups={q.data.byOrigin} title="First-time fix and callbacks by cause origin" />}
             />
-            <GroupSection title="By month" first="Month (UTC)" groups={q.data.byMonth} csvHref={csvUrl(query, 'byMonth')} />
           </div>
 
           <FactoryDefectReviewSection query={query} timeZone={timeZone} />

@@ -62,8 +62,8 @@ export function GroupSection({
   return (
     <Card title={title} actions={<CsvLink href={csvHref} label={`CSV`} />}>
       {note && <p className="mb-2 text-sm text-slate">{note}</p>}
-      {chart}
-      <div className="mt-3">
+      <div className={chart ? 'grid items-start gap-4 xl:grid-cols-[minmax(0,1fr)_minmax(0,2fr)]' : ''}>
+        {chart}
         <DataTable caption={title} columns={groupColumns(first)} data={groups} getRowId={(g) => g.key} empty="No service calls in this period." />
       </div>
     </Card>
