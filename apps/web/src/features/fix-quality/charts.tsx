@@ -19,8 +19,8 @@ export function MonthTrendChart({ months }: { months: FixQualityGroup[] }) {
           <YAxis domain={[0, 1]} tickFormatter={axisPct} tick={{ fontSize: 12 }} width={48} />
           <Tooltip formatter={(v) => pct(v as number)} />
           <Legend />
-          <Line type="monotone" dataKey="ftf" name="First-time fix" stroke="#2E7D4F" strokeWidth={2} dot={{ r: 3 }} connectNulls />
-          <Line type="monotone" dataKey="callbacks" name="Callback rate" stroke="#B3261E" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3, strokeDasharray: '' }} connectNulls />
+          <Line isAnimationActive={false} type="monotone" dataKey="ftf" name="First-time fix" stroke="#2E7D4F" strokeWidth={2} dot={{ r: 3 }} connectNulls />
+          <Line isAnimationActive={false} type="monotone" dataKey="callbacks" name="Callback rate" stroke="#B3261E" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3, strokeDasharray: '' }} connectNulls />
         </LineChart>
       </ResponsiveContainer>
     </figure>
@@ -43,8 +43,8 @@ export function GroupRateChart({ groups, title, limit = 10 }: { groups: FixQuali
           <YAxis type="category" dataKey="label" width={140} tick={{ fontSize: 12 }} />
           <Tooltip formatter={(v) => pct(v as number)} />
           <Legend />
-          <Bar dataKey="ftf" name="First-time fix" fill="#2E7D4F" barSize={12} />
-          <Bar dataKey="callbacks" name="Callback rate" fill="#B3261E" barSize={12} />
+          <Bar isAnimationActive={false} dataKey="ftf" name="First-time fix" fill="#2E7D4F" barSize={12} />
+          <Bar isAnimationActive={false} dataKey="callbacks" name="Callback rate" fill="#B3261E" barSize={12} />
         </BarChart>
       </ResponsiveContainer>
     </figure>
@@ -63,8 +63,8 @@ export function DefectCostChart({ models }: { models: { label: string; labour: n
           <YAxis type="category" dataKey="label" width={140} tick={{ fontSize: 12 }} />
           <Tooltip formatter={(v) => `$${((v as number) / 100).toFixed(0)}`} />
           <Legend />
-          <Bar dataKey="labour" name="Labour" stackId="c" fill="#1F7A8C" barSize={14} />
-          <Bar dataKey="refrigerant" name="Refrigerant" stackId="c" fill="#B5562B" barSize={14} />
+          <Bar isAnimationActive={false} dataKey="labour" name="Labour" stackId="c" fill="#1F7A8C" barSize={14} />
+          <Bar isAnimationActive={false} dataKey="refrigerant" name="Refrigerant" stackId="c" fill="#B5562B" barSize={14} />
         </BarChart>
       </ResponsiveContainer>
     </figure>

@@ -70,7 +70,7 @@ function AlertCard({ alert, canCreate, timeZone }: { alert: ModelAlert; canCreat
             <tbody>
               {alert.unchecked.map((u) => (
                 <tr key={u.unitId} className="border-t border-slate-line/70">
-                  <td className="px-2 py-1.5">
+                  <td className="whitespace-nowrap px-2 py-1.5">
                     <Link className="font-medium text-coolant hover:underline" to={`/units/${u.unitId}`}>
                       {u.tag}
                     </Link>

@@ -23,8 +23,8 @@ export function CircuitTrend({ readings, timeZone, circuit }: { readings: UnitFi
             <YAxis tick={{ fontSize: 11 }} width={40} />
             <Tooltip labelFormatter={(v) => formatInZone(new Date(v as number), timeZone)} formatter={(v) => `${(v as number).toFixed(1)} °F`} />
             <Legend />
-            <Line dataKey="superheat" name="Superheat" stroke="#1F7A8C" strokeWidth={2} dot={{ r: 3 }} connectNulls />
-            <Line dataKey="subcooling" name="Subcooling" stroke="#B5562B" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3 }} connectNulls />
+            <Line isAnimationActive={false} dataKey="superheat" name="Superheat" stroke="#1F7A8C" strokeWidth={2} dot={{ r: 3 }} connectNulls />
+            <Line isAnimationActive={false} dataKey="subcooling" name="Subcooling" stroke="#B5562B" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3 }} connectNulls />
           </LineChart>
         </ResponsiveContainer>
       </figure>
@@ -37,8 +37,8 @@ export function CircuitTrend({ readings, timeZone, circuit }: { readings: UnitFi
             <YAxis tick={{ fontSize: 11 }} width={44} />
             <Tooltip labelFormatter={(v) => formatInZone(new Date(v as number), timeZone)} formatter={(v) => `${(v as number).toFixed(0)} psig`} />
             <Legend />
-            <Line dataKey="suction" name="Suction" stroke="#3F5E8C" strokeWidth={2} dot={{ r: 3 }} connectNulls />
-            <Line dataKey="discharge" name="Discharge / liquid" stroke="#6B4E8E" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3 }} connectNulls />
+            <Line isAnimationActive={false} dataKey="suction" name="Suction" stroke="#3F5E8C" strokeWidth={2} dot={{ r: 3 }} connectNulls />
+            <Line isAnimationActive={false} dataKey="discharge" name="Discharge / liquid" stroke="#6B4E8E" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3 }} connectNulls />
           </LineChart>
         </ResponsiveContainer>
       </figure>

@@ -199,7 +199,7 @@ function UnitFileView({ id }: { id: string }) {
         }
       />
       <div className="flex flex-col gap-5">
-        <div className="grid gap-5 lg:grid-cols-3">
+        <div className="grid grid-cols-1 gap-5 lg:grid-cols-3 [&>*]:min-w-0">
           <Card title="Identity" className="lg:col-span-2">
             <div className="flex flex-col gap-4 sm:flex-row">
               <div className="flex-1">
@@ -288,7 +288,7 @@ function UnitFileView({ id }: { id: string }) {
           )}
         </Card>
 
-        <div className="grid gap-5 xl:grid-cols-2">
+        <div className="grid grid-cols-1 gap-5 xl:grid-cols-2 [&>*]:min-w-0">
           <Card title={`Alarm timeline (${f.alarms.length})`}>
             {f.alarms.length === 0 ? (
               <p className="text-sm text-slate">No alarms recorded for this unit.</p>
