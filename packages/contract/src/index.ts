@@ -7,3 +7,5 @@ export * from './visits';
 export * from './day';
 export * from './work-orders';
 export * from './roster';
+export * from './fix-quality';
+export * from './unit-file';
