@@ -1,0 +1,95 @@
+/** First-time-fix and callback rates over service jobs. */
+import { DAY_MS, instantMs, type Instant } from './dates';
+
+export type FirstVisitOutcome = 'resolved' | 'needs_return' | 'declined';
+export type FollowUpKind = 'return_visit' | 'callback';
+
+export interface FixQualityJob {
+  id: string;
+  /** Only 'service_call' jobs are eligible. */
+  kind: string;
+  firstVisitOutcome: FirstVisitOutcome;
+  firstVisitClosedAt: Instant;
+  followUps: readonly { kind: FollowUpKind; openedAt: Instant }[];
+}
+
+export interface FixQualityOptions {
+  /** Callback window in days after the first visit closed; default 30 (common practice, no source). */
+  windowDays?: number;
+}
+
+export interface FixQualityResult {
+  /** service_call jobs whose first visit was not declined. */
+  eligible: number;
+  /** Eligible, first visit resolved, and no follow-up opened within the window. */
+  firstTimeFixed: number;
+  /** firstTimeFixed / eligible; null when nothing is eligible. */
+  firstTimeFixRate: number | null;
+  /** Eligible jobs resolved on the first visit with a callback opened within the window. */
+  callbacks: number;
+  /** callbacks / eligible jobs resolved on the first visit; null when there are none. */
+  callbackRate: number | null;
+  /** Eligible jobs resolved on the first visit (the callback-rate denominator). */
+  resolvedFirstVisits: number;
+}
+
+/**
+ * First-time-fix and callback rates. A follow-up is "within the window" when it was opened no later
+ * than `windowDays` × 24 h after the first visit closed (inclusive); a follow-up dated before the
+ * close counts as within the window too. Rates are fractions 0..1, or null with a zero denominator.
+ */
+export function fixQuality(jobs: readonly FixQualityJob[], opts: FixQualityOptions = {}): FixQualityResult {
+  const windowDays = opts.windowDays ?? 30;
+  if (typeof windowDays !== 'number' || !Number.isFinite(windowDays) || windowDays < 0) {
+    throw new RangeError('windowDays must be a finite number of 0 or more');
+  }
+  const windowMs = windowDays * DAY_MS;
+  let eligible = 0;
+  let firstTimeFixed = 0;
+  let callbacks = 0;
+  let resolved = 0;
+  for (const job of jobs) {
+    if (job.kind !== 'service_call' || job.firstVisitOutcome === 'declined') continue;
+    eligible++;
+    if (job.firstVisitOutcome !== 'resolved') continue;
+    resolved++;
+    const closed = instantMs(job.firstVisitClosedAt, `job ${job.id} firstVisitClosedAt`);
+    let anyFollowUp = false;
+    let callback = false;
+    for (const f of job.followUps) {
+      const opened = instantMs(f.openedAt, `job ${job.id} follow-up openedAt`);
+      if (opened - closed <= windowMs) {
+        anyFollowUp = true;
+        if (f.kind === 'callback') callback = true;
+      }
+    }
+    if (!anyFollowUp) firstTimeFixed++;
+    if (callback) callbacks++;
+  }
+  return {
+    eligible,
+    firstTimeFixed,
+    firstTimeFixRate: eligible === 0 ? null : firstTimeFixed / eligible,
+    callbacks,
+    callbackRate: resolved === 0 ? null : callbacks / resolved,
+    resolvedFirstVisits: resolved,
+  };
+}
+
+/** {@link fixQuality} per group (branch, technician, unit kind, ...), keyed by `groupOf(job)`. */
+export function fixQualityBy<J extends FixQualityJob>(
+  jobs: readonly J[],
+  groupOf: (job: J) => string,
+  opts: FixQualityOptions = {},
+): Record<string, FixQualityResult> {
+  const groups = new Map<string, J[]>();
+  for (const j of jobs) {
+    const k = groupOf(j);
+    const list = groups.get(k);
+    if (list) list.push(j);
+    else groups.set(k, [j]);
+  }
+  const out: Record<string, FixQualityResult> = {};
+  for (const [k, list] of groups) out[k] = fixQuality(list, opts);
+  return out;
+}

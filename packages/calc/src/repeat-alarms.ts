@@ -1,0 +1,155 @@
+/** Repeat-alarm detection: the same unit and alarm code N times within M days. */
+import { DAY_MS, instantMs, type Instant } from './dates';
+
+/** Fast path for 'YYYY-MM-DDTHH:MM:SS[.sss]Z'; anything else goes through Date.parse. */
+function parseInstant(v: string | Date): number {
+  if (v instanceof Date) return v.getTime();
+  if (typeof v !== 'string') return Number.NaN;
+  const n = v.length;
+  if ((n === 20 || n === 24) && v.charCodeAt(n - 1) === 90 /* Z */ && v.charCodeAt(10) === 84 /* T */) {
+    const d = (i: number) => v.charCodeAt(i) - 48;
+    const y = d(0) * 1000 + d(1) * 100 + d(2) * 10 + d(3);
+    const mo = d(5) * 10 + d(6);
+    const day = d(8) * 10 + d(9);
+    const h = d(11) * 10 + d(12);
+    const mi = d(14) * 10 + d(15);
+    const se = d(17) * 10 + d(18);
+    const ms = n === 24 ? d(20) * 100 + d(21) * 10 + d(22) : 0;
+    if (mo >= 1 && mo <= 12 && day >= 1 && day <= 31 && h <= 23 && mi <= 59 && se <= 59 && ms >= 0 && ms <= 999 && y >= 0) {
+      const t = Date.UTC(y, mo - 1, day, h, mi, se, ms);
+      // Reject impossible dates such as Feb 30 (Date.UTC would roll them over) and stray characters.
+      if (Number.isFinite(t) && new Date(t).getUTCDate() === day && /^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d(\.\d{3})?Z$/.test(v)) return t;
+      return Number.NaN;
+    }
+  }
+  return Date.parse(v);
+}
+
+export interface UnitAlarm {
+  unitId: string;
+  /** Circuit the controller reported (e.g. 1, 2, 'A'). */
+  circuit: string | number | null;
+  code: string;
+  raisedAt: Instant;
+}
+
+export interface RepeatAlarmOptions {
+  /** Span in days; default 30. */
+  windowDays?: number;
+  /** Least number of alarms in the span; default 2. */
+  minCount?: number;
+  /** When given, only alarms raised in [asOf − windowDays, asOf] count ("in the last M days"). */
+  asOf?: Instant;
+}
+
+export interface RepeatAlarmGroup {
+  unitId: string;
+  code: string;
+  /** Alarms in the reported span. */
+  count: number;
+  /** First and last raisedAt in the span (ISO-8601, UTC). */
+  first: string;
+  last: string;
+  /** Distinct circuits reported in the span, in order of first appearance (null dropped). */
+  circuits: (string | number)[];
+  /** More than one circuit reported: a hint that the alarm may be attributed to the wrong circuit. */
+  circuitsDiffer: boolean;
+  /** All alarms of this unit and code in the input, in or out of the span. */
+  totalCount: number;
+}
+
+/**
+ * Groups alarms by unit and code and reports the groups that repeat.
+ *
+ * The window: a group repeats when at least `minCount` of its alarms have raisedAt values lying
+ * within a span of `windowDays` days — last − first ≤ windowDays × 24 h, inclusive (so exactly N in
+ * exactly M days counts; N spread over M days + 1 ms does not). Without `asOf` the reported span is
+ * the one holding the most alarms (the earliest such span on a tie); with `asOf` it is
+ * [asOf − windowDays, asOf]. Results are sorted by count (descending), then unit and code.
+ */
+export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOptions = {}): RepeatAlarmGroup[] {
+  const windowDays = opts.windowDays ?? 30;
+  const minCount = opts.minCount ?? 2;
+  if (typeof windowDays !== 'number' || !Number.isFinite(windowDays) || windowDays < 0) throw new RangeError('windowDays must be a finite number of 0 or more');
+  if (!Number.isInteger(minCount) || minCount < 1) throw new RangeError('minCount must be an integer of 1 or more');
+  const windowMs = windowDays * DAY_MS;
+  const asOf = opts.asOf === undefined ? null : instantMs(opts.asOf, 'asOf');
+
+  interface Bucket {
+    unitId: string;
+    code: string;
+    idx: number[];
+  }
+  const buckets = new Map<string, Map<string, Bucket>>();
+  const all: Bucket[] = [];
+  const times = new Float64Array(alarms.length);
+  for (let i = 0; i < alarms.length; i++) {
+    const a = alarms[i] as UnitAlarm;
+    const t = parseInstant(a.raisedAt);
+    if (!Number.isFinite(t)) throw new RangeError(`alarms[${i}].raisedAt must be an ISO-8601 string or a valid Date`);
+    times[i] = t;
+    let byCode = buckets.get(a.unitId);
+    if (!byCode) {
+      byCode = new Map();
+      buckets.set(a.unitId, byCode);
+    }
+    let b = byCode.get(a.code);
+    if (!b) {
+      b = { unitId: a.unitId, code: a.code, idx: [] };
+      byCode.set(a.code, b);
+      all.push(b);
+    }
+    b.idx.push(i);
+  }
+
+  const out: RepeatAlarmGroup[] = [];
+  for (const b of all) {
+    const idx = b.idx;
+    if (idx.length < minCount) continue;
+    idx.sort((x, y) => (times[x] as number) - (times[y] as number));
+    let from = 0;
+    let to = -1; // inclusive indices into idx
+    if (asOf !== null) {
+      const lo = asOf - windowMs;
+      for (let k = 0; k < idx.length; k++) {
+        const t = times[idx[k] as number] as number;
+        if (t < lo) from = k + 1;
+        else if (t <= asOf) to = k;
+      }
+    } else {
+      let bestLen = 0;
+      let left = 0;
+      for (let right = 0; right < idx.length; right++) {
+        const tr = times[idx[right] as number] as number;
+        while (tr - (times[idx[left] as number] as number) > windowMs) left++;
+        if (right - left + 1 > bestLen) {
+          bestLen = right - left + 1;
+          from = left;
+          to = right;
+        }
+      }
+    }
+    const count = to - from + 1;
+    if (count < minCount) continue;
+    const circuits: (string | number)[] = [];
+    const seen = new Set<string | number>();
+    for (let k = from; k <= to; k++) {
+      const c = (alarms[idx[k] as number] as UnitAlarm).circuit;
+      if (c === null || c === undefined || seen.has(c)) continue;
+      seen.add(c);
+      circuits.push(c);
+    }
+    out.push({
+      unitId: b.unitId,
+      code: b.code,
+      count,
+      first: new Date(times[idx[from] as number] as number).toISOString(),
+      last: new Date(times[idx[to] as number] as number).toISOString(),
+      circuits,
+      circuitsDiffer: circuits.length > 1,
+      totalCount: idx.length,
+    });
+  }
+  out.sort((a, b) => b.count - a.count || (a.unitId < b.unitId ? -1 : a.unitId > b.unitId ? 1 : a.code < b.code ? -1 : a.code > b.code ? 1 : 0));
+  return out;
+}
