@@ -123,7 +123,7 @@ export const DUE_SOON_DAYS = 7;
 export type DeadlineState = 'overdue' | 'due_soon' | 'ok' | 'met';
 
 export interface LeakDeadline {
-  what: 'repair' | 'initial_verification' | 'follow_up_verification' | 'retrofit_retire_plan';
+  what: 'repair' | 'initial_verification' | 'follow_up_verification' | 'retrofit_retire_plan' | 'retrofit_retire_complete';
   due: string;
   daysLeft: number;
   state: DeadlineState;
