@@ -63,6 +63,7 @@ interface Cell {
   booked: number;
   dayStart: number;
   dayEnd: number;
+  win: { start: number; end: number } | null;
 }
 
 const MINUTE = 60_000;
@@ -95,7 +96,7 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
       const bounds = localDayBounds(day, tech.timeZone);
       let booked = 0;
       for (const b of iv) booked += Math.max(0, Math.min(b.end, bounds.end) - Math.max(b.start, bounds.start)) / MINUTE;
-      cells.push({ tech, day, capacity: win ? (win.end - win.start) / MINUTE : 0, booked, dayStart: bounds.start, dayEnd: bounds.end });
+      cells.push({ tech, day, capacity: win ? (win.end - win.start) / MINUTE : 0, booked, dayStart: bounds.start, dayEnd: bounds.end, win });
     }
   }
 
@@ -113,7 +114,7 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
     let best: { cell: Cell; slot: NonNullable<ReturnType<typeof findSlot>>; cost: number } | null = null;
     for (const c of cands) {
       if (c.booked + job.durationMinutes > c.capacity + 1e-9) continue;
-      const slot = findSlot(c.tech, c.day, job, busy.get(c.tech.id) ?? [], opts);
+      const slot = findSlot(c.tech, c.day, job, busy.get(c.tech.id) ?? [], opts, c.win);
       if (!slot) continue;
       const cost = ratio2(c.booked + job.durationMinutes, c.capacity) - ratio2(c.booked, c.capacity) + (travelWeight * slot.detourMinutes) / 480;
       if (!best || cost < best.cost - 1e-12) best = { cell: c, slot, cost };
@@ -183,7 +184,7 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
       const p = placed.get(job.id);
       if (!p) continue;
       removeBusy(p);
-      const keepSlot = findSlot(p.cell.tech, p.cell.day, job, busy.get(p.cell.tech.id) ?? [], opts);
+      const keepSlot = findSlot(p.cell.tech, p.cell.day, job, busy.get(p.cell.tech.id) ?? [], opts, p.cell.win);
       const keepCost = keepSlot
         ? ratio2(p.cell.booked + job.durationMinutes, p.cell.capacity) - ratio2(p.cell.booked, p.cell.capacity) + (travelWeight * keepSlot.detourMinutes) / 480
         : Infinity;

@@ -1,6 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import {
+  isRefrigerantId,
   listRefrigerants,
   pressureRange,
   refrigerantIds,
@@ -43,6 +44,12 @@ describe('listRefrigerants', () => {
       }
       expect(glide >= 0.5, `${r.id} glide ${glide}`).toBe(r.hasGlide);
     }
+  });
+
+  it('isRefrigerantId narrows exact ids only', () => {
+    expect(isRefrigerantId('R-410A')).toBe(true);
+    expect(isRefrigerantId('r-410a')).toBe(false);
+    expect(isRefrigerantId(410)).toBe(false);
   });
 
   it('refrigerantInfo rejects unknown ids naming the valid ones', () => {

@@ -339,7 +339,7 @@ function heuristic(m: Model): number[] {
   const byDeadline = Array.from({ length: n }, (_, i) => i).sort((a, b) => (m.to[a] as number) - (m.to[b] as number) || (m.from[a] as number) - (m.from[b] as number));
   starts.push(byDeadline);
   const rand = mulberry32(0xc011 + n);
-  const restarts = n <= 15 ? 8 : n <= 30 ? 6 : 2;
+  const restarts = n <= 15 ? 8 : n <= 30 ? 6 : 1;
   for (let r = 0; r < restarts; r++) {
     const p = Array.from({ length: n }, (_, i) => i);
     for (let i = n - 1; i > 0; i--) {

@@ -206,14 +206,22 @@ function jobLimits(job: SchedulingJob): { earliest: number; latest: number } {
  * limits, not overlapping `busy` (sorted by start), leaving drive time from the previous stop and
  * to the next. Null when none fits.
  */
-export function findSlot(tech: Technician, day: IsoDate, job: SchedulingJob, busy: readonly Interval[], opts: SlotOptions = {}): Slot | null {
-  const win = workingWindow(tech, day);
+export function findSlot(
+  tech: Technician,
+  day: IsoDate,
+  job: SchedulingJob,
+  busy: readonly Interval[],
+  opts: SlotOptions = {},
+  window?: { start: number; end: number } | null,
+): Slot | null {
+  const win = window === undefined ? workingWindow(tech, day) : window;
   if (!win) return null;
   const { earliest, latest } = jobLimits(job);
   const step = (opts.slotStepMinutes ?? 5) * MINUTE;
   const dur = job.durationMinutes * MINUTE;
   const here: LatLon = { lat: job.lat, lon: job.lon };
-  const inDay = busy.filter((b) => b.end > win.start && b.start < win.end);
+  const inDay: Interval[] = [];
+  for (const b of busy) if (b.end > win.start && b.start < win.end) inDay.push(b);
   let free = (win.end - win.start) / MINUTE;
   for (const b of inDay) free -= overlapMinutes(b.start, b.end, win.start, win.end);
   let prevEnd = win.start;

@@ -27,8 +27,8 @@ export function createDiskStorage(root: string): Storage {
       await writeFile(pathFor(key), content, { flag: 'wx' });
       return key;
     },
-    get: (key) => readFile(pathFor(key)),
-    remove: (key) => rm(pathFor(key), { force: true }),
+    get: async (key) => readFile(pathFor(key)),
+    remove: async (key) => rm(pathFor(key), { force: true }),
   };
 }
 

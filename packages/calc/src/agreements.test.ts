@@ -1,0 +1,71 @@
+import { describe, expect, it } from 'vitest';
+import { expandAgreementVisits, levelVisitsAcrossWeeks, recurrenceDates } from './agreements';
+
+describe('expandAgreementVisits', () => {
+  it('quarterly visits move off weekends and holidays to the next working day', () => {
+    const r = expandAgreementVisits({
+      rrule: 'RRULE:FREQ=MONTHLY;INTERVAL=3;BYMONTHDAY=1',
+      termStart: '2027-01-01',
+      termEnd: '2027-12-31',
+      timeZone: 'America/Chicago',
+      holidays: ['2027-01-01'],
+    });
+    expect(r).toEqual([
+      { date: '2027-01-04', originalDate: '2027-01-01', moved: true }, // holiday (Fri) → Mon
+      { date: '2027-04-01', originalDate: '2027-04-01', moved: false },
+      { date: '2027-07-01', originalDate: '2027-07-01', moved: false },
+      { date: '2027-10-01', originalDate: '2027-10-01', moved: false },
+    ]);
+  });
+
+  it('moves back to the previous working day at the end of the term, and merges collisions', () => {
+    const r = expandAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-19', termEnd: '2027-03-21', timeZone: 'America/Chicago', holidays: [] });
+    // Fri 19, Sat 20 → (Mon 22 is after the term) → Fri 19 (merged), Sun 21 → Fri 19 (merged)
+    expect(r).toEqual([{ date: '2027-03-19', originalDate: '2027-03-19', moved: false }]);
+  });
+
+  it('reads a UTC DTSTART in the branch zone and clips to the term', () => {
+    const d = recurrenceDates('DTSTART:20270302T030000Z\nRRULE:FREQ=WEEKLY;COUNT=3', '2027-03-01', '2027-03-31', 'America/Chicago');
+    expect(d).toEqual(['2027-03-01', '2027-03-08', '2027-03-15']); // 03:00Z is the evening before in Chicago
+    expect(recurrenceDates('RRULE:FREQ=WEEKLY', '2027-03-01', '2027-03-10', 'UTC')).toEqual(['2027-03-01', '2027-03-08']);
+  });
+
+  it('rejects bad input', () => {
+    const base = { termStart: '2027-01-01', termEnd: '2027-12-31', timeZone: 'America/Chicago', holidays: [] };
+    expect(() => expandAgreementVisits({ ...base, rrule: 'RRULE:FREQ=SOMETIMES' })).toThrow(RangeError);
+    expect(() => expandAgreementVisits({ ...base, rrule: 'SUMMARY:x' })).toThrow(RangeError);
+    expect(() => expandAgreementVisits({ ...base, rrule: 'FREQ=DAILY', termEnd: '2026-01-01' })).toThrow(RangeError);
+    expect(() => expandAgreementVisits({ ...base, rrule: 'FREQ=DAILY', timeZone: 'Nowhere/City' })).toThrow(RangeError);
+    expect(() => expandAgreementVisits({ ...base, rrule: 'FREQ=DAILY', weekendDays: [0, 1, 2, 3, 4, 5, 6] })).toThrow(RangeError);
+  });
+});
+
+describe('levelVisitsAcrossWeeks', () => {
+  it('moves the overflow of a week forward to the next week with room', () => {
+    const visits = [
+      { id: 'a', date: '2027-04-05' },
+      { id: 'b', date: '2027-04-06' },
+      { id: 'c', date: '2027-04-07' },
+      { id: 'd', date: '2027-04-12' },
+    ];
+    const r = levelVisitsAcrossWeeks(visits, { maxPerWeek: 2 });
+    expect(r).toEqual([
+      { id: 'a', date: '2027-04-05', originalDate: '2027-04-05', moved: false },
+      { id: 'b', date: '2027-04-06', originalDate: '2027-04-06', moved: false },
+      { id: 'c', date: '2027-04-14', originalDate: '2027-04-07', moved: true },
+      { id: 'd', date: '2027-04-12', originalDate: '2027-04-12', moved: false },
+    ]);
+  });
+  it('skips holidays in the target week and gives up after maxShiftWeeks', () => {
+    const r = levelVisitsAcrossWeeks(
+      [
+        { id: 'a', date: '2027-04-05' },
+        { id: 'b', date: '2027-04-05' },
+      ],
+      { maxPerWeek: 1, holidays: ['2027-04-12'] },
+    );
+    expect(r[1]).toMatchObject({ id: 'b', date: '2027-04-13', moved: true });
+    expect(() => levelVisitsAcrossWeeks([{ id: 'a', date: '2027-04-05' }, { id: 'b', date: '2027-04-05' }], { maxPerWeek: 1, maxShiftWeeks: 0 })).toThrow(RangeError);
+    expect(() => levelVisitsAcrossWeeks([], { maxPerWeek: 0 })).toThrow(RangeError);
+  });
+});
