@@ -222,3 +222,16 @@ export const queueReturnVisitSchema = z.strictObject({
   latestDate: isoDateSchema,
 });
 export type QueueReturnVisit = z.infer<typeof queueReturnVisitSchema>;
+
+/** A unit to pick in the alarm and agreement forms. */
+export interface UnitChoice {
+  id: string;
+  branchId: string;
+  tag: string;
+  make: string;
+  model: string;
+  serial: string;
+  refrigerant: string;
+  siteId: string;
+  siteName: string;
+}

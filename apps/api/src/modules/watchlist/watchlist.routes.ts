@@ -24,6 +24,7 @@ import {
   patchLeakCase,
   queueReturnVisit,
   repeatAlarmUnits,
+  unitChoices,
 } from './watchlist.service';
 
 const managers = requireRole('branch_manager', 'owner');
@@ -49,6 +50,7 @@ export function watchlistRoutes(ctx: AppContext): Router {
     '/repeat-alarms',
     endpoint({ query: repeatAlarmQuerySchema }, async ({ user, query }) => repeatAlarmUnits(ctx, await branchesInScope(ctx.db, user, query.branchId), ctx.clock.now())),
   );
+  r.get('/units', endpoint({ query: returnVisitQuerySchema }, async ({ user, query }) => ({ units: await unitChoices(ctx, user, query.branchId) })));
   r.get('/return-visits', endpoint({ query: returnVisitQuerySchema }, async ({ user, query }) => ({ returnVisits: await listReturnVisits(ctx, user, query.branchId) })));
   r.patch(
     '/return-visits/:id',

@@ -531,4 +531,15 @@ export async function queueReturnVisit(ctx: AppContext, user: SessionUser, id: s
   return row;
 }
 
+/** Units of the branches in scope with their site (the alarm form's and agreement form's pickers). */
+export async function unitChoices(ctx: AppContext, user: SessionUser, branchId: string | undefined) {
+  return ctx.db
+    .select({ id: units.id, branchId: units.branchId, tag: units.tag, make: units.make, model: units.model, serial: units.serial, refrigerant: units.refrigerant, siteId: sites.id, siteName: sites.name })
+    .from(units)
+    .innerJoin(sites, eq(sites.id, units.siteId))
+    .where(and(branchFilter(user, branchId, units.branchId), sql`${units.archivedAt} is null`))
+    .orderBy(asc(sites.name), asc(units.tag))
+    .limit(5000);
+}
+
 export { branchesInScope };
