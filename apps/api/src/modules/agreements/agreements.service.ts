@@ -177,6 +177,8 @@ export async function patchAgreement(ctx: AppContext, user: SessionUser, id: str
 
 interface Planned {
   ruleDate: string;
+  /** The working day the rule date moved to (before levelling). */
+  workingDate: string;
   plannedDate: string;
   moved: string | null;
 }
@@ -248,7 +250,7 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
         if (v.moved) reasons.push(holidays.has(v.originalDate) ? `moved off the holiday ${v.originalDate}` : `moved off the weekend (${v.originalDate})`);
         if (l.date !== v.date) reasons.push(`moved to a later week: the week of ${v.date} already had ${maxPerWeek} planned visits`);
         const text = reasons.join('; ');
-        return { ruleDate: v.originalDate, plannedDate: l.date, moved: text ? text[0]!.toUpperCase() + text.slice(1) : null };
+        return { ruleDate: v.originalDate, workingDate: v.date, plannedDate: l.date, moved: text ? text[0]!.toUpperCase() + text.slice(1) : null };
       });
     }
   }
@@ -257,19 +259,40 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
     .select({ id: workOrders.id, state: workOrders.state, plannedDate: workOrders.plannedDate, purpose: workOrders.purpose })
     .from(workOrders)
     .where(and(eq(workOrders.agreementId, id), eq(workOrders.kind, 'planned_maintenance')));
-  const byRule = new Map<string, (typeof existing)[number]>();
+  // Visits written by Coilpath carry their rule date in `purpose`; others (imported, demo data) are
+  // matched by their planned date: the rule date, the working day it moved to, or the levelled day.
+  type Existing = (typeof existing)[number];
+  const byPurpose = new Map<string, Existing>();
+  const byDate = new Map<string, Existing[]>();
+  const better = (x: Existing | undefined, y: Existing) => !x || (x.state === 'cancelled' && y.state !== 'cancelled');
   for (const e of existing) {
-    const key = ruleDateOf(e.purpose) ?? e.plannedDate;
-    if (key && (!byRule.has(key) || byRule.get(key)!.state === 'cancelled')) byRule.set(key, e);
+    const rd = ruleDateOf(e.purpose);
+    if (rd) {
+      if (better(byPurpose.get(rd), e)) byPurpose.set(rd, e);
+    } else if (e.plannedDate) byDate.set(e.plannedDate, [...(byDate.get(e.plannedDate) ?? []), e]);
   }
-  const visits: PlanVisit[] = [];
   const used = new Set<string>();
-  for (const p of planned) {
-    const e = byRule.get(p.ruleDate);
+  const find = (p: Planned): Existing | undefined => {
+    const direct = byPurpose.get(p.ruleDate);
+    if (direct && !used.has(direct.id)) return direct;
+    for (const d of [p.ruleDate, p.workingDate, p.plannedDate]) {
+      const hit = (byDate.get(d) ?? []).filter((e) => !used.has(e.id)).sort((x, y) => Number(x.state === 'cancelled') - Number(y.state === 'cancelled'))[0];
+      if (hit) return hit;
+    }
+    return undefined;
+  };
+  const visits: PlanVisit[] = [];
+  /** Unplaced visits matched by date that do not carry their rule date yet: apply records it. */
+  const adopt: { id: string; ruleDate: string }[] = [];
+  for (const { workingDate: _w, ...p } of planned) {
+    const e = find({ ...p, workingDate: _w });
     if (e) used.add(e.id);
     if (!e || e.state === 'cancelled') visits.push({ ...p, action: 'new', workOrderId: e?.id ?? null, state: e?.state ?? null });
     else if (e.state !== 'unplaced') visits.push({ ...p, plannedDate: e.plannedDate ?? p.plannedDate, moved: null, action: 'locked', workOrderId: e.id, state: e.state });
-    else visits.push({ ...p, action: e.plannedDate === p.plannedDate ? 'keep' : 'move', workOrderId: e.id, state: e.state });
+    else {
+      visits.push({ ...p, action: e.plannedDate === p.plannedDate ? 'keep' : 'move', workOrderId: e.id, state: e.state });
+      if (e.purpose !== purposeOf(p.ruleDate)) adopt.push({ id: e.id, ruleDate: p.ruleDate });
+    }
   }
   for (const e of existing) {
     if (used.has(e.id) || e.state === 'cancelled') continue;
@@ -282,7 +305,7 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
   visits.sort((x, y) => x.plannedDate.localeCompare(y.plannedDate) || x.ruleDate.localeCompare(y.ruleDate));
   const counts: PlanPreview['counts'] = { new: 0, keep: 0, move: 0, locked: 0, cancel: 0 };
   for (const v of visits) counts[v.action]++;
-  return { a, tz, visits, counts };
+  return { a, tz, visits, counts, adopt };
 }
 
 export async function previewPlan(ctx: AppContext, user: SessionUser, id: string): Promise<PlanPreview> {
@@ -292,7 +315,7 @@ export async function previewPlan(ctx: AppContext, user: SessionUser, id: string
 
 export async function applyPlan(ctx: AppContext, user: SessionUser, id: string): Promise<PlanPreview & { applied: true }> {
   return ctx.db.transaction(async (tx) => {
-    const { a, tz, visits, counts } = await computePlan(tx, ctx, user, id, true);
+    const { a, tz, visits, counts, adopt } = await computePlan(tx, ctx, user, id, true);
     const unitRows = await tx
       .select({ id: units.id, tag: units.tag })
       .from(agreementUnits)
@@ -308,6 +331,7 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
       .join(' ');
     const now = ctx.clock.now();
     const values = (v: PlanVisit) => ({
+      purpose: purposeOf(v.ruleDate),
       plannedDate: v.plannedDate,
       latestAt: new Date(zonedInstant(addDays(v.plannedDate, PM_GRACE_DAYS), '23:59', tz)),
       estimatedMinutes: a.visitMinutes,
@@ -325,7 +349,6 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
           kind: 'planned_maintenance' as const,
           state: 'unplaced' as const,
           priority: 'normal' as const,
-          purpose: purposeOf(v.ruleDate),
           createdById: user.id,
           ...values(v),
         })),
@@ -341,6 +364,9 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
       } else if (v.action === 'cancel') {
         await tx.update(workOrders).set({ state: 'cancelled', updatedAt: now }).where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
       }
+    }
+    for (const x of adopt) {
+      await tx.update(workOrders).set({ purpose: purposeOf(x.ruleDate) }).where(and(eq(workOrders.id, x.id), eq(workOrders.state, 'unplaced')));
     }
     await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.plan_applied', entity: 'agreement', entityId: id, details: counts });
     return { agreementId: id, visits, counts, applied: true as const };

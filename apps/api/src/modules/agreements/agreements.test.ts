@@ -134,6 +134,26 @@ describe('visit plan', () => {
     expect(await pmRows(a.id)).toHaveLength(12);
   });
 
+  it('recognises visits written before (no rule date recorded) by their working day, and never duplicates them', async () => {
+    const mgr = await agent(f.inA.manager);
+    const site = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    const a = (await mgr.post('/api/agreements').send(quarterly(site.site.id, [site.unit.id], { name: 'Older visits', recurrence: { preset: 'quarterly', startMonth: 1, dayOfMonth: 16 } }))).body.agreement;
+    // 16 Jan 2027 is a Saturday: the visit was planned on Monday the 18th and is booked; April's (a Friday) is unplaced.
+    const pm = (plannedDate: string, state: 'booked' | 'unplaced') =>
+      makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.site.id, kind: 'planned_maintenance', agreementId: a.id, plannedDate, state });
+    const jan = await pm('2027-01-18', 'booked');
+    const apr = await pm('2027-04-16', 'unplaced');
+    const preview = await mgr.post(`/api/agreements/${a.id}/plan`);
+    expect(preview.body.counts).toEqual({ new: 2, keep: 1, move: 0, locked: 1, cancel: 0 });
+    expect(preview.body.visits.find((v: { workOrderId: string }) => v.workOrderId === jan.id)).toMatchObject({ action: 'locked', ruleDate: '2027-01-16' });
+    await mgr.post(`/api/agreements/${a.id}/plan/apply`);
+    const rows = await pmRows(a.id);
+    expect(rows).toHaveLength(4);
+    expect(rows.find((r) => r.id === apr.id)!.purpose).toBe('agreement-visit:2027-04-16');
+    expect(rows.find((r) => r.id === jan.id)!.purpose).toBeNull();
+    expect((await mgr.post(`/api/agreements/${a.id}/plan/apply`)).body.counts).toEqual({ new: 0, keep: 3, move: 0, locked: 1, cancel: 0 });
+  });
+
   it('levels visits across weeks: at most 5 planned visits per technician a week', async () => {
     // Branch B has one technician, so one week takes at most 5 planned visits.
     const mgrB = await agent(f.inB.manager);

@@ -190,7 +190,7 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
         <div><dt className="text-slate">SLA response</dt><dd>{a.slaHours} hours</dd></div>
         <div><dt className="text-slate">Price</dt><dd>{formatMoney(a.priceCents)}</dd></div>
         <div><dt className="text-slate">Per visit</dt><dd>{a.visitMinutes} minutes</dd></div>
-        <div><dt className="text-slate">Status</dt><dd>{a.status}</dd></div>
+        <div><dt className="text-slate">Status</dt><dd>{a.status === 'active' ? 'Active' : a.status === 'ended' ? 'Ended' : 'Cancelled'}</dd></div>
         {a.tasks.length > 0 && (
           <div className="sm:col-span-2 lg:col-span-4"><dt className="text-slate">Tasks per visit</dt><dd>{a.tasks.join(' · ')}</dd></div>
         )}
@@ -265,7 +265,7 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
               {a.visits.length} planned visit{a.visits.length === 1 ? '' : 's'}; {upcoming.length} ahead, waiting in the Roster queue until booked.
             </p>
             <Suspense fallback={<LoadingState label="Loading the calendar…" />}>
-              <VisitCalendar visits={a.visits} name={a.name} initialDate={initialDate} />
+              <VisitCalendar visits={a.visits} name={a.name} initialDate={initialDate} today={today} />
             </Suspense>
           </>
         )}

@@ -12,13 +12,14 @@ const stateColour: Record<string, string> = {
 };
 
 /** A month calendar of an agreement's planned visits (FullCalendar dayGrid; loaded lazily, it is heavy). */
-export default function VisitCalendar({ visits, name, initialDate }: { visits: PlannedVisitRow[]; name: string; initialDate: string }) {
+export default function VisitCalendar({ visits, name, initialDate, today }: { visits: PlannedVisitRow[]; name: string; initialDate: string; today: string }) {
   return (
     <div className="coilpath-calendar text-sm" aria-label={`Planned visits of ${name} on a month calendar`}>
       <FullCalendar
         plugins={[dayGridPlugin]}
         initialView="dayGridMonth"
         initialDate={initialDate}
+        now={today}
         height="auto"
         firstDay={1}
         headerToolbar={{ left: 'title', center: '', right: 'prev,today,next' }}
