@@ -1,4 +1,9 @@
-import type { Db } from './client';
+import { count, eq } from 'drizzle-orm';
+import { hashPassword } from '../auth/password';
+import type { Db, Tx } from './client';
+import * as schema from './schema';
+import { isRefrigerantId, subcooling, superheat } from '@coilpath/calc';
+import { buildScenario, type Rows } from './seed/scenario';
 
 /** The one demo password, printed at start and shown on the sign-in page when demo data is loaded. */
 export const DEMO_PASSWORD = 'coilpath-demo';
@@ -8,10 +13,88 @@ export interface SeedOptions {
   today?: string;
 }
 
+const CHUNK = 500;
+
+async function insertAll(tx: Tx, table: Parameters<Tx['insert']>[0], values: object[]) {
+  for (let i = 0; i < values.length; i += CHUNK) {
+    await tx.insert(table).values(values.slice(i, i + CHUNK) as never);
+  }
+}
+
+/** Tables in foreign-key order, each with its rows. */
+function inOrder(rows: Rows): [Parameters<Tx['insert']>[0], object[]][] {
+  return [
+    [schema.branches, rows.branches],
+    [schema.users, rows.users],
+    [schema.customers, rows.customers],
+    [schema.sites, rows.sites],
+    [schema.units, rows.units],
+    [schema.circuits, rows.circuits],
+    [schema.agreements, rows.agreements],
+    [schema.agreementUnits, rows.agreementUnits],
+    [schema.workOrders, rows.workOrders],
+    [schema.bookings, rows.bookings],
+    [schema.visits, rows.visits],
+    [schema.visitEvents, rows.visitEvents],
+    [schema.readings, rows.readings.map(withDerivedValues)],
+    [schema.findings, rows.findings],
+    [schema.refrigerantEvents, rows.refrigerantEvents],
+    [schema.leakCases, rows.leakCases],
+    [schema.verificationTests, rows.verificationTests],
+    [schema.alarms, rows.alarms],
+    [schema.warrantyClaims, rows.warrantyClaims],
+  ];
+}
+
 /**
  * Loads the invented demo scenario (DESIGN §8). Deterministic apart from the anchoring date and
- * idempotent: a database that already holds demo data is left as it is.
+ * idempotent: a database that already holds demo data (or any branch) is left as it is.
  */
-export async function seedDemo(_db: Db, _opts: SeedOptions = {}): Promise<{ seeded: boolean }> {
-  return { seeded: false };
+export async function seedDemo(db: Db, opts: SeedOptions = {}): Promise<{ seeded: boolean }> {
+  const today = opts.today ?? new Date().toISOString().slice(0, 10);
+  if (!/^\d{4}-\d{2}-\d{2}$/.test(today)) throw new Error(`seedDemo: today must be YYYY-MM-DD, got ${today}`);
+  if (await alreadySeeded(db)) return { seeded: false };
+  const passwordHash = await hashPassword(DEMO_PASSWORD);
+  const rows = buildScenario(today, passwordHash);
+  return db.transaction(async (tx) => {
+    // Checked again inside the transaction so two processes starting together load it once at most.
+    if (await alreadySeeded(tx)) return { seeded: false };
+    for (const [table, values] of inOrder(rows)) await insertAll(tx, table, values);
+    await tx.insert(schema.appMeta).values({ key: 'demo_seeded', value: { today } });
+    return { seeded: true };
+  });
+}
+
+type ReadingRow = Rows['readings'][number];
+
+/** Saturation temperatures, superheat and subcooling, computed with @coilpath/calc as the API does on save. */
+function withDerivedValues(r: ReadingRow): ReadingRow {
+  if (!isRefrigerantId(r.refrigerant)) return r;
+  const out = { ...r };
+  if (r.suctionPressure != null && r.suctionLineTemp != null) {
+    try {
+      const sh = superheat({ refrigerant: r.refrigerant, suctionPressure: r.suctionPressure, suctionLineTemp: r.suctionLineTemp });
+      out.suctionSaturationTemp = Math.round(sh.saturationTemp * 10) / 10;
+      out.superheat = Math.round(sh.superheat * 10) / 10;
+    } catch {
+      /* outside the refrigerant's table: left empty, as the API would refuse to guess */
+    }
+  }
+  if (r.liquidPressure != null && r.liquidLineTemp != null) {
+    try {
+      const sc = subcooling({ refrigerant: r.refrigerant, liquidPressure: r.liquidPressure, liquidLineTemp: r.liquidLineTemp });
+      out.liquidSaturationTemp = Math.round(sc.saturationTemp * 10) / 10;
+      out.subcooling = Math.round(sc.subcooling * 10) / 10;
+    } catch {
+      /* as above */
+    }
+  }
+  return out;
+}
+
+async function alreadySeeded(db: Tx): Promise<boolean> {
+  const meta = await db.select({ key: schema.appMeta.key }).from(schema.appMeta).where(eq(schema.appMeta.key, 'demo_seeded')).limit(1);
+  if (meta.length > 0) return true;
+  const [branches] = await db.select({ n: count() }).from(schema.branches);
+  return (branches?.n ?? 0) > 0;
 }

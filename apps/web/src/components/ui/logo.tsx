@@ -3,7 +3,7 @@ export function CoilpathMark({ size = 24, className = '' }: { size?: number; cla
   return (
     <svg width={size} height={size} viewBox="0 0 24 24" fill="none" aria-hidden="true" className={className}>
       <path
-        d="M2.5 15.5h5.7c2.6 0 4.3-1.6 4.3-3.8 0-1.9-1.4-3.3-3.2-3.3-1.9 0-3.2 1.5-3.2 3.4 0 2.6 2.3 4.1 5.2 4.1h9.7"
+        d="M2 17h7.2c3.4 0 5.8-2.6 5.8-5.6 0-2.6-1.9-4.6-4.3-4.6-2.5 0-4.3 1.9-4.3 4.4 0 3.4 2.8 5.8 6.6 5.8H22"
         stroke="currentColor"
         strokeWidth="2.3"
         strokeLinecap="round"
