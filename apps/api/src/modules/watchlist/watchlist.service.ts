@@ -315,7 +315,7 @@ export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: str
     const c = await loadCase(tx, user, id);
     if (c.repairWorkOrderId) {
       const [wo] = await tx.select({ id: workOrders.id, number: workOrders.number, state: workOrders.state }).from(workOrders).where(eq(workOrders.id, c.repairWorkOrderId));
-      throw conflict('already_booked', `The repair is already booked as work order ${wo?.number ?? ''}.`.replace(' .', '.'), { workOrder: wo ?? { id: c.repairWorkOrderId } });
+      throw conflict('already_booked', `The repair visit already exists: ${wo?.number ? `WO-${wo.number}` : 'a work order'} (${(wo?.state ?? 'unplaced').replace('_', ' ')}).`, { workOrder: wo ?? { id: c.repairWorkOrderId } });
     }
     if (c.status !== 'open') throw unprocessable(`Only an open leak case needs a repair visit; this one is ${c.status.replace('_', ' ')}.`);
     const [u] = await tx

@@ -112,7 +112,7 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
           const wo = r.leakCase.repairWorkOrder;
           notify(`Repair visit ${woLabel(wo?.number ?? null)} is in the Roster queue, to be booked by ${c.repairDueDate} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`);
         },
-        onError: (e) => notify(e instanceof ApiError && e.status === 409 ? `${e.message} It is already in the Roster queue.` : errorMessage(e), 'alarm'),
+        onError: (e) => notify(e instanceof ApiError && e.status === 409 ? `${e.message} No second visit was created.` : errorMessage(e), 'alarm'),
       },
     );
   const onClose = () =>
