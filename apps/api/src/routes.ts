@@ -14,6 +14,8 @@ import { workOrdersRoutes } from './modules/work-orders/work-orders.routes';
 import { bookingsRoutes, rosterRoutes } from './modules/roster/roster.routes';
 import { fixQualityRoutes, warrantyClaimRoutes } from './modules/fix-quality/fix-quality.routes';
 import { unitFileRoutes, unitSearchRoutes } from './modules/unit-file/unit-file.routes';
+import { alarmsRoutes, leakCasesRoutes, watchlistRoutes } from './modules/watchlist/watchlist.routes';
+import { agreementsRoutes } from './modules/agreements/agreements.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -43,5 +45,9 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/warranty-claims', requireAuth, warrantyClaimRoutes(ctx));
   api.use('/units', requireAuth, unitFileRoutes(ctx));
   api.use('/unit-file', requireAuth, unitSearchRoutes(ctx));
+  api.use('/alarms', requireAuth, alarmsRoutes(ctx));
+  api.use('/watchlist', requireAuth, watchlistRoutes(ctx));
+  api.use('/leak-cases', requireAuth, leakCasesRoutes(ctx));
+  api.use('/agreements', requireAuth, agreementsRoutes(ctx));
   return api;
 }

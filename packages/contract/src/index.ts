@@ -9,3 +9,5 @@ export * from './work-orders';
 export * from './roster';
 export * from './fix-quality';
 export * from './unit-file';
+export * from './watchlist';
+export * from './agreements';
