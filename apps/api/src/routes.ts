@@ -12,6 +12,10 @@ import { calendarRoutes, dayRoutes } from './modules/day/day.routes';
 import { attachmentsRoutes, briefingRoutes, visitsRoutes } from './modules/visits/visits.routes';
 import { workOrdersRoutes } from './modules/work-orders/work-orders.routes';
 import { bookingsRoutes, rosterRoutes } from './modules/roster/roster.routes';
+import { fixQualityRoutes, warrantyClaimRoutes } from './modules/fix-quality/fix-quality.routes';
+import { unitFileRoutes, unitSearchRoutes } from './modules/unit-file/unit-file.routes';
+import { alarmsRoutes, leakCasesRoutes, watchlistRoutes } from './modules/watchlist/watchlist.routes';
+import { agreementsRoutes } from './modules/agreements/agreements.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -37,5 +41,13 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/work-orders', requireAuth, workOrdersRoutes(ctx));
   api.use('/bookings', requireAuth, bookingsRoutes(ctx));
   api.use('/roster', requireAuth, rosterRoutes(ctx));
+  api.use('/reports', requireAuth, fixQualityRoutes(ctx));
+  api.use('/warranty-claims', requireAuth, warrantyClaimRoutes(ctx));
+  api.use('/units', requireAuth, unitFileRoutes(ctx));
+  api.use('/unit-file', requireAuth, unitSearchRoutes(ctx));
+  api.use('/alarms', requireAuth, alarmsRoutes(ctx));
+  api.use('/watchlist', requireAuth, watchlistRoutes(ctx));
+  api.use('/leak-cases', requireAuth, leakCasesRoutes(ctx));
+  api.use('/agreements', requireAuth, agreementsRoutes(ctx));
   return api;
 }

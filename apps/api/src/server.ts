@@ -12,6 +12,7 @@ import { startMailSink } from './mail/sink';
 import { createDiskStorage } from './storage/storage';
 import { loadSecret } from './secret';
 import { startScheduler } from './jobs/scheduler';
+import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
 const dataDir = resolve(env.COILPATH_DATA_DIR);

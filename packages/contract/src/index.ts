@@ -7,3 +7,7 @@ export * from './visits';
 export * from './day';
 export * from './work-orders';
 export * from './roster';
+export * from './fix-quality';
+export * from './unit-file';
+export * from './watchlist';
+export * from './agreements';

@@ -3,7 +3,7 @@ import { and, asc, count, eq, gte, sql } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import type { Database } from './client';
 import * as s from './schema';
-import { DEMO_PASSWORD, seedDemo } from './seed';
+import { DEMO_PASSWORD, demoToday, seedDemo } from './seed';
 import { verifyPassword } from '../auth/password';
 import { openTestDatabase } from '../testing/harness';
 
@@ -207,5 +207,15 @@ describe('demo scenario', { timeout: 120_000 }, () => {
     } finally {
       await c.close();
     }
+  });
+});
+
+describe('demo anchoring day', () => {
+  it('is the date in the first demo branch (Chicago), not the UTC date', async () => {
+    // 2026-12-02T03:50Z is 21:50 on 1 December in Chicago (CST, UTC−6).
+    expect(demoToday(new Date('2026-12-02T03:50:00Z'))).toBe('2026-12-01');
+    expect(demoToday(new Date('2026-12-02T07:00:00Z'))).toBe('2026-12-02');
+    // Daylight saving: 2026-07-01T04:30Z is 23:30 on 30 June in Chicago (CDT, UTC−5).
+    expect(demoToday(new Date('2026-07-01T04:30:00Z'))).toBe('2026-06-30');
   });
 });

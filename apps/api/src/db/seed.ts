@@ -4,12 +4,13 @@ import type { Db, Tx } from './client';
 import * as schema from './schema';
 import { isRefrigerantId, subcooling, superheat } from '@coilpath/calc';
 import { buildScenario, type Rows } from './seed/scenario';
+import { BRANCHES } from './seed/catalogue';
 
 /** The one demo password, printed at start and shown on the sign-in page when demo data is loaded. */
 export const DEMO_PASSWORD = 'coilpath-demo';
 
 export interface SeedOptions {
-  /** The day the scenario is anchored to (`YYYY-MM-DD`, UTC); defaults to today. */
+  /** The day the scenario is anchored to (`YYYY-MM-DD`); defaults to today in the first demo branch's zone. */
   today?: string;
 }
 
@@ -51,7 +52,7 @@ function inOrder(rows: Rows): [Parameters<Tx['insert']>[0], object[]][] {
  * idempotent: a database that already holds demo data (or any branch) is left as it is.
  */
 export async function seedDemo(db: Db, opts: SeedOptions = {}): Promise<{ seeded: boolean }> {
-  const today = opts.today ?? new Date().toISOString().slice(0, 10);
+  const today = opts.today ?? demoToday(new Date());
   if (!/^\d{4}-\d{2}-\d{2}$/.test(today)) throw new Error(`seedDemo: today must be YYYY-MM-DD, got ${today}`);
   if (await alreadySeeded(db)) return { seeded: false };
   const passwordHash = await hashPassword(DEMO_PASSWORD);
@@ -90,6 +91,14 @@ function withDerivedValues(r: ReadingRow): ReadingRow {
     }
   }
   return out;
+}
+
+/**
+ * The demo's anchoring day: today's date in the first demo branch's time zone, where the demo
+ * sign-ins work. (The UTC date would put the Chicago technician's stops on tomorrow every evening.)
+ */
+export function demoToday(now: Date): string {
+  return new Intl.DateTimeFormat('en-CA', { timeZone: BRANCHES[0]!.timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(now);
 }
 
 async function alreadySeeded(db: Tx): Promise<boolean> {

@@ -1,0 +1,442 @@
+/** Maintenance agreements: covered units, recurrence, term, SLA, price, tasks; visit plans; PM completion. */
+import { and, asc, eq, gte, inArray, lte, ne, sql } from 'drizzle-orm';
+import {
+  PM_GRACE_DAYS,
+  buildAgreementRrule,
+  parseAgreementRrule,
+  type AgreementDetail,
+  type AgreementRow,
+  type PlanPreview,
+  type PlanVisit,
+  type PmCompletionResponse,
+  type PmCounts,
+  type SessionUser,
+  agreementInputSchema,
+  agreementPatchSchema,
+} from '@coilpath/contract';
+import { addDays, expandAgreementVisits, levelVisitsAcrossWeeks, zonedDate, zonedInstant } from '@coilpath/calc';
+import type { z } from 'zod';
+import type { AppContext } from '../../context';
+import type { Tx } from '../../db/client';
+import { agreementUnits, agreements, auditEvents, branches, customers, sites, units, users, workOrders } from '../../db/schema';
+import { assertBranch } from '../../auth/middleware';
+import { notFound, unprocessable } from '../../lib/errors';
+import { branchFilter, branchesById, daysBetween, todayIn } from '../watchlist/scope';
+
+/** Planned-maintenance visits one technician can take in a week (one a working day): the levelling cap per technician. */
+export const PM_VISITS_PER_TECH_WEEK = 5;
+/** Agreements ending within this many days are on the renewal list. */
+export const RENEWAL_DAYS = 60;
+
+const purposeOf = (ruleDate: string) => `agreement-visit:${ruleDate}`;
+const ruleDateOf = (purpose: string | null) => (purpose?.startsWith('agreement-visit:') ? purpose.slice('agreement-visit:'.length) : null);
+
+/* ------------------------------------------------------------------ reading */
+
+export async function listAgreements(ctx: AppContext, user: SessionUser, q: { branchId?: string | undefined; status: string }, onlyIds?: string[]): Promise<AgreementRow[]> {
+  const rows = await ctx.db
+    .select({ a: agreements, siteName: sites.name, customerName: customers.name })
+    .from(agreements)
+    .innerJoin(sites, eq(sites.id, agreements.siteId))
+    .innerJoin(customers, eq(customers.id, sites.customerId))
+    .where(
+      and(
+        branchFilter(user, q.branchId, agreements.branchId),
+        q.status !== 'all' ? eq(agreements.status, q.status as 'active') : undefined,
+        onlyIds ? inArray(agreements.id, onlyIds) : undefined,
+      ),
+    )
+    .orderBy(asc(sites.name), asc(agreements.name));
+  if (rows.length === 0) return [];
+  const ids = rows.map((r) => r.a.id);
+  const [unitRows, planned, branchMap] = await Promise.all([
+    ctx.db
+      .select({ agreementId: agreementUnits.agreementId, id: units.id, tag: units.tag, make: units.make, model: units.model })
+      .from(agreementUnits)
+      .innerJoin(units, eq(units.id, agreementUnits.unitId))
+      .where(inArray(agreementUnits.agreementId, ids))
+      .orderBy(asc(units.tag)),
+    ctx.db
+      .select({ agreementId: workOrders.agreementId, plannedDate: workOrders.plannedDate, state: workOrders.state })
+      .from(workOrders)
+      .where(and(inArray(workOrders.agreementId, ids), eq(workOrders.kind, 'planned_maintenance'), ne(workOrders.state, 'cancelled'))),
+    branchesById(ctx.db, rows.map((r) => r.a.branchId)),
+  ]);
+  const now = ctx.clock.now();
+  return rows.map(({ a, siteName, customerName }) => {
+    const today = todayIn(branchMap.get(a.branchId)?.timeZone ?? 'UTC', now);
+    const mine = planned.filter((p) => p.agreementId === a.id);
+    const upcoming = mine.filter((p) => p.plannedDate && p.plannedDate >= today && p.state !== 'closed').map((p) => p.plannedDate!).sort();
+    return {
+      id: a.id,
+      branchId: a.branchId,
+      siteId: a.siteId,
+      siteName,
+      customerName,
+      name: a.name,
+      rrule: a.rrule,
+      recurrence: parseAgreementRrule(a.rrule),
+      seasonNotes: a.seasonNotes,
+      termStart: a.termStart,
+      termEnd: a.termEnd,
+      slaHours: a.slaHours,
+      priceCents: a.priceCents,
+      visitMinutes: a.visitMinutes,
+      tasks: a.tasks,
+      status: a.status,
+      units: unitRows.filter((u) => u.agreementId === a.id).map(({ agreementId: _a, ...u }) => u),
+      plannedCount: mine.length,
+      nextPlannedDate: upcoming[0] ?? null,
+    };
+  });
+}
+
+export async function getAgreement(ctx: AppContext, user: SessionUser, id: string): Promise<AgreementDetail> {
+  const [row] = await listAgreements(ctx, user, { status: 'all' }, [id]);
+  if (!row) throw notFound('agreement');
+  const visits = await ctx.db
+    .select({ workOrderId: workOrders.id, number: workOrders.number, plannedDate: workOrders.plannedDate, state: workOrders.state, closedAt: workOrders.closedAt })
+    .from(workOrders)
+    .where(and(eq(workOrders.agreementId, id), eq(workOrders.kind, 'planned_maintenance'), ne(workOrders.state, 'cancelled')))
+    .orderBy(asc(workOrders.plannedDate));
+  return { ...row, visits: visits.map((v) => ({ ...v, closedAt: v.closedAt?.toISOString() ?? null })) };
+}
+
+/* ------------------------------------------------------------------ writing */
+
+async function checkUnits(tx: Tx, siteId: string, unitIds: string[]) {
+  const found = await tx.select({ id: units.id, siteId: units.siteId }).from(units).where(inArray(units.id, [...new Set(unitIds)]));
+  const elsewhere = unitIds.filter((id) => found.find((u) => u.id === id)?.siteId !== siteId);
+  if (elsewhere.length) throw unprocessable('Every covered unit must be at the agreement\'s site.', { unitIds: elsewhere });
+}
+
+export async function createAgreement(ctx: AppContext, user: SessionUser, input: z.infer<typeof agreementInputSchema>): Promise<AgreementDetail> {
+  const id = await ctx.db.transaction(async (tx) => {
+    const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
+    if (!site) throw notFound('site');
+    assertBranch(user, site.branchId, 'site');
+    await checkUnits(tx, site.id, input.unitIds);
+    const [a] = await tx
+      .insert(agreements)
+      .values({
+        branchId: site.branchId,
+        siteId: site.id,
+        name: input.name,
+        rrule: buildAgreementRrule(input.recurrence),
+        seasonNotes: input.seasonNotes || null,
+        termStart: input.termStart,
+        termEnd: input.termEnd,
+        slaHours: input.slaHours,
+        priceCents: input.priceCents,
+        visitMinutes: input.visitMinutes,
+        tasks: input.tasks,
+      })
+      .returning({ id: agreements.id });
+    await tx.insert(agreementUnits).values([...new Set(input.unitIds)].map((unitId) => ({ agreementId: a!.id, unitId })));
+    await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.created', entity: 'agreement', entityId: a!.id, details: {} });
+    return a!.id;
+  });
+  return getAgreement(ctx, user, id);
+}
+
+export async function patchAgreement(ctx: AppContext, user: SessionUser, id: string, patch: z.infer<typeof agreementPatchSchema>): Promise<AgreementDetail> {
+  await ctx.db.transaction(async (tx) => {
+    const [a] = await tx.select().from(agreements).where(eq(agreements.id, id)).limit(1);
+    if (!a) throw notFound('agreement');
+    assertBranch(user, a.branchId, 'agreement');
+    const termStart = patch.termStart ?? a.termStart;
+    const termEnd = patch.termEnd ?? a.termEnd;
+    if (termEnd <= termStart) throw unprocessable('The term must end after it starts.');
+    if (patch.unitIds) {
+      await checkUnits(tx, a.siteId, patch.unitIds);
+      await tx.delete(agreementUnits).where(eq(agreementUnits.agreementId, id));
+      await tx.insert(agreementUnits).values([...new Set(patch.unitIds)].map((unitId) => ({ agreementId: id, unitId })));
+    }
+    await tx
+      .update(agreements)
+      .set({
+        ...(patch.name !== undefined ? { name: patch.name } : {}),
+        ...(patch.recurrence ? { rrule: buildAgreementRrule(patch.recurrence) } : {}),
+        ...(patch.seasonNotes !== undefined ? { seasonNotes: patch.seasonNotes || null } : {}),
+        termStart,
+        termEnd,
+        ...(patch.slaHours !== undefined ? { slaHours: patch.slaHours } : {}),
+        ...(patch.priceCents !== undefined ? { priceCents: patch.priceCents } : {}),
+        ...(patch.visitMinutes !== undefined ? { visitMinutes: patch.visitMinutes } : {}),
+        ...(patch.tasks !== undefined ? { tasks: patch.tasks } : {}),
+        ...(patch.status !== undefined ? { status: patch.status } : {}),
+        updatedAt: ctx.clock.now(),
+      })
+      .where(eq(agreements.id, id));
+    await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.updated', entity: 'agreement', entityId: id, details: { fields: Object.keys(patch) } });
+  });
+  return getAgreement(ctx, user, id);
+}
+
+/* ---------------------------------------------------------------- visit plan */
+
+interface Planned {
+  ruleDate: string;
+  /** The working day the rule date moved to (before levelling). */
+  workingDate: string;
+  plannedDate: string;
+  moved: string | null;
+}
+
+/**
+ * The agreement's visit plan from today to the end of its term: the recurrence expanded and moved
+ * off weekends and branch holidays (calc `expandAgreementVisits`), then levelled across weeks against
+ * the branch's other planned maintenance (calc `levelVisitsAcrossWeeks`, at most
+ * PM_VISITS_PER_TECH_WEEK per technician a week). Each visit is known by its rule date (stored in
+ * the work order's `purpose`), so regenerating finds the same visits again: it never duplicates one,
+ * and never touches one that is booked, in progress or done.
+ */
+async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: string, lock: boolean) {
+  const q = tx.select().from(agreements).where(eq(agreements.id, id)).limit(1);
+  const [a] = lock ? await q.for('update') : await q;
+  if (!a) throw notFound('agreement');
+  assertBranch(user, a.branchId, 'agreement');
+  const [b] = await tx.select().from(branches).where(eq(branches.id, a.branchId));
+  const tz = b!.timeZone;
+  const today = todayIn(tz, ctx.clock.now());
+
+  let planned: Planned[] = [];
+  if (a.status === 'active' && a.termEnd >= today) {
+    let expanded;
+    try {
+      expanded = expandAgreementVisits({ rrule: a.rrule, termStart: a.termStart, termEnd: a.termEnd, timeZone: tz, holidays: b!.holidays });
+    } catch (e) {
+      throw unprocessable(`The agreement's recurrence cannot be expanded: ${(e as Error).message}`);
+    }
+    const future = expanded.filter((v) => v.date >= today);
+    if (future.length) {
+      const last = future[future.length - 1]!.date;
+      const [others, [techs]] = await Promise.all([
+        tx
+          .select({ id: workOrders.id, plannedDate: workOrders.plannedDate })
+          .from(workOrders)
+          .where(
+            and(
+              eq(workOrders.branchId, a.branchId),
+              eq(workOrders.kind, 'planned_maintenance'),
+              ne(workOrders.state, 'cancelled'),
+              sql`${workOrders.agreementId} is distinct from ${id}`,
+              gte(workOrders.plannedDate, addDays(future[0]!.date, -7)),
+              lte(workOrders.plannedDate, addDays(last, 7 * 9)),
+            ),
+          ),
+        tx
+          .select({ n: sql<number>`count(*)::int` })
+          .from(users)
+          .where(and(eq(users.branchId, a.branchId), eq(users.role, 'technician'), eq(users.active, true))),
+      ]);
+      const maxPerWeek = Math.max(1, techs?.n ?? 1) * PM_VISITS_PER_TECH_WEEK;
+      // Other agreements' visits already hold their weeks ('0:' sorts before this agreement's '1:' on a tie).
+      const input = [
+        ...others.filter((o) => o.plannedDate).map((o) => ({ id: `0:${o.id}`, date: o.plannedDate! })),
+        ...future.map((v) => ({ id: `1:${v.originalDate}`, date: v.date })),
+      ];
+      let levelled;
+      try {
+        levelled = levelVisitsAcrossWeeks(input, { maxPerWeek, holidays: b!.holidays });
+      } catch (e) {
+        throw unprocessable(`The branch's planned maintenance is too full to place these visits: ${(e as Error).message}`);
+      }
+      const byId = new Map(levelled.map((l) => [l.id, l]));
+      const holidays = new Set(b!.holidays);
+      planned = future.map((v) => {
+        const l = byId.get(`1:${v.originalDate}`)!;
+        const reasons: string[] = [];
+        if (v.moved) reasons.push(holidays.has(v.originalDate) ? `moved off the holiday ${v.originalDate}` : `moved off the weekend (${v.originalDate})`);
+        if (l.date !== v.date) reasons.push(`moved to a later week: the week of ${v.date} already had ${maxPerWeek} planned visits`);
+        const text = reasons.join('; ');
+        return { ruleDate: v.originalDate, workingDate: v.date, plannedDate: l.date, moved: text ? text[0]!.toUpperCase() + text.slice(1) : null };
+      });
+    }
+  }
+
+  const existing = await tx
+    .select({ id: workOrders.id, state: workOrders.state, plannedDate: workOrders.plannedDate, purpose: workOrders.purpose })
+    .from(workOrders)
+    .where(and(eq(workOrders.agreementId, id), eq(workOrders.kind, 'planned_maintenance')));
+  // Visits written by Coilpath carry their rule date in `purpose`; others (imported, demo data) are
+  // matched by their planned date: the rule date, the working day it moved to, or the levelled day.
+  type Existing = (typeof existing)[number];
+  const byPurpose = new Map<string, Existing>();
+  const byDate = new Map<string, Existing[]>();
+  const better = (x: Existing | undefined, y: Existing) => !x || (x.state === 'cancelled' && y.state !== 'cancelled');
+  for (const e of existing) {
+    const rd = ruleDateOf(e.purpose);
+    if (rd) {
+      if (better(byPurpose.get(rd), e)) byPurpose.set(rd, e);
+    } else if (e.plannedDate) byDate.set(e.plannedDate, [...(byDate.get(e.plannedDate) ?? []), e]);
+  }
+  const used = new Set<string>();
+  const find = (p: Planned): Existing | undefined => {
+    const direct = byPurpose.get(p.ruleDate);
+    if (direct && !used.has(direct.id)) return direct;
+    for (const d of [p.ruleDate, p.workingDate, p.plannedDate]) {
+      const hit = (byDate.get(d) ?? []).filter((e) => !used.has(e.id)).sort((x, y) => Number(x.state === 'cancelled') - Number(y.state === 'cancelled'))[0];
+      if (hit) return hit;
+    }
+    return undefined;
+  };
+  const visits: PlanVisit[] = [];
+  /** Unplaced visits matched by date that do not carry their rule date yet: apply records it. */
+  const adopt: { id: string; ruleDate: string }[] = [];
+  for (const { workingDate: _w, ...p } of planned) {
+    const e = find({ ...p, workingDate: _w });
+    if (e) used.add(e.id);
+    if (!e || e.state === 'cancelled') visits.push({ ...p, action: 'new', workOrderId: e?.id ?? null, state: e?.state ?? null });
+    else if (e.state !== 'unplaced') visits.push({ ...p, plannedDate: e.plannedDate ?? p.plannedDate, moved: null, action: 'locked', workOrderId: e.id, state: e.state });
+    else {
+      visits.push({ ...p, action: e.plannedDate === p.plannedDate ? 'keep' : 'move', workOrderId: e.id, state: e.state });
+      if (e.purpose !== purposeOf(p.ruleDate)) adopt.push({ id: e.id, ruleDate: p.ruleDate });
+    }
+  }
+  for (const e of existing) {
+    if (used.has(e.id) || e.state === 'cancelled') continue;
+    const ruleDate = ruleDateOf(e.purpose) ?? e.plannedDate ?? '';
+    const base = { ruleDate, plannedDate: e.plannedDate ?? ruleDate, moved: null, workOrderId: e.id, state: e.state };
+    if (e.state !== 'unplaced') visits.push({ ...base, action: 'locked' });
+    else if ((e.plannedDate ?? '') >= today) visits.push({ ...base, action: 'cancel' });
+    // Unplaced visits already in the past stay as they are: PM completion counts them as missed.
+  }
+  visits.sort((x, y) => x.plannedDate.localeCompare(y.plannedDate) || x.ruleDate.localeCompare(y.ruleDate));
+  const counts: PlanPreview['counts'] = { new: 0, keep: 0, move: 0, locked: 0, cancel: 0 };
+  for (const v of visits) counts[v.action]++;
+  return { a, tz, visits, counts, adopt };
+}
+
+export async function previewPlan(ctx: AppContext, user: SessionUser, id: string): Promise<PlanPreview> {
+  const { visits, counts } = await computePlan(ctx.db, ctx, user, id, false);
+  return { agreementId: id, visits, counts };
+}
+
+export async function applyPlan(ctx: AppContext, user: SessionUser, id: string): Promise<PlanPreview & { applied: true }> {
+  return ctx.db.transaction(async (tx) => {
+    const { a, tz, visits, counts, adopt } = await computePlan(tx, ctx, user, id, true);
+    const unitRows = await tx
+      .select({ id: units.id, tag: units.tag })
+      .from(agreementUnits)
+      .innerJoin(units, eq(units.id, agreementUnits.unitId))
+      .where(eq(agreementUnits.agreementId, id))
+      .orderBy(asc(units.tag));
+    const complaint = [
+      `Planned maintenance: ${a.name}.`,
+      unitRows.length ? `Units: ${unitRows.map((u) => u.tag).join(', ')}.` : '',
+      a.tasks.length ? `Tasks: ${a.tasks.join('; ')}.` : '',
+    ]
+      .filter(Boolean)
+      .join(' ');
+    const now = ctx.clock.now();
+    const values = (v: PlanVisit) => ({
+      purpose: purposeOf(v.ruleDate),
+      plannedDate: v.plannedDate,
+      latestAt: new Date(zonedInstant(addDays(v.plannedDate, PM_GRACE_DAYS), '23:59', tz)),
+      estimatedMinutes: a.visitMinutes,
+      complaint,
+      updatedAt: now,
+    });
+    const fresh = visits.filter((v) => v.action === 'new' && !v.workOrderId);
+    if (fresh.length) {
+      await tx.insert(workOrders).values(
+        fresh.map((v) => ({
+          branchId: a.branchId,
+          siteId: a.siteId,
+          unitId: unitRows.length === 1 ? unitRows[0]!.id : null,
+          agreementId: a.id,
+          kind: 'planned_maintenance' as const,
+          state: 'unplaced' as const,
+          priority: 'normal' as const,
+          createdById: user.id,
+          ...values(v),
+        })),
+      );
+    }
+    for (const v of visits) {
+      if (!v.workOrderId) continue;
+      // Each update re-checks the state it was planned from, so a visit booked meanwhile is left alone.
+      if (v.action === 'new') {
+        await tx.update(workOrders).set({ ...values(v), state: 'unplaced' }).where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'cancelled')));
+      } else if (v.action === 'move') {
+        await tx.update(workOrders).set(values(v)).where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
+      } else if (v.action === 'cancel') {
+        await tx.update(workOrders).set({ state: 'cancelled', updatedAt: now }).where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
+      }
+    }
+    for (const x of adopt) {
+      await tx.update(workOrders).set({ purpose: purposeOf(x.ruleDate) }).where(and(eq(workOrders.id, x.id), eq(workOrders.state, 'unplaced')));
+    }
+    await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.plan_applied', entity: 'agreement', entityId: id, details: counts });
+    return { agreementId: id, visits, counts, applied: true as const };
+  });
+}
+
+/* ------------------------------------------------------------- PM completion */
+
+const zero = (): PmCounts => ({ due: 0, onTime: 0, late: 0, missed: 0, open: 0 });
+
+/**
+ * Planned visits due (planned date on or before today) since `from`, per agreement and branch:
+ * done on time (closed within PM_GRACE_DAYS of the planned date), late (closed after that),
+ * missed (not closed and past the grace days), open (not closed, still within them). Plus the
+ * active agreements ending within RENEWAL_DAYS.
+ */
+export async function pmCompletion(ctx: AppContext, user: SessionUser, q: { branchId?: string | undefined; from?: string | undefined }): Promise<PmCompletionResponse> {
+  const now = ctx.clock.now();
+  const from = q.from ?? addDays(zonedDate(now, 'UTC'), -365);
+  const scope = branchFilter(user, q.branchId, branches.id);
+  const branchRows = await ctx.db.select({ id: branches.id, name: branches.name, timeZone: branches.timeZone }).from(branches).where(scope).orderBy(asc(branches.name));
+  const out: PmCompletionResponse = { from, graceDays: PM_GRACE_DAYS, branches: [], agreements: [], renewals: [] };
+  if (branchRows.length === 0) return out;
+  const branchIds = branchRows.map((b) => b.id);
+  const [wos, ags] = await Promise.all([
+    ctx.db
+      .select({ agreementId: workOrders.agreementId, branchId: workOrders.branchId, plannedDate: workOrders.plannedDate, state: workOrders.state, closedAt: workOrders.closedAt })
+      .from(workOrders)
+      .where(
+        and(
+          inArray(workOrders.branchId, branchIds),
+          eq(workOrders.kind, 'planned_maintenance'),
+          ne(workOrders.state, 'cancelled'),
+          gte(workOrders.plannedDate, from),
+        ),
+      ),
+    ctx.db
+      .select({ a: agreements, siteName: sites.name, customerName: customers.name })
+      .from(agreements)
+      .innerJoin(sites, eq(sites.id, agreements.siteId))
+      .innerJoin(customers, eq(customers.id, sites.customerId))
+      .where(inArray(agreements.branchId, branchIds))
+      .orderBy(asc(sites.name)),
+  ]);
+  const tzOf = new Map(branchRows.map((b) => [b.id, b.timeZone]));
+  const todayOf = new Map(branchRows.map((b) => [b.id, todayIn(b.timeZone, now)]));
+  const byBranch = new Map(branchRows.map((b) => [b.id, zero()]));
+  const byAgreement = new Map<string, PmCounts>();
+  for (const w of wos) {
+    const today = todayOf.get(w.branchId)!;
+    if (!w.plannedDate || w.plannedDate > today) continue;
+    const graceEnd = addDays(w.plannedDate, PM_GRACE_DAYS);
+    const closed = w.state === 'closed' && w.closedAt ? zonedDate(w.closedAt, tzOf.get(w.branchId)!) : null;
+    const kind: keyof PmCounts = closed ? (closed <= graceEnd ? 'onTime' : 'late') : today > graceEnd ? 'missed' : 'open';
+    for (const c of [byBranch.get(w.branchId)!, w.agreementId ? (byAgreement.get(w.agreementId) ?? byAgreement.set(w.agreementId, zero()).get(w.agreementId)!) : null]) {
+      if (!c) continue;
+      c.due++;
+      c[kind]++;
+    }
+  }
+  out.branches = branchRows.map((b) => ({ branchId: b.id, branchName: b.name, ...byBranch.get(b.id)! }));
+  for (const { a, siteName, customerName } of ags) {
+    const counts = byAgreement.get(a.id);
+    if (counts) out.agreements.push({ agreementId: a.id, branchId: a.branchId, name: a.name, siteName, ...counts });
+    const today = todayOf.get(a.branchId)!;
+    const daysLeft = daysBetween(today, a.termEnd);
+    if (a.status === 'active' && daysLeft >= 0 && daysLeft <= RENEWAL_DAYS) {
+      out.renewals.push({ agreementId: a.id, branchId: a.branchId, name: a.name, siteName, customerName, termEnd: a.termEnd, daysLeft, priceCents: a.priceCents });
+    }
+  }
+  out.renewals.sort((x, y) => x.daysLeft - y.daysLeft);
+  return out;
+}

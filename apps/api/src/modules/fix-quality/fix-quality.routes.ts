@@ -1,0 +1,111 @@
+import { Router } from 'express';
+import { eq } from 'drizzle-orm';
+import { z } from 'zod';
+import {
+  createInspectionsSchema,
+  fixQualityCsvQuerySchema,
+  fixQualityQuerySchema,
+  idSchema,
+  warrantyClaimUpdateSchema,
+} from '@coilpath/contract';
+import type { AppContext } from '../../context';
+import { branches } from '../../db/schema';
+import { requireRole, resolveBranch } from '../../auth/middleware';
+import { endpoint } from '../../lib/endpoint';
+import {
+  createInspections,
+  factoryDefectReview,
+  fixQualityReport,
+  modelAlerts,
+  updateWarrantyClaim,
+} from './fix-quality.service';
+import { csvFileName, reportPdf, tableCsv } from './fix-quality.export';
+
+/**
+ * `/api/reports`: the Fix Quality report, its factory-defect review, model alerts, CSV and PDF exports.
+ * Owner: every branch (or one); branch manager: the own branch only; other roles: 403.
+ */
+export function fixQualityRoutes(ctx: AppContext): Router {
+  const r = Router();
+  const readers = requireRole('owner', 'branch_manager');
+
+  r.get(
+    '/fix-quality',
+    readers,
+    endpoint({ query: fixQualityQuerySchema }, ({ query, user }) =>
+      fixQualityReport(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId)),
+    ),
+  );
+
+  r.get(
+    '/fix-quality/factory-defects',
+    readers,
+    endpoint({ query: fixQualityQuerySchema }, ({ query, user }) =>
+      factoryDefectReview(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId)),
+    ),
+  );
+
+  r.get(
+    '/fix-quality/model-alerts',
+    readers,
+    endpoint({}, async ({ user }) => ({ alerts: await modelAlerts(ctx.db, user) })),
+  );
+
+  r.post(
+    '/fix-quality/model-alerts/inspections',
+    requireRole('owner'),
+    endpoint({ body: createInspectionsSchema, status: 201 }, ({ body, user }) => createInspections(ctx.db, user, body)),
+  );
+
+  r.get(
+    '/fix-quality.csv',
+    readers,
+    endpoint({ query: fixQualityCsvQuerySchema }, async ({ query, user, res }) => {
+      const branchId = resolveBranch(user, query.branchId);
+      const period = { from: query.from, to: query.to };
+      const csv =
+        query.table === 'factoryDefects'
+          ? tableCsv(query.table, { defects: await factoryDefectReview(ctx.db, period, branchId) })
+          : query.table === 'modelAlerts'
+            ? tableCsv(query.table, { alerts: await modelAlerts(ctx.db, user) })
+            : tableCsv(query.table, { report: await fixQualityReport(ctx.db, period, branchId) });
+      res.setHeader('Content-Type', 'text/csv; charset=utf-8');
+      res.setHeader('Content-Disposition', `attachment; filename="${csvFileName(query.table, query.from, query.to)}"`);
+      res.send(csv);
+    }),
+  );
+
+  r.get(
+    '/fix-quality.pdf',
+    readers,
+    endpoint({ query: fixQualityQuerySchema }, async ({ query, user, res }) => {
+      const branchId = resolveBranch(user, query.branchId);
+      const period = { from: query.from, to: query.to };
+      const [report, defects, alerts, branch] = await Promise.all([
+        fixQualityReport(ctx.db, period, branchId),
+        factoryDefectReview(ctx.db, period, branchId),
+        modelAlerts(ctx.db, user),
+        branchId ? ctx.db.select({ name: branches.name }).from(branches).where(eq(branches.id, branchId)).limit(1) : Promise.resolve([]),
+      ]);
+      const pdf = await reportPdf({ report, defects, alerts, branchName: branch[0]?.name ?? 'All branches', generatedAt: ctx.clock.now() });
+      res.setHeader('Content-Type', 'application/pdf');
+      res.setHeader('Content-Disposition', `attachment; filename="coilpath-fix-quality-${query.from}-to-${query.to}.pdf"`);
+      res.send(pdf);
+    }),
+  );
+
+  return r;
+}
+
+/** `/api/warranty-claims/:workOrderId`: the owner, or the manager of the work order's branch. */
+export function warrantyClaimRoutes(ctx: AppContext): Router {
+  const r = Router();
+  r.patch(
+    '/:workOrderId',
+    requireRole('owner', 'branch_manager'),
+    endpoint({ params: z.object({ workOrderId: idSchema }), body: warrantyClaimUpdateSchema }, async ({ params, body, user }) => ({
+      claim: await updateWarrantyClaim(ctx.db, user, params.workOrderId, body),
+    })),
+  );
+  return r;
+}

@@ -1,0 +1,798 @@
+/**
+ * Fix Quality: the owner's report of first-time fix and callbacks, the factory-defect review with its
+ * warranty claims, and model alerts with their inspection work orders.
+ *
+ * The report reads the jobs of a period with one set-based query (first visit per job by DISTINCT ON,
+ * follow-ups and the last visit of each job's chain joined as grouped sets), then groups in TypeScript and
+ * runs `fixQuality` from @coilpath/calc per group. Definitions: see packages/contract/src/fix-quality.ts.
+ */
+import { eq, inArray, sql, type SQL } from 'drizzle-orm';
+import { fixQuality, type FixQualityJob } from '@coilpath/calc';
+import {
+  causeCodeLabels,
+  causeOriginLabels,
+  modelAlertPurpose,
+  type CauseCode,
+  type CauseOrigin,
+  type CreateInspections,
+  type CreateInspectionsResult,
+  type FactoryDefectCase,
+  type FactoryDefectModel,
+  type FactoryDefectReview,
+  type FixQualityFigures,
+  type FixQualityGroup,
+  type FixQualityReport,
+  type ModelAlert,
+  type ModelAlertUnit,
+  type SessionUser,
+  type VisitOutcome,
+  type WarrantyClaim,
+  type WarrantyClaimStatus,
+  type WarrantyClaimUpdate,
+  type WorkOrderKind,
+} from '@coilpath/contract';
+import type { Db, Tx } from '../../db/client';
+import { auditEvents, branches, users, warrantyClaims, workOrders } from '../../db/schema';
+import { notFound, unprocessable } from '../../lib/errors';
+
+const DAY_MS = 86_400_000;
+
+/** Rows of a raw query (PGlite and node-postgres both answer `{ rows }`). */
+async function rows<T>(db: Tx, query: SQL): Promise<T[]> {
+  const res = (await db.execute(query)) as unknown as { rows: T[] };
+  return res.rows;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Periods
+// ---------------------------------------------------------------------------------------------
+
+export interface Period {
+  from: string;
+  to: string;
+}
+
+const dayMs = (d: string) => Date.parse(`${d}T00:00:00Z`);
+const isoDay = (ms: number) => new Date(ms).toISOString().slice(0, 10);
+
+/** The period of equal length that ends the day before `from`. */
+export function previousPeriod(p: Period): Period {
+  const len = (dayMs(p.to) - dayMs(p.from)) / DAY_MS + 1;
+  return { from: isoDay(dayMs(p.from) - len * DAY_MS), to: isoDay(dayMs(p.from) - DAY_MS) };
+}
+
+/** [start, end) instants of a period of UTC calendar dates. */
+const bounds = (p: Period) => ({ start: new Date(dayMs(p.from)).toISOString(), end: new Date(dayMs(p.to) + DAY_MS).toISOString() });
+
+// ---------------------------------------------------------------------------------------------
+// The report
+// ---------------------------------------------------------------------------------------------
+
+/** One service call of the period with what the report needs to know about it. */
+export interface ReportJob {
+  id: string;
+  branchId: string;
+  techId: string;
+  outcome: VisitOutcome;
+  openedMs: number;
+  closedMs: number;
+  make: string | null;
+  model: string | null;
+  causeCode: CauseCode | null;
+  origin: CauseOrigin | null;
+  firstCallbackMs: number | null;
+  firstReturnMs: number | null;
+  returnVisits: number;
+  lastOutcome: VisitOutcome | null;
+  lastClosedMs: number | null;
+}
+
+interface JobRow {
+  id: string;
+  branch_id: string;
+  tech_id: string;
+  outcome: VisitOutcome | null;
+  opened_ms: number | string;
+  closed_ms: number | string;
+  make: string | null;
+  model: string | null;
+  cause_code: CauseCode | null;
+  origin: CauseOrigin | null;
+  first_callback_ms: number | string | null;
+  first_return_ms: number | string | null;
+  return_visits: number | null;
+  last_outcome: VisitOutcome | null;
+  last_closed_ms: number | string | null;
+}
+
+const num = (v: number | string | null): number | null => (v === null || v === undefined ? null : Number(v));
+
+/**
+ * The service calls whose first visit (earliest closed visit) closed in [start, end), each with its first
+ * finding, earliest callback and return visit, count of return visits, and the last closed visit of the
+ * job and its follow-ups. One statement.
+ */
+export async function loadJobs(db: Tx, range: { start: string; end: string }, branchId: string | undefined): Promise<ReportJob[]> {
+  const branchFilter = branchId ? sql`AND w.branch_id = ${branchId}` : sql``;
+  const result = await rows<JobRow>(
+    db,
+    sql`
+    WITH fv AS (
+      SELECT DISTINCT ON (v.work_order_id)
+        v.work_order_id AS job_id, v.id AS visit_id, v.tech_id, v.closed_at, v.outcome
+      FROM visits v
+      JOIN work_orders w ON w.id = v.work_order_id
+      WHERE w.kind = 'service_call' AND v.closed_at IS NOT NULL
+        AND w.created_at < ${range.end}::timestamptz ${branchFilter}
+      ORDER BY v.work_order_id, v.closed_at, v.id
+    ),
+    jobs AS (
+      SELECT fv.*, w.branch_id, w.unit_id, w.created_at
+      FROM fv JOIN work_orders w ON w.id = fv.job_id
+      WHERE fv.closed_at >= ${range.start}::timestamptz AND fv.closed_at < ${range.end}::timestamptz
+    ),
+    fu AS (
+      SELECT f.origin_work_order_id AS job_id, f.id AS wo_id, f.kind, f.created_at
+      FROM work_orders f JOIN jobs j ON j.job_id = f.origin_work_order_id
+      WHERE f.kind IN ('callback', 'return_visit')
+    ),
+    fu_agg AS (
+      SELECT job_id,
+        min(created_at) FILTER (WHERE kind = 'callback') AS first_callback,
+        min(created_at) FILTER (WHERE kind = 'return_visit') AS first_return,
+        (count(*) FILTER (WHERE kind = 'return_visit'))::int AS return_visits
+      FROM fu GROUP BY job_id
+    ),
+    chain AS (
+      SELECT job_id, job_id AS wo_id FROM jobs
+      UNION ALL
+      SELECT job_id, wo_id FROM fu
+    ),
+    last_visit AS (
+      SELECT DISTINCT ON (c.job_id) c.job_id, v.closed_at, v.outcome
+      FROM chain c JOIN visits v ON v.work_order_id = c.wo_id
+      WHERE v.closed_at IS NOT NULL
+      ORDER BY c.job_id, v.closed_at DESC, v.id DESC
+    ),
+    first_finding AS (
+      SELECT DISTINCT ON (fd.visit_id) fd.visit_id, fd.cause_code, fd.origin
+      FROM findings fd JOIN jobs j ON j.visit_id = fd.visit_id
+      ORDER BY fd.visit_id, fd.created_at, fd.id
+    )
+    SELECT j.job_id AS id, j.branch_id, j.tech_id, j.outcome,
+      (extract(epoch FROM j.created_at) * 1000)::float8 AS opened_ms,
+      (extract(epoch FROM j.closed_at) * 1000)::float8 AS closed_ms,
+      u.make, u.model, ff.cause_code, ff.origin,
+      (extract(epoch FROM fa.first_callback) * 1000)::float8 AS first_callback_ms,
+      (extract(epoch FROM fa.first_return) * 1000)::float8 AS first_return_ms,
+      fa.return_visits,
+      lv.outcome AS last_outcome,
+      (extract(epoch FROM lv.closed_at) * 1000)::float8 AS last_closed_ms
+    FROM jobs j
+    LEFT JOIN units u ON u.id = j.unit_id
+    LEFT JOIN first_finding ff ON ff.visit_id = j.visit_id
+    LEFT JOIN fu_agg fa ON fa.job_id = j.job_id
+    LEFT JOIN last_visit lv ON lv.job_id = j.job_id
+  `,
+  );
+  return result.map((r) => ({
+    id: r.id,
+    branchId: r.branch_id,
+    techId: r.tech_id,
+    // A closed visit without an outcome is treated like one that needs a return (not resolved, not declined).
+    outcome: r.outcome ?? 'needs_return',
+    openedMs: Number(r.opened_ms),
+    closedMs: Number(r.closed_ms),
+    make: r.make,
+    model: r.model,
+    causeCode: r.cause_code,
+    origin: r.origin,
+    firstCallbackMs: num(r.first_callback_ms),
+    firstReturnMs: num(r.first_return_ms),
+    returnVisits: r.return_visits ?? 0,
+    lastOutcome: r.last_outcome,
+    lastClosedMs: num(r.last_closed_ms),
+  }));
+}
+
+/**
+ * The job as `fixQuality` sees it. Each job is judged by its own branch's callback window: follow-ups
+ * opened later than that window are left out here, and `fixQuality` then runs with the largest window of
+ * the branches involved, so a kept follow-up is always inside it. Only the earliest callback and the earliest
+ * return visit matter (a later one is inside the window only if the earliest is).
+ */
+function calcJob(j: ReportJob, windowDays: number): FixQualityJob {
+  const limit = j.closedMs + windowDays * DAY_MS;
+  const followUps: FixQualityJob['followUps'][number][] = [];
+  if (j.firstCallbackMs !== null && j.firstCallbackMs <= limit) followUps.push({ kind: 'callback', openedAt: new Date(j.firstCallbackMs) });
+  if (j.firstReturnMs !== null && j.firstReturnMs <= limit) followUps.push({ kind: 'return_visit', openedAt: new Date(j.firstReturnMs) });
+  return { id: j.id, kind: 'service_call', firstVisitOutcome: j.outcome, firstVisitClosedAt: new Date(j.closedMs), followUps };
+}
+
+export function figuresOf(jobs: readonly ReportJob[], windows: ReadonlyMap<string, number>): FixQualityFigures {
+  const maxWindow = windows.size ? Math.max(...windows.values()) : 30;
+  const r = fixQuality(
+    jobs.map((j) => calcJob(j, windows.get(j.branchId) ?? 30)),
+    { windowDays: maxWindow },
+  );
+  let returnVisits = 0;
+  let resolvedJobs = 0;
+  let days = 0;
+  for (const j of jobs) {
+    if (j.outcome === 'declined') continue; // not eligible
+    returnVisits += j.returnVisits;
+    if (j.lastOutcome === 'resolved' && j.lastClosedMs !== null) {
+      resolvedJobs++;
+      days += (j.lastClosedMs - j.openedMs) / DAY_MS;
+    }
+  }
+  return {
+    eligible: r.eligible,
+    firstTimeFixed: r.firstTimeFixed,
+    firstTimeFixRate: r.firstTimeFixRate,
+    resolvedFirstVisits: r.resolvedFirstVisits,
+    callbacks: r.callbacks,
+    callbackRate: r.callbackRate,
+    returnVisits,
+    returnVisitsPerServiceCall: r.eligible === 0 ? null : returnVisits / r.eligible,
+    resolvedJobs,
+    avgDaysToResolve: resolvedJobs === 0 ? null : days / resolvedJobs,
+  };
+}
+
+function groupBy(
+  jobs: readonly ReportJob[],
+  keyOf: (j: ReportJob) => string,
+  labelOf: (key: string) => string,
+  windows: ReadonlyMap<string, number>,
+  keys: readonly string[] = [],
+): FixQualityGroup[] {
+  const groups = new Map<string, ReportJob[]>(keys.map((k) => [k, []]));
+  for (const j of jobs) {
+    const k = keyOf(j);
+    const list = groups.get(k);
+    if (list) list.push(j);
+    else groups.set(k, [j]);
+  }
+  return [...groups].map(([key, list]) => ({ key, label: labelOf(key), ...figuresOf(list, windows) }));
+}
+
+const diff = (a: number | null, b: number | null) => (a === null || b === null ? null : a - b);
+const byEligibleDesc = (a: FixQualityGroup, b: FixQualityGroup) => b.eligible - a.eligible || a.label.localeCompare(b.label);
+
+function monthsOf(p: Period): string[] {
+  const out: string[] = [];
+  let y = Number(p.from.slice(0, 4));
+  let m = Number(p.from.slice(5, 7));
+  const last = p.to.slice(0, 7);
+  for (;;) {
+    const key = `${y}-${String(m).padStart(2, '0')}`;
+    out.push(key);
+    if (key >= last || out.length > 60) break;
+    m++;
+    if (m > 12) {
+      m = 1;
+      y++;
+    }
+  }
+  return out;
+}
+
+export const NONE = '(none recorded)';
+
+export async function fixQualityReport(db: Db, period: Period, branchId: string | undefined): Promise<FixQualityReport> {
+  const prev = previousPeriod(period);
+  const cur = bounds(period);
+  // An analytic read over up to hundreds of thousands of rows: hash joins and in-memory sorts beat the
+  // nested loops the planner picks from its (low) row estimate of the period filter. Local to this transaction.
+  const all = await db.transaction(async (tx) => {
+    await tx.execute(sql`SET LOCAL work_mem = '64MB'`);
+    await tx.execute(sql`SET LOCAL enable_nestloop = off`);
+    return loadJobs(tx, { start: bounds(prev).start, end: cur.end }, branchId);
+  });
+  const curStartMs = Date.parse(cur.start);
+  const current = all.filter((j) => j.closedMs >= curStartMs);
+  const previous = all.filter((j) => j.closedMs < curStartMs);
+
+  const branchRows = await db
+    .select({ id: branches.id, name: branches.name, windowDays: branches.callbackWindowDays })
+    .from(branches)
+    .where(branchId ? eq(branches.id, branchId) : undefined);
+  const windows = new Map(branchRows.map((b) => [b.id, b.windowDays]));
+  const branchNames = new Map(branchRows.map((b) => [b.id, b.name]));
+  const techIds = [...new Set(current.map((j) => j.techId))];
+  const techs = techIds.length
+    ? await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, techIds))
+    : [];
+  const techNames = new Map(techs.map((t) => [t.id, t.name]));
+
+  const head = figuresOf(current, windows);
+  const before = figuresOf(previous, windows);
+  const modelKey = (j: ReportJob) => (j.make === null ? NONE : `${j.make}|${j.model}`);
+  return {
+    period,
+    previousPeriod: prev,
+    branchId: branchId ?? null,
+    windowDays: [...new Set(windows.values())].sort((a, b) => a - b),
+    ...head,
+    previous: before,
+    change: {
+      firstTimeFixRate: diff(head.firstTimeFixRate, before.firstTimeFixRate),
+      callbackRate: diff(head.callbackRate, before.callbackRate),
+      returnVisitsPerServiceCall: diff(head.returnVisitsPerServiceCall, before.returnVisitsPerServiceCall),
+      avgDaysToResolve: diff(head.avgDaysToResolve, before.avgDaysToResolve),
+      eligible: head.eligible - before.eligible,
+    },
+    byBranch: groupBy(current, (j) => j.branchId, (k) => branchNames.get(k) ?? 'Unknown branch', windows).sort((a, b) =>
+      a.label.localeCompare(b.label),
+    ),
+    byTechnician: groupBy(current, (j) => j.techId, (k) => techNames.get(k) ?? 'Unknown technician', windows).sort(byEligibleDesc),
+    byMonth: groupBy(current, (j) => new Date(j.closedMs).toISOString().slice(0, 7), (k) => k, windows, monthsOf(period)).sort((a, b) =>
+      a.key.localeCompare(b.key),
+    ),
+    byModel: groupBy(current, modelKey, (k) => (k === NONE ? 'No unit recorded' : k.replace('|', ' ')), windows).sort(byEligibleDesc),
+    byCause: groupBy(current, (j) => j.causeCode ?? NONE, (k) => causeCodeLabels[k as CauseCode] ?? 'No finding recorded', windows).sort(
+      byEligibleDesc,
+    ),
+    byOrigin: groupBy(current, (j) => j.origin ?? NONE, (k) => causeOriginLabels[k as CauseOrigin] ?? 'No finding recorded', windows).sort(
+      byEligibleDesc,
+    ),
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Factory-defect review
+// ---------------------------------------------------------------------------------------------
+
+interface CaseRow {
+  id: string;
+  number: number | null;
+  kind: WorkOrderKind;
+  branch_id: string;
+  branch_name: string;
+  currency: string;
+  labour_rate_cents: number;
+  refrigerant_price_cents_per_lb: number;
+  site_id: string;
+  site_name: string;
+  unit_id: string;
+  unit_tag: string;
+  make: string;
+  model: string;
+  causes: CauseCode[] | string;
+  created_at: Date | string;
+  origin_work_order_id: string | null;
+  visits: number | null;
+  labour_minutes: number | string | null;
+  refrigerant_lb: number | string | null;
+  claim_status: WarrantyClaimStatus | null;
+  claim_amount_cents: number | null;
+  claim_reference: string | null;
+  claim_notes: string | null;
+  claim_updated_at: Date | string | null;
+}
+
+const iso = (v: Date | string) => (v instanceof Date ? v : new Date(v)).toISOString();
+/** node-postgres may answer a text[] as '{a,b}'. */
+const textArray = (v: string[] | string): string[] => (Array.isArray(v) ? v : v.replace(/^{|}$/g, '').split(',').filter(Boolean));
+
+/**
+ * The factory-defect cases: callbacks and return visits opened in the period with a finding of origin
+ * `factory_defect` on one of their visits. A case costs the labour of its visits and of the visits of work
+ * booked off it (a return visit whose origin is the callback) — recorded labour minutes, else on-site to
+ * close — at the branch's labour rate, and the refrigerant added on those visits at the branch's price per pound.
+ */
+export async function factoryDefectCases(db: Tx, opts: { period?: Period; branchId?: string | undefined; workOrderId?: string }): Promise<FactoryDefectCase[]> {
+  const range = opts.period ? bounds(opts.period) : null;
+  const filters = [
+    range ? sql`AND w.created_at >= ${range.start}::timestamptz AND w.created_at < ${range.end}::timestamptz` : sql``,
+    opts.branchId ? sql`AND w.branch_id = ${opts.branchId}` : sql``,
+    opts.workOrderId ? sql`AND w.id = ${opts.workOrderId}` : sql``,
+  ];
+  const result = await rows<CaseRow>(
+    db,
+    sql`
+    WITH cases AS (
+      SELECT w.id, coalesce(w.unit_id, (array_agg(fd.unit_id ORDER BY fd.created_at) FILTER (WHERE fd.unit_id IS NOT NULL))[1]) AS unit_id,
+        array_agg(DISTINCT fd.cause_code) AS causes
+      FROM findings fd
+      JOIN visits v ON v.id = fd.visit_id
+      JOIN work_orders w ON w.id = v.work_order_id
+      WHERE fd.origin = 'factory_defect' AND w.kind IN ('callback', 'return_visit') ${sql.join(filters, sql` `)}
+      GROUP BY w.id, w.unit_id
+    ),
+    case_work AS (
+      SELECT c.id AS case_id, c.id AS wo_id FROM cases c
+      UNION ALL
+      SELECT c.id, w2.id FROM cases c JOIN work_orders w2 ON w2.origin_work_order_id = c.id
+    ),
+    labour AS (
+      SELECT cw.case_id AS work_order_id,
+        (count(*) FILTER (WHERE v.closed_at IS NOT NULL))::int AS visits,
+        coalesce(sum(coalesce(v.labour_minutes::float8,
+          CASE WHEN v.closed_at IS NOT NULL AND v.on_site_at IS NOT NULL
+            THEN extract(epoch FROM v.closed_at - v.on_site_at) / 60 END)), 0)::float8 AS labour_minutes
+      FROM visits v JOIN case_work cw ON cw.wo_id = v.work_order_id
+      GROUP BY cw.case_id
+    ),
+    gas AS (
+      SELECT cw.case_id AS work_order_id, sum(re.pounds_added)::float8 AS refrigerant_lb
+      FROM refrigerant_events re JOIN visits v ON v.id = re.visit_id JOIN case_work cw ON cw.wo_id = v.work_order_id
+      GROUP BY cw.case_id
+    )
+    SELECT w.id, w.number, w.kind, w.branch_id, b.name AS branch_name, b.currency, b.labour_rate_cents,
+      b.refrigerant_price_cents_per_lb, w.site_id, s.name AS site_name, u.id AS unit_id, u.tag AS unit_tag,
+      u.make, u.model, c.causes, w.created_at, w.origin_work_order_id,
+      l.visits, l.labour_minutes, g.refrigerant_lb,
+      wc.status AS claim_status, wc.amount_cents AS claim_amount_cents, wc.reference AS claim_reference,
+      wc.notes AS claim_notes, wc.updated_at AS claim_updated_at
+    FROM cases c
+    JOIN work_orders w ON w.id = c.id
+    JOIN branches b ON b.id = w.branch_id
+    JOIN sites s ON s.id = w.site_id
+    JOIN units u ON u.id = c.unit_id
+    LEFT JOIN labour l ON l.work_order_id = c.id
+    LEFT JOIN gas g ON g.work_order_id = c.id
+    LEFT JOIN warranty_claims wc ON wc.work_order_id = c.id
+    ORDER BY u.make, u.model, w.created_at
+  `,
+  );
+  return result.map((r) => {
+    const labourMinutes = Number(r.labour_minutes ?? 0);
+    const refrigerantLb = Number(r.refrigerant_lb ?? 0);
+    const labourCostCents = Math.round((labourMinutes / 60) * r.labour_rate_cents);
+    const refrigerantCostCents = Math.round(refrigerantLb * r.refrigerant_price_cents_per_lb);
+    const claim: WarrantyClaim = {
+      status: r.claim_status ?? 'to_claim',
+      amountCents: r.claim_amount_cents,
+      reference: r.claim_reference,
+      notes: r.claim_notes,
+      updatedAt: r.claim_updated_at ? iso(r.claim_updated_at) : null,
+    };
+    return {
+      workOrderId: r.id,
+      number: r.number,
+      kind: r.kind,
+      branchId: r.branch_id,
+      branchName: r.branch_name,
+      currency: r.currency,
+      siteId: r.site_id,
+      siteName: r.site_name,
+      unitId: r.unit_id,
+      unitTag: r.unit_tag,
+      make: r.make,
+      model: r.model,
+      causeCodes: textArray(r.causes) as CauseCode[],
+      openedAt: iso(r.created_at),
+      originWorkOrderId: r.origin_work_order_id,
+      visits: r.visits ?? 0,
+      labourMinutes: Math.round(labourMinutes * 10) / 10,
+      labourCostCents,
+      refrigerantLb: Math.round(refrigerantLb * 100) / 100,
+      refrigerantCostCents,
+      costCents: labourCostCents + refrigerantCostCents,
+      claim,
+    };
+  });
+}
+
+export async function factoryDefectReview(db: Db, period: Period, branchId: string | undefined): Promise<FactoryDefectReview> {
+  const cases = await factoryDefectCases(db, { period, branchId });
+  const models = new Map<string, { m: FactoryDefectModel; units: Set<string>; sites: Set<string>; minutes: number }>();
+  for (const c of cases) {
+    const key = `${c.make}|${c.model}`;
+    let g = models.get(key);
+    if (!g) {
+      g = {
+        m: {
+          key,
+          make: c.make,
+          model: c.model,
+          cases: 0,
+          callbacks: 0,
+          returnVisits: 0,
+          unitsAffected: 0,
+          sitesAffected: 0,
+          labourHours: 0,
+          labourCostCents: 0,
+          refrigerantLb: 0,
+          refrigerantCostCents: 0,
+          costCents: 0,
+          toClaimCents: 0,
+          claimedCents: 0,
+          paidCents: 0,
+          deniedCents: 0,
+        },
+        units: new Set(),
+        sites: new Set(),
+        minutes: 0,
+      };
+      models.set(key, g);
+    }
+    const m = g.m;
+    m.cases++;
+    if (c.kind === 'callback') m.callbacks++;
+    else m.returnVisits++;
+    g.units.add(c.unitId);
+    g.sites.add(c.siteId);
+    g.minutes += c.labourMinutes;
+    m.labourCostCents += c.labourCostCents;
+    m.refrigerantLb += c.refrigerantLb;
+    m.refrigerantCostCents += c.refrigerantCostCents;
+    m.costCents += c.costCents;
+    const amount = c.claim.amountCents ?? c.costCents;
+    if (c.claim.status === 'to_claim') m.toClaimCents += amount;
+    else if (c.claim.status === 'claimed') m.claimedCents += amount;
+    else if (c.claim.status === 'paid') m.paidCents += amount;
+    else m.deniedCents += amount;
+  }
+  const list = [...models.values()].map((g) => ({
+    ...g.m,
+    unitsAffected: g.units.size,
+    sitesAffected: g.sites.size,
+    labourHours: Math.round((g.minutes / 60) * 10) / 10,
+    refrigerantLb: Math.round(g.m.refrigerantLb * 100) / 100,
+  }));
+  list.sort((a, b) => b.costCents - a.costCents || a.key.localeCompare(b.key));
+  return { period, branchId: branchId ?? null, models: list, cases };
+}
+
+/** Records a warranty claim's status, amount and reference for one factory-defect case. */
+export async function updateWarrantyClaim(db: Db, user: SessionUser, workOrderId: string, body: WarrantyClaimUpdate): Promise<WarrantyClaim> {
+  return db.transaction(async (tx) => {
+    const [wo] = await tx.select({ id: workOrders.id, branchId: workOrders.branchId }).from(workOrders).where(eq(workOrders.id, workOrderId)).limit(1);
+    if (!wo || (user.role !== 'owner' && wo.branchId !== user.branchId)) throw notFound('work order');
+    const [isCase] = await factoryDefectCases(tx, { workOrderId });
+    if (!isCase) {
+      throw unprocessable('A warranty claim belongs to a callback or return visit with a factory-defect finding; this work order has none.');
+    }
+    const [existing] = await tx.select().from(warrantyClaims).where(eq(warrantyClaims.workOrderId, workOrderId)).limit(1);
+    const amountCents = body.amountCents !== undefined ? body.amountCents : (existing?.amountCents ?? null);
+    if ((body.status === 'claimed' || body.status === 'paid') && amountCents === null) {
+      throw unprocessable('Enter the amount claimed from the manufacturer before marking the claim claimed or paid.', {
+        fields: [{ path: 'amountCents', message: 'Enter the amount' }],
+      });
+    }
+    const values = {
+      status: body.status,
+      amountCents,
+      reference: body.reference !== undefined ? body.reference || null : (existing?.reference ?? null),
+      notes: body.notes !== undefined ? body.notes || null : (existing?.notes ?? null),
+      updatedById: user.id,
+      updatedAt: new Date(),
+    };
+    const [saved] = await tx
+      .insert(warrantyClaims)
+      .values({ workOrderId, ...values })
+      .onConflictDoUpdate({ target: warrantyClaims.workOrderId, set: values })
+      .returning();
+    await tx.insert(auditEvents).values({
+      actorId: user.id,
+      action: 'warranty_claim.updated',
+      entity: 'work_order',
+      entityId: workOrderId,
+      details: { from: existing?.status ?? 'to_claim', to: body.status, amountCents },
+    });
+    return {
+      status: saved!.status,
+      amountCents: saved!.amountCents,
+      reference: saved!.reference,
+      notes: saved!.notes,
+      updatedAt: saved!.updatedAt.toISOString(),
+    };
+  });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Model alerts
+// ---------------------------------------------------------------------------------------------
+
+interface AlertRow {
+  make: string;
+  model: string;
+  cause_code: CauseCode;
+  sites: number;
+  affected_units: number;
+  findings: number;
+  first_found: Date | string;
+  last_found: Date | string;
+  raised_at: Date | string;
+}
+
+interface AlertUnitRow {
+  make: string;
+  model: string;
+  cause_code: CauseCode;
+  unit_id: string;
+  tag: string;
+  serial: string;
+  branch_id: string;
+  branch_name: string;
+  site_id: string;
+  site_name: string;
+  install_date: string | null;
+  warranty_end: string | null;
+  has_finding: boolean;
+  inspection: 'open' | 'closed' | null;
+  visited_since: boolean;
+}
+
+/**
+ * Model alerts: the same cause code with origin `factory_defect` on one make and model at two or more
+ * sites (over all time and all branches). For each, every unit of the model (not archived) with whether it
+ * has been checked. A unit is checked when it has
+ *   1. a finding with the alert's cause code (any origin), or
+ *   2. an inspection work order with the alert's purpose `model-alert:<make>|<model>|<cause>` that is not
+ *      cancelled (open or closed), or
+ *   3. a closed visit after the alert was raised — the moment a second site's factory-defect finding was
+ *      recorded (closing time of its visit): from then on a technician on the unit knew to look.
+ */
+export async function loadModelAlerts(db: Tx, filter?: { make: string; model: string; causeCode: CauseCode }) {
+  const only = filter
+    ? sql`AND u.make = ${filter.make} AND u.model = ${filter.model} AND fd.cause_code = ${filter.causeCode}`
+    : sql``;
+  const alertRows = await rows<AlertRow>(
+    db,
+    sql`
+    WITH defects AS (
+      SELECT u.make, u.model, fd.cause_code, u.site_id, u.id AS unit_id, coalesce(v.closed_at, fd.created_at) AS found_at
+      FROM findings fd
+      JOIN visits v ON v.id = fd.visit_id
+      JOIN work_orders w ON w.id = v.work_order_id
+      JOIN units u ON u.id = coalesce(fd.unit_id, w.unit_id)
+      WHERE fd.origin = 'factory_defect' ${only}
+    ),
+    per_site AS (
+      SELECT make, model, cause_code, site_id, min(found_at) AS first_at FROM defects GROUP BY 1, 2, 3, 4
+    ),
+    raised AS (
+      SELECT make, model, cause_code, (array_agg(first_at ORDER BY first_at))[2] AS raised_at
+      FROM per_site GROUP BY 1, 2, 3 HAVING count(*) >= 2
+    )
+    SELECT d.make, d.model, d.cause_code,
+      count(DISTINCT d.site_id)::int AS sites, count(DISTINCT d.unit_id)::int AS affected_units, count(*)::int AS findings,
+      min(d.found_at) AS first_found, max(d.found_at) AS last_found, r.raised_at
+    FROM defects d JOIN raised r USING (make, model, cause_code)
+    GROUP BY d.make, d.model, d.cause_code, r.raised_at
+    ORDER BY count(DISTINCT d.site_id) DESC, d.make, d.model, d.cause_code
+  `,
+  );
+  if (alertRows.length === 0) return [];
+  const alertValues = sql.join(
+    alertRows.map(
+      (a) =>
+        sql`(${a.make}, ${a.model}, ${a.cause_code}, ${modelAlertPurpose(a.make, a.model, a.cause_code)}, ${iso(a.raised_at)}::timestamptz)`,
+    ),
+    sql`, `,
+  );
+  const unitRows = await rows<AlertUnitRow>(
+    db,
+    sql`
+    WITH alerts(make, model, cause_code, purpose, raised_at) AS (VALUES ${alertValues})
+    SELECT a.make, a.model, a.cause_code, u.id AS unit_id, u.tag, u.serial, u.branch_id, b.name AS branch_name,
+      u.site_id, s.name AS site_name, u.install_date::text AS install_date, u.warranty_end::text AS warranty_end,
+      EXISTS (
+        SELECT 1 FROM findings f2 JOIN visits v2 ON v2.id = f2.visit_id JOIN work_orders w2 ON w2.id = v2.work_order_id
+        WHERE f2.cause_code = a.cause_code AND coalesce(f2.unit_id, w2.unit_id) = u.id
+      ) AS has_finding,
+      (SELECT CASE WHEN bool_or(wi.state <> 'closed') THEN 'open' ELSE 'closed' END
+         FROM work_orders wi WHERE wi.unit_id = u.id AND wi.purpose = a.purpose AND wi.state <> 'cancelled'
+         HAVING count(*) > 0) AS inspection,
+      EXISTS (
+        SELECT 1 FROM visits v3 JOIN work_orders w3 ON w3.id = v3.work_order_id
+        WHERE w3.unit_id = u.id AND v3.closed_at > a.raised_at
+      ) AS visited_since
+    FROM alerts a
+    JOIN units u ON u.make = a.make AND u.model = a.model AND u.archived_at IS NULL
+    JOIN branches b ON b.id = u.branch_id
+    JOIN sites s ON s.id = u.site_id
+    ORDER BY b.name, s.name, u.tag
+  `,
+  );
+  return alertRows.map((a) => {
+    const units = unitRows.filter((u) => u.make === a.make && u.model === a.model && u.cause_code === a.cause_code);
+    return { alert: a, units };
+  });
+}
+
+const isChecked = (u: AlertUnitRow) => u.has_finding || u.inspection !== null || u.visited_since;
+
+const toAlertUnit = (u: AlertUnitRow): ModelAlertUnit => ({
+  unitId: u.unit_id,
+  tag: u.tag,
+  serial: u.serial,
+  branchId: u.branch_id,
+  branchName: u.branch_name,
+  siteId: u.site_id,
+  siteName: u.site_name,
+  installDate: u.install_date,
+  warrantyEnd: u.warranty_end,
+});
+
+/** Alerts for the owner (every unit) or a manager (the unchecked units of the own branch). */
+export async function modelAlerts(db: Db, user: SessionUser): Promise<ModelAlert[]> {
+  const loaded = await loadModelAlerts(db);
+  return loaded.map(({ alert: a, units }) => {
+    const visible = user.role === 'owner' ? units : units.filter((u) => u.branch_id === user.branchId);
+    return {
+      key: `${a.make}|${a.model}|${a.cause_code}`,
+      make: a.make,
+      model: a.model,
+      causeCode: a.cause_code,
+      purpose: modelAlertPurpose(a.make, a.model, a.cause_code),
+      sites: a.sites,
+      affectedUnits: a.affected_units,
+      findings: a.findings,
+      firstFoundAt: iso(a.first_found),
+      lastFoundAt: iso(a.last_found),
+      unitsOfModel: units.length,
+      checkedUnits: units.filter(isChecked).length,
+      inspectionsOpen: units.filter((u) => u.inspection === 'open').length,
+      unchecked: visible.filter((u) => !isChecked(u)).map(toAlertUnit),
+    };
+  });
+}
+
+/**
+ * Creates one planned inspection work order (kind planned_maintenance, unplaced) per unchecked unit of the
+ * alert, each in the unit's own branch and site, so it lands in that branch's Roster queue. Units checked in
+ * the meantime are skipped; the same call twice creates nothing the second time.
+ */
+export async function createInspections(db: Db, user: SessionUser, body: CreateInspections): Promise<CreateInspectionsResult> {
+  const purpose = modelAlertPurpose(body.make, body.model, body.causeCode);
+  return db.transaction(async (tx) => {
+    // One creator at a time per alert, so two clicks cannot double the work orders.
+    await tx.execute(sql`SELECT pg_advisory_xact_lock(hashtext(${purpose}))`);
+    const [found] = await loadModelAlerts(tx, { make: body.make, model: body.model, causeCode: body.causeCode });
+    if (!found) throw notFound('model alert (the cause must be a factory defect found at two or more sites)');
+    const unchecked = found.units.filter((u) => !isChecked(u));
+    let chosen = unchecked;
+    if (body.unitIds) {
+      const ids = new Set(unchecked.map((u) => u.unit_id));
+      const bad = body.unitIds.filter((id) => !ids.has(id));
+      if (bad.length) {
+        throw unprocessable(`${bad.length} of the chosen units are not unchecked units of this alert (already checked, archived or another model). Reload the alerts and choose again.`, {
+          unitIds: bad,
+        });
+      }
+      const want = new Set(body.unitIds);
+      chosen = unchecked.filter((u) => want.has(u.unit_id));
+    }
+    if (chosen.length === 0) return { created: 0, workOrders: [], branches: [] };
+    const complaint = `Inspect for ${causeCodeLabels[body.causeCode].toLowerCase()}: a factory defect found on ${body.make} ${body.model} at ${found.alert.sites} sites. Check this unit and record a finding.`;
+    const created = await tx
+      .insert(workOrders)
+      .values(
+        chosen.map((u) => ({
+          branchId: u.branch_id,
+          siteId: u.site_id,
+          unitId: u.unit_id,
+          kind: 'planned_maintenance' as const,
+          state: 'unplaced' as const,
+          priority: 'normal' as const,
+          complaint,
+          purpose,
+          estimatedMinutes: 60,
+          createdById: user.id,
+        })),
+      )
+      .returning({ id: workOrders.id, number: workOrders.number, branchId: workOrders.branchId, unitId: workOrders.unitId });
+    await tx.insert(auditEvents).values({
+      actorId: user.id,
+      action: 'model_alert.inspections_created',
+      entity: 'model_alert',
+      details: { purpose, count: created.length },
+    });
+    const perBranch = new Map<string, { branchId: string; branchName: string; created: number }>();
+    for (const u of chosen) {
+      const e = perBranch.get(u.branch_id) ?? { branchId: u.branch_id, branchName: u.branch_name, created: 0 };
+      e.created++;
+      perBranch.set(u.branch_id, e);
+    }
+    return {
+      created: created.length,
+      workOrders: created.map((w) => ({ id: w.id, number: w.number, branchId: w.branchId, unitId: w.unitId! })),
+      branches: [...perBranch.values()],
+    };
+  });
+}

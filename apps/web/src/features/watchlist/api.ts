@@ -1,0 +1,83 @@
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type {
+  AlarmImportResult,
+  AlarmInput,
+  AlarmRow,
+  BookRepair,
+  LeakCasePatch,
+  LeakCaseRow,
+  QueueReturnVisit,
+  RepeatAlarmResponse,
+  ReturnVisitRow,
+  UnitChoice,
+  VerificationTestInput,
+} from '@coilpath/contract';
+import { api } from '@/lib/api-client';
+
+const key = (branchId: string | undefined) => ['watchlist', branchId ?? 'all'] as const;
+
+export function useLeakCases(branchId: string | undefined) {
+  return useQuery({ queryKey: [...key(branchId), 'leak-cases'], queryFn: () => api.get<{ leakCases: LeakCaseRow[] }>('/api/leak-cases', { branchId }).then((r) => r.leakCases) });
+}
+export function useRepeatAlarms(branchId: string | undefined) {
+  return useQuery({ queryKey: [...key(branchId), 'repeat-alarms'], queryFn: () => api.get<RepeatAlarmResponse>('/api/watchlist/repeat-alarms', { branchId }) });
+}
+export function useReturnVisits(branchId: string | undefined) {
+  return useQuery({ queryKey: [...key(branchId), 'return-visits'], queryFn: () => api.get<{ returnVisits: ReturnVisitRow[] }>('/api/watchlist/return-visits', { branchId }).then((r) => r.returnVisits) });
+}
+export function useRecentAlarms(branchId: string | undefined) {
+  return useQuery({ queryKey: [...key(branchId), 'alarms'], queryFn: () => api.get<{ alarms: AlarmRow[] }>('/api/alarms', { branchId, limit: 20 }).then((r) => r.alarms) });
+}
+export function useUnitChoices(branchId: string | undefined) {
+  return useQuery({
+    queryKey: ['unit-choices', branchId ?? 'all'],
+    queryFn: () => api.get<{ units: UnitChoice[] }>('/api/watchlist/units', { branchId }).then((r) => r.units),
+    staleTime: 60_000,
+  });
+}
+
+/** Every Watchlist mutation refreshes the Watchlist's queries (and the Roster's, which shows the queue). */
+function useRefresh() {
+  const qc = useQueryClient();
+  return () => {
+    void qc.invalidateQueries({ queryKey: ['watchlist'] });
+    void qc.invalidateQueries({ queryKey: ['roster'] });
+  };
+}
+
+export function useCreateAlarm() {
+  const refresh = useRefresh();
+  return useMutation({ mutationFn: (body: AlarmInput) => api.post<{ alarm: AlarmRow }>('/api/alarms', body).then((r) => r.alarm), onSuccess: refresh });
+}
+export function useImportAlarms() {
+  const refresh = useRefresh();
+  return useMutation({
+    mutationFn: (body: { csv: string; mode: 'dry_run' | 'commit'; branchId?: string | undefined }) => api.post<AlarmImportResult>('/api/alarms/import', body),
+    onSuccess: (r) => r.mode === 'commit' && refresh(),
+  });
+}
+export function usePatchLeakCase() {
+  const refresh = useRefresh();
+  return useMutation({ mutationFn: ({ id, patch }: { id: string; patch: LeakCasePatch }) => api.patch<{ leakCase: LeakCaseRow }>(`/api/leak-cases/${id}`, patch), onSuccess: refresh });
+}
+export function useAddVerificationTest() {
+  const refresh = useRefresh();
+  return useMutation({
+    mutationFn: ({ id, body }: { id: string; body: VerificationTestInput }) => api.post<{ leakCase: LeakCaseRow }>(`/api/leak-cases/${id}/verification-tests`, body),
+    onSuccess: refresh,
+  });
+}
+export function useBookRepair() {
+  const refresh = useRefresh();
+  return useMutation({
+    mutationFn: ({ id, body }: { id: string; body: BookRepair }) => api.post<{ leakCase: LeakCaseRow; workOrderId: string }>(`/api/leak-cases/${id}/repair-visit`, body),
+    onSettled: refresh,
+  });
+}
+export function useQueueReturnVisit() {
+  const refresh = useRefresh();
+  return useMutation({
+    mutationFn: ({ id, body }: { id: string; body: QueueReturnVisit }) => api.patch<{ returnVisit: ReturnVisitRow }>(`/api/watchlist/return-visits/${id}`, body),
+    onSuccess: refresh,
+  });
+}
