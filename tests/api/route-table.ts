@@ -54,6 +54,25 @@ import {
   workOrderCreateSchema,
   workOrderUpdateSchema,
   workOrderListQuerySchema,
+  agreementInputSchema,
+  agreementPatchSchema,
+  agreementListQuerySchema,
+  pmCompletionQuerySchema,
+  fixQualityQuerySchema,
+  fixQualityCsvQuerySchema,
+  createInspectionsSchema,
+  warrantyClaimUpdateSchema,
+  unitSearchQuerySchema,
+  alarmInputSchema,
+  alarmImportSchema,
+  alarmListQuerySchema,
+  repeatAlarmQuerySchema,
+  returnVisitQuerySchema,
+  queueReturnVisitSchema,
+  leakCaseQuerySchema,
+  leakCasePatchSchema,
+  verificationTestInputSchema,
+  bookRepairSchema,
   type Role,
 } from '@coilpath/contract';
 import { eq } from 'drizzle-orm';
@@ -62,8 +81,8 @@ import type { MailMessage } from '../../apps/api/src/mail/mailer';
 import { requestPasswordReset } from '../../apps/api/src/modules/auth/password-reset.service';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { z as zod } from 'zod';
-import { attachments, bookings, circuits, customers, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
-import { makeUser, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
+import { agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, workOrders, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
+import { makeSiteWithUnit, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
 import { nextWeekday, type Caller, type MatrixFixture, type Side } from './matrix-fixture';
 
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
@@ -162,6 +181,39 @@ function freeTechnician(f: MatrixFixture, side: Side) {
 
 async function circuitsOf(f: MatrixFixture, unitId: string) {
   return f.db.select().from(circuits).where(eq(circuits.unitId, unitId));
+}
+
+const managers: readonly Role[] = ['owner', 'branch_manager'];
+const daysFrom = (d: Date, n: number) => isoDay(new Date(d.getTime() + n * 86_400_000));
+
+/** An open leak case on the side's unit, repair due in five days. */
+async function openLeakCase(f: MatrixFixture, side: Side) {
+  const today = f.ctx.clock.now();
+  const [c] = await f.db
+    .insert(leakCases)
+    .values({ branchId: side.branch.id, unitId: side.unit.id, openedOn: daysFrom(today, -25), rule: 'comfort_cooling', method: 'annualizing', thresholdPercent: 10, leakRatePercent: 24, repairDueDate: daysFrom(today, 5) })
+    .returning();
+  return c!;
+}
+
+/** A quarterly agreement over the side's unit. */
+async function quarterlyAgreement(f: MatrixFixture, side: Side) {
+  const today = f.ctx.clock.now();
+  const [a] = await f.db
+    .insert(agreements)
+    .values({ branchId: side.branch.id, siteId: side.site.id, name: `PM ${unique()}`, rrule: 'FREQ=MONTHLY;INTERVAL=3;BYMONTHDAY=15', termStart: daysFrom(today, 1), termEnd: daysFrom(today, 365), slaHours: 24, priceCents: 120_000, visitMinutes: 90 })
+    .returning();
+  await f.db.insert(agreementUnits).values({ agreementId: a!.id, unitId: side.unit.id });
+  return a!;
+}
+
+/** A return visit whose visit found a factory defect (a warranty-claim case). */
+async function factoryDefectReturn(f: MatrixFixture, side: Side) {
+  const wo = await makeWorkOrder(f.db, { branchId: side.branch.id, siteId: side.site.id, unitId: side.unit.id, kind: 'return_visit', originWorkOrderId: side.booked.workOrder.id, state: 'closed' });
+  const now = f.ctx.clock.now();
+  const [v] = await f.db.insert(visits).values({ branchId: side.branch.id, workOrderId: wo.id, techId: side.technician.id, onSiteAt: now, closedAt: now, outcome: 'resolved' }).returning();
+  await f.db.insert(findings).values({ visitId: v!.id, unitId: side.unit.id, causeCode: 'refrigerant_leak', origin: 'factory_defect' });
+  return wo;
 }
 
 const unitBody = (over: Record<string, unknown> = {}) => ({
@@ -805,6 +857,256 @@ export const routeTable: RouteRow[] = [
         body: { proposals: [{ workOrderId: side.workOrder.id, techId: tech.id, startAt: startAt.toISOString(), endAt: new Date(startAt.getTime() + 3600_000).toISOString() }] },
       };
     },
+  },
+
+
+  // ── Fix Quality (owners, branch managers) and warranty claims ───────────────────────────
+  ...(['/api/reports/fix-quality', '/api/reports/fix-quality/factory-defects', '/api/reports/fix-quality.pdf'] as const).map(
+    (path): RouteRow => ({
+      method: 'GET',
+      path,
+      expect: roles(managers, 200, { scoped: true }),
+      query: fixQualityQuerySchema,
+      request: (f, side) => ({ path, query: { branchId: side.branch.id, from: daysFrom(f.ctx.clock.now(), -90), to: isoDay(f.ctx.clock.now()) } }),
+    }),
+  ),
+  {
+    method: 'GET',
+    path: '/api/reports/fix-quality.csv',
+    expect: roles(managers, 200, { scoped: true }),
+    query: fixQualityCsvQuerySchema,
+    request: (f, side) => ({
+      path: '/api/reports/fix-quality.csv',
+      query: { branchId: side.branch.id, from: daysFrom(f.ctx.clock.now(), -90), to: isoDay(f.ctx.clock.now()), table: 'byTechnician' },
+    }),
+  },
+  { method: 'GET', path: '/api/reports/fix-quality/model-alerts', expect: roles(managers, 200) },
+  {
+    method: 'POST',
+    path: '/api/reports/fix-quality/model-alerts/inspections',
+    expect: roles(['owner'], 201),
+    body: createInspectionsSchema,
+    request: async (f, side) => {
+      // A model alert: the same factory defect at two sites; then a third, unchecked unit to inspect.
+      const make = `Make${unique()}`;
+      const model = 'M-1';
+      const sideAt = async () => {
+        const more = await makeSiteWithUnit(f.db, side.branch.id, { unit: { make, model } });
+        return { ...side, site: more.site, unit: more.unit };
+      };
+      await factoryDefectReturn(f, await sideAt());
+      await factoryDefectReturn(f, await sideAt());
+      const unchecked = await sideAt();
+      return {
+        path: '/api/reports/fix-quality/model-alerts/inspections',
+        body: { make, model, causeCode: 'refrigerant_leak', unitIds: [unchecked.unit.id] },
+      };
+    },
+  },
+  {
+    method: 'PATCH',
+    path: '/api/warranty-claims/:workOrderId',
+    expect: roles(managers, 200, { scoped: true }),
+    body: warrantyClaimUpdateSchema,
+    textFields: ['reference', 'notes'],
+    request: async (f, side) => ({
+      path: `/api/warranty-claims/${(await factoryDefectReturn(f, side)).id}`,
+      body: { status: 'claimed', amountCents: 42_000, reference: 'WC-7731', notes: 'Coil replaced under warranty' },
+    }),
+  },
+
+  // ── Unit file (every role; technicians: units on their assignments) ─────────────────────
+  {
+    method: 'GET',
+    path: '/api/unit-file',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    query: unitSearchQuerySchema,
+    request: (_f, side) => ({ path: '/api/unit-file', query: { branchId: side.branch.id, q: 'RTU' } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/units/:id/file',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    request: (_f, side) => ({ path: `/api/units/${side.unit.id}/file` }),
+  },
+  {
+    method: 'GET',
+    path: '/api/units/:id/file/attachments/:attachmentId',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    request: async (f, side) => {
+      const storageKey = await f.ctx.storage.put(tinyPng, { contentType: 'image/png' });
+      const [a] = await f.db
+        .insert(attachments)
+        .values({ visitId: side.booked.visit.id, unitId: side.unit.id, kind: 'nameplate', storageKey, displayName: 'nameplate.png', contentType: 'image/png', sizeBytes: tinyPng.length })
+        .returning();
+      return { path: `/api/units/${side.unit.id}/file/attachments/${a!.id}` };
+    },
+  },
+
+  // ── Watchlist: alarms, repeat alarms, return visits, leak cases (managers) ──────────────
+  {
+    method: 'GET',
+    path: '/api/alarms',
+    expect: roles(managers, 200, { scoped: true }),
+    query: alarmListQuerySchema,
+    request: (_f, side) => ({ path: '/api/alarms', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/alarms',
+    expect: roles(['owner', 'branch_manager', 'dispatcher'], 201, { scoped: true }),
+    body: alarmInputSchema,
+    textFields: ['description'],
+    request: (f, side) => ({
+      path: '/api/alarms',
+      body: { unitId: side.unit.id, circuit: 1, code: 'HP-1', description: 'High head pressure lockout', raisedAt: f.ctx.clock.now().toISOString() },
+    }),
+  },
+  {
+    method: 'POST',
+    path: '/api/alarms/import',
+    expect: roles(managers, 200, { scoped: true }),
+    body: alarmImportSchema,
+    request: (f, side) => ({
+      path: '/api/alarms/import',
+      body: { branchId: side.branch.id, mode: 'dry_run', csv: `unit_serial,circuit,code,raised_at\n${side.unit.serial},1,HP-1,${f.ctx.clock.now().toISOString()}\n` },
+    }),
+  },
+  {
+    method: 'GET',
+    path: '/api/watchlist/repeat-alarms',
+    expect: roles(managers, 200, { scoped: true }),
+    query: repeatAlarmQuerySchema,
+    request: (_f, side) => ({ path: '/api/watchlist/repeat-alarms', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/watchlist/units',
+    expect: roles(managers, 200, { scoped: true }),
+    query: returnVisitQuerySchema,
+    request: (_f, side) => ({ path: '/api/watchlist/units', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/watchlist/return-visits',
+    expect: roles(managers, 200, { scoped: true }),
+    query: returnVisitQuerySchema,
+    request: (_f, side) => ({ path: '/api/watchlist/return-visits', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/watchlist/return-visits/:id',
+    expect: roles(managers, 200, { scoped: true }),
+    body: queueReturnVisitSchema,
+    request: async (f, side) => {
+      // The origin visit closed as needing a return, as the technician's close does.
+      await f.db.update(visits).set({ closedAt: f.ctx.clock.now(), outcome: 'needs_return', returnNeeds: ['parts'] }).where(eq(visits.id, side.booked.visit.id));
+      const wo = await makeWorkOrder(f.db, { branchId: side.branch.id, siteId: side.site.id, unitId: side.unit.id, kind: 'return_visit', originWorkOrderId: side.booked.workOrder.id });
+      return { path: `/api/watchlist/return-visits/${wo.id}`, body: { priority: 'high', latestDate: daysFrom(f.ctx.clock.now(), 7) } };
+    },
+  },
+  {
+    method: 'GET',
+    path: '/api/leak-cases',
+    expect: roles(managers, 200, { scoped: true }),
+    query: leakCaseQuerySchema,
+    request: (_f, side) => ({ path: '/api/leak-cases', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/leak-cases/:id',
+    expect: roles(managers, 200, { scoped: true }),
+    body: leakCasePatchSchema,
+    request: async (f, side) => ({
+      path: `/api/leak-cases/${(await openLeakCase(f, side)).id}`,
+      // Yesterday (UTC) is never in the future in any branch's time zone.
+      body: { action: 'repaired', repairedOn: daysFrom(f.ctx.clock.now(), -1), notes: 'Brazed the return bend' },
+    }),
+  },
+  {
+    method: 'POST',
+    path: '/api/leak-cases/:id/verification-tests',
+    expect: roles(managers, 201, { scoped: true }),
+    body: verificationTestInputSchema,
+    textFields: ['notes'],
+    request: async (f, side) => {
+      const c = await openLeakCase(f, side);
+      await f.db.update(leakCases).set({ status: 'repaired', repairedOn: daysFrom(f.ctx.clock.now(), -2) }).where(eq(leakCases.id, c.id));
+      return { path: `/api/leak-cases/${c.id}/verification-tests`, body: { kind: 'initial', testedOn: daysFrom(f.ctx.clock.now(), -1), passed: true, notes: 'Held pressure' } };
+    },
+  },
+  {
+    method: 'POST',
+    path: '/api/leak-cases/:id/repair-visit',
+    expect: roles(managers, 201, { scoped: true }),
+    body: bookRepairSchema,
+    textFields: ['notes'],
+    request: async (f, side) => ({ path: `/api/leak-cases/${(await openLeakCase(f, side)).id}/repair-visit`, body: { priority: 'high', notes: 'Bring nitrogen' } }),
+  },
+
+  // ── Agreements (owners, branch managers) ────────────────────────────────────────────────
+  {
+    method: 'GET',
+    path: '/api/agreements',
+    expect: roles(managers, 200, { scoped: true }),
+    query: agreementListQuerySchema,
+    request: (_f, side) => ({ path: '/api/agreements', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'GET',
+    path: '/api/agreements/pm-completion',
+    expect: roles(managers, 200, { scoped: true }),
+    query: pmCompletionQuerySchema,
+    request: (_f, side) => ({ path: '/api/agreements/pm-completion', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/agreements',
+    expect: roles(managers, 201, { scoped: true }),
+    body: agreementInputSchema,
+    textFields: ['name', 'seasonNotes'],
+    request: (f, side) => ({
+      path: '/api/agreements',
+      body: {
+        siteId: side.site.id,
+        name: 'Quarterly rooftop PM',
+        unitIds: [side.unit.id],
+        recurrence: { preset: 'quarterly', startMonth: 1, dayOfMonth: 15 },
+        seasonNotes: 'Coil cleaning in spring',
+        termStart: daysFrom(f.ctx.clock.now(), 1),
+        termEnd: daysFrom(f.ctx.clock.now(), 365),
+        slaHours: 24,
+        priceCents: 120_000,
+        visitMinutes: 90,
+        tasks: ['Replace filters'],
+      },
+    }),
+  },
+  {
+    method: 'GET',
+    path: '/api/agreements/:id',
+    expect: roles(managers, 200, { scoped: true }),
+    request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}` }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/agreements/:id',
+    expect: roles(managers, 200, { scoped: true }),
+    body: agreementPatchSchema,
+    textFields: ['name', 'seasonNotes'],
+    request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}`, body: { seasonNotes: 'Belts in autumn' } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/agreements/:id/plan',
+    expect: roles(managers, 200, { scoped: true }),
+    request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}/plan` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/agreements/:id/plan/apply',
+    expect: roles(managers, 200, { scoped: true }),
+    request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}/plan/apply` }),
   },
 
   // ── modules landing next: add their rows here (Sites/Team, Roster, My Day/Visit, Watchlist/
