@@ -1,6 +1,9 @@
 import type { Config } from 'tailwindcss';
 
-/** Coilpath's theme tokens (shared/UI.md). Technician colours meet WCAG AA with white text. */
+/**
+ * Coilpath's theme tokens (shared/UI.md). Technician colours meet WCAG AA with white text; each tint
+ * is light enough that its tone's colour as small text on it meets 4.5:1 (checked by axe in the journeys).
+ */
 export default {
   content: ['./index.html', './apps/web/src/**/*.{ts,tsx}'],
   theme: {
@@ -10,8 +13,8 @@ export default {
         slate: { DEFAULT: '#5B6B7A', line: '#D5DDE4', faint: '#EBF0F4' },
         frost: '#F4F7F9',
         copper: { DEFAULT: '#B5562B', hover: '#96451F', tint: '#F6E6DD' },
-        coolant: { DEFAULT: '#1F7A8C', tint: '#DDF0F3' },
-        ok: { DEFAULT: '#2E7D4F', tint: '#E0F1E7' },
+        coolant: { DEFAULT: '#1F7A8C', tint: '#EEF8F9' },
+        ok: { DEFAULT: '#2E7D4F', tint: '#EEF8F1' },
         watch: { DEFAULT: '#8A5A12', base: '#B7791F', tint: '#FBF0DC' },
         alarm: { DEFAULT: '#B3261E', tint: '#FBE4E2' },
         tech: {

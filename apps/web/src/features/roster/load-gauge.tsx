@@ -62,7 +62,8 @@ function Gauge({ l, techName }: { l: TechnicianDayLoad; techName: string }) {
 export function LoadGauge({ techs, days, load }: { techs: Technician[]; days: string[]; load: TechnicianDayLoad[] }) {
   const byKey = new Map(load.map((l) => [`${l.techId}|${l.day}`, l]));
   return (
-    <div className="overflow-x-auto">
+    // Focusable so keyboard users can scroll it sideways on narrow screens (WCAG 2.1.1).
+    <div className="overflow-x-auto" tabIndex={0} role="region" aria-label="Load per technician and day">
       <table className="w-full border-collapse text-sm">
         <caption className="sr-only">Load per technician and day: booked time against working hours</caption>
         <thead>
