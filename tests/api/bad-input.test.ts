@@ -235,6 +235,7 @@ describe('bad input', () => {
         // Every free-text field, deterministically: PostgreSQL text cannot hold U+0000.
         for (const k of row.textFields ?? []) {
           await check(row, who, own, `NUL character in ${k}`, true, (spec) => ({ ...spec, body: { ...validBody, [k]: 'a\u0000b' } }));
+          await check(row, who, own, `unpaired surrogate in ${k}`, true, (spec) => ({ ...spec, body: { ...validBody, [k]: 'a\ud800b' } }));
         }
       }
 

@@ -450,6 +450,7 @@ export const routeTable: RouteRow[] = [
     path: '/api/units/import',
     expect: roles(office, 200, { scoped: true }),
     body: unitImportSchema,
+    textFields: ['csv'],
     request: (_f, side) => ({
       path: '/api/units/import',
       body: {
@@ -967,6 +968,7 @@ export const routeTable: RouteRow[] = [
     path: '/api/alarms/import',
     expect: roles(managers, 200, { scoped: true }),
     body: alarmImportSchema,
+    textFields: ['csv'],
     request: (f, side) => ({
       path: '/api/alarms/import',
       body: { branchId: side.branch.id, mode: 'dry_run', csv: `unit_serial,circuit,code,raised_at\n${side.unit.serial},1,HP-1,${f.ctx.clock.now().toISOString()}\n` },

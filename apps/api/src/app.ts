@@ -21,16 +21,26 @@ function requireJsonBodies(req: Request, _res: Response, next: NextFunction) {
   next(new HttpError(415, 'unsupported_media_type', 'Send the request body as JSON (Content-Type: application/json).'));
 }
 
-function hasNul(v: unknown, depth = 0): boolean {
-  if (typeof v === 'string') return v.includes('\u0000');
+const loneSurrogate = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
+
+/** Text PostgreSQL cannot store: U+0000 (text) and unpaired surrogates (jsonb). */
+function badText(v: unknown, depth = 0): boolean {
+  if (typeof v === 'string') return v.includes('\u0000') || loneSurrogate.test(v);
   if (depth > 32 || !v || typeof v !== 'object') return false;
-  return Object.entries(v).some(([k, x]) => k.includes('\u0000') || hasNul(x, depth + 1));
+  return Object.entries(v).some(([k, x]) => badText(k) || badText(x, depth + 1));
 }
 
-/** PostgreSQL text cannot hold U+0000: refuse it up front (400) rather than fail in the database (500). */
-function refuseNulCharacters(req: Request, _res: Response, next: NextFunction) {
-  if (hasNul(req.body) || hasNul(req.query)) {
-    return next(new HttpError(400, 'invalid', 'Text may not contain the NUL character (U+0000).'));
+/**
+ * Routes whose body carries a file's contents and whose own parser refuses a binary file with a
+ * precise answer (`not_csv`): the text check leaves them alone.
+ */
+const fileContentRoutes = new Set(['/api/units/import']);
+
+/** Refuse text the database cannot hold up front (400) rather than fail in the database (500). */
+function refuseUnstorableText(req: Request, _res: Response, next: NextFunction) {
+  if (fileContentRoutes.has(req.originalUrl.split('?')[0]!)) return next();
+  if (badText(req.body) || badText(req.query)) {
+    return next(new HttpError(400, 'invalid', 'Text may not contain the NUL character (U+0000) or unpaired surrogates (not valid Unicode).'));
   }
   next();
 }
@@ -58,7 +68,7 @@ export function createApp(ctx: AppContext): express.Express {
   // Equipment CSV imports carry a whole file (up to 6 MB of text); every other body stays small.
   app.use('/api/units/import', express.json({ limit: '8mb' }));
   app.use('/api', express.json({ limit: '1mb' }));
-  app.use('/api', refuseNulCharacters);
+  app.use('/api', refuseUnstorableText);
   app.use('/api', cookieParser());
   app.use('/api', authenticate(ctx));
 
