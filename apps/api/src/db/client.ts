@@ -38,6 +38,9 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
   let database: Database;
   if (opts.databaseUrl) {
     const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 10 });
+    // An idle connection the server ends (restart, admin shutdown) emits 'error' on the pool; without a
+    // listener that would crash the process. The pool replaces the connection on the next query.
+    pool.on('error', (err) => console.error(`[coilpath] idle database connection lost: ${err.message}`));
     // Short API queries: JIT costs more than it saves (measured, STACK.md).
     pool.on('connect', (client) => {
       client.query('SET jit = off').catch(() => undefined);
