@@ -15,7 +15,7 @@ export function Dialog({
 }: {
   open: boolean;
   onClose: () => void;
-  title: string;
+  title: ReactNode;
   description?: ReactNode;
   children: ReactNode;
   wide?: boolean;

@@ -1,5 +1,4 @@
-import { useEffect, useId, useRef, type ReactNode } from 'react';
-import { AlertTriangle, X } from 'lucide-react';
+import { AlertTriangle } from 'lucide-react';
 import type { Booking, Technician, WorkOrder } from '@coilpath/contract';
 import { epa608Labels, priorityLabels, workOrderKindLabels, workOrderLabel } from '@coilpath/contract';
 import { formatInZone } from '@/lib/format';
@@ -20,39 +19,8 @@ export function TechSwatch({ tech }: { tech: Pick<Technician, 'colorIndex'> | un
 
 export const certLabel = (t: Technician) => (t.epa608Type === 'none' ? 'No EPA 608' : `EPA 608 ${epa608Labels[t.epa608Type]}`);
 
-/** A modal dialog on the native <dialog> element: focus stays inside, Escape closes. */
-export function Modal({ open, onClose, title, children, wide = false }: { open: boolean; onClose: () => void; title: ReactNode; children: ReactNode; wide?: boolean }) {
-  const ref = useRef<HTMLDialogElement>(null);
-  const titleId = useId();
-  useEffect(() => {
-    const d = ref.current;
-    if (!d) return;
-    if (open && !d.open) d.showModal();
-    if (!open && d.open) d.close();
-  }, [open]);
-  return (
-    <dialog
-      ref={ref}
-      aria-labelledby={titleId}
-      onClose={onClose}
-      className={`m-auto w-[calc(100vw-1.5rem)] ${wide ? 'max-w-4xl' : 'max-w-xl'} rounded-lg border border-slate-line bg-white p-0 text-ink shadow-xl backdrop:bg-ink/40`}
-    >
-      {open && (
-        <div className="flex max-h-[85vh] flex-col">
-          <div className="flex items-start justify-between gap-3 border-b border-slate-line px-4 py-3">
-            <h2 id={titleId} className="text-lg font-semibold">
-              {title}
-            </h2>
-            <button type="button" onClick={onClose} className="-m-1 inline-flex min-h-touch min-w-touch items-center justify-center rounded-md hover:bg-slate-faint" aria-label="Close">
-              <X className="size-5" aria-hidden="true" />
-            </button>
-          </div>
-          <div className="overflow-y-auto px-4 py-4">{children}</div>
-        </div>
-      )}
-    </dialog>
-  );
-}
+/** The Roster's dialogs are the shared one. */
+export { Dialog as Modal } from '@/components/ui/dialog';
 
 /** A refusal from the API, said in full where the action was taken. */
 export function Refusal({ message }: { message: string | null | undefined }) {
