@@ -1,17 +1,109 @@
 /**
  * Technician, on a phone (390×844): signs in through the form, sees the technician's navigation,
- * and every screen in it.
- *
- * Next (My Day/Visit): open My Day, open the first stop, record readings and see superheat/subcooling,
- * upload a photo, close the visit as needing a return. Add the steps at the marked place below,
- * each screen through `ctx.screen(page, '<name>')` (screenshot + axe).
+ * opens My Day and the first stop, goes en route and on site, records circuit 1's readings and
+ * checks the superheat and subcooling the screen computes, attaches a photo, adds a finding and
+ * closes the visit as needing a return (parts). The return visit's number is handed to the
+ * dispatcher journey, which books it. Then every screen in the navigation.
  */
 import assert from 'node:assert/strict';
+import { deflateSync } from 'node:zlib';
+import type { Locator, Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { phone } from '../harness';
+import { addDays, dateInZone, writeHandoff } from '../handoff';
 import { expectedNavigation, navigationLabels, signInThroughForm, visitEveryScreen } from '../support';
 
 export const title = 'Technician on a phone';
+
+/** The demo technician works in the Chicago branch (apps/api/src/db/seed/catalogue.ts). */
+const BRANCH_ZONE = 'America/Chicago';
+
+/**
+ * Check values: CoolProp 8.0.0 reference points for R-410A in shared/reference/refrigerant-saturation.json
+ * (the file tests/reference/refrigerant-saturation.test.ts checks the tables against):
+ *   111.5 psig → dew 36.93 °F;  289.2 psig → bubble 93.33 °F.
+ * Superheat = suction line − dew = 48 − 36.93 = 11.07 °F; subcooling = bubble − liquid line = 93.33 − 83 = 10.33 °F.
+ * The reference file's own accuracy bar for Coilpath's tables is ±0.3 °F; the screen rounds to 0.1 °F.
+ */
+const READINGS = { suctionPsig: 111.5, suctionLineF: 48, liquidPsig: 289.2, liquidLineF: 83 };
+const EXPECTED_SUPERHEAT_F = 48 - 36.93;
+const EXPECTED_SUBCOOLING_F = 93.33 - 83;
+const TOLERANCE_F = 0.3 + 0.05;
+
+/** "Wednesday 2 December 2026", as My Day's subtitle names the day it shows. */
+const dayLabel = (date: string) => {
+  const d = new Date(`${date}T12:00:00Z`);
+  const part = (o: Intl.DateTimeFormatOptions) => new Intl.DateTimeFormat('en-GB', { ...o, timeZone: 'UTC' }).format(d);
+  return `${part({ weekday: 'long' })} ${part({ day: 'numeric' })} ${part({ month: 'long' })} ${part({ year: 'numeric' })}`;
+};
+
+/** A small real PNG (16×16 RGB, a copper/frost checkerboard) built byte by byte. */
+function samplePng(): Buffer {
+  const crcTable = Array.from({ length: 256 }, (_, n) => {
+    let c = n;
+    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
+    return c >>> 0;
+  });
+  const crc32 = (buf: Buffer) => {
+    let c = 0xffffffff;
+    for (const b of buf) c = crcTable[(c ^ b) & 0xff]! ^ (c >>> 8);
+    return (c ^ 0xffffffff) >>> 0;
+  };
+  const chunk = (type: string, data: Buffer) => {
+    const body = Buffer.concat([Buffer.from(type, 'ascii'), data]);
+    const len = Buffer.alloc(4);
+    len.writeUInt32BE(data.length);
+    const crc = Buffer.alloc(4);
+    crc.writeUInt32BE(crc32(body));
+    return Buffer.concat([len, body, crc]);
+  };
+  const size = 16;
+  const ihdr = Buffer.alloc(13);
+  ihdr.writeUInt32BE(size, 0);
+  ihdr.writeUInt32BE(size, 4);
+  ihdr[8] = 8; // bit depth
+  ihdr[9] = 2; // colour type: RGB
+  const rows: number[] = [];
+  for (let y = 0; y < size; y++) {
+    rows.push(0); // filter: none
+    for (let x = 0; x < size; x++) rows.push(...((x >> 2) + (y >> 2)) % 2 ? [0xb8, 0x73, 0x33] : [0xe8, 0xf1, 0xf8]);
+  }
+  return Buffer.concat([
+    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
+    chunk('IHDR', ihdr),
+    chunk('IDAT', deflateSync(Buffer.from(rows))),
+    chunk('IEND', Buffer.alloc(0)),
+  ]);
+}
+
+/** The number in an `<output>` such as "Superheat 11.1 °F". */
+async function degrees(output: Locator): Promise<number> {
+  const text = (await output.innerText()).trim();
+  const m = /(-?\d+(?:\.\d+)?) °F$/.exec(text);
+  assert.ok(m, `a temperature in "${text}"`);
+  return Number(m[1]);
+}
+
+/** A "what happened" notice (role status/alert) with this text. */
+const notice = (page: Page, text: string | RegExp) => page.locator('[aria-live="polite"] > [role]').filter({ hasText: text });
+
+/**
+ * My Day for the first date from `start` with stops, going forward with "Next day" (the demo puts
+ * a weekend's stops on the coming week). Returns the date shown and the list of stops.
+ */
+async function dayWithStops(page: Page, start: string): Promise<{ date: string; stops: Locator }> {
+  const stops = page.getByRole('list', { name: 'Stops in route order' });
+  const empty = page.getByText('No stops booked for this day');
+  let date = start;
+  for (let i = 0; i < 7; i++) {
+    await page.getByText(dayLabel(date)).first().waitFor();
+    await stops.or(empty).first().waitFor();
+    if (await stops.isVisible()) return { date, stops };
+    await page.getByRole('button', { name: 'Next day' }).click();
+    date = addDays(date, 1);
+  }
+  throw new Error(`no stops on My Day from ${start} to ${date}`);
+}
 
 export async function run(ctx: JourneyContext) {
   const page = await ctx.launch(phone);
@@ -21,7 +113,116 @@ export async function run(ctx: JourneyContext) {
   await page.getByRole('heading', { level: 1, name: 'My Day' }).waitFor();
   await ctx.screen(page, 'my-day');
 
-  // ── Journey steps of the My Day/Visit screens go here ──
+  // ── My Day: the first stop ──
+  const today = dateInZone(new Date(), BRANCH_ZONE);
+  const { date, stops } = await dayWithStops(page, today);
+  ctx.step(`My Day ${date}${date === today ? ' (today)' : ` (first day with stops after ${today})`}: ${await stops.locator(':scope > li').count()} stop(s)`);
+  if (date !== today) await ctx.screen(page, 'my-day-with-stops');
+  const first = stops.locator(':scope > li').first();
+  const siteName = (await first.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
+  const firstText = await first.innerText();
+  const wo = /WO-(\d+) Service call/.exec(firstText);
+  assert.ok(wo, `the first stop is a service call (demo data): ${firstText.slice(0, 200)}`);
+  const originNumber = Number(wo[1]);
+  assert.match(firstText, /R-410A/, 'the first stop is on an R-410A unit');
+  assert.match(firstText, /\bBooked\b/, 'the first stop is booked, not started');
+
+  await first.getByRole('link', { name: 'Open visit' }).click();
+  await page.waitForURL((u) => /^\/visits\/[\w-]+$/.test(u.pathname));
+  await page.getByRole('heading', { level: 1, name: new RegExp(`^Visit · WO-${originNumber} Service call`) }).waitFor();
+  assert.match(await page.locator('main').innerText(), new RegExp(siteName.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')), 'the visit names the stop’s site');
+  ctx.step(`opened WO-${originNumber} at ${siteName}`);
+  await ctx.screen(page, 'visit-booked');
+
+  // ── State: en route, then on site ──
+  await page.getByRole('button', { name: 'En route' }).click();
+  await notice(page, 'Marked en route.').waitFor();
+  await page.getByRole('button', { name: 'On site' }).click();
+  await notice(page, 'Marked on site.').waitFor();
+  await page.getByRole('button', { name: 'Go to close-out' }).waitFor();
+  // The timeline lists each state change with its time.
+  const timeline = page.locator('section').filter({ has: page.getByRole('heading', { name: 'Timeline', exact: true }) });
+  await timeline.getByText(/^\d\d:\d\d · On site$/).waitFor();
+  assert.match(await timeline.innerText(), /\d\d:\d\d · En route/, 'the timeline records en route');
+  ctx.step('marked en route, then on site');
+
+  // ── Readings, circuit 1 ──
+  const circuit = 'circuit 1';
+  const field = (label: string, unit: 'psig' | '°F') => page.getByLabel(`${label}, ${circuit} (${unit})`, { exact: true });
+  await field('Suction pressure', 'psig').fill(String(READINGS.suctionPsig));
+  await field('Suction line temperature', '°F').fill(String(READINGS.suctionLineF));
+  await field('Liquid pressure', 'psig').fill(String(READINGS.liquidPsig));
+  await field('Liquid line temperature', '°F').fill(String(READINGS.liquidLineF));
+  const superheatOut = page.getByRole('status', { name: `Superheat, ${circuit}` });
+  const subcoolingOut = page.getByRole('status', { name: `Subcooling, ${circuit}` });
+  const checkComputed = async (when: string) => {
+    const sh = await degrees(superheatOut);
+    const sc = await degrees(subcoolingOut);
+    assert.ok(Math.abs(sh - EXPECTED_SUPERHEAT_F) <= TOLERANCE_F, `superheat ${when}: screen ${sh} °F, reference ${EXPECTED_SUPERHEAT_F.toFixed(2)} °F`);
+    assert.ok(Math.abs(sc - EXPECTED_SUBCOOLING_F) <= TOLERANCE_F, `subcooling ${when}: screen ${sc} °F, reference ${EXPECTED_SUBCOOLING_F.toFixed(2)} °F`);
+    return { sh, sc };
+  };
+  const typed = await checkComputed('as typed');
+  await page.getByRole('button', { name: 'Save readings' }).click();
+  await notice(page, 'Readings saved for 1 circuit.').waitFor();
+  // After the save the inputs show the server's values; the computation still agrees.
+  await page.getByRole('button', { name: 'Save readings' }).waitFor();
+  assert.equal(await field('Suction pressure', 'psig').inputValue(), String(READINGS.suctionPsig), 'the saved suction pressure is shown');
+  await checkComputed('after saving');
+  ctx.step(`readings saved: superheat ${typed.sh} °F (reference ${EXPECTED_SUPERHEAT_F.toFixed(2)}), subcooling ${typed.sc} °F (reference ${EXPECTED_SUBCOOLING_F.toFixed(2)})`);
+  await ctx.screen(page, 'visit-readings');
+
+  // ── A photo ──
+  const photoName = 'condenser-wiring.png';
+  await page.getByLabel('Photo or PDF file').setInputFiles({ name: photoName, mimeType: 'image/png', buffer: samplePng() });
+  await notice(page, /^Attached .+\.$/).waitFor();
+  const thumb = page.getByRole('img', { name: /^Photo: / });
+  await thumb.waitFor();
+  await thumb.scrollIntoViewIfNeeded();
+  const loaded = await thumb.evaluate(async (img: HTMLImageElement) => {
+    if (!img.complete) await new Promise((r) => img.addEventListener('load', r, { once: true }));
+    return img.naturalWidth;
+  });
+  assert.equal(loaded, 16, 'the thumbnail shows the uploaded 16×16 PNG');
+  ctx.step(`photo attached: ${await thumb.getAttribute('alt')}`);
+
+  // ── A finding ──
+  await page.getByLabel('Cause code').selectOption({ label: 'Component failure' });
+  await page.getByLabel('Origin').selectOption({ label: 'Wear' });
+  await page.getByLabel('Notes', { exact: true }).fill('Condenser fan motor bearings worn; motor draws high amps. Replacement motor to order.');
+  await page.getByRole('button', { name: 'Add finding' }).click();
+  await notice(page, 'Finding saved: Component failure.').waitFor();
+  const finding = page.getByRole('listitem').filter({ hasText: 'Component failure' }).filter({ hasText: 'Wear' });
+  await finding.waitFor();
+  assert.doesNotMatch(await finding.innerText(), /Not saved yet/, 'the finding is saved, not queued');
+  await ctx.screen(page, 'visit-photo-finding');
+
+  // ── Close as needing a return (parts) ──
+  await page.getByRole('radio', { name: /^Needs return/ }).check();
+  await page.getByRole('checkbox', { name: 'Parts', exact: true }).check();
+  await page.getByLabel('Return visit notes (parts, who to bring)').fill('Condenser fan motor, 1/3 hp, 1075 rpm; bring the capacitor too.');
+  await page.getByLabel('Notes for the summary').fill('Unit running on one condenser fan; return visit booked to replace the motor.');
+  await page.getByRole('button', { name: 'Close visit' }).click();
+  const created = page.getByText(/Return visit WO-\d+ is in the unplaced queue for the office to book\./);
+  await created.waitFor();
+  const returnNumber = Number(/WO-(\d+)/.exec(await created.innerText())![1]);
+  assert.notEqual(returnNumber, originNumber, 'the return visit is a new work order');
+  await notice(page, new RegExp(`^Visit closed as needs return\\. Return visit WO-${returnNumber} created\\. Summary sent to .+\\.$`)).waitFor();
+  const closeOut = await page.locator('#close-out').innerText();
+  assert.match(closeOut, /Closed .* as Needs return — needs parts\./, 'the close-out says how the visit closed');
+  assert.match(closeOut, /Service summary \(with PDF\) sent to \S+@\S+\./, 'the service summary was sent to the site contact');
+  assert.equal(await page.getByRole('button', { name: 'Close visit' }).count(), 0, 'a closed visit cannot be closed again');
+  writeHandoff({ returnVisit: { number: returnNumber, siteName, originNumber } });
+  ctx.step(`closed WO-${originNumber} as needs return (parts): return visit WO-${returnNumber} created, summary sent`);
+  await ctx.screen(page, 'visit-closed');
+
+  // ── Back on My Day, the stop shows closed ──
+  await page.getByRole('link', { name: 'Back to My Day' }).click();
+  await page.getByRole('heading', { level: 1, name: 'My Day' }).waitFor();
+  if (date !== today) await dayWithStops(page, today);
+  const again = page.getByRole('list', { name: 'Stops in route order' }).locator(':scope > li').filter({ hasText: `WO-${originNumber}` });
+  await again.getByText('Closed: Needs return').waitFor();
+  ctx.step('My Day shows the stop closed: needs return');
 
   await visitEveryScreen(ctx, page, labels);
 }
