@@ -92,13 +92,17 @@ interface CountRow {
   days: number | string | null;
 }
 
-/** Bits of `GROUPING(branch_id, tech_id, month, make, model, cause_code, origin)`: 1 = not grouped by. */
-const GROUPED = { all: 0b1111111, branch: 0b0111111, tech: 0b1011111, month: 0b1101111, model: 0b1110011, cause: 0b1111101, origin: 0b1111110 } as const;
+/**
+ * Bits of `GROUPING(branch_id, tech_id, month, unit_id, cause_code, origin)` (1 = not grouped by); the
+ * per-unit sets are summed again per make and model and answered as `model`.
+ */
+const GROUPED = { all: 0b111111, branch: 0b011111, tech: 0b101111, month: 0b110111, model: 0b111011, cause: 0b111101, origin: 0b111110 } as const;
 
 /**
  * The report's figures for every group, counted in the database: one row per (current or previous period)
- * × (everything, branch, technician, month, model, cause, origin) group — a few thousand rows for a year of
- * a large contractor, instead of every job.
+ * × (everything, branch, technician, month, model, cause, origin) group — a few hundred rows for a year of
+ * a large contractor, instead of every job. It reads `service_call_facts` (one row per service call with its
+ * first visit, first finding, follow-ups and last visit, kept by triggers: migration 0002).
  *
  * A job is a service call whose first visit (its earliest closed visit) closed in [start, end). Per job, with
  * its own branch's callback window W (whole 24-hour days after the first visit closed, inclusive; a follow-up
@@ -111,88 +115,57 @@ const GROUPED = { all: 0b1111111, branch: 0b0111111, tech: 0b1011111, month: 0b1
  * closed visit of the job and its follow-ups when that visit resolved it.
  */
 export async function reportGroups(db: Tx, range: { start: string; curStart: string; end: string }, branchId: string | undefined): Promise<CountRow[]> {
-  const branchFilter = branchId ? sql`AND w.branch_id = ${branchId}` : sql``;
-  return rows<CountRow>(
-    db,
-    sql`
-    WITH touched AS (
-      -- Service calls with a visit closed in the range: only these can have their first visit there.
-      SELECT DISTINCT v.work_order_id AS job_id
-      FROM visits v JOIN work_orders w ON w.id = v.work_order_id
-      WHERE v.closed_at >= ${range.start}::timestamptz AND v.closed_at < ${range.end}::timestamptz
-        AND w.kind = 'service_call' ${branchFilter}
-    ),
-    fv AS (
-      SELECT DISTINCT ON (v.work_order_id)
-        v.work_order_id AS job_id, v.id AS visit_id, v.tech_id, v.closed_at, coalesce(v.outcome, 'needs_return') AS outcome
-      FROM visits v JOIN touched t ON t.job_id = v.work_order_id
-      WHERE v.closed_at IS NOT NULL
-      ORDER BY v.work_order_id, v.closed_at, v.id
-    ),
-    jobs AS (
-      SELECT fv.*, w.branch_id, w.unit_id, w.created_at,
-        fv.closed_at + b.callback_window_days * interval '24 hours' AS window_end
-      FROM fv JOIN work_orders w ON w.id = fv.job_id JOIN branches b ON b.id = w.branch_id
-      WHERE fv.closed_at >= ${range.start}::timestamptz
-    ),
-    fu AS (
-      SELECT f.origin_work_order_id AS job_id, f.id AS wo_id, f.kind, f.created_at
-      FROM work_orders f JOIN jobs j ON j.job_id = f.origin_work_order_id
-      WHERE f.kind IN ('callback', 'return_visit')
-    ),
-    fu_agg AS (
-      SELECT job_id,
-        min(created_at) FILTER (WHERE kind = 'callback') AS first_callback,
-        min(created_at) FILTER (WHERE kind = 'return_visit') AS first_return,
-        count(*) FILTER (WHERE kind = 'return_visit') AS return_visits
-      FROM fu GROUP BY job_id
-    ),
-    chain AS (
-      SELECT job_id, job_id AS wo_id FROM jobs
-      UNION ALL
-      SELECT job_id, wo_id FROM fu
-    ),
-    last_visit AS (
-      SELECT DISTINCT ON (c.job_id) c.job_id, v.closed_at, v.outcome
-      FROM chain c JOIN visits v ON v.work_order_id = c.wo_id
-      WHERE v.closed_at IS NOT NULL
-      ORDER BY c.job_id, v.closed_at DESC, v.id DESC
-    ),
-    first_finding AS (
-      SELECT DISTINCT ON (fd.visit_id) fd.visit_id, fd.cause_code, fd.origin
-      FROM findings fd JOIN jobs j ON j.visit_id = fd.visit_id
-      ORDER BY fd.visit_id, fd.created_at, fd.id
-    ),
-    flags AS (
-      SELECT j.closed_at >= ${range.curStart}::timestamptz AS cur,
-        j.branch_id, j.tech_id, to_char(j.closed_at AT TIME ZONE 'UTC', 'YYYY-MM') AS month,
-        u.make, u.model, ff.cause_code, ff.origin,
-        j.outcome <> 'declined' AS eligible,
-        j.outcome = 'resolved' AS resolved,
-        coalesce(fa.first_callback <= j.window_end, false) AS callback_in,
-        coalesce(fa.first_return <= j.window_end, false) AS return_in,
-        coalesce(fa.return_visits, 0) AS return_visits,
-        (lv.outcome = 'resolved' AND lv.closed_at IS NOT NULL) AS resolved_job,
-        extract(epoch FROM lv.closed_at - j.created_at)::float8 / 86400 AS days
-      FROM jobs j
-      LEFT JOIN units u ON u.id = j.unit_id
-      LEFT JOIN first_finding ff ON ff.visit_id = j.visit_id
-      LEFT JOIN fu_agg fa ON fa.job_id = j.job_id
-      LEFT JOIN last_visit lv ON lv.job_id = j.job_id
-    )
-    SELECT cur, GROUPING(branch_id, tech_id, month, make, model, cause_code, origin) AS g,
-      branch_id, tech_id, month, make, model, cause_code, origin,
+  const branchFilter = branchId ? sql`AND f.branch_id = ${branchId}` : sql``;
+  const flags = (from: string, to: string) => sql`
+      SELECT f.branch_id, f.tech_id, f.first_closed_at, f.unit_id, f.cause_code, f.origin, f.return_visits,
+        coalesce(f.first_outcome, 'needs_return') <> 'declined' AS eligible,
+        f.first_outcome = 'resolved' AS resolved,
+        coalesce(f.first_callback_at <= f.first_closed_at + b.callback_window_days * interval '24 hours', false) AS callback_in,
+        coalesce(f.first_return_at <= f.first_closed_at + b.callback_window_days * interval '24 hours', false) AS return_in,
+        (f.last_outcome = 'resolved' AND f.last_closed_at IS NOT NULL) AS resolved_job,
+        extract(epoch FROM f.last_closed_at - f.opened_at)::float8 / 86400 AS days
+      FROM service_call_facts f JOIN branches b ON b.id = f.branch_id
+      WHERE f.first_closed_at >= ${from}::timestamptz AND f.first_closed_at < ${to}::timestamptz ${branchFilter}`;
+  const sums = sql`
       count(*) FILTER (WHERE eligible)::int AS eligible,
       count(*) FILTER (WHERE eligible AND resolved AND NOT callback_in AND NOT return_in)::int AS first_time_fixed,
       count(*) FILTER (WHERE eligible AND resolved)::int AS resolved_first_visits,
       count(*) FILTER (WHERE eligible AND resolved AND callback_in)::int AS callbacks,
-      (sum(return_visits) FILTER (WHERE eligible))::int AS return_visits,
+      coalesce(sum(return_visits) FILTER (WHERE eligible), 0)::int AS return_visits,
       count(*) FILTER (WHERE eligible AND resolved_job)::int AS resolved_jobs,
-      sum(days) FILTER (WHERE eligible AND resolved_job) AS days
-    FROM flags
-    GROUP BY cur, GROUPING SETS ((), (branch_id), (tech_id), (month), (make, model), (cause_code), (origin))
-  `,
-  );
+      sum(days) FILTER (WHERE eligible AND resolved_job) AS days`;
+  const resum = sql`sum(eligible)::int, sum(first_time_fixed)::int, sum(resolved_first_visits)::int, sum(callbacks)::int,
+      sum(return_visits)::int, sum(resolved_jobs)::int, sum(days)`;
+  const model = sql.raw(String(GROUPED.model));
+  const all = sql.raw(String(GROUPED.all));
+  return db.transaction(async (tx) => {
+    // The grouping sets hash a year of jobs at once: room for that in memory. Local to this transaction.
+    await tx.execute(sql`SET LOCAL work_mem = '64MB'`);
+    return rows<CountRow>(
+      tx,
+      sql`
+      WITH cur AS (${flags(range.curStart, range.end)}),
+      grouped AS (
+        SELECT GROUPING(branch_id, tech_id, month, unit_id, cause_code, origin) AS g, branch_id, tech_id, month, unit_id, cause_code, origin, ${sums}
+        FROM (SELECT *, date_trunc('month', first_closed_at AT TIME ZONE 'UTC') AS month FROM cur) c
+        GROUP BY GROUPING SETS ((), (branch_id), (tech_id), (month), (unit_id), (cause_code), (origin))
+      )
+      SELECT true AS cur, g, branch_id, tech_id, to_char(month, 'YYYY-MM') AS month, NULL::text AS make, NULL::text AS model, cause_code, origin,
+        eligible, first_time_fixed, resolved_first_visits, callbacks, return_visits, resolved_jobs, days
+      FROM grouped WHERE g <> ${model}
+      UNION ALL
+      -- Per unit, then per make and model (units are few; jobs are many).
+      SELECT true, ${model}, NULL, NULL, NULL, u.make, u.model, NULL, NULL, ${resum}
+      FROM grouped gr LEFT JOIN units u ON u.id = gr.unit_id
+      WHERE gr.g = ${model}
+      GROUP BY u.make, u.model
+      UNION ALL
+      -- The previous period: its total only.
+      SELECT false, ${all}, NULL, NULL, NULL, NULL, NULL, NULL, NULL, ${sums}
+      FROM (${flags(range.start, range.curStart)}) p
+    `,
+    );
+  });
 }
 
 const EMPTY: FixQualityFigures = figuresOf(undefined);
