@@ -252,6 +252,8 @@ export const workOrders = pgTable('work_orders', {
   index('work_orders_origin_idx').on(t.originWorkOrderId),
   index('work_orders_agreement_idx').on(t.agreementId, t.plannedDate),
   index('work_orders_created_idx').on(t.createdAt),
+  // Site-wide work (no unit) at a unit's site: the unit briefing's and unit file's "visits that touched it".
+  index('work_orders_site_idx').on(t.siteId, t.createdAt),
 ]);
 
 /**
