@@ -5,7 +5,8 @@
  *   npm run bench                       embedded PGlite (the bench copy in data/bench)
  *   npm run bench -- --postgres         also on Debian's PostgreSQL, started here like .ci/run does; the
  *                                       scenario is loaded there once (database coilpath_bench)
- *   npm run bench -- --skip-web         no `vite build` (bundle sizes left out)
+ *   npm run bench -- --skip-web         bundle sizes from the last `vite build` (built if there is none)
+ *   npm run bench -- --no-web           no bundle sizes
  *
  * The API runs as a child process (`node --import tsx apps/api/src/server.ts`) on port 3210 against the
  * benchmark database, jobs off; the figures are wall-clock times seen by an HTTP client on the same machine.
@@ -312,8 +313,11 @@ function measureWeb(): ScreenSize[] {
     const keys = closure(entryKey);
     if (src) {
       if (frameKey) closure(frameKey, keys);
-      if (!manifest[src]) throw new Error(`${src} is not a chunk of the build`);
-      closure(src, keys);
+      // A page that another page also imports statically lands in a shared chunk keyed `_<name>-<hash>.js`.
+      const base = src.split('/').pop()!.replace(/\.tsx?$/, '');
+      const key = manifest[src] ? src : Object.keys(manifest).find((k) => k.startsWith(`_${base}-`));
+      if (!key) throw new Error(`${src} is not a chunk of the build`);
+      closure(key, keys);
     }
     let bytes = 0;
     let calendar = false;
@@ -362,6 +366,7 @@ async function main() {
     process.exit(1);
   }
   const started = new Date().toISOString();
+  const web = args.has('--no-web') ? [] : measureWeb();
   const pglite = await apiOn('pglite');
   let postgres: ApiFigures | null = null;
   if (pgUrl) {
@@ -369,7 +374,6 @@ async function main() {
     postgres = await apiOn('postgres');
   }
   const calc = await measureCalc();
-  const web = args.has('--no-web') ? [] : measureWeb();
 
   type Row = { measure: string; target: string; stat: 'median' | 'p95'; limit: [number, number]; a?: Stat; b?: Stat | null; unit?: string };
   const rows: Row[] = [
