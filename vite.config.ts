@@ -12,7 +12,7 @@ export default defineConfig({
   publicDir: 'apps/web/public',
   plugins: [react(), tailwindcss()],
   resolve: { alias: { '@': webSrc } },
-  build: { outDir: 'apps/web/dist', emptyOutDir: true, chunkSizeWarningLimit: 600 },
+  build: { outDir: 'apps/web/dist', emptyOutDir: true, chunkSizeWarningLimit: 600, manifest: true },
   server: { port: 5173, proxy: { '/api': `http://127.0.0.1:${apiPort}` } },
   test: {
     projects: [

@@ -66,13 +66,32 @@ export function fixQuality(jobs: readonly FixQualityJob[], opts: FixQualityOptio
     if (!anyFollowUp) firstTimeFixed++;
     if (callback) callbacks++;
   }
+  return fixQualityFromCounts({ eligible, firstTimeFixed, callbacks, resolvedFirstVisits: resolved });
+}
+
+/** The counts behind {@link FixQualityResult}, e.g. as a database aggregates them job by job. */
+export type FixQualityCounts = Pick<FixQualityResult, 'eligible' | 'firstTimeFixed' | 'callbacks' | 'resolvedFirstVisits'>;
+
+/**
+ * The rates of {@link fixQuality} from counts made elsewhere with the same per-job definitions (eligible:
+ * a service call whose first visit was not declined; first-time fixed: eligible, resolved on the first visit
+ * and no follow-up opened within the window; callback: resolved on the first visit and a callback opened
+ * within the window). Rates are null with a zero denominator.
+ */
+export function fixQualityFromCounts(c: FixQualityCounts): FixQualityResult {
+  for (const [k, v] of Object.entries(c)) {
+    if (!Number.isInteger(v) || v < 0) throw new RangeError(`${k} must be a whole number of 0 or more`);
+  }
+  if (c.firstTimeFixed > c.resolvedFirstVisits || c.callbacks > c.resolvedFirstVisits || c.resolvedFirstVisits > c.eligible) {
+    throw new RangeError('firstTimeFixed and callbacks cannot exceed resolvedFirstVisits, nor resolvedFirstVisits exceed eligible');
+  }
   return {
-    eligible,
-    firstTimeFixed,
-    firstTimeFixRate: eligible === 0 ? null : firstTimeFixed / eligible,
-    callbacks,
-    callbackRate: resolved === 0 ? null : callbacks / resolved,
-    resolvedFirstVisits: resolved,
+    eligible: c.eligible,
+    firstTimeFixed: c.firstTimeFixed,
+    firstTimeFixRate: c.eligible === 0 ? null : c.firstTimeFixed / c.eligible,
+    callbacks: c.callbacks,
+    callbackRate: c.resolvedFirstVisits === 0 ? null : c.callbacks / c.resolvedFirstVisits,
+    resolvedFirstVisits: c.resolvedFirstVisits,
   };
 }
 

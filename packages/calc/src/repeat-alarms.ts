@@ -60,8 +60,12 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
   interface Bucket {
     unitId: string;
     code: string;
+    /** Alarms to look at: all of them, or with `asOf` only those inside the span (the rest are only counted). */
     idx: number[];
+    total: number;
   }
+  const lo = asOf === null ? -Infinity : asOf - windowMs;
+  const hi = asOf === null ? Infinity : asOf;
   const buckets = new Map<string, Map<string, Bucket>>();
   const all: Bucket[] = [];
   const times = new Float64Array(alarms.length);
@@ -77,11 +81,12 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
     }
     let b = byCode.get(a.code);
     if (!b) {
-      b = { unitId: a.unitId, code: a.code, idx: [] };
+      b = { unitId: a.unitId, code: a.code, idx: [], total: 0 };
       byCode.set(a.code, b);
       all.push(b);
     }
-    b.idx.push(i);
+    b.total++;
+    if (t >= lo && t <= hi) b.idx.push(i);
   }
 
   const out: RepeatAlarmGroup[] = [];
@@ -92,12 +97,8 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
     let from = 0;
     let to = -1; // inclusive indices into idx
     if (asOf !== null) {
-      const lo = asOf - windowMs;
-      for (let k = 0; k < idx.length; k++) {
-        const t = times[idx[k] as number] as number;
-        if (t < lo) from = k + 1;
-        else if (t <= asOf) to = k;
-      }
+      // Only alarms inside [asOf − windowDays, asOf] were kept.
+      to = idx.length - 1;
     } else {
       let bestLen = 0;
       let left = 0;
@@ -129,7 +130,7 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
       last: new Date(times[idx[to] as number] as number).toISOString(),
       circuits,
       circuitsDiffer: circuits.length > 1,
-      totalCount: idx.length,
+      totalCount: b.total,
     });
   }
   out.sort((a, b) => b.count - a.count || (a.unitId < b.unitId ? -1 : a.unitId > b.unitId ? 1 : a.code < b.code ? -1 : a.code > b.code ? 1 : 0));

@@ -55,7 +55,17 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
       },
       close: () => pool.end(),
     };
-    if (opts.migrate !== false) await migratePg(db as never, { migrationsFolder });
+    if (opts.migrate !== false) {
+      // Several API processes may start together: one migrates while the others wait, then find nothing to do.
+      const lock = await pool.connect();
+      try {
+        await lock.query("SELECT pg_advisory_lock(hashtext('coilpath-migrate'))");
+        await migratePg(db as never, { migrationsFolder });
+      } finally {
+        await lock.query("SELECT pg_advisory_unlock(hashtext('coilpath-migrate'))").catch(() => undefined);
+        lock.release();
+      }
+    }
   } else {
     if (opts.dataDir) mkdirSync(opts.dataDir, { recursive: true });
     const client = opts.dataDir ? new PGlite(opts.dataDir) : new PGlite();

@@ -252,6 +252,37 @@ export const workOrders = pgTable('work_orders', {
   index('work_orders_origin_idx').on(t.originWorkOrderId),
   index('work_orders_agreement_idx').on(t.agreementId, t.plannedDate),
   index('work_orders_created_idx').on(t.createdAt),
+  // Site-wide work (no unit) at a unit's site: the unit briefing's and unit file's "visits that touched it".
+  index('work_orders_site_idx').on(t.siteId, t.createdAt),
+]);
+
+/**
+ * One row per service call with what the Fix Quality report needs to know about it: its first visit (the
+ * earliest closed visit) and that visit's first finding, its follow-ups (callbacks and return visits booked
+ * off it) and the last closed visit of the job and its follow-ups. Derived data, kept by database triggers on
+ * work_orders, visits and findings (migration 0002) and rebuilt whole by `rebuild_service_call_facts()`, so
+ * the report sums a year of jobs without joining every visit. Never written by the application.
+ */
+export const serviceCallFacts = pgTable('service_call_facts', {
+  jobId: uuid().primaryKey().references(() => workOrders.id, { onDelete: 'cascade' }),
+  branchId: uuid().notNull(),
+  unitId: uuid(),
+  openedAt: instant().notNull(),
+  firstVisitId: uuid(),
+  firstClosedAt: instant(),
+  /** The first visit's outcome; a closed visit without one counts as needs_return. */
+  firstOutcome: text().$type<VisitOutcome>(),
+  techId: uuid(),
+  causeCode: text().$type<CauseCode>(),
+  origin: text().$type<CauseOrigin>(),
+  firstCallbackAt: instant(),
+  firstReturnAt: instant(),
+  returnVisits: integer().notNull().default(0),
+  lastClosedAt: instant(),
+  lastOutcome: text().$type<VisitOutcome>(),
+}, (t) => [
+  index('service_call_facts_closed_idx').on(t.firstClosedAt),
+  index('service_call_facts_branch_closed_idx').on(t.branchId, t.firstClosedAt),
 ]);
 
 export const bookings = pgTable('bookings', {

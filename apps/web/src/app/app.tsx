@@ -1,4 +1,4 @@
-import { Suspense, useState } from 'react';
+import { lazy, Suspense, useState } from 'react';
 import { QueryClientProvider } from '@tanstack/react-query';
 import { createBrowserRouter, Navigate, RouterProvider, useLocation } from 'react-router-dom';
 import { createQueryClient } from '@/lib/query-client';
@@ -7,10 +7,12 @@ import { NoticesProvider } from '@/components/ui/notices';
 import { SignInPage } from '@/features/auth/sign-in-page';
 import { SessionProvider, useSessionQuery, useUser } from './session';
 import { BranchProvider } from './branch';
-import { AppFrame } from './layout';
 import { homeFor } from './screens';
 import { RouterErrorElement } from './route-error';
 import { publicRoutes, screenRoutes } from './routes';
+
+/** The signed-in frame (navigation, branch switcher) loads after sign-in, not with the sign-in page. */
+const AppFrame = lazy(() => import('./layout').then((m) => ({ default: m.AppFrame })));
 
 function RequireSession() {
   const session = useSessionQuery();
@@ -21,7 +23,9 @@ function RequireSession() {
   return (
     <SessionProvider user={session.data}>
       <BranchProvider>
-        <AppFrame />
+        <Suspense fallback={<LoadingState label="Opening Coilpath…" />}>
+          <AppFrame />
+        </Suspense>
       </BranchProvider>
     </SessionProvider>
   );

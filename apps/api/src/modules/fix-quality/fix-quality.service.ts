@@ -2,12 +2,13 @@
  * Fix Quality: the owner's report of first-time fix and callbacks, the factory-defect review with its
  * warranty claims, and model alerts with their inspection work orders.
  *
- * The report reads the jobs of a period with one set-based query (first visit per job by DISTINCT ON,
- * follow-ups and the last visit of each job's chain joined as grouped sets), then groups in TypeScript and
- * runs `fixQuality` from @coilpath/calc per group. Definitions: see packages/contract/src/fix-quality.ts.
+ * The report counts in the database: one statement finds each job's first visit, follow-ups and last visit,
+ * flags each job with `fixQuality`'s definitions (@coilpath/calc) and sums the flags per group with
+ * GROUPING SETS, so a year of a large contractor answers a few thousand rows instead of every job; the
+ * rates come from `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
  */
 import { eq, inArray, sql, type SQL } from 'drizzle-orm';
-import { fixQuality, type FixQualityJob } from '@coilpath/calc';
+import { fixQualityFromCounts } from '@coilpath/calc';
 import {
   causeCodeLabels,
   causeOriginLabels,
@@ -68,193 +69,125 @@ const bounds = (p: Period) => ({ start: new Date(dayMs(p.from)).toISOString(), e
 // The report
 // ---------------------------------------------------------------------------------------------
 
-/** One service call of the period with what the report needs to know about it. */
-export interface ReportJob {
-  id: string;
-  branchId: string;
-  techId: string;
-  outcome: VisitOutcome;
-  openedMs: number;
-  closedMs: number;
-  make: string | null;
-  model: string | null;
-  causeCode: CauseCode | null;
-  origin: CauseOrigin | null;
-  firstCallbackMs: number | null;
-  firstReturnMs: number | null;
-  returnVisits: number;
-  lastOutcome: VisitOutcome | null;
-  lastClosedMs: number | null;
-}
-
-interface JobRow {
-  id: string;
-  branch_id: string;
-  tech_id: string;
-  outcome: VisitOutcome | null;
-  opened_ms: number | string;
-  closed_ms: number | string;
+/**
+ * Sums of one group of jobs, counted in SQL with `fixQuality`'s per-job definitions (see `reportGroups`).
+ * `days` is the total of days from opening to the last resolved visit over `resolved_jobs`.
+ */
+interface CountRow {
+  cur: boolean;
+  g: number | string;
+  branch_id: string | null;
+  tech_id: string | null;
+  month: string | null;
   make: string | null;
   model: string | null;
   cause_code: CauseCode | null;
   origin: CauseOrigin | null;
-  first_callback_ms: number | string | null;
-  first_return_ms: number | string | null;
-  return_visits: number | null;
-  last_outcome: VisitOutcome | null;
-  last_closed_ms: number | string | null;
+  eligible: number | string;
+  first_time_fixed: number | string;
+  resolved_first_visits: number | string;
+  callbacks: number | string;
+  return_visits: number | string | null;
+  resolved_jobs: number | string;
+  days: number | string | null;
 }
 
-const num = (v: number | string | null): number | null => (v === null || v === undefined ? null : Number(v));
+/**
+ * Bits of `GROUPING(branch_id, tech_id, month, unit_id, cause_code, origin)` (1 = not grouped by); the
+ * per-unit sets are summed again per make and model and answered as `model`.
+ */
+const GROUPED = { all: 0b111111, branch: 0b011111, tech: 0b101111, month: 0b110111, model: 0b111011, cause: 0b111101, origin: 0b111110 } as const;
 
 /**
- * The service calls whose first visit (earliest closed visit) closed in [start, end), each with its first
- * finding, earliest callback and return visit, count of return visits, and the last closed visit of the
- * job and its follow-ups. One statement.
+ * The report's figures for every group, counted in the database: one row per (current or previous period)
+ * × (everything, branch, technician, month, model, cause, origin) group — a few hundred rows for a year of
+ * a large contractor, instead of every job. It reads `service_call_facts` (one row per service call with its
+ * first visit, first finding, follow-ups and last visit, kept by triggers: migration 0002).
+ *
+ * A job is a service call whose first visit (its earliest closed visit) closed in [start, end). Per job, with
+ * its own branch's callback window W (whole 24-hour days after the first visit closed, inclusive; a follow-up
+ * opened before the close counts as inside), the same definitions as `fixQuality` in @coilpath/calc:
+ *   eligible             first visit not declined (a closed visit without an outcome counts as needs return)
+ *   resolved first visit eligible and the first visit resolved
+ *   first-time fixed     resolved first visit and no callback or return visit opened within W
+ *   callback             resolved first visit and a callback opened within W
+ * and for eligible jobs: return visits booked off the job (any time), and the days from opening to the last
+ * closed visit of the job and its follow-ups when that visit resolved it.
  */
-export async function loadJobs(db: Tx, range: { start: string; end: string }, branchId: string | undefined): Promise<ReportJob[]> {
-  const branchFilter = branchId ? sql`AND w.branch_id = ${branchId}` : sql``;
-  const result = await rows<JobRow>(
-    db,
-    sql`
-    WITH fv AS (
-      SELECT DISTINCT ON (v.work_order_id)
-        v.work_order_id AS job_id, v.id AS visit_id, v.tech_id, v.closed_at, v.outcome
-      FROM visits v
-      JOIN work_orders w ON w.id = v.work_order_id
-      WHERE w.kind = 'service_call' AND v.closed_at IS NOT NULL
-        AND w.created_at < ${range.end}::timestamptz ${branchFilter}
-      ORDER BY v.work_order_id, v.closed_at, v.id
-    ),
-    jobs AS (
-      SELECT fv.*, w.branch_id, w.unit_id, w.created_at
-      FROM fv JOIN work_orders w ON w.id = fv.job_id
-      WHERE fv.closed_at >= ${range.start}::timestamptz AND fv.closed_at < ${range.end}::timestamptz
-    ),
-    fu AS (
-      SELECT f.origin_work_order_id AS job_id, f.id AS wo_id, f.kind, f.created_at
-      FROM work_orders f JOIN jobs j ON j.job_id = f.origin_work_order_id
-      WHERE f.kind IN ('callback', 'return_visit')
-    ),
-    fu_agg AS (
-      SELECT job_id,
-        min(created_at) FILTER (WHERE kind = 'callback') AS first_callback,
-        min(created_at) FILTER (WHERE kind = 'return_visit') AS first_return,
-        (count(*) FILTER (WHERE kind = 'return_visit'))::int AS return_visits
-      FROM fu GROUP BY job_id
-    ),
-    chain AS (
-      SELECT job_id, job_id AS wo_id FROM jobs
+export async function reportGroups(db: Tx, range: { start: string; curStart: string; end: string }, branchId: string | undefined): Promise<CountRow[]> {
+  const branchFilter = branchId ? sql`AND f.branch_id = ${branchId}` : sql``;
+  const flags = (from: string, to: string) => sql`
+      SELECT f.branch_id, f.tech_id, f.first_closed_at, f.unit_id, f.cause_code, f.origin, f.return_visits,
+        coalesce(f.first_outcome, 'needs_return') <> 'declined' AS eligible,
+        f.first_outcome = 'resolved' AS resolved,
+        coalesce(f.first_callback_at <= f.first_closed_at + b.callback_window_days * interval '24 hours', false) AS callback_in,
+        coalesce(f.first_return_at <= f.first_closed_at + b.callback_window_days * interval '24 hours', false) AS return_in,
+        (f.last_outcome = 'resolved' AND f.last_closed_at IS NOT NULL) AS resolved_job,
+        extract(epoch FROM f.last_closed_at - f.opened_at)::float8 / 86400 AS days
+      FROM service_call_facts f JOIN branches b ON b.id = f.branch_id
+      WHERE f.first_closed_at >= ${from}::timestamptz AND f.first_closed_at < ${to}::timestamptz ${branchFilter}`;
+  const sums = sql`
+      count(*) FILTER (WHERE eligible)::int AS eligible,
+      count(*) FILTER (WHERE eligible AND resolved AND NOT callback_in AND NOT return_in)::int AS first_time_fixed,
+      count(*) FILTER (WHERE eligible AND resolved)::int AS resolved_first_visits,
+      count(*) FILTER (WHERE eligible AND resolved AND callback_in)::int AS callbacks,
+      coalesce(sum(return_visits) FILTER (WHERE eligible), 0)::int AS return_visits,
+      count(*) FILTER (WHERE eligible AND resolved_job)::int AS resolved_jobs,
+      sum(days) FILTER (WHERE eligible AND resolved_job) AS days`;
+  const resum = sql`sum(eligible)::int, sum(first_time_fixed)::int, sum(resolved_first_visits)::int, sum(callbacks)::int,
+      sum(return_visits)::int, sum(resolved_jobs)::int, sum(days)`;
+  const model = sql.raw(String(GROUPED.model));
+  const all = sql.raw(String(GROUPED.all));
+  return db.transaction(async (tx) => {
+    // The grouping sets hash a year of jobs at once: room for that in memory. Local to this transaction.
+    await tx.execute(sql`SET LOCAL work_mem = '64MB'`);
+    return rows<CountRow>(
+      tx,
+      sql`
+      WITH cur AS (${flags(range.curStart, range.end)}),
+      grouped AS (
+        SELECT GROUPING(branch_id, tech_id, month, unit_id, cause_code, origin) AS g, branch_id, tech_id, month, unit_id, cause_code, origin, ${sums}
+        FROM (SELECT *, date_trunc('month', first_closed_at AT TIME ZONE 'UTC') AS month FROM cur) c
+        GROUP BY GROUPING SETS ((), (branch_id), (tech_id), (month), (unit_id), (cause_code), (origin))
+      )
+      SELECT true AS cur, g, branch_id, tech_id, to_char(month, 'YYYY-MM') AS month, NULL::text AS make, NULL::text AS model, cause_code, origin,
+        eligible, first_time_fixed, resolved_first_visits, callbacks, return_visits, resolved_jobs, days
+      FROM grouped WHERE g <> ${model}
       UNION ALL
-      SELECT job_id, wo_id FROM fu
-    ),
-    last_visit AS (
-      SELECT DISTINCT ON (c.job_id) c.job_id, v.closed_at, v.outcome
-      FROM chain c JOIN visits v ON v.work_order_id = c.wo_id
-      WHERE v.closed_at IS NOT NULL
-      ORDER BY c.job_id, v.closed_at DESC, v.id DESC
-    ),
-    first_finding AS (
-      SELECT DISTINCT ON (fd.visit_id) fd.visit_id, fd.cause_code, fd.origin
-      FROM findings fd JOIN jobs j ON j.visit_id = fd.visit_id
-      ORDER BY fd.visit_id, fd.created_at, fd.id
-    )
-    SELECT j.job_id AS id, j.branch_id, j.tech_id, j.outcome,
-      (extract(epoch FROM j.created_at) * 1000)::float8 AS opened_ms,
-      (extract(epoch FROM j.closed_at) * 1000)::float8 AS closed_ms,
-      u.make, u.model, ff.cause_code, ff.origin,
-      (extract(epoch FROM fa.first_callback) * 1000)::float8 AS first_callback_ms,
-      (extract(epoch FROM fa.first_return) * 1000)::float8 AS first_return_ms,
-      fa.return_visits,
-      lv.outcome AS last_outcome,
-      (extract(epoch FROM lv.closed_at) * 1000)::float8 AS last_closed_ms
-    FROM jobs j
-    LEFT JOIN units u ON u.id = j.unit_id
-    LEFT JOIN first_finding ff ON ff.visit_id = j.visit_id
-    LEFT JOIN fu_agg fa ON fa.job_id = j.job_id
-    LEFT JOIN last_visit lv ON lv.job_id = j.job_id
-  `,
-  );
-  return result.map((r) => ({
-    id: r.id,
-    branchId: r.branch_id,
-    techId: r.tech_id,
-    // A closed visit without an outcome is treated like one that needs a return (not resolved, not declined).
-    outcome: r.outcome ?? 'needs_return',
-    openedMs: Number(r.opened_ms),
-    closedMs: Number(r.closed_ms),
-    make: r.make,
-    model: r.model,
-    causeCode: r.cause_code,
-    origin: r.origin,
-    firstCallbackMs: num(r.first_callback_ms),
-    firstReturnMs: num(r.first_return_ms),
-    returnVisits: r.return_visits ?? 0,
-    lastOutcome: r.last_outcome,
-    lastClosedMs: num(r.last_closed_ms),
-  }));
+      -- Per unit, then per make and model (units are few; jobs are many).
+      SELECT true, ${model}, NULL, NULL, NULL, u.make, u.model, NULL, NULL, ${resum}
+      FROM grouped gr LEFT JOIN units u ON u.id = gr.unit_id
+      WHERE gr.g = ${model}
+      GROUP BY u.make, u.model
+      UNION ALL
+      -- The previous period: its total only.
+      SELECT false, ${all}, NULL, NULL, NULL, NULL, NULL, NULL, NULL, ${sums}
+      FROM (${flags(range.start, range.curStart)}) p
+    `,
+    );
+  });
 }
 
-/**
- * The job as `fixQuality` sees it. Each job is judged by its own branch's callback window: follow-ups
- * opened later than that window are left out here, and `fixQuality` then runs with the largest window of
- * the branches involved, so a kept follow-up is always inside it. Only the earliest callback and the earliest
- * return visit matter (a later one is inside the window only if the earliest is).
- */
-function calcJob(j: ReportJob, windowDays: number): FixQualityJob {
-  const limit = j.closedMs + windowDays * DAY_MS;
-  const followUps: FixQualityJob['followUps'][number][] = [];
-  if (j.firstCallbackMs !== null && j.firstCallbackMs <= limit) followUps.push({ kind: 'callback', openedAt: new Date(j.firstCallbackMs) });
-  if (j.firstReturnMs !== null && j.firstReturnMs <= limit) followUps.push({ kind: 'return_visit', openedAt: new Date(j.firstReturnMs) });
-  return { id: j.id, kind: 'service_call', firstVisitOutcome: j.outcome, firstVisitClosedAt: new Date(j.closedMs), followUps };
-}
+const EMPTY: FixQualityFigures = figuresOf(undefined);
 
-export function figuresOf(jobs: readonly ReportJob[], windows: ReadonlyMap<string, number>): FixQualityFigures {
-  const maxWindow = windows.size ? Math.max(...windows.values()) : 30;
-  const r = fixQuality(
-    jobs.map((j) => calcJob(j, windows.get(j.branchId) ?? 30)),
-    { windowDays: maxWindow },
-  );
-  let returnVisits = 0;
-  let resolvedJobs = 0;
-  let days = 0;
-  for (const j of jobs) {
-    if (j.outcome === 'declined') continue; // not eligible
-    returnVisits += j.returnVisits;
-    if (j.lastOutcome === 'resolved' && j.lastClosedMs !== null) {
-      resolvedJobs++;
-      days += (j.lastClosedMs - j.openedMs) / DAY_MS;
-    }
-  }
+/** The figures of one counted group: rates by `fixQualityFromCounts` (@coilpath/calc). */
+export function figuresOf(r: CountRow | undefined): FixQualityFigures {
+  const n = (v: number | string | null | undefined) => Number(v ?? 0);
+  const q = fixQualityFromCounts({
+    eligible: n(r?.eligible),
+    firstTimeFixed: n(r?.first_time_fixed),
+    resolvedFirstVisits: n(r?.resolved_first_visits),
+    callbacks: n(r?.callbacks),
+  });
+  const returnVisits = n(r?.return_visits);
+  const resolvedJobs = n(r?.resolved_jobs);
   return {
-    eligible: r.eligible,
-    firstTimeFixed: r.firstTimeFixed,
-    firstTimeFixRate: r.firstTimeFixRate,
-    resolvedFirstVisits: r.resolvedFirstVisits,
-    callbacks: r.callbacks,
-    callbackRate: r.callbackRate,
+    ...q,
     returnVisits,
-    returnVisitsPerServiceCall: r.eligible === 0 ? null : returnVisits / r.eligible,
+    returnVisitsPerServiceCall: q.eligible === 0 ? null : returnVisits / q.eligible,
     resolvedJobs,
-    avgDaysToResolve: resolvedJobs === 0 ? null : days / resolvedJobs,
+    avgDaysToResolve: resolvedJobs === 0 ? null : n(r?.days) / resolvedJobs,
   };
-}
-
-function groupBy(
-  jobs: readonly ReportJob[],
-  keyOf: (j: ReportJob) => string,
-  labelOf: (key: string) => string,
-  windows: ReadonlyMap<string, number>,
-  keys: readonly string[] = [],
-): FixQualityGroup[] {
-  const groups = new Map<string, ReportJob[]>(keys.map((k) => [k, []]));
-  for (const j of jobs) {
-    const k = keyOf(j);
-    const list = groups.get(k);
-    if (list) list.push(j);
-    else groups.set(k, [j]);
-  }
-  return [...groups].map(([key, list]) => ({ key, label: labelOf(key), ...figuresOf(list, windows) }));
 }
 
 const diff = (a: number | null, b: number | null) => (a === null || b === null ? null : a - b);
@@ -283,16 +216,9 @@ export const NONE = '(none recorded)';
 export async function fixQualityReport(db: Db, period: Period, branchId: string | undefined): Promise<FixQualityReport> {
   const prev = previousPeriod(period);
   const cur = bounds(period);
-  // An analytic read over up to hundreds of thousands of rows: hash joins and in-memory sorts beat the
-  // nested loops the planner picks from its (low) row estimate of the period filter. Local to this transaction.
-  const all = await db.transaction(async (tx) => {
-    await tx.execute(sql`SET LOCAL work_mem = '64MB'`);
-    await tx.execute(sql`SET LOCAL enable_nestloop = off`);
-    return loadJobs(tx, { start: bounds(prev).start, end: cur.end }, branchId);
-  });
-  const curStartMs = Date.parse(cur.start);
-  const current = all.filter((j) => j.closedMs >= curStartMs);
-  const previous = all.filter((j) => j.closedMs < curStartMs);
+  const counted = await reportGroups(db, { start: bounds(prev).start, curStart: cur.start, end: cur.end }, branchId);
+  const current = counted.filter((r) => r.cur);
+  const ofKind = (g: number) => current.filter((r) => Number(r.g) === g);
 
   const branchRows = await db
     .select({ id: branches.id, name: branches.name, windowDays: branches.callbackWindowDays })
@@ -300,15 +226,23 @@ export async function fixQualityReport(db: Db, period: Period, branchId: string 
     .where(branchId ? eq(branches.id, branchId) : undefined);
   const windows = new Map(branchRows.map((b) => [b.id, b.windowDays]));
   const branchNames = new Map(branchRows.map((b) => [b.id, b.name]));
-  const techIds = [...new Set(current.map((j) => j.techId))];
+  const techIds = ofKind(GROUPED.tech).map((r) => r.tech_id!);
   const techs = techIds.length
     ? await db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, techIds))
     : [];
   const techNames = new Map(techs.map((t) => [t.id, t.name]));
 
-  const head = figuresOf(current, windows);
-  const before = figuresOf(previous, windows);
-  const modelKey = (j: ReportJob) => (j.make === null ? NONE : `${j.make}|${j.model}`);
+  const groups = (g: number, keyOf: (r: CountRow) => string, labelOf: (key: string) => string): FixQualityGroup[] =>
+    ofKind(g).map((r) => {
+      const key = keyOf(r);
+      return { key, label: labelOf(key), ...figuresOf(r) };
+    });
+
+  const head = figuresOf(current.find((r) => Number(r.g) === GROUPED.all)) ?? EMPTY;
+  const before = figuresOf(counted.find((r) => !r.cur && Number(r.g) === GROUPED.all));
+  const byMonth = groups(GROUPED.month, (r) => r.month!, (k) => k);
+  const months = new Set(byMonth.map((m) => m.key));
+  for (const key of monthsOf(period)) if (!months.has(key)) byMonth.push({ key, label: key, ...EMPTY });
   return {
     period,
     previousPeriod: prev,
@@ -323,20 +257,14 @@ export async function fixQualityReport(db: Db, period: Period, branchId: string 
       avgDaysToResolve: diff(head.avgDaysToResolve, before.avgDaysToResolve),
       eligible: head.eligible - before.eligible,
     },
-    byBranch: groupBy(current, (j) => j.branchId, (k) => branchNames.get(k) ?? 'Unknown branch', windows).sort((a, b) =>
-      a.label.localeCompare(b.label),
-    ),
-    byTechnician: groupBy(current, (j) => j.techId, (k) => techNames.get(k) ?? 'Unknown technician', windows).sort(byEligibleDesc),
-    byMonth: groupBy(current, (j) => new Date(j.closedMs).toISOString().slice(0, 7), (k) => k, windows, monthsOf(period)).sort((a, b) =>
-      a.key.localeCompare(b.key),
-    ),
-    byModel: groupBy(current, modelKey, (k) => (k === NONE ? 'No unit recorded' : k.replace('|', ' ')), windows).sort(byEligibleDesc),
-    byCause: groupBy(current, (j) => j.causeCode ?? NONE, (k) => causeCodeLabels[k as CauseCode] ?? 'No finding recorded', windows).sort(
+    byBranch: groups(GROUPED.branch, (r) => r.branch_id!, (k) => branchNames.get(k) ?? 'Unknown branch').sort((a, b) => a.label.localeCompare(b.label)),
+    byTechnician: groups(GROUPED.tech, (r) => r.tech_id!, (k) => techNames.get(k) ?? 'Unknown technician').sort(byEligibleDesc),
+    byMonth: byMonth.sort((a, b) => a.key.localeCompare(b.key)),
+    byModel: groups(GROUPED.model, (r) => (r.make === null ? NONE : `${r.make}|${r.model}`), (k) => (k === NONE ? 'No unit recorded' : k.replace('|', ' '))).sort(
       byEligibleDesc,
     ),
-    byOrigin: groupBy(current, (j) => j.origin ?? NONE, (k) => causeOriginLabels[k as CauseOrigin] ?? 'No finding recorded', windows).sort(
-      byEligibleDesc,
-    ),
+    byCause: groups(GROUPED.cause, (r) => r.cause_code ?? NONE, (k) => causeCodeLabels[k as CauseCode] ?? 'No finding recorded').sort(byEligibleDesc),
+    byOrigin: groups(GROUPED.origin, (r) => r.origin ?? NONE, (k) => causeOriginLabels[k as CauseOrigin] ?? 'No finding recorded').sort(byEligibleDesc),
   };
 }
 

@@ -5,7 +5,7 @@
  */
 import { and, asc, eq, gt, inArray, lt, ne, type SQL } from 'drizzle-orm';
 import type { Booking, SessionUser } from '@coilpath/contract';
-import { epa608Labels, workOrderLabel, bookingCreateSchema, bookingUpdateSchema, bookingListQuerySchema } from '@coilpath/contract';
+import { epa608Labels, workOrderLabel, bookingCreateSchema, bookingUpdateSchema, bookingListQuerySchema, maxBookingMinutes } from '@coilpath/contract';
 import { certificationSatisfies, workingWindow } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
@@ -70,13 +70,20 @@ function toBooking(r: Row): Booking {
   };
 }
 
+/**
+ * Bookings that overlap a span start before its end and end after its start. As no booking lasts longer than
+ * `maxBookingMinutes`, they also start after (span start − that length): the lower bound lets the
+ * (branch, start) and (technician, start) indexes read only the span instead of the whole history before it.
+ */
+export const overlapping = (from: Date, to: Date) =>
+  and(lt(bookings.startAt, to), gt(bookings.endAt, from), gt(bookings.startAt, new Date(from.getTime() - maxBookingMinutes * 60_000)));
+
 export async function listBookings(db: Db, user: SessionUser, q: z.output<typeof bookingListQuerySchema>): Promise<Booking[]> {
   const branchId = resolveBranch(user, q.branchId);
   const scope = branchScope(user);
   const where: (SQL | undefined)[] = [
     branchId ? eq(bookings.branchId, branchId) : scope ? inArray(bookings.branchId, scope) : undefined,
-    lt(bookings.startAt, new Date(q.to)),
-    gt(bookings.endAt, new Date(q.from)),
+    overlapping(new Date(q.from), new Date(q.to)),
     q.techId ? eq(bookings.techId, q.techId) : undefined,
   ];
   const rows = await selectBookings(db).where(and(...where)).orderBy(asc(bookings.startAt));
@@ -176,8 +183,7 @@ async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Pl
     .where(
       and(
         eq(bookings.techId, tech.id),
-        lt(bookings.startAt, p.endAt),
-        gt(bookings.endAt, p.startAt),
+        overlapping(p.startAt, p.endAt),
         excludeBookingId ? ne(bookings.id, excludeBookingId) : undefined,
       ),
     )

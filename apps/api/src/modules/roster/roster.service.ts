@@ -8,7 +8,7 @@ import type { Db, Tx } from '../../db/client';
 import { bookings, branches, sites, units, users, workOrders } from '../../db/schema';
 import { assertBranch, resolveBranch } from '../../auth/middleware';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
-import { createBooking } from './bookings.service';
+import { createBooking, overlapping } from './bookings.service';
 import {
   daysBetween,
   localRange,
@@ -75,8 +75,7 @@ async function branchBookings(db: Tx, branchId: string, start: Date, end: Date, 
     .where(
       and(
         eq(bookings.branchId, branchId),
-        lt(bookings.startAt, end),
-        gt(bookings.endAt, start),
+        overlapping(start, end),
         extra?.excludeWorkOrderId ? ne(bookings.workOrderId, extra.excludeWorkOrderId) : undefined,
       ),
     );

@@ -2,7 +2,8 @@
  * The Watchlist's daily digest: at each branch's `digestHour` (local time) the branch managers get
  * one e-mail listing leak cases with a deadline within 7 days (or overdue) and units that became
  * repeat-alarm units in the last 24 hours. Idempotent per branch and local day through `job_runs`
- * alone (INSERT … ON CONFLICT DO NOTHING), so several API processes can run the scheduler safely.
+ * (INSERT … ON CONFLICT DO NOTHING); with several API processes the scheduler also runs it under a
+ * PostgreSQL advisory lock (jobs/scheduler.ts), so only one process works on it at a time.
  */
 import { TZDate } from '@date-fns/tz';
 import { and, eq, isNull } from 'drizzle-orm';
@@ -97,7 +98,13 @@ async function digestForBranch(ctx: AppContext, b: typeof branches.$inferSelect,
 export const digestJob: ScheduledJob = {
   name: 'watchlist-digest',
   async run(ctx) {
-    await runDigest(ctx);
+    const runs = await runDigest(ctx);
+    const done = runs.filter((r) => r.status !== 'not_due');
+    if (done.length) {
+      const by = new Map<string, number>();
+      for (const r of done) by.set(r.status, (by.get(r.status) ?? 0) + 1);
+      console.log(`[coilpath] job watchlist-digest: ${[...by].map(([s, n]) => `${s} ${n}`).join(', ')}`);
+    }
   },
 };
 

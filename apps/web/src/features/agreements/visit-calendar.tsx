@@ -14,7 +14,7 @@ const stateColour: Record<string, string> = {
 /** A month calendar of an agreement's planned visits (FullCalendar dayGrid; loaded lazily, it is heavy). */
 export default function VisitCalendar({ visits, name, initialDate, today }: { visits: PlannedVisitRow[]; name: string; initialDate: string; today: string }) {
   return (
-    <div className="coilpath-calendar text-sm" aria-label={`Planned visits of ${name} on a month calendar`}>
+    <div className="coilpath-calendar text-sm" role="group" aria-label={`Planned visits of ${name} on a month calendar`}>
       <FullCalendar
         plugins={[dayGridPlugin]}
         initialView="dayGridMonth"
@@ -23,6 +23,12 @@ export default function VisitCalendar({ visits, name, initialDate, today }: { vi
         height="auto"
         firstDay={1}
         headerToolbar={{ left: 'title', center: '', right: 'prev,today,next' }}
+        // Text buttons: FullCalendar's chevron icons are role="img" without a name.
+        buttonIcons={false}
+        buttonText={{ prev: '‹ Previous', today: 'This month', next: 'Next ›' }}
+        // A day cell is named by its date link alone, which hides the visits inside it from its name;
+        // without the label the cell is named by its content (date and visits).
+        dayCellDidMount={(arg) => arg.el.removeAttribute('aria-labelledby')}
         events={visits
           .filter((v) => v.plannedDate)
           .map((v) => ({

@@ -1,10 +1,10 @@
-import { useState } from 'react';
-import { useForm } from 'react-hook-form';
-import { zodResolver } from '@hookform/resolvers/zod';
+import { useEffect, useState } from 'react';
+import { useForm, type Resolver } from 'react-hook-form';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { Link, useLocation, useNavigate } from 'react-router-dom';
-import { signInSchema, type PublicConfig, type SessionUser, type SignIn } from '@coilpath/contract';
+import type { PublicConfig, SessionUser, SignIn } from '@coilpath/contract';
 import { api, ApiError } from '@/lib/api-client';
+import { lazyResolver } from '@/lib/lazy-resolver';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { Wordmark } from '@/components/ui/logo';
@@ -17,13 +17,20 @@ const demoAccounts = [
   ['tech@coilpath.example', 'Technician'],
 ] as const;
 
+/** The contract's sign-in schema, loaded after the page shows (zod is not needed to draw it). */
+const signInResolver = lazyResolver<SignIn>(async () => {
+  const [{ zodResolver }, { signInSchema }] = await Promise.all([import('@hookform/resolvers/zod'), import('@coilpath/contract')]);
+  return zodResolver(signInSchema) as Resolver<SignIn>;
+});
+
 export function SignInPage() {
   const qc = useQueryClient();
   const navigate = useNavigate();
   const location = useLocation();
   const [serverError, setServerError] = useState<string | null>(null);
   const { data: config } = useQuery({ queryKey: ['public-config'], queryFn: () => api.get<PublicConfig>('/api/config') });
-  const form = useForm<SignIn>({ resolver: zodResolver(signInSchema), defaultValues: { email: '', password: '' } });
+  const form = useForm<SignIn>({ resolver: signInResolver, defaultValues: { email: '', password: '' } });
+  useEffect(() => void signInResolver.preload(), []);
   const signedOut = (location.state as { signedOut?: boolean } | null)?.signedOut;
 
   const onSubmit = form.handleSubmit(async (values) => {

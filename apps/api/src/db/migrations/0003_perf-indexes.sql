@@ -1,0 +1,1 @@
+CREATE INDEX "work_orders_site_idx" ON "work_orders" USING btree ("site_id","created_at");
