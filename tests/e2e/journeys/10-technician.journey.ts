@@ -19,8 +19,8 @@ export const title = 'Technician on a phone';
 const BRANCH_ZONE = 'America/Chicago';
 
 /**
- * Check values: CoolProp 8.0.0 reference points for R-410A in shared/reference/refrigerant-saturation.json
- * (the file tests/reference/refrigerant-saturation.test.ts checks the tables against):
+ * Check values: CoolProp 8.0.0 reference points for R-410A in tests/reference/data/refrigerant-saturation.json
+ * (the file tests/reference/refrigerant-saturation.test.ts checks Coilpath's tables against):
  *   111.5 psig → dew 36.93 °F;  289.2 psig → bubble 93.33 °F.
  * Superheat = suction line − dew = 48 − 36.93 = 11.07 °F; subcooling = bubble − liquid line = 93.33 − 83 = 10.33 °F.
  * The reference file's own accuracy bar for Coilpath's tables is ±0.3 °F; the screen rounds to 0.1 °F.
