@@ -37,14 +37,12 @@ export interface OpenOptions {
 export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
   let database: Database;
   if (opts.databaseUrl) {
-    const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 10 });
+    // Short API queries: JIT costs more than it saves (measured, STACK.md). Set as a startup option of
+    // every connection, so no query can race ahead of it.
+    const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 10, options: '-c jit=off' });
     // An idle connection the server ends (restart, admin shutdown) emits 'error' on the pool; without a
     // listener that would crash the process. The pool replaces the connection on the next query.
     pool.on('error', (err) => console.error(`[coilpath] idle database connection lost: ${err.message}`));
-    // Short API queries: JIT costs more than it saves (measured, STACK.md).
-    pool.on('connect', (client) => {
-      client.query('SET jit = off').catch(() => undefined);
-    });
     const db = drizzlePg(pool, { schema, casing: 'snake_case' }) as unknown as Db;
     database = {
       db,
