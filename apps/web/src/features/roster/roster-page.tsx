@@ -296,7 +296,7 @@ export default function RosterPage() {
               {focusTech && <p className="mb-2 text-sm text-slate">Drop a job from the unplaced work onto {focusTech.name}’s calendar to book it there. Shaded: outside working hours.</p>}
               {!focusTech && <p className="mb-2 text-sm text-slate">Drop a job onto a time to choose the technician, or show one technician to book straight onto their calendar.</p>}
               {bookingsQ.isError && <ErrorState error={bookingsQ.error} onRetry={() => bookingsQ.refetch()} title="The bookings could not be loaded" />}
-              <div className="roster-calendar overflow-x-auto" aria-busy={bookingsQ.isFetching || undefined}>
+              <div className="roster-calendar coilpath-calendar overflow-x-auto" aria-busy={bookingsQ.isFetching || undefined}>
                 <div className={view === 'timeGridDay' ? '' : 'min-w-[640px]'}>
                   <FullCalendar
                     ref={cal}
@@ -306,6 +306,9 @@ export default function RosterPage() {
                     timeZone="UTC"
                     now={() => toWallClock(Date.now(), tz)}
                     headerToolbar={false}
+                    // A month cell is named by its date link alone, which hides the bookings inside it from its
+                    // name; without the label the cell is named by its content (date and bookings).
+                    dayCellDidMount={(arg) => arg.el.removeAttribute('aria-labelledby')}
                     firstDay={1}
                     height={view === 'dayGridMonth' ? 'auto' : 720}
                     allDaySlot={false}
@@ -324,6 +327,8 @@ export default function RosterPage() {
                     eventInteractive
                     eventDisplay="block"
                     dayMaxEvents={view === 'dayGridMonth' ? 4 : false}
+                    // The "+N more" link opens a popover: it acts as a button, which its aria-expanded needs.
+                    moreLinkDidMount={(arg) => arg.el.setAttribute('role', 'button')}
                     businessHours={businessHoursOf(focusTech)}
                     events={events}
                     eventContent={renderEvent}
