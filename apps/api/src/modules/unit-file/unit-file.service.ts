@@ -28,6 +28,7 @@ import {
   workOrders,
 } from '../../db/schema';
 import { notFound } from '../../lib/errors';
+import { readingDto } from '../visits/dto';
 
 /** Readings returned for the trend (the latest ones). */
 const READINGS_LIMIT = 1500;
@@ -223,27 +224,7 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
       clearedAt: iso(a.clearedAt),
       source: a.source,
     })),
-    readings: readingRows.reverse().map(({ r, circuitNumber }) => ({
-      id: r.id,
-      visitId: r.visitId,
-      circuitId: r.circuitId,
-      circuitNumber,
-      takenAt: r.takenAt.toISOString(),
-      refrigerant: r.refrigerant,
-      suctionPressure: r.suctionPressure,
-      liquidPressure: r.liquidPressure,
-      dischargePressure: r.dischargePressure,
-      suctionLineTemp: r.suctionLineTemp,
-      liquidLineTemp: r.liquidLineTemp,
-      outdoorTemp: r.outdoorTemp,
-      suctionPressureController: r.suctionPressureController,
-      liquidPressureController: r.liquidPressureController,
-      dischargePressureController: r.dischargePressureController,
-      suctionSaturationTemp: r.suctionSaturationTemp,
-      liquidSaturationTemp: r.liquidSaturationTemp,
-      superheat: r.superheat,
-      subcooling: r.subcooling,
-    })),
+    readings: readingRows.reverse().map(({ r, circuitNumber }) => readingDto(r, circuitNumber)),
     findings: findingRows.map(({ f, workOrderId, workOrderNumber, techName }) => ({
       id: f.id,
       visitId: f.visitId,
