@@ -20,8 +20,11 @@ export const benchDataDir = () => resolve(process.env.COILPATH_BENCH_DIR ?? 'dat
 /** Rows the scenario holds, about (for the progress line before the last branch is built). */
 const ESTIMATED_ROWS = 2_150_000;
 const CHUNK = 4_000;
-/** Tables whose triggers keep service_call_facts. */
-const FACT_SOURCES = ['work_orders', 'visits', 'findings'];
+/**
+ * Tables whose triggers keep service_call_facts (rebuilt in one statement after the load) or raise
+ * roster_revisions (nothing to keep: the new database has no cached reads).
+ */
+const TRIGGER_TABLES = ['work_orders', 'visits', 'findings', 'bookings', 'sites', 'units', 'leak_cases', 'users', 'branches'];
 
 export interface BenchMeta {
   end: string;
@@ -121,7 +124,7 @@ export async function loadBenchScenario(database: Database, label = 'bench:data'
   )).rows as { indexname: string; indexdef: string }[];
   for (const ix of indexes) await query(database, `DROP INDEX "${ix.indexname}"`);
   // The Fix Quality facts are rebuilt in one statement at the end instead of row by row (migration 0002).
-  for (const t of FACT_SOURCES) await query(database, `ALTER TABLE "${t}" DISABLE TRIGGER USER`);
+  for (const t of TRIGGER_TABLES) await query(database, `ALTER TABLE "${t}" DISABLE TRIGGER USER`);
   await load(globalRows(passwordHash));
   for (let b = 0; b < BRANCH_COUNT; b++) {
     const rows = branchRows(b, passwordHash);
@@ -133,7 +136,7 @@ export async function loadBenchScenario(database: Database, label = 'bench:data'
   process.stderr.write(`${label}: building ${indexes.length} indexes…\n`);
   for (const ix of indexes) await query(database, ix.indexdef);
   if (replica) await query(database, 'SET session_replication_role = DEFAULT');
-  for (const t of FACT_SOURCES) await query(database, `ALTER TABLE "${t}" ENABLE TRIGGER USER`);
+  for (const t of TRIGGER_TABLES) await query(database, `ALTER TABLE "${t}" ENABLE TRIGGER USER`);
   process.stderr.write(`${label}: service_call_facts…\n`);
   await query(database, 'SELECT rebuild_service_call_facts()');
   process.stderr.write(`${label}: ANALYZE…\n`);

@@ -93,8 +93,25 @@ function parseHm(v: string, what: string): { h: number; m: number } {
   return { h: Number(r[1]), m: Number(r[2]) };
 }
 
+/**
+ * Zoned instants already computed: a week's load asks for the same few (day, time, zone) triples for every
+ * technician, and each costs several time-zone lookups. Pure, so remembering is safe; bounded.
+ */
+const zonedInstants = new Map<string, number>();
+const ZONED_INSTANTS_MAX = 20_000;
+
 /** Instant (ms) of a local wall time on a local date in a zone. */
 export function zonedInstant(day: IsoDate, hm: string, timeZone: string): number {
+  const key = `${day} ${hm} ${timeZone}`;
+  const known = zonedInstants.get(key);
+  if (known !== undefined) return known;
+  const t = computeZonedInstant(day, hm, timeZone);
+  if (zonedInstants.size >= ZONED_INSTANTS_MAX) zonedInstants.clear();
+  zonedInstants.set(key, t);
+  return t;
+}
+
+function computeZonedInstant(day: IsoDate, hm: string, timeZone: string): number {
   dayNumber(day, 'day');
   const { h, m } = parseHm(hm, 'time');
   const [y, mo, d] = (h === 24 ? addDays(day, 1) : day).split('-').map(Number) as [number, number, number];

@@ -4,6 +4,7 @@
  */
 import { sql } from 'drizzle-orm';
 import {
+  bigint,
   boolean,
   date,
   doublePrecision,
@@ -284,6 +285,17 @@ export const serviceCallFacts = pgTable('service_call_facts', {
   index('service_call_facts_closed_idx').on(t.firstClosedAt),
   index('service_call_facts_branch_closed_idx').on(t.branchId, t.firstClosedAt),
 ]);
+
+/**
+ * A counter per branch, raised (once per transaction, at commit) by database triggers whenever a row the
+ * Roster shows changes: bookings, work orders, visits, sites, units, leak cases, technicians, the branch.
+ * The Roster's week reads are cached per process and reused while the counter stands (migration 0004);
+ * several API processes on one PostgreSQL each see every other's changes. Never written by the application.
+ */
+export const rosterRevisions = pgTable('roster_revisions', {
+  branchId: uuid().primaryKey(),
+  revision: bigint({ mode: 'number' }).notNull().default(0),
+});
 
 export const bookings = pgTable('bookings', {
   id: id(),

@@ -2,6 +2,7 @@ import type { NextFunction, Request, RequestHandler, Response } from 'express';
 import { z } from 'zod';
 import type { SessionUser } from '@coilpath/contract';
 import { unauthorized } from './errors';
+import { PreparedJson } from './prepared-json';
 
 interface Schemas {
   body?: z.ZodType;
@@ -23,7 +24,8 @@ export interface Input<S extends Schemas> {
 /**
  * A thin, typed route handler: parses body, query and params with the contract's zod schemas
  * (a failure becomes a 400 naming the fields), requires a signed-in user, calls the service, and
- * answers JSON with the given status. Returning `undefined` answers 204.
+ * answers JSON with the given status. Returning `undefined` answers 204; a `PreparedJson` is sent as
+ * serialized, with its entity tag (304 when the client holds it).
  */
 export function endpoint<S extends Schemas>(
   schemas: S & { status?: number },
@@ -38,6 +40,7 @@ export function endpoint<S extends Schemas>(
     const result = await handler({ body, query, params, user, req, res } as Input<S>);
     if (res.headersSent) return;
     if (result === undefined) res.status(204).end();
+    else if (result instanceof PreparedJson) res.status(schemas.status ?? 200).set('ETag', result.etag).type('json').send(result.text);
     else res.status(schemas.status ?? 200).json(result);
   };
 }

@@ -10,8 +10,9 @@ import {
   suggestSchema,
 } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { requireRole } from '../../auth/middleware';
+import { requireRole, resolveBranch } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
+import { createRevisionCache } from '../../lib/revision-cache';
 import { createBooking, deleteBooking, listBookings, updateBooking } from './bookings.service';
 import { evenOutApply, evenOutPreview, listSites, listTechnicians, load, rosterBranch, suggest } from './roster.service';
 
@@ -20,8 +21,17 @@ const bookers = requireRole('owner', 'branch_manager', 'dispatcher');
 /** `/api/bookings`: the technicians' calendars (book, move, resize, reassign, unbook). */
 export function bookingsRoutes(ctx: AppContext): Router {
   const r = Router();
+  const weeks = createRevisionCache();
   r.use(bookers);
-  r.get('/', endpoint({ query: bookingListQuerySchema }, async ({ user, query }) => ({ bookings: await listBookings(ctx.db, user, query) })));
+  // A week is read by every open Roster and refetched often: reused while the branch's roster revision stands.
+  r.get(
+    '/',
+    endpoint({ query: bookingListQuerySchema }, ({ user, query }) =>
+      weeks.json(ctx.db, resolveBranch(user, query.branchId), `${query.from} ${query.to} ${query.techId ?? ''}`, async () => ({
+        bookings: await listBookings(ctx.db, user, query),
+      })),
+    ),
+  );
   r.post(
     '/',
     endpoint({ body: bookingCreateSchema, status: 201 }, async ({ user, body }) => ({
@@ -46,6 +56,7 @@ export function bookingsRoutes(ctx: AppContext): Router {
 /** `/api/roster`: technicians, load per day, suggestions and evening out a week. */
 export function rosterRoutes(ctx: AppContext): Router {
   const r = Router();
+  const loads = createRevisionCache();
   r.use(bookers);
   r.get(
     '/technicians',
@@ -58,7 +69,12 @@ export function rosterRoutes(ctx: AppContext): Router {
     '/sites',
     endpoint({ query: rosterBranchQuerySchema }, async ({ user, query }) => ({ sites: await listSites(ctx.db, await rosterBranch(ctx.db, user, query.branchId)) })),
   );
-  r.get('/load', endpoint({ query: loadQuerySchema }, ({ user, query }) => load(ctx.db, user, query)));
+  r.get(
+    '/load',
+    endpoint({ query: loadQuerySchema }, ({ user, query }) =>
+      loads.json(ctx.db, resolveBranch(user, query.branchId), `${query.from} ${query.to}`, () => load(ctx.db, user, query)),
+    ),
+  );
   r.post('/suggest', endpoint({ body: suggestSchema }, ({ user, body }) => suggest(ctx.db, user, body, ctx.clock.now())));
   r.post('/even-out', endpoint({ body: evenOutSchema }, ({ user, body }) => evenOutPreview(ctx.db, user, body, ctx.clock.now())));
   r.post(

@@ -56,7 +56,8 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
     db
       .selectDistinctOn([readings.circuitId], { r: readings, number: circuits.number })
       .from(readings)
-      .innerJoin(circuits, eq(circuits.id, readings.circuitId))
+      // The circuit is joined within the unit: otherwise the planner hashes every circuit of every unit.
+      .innerJoin(circuits, and(eq(circuits.id, readings.circuitId), eq(circuits.unitId, u.id)))
       .where(eq(readings.unitId, u.id))
       .orderBy(readings.circuitId, desc(readings.takenAt)),
     db

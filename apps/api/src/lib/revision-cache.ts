@@ -1,0 +1,76 @@
+/**
+ * Reads reused while a branch's roster revision stands.
+ *
+ * Database triggers raise `roster_revisions.revision` for a branch at the commit of every transaction that
+ * changes something the Roster shows (migration 0004). A read first asks for the branch's revision (one
+ * primary-key lookup) and reuses what it computed before at that same revision; otherwise it computes and
+ * keeps the result. Because the revision is read *before* the data, a result is never kept under a revision
+ * newer than what it saw, and every process on the same database sees every other's changes: the cache is
+ * per process but never stale.
+ */
+import { eq } from 'drizzle-orm';
+import type { Db } from '../db/client';
+import { rosterRevisions } from '../db/schema';
+import { prepareJson, type PreparedJson } from './prepared-json';
+
+export interface RevisionCache {
+  /** The cached value for (branch, key) at the branch's current revision, or `compute()`'s result, kept. */
+  read<T>(db: Db, branchId: string, key: string, compute: () => Promise<T>): Promise<T>;
+  /**
+   * A JSON answer through the cache, serialized once per revision. Without a branch (an owner's
+   * all-branches read) it is computed every time.
+   */
+  json(db: Db, branchId: string | undefined, key: string, compute: () => Promise<unknown>): Promise<PreparedJson>;
+  /** Entries held now (for tests and diagnostics). */
+  readonly size: number;
+}
+
+export async function rosterRevision(db: Db, branchId: string): Promise<number> {
+  const [row] = await db.select({ revision: rosterRevisions.revision }).from(rosterRevisions).where(eq(rosterRevisions.branchId, branchId)).limit(1);
+  return row?.revision ?? 0;
+}
+
+/** A least-recently-used cache of at most `capacity` results. Results must not be mutated by callers. */
+export function createRevisionCache(capacity = 64): RevisionCache {
+  const entries = new Map<string, { revision: number; value: unknown }>();
+  /** Computations under way, so that clients asking at once for the same thing share one. */
+  const pending = new Map<string, Promise<unknown>>();
+  const cache: RevisionCache = {
+    async json(db, branchId, key, compute) {
+      if (!branchId) return prepareJson(await compute());
+      return cache.read(db, branchId, key, async () => prepareJson(await compute()));
+    },
+    async read<T>(db: Db, branchId: string, key: string, compute: () => Promise<T>): Promise<T> {
+      const revision = await rosterRevision(db, branchId);
+      const k = `${branchId} ${key}`;
+      const hit = entries.get(k);
+      if (hit && hit.revision === revision) {
+        entries.delete(k);
+        entries.set(k, hit);
+        return hit.value as T;
+      }
+      const pk = `${k} @${revision}`;
+      const running = pending.get(pk);
+      if (running) return running as Promise<T>;
+      const computing = compute().then((value) => {
+        const current = entries.get(k);
+        if (!current || current.revision <= revision) {
+          entries.delete(k);
+          entries.set(k, { revision, value });
+          while (entries.size > capacity) entries.delete(entries.keys().next().value!);
+        }
+        return value;
+      });
+      pending.set(pk, computing);
+      try {
+        return await computing;
+      } finally {
+        pending.delete(pk);
+      }
+    },
+    get size() {
+      return entries.size;
+    },
+  };
+  return cache;
+}
