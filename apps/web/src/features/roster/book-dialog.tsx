@@ -35,6 +35,11 @@ export interface BookInitial {
   time: string;
   error?: string | undefined;
   outsideHours?: boolean | undefined;
+  /**
+   * Start at the time the server proposes for the chosen technician on the chosen day (the booking
+   * flow from a board cell), as long as the dispatcher has not typed a time.
+   */
+  proposeTime?: boolean | undefined;
 }
 
 export function BookDialog({
@@ -67,14 +72,22 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
     resolver: zodResolver(bookFormSchema),
     defaultValues: { techId: initial.techId ?? '', date: initial.date, time: initial.time, minutes: w.estimatedMinutes, overrideHours: false, overrideReason: '' },
   });
-  const { register, handleSubmit, watch, formState } = form;
+  const { register, handleSubmit, watch, formState, setValue, getFieldState } = form;
   const date = watch('date');
+  const techId = watch('techId');
   const override = watch('overrideHours');
 
   const { mutate: runSuggest } = suggest;
   useEffect(() => {
     if (/^\d{4}-\d{2}-\d{2}$/.test(date)) runSuggest({ workOrderId: w.id, day: date });
   }, [date, w.id, runSuggest]);
+
+  // From a board cell: the chosen technician's proposed start, computed by the server for that day.
+  const proposal = initial.proposeTime && suggest.data?.day === date ? suggest.data.candidates.find((c) => c.techId === techId) : undefined;
+  const proposedTime = proposal?.proposedStart ? instantToLocal(proposal.proposedStart, timeZone).time : undefined;
+  useEffect(() => {
+    if (proposedTime && !getFieldState('time').isDirty) setValue('time', proposedTime);
+  }, [proposedTime, getFieldState, setValue]);
 
   const techName = (id: string) => techs.find((t) => t.id === id)?.name ?? 'the technician';
 
@@ -127,6 +140,13 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
           <TextField label="Date" type="date" error={formState.errors.date?.message} {...register('date')} />
           <TextField label={`Start (${timeZone})`} type="time" step={300} error={formState.errors.time?.message} {...register('time')} />
         </div>
+        {proposal && (
+          <p className={`text-sm ${proposal.proposedStart ? 'text-slate' : 'text-alarm'}`} role="status">
+            {proposal.proposedStart
+              ? `Start ${proposedTime}: the first free time the Roster found for ${proposal.name} that day. Change it if you need another.`
+              : `${proposal.name} has no free time for this job that day: ${proposal.reasons.join('; ')}. Pick another technician or day, or set a time.`}
+          </p>
+        )}
         <TextField label="Length in minutes" type="number" inputMode="numeric" min={15} step={15} error={formState.errors.minutes?.message} {...register('minutes')} />
         {(canOverride || override) && (
           <fieldset className="flex flex-col gap-2 rounded-md border border-watch-base/50 bg-watch-tint p-3">
@@ -165,11 +185,15 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
             {suggest.data.candidates.map((c) => {
               const tech = techs.find((t) => t.id === c.techId);
               return (
-                <li key={c.techId} className={`rounded-md border p-2 ${c.eligible ? 'border-slate-line' : 'border-dashed border-slate-line bg-frost text-slate'}`}>
+                <li
+                  key={c.techId}
+                  className={`rounded-md border p-2 ${c.eligible ? 'border-slate-line' : 'border-dashed border-slate-line bg-frost text-slate'} ${initial.proposeTime && c.techId === techId ? 'ring-2 ring-coolant/50' : ''}`}
+                >
                   <div className="flex flex-wrap items-center justify-between gap-2">
                     <span className="inline-flex items-center gap-2 font-medium">
                       <TechSwatch tech={tech} />
                       {c.name}
+                      {initial.proposeTime && c.techId === techId && <span className="text-xs font-normal text-coolant">(chosen)</span>}
                       {c.eligible ? (
                         <span className="inline-flex items-center gap-1 text-xs text-ok">
                           <CheckCircle2 className="size-3.5" aria-hidden="true" /> score {c.score}

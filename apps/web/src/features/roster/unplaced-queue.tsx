@@ -1,5 +1,4 @@
 import { useEffect, useMemo, useRef, useState } from 'react';
-import { Draggable } from '@fullcalendar/interaction';
 import { createColumnHelper, useTable } from '@tanstack/react-table';
 import { AlertTriangle, GripVertical } from 'lucide-react';
 import type { WorkOrder } from '@coilpath/contract';
@@ -8,7 +7,11 @@ import { coilpathTableFeatures, type CoilpathFeatures, type SortingState } from 
 import { Button } from '@/components/ui/button';
 import { Badge } from '@/components/ui/page';
 import { formatInZone } from '@/lib/format';
+import { DRAG_WORK_ORDER } from './board';
 import { leakDeadline } from './parts';
+
+/** Where a job's handle drags to: FullCalendar's time grids, or the technician board (native drag and drop). */
+export type QueueMode = 'calendar' | 'board';
 
 const rank: Record<Priority, number> = { emergency: 0, high: 1, normal: 2, low: 3 };
 const tone: Record<Priority, 'alarm' | 'watch' | 'neutral' | 'info'> = { emergency: 'alarm', high: 'watch', normal: 'neutral', low: 'info' };
@@ -16,14 +19,50 @@ const col = createColumnHelper<CoilpathFeatures, WorkOrder>();
 type SortKey = 'priority' | 'age' | 'due' | 'skill' | 'kind';
 const sortLabels: Record<SortKey, string> = { priority: 'Priority', age: 'Oldest first', due: 'Due soonest', skill: 'Required skill', kind: 'Kind' };
 
-function QueueItem({ w, timeZone, today, now, onBook }: { w: WorkOrder; timeZone: string; today: string; now: number; onBook: (w: WorkOrder) => void }) {
+function QueueItem({
+  w,
+  timeZone,
+  today,
+  now,
+  onBook,
+  mode,
+  picked,
+  onPick,
+}: {
+  w: WorkOrder;
+  timeZone: string;
+  today: string;
+  now: number;
+  onBook: (w: WorkOrder) => void;
+  mode: QueueMode;
+  picked: boolean;
+  onPick: (w: WorkOrder | null) => void;
+}) {
   const label = `${workOrderLabel(w.number)} ${workOrderKindLabels[w.kind]} at ${w.siteName}`;
   const leak = leakDeadline(w.leakRepairDueDate, today);
   const due = w.slaDueAt ?? w.latestAt;
   const late = due ? Date.parse(due) < now : false;
   const needs = [w.requiredSkill, w.requiredCertification ? `EPA 608 ${w.requiredCertification === 'universal' ? 'Universal' : `Type ${w.requiredCertification}`}` : null].filter(Boolean);
   return (
-    <li className="flex items-start gap-1 rounded-md border border-slate-line bg-white p-2">
+    <li className={`flex items-start gap-1 rounded-md border bg-white p-2 ${picked ? 'border-coolant ring-2 ring-coolant/40' : 'border-slate-line'}`}>
+      {mode === 'board' ? (
+        <button
+          type="button"
+          draggable
+          onDragStart={(ev) => {
+            ev.dataTransfer.setData(DRAG_WORK_ORDER, w.id);
+            ev.dataTransfer.setData('text/plain', label);
+            ev.dataTransfer.effectAllowed = 'copy';
+          }}
+          onClick={() => onPick(picked ? null : w)}
+          aria-pressed={picked}
+          aria-label={`Place ${label} on the board`}
+          title="Drag onto a technician’s day, or click and then choose the day"
+          className={`inline-flex min-h-touch min-w-8 shrink-0 cursor-grab items-center justify-center rounded active:cursor-grabbing ${picked ? 'bg-coolant text-white' : 'text-slate hover:bg-slate-faint'}`}
+        >
+          <GripVertical className="size-4" aria-hidden="true" />
+        </button>
+      ) : (
       <button
         type="button"
         data-wo-id={w.id}
@@ -35,6 +74,7 @@ function QueueItem({ w, timeZone, today, now, onBook }: { w: WorkOrder; timeZone
       >
         <GripVertical className="size-4" aria-hidden="true" />
       </button>
+      )}
       <div className="min-w-0 flex-1 text-sm">
         <div className="flex flex-wrap items-center gap-x-2 gap-y-1">
           <span className="font-semibold">{workOrderLabel(w.number)}</span>
@@ -80,18 +120,26 @@ function age(createdAt: string, now: number): string {
 
 /**
  * Work waiting for a time and a technician. Each row's handle can be dragged onto the calendar
- * (FullCalendar's Draggable), or booked from a form with "Book…".
+ * (FullCalendar's Draggable) or onto a technician's day on the board (or, on the board, clicked to
+ * pick the job and then a day chosen), or booked from a form with "Book…".
  */
 export function UnplacedQueue({
   workOrders,
   timeZone,
   today,
   onBook,
+  mode = 'calendar',
+  picked = null,
+  onPick = () => undefined,
 }: {
   workOrders: WorkOrder[];
   timeZone: string;
   today: string;
   onBook: (w: WorkOrder) => void;
+  mode?: QueueMode;
+  /** The job picked to place on the board. */
+  picked?: string | null;
+  onPick?: (w: WorkOrder | null) => void;
 }) {
   const box = useRef<HTMLDivElement>(null);
   const [kind, setKind] = useState('');
@@ -99,14 +147,23 @@ export function UnplacedQueue({
   const [skill, setSkill] = useState('');
   const now = Date.now();
 
+  // On the time grids the handles drag through FullCalendar, loaded with the calendar (not for the board).
   useEffect(() => {
-    if (!box.current) return;
-    const d = new Draggable(box.current, {
-      itemSelector: '[data-wo-id]',
-      eventData: (el) => ({ title: el.getAttribute('data-title') ?? '', duration: { minutes: Number(el.getAttribute('data-minutes') ?? 60) }, create: false }),
+    if (mode !== 'calendar') return;
+    let live = true;
+    let d: { destroy(): void } | undefined;
+    void import('@fullcalendar/interaction').then(({ Draggable }) => {
+      if (!live || !box.current) return;
+      d = new Draggable(box.current, {
+        itemSelector: '[data-wo-id]',
+        eventData: (el) => ({ title: el.getAttribute('data-title') ?? '', duration: { minutes: Number(el.getAttribute('data-minutes') ?? 60) }, create: false }),
+      });
     });
-    return () => d.destroy();
-  }, []);
+    return () => {
+      live = false;
+      d?.destroy();
+    };
+  }, [mode]);
 
   const skills = useMemo(() => [...new Set(workOrders.map((w) => w.requiredSkill).filter((s): s is string => !!s))].sort(), [workOrders]);
   const rows = useMemo(
@@ -191,7 +248,7 @@ export function UnplacedQueue({
       ) : (
         <ul className="flex max-h-[1100px] flex-col gap-2 overflow-y-auto" aria-label="Unplaced work, sorted">
           {sorted.map((w) => (
-            <QueueItem key={w.id} w={w} timeZone={timeZone} today={today} now={now} onBook={onBook} />
+            <QueueItem key={w.id} w={w} timeZone={timeZone} today={today} now={now} onBook={onBook} mode={mode} picked={picked === w.id} onPick={onPick} />
           ))}
         </ul>
       )}
