@@ -1,13 +1,17 @@
 /**
  * Dispatcher, on a desktop (1440×900): signs in through the form, sees the dispatcher's navigation,
- * finds the technician's return visit in the Roster's unplaced queue, asks for a suggestion, books
- * it with one click on the proposed technician and time, drags the booking to another day in the
- * week view and sees that technician's load gauge move with it. Then every screen in the navigation.
+ * lands on the Roster's technician board (a row per technician, a column per day, today marked, no
+ * slivers), drags the technician's return visit from the unplaced queue onto a technician's day,
+ * books it from the suggestion the form shows for that day, finds the booking as a chip in its
+ * technician × day cell, opens it and moves between cells with the keyboard. Then on the week time
+ * grid (several technicians: no slivers; one technician: every booking) drags the booking to another
+ * day and sees that technician's load gauge move with it. Then every screen in the navigation, and
+ * the board on a phone (390×844): one day at a time, technicians stacked, a job placed with two taps.
  */
 import assert from 'node:assert/strict';
 import type { Locator, Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
-import { desktop } from '../harness';
+import { desktop, phone } from '../harness';
 import { addDays, dateInZone, readHandoff, weekdayOf } from '../handoff';
 import { expectedNavigation, navigationLabels, signInThroughForm, visitEveryScreen } from '../support';
 
@@ -39,6 +43,32 @@ async function until<T>(page: Page, read: () => Promise<T>, done: (v: T) => bool
   return v;
 }
 
+const weekdayNames = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
+const monthNames = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+/** "Tuesday 1 December", as the board names a day. */
+const dayLong = (d: string) => `${weekdayNames[weekdayOf(d)]} ${Number(d.slice(8))} ${monthNames[Number(d.slice(5, 7)) - 1]}`;
+
+/** "Tue 1 Dec", as the notices name a day. */
+const shortDay = (d: string) => `${weekdayNames[weekdayOf(d)]!.slice(0, 3)} ${Number(d.slice(8))} ${monthNames[Number(d.slice(5, 7)) - 1]!.slice(0, 3)}`;
+
+/** The technicians the "Show" list offers: id and name. */
+async function technicians(page: Page): Promise<{ id: string; name: string }[]> {
+  const options = page.getByRole('combobox', { name: 'Show' }).locator('option');
+  const all = await options.evaluateAll((els) => els.map((o) => ({ id: (o as HTMLOptionElement).value, text: o.textContent ?? '' })));
+  return all.filter((o) => o.id !== 'all').map((o) => ({ id: o.id, name: o.text.replace(/^Only /, '').trim() }));
+}
+
+/** Moves the board (or time grid) a week at a time until `has` holds. */
+async function showWeekOf(page: Page, has: () => Promise<boolean>) {
+  const title = page.locator('h2[aria-live="polite"]');
+  for (let i = 0; i < 3 && !(await has()); i++) {
+    const before = await title.innerText();
+    await page.getByRole('button', { name: 'Next week' }).click();
+    await until(page, () => title.innerText(), (t) => t !== before, 5000);
+  }
+  assert.ok(await has(), 'the week is reachable with "Next week"');
+}
+
 /** The date (`data-date`) of the calendar column an event sits in. */
 const columnOf = (event: Locator) =>
   event.evaluate((el) => el.closest<HTMLElement>('td.fc-timegrid-col')?.dataset.date ?? null).catch(() => null);
@@ -49,6 +79,28 @@ export async function run(ctx: JourneyContext) {
   const labels = await navigationLabels(page);
   assert.deepEqual(labels, expectedNavigation('dispatcher', 'desktop'), 'the dispatcher sees Roster and Sites');
   await page.getByRole('heading', { level: 1, name: 'Roster' }).waitFor();
+
+  // ── The technician board: the default week presentation ──
+  const board = page.getByRole('table', { name: /^Technician board/ });
+  await board.waitFor();
+  assert.equal(await page.getByRole('button', { name: 'Board', exact: true }).getAttribute('aria-pressed'), 'true', 'the Board view is the default');
+  const techs = await technicians(page);
+  assert.ok(techs.length >= 5, `the demo branch has five or more technicians (${techs.length})`);
+  const rowNames = (await board.getByRole('rowheader').allInnerTexts()).map((t) => t.split('\n')[0]!.trim());
+  assert.deepEqual(rowNames, techs.map((t) => t.name), 'one row per technician, in the Show list’s order');
+  const columns = await board.getByRole('columnheader').allInnerTexts();
+  assert.equal(columns.length, 8, 'a technician column and seven days');
+  const today = dateInZone(new Date(), BRANCH_ZONE);
+  const todayHeader = board.locator('th[aria-current="date"]');
+  assert.equal(await todayHeader.count(), 1, 'today is marked');
+  assert.match(await todayHeader.innerText(), /Today/, 'today’s column says so');
+  const chips = board.locator('[data-chip]');
+  await chips.first().waitFor();
+  const narrowest = Math.min(...(await chips.evaluateAll((els) => els.map((e) => e.getBoundingClientRect().width))));
+  assert.ok(narrowest >= 80, `every booking chip is readable (narrowest ${narrowest.toFixed(0)} px)`);
+  const firstCell = board.getByRole('button', { name: new RegExp(`^${techs[0]!.name}, ${dayLong(today)} \\(today\\): (no bookings|\\d+ bookings?), `) });
+  assert.equal(await firstCell.count(), 1, `the cell of ${techs[0]!.name} today is named with its bookings and load`);
+  ctx.step(`board: ${techs.length} technicians × 7 days, ${await chips.count()} chips, narrowest ${narrowest.toFixed(0)} px; "${await firstCell.getAttribute('aria-label')}"`);
   await ctx.screen(page, 'roster');
 
   // ── The return visit in the unplaced queue ──
@@ -73,21 +125,55 @@ export async function run(ctx: JourneyContext) {
   }
   ctx.step(`found WO-${number} in the unplaced queue${handoff ? ` (from the technician's WO-${handoff.originNumber} at ${handoff.siteName})` : ''}`);
 
-  // ── Ask for a suggestion ──
+  // ── Drag it onto a technician's day on the board ──
   // The demo week is well booked, so the dispatcher tries the coming days until a technician has a
-  // slot: weekdays Mon–Thu only, so the drag below has a later working day in the same week.
-  const today = dateInZone(new Date(), BRANCH_ZONE);
-  await item.getByRole('button', { name: `Book WO-${number}…`, exact: true }).click();
+  // slot: Monday to Wednesday only, so the moves below have two later working days in the same week.
+  const workdays = Array.from({ length: 14 }, (_, i) => addDays(today, i + 1)).filter((d) => [1, 2, 3].includes(weekdayOf(d)));
+  const firstDay = workdays[0]!;
+  const cellOf = (techId: string, d: string) => page.getByTestId(`board-${techId}-${d}`);
+  await showWeekOf(page, async () => (await cellOf(techs[0]!.id, firstDay).count()) > 0);
+  // Only return visits in the queue: the job and the board's first row fit on one screen for the drag.
+  await page.getByRole('group', { name: 'Filter the unplaced work' }).getByRole('combobox', { name: /^Kind/ }).selectOption('return_visit');
+  const handle = item.getByRole('button', { name: new RegExp(`^Place WO-${number} .+ on the board$`) });
+  await handle.scrollIntoViewIfNeeded();
+  await handle.dragTo(cellOf(techs[0]!.id, firstDay));
   const dialog = page.getByRole('dialog', { name: new RegExp(`^Book WO-${number}\\b`) });
   await dialog.waitFor();
+  assert.equal(await dialog.getByLabel('Technician', { exact: true }).inputValue(), techs[0]!.id, `the form is for ${techs[0]!.name}, the row it was dropped on`);
+  assert.equal(await dialog.getByLabel('Date').inputValue(), firstDay, `the form is for ${firstDay}, the column it was dropped on`);
+  await dialog.getByRole('heading', { name: `Suggested technicians for ${firstDay}` }).waitFor();
+  await dialog.getByText('Ranking technicians…').waitFor({ state: 'hidden' });
+  const chosen = dialog.locator('ol > li').filter({ hasText: '(chosen)' });
+  assert.equal(await chosen.count(), 1, 'the technician of the cell is marked among the suggestions');
+  const chosenOffer = chosen.getByRole('button', { name: /^Book \S+ at \d\d:\d\d$/ });
+  if ((await chosenOffer.count()) > 0) {
+    const at = /at (\d\d:\d\d)$/.exec(await chosenOffer.innerText())![1]!;
+    const start = dialog.getByLabel(/^Start/);
+    await until(page, () => start.inputValue(), (v) => v === at, 5000);
+    assert.equal(await start.inputValue(), at, `the start is the server’s proposal for ${techs[0]!.name} (${at})`);
+    ctx.step(`dropped on ${techs[0]!.name}, ${firstDay}: the form proposes ${at}`);
+  } else {
+    await dialog.getByRole('status').filter({ hasText: /has no free time for this job that day/ }).waitFor();
+    ctx.step(`dropped on ${techs[0]!.name}, ${firstDay}: no free time that day, and the form says why`);
+    // Choosing a suggested technician instead: the start follows that technician's proposal.
+    const offer = dialog.locator('ol > li').getByRole('button', { name: /^Book \S+ at \d\d:\d\d$/ }).first();
+    if ((await offer.count()) > 0) {
+      const [, first, at] = /^Book (\S+) at (\d\d:\d\d)$/.exec((await offer.innerText()).trim())!;
+      const other = techs.find((t) => t.name.split(' ')[0] === first)!;
+      await dialog.getByLabel('Technician', { exact: true }).selectOption(other.id);
+      const start = dialog.getByLabel(/^Start/);
+      assert.equal(await until(page, () => start.inputValue(), (v) => v === at, 5000), at, `choosing ${other.name} proposes ${at}`);
+      ctx.step(`chose ${other.name} in the form: the start follows to ${at}`);
+    }
+  }
+
+  // ── Ask for a suggestion ──
   const proposalName = /^Book \S+ at \d\d:\d\d$/;
   const proposal = dialog.getByRole('button', { name: proposalName }).first();
-  let day = today;
+  let day = firstDay;
   const tried: string[] = [];
-  for (let i = 1; i <= 14; i++) {
-    day = addDays(today, i);
-    if (![1, 2, 3, 4].includes(weekdayOf(day))) continue;
-    await dialog.getByLabel('Date').fill(day);
+  for (day of workdays) {
+    if (day !== firstDay) await dialog.getByLabel('Date').fill(day);
     await dialog.getByRole('heading', { name: `Suggested technicians for ${day}` }).waitFor();
     // Every candidate's reasons name the day ranked ("… free on <day>", "No free slot … on <day>", "Not working on <day>").
     await dialog.getByRole('listitem').filter({ hasText: new RegExp(`on ${day}\\b`) }).first().waitFor();
@@ -123,13 +209,80 @@ export async function run(ctx: JourneyContext) {
   await page.getByRole('button', { name: `Book WO-${number}…`, exact: true }).waitFor({ state: 'detached' });
   ctx.step(`booked: ${bookedText}`);
 
+  // ── The booking on the board: a chip in its technician × day cell ──
+  const techId = techs.find((t) => t.name === techName)!.id;
+  await showWeekOf(page, async () => (await cellOf(techId, day).count()) > 0);
+  const cell = cellOf(techId, day);
+  const chip = cell.getByRole('button', { name: new RegExp(`^${from}–${to}\\s*,\\s*WO-${number} Return visit\\s*,`) });
+  await chip.waitFor();
+  const inCell = await cell.locator('[data-chip]').count();
+  const cellName = (await cell.locator('[data-nav-head]').getAttribute('aria-label')) ?? '';
+  assert.ok(cellName.startsWith(`${techName}, ${dayLong(day)}`), `the cell is named by technician and day: "${cellName}"`);
+  assert.match(cellName, new RegExp(`: ${inCell} bookings?, `), `the cell’s name counts its ${inCell} chip(s): "${cellName}"`);
+  ctx.step(`on the board: "${(await chip.innerText()).replace(/\s+/g, ' ').replace(/ ,/g, ',')}" in "${cellName}"`);
+  await page.waitForFunction(() => !document.querySelector('[aria-busy="true"]'));
+  await ctx.screen(page, 'roster-board-booked');
+
+  // ── Keyboard: open the chip, close it, move between cells ──
+  await chip.focus();
+  await page.keyboard.press('Enter');
+  const details = page.getByRole('dialog', { name: `WO-${number} · Return visit` });
+  await details.waitFor();
+  assert.match(await details.innerText(), new RegExp(`${techName}, \\w{3} \\d{1,2} \\w{3}, ${from}–${to}`), 'the booking’s details open from the chip');
+  await details.getByRole('button', { name: 'Save changes' }).waitFor(); // move, reassign…
+  await details.getByRole('button', { name: 'Unbook' }).waitFor(); // …or unbook
+  await page.keyboard.press('Escape');
+  await details.waitFor({ state: 'hidden' });
+  assert.equal(await chip.evaluate((el) => el === document.activeElement), true, 'focus returns to the chip');
+  const focused = async () => (await page.evaluate(() => document.activeElement?.getAttribute('aria-label'))) ?? '';
+  await page.keyboard.press('ArrowRight');
+  assert.ok((await focused()).startsWith(`${techName}, ${dayLong(addDays(day, 1))}`), `ArrowRight moves to the next day: "${await focused()}"`);
+  const [away, back] = techs.findIndex((t) => t.id === techId) > 0 ? ['ArrowUp', 'ArrowDown'] : ['ArrowDown', 'ArrowUp'];
+  await page.keyboard.press(away);
+  assert.ok(!(await focused()).startsWith(techName), `${away} moves to another technician: "${await focused()}"`);
+  await page.keyboard.press(back);
+  assert.ok((await focused()).startsWith(`${techName}, ${dayLong(addDays(day, 1))}`), `${away} then ${back} comes back to the same cell`);
+  ctx.step('chip opened with Enter, closed with Escape; arrow keys move between cells');
+
+  // ── Drag the chip to the next day on the board: same technician, same time ──
+  const chipName = new RegExp(`^${from}–${to}\\s*,\\s*WO-${number} Return visit\\s*,`);
+  const nextDay = addDays(day, 1);
+  await chip.dragTo(cellOf(techId, nextDay).locator('[data-nav-head]'));
+  const movedOnBoard = notice(page, new RegExp(`^Moved: WO-${number} with ${techName}, \\w{3} \\d{1,2} \\w{3}, ${from}–${to}\\.$`));
+  const refused = page.getByRole('dialog', { name: `WO-${number} · Return visit` });
+  await Promise.race([movedOnBoard.waitFor(), refused.waitFor()]);
+  if (await refused.isVisible()) {
+    // Another booking or the working hours stand in the way: the booking opens at the day tried, saying why.
+    const why = (await refused.getByRole('alert').innerText()).trim();
+    assert.equal(await refused.getByLabel('Date', { exact: true }).inputValue(), nextDay, 'the booking opens at the day it was dropped on');
+    ctx.step(`board move to ${nextDay} refused: "${why}"`);
+    await refused.getByRole('button', { name: 'Close' }).first().click();
+    await refused.waitFor({ state: 'hidden' });
+  } else {
+    await cellOf(techId, nextDay).getByRole('button', { name: chipName }).waitFor();
+    assert.equal(await cellOf(techId, day).getByRole('button', { name: chipName }).count(), 0, `WO-${number} left ${day}`);
+    ctx.step(`dragged the chip to ${nextDay} on the board: "${(await movedOnBoard.innerText()).trim()}"`);
+    day = nextDay;
+  }
+
+  // ── The week time grid: several technicians share a day without slivers ──
+  await page.getByRole('button', { name: 'Week', exact: true }).click();
+  await page.getByRole('button', { name: 'Today', exact: true }).click(); // the demo's busy week
+  await page.locator(`td.fc-timegrid-col[data-date="${today}"]`).waitFor();
+  await page.locator('.fc-timegrid-event-harness').first().waitFor();
+  assert.match(new URL(page.url()).search, /view=week/, 'the view is in the URL');
+  const shared = await page.locator('.fc-timegrid-event-harness').count();
+  await page.getByRole('note').filter({ hasText: /technicians share each day here/ }).waitFor();
+  const slimmest = Math.min(...(await page.locator('.fc-timegrid-event-harness').evaluateAll((els) => els.map((e) => e.getBoundingClientRect().width))));
+  assert.ok(slimmest >= 40, `no event on the shared week grid is a sliver (narrowest ${slimmest.toFixed(0)} px)`);
+  ctx.step(`week time grid with every technician: ${shared} events drawn, narrowest ${slimmest.toFixed(0)} px, the rest behind "+ more"`);
+
   // ── Show only that technician, in the week of the booking ──
   const show = page.getByRole('combobox', { name: 'Show' });
   await show.selectOption({ label: `Only ${techName}` });
-  const techId = await show.inputValue();
-  for (let i = 0; i < 3 && (await page.locator(`td.fc-timegrid-col[data-date="${day}"]`).count()) === 0; i++) {
-    await page.getByRole('button', { name: 'Next week' }).click();
-  }
+  assert.equal(await until(page, () => show.inputValue(), (v) => v === techId, 5000), techId, `only ${techName} is shown`);
+  assert.match(new URL(page.url()).search, new RegExp(`tech=${techId}`), 'the technician is in the URL');
+  await showWeekOf(page, async () => (await page.locator(`td.fc-timegrid-col[data-date="${day}"]`).count()) > 0);
   const event = page.locator(`.fc-event[aria-label^="WO-${number} with "]`);
   await event.waitFor();
   assert.equal(await columnOf(event), day, `WO-${number} shows on ${day}`);
@@ -209,7 +362,7 @@ export async function run(ctx: JourneyContext) {
     if (!moved) ctx.step(`drag attempt ${attempt} did not land; retrying`);
   }
   assert.ok(moved, `WO-${number} was dragged from ${day} to ${targetDate}`);
-  const movedNotice = notice(page, new RegExp(`^Moved: WO-${number} with ${techName}, .+\\.$`));
+  const movedNotice = notice(page, new RegExp(`^Moved: WO-${number} with ${techName}, ${shortDay(targetDate)}, .+\\.$`));
   await movedNotice.waitFor();
   const movedText = (await movedNotice.innerText()).trim();
   const [, newFrom, newTo] = /, (\d\d:\d\d)–(\d\d:\d\d)\.$/.exec(movedText) ?? [];
@@ -232,4 +385,35 @@ export async function run(ctx: JourneyContext) {
   await ctx.screen(page, 'roster-moved');
 
   await visitEveryScreen(ctx, page, labels);
+
+  // ── On a phone: one day at a time, technicians stacked; a job placed with two taps ──
+  const mobile = await ctx.launch(phone);
+  await signInThroughForm(ctx, mobile, 'dispatcher');
+  const pager = mobile.locator('[data-board-layout="pager"]');
+  await pager.waitFor();
+  const dayButtons = mobile.getByRole('group', { name: 'Day of the week' }).getByRole('button');
+  assert.equal(await dayButtons.count(), 7, 'a button per day of the week');
+  const todayButton = mobile.getByRole('button', { name: new RegExp(`^${dayLong(today).slice(0, 3)} ${Number(today.slice(8))} ${monthNames[Number(today.slice(5, 7)) - 1]}, today`) });
+  assert.equal(await todayButton.getAttribute('aria-pressed'), 'true', 'the phone opens on today');
+  const stacked = mobile.getByRole('list', { name: `Technicians on ${dayLong(today)}` }).locator('> li');
+  assert.equal(await stacked.count(), techs.length, 'every technician stacked under the day');
+  await ctx.screen(mobile, 'roster-phone');
+  const next = addDays(today, 1);
+  await mobile.getByRole('button', { name: 'Next day' }).click();
+  await mobile.getByRole('list', { name: `Technicians on ${dayLong(next)}` }).waitFor();
+  assert.match(new URL(mobile.url()).search, new RegExp(`date=${next}`), 'the day is in the URL');
+  const job = mobile.getByRole('list', { name: 'Unplaced work, sorted' }).getByRole('listitem').first();
+  const jobNumber = /WO-(\d+)/.exec(await job.innerText())![1]!;
+  await job.getByRole('button', { name: /^Place WO-\d+ .+ on the board$/ }).click();
+  const place = mobile.getByRole('button', { name: new RegExp(`^Book here: WO-${jobNumber} .+ for ${techs[1]!.name} on ${dayLong(next)}\\.`) });
+  await place.click();
+  const phoneDialog = mobile.getByRole('dialog', { name: new RegExp(`^Book WO-${jobNumber}\\b`) });
+  await phoneDialog.waitFor();
+  assert.equal(await phoneDialog.getByLabel('Technician', { exact: true }).inputValue(), techs[1]!.id, 'the form is for the technician tapped');
+  assert.equal(await phoneDialog.getByLabel('Date').inputValue(), next, 'and the day shown');
+  await phoneDialog.getByText('Ranking technicians…').waitFor({ state: 'hidden' });
+  await ctx.screen(mobile, 'roster-phone-book');
+  await phoneDialog.getByRole('button', { name: 'Cancel' }).click();
+  await phoneDialog.waitFor({ state: 'hidden' });
+  ctx.step(`phone: day pager, ${techs.length} technicians stacked; WO-${jobNumber} placed on ${techs[1]!.name}, ${next} with two taps`);
 }

@@ -7,12 +7,13 @@
  * a technician and day; drag a chip to another cell to move it there at the same local time. Every
  * chip opens the booking's details (move, reassign, unbook). Arrow keys move between cells.
  */
-import { useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
+import { useEffect, useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
 import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, Moon, Plus, Siren, X } from 'lucide-react';
 import type { Booking, Technician, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
 import { priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
-import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, loadState, loadWords, shortMinutes, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
+import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, loadState, monthName, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
+import { formatMinutes } from '@/lib/format';
 import { colourOf, leakDeadline, TechSwatch } from './parts';
 
 /** Below this width (px) the board shows one day at a time. */
@@ -62,47 +63,62 @@ const stateIcon: Record<LoadState, ReactNode> = {
   over: <AlertTriangle className="size-3.5 shrink-0 text-alarm" aria-hidden="true" />,
 };
 
-/** The load of a cell at a glance: icon, "5 h 30 of 8 h 30", a bar, and the word "Over". */
+/**
+ * The load of a cell at a glance: an icon, the booked time over the working time, a bar, and the word
+ * "Over". The words are those of the cell's spoken name (label in name): "5 h 30 min" "of 8 h 30 min".
+ */
 function LoadLine({ l, wide }: { l: TechnicianDayLoad | undefined; wide?: boolean }) {
   if (!l) return <span className="text-slate">—</span>;
   const state = loadState(l);
   const off = l.capacityMinutes === 0;
-  const ratio = off ? (l.bookedMinutes > 0 ? 1 : 0) : l.bookedMinutes / l.capacityMinutes;
-  const bar = state === 'over' ? 'bg-alarm' : state === 'near' ? 'bg-watch-base' : 'bg-coolant';
   return (
     <span className="flex w-full flex-col gap-0.5">
-      <span className="flex flex-wrap items-center gap-x-1 gap-y-0">
-        {stateIcon[state]}
-        <span className={`whitespace-nowrap tabular ${off && !l.bookedMinutes ? 'text-slate' : ''}`}>
-          {off ? (l.bookedMinutes ? `${tightMinutes(l.bookedMinutes)}, day off` : 'Day off') : `${tightMinutes(l.bookedMinutes)} / ${tightMinutes(l.capacityMinutes)}`}
-        </span>
-        {state === 'over' && <strong className="font-semibold text-alarm">Over</strong>}
-        {state === 'near' && wide && <span className="text-watch">Nearly full</span>}
+      <span className={`flex items-start gap-1 ${wide ? 'flex-wrap' : ''}`}>
+        <span className="mt-px">{stateIcon[state]}</span>
+        {off && !l.bookedMinutes ? (
+          <span className="text-slate">Day off</span>
+        ) : (
+          <span className={`flex tabular ${wide ? 'flex-wrap gap-x-1' : 'flex-col'}`}>
+            {/* The spaces keep the words apart for tools that read the text nodes one after another. */}
+            <span className="font-semibold">{formatMinutes(l.bookedMinutes)}</span>{' '}
+            <span className="text-slate">{off ? 'on a day off' : `of ${formatMinutes(l.capacityMinutes)}`}</span>
+            {state === 'over' && (
+              <>
+                {' '}
+                <strong className="font-semibold text-alarm">Over</strong>
+              </>
+            )}
+            {state === 'near' && wide && (
+              <>
+                {' '}
+                <span className="text-watch">Nearly full</span>
+              </>
+            )}
+          </span>
+        )}
       </span>
-      {!off && (
-        <span className="block h-1 w-full overflow-hidden rounded bg-slate-faint" aria-hidden="true">
-          <span className={`block h-full ${bar}`} style={{ width: `${Math.min(100, Math.round(ratio * 100))}%` }} />
-        </span>
-      )}
+      {!off && <LoadBar l={l} />}
     </span>
   );
 }
 
-/** A booking's name for screen readers: when, what, where, and what matters about it. */
-export function chipLabel(e: BoardEntry, today: string): string {
+/** What a chip says to screen readers after its visible text (the visible text comes first: label in name). */
+export function chipSuffix(e: BoardEntry, today: string, wide: boolean): string {
   const w = e.booking.workOrder;
   const leak = leakDeadline(w.leakRepairDueDate, today, e.start.date);
   const bits = [
-    entryTime(e),
-    `${workOrderLabel(w.number)} ${workOrderKindLabels[w.kind]} at ${w.siteName}`,
-    w.unitTag ? `${w.unitTag}` : null,
-    `${priorityLabels[w.priority]} priority`,
-    leak?.text ?? null,
-    w.state !== 'booked' ? workOrderStateLabels[w.state] : null,
-    e.booking.hoursOverride ? 'outside working hours' : null,
-    e.booking.fixed ? 'fixed time' : null,
+    !wide && w.unitTag ? w.unitTag : null,
+    w.priority === 'normal' || w.priority === 'low' ? `${priorityLabels[w.priority]} priority` : null,
+    leak && leak.text !== leakBadge(leak) ? leak.text : null,
   ].filter(Boolean);
-  return `${bits.join(', ')}. Open to move, reassign or unbook.`;
+  return `${bits.length ? `, ${bits.join(', ')}` : ''}. Open to move, reassign or unbook.`;
+}
+
+/** A pause for screen readers between the parts of a chip (visible text stays contiguous). */
+const Sep = () => <span className="sr-only">, </span>;
+
+function leakBadge(leak: { overdue: boolean; text: string }): string {
+  return leak.overdue ? 'Leak repair overdue' : leak.text;
 }
 
 function Chip({
@@ -142,13 +158,16 @@ function Chip({
             }
           : undefined
       }
-      aria-label={chipLabel(e, today)}
-      className={`block w-full rounded border border-l-[3px] border-slate-line bg-white px-1 py-0.5 text-left leading-snug ${wide ? 'px-2 py-1 text-sm' : 'text-xs'} text-ink shadow-xs hover:bg-frost ${movable ? 'cursor-grab active:cursor-grabbing' : ''} ${w.state === 'closed' || w.state === 'cancelled' ? 'opacity-80' : ''}`}
+      className={`block w-full rounded border border-l-[3px] border-slate-line bg-white text-left leading-snug text-ink shadow-xs hover:bg-frost ${wide ? 'px-2 py-1 text-sm' : 'px-1 py-0.5 text-xs'} ${movable ? 'cursor-grab active:cursor-grabbing' : ''} ${w.state === 'closed' || w.state === 'cancelled' ? 'opacity-80' : ''}`}
       style={{ borderLeftColor: colourOf(tech) }}
     >
-      <span className="block font-semibold tabular">{entryTime(e)}</span>
+      <span className="block font-semibold tabular">
+        {entryTime(e)}
+        <Sep />
+      </span>
       <span className="block">
         <span className="font-medium">{workOrderLabel(w.number)}</span> {workOrderKindLabels[w.kind]}
+        <Sep />
       </span>
       <span className="line-clamp-2 block text-slate" title={w.siteName}>
         {w.siteName}
@@ -159,26 +178,41 @@ function Chip({
           {w.priority === 'emergency' && (
             <span className="inline-flex items-center gap-0.5 rounded bg-alarm px-1 font-semibold text-white">
               <Siren className="size-3" aria-hidden="true" />
-              Emergency
+              <Sep />Emergency
             </span>
           )}
-          {w.priority === 'high' && <span className="rounded bg-watch-tint px-1 font-medium text-watch">High</span>}
+          {w.priority === 'high' && (
+            <span className="rounded bg-watch-tint px-1 font-medium text-watch">
+              <Sep />High priority
+            </span>
+          )}
           {leak && (
-            <span className={`inline-flex items-center gap-0.5 rounded px-1 font-medium ${leak.overdue ? 'bg-alarm-tint text-alarm' : 'bg-watch-tint text-watch'}`} title={leak.text}>
+            <span className={`inline-flex items-center gap-0.5 rounded px-1 font-medium ${leak.overdue ? 'bg-alarm-tint text-alarm' : 'bg-watch-tint text-watch'}`}>
               <Droplet className="size-3" aria-hidden="true" />
-              {leak.overdue ? 'Leak overdue' : `Leak ${leak.text.replace('Leak repair due ', 'due ')}`}
+              <Sep />
+              {leakBadge(leak)}
             </span>
           )}
-          {w.state !== 'booked' && <span className="rounded bg-slate-faint px-1 font-medium">{workOrderStateLabels[w.state]}</span>}
-          {b.hoursOverride && <span className="rounded bg-slate-faint px-1">Outside hours</span>}
+          {w.state !== 'booked' && (
+            <span className="rounded bg-slate-faint px-1 font-medium">
+              <Sep />
+              {workOrderStateLabels[w.state]}
+            </span>
+          )}
+          {b.hoursOverride && (
+            <span className="rounded bg-slate-faint px-1">
+              <Sep />Outside hours
+            </span>
+          )}
           {b.fixed && (
             <span className="inline-flex items-center gap-0.5 rounded bg-slate-faint px-1">
               <Lock className="size-3" aria-hidden="true" />
-              Fixed
+              <Sep />Fixed time
             </span>
           )}
         </span>
       )}
+      <span className="sr-only">{chipSuffix(e, today, wide)}</span>
     </button>
   );
 }
@@ -187,7 +221,6 @@ export function TechBoard(p: TechBoardProps) {
   const box = useRef<HTMLDivElement>(null);
   const narrow = useNarrow(box);
   const [dropAt, setDropAt] = useState<string | null>(null);
-  const techById = useMemo(() => new Map(p.techs.map((t) => [t.id, t])), [p.techs]);
 
   // Narrow columns leave room for the days that matter: a day nobody works and nobody is booked on,
   // and a past day nobody was booked on. Future empty days stay wide: work gets dropped there.
@@ -198,6 +231,15 @@ export function TechBoard(p: TechBoardProps) {
     const slim = new Set(p.days.filter((d) => !quiet.has(d) && empty(d) && d < p.today));
     return { quiet, slim };
   }, [p.days, p.techs, p.load, p.cells, p.today]);
+
+  // A job picked from the unplaced work: focus moves to the first technician's cell, ready to choose.
+  const placingId = p.placing?.id;
+  useEffect(() => {
+    if (!placingId) return;
+    const day = narrow ? p.day : p.days.includes(p.today) ? p.today : p.days[0];
+    box.current?.querySelector<HTMLElement>(`[data-nav-head^="0:"][data-day="${day}"]`)?.focus();
+    // Only when a job is picked, not on every render.
+  }, [placingId]);
 
   const accepts = (ev: DragEvent) => ev.dataTransfer.types.includes(DRAG_WORK_ORDER) || ev.dataTransfer.types.includes(DRAG_BOOKING);
   const dropProps = (techId: string, day: string) => {
@@ -253,7 +295,8 @@ export function TechBoard(p: TechBoardProps) {
           type="button"
           data-nav-head={nav}
           data-nav-cell={nav}
-          aria-label={`Book ${placingName} for ${t.name} on ${dayLong(d)}. ${label}`}
+          data-day={d}
+          aria-label={`Book here: ${placingName} for ${t.name} on ${dayLong(d)}. ${label}`}
           onClick={() => p.onPlace(p.placing!.id, t.id, d)}
           className="flex w-full items-center gap-1 rounded border border-dashed border-coolant bg-coolant-tint px-1.5 py-1 text-left text-xs font-medium text-coolant hover:bg-white"
         >
@@ -267,23 +310,13 @@ export function TechBoard(p: TechBoardProps) {
         type="button"
         data-nav-head={nav}
         data-nav-cell={nav}
+        data-day={d}
         aria-label={label}
         aria-describedby="board-head-hint"
         onClick={() => p.onOpenDay(t.id, d)}
-        className="flex w-full rounded px-1 py-1 text-left text-xs hover:bg-slate-faint"
+        className={`flex w-full rounded px-1 py-1 text-left hover:bg-slate-faint ${wide ? 'text-sm' : 'text-xs'}`}
       >
-        {wide ? (
-          <span className="flex w-full flex-col gap-1">
-            <span className="flex items-center gap-2 text-sm font-semibold">
-              <TechSwatch tech={t} />
-              {t.name}
-            </span>
-            <span className="text-sm">{l ? loadWords(l) : '—'}</span>
-            {l && l.capacityMinutes > 0 && <LoadBar l={l} />}
-          </span>
-        ) : (
-          <LoadLine l={l} />
-        )}
+        <LoadLine l={l} wide={wide} />
       </button>
     );
   };
@@ -321,14 +354,17 @@ export function TechBoard(p: TechBoardProps) {
                 key={d}
                 type="button"
                 aria-pressed={d === day}
-                aria-label={`${dayLong(d)}${d === p.today ? ', today' : ''}${over ? ', a technician is over capacity' : ''}`}
                 onClick={() => p.onPickDay(d)}
                 className={`flex min-h-touch flex-col items-center justify-center rounded-md border text-xs leading-tight ${d === day ? 'border-ink bg-ink text-white' : 'border-slate-line bg-white'} ${d === p.today && d !== day ? 'border-coolant text-coolant' : ''}`}
               >
-                <span>{weekdayName(d)}</span>
+                {/* Named by what it shows ("Wed 2") and, for screen readers, the month and what matters. */}
+                <span>{weekdayName(d)}</span>{' '}
                 <span className="flex items-center gap-0.5 font-semibold tabular">
                   {Number(d.slice(8))}
                   {over && <AlertTriangle className={`size-3 ${d === day ? 'text-white' : 'text-alarm'}`} aria-hidden="true" />}
+                </span>
+                <span className="sr-only">
+                  {` ${monthName(d)}${d === p.today ? ', today' : ''}${over ? ', a technician is over capacity' : ''}`}
                 </span>
               </button>
             );
@@ -351,6 +387,10 @@ export function TechBoard(p: TechBoardProps) {
             const entries = p.cells.get(cellKey(t.id, day)) ?? [];
             return (
               <li key={t.id} className="rounded-md border border-slate-line p-2" data-testid={`board-${t.id}-${day}`} {...dropProps(t.id, day)}>
+                <h4 className="flex items-center gap-2 px-1 text-sm font-semibold">
+                  <TechSwatch tech={t} />
+                  {t.name}
+                </h4>
                 {head(t, day, r, c, entries.length, true)}
                 <CellList entries={entries} tech={t} today={p.today} draggable={false} wide nav={`${r}:${c}`} onOpen={p.onOpen} />
               </li>
@@ -406,7 +446,8 @@ export function TechBoard(p: TechBoardProps) {
                     <span className="min-w-0">
                       <span className="block leading-snug">{t.name}</span>
                       {p.load && (
-                        <span className="block text-xs font-normal text-slate tabular" title="Booked of working hours this week">
+                        // The week's total at a glance; kept out of the row's spoken name, which every cell repeats.
+                        <span aria-hidden="true" className="block text-xs font-normal text-slate tabular" title="Booked of working hours this week">
                           {tightMinutes(booked)} / {tightMinutes(capacity)} week
                         </span>
                       )}
@@ -491,7 +532,7 @@ function CellList({
 }) {
   if (!entries.length) return null;
   return (
-    <ul className="mt-1 flex flex-col gap-1">
+    <ul className={`mt-1 grid gap-1 ${wide ? 'sm:grid-cols-2' : ''}`}>
       {entries.map((e) => (
         <li key={e.booking.id}>
           <Chip e={e} tech={tech} today={today} draggable={draggable} wide={wide} nav={nav} onOpen={onOpen} />

@@ -47,6 +47,8 @@ export function dayShort(day: string): string {
   const p = parts(day);
   return `${weekdayShort[p.wd]} ${p.d} ${monthShort[p.m]}`;
 }
+/** "December". */
+export const monthName = (day: string) => monthLong[parts(day).m]!;
 /** "Tue". */
 export const weekdayName = (day: string) => weekdayShort[parts(day).wd]!;
 

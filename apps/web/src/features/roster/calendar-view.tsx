@@ -105,6 +105,8 @@ export default function CalendarView({ view, date, timeZone: tz, today, bookings
     <div className="roster-calendar coilpath-calendar overflow-x-auto">
       <div className={type === 'timeGridDay' ? '' : 'min-w-[640px]'}>
         <FullCalendar
+          // FullCalendar keeps a stacking limit once set; a fresh calendar when it changes.
+          key={crowded ? 'stacked' : 'every-event'}
           ref={cal}
           plugins={[timeGridPlugin, dayGridPlugin, interactionPlugin]}
           initialView={type}

@@ -113,16 +113,22 @@ export default function RosterPage() {
     if (view !== 'board') setPlacing(null);
   }, [view]);
 
-  /** Saves new times (a drag on the calendar or the board); a refusal reverts and says why. */
-  const saveTimes = (b: Booking, next: { techId?: string; startAt: string; endAt: string }, verb: string, revert?: () => void) => {
+  /**
+   * Saves new times (a drag on the calendar or the board); a refusal reverts and says why. A move on
+   * the board keeps the local start time, so a refusal there (overlap, hours…) opens the booking with
+   * the attempted technician and day to pick another time.
+   */
+  const saveTimes = (b: Booking, next: { techId?: string; startAt: string; endAt: string }, verb: string, opts: { revert?: () => void; adjustOnRefusal?: boolean } = {}) => {
     update.mutate(
       { id: b.id, version: b.version, ...next },
       {
         onSuccess: (nb) => notify(`${verb}: ${bookingSummary(nb, techById.get(nb.techId), tz)}.`),
         onError: (e) => {
-          revert?.();
+          opts.revert?.();
+          const attempt = { techId: next.techId ?? b.techId, startAt: next.startAt, endAt: next.endAt };
           if (isStale(e)) notify('Moved by someone else. The Roster now shows this booking as it is; make your change again if it is still needed.', 'alarm');
-          else if (isOutsideHours(e)) setEdit({ booking: b, attempt: { techId: next.techId ?? b.techId, startAt: next.startAt, endAt: next.endAt }, error: errorMessage(e), outsideHours: true });
+          else if (isOutsideHours(e)) setEdit({ booking: b, attempt, error: errorMessage(e), outsideHours: true });
+          else if (opts.adjustOnRefusal) setEdit({ booking: b, attempt, error: errorMessage(e) });
           else notify(errorMessage(e), 'alarm');
         },
       },
@@ -135,7 +141,7 @@ export default function RosterPage() {
     if (techId === b.techId && day === start.date) return;
     const startAt = localToInstant(day, start.time, tz);
     const endAt = new Date(Date.parse(startAt) + (Date.parse(b.endAt) - Date.parse(b.startAt))).toISOString();
-    saveTimes(b, { techId, startAt, endAt }, techId === b.techId ? 'Moved' : 'Reassigned');
+    saveTimes(b, { techId, startAt, endAt }, techId === b.techId ? 'Moved' : 'Reassigned', { adjustOnRefusal: true });
   };
 
   /** The booking form for a job on a technician's day (board cell): the server proposes the start. */
@@ -201,6 +207,7 @@ export default function RosterPage() {
     else if (visible.length === 0)
       board = <EmptyState title="Every technician is hidden">Show at least one technician with the buttons above to see their week.</EmptyState>;
     else if (bookingsQ.isPending) board = <LoadingState label="Loading the week’s bookings…" />;
+    else if (!bookingsQ.data) board = null; // the error above says why
     else
       board = (
         <>
@@ -372,7 +379,7 @@ export default function RosterPage() {
                       techById={techById}
                       focusTech={focusTech}
                       onOpen={(b) => setEdit({ booking: b })}
-                      onMove={(kind, b, times, revert) => saveTimes(b, times, kind === 'move' ? 'Moved' : 'Changed', revert)}
+                      onMove={(kind, b, times, revert) => saveTimes(b, times, kind === 'move' ? 'Moved' : 'Changed', { revert })}
                       onDropWork={dropWork}
                     />
                   </Suspense>
