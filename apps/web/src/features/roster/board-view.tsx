@@ -158,7 +158,7 @@ function Chip({
             }
           : undefined
       }
-      className={`block w-full rounded border border-l-[3px] border-slate-line bg-white text-left leading-snug text-ink shadow-xs hover:bg-frost ${wide ? 'px-2 py-1 text-sm' : 'px-1 py-0.5 text-xs'} ${movable ? 'cursor-grab active:cursor-grabbing' : ''} ${w.state === 'closed' || w.state === 'cancelled' ? 'opacity-80' : ''}`}
+      className={`block w-full rounded border border-l-[3px] border-slate-line text-left leading-snug text-ink shadow-xs hover:bg-frost ${wide ? 'px-2 py-1 text-sm' : 'px-1 py-0.5 text-xs'} ${movable ? 'cursor-grab active:cursor-grabbing' : ''} ${w.state === 'closed' || w.state === 'cancelled' ? 'bg-frost' : 'bg-white'}`}
       style={{ borderLeftColor: colourOf(tech) }}
     >
       <span className="block font-semibold tabular">
