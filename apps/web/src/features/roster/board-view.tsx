@@ -289,20 +289,27 @@ export function TechBoard(p: TechBoardProps) {
     const l = p.load?.get(cellKey(t.id, d));
     const label = cellLabel(t.name, d, count, l, p.today);
     const nav = `${r}:${c}`;
-    if (p.placing) {
+    // Placing a job: a "Book here" on every day from today, the load still in view below it.
+    if (p.placing && d >= p.today) {
       return (
-        <button
-          type="button"
-          data-nav-head={nav}
-          data-nav-cell={nav}
-          data-day={d}
-          aria-label={`Book here: ${placingName} for ${t.name} on ${dayLong(d)}. ${label}`}
-          onClick={() => p.onPlace(p.placing!.id, t.id, d)}
-          className="flex w-full items-center gap-1 rounded border border-dashed border-coolant bg-coolant-tint px-1.5 py-1 text-left text-xs font-medium text-coolant hover:bg-white"
-        >
-          <Plus className="size-3.5 shrink-0" aria-hidden="true" />
-          Book here
-        </button>
+        <>
+          <button
+            type="button"
+            data-nav-head={nav}
+            data-nav-cell={nav}
+            data-day={d}
+            aria-label={`Book here: ${placingName} for ${t.name} on ${dayLong(d)}. ${label}`}
+            onClick={() => p.onPlace(p.placing!.id, t.id, d)}
+            className={`flex w-full items-center gap-1 rounded border border-dashed border-coolant bg-coolant-tint px-1.5 py-1 text-left font-medium text-coolant hover:bg-white ${wide ? 'min-h-touch text-sm' : 'text-xs'}`}
+          >
+            <Plus className="size-3.5 shrink-0" aria-hidden="true" />
+            Book here
+          </button>
+          {/* Already part of the button's name. */}
+          <span aria-hidden="true" className={`block px-1 pt-1 ${wide ? 'text-sm' : 'text-xs'}`}>
+            <LoadLine l={l} wide={wide} />
+          </span>
+        </>
       );
     }
     return (
@@ -464,7 +471,7 @@ export function TechBoard(p: TechBoardProps) {
                       {...drop}
                       className={`border-l border-slate-line/70 p-0.5 align-top ${d === p.today ? 'bg-coolant-tint' : ''} ${drop['data-drop-target'] ? 'outline-2 -outline-offset-2 outline-coolant' : ''}`}
                     >
-                      {quiet.has(d) && !p.placing ? (
+                      {quiet.has(d) ? (
                         <QuietHead t={t} d={d} r={r} c={c} label={cellLabel(t.name, d, 0, p.load?.get(cellKey(t.id, d)), p.today)} onOpenDay={p.onOpenDay} />
                       ) : (
                         head(t, d, r, c, entries.length, false)
