@@ -110,33 +110,32 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
             <caption className="text-left text-slate">Last readings per circuit</caption>
             <thead>
               <tr className="text-xs text-slate">
-                <th scope="col" className="pr-2 font-medium">Circuit</th>
-                <th scope="col" className="pr-2 font-medium">Suction</th>
-                <th scope="col" className="pr-2 font-medium">Superheat</th>
-                <th scope="col" className="pr-2 font-medium">Liquid</th>
-                <th scope="col" className="pr-2 font-medium">Subcooling</th>
-                <th scope="col" className="font-medium">Taken</th>
+                <th scope="col" className="pr-3 font-medium">Circuit</th>
+                <th scope="col" className="pr-3 font-medium">Suction, superheat</th>
+                <th scope="col" className="font-medium">Liquid, subcooling</th>
               </tr>
             </thead>
-            <tbody>
-              {b.lastReadings.map((x) => (
-                <tr key={x.id}>
-                  <th scope="row" className="pr-2 font-normal">{x.circuitNumber}</th>
-                  <td className="whitespace-nowrap pr-2">{m(x.suctionPressure, 'pressure', x.units)}</td>
-                  <td className="whitespace-nowrap pr-2">{m(x.superheat, 'temperatureDifference', x.units)}</td>
-                  <td className="whitespace-nowrap pr-2">
-                    {x.liquidPressure === null && x.dischargePressure !== null ? (
-                      <>
-                        {m(x.dischargePressure, 'pressure', x.units)} <span className="text-xs text-slate">(discharge)</span>
-                      </>
-                    ) : (
-                      m(x.liquidPressure, 'pressure', x.units)
-                    )}
-                  </td>
-                  <td className="whitespace-nowrap pr-2">{m(x.subcooling, 'temperatureDifference', x.units)}</td>
-                  <td>{formatInZone(x.takenAt, timeZone, 'd MMM')}</td>
-                </tr>
-              ))}
+            <tbody className="[&_td]:pb-1.5 [&_td]:align-top [&_th]:pb-1.5 [&_th]:align-top">
+              {b.lastReadings.map((x) => {
+                const fromDischarge = x.liquidPressure === null && x.dischargePressure !== null;
+                return (
+                  <tr key={x.id}>
+                    <th scope="row" className="whitespace-nowrap pr-3 font-normal">
+                      {x.circuitNumber}
+                      <span className="block text-xs text-slate">{formatInZone(x.takenAt, timeZone, 'd MMM')}</span>
+                    </th>
+                    <td className="whitespace-nowrap pr-3">
+                      {m(x.suctionPressure, 'pressure', x.units)}
+                      <span className="block text-xs">superheat {m(x.superheat, 'temperatureDifference', x.units)}</span>
+                    </td>
+                    <td className="whitespace-nowrap">
+                      {m(fromDischarge ? x.dischargePressure : x.liquidPressure, 'pressure', x.units)}
+                      {fromDischarge && <span className="text-xs text-slate"> (discharge)</span>}
+                      <span className="block text-xs">subcooling {m(x.subcooling, 'temperatureDifference', x.units)}</span>
+                    </td>
+                  </tr>
+                );
+              })}
             </tbody>
           </table>
         </div>
