@@ -128,6 +128,7 @@ export async function run(ctx: JourneyContext) {
   // ── Drag it onto a technician's day on the board ──
   // The demo week is well booked, so the dispatcher tries the coming days until a technician has a
   // slot: Monday to Wednesday only, so the moves below have two later working days in the same week.
+  // From Wednesday on that is next week (the rest of the demo's own week is full).
   const workdays = Array.from({ length: 14 }, (_, i) => addDays(today, i + 1)).filter((d) => [1, 2, 3].includes(weekdayOf(d)));
   const firstDay = workdays[0]!;
   const cellOf = (techId: string, d: string) => page.getByTestId(`board-${techId}-${d}`);
