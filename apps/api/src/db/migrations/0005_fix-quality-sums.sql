@@ -76,7 +76,7 @@ CREATE VIEW fix_quality_jobs AS
   WHERE f.first_closed_at IS NOT NULL;
 --> statement-breakpoint
 CREATE VIEW fix_quality_job_dims AS
-  SELECT j.job_id, j.branch_id, j.month, d.dim, d.tech_id, d.make, d.model, d.cause_code, d.origin,
+  SELECT j.job_id, j.branch_id, j.first_closed_at, j.month, d.dim, d.tech_id, d.make, d.model, d.cause_code, d.origin,
     j.eligible, j.first_time_fixed, j.resolved_first_visits, j.callbacks, j.return_visits, j.resolved_jobs, j.resolve_us
   FROM fix_quality_jobs j
   CROSS JOIN LATERAL (VALUES

@@ -2,10 +2,10 @@
  * Fix Quality: the owner's report of first-time fix and callbacks, the factory-defect review with its
  * warranty claims, and model alerts with their inspection work orders.
  *
- * The report counts in the database: one statement finds each job's first visit, follow-ups and last visit,
- * flags each job with `fixQuality`'s definitions (@coilpath/calc) and sums the flags per group with
- * GROUPING SETS, so a year of a large contractor answers a few thousand rows instead of every job; the
- * rates come from `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
+ * The report counts in the database: each job's counts with `fixQuality`'s definitions (@coilpath/calc) are
+ * kept summed per branch, month and group by triggers (`fix_quality_sums`), and one statement adds up the
+ * months of the period and the jobs of its remaining days, answering a few hundred rows; the rates come from
+ * `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
  */
 import { eq, inArray, sql, type SQL } from 'drizzle-orm';
 import { fixQualityFromCounts } from '@coilpath/calc';
@@ -119,10 +119,11 @@ export function splitByMonths(start: string, end: string): { months: [string, st
  * technician, month, model, cause, origin) group — a few hundred rows.
  *
  * Whole calendar months (UTC) of the period come from `fix_quality_sums`: per branch and month, the sums of
- * every job per technician, per make and model, per cause and per origin, kept by triggers (migration 0005)
- * from `service_call_facts` (one row per service call, migration 0002). The days before and after the whole
- * months are counted from `service_call_facts` with the same database function (`fix_quality_sums_of`), so
- * a year reads a few thousand rows of sums and a month or two of jobs instead of two years of jobs.
+ * its jobs per technician, per make and model, per cause and per origin, kept by triggers (migration 0005).
+ * The days before and after the whole months are counted from the view `fix_quality_jobs` (one row per job
+ * of `service_call_facts` with its counts: the definition the sums are kept with), so a year reads about five
+ * thousand rows of sums and the jobs of a month or two instead of two years of jobs. The previous period
+ * needs its total only: one dimension ('origin') of its sums.
  *
  * A job is a service call whose first visit (its earliest closed visit) closed in [start, end). Per job, with
  * its own branch's callback window W (whole 24-hour days after the first visit closed, inclusive; a follow-up
@@ -151,7 +152,7 @@ export async function reportGroups(db: Tx, range: { start: string; curStart: str
         edges.map(([a, b]) => sql`(j.first_closed_at >= ${a}::timestamptz AND j.first_closed_at < ${b}::timestamptz)`),
         sql` OR `,
       );
-      // The same sums as the table's, counted from the jobs (fix_quality_jobs: one definition, migration 0005).
+      // The same rows as the table's, counted from the jobs.
       out.push(sql`SELECT ${flag} AS cur, branch_id, month,
           ${onlyTotals ? sql`'origin'` : sql`CASE GROUPING(tech_id, make, model, cause_code, origin) WHEN 15 THEN 'technician' WHEN 19 THEN 'model' WHEN 29 THEN 'cause' ELSE 'origin' END`} AS dim,
           ${onlyTotals ? sql`NULL::uuid AS tech_id, NULL::text AS make, NULL::text AS model, NULL::text AS cause_code` : sql`tech_id, make, model, cause_code`}, origin,
@@ -169,7 +170,7 @@ export async function reportGroups(db: Tx, range: { start: string; curStart: str
       sum(resolved_first_visits)::int AS resolved_first_visits, sum(callbacks)::int AS callbacks, sum(return_visits)::int AS return_visits,
       sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::float8 / 86400000000 AS days`;
   const g = (bits: number) => sql.raw(String(bits));
-  // Each job is counted once in every dimension: the totals per branch and month add up one of them.
+  // Each job is counted once in every dimension: the totals, per branch and per month add up one of them.
   return rows<CountRow>(
     db,
     sql`
