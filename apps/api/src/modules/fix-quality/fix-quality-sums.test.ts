@@ -173,6 +173,27 @@ describe('fix_quality_sums', () => {
     const rows = await expectSumsAgree();
     expect(rowOf(rows, a.id, '2026-04-01', 'origin')[0]).toMatchObject({ jobs: 2, firstTimeFixed: 2 });
   });
+
+  it('counts every one of several transactions at once on the same sums, in either order of months', async () => {
+    const a = await makeBranch(db);
+    const t = await makeUser(db, 'technician', a.id);
+    const { site, unit } = await makeSiteWithUnit(db, a.id);
+    // On PostgreSQL these run side by side; each touches the May and June rows, half of them June first.
+    await Promise.all(
+      Array.from({ length: 6 }, (_, i) =>
+        db.transaction(async (tx) => {
+          const months = i % 2 ? ['2026-06-10T12:00:00Z', '2026-05-10T12:00:00Z'] : ['2026-05-10T12:00:00Z', '2026-06-10T12:00:00Z'];
+          for (const closed of months) {
+            const job = await makeWorkOrder(tx as unknown as Db, { branchId: a.id, siteId: site.id, unitId: unit.id, kind: 'service_call', createdAt: new Date('2026-05-01T08:00:00Z') });
+            await tx.insert(visits).values({ branchId: a.id, workOrderId: job.id, techId: t.id, closedAt: new Date(closed), outcome: 'resolved' });
+          }
+        }),
+      ),
+    );
+    const rows = await expectSumsAgree();
+    expect(rowOf(rows, a.id, '2026-05-01', 'technician', { techId: t.id })[0]).toMatchObject({ jobs: 6 });
+    expect(rowOf(rows, a.id, '2026-06-01', 'technician', { techId: t.id })[0]).toMatchObject({ jobs: 6 });
+  });
 });
 
 // ---------------------------------------------------------------------------------------------
