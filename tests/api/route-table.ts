@@ -652,7 +652,7 @@ export const routeTable: RouteRow[] = [
       const [c] = await circuitsOf(f, side.unit.id);
       return {
         path: `/api/visits/${side.booked.visit.id}/readings`,
-        body: { readings: [{ circuitId: c!.id, suctionPressure: 118, liquidPressure: 340, suctionLineTemp: 52, liquidLineTemp: 95 }] },
+        body: { units: { pressure: 'psig', temperature: 'F' }, readings: [{ circuitId: c!.id, suctionPressure: 118, liquidPressure: 340, suctionLineTemp: 52, liquidLineTemp: 95 }] },
       };
     },
   },

@@ -12,3 +12,4 @@ export * from './schedule';
 export * from './even-out';
 export * from './agreements';
 export * from './dates';
+export * from './units';

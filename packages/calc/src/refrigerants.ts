@@ -108,7 +108,7 @@ export function assertRefrigerant(refrigerant: unknown): RefrigerantId {
 export const ATMOSPHERE_PSIA = 14.696;
 /** Standard atmosphere in kPa used for gauge pressures. */
 export const ATMOSPHERE_KPA = 101.325;
-/** 1 psi in kPa (exact from the pound-force and inch definitions). */
+/** 1 psi in kPa, exact from 1 lbf = 4.448 221 615 260 5 N and 1 in = 0.0254 m (NIST SP 811, B.8: 6.894 757). */
 export const KPA_PER_PSI = 6.894757293168361;
 
 function toPsia(value: number, unit: PressureUnit): number {

@@ -3,6 +3,7 @@ export * from './common';
 export * from './auth';
 export * from './sites';
 export * from './team';
+export * from './measure';
 export * from './visits';
 export * from './day';
 export * from './work-orders';

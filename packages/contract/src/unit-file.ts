@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { idSchema, limits } from './common';
+import { pressureUnitSchema, temperatureUnitSchema, unitSystemSchema } from './measure';
 import {
   alarmSourceSchema,
   applianceCategorySchema,
@@ -56,6 +57,8 @@ export const unitFileReadingSchema = z.object({
   liquidSaturationTemp: n,
   superheat: n,
   subcooling: n,
+  /** The units of the values above (the unit branch's system; see ReadingDto). */
+  units: z.object({ pressure: pressureUnitSchema, temperature: temperatureUnitSchema }),
 });
 export type UnitFileReading = z.infer<typeof unitFileReadingSchema>;
 
@@ -110,7 +113,7 @@ export const unitFileSchema = z.object({
     accessNotes: z.string().nullable(),
     customerName: z.string(),
   }),
-  branch: z.object({ id: idSchema, name: z.string(), timeZone: z.string(), unitSystem: z.enum(['imperial', 'si']) }),
+  branch: z.object({ id: idSchema, name: z.string(), timeZone: z.string(), unitSystem: unitSystemSchema }),
   nameplate: unitFileAttachmentSchema.nullable(),
   circuits: z.array(z.object({ id: idSchema, number: z.number().int(), compressorCount: z.number().int(), chargeLb: n })),
   agreements: z.array(

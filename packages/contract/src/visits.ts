@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { idSchema, isoDateSchema, limits } from './common';
+import { pressureSymbols, readingLimits, readingUnitsSchema, temperatureSymbols, unitSystemOf, type ReadingUnits, type UnitSystem } from './measure';
 import {
   attachmentKindSchema,
   causeCodeSchema,
@@ -41,33 +42,76 @@ export const visitStateChangeSchema = z.strictObject({
 });
 export type VisitStateChange = z.infer<typeof visitStateChangeSchema>;
 
-/** A gauge or controller pressure, psig. Vacuum down to −14.7 psig is allowed; 1,000 psig is past any field gauge. */
-const pressure = z.number({ message: 'Enter a number' }).min(-14.7, 'Below a full vacuum').max(1000, 'Above 1,000 psig');
-/** A line or air temperature, °F. */
-const temperature = z.number({ message: 'Enter a number' }).min(-100, 'Below −100 °F').max(400, 'Above 400 °F');
+/** A gauge, controller or line value as typed; its range depends on the body's units (below). */
+const value = z.number({ message: 'Enter a number' });
 
 /** One circuit's readings: reference-gauge values, and the controller's value beside each pressure. */
 export const readingInputSchema = z.strictObject({
   circuitId: idSchema,
-  suctionPressure: pressure.nullable().optional(),
-  liquidPressure: pressure.nullable().optional(),
-  dischargePressure: pressure.nullable().optional(),
-  suctionLineTemp: temperature.nullable().optional(),
-  liquidLineTemp: temperature.nullable().optional(),
-  outdoorTemp: temperature.nullable().optional(),
-  suctionPressureController: pressure.nullable().optional(),
-  liquidPressureController: pressure.nullable().optional(),
-  dischargePressureController: pressure.nullable().optional(),
+  suctionPressure: value.nullable().optional(),
+  liquidPressure: value.nullable().optional(),
+  dischargePressure: value.nullable().optional(),
+  suctionLineTemp: value.nullable().optional(),
+  liquidLineTemp: value.nullable().optional(),
+  outdoorTemp: value.nullable().optional(),
+  suctionPressureController: value.nullable().optional(),
+  liquidPressureController: value.nullable().optional(),
+  dischargePressureController: value.nullable().optional(),
   notes: z.string().trim().max(limits.longText).nullable().optional(),
 });
 export type ReadingInput = z.infer<typeof readingInputSchema>;
 
-/** POST /api/visits/:id/readings — one entry per circuit; saving a circuit again replaces this visit's earlier entry. */
+/** The pressure fields of a reading (gauge pressures, psig or kPa(g)). */
+export const readingPressureFields = [
+  'suctionPressure',
+  'liquidPressure',
+  'dischargePressure',
+  'suctionPressureController',
+  'liquidPressureController',
+  'dischargePressureController',
+] as const;
+/** The temperature fields of a reading (°F or °C). */
+export const readingTemperatureFields = ['suctionLineTemp', 'liquidLineTemp', 'outdoorTemp'] as const;
+export type ReadingPressureField = (typeof readingPressureFields)[number];
+export type ReadingTemperatureField = (typeof readingTemperatureFields)[number];
+
+const withThousands = (n: number) => n.toLocaleString('en-US');
+
+/**
+ * POST /api/visits/:id/readings — one entry per circuit; saving a circuit again replaces this visit's
+ * earlier entry. `units` states what the values are in (psig with F, or kPag with C; never mixed); the
+ * server converts to its stored psig/°F. Each value is checked against the range in those units.
+ */
 export const saveReadingsSchema = z
-  .strictObject({ readings: z.array(readingInputSchema).min(1, 'Enter readings for at least one circuit').max(20) })
-  .refine((v) => new Set(v.readings.map((r) => r.circuitId)).size === v.readings.length, {
-    message: 'Each circuit may appear once',
-    path: ['readings'],
+  .strictObject({
+    units: readingUnitsSchema,
+    readings: z.array(readingInputSchema).min(1, 'Enter readings for at least one circuit').max(20),
+  })
+  .superRefine((v, ctx) => {
+    // Zod runs this only on a body whose shape passed; the guards keep it safe regardless.
+    if (!v.units || !Array.isArray(v.readings)) return;
+    if (new Set(v.readings.map((r) => r.circuitId)).size !== v.readings.length) {
+      ctx.addIssue({ code: 'custom', message: 'Each circuit may appear once', path: ['readings'] });
+    }
+    const system = unitSystemOf(v.units);
+    if (!system) return; // refused by readingUnitsSchema
+    const lim = readingLimits[system];
+    const p = pressureSymbols[v.units.pressure];
+    const t = temperatureSymbols[v.units.temperature];
+    v.readings.forEach((r, i) => {
+      for (const f of readingPressureFields) {
+        const x = r[f];
+        if (x === null || x === undefined) continue;
+        if (x < lim.pressure.min) ctx.addIssue({ code: 'custom', message: `Below a full vacuum (${withThousands(lim.pressure.min)} ${p})`, path: ['readings', i, f] });
+        else if (x > lim.pressure.max) ctx.addIssue({ code: 'custom', message: `Above ${withThousands(lim.pressure.max)} ${p}`, path: ['readings', i, f] });
+      }
+      for (const f of readingTemperatureFields) {
+        const x = r[f];
+        if (x === null || x === undefined) continue;
+        if (x < lim.temperature.min) ctx.addIssue({ code: 'custom', message: `Below ${withThousands(lim.temperature.min).replace('-', '−')} ${t}`, path: ['readings', i, f] });
+        else if (x > lim.temperature.max) ctx.addIssue({ code: 'custom', message: `Above ${withThousands(lim.temperature.max)} ${t}`, path: ['readings', i, f] });
+      }
+    });
   });
 export type SaveReadings = z.infer<typeof saveReadingsSchema>;
 
@@ -126,6 +170,11 @@ export const attachmentUploadFieldsSchema = z.object({
 
 // ---- Response shapes -------------------------------------------------------------------------
 
+/**
+ * A saved reading, in the units it states (the branch's system): pressures in `units.pressure`,
+ * line and saturation temperatures in `units.temperature`, superheat and subcooling as temperature
+ * differences (°F, or K for °C). Gauge values are given to 0.01, computed ones to 0.1.
+ */
 export interface ReadingDto {
   id: string;
   visitId: string;
@@ -148,6 +197,7 @@ export interface ReadingDto {
   superheat: number | null;
   subcooling: number | null;
   notes: string | null;
+  units: ReadingUnits;
 }
 
 export interface FindingDto {
@@ -284,7 +334,16 @@ export interface VisitDetail {
     contactName: string | null;
     contactPhone: string | null;
   };
-  branch: { id: string; name: string; timeZone: string; sensorTolerancePercent: number; sensorToleranceAbsolute: number };
+  branch: {
+    id: string;
+    name: string;
+    timeZone: string;
+    /** The system the Visit screen reads and shows readings in. */
+    unitSystem: UnitSystem;
+    sensorTolerancePercent: number;
+    /** The branch setting, in psi (a pressure difference) whatever the unit system. */
+    sensorToleranceAbsolute: number;
+  };
   units: VisitUnitDto[];
   readings: ReadingDto[];
   findings: FindingDto[];
@@ -340,8 +399,10 @@ export interface UnitBriefing {
     notes: string | null;
     findings: FindingDto[];
   } | null;
-  /** The latest reading of each circuit. */
+  /** The latest reading of each circuit, in the unit branch's system. */
   lastReadings: ReadingDto[];
+  /** The unit branch's reading units (also stated on each reading). */
+  units: ReadingUnits;
   openLeakCase: LeakCaseDto | null;
   refrigerantThisYear: {
     year: string;

@@ -75,8 +75,12 @@ export async function run(ctx: JourneyContext) {
 
   // ── Ask for a suggestion ──
   // The demo week is well booked, so the dispatcher tries the coming days until a technician has a
-  // slot: weekdays Mon–Thu only, so the drag below has a later working day in the same week.
+  // slot: weekdays Mon–Thu only, so the drag below has a later working day in the same week. From
+  // Wednesday on, the rest of the demo's week is full (at most Friday would be left to drag to), so the
+  // search starts on the next Monday.
   const today = dateInZone(new Date(), BRANCH_ZONE);
+  const todayWeekday = weekdayOf(today);
+  const firstOffset = todayWeekday === 1 || todayWeekday === 2 ? 1 : (8 - todayWeekday) % 7 || 7;
   await item.getByRole('button', { name: `Book WO-${number}…`, exact: true }).click();
   const dialog = page.getByRole('dialog', { name: new RegExp(`^Book WO-${number}\\b`) });
   await dialog.waitFor();
@@ -84,7 +88,7 @@ export async function run(ctx: JourneyContext) {
   const proposal = dialog.getByRole('button', { name: proposalName }).first();
   let day = today;
   const tried: string[] = [];
-  for (let i = 1; i <= 14; i++) {
+  for (let i = firstOffset; i < firstOffset + 14; i++) {
     day = addDays(today, i);
     if (![1, 2, 3, 4].includes(weekdayOf(day))) continue;
     await dialog.getByLabel('Date').fill(day);

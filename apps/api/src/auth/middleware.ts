@@ -1,5 +1,5 @@
 import type { NextFunction, Request, Response } from 'express';
-import { eq } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import type { Role, SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../context';
 import { users } from '../db/schema';
@@ -8,24 +8,27 @@ import { SESSION_COOKIE, verifySession } from './session';
 
 /** Reads the session cookie; sets `req.user` when it is valid and the user is active and not signed out. */
 export function authenticate(ctx: AppContext) {
+  // Asked on every request: built once (a named prepared statement on PostgreSQL).
+  const sessionUser = ctx.db
+    .select({
+      id: users.id,
+      name: users.name,
+      email: users.email,
+      role: users.role,
+      branchId: users.branchId,
+      active: users.active,
+      sessionVersion: users.sessionVersion,
+    })
+    .from(users)
+    .where(eq(users.id, sql.placeholder('id')))
+    .limit(1)
+    .prepare('coilpath_session_user');
   return async (req: Request, _res: Response, next: NextFunction) => {
     const token: unknown = req.cookies?.[SESSION_COOKIE];
     if (typeof token === 'string' && token) {
       const claims = await verifySession(ctx.secret, token, ctx.clock.now());
       if (claims) {
-        const [u] = await ctx.db
-          .select({
-            id: users.id,
-            name: users.name,
-            email: users.email,
-            role: users.role,
-            branchId: users.branchId,
-            active: users.active,
-            sessionVersion: users.sessionVersion,
-          })
-          .from(users)
-          .where(eq(users.id, claims.sub))
-          .limit(1);
+        const [u] = await sessionUser.execute({ id: claims.sub });
         if (u && u.active && u.sessionVersion === claims.sv) {
           req.user = { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId };
         }

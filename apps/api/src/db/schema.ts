@@ -410,7 +410,7 @@ export const readings = pgTable('readings', {
   circuitId: uuid().notNull().references(() => circuits.id),
   takenAt: instant().notNull(),
   refrigerant: text().notNull(),
-  /** Reference-gauge values, psig / °F. */
+  /** Reference-gauge values, psig / °F whatever the branch's unit system (converted at the API's edges; DEVELOPERS.md). */
   suctionPressure: doublePrecision(),
   liquidPressure: doublePrecision(),
   dischargePressure: doublePrecision(),
@@ -421,7 +421,7 @@ export const readings = pgTable('readings', {
   suctionPressureController: doublePrecision(),
   liquidPressureController: doublePrecision(),
   dischargePressureController: doublePrecision(),
-  /** Computed with @coilpath/calc when saved. */
+  /** Computed with @coilpath/calc when saved: °F, superheat and subcooling as °F differences, full precision. */
   suctionSaturationTemp: doublePrecision(),
   liquidSaturationTemp: doublePrecision(),
   superheat: doublePrecision(),

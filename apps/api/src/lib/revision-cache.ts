@@ -8,7 +8,7 @@
  * newer than what it saw, and every process on the same database sees every other's changes: the cache is
  * per process but never stale.
  */
-import { eq } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { rosterRevisions } from '../db/schema';
 import { prepareJson, type PreparedJson } from './prepared-json';
@@ -25,8 +25,20 @@ export interface RevisionCache {
   readonly size: number;
 }
 
+/** The revision lookup, built once per database (it runs before every cached read). */
+const revisionQueries = new WeakMap<Db, ReturnType<typeof revisionQuery>>();
+const revisionQuery = (db: Db) =>
+  db
+    .select({ revision: rosterRevisions.revision })
+    .from(rosterRevisions)
+    .where(eq(rosterRevisions.branchId, sql.placeholder('branchId')))
+    .limit(1)
+    .prepare('coilpath_roster_revision');
+
 export async function rosterRevision(db: Db, branchId: string): Promise<number> {
-  const [row] = await db.select({ revision: rosterRevisions.revision }).from(rosterRevisions).where(eq(rosterRevisions.branchId, branchId)).limit(1);
+  let query = revisionQueries.get(db);
+  if (!query) revisionQueries.set(db, (query = revisionQuery(db)));
+  const [row] = await query.execute({ branchId });
   return row?.revision ?? 0;
 }
 

@@ -224,7 +224,7 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
       clearedAt: iso(a.clearedAt),
       source: a.source,
     })),
-    readings: readingRows.reverse().map(({ r, circuitNumber }) => readingDto(r, circuitNumber)),
+    readings: readingRows.reverse().map(({ r, circuitNumber }) => readingDto(r, circuitNumber, branch.unitSystem)),
     findings: findingRows.map(({ f, workOrderId, workOrderNumber, techName }) => ({
       id: f.id,
       visitId: f.visitId,

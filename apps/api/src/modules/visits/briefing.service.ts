@@ -6,7 +6,7 @@
 import { and, asc, count, desc, eq, gte, inArray, isNotNull, isNull, max, or, sql, sum } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
-import type { SessionUser, UnitBriefing } from '@coilpath/contract';
+import { readingUnitsBySystem, type SessionUser, type UnitBriefing } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { alarms, attachments, branches, circuits, findings, leakCases, readings, refrigerantEvents, sites, units, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
@@ -25,6 +25,7 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
       timeZone: branches.timeZone,
       repeatAlarmCount: branches.repeatAlarmCount,
       repeatAlarmDays: branches.repeatAlarmDays,
+      unitSystem: branches.unitSystem,
       assigned:
         user.role === 'technician' ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}` : sql<boolean>`true`,
     })
@@ -116,7 +117,8 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
           findings: lastFindings.map(findingDto),
         }
       : null,
-    lastReadings: readingRows.map((x) => readingDto(x.r, x.number)).sort((a, b) => a.circuitNumber - b.circuitNumber),
+    lastReadings: readingRows.map((x) => readingDto(x.r, x.number, row.unitSystem)).sort((a, b) => a.circuitNumber - b.circuitNumber),
+    units: readingUnitsBySystem[row.unitSystem],
     openLeakCase: caseRows[0] ? leakCaseDto(caseRows[0]) : null,
     refrigerantThisYear: {
       year,

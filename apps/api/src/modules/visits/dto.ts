@@ -1,9 +1,30 @@
-import type { AttachmentDto, FindingDto, LeakCaseDto, ReadingDto, RefrigerantEventDto } from '@coilpath/contract';
+import { convertPressure, convertTemperature, convertTemperatureDifference } from '@coilpath/calc';
+import { readingUnitsBySystem, type AttachmentDto, type FindingDto, type LeakCaseDto, type ReadingDto, type RefrigerantEventDto, type UnitSystem } from '@coilpath/contract';
 import type { attachments, findings, leakCases, readings, refrigerantEvents } from '../../db/schema';
+import { STORED_UNITS } from './reading-calc';
 
 const iso = (d: Date) => d.toISOString();
 
-export function readingDto(r: typeof readings.$inferSelect, circuitNumber: number): ReadingDto {
+const round = (digits: number) => (n: number | null) => {
+  if (n === null) return null;
+  const f = 10 ** digits;
+  const r = Math.round(n * f) / f;
+  return Object.is(r, -0) ? 0 : r;
+};
+/** Gauge and line values: 0.01 removes conversion noise (765 kPa(g) typed comes back 765) and nothing a gauge shows. */
+const gauge = round(2);
+/** Computed values (saturation, superheat, subcooling): 0.1, as the screens show them. */
+const computed = round(1);
+
+/**
+ * A stored reading (psig/°F) as the API answers it: in the branch's unit system, with the units stated.
+ * Superheat and subcooling are temperature differences (× 5/9 to kelvin, no offset).
+ */
+export function readingDto(r: typeof readings.$inferSelect, circuitNumber: number, system: UnitSystem): ReadingDto {
+  const units = readingUnitsBySystem[system];
+  const p = (x: number | null) => gauge(x === null ? null : convertPressure(x, STORED_UNITS.pressure, units.pressure));
+  const t = (x: number | null, round = gauge) => round(x === null ? null : convertTemperature(x, STORED_UNITS.temperature, units.temperature));
+  const dt = (x: number | null) => computed(x === null ? null : convertTemperatureDifference(x, STORED_UNITS.temperature, units.temperature));
   return {
     id: r.id,
     visitId: r.visitId,
@@ -12,20 +33,21 @@ export function readingDto(r: typeof readings.$inferSelect, circuitNumber: numbe
     circuitNumber,
     takenAt: iso(r.takenAt),
     refrigerant: r.refrigerant,
-    suctionPressure: r.suctionPressure,
-    liquidPressure: r.liquidPressure,
-    dischargePressure: r.dischargePressure,
-    suctionLineTemp: r.suctionLineTemp,
-    liquidLineTemp: r.liquidLineTemp,
-    outdoorTemp: r.outdoorTemp,
-    suctionPressureController: r.suctionPressureController,
-    liquidPressureController: r.liquidPressureController,
-    dischargePressureController: r.dischargePressureController,
-    suctionSaturationTemp: r.suctionSaturationTemp,
-    liquidSaturationTemp: r.liquidSaturationTemp,
-    superheat: r.superheat,
-    subcooling: r.subcooling,
+    suctionPressure: p(r.suctionPressure),
+    liquidPressure: p(r.liquidPressure),
+    dischargePressure: p(r.dischargePressure),
+    suctionLineTemp: t(r.suctionLineTemp),
+    liquidLineTemp: t(r.liquidLineTemp),
+    outdoorTemp: t(r.outdoorTemp),
+    suctionPressureController: p(r.suctionPressureController),
+    liquidPressureController: p(r.liquidPressureController),
+    dischargePressureController: p(r.dischargePressureController),
+    suctionSaturationTemp: t(r.suctionSaturationTemp, computed),
+    liquidSaturationTemp: t(r.liquidSaturationTemp, computed),
+    superheat: dt(r.superheat),
+    subcooling: dt(r.subcooling),
     notes: r.notes,
+    units,
   };
 }
 

@@ -1,4 +1,8 @@
-import { subcooling, superheat } from '@coilpath/calc';
+import { convertPressure, convertTemperature, subcooling, superheat } from '@coilpath/calc';
+import { readingPressureFields, readingTemperatureFields, type ReadingInput, type ReadingUnits } from '@coilpath/contract';
+
+/** The stored (canonical) units of `readings`: psig and °F; superheat and subcooling in °F (a difference). */
+export const STORED_UNITS: ReadingUnits = { pressure: 'psig', temperature: 'F' };
 
 export interface ReadingValues {
   suctionPressure?: number | null | undefined;
@@ -15,12 +19,34 @@ export interface ReadingComputed {
   subcooling: number | null;
 }
 
-const round1 = (n: number) => Math.round(n * 10) / 10;
+type Measured = Pick<ReadingInput, (typeof readingPressureFields)[number] | (typeof readingTemperatureFields)[number]>;
+
 const given = (n: number | null | undefined): n is number => typeof n === 'number' && Number.isFinite(n);
 
 /**
+ * A reading's gauge and line values converted from the units the body stated to the stored psig/°F
+ * (@coilpath/calc, exact factors, not rounded: a value typed in kPa(g) comes back as typed).
+ */
+export function toStoredUnits(r: Measured, from: ReadingUnits): Required<{ [K in keyof Measured]: number | null }> {
+  const p = (x: number | null | undefined) => (given(x) ? convertPressure(x, from.pressure, STORED_UNITS.pressure) : null);
+  const t = (x: number | null | undefined) => (given(x) ? convertTemperature(x, from.temperature, STORED_UNITS.temperature) : null);
+  return {
+    suctionPressure: p(r.suctionPressure),
+    liquidPressure: p(r.liquidPressure),
+    dischargePressure: p(r.dischargePressure),
+    suctionPressureController: p(r.suctionPressureController),
+    liquidPressureController: p(r.liquidPressureController),
+    dischargePressureController: p(r.dischargePressureController),
+    suctionLineTemp: t(r.suctionLineTemp),
+    liquidLineTemp: t(r.liquidLineTemp),
+    outdoorTemp: t(r.outdoorTemp),
+  };
+}
+
+/**
  * Saturation temperatures, superheat (dew point at suction pressure) and subcooling (bubble point at
- * liquid pressure, or discharge pressure when no liquid pressure was taken) with @coilpath/calc.
+ * liquid pressure, or discharge pressure when no liquid pressure was taken) with @coilpath/calc, from
+ * values in psig/°F. Kept at full precision: the answer rounds in the units it shows.
  * A value outside the refrigerant's table, or an unknown refrigerant, leaves that result empty.
  */
 export function computeReading(refrigerant: string, r: ReadingValues): ReadingComputed {
@@ -28,8 +54,8 @@ export function computeReading(refrigerant: string, r: ReadingValues): ReadingCo
   if (given(r.suctionPressure) && given(r.suctionLineTemp)) {
     try {
       const s = superheat({ refrigerant, suctionPressure: r.suctionPressure, suctionLineTemp: r.suctionLineTemp });
-      out.suctionSaturationTemp = round1(s.saturationTemp);
-      out.superheat = round1(s.superheat);
+      out.suctionSaturationTemp = s.saturationTemp;
+      out.superheat = s.superheat;
     } catch {
       /* outside the table: left empty */
     }
@@ -38,8 +64,8 @@ export function computeReading(refrigerant: string, r: ReadingValues): ReadingCo
   if (high !== null && given(r.liquidLineTemp)) {
     try {
       const s = subcooling({ refrigerant, liquidPressure: high, liquidLineTemp: r.liquidLineTemp });
-      out.liquidSaturationTemp = round1(s.saturationTemp);
-      out.subcooling = round1(s.subcooling);
+      out.liquidSaturationTemp = s.saturationTemp;
+      out.subcooling = s.subcooling;
     } catch {
       /* outside the table: left empty */
     }

@@ -7,6 +7,8 @@ import { startMailSink } from '../../mail/sink';
 import { createSmtpMailer, type Mailer } from '../../mail/mailer';
 import { makeBookedVisit } from './visits.fixtures';
 
+const PSIG_F = { pressure: 'psig', temperature: 'F' } as const;
+
 let t: TestApp;
 let sink: Awaited<ReturnType<typeof startMailSink>>;
 
@@ -31,7 +33,7 @@ describe('service summary through the real SMTP sink', () => {
     const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z' });
     const tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
     await tech.patch(`/api/visits/${visit.id}`).send({ state: 'on_site' });
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
+    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
     await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'wiring_fault', origin: 'factory_defect', reportedCircuit: 1, actualCircuit: 2 });
 
     const res = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'needs_return', returnNeeds: ['manufacturer'], returnNotes: 'Factory to confirm the wiring change' });

@@ -9,23 +9,29 @@ import {
   returnNeedLabels,
   visitOutcomeLabels,
   workOrderKindLabels,
+  formatMeasure,
+  type MeasureKind,
   type ReadingDto,
   type VisitDetail,
 } from '@coilpath/contract';
 
-const num = (n: number | null, unit: string) => (n === null ? '-' : `${n.toFixed(1)} ${unit}`);
 const when = (iso: string | null, tz: string) => (iso ? format(new TZDate(new Date(iso).getTime(), tz), 'EEE d MMM yyyy, HH:mm') : '-');
 
+/** A reading's lines, every value with its unit symbol (the reading states its units: the branch's system). */
 function readingLines(r: ReadingDto, unitTag: string): string[] {
+  const m = (n: number | null, kind: MeasureKind) => (n === null ? '-' : formatMeasure(n, kind, r.units));
+  const p = (n: number | null) => m(n, 'pressure');
+  const t = (n: number | null) => m(n, 'temperature');
+  const d = (n: number | null) => m(n, 'temperatureDifference');
   const lines = [`${unitTag}, circuit ${r.circuitNumber} (${r.refrigerant})`];
-  lines.push(`  Suction pressure ${num(r.suctionPressure, 'psig')} (controller ${num(r.suctionPressureController, 'psig')}), saturation ${num(r.suctionSaturationTemp, '°F')}`);
-  lines.push(`  Suction line ${num(r.suctionLineTemp, '°F')}, superheat ${num(r.superheat, '°F')}`);
+  lines.push(`  Suction pressure ${p(r.suctionPressure)} (controller ${p(r.suctionPressureController)}), saturation ${t(r.suctionSaturationTemp)}`);
+  lines.push(`  Suction line ${t(r.suctionLineTemp)}, superheat ${d(r.superheat)}`);
   if (r.liquidPressure !== null || r.liquidPressureController !== null)
-    lines.push(`  Liquid pressure ${num(r.liquidPressure, 'psig')} (controller ${num(r.liquidPressureController, 'psig')}), saturation ${num(r.liquidSaturationTemp, '°F')}`);
+    lines.push(`  Liquid pressure ${p(r.liquidPressure)} (controller ${p(r.liquidPressureController)}), saturation ${t(r.liquidSaturationTemp)}`);
   if (r.dischargePressure !== null || r.dischargePressureController !== null)
-    lines.push(`  Discharge pressure ${num(r.dischargePressure, 'psig')} (controller ${num(r.dischargePressureController, 'psig')})`);
-  lines.push(`  Liquid line ${num(r.liquidLineTemp, '°F')}, subcooling ${num(r.subcooling, '°F')}`);
-  if (r.outdoorTemp !== null) lines.push(`  Outdoor air ${num(r.outdoorTemp, '°F')}`);
+    lines.push(`  Discharge pressure ${p(r.dischargePressure)} (controller ${p(r.dischargePressureController)})`);
+  lines.push(`  Liquid line ${t(r.liquidLineTemp)}, subcooling ${d(r.subcooling)}`);
+  if (r.outdoorTemp !== null) lines.push(`  Outdoor air ${t(r.outdoorTemp)}`);
   if (r.notes) lines.push(`  Notes: ${r.notes}`);
   return lines;
 }

@@ -30,7 +30,7 @@ import {
 import { badRequest, conflict } from '../../lib/errors';
 import { assertVisitReadable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
 import { attachmentDto, findingDto, readingDto, refrigerantEventDto } from './dto';
-import { computeReading } from './reading-calc';
+import { computeReading, toStoredUnits } from './reading-calc';
 
 /** The units a visit covers: the work order's unit, or every active unit at the site when it names none. */
 export async function unitsOfWorkOrder(db: Tx, wo: { unitId: string | null; siteId: string }) {
@@ -136,11 +136,12 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
       id: branch.id,
       name: branch.name,
       timeZone: branch.timeZone,
+      unitSystem: branch.unitSystem,
       sensorTolerancePercent: branch.sensorTolerancePercent,
       sensorToleranceAbsolute: branch.sensorToleranceAbsolute,
     },
     units: unitList,
-    readings: readingRows.map((x) => readingDto(x.r, x.number)),
+    readings: readingRows.map((x) => readingDto(x.r, x.number, branch.unitSystem)),
     findings: findingRows.map(findingDto),
     refrigerantEvents: eventRows.map(refrigerantEventDto),
     attachments: attachmentRows.map(attachmentDto),
@@ -197,8 +198,9 @@ async function visitUnitIds(tx: Tx, v: VisitRow): Promise<Map<string, { refriger
 
 /**
  * Saves one entry per circuit, replacing this visit's earlier entry for the same circuit (so a
- * retried save from a phone on a bad connection never doubles a reading). Saturation temperatures,
- * superheat and subcooling are computed here with @coilpath/calc.
+ * retried save from a phone on a bad connection never doubles a reading). The values arrive in the
+ * units the body states (psig/°F or kPa(g)/°C) and are stored in psig/°F; saturation temperatures,
+ * superheat and subcooling are computed here with @coilpath/calc. The answer is in the branch's units.
  */
 export async function saveReadings(ctx: AppContext, user: SessionUser, id: string, input: SaveReadings): Promise<{ readings: ReadingDto[] }> {
   return ctx.db.transaction(async (tx) => {
@@ -206,7 +208,10 @@ export async function saveReadings(ctx: AppContext, user: SessionUser, id: strin
     assertVisitWritable(user, v);
     const unitMap = await visitUnitIds(tx, v);
     const circuitIds = input.readings.map((r) => r.circuitId);
-    const cs = await tx.select().from(circuits).where(inArray(circuits.id, circuitIds));
+    const [cs, [branch]] = await Promise.all([
+      tx.select().from(circuits).where(inArray(circuits.id, circuitIds)),
+      tx.select({ unitSystem: branches.unitSystem }).from(branches).where(eq(branches.id, v.branchId)),
+    ]);
     const byId = new Map(cs.map((c) => [c.id, c]));
     const bad = circuitIds.filter((c) => !byId.has(c) || !unitMap.has(byId.get(c)!.unitId));
     if (bad.length) throw badRequest('A circuit is not on this visit’s units.', { fields: [{ path: 'readings.circuitId', message: 'Not a circuit of this visit' }] });
@@ -218,28 +223,22 @@ export async function saveReadings(ctx: AppContext, user: SessionUser, id: strin
         input.readings.map((r) => {
           const c = byId.get(r.circuitId)!;
           const refrigerant = unitMap.get(c.unitId)!.refrigerant;
+          const stored = toStoredUnits(r, input.units);
           return {
             visitId: id,
             unitId: c.unitId,
             circuitId: c.id,
             takenAt: now,
             refrigerant,
-            suctionPressure: r.suctionPressure ?? null,
-            liquidPressure: r.liquidPressure ?? null,
-            dischargePressure: r.dischargePressure ?? null,
-            suctionLineTemp: r.suctionLineTemp ?? null,
-            liquidLineTemp: r.liquidLineTemp ?? null,
-            outdoorTemp: r.outdoorTemp ?? null,
-            suctionPressureController: r.suctionPressureController ?? null,
-            liquidPressureController: r.liquidPressureController ?? null,
-            dischargePressureController: r.dischargePressureController ?? null,
+            ...stored,
             notes: r.notes ?? null,
-            ...computeReading(refrigerant, r),
+            ...computeReading(refrigerant, stored),
           };
         }),
       )
       .returning();
-    return { readings: rows.map((r) => readingDto(r, byId.get(r.circuitId)!.number)).sort((a, b) => a.circuitNumber - b.circuitNumber) };
+    const system = branch?.unitSystem ?? 'imperial';
+    return { readings: rows.map((r) => readingDto(r, byId.get(r.circuitId)!.number, system)).sort((a, b) => a.circuitNumber - b.circuitNumber) };
   });
 }
 

@@ -7,6 +7,8 @@ import { alarms, circuits, findings, leakCases, readings, refrigerantEvents, vis
 import { makeBookedVisit } from './visits.fixtures';
 
 const NOW = '2026-03-10T15:00:00Z';
+/** The units every imperial body states. */
+const PSIG_F = { pressure: 'psig', temperature: 'F' } as const;
 
 let t: TestApp;
 let f: Awaited<ReturnType<typeof makeTwoBranches>>;
@@ -100,6 +102,7 @@ describe('POST /api/visits/:id/readings', () => {
     // Check values: shared/reference/refrigerant-saturation.json (CoolProp 8.0.0), R-410A
     // 111.5 psig dew 36.93 °F; 349.9 psig bubble 106.66 °F.
     const res = await tech.post(`/api/visits/${visit.id}/readings`).send({
+      units: PSIG_F,
       readings: [
         {
           circuitId: circuitIds[0],
@@ -121,13 +124,14 @@ describe('POST /api/visits/:id/readings', () => {
     expect(r.liquidSaturationTemp).toBeCloseTo(106.7, 0);
     expect(r.subcooling).toBeCloseTo(10.0, 0);
     expect(r.suctionPressureController).toBe(118);
+    expect(r.units).toEqual(PSIG_F);
   });
 
   it('replaces the visit’s earlier entry for the same circuit (a retried save never doubles)', async () => {
     const { visit } = await book();
-    const body = { readings: [{ circuitId: circuitIds[1], suctionPressure: 111.5, suctionLineTemp: 50 }] };
+    const body = { units: PSIG_F, readings: [{ circuitId: circuitIds[1], suctionPressure: 111.5, suctionLineTemp: 50 }] };
     await tech.post(`/api/visits/${visit.id}/readings`).send(body);
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ readings: [{ ...body.readings[0], suctionLineTemp: 52 }] });
+    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ ...body.readings[0], suctionLineTemp: 52 }] });
     const rows = await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id));
     expect(rows).toHaveLength(1);
     expect(rows[0]!.suctionLineTemp).toBe(52);
@@ -137,11 +141,11 @@ describe('POST /api/visits/:id/readings', () => {
     const { visit } = await book();
     const elsewhere = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const [foreign] = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, elsewhere.unit.id));
-    expect((await tech.post(`/api/visits/${visit.id}/readings`).send({ readings: [{ circuitId: foreign!.id, suctionPressure: 100 }] })).status).toBe(400);
-    const bad = await tech.post(`/api/visits/${visit.id}/readings`).send({ readings: [{ circuitId: circuitIds[0], suctionPressure: 'high' }] });
+    expect((await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: foreign!.id, suctionPressure: 100 }] })).status).toBe(400);
+    const bad = await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 'high' }] });
     expect(bad.status).toBe(400);
     expect(bad.body.error.details.fields[0].path).toBe('readings.0.suctionPressure');
-    const ok = { readings: [{ circuitId: circuitIds[0], suctionPressure: 100 }] };
+    const ok = { units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 100 }] };
     expect((await tech2.post(`/api/visits/${visit.id}/readings`).send(ok)).status).toBe(404);
     expect((await dispatcher.post(`/api/visits/${visit.id}/readings`).send(ok)).status).toBe(403);
   });
@@ -238,7 +242,7 @@ describe('POST /api/visits/:id/close', () => {
   it('closes as needing a return: linked unplaced return visit, summary e-mail with the PDF', async () => {
     const { visit, workOrder } = await book({ workOrder: { requiredCertification: 'II', requiredSkill: 'rooftop' } });
     await onSite(visit.id);
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ readings: [{ circuitId: circuitIds[0], suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
+    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
     await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'refrigerant_leak', origin: 'wear', notes: 'Oil at the service valve' });
     t.mailer.sent.length = 0;
 
@@ -328,6 +332,7 @@ describe('GET /api/units/:id/briefing', () => {
     const cs = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, u.unit.id)).orderBy(circuits.number);
     await onSite(first.visit.id);
     await tech.post(`/api/visits/${first.visit.id}/readings`).send({
+      units: PSIG_F,
       readings: [
         { circuitId: cs[0]!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 },
         { circuitId: cs[1]!.id, suctionPressure: 111.5, suctionLineTemp: 50.7 },
@@ -375,7 +380,7 @@ describe('data stays whole', () => {
   it('leaves no reading behind a refused request (the same circuit twice)', async () => {
     const { visit } = await book();
     const before = await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id));
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ readings: [{ circuitId: circuitIds[0], suctionPressure: 100 }, { circuitId: circuitIds[0], suctionPressure: 101 }] });
+    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 100 }, { circuitId: circuitIds[0], suctionPressure: 101 }] });
     const after = await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id));
     expect(after).toHaveLength(before.length);
   });

@@ -1,14 +1,16 @@
 import { useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, Droplets, History, Siren } from 'lucide-react';
-import { causeCodeLabels, causeOriginLabels, visitOutcomeLabels } from '@coilpath/contract';
+import { causeCodeLabels, causeOriginLabels, formatMeasure, visitOutcomeLabels, type MeasureKind, type ReadingUnits } from '@coilpath/contract';
 import { Badge } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
 import { AttachmentThumb } from '../visits/attachments-section';
 import { briefingQuery } from '../visits/visit-api';
 
-const f1 = (n: number | null) => (n === null ? '—' : n.toFixed(1));
+
+/** A reading's value with its unit symbol (the reading states its units: the branch's system). */
+const m = (n: number | null, kind: MeasureKind, units: ReadingUnits) => (n === null ? '—' : formatMeasure(n, kind, units));
 
 /** The "prior findings" a technician wants before arriving at a unit. */
 export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; timeZone: string; today: string }) {
@@ -108,25 +110,32 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
             <caption className="text-left text-slate">Last readings per circuit</caption>
             <thead>
               <tr className="text-xs text-slate">
-                <th scope="col" className="pr-2 font-medium">Circuit</th>
-                <th scope="col" className="pr-2 font-medium">Suction psig</th>
-                <th scope="col" className="pr-2 font-medium">Superheat °F</th>
-                <th scope="col" className="pr-2 font-medium">Liquid psig</th>
-                <th scope="col" className="pr-2 font-medium">Subcooling °F</th>
-                <th scope="col" className="font-medium">Taken</th>
+                <th scope="col" className="pr-3 font-medium">Circuit</th>
+                <th scope="col" className="pr-3 font-medium">Suction, superheat</th>
+                <th scope="col" className="font-medium">Liquid, subcooling</th>
               </tr>
             </thead>
-            <tbody>
-              {b.lastReadings.map((x) => (
-                <tr key={x.id}>
-                  <th scope="row" className="pr-2 font-normal">{x.circuitNumber}</th>
-                  <td className="pr-2">{f1(x.suctionPressure)}</td>
-                  <td className="pr-2">{f1(x.superheat)}</td>
-                  <td className="pr-2">{f1(x.liquidPressure ?? x.dischargePressure)}</td>
-                  <td className="pr-2">{f1(x.subcooling)}</td>
-                  <td>{formatInZone(x.takenAt, timeZone, 'd MMM')}</td>
-                </tr>
-              ))}
+            <tbody className="[&_td]:pb-1.5 [&_td]:align-top [&_th]:pb-1.5 [&_th]:align-top">
+              {b.lastReadings.map((x) => {
+                const fromDischarge = x.liquidPressure === null && x.dischargePressure !== null;
+                return (
+                  <tr key={x.id}>
+                    <th scope="row" className="whitespace-nowrap pr-3 font-normal">
+                      {x.circuitNumber}
+                      <span className="block text-xs text-slate">{formatInZone(x.takenAt, timeZone, 'd MMM')}</span>
+                    </th>
+                    <td className="whitespace-nowrap pr-3">
+                      {m(x.suctionPressure, 'pressure', x.units)}
+                      <span className="block text-xs">superheat {m(x.superheat, 'temperatureDifference', x.units)}</span>
+                    </td>
+                    <td className="whitespace-nowrap">
+                      {m(fromDischarge ? x.dischargePressure : x.liquidPressure, 'pressure', x.units)}
+                      {fromDischarge && <span className="text-xs text-slate"> (discharge)</span>}
+                      <span className="block text-xs">subcooling {m(x.subcooling, 'temperatureDifference', x.units)}</span>
+                    </td>
+                  </tr>
+                );
+              })}
             </tbody>
           </table>
         </div>

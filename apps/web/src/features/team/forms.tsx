@@ -3,6 +3,7 @@ import { Controller, useForm, type Control } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
+import { psiToKpa } from '@coilpath/calc';
 import {
   branchInputSchema,
   epa608Labels,
@@ -286,6 +287,12 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
     },
   });
   const e = form.formState.errors;
+  // Kept in psi; an SI branch's Visit screen compares in kPa, so say what that is.
+  const [unitSystem, toleranceAbsolute] = form.watch(['unitSystem', 'sensorToleranceAbsolute']);
+  const siTolerance =
+    unitSystem === 'si' && Number.isFinite(Number(toleranceAbsolute))
+      ? `= ${(Math.round(psiToKpa(Number(toleranceAbsolute)) * 10) / 10).toFixed(1)} kPa on the Visit screen`
+      : undefined;
   const onSubmit = form.handleSubmit(async (values) => {
     setError(null);
     try {
@@ -318,9 +325,14 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       <div className="grid gap-4 sm:grid-cols-3">
         <TextField label="Labour rate per hour" inputMode="decimal" {...form.register('labourRate', num)} error={e.labourRate?.message} />
         <TextField label="Currency" {...form.register('currency')} error={e.currency?.message} />
-        <SelectField label="Units" {...form.register('unitSystem')} error={e.unitSystem?.message}>
-          <option value="imperial">psig, °F, lb</option>
-          <option value="si">kPa, °C, kg</option>
+        <SelectField
+          label="Units of readings"
+          hint="Pressures and temperatures on the Visit screen, briefings, Unit files and service summaries. Refrigerant stays in lb."
+          {...form.register('unitSystem')}
+          error={e.unitSystem?.message}
+        >
+          <option value="imperial">psig and °F</option>
+          <option value="si">kPa(g) and °C</option>
         </SelectField>
       </div>
       <Controller
@@ -331,7 +343,13 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       <fieldset className="grid gap-4 sm:grid-cols-3">
         <legend className="mb-2 text-sm font-semibold">Thresholds</legend>
         <TextField label="Sensor check tolerance (%)" inputMode="decimal" {...form.register('sensorTolerancePercent', num)} error={e.sensorTolerancePercent?.message} hint="Controller vs reference gauge" />
-        <TextField label="Sensor check tolerance (psi)" inputMode="decimal" {...form.register('sensorToleranceAbsolute', num)} error={e.sensorToleranceAbsolute?.message} />
+        <TextField
+          label="Sensor check tolerance (psi)"
+          inputMode="decimal"
+          {...form.register('sensorToleranceAbsolute', num)}
+          error={e.sensorToleranceAbsolute?.message}
+          hint={siTolerance}
+        />
         <TextField label="Callback window (days)" inputMode="numeric" {...form.register('callbackWindowDays', num)} error={e.callbackWindowDays?.message} />
         <TextField label="Repeat alarm: same code N times" inputMode="numeric" {...form.register('repeatAlarmCount', num)} error={e.repeatAlarmCount?.message} />
         <TextField label="…within M days" inputMode="numeric" {...form.register('repeatAlarmDays', num)} error={e.repeatAlarmDays?.message} />

@@ -1,6 +1,7 @@
 import { useMemo, useState } from 'react';
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { Building2, CheckCircle2, Clock, MailPlus, Pencil, RotateCw, UserCheck, UserX, XCircle } from 'lucide-react';
+import { psiToKpa } from '@coilpath/calc';
 import {
   epa608Labels,
   roleLabels,
@@ -359,9 +360,12 @@ export default function TeamPage() {
                   <dd>{b.baseAddress || `${b.baseLat.toFixed(3)}, ${b.baseLon.toFixed(3)}`}</dd>
                   <dt className="text-slate">Labour rate</dt>
                   <dd className="tabular">{formatMoney(Math.round(b.labourRate * 100), b.currency)} / h</dd>
+                  <dt className="text-slate">Readings in</dt>
+                  <dd>{b.unitSystem === 'si' ? 'kPa(g) and °C' : 'psig and °F'}</dd>
                   <dt className="text-slate">Sensor check</dt>
                   <dd className="tabular">
                     ±{b.sensorTolerancePercent} % or ±{b.sensorToleranceAbsolute} psi
+                    {b.unitSystem === 'si' ? ` (${(Math.round(psiToKpa(b.sensorToleranceAbsolute) * 10) / 10).toFixed(1)} kPa)` : ''}
                   </dd>
                   <dt className="text-slate">Repeat alarm</dt>
                   <dd className="tabular">

@@ -6,6 +6,8 @@ import {
   applianceCategoryLabels,
   causeCodeLabels,
   causeOriginLabels,
+  measureSymbol,
+  readingUnitsBySystem,
   unitKindLabels,
   visitOutcomeLabels,
   workOrderKindLabels,
@@ -22,6 +24,7 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { api } from '@/lib/api-client';
 import { formatInZone, formatNumber, viewerZoneDiffers, zoneAbbreviation } from '@/lib/format';
 import { CircuitTrend } from './readings-chart';
+import { ReadingsTable } from './readings-table';
 
 const unitFileQuery = (id: string) =>
   queryOptions({ queryKey: ['units', 'file', id], queryFn: () => api.get<UnitFile>(`/api/units/${id}/file`) });
@@ -178,6 +181,7 @@ function UnitFileView({ id }: { id: string }) {
   const tz = f.branch.timeZone;
   const at = (s: string | null, pattern?: string) => (s ? formatInZone(s, tz, pattern) : '—');
   const zoneNote = viewerZoneDiffers(tz) ? ` Times in ${f.branch.name}’s time zone (${zoneAbbreviation(new Date(), tz)}).` : '';
+  const units = readingUnitsBySystem[f.branch.unitSystem];
   const circuitsWithReadings = f.circuits.filter((c) => f.readings.some((r) => r.circuitId === c.id));
   const alarms = allAlarms ? f.alarms : f.alarms.slice(0, 15);
   const u = f.unit;
@@ -269,7 +273,9 @@ function UnitFileView({ id }: { id: string }) {
           <div className="mb-3">
             <SafetyNote>
               Readings guide diagnosis alongside the manufacturer’s charging data, local codes and licensed practice. Pressures are reference-gauge
-              values; refrigerant work needs the proper EPA 608 certification.
+              values in {measureSymbol('pressure', units)}; temperatures in {measureSymbol('temperature', units)}
+              {units.temperature === 'C' ? ', superheat and subcooling in K' : ''} ({f.branch.name}’s unit setting). Refrigerant work needs the
+              proper EPA 608 certification.
             </SafetyNote>
           </div>
           {circuitsWithReadings.length === 0 ? (
@@ -281,7 +287,8 @@ function UnitFileView({ id }: { id: string }) {
                   <h3 className="mb-2 text-sm font-semibold">
                     Circuit {c.number} <span className="font-normal text-slate">({f.readings.filter((r) => r.circuitId === c.id).length} readings)</span>
                   </h3>
-                  <CircuitTrend readings={f.readings.filter((r) => r.circuitId === c.id)} timeZone={tz} circuit={c.number} />
+                  <CircuitTrend readings={f.readings.filter((r) => r.circuitId === c.id)} timeZone={tz} circuit={c.number} units={units} />
+                  <ReadingsTable readings={f.readings.filter((r) => r.circuitId === c.id)} timeZone={tz} circuit={c.number} units={units} />
                 </section>
               ))}
             </div>

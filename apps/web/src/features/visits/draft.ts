@@ -1,5 +1,5 @@
 import { useCallback, useEffect, useState } from 'react';
-import type { FindingInput, RefrigerantEventInput } from '@coilpath/contract';
+import type { FindingInput, ReadingUnits, RefrigerantEventInput } from '@coilpath/contract';
 
 /** Field values as typed (strings), per circuit id. */
 export type ReadingDraft = Record<string, Record<string, string>>;
@@ -15,6 +15,8 @@ export interface PendingRefrigerant {
  */
 export interface VisitDraft {
   readings: ReadingDraft;
+  /** The units `readings` were typed in (absent in drafts from before SI: psig/°F). */
+  readingsUnits?: ReadingUnits | undefined;
   /** True while `readings` holds values the server has not confirmed. */
   readingsDirty: boolean;
   findings: (FindingInput & { id: string })[];
