@@ -25,6 +25,11 @@ const CHUNK = 4_000;
  * roster_revisions (nothing to keep: the new database has no cached reads).
  */
 const TRIGGER_TABLES = ['work_orders', 'visits', 'findings', 'bookings', 'sites', 'units', 'leak_cases', 'users', 'branches'];
+/**
+ * Tables whose triggers keep fix_quality_sums (migration 0005): off until service_call_facts is rebuilt, so
+ * its rows are not summed one by one; the sums are rebuilt in one statement after the facts.
+ */
+const SUMS_TRIGGER_TABLES = ['service_call_facts'];
 
 export interface BenchMeta {
   end: string;
@@ -123,8 +128,9 @@ export async function loadBenchScenario(database: Database, label = 'bench:data'
        AND i.indexdef NOT LIKE 'CREATE UNIQUE%'`,
   )).rows as { indexname: string; indexdef: string }[];
   for (const ix of indexes) await query(database, `DROP INDEX "${ix.indexname}"`);
-  // The Fix Quality facts are rebuilt in one statement at the end instead of row by row (migration 0002).
-  for (const t of TRIGGER_TABLES) await query(database, `ALTER TABLE "${t}" DISABLE TRIGGER USER`);
+  // The Fix Quality facts and sums are rebuilt in one statement each at the end instead of row by row
+  // (migrations 0002 and 0005).
+  for (const t of [...TRIGGER_TABLES, ...SUMS_TRIGGER_TABLES]) await query(database, `ALTER TABLE "${t}" DISABLE TRIGGER USER`);
   await load(globalRows(passwordHash));
   for (let b = 0; b < BRANCH_COUNT; b++) {
     const rows = branchRows(b, passwordHash);
@@ -139,6 +145,9 @@ export async function loadBenchScenario(database: Database, label = 'bench:data'
   for (const t of TRIGGER_TABLES) await query(database, `ALTER TABLE "${t}" ENABLE TRIGGER USER`);
   process.stderr.write(`${label}: service_call_facts…\n`);
   await query(database, 'SELECT rebuild_service_call_facts()');
+  process.stderr.write(`${label}: fix_quality_sums…\n`);
+  await query(database, 'SELECT rebuild_fix_quality_sums()');
+  for (const t of SUMS_TRIGGER_TABLES) await query(database, `ALTER TABLE "${t}" ENABLE TRIGGER USER`);
   process.stderr.write(`${label}: ANALYZE…\n`);
   await query(database, 'ANALYZE');
   const meta: BenchMeta = { end: BENCH_END, rows: counts, seconds: Math.round((Date.now() - t0) / 1000) };

@@ -15,6 +15,7 @@ import {
   primaryKey,
   text,
   timestamp,
+  unique,
   uniqueIndex,
   uuid,
   type AnyPgColumn,
@@ -284,7 +285,57 @@ export const serviceCallFacts = pgTable('service_call_facts', {
 }, (t) => [
   index('service_call_facts_closed_idx').on(t.firstClosedAt),
   index('service_call_facts_branch_closed_idx').on(t.branchId, t.firstClosedAt),
+  // The jobs of one unit, when its make or model changes (fix_quality_sums, migration 0005).
+  index('service_call_facts_unit_idx').on(t.unitId),
 ]);
+
+/** The dimensions of `fix_quality_sums`: every job is counted once in each. */
+export type FixQualityDim = 'technician' | 'model' | 'cause' | 'origin';
+
+/** The keys and sums of a row of `fix_quality_sums` (and of the deltas waiting in `fix_quality_sums_pending`). */
+const fixQualitySumColumns = () => ({
+  branchId: uuid().notNull(),
+  /** The first day of the calendar month (UTC) in which the jobs' first visits closed. */
+  month: date({ mode: 'string' }).notNull(),
+  dim: text().$type<FixQualityDim>().notNull(),
+  /** The key of the row's dimension; the other keys are null (a null key of its own dimension = none recorded). */
+  techId: uuid(),
+  make: text(),
+  model: text(),
+  causeCode: text().$type<CauseCode>(),
+  origin: text().$type<CauseOrigin>(),
+  /** Jobs (service calls whose first visit closed in the month), then the sums of `fix_quality_jobs`. */
+  jobs: integer().notNull(),
+  eligible: integer().notNull(),
+  firstTimeFixed: integer().notNull(),
+  resolvedFirstVisits: integer().notNull(),
+  callbacks: integer().notNull(),
+  returnVisits: integer().notNull(),
+  resolvedJobs: integer().notNull(),
+  /** Microseconds from opening to the resolving visit's close, over the resolved jobs (exact). */
+  resolveUs: bigint({ mode: 'number' }).notNull(),
+});
+
+/**
+ * The Fix Quality report's sums per branch, calendar month (UTC) of the first visit's close, and dimension
+ * (technician, make and model, cause, origin), so a year of the report adds up a few thousand rows instead
+ * of every job. Derived from `service_call_facts`, the branch's callback window and the unit's make and
+ * model through the view `fix_quality_jobs` (one row per job with its counts), and kept by database triggers
+ * on those three (migration 0005): each change records its delta in `fix_quality_sums_pending`, and the
+ * transaction's deltas are added here at commit, after every other lock it takes, in key order.
+ * `rebuild_fix_quality_sums()` recomputes the whole table. Never written by the application.
+ */
+export const fixQualitySums = pgTable('fix_quality_sums', fixQualitySumColumns(), (t) => [
+  unique('fix_quality_sums_key').on(t.month, t.branchId, t.dim, t.techId, t.make, t.model, t.causeCode, t.origin).nullsNotDistinct(),
+  // Rows whose jobs all went elsewhere, deleted at once.
+  index('fix_quality_sums_empty_idx').on(t.month).where(sql`${t.jobs} = 0`),
+]);
+
+/** Deltas of `fix_quality_sums` recorded by the open transaction `txid`, added to it at commit (migration 0005). */
+export const fixQualitySumsPending = pgTable('fix_quality_sums_pending', {
+  txid: bigint({ mode: 'number' }).notNull(),
+  ...fixQualitySumColumns(),
+}, (t) => [index('fix_quality_sums_pending_txid_idx').on(t.txid)]);
 
 /**
  * A counter per branch, raised (once per transaction, at commit) by database triggers whenever a row the

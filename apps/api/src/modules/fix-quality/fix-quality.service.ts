@@ -2,10 +2,10 @@
  * Fix Quality: the owner's report of first-time fix and callbacks, the factory-defect review with its
  * warranty claims, and model alerts with their inspection work orders.
  *
- * The report counts in the database: one statement finds each job's first visit, follow-ups and last visit,
- * flags each job with `fixQuality`'s definitions (@coilpath/calc) and sums the flags per group with
- * GROUPING SETS, so a year of a large contractor answers a few thousand rows instead of every job; the
- * rates come from `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
+ * The report counts in the database: each job's counts with `fixQuality`'s definitions (@coilpath/calc) are
+ * kept summed per branch, month and group by triggers (`fix_quality_sums`), and one statement adds up the
+ * months of the period and the jobs of its remaining days, answering a few hundred rows; the rates come from
+ * `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
  */
 import { eq, inArray, sql, type SQL } from 'drizzle-orm';
 import { fixQualityFromCounts } from '@coilpath/calc';
@@ -92,17 +92,38 @@ interface CountRow {
   days: number | string | null;
 }
 
-/**
- * Bits of `GROUPING(branch_id, tech_id, month, unit_id, cause_code, origin)` (1 = not grouped by); the
- * per-unit sets are summed again per make and model and answered as `model`.
- */
+/** The kinds of group the report answers (`g` of a counted row; the bits of the former GROUPING SETS query). */
 const GROUPED = { all: 0b111111, branch: 0b011111, tech: 0b101111, month: 0b110111, model: 0b111011, cause: 0b111101, origin: 0b111110 } as const;
 
+const MONTH_MS = (y: number, m: number) => Date.UTC(y, m, 1);
+
 /**
- * The report's figures for every group, counted in the database: one row per (current or previous period)
- * × (everything, branch, technician, month, model, cause, origin) group — a few hundred rows for a year of
- * a large contractor, instead of every job. It reads `service_call_facts` (one row per service call with its
- * first visit, first finding, follow-ups and last visit, kept by triggers: migration 0002).
+ * Splits [start, end) (UTC midnights) into the whole calendar months (UTC) inside it, read from
+ * `fix_quality_sums`, and the days before and after them, counted from `service_call_facts`.
+ */
+export function splitByMonths(start: string, end: string): { months: [string, string] | null; edges: [string, string][] } {
+  const s = new Date(start);
+  const e = new Date(end);
+  const firstFull = s.getUTCDate() === 1 ? s.getTime() : MONTH_MS(s.getUTCFullYear(), s.getUTCMonth() + 1);
+  const lastFullEnd = MONTH_MS(e.getUTCFullYear(), e.getUTCMonth());
+  const iso = (ms: number) => new Date(ms).toISOString();
+  if (firstFull >= lastFullEnd) return { months: null, edges: s.getTime() < e.getTime() ? [[start, end]] : [] };
+  const edges: [string, string][] = [];
+  if (s.getTime() < firstFull) edges.push([start, iso(firstFull)]);
+  if (lastFullEnd < e.getTime()) edges.push([iso(lastFullEnd), end]);
+  return { months: [iso(firstFull).slice(0, 10), iso(lastFullEnd).slice(0, 10)], edges };
+}
+
+/**
+ * The report's figures for every group: one row per (current or previous period) × (everything, branch,
+ * technician, month, model, cause, origin) group — a few hundred rows.
+ *
+ * Whole calendar months (UTC) of the period come from `fix_quality_sums`: per branch and month, the sums of
+ * its jobs per technician, per make and model, per cause and per origin, kept by triggers (migration 0005).
+ * The days before and after the whole months are counted from the view `fix_quality_jobs` (one row per job
+ * of `service_call_facts` with its counts: the definition the sums are kept with), so a year reads about five
+ * thousand rows of sums and the jobs of a month or two instead of two years of jobs. The previous period
+ * needs its total only: one dimension ('origin') of its sums.
  *
  * A job is a service call whose first visit (its earliest closed visit) closed in [start, end). Per job, with
  * its own branch's callback window W (whole 24-hour days after the first visit closed, inclusive; a follow-up
@@ -112,60 +133,71 @@ const GROUPED = { all: 0b111111, branch: 0b011111, tech: 0b101111, month: 0b1101
  *   first-time fixed     resolved first visit and no callback or return visit opened within W
  *   callback             resolved first visit and a callback opened within W
  * and for eligible jobs: return visits booked off the job (any time), and the days from opening to the last
- * closed visit of the job and its follow-ups when that visit resolved it.
+ * closed visit of the job and its follow-ups when that visit resolved it (summed exactly in microseconds).
  */
 export async function reportGroups(db: Tx, range: { start: string; curStart: string; end: string }, branchId: string | undefined): Promise<CountRow[]> {
-  const branchFilter = branchId ? sql`AND f.branch_id = ${branchId}` : sql``;
-  const flags = (from: string, to: string) => sql`
-      SELECT f.branch_id, f.tech_id, f.first_closed_at, f.unit_id, f.cause_code, f.origin, f.return_visits,
-        coalesce(f.first_outcome, 'needs_return') <> 'declined' AS eligible,
-        f.first_outcome = 'resolved' AS resolved,
-        coalesce(f.first_callback_at <= f.first_closed_at + b.callback_window_days * interval '24 hours', false) AS callback_in,
-        coalesce(f.first_return_at <= f.first_closed_at + b.callback_window_days * interval '24 hours', false) AS return_in,
-        (f.last_outcome = 'resolved' AND f.last_closed_at IS NOT NULL) AS resolved_job,
-        extract(epoch FROM f.last_closed_at - f.opened_at)::float8 / 86400 AS days
-      FROM service_call_facts f JOIN branches b ON b.id = f.branch_id
-      WHERE f.first_closed_at >= ${from}::timestamptz AND f.first_closed_at < ${to}::timestamptz ${branchFilter}`;
-  const sums = sql`
-      count(*) FILTER (WHERE eligible)::int AS eligible,
-      count(*) FILTER (WHERE eligible AND resolved AND NOT callback_in AND NOT return_in)::int AS first_time_fixed,
-      count(*) FILTER (WHERE eligible AND resolved)::int AS resolved_first_visits,
-      count(*) FILTER (WHERE eligible AND resolved AND callback_in)::int AS callbacks,
-      coalesce(sum(return_visits) FILTER (WHERE eligible), 0)::int AS return_visits,
-      count(*) FILTER (WHERE eligible AND resolved_job)::int AS resolved_jobs,
-      sum(days) FILTER (WHERE eligible AND resolved_job) AS days`;
-  const resum = sql`sum(eligible)::int, sum(first_time_fixed)::int, sum(resolved_first_visits)::int, sum(callbacks)::int,
-      sum(return_visits)::int, sum(resolved_jobs)::int, sum(days)`;
-  const model = sql.raw(String(GROUPED.model));
-  const all = sql.raw(String(GROUPED.all));
-  return db.transaction(async (tx) => {
-    // The grouping sets hash a year of jobs at once: room for that in memory. Local to this transaction.
-    await tx.execute(sql`SET LOCAL work_mem = '64MB'`);
-    return rows<CountRow>(
-      tx,
-      sql`
-      WITH cur AS (${flags(range.curStart, range.end)}),
-      grouped AS (
-        SELECT GROUPING(branch_id, tech_id, month, unit_id, cause_code, origin) AS g, branch_id, tech_id, month, unit_id, cause_code, origin, ${sums}
-        FROM (SELECT *, date_trunc('month', first_closed_at AT TIME ZONE 'UTC') AS month FROM cur) c
-        GROUP BY GROUPING SETS ((), (branch_id), (tech_id), (month), (unit_id), (cause_code), (origin))
-      )
-      SELECT true AS cur, g, branch_id, tech_id, to_char(month, 'YYYY-MM') AS month, NULL::text AS make, NULL::text AS model, cause_code, origin,
-        eligible, first_time_fixed, resolved_first_visits, callbacks, return_visits, resolved_jobs, days
-      FROM grouped WHERE g <> ${model}
-      UNION ALL
-      -- Per unit, then per make and model (units are few; jobs are many).
-      SELECT true, ${model}, NULL, NULL, NULL, u.make, u.model, NULL, NULL, ${resum}
-      FROM grouped gr LEFT JOIN units u ON u.id = gr.unit_id
-      WHERE gr.g = ${model}
-      GROUP BY u.make, u.model
-      UNION ALL
-      -- The previous period: its total only.
-      SELECT false, ${all}, NULL, NULL, NULL, NULL, NULL, NULL, NULL, ${sums}
-      FROM (${flags(range.start, range.curStart)}) p
-    `,
-    );
-  });
+  const ofBranch = (alias: string) => (branchId ? sql`AND ${sql.raw(alias)}.branch_id = ${branchId}` : sql``);
+  const columns = sql`branch_id, month, dim, tech_id, make, model, cause_code, origin, jobs, eligible, first_time_fixed,
+    resolved_first_visits, callbacks, return_visits, resolved_jobs, resolve_us`;
+  const parts = (cur: boolean, from: string, to: string, onlyTotals: boolean): SQL[] => {
+    const { months, edges } = splitByMonths(from, to);
+    const flag = sql.raw(cur ? 'true' : 'false');
+    const out: SQL[] = [];
+    if (months) {
+      out.push(sql`SELECT ${flag} AS cur, ${columns} FROM fix_quality_sums s
+        WHERE s.month >= ${months[0]}::date AND s.month < ${months[1]}::date ${onlyTotals ? sql`AND s.dim = 'origin'` : sql``} ${ofBranch('s')}`);
+    }
+    if (edges.length) {
+      const within = sql.join(
+        edges.map(([a, b]) => sql`(j.first_closed_at >= ${a}::timestamptz AND j.first_closed_at < ${b}::timestamptz)`),
+        sql` OR `,
+      );
+      // The same rows as the table's, counted from the jobs.
+      out.push(sql`SELECT ${flag} AS cur, branch_id, month,
+          ${onlyTotals ? sql`'origin'` : sql`CASE GROUPING(tech_id, make, model, cause_code, origin) WHEN 15 THEN 'technician' WHEN 19 THEN 'model' WHEN 29 THEN 'cause' ELSE 'origin' END`} AS dim,
+          ${onlyTotals ? sql`NULL::uuid AS tech_id, NULL::text AS make, NULL::text AS model, NULL::text AS cause_code` : sql`tech_id, make, model, cause_code`}, origin,
+          count(*)::int AS jobs, sum(eligible)::int AS eligible, sum(first_time_fixed)::int AS first_time_fixed,
+          sum(resolved_first_visits)::int AS resolved_first_visits, sum(callbacks)::int AS callbacks, sum(return_visits)::int AS return_visits,
+          sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::bigint AS resolve_us
+        FROM fix_quality_jobs j WHERE (${within}) ${ofBranch('j')}
+        GROUP BY branch_id, month, ${onlyTotals ? sql`origin` : sql`GROUPING SETS ((tech_id), (make, model), (cause_code), (origin))`}`);
+    }
+    return out;
+  };
+  const all = [...parts(true, range.curStart, range.end, false), ...parts(false, range.start, range.curStart, true)];
+  if (all.length === 0) return [];
+  const sums = sql`sum(eligible)::int AS eligible, sum(first_time_fixed)::int AS first_time_fixed,
+      sum(resolved_first_visits)::int AS resolved_first_visits, sum(callbacks)::int AS callbacks, sum(return_visits)::int AS return_visits,
+      sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::float8 / 86400000000 AS days`;
+  const g = (bits: number) => sql.raw(String(bits));
+  // Each job is counted once in every dimension: the totals, per branch and per month add up one of them.
+  return rows<CountRow>(
+    db,
+    sql`
+    WITH parts AS MATERIALIZED (${sql.join(all, sql` UNION ALL `)})
+    SELECT cur, ${g(GROUPED.all)} AS g, NULL::uuid AS branch_id, NULL::uuid AS tech_id, NULL::text AS month, NULL::text AS make,
+      NULL::text AS model, NULL::text AS cause_code, NULL::text AS origin, ${sums}
+    FROM parts WHERE dim = 'origin' GROUP BY cur HAVING sum(jobs) > 0
+    UNION ALL
+    SELECT true, ${g(GROUPED.branch)}, branch_id, NULL, NULL, NULL, NULL, NULL, NULL, ${sums}
+    FROM parts WHERE cur AND dim = 'origin' GROUP BY branch_id HAVING sum(jobs) > 0
+    UNION ALL
+    SELECT true, ${g(GROUPED.month)}, NULL, NULL, to_char(month, 'YYYY-MM'), NULL, NULL, NULL, NULL, ${sums}
+    FROM parts WHERE cur AND dim = 'origin' GROUP BY month HAVING sum(jobs) > 0
+    UNION ALL
+    SELECT true, ${g(GROUPED.tech)}, NULL, tech_id, NULL, NULL, NULL, NULL, NULL, ${sums}
+    FROM parts WHERE cur AND dim = 'technician' GROUP BY tech_id HAVING sum(jobs) > 0
+    UNION ALL
+    SELECT true, ${g(GROUPED.model)}, NULL, NULL, NULL, make, model, NULL, NULL, ${sums}
+    FROM parts WHERE cur AND dim = 'model' GROUP BY make, model HAVING sum(jobs) > 0
+    UNION ALL
+    SELECT true, ${g(GROUPED.cause)}, NULL, NULL, NULL, NULL, NULL, cause_code, NULL, ${sums}
+    FROM parts WHERE cur AND dim = 'cause' GROUP BY cause_code HAVING sum(jobs) > 0
+    UNION ALL
+    SELECT true, ${g(GROUPED.origin)}, NULL, NULL, NULL, NULL, NULL, NULL, origin, ${sums}
+    FROM parts WHERE cur AND dim = 'origin' GROUP BY origin HAVING sum(jobs) > 0
+  `,
+  );
 }
 
 const EMPTY: FixQualityFigures = figuresOf(undefined);
