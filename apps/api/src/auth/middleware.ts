@@ -23,12 +23,32 @@ export function authenticate(ctx: AppContext) {
     .where(eq(users.id, sql.placeholder('id')))
     .limit(1)
     .prepare('coilpath_session_user');
+  type Row = Awaited<ReturnType<typeof sessionUser.execute>>[number] | undefined;
+  // On PGlite the database tells this (its only) process when a user row changes, so rows are kept between
+  // requests and dropped at that notice; on PostgreSQL every request asks.
+  const known = new Map<string, Row>();
+  let changes = 0; // notices heard: a row read while one arrives is used once but not kept
+  ctx.database.local?.onUserChange((id) => {
+    changes++;
+    known.delete(id);
+  });
+  const readUser = async (id: string): Promise<Row> => {
+    if (!ctx.database.local) return (await sessionUser.execute({ id }))[0];
+    if (known.has(id)) return known.get(id);
+    const before = changes;
+    const [row] = await sessionUser.execute({ id });
+    if (changes === before) {
+      if (known.size >= 1000) known.clear();
+      known.set(id, row);
+    }
+    return row;
+  };
   return async (req: Request, _res: Response, next: NextFunction) => {
     const token: unknown = req.cookies?.[SESSION_COOKIE];
     if (typeof token === 'string' && token) {
       const claims = await verifySession(ctx.secret, token, ctx.clock.now());
       if (claims) {
-        const [u] = await sessionUser.execute({ id: claims.sub });
+        const u = await readUser(claims.sub);
         if (u && u.active && u.sessionVersion === claims.sv) {
           req.user = { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId };
         }

@@ -14,9 +14,38 @@ export type Db = PgliteDatabase<Schema>;
 /** A database or a transaction on it. */
 export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0] | Db;
 
+/**
+ * What the embedded database tells its one process at every commit (migration 0006 notifications): with
+ * PGlite no other process can write, so these stand in for asking the database on every request.
+ */
+export interface LocalChanges {
+  /** Rises for a branch at each commit that changes what its Roster shows. */
+  rosterRevision(branchId: string): number;
+  /** Calls `listener` with a user's id when their row changes or goes. */
+  onUserChange(listener: (userId: string) => void): () => void;
+}
+
+async function listenForChanges(client: PGlite): Promise<LocalChanges> {
+  const revisions = new Map<string, number>();
+  const userListeners = new Set<(userId: string) => void>();
+  // PGlite hands notifications over before the committing query's promise settles, so whoever committed
+  // (and everyone after) already sees the new revision.
+  await client.listen('coilpath_roster', (branchId) => revisions.set(branchId, (revisions.get(branchId) ?? 0) + 1));
+  await client.listen('coilpath_user', (userId) => userListeners.forEach((l) => l(userId)));
+  return {
+    rosterRevision: (branchId) => revisions.get(branchId) ?? 0,
+    onUserChange(listener) {
+      userListeners.add(listener);
+      return () => userListeners.delete(listener);
+    },
+  };
+}
+
 export interface Database {
   db: Db;
   kind: 'pglite' | 'postgres';
+  /** PGlite only: changes heard from the database (see `LocalChanges`). */
+  local?: LocalChanges;
   /** Raw SQL for maintenance (backups, advisory locks). */
   exec(sql: string): Promise<void>;
   close(): Promise<void>;
@@ -78,7 +107,10 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
       },
       close: () => client.close(),
     };
-    if (opts.migrate !== false) await migratePglite(db, { migrationsFolder });
+    if (opts.migrate !== false) {
+      await migratePglite(db, { migrationsFolder });
+      database.local = await listenForChanges(client);
+    }
   }
   return database;
 }

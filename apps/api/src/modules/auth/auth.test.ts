@@ -130,6 +130,16 @@ describe('sessions', () => {
     await t.ctx.db.update(users).set({ sessionVersion: 2 }).where(eq(users.id, f.inB.dispatcher.id));
     expect((await agent.get('/api/auth/me')).status).toBe(401);
   });
+
+  it('a changed role or a deactivation counts from the very next request', async () => {
+    const agent = await signedInAgent(t.app, f.inB.manager.email, TEST_PASSWORD);
+    expect((await agent.get('/api/auth/me')).body.user.role).toBe('branch_manager');
+    await t.ctx.db.update(users).set({ role: 'dispatcher' }).where(eq(users.id, f.inB.manager.id));
+    expect((await agent.get('/api/auth/me')).body.user.role).toBe('dispatcher');
+    await t.ctx.db.update(users).set({ active: false }).where(eq(users.id, f.inB.manager.id));
+    expect((await agent.get('/api/auth/me')).status).toBe(401);
+    await t.ctx.db.update(users).set({ role: 'branch_manager', active: true }).where(eq(users.id, f.inB.manager.id));
+  });
 });
 
 describe('roles, branches and errors', () => {

@@ -60,39 +60,60 @@ describe('roster_revisions', () => {
   });
 });
 
+describe.runIf(!process.env.DATABASE_URL)('the embedded database’s change notices (migration 0006)', () => {
+  it('raise the in-memory revision by the time the commit returns, and not for a rollback', async () => {
+    const local = t.ctx.database.local!;
+    const before = local.rosterRevision(f.a.id);
+    await t.ctx.db.update(sites).set({ name: 'Noticed at once' }).where(eq(sites.id, siteA.site.id));
+    expect(local.rosterRevision(f.a.id)).toBe(before + 1);
+    await t.ctx.db.transaction(async (tx) => {
+      await tx.update(sites).set({ name: 'First' }).where(eq(sites.id, siteA.site.id));
+      await tx.update(units).set({ tag: 'RTU-8' }).where(eq(units.id, siteA.unit.id));
+    });
+    expect(local.rosterRevision(f.a.id)).toBe(before + 2);
+    await expect(
+      t.ctx.db.transaction(async (tx) => {
+        await tx.update(sites).set({ name: 'Never' }).where(eq(sites.id, siteA.site.id));
+        throw new Error('rolled back');
+      }),
+    ).rejects.toThrow('rolled back');
+    expect(local.rosterRevision(f.a.id)).toBe(before + 2);
+  });
+});
+
 describe('createRevisionCache', () => {
   it('computes once per revision, shares a computation asked for at once, and recomputes after a change', async () => {
     const cache = createRevisionCache(2);
     let computed = 0;
     const compute = async () => ({ n: ++computed });
-    const first = await cache.read(t.ctx.db, f.a.id, 'week 1', compute);
-    expect(await cache.read(t.ctx.db, f.a.id, 'week 1', compute)).toBe(first);
+    const first = await cache.read(t.ctx.database, f.a.id, 'week 1', compute);
+    expect(await cache.read(t.ctx.database, f.a.id, 'week 1', compute)).toBe(first);
     expect(computed).toBe(1);
 
     await t.ctx.db.update(sites).set({ name: 'Renamed again' }).where(eq(sites.id, siteA.site.id));
-    const [x, y] = await Promise.all([cache.read(t.ctx.db, f.a.id, 'week 1', compute), cache.read(t.ctx.db, f.a.id, 'week 1', compute)]);
+    const [x, y] = await Promise.all([cache.read(t.ctx.database, f.a.id, 'week 1', compute), cache.read(t.ctx.database, f.a.id, 'week 1', compute)]);
     expect(x).toBe(y);
     expect(x).toEqual({ n: 2 });
     expect(computed).toBe(2);
 
     // Another branch's change leaves branch A's entry standing.
     await t.ctx.db.update(sites).set({ name: 'Elsewhere' }).where(eq(sites.branchId, f.b.id));
-    expect(await cache.read(t.ctx.db, f.a.id, 'week 1', compute)).toBe(x);
+    expect(await cache.read(t.ctx.database, f.a.id, 'week 1', compute)).toBe(x);
 
     // At most two entries: the least recently used goes.
-    await cache.read(t.ctx.db, f.a.id, 'week 2', compute);
-    await cache.read(t.ctx.db, f.a.id, 'week 3', compute);
+    await cache.read(t.ctx.database, f.a.id, 'week 2', compute);
+    await cache.read(t.ctx.database, f.a.id, 'week 3', compute);
     expect(cache.size).toBe(2);
     expect(computed).toBe(4);
-    await cache.read(t.ctx.db, f.a.id, 'week 1', compute);
+    await cache.read(t.ctx.database, f.a.id, 'week 1', compute);
     expect(computed).toBe(5);
   });
 
   it('keeps nothing when the computation fails', async () => {
     const cache = createRevisionCache();
-    await expect(cache.read(t.ctx.db, f.a.id, 'bad', () => Promise.reject(new Error('no such week')))).rejects.toThrow('no such week');
+    await expect(cache.read(t.ctx.database, f.a.id, 'bad', () => Promise.reject(new Error('no such week')))).rejects.toThrow('no such week');
     expect(cache.size).toBe(0);
-    expect(await cache.read(t.ctx.db, f.a.id, 'bad', async () => 'fine now')).toBe('fine now');
+    expect(await cache.read(t.ctx.database, f.a.id, 'bad', async () => 'fine now')).toBe('fine now');
   });
 });
 

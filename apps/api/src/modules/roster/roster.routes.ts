@@ -27,7 +27,7 @@ export function bookingsRoutes(ctx: AppContext): Router {
   r.get(
     '/',
     endpoint({ query: bookingListQuerySchema }, ({ user, query }) =>
-      weeks.json(ctx.db, resolveBranch(user, query.branchId), `${query.from} ${query.to} ${query.techId ?? ''}`, async () => ({
+      weeks.json(ctx.database, resolveBranch(user, query.branchId), `${query.from} ${query.to} ${query.techId ?? ''}`, async () => ({
         bookings: await listBookings(ctx.db, user, query),
       })),
     ),
@@ -72,7 +72,7 @@ export function rosterRoutes(ctx: AppContext): Router {
   r.get(
     '/load',
     endpoint({ query: loadQuerySchema }, ({ user, query }) =>
-      loads.json(ctx.db, resolveBranch(user, query.branchId), `${query.from} ${query.to}`, () => load(ctx.db, user, query)),
+      loads.json(ctx.database, resolveBranch(user, query.branchId), `${query.from} ${query.to}`, () => load(ctx.db, user, query)),
     ),
   );
   r.post('/suggest', endpoint({ body: suggestSchema }, ({ user, body }) => suggest(ctx.db, user, body, ctx.clock.now())));

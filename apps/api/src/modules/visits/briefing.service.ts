@@ -44,6 +44,13 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
   // Visits that touched this unit: its own work orders, or site-wide ones at its site.
   const touchesUnit = or(eq(workOrders.unitId, u.id), and(isNull(workOrders.unitId), eq(workOrders.siteId, u.siteId)));
 
+  const latest = db
+    .select()
+    .from(readings)
+    .where(and(eq(readings.unitId, u.id), eq(readings.circuitId, circuits.id)))
+    .orderBy(desc(readings.takenAt))
+    .limit(1)
+    .as('latest');
   const [circuitRows, lastVisitRows, readingRows, caseRows, refrigerantRows, alarmRows, photoRows] = await Promise.all([
     db.select().from(circuits).where(eq(circuits.unitId, u.id)).orderBy(asc(circuits.number)),
     db
@@ -54,13 +61,13 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
       .where(and(touchesUnit, isNotNull(visits.closedAt)))
       .orderBy(desc(visits.closedAt))
       .limit(1),
+    // Each circuit's latest reading: walks the unit's (unit, taken) index backwards and stops at the first
+    // row of the circuit, instead of reading every reading the unit ever had (scattered over many pages).
     db
-      .selectDistinctOn([readings.circuitId], { r: readings, number: circuits.number })
-      .from(readings)
-      // The circuit is joined within the unit: otherwise the planner hashes every circuit of every unit.
-      .innerJoin(circuits, and(eq(circuits.id, readings.circuitId), eq(circuits.unitId, u.id)))
-      .where(eq(readings.unitId, u.id))
-      .orderBy(readings.circuitId, desc(readings.takenAt)),
+      .select()
+      .from(circuits)
+      .innerJoinLateral(latest, sql`true`)
+      .where(eq(circuits.unitId, u.id)),
     db
       .select()
       .from(leakCases)
@@ -117,7 +124,7 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
           findings: lastFindings.map(findingDto),
         }
       : null,
-    lastReadings: readingRows.map((x) => readingDto(x.r, x.number, row.unitSystem)).sort((a, b) => a.circuitNumber - b.circuitNumber),
+    lastReadings: readingRows.map((x) => readingDto(x.latest, x.circuits.number, row.unitSystem)).sort((a, b) => a.circuitNumber - b.circuitNumber),
     units: readingUnitsBySystem[row.unitSystem],
     openLeakCase: caseRows[0] ? leakCaseDto(caseRows[0]) : null,
     refrigerantThisYear: {
