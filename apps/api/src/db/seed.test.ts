@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { and, asc, count, eq, gte, sql } from 'drizzle-orm';
+import { and, asc, count, eq, gte, lt, sql } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import type { Database } from './client';
 import * as s from './schema';
@@ -162,6 +162,28 @@ describe('demo scenario', { timeout: 120_000 }, () => {
 
     const [meta] = await db.select().from(s.appMeta).where(eq(s.appMeta.key, 'demo_seeded'));
     expect(meta!.value).toEqual({ today: TODAY });
+  });
+
+  it('works the days of this week before today like the coming ones', async () => {
+    const db = a.db;
+    const monday = addDays(TODAY, -1);
+    const branches = await db.select().from(s.branches);
+    const tzOf = new Map(branches.map((x) => [x.id, x.timeZone]));
+    const techs = await db.select().from(s.users).where(eq(s.users.role, 'technician'));
+    const jobs = await db
+      .select({ techId: s.bookings.techId, branchId: s.bookings.branchId, startAt: s.bookings.startAt, state: s.workOrders.state, kind: s.workOrders.kind, closedAt: s.visits.closedAt })
+      .from(s.bookings)
+      .innerJoin(s.workOrders, eq(s.workOrders.id, s.bookings.workOrderId))
+      .innerJoin(s.visits, eq(s.visits.bookingId, s.bookings.id))
+      .where(and(gte(s.bookings.startAt, new Date(`${addDays(monday, -1)}T00:00:00Z`)), lt(s.bookings.startAt, new Date(`${addDays(TODAY, 1)}T12:00:00Z`))));
+    const on = (techId: string, day: string) => jobs.filter((j) => j.techId === techId && localDay(j.startAt, tzOf.get(j.branchId)!) === day);
+    for (const t of techs) {
+      const mon = on(t.id, monday);
+      // The coming days book 2–4 jobs per technician; Monday, already worked, has as many, all closed.
+      expect(mon.length, t.email).toBeGreaterThanOrEqual(2);
+      expect(mon.every((j) => j.state === 'closed' && j.closedAt), t.email).toBe(true);
+      expect(on(t.id, TODAY).length, t.email).toBeGreaterThanOrEqual(1);
+    }
   });
 
   it('does not duplicate when run twice', async () => {

@@ -186,7 +186,8 @@ export const DEFECT_FINDING_NOTES =
 
 /** Builds every row of the demo scenario anchored to `today` (YYYY-MM-DD). Pure: no I/O. */
 export function buildScenario(today: string, passwordHash: string): Rows {
-  const rng = new Rng(SEED);
+  // Swapped for a generator of its own only while the days of this week before today are filled in (below).
+  let rng = new Rng(SEED);
   const rows: Rows = {
     branches: [], users: [], customers: [], sites: [], units: [], circuits: [], agreements: [], agreementUnits: [],
     workOrders: [], bookings: [], visits: [], visitEvents: [], readings: [], findings: [], refrigerantEvents: [],
@@ -1308,6 +1309,82 @@ export function buildScenario(today: string, passwordHash: string): Rows {
         if (call) followUps(call, cause, horizon);
         d = addDays(d, rng.int(lo, hi));
       }
+    }
+  }
+
+  // ───────────────────────── this week before today: worked days ─────────────────────────
+  // The history above leaves about one closed call per branch per day, so the workdays of this week before today
+  // (Monday to yesterday; all of Mon–Fri at a weekend) get the load of the coming ones: 2–4 jobs per technician,
+  // as closed service calls. A generator of their own keeps every draw above as it was. No alarms, refrigerant,
+  // callbacks or return visits, and no unit that a story or this week's booked or unplaced work uses.
+  {
+    const main = rng;
+    rng = new Rng(SEED ^ 0x3ee4da75);
+    try {
+      const monday = addDays(today, -((weekday(today) + 6) % 7));
+      const pastDays: string[] = [];
+      for (let d = monday; d < today && weekday(d) >= 1 && weekday(d) <= 5; d = addDays(d, 1)) pastDays.push(d);
+      const tzOf = new Map(branches.map((b) => [b.id, b.tz]));
+      const jobs = new Map<string, number>();
+      const lastVisit = new Map<string, string>();
+      const unitOf = new Map(rows.workOrders.map((w) => [w.id, w.unitId]));
+      for (const bk of rows.bookings) {
+        const key = `${bk.techId}|${localDate(bk.startAt, tzOf.get(bk.branchId)!)}`;
+        jobs.set(key, (jobs.get(key) ?? 0) + 1);
+        const unitId = unitOf.get(bk.workOrderId);
+        const day = localDate(bk.startAt, tzOf.get(bk.branchId)!);
+        if (unitId && day < today && (lastVisit.get(unitId) ?? '') < day) lastVisit.set(unitId, day);
+      }
+      // Units a story owns: the anchored stories, repeat alarms, the factory-defect model, and every unit with
+      // unplaced work, a booked callback or return visit, or a leak case.
+      const storyOwned = new Set<string>([...storyUnits, uTech, uMesa, uRaleigh, hp2Unit].map((u) => u.id));
+      for (const b of branches) for (const u of b.units) if (u.scriptedRefrigerant || u.model.model === DEFECT_MODEL) storyOwned.add(u.id);
+      for (const w of rows.workOrders) {
+        if (w.unitId && (w.state === 'unplaced' || (w.state === 'booked' && w.kind !== 'service_call') || w.leakCaseId)) storyOwned.add(w.unitId);
+      }
+      for (const b of branches) {
+        const days = pastDays.filter((d) => isWorkday(b, d));
+        if (days.length === 0) continue;
+        const eligible = b.units.filter((u) => !storyOwned.has(u.id));
+        // Units free this week and without a visit in the last three weeks first; units with a plain booked
+        // service call later this week only once those run out (a branch this busy has few units left over).
+        const rank = (u: Unit) => (usedThisWeek.has(u) ? 2 : 0) + (daysBetween(today, lastVisit.get(u.id) ?? historyStart) > 21 ? 0 : 1);
+        const ranked = (list: Unit[]) => rng.shuffle(list).sort((x, y) => rank(x) - rank(y));
+        const pool = ranked(eligible);
+        for (const day of days) {
+          const today_ = new Set<Unit>();
+          for (const tech of b.techs) {
+            if (!hoursOn(tech, day)) continue;
+            const target = rng.weighted([[2, 40], [3, 45], [4, 15]]);
+            let count = jobs.get(`${tech.id}|${day}`) ?? 0;
+            while (count < target) {
+              const causesOk = (u: Unit) =>
+                causesFor(u).filter(([c]) => c !== 'refrigerant_leak' && certOk(tech.cert, needsRefrigerantWork(u, c) ? 'II' : null));
+              const fits = (u: Unit) => !today_.has(u) && (!skillFor(u) || tech.skills.includes(skillFor(u)!)) && causesOk(u).length > 0;
+              // Each unit once while the pool lasts; then again, never twice on one day.
+              let i = pool.findIndex(fits);
+              if (i < 0) {
+                pool.push(...ranked(eligible.filter((u) => !pool.includes(u))));
+                i = pool.findIndex(fits);
+              }
+              if (i < 0) break;
+              const u = pool.splice(i, 1)[0]!;
+              const call = closedCall({
+                unit: u, date: day, exact: true, tech, cause: rng.weighted(causesOk(u)), alarmCode: null, refrigerant: [],
+                outcome: rng.chance(0.93) ? 'resolved' : 'declined',
+              });
+              if (!call) {
+                pool.push(u);
+                break;
+              }
+              today_.add(u);
+              count++;
+            }
+          }
+        }
+      }
+    } finally {
+      rng = main;
     }
   }
 
