@@ -428,7 +428,12 @@ export const readings = pgTable('readings', {
   subcooling: doublePrecision(),
   notes: text(),
   createdAt: createdAt(),
-}, (t) => [index('readings_unit_idx').on(t.unitId, t.takenAt), index('readings_visit_idx').on(t.visitId)]);
+}, (t) => [
+  index('readings_unit_idx').on(t.unitId, t.takenAt),
+  index('readings_visit_idx').on(t.visitId),
+  // A circuit's latest reading (the briefing) in one index descent, not all of the unit's readings.
+  index('readings_circuit_taken_idx').on(t.circuitId, t.takenAt),
+]);
 
 export const findings = pgTable('findings', {
   id: id(),

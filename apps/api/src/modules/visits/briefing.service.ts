@@ -47,7 +47,7 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
   const latest = db
     .select()
     .from(readings)
-    .where(and(eq(readings.unitId, u.id), eq(readings.circuitId, circuits.id)))
+    .where(eq(readings.circuitId, circuits.id))
     .orderBy(desc(readings.takenAt))
     .limit(1)
     .as('latest');
@@ -61,8 +61,8 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
       .where(and(touchesUnit, isNotNull(visits.closedAt)))
       .orderBy(desc(visits.closedAt))
       .limit(1),
-    // Each circuit's latest reading: walks the unit's (unit, taken) index backwards and stops at the first
-    // row of the circuit, instead of reading every reading the unit ever had (scattered over many pages).
+    // Each circuit's latest reading: one descent of the (circuit, taken) index, instead of reading every
+    // reading the unit ever had (scattered over many pages). A circuit's readings are its unit's.
     db
       .select()
       .from(circuits)

@@ -1,0 +1,1 @@
+CREATE INDEX "readings_circuit_taken_idx" ON "readings" USING btree ("circuit_id","taken_at");
