@@ -25,6 +25,7 @@ import { api } from '@/lib/api-client';
 import { formatInZone, formatNumber, viewerZoneDiffers, zoneAbbreviation } from '@/lib/format';
 import { CircuitTrend } from './readings-chart';
 import { ReadingsTable } from './readings-table';
+import { UnitTable } from './unit-table';
 
 const unitFileQuery = (id: string) =>
   queryOptions({ queryKey: ['units', 'file', id], queryFn: () => api.get<UnitFile>(`/api/units/${id}/file`) });
@@ -138,26 +139,6 @@ function Dl({ items }: { items: [string, ReactNode][] }) {
         </div>
       ))}
     </dl>
-  );
-}
-
-function Table({ caption, head, children }: { caption: string; head: string[]; children: ReactNode }) {
-  return (
-    <div className="overflow-x-auto">
-      <table className="w-full border-collapse text-sm">
-        <caption className="sr-only">{caption}</caption>
-        <thead className="bg-frost text-left text-xs uppercase tracking-wide text-slate">
-          <tr>
-            {head.map((h) => (
-              <th key={h} scope="col" className="whitespace-nowrap border-b border-slate-line px-2 py-2 font-semibold">
-                {h}
-              </th>
-            ))}
-          </tr>
-        </thead>
-        <tbody className="[&_td]:border-b [&_td]:border-slate-line/60 [&_td]:px-2 [&_td]:py-1.5 [&_td]:align-top">{children}</tbody>
-      </table>
-    </div>
   );
 }
 
@@ -328,7 +309,7 @@ function UnitFileView({ id }: { id: string }) {
             {f.findings.length === 0 ? (
               <p className="text-sm text-slate">No findings recorded yet.</p>
             ) : (
-              <Table caption="Findings" head={['Date', 'Cause', 'Origin', 'Alarm / circuit', 'By']}>
+              <UnitTable caption="Findings" head={['Date', 'Cause', 'Origin', 'Alarm / circuit', 'By']}>
                 {f.findings.map((x) => (
                   <tr key={x.id}>
                     <td className="whitespace-nowrap">
@@ -355,7 +336,7 @@ function UnitFileView({ id }: { id: string }) {
                     <td>{x.techName ?? '—'}</td>
                   </tr>
                 ))}
-              </Table>
+              </UnitTable>
             )}
           </Card>
         </div>
@@ -369,7 +350,7 @@ function UnitFileView({ id }: { id: string }) {
           {f.refrigerantLog.length === 0 ? (
             <p className="text-sm text-slate">No refrigerant added or recovered on record.</p>
           ) : (
-            <Table caption="Refrigerant log with running leak rate" head={['Date', 'Reason', 'Added', 'Recovered', 'Leak rate', 'Rule applied', 'By']}>
+            <UnitTable caption="Refrigerant log with running leak rate" head={['Date', 'Reason', 'Added', 'Recovered', 'Leak rate', 'Rule applied', 'By']}>
               {f.refrigerantLog.map((e) => (
                 <tr key={e.id}>
                   <td className="whitespace-nowrap">{e.date}</td>
@@ -403,7 +384,7 @@ function UnitFileView({ id }: { id: string }) {
                   <td>{e.techName ?? '—'}</td>
                 </tr>
               ))}
-            </Table>
+            </UnitTable>
           )}
           {f.leakCases.length > 0 && (
             <div className="mt-4">
@@ -432,7 +413,7 @@ function UnitFileView({ id }: { id: string }) {
           {f.workOrders.length === 0 ? (
             <p className="text-sm text-slate">No work on record for this unit.</p>
           ) : (
-            <Table caption="Every work order on this unit" head={['Work order', 'Opened', 'State', 'Visits', 'Complaint']}>
+            <UnitTable caption="Every work order on this unit" head={['Work order', 'Opened', 'State', 'Visits', 'Complaint']}>
               {f.workOrders.map((w) => (
                 <tr key={w.id}>
                   <td className="whitespace-nowrap">
@@ -464,7 +445,7 @@ function UnitFileView({ id }: { id: string }) {
                   </td>
                 </tr>
               ))}
-            </Table>
+            </UnitTable>
           )}
         </Card>
 
