@@ -111,6 +111,12 @@ function VisitScreen({ id }: { id: string }) {
           Entries from your last session on this phone were restored. They are not saved yet: save them below.
         </p>
       )}
+      {v.recordRefusal && (
+        // The API's own refusal: readings, findings and refrigerant are recorded on site.
+        <p role="status" className="mb-4 rounded-md border border-coolant/40 bg-coolant-tint p-3 text-sm">
+          {v.recordRefusal}
+        </p>
+      )}
       {!v.canWrite && v.status !== 'closed' && (
         <p className="mb-4 rounded-md bg-slate-faint p-3 text-sm">Read only: only {v.techName}, the assigned technician, records this visit’s work.</p>
       )}
