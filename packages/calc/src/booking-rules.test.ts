@@ -19,10 +19,16 @@ const tech = (over: Partial<Technician> & { id: string }): Technician => ({
 });
 
 describe('workOrderDueAt', () => {
-  it('is the earlier of the SLA due time and the latest acceptable start', () => {
-    expect(workOrderDueAt({ slaDueAt: '2027-03-10T22:00:00Z', latestAt: '2027-03-12T05:59:00Z' })).toBe('2027-03-10T22:00:00.000Z');
-    expect(workOrderDueAt({ slaDueAt: null, latestAt: '2027-03-12T05:59:00Z' })).toBe('2027-03-12T05:59:00.000Z');
-    expect(workOrderDueAt({ slaDueAt: new Date('2027-03-09T12:00:00Z') })).toBe('2027-03-09T12:00:00.000Z');
+  it('is the latest acceptable start and, for an emergency, the SLA due time: the earlier of the two', () => {
+    const latestAt = '2027-03-12T05:59:00Z';
+    expect(workOrderDueAt({ priority: 'emergency', slaDueAt: '2027-03-10T22:00:00Z', latestAt })).toBe('2027-03-10T22:00:00.000Z');
+    expect(workOrderDueAt({ priority: 'emergency', slaDueAt: '2027-03-13T22:00:00Z', latestAt })).toBe('2027-03-12T05:59:00.000Z');
+    expect(workOrderDueAt({ priority: 'emergency', slaDueAt: new Date('2027-03-09T12:00:00Z') })).toBe('2027-03-09T12:00:00.000Z');
+    expect(workOrderDueAt({ priority: 'normal', slaDueAt: null, latestAt })).toBe('2027-03-12T05:59:00.000Z');
+  });
+  it('leaves out the SLA time of other priorities (a target, not a rule)', () => {
+    expect(workOrderDueAt({ priority: 'high', slaDueAt: '2027-03-10T22:00:00Z', latestAt: null })).toBeNull();
+    expect(workOrderDueAt({ priority: 'normal', slaDueAt: '2027-03-10T22:00:00Z', latestAt: '2027-03-12T05:59:00Z' })).toBe('2027-03-12T05:59:00.000Z');
     expect(workOrderDueAt({ slaDueAt: null, latestAt: null })).toBeNull();
   });
 });

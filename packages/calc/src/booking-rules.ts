@@ -39,12 +39,15 @@ export interface RuleBreach {
 }
 
 /**
- * A work order's due time: the earlier of its SLA due time (emergencies: hours after the call) and
- * the latest acceptable start (leak-repair deadlines, return visits, planned maintenance's grace).
- * Null when it has neither.
+ * A work order's due time, the latest a booking may start: its latest acceptable start (leak-repair
+ * deadlines, return visits, planned maintenance's grace) and, for an emergency, its SLA due time — the
+ * earlier of the two. The SLA time of other priorities is a target the dispatcher balances, not a rule.
+ * Null when there is none.
  */
-export function workOrderDueAt(w: { slaDueAt?: Instant | null | undefined; latestAt?: Instant | null | undefined }): string | null {
-  const times = [w.slaDueAt, w.latestAt].filter((t): t is Instant => t !== null && t !== undefined).map((t) => instantMs(t, 'due time'));
+export function workOrderDueAt(w: { priority?: string | null | undefined; slaDueAt?: Instant | null | undefined; latestAt?: Instant | null | undefined }): string | null {
+  const times = [w.latestAt, w.priority === 'emergency' ? w.slaDueAt : null]
+    .filter((t): t is Instant => t !== null && t !== undefined)
+    .map((t) => instantMs(t, 'due time'));
   return times.length ? new Date(Math.min(...times)).toISOString() : null;
 }
 

@@ -129,6 +129,13 @@ describe('the due time is a rule', () => {
     expect(ok.body.booking).toMatchObject({ overrideRules: ['due_time'], overrideReason: 'Customer cannot open the plant room before 11:30' });
   });
 
+  it('leaves the SLA time of other priorities to the dispatcher (a target, not a rule)', async () => {
+    const w = await job({ priority: 'high', slaDueAt: new Date('2027-03-09T17:00:00Z') });
+    const res = await book(dispatcher, w.id, ana.id, '2027-03-10T15:00:00Z');
+    expect(res.status).toBe(201);
+    expect(res.body.booking).toMatchObject({ overrideRules: [], workOrder: { dueAt: null } });
+  });
+
   it('a leak-repair deadline (latest start) too, together with the working hours', async () => {
     const w = await job({ latestAt: new Date('2027-03-10T05:59:00Z'), requiredCertification: 'II' }); // Tue 23:59 CST
     const late = await book(dispatcher, w.id, ana.id, '2027-03-10T22:00:00Z'); // Wed 16:00 CST: after hours and after the deadline
@@ -205,8 +212,8 @@ describe('suggestions and evening out propose no booking that breaks a rule', ()
     expect(eli.reasons[0]).toBe('Lacks the skill "chiller"');
     expect(eli.reasons.join(' ')).not.toMatch(/free slot/);
 
-    // Due on Monday evening: nobody is proposed on Tuesday, each saying the due time is why.
-    await t.ctx.db.update(workOrders).set({ slaDueAt: new Date('2027-03-15T23:00:00Z') }).where(eq(workOrders.id, w.id));
+    // Due on Monday evening (a leak-repair deadline): nobody is proposed on Tuesday, each saying the due time is why.
+    await t.ctx.db.update(workOrders).set({ latestAt: new Date('2027-03-15T23:00:00Z') }).where(eq(workOrders.id, w.id));
     const due = await agent.post('/api/roster/suggest').send({ workOrderId: w.id, day: '2027-03-16' });
     const dee = due.body.candidates.find((c: { techId: string }) => c.techId === skilled.id);
     expect(dee).toMatchObject({ eligible: false, blockedBy: ['due_time'], proposedStart: null });
@@ -221,8 +228,8 @@ describe('suggestions and evening out propose no booking that breaks a rule', ()
     const plain = await makeUser(t.ctx.db, 'technician', branch.id, { name: 'Gus Hale', skills: [] });
     const agent = await signedInAgent(t.app, (await makeUser(t.ctx.db, 'dispatcher', branch.id)).email, TEST_PASSWORD);
     const chiller = await makeWorkOrder(t.ctx.db, { branchId: branch.id, siteId: site.site.id, requiredSkill: 'chiller', estimatedMinutes: 120 });
-    // Due on Sunday 2027-03-14, before the week of 2027-03-15 has any working hours.
-    const overdue = await makeWorkOrder(t.ctx.db, { branchId: branch.id, siteId: site.site.id, estimatedMinutes: 60, slaDueAt: new Date('2027-03-14T18:00:00Z') });
+    // An emergency due on Sunday 2027-03-14, before the week of 2027-03-15 has any working hours.
+    const overdue = await makeWorkOrder(t.ctx.db, { branchId: branch.id, siteId: site.site.id, estimatedMinutes: 60, priority: 'emergency', slaDueAt: new Date('2027-03-14T18:00:00Z') });
 
     const preview = await agent.post('/api/roster/even-out').send({ week: '2027-03-15' });
     expect(preview.status).toBe(200);

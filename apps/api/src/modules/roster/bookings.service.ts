@@ -33,7 +33,7 @@ const rulesAgree: Same<CalcBookingRule, BookingRule> = true;
 void rulesAgree;
 
 /** What the booking rules read of a work order. */
-export function ruleJob(w: Pick<typeof workOrders.$inferSelect, 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>): RuleJob {
+export function ruleJob(w: Pick<typeof workOrders.$inferSelect, 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>): RuleJob {
   return { requiredSkill: w.requiredSkill, requiredCertification: w.requiredCertification, dueAt: workOrderDueAt(w) };
 }
 
@@ -153,7 +153,7 @@ interface Placement {
   overrideReason?: string | undefined;
 }
 
-type WorkOrderRow = Pick<typeof workOrders.$inferSelect, 'id' | 'number' | 'branchId' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>;
+type WorkOrderRow = Pick<typeof workOrders.$inferSelect, 'id' | 'number' | 'branchId' | 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>;
 
 /** "another technician", "another time", "another technician or time". */
 function whatElse(rules: readonly BookingRule[]): string {

@@ -10,7 +10,7 @@ import { bookingRuleLabels, bookingRules } from '@coilpath/contract';
 import { ApiError } from '@/lib/api-client';
 
 /** What the rules read of a work order from the unplaced queue. */
-export const workRuleJob = (w: Pick<WorkOrder, 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>): RuleJob => ({
+export const workRuleJob = (w: Pick<WorkOrder, 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>): RuleJob => ({
   requiredSkill: w.requiredSkill,
   requiredCertification: w.requiredCertification,
   dueAt: workOrderDueAt(w),
