@@ -1,5 +1,6 @@
 /** Evening out a week's work across technicians: placing unplaced jobs and moving booked ones. */
-import { certificationSatisfies } from './certification';
+import { TZDate } from '@date-fns/tz';
+import { technicianBreaches } from './booking-rules';
 import { addDays, dayNumber, instantMs, type Instant, type IsoDate } from './dates';
 import { driveMinutes, type LatLon } from './geo';
 import {
@@ -127,13 +128,31 @@ function spreadOf(cells: readonly Cell[]): number {
   return hi >= lo ? hi - lo : 0;
 }
 
+/** "2027-03-12 17:00" in a zone. */
+function localWhen(ms: number, timeZone: string): string {
+  const z = new TZDate(ms, timeZone);
+  return `${zonedDate(new Date(ms), timeZone)} ${String(z.getHours()).padStart(2, '0')}:${String(z.getMinutes()).padStart(2, '0')}`;
+}
+
+/** Why no technician may take a job in the period, naming the rule (or rules) no one meets. */
+function whyNoTechnician(job: SchedulingJob, techs: readonly Technician[]): string {
+  const breaches = techs.map((t) => technicianBreaches(t, job));
+  const nobody = (rule: string) => breaches.every((bs) => bs.some((b) => b.rule === rule));
+  const cert = job.requiredCertification === 'universal' ? 'EPA 608 Universal' : `EPA 608 Type ${job.requiredCertification} or Universal`;
+  if (job.requiredSkill !== undefined && nobody('skill')) return `No technician has the skill "${job.requiredSkill}"`;
+  if (job.requiredCertification !== undefined && nobody('certification')) return `No technician holds ${cert}`;
+  if (breaches.every((bs) => bs.length > 0)) return `No technician has both the skill "${job.requiredSkill}" and ${cert}`;
+  return 'No technician who may do this work (skill, EPA 608) works in the period';
+}
+
 /**
  * Proposes bookings for unplaced jobs over a week so that every technician stays within capacity
  * (booked minutes on a local day never exceed working minutes, and every proposal sits inside
  * working hours without overlapping anything), while keeping load even (minimising the sum of
- * squared load ratios) and travel low (insertion detour). Hard rules as in rankTechnicians (skill,
- * EPA 608). Greedy placement (highest priority, fewest options and longest jobs first), then
- * improvement passes that move a proposal when that lowers the objective.
+ * squared load ratios) and travel low (insertion detour). The booking rules hold as in rankTechnicians
+ * (skill, EPA 608, working hours, a start by the job's due time). Greedy placement (highest priority,
+ * fewest options and longest jobs first), then improvement passes that move a proposal when that
+ * lowers the objective.
  *
  * Then booked jobs listed in `movable` (not fixed, not started) may move: steepest descent, one move
  * at a time, always the single move (booked job → technician, day and earliest free slot) that
@@ -177,8 +196,7 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
   const candidatesFor = (job: SchedulingJob): Cell[] =>
     cells.filter((c) => {
       if (c.capacity <= 0) return false;
-      if (job.requiredSkill !== undefined && !c.tech.skills.includes(job.requiredSkill)) return false;
-      if (!certificationSatisfies(c.tech.epa608, job.requiredCertification)) return false;
+      if (technicianBreaches(c.tech, job).length > 0) return false;
       if (job.day !== undefined && job.day !== c.day) return false;
       return true;
     });
@@ -239,12 +257,19 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
   for (const job of order) {
     const cs = cands.get(job.id) ?? [];
     if (cs.length === 0) {
-      unplaced.push({ jobId: job.id, reason: 'No technician has the skill and EPA 608 certification and works in the period' });
+      unplaced.push({ jobId: job.id, reason: whyNoTechnician(job, input.techs) });
       continue;
     }
     const best = place(job, cs);
     if (!best) {
-      unplaced.push({ jobId: job.id, reason: 'No free slot within working hours and capacity in the period' });
+      const due = job.dueAt === undefined || job.dueAt === null ? null : instantMs(job.dueAt, `job ${job.id} due time`);
+      const dueBlocks = due !== null && place({ ...job, dueAt: null }, cs) !== null;
+      unplaced.push({
+        jobId: job.id,
+        reason: dueBlocks
+          ? `Due by ${localWhen(due!, cs[0]!.tech.timeZone)}: no free slot within working hours and capacity starts by then`
+          : 'No free slot within working hours and capacity in the period',
+      });
       continue;
     }
     const p: Placed = { job, cell: best.cell, start: best.slot.start, end: best.slot.end, travel: best.slot.travelMinutes, detour: best.slot.detourMinutes };

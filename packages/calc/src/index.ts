@@ -9,6 +9,7 @@ export * from './geo';
 export * from './route';
 export * from './certification';
 export * from './schedule';
+export * from './booking-rules';
 export * from './even-out';
 export * from './agreements';
 export * from './dates';

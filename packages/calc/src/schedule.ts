@@ -4,7 +4,8 @@
  * so days that span a daylight-saving change are handled.
  */
 import { TZDate } from '@date-fns/tz';
-import { certificationSatisfies, type Epa608Level, type Epa608Requirement } from './certification';
+import { technicianBreaches, type BookingRule } from './booking-rules';
+import { type Epa608Level, type Epa608Requirement } from './certification';
 import { addDays, dayNumber, instantMs, type Instant, type IsoDate } from './dates';
 import { driveMinutes, type DriveOptions, type LatLon } from './geo';
 
@@ -67,8 +68,13 @@ export interface SchedulingJob {
   day?: IsoDate;
   /** Not before this instant. */
   earliest?: Instant;
-  /** Finished by this instant. */
+  /** Finished by this instant (the customer's window). */
   latest?: Instant;
+  /**
+   * Started by this instant: the work order's due time (`workOrderDueAt`). A booking starting later
+   * breaks the due-time booking rule, so no slot is proposed after it.
+   */
+  dueAt?: Instant | null;
   /** Same as earliest/latest, as a pair. */
   window?: { from: Instant; to: Instant };
 }
@@ -215,11 +221,15 @@ export interface Slot {
   freeMinutes: number;
 }
 
-/** The job's own time limits as instants. */
-function jobLimits(job: SchedulingJob): { earliest: number; latest: number } {
+/** The job's own time limits as instants: start from `earliest`, by `due`, and end by `latest`. */
+function jobLimits(job: SchedulingJob): { earliest: number; latest: number; due: number } {
   const e = job.earliest ?? job.window?.from;
   const l = job.latest ?? job.window?.to;
-  return { earliest: e === undefined ? -Infinity : instantMs(e, `job ${job.id} earliest`), latest: l === undefined ? Infinity : instantMs(l, `job ${job.id} latest`) };
+  return {
+    earliest: e === undefined ? -Infinity : instantMs(e, `job ${job.id} earliest`),
+    latest: l === undefined ? Infinity : instantMs(l, `job ${job.id} latest`),
+    due: job.dueAt === undefined || job.dueAt === null ? Infinity : instantMs(job.dueAt, `job ${job.id} due time`),
+  };
 }
 
 /**
@@ -237,7 +247,7 @@ export function findSlot(
 ): Slot | null {
   const win = window === undefined ? workingWindow(tech, day) : window;
   if (!win) return null;
-  const { earliest, latest } = jobLimits(job);
+  const { earliest, latest, due } = jobLimits(job);
   const step = (opts.slotStepMinutes ?? 5) * MINUTE;
   const dur = job.durationMinutes * MINUTE;
   const here: LatLon = { lat: job.lat, lon: job.lon };
@@ -255,7 +265,7 @@ export function findSlot(
     s = Math.ceil(s / step) * step;
     const e = s + dur;
     const onward = next?.loc ? driveMinutes(here, next.loc, opts) : 0;
-    if (e + onward * MINUTE <= gapEnd && e <= win.end && e <= latest) {
+    if (s <= due && e + onward * MINUTE <= gapEnd && e <= win.end && e <= latest) {
       const direct = next?.loc ? driveMinutes(prevLoc, next.loc, opts) : 0;
       return { start: s, end: e, travelMinutes: toJob, detourMinutes: toJob + onward - direct, freeMinutes: Math.max(0, free) };
     }
@@ -281,6 +291,12 @@ export interface RankedTechnician {
   score: number | null;
   /** Plain-language reasons, hard-rule failures first. */
   reasons: string[];
+  /**
+   * What keeps the technician from being proposed, in the order of `reasons`: a booking rule
+   * (skill, certification, working hours, due time) or, with every rule kept, no free slot long
+   * enough ('free_time') or none inside the job's requested window ('window'). Empty when eligible.
+   */
+  blockedBy: CandidateBlock[];
   /** Earliest free start on the day (ISO-8601), for one-click booking; null when none. */
   proposedStart: string | null;
   proposedEnd: string | null;
@@ -291,6 +307,9 @@ export interface RankedTechnician {
   /** Earlier bookings of this technician on the job's unit. */
   visitsToUnit: number;
 }
+
+/** Why a technician is not proposed for a job on a day. */
+export type CandidateBlock = BookingRule | 'free_time' | 'window';
 
 export interface RankOptions extends SlotOptions {
   /** The local day to book; defaults to job.day, else the local date of job.earliest. */
@@ -303,45 +322,79 @@ function fmtMinutes(min: number): string {
   return h > 0 ? `${h} h ${m % 60} min` : `${m} min`;
 }
 
+/** A local wall time and, when it is another day than `day`, its date: "17:00", "2027-03-12 17:00". */
+function whenOn(ms: number, day: IsoDate, timeZone: string): string {
+  const z = new TZDate(ms, timeZone);
+  const time = `${String(z.getHours()).padStart(2, '0')}:${String(z.getMinutes()).padStart(2, '0')}`;
+  const d = zonedDate(new Date(ms), timeZone);
+  return d === day ? time : `${d} ${time}`;
+}
+
 /**
- * Ranks technicians for a job. Hard rules exclude: missing skill, EPA 608 certification that does
- * not cover the job's refrigerant work, not working that day, no free slot long enough. Soft rules
- * rank the rest (score = 50 + up to 20 for free time + up to 10 for an early start − up to 25 for
- * travel from the previous stop (capped at 90 min) + 15 for having worked on this unit before).
+ * Ranks technicians for a job. Hard rules exclude: the booking rules of `booking-rules.ts` (missing
+ * skill, EPA 608 certification that does not cover the job's refrigerant work, not working that day,
+ * no start by the job's due time) and no free slot long enough. Each excluded technician says which
+ * (`blockedBy`, and the reasons): "no free slot" only when the free time really is too short. Soft
+ * rules rank the rest (score = 50 + up to 20 for free time + up to 10 for an early start − up to 25
+ * for travel from the previous stop (capped at 90 min) + 15 for having worked on this unit before).
  * Eligible technicians come first by score (ties: earlier start, then id), excluded ones after.
  */
 export function rankTechnicians(job: SchedulingJob, techs: readonly Technician[], bookings: readonly Booking[], opts: RankOptions = {}): RankedTechnician[] {
   if (!(job.durationMinutes > 0) || !Number.isFinite(job.durationMinutes)) throw new RangeError('job.durationMinutes must be a finite number greater than 0');
+  const limits = jobLimits(job);
   const ranked = techs.map((tech): RankedTechnician => {
     const day = opts.day ?? job.day ?? (job.earliest ?? job.window?.from ? zonedDate((job.earliest ?? job.window?.from) as Instant, tech.timeZone) : null);
     if (!day) throw new RangeError('rankTechnicians needs a day: opts.day, job.day or job.earliest');
     const reasons: string[] = [];
     const hard: string[] = [];
-    if (job.requiredSkill !== undefined) {
-      if (tech.skills.includes(job.requiredSkill)) reasons.push(`Has the skill "${job.requiredSkill}"`);
-      else hard.push(`Lacks the skill "${job.requiredSkill}"`);
-    }
-    if (job.requiredCertification !== undefined) {
+    const blockedBy: CandidateBlock[] = [];
+    const block = (why: CandidateBlock, reason: string) => {
+      blockedBy.push(why);
+      hard.push(reason);
+    };
+    for (const b of technicianBreaches(tech, job)) block(b.rule, b.reason);
+    if (job.requiredSkill !== undefined && !blockedBy.includes('skill')) reasons.push(`Has the skill "${job.requiredSkill}"`);
+    if (job.requiredCertification !== undefined && !blockedBy.includes('certification')) {
       const label = (l: string) => (l === 'universal' ? 'Universal' : `Type ${l}`);
-      if (certificationSatisfies(tech.epa608, job.requiredCertification)) reasons.push(`EPA 608 ${label(tech.epa608)} covers the ${label(job.requiredCertification)} refrigerant work`);
-      else hard.push(tech.epa608 === 'none' ? `No EPA 608 certification; the refrigerant work needs ${label(job.requiredCertification)}` : `EPA 608 ${label(tech.epa608)} does not cover the ${label(job.requiredCertification)} refrigerant work`);
+      reasons.push(`EPA 608 ${label(tech.epa608)} covers the ${label(job.requiredCertification)} refrigerant work`);
     }
     const busy = intervalsFor(bookings, tech.id);
     const visitsToUnit = job.unitId === undefined ? 0 : busy.filter((b) => b.unitId === job.unitId).length;
     const win = workingWindow(tech, day);
     let slot: Slot | null = null;
     let freeMinutes = 0;
-    if (!win) hard.push(`Not working on ${day}`);
+    if (!win) block('working_hours', `Not working on ${day}`);
     else {
-      slot = findSlot(tech, day, job, busy, opts);
+      slot = findSlot(tech, day, job, busy, opts, win);
       let free = (win.end - win.start) / MINUTE;
       for (const b of busy) free -= overlapMinutes(b.start, b.end, win.start, win.end);
       freeMinutes = Math.max(0, free);
-      if (!slot) hard.push(`No free slot of ${fmtMinutes(job.durationMinutes)} on ${day} (${fmtMinutes(freeMinutes)} free)`);
+      if (!slot) {
+        // Say what is really in the way: the due time, the job's window, or the free time itself.
+        const dur = fmtMinutes(job.durationMinutes);
+        const { earliest: _e, latest: _l, window: _w, dueAt: _d, ...open } = job;
+        const dueAt = job.dueAt;
+        const withoutDue = dueAt !== undefined && dueAt !== null ? findSlot(tech, day, { ...job, dueAt: null }, busy, opts, win) : null;
+        if (dueAt !== undefined && dueAt !== null && (limits.due < win.start || withoutDue)) {
+          const due = whenOn(limits.due, day, tech.timeZone);
+          block(
+            'due_time',
+            limits.due < win.start
+              ? `Due by ${due}, before this day's working hours`
+              : `Due by ${due}; no free slot of ${dur} starts by then (${fmtMinutes(freeMinutes)} free on ${day})`,
+          );
+        } else if (freeMinutes >= job.durationMinutes && findSlot(tech, day, open, busy, opts, win)) {
+          const from = whenOn(Math.max(limits.earliest, win.start), day, tech.timeZone);
+          const to = whenOn(Math.min(limits.latest, win.end), day, tech.timeZone);
+          block('window', `No free slot of ${dur} on ${day} between ${from} and ${to}, the time the job allows (${fmtMinutes(freeMinutes)} free)`);
+        } else {
+          block('free_time', `No free slot of ${dur} on ${day} (${fmtMinutes(freeMinutes)} free)`);
+        }
+      }
     }
     const base = { techId: tech.id, name: tech.name, freeMinutes, visitsToUnit };
     if (hard.length > 0 || !slot || !win) {
-      return { ...base, eligible: false, score: null, reasons: [...hard, ...reasons], proposedStart: null, proposedEnd: null, travelMinutes: slot ? slot.travelMinutes : null };
+      return { ...base, eligible: false, score: null, reasons: [...hard, ...reasons], blockedBy, proposedStart: null, proposedEnd: null, travelMinutes: slot ? slot.travelMinutes : null };
     }
     const capacity = (win.end - win.start) / MINUTE;
     const freeShare = Math.min(1, freeMinutes / capacity);
@@ -356,6 +409,7 @@ export function rankTechnicians(job: SchedulingJob, techs: readonly Technician[]
       eligible: true,
       score: Math.round(score * 10) / 10,
       reasons,
+      blockedBy,
       proposedStart: new Date(slot.start).toISOString(),
       proposedEnd: new Date(slot.end).toISOString(),
       travelMinutes: slot.travelMinutes,

@@ -6,8 +6,42 @@ import { requiredCertificationSchema } from './work-orders';
 /** The longest single booking (a job longer than a day is split into several visits). */
 export const maxBookingMinutes = 16 * 60;
 
+/**
+ * The booking rules a dispatcher or manager may book against with a stated reason (DESIGN §3
+ * "Override"). Checked by `bookingBreaches` in `@coilpath/calc`, which says what each one is.
+ */
+export const bookingRules = ['skill', 'certification', 'working_hours', 'due_time'] as const;
+export const bookingRuleSchema = z.enum(bookingRules);
+export type BookingRule = z.infer<typeof bookingRuleSchema>;
+export const bookingRuleLabels: Record<BookingRule, string> = {
+  skill: 'required skill',
+  certification: 'EPA 608 certification',
+  working_hours: 'working hours',
+  due_time: 'due time',
+};
+/** The code of a 409 refusing a booking that breaks one rule (`booking_rules` when it breaks several). */
+export const bookingRuleCodes: Record<BookingRule, string> = {
+  skill: 'skill',
+  certification: 'certification',
+  working_hours: 'outside_hours',
+  due_time: 'past_due',
+};
+
+/** Details of a 409 refusing a booking for its rules: the rules broken and not overridden, each with what is wrong. */
+export interface BookingRuleRefusal {
+  /** The first of `rules` (kept for clients that read one). */
+  rule: BookingRule;
+  rules: BookingRule[];
+  breaches: { rule: BookingRule; message: string }[];
+}
+
 const overrideFields = {
-  /** The dispatcher books outside the technician's working hours on purpose (recorded with the reason). */
+  /**
+   * Rules this booking may break on purpose; the one reason covers them all, and is kept with the
+   * booking (and who gave it). Only rules the booking really breaks are recorded.
+   */
+  overrideRules: z.array(bookingRuleSchema).max(bookingRules.length).optional(),
+  /** Short for `overrideRules: ['working_hours']` (the first override Coilpath had). */
   overrideHours: z.boolean().optional(),
   overrideReason: z.string().trim().max(limits.shortText).optional(),
 };
@@ -18,9 +52,16 @@ function spanOk(v: { startAt?: string | undefined; endAt?: string | undefined })
   return d > 0 && d <= maxBookingMinutes * 60_000;
 }
 const spanIssue = { message: 'The booking must end after it starts and last at most 16 hours', path: ['endAt'] };
-const reasonOk = (v: { overrideHours?: boolean | undefined; overrideReason?: string | undefined }) =>
-  !v.overrideHours || !!v.overrideReason;
-const reasonIssue = { message: 'Say why this booking is outside the working hours', path: ['overrideReason'] };
+const reasonOk = (v: { overrideHours?: boolean | undefined; overrideRules?: BookingRule[] | undefined; overrideReason?: string | undefined }) =>
+  !(v.overrideHours || v.overrideRules?.length) || !!v.overrideReason;
+const reasonIssue = { message: 'Say why this booking may break the rule', path: ['overrideReason'] };
+
+/** The rules a create or update request overrides (`overrideRules`, plus working hours for `overrideHours`). */
+export function requestedOverrides(v: { overrideHours?: boolean | undefined; overrideRules?: BookingRule[] | undefined }): BookingRule[] {
+  const rules = new Set<BookingRule>(v.overrideRules ?? []);
+  if (v.overrideHours) rules.add('working_hours');
+  return bookingRules.filter((r) => rules.has(r));
+}
 
 /** Book an unplaced work order on a technician's calendar. `endAt` defaults to start + the job's estimate. */
 export const bookingCreateSchema = z
@@ -71,8 +112,14 @@ export const bookingSchema = z.object({
   endAt: z.string(),
   version: z.number().int(),
   fixed: z.boolean(),
+  /** The booking is outside the technician's working hours on purpose (`overrideRules` holds `working_hours`). */
   hoursOverride: z.boolean(),
+  /** The booking rules it breaks on purpose, in rule order; empty when none. */
+  overrideRules: z.array(bookingRuleSchema),
+  /** Why, as the dispatcher or manager said it; null when nothing is overridden. */
   overrideReason: z.string().nullable(),
+  /** Who overrode the rules. */
+  overrideBy: z.object({ id: idSchema, name: z.string() }).nullable(),
   visitId: idSchema.nullable(),
   workOrder: z.object({
     number: z.number().int(),
@@ -84,8 +131,11 @@ export const bookingSchema = z.object({
     unitTag: z.string().nullable(),
     unitMake: z.string().nullable(),
     unitModel: z.string().nullable(),
+    requiredSkill: z.string().nullable(),
     requiredCertification: requiredCertificationSchema.nullable(),
     estimatedMinutes: z.number().int(),
+    /** The work order's due time (`workOrderDueAt` in @coilpath/calc): a later start breaks the due-time rule. */
+    dueAt: z.string().nullable(),
     leakRepairDueDate: isoDateSchema.nullable(),
   }),
 });
@@ -142,6 +192,8 @@ export const candidateSchema = z.object({
   eligible: z.boolean(),
   score: z.number().nullable(),
   reasons: z.array(z.string()),
+  /** What keeps the technician from being proposed: a booking rule, 'free_time' (too little) or 'window' (none in the job's time). */
+  blockedBy: z.array(z.enum([...bookingRules, 'free_time', 'window'])),
   proposedStart: z.string().nullable(),
   proposedEnd: z.string().nullable(),
   travelMinutes: z.number().nullable(),

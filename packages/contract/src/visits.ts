@@ -301,6 +301,30 @@ export interface VisitUnitDto {
 
 export type VisitStatus = 'booked' | 'en_route' | 'on_site' | 'closed';
 
+/**
+ * The rule for recording work on a visit: readings, findings and refrigerant are recorded on a visit
+ * that is on site (until it is closed). The API refuses others with 409 and this code and message;
+ * the Visit screen shows the same message (`VisitDetail.recordRefusal`) instead of the forms.
+ */
+export function recordingRefusal(status: VisitStatus): { code: 'not_on_site' | 'visit_closed'; message: string } | null {
+  switch (status) {
+    case 'on_site':
+      return null;
+    case 'closed':
+      return { code: 'visit_closed', message: 'This visit is already closed; it takes no more work. Add a return visit if more is needed.' };
+    case 'en_route':
+      return {
+        code: 'not_on_site',
+        message: 'This visit is en route, not on site yet. Readings, findings and refrigerant are recorded on site: mark yourself on site first.',
+      };
+    default:
+      return {
+        code: 'not_on_site',
+        message: 'This visit is booked, not started. Readings, findings and refrigerant are recorded on site: go en route, then mark yourself on site.',
+      };
+  }
+}
+
 export interface VisitDetail {
   id: string;
   branchId: string;
@@ -357,6 +381,10 @@ export interface VisitDetail {
   events: VisitEventDto[];
   /** True when the signed-in person is the assigned technician and the visit is not closed. */
   canWrite: boolean;
+  /** `canWrite` and the visit is on site: readings, findings and refrigerant may be recorded (`recordingRefusal`). */
+  canRecord: boolean;
+  /** For the assigned technician of an open visit not on site yet: why nothing can be recorded (the API's refusal). */
+  recordRefusal: string | null;
 }
 
 export interface SummaryMailResult {

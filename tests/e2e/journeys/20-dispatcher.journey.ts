@@ -154,8 +154,10 @@ export async function run(ctx: JourneyContext) {
     assert.equal(await start.inputValue(), at, `the start is the server’s proposal for ${techs[0]!.name} (${at})`);
     ctx.step(`dropped on ${techs[0]!.name}, ${firstDay}: the form proposes ${at}`);
   } else {
-    await dialog.getByRole('status').filter({ hasText: /has no free time for this job that day/ }).waitFor();
-    ctx.step(`dropped on ${techs[0]!.name}, ${firstDay}: no free time that day, and the form says why`);
+    // Too little free time, or a booking rule (skill, certification, due time): the form says which.
+    const why = dialog.getByRole('status').filter({ hasText: /has no free time for this job that day|is not proposed for this job that day/ });
+    await why.waitFor();
+    ctx.step(`dropped on ${techs[0]!.name}, ${firstDay}: not proposed, and the form says why: "${(await why.innerText()).trim()}"`);
     // Choosing a suggested technician instead: the start follows that technician's proposal.
     const offer = dialog.locator('ol > li').getByRole('button', { name: /^Book \S+ at \d\d:\d\d$/ }).first();
     if ((await offer.count()) > 0) {

@@ -22,6 +22,7 @@ import {
 } from 'drizzle-orm/pg-core';
 import type {
   AlarmSource,
+  BookingRule,
   ApplianceCategory,
   AttachmentKind,
   CauseCode,
@@ -360,6 +361,15 @@ export const bookings = pgTable('bookings', {
   /** Optimistic-concurrency version: a move based on a stale version is refused. */
   version: integer().notNull().default(1),
   fixed: boolean().notNull().default(false),
+  /**
+   * The booking rules it breaks on purpose (`BookingRule`: skill, certification, working_hours, due_time), in
+   * rule order, with the one reason and who gave it (`overrideReason`, `overrideById`). Empty when none.
+   */
+  overrideRules: jsonb().$type<BookingRule[]>().notNull().default([]),
+  /**
+   * Outside the technician's working hours on purpose: written as `overrideRules` holding working_hours. Rows
+   * booked before `override_rules` existed (migration 0008) have this flag alone; readers take either.
+   */
   hoursOverride: boolean().notNull().default(false),
   overrideReason: text(),
   overrideById: uuid().references(() => users.id),

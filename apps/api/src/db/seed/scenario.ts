@@ -1,4 +1,5 @@
 import type {
+  BookingRule,
   CauseCode,
   CauseOrigin,
   Epa608Type,
@@ -461,10 +462,17 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     return wo;
   }
 
+  /** Work booked against a booking rule on purpose (a story says which and why), by the branch's dispatcher. */
+  const bookedAgainst = new Map<string, { rules: BookingRule[]; reason: string }>();
+
   function book(wo: WoRow, tech: Tech, startAt: Date, endAt: Date, bookedAt: Date) {
     const bookingId = rng.uuid();
+    const against = bookedAgainst.get(wo.id);
     rows.bookings.push({
       id: bookingId, branchId: wo.branchId, workOrderId: wo.id, techId: tech.id, startAt, endAt, version: 1,
+      ...(against
+        ? { overrideRules: against.rules, hoursOverride: against.rules.includes('working_hours'), overrideReason: against.reason, overrideById: tech.branch.dispatcherId }
+        : {}),
       createdById: tech.branch.dispatcherId, createdAt: bookedAt, updatedAt: bookedAt,
     });
     const visit: VisitRow = {
@@ -1049,6 +1057,8 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       complaint: `Replace WIF-1 evaporator coil (leak case, repair was due ${due})`, estimatedMinutes: 240, originWorkOrderId: sc2.wo.id,
       requiredSkill: 'refrigeration', requiredCertification: 'II', returnNeeds: ['parts'], latestAt: wallTime(due, 17 * 60, mesa.tz), slaDueAt: null, leakCaseId: caseId,
     });
+    // The deadline has passed, so booking the repair breaks the due-time rule: the dispatcher overrode it, saying why.
+    bookedAgainst.set(repair.id, { rules: ['due_time'], reason: 'Coil on back-order from the manufacturer; booked for the day it arrives' });
     stops.push({ tech: walkInTech, date: weekFirst, wo: repair, minutes: 240, first: true });
     rows.leakCases.push({
       id: caseId, branchId: mesa.id, unitId: u.id, triggeringEventId: triggerId, openedOn: triggerDate, rule: cover?.rule ?? '40 CFR 84.106', method: 'annualizing',

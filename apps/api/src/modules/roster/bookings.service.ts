@@ -1,12 +1,25 @@
 /**
- * Bookings: placing work orders on technicians' calendars. The rules (certification, working hours,
- * no double booking, optimistic versions) are enforced here, inside one transaction per change,
- * with the technician's user row locked so two bookings of one technician cannot both pass.
+ * Bookings: placing work orders on technicians' calendars. Enforced here, inside one transaction per
+ * change, with the technician's user row locked so two bookings of one technician cannot both pass:
+ * an active technician of the work order's branch, no double booking, optimistic versions, and the
+ * booking rules of @coilpath/calc (skill, EPA 608 certification, working hours, due time), which a
+ * dispatcher or manager may override with a reason, kept on the booking with who gave it.
  */
 import { and, asc, eq, gt, inArray, lt, ne, type SQL } from 'drizzle-orm';
-import type { Booking, SessionUser } from '@coilpath/contract';
-import { epa608Labels, workOrderLabel, bookingCreateSchema, bookingUpdateSchema, bookingListQuerySchema, maxBookingMinutes } from '@coilpath/contract';
-import { certificationSatisfies, workingWindow } from '@coilpath/calc';
+import { alias } from 'drizzle-orm/pg-core';
+import type { Booking, BookingRule, BookingRuleRefusal, SessionUser } from '@coilpath/contract';
+import {
+  bookingCreateSchema,
+  bookingListQuerySchema,
+  bookingRuleCodes,
+  bookingRuleLabels,
+  bookingRules,
+  bookingUpdateSchema,
+  maxBookingMinutes,
+  requestedOverrides,
+  workOrderLabel,
+} from '@coilpath/contract';
+import { bookingBreaches, unoverridden, workingWindow, workOrderDueAt, type BookingRule as CalcBookingRule, type RuleBreach, type RuleJob } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
 import { attachments, auditEvents, bookings, branches, findings, leakCases, readings, sites, units, users, visits, workOrders } from '../../db/schema';
@@ -14,21 +27,44 @@ import { assertBranch, branchScope, resolveBranch } from '../../auth/middleware'
 import { conflict, notFound } from '../../lib/errors';
 import { localDay, localTime, toCalcTechnician } from './scheduling';
 
+/** The rule names of @coilpath/calc (which checks them) and @coilpath/contract (which carries them) are one list. */
+type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
+const rulesAgree: Same<CalcBookingRule, BookingRule> = true;
+void rulesAgree;
+
+/** What the booking rules read of a work order. */
+export function ruleJob(w: Pick<typeof workOrders.$inferSelect, 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>): RuleJob {
+  return { requiredSkill: w.requiredSkill, requiredCertification: w.requiredCertification, dueAt: workOrderDueAt(w) };
+}
+
+/** The rules a stored booking overrides (a row from before `override_rules` has only `hours_override`). */
+function storedOverrides(b: Pick<typeof bookings.$inferSelect, 'overrideRules' | 'hoursOverride'>): BookingRule[] {
+  const rules = new Set<BookingRule>(b.overrideRules);
+  if (b.hoursOverride) rules.add('working_hours');
+  return bookingRules.filter((r) => rules.has(r));
+}
+
 const MINUTE = 60_000;
+
+const overrider = alias(users, 'overrider');
 
 function selectBookings(db: Tx) {
   return db
     .select({
       b: bookings,
       visitId: visits.id,
+      overrideByName: overrider.name,
       wo: {
         number: workOrders.number,
         kind: workOrders.kind,
         state: workOrders.state,
         priority: workOrders.priority,
         complaint: workOrders.complaint,
+        requiredSkill: workOrders.requiredSkill,
         requiredCertification: workOrders.requiredCertification,
         estimatedMinutes: workOrders.estimatedMinutes,
+        slaDueAt: workOrders.slaDueAt,
+        latestAt: workOrders.latestAt,
       },
       siteName: sites.name,
       unitTag: units.tag,
@@ -41,12 +77,15 @@ function selectBookings(db: Tx) {
     .innerJoin(sites, eq(sites.id, workOrders.siteId))
     .leftJoin(units, eq(units.id, workOrders.unitId))
     .leftJoin(leakCases, eq(leakCases.id, workOrders.leakCaseId))
-    .leftJoin(visits, eq(visits.bookingId, bookings.id));
+    .leftJoin(visits, eq(visits.bookingId, bookings.id))
+    .leftJoin(overrider, eq(overrider.id, bookings.overrideById));
 }
 type Row = Awaited<ReturnType<ReturnType<typeof selectBookings>['execute']>>[number];
 
 function toBooking(r: Row): Booking {
   const b = r.b;
+  const w = r.wo;
+  const rules = storedOverrides(b);
   return {
     id: b.id,
     branchId: b.branchId,
@@ -56,15 +95,25 @@ function toBooking(r: Row): Booking {
     endAt: b.endAt.toISOString(),
     version: b.version,
     fixed: b.fixed,
-    hoursOverride: b.hoursOverride,
-    overrideReason: b.overrideReason,
+    hoursOverride: rules.includes('working_hours'),
+    overrideRules: rules,
+    overrideReason: rules.length ? b.overrideReason : null,
+    overrideBy: rules.length && b.overrideById ? { id: b.overrideById, name: r.overrideByName ?? 'Someone no longer listed' } : null,
     visitId: r.visitId,
     workOrder: {
-      ...r.wo,
+      number: w.number,
+      kind: w.kind,
+      state: w.state,
+      priority: w.priority,
+      complaint: w.complaint,
       siteName: r.siteName,
       unitTag: r.unitTag,
       unitMake: r.unitMake,
       unitModel: r.unitModel,
+      requiredSkill: w.requiredSkill,
+      requiredCertification: w.requiredCertification,
+      estimatedMinutes: w.estimatedMinutes,
+      dueAt: workOrderDueAt(w),
       leakRepairDueDate: r.leakRepairDueDate,
     },
   };
@@ -99,25 +148,42 @@ interface Placement {
   techId: string;
   startAt: Date;
   endAt: Date;
-  overrideHours?: boolean | undefined;
+  /** The rules the request overrides, and why. */
+  overrideRules: BookingRule[];
   overrideReason?: string | undefined;
 }
 
-interface WorkOrderRow {
-  id: string;
-  number: number;
-  branchId: string;
-  requiredCertification: (typeof workOrders.$inferSelect)['requiredCertification'];
+type WorkOrderRow = Pick<typeof workOrders.$inferSelect, 'id' | 'number' | 'branchId' | 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>;
+
+/** "another technician", "another time", "another technician or time". */
+function whatElse(rules: readonly BookingRule[]): string {
+  const who = rules.some((r) => r === 'skill' || r === 'certification');
+  const when = rules.some((r) => r === 'working_hours' || r === 'due_time');
+  return who && when ? 'another technician or time' : who ? 'another technician' : 'another time';
 }
 
-const weekdayName = (day: string) => new Date(`${day}T12:00:00Z`).toLocaleDateString('en-US', { weekday: 'long', day: 'numeric', month: 'long', timeZone: 'UTC' });
+const joinAnd = (items: readonly string[]) => (items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`);
+
+/** The 409 for a placement that breaks rules nobody overrode: names each one, and what the dispatcher can do. */
+function ruleRefusal(open: readonly RuleBreach[], extra: Record<string, unknown>) {
+  const rules = open.map((b) => b.rule);
+  const details: BookingRuleRefusal & Record<string, unknown> = {
+    rule: rules[0]!,
+    rules,
+    breaches: open.map((b) => ({ rule: b.rule, message: b.message })),
+    ...extra,
+  };
+  const message = `${open.map((b) => b.message).join(' ')} Pick ${whatElse(rules)}, or override the ${joinAnd(rules.map((r) => bookingRuleLabels[r]))} with a reason.`;
+  return conflict(rules.length === 1 ? bookingRuleCodes[rules[0]!] : 'booking_rules', message, details);
+}
 
 /**
- * Checks a placement against the booking rules; locks the technician's user row first so that a
- * concurrent booking of the same technician waits for this transaction. Returns whether the
- * working-hours rule was overridden.
+ * Checks a placement; locks the technician's user row first so that a concurrent booking of the same
+ * technician waits for this transaction. Refuses outright a technician who is inactive or of another
+ * branch and a double booking; refuses a broken booking rule the request does not override. Returns the
+ * rules the placement breaks (all of them overridden).
  */
-async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Placement, excludeBookingId?: string): Promise<{ overridden: boolean }> {
+async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Placement, excludeBookingId?: string): Promise<{ overridden: RuleBreach[] }> {
   const [tech] = await tx
     .select({
       id: users.id,
@@ -141,40 +207,11 @@ async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Pl
   if (tech.branchId !== wo.branchId) {
     throw conflict('other_branch', `${tech.name} works in another branch than ${workOrderLabel(wo.number)}. Pick a technician of the work order's branch.`);
   }
-
-  // Rule 1: EPA 608 certification for the refrigerant work.
-  if (!certificationSatisfies(tech.epa608Type, wo.requiredCertification)) {
-    const needs = wo.requiredCertification ? epa608Labels[wo.requiredCertification] : '';
-    const has = tech.epa608Type === 'none' ? 'holds no EPA 608 certification' : `holds EPA 608 ${epa608Labels[tech.epa608Type]}`;
-    throw conflict(
-      'certification',
-      `${tech.name} is not certified for this refrigerant work (needs EPA 608 ${needs}; ${tech.name} ${has}). Pick another technician or change the work.`,
-      { rule: 'certification', needs: wo.requiredCertification, has: tech.epa608Type },
-    );
-  }
-
-  // Rule 2: inside the technician's working hours (the dispatcher may override, with a reason).
   const [branch] = await tx.select({ id: branches.id, timeZone: branches.timeZone, baseLat: branches.baseLat, baseLon: branches.baseLon }).from(branches).where(eq(branches.id, wo.branchId)).limit(1);
   const tz = branch!.timeZone;
-  const day = localDay(p.startAt, tz);
-  const win = workingWindow(toCalcTechnician(tech, branch!), day);
-  const inside = !!win && p.startAt.getTime() >= win.start && p.endAt.getTime() <= win.end;
-  let overridden = false;
-  if (!inside) {
-    if (p.overrideHours && p.overrideReason) overridden = true;
-    else {
-      const runs = `${localTime(p.startAt, tz)}–${localTime(p.endAt, tz)}${localDay(p.endAt, tz) !== day ? ' the next day' : ''}`;
-      const message = win
-        ? `${tech.name} works ${localTime(win.start, tz)}–${localTime(win.end, tz)} on ${weekdayName(day)}; this booking runs ${runs} (${tz}). Pick a time inside those hours, or override the working hours with a reason.`
-        : `${tech.name} does not work on ${weekdayName(day)}. Pick another day or technician, or override the working hours with a reason.`;
-      throw conflict('outside_hours', message, {
-        rule: 'working_hours',
-        hours: win ? { start: new Date(win.start).toISOString(), end: new Date(win.end).toISOString() } : null,
-      });
-    }
-  }
 
-  // Rule 3: no overlap with another booking of the same technician.
+  // No overlap with another booking of the same technician (not overridable: checked first, so nobody
+  // writes a reason for a booking that cannot be made anyway).
   const [clash] = await tx
     .select({ id: bookings.id, startAt: bookings.startAt, endAt: bookings.endAt, number: workOrders.number, siteName: sites.name })
     .from(bookings)
@@ -196,16 +233,50 @@ async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Pl
       { rule: 'overlap', bookingId: clash.id },
     );
   }
-  return { overridden };
+
+  // The booking rules (skill, EPA 608 certification, working hours, due time): overridable with a reason.
+  const calcTech = toCalcTechnician(tech, branch!);
+  const job = ruleJob(wo);
+  const breaches = bookingBreaches(calcTech, job, p.startAt, p.endAt);
+  const open = unoverridden(breaches, p.overrideRules);
+  if (open.length) {
+    const extra: Record<string, unknown> = {};
+    if (open.some((b) => b.rule === 'working_hours')) {
+      const win = workingWindow(calcTech, localDay(p.startAt, tz));
+      extra.hours = win ? { start: new Date(win.start).toISOString(), end: new Date(win.end).toISOString() } : null;
+    }
+    if (open.some((b) => b.rule === 'due_time')) extra.dueAt = job.dueAt;
+    throw ruleRefusal(open, extra);
+  }
+  return { overridden: breaches };
 }
 
-async function auditOverride(tx: Tx, user: SessionUser, bookingId: string, p: Placement) {
+/** The booking's override columns for the rules a placement breaks on purpose. */
+function overrideColumns(user: SessionUser, overridden: readonly RuleBreach[], reason: string | undefined) {
+  const rules = overridden.map((b) => b.rule);
+  return {
+    overrideRules: rules,
+    hoursOverride: rules.includes('working_hours'),
+    overrideReason: rules.length ? (reason ?? null) : null,
+    overrideById: rules.length ? user.id : null,
+  };
+}
+
+/** The booking's history: who booked it against which rules, why, and what each rule said. */
+async function auditOverride(tx: Tx, user: SessionUser, bookingId: string, p: Placement, overridden: readonly RuleBreach[]) {
   await tx.insert(auditEvents).values({
     actorId: user.id,
-    action: 'booking.hours_override',
+    action: 'booking.override',
     entity: 'booking',
     entityId: bookingId,
-    details: { reason: p.overrideReason ?? '', techId: p.techId, startAt: p.startAt.toISOString(), endAt: p.endAt.toISOString() },
+    details: {
+      rules: overridden.map((b) => b.rule),
+      reason: p.overrideReason ?? '',
+      breaches: overridden.map((b) => ({ rule: b.rule, message: b.message })),
+      techId: p.techId,
+      startAt: p.startAt.toISOString(),
+      endAt: p.endAt.toISOString(),
+    },
   });
 }
 
@@ -224,7 +295,7 @@ export async function createBooking(tx: Tx, user: SessionUser, input: z.output<t
   }
   const startAt = new Date(input.startAt);
   const endAt = input.endAt ? new Date(input.endAt) : new Date(startAt.getTime() + wo.estimatedMinutes * MINUTE);
-  const p: Placement = { techId: input.techId, startAt, endAt, overrideHours: input.overrideHours, overrideReason: input.overrideReason };
+  const p: Placement = { techId: input.techId, startAt, endAt, overrideRules: requestedOverrides(input), overrideReason: input.overrideReason };
   const { overridden } = await checkPlacement(tx, user, wo, p);
   const [b] = await tx
     .insert(bookings)
@@ -235,9 +306,7 @@ export async function createBooking(tx: Tx, user: SessionUser, input: z.output<t
       startAt,
       endAt,
       fixed: input.fixed ?? false,
-      hoursOverride: overridden,
-      overrideReason: overridden ? (p.overrideReason ?? null) : null,
-      overrideById: overridden ? user.id : null,
+      ...overrideColumns(user, overridden, p.overrideReason),
       createdById: user.id,
       createdAt: now,
       updatedAt: now,
@@ -245,7 +314,7 @@ export async function createBooking(tx: Tx, user: SessionUser, input: z.output<t
     .returning({ id: bookings.id });
   await tx.insert(visits).values({ branchId: wo.branchId, workOrderId: wo.id, bookingId: b!.id, techId: p.techId, createdAt: now, updatedAt: now });
   await tx.update(workOrders).set({ state: 'booked', updatedAt: now }).where(eq(workOrders.id, wo.id));
-  if (overridden) await auditOverride(tx, user, b!.id, p);
+  if (overridden.length) await auditOverride(tx, user, b!.id, p, overridden);
   return (await getBooking(tx, b!.id))!;
 }
 
@@ -282,24 +351,22 @@ export async function updateBooking(tx: Tx, user: SessionUser, id: string, input
   const endAt = input.endAt ? new Date(input.endAt) : input.startAt ? new Date(startAt.getTime() + (b.endAt.getTime() - b.startAt.getTime())) : b.endAt;
   if (endAt <= startAt) throw conflict('bad_span', 'The booking must end after it starts.');
   const placementChanged = techId !== b.techId || startAt.getTime() !== b.startAt.getTime() || endAt.getTime() !== b.endAt.getTime();
-  let hoursOverride = b.hoursOverride;
-  let overrideReason = b.overrideReason;
-  let overrideById = b.overrideById;
-  const p: Placement = { techId, startAt, endAt, overrideHours: input.overrideHours, overrideReason: input.overrideReason };
+  // An unchanged placement keeps its override; a new one is checked afresh against every rule.
+  let overrides: ReturnType<typeof overrideColumns> | null = null;
+  let overridden: RuleBreach[] = [];
+  const p: Placement = { techId, startAt, endAt, overrideRules: requestedOverrides(input), overrideReason: input.overrideReason };
   if (placementChanged) {
     if (wo!.state !== 'booked') {
       throw conflict('visit_started', `${workOrderLabel(wo!.number)} is already ${wo!.state.replace('_', ' ')}; its booking can no longer be moved.`);
     }
     const { started } = await visitStarted(tx, b.id);
     if (started) throw conflict('visit_started', `The visit for ${workOrderLabel(wo!.number)} has started; its booking can no longer be moved.`);
-    const { overridden } = await checkPlacement(tx, user, wo!, p, b.id);
-    hoursOverride = overridden;
-    overrideReason = overridden ? (p.overrideReason ?? null) : null;
-    overrideById = overridden ? user.id : null;
+    overridden = (await checkPlacement(tx, user, wo!, p, b.id)).overridden;
+    overrides = overrideColumns(user, overridden, p.overrideReason);
   }
   const updated = await tx
     .update(bookings)
-    .set({ techId, startAt, endAt, fixed: input.fixed ?? b.fixed, hoursOverride, overrideReason, overrideById, version: b.version + 1, updatedAt: now })
+    .set({ techId, startAt, endAt, fixed: input.fixed ?? b.fixed, ...(overrides ?? {}), version: b.version + 1, updatedAt: now })
     .where(and(eq(bookings.id, b.id), eq(bookings.version, input.version)))
     .returning({ id: bookings.id });
   if (updated.length === 0) {
@@ -307,7 +374,7 @@ export async function updateBooking(tx: Tx, user: SessionUser, id: string, input
     throw conflict('stale_version', 'This booking was moved by someone else. It has been reloaded; make your change again if it is still needed.', { current });
   }
   if (techId !== b.techId) await tx.update(visits).set({ techId, updatedAt: now }).where(eq(visits.bookingId, b.id));
-  if (placementChanged && hoursOverride) await auditOverride(tx, user, b.id, p);
+  if (overridden.length) await auditOverride(tx, user, b.id, p, overridden);
   return (await getBooking(tx, id))!;
 }
 

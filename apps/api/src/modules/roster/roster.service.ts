@@ -8,7 +8,7 @@ import type { Db, Tx } from '../../db/client';
 import { bookings, branches, sites, units, users, workOrders } from '../../db/schema';
 import { assertBranch, resolveBranch } from '../../auth/middleware';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
-import { createBooking, overlapping } from './bookings.service';
+import { createBooking, overlapping, ruleJob } from './bookings.service';
 import {
   daysBetween,
   localRange,
@@ -129,10 +129,15 @@ async function workOrderForPlanning(db: Tx, user: SessionUser, id: string) {
 
 type PlanningRow = Awaited<ReturnType<typeof workOrderForPlanning>>;
 
+/**
+ * A work order as calc's scheduling job: not before now or the requested start, ending by the requested end,
+ * and under the same booking rules the API enforces (skill, EPA 608, a start by the due time: `ruleJob`).
+ */
 function toJob(r: PlanningRow, now: Date): SchedulingJob {
   const w = r.wo;
   const earliest = Math.max(now.getTime(), w.requestedFrom?.getTime() ?? -Infinity);
-  const latestCandidates = [w.latestAt, w.requestedTo].filter((d): d is Date => !!d).map((d) => d.getTime());
+  const latestCandidates = [w.requestedTo].filter((d): d is Date => !!d).map((d) => d.getTime());
+  const { dueAt } = ruleJob(w);
   return {
     id: w.id,
     durationMinutes: w.estimatedMinutes,
@@ -143,6 +148,7 @@ function toJob(r: PlanningRow, now: Date): SchedulingJob {
     ...(latestCandidates.length ? { latest: new Date(Math.min(...latestCandidates)) } : {}),
     ...(w.requiredSkill ? { requiredSkill: w.requiredSkill } : {}),
     ...(w.requiredCertification ? { requiredCertification: w.requiredCertification } : {}),
+    ...(dueAt ? { dueAt } : {}),
     ...(w.unitId ? { unitId: w.unitId } : {}),
   };
 }
@@ -167,6 +173,7 @@ export async function suggest(db: Db, user: SessionUser, input: z.output<typeof 
       eligible: c.eligible,
       score: c.score,
       reasons: c.reasons,
+      blockedBy: c.blockedBy,
       proposedStart: c.proposedStart,
       proposedEnd: c.proposedEnd,
       travelMinutes: c.travelMinutes,

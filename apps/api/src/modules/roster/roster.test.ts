@@ -69,7 +69,8 @@ describe('POST /api/bookings', () => {
     expect(res.status).toBe(409);
     expect(res.body.error.code).toBe('certification');
     expect(res.body.error.message).toContain('Sam Ortiz is not certified for this refrigerant work (needs EPA 608 Type II');
-    expect(res.body.error.message).toContain('Pick another technician or change the work.');
+    expect(res.body.error.message).toContain('Pick another technician, or override the EPA 608 certification with a reason.');
+    expect(res.body.error.details).toMatchObject({ rule: 'certification', rules: ['certification'] });
     const [wo] = await t.ctx.db.select().from(workOrders).where(eq(workOrders.id, w.id));
     expect(wo!.state).toBe('unplaced');
     // Universal covers Type II.
@@ -97,10 +98,11 @@ describe('POST /api/bookings', () => {
     expect(ok.body.booking).toMatchObject({ hoursOverride: true, overrideReason: 'Store closes at 17:00; customer asked' });
     const [row] = await t.ctx.db.select().from(bookings).where(eq(bookings.id, ok.body.booking.id));
     expect(row!.overrideById).toBe(f.inA.dispatcher.id);
-    const audit = await t.ctx.db.select().from(auditEvents).where(and(eq(auditEvents.entityId, ok.body.booking.id), eq(auditEvents.action, 'booking.hours_override')));
+    expect(ok.body.booking).toMatchObject({ overrideRules: ['working_hours'], overrideBy: { id: f.inA.dispatcher.id, name: f.inA.dispatcher.name } });
+    const audit = await t.ctx.db.select().from(auditEvents).where(and(eq(auditEvents.entityId, ok.body.booking.id), eq(auditEvents.action, 'booking.override')));
     expect(audit).toHaveLength(1);
     expect(audit[0]!.actorId).toBe(f.inA.dispatcher.id);
-    expect(audit[0]!.details).toMatchObject({ reason: 'Store closes at 17:00; customer asked' });
+    expect(audit[0]!.details).toMatchObject({ rules: ['working_hours'], reason: 'Store closes at 17:00; customer asked' });
   });
 
   it('refuses a booking overlapping another of the same technician, naming it', async () => {

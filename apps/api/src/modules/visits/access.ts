@@ -5,12 +5,15 @@
  * - Office roles (owner, branch manager, dispatcher) read visits in their branch scope (owner: all);
  *   another branch's visit answers 404. They may not record work on a visit: 403.
  * - A closed visit takes no more work: 409.
+ * - Readings, findings and refrigerant are recorded on a visit that is on site: 409 before that, naming the
+ *   state (`recordingRefusal` in @coilpath/contract, which the Visit screen shows too).
  * - A technician reads the history of a unit only when it is on one of their assignments (a visit
  *   assigned to them whose work order names the unit, or names no unit at the unit's site); else 404.
  */
 import { and, eq, exists, isNull, or, sql } from 'drizzle-orm';
 import type { AnyPgColumn } from 'drizzle-orm/pg-core';
 import type { SessionUser } from '@coilpath/contract';
+import { recordingRefusal } from '@coilpath/contract';
 import type { Tx } from '../../db/client';
 import { units, visits, workOrders } from '../../db/schema';
 import { conflict, forbidden, notFound } from '../../lib/errors';
@@ -43,6 +46,14 @@ export function assertVisitWritable(user: SessionUser, v: VisitRow | undefined):
   if (v.closedAt) {
     throw conflict('visit_closed', 'This visit is already closed; it takes no more work. Add a return visit if more is needed.');
   }
+}
+
+/** Throws like `assertVisitWritable`, and 409 unless the visit is on site: where readings, findings and refrigerant are recorded. */
+export function assertVisitRecordable(user: SessionUser, v: VisitRow | undefined): asserts v is VisitRow {
+  assertVisitWritable(user, v);
+  const status = visitStatus(v);
+  const refusal = recordingRefusal(status);
+  if (refusal) throw conflict(refusal.code, refusal.message, { state: status });
 }
 
 /** The visit's state as the technician's buttons see it. */

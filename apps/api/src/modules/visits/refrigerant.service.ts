@@ -9,7 +9,7 @@ import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { branches, leakCases, refrigerantEvents, units } from '../../db/schema';
 import { badRequest, conflict, forbidden, notFound } from '../../lib/errors';
-import { assertVisitWritable, loadReadableUnit, loadVisit, type UnitRow } from './access';
+import { assertVisitRecordable, loadReadableUnit, loadVisit, type UnitRow } from './access';
 import { leakCaseDto, refrigerantEventDto } from './dto';
 import { unitsOfWorkOrder } from './visits.service';
 import { workOrders } from '../../db/schema';
@@ -53,8 +53,8 @@ async function leakCheck(tx: Tx, unit: UnitRow, asOf: string): Promise<LeakCheck
 }
 
 /**
- * Records refrigerant added to or recovered from a unit (technicians only, on their own open visit
- * when one is named). In the same transaction it recomputes the unit's leak rate with
+ * Records refrigerant added to or recovered from a unit (technicians only; on their own visit, on
+ * site, when one is named). In the same transaction it recomputes the unit's leak rate with
  * `leakRepairObligation` and opens a leak case when the rate is over the threshold and no case is
  * open for the unit yet.
  */
@@ -87,7 +87,7 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
 
     if (input.visitId) {
       const v = await loadVisit(tx, input.visitId, { lock: true });
-      assertVisitWritable(user, v);
+      assertVisitRecordable(user, v);
       const [wo] = await tx.select({ unitId: workOrders.unitId, siteId: workOrders.siteId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
       const us = await unitsOfWorkOrder(tx, wo!);
       if (!us.some((u) => u.id === unit.id)) {

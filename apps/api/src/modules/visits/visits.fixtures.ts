@@ -12,6 +12,8 @@ export async function makeBookedVisit(
     startAt: string;
     minutes?: number;
     fixed?: boolean;
+    /** The technician is on site (en route and on site at the booked start): readings, findings and refrigerant may be recorded. */
+    onSite?: boolean;
     workOrder?: Partial<typeof workOrders.$inferInsert>;
   },
 ) {
@@ -23,7 +25,7 @@ export async function makeBookedVisit(
       siteId: v.siteId,
       unitId: v.unitId ?? null,
       kind: 'service_call',
-      state: 'booked',
+      state: v.onSite ? 'on_site' : 'booked',
       complaint: 'Low suction alarm on circuit 1',
       estimatedMinutes: minutes,
       ...v.workOrder,
@@ -41,7 +43,10 @@ export async function makeBookedVisit(
       fixed: v.fixed ?? false,
     })
     .returning();
-  const [visit] = await db.insert(visits).values({ branchId: v.branchId, workOrderId: wo!.id, bookingId: b!.id, techId: v.techId }).returning();
+  const [visit] = await db
+    .insert(visits)
+    .values({ branchId: v.branchId, workOrderId: wo!.id, bookingId: b!.id, techId: v.techId, ...(v.onSite ? { enRouteAt: startAt, onSiteAt: startAt } : {}) })
+    .returning();
   return { workOrder: wo!, booking: b!, visit: visit! };
 }
 

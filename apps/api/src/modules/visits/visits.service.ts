@@ -10,6 +10,7 @@ import type {
   VisitStateChange,
   VisitUnitDto,
 } from '@coilpath/contract';
+import { recordingRefusal } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import {
@@ -29,7 +30,7 @@ import {
 } from '../../db/schema';
 import { badRequest, conflict } from '../../lib/errors';
 import { modelAlertRef } from '@coilpath/contract';
-import { assertVisitReadable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
+import { assertVisitReadable, assertVisitRecordable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
 import { attachmentDto, findingDto, readingDto, refrigerantEventDto } from './dto';
 import { computeReading, toStoredUnits } from './reading-calc';
 
@@ -84,6 +85,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
     .limit(1);
   assertVisitReadable(user, row?.visit);
   const { visit: v, wo, site, branch } = row!;
+  const canWrite = user.role === 'technician' && v.techId === user.id && !v.closedAt;
 
   const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows] = await Promise.all([
     unitsWithCircuits(db, wo),
@@ -149,7 +151,9 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
     refrigerantEvents: eventRows.map(refrigerantEventDto),
     attachments: attachmentRows.map(attachmentDto),
     events: stateRows.map((e) => ({ state: e.state, at: e.at.toISOString(), byUserId: e.byUserId })),
-    canWrite: user.role === 'technician' && v.techId === user.id && !v.closedAt,
+    canWrite,
+    canRecord: canWrite && !recordingRefusal(visitStatus(v)),
+    recordRefusal: canWrite ? (recordingRefusal(visitStatus(v))?.message ?? null) : null,
   };
 }
 
@@ -208,7 +212,7 @@ async function visitUnitIds(tx: Tx, v: VisitRow): Promise<Map<string, { refriger
 export async function saveReadings(ctx: AppContext, user: SessionUser, id: string, input: SaveReadings): Promise<{ readings: ReadingDto[] }> {
   return ctx.db.transaction(async (tx) => {
     const v = await loadVisit(tx, id, { lock: true });
-    assertVisitWritable(user, v);
+    assertVisitRecordable(user, v);
     const unitMap = await visitUnitIds(tx, v);
     const circuitIds = input.readings.map((r) => r.circuitId);
     const [cs, [branch]] = await Promise.all([
@@ -257,7 +261,7 @@ export async function addFinding(ctx: AppContext, user: SessionUser, id: string,
         return { finding: findingDto(existing), created: false };
       }
     }
-    assertVisitWritable(user, v);
+    assertVisitRecordable(user, v);
     const unitMap = await visitUnitIds(tx, v);
     let unitId = input.unitId ?? null;
     if (unitId && !unitMap.has(unitId)) {

@@ -98,7 +98,7 @@ describe('PATCH /api/visits/:id (state buttons)', () => {
 
 describe('POST /api/visits/:id/readings', () => {
   it('stores gauge and controller values and computes saturation, superheat and subcooling', async () => {
-    const { visit } = await book();
+    const { visit } = await book({ onSite: true });
     // Check values: shared/reference/refrigerant-saturation.json (CoolProp 8.0.0), R-410A
     // 111.5 psig dew 36.93 °F; 349.9 psig bubble 106.66 °F.
     const res = await tech.post(`/api/visits/${visit.id}/readings`).send({
@@ -128,7 +128,7 @@ describe('POST /api/visits/:id/readings', () => {
   });
 
   it('replaces the visit’s earlier entry for the same circuit (a retried save never doubles)', async () => {
-    const { visit } = await book();
+    const { visit } = await book({ onSite: true });
     const body = { units: PSIG_F, readings: [{ circuitId: circuitIds[1], suctionPressure: 111.5, suctionLineTemp: 50 }] };
     await tech.post(`/api/visits/${visit.id}/readings`).send(body);
     await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ ...body.readings[0], suctionLineTemp: 52 }] });
@@ -138,7 +138,7 @@ describe('POST /api/visits/:id/readings', () => {
   });
 
   it('refuses a circuit of another unit (400), bad numbers (400), another tech (404) and the office (403)', async () => {
-    const { visit } = await book();
+    const { visit } = await book({ onSite: true });
     const elsewhere = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const [foreign] = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, elsewhere.unit.id));
     expect((await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: foreign!.id, suctionPressure: 100 }] })).status).toBe(400);
@@ -153,7 +153,7 @@ describe('POST /api/visits/:id/readings', () => {
 
 describe('POST /api/visits/:id/findings', () => {
   it('records cause, origin and reported vs actual circuit; a retried save with the same id is not doubled', async () => {
-    const { visit } = await book();
+    const { visit } = await book({ onSite: true });
     const id = '7d3f0d6e-2b1c-4c55-9a7e-3f1f6f0c2a11';
     const body = { id, causeCode: 'wiring_fault', origin: 'factory_defect', alarmCode: 'LP1', reportedCircuit: 1, actualCircuit: 2, notes: 'Transducer leads swapped at the board' };
     const a = await tech.post(`/api/visits/${visit.id}/findings`).send(body);
@@ -165,7 +165,7 @@ describe('POST /api/visits/:id/findings', () => {
   });
 
   it('refuses an unknown cause code (400) and another technician (404)', async () => {
-    const { visit } = await book();
+    const { visit } = await book({ onSite: true });
     expect((await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'gremlins', origin: 'wear' })).status).toBe(400);
     expect((await tech2.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'airflow', origin: 'wear' })).status).toBe(404);
   });
@@ -184,7 +184,7 @@ describe('POST /api/units/:id/refrigerant-events', () => {
   it('opens a leak case with its repair due date when the leak rate passes the threshold, once', async () => {
     // A 100 lb R-410A comfort-cooling unit of its own, so earlier tests' entries do not count.
     const leaky = await makeSiteWithUnit(t.ctx.db, f.a.id, { unit: { fullChargeLb: 100, refrigerant: 'R-410A', applianceCategory: 'comfort_cooling' } });
-    const { visit } = await book({ siteId: leaky.site.id, unitId: leaky.unit.id });
+    const { visit } = await book({ siteId: leaky.site.id, unitId: leaky.unit.id, onSite: true });
     const post = (body: object) => tech.post(`/api/units/${leaky.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', reason: 'leak_top_off', visitId: visit.id, ...body });
 
     // First addition: annualizing over 365 days (40 CFR 82.152 "leak rate"): 2/100 × 365/365 = 2 % — under 10 %.
@@ -214,7 +214,7 @@ describe('POST /api/units/:id/refrigerant-events', () => {
   });
 
   it('is idempotent with a client id, and refuses units off the technician’s assignments (404) and the office (403)', async () => {
-    const { visit } = await book();
+    const { visit } = await book({ onSite: true });
     const id = '0b6f8a7c-7d65-4a2e-9f1e-5a4b3c2d1e0f';
     const body = { id, refrigerant: 'R-410A', poundsRecovered: 1.5, reason: 'recovery', visitId: visit.id };
     expect((await tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send(body)).status).toBe(201);
@@ -227,6 +227,61 @@ describe('POST /api/units/:id/refrigerant-events', () => {
     expect((await manager.post(`/api/units/${place.unit.id}/refrigerant-events`).send(plain)).status).toBe(403);
     expect((await managerB.post(`/api/units/${place.unit.id}/refrigerant-events`).send(plain)).status).toBe(404);
     expect((await tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ ...plain, refrigerant: 'R-12' })).status).toBe(400);
+  });
+});
+
+describe('recording only on site', () => {
+  const reading = { units: PSIG_F, readings: [{ circuitId: '', suctionPressure: 111.5, suctionLineTemp: 48.7 }] };
+  const record = (visitId: string) => ({
+    readings: () => tech.post(`/api/visits/${visitId}/readings`).send({ ...reading, readings: [{ ...reading.readings[0], circuitId: circuitIds[0] }] }),
+    finding: () => tech.post(`/api/visits/${visitId}/findings`).send({ causeCode: 'airflow', origin: 'wear' }),
+    refrigerant: () => tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', poundsAdded: 1, reason: 'leak_top_off', visitId }),
+  });
+
+  it('refuses readings, findings and refrigerant on a booked visit (409 naming the state), and records nothing', async () => {
+    const { visit } = await book();
+    for (const [what, send] of Object.entries(record(visit.id))) {
+      const res = await send();
+      expect(res.status, what).toBe(409);
+      expect(res.body.error.code, what).toBe('not_on_site');
+      expect(res.body.error.message, what).toMatch(/^This visit is booked, not started\. .*mark yourself on site/);
+      expect(res.body.error.details, what).toEqual({ state: 'booked' });
+    }
+    expect(await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id))).toHaveLength(0);
+    expect(await t.ctx.db.select().from(findings).where(eq(findings.visitId, visit.id))).toHaveLength(0);
+    expect(await t.ctx.db.select().from(refrigerantEvents).where(eq(refrigerantEvents.visitId, visit.id))).toHaveLength(0);
+    const detail = await tech.get(`/api/visits/${visit.id}`);
+    expect(detail.body).toMatchObject({ canWrite: true, canRecord: false, recordRefusal: expect.stringMatching(/^This visit is booked, not started\./) });
+  });
+
+  it('refuses them en route, and takes them once on site', async () => {
+    const { visit } = await book();
+    expect((await tech.patch(`/api/visits/${visit.id}`).send({ state: 'en_route' })).status).toBe(200);
+    for (const [what, send] of Object.entries(record(visit.id))) {
+      const res = await send();
+      expect(res.status, what).toBe(409);
+      expect(res.body.error.message, what).toMatch(/^This visit is en route, not on site yet\./);
+      expect(res.body.error.details, what).toEqual({ state: 'en_route' });
+    }
+    expect((await tech.patch(`/api/visits/${visit.id}`).send({ state: 'on_site' })).status).toBe(200);
+    const r = record(visit.id);
+    expect((await r.readings()).status).toBe(200);
+    expect((await r.finding()).status).toBe(201);
+    expect((await r.refrigerant()).status).toBe(201);
+    const detail = await tech.get(`/api/visits/${visit.id}`);
+    expect(detail.body).toMatchObject({ status: 'on_site', canRecord: true, recordRefusal: null });
+    // The office reads the visit; it never records, so no refusal is addressed to it.
+    expect((await manager.get(`/api/visits/${visit.id}`)).body).toMatchObject({ canWrite: false, canRecord: false, recordRefusal: null });
+  });
+
+  it('refuses them once the visit is closed (409 visit_closed)', async () => {
+    const { visit } = await book({ onSite: true });
+    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    for (const [what, send] of Object.entries(record(visit.id))) {
+      const res = await send();
+      expect(res.status, what).toBe(409);
+      expect(res.body.error.code, what).toBe('visit_closed');
+    }
   });
 });
 
@@ -378,7 +433,7 @@ describe('GET /api/units/:id/briefing', () => {
 
 describe('data stays whole', () => {
   it('leaves no reading behind a refused request (the same circuit twice)', async () => {
-    const { visit } = await book();
+    const { visit } = await book({ onSite: true });
     const before = await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id));
     await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 100 }, { circuitId: circuitIds[0], suctionPressure: 101 }] });
     const after = await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id));

@@ -135,5 +135,3 @@ export function useEvenOutApply() {
 
 /** True for the API's "moved by someone else" answer. */
 export const isStale = (e: unknown) => e instanceof ApiError && e.code === 'stale_version';
-/** True when the only objection is the working-hours rule (the dispatcher may override it). */
-export const isOutsideHours = (e: unknown) => e instanceof ApiError && e.code === 'outside_hours';

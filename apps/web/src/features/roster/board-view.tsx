@@ -8,13 +8,14 @@
  * chip opens the booking's details (move, reassign, unbook). Arrow keys move between cells.
  */
 import { useEffect, useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
-import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, Moon, Plus, Siren, X } from 'lucide-react';
+import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, Moon, Plus, ShieldAlert, Siren, X } from 'lucide-react';
 import type { Booking, Technician, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
 import { priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, loadState, monthName, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
 import { formatMinutes } from '@/lib/format';
 import { colourOf, leakDeadline, TechSwatch } from './parts';
+import { overrideSummary } from './rules';
 
 /** Below this width (px) the board shows one day at a time. */
 const PAGER_BELOW = 720;
@@ -110,6 +111,8 @@ export function chipSuffix(e: BoardEntry, today: string, wide: boolean): string 
     !wide && w.unitTag ? w.unitTag : null,
     w.priority === 'normal' || w.priority === 'low' ? `${priorityLabels[w.priority]} priority` : null,
     leak && leak.text !== leakBadge(leak) ? leak.text : null,
+    // The badge says which rules; the reason and who are said here (shown in full in the details).
+    overrideSummary(e.booking)?.sentence ?? null,
   ].filter(Boolean);
   return `${bits.length ? `, ${bits.join(', ')}` : ''}. Open to move, reassign or unbook.`;
 }
@@ -141,6 +144,7 @@ function Chip({
   const b = e.booking;
   const w = b.workOrder;
   const leak = leakDeadline(w.leakRepairDueDate, today, e.start.date);
+  const override = overrideSummary(b);
   const movable = draggable && w.state === 'booked' && !b.fixed && !e.fromEarlierDay;
   return (
     <button
@@ -173,7 +177,7 @@ function Chip({
         {w.siteName}
         {wide && w.unitTag ? ` · ${w.unitTag}` : ''}
       </span>
-      {(w.priority === 'emergency' || w.priority === 'high' || leak || w.state !== 'booked' || b.hoursOverride || b.fixed) && (
+      {(w.priority === 'emergency' || w.priority === 'high' || leak || w.state !== 'booked' || override || b.fixed) && (
         <span className="mt-0.5 flex flex-wrap gap-1">
           {w.priority === 'emergency' && (
             <span className="inline-flex items-center gap-0.5 rounded bg-alarm px-1 font-semibold text-white">
@@ -199,9 +203,11 @@ function Chip({
               {workOrderStateLabels[w.state]}
             </span>
           )}
-          {b.hoursOverride && (
-            <span className="rounded bg-slate-faint px-1">
-              <Sep />Outside hours
+          {override && (
+            <span className="inline-flex items-center gap-0.5 rounded bg-watch-tint px-1 font-medium text-watch" data-testid="chip-override" title={override.sentence}>
+              <ShieldAlert className="size-3" aria-hidden="true" />
+              <Sep />
+              {override.badge}
             </span>
           )}
           {b.fixed && (
@@ -210,6 +216,12 @@ function Chip({
               <Sep />Fixed time
             </span>
           )}
+        </span>
+      )}
+      {override?.reason && (
+        // The reason at a glance; in full in the screen-reader text and the booking's details.
+        <span aria-hidden="true" className="mt-0.5 line-clamp-2 block text-slate italic" title={override.reason}>
+          “{override.reason}”
         </span>
       )}
       <span className="sr-only">{chipSuffix(e, today, wide)}</span>

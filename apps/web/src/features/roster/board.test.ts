@@ -23,7 +23,9 @@ function booking(techId: string, startAt: string, endAt: string, number = 11000 
     version: 1,
     fixed: false,
     hoursOverride: false,
+    overrideRules: [],
     overrideReason: null,
+    overrideBy: null,
     visitId: null,
     workOrder: {
       number,
@@ -35,8 +37,10 @@ function booking(techId: string, startAt: string, endAt: string, number = 11000 
       unitTag: null,
       unitMake: null,
       unitModel: null,
+      requiredSkill: null,
       requiredCertification: null,
       estimatedMinutes: 60,
+      dueAt: null,
       leakRepairDueDate: null,
     },
   };

@@ -3,38 +3,69 @@ import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
 import { CheckCircle2, Sparkles, XCircle } from 'lucide-react';
-import type { Technician, WorkOrder } from '@coilpath/contract';
-import { idSchema, isoDateSchema, limits, maxBookingMinutes, priorityLabels, workOrderLabel } from '@coilpath/contract';
+import type { BookingRule, Candidate, Technician, WorkOrder } from '@coilpath/contract';
+import { bookingRuleSchema, idSchema, isoDateSchema, limits, maxBookingMinutes, priorityLabels, workOrderLabel } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SafetyNote } from '@/components/ui/page';
-import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
+import { SelectField, TextField } from '@/components/ui/field';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { formatInZone } from '@/lib/format';
-import { isOutsideHours, useCreateBooking, useSuggest } from './api';
+import { useCreateBooking, useSuggest } from './api';
 import { certLabel, Modal, Refusal, TechSwatch, workOrderTitle } from './parts';
+import { RuleOverride } from './rule-override';
+import { placementBreaches, refusedRules, workRuleJob } from './rules';
 import { instantToLocal, localToInstant } from './zone';
+
+const hhmmRe = /^([01]\d|2[0-3]):[0-5]\d$/;
 
 /** The booking form: local date and time in the branch's zone, turned into instants for the API. */
 export const bookFormSchema = z
   .object({
     techId: idSchema.or(z.literal('')).refine((v) => v !== '', 'Choose a technician'),
     date: isoDateSchema,
-    time: z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use 24-hour HH:MM'),
+    time: z.string().regex(hhmmRe, 'Use 24-hour HH:MM'),
     minutes: z.coerce.number({ message: 'Enter minutes' }).int('Use whole minutes').min(15, 'At least 15 minutes').max(maxBookingMinutes, 'At most 16 hours'),
-    overrideHours: z.boolean(),
+    /** The booking rules to book against anyway, with one reason. */
+    overrideRules: z.array(bookingRuleSchema),
     overrideReason: z.string().trim().max(limits.shortText),
   })
-  .refine((v) => !v.overrideHours || v.overrideReason.length > 0, { message: 'Say why this booking is outside the working hours', path: ['overrideReason'] });
+  .refine((v) => v.overrideRules.length === 0 || v.overrideReason.length > 0, { message: 'Say why this booking may break the rule', path: ['overrideReason'] });
 type BookForm = z.input<typeof bookFormSchema>;
 type BookFormOut = z.output<typeof bookFormSchema>;
+
+/** The form's start and end as instants, or nulls while the date, time or length is not valid yet. */
+export function formSpan(v: { date: string; time: string; minutes: unknown }, timeZone: string): { startAt: string | null; endAt: string | null } {
+  const minutes = Number(v.minutes);
+  if (!/^\d{4}-\d{2}-\d{2}$/.test(v.date) || !hhmmRe.test(v.time) || !(minutes > 0)) return { startAt: null, endAt: null };
+  try {
+    const startAt = localToInstant(v.date, v.time, timeZone);
+    return { startAt, endAt: new Date(Date.parse(startAt) + minutes * 60_000).toISOString() };
+  } catch {
+    return { startAt: null, endAt: null };
+  }
+}
+
+/**
+ * What the form says about the chosen technician when the server proposes no start for them: the rule
+ * that stands in the way, or — only when that is what it is — too little free time.
+ */
+export function unproposedText(c: Pick<Candidate, 'name' | 'reasons' | 'blockedBy'>): string {
+  const why = c.reasons.slice(0, Math.max(1, c.blockedBy.length)).join('; ');
+  if (c.blockedBy.every((b) => b === 'free_time' || b === 'window')) {
+    const inWindow = c.blockedBy.includes('window') ? ', in the time the job allows' : '';
+    return `${c.name} has no free time for this job that day${inWindow}: ${why}. Pick another technician or day, or set a time.`;
+  }
+  return `${c.name} is not proposed for this job that day: ${why}. Pick another technician or day, or book against the rule with a reason.`;
+}
 
 export interface BookInitial {
   techId?: string | undefined;
   date: string;
   time: string;
   error?: string | undefined;
-  outsideHours?: boolean | undefined;
+  /** The booking rules the API's refusal named (a drop it refused): offered to override. */
+  refusedRules?: BookingRule[] | undefined;
   /**
    * Start at the time the server proposes for the chosen technician on the chosen day (the booking
    * flow from a board cell), as long as the dispatcher has not typed a time.
@@ -67,15 +98,20 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
   const create = useCreateBooking();
   const suggest = useSuggest();
   const [refusal, setRefusal] = useState<string | undefined>(initial.error);
-  const [canOverride, setCanOverride] = useState(!!initial.outsideHours);
+  const [refused, setRefused] = useState<BookingRule[]>(initial.refusedRules ?? []);
   const form = useForm<BookForm, unknown, BookFormOut>({
     resolver: zodResolver(bookFormSchema),
-    defaultValues: { techId: initial.techId ?? '', date: initial.date, time: initial.time, minutes: w.estimatedMinutes, overrideHours: false, overrideReason: '' },
+    defaultValues: { techId: initial.techId ?? '', date: initial.date, time: initial.time, minutes: w.estimatedMinutes, overrideRules: [], overrideReason: '' },
   });
   const { register, handleSubmit, watch, formState, setValue, getFieldState } = form;
   const date = watch('date');
   const techId = watch('techId');
-  const override = watch('overrideHours');
+  const ticked = watch('overrideRules');
+  const span = formSpan({ date, time: watch('time'), minutes: watch('minutes') }, timeZone);
+  // The rules the chosen technician and time break, said before the dispatcher confirms.
+  const warnings = placementBreaches(workRuleJob(w), techs.find((t) => t.id === techId), timeZone, span.startAt, span.endAt);
+  const toggle = (rule: BookingRule, on: boolean) =>
+    setValue('overrideRules', on ? [...ticked.filter((r) => r !== rule), rule] : ticked.filter((r) => r !== rule), { shouldValidate: formState.isSubmitted });
 
   const { mutate: runSuggest } = suggest;
   useEffect(() => {
@@ -91,7 +127,7 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
 
   const techName = (id: string) => techs.find((t) => t.id === id)?.name ?? 'the technician';
 
-  function book(body: { techId: string; startAt: string; endAt: string; overrideHours?: boolean; overrideReason?: string }) {
+  function book(body: { techId: string; startAt: string; endAt: string; overrideRules?: BookingRule[]; overrideReason?: string }) {
     setRefusal(undefined);
     create.mutate(
       { workOrderId: w.id, ...body },
@@ -102,7 +138,7 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
         },
         onError: (e) => {
           setRefusal(errorMessage(e));
-          if (isOutsideHours(e)) setCanOverride(true);
+          setRefused(refusedRules(e));
         },
       },
     );
@@ -111,7 +147,7 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
   const onSubmit = handleSubmit((v) => {
     const startAt = localToInstant(v.date, v.time, timeZone);
     const endAt = new Date(Date.parse(startAt) + v.minutes * 60_000).toISOString();
-    book({ techId: v.techId, startAt, endAt, ...(v.overrideHours ? { overrideHours: true, overrideReason: v.overrideReason } : {}) });
+    book({ techId: v.techId, startAt, endAt, ...(v.overrideRules.length ? { overrideRules: v.overrideRules, overrideReason: v.overrideReason } : {}) });
   });
 
   return (
@@ -144,20 +180,18 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
           <p className={`text-sm ${proposal.proposedStart ? 'text-slate' : 'text-alarm'}`} role="status">
             {proposal.proposedStart
               ? `Start ${proposedTime}: the first free time the Roster found for ${proposal.name} that day. Change it if you need another.`
-              : `${proposal.name} has no free time for this job that day: ${proposal.reasons.join('; ')}. Pick another technician or day, or set a time.`}
+              : unproposedText(proposal)}
           </p>
         )}
         <TextField label="Length in minutes" type="number" inputMode="numeric" min={15} step={15} error={formState.errors.minutes?.message} {...register('minutes')} />
-        {(canOverride || override) && (
-          <fieldset className="flex flex-col gap-2 rounded-md border border-watch-base/50 bg-watch-tint p-3">
-            <legend className="px-1 text-sm font-medium">Working hours</legend>
-            <label className="flex items-center gap-2 text-sm">
-              <input type="checkbox" className="size-5" {...register('overrideHours')} />
-              Book outside the technician’s working hours anyway
-            </label>
-            {override && <TextAreaField label="Why (kept with the booking)" error={formState.errors.overrideReason?.message} {...register('overrideReason')} />}
-          </fieldset>
-        )}
+        <RuleOverride
+          warnings={warnings}
+          refused={refused}
+          ticked={ticked}
+          onToggle={toggle}
+          reasonField={register('overrideReason')}
+          reasonError={formState.errors.overrideReason?.message}
+        />
         <Refusal message={refusal} />
         <div className="flex flex-wrap gap-2">
           <Button type="submit" busy={create.isPending}>

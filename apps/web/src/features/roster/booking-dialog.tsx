@@ -2,16 +2,18 @@ import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { AlertTriangle } from 'lucide-react';
-import type { Booking, Technician } from '@coilpath/contract';
+import type { Booking, BookingRule, Technician } from '@coilpath/contract';
 import { priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
-import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
+import { SelectField, TextField } from '@/components/ui/field';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { formatInZone } from '@/lib/format';
-import { isOutsideHours, isStale, useDeleteBooking, useUpdateBooking } from './api';
-import { bookFormSchema } from './book-dialog';
+import { isStale, useDeleteBooking, useUpdateBooking } from './api';
+import { bookFormSchema, formSpan } from './book-dialog';
 import { bookingSummary, certLabel, leakDeadline, Modal, Refusal } from './parts';
+import { RuleOverride } from './rule-override';
+import { bookingRuleJob, overrideSummary, placementBreaches, refusedRules } from './rules';
 import { instantToLocal, localToInstant } from './zone';
 import type { z } from 'zod';
 
@@ -20,7 +22,8 @@ export interface BookingEdit {
   /** Times the dispatcher tried (a drag the server refused), to retry with an override. */
   attempt?: { techId: string; startAt: string; endAt: string } | undefined;
   error?: string | undefined;
-  outsideHours?: boolean | undefined;
+  /** The booking rules the API's refusal named: offered to override. */
+  refusedRules?: BookingRule[] | undefined;
 }
 
 /** One booking: what it is, and move, reassign or unbook it. */
@@ -42,7 +45,7 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
   const update = useUpdateBooking();
   const remove = useDeleteBooking();
   const [refusal, setRefusal] = useState<string | undefined>(edit.error);
-  const [canOverride, setCanOverride] = useState(!!edit.outsideHours || b.hoursOverride);
+  const [refused, setRefused] = useState<BookingRule[]>(edit.refusedRules ?? []);
   const at = edit.attempt ?? { techId: b.techId, startAt: b.startAt, endAt: b.endAt };
   const start = instantToLocal(at.startAt, timeZone);
   const form = useForm<Form, unknown, FormOut>({
@@ -52,12 +55,19 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
       date: start.date,
       time: start.time,
       minutes: Math.round((Date.parse(at.endAt) - Date.parse(at.startAt)) / 60_000),
-      overrideHours: false,
-      overrideReason: '',
+      // The booking's own override stays ticked, with its reason, so a change keeps it in view (and in force).
+      overrideRules: b.overrideRules,
+      overrideReason: b.overrideReason ?? '',
     },
   });
-  const { register, handleSubmit, watch, formState } = form;
-  const override = watch('overrideHours');
+  const { register, handleSubmit, watch, formState, setValue } = form;
+  const ticked = watch('overrideRules');
+  const span = formSpan({ date: watch('date'), time: watch('time'), minutes: watch('minutes') }, timeZone);
+  // The rules the chosen technician and time break, said before the dispatcher saves.
+  const warnings = placementBreaches(bookingRuleJob(b), techs.find((t) => t.id === watch('techId')), timeZone, span.startAt, span.endAt);
+  const toggle = (rule: BookingRule, on: boolean) =>
+    setValue('overrideRules', on ? [...ticked.filter((r) => r !== rule), rule] : ticked.filter((r) => r !== rule), { shouldValidate: formState.isSubmitted });
+  const overridden = overrideSummary(b);
   const tech = techs.find((t) => t.id === b.techId);
   const movable = b.workOrder.state === 'booked';
   const w = b.workOrder;
@@ -70,7 +80,7 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
     const startAt = localToInstant(v.date, v.time, timeZone);
     const endAt = new Date(Date.parse(startAt) + v.minutes * 60_000).toISOString();
     update.mutate(
-      { id: b.id, version: b.version, techId: v.techId, startAt, endAt, ...(v.overrideHours ? { overrideHours: true, overrideReason: v.overrideReason } : {}) },
+      { id: b.id, version: b.version, techId: v.techId, startAt, endAt, ...(v.overrideRules.length ? { overrideRules: v.overrideRules, overrideReason: v.overrideReason } : {}) },
       {
         onSuccess: (nb) => {
           notify(`Saved: ${bookingSummary(nb, techs.find((t) => t.id === nb.techId), timeZone)}.`);
@@ -83,7 +93,7 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
             return;
           }
           setRefusal(errorMessage(e));
-          if (isOutsideHours(e)) setCanOverride(true);
+          setRefused(refusedRules(e));
         },
       },
     );
@@ -123,10 +133,16 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
         </dd>
         <dt className="text-slate">State</dt>
         <dd>{workOrderStateLabels[w.state]}</dd>
-        {b.hoursOverride && (
+        {w.dueAt && (
           <>
-            <dt className="text-slate">Outside hours</dt>
-            <dd>{b.overrideReason}</dd>
+            <dt className="text-slate">Due</dt>
+            <dd>{formatInZone(w.dueAt, timeZone, 'EEE d MMM, HH:mm')}</dd>
+          </>
+        )}
+        {overridden && (
+          <>
+            <dt className="text-slate">Override</dt>
+            <dd data-testid="booking-override">{overridden.sentence}</dd>
           </>
         )}
       </dl>
@@ -149,16 +165,14 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
             <TextField label="Start" type="time" step={300} error={formState.errors.time?.message} {...register('time')} />
             <TextField label="Minutes" type="number" inputMode="numeric" min={15} step={15} error={formState.errors.minutes?.message} {...register('minutes')} />
           </div>
-          {(canOverride || override) && (
-            <fieldset className="flex flex-col gap-2 rounded-md border border-watch-base/50 bg-watch-tint p-3">
-              <legend className="px-1 text-sm font-medium">Working hours</legend>
-              <label className="flex items-center gap-2 text-sm">
-                <input type="checkbox" className="size-5" {...register('overrideHours')} />
-                Book outside the technician’s working hours anyway
-              </label>
-              {override && <TextAreaField label="Why (kept with the booking)" error={formState.errors.overrideReason?.message} {...register('overrideReason')} />}
-            </fieldset>
-          )}
+          <RuleOverride
+            warnings={warnings}
+            refused={refused}
+            ticked={ticked}
+            onToggle={toggle}
+            reasonField={register('overrideReason')}
+            reasonError={formState.errors.overrideReason?.message}
+          />
           <Refusal message={refusal} />
           <div className="flex flex-wrap gap-2">
             <Button type="submit" busy={update.isPending}>

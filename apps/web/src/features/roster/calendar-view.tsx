@@ -12,7 +12,7 @@ import type { BusinessHoursInput, EventClickArg, EventContentArg, EventDropArg, 
 import type { Booking, Technician } from '@coilpath/contract';
 import { weekdays } from '@coilpath/contract';
 import type { RosterView } from './board';
-import { bookingSummary, colourOf, EventBody } from './parts';
+import { bookingSummary, colourOf, EventBody, eventNameExtras } from './parts';
 import { movedTimes, toWallClock } from './zone';
 import { appNowMs } from '@/lib/now';
 
@@ -145,7 +145,7 @@ export default function CalendarView({ view, date, timeZone: tz, today, bookings
           eventDidMount={(arg) => {
             const b = arg.event.extendedProps.booking as Booking | undefined;
             if (!b) return;
-            arg.el.setAttribute('aria-label', `${bookingSummary(b, techById.get(b.techId), tz)}, ${b.workOrder.siteName}. Open to move, reassign or unbook.`);
+            arg.el.setAttribute('aria-label', `${bookingSummary(b, techById.get(b.techId), tz)}, ${b.workOrder.siteName}.${eventNameExtras(b)} Open to move, reassign or unbook.`);
           }}
           eventClick={(arg: EventClickArg) => {
             arg.jsEvent.preventDefault();

@@ -2,6 +2,7 @@ import { AlertTriangle } from 'lucide-react';
 import type { Booking, Technician, WorkOrder } from '@coilpath/contract';
 import { epa608Labels, priorityLabels, workOrderKindLabels, workOrderLabel } from '@coilpath/contract';
 import { formatInZone } from '@/lib/format';
+import { overrideSummary } from './rules';
 import { instantToLocal } from './zone';
 
 /**
@@ -66,6 +67,7 @@ export function EventBody({
   const start = instantToLocal(booking.startAt, timeZone);
   const leak = leakDeadline(w.leakRepairDueDate, today, start.date);
   const time = `${start.time}–${instantToLocal(booking.endAt, timeZone).time}`;
+  const override = overrideSummary(booking);
   return (
     <div className="flex h-full flex-col gap-0.5 overflow-hidden px-1 py-0.5 text-[0.72rem] leading-tight text-white">
       <div className="font-semibold">
@@ -83,9 +85,10 @@ export function EventBody({
       <div className="truncate">
         <span className="font-semibold">{priorityLabels[w.priority]}</span>
         {showTech && tech ? ` · ${compact ? tech.name.split(' ')[0] : tech.name}` : ''}
-        {booking.hoursOverride ? ' · outside hours' : ''}
+        {override ? ` · ${compact ? 'override' : override.badge.toLowerCase()}` : ''}
         {booking.fixed ? ' · fixed' : ''}
       </div>
+      {override?.reason && !compact && <div className="truncate italic opacity-95">“{override.reason}”</div>}
       {leak?.overdue && (
         <div className="mt-0.5 inline-flex items-center gap-1 self-start rounded bg-white px-1 font-semibold text-alarm">
           <AlertTriangle className="size-3" aria-hidden="true" />
@@ -94,6 +97,12 @@ export function EventBody({
       )}
     </div>
   );
+}
+
+/** What a calendar event's name says after the summary and site: the override, its reason and who. */
+export function eventNameExtras(b: Booking): string {
+  const override = overrideSummary(b);
+  return override ? ` ${override.sentence}.` : '';
 }
 
 export function bookingSummary(b: Booking, tech: Technician | undefined, timeZone: string) {

@@ -10,7 +10,7 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { todayInZone, viewerZoneDiffers, zoneAbbreviation } from '@/lib/format';
-import { isOutsideHours, isStale, useBookings, useCreateBooking, useLoad, useTechnicians, useUnplaced, useUpdateBooking } from './api';
+import { isStale, useBookings, useCreateBooking, useLoad, useTechnicians, useUnplaced, useUpdateBooking } from './api';
 import { addDays, cellKey, daysRange, dayShort, groupBookings, mondayOf, rosterViews, stepDate, viewDays, viewTitle, weekOf, type RosterView } from './board';
 import { TechBoard } from './board-view';
 import { BookDialog, type BookInitial } from './book-dialog';
@@ -18,6 +18,7 @@ import { BookingDialog, type BookingEdit } from './booking-dialog';
 import { EvenOutDialog } from './even-out-dialog';
 import { LoadGauge } from './load-gauge';
 import { bookingSummary, certLabel, TechSwatch } from './parts';
+import { refusedRules } from './rules';
 import { UnplacedQueue } from './unplaced-queue';
 import { WorkOrderDialog } from './work-order-dialog';
 import { fromWallClock, instantToLocal, localToInstant, toWallClock, wallDate } from './zone';
@@ -127,8 +128,10 @@ export default function RosterPage() {
         onError: (e) => {
           opts.revert?.();
           const attempt = { techId: next.techId ?? b.techId, startAt: next.startAt, endAt: next.endAt };
+          const rules = refusedRules(e);
           if (isStale(e)) notify('Moved by someone else. The Roster now shows this booking as it is; make your change again if it is still needed.', 'alarm');
-          else if (isOutsideHours(e)) setEdit({ booking: b, attempt, error: errorMessage(e), outsideHours: true });
+          // A booking rule: the booking opens at the times tried, saying which rule, to book against it with a reason.
+          else if (rules.length) setEdit({ booking: b, attempt, error: errorMessage(e), refusedRules: rules });
           else if (opts.adjustOnRefusal) setEdit({ booking: b, attempt, error: errorMessage(e) });
           else notify(errorMessage(e), 'alarm');
         },
@@ -167,7 +170,7 @@ export default function RosterPage() {
         { workOrderId: wo.id, techId: focusTech.id, startAt: fromWallClock(wall, tz).toISOString() },
         {
           onSuccess: (b) => notify(`Booked ${bookingSummary(b, focusTech, tz)}.`),
-          onError: (e) => setBookFor({ wo, initial: { techId: focusTech.id, date: day, time, error: errorMessage(e), outsideHours: isOutsideHours(e) } }),
+          onError: (e) => setBookFor({ wo, initial: { techId: focusTech.id, date: day, time, error: errorMessage(e), refusedRules: refusedRules(e) } }),
         },
       );
     } else {

@@ -62,11 +62,12 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
   // Findings queued on this phone (a reload, or saved while offline) are sent again on open.
   const resent = useRef(false);
   useEffect(() => {
-    if (resent.current || !visit.canWrite) return;
+    // Only on site: the API takes findings from then on (kept queued until the technician is there).
+    if (resent.current || !visit.canRecord) return;
     resent.current = true;
     for (const f of draft.findings) send(f);
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, []);
+  }, [visit.canRecord]);
 
   const onSubmit = form.handleSubmit((v) => {
     const f = toInput(formSchema.parse(v), crypto.randomUUID());
@@ -117,7 +118,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
           />
         </div>
       )}
-      {visit.canWrite && (
+      {visit.canRecord && (
         <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">
           {visit.units.length > 1 && (
             <SelectField label="Unit" {...form.register('unitId')}>

@@ -188,7 +188,7 @@ export function ReadingsSection({
                 id={`r-${c.id}-${f}`}
                 label={fieldLabel(f, where, units)}
                 value={v[f] ?? ''}
-                disabled={!visit.canWrite}
+                disabled={!visit.canRecord}
                 error={form.errors[`${c.id}.${f}`]}
                 signed={fieldKind(f) === 'temperature'}
                 onChange={(val) => setField(c.id, f, val)}
@@ -234,7 +234,7 @@ export function ReadingsSection({
             );
           }),
         )}
-        {visit.canWrite && circuitsCount > 0 && (
+        {visit.canRecord && circuitsCount > 0 && (
           <div className="flex flex-col gap-2 sm:flex-row sm:items-center sm:justify-between">
             <SaveStatus
               pending={save.isPending}

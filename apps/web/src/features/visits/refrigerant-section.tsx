@@ -47,11 +47,12 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
 
   const resent = useRef(false);
   useEffect(() => {
-    if (resent.current || !visit.canWrite) return;
+    // Only on site: the API takes refrigerant on a visit from then on (kept queued until the technician is there).
+    if (resent.current || !visit.canRecord) return;
     resent.current = true;
     for (const p of draft.refrigerant) send(p);
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, []);
+  }, [visit.canRecord]);
 
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
@@ -106,7 +107,7 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
             {lastResult}
           </p>
         )}
-        {visit.canWrite && (
+        {visit.canRecord && (
           <form onSubmit={submit} noValidate className="grid grid-cols-2 gap-3 lg:grid-cols-3">
             {visit.units.length > 1 && (
               <div className="col-span-2 lg:col-span-1">

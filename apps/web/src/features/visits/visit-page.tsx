@@ -118,6 +118,12 @@ function VisitScreen({ id }: { id: string }) {
           {v.workOrder.latestAt ? ` Due by ${formatInZone(v.workOrder.latestAt, tz, 'EEE d MMM yyyy')}.` : ''}
         </p>
       )}
+      {v.recordRefusal && (
+        // The API's own refusal: readings, findings and refrigerant are recorded on site.
+        <p role="status" className="mb-4 rounded-md border border-coolant/40 bg-coolant-tint p-3 text-sm">
+          {v.recordRefusal}
+        </p>
+      )}
       {!v.canWrite && v.status !== 'closed' && (
         <p className="mb-4 rounded-md bg-slate-faint p-3 text-sm">Read only: only {v.techName}, the assigned technician, records this visit’s work.</p>
       )}

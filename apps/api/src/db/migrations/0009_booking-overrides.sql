@@ -1,0 +1,1 @@
+ALTER TABLE "bookings" ADD COLUMN "override_rules" jsonb DEFAULT '[]'::jsonb NOT NULL;
