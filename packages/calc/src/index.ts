@@ -3,6 +3,7 @@ export * from './refrigerants';
 export * from './saturation-data';
 export * from './sensor-check';
 export * from './leak-rules';
+export * from './leak-ledger';
 export * from './fix-quality';
 export * from './repeat-alarms';
 export * from './geo';

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { LEAK_RULES, leakRate, leakRepairObligation, ruleInForce, verificationDeadlines } from './leak-rules';
+import { leakRate, leakRepairObligation } from './leak-ledger';
+import { LEAK_RULES, ruleInForce, verificationDeadlines } from './leak-rules';
 
 describe('leakRate — annualizing', () => {
   it('uses the latest addition and the days since the previous one', () => {
