@@ -14,3 +14,4 @@ export * from './even-out';
 export * from './agreements';
 export * from './dates';
 export * from './units';
+export * from './atmosphere';
