@@ -11,8 +11,10 @@
  * This is the standard atmosphere, not the day's weather: a barometer reading, when known, is better.
  */
 
+import { ATMOSPHERE_KPA } from './refrigerants';
+
 /** Sea-level pressure of the standard atmosphere, kPa (ISO 2533; also the gauge zero Coilpath assumes by default). */
-export const STANDARD_SEA_LEVEL_KPA = 101.325;
+export const STANDARD_SEA_LEVEL_KPA = ATMOSPHERE_KPA;
 
 /** Lowest and highest elevation the troposphere formula is used for, metres (ISO 2533 starts at −2,000 m; the layer ends at 11,000 m). */
 export const ATMOSPHERE_ELEVATION_RANGE_M = { min: -2000, max: 11000 } as const;
