@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { LEAK_RULES, leakRate, leakRepairObligation, ruleInForce, verificationDeadlines } from './leak-rules';
+import { leakRate, leakRepairObligation } from './leak-ledger';
+import { LEAK_RULES, repairDaysFor, ruleInForce, verificationDeadlines } from './leak-rules';
 
 describe('leakRate — annualizing', () => {
   it('uses the latest addition and the days since the previous one', () => {
@@ -104,6 +105,30 @@ describe('ruleInForce', () => {
       const coversOds = inForce.filter((r) => r.covers !== 'hfc-gwp-over-53');
       expect(coversOds.length).toBeLessThanOrEqual(1);
     }
+  });
+});
+
+describe('the rule table', () => {
+  it('has the chronic-leaker report only from 2019 (82.157(j) [S], EPA fact sheet P100PI79 [P]) and in Part 84 (84.106(j) [S/M])', () => {
+    for (const r of LEAK_RULES) expect(r.chronicPercent, `${r.rule} from ${r.from}`).toBe(r.from >= '2019-01-01' ? 125 : null);
+  });
+
+  it('gives the 120-day shutdown window to industrial-process refrigeration only (82.157(d) [M], 84.106(d) [S])', () => {
+    for (const r of LEAK_RULES) {
+      expect(r.shutdownCategories).toEqual(['industrial_process']);
+      expect(repairDaysFor(r, 'industrial_process', true)).toBe(120);
+      expect(repairDaysFor(r, 'industrial_process', false)).toBe(30);
+      expect(repairDaysFor(r, 'industrial_process', undefined)).toBe(30);
+      for (const c of ['comfort_cooling', 'commercial_refrigeration', 'other'] as const) expect(repairDaysFor(r, c, true)).toBe(30);
+    }
+  });
+
+  it('leaves residential and light-commercial air conditioning out of Part 84 only (84.106(a) [S])', () => {
+    expect(LEAK_RULES.filter((r) => r.excludesResidentialOrLightCommercial).map((r) => r.rule)).toEqual(['40 CFR 84.106']);
+    expect(ruleInForce('R-410A', 20, '2026-06-01', { residentialOrLightCommercial: true })).toBeNull();
+    expect(ruleInForce('R-410A', 20, '2026-06-01', { residentialOrLightCommercial: false })?.rule).toBe('40 CFR 84.106');
+    expect(ruleInForce('R-22', 60, '2026-06-01', { residentialOrLightCommercial: true })?.rule).toBe('40 CFR 82.157');
+    expect(ruleInForce('R-410A', 60, '2019-06-01', { residentialOrLightCommercial: true })?.rule).toBe('40 CFR 82.157');
   });
 });
 

@@ -1,7 +1,11 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
+import { atmosphericPressureAt } from './atmosphere';
 import {
+  atmosphereFor,
+  gaugeToAbsolute,
   isRefrigerantId,
+  KPA_PER_PSI,
   listRefrigerants,
   pressureRange,
   refrigerantIds,
@@ -200,5 +204,81 @@ describe('superheat / subcooling', () => {
   it('rejects a non-number line temperature and an unknown refrigerant', () => {
     expect(() => superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: Number.NaN })).toThrow(RangeError);
     expect(() => subcooling({ refrigerant: 'R-9' as RefrigerantId, liquidPressure: 300, liquidLineTemp: 90 })).toThrow(/valid ids/);
+  });
+});
+
+describe('gauges at altitude (atmosphericPressureKPa)', () => {
+  const denver = atmosphericPressureAt(1609); // ISA at 1,609 m, about 83.43 kPa
+
+  it('the default, and 101.325 kPa given explicitly, give exactly the sea-level results', () => {
+    for (const id of ids) {
+      for (const point of ['bubble', 'dew'] as const) {
+        for (const p of [5, 60, 140]) {
+          expect(saturationTemperature(id, p, { point, atmosphericPressureKPa: 101.325 })).toBe(saturationTemperature(id, p, { point }));
+          expect(saturationTemperature(id, p * 6.9, { point, pressureUnit: 'kPag', temperatureUnit: 'C', atmosphericPressureKPa: 101.325 })).toBe(saturationTemperature(id, p * 6.9, { point, pressureUnit: 'kPag', temperatureUnit: 'C' }));
+        }
+        expect(saturationPressure(id, 20, { point, atmosphericPressureKPa: 101.325 })).toBe(saturationPressure(id, 20, { point }));
+        expect(pressureRange(id, { point, atmosphericPressureKPa: 101.325 })).toEqual(pressureRange(id, { point }));
+      }
+    }
+    expect(superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50, atmosphericPressureKPa: 101.325 })).toEqual(superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50 }));
+    expect(subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95, atmosphericPressureKPa: 101.325 })).toEqual(subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95 }));
+  });
+
+  it('a gauge at altitude reads more for the same absolute pressure: saturation gauge pressure up by the atmosphere difference', () => {
+    const psiDiff = 14.696 - denver / KPA_PER_PSI; // ≈ 2.595 psi
+    const kpaDiff = 101.325 - denver; // ≈ 17.89 kPa
+    for (const id of ids) {
+      expect(saturationPressure(id, 40, { atmosphericPressureKPa: denver }) - saturationPressure(id, 40)).toBeCloseTo(psiDiff, 9);
+      expect(saturationPressure(id, 4, { pressureUnit: 'kPag', temperatureUnit: 'C', atmosphericPressureKPa: denver }) - saturationPressure(id, 4, { pressureUnit: 'kPag', temperatureUnit: 'C' })).toBeCloseTo(kpaDiff, 9);
+    }
+  });
+
+  it('the same gauge reading at altitude is a lower absolute pressure, so a lower saturation temperature (fast-check)', () => {
+    fc.assert(
+      fc.property(fc.constantFrom(...ids), fc.double({ min: 20, max: 300, noNaN: true }), fc.double({ min: 500, max: 4000, noNaN: true }), (id, psig, elevation) => {
+        const atm = atmosphericPressureAt(elevation);
+        const { max } = pressureRange(id);
+        fc.pre(psig < max);
+        const high = saturationTemperature(id, psig, { atmosphericPressureKPa: atm });
+        expect(high).toBeLessThan(saturationTemperature(id, psig));
+        // and it is the sea-level temperature of the same absolute pressure
+        expect(high).toBeCloseTo(saturationTemperature(id, psig + atm / KPA_PER_PSI - 14.696), 9);
+      }),
+    );
+  });
+
+  it('superheat rises and subcooling falls by the saturation shift', () => {
+    const sea = superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50 });
+    const high = superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50, atmosphericPressureKPa: denver });
+    expect(high.superheat - sea.superheat).toBeCloseTo(sea.saturationTemp - high.saturationTemp, 12);
+    expect(high.superheat).toBeGreaterThan(sea.superheat);
+    const scSea = subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95 });
+    const scHigh = subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95, atmosphericPressureKPa: denver });
+    expect(scHigh.subcooling).toBeLessThan(scSea.subcooling);
+  });
+
+  it('the table range in gauge pressure moves with the atmosphere (a low reading valid at altitude may not be at sea level)', () => {
+    const sea = pressureRange('R-134a');
+    const high = pressureRange('R-134a', { atmosphericPressureKPa: denver });
+    expect(high.min - sea.min).toBeCloseTo(14.696 - denver / KPA_PER_PSI, 9);
+    expect(() => saturationTemperature('R-134a', sea.min - 1)).toThrow(RangeError);
+    expect(saturationTemperature('R-134a', sea.min - 1, { atmosphericPressureKPa: 101.325 * 1.2 })).toBeGreaterThan(-60);
+  });
+
+  it('refuses an atmosphere that is not a finite number above 0 and at most 130 kPa', () => {
+    for (const bad of [0, -5, 130.5, Number.NaN, Number.POSITIVE_INFINITY]) {
+      expect(() => saturationTemperature('R-410A', 118, { atmosphericPressureKPa: bad })).toThrow(/atmosphericPressureKPa/);
+    }
+    expect(saturationTemperature('R-410A', 118, { atmosphericPressureKPa: 130 })).toBeGreaterThan(saturationTemperature('R-410A', 118));
+  });
+
+  it('gaugeToAbsolute and atmosphereFor: psig → psia, kPa(g) → kPa', () => {
+    expect(atmosphereFor('psig')).toBe(14.696);
+    expect(atmosphereFor('kPag')).toBe(101.325);
+    expect(gaugeToAbsolute(118, 'psig')).toBe(118 + 14.696);
+    expect(gaugeToAbsolute(800, 'kPag', denver)).toBe(800 + denver);
+    expect(gaugeToAbsolute(118, 'psig', denver)).toBeCloseTo(118 + denver / 6.894757, 5);
+    expect(() => atmosphereFor('bar' as 'psig')).toThrow(/valid: psig, kPag/);
   });
 });

@@ -102,7 +102,10 @@ export function assertRefrigerant(refrigerant: unknown): RefrigerantId {
 }
 
 // ---------------------------------------------------------------------------------------------
-// Units. Gauge pressures are against a standard atmosphere of 14.696 psia / 101.325 kPa.
+// Units. Gauge pressures are against a standard atmosphere of 14.696 psia / 101.325 kPa unless the
+// caller gives the local atmosphere (`atmosphericPressureKPa`, e.g. from `atmosphericPressureAt`
+// for the branch's elevation): at 1,600 m a gauge reads about 2.6 psi more for the same absolute
+// pressure than at sea level.
 
 /** Standard atmosphere in psia used for gauge pressures. */
 export const ATMOSPHERE_PSIA = 14.696;
@@ -111,11 +114,51 @@ export const ATMOSPHERE_KPA = 101.325;
 /** 1 psi in kPa, exact from 1 lbf = 4.448 221 615 260 5 N and 1 in = 0.0254 m (NIST SP 811, B.8: 6.894 757). */
 export const KPA_PER_PSI = 6.894757293168361;
 
-function toPsia(value: number, unit: PressureUnit): number {
-  return unit === 'psig' ? value + ATMOSPHERE_PSIA : (value + ATMOSPHERE_KPA) / KPA_PER_PSI;
+/** The atmosphere a gauge reads against, in both units. */
+interface Atmosphere {
+  psia: number;
+  kpa: number;
 }
-function fromPsia(psia: number, unit: PressureUnit): number {
-  return unit === 'psig' ? psia - ATMOSPHERE_PSIA : psia * KPA_PER_PSI - ATMOSPHERE_KPA;
+const STANDARD_ATMOSPHERE: Atmosphere = { psia: ATMOSPHERE_PSIA, kpa: ATMOSPHERE_KPA };
+
+/**
+ * The local atmosphere from an optional kPa value. Absent or exactly 101.325 kPa is the standard
+ * atmosphere with its customary 14.696 psia, so every sea-level result is unchanged; any other value
+ * is converted exactly. `RangeError` unless a finite number above 0 and at most 130 kPa (the
+ * standard atmosphere at −2,000 m is about 128 kPa).
+ */
+function atmosphere(kpa: number | undefined): Atmosphere {
+  if (kpa === undefined || kpa === ATMOSPHERE_KPA) return STANDARD_ATMOSPHERE;
+  if (typeof kpa !== 'number' || !Number.isFinite(kpa) || kpa <= 0 || kpa > 130) {
+    throw new RangeError(`atmosphericPressureKPa must be a finite number above 0 and at most 130 kPa; got ${String(kpa)}`);
+  }
+  return { psia: kpa / KPA_PER_PSI, kpa };
+}
+
+function pressureUnitOf(unit: unknown): PressureUnit {
+  if (unit !== 'psig' && unit !== 'kPag') throw new RangeError(`Unknown pressure unit ${JSON.stringify(unit)}; valid: psig, kPag`);
+  return unit;
+}
+
+/**
+ * The atmosphere a gauge reads against, in the absolute unit that goes with `unit`: psia for psig,
+ * kPa for kPa(g). Default (and exactly 101.325 kPa) is the standard 14.696 psia / 101.325 kPa.
+ */
+export function atmosphereFor(unit: PressureUnit, atmosphericPressureKPa?: number): number {
+  const atm = atmosphere(atmosphericPressureKPa);
+  return pressureUnitOf(unit) === 'psig' ? atm.psia : atm.kpa;
+}
+
+/** A gauge pressure as absolute pressure (psig → psia, kPa(g) → kPa) against the given atmosphere (default sea level). */
+export function gaugeToAbsolute(value: number, unit: PressureUnit, atmosphericPressureKPa?: number): number {
+  return value + atmosphereFor(unit, atmosphericPressureKPa);
+}
+
+function toPsia(value: number, unit: PressureUnit, atm: Atmosphere): number {
+  return unit === 'psig' ? value + atm.psia : (value + atm.kpa) / KPA_PER_PSI;
+}
+function fromPsia(psia: number, unit: PressureUnit, atm: Atmosphere): number {
+  return unit === 'psig' ? psia - atm.psia : psia * KPA_PER_PSI - atm.kpa;
 }
 function toF(value: number, unit: TemperatureUnit): number {
   return unit === 'F' ? value : (value * 9) / 5 + 32;
@@ -131,12 +174,15 @@ export interface SaturationOptions {
   temperatureUnit?: TemperatureUnit;
   /** Default 'dew'. */
   point?: SaturationPoint;
+  /** Local atmospheric pressure the gauge reads against, kPa; default 101.325 (sea level). */
+  atmosphericPressureKPa?: number;
 }
 
 interface ResolvedOptions {
   pressureUnit: PressureUnit;
   temperatureUnit: TemperatureUnit;
   point: SaturationPoint;
+  atmosphere: Atmosphere;
 }
 
 function resolveOptions(opts: SaturationOptions | undefined): ResolvedOptions {
@@ -152,7 +198,7 @@ function resolveOptions(opts: SaturationOptions | undefined): ResolvedOptions {
   if (point !== 'bubble' && point !== 'dew') {
     throw new RangeError(`Unknown saturation point ${JSON.stringify(point)}; valid: bubble, dew`);
   }
-  return { pressureUnit, temperatureUnit, point };
+  return { pressureUnit, temperatureUnit, point, atmosphere: atmosphere(opts?.atmosphericPressureKPa) };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -293,8 +339,8 @@ export function pressureRange(refrigerant: RefrigerantId | string, opts?: Satura
   const o = resolveOptions(opts);
   const c = curveFor(id, o.point);
   return {
-    min: fromPsia(Math.exp(c.y[0] as number), o.pressureUnit),
-    max: fromPsia(Math.exp(c.y[c.y.length - 1] as number), o.pressureUnit),
+    min: fromPsia(Math.exp(c.y[0] as number), o.pressureUnit, o.atmosphere),
+    max: fromPsia(Math.exp(c.y[c.y.length - 1] as number), o.pressureUnit, o.atmosphere),
   };
 }
 
@@ -307,7 +353,8 @@ export function temperatureRange(refrigerant: RefrigerantId | string, opts?: Pic
 }
 
 /**
- * Saturation temperature at a gauge pressure. Defaults: psig in, °F out, dew point.
+ * Saturation temperature at a gauge pressure. Defaults: psig in, °F out, dew point, gauge read at
+ * sea level (`atmosphericPressureKPa` 101.325; give the local atmosphere at altitude).
  *
  * Throws `RangeError` for an unknown refrigerant (naming the valid ids) and for a pressure that is
  * NaN, not a number or outside the table (naming the valid range). Never extrapolates.
@@ -321,7 +368,7 @@ export function saturationTemperature(refrigerant: RefrigerantId | string, press
   const { min, max } = pressureRange(id, o);
   const range = `for ${id} (${o.point} point) is ${fmt(min)} to ${fmt(max)} ${o.pressureUnit}`;
   const p = assertFiniteNumber(pressure, 'Pressure', range);
-  const psia = toPsia(p, o.pressureUnit);
+  const psia = toPsia(p, o.pressureUnit, o.atmosphere);
   const lnP = Math.log(psia);
   const y0 = c.y[0] as number;
   const yn = c.y[c.y.length - 1] as number;
@@ -335,7 +382,8 @@ export function saturationTemperature(refrigerant: RefrigerantId | string, press
 }
 
 /**
- * Saturation gauge pressure at a temperature. Defaults: °F in, psig out, dew point.
+ * Saturation gauge pressure at a temperature. Defaults: °F in, psig out, dew point, gauge read at
+ * sea level (`atmosphericPressureKPa` 101.325).
  *
  * Throws `RangeError` for an unknown refrigerant and for a temperature that is NaN, not a number or
  * outside the table. Never extrapolates.
@@ -355,7 +403,7 @@ export function saturationPressure(refrigerant: RefrigerantId | string, temperat
     throw new RangeError(`Temperature ${t} °${o.temperatureUnit} is outside the table; valid range ${range}`);
   }
   const psia = Math.exp(lnPressureAt(c, Math.min(Math.max(f, c.tMinF), c.tMaxF)));
-  return fromPsia(psia, o.pressureUnit);
+  return fromPsia(psia, o.pressureUnit, o.atmosphere);
 }
 
 export interface SuperheatInput {
@@ -366,6 +414,8 @@ export interface SuperheatInput {
   suctionLineTemp: number;
   pressureUnit?: PressureUnit;
   temperatureUnit?: TemperatureUnit;
+  /** Local atmospheric pressure the gauge reads against, kPa; default 101.325 (sea level). */
+  atmosphericPressureKPa?: number;
 }
 
 /**
@@ -381,6 +431,7 @@ export function superheat(input: SuperheatInput): { saturationTemp: number; supe
     pressureUnit: input.pressureUnit ?? 'psig',
     temperatureUnit: unit,
     point: 'dew',
+    atmosphericPressureKPa: input.atmosphericPressureKPa,
   });
   const line = assertFiniteNumber(input.suctionLineTemp, 'Suction line temperature', `any finite °${unit}`);
   return { saturationTemp, superheat: line - saturationTemp };
@@ -394,6 +445,8 @@ export interface SubcoolingInput {
   liquidLineTemp: number;
   pressureUnit?: PressureUnit;
   temperatureUnit?: TemperatureUnit;
+  /** Local atmospheric pressure the gauge reads against, kPa; default 101.325 (sea level). */
+  atmosphericPressureKPa?: number;
 }
 
 /**
@@ -407,6 +460,7 @@ export function subcooling(input: SubcoolingInput): { saturationTemp: number; su
     pressureUnit: input.pressureUnit ?? 'psig',
     temperatureUnit: unit,
     point: 'bubble',
+    atmosphericPressureKPa: input.atmosphericPressureKPa,
   });
   const line = assertFiniteNumber(input.liquidLineTemp, 'Liquid line temperature', `any finite °${unit}`);
   return { saturationTemp, subcooling: saturationTemp - line };
