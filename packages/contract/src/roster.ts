@@ -228,12 +228,44 @@ export const evenOutPreviewSchema = z.object({
   load: z.array(z.object({ techId: idSchema, capacityMinutes: z.number(), beforeMinutes: z.number(), afterMinutes: z.number() })),
   /** Estimated drive minutes of the week, before and after. */
   driveMinutes: z.object({ before: z.number(), after: z.number() }),
+  /**
+   * Booked jobs (not started, not fixed) moved to another technician or day where that evens the load, never past
+   * their due time nor off their required skill or EPA 608 certification; sorted by due time (none last).
+   */
+  moves: z.array(
+    z.object({
+      bookingId: idSchema,
+      version: z.number().int(),
+      workOrderId: idSchema,
+      number: z.number().int(),
+      siteName: z.string(),
+      priority: prioritySchema,
+      dueAt: z.string().nullable(),
+      from: z.object({ techId: idSchema, startAt: z.string(), endAt: z.string() }),
+      to: z.object({ techId: idSchema, startAt: z.string(), endAt: z.string() }),
+      travelMinutes: z.number(),
+    }),
+  ),
+  /** Spread of the load ratios (highest − lowest technician-day) as booked, after the proposals alone, and after the moves too. */
+  spread: z.object({ before: z.number(), withoutMoves: z.number(), after: z.number() }),
 });
 export type EvenOutPreview = z.infer<typeof evenOutPreviewSchema>;
 
-export const evenOutApplySchema = z.strictObject({
-  proposals: z.array(proposalSchema).min(1, 'Choose at least one proposal').max(500),
+/** An accepted move of a booked job, based on the booking's version in the preview. */
+export const evenOutMoveSchema = z.strictObject({
+  bookingId: idSchema,
+  version: z.number().int().min(1),
+  techId: idSchema,
+  startAt: instantSchema,
+  endAt: instantSchema,
 });
+export type EvenOutMove = z.infer<typeof evenOutMoveSchema>;
+export const evenOutApplySchema = z
+  .strictObject({
+    proposals: z.array(proposalSchema).max(500).default([]),
+    moves: z.array(evenOutMoveSchema).max(500).default([]),
+  })
+  .refine((v) => v.proposals.length + v.moves.length > 0, { message: 'Choose at least one proposal or move', path: ['proposals'] });
 export type EvenOutApply = z.input<typeof evenOutApplySchema>;
 export const evenOutApplyResultSchema = z.object({ bookings: z.array(bookingSchema) });
 

@@ -5,10 +5,10 @@ import { evenOutApplySchema, evenOutSchema, loadQuerySchema, suggestSchema, work
 import { addDays, evenOut, rankTechnicians, technicianLoad, type SchedulingJob } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
-import { bookings, branches, sites, units, users, workOrders } from '../../db/schema';
+import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
 import { assertBranch, resolveBranch } from '../../auth/middleware';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
-import { createBooking, overlapping, ruleJob } from './bookings.service';
+import { createBooking, overlapping, ruleJob, updateBooking } from './bookings.service';
 import {
   daysBetween,
   localRange,
@@ -209,7 +209,34 @@ export async function evenOutPreview(db: Db, user: SessionUser, input: z.output<
     return true;
   });
   const jobs = inWeek.map((r) => toJob(r, now));
-  const result = evenOut({ jobs, techs, bookings: calcBookings, week });
+
+  // Booked work of the week that has not started and is not fixed may move to even the load out.
+  const candidateIds = existing
+    .filter((b) => !b.fixed && b.startAt.getTime() > now.getTime() && b.startAt >= range.start && b.endAt <= range.end)
+    .map((b) => b.id);
+  const movableRows = candidateIds.length
+    ? await db
+        .select({
+          bookingId: bookings.id,
+          version: bookings.version,
+          wo: workOrders,
+          lat: sites.lat,
+          lon: sites.lon,
+          siteName: sites.name,
+          enRouteAt: visits.enRouteAt,
+          onSiteAt: visits.onSiteAt,
+          closedAt: visits.closedAt,
+        })
+        .from(bookings)
+        .innerJoin(workOrders, eq(workOrders.id, bookings.workOrderId))
+        .innerJoin(sites, eq(sites.id, workOrders.siteId))
+        .leftJoin(visits, eq(visits.bookingId, bookings.id))
+        .where(and(inArray(bookings.id, candidateIds), eq(workOrders.state, 'booked')))
+    : [];
+  const existingById = new Map(existing.map((b) => [b.id, b]));
+  const movableById = new Map(movableRows.filter((r) => !r.enRouteAt && !r.onSiteAt && !r.closedAt).map((r) => [r.bookingId, r]));
+  const movable = [...movableById.values()].map((r) => ({ booking: toCalcBooking(existingById.get(r.bookingId)!), job: toJob(r, now) }));
+  const result = evenOut({ jobs, techs, bookings: calcBookings, movable, week, options: { now } });
 
   const before = new Map<string, number>();
   for (const day of daysBetween(week, last)) {
@@ -254,37 +281,82 @@ export async function evenOutPreview(db: Db, user: SessionUser, input: z.output<
       afterMinutes: after.get(t.id)?.booked ?? before.get(t.id) ?? 0,
     })),
     driveMinutes: { before: weekDriveMinutes(techs, stopsBefore), after: weekDriveMinutes(techs, stopsAfter) },
+    moves: result.moves
+      .map((m) => {
+        const r = movableById.get(m.bookingId)!;
+        const dueAt = ruleJob(r.wo).dueAt;
+        return {
+          bookingId: m.bookingId,
+          version: r.version,
+          workOrderId: m.jobId,
+          number: r.wo.number,
+          siteName: r.siteName,
+          priority: r.wo.priority,
+          dueAt: dueAt ? new Date(dueAt).toISOString() : null,
+          from: { techId: m.from.techId, startAt: m.from.start, endAt: m.from.end },
+          to: { techId: m.to.techId, startAt: m.to.start, endAt: m.to.end },
+          travelMinutes: Math.round(m.to.travelMinutes),
+        };
+      })
+      .sort((a, b) => (a.dueAt ?? '\uffff').localeCompare(b.dueAt ?? '\uffff') || a.number - b.number),
+    spread: { before: result.spreadBefore, withoutMoves: result.spreadWithoutMoves, after: result.spread },
   };
 }
 
 /**
- * Books the accepted proposals, all or none: each goes through the same rules as a single booking,
- * and a refusal of any of them rolls the whole set back and names the one refused.
+ * Applies the accepted moves and books the accepted proposals, all or none: the moves first (they free the
+ * room the proposals may use), each through the same rules and version check as a move on the Roster, then each
+ * proposal as a single booking. A refusal of any rolls the whole set back and names the one refused.
  */
 export async function evenOutApply(db: Db, user: SessionUser, input: z.output<typeof evenOutApplySchema>, now: Date): Promise<Booking[]> {
   const ids = input.proposals.map((p) => p.workOrderId);
   if (new Set(ids).size !== ids.length) throw badRequest('A work order appears twice in the proposals.');
+  const moved = input.moves.map((m) => m.bookingId);
+  if (new Set(moved).size !== moved.length) throw badRequest('A booking appears twice in the moves.');
   const numbers = new Map(
-    (await db.select({ id: workOrders.id, number: workOrders.number }).from(workOrders).where(inArray(workOrders.id, ids))).map((r) => [r.id, r.number]),
+    ids.length
+      ? (await db.select({ id: workOrders.id, number: workOrders.number }).from(workOrders).where(inArray(workOrders.id, ids))).map((r) => [r.id, r.number])
+      : [],
   );
+  const refused = (e: unknown, label: string, details: Record<string, unknown>) => {
+    if (e instanceof HttpError && e.status === 409) {
+      return conflict(e.code, `${label}: ${e.message} Nothing was changed; preview again.`, {
+        ...details,
+        ...(typeof e.details === 'object' && e.details ? e.details : {}),
+      });
+    }
+    return e;
+  };
   return db.transaction(async (tx) => {
     const out: Booking[] = [];
+    for (const m of input.moves) {
+      try {
+        out.push(await updateBooking(tx, user, m.bookingId, { version: m.version, techId: m.techId, startAt: m.startAt, endAt: m.endAt }, now));
+      } catch (e) {
+        const b = await getBookingLabel(tx, m.bookingId);
+        throw refused(e, `Moving ${b}`, { bookingId: m.bookingId });
+      }
+    }
     for (const p of input.proposals) {
       try {
         out.push(await createBooking(tx, user, p, now));
       } catch (e) {
-        if (e instanceof HttpError && e.status === 409) {
-          const err = e;
-          throw conflict(err.code, `${workOrderLabel(numbers.get(p.workOrderId))}: ${err.message} Nothing was booked; preview again.`, {
-            workOrderId: p.workOrderId,
-            ...(typeof err.details === 'object' && err.details ? err.details : {}),
-          });
-        }
-        throw e;
+        throw refused(e, workOrderLabel(numbers.get(p.workOrderId)), { workOrderId: p.workOrderId });
       }
     }
     return out;
   });
+}
+
+/** "WO-10234" of a booking's work order, for a refusal's message. */
+async function getBookingLabel(tx: Tx, bookingId: string): Promise<string> {
+  const [r] = await tx
+    .select({ number: workOrders.number })
+    .from(bookings)
+    .innerJoin(workOrders, eq(workOrders.id, bookings.workOrderId))
+    .where(eq(bookings.id, bookingId))
+    .limit(1);
+  return r ? workOrderLabel(r.number) : 'the booking';
 }
 
 /** Active sites of the branch with their active units (two queries, no N+1). */

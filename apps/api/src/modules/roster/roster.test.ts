@@ -383,7 +383,7 @@ describe('POST /api/roster/even-out', () => {
     });
     const refused = await agent.post('/api/roster/even-out/apply').send({ proposals: [pick(p1!), pick(p2!)] });
     expect(refused.status).toBe(409);
-    expect(refused.body.error.message).toContain('Nothing was booked');
+    expect(refused.body.error.message).toContain('Nothing was changed');
     const [still] = await t.ctx.db.select().from(workOrders).where(eq(workOrders.id, p1!.workOrderId));
     expect(still!.state).toBe('unplaced');
 
@@ -391,5 +391,61 @@ describe('POST /api/roster/even-out', () => {
     expect(applied.status).toBe(200);
     expect(applied.body.bookings).toHaveLength(1);
     expect(jobs.map((j) => j.id)).toContain(applied.body.bookings[0].workOrderId);
+  });
+});
+
+describe('even out moves booked work', () => {
+  it('proposes moving booked, not started, not fixed jobs to even the load, within their rules; applies them with a version check', async () => {
+    const { makeBranch } = await import('../../testing/fixtures');
+    const branch = await makeBranch(t.ctx.db, { timeZone: 'America/Chicago' });
+    const site = await makeSiteWithUnit(t.ctx.db, branch.id);
+    const cal = await makeUser(t.ctx.db, 'technician', branch.id, { name: 'Cal', skills: ['chillers'] });
+    const dee = await makeUser(t.ctx.db, 'technician', branch.id, { name: 'Dee', skills: [] });
+    const disp = await makeUser(t.ctx.db, 'dispatcher', branch.id);
+    const agent = await signedInAgent(t.app, disp.email, TEST_PASSWORD);
+    // Wednesday 10 March 2027 (CST): Cal has four 2-hour jobs from 07:00, Dee nothing all week.
+    const starts = ['13:00', '15:00', '17:00', '19:00'].map((hm) => `2027-03-10T${hm}:00Z`);
+    const jobs = await Promise.all(starts.map(() => makeWorkOrder(t.ctx.db, { branchId: branch.id, siteId: site.site.id, estimatedMinutes: 120 })));
+    // The first needs a skill only Cal has; the second is fixed; the third is due by 13:00 CST that day.
+    await t.ctx.db.update(workOrders).set({ requiredSkill: 'chillers' }).where(eq(workOrders.id, jobs[0]!.id));
+    await t.ctx.db.update(workOrders).set({ latestAt: new Date('2027-03-10T19:00:00Z') }).where(eq(workOrders.id, jobs[2]!.id));
+    const booked: { id: string; version: number; workOrderId: string }[] = [];
+    for (const [i, w] of jobs.entries()) {
+      const res = await book(agent, w.id, cal.id, starts[i]!, i === 1 ? { fixed: true } : {});
+      expect(res.status).toBe(201);
+      booked.push(res.body.booking);
+    }
+
+    const preview = await agent.post('/api/roster/even-out').send({ week: '2027-03-10' });
+    expect(preview.status).toBe(200);
+    type Move = { bookingId: string; version: number; workOrderId: string; dueAt: string | null; from: { techId: string }; to: { techId: string; startAt: string; endAt: string } };
+    const moves = preview.body.moves as Move[];
+    expect(moves.length).toBeGreaterThan(0);
+    // Never the fixed one; the chillers job never to Dee; nothing ends after its due time.
+    expect(moves.map((m) => m.bookingId)).not.toContain(booked[1]!.id);
+    expect(moves.find((m) => m.bookingId === booked[0]!.id)?.to.techId ?? cal.id).toBe(cal.id);
+    for (const m of moves) if (m.dueAt) expect(Date.parse(m.to.endAt)).toBeLessThanOrEqual(Date.parse(m.dueAt));
+    // Sorted by due time, those without one last.
+    const dues = moves.map((m) => m.dueAt ?? '\uffff');
+    expect([...dues].sort()).toEqual(dues);
+    expect(preview.body.spread.after).toBeLessThan(preview.body.spread.before);
+
+    // A stale version (someone moved it meanwhile) refuses the whole set and changes nothing.
+    const accept = (m: Move, version = m.version) => ({ bookingId: m.bookingId, version, techId: m.to.techId, startAt: m.to.startAt, endAt: m.to.endAt });
+    const stale = await agent.post('/api/roster/even-out/apply').send({ moves: moves.map((m, i) => accept(m, i === moves.length - 1 ? m.version + 5 : m.version)) });
+    expect(stale.status).toBe(409);
+    expect(stale.body.error.message).toContain('Nothing was changed');
+    const unchanged = await t.ctx.db.select().from(bookings).where(eq(bookings.techId, cal.id));
+    expect(unchanged).toHaveLength(4);
+
+    const applied = await agent.post('/api/roster/even-out/apply').send({ moves: moves.map((m) => accept(m)) });
+    expect(applied.status).toBe(200);
+    for (const m of moves) {
+      const [b] = await t.ctx.db.select().from(bookings).where(eq(bookings.id, m.bookingId));
+      expect([b!.techId, b!.startAt.toISOString()]).toEqual([m.to.techId, new Date(m.to.startAt).toISOString()]);
+    }
+    // Nothing to apply is a clear 400.
+    const empty = await agent.post('/api/roster/even-out/apply').send({});
+    expect(empty.status).toBe(400);
   });
 });

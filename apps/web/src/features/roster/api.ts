@@ -10,8 +10,7 @@ import type {
   Technician,
   TechnicianDayLoad,
   WorkOrder,
-  WorkOrderCreate,
-} from '@coilpath/contract';
+  WorkOrderCreate, EvenOutMove } from '@coilpath/contract';
 import { api, ApiError } from '@/lib/api-client';
 
 export const rosterKeys = {
@@ -128,7 +127,7 @@ export function useEvenOutPreview() {
 export function useEvenOutApply() {
   const invalidate = useInvalidateRoster();
   return useMutation({
-    mutationFn: (proposals: Proposal[]) => api.post<{ bookings: Booking[] }>('/api/roster/even-out/apply', { proposals }).then((r) => r.bookings),
+    mutationFn: (body: { proposals: Proposal[]; moves: EvenOutMove[] }) => api.post<{ bookings: Booking[] }>('/api/roster/even-out/apply', body).then((r) => r.bookings),
     onSettled: invalidate,
   });
 }

@@ -1,6 +1,6 @@
 import { useEffect, useState } from 'react';
 import type { Technician } from '@coilpath/contract';
-import { workOrderLabel } from '@coilpath/contract';
+import { priorityLabels, workOrderLabel } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
@@ -36,9 +36,18 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
   const preview = useEvenOutPreview();
   const apply = useEvenOutApply();
   const [chosen, setChosen] = useState<Set<string>>(new Set());
+  const [chosenMoves, setChosenMoves] = useState<Set<string>>(new Set());
   const { mutate } = preview;
   useEffect(() => {
-    mutate({ branchId, week }, { onSuccess: (p) => setChosen(new Set(p.proposals.map((x) => x.workOrderId))) });
+    mutate(
+      { branchId, week },
+      {
+        onSuccess: (p) => {
+          setChosen(new Set(p.proposals.map((x) => x.workOrderId)));
+          setChosenMoves(new Set(p.moves.map((m) => m.bookingId)));
+        },
+      },
+    );
   }, [branchId, week, mutate]);
 
   const techOf = (id: string) => techs.find((t) => t.id === id);
@@ -55,27 +64,56 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
     });
   }
 
-  function accept() {
-    const proposals = p.proposals.filter((x) => chosen.has(x.workOrderId)).map(({ workOrderId, techId, startAt, endAt }) => ({ workOrderId, techId, startAt, endAt }));
-    apply.mutate(proposals, {
-      onSuccess: (bs) => {
-        notify(`Booked ${bs.length} job${bs.length === 1 ? '' : 's'} from the even-out proposal.`);
-        onClose();
-      },
+  function toggleMove(id: string) {
+    setChosenMoves((s) => {
+      const n = new Set(s);
+      if (n.has(id)) n.delete(id);
+      else n.add(id);
+      return n;
     });
   }
 
+  function accept() {
+    const proposals = p.proposals.filter((x) => chosen.has(x.workOrderId)).map(({ workOrderId, techId, startAt, endAt }) => ({ workOrderId, techId, startAt, endAt }));
+    const moves = p.moves
+      .filter((m) => chosenMoves.has(m.bookingId))
+      .map((m) => ({ bookingId: m.bookingId, version: m.version, techId: m.to.techId, startAt: m.to.startAt, endAt: m.to.endAt }));
+    apply.mutate(
+      { proposals, moves },
+      {
+        onSuccess: () => {
+          const said = [
+            proposals.length ? `booked ${proposals.length} job${proposals.length === 1 ? '' : 's'}` : '',
+            moves.length ? `moved ${moves.length} booking${moves.length === 1 ? '' : 's'}` : '',
+          ].filter(Boolean);
+          notify(`Even out: ${said.join(' and ')}.`);
+          onClose();
+        },
+      },
+    );
+  }
+
+  const minutes = (a: string, b: string) => (Date.parse(b) - Date.parse(a)) / 60_000;
   const chosenLoad = new Map<string, number>();
-  for (const x of p.proposals) if (chosen.has(x.workOrderId)) chosenLoad.set(x.techId, (chosenLoad.get(x.techId) ?? 0) + (Date.parse(x.endAt) - Date.parse(x.startAt)) / 60_000);
+  const addLoad = (techId: string, m: number) => chosenLoad.set(techId, (chosenLoad.get(techId) ?? 0) + m);
+  for (const x of p.proposals) if (chosen.has(x.workOrderId)) addLoad(x.techId, minutes(x.startAt, x.endAt));
+  for (const m of p.moves) {
+    if (!chosenMoves.has(m.bookingId)) continue;
+    addLoad(m.from.techId, -minutes(m.from.startAt, m.from.endAt));
+    addLoad(m.to.techId, minutes(m.to.startAt, m.to.endAt));
+  }
+  const percent = (x: number) => `${Math.round(x * 100)} %`;
+  const picked = chosen.size + chosenMoves.size;
 
   return (
     <div className="flex flex-col gap-4">
       <p className="text-sm text-slate">
         Week of {p.week.from} to {p.week.to}. Coilpath proposes times for the unplaced work so that nobody goes over their working hours, the load is even
-        and the drive stays short. Existing bookings do not move. Untick what you do not want.
+        and the drive stays short. It may also move booked jobs that have not started (never a fixed one, never past its due time, never to a
+        technician without the skill or EPA 608 certification) where that evens out the load. Untick what you do not want.
       </p>
       {p.proposals.length === 0 ? (
-        <p className="rounded-md border border-dashed border-slate-line p-4 text-sm">No proposal: there is no unplaced work for this week, or none fits.</p>
+        <p className="rounded-md border border-dashed border-slate-line p-4 text-sm">No new booking proposed: there is no unplaced work for this week, or none fits.</p>
       ) : (
         <div className="overflow-x-auto">
           <table className="w-full text-sm">
@@ -116,6 +154,55 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
                     {formatInZone(x.startAt, timeZone, 'EEE d MMM, HH:mm')}–{formatInZone(x.endAt, timeZone, 'HH:mm')}
                   </td>
                   <td className="tabular px-2 py-1">{x.travelMinutes ?? '—'} min</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
+      )}
+      {p.moves.length > 0 && (
+        <div className="overflow-x-auto">
+          <table className="w-full text-sm">
+            <caption className="mb-1 text-left text-sm font-semibold">
+              Moves of booked jobs ({p.moves.length}), soonest due first — the spread of load goes from {percent(p.spread.withoutMoves)} to{' '}
+              {percent(p.spread.after)}
+            </caption>
+            <thead className="text-left text-xs uppercase tracking-wide text-slate">
+              <tr>
+                <th scope="col" className="px-2 py-1">
+                  <span className="sr-only">Accept</span>
+                </th>
+                <th scope="col" className="px-2 py-1">Job</th>
+                <th scope="col" className="px-2 py-1">Priority</th>
+                <th scope="col" className="px-2 py-1">Due</th>
+                <th scope="col" className="px-2 py-1">From</th>
+                <th scope="col" className="px-2 py-1">To</th>
+              </tr>
+            </thead>
+            <tbody>
+              {p.moves.map((m) => (
+                <tr key={m.bookingId} className="border-t border-slate-line/70">
+                  <td className="px-2 py-1">
+                    <input
+                      type="checkbox"
+                      className="size-5"
+                      checked={chosenMoves.has(m.bookingId)}
+                      onChange={() => toggleMove(m.bookingId)}
+                      aria-label={`Move ${workOrderLabel(m.number)} from ${techOf(m.from.techId)?.name ?? 'technician'} to ${techOf(m.to.techId)?.name ?? 'technician'}`}
+                    />
+                  </td>
+                  <td className="px-2 py-1">
+                    {workOrderLabel(m.number)} · {m.siteName}
+                  </td>
+                  <td className="px-2 py-1">{priorityLabels[m.priority]}</td>
+                  <td className="tabular px-2 py-1 whitespace-nowrap">{m.dueAt ? formatInZone(m.dueAt, timeZone, 'EEE d MMM, HH:mm') : '—'}</td>
+                  <td className="px-2 py-1 whitespace-nowrap">
+                    {techOf(m.from.techId)?.name}, {formatInZone(m.from.startAt, timeZone, 'EEE d MMM, HH:mm')}
+                  </td>
+                  <td className="px-2 py-1 whitespace-nowrap">
+                    <span aria-hidden="true">→ </span>
+                    {techOf(m.to.techId)?.name}, {formatInZone(m.to.startAt, timeZone, 'EEE d MMM, HH:mm')}–{formatInZone(m.to.endAt, timeZone, 'HH:mm')}
+                  </td>
                 </tr>
               ))}
             </tbody>
@@ -174,8 +261,8 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
       </p>
       {apply.isError && <Refusal message={errorMessage(apply.error)} />}
       <div className="flex flex-wrap gap-2">
-        <Button onClick={accept} busy={apply.isPending} disabled={chosen.size === 0}>
-          Book {chosen.size} selected
+        <Button onClick={accept} busy={apply.isPending} disabled={picked === 0}>
+          Apply {picked} selected
         </Button>
         {p.proposals.length > 0 && (
           <Button variant="secondary" onClick={() => setChosen(chosen.size === p.proposals.length ? new Set() : new Set(p.proposals.map((x) => x.workOrderId)))}>
@@ -183,7 +270,7 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
           </Button>
         )}
         <Button variant="ghost" onClick={onClose}>
-          Book none
+          Change nothing
         </Button>
       </div>
     </div>
