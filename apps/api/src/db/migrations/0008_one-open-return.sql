@@ -82,4 +82,10 @@ FROM one_open_return_fold f WHERE e.id = f.extra_id;
 --> statement-breakpoint
 DROP TABLE one_open_return_fold;
 --> statement-breakpoint
+-- The fold queued the deferred triggers of roster_revisions and fix_quality_sums (migrations 0004, 0005); an
+-- index cannot be built on a table with pending trigger events, so they run now, and are deferred again after.
+SET CONSTRAINTS ALL IMMEDIATE;
+--> statement-breakpoint
 CREATE UNIQUE INDEX "work_orders_one_open_return_uq" ON "work_orders" USING btree ("unit_id") WHERE "work_orders"."kind" = 'return_visit' and "work_orders"."state" not in ('closed', 'cancelled');
+--> statement-breakpoint
+SET CONSTRAINTS ALL DEFERRED;
