@@ -16,6 +16,8 @@ export const desktop = { width: 1440, height: 900 } as const;
 export interface JourneyContext {
   /** The server's address, e.g. `http://127.0.0.1:41234`. */
   base: string;
+  /** The server's "now" (its clock may have been started at another instant with `COILPATH_NOW`). */
+  now(): Date;
   /** A fresh Chromium (own profile, no cookies) with one page at the viewport. */
   launch(viewport: { width: number; height: number }): Promise<Page>;
   /** Saves a full-page screenshot as `test-results/e2e/<journey>-<nn>-<name>.png`. */
@@ -26,7 +28,7 @@ export interface JourneyContext {
   screen(page: Page, name: string): Promise<void>;
   /** Throws if any page of this journey logged a console error (or threw) so far. */
   expectNoConsoleErrors(): void;
-  /** Console errors matching this are expected (e.g. a refusal the journey provokes on purpose). */
+  /** Console errors matching this (their text, URL, or `text (url)`) are expected (e.g. a refusal the journey provokes on purpose). */
   allowConsoleError(pattern: RegExp): void;
   /** Prints a step of the journey. */
   step(text: string): void;
@@ -45,7 +47,7 @@ interface Logged {
 /** The session check on the sign-in page answers 401 before anyone signs in: not an error. */
 const expectedByDefault = (e: Logged) => /status of 401/.test(e.text) && /\/api\/auth\/me(\?|$)/.test(e.url);
 
-export function createJourneyContext(opts: { base: string; name: string; outDir: string; log: (s: string) => void }) {
+export function createJourneyContext(opts: { base: string; name: string; outDir: string; log: (s: string) => void; clockOffsetMs?: number }) {
   const contexts: BrowserContext[] = [];
   const errors: Logged[] = [];
   const allowed: RegExp[] = [];
@@ -60,10 +62,11 @@ export function createJourneyContext(opts: { base: string; name: string; outDir:
   };
 
   const unexpected = () =>
-    errors.filter((e) => !expectedByDefault(e) && !allowed.some((p) => p.test(e.text) || p.test(e.url)));
+    errors.filter((e) => !expectedByDefault(e) && !allowed.some((p) => p.test(e.text) || p.test(e.url) || p.test(`${e.text} (${e.url})`)));
 
   const ctx: JourneyContext = {
     base: opts.base,
+    now: () => new Date(Date.now() + (opts.clockOffsetMs ?? 0)),
     async launch(viewport) {
       const browser = await launchChromium(viewport);
       contexts.push(browser);

@@ -6,6 +6,8 @@
  * data directory (demo data loads on first start), waits for /api/health, then runs every
  * `tests/e2e/journeys/*.journey.ts` in file-name order (or those whose name contains a filter).
  * Screenshots go to `test-results/e2e/`. Prints `N passed, N failed`; exits non-zero on a failure.
+ * With `COILPATH_NOW=<ISO instant>` the server (and through its answers the web app) runs as if started at
+ * that instant, so the journeys can be run on a chosen day; its screenshots go to `test-results/e2e/<instant>/`.
  * The server is stopped and the data directory removed in every case.
  */
 import { existsSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
@@ -17,7 +19,8 @@ import { repoRoot, startServer, type ServerProcess } from '../support/server-pro
 
 const JOURNEY_TIME_LIMIT_MS = Number(process.env.E2E_JOURNEY_TIMEOUT_MS ?? 240_000);
 const journeysDir = join(repoRoot, 'tests/e2e/journeys');
-const outDir = join(repoRoot, 'test-results/e2e');
+const at = process.env.COILPATH_NOW;
+const outDir = join(repoRoot, 'test-results/e2e', at ? at.replace(/[^\dT-]+/g, '-') : '');
 const log = (s: string) => console.log(s);
 
 function preflight(): string | null {
@@ -70,15 +73,20 @@ async function main(): Promise<number> {
   let failed = 0;
   try {
     server = await startServer({ dataDir, env: { COILPATH_SEED: 'auto', COILPATH_JOBS: 'off' } });
-    const config = (await (await fetch(`${server.base}/api/config`)).json()) as { demo?: boolean };
+    const configRes = await fetch(`${server.base}/api/config`);
+    const config = (await configRes.json()) as { demo?: boolean };
+    // The server's clock, when COILPATH_NOW set it elsewhere: the journeys reckon "today" by it.
+    const serverNow = configRes.headers.get('x-coilpath-now');
+    const clockOffsetMs = serverNow ? Date.parse(serverNow) - Date.now() : 0;
+    if (at && !serverNow) throw new Error('COILPATH_NOW is set but the server does not say its clock (X-Coilpath-Now).');
     if (!config.demo) throw new Error('The demo data did not load on first start (GET /api/config says demo: false).');
-    log(`Coilpath is up at ${server.base}; ${files.length} journey(s).`);
+    log(`Coilpath is up at ${server.base}${at ? `, its clock started at ${at}` : ''}; ${files.length} journey(s).`);
 
     for (const file of files) {
       const name = basename(file, '.journey.ts');
       const mod = (await import(pathToFileURL(join(journeysDir, file)).href)) as Journey;
       log(`\n▶ ${name}${mod.title ? ` — ${mod.title}` : ''}`);
-      const { ctx, close } = createJourneyContext({ base: server.base, name, outDir, log });
+      const { ctx, close } = createJourneyContext({ base: server.base, name, outDir, log, clockOffsetMs });
       const started = Date.now();
       try {
         if (typeof mod.run !== 'function') throw new Error(`${file} does not export async function run(ctx)`);

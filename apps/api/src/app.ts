@@ -64,6 +64,11 @@ export function createApp(ctx: AppContext): express.Express {
       strictTransportSecurity: ctx.config.secureCookies,
     }),
   );
+  // When COILPATH_NOW set the clock, the web app reckons "today" by the server's clock (see apps/web/src/lib/now.ts).
+  app.use('/api', (_req, res, next) => {
+    if (ctx.config.clockOverridden) res.setHeader('X-Coilpath-Now', ctx.clock.now().toISOString());
+    next();
+  });
   app.use('/api', requireJsonBodies);
   // Equipment CSV imports carry a whole file (up to 6 MB of text); every other body stays small.
   app.use('/api/units/import', express.json({ limit: '8mb' }));

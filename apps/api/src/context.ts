@@ -18,6 +18,11 @@ export interface AppContext {
     publicUrl: string;
     /** Sign-in attempts allowed per 15 minutes per client and e-mail. */
     signInLimit: number;
+    /**
+     * The clock is set to another instant (`COILPATH_NOW`): every API answer carries `X-Coilpath-Now` so the
+     * web app reckons "today" by the server's clock rather than the browser's.
+     */
+    clockOverridden?: boolean;
     /** Serve the built web app from this folder when it exists. */
     webDist?: string | undefined;
   };

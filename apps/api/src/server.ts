@@ -4,9 +4,8 @@ import { createServer } from 'node:http';
 import { createApp } from './app';
 import type { AppContext } from './context';
 import { openDatabase } from './db/client';
-import { DEMO_PASSWORD, seedDemo } from './db/seed';
-import { readEnv } from './lib/config';
-import { systemClock } from './lib/clock';
+import { DEMO_PASSWORD, demoToday, seedDemo } from './db/seed';
+import { clockFromEnv, readEnv } from './lib/config';
 import { createSmtpMailer } from './mail/mailer';
 import { startMailSink } from './mail/sink';
 import { createDiskStorage } from './storage/storage';
@@ -15,6 +14,7 @@ import { startScheduler } from './jobs/scheduler';
 import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
+const { clock, overridden: clockOverridden } = clockFromEnv(env);
 const dataDir = resolve(env.COILPATH_DATA_DIR);
 const database = await openDatabase({ databaseUrl: env.DATABASE_URL, dataDir: env.DATABASE_URL ? undefined : resolve(dataDir, 'pg') });
 const storage = createDiskStorage(resolve(dataDir, 'files'));
@@ -22,20 +22,21 @@ const sink = env.SMTP_URL ? null : await startMailSink(database.db, storage);
 const mailer = createSmtpMailer(env.SMTP_URL ?? sink!.url, env.MAIL_FROM);
 
 let seeded = false;
-if (env.COILPATH_SEED === 'auto') seeded = (await seedDemo(database.db)).seeded;
+if (env.COILPATH_SEED === 'auto') seeded = (await seedDemo(database.db, { today: demoToday(clock.now()) })).seeded;
 
 const ctx: AppContext = {
   database,
   db: database.db,
   mailer,
   storage,
-  clock: systemClock,
+  clock,
   secret: loadSecret(env.COILPATH_SECRET, dataDir),
   config: {
     sessionHours: env.SESSION_HOURS,
     secureCookies: (env.PUBLIC_URL ?? '').startsWith('https://'),
     publicUrl: env.PUBLIC_URL ?? `http://localhost:${env.PORT}`,
     signInLimit: 20,
+    clockOverridden,
     webDist: fileURLToPath(new URL('../../web/dist', import.meta.url)),
   },
 };
@@ -46,6 +47,7 @@ server.listen(env.PORT, env.HOST, () => {
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : env.PORT;
   console.log(`Coilpath is running on http://localhost:${port} (database: ${database.kind}${database.kind === 'pglite' ? `, ${dataDir}` : ''})`);
+  if (clockOverridden) console.log(`Clock: COILPATH_NOW=${env.COILPATH_NOW} (now ${clock.now().toISOString()})`);
   if (seeded) console.log('Demo data loaded.');
   console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example, tech@coilpath.example — password "${DEMO_PASSWORD}"`);
   if (sink) console.log(`Mail goes to the local sink (smtp port ${sink.port}); read it at /outbox as the owner.`);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { expandAgreementVisits, levelVisitsAcrossWeeks, recurrenceDates } from './agreements';
+import { expandAgreementVisits, levelVisitsAcrossWeeks, planAgreementVisits, recurrenceDates } from './agreements';
 
 describe('expandAgreementVisits', () => {
   it('quarterly visits move off weekends and holidays to the next working day', () => {
@@ -18,10 +18,31 @@ describe('expandAgreementVisits', () => {
     ]);
   });
 
-  it('moves back to the previous working day at the end of the term, and merges collisions', () => {
-    const r = expandAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-19', termEnd: '2027-03-21', timeZone: 'America/Chicago', holidays: [] });
-    // Fri 19, Sat 20 → (Mon 22 is after the term) → Fri 19 (merged), Sun 21 → Fri 19 (merged)
-    expect(r).toEqual([{ date: '2027-03-19', originalDate: '2027-03-19', moved: false }]);
+  it('keeps every contracted visit when two land on the same working day: the next free working day', () => {
+    // Weekly on Saturday and Sunday over four weeks (2027-03-06 is a Saturday; 8 contracted visits). Common
+    // practice, no source: a contracted visit moved off the weekend goes to the next working day.
+    const r = planAgreementVisits({ rrule: 'FREQ=WEEKLY;BYDAY=SA,SU', termStart: '2027-03-01', termEnd: '2027-03-31', timeZone: 'America/Chicago', holidays: [] });
+    expect(r.dropped).toEqual([]);
+    expect(r.visits).toHaveLength(8);
+    // Sat 6 → Mon 8, Sun 7 → Mon 8 taken → Tue 9; and so on each week.
+    expect(r.visits.slice(0, 2)).toEqual([
+      { date: '2027-03-08', originalDate: '2027-03-06', moved: true },
+      { date: '2027-03-09', originalDate: '2027-03-07', moved: true },
+    ]);
+    expect(new Set(r.visits.map((v) => v.date)).size).toBe(8);
+  });
+
+  it('at the end of the term takes the previous free working day, and lists what cannot be placed with the reason', () => {
+    // Daily in a term Tue 16 … Sun 21 with Thu 18 a holiday: Tue 16 and Wed 17 stay, Thu 18 → Fri 19 (next free);
+    // then Fri 19's own visit, Sat 20 and Sun 21 find no free working day after them, nor before (16, 17, 19 taken).
+    const r = planAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-16', termEnd: '2027-03-21', timeZone: 'America/Chicago', holidays: ['2027-03-18'] });
+    // Daily Tue 16 … Sun 21 = 6 contracted visits; working days Tue 16, Wed 17, Fri 19 = 3 places.
+    expect(r.visits.map((v) => v.date)).toEqual(['2027-03-16', '2027-03-17', '2027-03-19']);
+    expect(r.dropped.map((d) => d.originalDate)).toEqual(['2027-03-19', '2027-03-20', '2027-03-21']);
+    expect(r.dropped[0]!.reason).toMatch(/no free working day/);
+    expect(r.visits.length + r.dropped.length).toBe(6);
+    // The placed visits only, as before.
+    expect(expandAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-16', termEnd: '2027-03-21', timeZone: 'America/Chicago', holidays: ['2027-03-18'] })).toEqual(r.visits);
   });
 
   it('reads a UTC DTSTART in the branch zone and clips to the term', () => {

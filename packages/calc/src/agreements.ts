@@ -91,37 +91,60 @@ export function recurrenceDates(rrule: string, termStart: IsoDate, termEnd: IsoD
   return out;
 }
 
+/** A contracted visit the plan could not place, and why. */
+export interface DroppedAgreementVisit {
+  /** The date the recurrence gave. */
+  originalDate: IsoDate;
+  reason: string;
+}
+
+export interface AgreementPlan {
+  visits: AgreementVisit[];
+  /** Contracted visits that found no free working day in the term (empty whenever the term has room). */
+  dropped: DroppedAgreementVisit[];
+}
+
 /**
  * Visit dates of a maintenance agreement: the recurrence (via the `rrule` package, RFC 5545)
  * expanded over the term, each date on a weekend or holiday moved to the next working day — or,
- * when that would fall after the term, to the previous working day. Two visits landing on the same
- * day are merged into one. Sorted by date.
+ * when that would fall after the term, to the previous working day. A contracted visit is never
+ * silently lost: when its working day already holds another visit of the plan (a weekly
+ * Saturday-and-Sunday rule, say), it takes the next free working day (or, at the end of the term,
+ * the previous free one). Only a visit for which the term has no free working day left is dropped,
+ * and it is listed with the reason. Sorted by date.
  */
-export function expandAgreementVisits(input: ExpandAgreementInput): AgreementVisit[] {
+export function planAgreementVisits(input: ExpandAgreementInput): AgreementPlan {
   const weekend = new Set(input.weekendDays ?? [0, 6]);
   if (weekend.size >= 7) throw new RangeError('weekendDays leaves no working day');
   const holidays = new Set(input.holidays.map((h) => dayNumber(h, 'holiday')));
   const first = dayNumber(input.termStart, 'termStart');
   const last = dayNumber(input.termEnd, 'termEnd');
   const working = (n: number) => !holidays.has(n) && !weekend.has(new Date(n * 86_400_000).getUTCDay());
-  const out: AgreementVisit[] = [];
   const used = new Set<number>();
+  const free = (n: number) => working(n) && !used.has(n);
+  const visits: AgreementVisit[] = [];
+  const dropped: DroppedAgreementVisit[] = [];
   for (const date of recurrenceDates(input.rrule, input.termStart, input.termEnd, input.timeZone)) {
     const n0 = dayNumber(date);
     let n = n0;
-    let guard = 0;
-    while (!working(n) && guard++ < 366) n++;
-    if (n > last || guard >= 366) {
+    while (n <= last && !free(n)) n++;
+    if (n > last) {
       n = n0;
-      guard = 0;
-      while (!working(n) && guard++ < 366) n--;
-      if (n < first || guard >= 366) continue; // no working day in the term for this visit
+      while (n >= first && !free(n)) n--;
     }
-    if (used.has(n)) continue;
+    if (n < first) {
+      dropped.push({ originalDate: date, reason: 'no free working day is left in the term for it (every working day up to the end of the term already holds one of its visits)' });
+      continue;
+    }
     used.add(n);
-    out.push({ date: fromDayNumber(n), originalDate: date, moved: n !== n0 });
+    visits.push({ date: fromDayNumber(n), originalDate: date, moved: n !== n0 });
   }
-  return out.sort((a, b) => a.date.localeCompare(b.date));
+  return { visits: visits.sort((a, b) => a.date.localeCompare(b.date)), dropped };
+}
+
+/** The placed visits of `planAgreementVisits` (see there). */
+export function expandAgreementVisits(input: ExpandAgreementInput): AgreementVisit[] {
+  return planAgreementVisits(input).visits;
 }
 
 export interface LevelOptions {

@@ -47,6 +47,8 @@ export interface Booking {
   unitId?: string;
   /** A fixed booking is never moved by evenOut. */
   fixed?: boolean;
+  /** Work on it has begun; evenOut never moves it. */
+  started?: boolean;
   jobId?: string;
 }
 
@@ -154,6 +156,8 @@ interface Interval {
   end: number;
   loc: LatLon | null;
   unitId?: string;
+  /** The booking it comes from (evenOut finds a movable booking's interval by it). */
+  bookingId?: string;
 }
 
 function bookingInterval(b: Booking): Interval {
@@ -161,7 +165,7 @@ function bookingInterval(b: Booking): Interval {
   const end = instantMs(b.end, `booking ${b.id} end`);
   if (end < start) throw new RangeError(`booking ${b.id} ends before it starts`);
   const loc = typeof b.lat === 'number' && typeof b.lon === 'number' ? { lat: b.lat, lon: b.lon } : null;
-  return { start, end, loc, ...(b.unitId !== undefined ? { unitId: b.unitId } : {}) };
+  return { start, end, loc, ...(b.unitId !== undefined ? { unitId: b.unitId } : {}), bookingId: b.id };
 }
 
 function overlapMinutes(a0: number, a1: number, b0: number, b1: number): number {

@@ -182,6 +182,8 @@ export interface PlanPreview {
   agreementId: string;
   visits: PlanVisit[];
   counts: Record<PlanVisit['action'], number>;
+  /** Contracted visits (rule dates from today on) the term has no free working day for, each with the reason. */
+  dropped: { ruleDate: string; reason: string }[];
 }
 
 export interface PlanApplyResult extends PlanPreview {

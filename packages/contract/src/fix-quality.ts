@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { idSchema, isoDateSchema, limits } from './common';
-import { causeCodeSchema, warrantyClaimStatusSchema, workOrderKindSchema } from './vocabulary';
+import { causeCodeLabels, causeCodeSchema, warrantyClaimStatusSchema, workOrderKindSchema, workOrderStateSchema, type CauseCode } from './vocabulary';
+import type { ModelAlertRef } from './work-orders';
 
 /**
  * Fix Quality (DESIGN §3): first-time fix, callbacks, causes, factory-defect costs and model alerts.
@@ -177,11 +178,26 @@ export type WarrantyClaimUpdate = z.infer<typeof warrantyClaimUpdateSchema>;
 
 /**
  * Model alerts: the same cause code with origin `factory_defect` found on one make and model at two or
- * more sites. A unit of that model counts as checked when it has a finding with that cause code (any
- * origin), an inspection work order with the alert's purpose (any state but cancelled), or a closed visit
- * after the alert's first factory-defect finding.
+ * more sites; raised when the second site's finding was recorded. A unit of that model counts as checked
+ * for the alert only by what happened on it for that cause: it is one of the units the defect was found on,
+ * it has a finding with that cause code (any origin) recorded since the alert was raised, or it has an
+ * inspection work order created from the alert (any state but cancelled). A visit for something else does
+ * not check it.
  */
 export const modelAlertPurpose = (make: string, model: string, causeCode: string) => `model-alert:${make}|${model}|${causeCode}`;
+
+/** The alert an inspection work order was created from, read back from its purpose; null for other work. */
+export function parseModelAlertPurpose(purpose: string | null | undefined): { make: string; model: string; causeCode: CauseCode } | null {
+  if (!purpose?.startsWith('model-alert:')) return null;
+  const parts = purpose.slice('model-alert:'.length).split('|');
+  if (parts.length !== 3) return null;
+  const [make, model, cause] = parts as [string, string, string];
+  const parsed = causeCodeSchema.safeParse(cause);
+  return parsed.success ? { make, model, causeCode: parsed.data } : null;
+}
+
+/** "Wiring fault on Quellmark QRX-20": how an alert is named on every screen. */
+export const modelAlertTitle = (a: { make: string; model: string; causeCode: CauseCode }) => `${causeCodeLabels[a.causeCode]} on ${a.make} ${a.model}`;
 
 export const modelAlertUnitSchema = z.object({
   unitId: idSchema,
@@ -210,6 +226,21 @@ export const modelAlertSchema = z.object({
   unitsOfModel: z.number().int(),
   checkedUnits: z.number().int(),
   inspectionsOpen: z.number().int(),
+  /** When the alert was raised: the second site's factory-defect finding. */
+  raisedAt: z.string(),
+  /** Inspection work orders created from the alert, with their state (a manager sees the own branch's). */
+  inspections: z.array(
+    z.object({
+      workOrderId: idSchema,
+      number: z.number().int().nullable(),
+      state: workOrderStateSchema,
+      dueAt: z.string().nullable(),
+      unitId: idSchema,
+      unitTag: z.string(),
+      siteName: z.string(),
+      branchName: z.string(),
+    }),
+  ),
   /** Units of the model not yet checked (a manager sees those of the own branch only). */
   unchecked: z.array(modelAlertUnitSchema),
 });
@@ -233,3 +264,9 @@ export const createInspectionsResultSchema = z.object({
   branches: z.array(z.object({ branchId: idSchema, branchName: z.string(), created: z.number().int() })),
 });
 export type CreateInspectionsResult = z.infer<typeof createInspectionsResultSchema>;
+
+/** The alert reference a work order's answer carries, from its purpose (null for work not created from an alert). */
+export function modelAlertRef(purpose: string | null | undefined): ModelAlertRef | null {
+  const a = parseModelAlertPurpose(purpose);
+  return a ? { ...a, title: modelAlertTitle(a) } : null;
+}

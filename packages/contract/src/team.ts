@@ -64,6 +64,8 @@ export const branchInputSchema = z.object({
   repeatAlarmDays: z.coerce.number().int('Whole number').min(1, 'At least 1 day').max(365),
   /** A return call within this many days of a visit closed as fixed counts as a callback. */
   callbackWindowDays: z.coerce.number().int('Whole number').min(1, 'At least 1 day').max(365),
+  /** Inspections created from a model alert are due this many days later (the database default is 30). */
+  inspectionDueDays: z.coerce.number().int('Whole number').min(1, 'At least 1 day').max(365).optional(),
 });
 export type BranchInput = z.input<typeof branchInputSchema>;
 export type BranchValues = z.output<typeof branchInputSchema>;
@@ -86,6 +88,7 @@ export interface BranchDetail {
   repeatAlarmCount: number;
   repeatAlarmDays: number;
   callbackWindowDays: number;
+  inspectionDueDays: number;
   archivedAt: string | null;
 }
 

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { idSchema, isoDateSchema, limits } from './common';
 import { pressureSymbols, readingLimits, readingUnitsSchema, temperatureSymbols, unitSystemOf, type ReadingUnits, type UnitSystem } from './measure';
+import type { ModelAlertRef } from './work-orders';
 import {
   attachmentKindSchema,
   causeCodeSchema,
@@ -324,6 +325,10 @@ export interface VisitDetail {
     priority: Priority;
     complaint: string;
     requiredCertification: string | null;
+    /** Latest acceptable time for the work (leak-repair deadlines, model-alert inspections). */
+    latestAt: string | null;
+    /** An inspection created from a model alert: what to check for. */
+    modelAlert: ModelAlertRef | null;
   };
   site: {
     id: string;

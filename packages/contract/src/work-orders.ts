@@ -1,6 +1,10 @@
 import { z } from 'zod';
 import { idSchema, instantSchema, isoDateSchema, limits } from './common';
-import { prioritySchema, workOrderKindSchema, workOrderStateSchema, type WorkOrderState } from './vocabulary';
+import { causeCodeSchema, prioritySchema, workOrderKindSchema, workOrderStateSchema, type WorkOrderState } from './vocabulary';
+
+/** The model alert an inspection work order checks for. */
+export const modelAlertRefSchema = z.object({ title: z.string(), make: z.string(), model: z.string(), causeCode: causeCodeSchema });
+export type ModelAlertRef = z.infer<typeof modelAlertRefSchema>;
 
 /** EPA 608 types a job's refrigerant work can require ('universal' = needs a Universal certificate). */
 export const requiredCertificationSchema = z.enum(['I', 'II', 'III', 'universal']);
@@ -118,6 +122,8 @@ export const workOrderSchema = z.object({
   originNumber: z.number().int().nullable(),
   leakCaseId: idSchema.nullable(),
   leakRepairDueDate: isoDateSchema.nullable(),
+  /** An inspection created from a model alert: the alert it checks for (title and cause); null for other work. */
+  modelAlert: modelAlertRefSchema.nullable(),
   /** The current booking, when booked. */
   booking: z
     .object({ id: idSchema, techId: idSchema, startAt: z.string(), endAt: z.string(), version: z.number().int() })

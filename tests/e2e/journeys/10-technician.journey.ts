@@ -114,7 +114,7 @@ export async function run(ctx: JourneyContext) {
   await ctx.screen(page, 'my-day');
 
   // ── My Day: the first stop ──
-  const today = dateInZone(new Date(), BRANCH_ZONE);
+  const today = dateInZone(ctx.now(), BRANCH_ZONE);
   const { date, stops } = await dayWithStops(page, today);
   ctx.step(`My Day ${date}${date === today ? ' (today)' : ` (first day with stops after ${today})`}: ${await stops.locator(':scope > li').count()} stop(s)`);
   if (date !== today) await ctx.screen(page, 'my-day-with-stops');

@@ -90,7 +90,7 @@ export async function run(ctx: JourneyContext) {
   assert.deepEqual(rowNames, techs.map((t) => t.name), 'one row per technician, in the Show list’s order');
   const columns = await board.getByRole('columnheader').allInnerTexts();
   assert.equal(columns.length, 8, 'a technician column and seven days');
-  const today = dateInZone(new Date(), BRANCH_ZONE);
+  const today = dateInZone(ctx.now(), BRANCH_ZONE);
   const todayHeader = board.locator('th[aria-current="date"]');
   assert.equal(await todayHeader.count(), 1, 'today is marked');
   assert.match(await todayHeader.innerText(), /Today/, 'today’s column says so');
@@ -254,6 +254,8 @@ export async function run(ctx: JourneyContext) {
   await Promise.race([movedOnBoard.waitFor(), refused.waitFor()]);
   if (await refused.isVisible()) {
     // Another booking or the working hours stand in the way: the booking opens at the day tried, saying why.
+    // The server's refusal (409) is what the dialog reports; the browser logs the answer, as it should.
+    ctx.allowConsoleError(/status of 409 \(Conflict\).*\/api\/bookings\//);
     const why = (await refused.getByRole('alert').innerText()).trim();
     assert.equal(await refused.getByLabel('Date', { exact: true }).inputValue(), nextDay, 'the booking opens at the day it was dropped on');
     ctx.step(`board move to ${nextDay} refused: "${why}"`);

@@ -1,7 +1,7 @@
 /**
- * Migration 0008 on a database loaded before the one-open-return rule: each unit's extra open return visits
+ * Migration 0009 (`*_one-open-return`) on a database loaded before the one-open-return rule: each unit's extra open return visits
  * are folded into one before the unique index is built, so the upgrade starts instead of failing on old data.
- * The migrations are applied in two steps (up to 0007 from a copy of the folder, then the rest), on PGlite or,
+ * The migrations are applied in two steps (those before it from a copy of the folder, then the rest), on PGlite or,
  * with `DATABASE_URL`, on PostgreSQL.
  */
 import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -22,12 +22,14 @@ const migrate = (folder: string) =>
   database.kind === 'pglite' ? migratePglite(database.db, { migrationsFolder: folder }) : migratePg(database.db as never, { migrationsFolder: folder });
 
 beforeAll(async () => {
-  // The migrations up to 0007, as a database of the previous release has them.
-  before = mkdtempSync(join(tmpdir(), 'coilpath-0007-'));
+  // The migrations before this one, as a database of the previous release has them.
+  before = mkdtempSync(join(tmpdir(), 'coilpath-before-one-open-return-'));
   cpSync(migrationsFolder, before, { recursive: true });
   const journalPath = join(before, 'meta', '_journal.json');
-  const journal = JSON.parse(readFileSync(journalPath, 'utf8')) as { entries: { idx: number }[] };
-  journal.entries = journal.entries.filter((e) => e.idx <= 7);
+  const journal = JSON.parse(readFileSync(journalPath, 'utf8')) as { entries: { idx: number; tag: string }[] };
+  const mine = journal.entries.find((e) => e.tag.endsWith('_one-open-return'));
+  if (!mine) throw new Error('no one-open-return migration in the journal');
+  journal.entries = journal.entries.filter((e) => e.idx < mine.idx);
   writeFileSync(journalPath, JSON.stringify(journal));
   database = await openTestDatabase({ migrate: false });
   await migrate(before);
@@ -37,7 +39,7 @@ afterAll(async () => {
   if (before) rmSync(before, { recursive: true, force: true });
 });
 
-describe('migration 0008 (one open return visit per unit)', () => {
+describe('migration 0009 (one open return visit per unit)', () => {
   it('folds the extras into the one furthest along, keeps their needs, deadline and priority, and then refuses a second', async () => {
     const db = database.db;
     const f = await makeTwoBranches(db);

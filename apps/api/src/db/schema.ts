@@ -63,6 +63,8 @@ export const branches = pgTable('branches', {
   repeatAlarmCount: integer().notNull().default(2),
   repeatAlarmDays: integer().notNull().default(30),
   callbackWindowDays: integer().notNull().default(30),
+  /** Inspections created from a model alert are due this many days after they are created. */
+  inspectionDueDays: integer().notNull().default(30),
   /** The branch manager's daily digest is sent at this local hour. */
   digestHour: integer().notNull().default(7),
   archivedAt: instant(),

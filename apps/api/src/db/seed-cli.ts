@@ -1,8 +1,8 @@
 /** `npm run db:seed`: loads the demo scenario into the configured database unless it is already there. */
 import { resolve } from 'node:path';
-import { readEnv } from '../lib/config';
+import { clockFromEnv, readEnv } from '../lib/config';
 import { openDatabase } from './client';
-import { seedDemo } from './seed';
+import { demoToday, seedDemo } from './seed';
 
 const env = readEnv();
 const database = await openDatabase({
@@ -10,7 +10,7 @@ const database = await openDatabase({
   dataDir: env.DATABASE_URL ? undefined : resolve(env.COILPATH_DATA_DIR, 'pg'),
 });
 try {
-  const today = new Date().toISOString().slice(0, 10);
+  const today = demoToday(clockFromEnv(env).clock.now());
   const { seeded } = await seedDemo(database.db, { today });
   console.log(seeded ? `Demo data loaded for ${today}` : 'Demo data already present; nothing changed');
 } finally {

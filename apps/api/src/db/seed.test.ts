@@ -126,7 +126,7 @@ describe('demo scenario', { timeout: 120_000 }, () => {
       expect(origin).toMatchObject({ state: 'closed', outcome: 'needs_return' });
     }
 
-    // At most one open return visit per unit (the database refuses more, migration 0008; the scenario never tries).
+    // At most one open return visit per unit (the database refuses more, migration 0009; the scenario never tries).
     const openReturnUnits = wos.filter((w) => w.kind === 'return_visit' && w.state !== 'closed' && w.state !== 'cancelled').map((w) => w.unitId);
     expect(openReturnUnits.length).toBeGreaterThan(0);
     expect(new Set(openReturnUnits).size).toBe(openReturnUnits.length);

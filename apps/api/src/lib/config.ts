@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { shiftedClock, systemClock, type Clock } from './clock';
 
 const envSchema = z.object({
   PORT: z.coerce.number().int().min(0).max(65535).default(3000),
@@ -17,9 +18,23 @@ const envSchema = z.object({
   COILPATH_JOBS: z.enum(['on', 'off']).default('on'),
   SESSION_HOURS: z.coerce.number().min(1).max(24 * 30).default(12),
   NODE_ENV: z.string().default('development'),
+  /**
+   * Runs the server as if it had been started at this instant (ISO 8601 with an offset, e.g.
+   * `2027-03-15T06:00:00-05:00`); time then passes normally. For demos and browser journeys at a chosen
+   * date; ignored unless set.
+   */
+  COILPATH_NOW: z.preprocess(
+    (v) => (v === '' ? undefined : v),
+    z.iso.datetime({ offset: true, message: 'COILPATH_NOW must be an ISO 8601 instant with an offset, e.g. 2027-03-15T06:00:00-05:00' }).optional(),
+  ),
 });
 
 export type Env = z.infer<typeof envSchema>;
+
+/** The server's clock: the system's, or one started at `COILPATH_NOW` when that is set. */
+export function clockFromEnv(env: Pick<Env, 'COILPATH_NOW'>): { clock: Clock; overridden: boolean } {
+  return env.COILPATH_NOW ? { clock: shiftedClock(env.COILPATH_NOW), overridden: true } : { clock: systemClock, overridden: false };
+}
 
 /** Reads the environment once; fails fast with the names of bad variables. */
 export function readEnv(source: NodeJS.ProcessEnv = process.env): Env {

@@ -15,6 +15,7 @@ export interface BranchSummary {
   repeatAlarmCount: number;
   repeatAlarmDays: number;
   callbackWindowDays: number;
+  inspectionDueDays: number;
 }
 
 export const branchesQuery = queryOptions({

@@ -1,3 +1,5 @@
+import { noteServerNow } from './now';
+
 /** The one HTTP client of the web app: JSON in and out, the API's error shape turned into ApiError. */
 export class ApiError extends Error {
   constructor(
@@ -45,6 +47,7 @@ async function request<T>(method: string, path: string, body?: unknown, init?: R
   } catch {
     throw new ApiError(0, 'network', 'Coilpath could not reach the server. Check the connection and try again.');
   }
+  noteServerNow(res.headers.get('x-coilpath-now'));
   if (res.status === 204) return undefined as T;
   const type = res.headers.get('content-type') ?? '';
   const data: unknown = type.includes('application/json') ? await res.json().catch(() => null) : null;

@@ -1,5 +1,6 @@
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
+import { appNow } from './now';
 
 /** Formats an instant in a branch's time zone, e.g. "Wed 2 Dec, 14:05". */
 export function formatInZone(instant: string | Date, timeZone: string, pattern = 'EEE d MMM, HH:mm'): string {
@@ -18,7 +19,7 @@ export function viewerZoneDiffers(timeZone: string): boolean {
 }
 
 /** Today's date `YYYY-MM-DD` in a zone. */
-export function todayInZone(timeZone: string, now = new Date()): string {
+export function todayInZone(timeZone: string, now = appNow()): string {
   return format(new TZDate(now.getTime(), timeZone), 'yyyy-MM-dd');
 }
 

@@ -204,6 +204,8 @@ export interface ModelDef {
   /** Full charge range, lb (whole unit). */
   charge: [number, number];
   tonnage: number | null;
+  /** A water-cooled chiller: condenser water from a cooling tower (the others are air-cooled). */
+  waterCooled?: boolean;
   serialPrefix: string;
   warrantyYears: number;
   installYears: [number, number];
@@ -222,7 +224,7 @@ export const MODELS: Record<string, ModelDef> = {
   split: { make: 'Tamberline', model: 'TSX-060', kind: 'split_system', category: 'comfort_cooling', refrigerant: 'R-410A', circuits: 1, compressorsPerCircuit: 1, charge: [9, 13], tonnage: 5, serialPrefix: 'TS060', warrantyYears: 10, installYears: [2015, 2023] },
   splitR22: { make: 'Tamberline', model: 'TSX-048', kind: 'split_system', category: 'comfort_cooling', refrigerant: 'R-22', circuits: 1, compressorsPerCircuit: 1, charge: [8, 11], tonnage: 4, serialPrefix: 'TS048', warrantyYears: 5, installYears: [2008, 2009] },
   chiller: { make: 'Halvorsen Thermal', model: 'HAC-060', kind: 'chiller', category: 'comfort_cooling', refrigerant: 'R-410A', circuits: 2, compressorsPerCircuit: 3, charge: [180, 180], tonnage: 60, serialPrefix: 'HA060', warrantyYears: 5, installYears: [2016, 2016] },
-  chillerR134: { make: 'Halvorsen Thermal', model: 'HSW-200', kind: 'chiller', category: 'comfort_cooling', refrigerant: 'R-134a', circuits: 2, compressorsPerCircuit: 1, charge: [380, 400], tonnage: 200, serialPrefix: 'HS200', warrantyYears: 5, installYears: [2014, 2014] },
+  chillerR134: { make: 'Halvorsen Thermal', model: 'HSW-200', kind: 'chiller', category: 'comfort_cooling', refrigerant: 'R-134a', circuits: 2, compressorsPerCircuit: 1, charge: [380, 400], tonnage: 200, waterCooled: true, serialPrefix: 'HS200', warrantyYears: 5, installYears: [2014, 2014] },
   chillerR22: { make: 'Halvorsen Thermal', model: 'HRC-040', kind: 'chiller', category: 'comfort_cooling', refrigerant: 'R-22', circuits: 2, compressorsPerCircuit: 2, charge: [85, 85], tonnage: 40, serialPrefix: 'HR040', warrantyYears: 5, installYears: [2008, 2008] },
   walkInCooler: { make: 'Frostwick', model: 'FW-C3', kind: 'walk_in_cooler', category: 'commercial_refrigeration', refrigerant: 'R-448A', circuits: 1, compressorsPerCircuit: 1, charge: [14, 22], tonnage: 3, serialPrefix: 'FWC3', warrantyYears: 5, installYears: [2017, 2023] },
   walkInCoolerOld: { make: 'Frostwick', model: 'FW-C2', kind: 'walk_in_cooler', category: 'commercial_refrigeration', refrigerant: 'R-404A', circuits: 1, compressorsPerCircuit: 1, charge: [12, 18], tonnage: 2, serialPrefix: 'FWC2', warrantyYears: 5, installYears: [2012, 2016] },
@@ -242,12 +244,12 @@ export const ACCESS_NOTES: Record<CustomerKind, string[]> = {
   ],
   school: [
     'Check in at the main office; no roof work during recess (10:15–10:45).',
-    'Custodian opens the boiler room; roof ladder is chained, key on the custodian ring.',
+    'Custodian opens the mechanical room; roof ladder is chained, key on the custodian ring.',
     'Park in the bus loop only after 9:00; visitor badge required.',
   ],
   grocery: [
     'Enter through receiving at the rear; ask for the store manager before shutting any case.',
-    'Walk-ins behind the meat department; compressor rack on the roof over receiving.',
+    'Walk-ins behind the meat department; their condensing units are on the roof over receiving.',
   ],
   restaurant: [
     'Arrive before 10:30 or after 14:30 — kitchen is slammed at lunch.',

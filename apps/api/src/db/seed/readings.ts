@@ -65,7 +65,13 @@ function evaporating(kind: UnitKind, rng: Rng): number {
   }
 }
 
-export type CircuitCondition = 'normal' | 'low_charge' | 'sensor_drift';
+/**
+ * How a circuit reads. `low_charge`: high superheat, low subcooling. `sensor_drift`: the controller's suction
+ * reading well above the gauge. `recharged` and `sensor_elsewhere` read like `normal` (after a leak repair; a
+ * sensor fault that the gauge readings do not show) but make the same draws as `low_charge` and
+ * `sensor_drift`, so that choosing between them leaves the rest of the scenario as it was.
+ */
+export type CircuitCondition = 'normal' | 'low_charge' | 'recharged' | 'sensor_drift' | 'sensor_elsewhere';
 
 export interface ReadingValues {
   suctionPressure: number;
@@ -93,10 +99,15 @@ export function circuitReading(
   let tEvap = evaporating(unit.kind, rng);
   let superheat = rng.range(8, 14);
   let subcooling = rng.range(8, 14);
-  if (condition === 'low_charge') {
-    tEvap -= rng.range(6, 10);
-    superheat = rng.range(22, 32);
-    subcooling = rng.range(1.5, 4.5);
+  if (condition === 'low_charge' || condition === 'recharged') {
+    const drop = rng.range(6, 10);
+    const shortSuperheat = rng.range(22, 32);
+    const shortSubcooling = rng.range(1.5, 4.5);
+    if (condition === 'low_charge') {
+      tEvap -= drop;
+      superheat = shortSuperheat;
+      subcooling = shortSubcooling;
+    }
   }
   // Head pressure control keeps condensing temperature up on cool days.
   const tCond = Math.max(outdoorTemp + rng.range(15, 25), refrigeration ? 90 : 82);
@@ -107,9 +118,12 @@ export function circuitReading(
   const off = () => rng.pick([-1, 1]) * rng.int(0, 4);
   let suctionCtl = hasController ? suction + off() : null;
   let notes: string | null = null;
-  if (condition === 'sensor_drift' && suctionCtl !== null) {
-    suctionCtl = suction + rng.int(21, 34);
-    notes = 'Controller suction reading well above gauge; transducer suspect.';
+  if ((condition === 'sensor_drift' || condition === 'sensor_elsewhere') && suctionCtl !== null) {
+    const drift = rng.int(21, 34);
+    if (condition === 'sensor_drift') {
+      suctionCtl = suction + drift;
+      notes = 'Controller suction reading well above gauge; transducer suspect.';
+    }
   } else if (condition === 'low_charge') {
     notes = 'High superheat and low subcooling: circuit short of charge.';
   }

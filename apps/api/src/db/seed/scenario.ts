@@ -9,6 +9,7 @@ import type {
   WorkOrderKind,
   WorkOrderState,
 } from '@coilpath/contract';
+import { isRefrigerantId, subcooling, superheat } from '@coilpath/calc';
 import type * as t from '../schema';
 import {
   addDays,
@@ -39,6 +40,20 @@ import {
 import { annualizedRate, annualizingDays, coveredBy } from './leak';
 import { circuitReading, type CircuitCondition } from './readings';
 import { Rng } from './random';
+import {
+  againComplaint,
+  alarmText,
+  complaintChoices,
+  findingChoices,
+  pmFindingChoices,
+  renderNote,
+  returnFinding,
+  returnNote,
+  returnText,
+  visitNote,
+  type Note,
+  type UnitWords,
+} from './wording';
 
 type Row<T extends { $inferInsert: unknown }> = T['$inferInsert'];
 
@@ -165,24 +180,17 @@ const round1 = (x: number) => Math.round(x * 10) / 10;
 const FIRST = ['Agnes', 'Bram', 'Celia', 'Dorian', 'Esme', 'Fintan', 'Greta', 'Hamish', 'Ilse', 'Jonas', 'Kerensa', 'Lorcan', 'Mireille', 'Niall', 'Odile', 'Percival', 'Quinn', 'Rosalind', 'Soren', 'Tilde', 'Ulric', 'Verity', 'Wendell', 'Yara'];
 const LAST = ['Thornbury', 'Koenig', 'Wandsworth', 'Achterberg', 'Bellweather', 'Castellane', 'Drummond-Hale', 'Everard', 'Fairholme', 'Gallowglass', 'Hesketh', 'Ibbotson', 'Jessamine', 'Kilbride', 'Lockhart', 'Merriweather', 'Northcote', 'Ormsby', 'Penhallow', 'Quarrington', 'Ravensworth', 'Stavely', 'Tremayne', 'Umberleigh'];
 
-const ALARM_TEXT: Record<string, string> = {
-  LP1: 'Low suction pressure, circuit 1',
-  LP2: 'Low suction pressure, circuit 2',
-  HP1: 'High discharge pressure, circuit 1',
-  HP2: 'High discharge pressure, circuit 2',
-  FRZ: 'Freeze stat tripped',
-  COMM: 'Controller communication lost',
-  'HI-TEMP': 'Box temperature above set point',
-};
-
 const REFRIGERATION_KINDS = new Set(['walk_in_cooler', 'walk_in_freezer', 'reach_in', 'condensing_unit', 'ice_machine']);
 const isRefrigeration = (u: Unit) => REFRIGERATION_KINDS.has(u.model.kind);
 const isSmall = (u: Unit) => u.fullChargeLb > 0 && u.fullChargeLb <= 5;
 const hasCircuits = (u: Unit) => u.circuits.length > 0;
+const words = (u: Unit): UnitWords => ({
+  kind: u.model.kind, waterCooled: !!u.model.waterCooled, circuits: u.circuits.length, stages: u.model.circuits * u.model.compressorsPerCircuit,
+});
 
 export const DEFECT_FINDING_NOTES =
-  'Low-pressure switch of circuit 2 landed on the circuit 1 input at the factory harness; the controller blamed circuit 1 for ' +
-  'circuit 2 trips at stage-up. Re-landed per the wiring diagram and verified LP1 and LP2 trip individually.';
+  'Low-pressure switch of circuit 2 landed on the circuit 1 input at the factory harness, so the controller reported circuit 2’s ' +
+  'trips at stage-up as LP1. Re-landed per the wiring diagram and verified LP1 and LP2 trip individually.';
 
 /** Builds every row of the demo scenario anchored to `today` (YYYY-MM-DD). Pure: no I/O. */
 export function buildScenario(today: string, passwordHash: string): Rows {
@@ -523,13 +531,26 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     return visit;
   }
 
+  const findingOf = (visitId: string) => rows.findings.find((f) => f.visitId === visitId)!;
+  /** "superheat 27 °F, subcooling 3 °F" of a visit's reading on a circuit, computed as the seed stores them; null without one. */
+  const chargeFigures = (visitId: string, circuitId: string): string | null => {
+    const r = rows.readings.find((x) => x.visitId === visitId && x.circuitId === circuitId);
+    if (!r || !isRefrigerantId(r.refrigerant) || r.suctionPressure == null || r.suctionLineTemp == null || r.liquidPressure == null || r.liquidLineTemp == null) return null;
+    try {
+      const sh = superheat({ refrigerant: r.refrigerant, suctionPressure: r.suctionPressure, suctionLineTemp: r.suctionLineTemp }).superheat;
+      const sc = subcooling({ refrigerant: r.refrigerant, liquidPressure: r.liquidPressure, liquidLineTemp: r.liquidLineTemp }).subcooling;
+      return `superheat ${Math.round(sh)} °F, subcooling ${Math.round(sc)} °F`;
+    } catch {
+      return null;
+    }
+  };
   const pendingRefrigerant: { spec: RefrigerantSpec; row: Row<typeof t.refrigerantEvents> & { id: string; date: string } }[] = [];
   const cylinderLot = (refrigerant: string, date: string) =>
     `${refrigerant.replace('-', '')}-${date.slice(2, 4)}${'ABCDEFGHJK'[rng.int(0, 9)]}-${String(rng.int(1, 9999)).padStart(4, '0')}`;
 
   function alarm(u: Unit, code: string, circuit: number | null, raisedAt: Date, clearedAt: Date | null) {
     rows.alarms.push({
-      id: rng.uuid(), branchId: u.branch.id, unitId: u.id, circuit, code, description: ALARM_TEXT[code] ?? code, raisedAt,
+      id: rng.uuid(), branchId: u.branch.id, unitId: u.id, circuit, code, description: alarmText(u.model.kind, code), raisedAt,
       clearedAt, source: 'controller', createdAt: raisedAt,
     });
   }
@@ -549,68 +570,29 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     settings: [['prior_service', 45], ['external', 55]],
     no_fault_found: [['external', 100]],
   };
-  const NOTES: Record<CauseCode, string[]> = {
-    refrigerant_leak: [
-      'Leak at the Schrader core of the suction service port on circuit {c}; replaced core and cap.',
-      'Oil stain and bubbles at the flare nut on the TXV inlet, circuit {c}; re-flared and tightened.',
-      'Rub-through on the liquid line at the cabinet grommet, circuit {c}; leak confirmed with electronic detector.',
-      'Pin-hole leak on an evaporator U-bend, circuit {c}; topped off, coil repair quoted.',
-    ],
-    sensor_fault: [
-      'Suction transducer on circuit {c} reading high against the reference gauge; replaced transducer.',
-      'Discharge pressure sensor on circuit {c} drifting; replaced and verified against gauge.',
-      'Box temperature probe out of its clip and hanging in the door draft; re-mounted.',
-    ],
-    wiring_fault: [
-      'Loose spade terminal on the circuit {c} contactor coil; re-terminated.',
-      'Chafed control wire at the compressor compartment shorting intermittently; repaired and sleeved.',
-      'Loose neutral at the control transformer; tightened and torqued.',
-    ],
-    control_fault: [
-      'Controller lost its network link after a power blip; reloaded program and restored the BACnet address.',
-      'Economizer actuator failed closed; replaced actuator and calibrated minimum position.',
-      'Defrost timer stuck in refrigeration mode; replaced timer and set four defrosts a day.',
-    ],
-    component_failure: [
-      'Condenser fan motor capacitor (45/5 µF) failed on circuit {c}; replaced.',
-      'Contactor points pitted on circuit {c} compressor; replaced contactor.',
-      'Evaporator fan motor seized; replaced motor and blade.',
-      'Compressor on circuit {c} drawing locked-rotor amps; replacement quoted.',
-    ],
-    airflow: [
-      'Filters fully loaded; replaced filters and cleaned the evaporator coil.',
-      'Supply fan belt slipping and glazed; replaced belt and set tension.',
-      'Condenser coil matted with cottonwood; washed coil.',
-      'Evaporator iced from a propped-open door; defrosted and told staff to keep the door shut.',
-    ],
-    settings: [
-      'Set point changed to 62 °F by the tenant; restored 72 °F and locked the thermostat.',
-      'Occupancy schedule lost the daylight-saving change; corrected schedule.',
-      'Box set point at 28 °F instead of 36 °F; reset.',
-    ],
-    no_fault_found: [
-      'Could not reproduce; unit ran both stages for 40 min without a trip. Alarm history reviewed.',
-      'Alarm reset; gauges normal on every circuit. Asked the site to call if it returns.',
-    ],
-  };
-  const COMPLAINTS_COMFORT = ['Tenant reports warm temperatures on the third floor', 'Unit short-cycling all afternoon', 'Noisy condenser fan', 'Water dripping from the unit onto the roof deck', 'Conference rooms not cooling'];
-  const COMPLAINTS_REFRIG = ['Walk-in at 46 °F, product at risk', 'Reach-in not holding temperature', 'Ice building up on the evaporator', 'Compressor running nonstop'];
-  const COMPLAINTS_CHILLER = ['Chilled water supply at 52 °F', 'Chiller tripped overnight', 'Building warm, chiller staging erratically'];
-  const COMPLAINTS_BOILER = ['No heat in the east wing', 'Boiler locked out on ignition failure', 'Short-cycling boiler, noisy burner'];
-
   function causesFor(u: Unit) {
     if (u.model.kind === 'boiler') return CAUSES_BOILER;
     if (u.model.kind === 'chiller') return CAUSES_CHILLER;
     if (isRefrigeration(u)) return CAUSES_REFRIG;
     return CAUSES_COMFORT;
   }
+  /**
+   * The alarm a cause raises on a unit. Refrigeration calls: a short charge shows as low suction or a warm box
+   * (one draw picks, whatever the kind can raise); reach-ins raise only their temperature alarm and ice machines
+   * their cycle-time faults.
+   */
   function alarmFor(u: Unit, cause: CauseCode, circuit: number): string | null {
-    if (u.model.kind === 'boiler') return null;
+    const kind = u.model.kind;
+    if (kind === 'boiler') return null;
     if (isRefrigeration(u)) {
-      if (cause === 'refrigerant_leak') return rng.pick(['LP1', 'HI-TEMP']);
-      if (cause === 'control_fault') return 'COMM';
+      const warm = kind === 'ice_machine' ? 'LONG-FRZ' : 'HI-TEMP';
+      if (cause === 'refrigerant_leak') {
+        const low = rng.chance(0.5);
+        return low && kind !== 'reach_in' && kind !== 'ice_machine' ? `LP${circuit}` : warm;
+      }
+      if (cause === 'control_fault') return kind === 'ice_machine' ? 'LONG-HRV' : kind === 'reach_in' ? 'HI-TEMP' : 'COMM';
       if (cause === 'settings') return null;
-      return 'HI-TEMP';
+      return warm;
     }
     switch (cause) {
       case 'refrigerant_leak':
@@ -629,13 +611,16 @@ export function buildScenario(today: string, passwordHash: string): Rows {
         return null;
     }
   }
-  function complaintFor(u: Unit | null, code: string | null): string {
-    if (code) return `${code} alarm — ${ALARM_TEXT[code] ?? code}`;
+  /** What the site phoned in: the alarm when there was one, else a complaint that fits the unit (and the cause, when known). */
+  function complaintFor(u: Unit | null, code: string | null, cause?: CauseCode): string {
+    if (code) return `${code} alarm — ${u ? alarmText(u.model.kind, code) : code}`;
     if (!u) return 'Site reports a comfort problem';
-    if (u.model.kind === 'boiler') return rng.pick(COMPLAINTS_BOILER);
-    if (u.model.kind === 'chiller') return rng.pick(COMPLAINTS_CHILLER);
-    if (isRefrigeration(u)) return rng.pick(COMPLAINTS_REFRIG);
-    return rng.pick(COMPLAINTS_COMFORT);
+    return rng.pick(complaintChoices(words(u), cause));
+  }
+  /** A callback repeats the complaint of the call it came back to; a fresh complaint is still drawn, to keep the generator in step. */
+  function callbackComplaint(u: Unit, previous: string | undefined): string {
+    const fresh = complaintFor(u, null);
+    return againComplaint(previous || fresh);
   }
   const needsRefrigerantWork = (u: Unit, cause: CauseCode) =>
     hasCircuits(u) && !isSmall(u) && (cause === 'refrigerant_leak' || cause === 'component_failure' || cause === 'sensor_fault');
@@ -667,6 +652,8 @@ export function buildScenario(today: string, passwordHash: string): Rows {
   function closedCall(v: {
     unit: Unit; date: string; kind?: WorkOrderKind; cause?: CauseCode; origin?: CauseOrigin; outcome?: VisitOutcome; circuit?: number;
     originWorkOrderId?: string; returnNeeds?: ReturnNeed[]; exact?: boolean; tech?: Tech; findingNotes?: string; visitNotes?: string;
+    /** A draw made by the caller, in place of the one picking the finding note (a callback's "same problem" note). */
+    findingDraw?: number; againComplaint?: string;
     alarmCode?: string | null; complaint?: string; finding?: FindingSpec | null; extraFindings?: FindingSpec[]; refrigerant?: RefrigerantSpec[];
     conditions?: Record<number, CircuitCondition>; priority?: Priority; minutes?: number; leakCaseId?: string; wantsReturn?: ReturnNeed[];
     returnNotes?: string; requiredSkill?: string | null; notBefore?: Date;
@@ -687,7 +674,8 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     const priority: Priority = v.priority ?? (isRefrigeration(u) && cause !== 'settings' ? rng.pick<Priority>(['high', 'emergency']) : rng.weighted<Priority>([['normal', 70], ['high', 25], ['low', 5]]));
     const wo = newWorkOrder({
       branch: b, site: u.site, unit: u, kind, state: 'booked', createdAt, priority,
-      complaint: v.complaint ?? (kind === 'return_visit' ? `Return visit: ${returnText(v.returnNeeds ?? ['parts'])}` : complaintFor(u, code)),
+      complaint: v.complaint ?? (kind === 'return_visit' ? `Return visit: ${returnText(v.returnNeeds ?? ['parts'])}`
+        : v.againComplaint !== undefined && !code ? callbackComplaint(u, v.againComplaint) : complaintFor(u, code, cause)),
       estimatedMinutes: Math.round(minutes / 15) * 15 || 60, originWorkOrderId: v.originWorkOrderId ?? null,
       requiredSkill: v.requiredSkill === undefined ? (rng.chance(0.5) ? skillFor(u) : null) : v.requiredSkill,
       requiredCertification: needCert && rng.chance(0.6) ? needCert : null, returnNeeds: v.returnNeeds ?? [],
@@ -705,44 +693,48 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       outcome = r < pReturn ? 'needs_return' : r < pReturn + pDecline ? 'declined' : 'resolved';
     }
     const origin = v.origin ?? rng.weighted(ORIGINS[cause]);
+    const topsOff = !v.refrigerant && cause === 'refrigerant_leak' && hasCircuits(u) && !u.scriptedRefrigerant && kind !== 'return_visit';
+    // The note fits the unit, the alarm and how the visit ends; one draw picks it from whichever list that leaves.
+    let note: Note | null = null;
+    const pickNote = (): string => {
+      const leakSearch = cause === 'refrigerant_leak' && outcome === 'needs_return' && (v.wantsReturn ?? ['leak_search']).includes('leak_search');
+      const choices = findingChoices(words(u), cause, code, { outcome: outcome!, leakSearch, toppedOff: topsOff });
+      note = v.findingDraw !== undefined ? choices[Math.floor(v.findingDraw * choices.length)]! : rng.pick(choices);
+      return `${v.findingDraw !== undefined ? 'Same problem as the last visit. ' : ''}${renderNote(note, circuit, outcome!)}`;
+    };
     const finding: FindingSpec | null = v.finding !== undefined ? v.finding : {
       unit: u, causeCode: cause, origin, alarmCode: code, reportedCircuit: code && /\d$/.test(code) ? circuit : null,
       actualCircuit: code && /\d$/.test(code) ? circuit : null,
-      notes: v.findingNotes ?? rng.pick(NOTES[cause]).replace('{c}', String(circuit)),
+      notes: v.findingNotes ?? pickNote(),
     };
+    const picked = note as Note | null;
     const refrigerant: RefrigerantSpec[] = v.refrigerant ?? [];
-    if (!v.refrigerant && cause === 'refrigerant_leak' && hasCircuits(u) && !u.scriptedRefrigerant && kind !== 'return_visit') {
+    if (topsOff) {
       const lb = isSmall(u) ? round1(rng.range(0.2, 0.5)) : round1(u.fullChargeLb * rng.range(0.03, 0.08));
       refrigerant.push({ unit: u, added: Math.max(lb, 0.2), reason: 'leak_top_off' });
     }
     const returnNeeds = outcome === 'needs_return'
       ? v.wantsReturn ?? (cause === 'refrigerant_leak' ? ['leak_search'] : cause === 'component_failure' ? rng.pick<ReturnNeed[]>([['parts'], ['parts', 'second_tech']]) : ['parts'])
       : [];
+    const toppedOff = refrigerant.some((r) => (r.added ?? 0) > 0);
+    // A leak is short of charge until a return visit has repaired it; a suction transducer reading high shows
+    // in the readings only when the note blames one (the other conditions make the same draws).
+    const condition: CircuitCondition | null =
+      cause === 'refrigerant_leak' ? (kind === 'return_visit' ? 'recharged' : 'low_charge')
+        : cause === 'sensor_fault' ? (kind !== 'return_visit' && picked?.drift ? 'sensor_drift' : 'sensor_elsewhere')
+          : null;
     const visit = runVisit(wo, slot, {
       outcome,
-      notes: v.visitNotes ?? visitNote(outcome, cause, returnNeeds),
+      notes: v.visitNotes ?? visitNote(words(u), outcome, cause, returnNeeds, { alarmCode: code, toppedOff }),
       returnNeeds,
-      returnNotes: outcome === 'needs_return' ? v.returnNotes ?? returnNote(returnNeeds) : undefined,
+      returnNotes: outcome === 'needs_return' ? v.returnNotes ?? returnNote(words(u), returnNeeds) : undefined,
       findings: [...(finding ? [finding] : []), ...(v.extraFindings ?? [])],
       readings: hasCircuits(u)
-        ? { units: [u], conditions: v.conditions ?? (cause === 'refrigerant_leak' ? { [circuit]: 'low_charge' } : cause === 'sensor_fault' ? { [circuit]: 'sensor_drift' } : {}), force: cause === 'refrigerant_leak' || cause === 'sensor_fault' || !!v.conditions }
+        ? { units: [u], conditions: v.conditions ?? (condition ? { [circuit]: condition } : {}), force: cause === 'refrigerant_leak' || cause === 'sensor_fault' || !!v.conditions }
         : undefined,
       refrigerant,
     });
     return { wo, visit, slot };
-  }
-
-  const returnText = (needs: ReturnNeed[]) =>
-    needs.map((n) => ({ parts: 'parts', leak_search: 'leak search', manufacturer: 'manufacturer support', second_tech: 'second technician' })[n]).join(', ');
-  const returnNote = (needs: ReturnNeed[]) =>
-    needs.includes('leak_search') ? 'Bring nitrogen, electronic detector and bubble solution; plan 3 h.'
-      : needs.includes('manufacturer') ? 'Waiting on the manufacturer’s field bulletin and harness jumper.'
-        : needs.includes('second_tech') ? 'Two techs and a crane-free lift plan; parts ordered.'
-          : 'Parts ordered from the supply house; ETA 3–5 business days.';
-  function visitNote(outcome: VisitOutcome, cause: CauseCode, needs: ReturnNeed[]): string {
-    if (outcome === 'declined') return 'Repair quoted; customer declined for now. Unit left running on remaining stages.';
-    if (outcome === 'needs_return') return `Temporary fix in place; return visit needed (${returnText(needs)}).`;
-    return cause === 'no_fault_found' ? 'Alarm reset, unit running normally on departure.' : 'Repaired and verified; unit running normally on departure.';
   }
 
   /** After a service call: its return visit, or sometimes a callback. Keeps everything before `horizon`. */
@@ -756,7 +748,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       closedCall({
         unit: u, date: d, kind: 'return_visit', cause, outcome: rng.chance(0.93) ? 'resolved' : 'declined', originWorkOrderId: first.wo.id,
         returnNeeds: first.visit.returnNeeds as ReturnNeed[], alarmCode: null, priority: 'normal', minutes: rng.int(90, 200),
-        findingNotes: cause === 'refrigerant_leak' ? 'Leak repaired (brazed), pressure-tested with nitrogen, evacuated to 500 microns, recharged by weight.' : 'Installed the ordered part; verified operation through a full cycle.',
+        findingNotes: returnFinding(words(u), cause),
         refrigerant: [], notBefore: first.slot.closedAt,
       });
       return;
@@ -767,9 +759,9 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       const sameCause = rng.chance(0.6);
       const cbCause = sameCause ? cause : rng.weighted(causesFor(u));
       const cb = closedCall({
-        unit: u, date: d, kind: 'callback', cause: cbCause, originWorkOrderId: first.wo.id, priority: 'high',
+        unit: u, date: d, kind: 'callback', cause: cbCause, originWorkOrderId: first.wo.id, priority: 'high', againComplaint: first.wo.complaint,
         outcome: rng.chance(0.85) ? 'resolved' : 'needs_return', notBefore: addMinutes(first.slot.closedAt, 3 * 24 * 60),
-        findingNotes: sameCause ? `Same problem as the last visit. ${rng.pick(NOTES[cbCause]).replace('{c}', '1')}` : undefined,
+        findingDraw: sameCause ? rng.next() : undefined,
       });
       if (cb) followUps(cb, cbCause, horizon, false);
     }
@@ -787,6 +779,16 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     monthly: ['Check box temperatures and door gaskets', 'Inspect evaporator for ice; verify defrost', 'Clean condenser coil', 'Record suction and liquid pressures', 'Leak check with electronic detector'],
     quarterly: ['Replace filters', 'Check belts and sheaves', 'Clean condensate pan and trap', 'Record pressures and line temperatures per circuit', 'Check economizer operation'],
     biannual: ['Spring: cooling start-up, coil wash, pressures per circuit', 'Autumn: heat exchanger inspection, burner and ignition check', 'Replace filters', 'Check belts'],
+  };
+  /** A planned visit's summary: the plan's first tasks; a biannual visit lists its own season's work, not the other's. */
+  const pmNote = (plan: Plan, date: string) => {
+    if (plan === 'biannual') {
+      const spring = month(date) <= 6;
+      const season = TASKS.biannual.find((x) => x.startsWith(spring ? 'Spring: ' : 'Autumn: '))!.replace(/^\w+: /, '');
+      const rest = TASKS.biannual.filter((x) => !/^(Spring|Autumn): /.test(x));
+      return `${spring ? 'Spring' : 'Autumn'} PM complete: ${[season, ...rest].join('; ').toLowerCase()}.`;
+    }
+    return `${plan === 'monthly' ? 'Monthly' : 'Quarterly'} PM complete: ${TASKS[plan].slice(0, 3).join('; ').toLowerCase()}.`;
   };
   const soonEndingPerBranch = new Map<string, number>();
   for (const b of branches) {
@@ -893,8 +895,8 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     const first = closedCall({
       unit: u, date: addDays(today, -s.firstDaysAgo), cause: 'refrigerant_leak', origin: 'wear', circuit: 1, outcome: 'resolved', alarmCode: 'LP1',
       priority: 'high', requiredSkill: null,
-      findingNotes: 'Circuit 1 suction on the low side at start-up; no leak found with the electronic detector. Added 1.5 lb, reset LP1, ran 40 min without a trip.',
-      visitNotes: 'LP1 reset; circuit 1 topped off. Unit running on both stages at departure.',
+      findingNotes: 'LP1 in the alarm history; circuit 1 subcooling at the low end of its target and no leak found with the electronic detector. Added 1.5 lb, reset LP1 and ran 40 min without a trip.',
+      visitNotes: 'LP1 reset; circuit 1 topped off. Unit running on both circuits at departure.',
       conditions: { 1: 'normal', 2: 'normal' },
       refrigerant: [{ unit: u, added: 1.5, reason: 'leak_top_off', scripted: true }],
     })!;
@@ -905,7 +907,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       finding: { unit: u, causeCode: 'wiring_fault', origin: 'factory_defect', alarmCode: 'LP1', reportedCircuit: 1, actualCircuit: 2, notes: DEFECT_FINDING_NOTES },
       visitNotes: s.needsReturn
         ? 'Traced LP1 to circuit 2’s low-pressure switch wired to the circuit 1 input at the factory harness. Manufacturer asked for its own harness jumper; temporary re-land done.'
-        : 'Traced LP1 to circuit 2’s low-pressure switch wired to the circuit 1 input at the factory harness; re-landed. Recovered the 1.5 lb added to circuit 1 last visit.',
+        : 'Traced LP1 to circuit 2’s low-pressure switch wired to the circuit 1 input at the factory harness; re-landed. Recovered the 1.5 lb added to circuit 1 last visit; subcooling back on target.',
       conditions: { 1: 'normal', 2: 'normal' },
       refrigerant: [{ unit: u, recovered: 1.5, reason: 'recovery', scripted: true }],
     })!;
@@ -967,9 +969,12 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     const sc1 = closedCall({
       unit: u, date: firstDate, exact: true, cause: 'refrigerant_leak', origin: 'wear', circuit: 2, outcome: 'resolved', alarmCode: 'LP2',
       priority: 'high', requiredSkill: 'chiller', tech: chillerTech, minutes: 180,
-      findingNotes: 'Circuit 2 short of charge (superheat 27 °F, subcooling 3 °F). No leak found at accessible joints; added 6 lb and asked for a leak search at the next PM.',
+      findingNotes: 'Circuit 2 short of charge. No leak found at the accessible joints with the electronic detector; added 6 lb and asked for a leak search at the next PM.',
       refrigerant: [{ unit: u, added: 6, reason: 'leak_top_off', scripted: true }],
     })!;
+    // The note quotes the superheat and subcooling of the visit's own circuit 2 reading, as the visit screen shows them.
+    const figures = chargeFigures(sc1.visit.id, u.circuits[1]!.id);
+    if (figures) findingOf(sc1.visit.id).notes = `Circuit 2 short of charge (${figures}). No leak found at the accessible joints with the electronic detector; added 6 lb and asked for a leak search at the next PM.`;
     // Annualizing (40 CFR 84.106 via 82.152): % = lb added ÷ full charge × 365 ÷ min(days since the previous addition, 365) × 100.
     // With the previous addition 41 days earlier in 2026: 9.5 ÷ 180 × 365 ÷ 41 × 100 = 46.98 % > 10 % (comfort cooling) → repair within
     // 30 days of the addition, i.e. about 6 days from today. (Both visits move to the previous working day when they fall on a
@@ -989,8 +994,11 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     const rv1 = closedCall({
       unit: u, date: addDays(triggerDate, 7), kind: 'return_visit', originWorkOrderId: sc2.wo.id, cause: 'refrigerant_leak', origin: 'wear', circuit: 2,
       outcome: 'needs_return', returnNeeds: ['leak_search'], wantsReturn: ['parts', 'second_tech'], requiredSkill: 'chiller', tech: chillerTech, minutes: 210, alarmCode: null,
-      findingNotes: 'Leak search with nitrogen and bubble solution: cracked braze joint on the circuit 2 condenser header. Header section and brazing crew needed.',
-      visitNotes: 'Leak located on circuit 2 condenser header; circuit isolated, unit running on circuit 1.', refrigerant: [],
+      conditions: { 2: 'low_charge' },
+      findingNotes: 'Leak search with the electronic detector, confirmed with bubble solution: cracked braze joint on the circuit 2 condenser coil header. Header section and a brazing crew needed.',
+      visitNotes: 'Leak located on the circuit 2 condenser header; circuit 2 locked out, chiller running on circuit 1.',
+      returnNotes: `Header section ordered. Two techs: recover circuit 2 (about ${Math.round(u.fullChargeLb / u.circuits.length)} lb), braze under nitrogen, pressure-test, evacuate to 500 microns and weigh the charge back in.`,
+      refrigerant: [],
     })!;
     const caseId = rng.uuid();
     const due = addDays(triggerDate, 30);
@@ -1076,7 +1084,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     const fix = closedCall({
       unit: u, date: addDays(sc2.slot.date, 14), kind: 'return_visit', originWorkOrderId: sc2.wo.id, cause: 'refrigerant_leak', origin: 'wear', circuit: 1,
       outcome: 'resolved', returnNeeds: ['leak_search'], tech, minutes: 300, requiredSkill: 'chiller', alarmCode: null, leakCaseId: caseId,
-      findingNotes: 'Leak at the circuit 1 liquid-line solenoid valve body; replaced valve, pressure-tested with nitrogen, evacuated, recharged by weight.',
+      findingNotes: 'Leak at the circuit 1 liquid-line solenoid valve body. Pumped circuit 1 down into the condenser, replaced the valve, pressure-tested with nitrogen, evacuated to 500 microns and opened the circuit back up.',
       refrigerant: [],
     })!;
     rows.leakCases.push({
@@ -1128,7 +1136,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     });
 
   const unplacedOut: WoRow[] = [];
-  // A unit has at most one open return visit (the database's rule, migration 0008): these have one this week.
+  // A unit has at most one open return visit (the database's rule, migration 0009): these have one this week.
   const openReturnUnits = new Set<Unit>(stops.filter((s) => s.wo.kind === 'return_visit' && s.wo.unitId).map((s) => unitById.get(s.wo.unitId!)!));
   // Unplaced work per branch: return visits waiting to be booked (origin closed needs_return 2–8 days ago),
   // a callback, new calls due this week, and one or two planned visits.
@@ -1163,7 +1171,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       if (origin) {
         unplacedOut.push(newWorkOrder({
           branch: b, site: u.site, unit: u, kind: 'callback', state: 'unplaced', createdAt: wallTime(addDays(today, -1), 15 * 60, b.tz), priority: 'high',
-          complaint: `Same problem again: ${complaintFor(u, null).toLowerCase()}`, estimatedMinutes: 90, originWorkOrderId: origin.wo.id,
+          complaint: callbackComplaint(u, origin.wo.complaint), estimatedMinutes: 90, originWorkOrderId: origin.wo.id,
           requiredSkill: skillFor(u), slaDueAt: wallTime(weekLast, 12 * 60, b.tz),
         }));
       }
@@ -1251,7 +1259,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
           bookOne(newWorkOrder({
             branch: b, site: u.site, unit: u, kind: realKind, state: 'booked', createdAt: created,
             priority: realKind === 'callback' ? 'high' : rng.weighted<Priority>([['normal', 60], ['high', 25], ['low', 15]]),
-            complaint: realKind === 'return_visit' ? 'Return visit: parts' : realKind === 'callback' ? `Same problem again: ${complaintFor(u, null).toLowerCase()}` : complaintFor(u, rng.chance(0.4) ? alarmFor(u, rng.weighted(causesFor(u)), 1) : null),
+            complaint: realKind === 'return_visit' ? 'Return visit: parts' : realKind === 'callback' ? callbackComplaint(u, origin!.wo.complaint) : complaintFor(u, rng.chance(0.4) ? alarmFor(u, rng.weighted(causesFor(u)), 1) : null),
             estimatedMinutes: minutes, originWorkOrderId: origin?.wo.id ?? null, returnNeeds: realKind === 'return_visit' ? ['parts'] : [],
             requiredSkill: rng.chance(0.4) ? skillFor(u) : null,
             requiredCertification: tech.cert !== 'I' && hasCircuits(u) && !isSmall(u) && rng.chance(0.3) ? 'II' : null,
@@ -1294,8 +1302,8 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       const f = rng.chance(0.1) && term.units.length > 0 ? rng.pick(term.units) : null;
       runVisit(wo, slot, {
         outcome: 'resolved',
-        notes: `${term.plan === 'monthly' ? 'Monthly' : term.plan === 'quarterly' ? 'Quarterly' : month(slot.date) <= 6 ? 'Spring' : 'Autumn'} PM complete: ${TASKS[term.plan].slice(0, 3).join('; ').toLowerCase()}.`,
-        findings: f ? [{ unit: f, causeCode: 'airflow', origin: 'wear', notes: rng.pick(['Belt worn and glazed; replaced.', 'Filters loaded early; shortened the filter interval.', 'Condenser coil dirty; washed.']) }] : [],
+        notes: pmNote(term.plan, slot.date),
+        findings: f ? [{ unit: f, causeCode: 'airflow', origin: 'wear', notes: rng.pick(pmFindingChoices(words(f))) }] : [],
         readings: { units: term.units },
       });
     }

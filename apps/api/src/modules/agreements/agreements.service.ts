@@ -14,7 +14,7 @@ import {
   agreementInputSchema,
   agreementPatchSchema,
 } from '@coilpath/contract';
-import { addDays, expandAgreementVisits, levelVisitsAcrossWeeks, zonedDate, zonedInstant } from '@coilpath/calc';
+import { addDays, levelVisitsAcrossWeeks, planAgreementVisits, zonedDate, zonedInstant } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
@@ -201,14 +201,16 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
   const today = todayIn(tz, ctx.clock.now());
 
   let planned: Planned[] = [];
+  let dropped: PlanPreview['dropped'] = [];
   if (a.status === 'active' && a.termEnd >= today) {
     let expanded;
     try {
-      expanded = expandAgreementVisits({ rrule: a.rrule, termStart: a.termStart, termEnd: a.termEnd, timeZone: tz, holidays: b!.holidays });
+      expanded = planAgreementVisits({ rrule: a.rrule, termStart: a.termStart, termEnd: a.termEnd, timeZone: tz, holidays: b!.holidays });
     } catch (e) {
       throw unprocessable(`The agreement's recurrence cannot be expanded: ${(e as Error).message}`);
     }
-    const future = expanded.filter((v) => v.date >= today);
+    dropped = expanded.dropped.filter((d) => d.originalDate >= today).map((d) => ({ ruleDate: d.originalDate, reason: `Not planned: ${d.reason}` }));
+    const future = expanded.visits.filter((v) => v.date >= today);
     if (future.length) {
       const last = future[future.length - 1]!.date;
       const [others, [techs]] = await Promise.all([
@@ -247,7 +249,16 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
       planned = future.map((v) => {
         const l = byId.get(`1:${v.originalDate}`)!;
         const reasons: string[] = [];
-        if (v.moved) reasons.push(holidays.has(v.originalDate) ? `moved off the holiday ${v.originalDate}` : `moved off the weekend (${v.originalDate})`);
+        if (v.moved) {
+          const weekday = new Date(`${v.originalDate}T12:00:00Z`).getUTCDay();
+          reasons.push(
+            holidays.has(v.originalDate)
+              ? `moved off the holiday ${v.originalDate}`
+              : weekday === 0 || weekday === 6
+                ? `moved off the weekend (${v.originalDate})`
+                : `moved to the next free working day: ${v.originalDate} already had a visit of this plan`,
+          );
+        }
         if (l.date !== v.date) reasons.push(`moved to a later week: the week of ${v.date} already had ${maxPerWeek} planned visits`);
         const text = reasons.join('; ');
         return { ruleDate: v.originalDate, workingDate: v.date, plannedDate: l.date, moved: text ? text[0]!.toUpperCase() + text.slice(1) : null };
@@ -305,17 +316,17 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
   visits.sort((x, y) => x.plannedDate.localeCompare(y.plannedDate) || x.ruleDate.localeCompare(y.ruleDate));
   const counts: PlanPreview['counts'] = { new: 0, keep: 0, move: 0, locked: 0, cancel: 0 };
   for (const v of visits) counts[v.action]++;
-  return { a, tz, visits, counts, adopt };
+  return { a, tz, visits, counts, adopt, dropped };
 }
 
 export async function previewPlan(ctx: AppContext, user: SessionUser, id: string): Promise<PlanPreview> {
-  const { visits, counts } = await computePlan(ctx.db, ctx, user, id, false);
-  return { agreementId: id, visits, counts };
+  const { visits, counts, dropped } = await computePlan(ctx.db, ctx, user, id, false);
+  return { agreementId: id, visits, counts, dropped };
 }
 
 export async function applyPlan(ctx: AppContext, user: SessionUser, id: string): Promise<PlanPreview & { applied: true }> {
   return ctx.db.transaction(async (tx) => {
-    const { a, tz, visits, counts, adopt } = await computePlan(tx, ctx, user, id, true);
+    const { a, tz, visits, counts, adopt, dropped } = await computePlan(tx, ctx, user, id, true);
     const unitRows = await tx
       .select({ id: units.id, tag: units.tag })
       .from(agreementUnits)
@@ -369,7 +380,7 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
       await tx.update(workOrders).set({ purpose: purposeOf(x.ruleDate) }).where(and(eq(workOrders.id, x.id), eq(workOrders.state, 'unplaced')));
     }
     await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.plan_applied', entity: 'agreement', entityId: id, details: counts });
-    return { agreementId: id, visits, counts, applied: true as const };
+    return { agreementId: id, visits, counts, dropped, applied: true as const };
   });
 }
 

@@ -3,7 +3,7 @@ import { and, eq, ne } from 'drizzle-orm';
 import type { AgreementInput } from '@coilpath/contract';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeWorkOrder, TEST_PASSWORD } from '../../testing/fixtures';
-import { branches, workOrders } from '../../db/schema';
+import { agreements, branches, workOrders } from '../../db/schema';
 
 // Monday 4 January 2027, 09:00 in Chicago.
 const NOW = '2027-01-04T15:00:00.000Z';
@@ -204,5 +204,31 @@ describe('PM completion and renewals', () => {
     const owner = await agent(f.owner);
     const all = await owner.get('/api/agreements/pm-completion');
     expect(all.body.branches.map((b: { branchId: string }) => b.branchId).sort()).toEqual([f.a.id, f.b.id].sort());
+  });
+});
+
+describe('visit plan keeps what was contracted', () => {
+  it('a weekly Saturday-and-Sunday rule keeps every visit (next free working day), and says when the term has no room', async () => {
+    const mgr = await agent(f.inA.manager);
+    const a = (await mgr.post('/api/agreements').send(quarterly(siteA.site.id, [siteA.unit.id], { name: 'Weekend rule', termStart: '2027-01-04', termEnd: '2027-01-31' })))
+      .body.agreement;
+    // A rule from an import: every Saturday and Sunday (Jan 9/10, 16/17, 23/24, 30/31 = 8 contracted visits).
+    await t.ctx.db.update(agreements).set({ rrule: 'FREQ=WEEKLY;BYDAY=SA,SU' }).where(eq(agreements.id, a.id));
+    const preview = await mgr.post(`/api/agreements/${a.id}/plan`);
+    expect(preview.status).toBe(200);
+    const rows = preview.body.visits as { ruleDate: string; plannedDate: string; moved: string | null }[];
+    expect(rows.map((v) => v.ruleDate).sort()).toEqual(['2027-01-09', '2027-01-10', '2027-01-16', '2027-01-17', '2027-01-23', '2027-01-24', '2027-01-30', '2027-01-31']);
+    expect(new Set(rows.map((v) => v.plannedDate)).size).toBe(8); // eight different working days
+    expect(preview.body.dropped).toEqual([]);
+    // Sat 9 → Mon 11; Sun 10 → Mon 11 is taken → Tue 12.
+    expect(rows.find((v) => v.ruleDate === '2027-01-10')?.plannedDate).toBe('2027-01-12');
+
+    // A term ending Sunday 10 January: Mon 4 … Fri 8 are free for the two weekend visits (previous free working days).
+    await t.ctx.db.update(agreements).set({ termEnd: '2027-01-10', rrule: 'FREQ=DAILY' }).where(eq(agreements.id, a.id));
+    const tight = await mgr.post(`/api/agreements/${a.id}/plan`);
+    // Daily Mon 4 … Sun 10 = 7 contracted visits, 5 working days: 2 cannot be placed, and the preview says so.
+    expect(tight.body.visits).toHaveLength(5);
+    expect(tight.body.dropped.map((d: { ruleDate: string }) => d.ruleDate)).toEqual(['2027-01-09', '2027-01-10']);
+    expect(tight.body.dropped[0].reason).toMatch(/^Not planned: no free working day/);
   });
 });

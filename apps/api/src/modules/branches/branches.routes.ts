@@ -28,6 +28,7 @@ export function branchesRoutes(ctx: AppContext): Router {
           repeatAlarmCount: branches.repeatAlarmCount,
           repeatAlarmDays: branches.repeatAlarmDays,
           callbackWindowDays: branches.callbackWindowDays,
+          inspectionDueDays: branches.inspectionDueDays,
           baseAddress: branches.baseAddress,
           baseLat: branches.baseLat,
           baseLon: branches.baseLon,

@@ -25,6 +25,7 @@ const toDetail = (b: BranchRow): BranchDetail => ({
   repeatAlarmCount: b.repeatAlarmCount,
   repeatAlarmDays: b.repeatAlarmDays,
   callbackWindowDays: b.callbackWindowDays,
+  inspectionDueDays: b.inspectionDueDays,
   archivedAt: b.archivedAt?.toISOString() ?? null,
 });
 

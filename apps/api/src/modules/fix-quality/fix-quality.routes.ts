@@ -54,7 +54,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
   r.post(
     '/fix-quality/model-alerts/inspections',
     requireRole('owner'),
-    endpoint({ body: createInspectionsSchema, status: 201 }, ({ body, user }) => createInspections(ctx.db, user, body)),
+    endpoint({ body: createInspectionsSchema, status: 201 }, ({ body, user }) => createInspections(ctx.db, ctx.clock, user, body)),
   );
 
   r.get(

@@ -8,7 +8,7 @@
  * `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
  */
 import { eq, inArray, sql, type SQL } from 'drizzle-orm';
-import { fixQualityFromCounts } from '@coilpath/calc';
+import { addDays, fixQualityFromCounts, zonedDate, zonedInstant } from '@coilpath/calc';
 import {
   causeCodeLabels,
   causeOriginLabels,
@@ -31,9 +31,11 @@ import {
   type WarrantyClaimStatus,
   type WarrantyClaimUpdate,
   type WorkOrderKind,
+  type WorkOrderState,
 } from '@coilpath/contract';
 import type { Db, Tx } from '../../db/client';
 import { auditEvents, branches, users, warrantyClaims, workOrders } from '../../db/schema';
+import type { Clock } from '../../lib/clock';
 import { notFound, unprocessable } from '../../lib/errors';
 
 const DAY_MS = 86_400_000;
@@ -572,20 +574,36 @@ interface AlertUnitRow {
   site_name: string;
   install_date: string | null;
   warranty_end: string | null;
-  has_finding: boolean;
+  /** One of the units the factory defect was found on (the alert's evidence). */
+  affected: boolean;
+  /** A finding with the alert's cause code recorded since the alert was raised. */
+  found_since: boolean;
   inspection: 'open' | 'closed' | null;
-  visited_since: boolean;
+}
+
+interface AlertInspectionRow {
+  purpose: string;
+  work_order_id: string;
+  number: number | null;
+  state: WorkOrderState;
+  latest_at: Date | string | null;
+  unit_id: string;
+  unit_tag: string;
+  site_name: string;
+  branch_id: string;
+  branch_name: string;
 }
 
 /**
  * Model alerts: the same cause code with origin `factory_defect` on one make and model at two or more
- * sites (over all time and all branches). For each, every unit of the model (not archived) with whether it
- * has been checked. A unit is checked when it has
- *   1. a finding with the alert's cause code (any origin), or
- *   2. an inspection work order with the alert's purpose `model-alert:<make>|<model>|<cause>` that is not
- *      cancelled (open or closed), or
- *   3. a closed visit after the alert was raised — the moment a second site's factory-defect finding was
- *      recorded (closing time of its visit): from then on a technician on the unit knew to look.
+ * sites (over all time and all branches), raised the moment a second site's factory-defect finding was
+ * recorded (closing time of its visit). For each, every unit of the model (not archived) with whether it
+ * has been checked for that cause (the rule is stated once, beside `modelAlertPurpose` in the contract):
+ *   1. it is one of the units the defect was found on, or
+ *   2. it has a finding with the alert's cause code (any origin) recorded at or after the alert was raised, or
+ *   3. it has an inspection work order created from the alert (purpose `model-alert:<make>|<model>|<cause>`),
+ *      not cancelled, open or closed.
+ * A visit for other work after the alert does not check the unit: nobody looked for that cause.
  */
 export async function loadModelAlerts(db: Tx, filter?: { make: string; model: string; causeCode: CauseCode }) {
   const only = filter
@@ -633,15 +651,16 @@ export async function loadModelAlerts(db: Tx, filter?: { make: string; model: st
       u.site_id, s.name AS site_name, u.install_date::text AS install_date, u.warranty_end::text AS warranty_end,
       EXISTS (
         SELECT 1 FROM findings f2 JOIN visits v2 ON v2.id = f2.visit_id JOIN work_orders w2 ON w2.id = v2.work_order_id
-        WHERE f2.cause_code = a.cause_code AND coalesce(f2.unit_id, w2.unit_id) = u.id
-      ) AS has_finding,
+        WHERE f2.cause_code = a.cause_code AND f2.origin = 'factory_defect' AND coalesce(f2.unit_id, w2.unit_id) = u.id
+      ) AS affected,
+      EXISTS (
+        SELECT 1 FROM findings f3 JOIN visits v3 ON v3.id = f3.visit_id JOIN work_orders w3 ON w3.id = v3.work_order_id
+        WHERE f3.cause_code = a.cause_code AND coalesce(f3.unit_id, w3.unit_id) = u.id
+          AND coalesce(v3.closed_at, f3.created_at) >= a.raised_at
+      ) AS found_since,
       (SELECT CASE WHEN bool_or(wi.state <> 'closed') THEN 'open' ELSE 'closed' END
          FROM work_orders wi WHERE wi.unit_id = u.id AND wi.purpose = a.purpose AND wi.state <> 'cancelled'
-         HAVING count(*) > 0) AS inspection,
-      EXISTS (
-        SELECT 1 FROM visits v3 JOIN work_orders w3 ON w3.id = v3.work_order_id
-        WHERE w3.unit_id = u.id AND v3.closed_at > a.raised_at
-      ) AS visited_since
+         HAVING count(*) > 0) AS inspection
     FROM alerts a
     JOIN units u ON u.make = a.make AND u.model = a.model AND u.archived_at IS NULL
     JOIN branches b ON b.id = u.branch_id
@@ -649,13 +668,28 @@ export async function loadModelAlerts(db: Tx, filter?: { make: string; model: st
     ORDER BY b.name, s.name, u.tag
   `,
   );
+  const purposes = alertRows.map((a) => modelAlertPurpose(a.make, a.model, a.cause_code));
+  const inspectionRows = await rows<AlertInspectionRow>(
+    db,
+    sql`
+    SELECT w.purpose, w.id AS work_order_id, w.number, w.state, w.latest_at, w.unit_id, u.tag AS unit_tag,
+      s.name AS site_name, w.branch_id, b.name AS branch_name
+    FROM work_orders w
+    JOIN units u ON u.id = w.unit_id
+    JOIN sites s ON s.id = w.site_id
+    JOIN branches b ON b.id = w.branch_id
+    WHERE w.purpose IN (${sql.join(purposes.map((p) => sql`${p}`), sql`, `)})
+    ORDER BY w.latest_at NULLS LAST, w.number
+  `,
+  );
   return alertRows.map((a) => {
+    const purpose = modelAlertPurpose(a.make, a.model, a.cause_code);
     const units = unitRows.filter((u) => u.make === a.make && u.model === a.model && u.cause_code === a.cause_code);
-    return { alert: a, units };
+    return { alert: a, units, inspections: inspectionRows.filter((i) => i.purpose === purpose) };
   });
 }
 
-const isChecked = (u: AlertUnitRow) => u.has_finding || u.inspection !== null || u.visited_since;
+const isChecked = (u: AlertUnitRow) => u.affected || u.found_since || u.inspection !== null;
 
 const toAlertUnit = (u: AlertUnitRow): ModelAlertUnit => ({
   unitId: u.unit_id,
@@ -672,8 +706,9 @@ const toAlertUnit = (u: AlertUnitRow): ModelAlertUnit => ({
 /** Alerts for the owner (every unit) or a manager (the unchecked units of the own branch). */
 export async function modelAlerts(db: Db, user: SessionUser): Promise<ModelAlert[]> {
   const loaded = await loadModelAlerts(db);
-  return loaded.map(({ alert: a, units }) => {
+  return loaded.map(({ alert: a, units, inspections }) => {
     const visible = user.role === 'owner' ? units : units.filter((u) => u.branch_id === user.branchId);
+    const ownInspections = user.role === 'owner' ? inspections : inspections.filter((i) => i.branch_id === user.branchId);
     return {
       key: `${a.make}|${a.model}|${a.cause_code}`,
       make: a.make,
@@ -688,6 +723,17 @@ export async function modelAlerts(db: Db, user: SessionUser): Promise<ModelAlert
       unitsOfModel: units.length,
       checkedUnits: units.filter(isChecked).length,
       inspectionsOpen: units.filter((u) => u.inspection === 'open').length,
+      raisedAt: iso(a.raised_at),
+      inspections: ownInspections.map((i) => ({
+        workOrderId: i.work_order_id,
+        number: i.number,
+        state: i.state,
+        dueAt: i.latest_at === null ? null : iso(i.latest_at),
+        unitId: i.unit_id,
+        unitTag: i.unit_tag,
+        siteName: i.site_name,
+        branchName: i.branch_name,
+      })),
       unchecked: visible.filter((u) => !isChecked(u)).map(toAlertUnit),
     };
   });
@@ -698,7 +744,7 @@ export async function modelAlerts(db: Db, user: SessionUser): Promise<ModelAlert
  * alert, each in the unit's own branch and site, so it lands in that branch's Roster queue. Units checked in
  * the meantime are skipped; the same call twice creates nothing the second time.
  */
-export async function createInspections(db: Db, user: SessionUser, body: CreateInspections): Promise<CreateInspectionsResult> {
+export async function createInspections(db: Db, clock: Clock, user: SessionUser, body: CreateInspections): Promise<CreateInspectionsResult> {
   const purpose = modelAlertPurpose(body.make, body.model, body.causeCode);
   return db.transaction(async (tx) => {
     // One creator at a time per alert, so two clicks cannot double the work orders.
@@ -719,6 +765,15 @@ export async function createInspections(db: Db, user: SessionUser, body: CreateI
       chosen = unchecked.filter((u) => want.has(u.unit_id));
     }
     if (chosen.length === 0) return { created: 0, workOrders: [], branches: [] };
+    // Each inspection is due by the end of the day its branch's setting gives (default 30 days), in the branch's zone.
+    const branchRows = await tx
+      .select({ id: branches.id, timeZone: branches.timeZone, dueDays: branches.inspectionDueDays })
+      .from(branches)
+      .where(inArray(branches.id, [...new Set(chosen.map((u) => u.branch_id))]));
+    const now = clock.now();
+    const dueAt = new Map(
+      branchRows.map((b) => [b.id, new Date(zonedInstant(addDays(zonedDate(now, b.timeZone), b.dueDays), '23:59', b.timeZone))]),
+    );
     const complaint = `Inspect for ${causeCodeLabels[body.causeCode].toLowerCase()}: a factory defect found on ${body.make} ${body.model} at ${found.alert.sites} sites. Check this unit and record a finding.`;
     const created = await tx
       .insert(workOrders)
@@ -732,6 +787,7 @@ export async function createInspections(db: Db, user: SessionUser, body: CreateI
           priority: 'normal' as const,
           complaint,
           purpose,
+          latestAt: dueAt.get(u.branch_id) ?? null,
           estimatedMinutes: 60,
           createdById: user.id,
         })),

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { and, eq } from 'drizzle-orm';
+import { addDays, zonedDate, zonedInstant } from '@coilpath/calc';
 import type { CauseCode, CauseOrigin, FixQualityReport, ModelAlert, VisitOutcome, WorkOrderKind } from '@coilpath/contract';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeUser, TEST_PASSWORD } from '../../testing/fixtures';
@@ -352,15 +353,16 @@ describe('factory-defect review and warranty claims', () => {
 
 describe('model alerts', () => {
   /** More TM-10 units, each with a different reason to be (or not be) checked. */
-  let more: Record<'u4' | 'u5' | 'u6' | 'u7' | 'u8' | 'u9', string>;
+  let more: Record<'u4' | 'u5' | 'u6' | 'u7' | 'u8' | 'u9' | 'u12', string>;
   beforeAll(async () => {
     const db = t.ctx.db;
     const tm = { unit: { make: 'Testmake', model: 'TM-10' } };
     const u4 = await makeSiteWithUnit(db, f.a.id, tm); // never visited: unchecked
-    const u5 = await makeSiteWithUnit(db, f.b.id, tm); // wiring fault found (installation origin): checked
+    const u5 = await makeSiteWithUnit(db, f.b.id, tm); // wiring fault found 2025-10-01, before the alert: unchecked
     const u6 = await makeSiteWithUnit(db, f.a.id, tm); // inspection work order with the alert's purpose: checked
-    const u7 = await makeSiteWithUnit(db, f.b.id, tm); // closed visit 04-10, after the alert was raised: checked
+    const u7 = await makeSiteWithUnit(db, f.b.id, tm); // closed visit 04-10 after the alert, for other work: unchecked
     const u8 = await makeSiteWithUnit(db, f.b.id, tm); // closed visit 03-22, before it was raised (03-26 12:00): unchecked
+    const u12 = await makeSiteWithUnit(db, f.a.id, tm); // wiring fault (wear) found 04-12, after the alert: checked
     const u9 = await makeSiteWithUnit(db, f.a.id, tm); // archived: not listed
     await db.update(units).set({ archivedAt: new Date('2026-01-01T00:00:00Z') }).where(eq(units.id, u9.unit.id));
     const at = (u: typeof u4) => ({ siteId: u.site.id, unitId: u.unit.id });
@@ -371,7 +373,9 @@ describe('model alerts', () => {
     await visit({ branchId: f.b.id, workOrderId: w7.id, techId: fx.tb1.id, closedAt: '2026-04-10T12:00:00Z', outcome: 'resolved' });
     const w8 = await workOrder({ branchId: f.b.id, ...at(u8), kind: 'planned_maintenance', openedAt: '2026-03-22T08:00:00Z' });
     await visit({ branchId: f.b.id, workOrderId: w8.id, techId: fx.tb1.id, closedAt: '2026-03-22T12:00:00Z', outcome: 'resolved' });
-    more = { u4: u4.unit.id, u5: u5.unit.id, u6: u6.unit.id, u7: u7.unit.id, u8: u8.unit.id, u9: u9.unit.id };
+    const w12 = await workOrder({ branchId: f.a.id, ...at(u12), kind: 'service_call', openedAt: '2026-04-12T08:00:00Z' });
+    await visit({ branchId: f.a.id, workOrderId: w12.id, techId: fx.ta1.id, closedAt: '2026-04-12T12:00:00Z', outcome: 'resolved', finding: { unitId: u12.unit.id, causeCode: 'wiring_fault', origin: 'wear' } });
+    more = { u4: u4.unit.id, u5: u5.unit.id, u6: u6.unit.id, u7: u7.unit.id, u8: u8.unit.id, u9: u9.unit.id, u12: u12.unit.id };
   });
 
   const alertsOf = async (agent: Awaited<ReturnType<typeof owner>>) => {
@@ -392,24 +396,29 @@ describe('model alerts', () => {
     const a = alerts[0]!;
     // Wiring fault, factory defect, on TM-10 at S1 (U1, branch A) and S3 (U3, branch B).
     expect([a.make, a.model, a.causeCode, a.sites, a.affectedUnits]).toEqual(['Testmake', 'TM-10', 'wiring_fault', 2, 2]);
-    // Units of the model (not archived): U1 U3 U4 U5 U6 U7 U8 = 7; checked U1 U3 (defect found), U5 (finding),
-    // U6 (inspection), U7 (visit after the alert) = 5; unchecked U4 and U8.
-    expect(a.unitsOfModel).toBe(7);
-    expect(a.checkedUnits).toBe(5);
-    expect(a.unchecked.map((u) => u.unitId).sort()).toEqual([more.u4, more.u8].sort());
+    // Units of the model (not archived): U1 U3 U4 U5 U6 U7 U8 U12 = 8. Checked for the wiring fault: U1 U3 (the
+    // defect was found on them), U6 (inspection from the alert), U12 (wiring fault found after the alert) = 4.
+    // Unchecked: U4 (never visited), U5 (its wiring finding predates the alert), U7 (visited after the alert,
+    // but for other work), U8 (visited before the alert).
+    expect(a.unitsOfModel).toBe(8);
+    expect(a.checkedUnits).toBe(4);
+    expect(a.unchecked.map((u) => u.unitId).sort()).toEqual([more.u4, more.u5, more.u7, more.u8].sort());
+    expect(a.raisedAt).toBe('2026-03-26T12:00:00.000Z');
+    expect(a.inspections.map((i) => [i.unitId, i.state])).toEqual([[more.u6, 'unplaced']]);
   });
 
   it('shows a manager only the own branch’s unchecked units and refuses creating inspections (403)', async () => {
     const mB = await signedInAgent(t.app, f.inB.manager.email, TEST_PASSWORD);
     const [a] = await alertsOf(mB);
-    expect(a!.unchecked.map((u) => u.unitId)).toEqual([more.u8]);
+    expect(a!.unchecked.map((u) => u.unitId).sort()).toEqual([more.u5, more.u7, more.u8].sort());
+    expect(a!.inspections).toEqual([]); // U6's inspection is in branch A
     const res = await mB.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
     expect(res.status).toBe(403);
   });
 
   it('refuses an inspection for a unit that is already checked or for a cause without an alert', async () => {
     const o = await owner();
-    const checked = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault', unitIds: [more.u7] });
+    const checked = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault', unitIds: [more.u12] });
     expect(checked.status).toBe(422);
     const none = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Acme', model: 'AX-1', causeCode: 'component_failure' });
     expect(none.status).toBe(404);
@@ -421,22 +430,30 @@ describe('model alerts', () => {
     const o = await owner();
     const res = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
     expect(res.status).toBe(201);
-    expect(res.body.created).toBe(2);
+    expect(res.body.created).toBe(4);
     const created = await t.ctx.db
       .select()
       .from(workOrders)
       .where(and(eq(workOrders.purpose, 'model-alert:Testmake|TM-10|wiring_fault'), eq(workOrders.createdById, f.owner.id)));
-    expect(created.map((w) => w.unitId).sort()).toEqual([more.u4, more.u8].sort());
+    expect(created.map((w) => w.unitId).sort()).toEqual([more.u4, more.u5, more.u7, more.u8].sort());
     for (const w of created) {
       expect(w.kind).toBe('planned_maintenance');
       expect(w.state).toBe('unplaced');
+      // Due 30 days (the branch's default) after the test clock's day, at the end of that day in the branch's zone.
+      const [b] = await t.ctx.db.select().from(branches).where(eq(branches.id, w.branchId));
+      const day = zonedDate(t.ctx.clock.now(), b!.timeZone);
+      expect(w.latestAt?.toISOString()).toBe(new Date(zonedInstant(addDays(day, 30), '23:59', b!.timeZone)).toISOString());
       const [u] = await t.ctx.db.select().from(units).where(eq(units.id, w.unitId!));
       expect(w.branchId).toBe(u!.branchId);
       expect(w.siteId).toBe(u!.siteId);
     }
     const [a] = await alertsOf(o);
     expect(a!.unchecked).toEqual([]);
-    expect(a!.inspectionsOpen).toBe(3);
+    expect(a!.inspectionsOpen).toBe(5);
+    expect(a!.inspections).toHaveLength(5);
+    const listed = await o.get('/api/work-orders').query({ branchId: f.a.id, state: 'unplaced' });
+    const inspection = (listed.body.workOrders as { unitId: string; modelAlert: unknown }[]).find((w) => w.unitId === more.u4);
+    expect(inspection?.modelAlert).toEqual({ title: 'Wiring fault on Testmake TM-10', make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
     const again = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
     expect(again.body.created).toBe(0);
   });

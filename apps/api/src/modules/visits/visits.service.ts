@@ -28,6 +28,7 @@ import {
   workOrders,
 } from '../../db/schema';
 import { badRequest, conflict } from '../../lib/errors';
+import { modelAlertRef } from '@coilpath/contract';
 import { assertVisitReadable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
 import { attachmentDto, findingDto, readingDto, refrigerantEventDto } from './dto';
 import { computeReading, toStoredUnits } from './reading-calc';
@@ -122,6 +123,8 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
       priority: wo.priority,
       complaint: wo.complaint,
       requiredCertification: wo.requiredCertification,
+      latestAt: wo.latestAt?.toISOString() ?? null,
+      modelAlert: modelAlertRef(wo.purpose),
     },
     site: {
       id: site.id,

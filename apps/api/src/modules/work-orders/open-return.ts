@@ -2,7 +2,7 @@
  * One open return visit per unit. A close-out that needs a return, a leak case's repair visit and a return
  * visit made by hand all come back to the same unit: while one return visit is open (not closed, not
  * cancelled) the next need joins it instead of sending a second truck. The database keeps the rule (the
- * partial unique index `OPEN_RETURN_INDEX`, migration 0008); this module finds the open return, adds a need
+ * partial unique index `OPEN_RETURN_INDEX`, migration 0009); this module finds the open return, adds a need
  * to it, and turns a collision into `409 open_return_exists` with the open work order in `details`.
  */
 import { and, desc, eq, notInArray } from 'drizzle-orm';

@@ -1,7 +1,7 @@
 import { and, desc, eq, gte, inArray, lt, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import type { SessionUser, WorkOrder, WorkOrderState } from '@coilpath/contract';
-import { workOrderCreateSchema, workOrderLabel, workOrderListQuerySchema, workOrderUpdateSchema } from '@coilpath/contract';
+import { modelAlertRef, workOrderCreateSchema, workOrderLabel, workOrderListQuerySchema, workOrderUpdateSchema } from '@coilpath/contract';
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
 import { bookings, leakCases, sites, units, workOrders } from '../../db/schema';
@@ -71,6 +71,7 @@ function toWorkOrder(r: Row): WorkOrder {
     originNumber: r.originNumber,
     leakCaseId: w.leakCaseId,
     leakRepairDueDate: r.leakRepairDueDate,
+    modelAlert: modelAlertRef(w.purpose),
     booking: r.booking && r.booking.id
       ? { id: r.booking.id, techId: r.booking.techId, startAt: r.booking.startAt.toISOString(), endAt: r.booking.endAt.toISOString(), version: r.booking.version }
       : null,

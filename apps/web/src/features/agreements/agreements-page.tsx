@@ -12,6 +12,7 @@ import { useNotify } from '@/components/ui/notices';
 import { TableTools, downloadCsv, useTableFilter } from '@/components/ui/table-tools';
 import { AgreementForm } from './agreement-form';
 import { applyPlan, previewPlan, useAgreement, useAgreements, useApplyPlan, usePatchAgreement, usePmCompletion, useRefreshAgreements } from './api';
+import { appNow } from '@/lib/now';
 
 const VisitCalendar = lazy(() => import('./visit-calendar'));
 
@@ -38,7 +39,7 @@ export default function AgreementsPage() {
         title="Agreements"
         subtitle={
           <>
-            Maintenance agreements, their visit plans and PM completion — {branch ? branch.name : 'all branches'}, {formatInZone(new Date(), timeZone, 'EEEE d MMMM yyyy')} ({timeZone}).
+            Maintenance agreements, their visit plans and PM completion — {branch ? branch.name : 'all branches'}, {formatInZone(appNow(), timeZone, 'EEEE d MMMM yyyy')} ({timeZone}).
           </>
         }
         actions={
@@ -229,6 +230,21 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
           <p className="text-sm" role="status">
             Preview: {summary(preview.counts)}. Nothing is written until you apply. Visits avoid weekends and branch holidays and are spread so one week is not overloaded.
           </p>
+          {preview.dropped.length > 0 && (
+            <div role="alert" className="mt-2 rounded-md border border-alarm/30 bg-alarm-tint p-3 text-sm">
+              <p className="font-semibold">
+                {preview.dropped.length} contracted visit{preview.dropped.length === 1 ? '' : 's'} cannot be placed in the term and will not be planned:
+              </p>
+              <ul className="mt-1 list-disc pl-5">
+                {preview.dropped.map((d) => (
+                  <li key={d.ruleDate}>
+                    <span className="tabular">{d.ruleDate}</span> — {d.reason}
+                  </li>
+                ))}
+              </ul>
+              <p className="mt-1">Change the recurrence or extend the term to keep every contracted visit.</p>
+            </div>
+          )}
           <div className="mt-2 max-h-80 overflow-auto rounded border border-slate-line">
             <table className="w-full text-sm">
               <caption className="sr-only">Visit plan preview</caption>

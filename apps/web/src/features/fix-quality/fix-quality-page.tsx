@@ -13,6 +13,7 @@ import { FactoryDefectReviewSection } from './factory-defects';
 import { csvUrl, pdfUrl, reportQuery, type PeriodQuery } from './fix-quality-api';
 import { GroupSection } from './group-table';
 import { ModelAlertsSection } from './model-alerts';
+import { appNow } from '@/lib/now';
 
 const isoDay = (d: Date) => d.toISOString().slice(0, 10);
 
@@ -126,7 +127,7 @@ export default function FixQualityPage() {
   const user = useUser();
   const { branchId, branch, timeZone } = useBranch();
   const [params, setParams] = useSearchParams();
-  const p = useMemo(() => presets(new Date()), []);
+  const p = useMemo(() => presets(appNow()), []);
   const from = params.get('from') ?? p.last12.from;
   const to = params.get('to') ?? p.last12.to;
   const query: PeriodQuery = { from, to, branchId };

@@ -1,7 +1,7 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, ClipboardPlus } from 'lucide-react';
-import { causeCodeLabels, type ModelAlert } from '@coilpath/contract';
+import { modelAlertTitle, workOrderLabel, workOrderStateLabels, type ModelAlert } from '@coilpath/contract';
 import { Badge, Card } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
@@ -33,12 +33,12 @@ function AlertCard({ alert, canCreate, timeZone }: { alert: ModelAlert; canCreat
         <div>
           <h3 id={`alert-${alert.key}`} className="flex items-center gap-2 text-base font-semibold">
             <AlertTriangle className="size-5 text-alarm" aria-hidden="true" />
-            {causeCodeLabels[alert.causeCode]} on {alert.make} {alert.model}
+            {modelAlertTitle(alert)}
           </h3>
           <p className="mt-1 text-sm text-slate">
             Factory defect found on {alert.affectedUnits} unit{alert.affectedUnits === 1 ? '' : 's'} at {alert.sites} sites (
             {alert.findings} finding{alert.findings === 1 ? '' : 's'}, first {formatInZone(alert.firstFoundAt, timeZone, 'd MMM yyyy')}, latest{' '}
-            {formatInZone(alert.lastFoundAt, timeZone, 'd MMM yyyy')}). {alert.checkedUnits} of {alert.unitsOfModel} units of this model are checked
+            {formatInZone(alert.lastFoundAt, timeZone, 'd MMM yyyy')}; alert raised {formatInZone(alert.raisedAt, timeZone, 'd MMM yyyy')}). {alert.checkedUnits} of {alert.unitsOfModel} units of this model are checked
             {alert.inspectionsOpen > 0 ? `, ${alert.inspectionsOpen} inspection${alert.inspectionsOpen === 1 ? '' : 's'} open` : ''}.
           </p>
         </div>
@@ -85,8 +85,50 @@ function AlertCard({ alert, canCreate, timeZone }: { alert: ModelAlert; canCreat
           </table>
         </div>
       )}
+      {alert.inspections.length > 0 && <InspectionTable alert={alert} timeZone={timeZone} />}
       {!canCreate && n > 0 && <p className="mt-2 text-xs text-slate">The owner creates inspections for a model alert, because it spans every branch.</p>}
     </article>
+  );
+}
+
+/** The inspections created from the alert, each with its state and due date. */
+function InspectionTable({ alert, timeZone }: { alert: ModelAlert; timeZone: string }) {
+  return (
+    <div className="mt-3 overflow-x-auto">
+      <table className="w-full text-sm">
+        <caption className="mb-1 text-left text-xs font-semibold uppercase tracking-wide text-slate">
+          Inspections for this alert ({alert.inspections.length})
+        </caption>
+        <thead className="text-left text-xs uppercase tracking-wide text-slate">
+          <tr>
+            <th scope="col" className="px-2 py-1">Work order</th>
+            <th scope="col" className="px-2 py-1">Unit</th>
+            <th scope="col" className="px-2 py-1">Site</th>
+            <th scope="col" className="px-2 py-1">Branch</th>
+            <th scope="col" className="px-2 py-1">State</th>
+            <th scope="col" className="px-2 py-1">Due</th>
+          </tr>
+        </thead>
+        <tbody>
+          {alert.inspections.map((i) => (
+            <tr key={i.workOrderId} className="border-t border-slate-line/70">
+              <td className="tabular whitespace-nowrap px-2 py-1.5">{workOrderLabel(i.number)}</td>
+              <td className="whitespace-nowrap px-2 py-1.5">
+                <Link className="font-medium text-coolant hover:underline" to={`/units/${i.unitId}`}>
+                  {i.unitTag}
+                </Link>
+              </td>
+              <td className="px-2 py-1.5">{i.siteName}</td>
+              <td className="px-2 py-1.5">{i.branchName}</td>
+              <td className="px-2 py-1.5">
+                <Badge tone={i.state === 'closed' ? 'ok' : i.state === 'cancelled' ? 'neutral' : 'watch'}>{workOrderStateLabels[i.state]}</Badge>
+              </td>
+              <td className="tabular whitespace-nowrap px-2 py-1.5">{i.dueAt ? formatInZone(i.dueAt, timeZone, 'd MMM yyyy') : '—'}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
   );
 }
 
@@ -95,9 +137,10 @@ export function ModelAlertsSection({ isOwner, query, timeZone }: { isOwner: bool
   return (
     <Card title="Model alerts" actions={<CsvLink href={csvUrl(query, 'modelAlerts')} label="CSV" />}>
       <p className="mb-3 max-w-prose text-sm text-slate">
-        When the same factory-defect cause turns up on one make and model at two or more sites, every other unit of that model is at risk. A
-        unit counts as checked once it has a finding with that cause, an inspection for this alert, or a closed visit after the alert was
-        raised (when the second site’s defect was recorded). Alerts look at all history and every branch.
+        When the same factory-defect cause turns up on one make and model at two or more sites, every other unit of that model is at risk. An
+        alert is raised when the second site’s defect is recorded. From then on a unit counts as checked only by what is done on it for that
+        cause: a finding with that cause, or an inspection created from the alert (a visit for other work does not count). Units the defect
+        was found on count as checked. Alerts look at all history and every branch.
       </p>
       {q.isPending ? (
         <LoadingState label="Looking for model alerts…" />

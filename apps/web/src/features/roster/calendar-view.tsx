@@ -14,6 +14,7 @@ import { weekdays } from '@coilpath/contract';
 import type { RosterView } from './board';
 import { bookingSummary, colourOf, EventBody } from './parts';
 import { movedTimes, toWallClock } from './zone';
+import { appNowMs } from '@/lib/now';
 
 type CalendarViewName = 'timeGridDay' | 'timeGridWeek' | 'dayGridMonth';
 const fcView: Record<Exclude<RosterView, 'board'>, CalendarViewName> = { day: 'timeGridDay', week: 'timeGridWeek', month: 'dayGridMonth' };
@@ -112,7 +113,7 @@ export default function CalendarView({ view, date, timeZone: tz, today, bookings
           initialView={type}
           initialDate={date}
           timeZone="UTC"
-          now={() => toWallClock(Date.now(), tz)}
+          now={() => toWallClock(appNowMs(), tz)}
           headerToolbar={false}
           // A month cell is named by its date link alone, which hides the bookings inside it from its
           // name; without the label the cell is named by its content (date and bookings).

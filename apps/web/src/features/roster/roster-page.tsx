@@ -21,6 +21,7 @@ import { bookingSummary, certLabel, TechSwatch } from './parts';
 import { UnplacedQueue } from './unplaced-queue';
 import { WorkOrderDialog } from './work-order-dialog';
 import { fromWallClock, instantToLocal, localToInstant, toWallClock, wallDate } from './zone';
+import { appNowMs } from '@/lib/now';
 
 /** FullCalendar loads only when a time grid or the month is shown. */
 const CalendarView = lazy(() => import('./calendar-view'));
@@ -178,7 +179,7 @@ export default function RosterPage() {
     (wo: WorkOrder) => {
       setPlacing(null);
       // Late in the branch's day, suggest tomorrow: today's working hours are mostly gone.
-      const lateToday = Number(toWallClock(Date.now(), tz).toISOString().slice(11, 13)) >= 14;
+      const lateToday = Number(toWallClock(appNowMs(), tz).toISOString().slice(11, 13)) >= 14;
       const soonest = lateToday ? addDays(today, 1) : today;
       const start = days.length <= 7 && !days.includes(today) && days[0]! > today ? days[0]! : soonest;
       setBookFor({ wo, initial: { techId: focusTech?.id, date: start, time: '08:00' } });

@@ -9,6 +9,7 @@ import { Badge } from '@/components/ui/page';
 import { formatInZone } from '@/lib/format';
 import { DRAG_WORK_ORDER } from './board';
 import { leakDeadline } from './parts';
+import { appNowMs } from '@/lib/now';
 
 /** Where a job's handle drags to: FullCalendar's time grids, or the technician board (native drag and drop). */
 export type QueueMode = 'calendar' | 'board';
@@ -82,6 +83,12 @@ function QueueItem({
           <Badge tone={tone[w.priority]}>{priorityLabels[w.priority]}</Badge>
         </div>
         <div className="truncate">{w.siteName}</div>
+        {w.modelAlert && (
+          <div className="text-xs font-medium text-alarm">
+            <AlertTriangle className="mr-0.5 inline size-3" aria-hidden="true" />
+            Model-alert inspection: {w.modelAlert.title}
+          </div>
+        )}
         {w.unitTag && (
           <div className="truncate text-xs text-slate">
             {w.unitTag} · {w.unitMake} {w.unitModel}
@@ -145,7 +152,7 @@ export function UnplacedQueue({
   const [kind, setKind] = useState('');
   const [priority, setPriority] = useState('');
   const [skill, setSkill] = useState('');
-  const now = Date.now();
+  const now = appNowMs();
 
   // On the time grids the handles drag through FullCalendar, loaded with the calendar (not for the board).
   useEffect(() => {

@@ -284,6 +284,7 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       repeatAlarmCount: 2,
       repeatAlarmDays: 30,
       callbackWindowDays: 30,
+      inspectionDueDays: 30,
     },
   });
   const e = form.formState.errors;
@@ -351,6 +352,7 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
           hint={siTolerance}
         />
         <TextField label="Callback window (days)" inputMode="numeric" {...form.register('callbackWindowDays', num)} error={e.callbackWindowDays?.message} />
+        <TextField label="Model-alert inspections due within (days)" inputMode="numeric" {...form.register('inspectionDueDays', num)} error={e.inspectionDueDays?.message} />
         <TextField label="Repeat alarm: same code N times" inputMode="numeric" {...form.register('repeatAlarmCount', num)} error={e.repeatAlarmCount?.message} />
         <TextField label="…within M days" inputMode="numeric" {...form.register('repeatAlarmDays', num)} error={e.repeatAlarmDays?.message} />
       </fieldset>

@@ -11,7 +11,7 @@ import {
   type UserRow,
 } from '@coilpath/contract';
 import { api, errorMessage } from '@/lib/api-client';
-import { formatInZone, formatMoney } from '@/lib/format';
+import { formatInZone, formatMoney, todayInZone } from '@/lib/format';
 import { useListParams } from '@/lib/use-list-params';
 import { useBranch } from '@/app/branch';
 import { useUser } from '@/app/session';
@@ -373,8 +373,10 @@ export default function TeamPage() {
                   </dd>
                   <dt className="text-slate">Callback window</dt>
                   <dd className="tabular">{b.callbackWindowDays} days</dd>
+                  <dt className="text-slate">Model-alert inspections due</dt>
+                  <dd className="tabular">within {b.inspectionDueDays} days</dd>
                   <dt className="text-slate">Holidays</dt>
-                  <dd>{b.holidays.length ? `${b.holidays.length} (next ${b.holidays.find((d) => d >= new Date().toISOString().slice(0, 10)) ?? '—'})` : 'None'}</dd>
+                  <dd>{b.holidays.length ? `${b.holidays.length} (next ${b.holidays.find((d) => d >= todayInZone(b.timeZone)) ?? '—'})` : 'None'}</dd>
                 </dl>
               </Card>
             ))}

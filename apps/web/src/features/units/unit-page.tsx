@@ -26,6 +26,7 @@ import { formatInZone, formatNumber, viewerZoneDiffers, zoneAbbreviation } from 
 import { CircuitTrend } from './readings-chart';
 import { ReadingsTable } from './readings-table';
 import { UnitTable } from './unit-table';
+import { appNow } from '@/lib/now';
 
 const unitFileQuery = (id: string) =>
   queryOptions({ queryKey: ['units', 'file', id], queryFn: () => api.get<UnitFile>(`/api/units/${id}/file`) });
@@ -161,7 +162,7 @@ function UnitFileView({ id }: { id: string }) {
   const f = q.data;
   const tz = f.branch.timeZone;
   const at = (s: string | null, pattern?: string) => (s ? formatInZone(s, tz, pattern) : '—');
-  const zoneNote = viewerZoneDiffers(tz) ? ` Times in ${f.branch.name}’s time zone (${zoneAbbreviation(new Date(), tz)}).` : '';
+  const zoneNote = viewerZoneDiffers(tz) ? ` Times in ${f.branch.name}’s time zone (${zoneAbbreviation(appNow(), tz)}).` : '';
   const units = readingUnitsBySystem[f.branch.unitSystem];
   const circuitsWithReadings = f.circuits.filter((c) => f.readings.some((r) => r.circuitId === c.id));
   const alarms = allAlarms ? f.alarms : f.alarms.slice(0, 15);

@@ -20,6 +20,7 @@ import {
   type ReadingField,
 } from './reading-units';
 import { useSaveReadings } from './visit-api';
+import { appNow } from '@/lib/now';
 
 function NumberInput({
   id,
@@ -158,7 +159,7 @@ export function ReadingsSection({
     const body = form.body;
     save.mutate(body, {
       onSuccess: () => {
-        update((d) => ({ ...d, readings: {}, readingsUnits: undefined, readingsDirty: false, savedAt: new Date().toISOString() }));
+        update((d) => ({ ...d, readings: {}, readingsUnits: undefined, readingsDirty: false, savedAt: appNow().toISOString() }));
         notify(`Readings saved for ${body.readings.length} circuit${body.readings.length === 1 ? '' : 's'}.`);
       },
       onError: (e) => notify(`Readings not saved: ${errorMessage(e)}`, 'alarm'),

@@ -2,7 +2,7 @@ import { useEffect } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
 import { MapPin, Navigation, Phone, Wrench } from 'lucide-react';
-import { workOrderKindLabels, type VisitDetail } from '@coilpath/contract';
+import { causeCodeLabels, workOrderKindLabels, type VisitDetail } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
@@ -109,6 +109,13 @@ function VisitScreen({ id }: { id: string }) {
       {restored && hasUnsaved(draft) && (
         <p role="status" className="mb-4 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm">
           Entries from your last session on this phone were restored. They are not saved yet: save them below.
+        </p>
+      )}
+      {v.workOrder.modelAlert && (
+        <p className="mb-4 rounded-md border border-alarm/30 bg-alarm-tint p-3 text-sm">
+          <strong>Model-alert inspection: {v.workOrder.modelAlert.title}.</strong> A factory defect with this cause was found on this model at
+          other sites. Check this unit for it and record a finding with the cause “{causeCodeLabels[v.workOrder.modelAlert.causeCode]}” if you find it.
+          {v.workOrder.latestAt ? ` Due by ${formatInZone(v.workOrder.latestAt, tz, 'EEE d MMM yyyy')}.` : ''}
         </p>
       )}
       {!v.canWrite && v.status !== 'closed' && (

@@ -7,6 +7,7 @@ import { Button } from '@/components/ui/button';
 import { LeakCasesSection } from './leak-cases';
 import { RepeatAlarmsSection, ReturnVisitsSection } from './sections';
 import { AlarmForm, AlarmImport } from './alarm-entry';
+import { appNow } from '@/lib/now';
 
 /** The branch manager's Watchlist: leak-case deadlines, repeat-alarm units, return visits to book. */
 export default function WatchlistPage() {
@@ -19,7 +20,7 @@ export default function WatchlistPage() {
         subtitle={
           <>
             Leak-case deadlines, units that alarm again and again, and return visits to book — {branch ? branch.name : 'all branches'},{' '}
-            {formatInZone(new Date(), timeZone, 'EEEE d MMMM yyyy')} ({timeZone}).
+            {formatInZone(appNow(), timeZone, 'EEEE d MMMM yyyy')} ({timeZone}).
           </>
         }
         actions={

@@ -1,0 +1,1 @@
+ALTER TABLE "branches" ADD COLUMN "inspection_due_days" integer DEFAULT 30 NOT NULL;
