@@ -80,6 +80,7 @@ import { randomBytes } from 'node:crypto';
 import type { MailMessage } from '../../apps/api/src/mail/mailer';
 import { requestPasswordReset } from '../../apps/api/src/modules/auth/password-reset.service';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
+import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';
 import { agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, workOrders, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
 import { makeSiteWithUnit, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
@@ -1001,9 +1002,12 @@ export const routeTable: RouteRow[] = [
     expect: roles(managers, 200, { scoped: true }),
     body: queueReturnVisitSchema,
     request: async (f, side) => {
-      // The origin visit closed as needing a return, as the technician's close does.
+      // The origin visit closed as needing a return, as the technician's close does; its return visit is the
+      // unit's one open return (made once per side: a unit has at most one).
       await f.db.update(visits).set({ closedAt: f.ctx.clock.now(), outcome: 'needs_return', returnNeeds: ['parts'] }).where(eq(visits.id, side.booked.visit.id));
-      const wo = await makeWorkOrder(f.db, { branchId: side.branch.id, siteId: side.site.id, unitId: side.unit.id, kind: 'return_visit', originWorkOrderId: side.booked.workOrder.id });
+      const wo =
+        (await findOpenReturn(f.db, side.unit.id)) ??
+        (await makeWorkOrder(f.db, { branchId: side.branch.id, siteId: side.site.id, unitId: side.unit.id, kind: 'return_visit', originWorkOrderId: side.booked.workOrder.id }));
       return { path: `/api/watchlist/return-visits/${wo.id}`, body: { priority: 'high', latestDate: daysFrom(f.ctx.clock.now(), 7) } };
     },
   },

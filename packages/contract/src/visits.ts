@@ -396,7 +396,8 @@ export interface SummaryMailResult {
 
 export interface CloseVisitResult {
   visit: VisitDetail;
-  returnWorkOrder: { id: string; number: number | null; state: WorkOrderState } | null;
+  /** The return visit: a new one, or (`joined`) the unit's open return visit the need was added to. */
+  returnWorkOrder: { id: string; number: number | null; state: WorkOrderState; joined: boolean } | null;
   summary: SummaryMailResult;
 }
 

@@ -161,7 +161,8 @@ export interface LeakCaseRow {
   planKind: 'retrofit' | 'retire' | null;
   planDueDate: string | null;
   notes: string | null;
-  repairWorkOrder: { id: string; number: number | null; state: z.infer<typeof workOrderStateSchema> } | null;
+  /** The repair visit's work order and its latest visit (null before it is booked). */
+  repairWorkOrder: { id: string; number: number | null; state: z.infer<typeof workOrderStateSchema>; visitId: string | null } | null;
   tests: VerificationTestRow[];
   deadlines: LeakDeadline[];
   /** The nearest deadline not yet met (null when all are met). */
@@ -195,6 +196,13 @@ export const bookRepairSchema = z.strictObject({
   notes: z.string().trim().max(limits.longText).optional(),
 });
 export type BookRepair = z.input<typeof bookRepairSchema>;
+
+/** The answer to booking a leak case's repair: the work order, new or (`joined`) the unit's open return visit it joined. */
+export interface BookRepairResult {
+  leakCase: LeakCaseRow;
+  workOrderId: string;
+  joined: boolean;
+}
 
 /* ----------------------------------------------------- return visits */
 

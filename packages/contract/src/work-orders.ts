@@ -140,3 +140,17 @@ export const workOrderLabel = (n: number | null | undefined) => (n === null || n
 
 /** States a booking can be moved or unbooked in. */
 export const movableStates: readonly WorkOrderState[] = ['booked'];
+
+/**
+ * `details` of a 409 `open_return_exists`: a unit has at most one open return visit (not closed, not cancelled),
+ * and this is it. A screen offers to open it: its latest visit (`/visits/:visitId`) when it has one, else the
+ * unit's file (`/units/:unitId`), which lists the unit's work orders.
+ */
+export const openReturnDetailsSchema = z.object({
+  workOrderId: idSchema,
+  number: z.number().int().nullable(),
+  state: workOrderStateSchema,
+  unitId: idSchema.nullable(),
+  visitId: idSchema.nullable(),
+});
+export type OpenReturnDetails = z.infer<typeof openReturnDetailsSchema>;

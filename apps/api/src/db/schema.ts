@@ -219,6 +219,9 @@ export const agreementUnits = pgTable('agreement_units', {
   unitId: uuid().notNull().references(() => units.id),
 }, (t) => [primaryKey({ columns: [t.agreementId, t.unitId] }), index('agreement_units_unit_idx').on(t.unitId)]);
 
+/** The partial unique index that keeps one open return visit (not closed, not cancelled) per unit. */
+export const OPEN_RETURN_INDEX = 'work_orders_one_open_return_uq';
+
 export const workOrders = pgTable('work_orders', {
   id: id(),
   /** Human-facing number, e.g. WO-10234. */
@@ -259,6 +262,9 @@ export const workOrders = pgTable('work_orders', {
   index('work_orders_created_idx').on(t.createdAt),
   // Site-wide work (no unit) at a unit's site: the unit briefing's and unit file's "visits that touched it".
   index('work_orders_site_idx').on(t.siteId, t.createdAt),
+  // One open return visit per unit: a close-out's return and a leak case's repair share one truck roll
+  // (modules/work-orders/open-return.ts answers a collision 409 `open_return_exists`).
+  uniqueIndex(OPEN_RETURN_INDEX).on(t.unitId).where(sql`${t.kind} = 'return_visit' and ${t.state} not in ('closed', 'cancelled')`),
 ]);
 
 /**

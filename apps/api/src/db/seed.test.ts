@@ -126,6 +126,11 @@ describe('demo scenario', { timeout: 120_000 }, () => {
       expect(origin).toMatchObject({ state: 'closed', outcome: 'needs_return' });
     }
 
+    // At most one open return visit per unit (the database refuses more, migration 0010; the scenario never tries).
+    const openReturnUnits = wos.filter((w) => w.kind === 'return_visit' && w.state !== 'closed' && w.state !== 'cancelled').map((w) => w.unitId);
+    expect(openReturnUnits.length).toBeGreaterThan(0);
+    expect(new Set(openReturnUnits).size).toBe(openReturnUnits.length);
+
     // A leak case due within 7 days; consistent with its triggering addition.
     const cases = await db.select().from(s.leakCases);
     const soon = cases.filter((c) => c.status === 'open' && c.repairDueDate >= TODAY && c.repairDueDate <= addDays(TODAY, 7));

@@ -11,11 +11,12 @@ import { createMemoryStorage, type Storage } from '../storage/storage';
 
 /**
  * A fresh, migrated database for one test file: in-memory PGlite, or — when `DATABASE_URL` is set
- * (the PostgreSQL pass of `.ci/run`) — a new database on that server, dropped on close.
+ * (the PostgreSQL pass of `.ci/run`) — a new database on that server, dropped on close. `migrate: false`
+ * leaves it empty (a test of the migrations themselves).
  */
-export async function openTestDatabase(): Promise<Database> {
+export async function openTestDatabase(opts: { migrate?: boolean } = {}): Promise<Database> {
   const url = process.env.DATABASE_URL;
-  if (!url) return openDatabase();
+  if (!url) return openDatabase(opts);
   const name = `coilpath_t_${randomBytes(6).toString('hex')}`;
   const admin = new pg.Client({ connectionString: url });
   await admin.connect();
@@ -23,7 +24,7 @@ export async function openTestDatabase(): Promise<Database> {
   await admin.end();
   const u = new URL(url);
   u.pathname = `/${name}`;
-  const database = await openDatabase({ databaseUrl: u.toString() });
+  const database = await openDatabase({ databaseUrl: u.toString(), ...opts });
   const close = database.close;
   database.close = async () => {
     await close();

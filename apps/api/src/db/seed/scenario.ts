@@ -1146,6 +1146,8 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     });
 
   const unplacedOut: WoRow[] = [];
+  // A unit has at most one open return visit (the database's rule, migration 0010): these have one this week.
+  const openReturnUnits = new Set<Unit>(stops.filter((s) => s.wo.kind === 'return_visit' && s.wo.unitId).map((s) => unitById.get(s.wo.unitId!)!));
   // Unplaced work per branch: return visits waiting to be booked (origin closed needs_return 2–8 days ago),
   // a callback, new calls due this week, and one or two planned visits.
   for (const b of branches) {
@@ -1164,6 +1166,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
         outcome: 'needs_return', wantsReturn: [...needs],
       });
       if (!origin) continue;
+      openReturnUnits.add(u);
       unplacedOut.push(newWorkOrder({
         branch: b, site: u.site, unit: u, kind: 'return_visit', state: 'unplaced', createdAt: addMinutes(origin.slot.closedAt, 20), priority: 'high',
         complaint: `Return visit: ${returnText([...needs])}`, estimatedMinutes: needs.includes('second_tech') ? 180 : 120, originWorkOrderId: origin.wo.id,
@@ -1245,7 +1248,9 @@ export function buildScenario(today: string, passwordHash: string): Rows {
           const u = takeUnit(tech);
           const minutes = u.model.kind === 'chiller' ? 180 : rng.pick([60, 90, 90, 120]);
           if (cursor + minutes > h.end) break;
-          const kind = rng.weighted<WorkOrderKind>([['service_call', 80], ['callback', 8], ['return_visit', 12]]);
+          const drawn = rng.weighted<WorkOrderKind>([['service_call', 80], ['callback', 8], ['return_visit', 12]]);
+          // A second return visit for a unit that already has one open this week would be the same truck roll.
+          const kind: WorkOrderKind = drawn === 'return_visit' && openReturnUnits.has(u) ? 'service_call' : drawn;
           let created = wallTime(addDays(day, -rng.int(1, 3)), rng.int(8 * 60, 16 * 60), b.tz);
           let origin: CallResult | null = null;
           if (kind !== 'service_call') {
@@ -1260,6 +1265,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
             quiet(u, addDays(today, -21));
           }
           const realKind: WorkOrderKind = origin ? kind : 'service_call';
+          if (realKind === 'return_visit') openReturnUnits.add(u);
           bookOne(newWorkOrder({
             branch: b, site: u.site, unit: u, kind: realKind, state: 'booked', createdAt: created,
             priority: realKind === 'callback' ? 'high' : rng.weighted<Priority>([['normal', 60], ['high', 25], ['low', 15]]),

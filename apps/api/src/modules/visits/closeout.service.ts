@@ -1,10 +1,12 @@
 import { and, eq, inArray } from 'drizzle-orm';
-import type { CloseVisitResult, SessionUser, SummaryMailResult } from '@coilpath/contract';
+import type { CloseVisitResult, SessionUser, SummaryMailResult, WorkOrderState } from '@coilpath/contract';
 import { closeVisitSchema, returnNeedLabels } from '@coilpath/contract';
+import { requiredCertificationFor } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
-import { customers, leakCases, sites, visitEvents, visits, workOrders } from '../../db/schema';
+import { branches, customers, leakCases, sites, units, visitEvents, visits, workOrders } from '../../db/schema';
 import { conflict, forbidden } from '../../lib/errors';
+import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
 import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
 import { summaryPdf, summarySections, summaryText } from './summary';
@@ -14,77 +16,118 @@ type Input = z.output<typeof closeVisitSchema>;
 
 /**
  * Closes a visit with its outcome. In one transaction: the visit, a `closed` visit event, the work
- * order (closed with the outcome) and, for `needs_return`, a linked return-visit work order in the
- * unplaced queue. After the commit the service summary is mailed; a mail failure never undoes the
- * close, it is reported in the answer.
+ * order (closed with the outcome) and, for `needs_return`, the unit's return visit: a new unplaced one, or —
+ * when the unit already has an open return visit — that one, with the new needs added (one truck roll per
+ * unit). An open leak case on the unit links to the return visit as its repair visit, whose latest booking
+ * is then the case's repair deadline at the latest. After the commit the service summary is mailed; a mail
+ * failure never undoes the close, it is reported in the answer.
  */
 export async function closeVisit(ctx: AppContext, user: SessionUser, id: string, input: Input): Promise<CloseVisitResult> {
-  const returnWorkOrder = await ctx.db.transaction(async (tx) => {
-    const v = await loadVisit(tx, id, { lock: true });
-    assertVisitWritable(user, v);
-    if (!v.onSiteAt) {
-      throw conflict('not_on_site', 'Mark yourself on site before closing the visit, so its times are right.');
-    }
-    const now = ctx.clock.now();
-    await tx
-      .update(visits)
-      .set({
-        closedAt: now,
-        outcome: input.outcome,
-        returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
-        returnNotes: input.outcome === 'needs_return' ? (input.returnNotes ?? null) : null,
-        notes: input.notes ?? v.notes,
-        labourMinutes: input.labourMinutes ?? null,
-        version: v.version + 1,
-        updatedAt: now,
-      })
-      .where(eq(visits.id, id));
-    await tx.insert(visitEvents).values({ visitId: id, state: 'closed', at: now, byUserId: user.id });
-    const [wo] = await tx
-      .update(workOrders)
-      .set({
-        state: 'closed',
-        outcome: input.outcome,
-        closedAt: now,
-        updatedAt: now,
-        returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
-      })
-      .where(eq(workOrders.id, v.workOrderId))
-      .returning();
-    if (input.outcome !== 'needs_return') return null;
+  const returnWorkOrder = await withOneOpenReturn(ctx.db, () =>
+    ctx.db.transaction(async (tx) => {
+      const v = await loadVisit(tx, id, { lock: true });
+      assertVisitWritable(user, v);
+      if (!v.onSiteAt) {
+        throw conflict('not_on_site', 'Mark yourself on site before closing the visit, so its times are right.');
+      }
+      const now = ctx.clock.now();
+      await tx
+        .update(visits)
+        .set({
+          closedAt: now,
+          outcome: input.outcome,
+          returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
+          returnNotes: input.outcome === 'needs_return' ? (input.returnNotes ?? null) : null,
+          notes: input.notes ?? v.notes,
+          labourMinutes: input.labourMinutes ?? null,
+          version: v.version + 1,
+          updatedAt: now,
+        })
+        .where(eq(visits.id, id));
+      await tx.insert(visitEvents).values({ visitId: id, state: 'closed', at: now, byUserId: user.id });
+      const [wo] = await tx
+        .update(workOrders)
+        .set({
+          state: 'closed',
+          outcome: input.outcome,
+          closedAt: now,
+          updatedAt: now,
+          returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
+        })
+        .where(eq(workOrders.id, v.workOrderId))
+        .returning();
+      if (input.outcome !== 'needs_return') return null;
 
-    const [openCase] = wo!.unitId
-      ? await tx
-          .select({ id: leakCases.id, repairDueDate: leakCases.repairDueDate })
-          .from(leakCases)
-          .where(and(eq(leakCases.unitId, wo!.unitId), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
-          .limit(1)
-      : [];
-    const needs = input.returnNeeds.map((n) => returnNeedLabels[n].toLowerCase()).join(', ');
-    const complaint = input.returnNotes?.trim() || `Return visit for WO-${wo!.number}: needs ${needs}.`;
-    const [ret] = await tx
-      .insert(workOrders)
-      .values({
-        branchId: wo!.branchId,
-        siteId: wo!.siteId,
-        unitId: wo!.unitId,
-        kind: 'return_visit',
-        state: 'unplaced',
-        priority: wo!.priority,
-        complaint,
-        originWorkOrderId: wo!.id,
-        requiredSkill: wo!.requiredSkill,
-        requiredCertification: wo!.requiredCertification,
-        estimatedMinutes: wo!.estimatedMinutes,
-        returnNeeds: input.returnNeeds,
-        leakCaseId: openCase?.id ?? wo!.leakCaseId,
-        // An open leak case's repair deadline is the latest the return visit may be booked.
-        latestAt: openCase ? new Date(`${openCase.repairDueDate}T23:59:59Z`) : null,
-        createdById: user.id,
-      })
-      .returning({ id: workOrders.id, number: workOrders.number, state: workOrders.state });
-    return ret!;
-  });
+      const [unit] = wo!.unitId
+        ? await tx
+            .select({ fullChargeLb: units.fullChargeLb, timeZone: branches.timeZone })
+            .from(units)
+            .innerJoin(branches, eq(branches.id, units.branchId))
+            .where(eq(units.id, wo!.unitId))
+        : [];
+      const [openCase] = wo!.unitId
+        ? await tx
+            .select({ id: leakCases.id, status: leakCases.status, repairDueDate: leakCases.repairDueDate })
+            .from(leakCases)
+            .where(and(eq(leakCases.unitId, wo!.unitId), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
+            .limit(1)
+        : [];
+      // A case still waiting for its repair makes this return its repair visit: its deadline is the latest booking.
+      const repairCase = openCase?.status === 'open' && unit ? openCase : undefined;
+      const latestAt = repairCase ? leakRepairLatestAt(repairCase.repairDueDate, unit!.timeZone) : null;
+      const requiredCertification = wo!.requiredCertification ?? (repairCase ? (requiredCertificationFor({ fullChargeLb: unit!.fullChargeLb }) ?? 'II') : null);
+      const leakCaseId = openCase?.id ?? wo!.leakCaseId;
+      const needs = input.returnNeeds.map((n) => returnNeedLabels[n].toLowerCase()).join(', ');
+      const complaint = input.returnNotes?.trim() || `Return visit for WO-${wo!.number}: needs ${needs}.`;
+
+      const open = wo!.unitId ? await findOpenReturn(tx, wo!.unitId, { lock: true }) : null;
+      let ret: { id: string; number: number | null; state: WorkOrderState; joined: boolean };
+      if (open) {
+        await joinOpenReturn(
+          tx,
+          open,
+          {
+            needs: input.returnNeeds,
+            latestAt,
+            priority: wo!.priority,
+            complaint: input.returnNotes?.trim() ? `From WO-${wo!.number}: ${complaint}` : complaint,
+            estimatedMinutes: wo!.estimatedMinutes,
+            requiredSkill: wo!.requiredSkill,
+            requiredCertification,
+            leakCaseId,
+          },
+          now,
+        );
+        ret = { id: open.id, number: open.number, state: open.state, joined: true };
+      } else {
+        const [created] = await tx
+          .insert(workOrders)
+          .values({
+            branchId: wo!.branchId,
+            siteId: wo!.siteId,
+            unitId: wo!.unitId,
+            kind: 'return_visit',
+            state: 'unplaced',
+            priority: wo!.priority,
+            complaint,
+            originWorkOrderId: wo!.id,
+            requiredSkill: wo!.requiredSkill,
+            requiredCertification,
+            estimatedMinutes: wo!.estimatedMinutes,
+            returnNeeds: input.returnNeeds,
+            leakCaseId,
+            latestAt,
+            createdById: user.id,
+          })
+          .returning({ id: workOrders.id, number: workOrders.number, state: workOrders.state });
+        ret = { ...created!, joined: false };
+      }
+      if (repairCase) {
+        await tx.update(leakCases).set({ repairWorkOrderId: ret.id, updatedAt: now }).where(eq(leakCases.id, repairCase.id));
+      }
+      return ret;
+    }),
+  );
 
   const summary = await sendSummary(ctx, user, id);
   return { visit: await visitDetail(ctx.db, user, id), returnWorkOrder, summary };

@@ -1,5 +1,5 @@
 /** The Watchlist: repeat-alarm units, leak cases with their deadlines, return visits to book. */
-import { and, asc, desc, eq, gte, inArray, isNotNull, ne, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, gte, inArray, isNotNull, isNull, ne, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import {
   DUE_SOON_DAYS,
@@ -14,6 +14,7 @@ import {
   type VerificationTestInput,
   type BookRepair,
   type LeakCaseStatus,
+  workOrderLabel,
 } from '@coilpath/contract';
 import { LEAK_RULES, addDays, repeatAlarms, requiredCertificationFor, verificationDeadlines, zonedInstant } from '@coilpath/calc';
 import type { AppContext } from '../../context';
@@ -35,6 +36,15 @@ import {
 import { assertBranch } from '../../auth/middleware';
 import { HttpError, conflict, notFound, unprocessable } from '../../lib/errors';
 import { branchFilter, branchesById, branchesInScope, daysBetween, todayIn, type BranchInfo } from './scope';
+import {
+  OpenReturnChanged,
+  findOpenReturn,
+  isOpenState,
+  joinOpenReturn,
+  leakRepairLatestAt,
+  openReturnExists,
+  withOneOpenReturn,
+} from '../work-orders/open-return';
 
 /* ------------------------------------------------------------ repeat alarms */
 
@@ -239,14 +249,21 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
     .where(and(branchFilter(user, q.branchId, leakCases.branchId), statusCond, onlyIds ? inArray(leakCases.id, onlyIds) : undefined))
     .orderBy(asc(leakCases.repairDueDate));
   if (rows.length === 0) return [];
-  const [tests, branchMap] = await Promise.all([
+  const repairIds = [...new Set(rows.flatMap((r) => (r.woId ? [r.woId] : [])))];
+  const [tests, branchMap, repairVisits] = await Promise.all([
     ctx.db
       .select()
       .from(verificationTests)
       .where(inArray(verificationTests.leakCaseId, rows.map((r) => r.c.id)))
       .orderBy(asc(verificationTests.testedOn), asc(verificationTests.createdAt)),
     branchesById(ctx.db, rows.map((r) => r.c.branchId)),
+    repairIds.length
+      ? ctx.db.select({ id: visits.id, workOrderId: visits.workOrderId }).from(visits).where(inArray(visits.workOrderId, repairIds)).orderBy(desc(visits.createdAt))
+      : Promise.resolve([]),
   ]);
+  // The latest visit of each repair work order (the list is newest first).
+  const visitOf = new Map<string, string>();
+  for (const v of repairVisits) if (!visitOf.has(v.workOrderId)) visitOf.set(v.workOrderId, v.id);
   const now = ctx.clock.now();
   const list = rows.map((r): LeakCaseRow => {
     const c = r.c;
@@ -276,7 +293,7 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
       planKind: c.planKind,
       planDueDate: c.planDueDate,
       notes: c.notes,
-      repairWorkOrder: r.woId ? { id: r.woId, number: r.woNumber, state: r.woState! } : null,
+      repairWorkOrder: r.woId ? { id: r.woId, number: r.woNumber, state: r.woState!, visitId: visitOf.get(r.woId) ?? null } : null,
       tests: t.map((x) => ({ id: x.id, kind: x.kind, testedOn: x.testedOn, passed: x.passed, notes: x.notes })),
       deadlines,
       next,
@@ -306,72 +323,99 @@ async function audit(tx: Tx, user: SessionUser, action: string, entity: string, 
 }
 
 /**
- * Books the repair of a leak case as a return visit: an unplaced work order (so it sits in the
- * Roster's queue) with the EPA 608 certification the refrigerant work needs and the repair due date
- * as the latest booking. A second request answers 409 with the work order already booked.
+ * Books the repair of a leak case as a return visit: an unplaced work order (so it sits in the Roster's
+ * queue) with the EPA 608 certification the refrigerant work needs and the repair due date as the latest
+ * booking. When the unit already has an open return visit (a close-out's), the repair joins it instead: the
+ * case links to it and it gains the leak search, the certification and the earlier deadline. While the case's
+ * repair visit is open, a second request answers 409 `open_return_exists` naming it (`details.workOrderId`).
  */
 export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: string, input: { priority: BookRepair['priority'] & string; notes?: string | undefined }) {
-  const woId = await ctx.db.transaction(async (tx) => {
-    const c = await loadCase(tx, user, id);
-    if (c.repairWorkOrderId) {
-      const [wo] = await tx.select({ id: workOrders.id, number: workOrders.number, state: workOrders.state }).from(workOrders).where(eq(workOrders.id, c.repairWorkOrderId));
-      throw conflict('already_booked', `The repair visit already exists: ${wo?.number ? `WO-${wo.number}` : 'a work order'} (${(wo?.state ?? 'unplaced').replace('_', ' ')}).`, { workOrder: wo ?? { id: c.repairWorkOrderId } });
-    }
-    if (c.status !== 'open') throw unprocessable(`Only an open leak case needs a repair visit; this one is ${c.status.replace('_', ' ')}.`);
-    const [u] = await tx
-      .select({ id: units.id, siteId: units.siteId, tag: units.tag, refrigerant: units.refrigerant, fullChargeLb: units.fullChargeLb, branchTz: branches.timeZone })
-      .from(units)
-      .innerJoin(branches, eq(branches.id, units.branchId))
-      .where(eq(units.id, c.unitId));
-    if (!u) throw notFound('unit');
-    let originWorkOrderId: string | null = null;
-    if (c.triggeringEventId) {
-      const [o] = await tx
-        .select({ workOrderId: visits.workOrderId })
-        .from(refrigerantEvents)
-        .innerJoin(visits, eq(visits.id, refrigerantEvents.visitId))
-        .where(eq(refrigerantEvents.id, c.triggeringEventId));
-      originWorkOrderId = o?.workOrderId ?? null;
-    }
-    const complaint = [
-      `Leak repair on ${u.tag} (${u.refrigerant}, full charge ${u.fullChargeLb} lb): leak rate ${c.leakRatePercent.toFixed(1)} %/yr is over the ${c.thresholdPercent} % threshold (${c.rule}).`,
-      `Repair by ${c.repairDueDate}, with the initial verification test in the same window.`,
-      input.notes ?? '',
-    ]
-      .filter(Boolean)
-      .join(' ');
-    const [wo] = await tx
-      .insert(workOrders)
-      .values({
-        branchId: c.branchId,
-        siteId: u.siteId,
-        unitId: u.id,
-        kind: 'return_visit',
-        state: 'unplaced',
-        priority: input.priority,
-        complaint,
-        latestAt: new Date(zonedInstant(c.repairDueDate, '23:59', u.branchTz)),
-        requiredCertification: requiredCertificationFor({ fullChargeLb: u.fullChargeLb }) ?? 'II',
-        estimatedMinutes: 180,
-        leakCaseId: c.id,
-        originWorkOrderId,
-        returnNeeds: ['leak_search'],
-        purpose: `leak-case:${c.id}`,
-        createdById: user.id,
-      })
-      .returning({ id: workOrders.id, number: workOrders.number });
-    // Only the first of two racing requests links its work order; the other rolls back.
-    const linked = await tx
-      .update(leakCases)
-      .set({ repairWorkOrderId: wo!.id, updatedAt: ctx.clock.now() })
-      .where(and(eq(leakCases.id, c.id), sql`${leakCases.repairWorkOrderId} is null`))
-      .returning({ id: leakCases.id });
-    if (linked.length === 0) throw conflict('already_booked', 'The repair was booked a moment ago by someone else.');
-    await audit(tx, user, 'leak_case.repair_booked', 'leak_case', c.id, { workOrderId: wo!.id });
-    return wo!.id;
-  });
+  const booked = await withOneOpenReturn(ctx.db, () =>
+    ctx.db.transaction(async (tx) => {
+      const c = await loadCase(tx, user, id);
+      if (c.repairWorkOrderId) {
+        const [wo] = await tx
+          .select({ id: workOrders.id, number: workOrders.number, state: workOrders.state, unitId: workOrders.unitId })
+          .from(workOrders)
+          .where(eq(workOrders.id, c.repairWorkOrderId));
+        if (wo && isOpenState(wo.state)) {
+          throw await openReturnExists(tx, wo, `The repair visit already exists: ${workOrderLabel(wo.number)} (${wo.state.replace('_', ' ')}).`);
+        }
+      }
+      if (c.status !== 'open') throw unprocessable(`Only an open leak case needs a repair visit; this one is ${c.status.replace('_', ' ')}.`);
+      const [u] = await tx
+        .select({ id: units.id, siteId: units.siteId, tag: units.tag, refrigerant: units.refrigerant, fullChargeLb: units.fullChargeLb, branchTz: branches.timeZone })
+        .from(units)
+        .innerJoin(branches, eq(branches.id, units.branchId))
+        .where(eq(units.id, c.unitId));
+      if (!u) throw notFound('unit');
+      const now = ctx.clock.now();
+      const latestAt = leakRepairLatestAt(c.repairDueDate, u.branchTz);
+      const requiredCertification = requiredCertificationFor({ fullChargeLb: u.fullChargeLb }) ?? 'II';
+      const complaint = [
+        `Leak repair on ${u.tag} (${u.refrigerant}, full charge ${u.fullChargeLb} lb): leak rate ${c.leakRatePercent.toFixed(1)} %/yr is over the ${c.thresholdPercent} % threshold (${c.rule}).`,
+        `Repair by ${c.repairDueDate}, with the initial verification test in the same window.`,
+        input.notes ?? '',
+      ]
+        .filter(Boolean)
+        .join(' ');
+
+      let workOrderId: string;
+      const open = await findOpenReturn(tx, u.id, { lock: true });
+      if (open) {
+        // One truck roll: the repair rides on the return visit already waiting for this unit.
+        await joinOpenReturn(
+          tx,
+          open,
+          { needs: ['leak_search'], latestAt, priority: input.priority, complaint, estimatedMinutes: 180, requiredCertification, leakCaseId: c.id },
+          now,
+        );
+        workOrderId = open.id;
+      } else {
+        let originWorkOrderId: string | null = null;
+        if (c.triggeringEventId) {
+          const [o] = await tx
+            .select({ workOrderId: visits.workOrderId })
+            .from(refrigerantEvents)
+            .innerJoin(visits, eq(visits.id, refrigerantEvents.visitId))
+            .where(eq(refrigerantEvents.id, c.triggeringEventId));
+          originWorkOrderId = o?.workOrderId ?? null;
+        }
+        const [wo] = await tx
+          .insert(workOrders)
+          .values({
+            branchId: c.branchId,
+            siteId: u.siteId,
+            unitId: u.id,
+            kind: 'return_visit',
+            state: 'unplaced',
+            priority: input.priority,
+            complaint,
+            latestAt,
+            requiredCertification,
+            estimatedMinutes: 180,
+            leakCaseId: c.id,
+            originWorkOrderId,
+            returnNeeds: ['leak_search'],
+            purpose: `leak-case:${c.id}`,
+            createdById: user.id,
+          })
+          .returning({ id: workOrders.id });
+        workOrderId = wo!.id;
+      }
+      // Only the first of two racing requests links the case; the other rolls back and runs again (then 409).
+      const linked = await tx
+        .update(leakCases)
+        .set({ repairWorkOrderId: workOrderId, updatedAt: now })
+        .where(and(eq(leakCases.id, c.id), c.repairWorkOrderId ? eq(leakCases.repairWorkOrderId, c.repairWorkOrderId) : isNull(leakCases.repairWorkOrderId)))
+        .returning({ id: leakCases.id });
+      if (linked.length === 0) throw new OpenReturnChanged();
+      await audit(tx, user, open ? 'leak_case.repair_joined' : 'leak_case.repair_booked', 'leak_case', c.id, { workOrderId });
+      return { workOrderId, joined: open !== null };
+    }),
+  );
   const leakCase = await oneCase(ctx, user, id);
-  return { leakCase, workOrderId: woId };
+  return { leakCase, ...booked };
 }
 
 export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: string, patch: LeakCasePatch): Promise<LeakCaseRow> {

@@ -194,7 +194,7 @@ describe('leak cases', () => {
     expect((await mgr.patch(`/api/leak-cases/${c.id}`).send({ action: 'close' })).status).toBe(200);
   });
 
-  it('books the repair as an unplaced return visit once; a second click answers 409 with the same work order', async () => {
+  it('books the repair as an unplaced return visit once; a second click answers 409 open_return_exists naming it', async () => {
     const c = await makeCase();
     const mgr = await agent(f.inA.manager);
     const res = await mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({});
@@ -205,9 +205,12 @@ describe('leak cases', () => {
     expect(wo!.latestAt!.toISOString()).toBe('2026-12-21T05:59:00.000Z');
     expect(res.body.leakCase.repairWorkOrder).toMatchObject({ id: wo!.id, state: 'unplaced' });
 
+    expect(res.body.joined).toBe(false);
+
     const again = await mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({});
     expect(again.status).toBe(409);
-    expect(again.body.error.details.workOrder.id).toBe(wo!.id);
+    expect(again.body.error.code).toBe('open_return_exists');
+    expect(again.body.error.details).toEqual({ workOrderId: wo!.id, number: wo!.number, state: 'unplaced', unitId: unitA.unit.id, visitId: null });
     const [{ n }] = (await t.ctx.db.select({ n: count() }).from(workOrders).where(eq(workOrders.leakCaseId, c.id))) as [{ n: number }];
     expect(n).toBe(1);
     expect((await (await agent(f.inB.manager)).post(`/api/leak-cases/${c.id}/repair-visit`).send({})).status).toBe(404);
@@ -216,8 +219,10 @@ describe('leak cases', () => {
 
 describe('return visits to book', () => {
   it('lists unplaced return visits from needs_return close-outs, oldest first, and queues one with a priority and latest date', async () => {
+    // One open return visit per unit: each on a unit of its own.
     const mk = async (closedDaysAgo: number) => {
-      const origin = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: unitA.site.id, unitId: unitA.unit.id, state: 'closed', outcome: 'needs_return' });
+      const { site, unit } = await makeSiteWithUnit(t.ctx.db, f.a.id);
+      const origin = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id, state: 'closed', outcome: 'needs_return' });
       await t.ctx.db.insert(visits).values({
         branchId: f.a.id,
         workOrderId: origin.id,
@@ -227,7 +232,7 @@ describe('return visits to book', () => {
         returnNeeds: ['parts'],
         returnNotes: 'Contactor on order',
       });
-      return makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: unitA.site.id, unitId: unitA.unit.id, kind: 'return_visit', originWorkOrderId: origin.id });
+      return makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id, kind: 'return_visit', originWorkOrderId: origin.id });
     };
     const newer = await mk(1);
     const older = await mk(6);

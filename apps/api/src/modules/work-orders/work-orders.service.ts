@@ -7,6 +7,7 @@ import type { Db, Tx } from '../../db/client';
 import { bookings, leakCases, sites, units, workOrders } from '../../db/schema';
 import { assertBranch, branchScope, resolveBranch } from '../../auth/middleware';
 import { badRequest, conflict, notFound } from '../../lib/errors';
+import { findOpenReturn, openReturnExists, withOneOpenReturn } from './open-return';
 
 const origin = alias(workOrders, 'origin_work_order');
 
@@ -108,8 +109,12 @@ export async function getWorkOrder(db: Tx, user: SessionUser, id: string): Promi
 
 const instantOrNull = (v: string | null | undefined) => (v === undefined ? undefined : v === null ? null : new Date(v));
 
+/**
+ * A new work order. A return visit for a unit that already has an open one answers 409 `open_return_exists`
+ * naming it (one open return visit per unit; add the need to that one).
+ */
 export async function createWorkOrder(db: Db, user: SessionUser, input: z.output<typeof workOrderCreateSchema>): Promise<WorkOrder> {
-  return db.transaction(async (tx) => {
+  return withOneOpenReturn(db, () => db.transaction(async (tx) => {
     const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
     if (!site) throw notFound('site');
     assertBranch(user, site.branchId, 'site');
@@ -134,6 +139,10 @@ export async function createWorkOrder(db: Db, user: SessionUser, input: z.output
       if (!lc) throw notFound('leak case');
       assertBranch(user, lc.branchId, 'leak case');
     }
+    if (input.kind === 'return_visit' && input.unitId) {
+      const open = await findOpenReturn(tx, input.unitId);
+      if (open) throw await openReturnExists(tx, open);
+    }
     const [w] = await tx
       .insert(workOrders)
       .values({
@@ -156,7 +165,7 @@ export async function createWorkOrder(db: Db, user: SessionUser, input: z.output
       })
       .returning({ id: workOrders.id });
     return getWorkOrder(tx, user, w!.id);
-  });
+  }));
 }
 
 const finished: readonly WorkOrderState[] = ['closed', 'cancelled'];

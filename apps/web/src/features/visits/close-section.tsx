@@ -6,6 +6,7 @@ import {
   returnNeeds,
   visitOutcomeLabels,
   visitOutcomes,
+  workOrderStateLabels,
   type CloseVisitResult,
   type ReturnNeed,
   type SummaryMailResult,
@@ -78,7 +79,10 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           </p>
           {result?.returnWorkOrder && (
             <p className="inline-flex items-center gap-1 text-ok">
-              <CheckCircle2 className="size-4" aria-hidden="true" /> Return visit WO-{result.returnWorkOrder.number} is in the unplaced queue for the office to book.
+              <CheckCircle2 className="size-4" aria-hidden="true" />
+              {result.returnWorkOrder.joined
+                ? `The needs were added to WO-${result.returnWorkOrder.number}, the return visit already open for this unit (${workOrderStateLabels[result.returnWorkOrder.state].toLowerCase()}).`
+                : `Return visit WO-${result.returnWorkOrder.number} is in the unplaced queue for the office to book.`}
             </p>
           )}
           {s ? (
@@ -113,7 +117,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
         onSuccess: (r) => {
           setResult(r);
           notify(
-            `Visit closed as ${visitOutcomeLabels[r.visit.outcome ?? 'resolved'].toLowerCase()}.${r.returnWorkOrder ? ` Return visit WO-${r.returnWorkOrder.number} created.` : ''}${r.summary.sent ? ` Summary sent to ${r.summary.to}.` : ' The summary e-mail was not sent.'}`,
+            `Visit closed as ${visitOutcomeLabels[r.visit.outcome ?? 'resolved'].toLowerCase()}.${r.returnWorkOrder ? (r.returnWorkOrder.joined ? ` Added to the open return visit WO-${r.returnWorkOrder.number}.` : ` Return visit WO-${r.returnWorkOrder.number} created.`) : ''}${r.summary.sent ? ` Summary sent to ${r.summary.to}.` : ' The summary e-mail was not sent.'}`,
             r.summary.sent ? 'ok' : 'alarm',
           );
         },

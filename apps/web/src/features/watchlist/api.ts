@@ -4,6 +4,7 @@ import type {
   AlarmInput,
   AlarmRow,
   BookRepair,
+  BookRepairResult,
   LeakCasePatch,
   LeakCaseRow,
   QueueReturnVisit,
@@ -70,7 +71,7 @@ export function useAddVerificationTest() {
 export function useBookRepair() {
   const refresh = useRefresh();
   return useMutation({
-    mutationFn: ({ id, body }: { id: string; body: BookRepair }) => api.post<{ leakCase: LeakCaseRow; workOrderId: string }>(`/api/leak-cases/${id}/repair-visit`, body),
+    mutationFn: ({ id, body }: { id: string; body: BookRepair }) => api.post<BookRepairResult>(`/api/leak-cases/${id}/repair-visit`, body),
     onSettled: refresh,
   });
 }

@@ -1,6 +1,6 @@
 import { useCallback, useState } from 'react';
 import { AlertTriangle, CheckCircle2, Clock, Wrench } from 'lucide-react';
-import { epa608Labels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type Priority } from '@coilpath/contract';
+import { epa608Labels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';
@@ -9,6 +9,7 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { useNotify } from '@/components/ui/notices';
 import { TableTools, downloadCsv, useTableFilter } from '@/components/ui/table-tools';
 import { useAddVerificationTest, useBookRepair, useLeakCases, usePatchLeakCase } from './api';
+import { OpenReturnOffer, OpenWorkOrderLink, openReturnOf, workOrderStateText } from './open-return';
 
 const whatLabels: Record<LeakDeadline['what'], string> = {
   repair: 'Repair',
@@ -26,6 +27,7 @@ const statusLabels: Record<LeakCaseRow['status'], string> = {
 };
 
 export const woLabel = (n: number | null) => (n === null ? 'work order' : `WO-${n}`);
+const isFinished = (state: OpenReturnDetails['state']) => state === 'closed' || state === 'cancelled';
 
 export function DeadlineBadge({ d }: { d: LeakDeadline }) {
   if (d.state === 'met') return <Badge tone="ok"><CheckCircle2 className="size-3.5" aria-hidden="true" /> Done</Badge>;
@@ -102,6 +104,8 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
   const patch = usePatchLeakCase();
   const [priority, setPriority] = useState<Priority>('high');
   const [panel, setPanel] = useState<'none' | 'test' | 'plan'>('none');
+  /** The open return visit a refused booking named (409 `open_return_exists`), offered to open. */
+  const [openReturn, setOpenReturn] = useState<{ wo: OpenReturnDetails; message: string } | null>(null);
   const urgent = c.next?.state === 'overdue' ? 'border-alarm border-l-4' : c.next?.state === 'due_soon' ? 'border-watch-base border-l-4' : '';
 
   const onBook = () =>
@@ -109,10 +113,19 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
       { id: c.id, body: { priority } },
       {
         onSuccess: (r) => {
+          setOpenReturn(null);
           const wo = r.leakCase.repairWorkOrder;
-          notify(`Repair visit ${woLabel(wo?.number ?? null)} is in the Roster queue, to be booked by ${c.repairDueDate} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`);
+          notify(
+            r.joined
+              ? `The repair joined ${woLabel(wo?.number ?? null)}, the return visit already open for ${c.unitTag}: it now includes the leak repair, to be booked by ${c.repairDueDate} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`
+              : `Repair visit ${woLabel(wo?.number ?? null)} is in the Roster queue, to be booked by ${c.repairDueDate} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`,
+          );
         },
-        onError: (e) => notify(e instanceof ApiError && e.status === 409 ? `${e.message} No second visit was created.` : errorMessage(e), 'alarm'),
+        onError: (e) => {
+          const open = openReturnOf(e);
+          if (open) setOpenReturn({ wo: open, message: errorMessage(e) });
+          notify(e instanceof ApiError && e.status === 409 ? `${e.message} No second visit was created.` : errorMessage(e), 'alarm');
+        },
       },
     );
   const onClose = () =>
@@ -167,12 +180,16 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
         </p>
       )}
       <div className="mt-3 flex flex-wrap items-end gap-2 border-t border-slate-line pt-3">
-        {c.repairWorkOrder ? (
-          <p className="flex items-center gap-1 text-sm">
-            <Wrench className="size-4 text-coolant" aria-hidden="true" />
-            Repair visit {woLabel(c.repairWorkOrder.number)}: {c.repairWorkOrder.state === 'unplaced' ? 'in the Roster queue, not booked yet' : c.repairWorkOrder.state.replace('_', ' ')}
+        {c.repairWorkOrder && (
+          <p className="flex basis-full flex-wrap items-center gap-x-2 gap-y-0 text-sm">
+            <span className="inline-flex items-center gap-1">
+              <Wrench className="size-4 text-coolant" aria-hidden="true" />
+              Repair visit {woLabel(c.repairWorkOrder.number)}: {workOrderStateText(c.repairWorkOrder.state)}
+            </span>
+            <OpenWorkOrderLink wo={{ number: c.repairWorkOrder.number, visitId: c.repairWorkOrder.visitId, unitId: c.unitId }} />
           </p>
-        ) : c.status === 'open' ? (
+        )}
+        {c.status === 'open' && (!c.repairWorkOrder || isFinished(c.repairWorkOrder.state)) && (
           <>
             <div className="w-36">
               <SelectField label="Priority" value={priority} onChange={(e) => setPriority(e.target.value as Priority)}>
@@ -180,13 +197,13 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
               </SelectField>
             </div>
             <Button onClick={onBook} busy={book.isPending}>
-              Book repair visit
+              {c.repairWorkOrder ? 'Book another repair visit' : 'Book repair visit'}
             </Button>
             <p className="basis-full text-xs text-slate">
-              Creates a return visit in the Roster queue: needs EPA 608 {epa608Labels[c.requiredCertification]}, to be booked by {c.repairDueDate}.
+              Creates a return visit in the Roster queue (or joins the one already open for this unit): needs EPA 608 {epa608Labels[c.requiredCertification]}, to be booked by {c.repairDueDate}.
             </p>
           </>
-        ) : null}
+        )}
         <Button variant="secondary" size="sm" aria-expanded={panel === 'test'} onClick={() => setPanel(panel === 'test' ? 'none' : 'test')}>
           Record verification test
         </Button>
@@ -199,6 +216,7 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
           Close case
         </Button>
       </div>
+      {openReturn && <OpenReturnOffer wo={openReturn.wo} message={openReturn.message} />}
       {panel === 'test' && <TestForm c={c} onDone={() => setPanel('none')} />}
       {panel === 'plan' && <PlanForm c={c} onDone={() => setPanel('none')} />}
     </Card>
