@@ -13,3 +13,4 @@ export * from './even-out';
 export * from './agreements';
 export * from './dates';
 export * from './units';
+export * from './csv';

@@ -113,7 +113,7 @@ export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: s
   try {
     const detail = await visitDetail(ctx.db, user, visitId);
     const s = summarySections(detail);
-    const pdf = await summaryPdf(s);
+    const pdf = await summaryPdf(s, ctx.clock.now());
     await ctx.mailer.send({
       to,
       subject: s.title,

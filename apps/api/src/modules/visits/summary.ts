@@ -1,5 +1,4 @@
 /** The service summary a customer receives when a visit closes: plain text and a PDF copy. */
-import PDFDocument from 'pdfkit';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import {
@@ -14,6 +13,7 @@ import {
   type ReadingDto,
   type VisitDetail,
 } from '@coilpath/contract';
+import { createPdf, pdfSlate } from '../../lib/pdf';
 
 const when = (iso: string | null, tz: string) => (iso ? format(new TZDate(new Date(iso).getTime(), tz), 'EEE d MMM yyyy, HH:mm') : '-');
 
@@ -94,34 +94,27 @@ export function summaryText(s: SummarySections): string {
   return out.join('\n');
 }
 
-/** The same summary as a PDF (pdfkit, standard fonts). */
-export function summaryPdf(s: SummarySections): Promise<Buffer> {
-  return new Promise((resolve, reject) => {
-    const doc = new PDFDocument({ size: 'LETTER', margin: 54, info: { Title: s.title, Producer: 'Coilpath' } });
-    const chunks: Buffer[] = [];
-    doc.on('data', (c: Buffer) => chunks.push(c));
-    doc.on('end', () => resolve(Buffer.concat(chunks)));
-    doc.on('error', reject);
-    // Helvetica's WinAnsi set has no U+2212 minus sign: use the hyphen.
-    const t = (x: string) => x.replace(/\u2212/g, '-');
-    doc.font('Helvetica-Bold').fontSize(16).fillColor('#17212B').text(t(s.title));
-    doc.moveDown(0.5);
-    doc.fontSize(10);
-    for (const [k, val] of s.facts) doc.font('Helvetica-Bold').text(`${k}: `, { continued: true }).font('Helvetica').text(t(val));
-    const section = (title: string, lines: string[], empty: string) => {
-      doc.moveDown(0.8).font('Helvetica-Bold').fontSize(12).text(title).fontSize(10).font('Helvetica');
-      if (!lines.length) doc.fillColor('#5B6B7A').text(empty).fillColor('#17212B');
-      for (const l of lines) doc.text(t(l));
-    };
-    section('Readings', s.readings, 'No readings were recorded.');
-    section('Findings', s.findings.map((f) => `- ${f}`), 'No findings were recorded.');
-    if (s.refrigerant.length) section('Refrigerant', s.refrigerant.map((r) => `- ${r}`), '');
-    section('Outcome', s.outcome, '');
-    doc
-      .moveDown(1)
-      .fontSize(8)
-      .fillColor('#5B6B7A')
-      .text('Readings guide diagnosis alongside the equipment manufacturer’s data. Refrigerant work is done under EPA Section 608 certification.'.replace('’', "'"));
-    doc.end();
-  });
+/** The same summary as a PDF, through the shared setup (Roboto Flex embedded, tagged for screen readers). */
+export function summaryPdf(s: SummarySections, createdAt?: Date): Promise<Buffer> {
+  const pdf = createPdf({ title: s.title, subject: 'Service summary', createdAt });
+  pdf.heading(s.title, 1);
+  for (const [k, val] of s.facts) pdf.paragraph(val, { lead: `${k}: ` });
+  pdf.heading('Readings');
+  if (!s.readings.length) pdf.paragraph('No readings were recorded.', { color: pdfSlate });
+  for (const l of s.readings) pdf.paragraph(l.trim(), l.startsWith('  ') ? {} : { strong: true });
+  pdf.heading('Findings');
+  if (!s.findings.length) pdf.paragraph('No findings were recorded.', { color: pdfSlate });
+  pdf.list(s.findings);
+  if (s.refrigerant.length) {
+    pdf.heading('Refrigerant');
+    pdf.list(s.refrigerant);
+  }
+  pdf.heading('Outcome');
+  for (const l of s.outcome) pdf.paragraph(l);
+  pdf.doc.moveDown(1);
+  pdf.paragraph(
+    'Readings guide diagnosis alongside the equipment manufacturer’s data. Refrigerant work is done under EPA Section 608 certification.',
+    { size: 8, color: pdfSlate },
+  );
+  return pdf.finish();
 }
