@@ -52,6 +52,9 @@ describe('service summary through the real SMTP sink', () => {
     expect(m.text).toContain('Wiring fault (origin: Factory defect)');
     expect(m.text).toContain('reported on circuit 1, found on circuit 2');
     expect(m.text).toMatch(/superheat 11\.8 °F/);
+    // The HTML part is caught too, with the same finding, and the Message-ID the outbox shows.
+    expect(m.html).toContain('Wiring fault (origin: Factory defect)');
+    expect(m.messageId).toMatch(/^<.+@.+>$/);
     expect(m.attachments).toHaveLength(1);
     expect(m.attachments[0]).toMatchObject({ contentType: 'application/pdf' });
     expect(m.attachments[0]!.filename).toMatch(/^service-summary-WO-\d+\.pdf$/);

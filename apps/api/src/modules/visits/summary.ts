@@ -1,6 +1,4 @@
 /** The service summary a customer receives when a visit closes: plain text and a PDF copy. */
-import { TZDate } from '@date-fns/tz';
-import { format } from 'date-fns';
 import {
   causeCodeLabels,
   causeOriginLabels,
@@ -14,8 +12,10 @@ import {
   type VisitDetail,
 } from '@coilpath/contract';
 import { createPdf, pdfSlate } from '../../lib/pdf';
+import { composeMail, mail, mailTime, type MailBlock } from '../../mail/compose';
 
-const when = (iso: string | null, tz: string) => (iso ? format(new TZDate(new Date(iso).getTime(), tz), 'EEE d MMM yyyy, HH:mm') : '-');
+/** An instant in the branch's zone, with the zone's name: "Tue 10 Mar 2026, 09:00 CDT". */
+const when = (iso: string | null, tz: string) => (iso ? mailTime(iso, tz) : '-');
 
 /** A reading's lines, every value with its unit symbol (the reading states its units: the branch's system). */
 function readingLines(r: ReadingDto, unitTag: string): string[] {
@@ -83,15 +83,27 @@ export function summarySections(v: VisitDetail): SummarySections {
   };
 }
 
+/** The summary as e-mail blocks: the same sections as the PDF. */
+export function summaryBlocks(s: SummarySections): MailBlock[] {
+  const blocks: MailBlock[] = [mail.facts(s.facts), mail.heading('Readings')];
+  if (!s.readings.length) blocks.push(mail.p('No readings were recorded.'));
+  // A reading's first line names the unit and circuit; the indented lines below are its values.
+  for (const l of s.readings) blocks.push(mail.p(l.startsWith('  ') ? l.trim() : l));
+  blocks.push(mail.heading('Findings'), s.findings.length ? mail.list(s.findings) : mail.p('No findings were recorded.'));
+  if (s.refrigerant.length) blocks.push(mail.heading('Refrigerant'), mail.list(s.refrigerant));
+  blocks.push(mail.heading('Outcome'), ...s.outcome.map((l) => mail.p(l)));
+  blocks.push(mail.p('A PDF copy of this summary is attached.', true));
+  return blocks;
+}
+
+/** The summary e-mail: plain text and HTML from the same blocks. */
+export function summaryMail(s: SummarySections): { subject: string; text: string; html: string } {
+  return composeMail(s.title, summaryBlocks(s));
+}
+
+/** The plain-text part (also what the PDF is checked against). */
 export function summaryText(s: SummarySections): string {
-  const out: string[] = [s.title, ''];
-  for (const [k, val] of s.facts) out.push(`${k}: ${val}`);
-  out.push('', 'Readings', ...(s.readings.length ? s.readings : ['No readings were recorded.']));
-  out.push('', 'Findings', ...(s.findings.length ? s.findings.map((f) => `- ${f}`) : ['No findings were recorded.']));
-  if (s.refrigerant.length) out.push('', 'Refrigerant', ...s.refrigerant.map((r) => `- ${r}`));
-  out.push('', ...s.outcome);
-  out.push('', 'A PDF copy of this summary is attached.', '', 'Coilpath');
-  return out.join('\n');
+  return summaryMail(s).text;
 }
 
 /** The same summary as a PDF, through the shared setup (Roboto Flex embedded, tagged for screen readers). */
