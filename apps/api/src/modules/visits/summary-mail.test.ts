@@ -60,5 +60,12 @@ describe('service summary through the real SMTP sink', () => {
     expect(m.attachments[0]!.filename).toMatch(/^service-summary-WO-\d+\.pdf$/);
     const pdf = await t.storage.get(m.attachments[0]!.storageKey!);
     expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+
+    // The outbox screen gets both parts and the Message-ID.
+    const owner = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD);
+    const box = await owner.get('/api/outbox');
+    expect(box.status).toBe(200);
+    const listed = (box.body.messages as { id: string }[]).find((x) => x.id === m.id);
+    expect(listed).toMatchObject({ messageId: m.messageId, text: m.text, html: m.html });
   });
 });
