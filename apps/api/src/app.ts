@@ -70,8 +70,10 @@ export function createApp(ctx: AppContext): express.Express {
     next();
   });
   app.use('/api', requireJsonBodies);
-  // Equipment CSV imports carry a whole file (up to 6 MB of text); every other body stays small.
-  app.use('/api/units/import', express.json({ limit: '8mb' }));
+  // CSV imports carry a whole file: up to 6 MB of units (8 MB as base64), 900 kB of alarms (1.2 MB as
+  // base64); every other body stays small.
+  app.use('/api/units/import', express.json({ limit: '9mb' }));
+  app.use('/api/alarms/import', express.json({ limit: '2mb' }));
   app.use('/api', express.json({ limit: '1mb' }));
   app.use('/api', refuseUnstorableText);
   app.use('/api', cookieParser());

@@ -16,3 +16,4 @@ export * from './agreements';
 export * from './dates';
 export * from './units';
 export * from './atmosphere';
+export * from './csv';

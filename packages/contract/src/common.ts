@@ -50,3 +50,22 @@ export const pageQuerySchema = z.object({
   dir: z.enum(['asc', 'desc']).default('asc'),
   q: z.string().max(limits.shortText).optional(),
 });
+
+// ---------------------------------------------------------------------------------------------
+// CSV imports
+// ---------------------------------------------------------------------------------------------
+
+/** Base64 of a file of at most `bytes` bytes: the server reads its encoding from the bytes. */
+export const base64FileSchema = (bytes: number, tooLarge: string) =>
+  z
+    .base64('Send the file as base64')
+    .min(1, 'The file is empty')
+    .max(Math.ceil(bytes / 3) * 4, tooLarge);
+
+/**
+ * A CSV import sends either `file`, the file's bytes in base64 (what the screens send: the server
+ * detects UTF-8 or a spreadsheet's legacy Windows encoding and converts it, or refuses the file), or
+ * `csv`, text already decoded (refused if it shows a wrong decoding, U+FFFD).
+ */
+export const oneOfCsvOrFile = (b: { csv?: string | undefined; file?: string | undefined }) => (b.csv === undefined) !== (b.file === undefined);
+export const oneOfCsvOrFileMessage = { message: 'Send the file either as text (csv) or as base64 bytes (file), one of the two', path: ['file'] };

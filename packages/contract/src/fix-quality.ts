@@ -118,6 +118,8 @@ export const factoryDefectCaseSchema = z.object({
   kind: workOrderKindSchema,
   branchId: idSchema,
   branchName: z.string(),
+  /** The branch's IANA time zone (exports write `openedAt` in it, with its offset). */
+  branchTimeZone: z.string(),
   currency: z.string(),
   siteId: idSchema,
   siteName: z.string(),

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, pageQuerySchema } from './common';
+import { base64FileSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneOfCsvOrFile, oneOfCsvOrFileMessage, pageQuerySchema } from './common';
 import { applianceCategorySchema, unitKindSchema } from './vocabulary';
 
 /** Optional free text: blank input becomes `null`, so forms can send empty fields. */
@@ -290,12 +290,16 @@ export function normalizeImportHeader(h: string): string {
 /** Largest import accepted in one request. */
 export const unitImportLimits = { maxRows: 20_000, maxBytes: 6 * 1024 * 1024 } as const;
 
-export const unitImportSchema = z.object({
-  siteId: idSchema,
-  mode: z.enum(['dry-run', 'commit']),
-  /** The CSV file's text, header row first. */
-  csv: z.string().min(1, 'The file is empty').max(unitImportLimits.maxBytes, 'The file is larger than 6 MB; split it'),
-});
+export const unitImportSchema = z
+  .object({
+    siteId: idSchema,
+    mode: z.enum(['dry-run', 'commit']),
+    /** The CSV file's text, header row first. */
+    csv: z.string().min(1, 'The file is empty').max(unitImportLimits.maxBytes, 'The file is larger than 6 MB; split it').optional(),
+    /** The CSV file's bytes, base64. */
+    file: base64FileSchema(unitImportLimits.maxBytes, 'The file is larger than 6 MB; split it').optional(),
+  })
+  .refine(oneOfCsvOrFile, oneOfCsvOrFileMessage);
 export type UnitImportRequest = z.infer<typeof unitImportSchema>;
 
 export interface UnitImportRowError {
@@ -307,6 +311,8 @@ export interface UnitImportRowError {
 
 export interface UnitImportResult {
   mode: 'dry-run' | 'commit';
+  /** What the file was read as: `UTF-8`, or the legacy encoding it was converted from (e.g. `windows-1252`). */
+  encoding: string;
   /** Data rows read (header excluded). */
   rowCount: number;
   validCount: number;

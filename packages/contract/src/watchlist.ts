@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, instantSchema, isoDateSchema, limits } from './common';
+import { base64FileSchema, idSchema, instantSchema, isoDateSchema, limits, oneOfCsvOrFile, oneOfCsvOrFileMessage } from './common';
 import { leakCaseStatusSchema, prioritySchema, returnNeedSchema, causeCodeSchema, causeOriginSchema, workOrderStateSchema, workOrderKindSchema, visitOutcomeSchema, epa608TypeSchema } from './vocabulary';
 
 /* ---------------------------------------------------------------- alarms */
@@ -45,11 +45,16 @@ export interface AlarmRow {
  * CSV import of alarms: columns `unit_serial`, `circuit`, `code`, `raised_at` (headers in any case,
  * spaces or underscores). `raised_at` without an offset is read in the branch's time zone.
  */
-export const alarmImportSchema = z.strictObject({
-  branchId: idSchema.optional(),
-  csv: z.string().min(1, 'The file is empty').max(900_000, 'The file is larger than 900 kB; split it'),
-  mode: z.enum(['dry_run', 'commit']).default('dry_run'),
-});
+export const alarmImportSchema = z
+  .strictObject({
+    branchId: idSchema.optional(),
+    /** The file's text, already decoded. */
+    csv: z.string().min(1, 'The file is empty').max(900_000, 'The file is larger than 900 kB; split it').optional(),
+    /** The file's bytes, base64 (what the screen sends): the server works out the encoding. */
+    file: base64FileSchema(900_000, 'The file is larger than 900 kB; split it').optional(),
+    mode: z.enum(['dry_run', 'commit']).default('dry_run'),
+  })
+  .refine(oneOfCsvOrFile, oneOfCsvOrFileMessage);
 export type AlarmImport = z.input<typeof alarmImportSchema>;
 
 export interface AlarmImportError {
@@ -71,6 +76,8 @@ export interface AlarmImportRow {
 }
 export interface AlarmImportResult {
   mode: 'dry_run' | 'commit';
+  /** What the file was read as: `UTF-8`, or the legacy encoding it was converted from (e.g. `windows-1252`). */
+  encoding: string;
   total: number;
   rows: AlarmImportRow[];
   errors: AlarmImportError[];

@@ -1,4 +1,4 @@
-import nodemailer from 'nodemailer';
+import nodemailer, { type Transporter } from 'nodemailer';
 
 export interface MailAttachment {
   filename: string;
@@ -9,8 +9,12 @@ export interface MailAttachment {
 export interface MailMessage {
   to: string;
   subject: string;
+  /** The plain-text part. */
   text: string;
-  html?: string;
+  /** The HTML part (simple, inline-styled, no images): every message has both (see `composeMail`). */
+  html: string;
+  /** Extra header fields, e.g. `Auto-Submitted: auto-generated` on digests. */
+  headers?: Record<string, string>;
   attachments?: MailAttachment[];
 }
 
@@ -18,13 +22,17 @@ export interface Mailer {
   send(message: MailMessage): Promise<{ messageId: string }>;
 }
 
-/** A nodemailer transport to an SMTP URL (the local sink by default). */
-export function createSmtpMailer(smtpUrl: string, from: string): Mailer {
-  const transport = nodemailer.createTransport(smtpUrl);
+/** A mailer over any nodemailer transport (SMTP in the app; a stream transport in tests that read the MIME). */
+export function createTransportMailer(transport: Transporter, from: string): Mailer {
   return {
     async send(message) {
       const info = await transport.sendMail({ from, ...message });
       return { messageId: String(info.messageId) };
     },
   };
+}
+
+/** A nodemailer transport to an SMTP URL (the local sink by default). */
+export function createSmtpMailer(smtpUrl: string, from: string): Mailer {
+  return createTransportMailer(nodemailer.createTransport(smtpUrl), from);
 }

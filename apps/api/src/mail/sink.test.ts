@@ -20,13 +20,14 @@ afterAll(async () => {
 });
 
 describe('local mail sink', () => {
-  it('catches a message sent through nodemailer into the outbox, attachments included', async () => {
+  it('catches a message sent through nodemailer into the outbox: both parts, its Message-ID and attachments', async () => {
     const mailer = createSmtpMailer(sink.url, 'Coilpath <no-reply@coilpath.example>');
     const pdf = Buffer.from('%PDF-1.4\n% test\n');
     await mailer.send({
       to: 'contact@site.example',
       subject: 'Service summary',
       text: 'Readings and findings',
+      html: '<p>Readings and findings</p>',
       attachments: [{ filename: 'summary.pdf', content: pdf, contentType: 'application/pdf' }],
     });
     const rows = await database.db.select().from(mailOutbox);
@@ -35,6 +36,8 @@ describe('local mail sink', () => {
     expect(m.to).toBe('contact@site.example');
     expect(m.subject).toBe('Service summary');
     expect(m.text?.trim()).toBe('Readings and findings');
+    expect(m.html).toBe('<p>Readings and findings</p>');
+    expect(m.messageId).toMatch(/^<[^<>@\s]+@[^<>\s]+>$/);
     expect(m.attachments).toHaveLength(1);
     expect(m.attachments[0]!.filename).toBe('summary.pdf');
     expect(m.attachments[0]!.contentType).toBe('application/pdf');

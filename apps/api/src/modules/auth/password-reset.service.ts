@@ -1,7 +1,8 @@
 import { and, eq, isNull, sql } from 'drizzle-orm';
 import type { SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { passwordResets, users } from '../../db/schema';
+import { branches, passwordResets, users } from '../../db/schema';
+import { composeMail, mail, mailTime } from '../../mail/compose';
 import { hashPassword } from '../../auth/password';
 import { signSession } from '../../auth/session';
 import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
@@ -14,7 +15,12 @@ export const RESET_MINUTES = 60;
  * the same either way, so the answer does not reveal who has an account.
  */
 export async function requestPasswordReset(ctx: AppContext, email: string): Promise<void> {
-  const [u] = await ctx.db.select({ id: users.id, name: users.name, active: users.active }).from(users).where(eq(users.email, email)).limit(1);
+  const [u] = await ctx.db
+    .select({ id: users.id, name: users.name, active: users.active, timeZone: branches.timeZone })
+    .from(users)
+    .leftJoin(branches, eq(branches.id, users.branchId))
+    .where(eq(users.email, email))
+    .limit(1);
   if (!u || !u.active) return;
   const now = ctx.clock.now();
   const { token, hash } = newLinkToken();
@@ -26,22 +32,17 @@ export async function requestPasswordReset(ctx: AppContext, email: string): Prom
   });
   const link = `${ctx.config.publicUrl.replace(/\/$/, '')}/reset-password?token=${encodeURIComponent(signLinkToken(ctx.secret, 'password-reset', token))}`;
   // A mail failure must not change the answer (that would tell who has an account): log it.
+  const message = composeMail('Choose a new Coilpath password', [
+    mail.p(`Hello ${u.name},`),
+    mail.p('Someone (we hope you) asked to choose a new password for this Coilpath account.'),
+    mail.link(link, 'Choose a new password'),
+    mail.p(
+      `The link works once and expires in ${RESET_MINUTES} minutes, at ${mailTime(expiresAt, u.timeZone)}. Choosing a new password signs you out on every other device.`,
+    ),
+    mail.p('If you did not ask for this, ignore this message: your password stays as it is.', true),
+  ]);
   await ctx.mailer
-    .send({
-    to: email,
-    subject: 'Choose a new Coilpath password',
-    text: [
-      `Hello ${u.name},`,
-      '',
-      'Someone (we hope you) asked to choose a new password for this Coilpath account.',
-      'Open this link to choose it:',
-      '',
-      link,
-      '',
-      `The link works once and expires in ${RESET_MINUTES} minutes. Choosing a new password signs you out on every other device.`,
-      'If you did not ask for this, ignore this message: your password stays as it is.',
-    ].join('\n'),
-    })
+    .send({ to: email, ...message })
     .catch((e: unknown) => console.error('[coilpath] password-reset mail failed', e));
 }
 

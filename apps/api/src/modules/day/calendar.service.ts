@@ -4,11 +4,11 @@
  */
 import { randomBytes } from 'node:crypto';
 import { and, asc, eq, gte, lt, ne } from 'drizzle-orm';
-import { createEvents, type EventAttributes } from 'ics';
 import { workOrderKindLabels } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { bookings, sites, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
+import { writeCalendar, type CalendarEvent } from '../../lib/ical';
 import { calendarFeedUrl } from './day.service';
 
 /** The feed covers bookings from this many days back to this many days ahead. */
@@ -24,14 +24,6 @@ export async function rotateCalendarToken(ctx: AppContext, userId: string): Prom
 export async function revokeCalendarToken(ctx: AppContext, userId: string): Promise<void> {
   await ctx.db.update(users).set({ calendarToken: null }).where(eq(users.id, userId));
 }
-
-const utcArray = (d: Date): [number, number, number, number, number] => [
-  d.getUTCFullYear(),
-  d.getUTCMonth() + 1,
-  d.getUTCDate(),
-  d.getUTCHours(),
-  d.getUTCMinutes(),
-];
 
 /** The .ics text for a feed token; 404 for an unknown or revoked token or an inactive user. */
 export async function calendarFeed(ctx: AppContext, token: string): Promise<string> {
@@ -59,25 +51,18 @@ export async function calendarFeed(ctx: AppContext, token: string): Promise<stri
     )
     .orderBy(asc(bookings.startAt));
   const base = ctx.config.publicUrl.replace(/\/$/, '');
-  const events: EventAttributes[] = rows.map(({ booking: b, visitId, wo, site }) => ({
+  const events: CalendarEvent[] = rows.map(({ booking: b, visitId, wo, site }) => ({
     uid: `${b.id}@coilpath`,
-    start: utcArray(b.startAt),
-    startInputType: 'utc',
-    startOutputType: 'utc',
-    end: utcArray(b.endAt),
-    endInputType: 'utc',
-    endOutputType: 'utc',
-    title: `WO-${wo.number} ${workOrderKindLabels[wo.kind]}: ${site.name}`,
+    start: b.startAt,
+    end: b.endAt,
+    summary: `WO-${wo.number} ${workOrderKindLabels[wo.kind]}: ${site.name}`,
     location: [site.address, site.city].filter(Boolean).join(', '),
     geo: { lat: site.lat, lon: site.lon },
     description: [wo.complaint, site.accessNotes ? `Access: ${site.accessNotes}` : null].filter(Boolean).join('\n'),
     ...(visitId ? { url: `${base}/visits/${visitId}` } : {}),
     status: 'CONFIRMED',
-    busyStatus: 'BUSY',
     sequence: b.version,
-    lastModified: utcArray(b.updatedAt),
+    lastModified: b.updatedAt,
   }));
-  const { error, value } = createEvents(events, { productId: '-//Coilpath//My Day//EN', calName: `Coilpath: ${u.name}` });
-  if (error || !value) throw error ?? new Error('calendar feed failed');
-  return value;
+  return writeCalendar({ productId: '-//Coilpath//My Day//EN', name: `Coilpath: ${u.name}`, stamp: ctx.clock.now(), events });
 }

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
+import ICAL from 'ical.js';
 import { eq } from 'drizzle-orm';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeUser, TEST_PASSWORD } from '../../testing/fixtures';
@@ -33,6 +34,8 @@ beforeAll(async () => {
   const b = await makeBookedVisit(db, { branchId: f.a.id, siteId: far.site.id, unitId: far.unit.id, techId, startAt: '2026-03-10T13:00:00Z', fixed: true, minutes: 60 });
   const c = await makeBookedVisit(db, { branchId: f.a.id, siteId: wide.site.id, unitId: null, techId, startAt: '2026-03-10T15:30:00Z', minutes: 90, workOrder: { kind: 'planned_maintenance' } });
   ids.near = a.visit.id;
+  ids.nearWorkOrder = a.workOrder.id;
+  ids.nearSite = near.site.id;
   ids.far = b.visit.id;
   ids.wide = c.visit.id;
   // Not on the day: a cancelled job, tomorrow's job, another technician's job.
@@ -111,6 +114,29 @@ describe('calendar feed', () => {
     expect(text).toContain('DTSTART:20260310T130000Z');
     expect(text).toContain('Roof hatch key at the front desk');
     expect((await tech.get('/api/day')).body.calendarFeed).toEqual({ active: true, url: made.body.url });
+  });
+
+  it('folds a description full of multi-byte characters at 75 octets; a calendar parser reads it back as written', async () => {
+    const complaint = `Máy nén quá nhiệt — Nguyễn Thị Hương báo lỗi E4 lúc 09:15; Łukasz Żółć: "sprężarka ≥ 2 razy" → ${'ệ€🧊'.repeat(30)}`;
+    await t.ctx.db.update(workOrders).set({ complaint }).where(eq(workOrders.id, ids.nearWorkOrder!));
+    await t.ctx.db.update(sites).set({ name: 'Żabka Śródmieście, Hà Nội' }).where(eq(sites.id, ids.nearSite!));
+    const url = new URL((await tech.post('/api/calendar/token')).body.url);
+    const feed = await request(t.app).get(url.pathname).buffer(true);
+    expect(feed.status).toBe(200);
+    const raw: string = feed.text;
+    expect(raw.endsWith('\r\n')).toBe(true);
+    const encoder = new TextEncoder();
+    for (const line of raw.slice(0, -2).split('\r\n')) {
+      expect(line).not.toMatch(/[\r\n]/);
+      expect(encoder.encode(line).length, line).toBeLessThanOrEqual(75);
+    }
+    const cal = new ICAL.Component(ICAL.parse(raw));
+    const events = cal.getAllSubcomponents('vevent').map((v) => new ICAL.Event(v));
+    const near = events.find((e) => e.description?.startsWith(complaint));
+    expect(near, 'the near booking').toBeDefined();
+    expect(near!.description).toBe(`${complaint}\nAccess: Roof hatch key at the front desk`);
+    expect(near!.summary).toMatch(/^WO-\d+ .+: Żabka Śródmieście, Hà Nội$/);
+    expect(near!.startDate.toJSDate().toISOString()).toBe('2026-03-10T18:00:00.000Z');
   });
 
   it('rotating ends the old URL and revoking ends the feed', async () => {

@@ -1,6 +1,6 @@
-/** CSV (papaparse) and PDF (pdfkit) exports of the Fix Quality report. */
-import Papa from 'papaparse';
-import PDFDocument from 'pdfkit';
+/** CSV (the shared `toCsv` writer) and PDF (the shared `createPdf` setup) exports of the Fix Quality report. */
+import { csvTimestamp, toCsv } from '@coilpath/calc';
+import { createPdf, pdfSlate } from '../../lib/pdf';
 import {
   causeCodeLabels,
   warrantyClaimStatuses,
@@ -53,7 +53,7 @@ const caseColumns = [
   'make',
   'model',
   'causes',
-  'opened_at_utc',
+  'opened_at',
   'visits',
   'labour_hours',
   'labour_cost',
@@ -74,7 +74,10 @@ export interface CsvSources {
   alerts?: ModelAlert[];
 }
 
-/** One table of the report as CSV: a header row and one row per group, case or unchecked unit. */
+/**
+ * One table of the report as CSV: a header row and one row per group, case or unchecked unit. A case's
+ * `opened_at` is written in its branch's time zone with the offset.
+ */
 export function tableCsv(table: FixQualityTable, src: CsvSources): string {
   if (table === 'factoryDefects') {
     const rows = (src.defects?.cases ?? []).map((c) => ({
@@ -86,7 +89,7 @@ export function tableCsv(table: FixQualityTable, src: CsvSources): string {
       make: c.make,
       model: c.model,
       causes: c.causeCodes.map((k) => causeCodeLabels[k]).join('; '),
-      opened_at_utc: c.openedAt,
+      opened_at: csvTimestamp(c.openedAt, c.branchTimeZone),
       visits: c.visits,
       labour_hours: (c.labourMinutes / 60).toFixed(2),
       labour_cost: money(c.labourCostCents),
@@ -98,7 +101,7 @@ export function tableCsv(table: FixQualityTable, src: CsvSources): string {
       claim_amount: money(c.claim.amountCents),
       claim_reference: c.claim.reference ?? '',
     }));
-    return Papa.unparse({ fields: [...caseColumns], data: rows.map((r) => caseColumns.map((k) => r[k])) });
+    return toCsv(caseColumns, rows);
   }
   if (table === 'modelAlerts') {
     const rows = (src.alerts ?? []).flatMap((a) =>
@@ -115,10 +118,10 @@ export function tableCsv(table: FixQualityTable, src: CsvSources): string {
         warranty_end: u.warrantyEnd ?? '',
       })),
     );
-    return Papa.unparse({ fields: [...alertColumns], data: rows.map((r) => alertColumns.map((k) => r[k])) });
+    return toCsv(alertColumns, rows);
   }
   const groups = src.report?.[table] ?? [];
-  return Papa.unparse({ fields: [...groupColumns], data: groups.map(groupRow).map((r) => groupColumns.map((k) => r[k])) });
+  return toCsv(groupColumns, groups.map(groupRow));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -139,57 +142,21 @@ interface PdfInput {
   generatedAt: Date;
 }
 
-/** The whole period's report as a PDF (A4/Letter-neutral margins, Helvetica). */
+/** The whole period's report as a PDF, through the shared setup (Roboto Flex embedded, tagged). */
 export function reportPdf({ report, defects, alerts, branchName, generatedAt }: PdfInput): Promise<Buffer> {
-  const doc = new PDFDocument({ size: 'LETTER', margin: 48, info: { Title: `Coilpath Fix Quality ${report.period.from} to ${report.period.to}`, Author: 'Coilpath' } });
-  const chunks: Buffer[] = [];
-  doc.on('data', (c: Buffer) => chunks.push(c));
-  const done = new Promise<Buffer>((resolve, reject) => {
-    doc.on('end', () => resolve(Buffer.concat(chunks)));
-    doc.on('error', reject);
-  });
-  const width = doc.page.width - 96;
-  const ink = '#17212B';
-  const slate = '#5B6B7A';
+  const title = `Coilpath Fix Quality ${report.period.from} to ${report.period.to}`;
+  const pdf = createPdf({ title, subject: `Fix Quality, ${branchName}`, createdAt: generatedAt, margin: 48 });
 
-  doc.fillColor(ink).font('Helvetica-Bold').fontSize(18).text('Fix Quality');
-  doc.font('Helvetica').fontSize(10).fillColor(slate)
-    .text(`${branchName} · ${report.period.from} to ${report.period.to} (UTC dates) · compared with ${report.previousPeriod.from} to ${report.previousPeriod.to}`)
-    .text(`Generated ${generatedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC by Coilpath`);
-  doc.moveDown();
+  pdf.heading('Fix Quality', 1, { size: 18 });
+  pdf.paragraph(
+    `${branchName} · ${report.period.from} to ${report.period.to} (UTC dates) · compared with ${report.previousPeriod.from} to ${report.previousPeriod.to}`,
+    { color: pdfSlate },
+  );
+  pdf.paragraph(`Generated ${generatedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC by Coilpath`, { color: pdfSlate });
+  pdf.doc.moveDown();
 
-  const heading = (t: string) => {
-    if (doc.y > doc.page.height - 140) doc.addPage();
-    doc.moveDown(0.6).fillColor(ink).font('Helvetica-Bold').fontSize(12).text(t).moveDown(0.3);
-  };
-
-  const table = (headers: string[], widths: number[], body: string[][]) => {
-    const total = widths.reduce((a, b) => a + b, 0);
-    const w = widths.map((x) => (x / total) * width);
-    const drawRow = (cells: string[], bold: boolean) => {
-      if (doc.y > doc.page.height - 64) doc.addPage();
-      const y = doc.y;
-      let x = 48;
-      let h = 0;
-      doc.font(bold ? 'Helvetica-Bold' : 'Helvetica').fontSize(8.5).fillColor(ink);
-      cells.forEach((c, i) => {
-        const cw = w[i]!;
-        doc.text(c, x + 2, y, { width: cw - 4, align: i === 0 ? 'left' : 'right' });
-        h = Math.max(h, doc.y - y);
-        x += cw;
-      });
-      doc.y = y + h + 3;
-      doc.x = 48;
-      doc.moveTo(48, doc.y - 1.5).lineTo(48 + width, doc.y - 1.5).lineWidth(0.4).strokeColor('#D5DDE4').stroke();
-    };
-    drawRow(headers, true);
-    for (const r of body) drawRow(r, false);
-    if (body.length === 0) doc.font('Helvetica-Oblique').fontSize(9).fillColor(slate).text('Nothing in this period.', 48);
-    doc.x = 48;
-  };
-
-  heading('Headline');
-  table(
+  pdf.heading('Headline');
+  pdf.table(
     ['Figure', 'This period', 'Previous period', 'Change'],
     [3, 2, 2, 2],
     [
@@ -210,18 +177,19 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
       ['Service calls counted', String(report.eligible), String(report.previous.eligible), signed(report.change.eligible, 0)],
     ],
   );
-  doc.moveDown(0.4).font('Helvetica').fontSize(8.5).fillColor(slate).text(
+  pdf.doc.moveDown(0.4);
+  pdf.paragraph(
     `How these are counted: a service call counts when its first visit was not declined. It is fixed the first time when that visit ` +
       `resolved it and no return visit or callback was opened within the branch's callback window (${report.windowDays.join(' / ') || 30} days) ` +
       `after the visit closed. The callback rate divides the calls with a callback inside the window by the calls resolved on the first visit. ` +
       `Days to resolve run from the call being opened to the close of its last visit (including follow-ups), for calls that ended resolved. ` +
       `The period holds the calls whose first visit closed within it (UTC dates).`,
-    { width },
+    { size: 8.5, color: pdfSlate },
   );
 
   const groupTable = (title: string, groups: FixQualityGroup[], limit = 30) => {
-    heading(title);
-    table(
+    pdf.heading(title);
+    pdf.table(
       ['', 'Calls', 'First-time fix', 'Callbacks', 'Callback rate', 'Return visits / call', 'Days to resolve'],
       [4, 1.2, 1.8, 1.4, 1.6, 1.8, 1.6],
       groups.slice(0, limit).map((g) => [
@@ -233,8 +201,9 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
         g.returnVisitsPerServiceCall?.toFixed(2) ?? '—',
         g.avgDaysToResolve?.toFixed(1) ?? '—',
       ]),
+      { empty: 'Nothing in this period.' },
     );
-    if (groups.length > limit) doc.font('Helvetica-Oblique').fontSize(8).fillColor(slate).text(`… and ${groups.length - limit} more (see the CSV export).`, 48);
+    if (groups.length > limit) pdf.paragraph(`… and ${groups.length - limit} more (see the CSV export).`, { size: 8, color: pdfSlate });
   };
   groupTable('By branch', report.byBranch);
   groupTable('By month (UTC)', report.byMonth);
@@ -243,8 +212,8 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
   groupTable('By cause', report.byCause);
   groupTable('By cause origin', report.byOrigin);
 
-  heading('Factory-defect review');
-  table(
+  pdf.heading('Factory-defect review');
+  pdf.table(
     ['Make and model', 'Cases', 'Units', 'Sites', 'Labour h', 'Refrigerant lb', 'Cost', 'Paid'],
     [3.5, 1, 1, 1, 1.3, 1.6, 1.6, 1.6],
     defects.models.map((m) => [
@@ -257,13 +226,17 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
       usd(m.costCents),
       usd(m.paidCents),
     ]),
+    { empty: 'Nothing in this period.' },
   );
   const byStatus = Object.fromEntries(warrantyClaimStatuses.map((s) => [s, defects.cases.filter((c) => c.claim.status === s).length]));
-  doc.moveDown(0.3).font('Helvetica').fontSize(8.5).fillColor(slate)
-    .text(`Warranty claims: ${byStatus.to_claim} to claim, ${byStatus.claimed} claimed, ${byStatus.paid} paid, ${byStatus.denied} denied.`, 48);
+  pdf.doc.moveDown(0.3);
+  pdf.paragraph(`Warranty claims: ${byStatus.to_claim} to claim, ${byStatus.claimed} claimed, ${byStatus.paid} paid, ${byStatus.denied} denied.`, {
+    size: 8.5,
+    color: pdfSlate,
+  });
 
-  heading('Model alerts');
-  table(
+  pdf.heading('Model alerts');
+  pdf.table(
     ['Make and model', 'Cause', 'Sites with defect', 'Units of model', 'Checked', 'Not yet checked'],
     [3, 2.2, 1.5, 1.5, 1.2, 1.5],
     alerts.map((a) => [
@@ -274,9 +247,9 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
       String(a.checkedUnits),
       String(a.unchecked.length),
     ]),
+    { empty: 'Nothing in this period.' },
   );
-  doc.end();
-  return done;
+  return pdf.finish();
 }
 
 export const csvFileName = (table: FixQualityTable, from: string, to: string) =>

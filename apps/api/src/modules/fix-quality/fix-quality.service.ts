@@ -312,6 +312,7 @@ interface CaseRow {
   kind: WorkOrderKind;
   branch_id: string;
   branch_name: string;
+  branch_time_zone: string;
   currency: string;
   labour_rate_cents: number;
   refrigerant_price_cents_per_lb: number;
@@ -382,7 +383,7 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
       FROM refrigerant_events re JOIN visits v ON v.id = re.visit_id JOIN case_work cw ON cw.wo_id = v.work_order_id
       GROUP BY cw.case_id
     )
-    SELECT w.id, w.number, w.kind, w.branch_id, b.name AS branch_name, b.currency, b.labour_rate_cents,
+    SELECT w.id, w.number, w.kind, w.branch_id, b.name AS branch_name, b.time_zone AS branch_time_zone, b.currency, b.labour_rate_cents,
       b.refrigerant_price_cents_per_lb, w.site_id, s.name AS site_name, u.id AS unit_id, u.tag AS unit_tag,
       u.make, u.model, c.causes, w.created_at, w.origin_work_order_id,
       l.visits, l.labour_minutes, g.refrigerant_lb,
@@ -417,6 +418,7 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
       kind: r.kind,
       branchId: r.branch_id,
       branchName: r.branch_name,
+      branchTimeZone: r.branch_time_zone,
       currency: r.currency,
       siteId: r.site_id,
       siteName: r.site_name,

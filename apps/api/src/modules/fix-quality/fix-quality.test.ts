@@ -1,11 +1,13 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
+import Papa from 'papaparse';
 import { and, eq } from 'drizzle-orm';
 import { addDays, zonedDate, zonedInstant } from '@coilpath/calc';
 import type { CauseCode, CauseOrigin, FixQualityReport, ModelAlert, VisitOutcome, WorkOrderKind } from '@coilpath/contract';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeUser, TEST_PASSWORD } from '../../testing/fixtures';
-import { branches, findings, refrigerantEvents, units, visits, workOrders } from '../../db/schema';
+import { branches, findings, refrigerantEvents, sites, units, users, visits, workOrders } from '../../db/schema';
+import { pdfFontNames, readPdf } from '../../testing/pdf-text';
 
 /**
  * A hand-built fixture whose figures are worked out by hand below. Period: 1–31 March 2026 (UTC dates);
@@ -471,23 +473,70 @@ describe('model alerts', () => {
 });
 
 describe('exports', () => {
+  /** What a spreadsheet import reads: the bytes as UTF-8 (BOM first), lines on CRLF, papaparse. */
+  const readCsv = (raw: Buffer) => {
+    expect([...raw.subarray(0, 3)]).toEqual([0xef, 0xbb, 0xbf]);
+    const text = raw.toString('utf8').slice(1);
+    expect(text.endsWith('\r\n')).toBe(true);
+    expect(text.replace(/"[^"]*"/g, '').match(/(?<!\r)\n/g)).toBeNull();
+    return Papa.parse<Record<string, string>>(text, { header: true, skipEmptyLines: true }).data;
+  };
+  const bytes = (r: request.Test) =>
+    r.buffer(true).parse((res, cb) => {
+      const chunks: Buffer[] = [];
+      res.on('data', (c: Buffer) => chunks.push(c));
+      res.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+
   it('exports a table as CSV with its header and one row per group', async () => {
     const res = await (await owner()).get('/api/reports/fix-quality.csv?from=2026-03-01&to=2026-03-31&table=byTechnician');
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toMatch(/text\/csv/);
     expect(res.headers['content-disposition']).toContain('coilpath-fix-quality-byTechnician-2026-03-01-to-2026-03-31.csv');
-    const lines = res.text.trim().split(/\r?\n/);
+    const lines = res.text.replace(/^\uFEFF/, '').trim().split(/\r\n/);
     expect(lines[0]).toBe(
       'group,service_calls_eligible,first_time_fixed,first_time_fix_rate_pct,resolved_first_visits,callbacks,callback_rate_pct,return_visits,return_visits_per_service_call,jobs_resolved,avg_days_to_resolve',
     );
     expect(lines).toHaveLength(1 + 3); // TA1, TA2, TB1
   });
 
-  it('exports the factory-defect cases as CSV', async () => {
-    const res = await (await owner()).get('/api/reports/fix-quality.csv?from=2026-03-01&to=2026-03-31&table=factoryDefects');
-    const lines = res.text.trim().split(/\r?\n/);
-    expect(lines[0]!.startsWith('work_order,kind,branch,site,unit,make,model,causes')).toBe(true);
+  it('writes UTF-8 with a BOM and CRLF, the same figures as the report, names as written', async () => {
+    const db = t.ctx.db;
+    await db.update(users).set({ name: 'Łukasz Żółć' }).where(eq(users.id, fx.ta1.id));
+    await db.update(users).set({ name: 'Nguyễn Thị Hương' }).where(eq(users.id, fx.tb1.id));
+    const agent = await owner();
+    const report = (await agent.get(Q)).body as FixQualityReport;
+    const rows = readCsv((await bytes(agent.get('/api/reports/fix-quality.csv?from=2026-03-01&to=2026-03-31&table=byTechnician'))).body as Buffer);
+    expect(rows.map((r) => r.group).sort()).toEqual(report.byTechnician.map((g) => g.label).sort());
+    expect(rows.map((r) => r.group)).toEqual(expect.arrayContaining(['Łukasz Żółć', 'Nguyễn Thị Hương']));
+    for (const g of report.byTechnician) {
+      const r = rows.find((x) => x.group === g.label)!;
+      expect(Number(r.service_calls_eligible)).toBe(g.eligible);
+      expect(r.first_time_fix_rate_pct).toBe(g.firstTimeFixRate === null ? '' : (g.firstTimeFixRate * 100).toFixed(1));
+      expect(r.return_visits_per_service_call).toBe(g.returnVisitsPerServiceCall === null ? '' : g.returnVisitsPerServiceCall.toFixed(2));
+    }
+  });
+
+  it('exports the factory-defect cases as CSV, opened_at in the branch zone with its offset, formulae neutralised', async () => {
+    await t.ctx.db.update(sites).set({ name: '=HYPERLINK("http://x.example","Roof")' }).where(eq(sites.id, fx.u1.site.id));
+    const agent = await owner();
+    const res = await bytes(agent.get('/api/reports/fix-quality.csv?from=2026-03-01&to=2026-03-31&table=factoryDefects'));
+    const raw = res.body as Buffer;
+    const lines = raw.toString('utf8').slice(1).trim().split(/\r\n/);
+    expect(lines[0]!.startsWith('work_order,kind,branch,site,unit,make,model,causes,opened_at,')).toBe(true);
     expect(lines).toHaveLength(1 + 3);
+    const rows = readCsv(raw);
+    const review = (await agent.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31')).body as { cases: { number: number | null; openedAt: string; branchName: string; siteName: string }[] };
+    for (const c of review.cases) {
+      const r = rows.find((x) => x.work_order === `WO-${c.number}`)!;
+      const zone = c.branchName === 'Alpha' ? 'America/Chicago' : 'America/Phoenix';
+      // The same instant, written in the branch's zone with its offset (CST −06:00 in March before the change, MST −07:00).
+      expect(r.opened_at).toMatch(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}[+-]\d{2}:\d{2}$/);
+      expect(new Date(r.opened_at!).toISOString()).toBe(new Date(c.openedAt).toISOString());
+      expect(r.opened_at!.slice(-6)).toBe(zone === 'America/Phoenix' ? '-07:00' : new Date(c.openedAt) < new Date('2026-03-08T08:00:00Z') ? '-06:00' : '-05:00');
+      if (c.siteName.startsWith('=')) expect(r.site).toBe(`'${c.siteName}`);
+    }
+    expect(rows.some((r) => r.site === `'=HYPERLINK("http://x.example","Roof")`)).toBe(true);
   });
 
   it('refuses an unknown table and a technician', async () => {
@@ -496,18 +545,31 @@ describe('exports', () => {
     expect((await tech.get('/api/reports/fix-quality.csv?from=2026-03-01&to=2026-03-31&table=byBranch')).status).toBe(403);
   });
 
-  it('exports the whole period as a PDF', async () => {
-    const res = await (await owner())
-      .get('/api/reports/fix-quality.pdf?from=2026-03-01&to=2026-03-31')
-      .buffer(true)
-      .parse((r, cb) => {
-        const chunks: Buffer[] = [];
-        r.on('data', (c: Buffer) => chunks.push(c));
-        r.on('end', () => cb(null, Buffer.concat(chunks)));
-      });
+  it('exports the whole period as a tagged PDF in Roboto Flex whose text is the report, names as written', async () => {
+    const agent = await owner();
+    const res = await bytes(agent.get('/api/reports/fix-quality.pdf?from=2026-03-01&to=2026-03-31'));
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toBe('application/pdf');
-    expect((res.body as Buffer).subarray(0, 5).toString()).toBe('%PDF-');
-    expect((res.body as Buffer).length).toBeGreaterThan(2000);
+    const pdf = res.body as Buffer;
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+    for (const font of pdfFontNames(pdf)) expect(font).toMatch(/\+RobotoFlex-Regular$/);
+    const read = await readPdf(pdf);
+    expect(read.title).toBe('Coilpath Fix Quality 2026-03-01 to 2026-03-31');
+    expect(read.displayDocTitle).toBe(true);
+    expect(read.language).toBe('en-US');
+    expect(read.marked).toBe(true);
+    expect(read.roles).toEqual(expect.arrayContaining(['Document', 'H1', 'H2', 'Table', 'TR', 'TH', 'TD', 'P']));
+    const report = (await agent.get(Q)).body as FixQualityReport;
+    const pct = (r: number | null) => (r === null ? '—' : `${(r * 100).toFixed(1)} %`);
+    const row = (cells: string[]) => new RegExp(cells.map((c) => c.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')).join('\\s*'));
+    // Every technician's row, as the report's JSON has it.
+    expect(report.byTechnician.map((g) => g.label)).toEqual(expect.arrayContaining(['Łukasz Żółć', 'Nguyễn Thị Hương']));
+    for (const g of report.byTechnician) {
+      expect(read.flat).toMatch(row([g.label, String(g.eligible), pct(g.firstTimeFixRate), String(g.callbacks), pct(g.callbackRate)]));
+    }
+    // The headline's change column keeps its sign: a real minus sign (U+2212) or a plus.
+    const d = report.change.firstTimeFixRate;
+    if (d !== null) expect(read.flat).toContain(`${d >= 0 ? '+' : '−'}${Math.abs(d * 100).toFixed(1)} pts`);
+    expect(read.flat).not.toContain('\uFFFD');
   });
 });

@@ -16,10 +16,12 @@ export function outboxRoutes(ctx: AppContext): Router {
       const rows = await ctx.db
         .select({
           id: mailOutbox.id,
+          messageId: mailOutbox.messageId,
           from: mailOutbox.from,
           to: mailOutbox.to,
           subject: mailOutbox.subject,
           text: mailOutbox.text,
+          html: mailOutbox.html,
           attachments: mailOutbox.attachments,
           receivedAt: mailOutbox.receivedAt,
         })

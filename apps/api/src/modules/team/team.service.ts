@@ -10,6 +10,7 @@ import {
   type UserRow,
   type usersQuerySchema,
 } from '@coilpath/contract';
+import { composeMail, mail, mailTime } from '../../mail/compose';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { branches, invitations, users } from '../../db/schema';
@@ -217,23 +218,21 @@ export async function listInvitations(ctx: AppContext): Promise<InvitationRow[]>
   }));
 }
 
-async function sendInvitationMail(ctx: AppContext, to: { email: string; name: string; role: UserProfile['role']; branchName: string | null }, link: string, expiresAt: Date, inviter: string) {
-  const where = to.branchName ? ` at ${to.branchName}` : '';
-  await ctx.mailer.send({
-    to: to.email,
-    subject: `${inviter} invited you to Coilpath`,
-    text: [
-      `Hello ${to.name},`,
-      '',
-      `${inviter} invited you to Coilpath as ${roleLabels[to.role].toLowerCase()}${where}.`,
-      'Open this link to choose your password and sign in:',
-      '',
-      link,
-      '',
-      `The link works once and expires on ${expiresAt.toUTCString()}.`,
-      'If you did not expect this invitation, ignore this message.',
-    ].join('\n'),
-  });
+/**
+ * The invitation e-mail (text and HTML). The expiry is written in the invitee's branch time zone; an
+ * owner belongs to no branch, so theirs is in UTC, labelled as such.
+ */
+async function sendInvitationMail(ctx: AppContext, to: { email: string; name: string; role: UserProfile['role']; branchId: string | null }, link: string, expiresAt: Date, inviter: string) {
+  const [branch] = to.branchId ? await ctx.db.select({ name: branches.name, timeZone: branches.timeZone }).from(branches).where(eq(branches.id, to.branchId)) : [];
+  const where = branch ? ` at ${branch.name}` : '';
+  const message = composeMail(`${inviter} invited you to Coilpath`, [
+    mail.p(`Hello ${to.name},`),
+    mail.p(`${inviter} invited you to Coilpath as ${roleLabels[to.role].toLowerCase()}${where}.`),
+    mail.link(link, 'Choose your password and sign in'),
+    mail.p(`The link works once and expires on ${mailTime(expiresAt, branch?.timeZone)}.`),
+    mail.p('If you did not expect this invitation, ignore this message.', true),
+  ]);
+  await ctx.mailer.send({ to: to.email, ...message });
 }
 
 async function issueInvitationToken(ctx: AppContext) {
@@ -260,8 +259,7 @@ export async function createInvitation(ctx: AppContext, actor: SessionUser, emai
       .returning({ id: invitations.id });
     return row!.id;
   });
-  const branchName = profile.branchId ? ((await ctx.db.select({ name: branches.name }).from(branches).where(eq(branches.id, profile.branchId)))[0]?.name ?? null) : null;
-  await sendInvitationMail(ctx, { email, name: profile.name, role: profile.role, branchName }, link, expiresAt, actor.name);
+  await sendInvitationMail(ctx, { email, name: profile.name, role: profile.role, branchId: profile.branchId }, link, expiresAt, actor.name);
   return (await listInvitations(ctx)).find((i) => i.id === id)!;
 }
 
@@ -271,8 +269,7 @@ export async function resendInvitation(ctx: AppContext, actor: SessionUser, id: 
   if (inv.usedAt) throw conflict('link_used', `${inv.email} already accepted this invitation.`);
   const { hash, link, expiresAt } = await issueInvitationToken(ctx);
   await ctx.db.update(invitations).set({ tokenHash: hash, expiresAt, revokedAt: null }).where(eq(invitations.id, id));
-  const branchName = inv.branchId ? ((await ctx.db.select({ name: branches.name }).from(branches).where(eq(branches.id, inv.branchId)))[0]?.name ?? null) : null;
-  await sendInvitationMail(ctx, { email: inv.email, name: inv.name, role: inv.role, branchName }, link, expiresAt, actor.name);
+  await sendInvitationMail(ctx, { email: inv.email, name: inv.name, role: inv.role, branchId: inv.branchId }, link, expiresAt, actor.name);
   return (await listInvitations(ctx)).find((i) => i.id === id)!;
 }
 

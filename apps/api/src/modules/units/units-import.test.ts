@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { count, eq, inArray } from 'drizzle-orm';
 import Papa from 'papaparse';
+import iconv from 'iconv-lite';
 import { unitImportColumns, unitImportExample } from '@coilpath/contract';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
@@ -34,7 +35,7 @@ describe('POST /api/units/import', () => {
 
     const dry = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv });
     expect(dry.status).toBe(200);
-    expect(dry.body).toEqual({ mode: 'dry-run', rowCount: 3, validCount: 3, errors: [], created: 0 });
+    expect(dry.body).toEqual({ mode: 'dry-run', encoding: 'UTF-8', rowCount: 3, validCount: 3, errors: [], created: 0 });
     expect(await unitsAt(site.id)).toBe(1);
 
     const commit = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', csv });
@@ -142,5 +143,74 @@ describe('POST /api/units/import', () => {
     expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv })).status).toBe(404);
     const tech = await signedInAgent(t.app, f.inB.technician.email, TEST_PASSWORD);
     expect((await tech.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv })).status).toBe(403);
+  });
+});
+
+describe('POST /api/units/import: what the file is encoded in', () => {
+  const polishRow = (i: number) => row(i, { make: 'Kältetechnik Łódź', notes: 'Dach — strona północna; sprężarka “A”' });
+
+  it('converts a spreadsheet’s legacy Windows-1252 export sent as bytes, and stores it as typed', async () => {
+    const { site } = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    const csv = [header, row(301, { make: 'Kältetechnik', notes: 'Café roof — “north” side; 5 €' })].join('\r\n');
+    const file = iconv.encode(csv, 'windows-1252').toString('base64');
+    const dry = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', file });
+    expect(dry.status).toBe(200);
+    expect(dry.body).toMatchObject({ encoding: 'windows-1252', rowCount: 1, validCount: 1, errors: [] });
+    const commit = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file });
+    expect(commit.status).toBe(200);
+    const [u] = await t.ctx.db.select().from(units).where(eq(units.serial, 'IMP-301'));
+    expect(u).toMatchObject({ make: 'Kältetechnik', notes: 'Café roof — “north” side; 5 €' });
+  });
+
+  it('converts a Central European (Windows-1250) export with Polish names', async () => {
+    const { site } = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    const file = iconv.encode([header, polishRow(311)].join('\r\n'), 'windows-1250').toString('base64');
+    const res = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file });
+    expect(res.status).toBe(200);
+    expect(res.body.encoding).toBe('windows-1250');
+    const [u] = await t.ctx.db.select().from(units).where(eq(units.serial, 'IMP-311'));
+    expect(u).toMatchObject({ make: 'Kältetechnik Łódź', notes: 'Dach — strona północna; sprężarka “A”' });
+  });
+
+  it('reads UTF-8 bytes with or without a byte-order mark as they are', async () => {
+    const { site } = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    const text = [header, row(321, { notes: 'Nguyễn Thị Hương; Łukasz Żółć' })].join('\r\n');
+    for (const bytes of [Buffer.from(text, 'utf8'), Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), Buffer.from(text, 'utf8')])]) {
+      const res = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', file: bytes.toString('base64') });
+      expect(res.status).toBe(200);
+      expect(res.body).toMatchObject({ encoding: 'UTF-8', rowCount: 1, validCount: 1 });
+    }
+    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: Buffer.from(text).toString('base64') })).status).toBe(200);
+    const [u] = await t.ctx.db.select().from(units).where(eq(units.serial, 'IMP-321'));
+    expect(u!.notes).toBe('Nguyễn Thị Hương; Łukasz Żółć');
+  });
+
+  it('refuses what it cannot read, with the way forward, and stores nothing — never a U+FFFD', async () => {
+    const { site } = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    const before = await unitsAt(site.id);
+    // Text a client decoded with the wrong encoding: the accents became U+FFFD.
+    const mangled = new TextDecoder('utf-8').decode(iconv.encode([header, polishRow(331)].join('\n'), 'windows-1250'));
+    expect(mangled).toContain('\uFFFD');
+    const asText = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', csv: mangled });
+    expect(asText.status).toBe(400);
+    expect(asText.body.error.code).toBe('not_utf8');
+    expect(asText.body.error.message).toMatch(/could not be read.*CSV UTF-8/);
+    // Japanese Shift_JIS: not a Latin code page Coilpath converts.
+    const sjis = iconv.encode([header, row(332, { notes: '東京の屋上ユニット、北側の機械室の隣にあります' })].join('\n'), 'shift_jis').toString('base64');
+    const japanese = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: sjis });
+    expect(japanese.status).toBe(400);
+    expect(japanese.body.error.code).toBe('not_utf8');
+    expect(japanese.body.error.message).toContain('Shift_JIS');
+    expect(japanese.body.error.message).toContain('save it as "CSV UTF-8 (comma delimited)"');
+    // Says UTF-8 (byte-order mark) but is not.
+    const lying = Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), iconv.encode([header, polishRow(333)].join('\n'), 'windows-1250')]).toString('base64');
+    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: lying })).body.error.code).toBe('not_utf8');
+    // Both or neither of csv and file; a file that is not base64.
+    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run' })).status).toBe(400);
+    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv: header, file: 'AAAA' })).status).toBe(400);
+    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', file: 'not base64!' })).status).toBe(400);
+    expect(await unitsAt(site.id)).toBe(before);
+    const stored = await t.ctx.db.select({ make: units.make, notes: units.notes }).from(units);
+    for (const u of stored) expect(`${u.make}${u.notes ?? ''}`).not.toContain('\uFFFD');
   });
 });

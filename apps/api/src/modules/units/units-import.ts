@@ -23,6 +23,7 @@ import type { AppContext } from '../../context';
 import { circuits, sites, units } from '../../db/schema';
 import { badRequest, conflict, HttpError } from '../../lib/errors';
 import { getSite } from '../sites/sites.service';
+import { importText } from '../../lib/text-file';
 
 const squash = (s: string) => s.toLowerCase().replace(/[^a-z0-9]/g, '');
 
@@ -229,7 +230,8 @@ const byRow = (a: UnitImportRowError, b: UnitImportRowError) => a.row - b.row;
 export async function importUnits(ctx: AppContext, user: SessionUser, input: UnitImportRequest): Promise<UnitImportResult> {
   const site = await getSite(ctx.db, user, input.siteId);
   if (site.archivedAt) throw conflict('site_archived', `${site.name} is archived. Unarchive the site before importing units.`);
-  const parsed = parseUnitCsv(input.csv);
+  const { text, encoding } = importText(input);
+  const parsed = parseUnitCsv(text);
   if (parsed.rowCount === 0) throw notACsv('The file has a header row but no units under it.');
 
   const existing = await existingSerials(ctx.db, parsed.units);
@@ -244,6 +246,7 @@ export async function importUnits(ctx: AppContext, user: SessionUser, input: Uni
   const badRows = new Set(errors.map((e) => e.row));
   const result: UnitImportResult = {
     mode: input.mode,
+    encoding,
     rowCount: parsed.rowCount,
     validCount: parsed.rowCount - badRows.size,
     errors,

@@ -9,7 +9,7 @@ import { conflict, forbidden } from '../../lib/errors';
 import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
 import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
-import { summaryPdf, summarySections, summaryText } from './summary';
+import { summaryMail, summaryPdf, summarySections } from './summary';
 import { visitDetail } from './visits.service';
 
 type Input = z.output<typeof closeVisitSchema>;
@@ -156,11 +156,10 @@ export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: s
   try {
     const detail = await visitDetail(ctx.db, user, visitId);
     const s = summarySections(detail);
-    const pdf = await summaryPdf(s);
+    const pdf = await summaryPdf(s, ctx.clock.now());
     await ctx.mailer.send({
       to,
-      subject: s.title,
-      text: summaryText(s),
+      ...summaryMail(s),
       attachments: [{ filename: `service-summary-WO-${detail.workOrder.number ?? 'visit'}.pdf`, content: pdf, contentType: 'application/pdf' }],
     });
     await ctx.db.update(visits).set({ summarySentAt: ctx.clock.now() }).where(eq(visits.id, visitId));

@@ -52,10 +52,20 @@ describe('service summary through the real SMTP sink', () => {
     expect(m.text).toContain('Wiring fault (origin: Factory defect)');
     expect(m.text).toContain('reported on circuit 1, found on circuit 2');
     expect(m.text).toMatch(/superheat 11\.8 °F/);
+    // The HTML part is caught too, with the same finding, and the Message-ID the outbox shows.
+    expect(m.html).toContain('Wiring fault (origin: Factory defect)');
+    expect(m.messageId).toMatch(/^<.+@.+>$/);
     expect(m.attachments).toHaveLength(1);
     expect(m.attachments[0]).toMatchObject({ contentType: 'application/pdf' });
     expect(m.attachments[0]!.filename).toMatch(/^service-summary-WO-\d+\.pdf$/);
     const pdf = await t.storage.get(m.attachments[0]!.storageKey!);
     expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+
+    // The outbox screen gets both parts and the Message-ID.
+    const owner = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD);
+    const box = await owner.get('/api/outbox');
+    expect(box.status).toBe(200);
+    const listed = (box.body.messages as { id: string }[]).find((x) => x.id === m.id);
+    expect(listed).toMatchObject({ messageId: m.messageId, text: m.text, html: m.html });
   });
 });

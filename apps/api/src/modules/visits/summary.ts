@@ -1,7 +1,4 @@
 /** The service summary a customer receives when a visit closes: plain text and a PDF copy. */
-import PDFDocument from 'pdfkit';
-import { TZDate } from '@date-fns/tz';
-import { format } from 'date-fns';
 import {
   causeCodeLabels,
   causeOriginLabels,
@@ -14,8 +11,11 @@ import {
   type ReadingDto,
   type VisitDetail,
 } from '@coilpath/contract';
+import { createPdf, pdfSlate } from '../../lib/pdf';
+import { composeMail, mail, mailTime, type MailBlock } from '../../mail/compose';
 
-const when = (iso: string | null, tz: string) => (iso ? format(new TZDate(new Date(iso).getTime(), tz), 'EEE d MMM yyyy, HH:mm') : '-');
+/** An instant in the branch's zone, with the zone's name: "Tue 10 Mar 2026, 09:00 CDT". */
+const when = (iso: string | null, tz: string) => (iso ? mailTime(iso, tz) : '-');
 
 /** A reading's lines, every value with its unit symbol (the reading states its units: the branch's system). */
 function readingLines(r: ReadingDto, unitTag: string): string[] {
@@ -83,45 +83,50 @@ export function summarySections(v: VisitDetail): SummarySections {
   };
 }
 
-export function summaryText(s: SummarySections): string {
-  const out: string[] = [s.title, ''];
-  for (const [k, val] of s.facts) out.push(`${k}: ${val}`);
-  out.push('', 'Readings', ...(s.readings.length ? s.readings : ['No readings were recorded.']));
-  out.push('', 'Findings', ...(s.findings.length ? s.findings.map((f) => `- ${f}`) : ['No findings were recorded.']));
-  if (s.refrigerant.length) out.push('', 'Refrigerant', ...s.refrigerant.map((r) => `- ${r}`));
-  out.push('', ...s.outcome);
-  out.push('', 'A PDF copy of this summary is attached.', '', 'Coilpath');
-  return out.join('\n');
+/** The summary as e-mail blocks: the same sections as the PDF. */
+export function summaryBlocks(s: SummarySections): MailBlock[] {
+  const blocks: MailBlock[] = [mail.facts(s.facts), mail.heading('Readings')];
+  if (!s.readings.length) blocks.push(mail.p('No readings were recorded.'));
+  // A reading's first line names the unit and circuit; the indented lines below are its values.
+  for (const l of s.readings) blocks.push(mail.p(l.startsWith('  ') ? l.trim() : l));
+  blocks.push(mail.heading('Findings'), s.findings.length ? mail.list(s.findings) : mail.p('No findings were recorded.'));
+  if (s.refrigerant.length) blocks.push(mail.heading('Refrigerant'), mail.list(s.refrigerant));
+  blocks.push(mail.heading('Outcome'), ...s.outcome.map((l) => mail.p(l)));
+  blocks.push(mail.p('A PDF copy of this summary is attached.', true));
+  return blocks;
 }
 
-/** The same summary as a PDF (pdfkit, standard fonts). */
-export function summaryPdf(s: SummarySections): Promise<Buffer> {
-  return new Promise((resolve, reject) => {
-    const doc = new PDFDocument({ size: 'LETTER', margin: 54, info: { Title: s.title, Producer: 'Coilpath' } });
-    const chunks: Buffer[] = [];
-    doc.on('data', (c: Buffer) => chunks.push(c));
-    doc.on('end', () => resolve(Buffer.concat(chunks)));
-    doc.on('error', reject);
-    // Helvetica's WinAnsi set has no U+2212 minus sign: use the hyphen.
-    const t = (x: string) => x.replace(/\u2212/g, '-');
-    doc.font('Helvetica-Bold').fontSize(16).fillColor('#17212B').text(t(s.title));
-    doc.moveDown(0.5);
-    doc.fontSize(10);
-    for (const [k, val] of s.facts) doc.font('Helvetica-Bold').text(`${k}: `, { continued: true }).font('Helvetica').text(t(val));
-    const section = (title: string, lines: string[], empty: string) => {
-      doc.moveDown(0.8).font('Helvetica-Bold').fontSize(12).text(title).fontSize(10).font('Helvetica');
-      if (!lines.length) doc.fillColor('#5B6B7A').text(empty).fillColor('#17212B');
-      for (const l of lines) doc.text(t(l));
-    };
-    section('Readings', s.readings, 'No readings were recorded.');
-    section('Findings', s.findings.map((f) => `- ${f}`), 'No findings were recorded.');
-    if (s.refrigerant.length) section('Refrigerant', s.refrigerant.map((r) => `- ${r}`), '');
-    section('Outcome', s.outcome, '');
-    doc
-      .moveDown(1)
-      .fontSize(8)
-      .fillColor('#5B6B7A')
-      .text('Readings guide diagnosis alongside the equipment manufacturer’s data. Refrigerant work is done under EPA Section 608 certification.'.replace('’', "'"));
-    doc.end();
-  });
+/** The summary e-mail: plain text and HTML from the same blocks. */
+export function summaryMail(s: SummarySections): { subject: string; text: string; html: string } {
+  return composeMail(s.title, summaryBlocks(s));
+}
+
+/** The plain-text part (also what the PDF is checked against). */
+export function summaryText(s: SummarySections): string {
+  return summaryMail(s).text;
+}
+
+/** The same summary as a PDF, through the shared setup (Roboto Flex embedded, tagged for screen readers). */
+export function summaryPdf(s: SummarySections, createdAt?: Date): Promise<Buffer> {
+  const pdf = createPdf({ title: s.title, subject: 'Service summary', createdAt });
+  pdf.heading(s.title, 1);
+  for (const [k, val] of s.facts) pdf.paragraph(val, { lead: `${k}: ` });
+  pdf.heading('Readings');
+  if (!s.readings.length) pdf.paragraph('No readings were recorded.', { color: pdfSlate });
+  for (const l of s.readings) pdf.paragraph(l.trim(), l.startsWith('  ') ? {} : { strong: true });
+  pdf.heading('Findings');
+  if (!s.findings.length) pdf.paragraph('No findings were recorded.', { color: pdfSlate });
+  pdf.list(s.findings);
+  if (s.refrigerant.length) {
+    pdf.heading('Refrigerant');
+    pdf.list(s.refrigerant);
+  }
+  pdf.heading('Outcome');
+  for (const l of s.outcome) pdf.paragraph(l);
+  pdf.doc.moveDown(1);
+  pdf.paragraph(
+    'Readings guide diagnosis alongside the equipment manufacturer’s data. Refrigerant work is done under EPA Section 608 certification.',
+    { size: 8, color: pdfSlate },
+  );
+  return pdf.finish();
 }

@@ -18,6 +18,7 @@ import type { AppContext } from '../../context';
 import { alarms, circuits, sites, units } from '../../db/schema';
 import { assertBranch } from '../../auth/middleware';
 import { HttpError, notFound, unprocessable } from '../../lib/errors';
+import { importText } from '../../lib/text-file';
 import { branchFilter, oneBranch } from './scope';
 
 /** Most rows one import may carry. */
@@ -138,7 +139,8 @@ function readInstant(value: string, timeZone: string): Date | null {
 export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.infer<typeof alarmImportSchema>): Promise<AlarmImportResult> {
   const branch = await oneBranch(ctx.db, user, input.branchId);
   const errors: AlarmImportError[] = [];
-  const parsed = Papa.parse<Record<string, string>>(input.csv.replace(/^\uFEFF/, ''), {
+  const { text, encoding } = importText(input);
+  const parsed = Papa.parse<Record<string, string>>(text, {
     header: true,
     skipEmptyLines: 'greedy',
     transformHeader: (h) => h.trim().toLowerCase().replace(/[\s-]+/g, '_'),
@@ -240,6 +242,7 @@ export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.
   const fresh = rows.filter((r) => !r.duplicate);
   const result: AlarmImportResult = {
     mode: input.mode,
+    encoding,
     total: parsed.data.length,
     rows,
     errors,

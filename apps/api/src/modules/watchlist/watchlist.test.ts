@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import iconv from 'iconv-lite';
 import { and, count, eq } from 'drizzle-orm';
 import { leakRepairObligation } from '@coilpath/calc';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
@@ -273,6 +274,28 @@ describe('alarm CSV import', () => {
     const commit = await mgr.post('/api/alarms/import').send({ csv: ragged, mode: 'commit' });
     expect(commit.status).toBe(422);
     expect(await csvCount()).toBe(0);
+  });
+
+  it('reads a legacy Windows-1252 file sent as bytes, refuses one it cannot read, never stores U+FFFD', async () => {
+    const mgr = await agent(f.inA.manager);
+    const text = 'unit_serial,circuit,code,raised_at\r\nWL-A-1,1,DRUCK-HÖCHST,2026-12-05T10:00:00Z\r\nWL-A-1,2,PRESSÃO-ALTA,2026-12-05T11:00:00Z\r\n';
+    const file = iconv.encode(text, 'windows-1252').toString('base64');
+    const dry = await mgr.post('/api/alarms/import').send({ file, mode: 'dry_run' });
+    expect(dry.status).toBe(200);
+    expect(dry.body).toMatchObject({ encoding: 'windows-1252', errors: [] });
+    expect(dry.body.rows.map((r: { code: string }) => r.code)).toEqual(['DRUCK-HÖCHST', 'PRESSÃO-ALTA']);
+    const commit = await mgr.post('/api/alarms/import').send({ file, mode: 'commit' });
+    expect(commit.status).toBe(200);
+    const stored = await t.ctx.db.select({ code: alarms.code }).from(alarms).where(eq(alarms.source, 'csv'));
+    expect(stored.map((a) => a.code).sort()).toEqual(['DRUCK-HÖCHST', 'PRESSÃO-ALTA']);
+    // The same file read as UTF-8 by a client: replacement characters, refused.
+    const mangled = new TextDecoder('utf-8').decode(iconv.encode(text.replace('05T1', '06T1'), 'windows-1252'));
+    const refused = await mgr.post('/api/alarms/import').send({ csv: mangled, mode: 'commit' });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.code).toBe('not_utf8');
+    expect(await csvCount()).toBe(2);
+    for (const a of await t.ctx.db.select({ code: alarms.code }).from(alarms)) expect(a.code).not.toContain('\uFFFD');
+    await t.ctx.db.delete(alarms).where(eq(alarms.source, 'csv'));
   });
 
   it('one bad row among good ones: the preview names it with its row; commit writes nothing; a clean file then imports once', async () => {

@@ -9,10 +9,12 @@ import { useBranch } from '@/app/branch';
 
 interface OutboxMessage {
   id: string;
+  messageId: string | null;
   from: string;
   to: string;
   subject: string;
   text: string | null;
+  html: string | null;
   receivedAt: string;
   attachments: { index: number; filename: string; contentType: string; size: number }[];
 }
@@ -53,9 +55,31 @@ export default function OutboxPage() {
                 </button>
                 {open === m.id && (
                   <div className="mt-3 border-t border-slate-line pt-3">
-                    <pre className="whitespace-pre-wrap font-sans text-sm">{m.text ?? '(no text part)'}</pre>
+                    <dl className="mb-3 grid grid-cols-[auto_1fr] gap-x-3 gap-y-1 text-sm">
+                      <dt className="text-slate">From</dt>
+                      <dd className="break-all">{m.from}</dd>
+                      <dt className="text-slate">Message-ID</dt>
+                      <dd className="break-all font-mono text-xs leading-5">{m.messageId ?? 'none recorded'}</dd>
+                    </dl>
+                    <div className="grid gap-3 lg:grid-cols-2">
+                      <section aria-label={`Plain-text part of ${m.subject}`}>
+                        <h3 className="mb-1 text-sm font-semibold">Plain text</h3>
+                        <pre className="max-h-96 overflow-auto whitespace-pre-wrap rounded border border-slate-line bg-frost p-3 font-sans text-sm">
+                          {m.text ?? 'This message has no plain-text part.'}
+                        </pre>
+                      </section>
+                      <section aria-label={`HTML part of ${m.subject}`}>
+                        <h3 className="mb-1 text-sm font-semibold">HTML</h3>
+                        {m.html ? (
+                          // Shown as sent, in a sandbox: no scripts, no forms, no access to Coilpath's page.
+                          <iframe title={`HTML part of ${m.subject}`} sandbox="" srcDoc={m.html} className="h-96 w-full rounded border border-slate-line bg-white" />
+                        ) : (
+                          <p className="text-sm text-slate">This message has no HTML part.</p>
+                        )}
+                      </section>
+                    </div>
                     {m.attachments.length > 0 && (
-                      <ul className="mt-3 flex flex-wrap gap-2">
+                      <ul aria-label="Attachments" className="mt-3 flex flex-wrap gap-2">
                         {m.attachments.map((a) => (
                           <li key={a.index}>
                             <a

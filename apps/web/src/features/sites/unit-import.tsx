@@ -12,6 +12,7 @@ import {
 } from '@coilpath/contract';
 import { api, ApiError, errorMessage } from '@/lib/api-client';
 import { downloadCsv } from '@/lib/csv';
+import { bytesToBase64, convertedNote, decodeAs } from '@/lib/file-bytes';
 import { Button } from '@/components/ui/button';
 import { Badge } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
@@ -19,8 +20,8 @@ import { useInvalidateSites } from './api';
 
 type Phase =
   | { kind: 'idle' }
-  | { kind: 'reading'; fraction: number; rows: number }
-  | { kind: 'checking'; rows: number }
+  | { kind: 'reading'; rows: number }
+  | { kind: 'checking'; rows: number | null }
   | { kind: 'checked'; result: UnitImportResult }
   | { kind: 'importing'; rows: number }
   | { kind: 'failed'; message: string };
@@ -55,8 +56,9 @@ function Progress({ label, fraction }: { label: string; fraction?: number }) {
 }
 
 /**
- * Equipment import for one site: the file is read with papaparse (progress shown for large files),
- * checked by the server without writing (every bad row with its reason), then imported all-or-nothing.
+ * Equipment import for one site: the file's bytes go to the server, which reads their encoding (a
+ * spreadsheet's older Windows encoding is converted, an unreadable file refused) and checks every row
+ * without writing; the preview shows the rows as the server read them; then all-or-nothing import.
  */
 export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void }) {
   const notify = useNotify();
@@ -64,51 +66,58 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
   const [phase, setPhase] = useState<Phase>({ kind: 'idle' });
   const [fileName, setFileName] = useState<string | null>(null);
   const [onlyProblems, setOnlyProblems] = useState(true);
-  const text = useRef<string>('');
+  /** The file's bytes, base64: what is checked is what is imported. */
+  const fileData = useRef<string>('');
+  const [encoding, setEncoding] = useState<string | null>(null);
   const rows = useRef<Record<string, string>[]>([]);
 
   async function read(file: File) {
     setFileName(file.name);
     rows.current = [];
+    setEncoding(null);
     if (file.size > unitImportLimits.maxBytes) {
       setPhase({ kind: 'failed', message: `${file.name} is larger than 6 MB. Split it into smaller files.` });
       return;
     }
-    setPhase({ kind: 'reading', fraction: 0, rows: 0 });
+    setPhase({ kind: 'reading', rows: 0 });
+    let bytes: ArrayBuffer;
     try {
-      text.current = await file.text();
-      await new Promise<void>((resolve, reject) => {
-        Papa.parse<Record<string, string>>(file, {
-          header: true,
-          skipEmptyLines: 'greedy',
-          transformHeader: normalizeImportHeader,
-          chunkSize: 256 * 1024,
-          chunk: (res) => {
-            rows.current.push(...res.data);
-            setPhase({ kind: 'reading', fraction: Math.min(1, res.meta.cursor / Math.max(1, file.size)), rows: rows.current.length });
-          },
-          complete: () => resolve(),
-          error: (err) => reject(err),
-        });
-      });
+      bytes = await file.arrayBuffer();
+      fileData.current = bytesToBase64(bytes);
     } catch (e) {
       setPhase({ kind: 'failed', message: `${file.name} could not be read: ${errorMessage(e)}` });
       return;
     }
-    setPhase({ kind: 'checking', rows: rows.current.length });
+    // The server reads the bytes (UTF-8, or a spreadsheet's older encoding it converts) and checks every row.
+    setPhase({ kind: 'checking', rows: null });
+    let result: UnitImportResult;
     try {
-      const result = await api.post<UnitImportResult>('/api/units/import', { siteId: site.id, mode: 'dry-run', csv: text.current });
-      setPhase({ kind: 'checked', result });
+      result = await api.post<UnitImportResult>('/api/units/import', { siteId: site.id, mode: 'dry-run', file: fileData.current });
     } catch (e) {
-      setPhase({ kind: 'failed', message: errorMessage(e) });
+      setPhase({ kind: 'failed', message: `${file.name}: ${errorMessage(e)}` });
+      return;
     }
+    // The preview shows the rows as the server read them.
+    try {
+      const parsed = Papa.parse<Record<string, string>>(decodeAs(bytes, result.encoding), {
+        header: true,
+        skipEmptyLines: 'greedy',
+        transformHeader: normalizeImportHeader,
+      });
+      rows.current = parsed.data;
+    } catch (e) {
+      setPhase({ kind: 'failed', message: `${file.name} could not be shown: ${errorMessage(e)}` });
+      return;
+    }
+    setEncoding(result.encoding);
+    setPhase({ kind: 'checked', result });
   }
 
   async function commit() {
     if (phase.kind !== 'checked') return;
     setPhase({ kind: 'importing', rows: phase.result.rowCount });
     try {
-      const result = await api.post<UnitImportResult>('/api/units/import', { siteId: site.id, mode: 'commit', csv: text.current });
+      const result = await api.post<UnitImportResult>('/api/units/import', { siteId: site.id, mode: 'commit', file: fileData.current });
       await invalidate();
       notify(`Imported ${result.created.toLocaleString('en-US')} units into ${site.name}.`);
       onDone();
@@ -160,8 +169,10 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
         {fileName && <span className="text-sm text-slate">{fileName}</span>}
       </div>
 
-      {phase.kind === 'reading' && <Progress label={`Reading the file… ${phase.rows.toLocaleString('en-US')} rows`} fraction={phase.fraction} />}
-      {phase.kind === 'checking' && <Progress label={`Checking ${phase.rows.toLocaleString('en-US')} rows on the server (nothing is written yet)…`} />}
+      {phase.kind === 'reading' && <Progress label="Reading the file…" />}
+      {phase.kind === 'checking' && (
+        <Progress label={phase.rows === null ? 'Checking the file on the server (nothing is written yet)…' : `Checking ${phase.rows.toLocaleString('en-US')} rows on the server (nothing is written yet)…`} />
+      )}
       {phase.kind === 'importing' && <Progress label={`Importing ${phase.rows.toLocaleString('en-US')} units in one transaction…`} />}
       {phase.kind === 'failed' && (
         <p role="alert" className="flex items-start gap-2 rounded-md bg-alarm-tint px-3 py-2 text-sm text-alarm">
@@ -171,6 +182,11 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
 
       {result && (
         <>
+          {encoding && convertedNote(encoding) && (
+            <p role="status" className="flex items-start gap-2 rounded-md bg-watch-tint px-3 py-2 text-sm text-ink">
+              <AlertTriangle className="mt-0.5 size-4 shrink-0 text-watch" aria-hidden="true" /> {convertedNote(encoding)}
+            </p>
+          )}
           {result.errors.length === 0 ? (
             <p role="status" className="flex items-center gap-2 rounded-md bg-ok-tint px-3 py-2 text-sm text-ok">
               <CheckCircle2 className="size-4" aria-hidden="true" /> All {result.rowCount.toLocaleString('en-US')} rows are ready to import.

@@ -6,6 +6,7 @@ import { alarmInputSchema, type AlarmImportResult, type UnitChoice } from '@coil
 import type { z } from 'zod';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import { formatInZone } from '@/lib/format';
+import { bytesToBase64, convertedNote } from '@/lib/file-bytes';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
@@ -96,24 +97,31 @@ export function AlarmForm({ branchId, timeZone, onDone }: { branchId: string | u
 export function AlarmImport({ branchId, onDone }: { branchId: string | undefined; onDone: () => void }) {
   const notify = useNotify();
   const m = useImportAlarms();
-  const [csv, setCsv] = useState<string | null>(null);
+  /** The file's bytes, base64: the server reads the encoding (and converts an older spreadsheet encoding). */
+  const [file, setFile] = useState<string | null>(null);
   const [name, setName] = useState('');
   const [preview, setPreview] = useState<AlarmImportResult | null>(null);
   const [error, setError] = useState<string>();
   const input = useRef<HTMLInputElement>(null);
 
-  const check = async (file: File) => {
+  const check = async (chosen: File) => {
     setError(undefined);
     setPreview(null);
-    const text = await file.text();
-    setCsv(text);
-    setName(file.name);
-    m.mutate({ csv: text, mode: 'dry_run', branchId }, { onSuccess: setPreview, onError: (err) => setError(errorMessage(err)) });
+    setName(chosen.name);
+    let data: string;
+    try {
+      data = bytesToBase64(await chosen.arrayBuffer());
+    } catch (err) {
+      setError(`${chosen.name} could not be read: ${errorMessage(err)}`);
+      return;
+    }
+    setFile(data);
+    m.mutate({ file: data, mode: 'dry_run', branchId }, { onSuccess: setPreview, onError: (err) => setError(errorMessage(err)) });
   };
   const commit = () => {
-    if (!csv) return;
+    if (!file) return;
     m.mutate(
-      { csv, mode: 'commit', branchId },
+      { file, mode: 'commit', branchId },
       {
         onSuccess: (r) => {
           notify(`Imported ${r.written} alarm${r.written === 1 ? '' : 's'} from ${name}${r.skipped ? `; ${r.skipped} already in Coilpath were skipped` : ''}.`);
@@ -145,6 +153,7 @@ export function AlarmImport({ branchId, onDone }: { branchId: string | undefined
       {error && <p role="alert" className="mt-2 text-sm text-alarm">{error}</p>}
       {preview && (
         <div className="mt-3 flex flex-col gap-3">
+          {convertedNote(preview.encoding) && <p role="status" className="rounded-md bg-watch-tint px-3 py-2 text-sm text-ink">{convertedNote(preview.encoding)}</p>}
           <p className="text-sm" role="status">
             {preview.total} row{preview.total === 1 ? '' : 's'}: {ready} ready to import, {preview.skipped} already in Coilpath, {preview.errors.length} error{preview.errors.length === 1 ? '' : 's'}.
           </p>

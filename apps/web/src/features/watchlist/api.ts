@@ -53,7 +53,7 @@ export function useCreateAlarm() {
 export function useImportAlarms() {
   const refresh = useRefresh();
   return useMutation({
-    mutationFn: (body: { csv: string; mode: 'dry_run' | 'commit'; branchId?: string | undefined }) => api.post<AlarmImportResult>('/api/alarms/import', body),
+    mutationFn: (body: { file: string; mode: 'dry_run' | 'commit'; branchId?: string | undefined }) => api.post<AlarmImportResult>('/api/alarms/import', body),
     onSuccess: (r) => r.mode === 'commit' && refresh(),
   });
 }

@@ -20,6 +20,7 @@ import { DataTable, type CoilpathColumn } from '@/components/ui/data-table';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { useNotify } from '@/components/ui/notices';
 import { TableTools, downloadCsv, useTableFilter } from '@/components/ui/table-tools';
+import { csvTimestamp } from '@/lib/csv';
 import { useQueueReturnVisit, useRepeatAlarms, useReturnVisits } from './api';
 import { woLabel } from './leak-cases';
 
@@ -117,8 +118,8 @@ export function RepeatAlarmsSection({ branchId, timeZone }: { branchId: string |
         serial: u.serial,
         code: u.code,
         times: u.count,
-        first: u.first,
-        last: u.last,
+        first: csvTimestamp(u.first, timeZone),
+        last: csvTimestamp(u.last, timeZone),
         circuits_reported: u.circuits.join(' '),
         actual_circuit_differed: u.circuitMismatch ? 'yes' : 'no',
         visits: u.visits.length,
@@ -205,13 +206,13 @@ export function ReturnVisitsSection({ branchId, timeZone }: { branchId: string |
       filtered.map((r) => ({
         work_order: woLabel(r.number),
         origin: r.origin ? woLabel(r.origin.number) : '',
-        closed_at: r.origin?.closedAt ?? '',
+        closed_at: csvTimestamp(r.origin?.closedAt, timeZone),
         site: r.siteName,
         unit: r.unitTag ?? '',
         needs: r.returnNeeds.join(' '),
         notes: r.returnNotes ?? '',
         priority: r.priority,
-        latest: r.latestAt ?? '',
+        latest: csvTimestamp(r.latestAt, timeZone),
       })),
     );
   return (
