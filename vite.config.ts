@@ -5,6 +5,15 @@ import react from '@vitejs/plugin-react';
 import tailwindcss from '@tailwindcss/vite';
 
 const apiPort = process.env.PORT ?? '3000';
+
+/**
+ * The projects that open databases: one migrated template per run (apps/api/src/testing/global-setup.ts),
+ * which each test file clones, and cheap password hashes (apps/api/src/auth/password.ts).
+ */
+const databaseTests = {
+  globalSetup: ['apps/api/src/testing/global-setup.ts'],
+  env: { COILPATH_PASSWORD_COST: 'test' },
+};
 const webSrc = fileURLToPath(new URL('./apps/web/src', import.meta.url));
 
 export default defineConfig({
@@ -20,7 +29,7 @@ export default defineConfig({
       { extends: false, test: { name: 'contract', include: ['packages/contract/src/**/*.test.ts'] } },
       {
         extends: false,
-        test: { name: 'api', include: ['apps/api/src/**/*.test.ts'], testTimeout: 30_000, hookTimeout: 60_000 },
+        test: { name: 'api', include: ['apps/api/src/**/*.test.ts'], testTimeout: 30_000, hookTimeout: 60_000, ...databaseTests },
       },
       {
         extends: false,
@@ -34,6 +43,7 @@ export default defineConfig({
           include: ['tests/api/**/*.test.ts', 'tests/reference/**/*.test.ts'],
           testTimeout: 60_000,
           hookTimeout: 120_000,
+          ...databaseTests,
         },
       },
     ],
