@@ -1,4 +1,5 @@
 /// <reference types="vitest/config" />
+import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { defineConfig } from 'vite';
 import react from '@vitejs/plugin-react';
@@ -24,6 +25,9 @@ export default defineConfig({
   build: { outDir: 'apps/web/dist', emptyOutDir: true, chunkSizeWarningLimit: 600, manifest: true },
   server: { port: 5173, proxy: { '/api': `http://127.0.0.1:${apiPort}` } },
   test: {
+    // Vitest's default is one worker fewer than the cores: a single worker on a 2-core machine. The API test
+    // files spend their time in PGlite (one thread each) or waiting on a server, so two share two cores well.
+    maxWorkers: Math.max(2, availableParallelism() - 1),
     projects: [
       { extends: false, test: { name: 'calc', include: ['packages/calc/src/**/*.test.ts'] } },
       { extends: false, test: { name: 'contract', include: ['packages/contract/src/**/*.test.ts'] } },
