@@ -98,13 +98,22 @@ export async function sessionCookie(ctx: AppContext, user: { id: string; session
   return `${SESSION_COOKIE}=${token}`;
 }
 
-/** Row counts of every table in the public schema, read in one statement. */
-export async function rowCounts(db: Db): Promise<Record<string, number>> {
+/** The statement `rowCounts` runs on a database, built once from its tables (a test run never changes the schema). */
+const rowCountStatements = new WeakMap<Db, Promise<string>>();
+
+async function rowCountStatement(db: Db): Promise<string> {
   const tables = (await db.execute(
     sql`SELECT table_name AS t FROM information_schema.tables WHERE table_schema = 'public' AND table_type = 'BASE TABLE' ORDER BY 1`,
   )) as unknown as { rows: { t: string }[] };
   const parts = tables.rows.map((r) => `(SELECT count(*) FROM public."${r.t}")::int AS "${r.t}"`);
-  const res = (await db.execute(sql.raw(`SELECT ${parts.join(', ')}`))) as unknown as { rows: Record<string, number>[] };
+  return `SELECT ${parts.join(', ')}`;
+}
+
+/** Row counts of every table in the public schema, read in one statement. */
+export async function rowCounts(db: Db): Promise<Record<string, number>> {
+  let statement = rowCountStatements.get(db);
+  if (!statement) rowCountStatements.set(db, (statement = rowCountStatement(db)));
+  const res = (await db.execute(sql.raw(await statement))) as unknown as { rows: Record<string, number>[] };
   return res.rows[0] ?? {};
 }
 

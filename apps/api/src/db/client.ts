@@ -60,6 +60,8 @@ export interface OpenOptions {
   databaseUrl?: string | undefined;
   /** PGlite data directory; omitted = in memory. */
   dataDir?: string | undefined;
+  /** PGlite: start from this image of a data directory (`dumpDataDir()`), e.g. the tests' migrated template. */
+  loadDataDir?: Blob | undefined;
   migrate?: boolean;
 }
 
@@ -95,7 +97,7 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
     }
   } else {
     if (opts.dataDir) mkdirSync(opts.dataDir, { recursive: true });
-    const client = opts.dataDir ? new PGlite(opts.dataDir) : new PGlite();
+    const client = new PGlite({ dataDir: opts.dataDir, loadDataDir: opts.loadDataDir });
     await client.waitReady;
     const db = drizzlePglite(client, { schema, casing: 'snake_case' });
     database = {

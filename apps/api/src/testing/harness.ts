@@ -1,58 +1,57 @@
 import { randomBytes } from 'node:crypto';
-import pg from 'pg';
+import { readFileSync } from 'node:fs';
 import request from 'supertest';
 import type { Express } from 'express';
+import { inject } from 'vitest';
 import { createApp } from '../app';
 import type { AppContext } from '../context';
 import { openDatabase, type Database } from '../db/client';
-import { fixedClock, systemClock, type Clock } from '../lib/clock';
+import { fixedClock, type Clock } from '../lib/clock';
 import type { Mailer, MailMessage } from '../mail/mailer';
 import { createMemoryStorage, type Storage } from '../storage/storage';
+import { databaseUrlFor, dropDatabase, onServer, type TestTemplate } from './test-template';
+
+/** The template of this run (`global-setup.ts`), or undefined outside the `api` and `tests` projects. */
+function testTemplate(): TestTemplate | undefined {
+  try {
+    return inject('coilpathTestTemplate');
+  } catch {
+    return undefined;
+  }
+}
+
+let templateImage: Blob | undefined;
 
 /**
  * A fresh, migrated database for one test file: in-memory PGlite, or — when `DATABASE_URL` is set
- * (the PostgreSQL pass of `.ci/run`) — a new database on that server, dropped on close. `migrate: false`
- * leaves it empty (a test of the migrations themselves).
+ * (the PostgreSQL pass of `.ci/run`) — a new database on that server, dropped on close. Both start as a
+ * copy of the run's template (`global-setup.ts`): PGlite loads the migrated image, PostgreSQL clones the
+ * template database. `openDatabase` then runs as for any database (migrations — nothing left to apply —
+ * and, on PGlite, the change listeners). Without a template (outside the projects that set it up) the
+ * database is migrated from scratch.
+ * `migrate: false` leaves it empty, without the template (a test of the migrations themselves).
  */
 export async function openTestDatabase(opts: { migrate?: boolean } = {}): Promise<Database> {
   const url = process.env.DATABASE_URL;
-  if (!url) return openDatabase(opts);
+  // A test of the migrations themselves starts from an empty database: no template.
+  const template = opts.migrate === false ? undefined : testTemplate();
+  if (!url) {
+    if (template?.kind !== 'pglite') return openDatabase(opts);
+    templateImage ??= new Blob([readFileSync(template.file)]);
+    return openDatabase({ loadDataDir: templateImage });
+  }
   const name = `coilpath_t_${randomBytes(6).toString('hex')}`;
-  const admin = new pg.Client({ connectionString: url });
-  await admin.connect();
-  await admin.query(`CREATE DATABASE ${name}`);
-  await admin.end();
-  const u = new URL(url);
-  u.pathname = `/${name}`;
-  const database = await openDatabase({ databaseUrl: u.toString(), ...opts });
+  await onServer(url, template?.kind === 'postgres' ? `CREATE DATABASE ${name} TEMPLATE ${template.database}` : `CREATE DATABASE ${name}`);
+  const database = await openDatabase({ databaseUrl: databaseUrlFor(url, name), ...opts }).catch(async (err: unknown) => {
+    await dropDatabase(url, name);
+    throw err;
+  });
   const close = database.close;
   database.close = async () => {
     await close();
-    await dropTestDatabase(url, name);
+    await dropDatabase(url, name);
   };
   return database;
-}
-
-/**
- * Drops a test database. `WITH (FORCE)` ends other sessions in it — usually an autovacuum worker,
- * which only a superuser or a member of `pg_signal_backend` may end. Without that right the plain
- * drop is tried; if the database is still busy it is left behind with a warning rather than failing
- * a test whose assertions all passed (its name starts with `coilpath_t_`).
- */
-async function dropTestDatabase(url: string, name: string): Promise<void> {
-  const c = new pg.Client({ connectionString: url });
-  await c.connect();
-  try {
-    await c.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
-  } catch {
-    try {
-      await c.query(`DROP DATABASE IF EXISTS ${name}`);
-    } catch (err) {
-      console.warn(`test database ${name} left behind: ${(err as Error).message}`);
-    }
-  } finally {
-    await c.end();
-  }
 }
 
 /** A mailer that keeps messages in memory (the sink itself is tested in mail/). */
@@ -76,6 +75,12 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
+/**
+ * "Now" of a test app that names neither `clock` nor `now`: a fixed instant (a Wednesday afternoon in
+ * Chicago), so no test depends on the day or hour it runs at.
+ */
+export const DEFAULT_TEST_NOW = '2026-06-03T18:00:00Z';
+
 export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?: Mailer; signInLimit?: number } = {}): Promise<TestApp> {
   const database = await openTestDatabase();
   const mailer = memoryMailer();
@@ -85,7 +90,7 @@ export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?
     db: database.db,
     mailer: opts.mailer ?? mailer,
     storage,
-    clock: opts.clock ?? (opts.now ? fixedClock(opts.now) : systemClock),
+    clock: opts.clock ?? fixedClock(opts.now ?? DEFAULT_TEST_NOW),
     secret: new TextEncoder().encode('coilpath-test-secret-coilpath-test-secret'),
     config: {
       sessionHours: 12,
