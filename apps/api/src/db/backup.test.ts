@@ -352,6 +352,15 @@ describe.runIf(Boolean(process.env.DATABASE_URL) && pgTools)('PostgreSQL backups
       });
       await expect(restoreBackup(target, recounted, { force: true })).rejects.toThrow(/coilpath restore: table branches holds 1 rows, the manifest says 2/);
       expect(await branchName(database, s.branchId), 'the failed restore was rolled back').toBe('Current');
+
+      // What `db:backup` wrote before on PostgreSQL: a bare pg_dump file. It restores, database only.
+      const legacy = join(tmp, 'pg-legacy.dump');
+      expect(spawnSync('pg_dump', ['--format=custom', `--file=${legacy}`, `--dbname=${url}`]).status).toBe(0);
+      await database.db.update(branches).set({ name: 'After the old dump' }).where(eq(branches.id, s.branchId));
+      const old = await restoreBackup(target, legacy, { force: true });
+      expect(old.manifest).toBeNull();
+      expect(old.tables.branches).toBe(1);
+      expect(await branchName(database, s.branchId)).toBe('Current');
     } finally {
       await database.close();
     }
