@@ -88,7 +88,7 @@ export function UserMenu({ user }: { user: SessionUser }) {
         ref={triggerRef}
         type="button"
         aria-expanded={open}
-        aria-controls={panelId}
+        aria-controls={open ? panelId : undefined}
         onClick={() => setOpen((o) => !o)}
         className="inline-flex min-h-11 items-center gap-2 rounded-md px-2 text-sm hover:bg-slate-faint"
       >
