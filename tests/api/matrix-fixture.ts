@@ -6,11 +6,11 @@
  */
 import type { Express } from 'express';
 import request from 'supertest';
-import { sql } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import type { Role } from '@coilpath/contract';
 import type { AppContext } from '../../apps/api/src/context';
 import type { Db } from '../../apps/api/src/db/client';
-import { bookings, visits } from '../../apps/api/src/db/schema';
+import { bookings, users, visits } from '../../apps/api/src/db/schema';
 import { SESSION_COOKIE, signSession } from '../../apps/api/src/auth/session';
 import type { RequestSpec, RouteRow } from './route-table';
 import { makeSiteWithUnit, makeTwoBranches, makeWorkOrder } from '../../apps/api/src/testing/fixtures';
@@ -92,9 +92,13 @@ export async function makeMatrixFixture(ctx: AppContext): Promise<MatrixFixture>
   };
 }
 
-/** A `Cookie` header carrying a valid session of the user. */
-export async function sessionCookie(ctx: AppContext, user: { id: string; sessionVersion: number }): Promise<string> {
-  const token = await signSession(ctx.secret, { sub: user.id, sv: user.sessionVersion }, ctx.config.sessionHours, ctx.clock.now());
+/**
+ * A `Cookie` header carrying a valid new session of the user, at the user's current session version (a row
+ * such as sign-out-everywhere raises it; each call is a session of its own, so signing one out ends no other).
+ */
+export async function sessionCookie(ctx: AppContext, user: { id: string }): Promise<string> {
+  const [u] = await ctx.db.select({ sv: users.sessionVersion }).from(users).where(eq(users.id, user.id));
+  const token = await signSession(ctx.secret, { sub: user.id, sv: u!.sv }, ctx.config.sessionHours, ctx.clock.now());
   return `${SESSION_COOKIE}=${token}`;
 }
 

@@ -264,6 +264,7 @@ export const routeTable: RouteRow[] = [
     request: (f) => ({ path: '/api/auth/sign-in', body: { email: f.inA.technician.email, password: TEST_PASSWORD } }),
   },
   { method: 'POST', path: '/api/auth/sign-out', expect: open(204) },
+  { method: 'POST', path: '/api/auth/sign-out-everywhere', expect: signedIn(200) },
   { method: 'GET', path: '/api/auth/me', expect: signedIn(200) },
 
 

@@ -6,7 +6,8 @@ import helmet from 'helmet';
 import { ZodError } from 'zod';
 import type { AppContext } from './context';
 import { authenticate, requireAuth } from './auth/middleware';
-import { HttpError } from './lib/errors';
+import { fileMissing, HttpError } from './lib/errors';
+import { StoredFileMissing } from './storage/storage';
 import { apiRoutes } from './routes';
 
 /** Methods that change data: their bodies must be JSON (multipart only where a route says so). */
@@ -99,6 +100,12 @@ function errorHandler(err: unknown, _req: Request, res: Response, _next: NextFun
     res.status(status).json({ error: details === undefined ? { code, message } : { code, message, details } });
 
   if (err instanceof HttpError) return send(err.status, err.code, err.message, err.details);
+  // A route that read a stored file without readStoredFile: still 410, never 500.
+  if (err instanceof StoredFileMissing) {
+    console.warn(`[coilpath] a stored file is missing (key ${err.key})`);
+    const gone = fileMissing('record');
+    return send(gone.status, gone.code, gone.message);
+  }
   if (err instanceof ZodError) {
     const fields = err.issues.map((i) => ({ path: i.path.join('.') || '(body)', message: i.message }));
     const names = [...new Set(fields.map((f) => f.path))].join(', ');

@@ -10,12 +10,22 @@ import { createSmtpMailer } from './mail/mailer';
 import { startMailSink } from './mail/sink';
 import { createDiskStorage } from './storage/storage';
 import { loadSecret } from './secret';
+import { DataDirLocked, lockDataDir } from './data-dir-lock';
 import { startScheduler } from './jobs/scheduler';
 import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
 const { clock, overridden: clockOverridden } = clockFromEnv(env);
 const dataDir = resolve(env.COILPATH_DATA_DIR);
+// The embedded database is for one process: a second server on the same data directory is refused before it
+// opens anything. On PostgreSQL several processes may share the directory (its files), so no lock is taken.
+try {
+  if (!env.DATABASE_URL) lockDataDir(dataDir, 'server');
+} catch (e) {
+  if (!(e instanceof DataDirLocked)) throw e;
+  console.error(`Coilpath cannot start: ${e.message}`);
+  process.exit(1);
+}
 const database = await openDatabase({ databaseUrl: env.DATABASE_URL, dataDir: env.DATABASE_URL ? undefined : resolve(dataDir, 'pg') });
 const storage = createDiskStorage(resolve(dataDir, 'files'));
 const sink = env.SMTP_URL ? null : await startMailSink(database.db, storage);

@@ -19,6 +19,10 @@ export type SessionUser = z.infer<typeof sessionUserSchema>;
 
 export const signInResponseSchema = z.object({ user: sessionUserSchema });
 
+/** `POST /api/auth/sign-out-everywhere`: every session of `email` (this one too) ended at `endedAt`. */
+export const signOutEverywhereAnswerSchema = z.object({ email: z.string(), endedAt: z.string() });
+export type SignOutEverywhereAnswer = z.infer<typeof signOutEverywhereAnswerSchema>;
+
 export const healthSchema = z.object({ ok: z.literal(true), database: z.enum(['pglite', 'postgres']) });
 export type Health = z.infer<typeof healthSchema>;
 

@@ -2,13 +2,17 @@ import type { NextFunction, Request, Response } from 'express';
 import { eq, sql } from 'drizzle-orm';
 import type { Role, SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../context';
-import { users } from '../db/schema';
+import { endedSessions, users } from '../db/schema';
 import { forbidden, notFound, unauthorized } from '../lib/errors';
 import { SESSION_COOKIE, verifySession } from './session';
 
-/** Reads the session cookie; sets `req.user` when it is valid and the user is active and not signed out. */
+/**
+ * Reads the session cookie; sets `req.user` (and `req.session`) when the token is valid, the user is active,
+ * the token's session version is the user's, and the session was not signed out (`ended_sessions`).
+ */
 export function authenticate(ctx: AppContext) {
-  // Asked on every request: built once (a named prepared statement on PostgreSQL).
+  // Asked on every request: built once (a named prepared statement on PostgreSQL). An empty session id (a
+  // token from before ids) matches no ended session.
   const sessionUser = ctx.db
     .select({
       id: users.id,
@@ -18,28 +22,39 @@ export function authenticate(ctx: AppContext) {
       branchId: users.branchId,
       active: users.active,
       sessionVersion: users.sessionVersion,
+      ended: sql<boolean>`exists (select 1 from ${endedSessions} where ${endedSessions.sessionId} = ${sql.placeholder('sid')})`,
     })
     .from(users)
     .where(eq(users.id, sql.placeholder('id')))
     .limit(1)
     .prepare('coilpath_session_user');
   type Row = Awaited<ReturnType<typeof sessionUser.execute>>[number] | undefined;
-  // On PGlite the database tells this (its only) process when a user row changes, so rows are kept between
-  // requests and dropped at that notice; on PostgreSQL every request asks.
-  const known = new Map<string, Row>();
+  // On PGlite the database tells this (its only) process when a user row changes or one of their sessions is
+  // signed out, so rows are kept between requests — per user and session — and dropped at that notice; on
+  // PostgreSQL every request asks.
+  const known = new Map<string, Map<string, Row>>();
+  let kept = 0;
   let changes = 0; // notices heard: a row read while one arrives is used once but not kept
   ctx.database.local?.onUserChange((id) => {
     changes++;
+    kept -= known.get(id)?.size ?? 0;
     known.delete(id);
   });
-  const readUser = async (id: string): Promise<Row> => {
-    if (!ctx.database.local) return (await sessionUser.execute({ id }))[0];
-    if (known.has(id)) return known.get(id);
+  const readUser = async (id: string, sid: string): Promise<Row> => {
+    if (!ctx.database.local) return (await sessionUser.execute({ id, sid }))[0];
+    const sessions = known.get(id);
+    if (sessions?.has(sid)) return sessions.get(sid);
     const before = changes;
-    const [row] = await sessionUser.execute({ id });
+    const [row] = await sessionUser.execute({ id, sid });
     if (changes === before) {
-      if (known.size >= 1000) known.clear();
-      known.set(id, row);
+      if (kept >= 1000) {
+        known.clear();
+        kept = 0;
+      }
+      const m = known.get(id) ?? new Map<string, Row>();
+      known.set(id, m);
+      m.set(sid, row);
+      kept++;
     }
     return row;
   };
@@ -48,9 +63,10 @@ export function authenticate(ctx: AppContext) {
     if (typeof token === 'string' && token) {
       const claims = await verifySession(ctx.secret, token, ctx.clock.now());
       if (claims) {
-        const u = await readUser(claims.sub);
-        if (u && u.active && u.sessionVersion === claims.sv) {
+        const u = await readUser(claims.sub, claims.sid ?? '');
+        if (u && u.active && u.sessionVersion === claims.sv && !u.ended) {
           req.user = { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId };
+          req.session = { id: claims.sid, expiresAt: claims.exp };
         }
       }
     }

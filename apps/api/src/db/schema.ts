@@ -128,6 +128,18 @@ export const passwordResets = pgTable('password_resets', {
   createdAt: createdAt(),
 }, (t) => [uniqueIndex('password_resets_token_uq').on(t.tokenHash)]);
 
+/**
+ * Sessions signed out before they expire (the `sid` of their token): `authenticate` refuses them. A row is
+ * only needed until the token would have expired anyway; sign-out deletes the expired ones.
+ */
+export const endedSessions = pgTable('ended_sessions', {
+  sessionId: text().primaryKey(),
+  userId: uuid().notNull().references(() => users.id, { onDelete: 'cascade' }),
+  /** When the token would have expired: after that the row can go. */
+  expiresAt: instant().notNull(),
+  endedAt: instant().notNull(),
+}, (t) => [index('ended_sessions_expires_idx').on(t.expiresAt)]);
+
 export const customers = pgTable('customers', {
   id: id(),
   branchId: uuid().notNull().references(() => branches.id),

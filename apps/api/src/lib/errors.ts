@@ -18,3 +18,14 @@ export const notFound = (what = 'record') => new HttpError(404, 'not_found', `No
 export const conflict = (code: string, message: string, details?: unknown) => new HttpError(409, code, message, details);
 export const unprocessable = (message: string, details?: unknown) =>
   new HttpError(422, 'unprocessable', message, details);
+
+/**
+ * A record whose stored file is gone (410: it existed and will not come back by asking again). Said plainly,
+ * so whoever sees it knows the record is kept and the bytes must come from a backup.
+ */
+export const fileMissing = (what: string) =>
+  new HttpError(
+    410,
+    'file_missing',
+    `The file of this ${what} is missing from Coilpath's file storage. The record is kept; an administrator can restore the file from a backup.`,
+  );

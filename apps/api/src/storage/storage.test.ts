@@ -2,7 +2,7 @@ import { mkdtempSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { createDiskStorage } from './storage';
+import { createDiskStorage, createMemoryStorage, StoredFileMissing } from './storage';
 
 describe('disk storage', () => {
   it('stores under generated names and reads back the same bytes', async () => {
@@ -13,13 +13,24 @@ describe('disk storage', () => {
     expect((await s.get(key)).toString()).toBe('hello');
     expect(readdirSync(join(root, key.slice(0, 2)))).toEqual([key.slice(3)]);
     await s.remove(key);
-    await expect(s.get(key)).rejects.toThrow();
+    await expect(s.get(key)).rejects.toBeInstanceOf(StoredFileMissing);
+  });
+
+  it('a well-formed key with nothing stored under it is StoredFileMissing, on disk and in memory', async () => {
+    const key = 'ab/ab000000-0000-4000-8000-000000000000';
+    for (const s of [createDiskStorage(mkdtempSync(join(tmpdir(), 'coilpath-store-'))), createMemoryStorage()]) {
+      const err = await s.get(key).catch((e: unknown) => e);
+      expect(err).toBeInstanceOf(StoredFileMissing);
+      expect((err as StoredFileMissing).key).toBe(key);
+    }
   });
 
   it('refuses keys that are not its own (path traversal)', async () => {
     const s = createDiskStorage(mkdtempSync(join(tmpdir(), 'coilpath-store-')));
     for (const bad of ['../../etc/passwd', 'ab/../../x', '/etc/passwd', 'ab/not-a-uuid']) {
-      await expect(s.get(bad), bad).rejects.toThrow('Bad storage key');
+      const err = await s.get(bad).catch((e: unknown) => e);
+      expect(err, bad).not.toBeInstanceOf(StoredFileMissing);
+      expect((err as Error).message, bad).toBe('Bad storage key');
     }
   });
 });

@@ -1,15 +1,42 @@
 import { randomUUID } from 'node:crypto';
 import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
 import { join, resolve, sep } from 'node:path';
+import { fileMissing } from '../lib/errors';
+
+/**
+ * A stored file whose record exists but whose bytes are gone (deleted outside Coilpath, or a database
+ * restored without its files). Routes answer it with 410 `file_missing`, never 500.
+ */
+export class StoredFileMissing extends Error {
+  constructor(readonly key: string) {
+    super(`The stored file ${key} is missing.`);
+    this.name = 'StoredFileMissing';
+  }
+}
 
 /** File storage behind a small interface (DESIGN §7): names are generated, never the client's. */
 export interface Storage {
   put(content: Buffer, meta: { contentType: string }): Promise<string>;
+  /** The file's bytes; `StoredFileMissing` when the key is well formed but nothing is stored under it. */
   get(key: string): Promise<Buffer>;
   remove(key: string): Promise<void>;
 }
 
-const keyPattern = /^[0-9a-f]{2}\/[0-9a-f-]{36}$/;
+/**
+ * A stored file for a route that serves it: a missing file answers 410 `file_missing` naming `what`
+ * (a photo, an e-mail attachment…) and is logged with its key for the administrator.
+ */
+export async function readStoredFile(storage: Storage, key: string, what: string): Promise<Buffer> {
+  try {
+    return await storage.get(key);
+  } catch (e) {
+    if (!(e instanceof StoredFileMissing)) throw e;
+    console.warn(`[coilpath] a stored file is missing: ${what}, key ${key}`);
+    throw fileMissing(what);
+  }
+}
+
+export const keyPattern = /^[0-9a-f]{2}\/[0-9a-f-]{36}$/;
 
 export function createDiskStorage(root: string): Storage {
   const base = resolve(root);
@@ -27,7 +54,15 @@ export function createDiskStorage(root: string): Storage {
       await writeFile(pathFor(key), content, { flag: 'wx' });
       return key;
     },
-    get: async (key) => readFile(pathFor(key)),
+    async get(key) {
+      const path = pathFor(key);
+      try {
+        return await readFile(path);
+      } catch (e) {
+        if ((e as NodeJS.ErrnoException).code === 'ENOENT') throw new StoredFileMissing(key);
+        throw e;
+      }
+    },
     remove: async (key) => rm(pathFor(key), { force: true }),
   };
 }
@@ -44,7 +79,7 @@ export function createMemoryStorage(): Storage {
     },
     async get(key) {
       const f = files.get(key);
-      if (!f) throw Object.assign(new Error('No such file'), { code: 'ENOENT' });
+      if (!f) throw new StoredFileMissing(key);
       return f;
     },
     async remove(key) {

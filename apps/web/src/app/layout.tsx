@@ -1,15 +1,13 @@
 import { Suspense, useState } from 'react';
-import { NavLink, Outlet, useNavigate } from 'react-router-dom';
-import { useQueryClient } from '@tanstack/react-query';
-import { LogOut, Menu, X } from 'lucide-react';
-import { roleLabels } from '@coilpath/contract';
-import { api } from '@/lib/api-client';
+import { NavLink, Outlet } from 'react-router-dom';
+import { Menu, X } from 'lucide-react';
 import { Wordmark } from '@/components/ui/logo';
 import { LoadingState } from '@/components/ui/states';
 import { useUser } from './session';
 import { useBranch } from './branch';
 import { screensFor } from './screens';
 import { RouteErrorBoundary } from './route-error';
+import { UserMenu } from './user-menu';
 
 function BranchSwitcher() {
   const { branches, branchId, setBranchId, canSwitch, branch } = useBranch();
@@ -37,19 +35,10 @@ function BranchSwitcher() {
 
 export function AppFrame() {
   const user = useUser();
-  const qc = useQueryClient();
-  const navigate = useNavigate();
   const [menuOpen, setMenuOpen] = useState(false);
   const items = screensFor(user.role);
   const railItems = items.filter((s) => !('navOnly' in s));
   const isTech = user.role === 'technician';
-
-  async function signOut() {
-    await api.post('/api/auth/sign-out').catch(() => undefined);
-    qc.clear();
-    qc.setQueryData(['session'], null);
-    navigate('/sign-in', { replace: true, state: { signedOut: true } });
-  }
 
   const navLink = (s: (typeof items)[number], onClick?: () => void) => (
     <NavLink
@@ -109,18 +98,7 @@ export function AppFrame() {
             <span className="hidden sm:inline-flex">
               <BranchSwitcher />
             </span>
-            <span className="hidden text-right text-sm leading-tight lg:block">
-              <span className="block font-medium">{user.name}</span>
-              <span className="block text-xs text-slate">{roleLabels[user.role]}</span>
-            </span>
-            <button
-              type="button"
-              onClick={signOut}
-              className="inline-flex min-h-11 items-center gap-2 rounded-md px-3 text-sm text-slate hover:bg-slate-faint"
-            >
-              <LogOut className="size-4" aria-hidden="true" />
-              <span>Sign out</span>
-            </button>
+            <UserMenu user={user} />
           </div>
         </header>
         {user.role === 'owner' && (

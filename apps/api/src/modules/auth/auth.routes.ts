@@ -4,7 +4,7 @@ import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, resetPassw
 import type { AppContext } from '../../context';
 import { SESSION_COOKIE } from '../../auth/session';
 import { unauthorized } from '../../lib/errors';
-import { signIn } from './auth.service';
+import { signIn, signOut, signOutEverywhere } from './auth.service';
 import { checkPasswordReset, requestPasswordReset, resetPassword } from './password-reset.service';
 
 export function setSessionCookie(ctx: AppContext, res: Response, token: string) {
@@ -66,9 +66,18 @@ export function authRoutes(ctx: AppContext): Router {
     res.json({ user });
   });
 
-  r.post('/sign-out', (_req, res) => {
+  // Open to anyone (a stale cookie can always be dropped); a live session is ended on the server too.
+  r.post('/sign-out', async (req, res) => {
+    if (req.user && req.session) await signOut(ctx, req.user, req.session);
     res.clearCookie(SESSION_COOKIE, { path: '/' });
     res.status(204).end();
+  });
+
+  r.post('/sign-out-everywhere', async (req, res) => {
+    if (!req.user) throw unauthorized();
+    const answer = await signOutEverywhere(ctx, req.user);
+    res.clearCookie(SESSION_COOKIE, { path: '/' });
+    res.json(answer);
   });
 
   r.get('/me', (req, res) => {

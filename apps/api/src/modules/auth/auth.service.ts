@@ -1,7 +1,7 @@
-import { eq } from 'drizzle-orm';
-import type { SessionUser, SignIn } from '@coilpath/contract';
+import { eq, lt, sql } from 'drizzle-orm';
+import type { SessionUser, SignIn, SignOutEverywhereAnswer } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { users } from '../../db/schema';
+import { endedSessions, users } from '../../db/schema';
 import { verifyPassword } from '../../auth/password';
 import { signSession } from '../../auth/session';
 import { unauthorized } from '../../lib/errors';
@@ -14,4 +14,33 @@ export async function signIn(ctx: AppContext, input: SignIn): Promise<{ user: Se
   await ctx.db.update(users).set({ lastSignInAt: ctx.clock.now() }).where(eq(users.id, u.id));
   const token = await signSession(ctx.secret, { sub: u.id, sv: u.sessionVersion }, ctx.config.sessionHours, ctx.clock.now());
   return { user: { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId }, token };
+}
+
+/** Ended sessions are kept this long past their token's expiry, so a process whose clock runs behind still refuses them. */
+const keepEndedMs = 60 * 60 * 1000;
+
+/**
+ * Ends this session on the server: its id is recorded in `ended_sessions` (until its token would have
+ * expired), so the cookie is refused from the next request on, on every process. A token from before
+ * sessions had ids can only be ended with all of the user's sessions (the session version).
+ */
+export async function signOut(ctx: AppContext, user: SessionUser, session: { id: string | null; expiresAt: Date }): Promise<void> {
+  const now = ctx.clock.now();
+  if (!session.id) {
+    await ctx.db.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1` }).where(eq(users.id, user.id));
+    return;
+  }
+  await ctx.db.insert(endedSessions).values({ sessionId: session.id, userId: user.id, expiresAt: session.expiresAt, endedAt: now }).onConflictDoNothing();
+  await ctx.db.delete(endedSessions).where(lt(endedSessions.expiresAt, new Date(now.getTime() - keepEndedMs)));
+}
+
+/** Ends every session of the user, this one included, on every device: the session version is raised. */
+export async function signOutEverywhere(ctx: AppContext, user: SessionUser): Promise<SignOutEverywhereAnswer> {
+  const now = ctx.clock.now();
+  await ctx.db.transaction(async (tx) => {
+    await tx.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1` }).where(eq(users.id, user.id));
+    // The raised version refuses them all: the user's single ended sessions need no row any more.
+    await tx.delete(endedSessions).where(eq(endedSessions.userId, user.id));
+  });
+  return { email: user.email, endedAt: now.toISOString() };
 }

@@ -3,9 +3,10 @@ import argon2 from 'argon2';
 import request from 'supertest';
 import { SignJWT } from 'jose';
 import { eq } from 'drizzle-orm';
+import { signOutEverywhereAnswerSchema } from '@coilpath/contract';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
-import { users } from '../../db/schema';
+import { endedSessions, users } from '../../db/schema';
 import { signSession, SESSION_COOKIE } from '../../auth/session';
 
 const NOW = new Date('2026-12-02T15:00:00Z');
@@ -154,6 +155,95 @@ describe('sessions', () => {
     await t.ctx.db.update(users).set({ active: false }).where(eq(users.id, f.inB.manager.id));
     expect((await agent.get('/api/auth/me')).status).toBe(401);
     await t.ctx.db.update(users).set({ role: 'branch_manager', active: true }).where(eq(users.id, f.inB.manager.id));
+  });
+});
+
+/** Signs in and returns the session cookie (`name=value`), as a browser would keep it. */
+async function signInCookie(email: string): Promise<string> {
+  const res = await request(t.app).post('/api/auth/sign-in').send({ email, password: TEST_PASSWORD });
+  expect(res.status).toBe(200);
+  return String(res.headers['set-cookie']).split(';')[0]!;
+}
+const me = (cookie: string) => request(t.app).get('/api/auth/me').set('Cookie', cookie);
+
+describe('signing out ends sessions on the server', () => {
+  it('sign-out refuses the old cookie at once (401), and only that session', async () => {
+    const laptop = await signInCookie(f.inA.dispatcher.email);
+    const phone = await signInCookie(f.inA.dispatcher.email);
+    // Asked twice, so on the embedded database the user is answered from memory before the sign-out.
+    expect((await me(laptop)).status).toBe(200);
+    expect((await me(laptop)).status).toBe(200);
+
+    const out = await request(t.app).post('/api/auth/sign-out').set('Cookie', laptop);
+    expect(out.status).toBe(204);
+    expect(String(out.headers['set-cookie'])).toMatch(/coilpath_session=;/);
+
+    // Someone who kept a copy of the cookie (it was not just dropped by the browser) is refused.
+    const again = await me(laptop);
+    expect(again.status).toBe(401);
+    expect(again.body.error.code).toBe('unauthorized');
+    expect((await request(t.app).get('/api/branches').set('Cookie', laptop)).status).toBe(401);
+    expect((await me(phone)).status, 'the same person on another device stays signed in').toBe(200);
+  });
+
+  it('a session ended in the database is refused from the next request, even while its user is remembered', async () => {
+    const cookie = await signInCookie(f.inA.manager.email);
+    expect((await me(cookie)).status).toBe(200);
+    expect((await me(cookie)).status).toBe(200);
+    const token = cookie.slice(cookie.indexOf('=') + 1);
+    const claims = JSON.parse(Buffer.from(token.split('.')[1]!, 'base64url').toString()) as { sid: string; exp: number };
+    // Written straight to the table, as another process would: no route of this app is involved.
+    await t.ctx.db.insert(endedSessions).values({ sessionId: claims.sid, userId: f.inA.manager.id, expiresAt: new Date(claims.exp * 1000), endedAt: new Date() });
+    expect((await me(cookie)).status).toBe(401);
+  });
+
+  it('sign-out-everywhere ends every session of the person, this one included, and says so', async () => {
+    const phone = await signInCookie(f.inB.technician.email);
+    const laptop = await signInCookie(f.inB.technician.email);
+    const other = await signInCookie(f.inB.dispatcher.email);
+    for (const c of [phone, laptop, other]) expect((await me(c)).status).toBe(200);
+
+    const res = await request(t.app).post('/api/auth/sign-out-everywhere').set('Cookie', laptop).send({});
+    expect(res.status).toBe(200);
+    const answer = signOutEverywhereAnswerSchema.parse(res.body);
+    expect(answer.email).toBe(f.inB.technician.email);
+    expect(Number.isNaN(Date.parse(answer.endedAt))).toBe(false);
+    expect(String(res.headers['set-cookie'])).toMatch(/coilpath_session=;/);
+
+    expect((await me(phone)).status).toBe(401);
+    expect((await me(laptop)).status).toBe(401);
+    expect((await me(other)).status, 'another person is not signed out').toBe(200);
+    // Signing in again works, with a session that is valid.
+    expect((await me(await signInCookie(f.inB.technician.email))).status).toBe(200);
+    expect((await request(t.app).post('/api/auth/sign-out-everywhere').send({})).status).toBe(401);
+  });
+
+  it('signing out a token from before session ids ends it (with the person’s other sessions)', async () => {
+    const [u] = await t.ctx.db.select().from(users).where(eq(users.id, f.inA.technician.id));
+    const old = await new SignJWT({ sv: u!.sessionVersion })
+      .setProtectedHeader({ alg: 'HS256' })
+      .setSubject(u!.id)
+      .setIssuer('coilpath')
+      .setIssuedAt()
+      .setExpirationTime('1h')
+      .sign(t.ctx.secret);
+    const cookie = `${SESSION_COOKIE}=${old}`;
+    expect((await me(cookie)).status).toBe(200);
+    expect((await request(t.app).post('/api/auth/sign-out').set('Cookie', cookie)).status).toBe(204);
+    expect((await me(cookie)).status).toBe(401);
+  });
+
+  it('forgets ended sessions an hour after their token expired, at the next sign-out', async () => {
+    const now = Date.now();
+    await t.ctx.db.insert(endedSessions).values([
+      { sessionId: 'long-expired', userId: f.owner.id, expiresAt: new Date(now - 2 * 3600_000), endedAt: new Date(now - 3 * 3600_000) },
+      { sessionId: 'just-expired', userId: f.owner.id, expiresAt: new Date(now - 60_000), endedAt: new Date(now - 3600_000) },
+    ]);
+    const cookie = await signInCookie(f.owner.email);
+    expect((await request(t.app).post('/api/auth/sign-out').set('Cookie', cookie)).status).toBe(204);
+    const ids = (await t.ctx.db.select({ id: endedSessions.sessionId }).from(endedSessions)).map((r) => r.id);
+    expect(ids).not.toContain('long-expired');
+    expect(ids).toContain('just-expired');
   });
 });
 

@@ -6,6 +6,7 @@ import { mailOutbox } from '../../db/schema';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
 import { notFound } from '../../lib/errors';
+import { readStoredFile } from '../../storage/storage';
 
 export function outboxRoutes(ctx: AppContext): Router {
   const r = Router();
@@ -44,7 +45,7 @@ export function outboxRoutes(ctx: AppContext): Router {
         const [m] = await ctx.db.select().from(mailOutbox).where(eq(mailOutbox.id, params.id)).limit(1);
         const a = m?.attachments[params.index];
         if (!m || !a?.storageKey) throw notFound('attachment');
-        const content = await ctx.storage.get(a.storageKey);
+        const content = await readStoredFile(ctx.storage, a.storageKey, 'e-mail attachment');
         res.setHeader('Content-Type', a.contentType);
         res.setHeader('Content-Disposition', `attachment; filename="${a.filename.replace(/[^\w.-]+/g, '_')}"`);
         res.send(content);

@@ -4,6 +4,8 @@ import { idSchema, unitSearchQuerySchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { resolveBranch } from '../../auth/middleware';
 import { endpoint } from '../../lib/endpoint';
+import { readStoredFile } from '../../storage/storage';
+import { attachmentLabel } from '../visits/attachments.service';
 import { searchUnits, unitAttachment, unitFile } from './unit-file.service';
 
 const unitParams = z.object({ id: idSchema });
@@ -22,7 +24,7 @@ export function unitFileRoutes(ctx: AppContext): Router {
     '/:id/file/attachments/:attachmentId',
     endpoint({ params: unitParams.extend({ attachmentId: idSchema }) }, async ({ params, user, res }) => {
       const a = await unitAttachment(ctx.db, user, params.id, params.attachmentId);
-      const content = await ctx.storage.get(a.storageKey);
+      const content = await readStoredFile(ctx.storage, a.storageKey, attachmentLabel[a.kind]);
       res.setHeader('Content-Type', a.contentType);
       res.setHeader('Content-Disposition', `inline; filename="${a.displayName.replace(/[^\w.-]+/g, '_')}"`);
       res.setHeader('Cache-Control', 'private, max-age=3600');

@@ -4,6 +4,7 @@ import { attachmentContentTypes, type AttachmentDto, type AttachmentKind, type S
 import type { AppContext } from '../../context';
 import { attachments, units, visits, workOrders } from '../../db/schema';
 import { badRequest, HttpError, notFound } from '../../lib/errors';
+import { readStoredFile } from '../../storage/storage';
 import { assertVisitReadable, assertVisitWritable, loadReadableUnit, loadVisit } from './access';
 import { attachmentDto } from './dto';
 import { unitsOfWorkOrder } from './visits.service';
@@ -21,6 +22,9 @@ export function cleanDisplayName(name: string | undefined, fallback = 'upload'):
 }
 
 const allowed = new Set<string>(attachmentContentTypes);
+
+/** How an attachment is named in a message (e.g. its file is missing). */
+export const attachmentLabel: Record<AttachmentKind, string> = { photo: 'photo', nameplate: 'nameplate photo', document: 'document' };
 
 /**
  * Stores a photo or PDF for a visit (and its unit). The type is decided by the file's content,
@@ -102,6 +106,6 @@ export async function readAttachment(ctx: AppContext, user: SessionUser, id: str
     ok = true;
   }
   if (!ok) throw notFound('attachment');
-  const content = await ctx.storage.get(a.storageKey);
+  const content = await readStoredFile(ctx.storage, a.storageKey, attachmentLabel[a.kind]);
   return { attachment: a, content };
 }

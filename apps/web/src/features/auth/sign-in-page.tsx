@@ -9,6 +9,7 @@ import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { Wordmark } from '@/components/ui/logo';
 import { homeFor } from '@/app/screens';
+import type { SignedOutState } from '@/app/user-menu';
 
 const demoAccounts = [
   ['owner@coilpath.example', 'Owner'],
@@ -31,7 +32,7 @@ export function SignInPage() {
   const { data: config } = useQuery({ queryKey: ['public-config'], queryFn: () => api.get<PublicConfig>('/api/config') });
   const form = useForm<SignIn>({ resolver: signInResolver, defaultValues: { email: '', password: '' } });
   useEffect(() => void signInResolver.preload(), []);
-  const signedOut = (location.state as { signedOut?: boolean } | null)?.signedOut;
+  const signedOut = location.state as Partial<SignedOutState> | null;
 
   const onSubmit = form.handleSubmit(async (values) => {
     setServerError(null);
@@ -53,9 +54,11 @@ export function SignInPage() {
         </div>
         <p className="mb-6 text-sm text-slate">Scheduling and service records for your branches, technicians and units.</p>
         <h1 className="mb-4 text-xl font-semibold">Sign in</h1>
-        {signedOut && (
+        {signedOut?.signedOut && (
           <p role="status" className="mb-4 rounded-md bg-ok-tint px-3 py-2 text-sm text-ok">
-            You are signed out.
+            {signedOut.signedOut === 'everywhere' && signedOut.email && signedOut.endedAt
+              ? `You are signed out everywhere: every session of ${signedOut.email} ended at ${new Date(signedOut.endedAt).toLocaleTimeString([], { hour: '2-digit', minute: '2-digit' })}, on this and every other device.`
+              : 'You are signed out.'}
           </p>
         )}
         <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
