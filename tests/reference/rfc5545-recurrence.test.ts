@@ -110,7 +110,7 @@ describe('RFC 5545 §3.8.5.3 recurrence examples', () => {
     ]);
   });
 
-  it('moving off weekends: "Monthly on the first and last day of the month" visits on Saturdays/Sundays go to Monday', () => {
+  it('moving off weekends: "Monthly on the first and last day of the month" visits on Saturdays/Sundays go to Monday, none lost', () => {
     const r = expandAgreementVisits({
       rrule: 'DTSTART;TZID=America/New_York:19970930T090000\nRRULE:FREQ=MONTHLY;COUNT=10;BYMONTHDAY=1,-1',
       termStart: '1997-01-01',
@@ -118,7 +118,13 @@ describe('RFC 5545 §3.8.5.3 recurrence examples', () => {
       timeZone: ny,
       holidays: ['1998-01-01'], // a branch holiday (not from the RFC)
     });
-    // 1997-11-01 and 1997-11-30 are Saturday and Sunday; 1998-01-31 Saturday, 1998-02-01 Sunday (merged).
-    expect(r.map((v) => v.date)).toEqual(['1997-09-30', '1997-10-01', '1997-10-31', '1997-11-03', '1997-12-01', '1997-12-31', '1998-01-02', '1998-02-02']);
+    // The ten RFC dates; 1997-11-01 and 1997-11-30 are Saturday and Sunday, 1998-01-31 Saturday, 1998-02-01 Sunday.
+    // Each moves to the next working day; a contracted visit is never dropped, so one whose Monday already holds
+    // a visit takes the next free working day (Coilpath's policy, common practice, no source): 11-30 → 12-01 taken
+    // → 12-02; 01-31 → 02-02, 02-01 → 02-02 taken → 02-03; 01-01 (holiday) → 01-02.
+    expect(r.map((v) => v.date)).toEqual([
+      '1997-09-30', '1997-10-01', '1997-10-31', '1997-11-03', '1997-12-01', '1997-12-02', '1997-12-31', '1998-01-02', '1998-02-02', '1998-02-03',
+    ]);
+    expect(r).toHaveLength(10);
   });
 });

@@ -58,6 +58,73 @@ async function technicians(page: Page): Promise<{ id: string; name: string }[]> 
   return all.filter((o) => o.id !== 'all').map((o) => ({ id: o.id, name: o.text.replace(/^Only /, '').trim() }));
 }
 
+/**
+ * A technician without the skill a job needs: the form warns, the server refuses naming the rule, and the
+ * dispatcher books anyway with a reason, which the chip then shows.
+ */
+async function bookAgainstARule(ctx: JourneyContext, page: Page, today: string, cellOf: (techId: string, d: string) => Locator) {
+  type Tech = { id: string; name: string; skills: string[] };
+  type Job = { id: string; number: number; requiredSkill: string | null; state: string };
+  const techs = ((await (await page.request.get(`${ctx.base}/api/roster/technicians`)).json()) as { technicians: Tech[] }).technicians;
+  const jobs = ((await (await page.request.get(`${ctx.base}/api/work-orders?state=unplaced`)).json()) as { workOrders: Job[] }).workOrders;
+  let pair: { job: Job; tech: Tech } | undefined;
+  for (const job of jobs) {
+    const tech = job.requiredSkill ? techs.find((t) => !t.skills.includes(job.requiredSkill!)) : undefined;
+    if (tech) {
+      pair = { job, tech };
+      break;
+    }
+  }
+  assert.ok(pair, 'the demo queue holds a job needing a skill that one of the technicians lacks');
+  const { job, tech } = pair;
+  // Two weeks ahead, a Tuesday at 07:00: a day the demo has not filled, so only the rules stand in the way.
+  let day = addDays(today, 14);
+  while (weekdayOf(day) !== 2) day = addDays(day, 1);
+
+  await page.getByRole('group', { name: 'Filter the unplaced work' }).getByRole('combobox', { name: /^Kind/ }).selectOption('');
+  const queue = page.getByRole('list', { name: 'Unplaced work, sorted' });
+  await queue.getByRole('button', { name: `Book WO-${job.number}…`, exact: true }).click();
+  const dialog = page.getByRole('dialog', { name: new RegExp(`^Book WO-${job.number}\\b`) });
+  await dialog.waitFor();
+  const form = dialog.getByRole('form', { name: 'Book at a time you choose' });
+  await form.getByLabel('Technician', { exact: true }).selectOption(tech.id);
+  await form.getByLabel('Date').fill(day);
+  await form.getByLabel(/^Start/).fill('07:00');
+  // The form says what the choice breaks before anything is sent.
+  await form.getByText(`Breaks the required skill:`).waitFor();
+
+  // Booking anyway without saying why: the server refuses, naming the rule.
+  ctx.allowConsoleError(/status of 409 \(Conflict\).*\/api\/bookings/);
+  await form.getByRole('button', { name: 'Book', exact: true }).click();
+  const refusal = form.getByRole('alert');
+  await refusal.waitFor();
+  const refused = (await refusal.innerText()).trim();
+  assert.match(refused, new RegExp(job.requiredSkill!), `the refusal names the skill "${job.requiredSkill}": ${refused}`);
+  assert.doesNotMatch(refused, /no free time/, 'the refusal names what is actually wrong');
+  ctx.step(`booking ${tech.name} for WO-${job.number} refused: "${refused}"`);
+
+  // Override every rule the form offers, with one reason.
+  const boxes = form.getByRole('checkbox', { name: /^Book against the .+ anyway$/ });
+  const n = await boxes.count();
+  assert.ok(n >= 1, 'the form offers to book against the rule');
+  for (let i = 0; i < n; i++) await boxes.nth(i).check();
+  const reason = `Only ${tech.name.split(' ')[0]} is near the site that morning; a skilled technician checks in by phone`;
+  await form.getByLabel(/^Why/).fill(reason);
+  await ctx.screen(page, 'roster-book-override');
+  await form.getByRole('button', { name: 'Book', exact: true }).click();
+  await dialog.waitFor({ state: 'hidden' });
+
+  // The chip on the board says so.
+  await showWeekOf(page, async () => (await cellOf(tech.id, day).count()) > 0);
+  const badge = cellOf(tech.id, day).getByTestId('chip-override');
+  await badge.waitFor();
+  assert.match(await badge.innerText(), /Override: .*required skill/, 'the chip names the overridden rule');
+  const chip = cellOf(tech.id, day).locator('[data-chip]').filter({ has: badge });
+  assert.ok((await chip.innerText()).includes(reason), 'the chip shows the reason');
+  ctx.step(`booked against the required skill with a reason; the chip says "${(await badge.innerText()).trim()}"`);
+  await ctx.screen(page, 'roster-override-chip');
+}
+
 /** Moves the board (or time grid) a week at a time until `has` holds. */
 async function showWeekOf(page: Page, has: () => Promise<boolean>) {
   const title = page.locator('h2[aria-live="polite"]');
@@ -388,6 +455,8 @@ export async function run(ctx: JourneyContext) {
   ctx.step(`dragged to ${targetDate}: load ${day} ${before.source}→${after.source} min, ${targetDate} ${before.target}→${after.target} min`);
   await page.waitForFunction(() => !document.querySelector('[aria-busy="true"]'));
   await ctx.screen(page, 'roster-moved');
+
+  await bookAgainstARule(ctx, page, today, cellOf);
 
   await visitEveryScreen(ctx, page, labels);
 

@@ -234,7 +234,7 @@ describe('signing out ends sessions on the server', () => {
   });
 
   it('forgets ended sessions an hour after their token expired, at the next sign-out', async () => {
-    const now = Date.now();
+    const now = t.ctx.clock.now().getTime();
     await t.ctx.db.insert(endedSessions).values([
       { sessionId: 'long-expired', userId: f.owner.id, expiresAt: new Date(now - 2 * 3600_000), endedAt: new Date(now - 3 * 3600_000) },
       { sessionId: 'just-expired', userId: f.owner.id, expiresAt: new Date(now - 60_000), endedAt: new Date(now - 3600_000) },

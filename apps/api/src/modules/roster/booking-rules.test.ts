@@ -242,7 +242,7 @@ describe('suggestions and evening out propose no booking that breaks a rule', ()
     const refused = await agent.post('/api/roster/even-out/apply').send({ proposals: [{ workOrderId, techId: plain.id, startAt, endAt }] });
     expect(refused.status).toBe(409);
     expect(refused.body.error.code).toBe('skill');
-    expect(refused.body.error.message).toMatch(/^WO-\d+: Gus Hale lacks the skill "chiller".* Nothing was booked; preview again\.$/);
+    expect(refused.body.error.message).toMatch(/^WO-\d+: Gus Hale lacks the skill "chiller".* Nothing was changed; preview again\.$/);
     expect(await stateOf(chiller.id)).toBe('unplaced');
     const applied = await agent.post('/api/roster/even-out/apply').send({ proposals: [{ workOrderId, techId: skilled.id, startAt, endAt }] });
     expect(applied.status).toBe(200);
