@@ -114,12 +114,16 @@ async function bookAgainstARule(ctx: JourneyContext, page: Page, today: string, 
   await form.getByRole('button', { name: 'Book', exact: true }).click();
   await dialog.waitFor({ state: 'hidden' });
 
-  // The chip on the board says so.
+  await page.getByRole('status').filter({ hasText: new RegExp(`^Booked WO-${job.number} with ${tech.name}`) }).first().waitFor();
+
+  // The chip on the board (every technician) says so.
+  await page.getByRole('button', { name: 'Board', exact: true }).click();
+  await page.getByRole('combobox', { name: 'Show' }).selectOption('all');
   await showWeekOf(page, async () => (await cellOf(tech.id, day).count()) > 0);
   const badge = cellOf(tech.id, day).getByTestId('chip-override');
   await badge.waitFor();
   assert.match(await badge.innerText(), /Override: .*required skill/, 'the chip names the overridden rule');
-  const chip = cellOf(tech.id, day).locator('[data-chip]').filter({ has: badge });
+  const chip = cellOf(tech.id, day).locator('[data-chip]').filter({ has: page.getByTestId('chip-override') });
   assert.ok((await chip.innerText()).includes(reason), 'the chip shows the reason');
   ctx.step(`booked against the required skill with a reason; the chip says "${(await badge.innerText()).trim()}"`);
   await ctx.screen(page, 'roster-override-chip');
