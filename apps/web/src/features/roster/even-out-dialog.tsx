@@ -8,6 +8,14 @@ import { formatInZone, formatMinutes } from '@/lib/format';
 import { useEvenOutApply, useEvenOutPreview } from './api';
 import { Modal, Refusal, TechSwatch } from './parts';
 
+/** A copy of the set with `id` added, or taken out when it was there. */
+function flipped(s: ReadonlySet<string>, id: string): Set<string> {
+  const n = new Set(s);
+  if (n.has(id)) n.delete(id);
+  else n.add(id);
+  return n;
+}
+
 /** Even out: a preview of proposed bookings for the week's unplaced work; the dispatcher accepts all, some or none. */
 export function EvenOutDialog({
   open,
@@ -55,23 +63,8 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
   if (preview.isError) return <Refusal message={errorMessage(preview.error)} />;
   const p = preview.data;
 
-  function toggle(id: string) {
-    setChosen((s) => {
-      const n = new Set(s);
-      if (n.has(id)) n.delete(id);
-      else n.add(id);
-      return n;
-    });
-  }
-
-  function toggleMove(id: string) {
-    setChosenMoves((s) => {
-      const n = new Set(s);
-      if (n.has(id)) n.delete(id);
-      else n.add(id);
-      return n;
-    });
-  }
+  const toggle = (id: string) => setChosen((s) => flipped(s, id));
+  const toggleMove = (id: string) => setChosenMoves((s) => flipped(s, id));
 
   function accept() {
     const proposals = p.proposals.filter((x) => chosen.has(x.workOrderId)).map(({ workOrderId, techId, startAt, endAt }) => ({ workOrderId, techId, startAt, endAt }));
