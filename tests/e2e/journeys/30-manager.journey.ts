@@ -68,6 +68,25 @@ async function bookTheLeakRepair(ctx: JourneyContext, page: Page): Promise<numbe
   return number;
 }
 
+/**
+ * The unit already has its open return visit (the repair just booked): booking again from the stale window creates
+ * nothing, says why, and offers to open the visit that is there — one truck roll per need.
+ */
+async function bookAgainFromTheStaleWindow(ctx: JourneyContext, page: Page, card: Locator, number: number) {
+  ctx.allowConsoleError(/status of 409 \(Conflict\).*\/api\/leak-cases\/[^/]+\/repair-visit/);
+  await card.getByRole('button', { name: 'Book repair visit' }).click();
+  const offer = card.getByRole('alert').filter({ hasText: 'No second visit was created' });
+  await offer.waitFor();
+  const link = offer.getByRole('link', { name: new RegExp(`^Open WO-${number}\\b`) });
+  assert.equal(await link.count(), 1, `the refusal offers to open WO-${number}, the return visit already open`);
+  ctx.step(`booking again from a second window: "${(await offer.innerText()).trim().replace(/\s+/g, ' ')}"`);
+  await link.click();
+  await page.waitForURL(/\/(units|visits)\//);
+  await page.getByText(`WO-${number}`).first().waitFor();
+  ctx.step(`taken to WO-${number} (${new URL(page.url()).pathname.split('/')[1]})`);
+  await ctx.screen(page, 'open-return-offered');
+}
+
 async function findInRosterQueue(ctx: JourneyContext, page: Page, number: number) {
   await page.getByRole('navigation', { name: 'Screens' }).getByRole('link', { name: 'Roster', exact: true }).click();
   await page.getByRole('heading', { level: 1, name: 'Roster' }).waitFor();
@@ -184,7 +203,14 @@ export async function run(ctx: JourneyContext) {
   await page.getByRole('heading', { level: 1, name: 'Watchlist' }).waitFor();
   await ctx.screen(page, 'watchlist');
 
+  // A second window, open on the same Watchlist before the repair is booked (a colleague, or another tab).
+  const stale = await ctx.launch(desktop);
+  await signInThroughForm(ctx, stale, 'branch_manager');
+  const staleCard = stale.getByRole('listitem').filter({ has: stale.getByRole('heading', { level: 3, name: /^CH-1\b.*Marlow Tower/ }) });
+  await staleCard.getByRole('button', { name: 'Book repair visit' }).waitFor();
+
   const repair = await bookTheLeakRepair(ctx, page);
+  await bookAgainFromTheStaleWindow(ctx, stale, staleCard, repair);
   await findInRosterQueue(ctx, page, repair);
   await buildQuarterlyAgreement(ctx, page);
 
