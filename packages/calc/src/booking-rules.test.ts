@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { bookingBreaches, dueTimeBreach, technicianBreaches, unoverridden, workingHoursBreach, workOrderDueAt } from './booking-rules';
 import { evenOut } from './even-out';
-import { rankTechnicians, type Booking, type SchedulingJob, type Technician } from './schedule';
+import { rankTechnicians, technicianLoad, workingWindow, type Booking, type SchedulingJob, type Technician } from './schedule';
 
 /*
  * America/Chicago: CST = UTC−6 until the spring-forward night of 2027-03-14. Technicians work
@@ -57,6 +57,18 @@ describe('the rules', () => {
     expect(late!.message).toBe('Anneke Strand works 07:00–15:30 on Wednesday, March 10; this booking runs 15:00–16:30 (America/Chicago).');
     expect(workingHoursBreach(t, '2027-03-11T04:00:00Z', '2027-03-11T07:00:00Z')!.message).toContain('runs 22:00–01:00 the next day');
     expect(workingHoursBreach(t, '2027-03-07T15:00:00Z', '2027-03-07T16:00:00Z')!.message).toBe('Anneke Strand does not work on Sunday, March 7.');
+  });
+
+  it('working hours: a branch holiday has no working window, whatever the weekday’s hours say', () => {
+    // 2027-12-24 is a Friday (a working weekday for this technician); the branch keeps it as a holiday.
+    const t = tech({ id: 'a', holidays: ['2027-12-24'] });
+    const b = workingHoursBreach(t, '2027-12-24T15:00:00Z', '2027-12-24T16:00:00Z');
+    expect(b).toMatchObject({ rule: 'working_hours', reason: 'Branch holiday on 2027-12-24' });
+    expect(b!.message).toBe('Friday, December 24 is a branch holiday; Anneke Strand is not rostered to work.');
+    // The next working day is unaffected, and a holiday on a weekend keeps the day-off wording.
+    expect(workingHoursBreach(t, '2027-12-27T15:00:00Z', '2027-12-27T16:00:00Z')).toBeNull();
+    expect(workingWindow(t, '2027-12-24')).toBeNull();
+    expect(technicianLoad([], [t], '2027-12-24')[0]).toMatchObject({ capacityMinutes: 0, ratio: null });
   });
 
   it('due time: a booking may start at the due time, not after it', () => {

@@ -19,7 +19,7 @@ export const bookingRules = ['skill', 'certification', 'working_hours', 'due_tim
 export type BookingRule = (typeof bookingRules)[number];
 
 /** What the rules read of a technician. */
-export type RuleTechnician = Pick<Technician, 'name' | 'skills' | 'epa608' | 'workingHours' | 'timeZone'>;
+export type RuleTechnician = Pick<Technician, 'name' | 'skills' | 'epa608' | 'workingHours' | 'timeZone' | 'holidays'>;
 
 /** What the rules read of the work. */
 export interface RuleJob {
@@ -93,6 +93,9 @@ export function workingHoursBreach(tech: RuleTechnician, start: Instant, end: In
   const win = workingWindow(tech as Technician, day);
   if (win && s >= win.start && e <= win.end) return null;
   const dayName = longDay(s, tz);
+  if (!win && tech.holidays?.includes(day)) {
+    return { rule: 'working_hours', reason: `Branch holiday on ${day}`, message: `${dayName} is a branch holiday; ${tech.name} is not rostered to work.` };
+  }
   if (!win) {
     return { rule: 'working_hours', reason: `Not working on ${day}`, message: `${tech.name} does not work on ${dayName}.` };
   }

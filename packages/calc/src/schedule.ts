@@ -34,6 +34,8 @@ export interface Technician {
   timeZone: string;
   /** Where the technician's day starts (home or shop). */
   start: LatLon;
+  /** The branch's holidays (`YYYY-MM-DD` in its calendar): no working window on them. */
+  holidays?: readonly IsoDate[] | undefined;
 }
 
 export interface Booking {
@@ -143,6 +145,7 @@ export function weekdayOf(day: IsoDate): number {
 
 /** The tech's working hours on a local day as instants, or null on a day off. */
 export function workingWindow(tech: Technician, day: IsoDate): { start: number; end: number } | null {
+  if (tech.holidays?.includes(day)) return null;
   const wd = weekdayOf(day);
   const wh = tech.workingHours[wd] ?? tech.workingHours[weekdayKeys[wd] as WeekdayKey] ?? null;
   if (!wh) return null;

@@ -175,6 +175,8 @@ export const technicianDayLoadSchema = z.object({
   capacityMinutes: z.number(),
   ratio: z.number().nullable(),
   overloaded: z.boolean(),
+  /** The day is one of the branch's holidays (capacity 0 whatever the working hours say). */
+  holiday: z.boolean().optional(),
 });
 export type TechnicianDayLoad = z.infer<typeof technicianDayLoadSchema>;
 export const loadSchema = z.object({ timeZone: z.string(), load: z.array(technicianDayLoadSchema) });

@@ -23,11 +23,11 @@ const BRANCH_ZONE = 'America/Chicago';
 /** A "what happened" notice (role status/alert) with this text. */
 const notice = (page: Page, text: string | RegExp) => page.locator('[aria-live="polite"] > [role]').filter({ hasText: text });
 
-/** Booked minutes in a load gauge's text: "2 h 00 min of 8 h 30 min", "45 min of …", "Day off", "1 h 00 min on a day off". */
+/** Booked minutes in a load gauge's text: "2 h 00 min of 8 h 30 min", "45 min of …", "Day off", "Holiday", "1 h 00 min on a day off". */
 function bookedMinutes(text: string): number {
   const t = text.trim();
-  if (t === 'Day off') return 0;
-  const m = /^(?:(\d+) h )?(\d+) min (?:of|on a day off)/.exec(t);
+  if (t === 'Day off' || t === 'Holiday') return 0;
+  const m = /^(?:(\d+) h )?(\d+) min (?:of|on a day off|on a holiday)/.exec(t);
   assert.ok(m, `a load gauge text: "${t}"`);
   return Number(m[1] ?? 0) * 60 + Number(m[2]);
 }

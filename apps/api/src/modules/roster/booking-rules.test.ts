@@ -193,6 +193,38 @@ describe('a move goes through the same rules', () => {
   });
 });
 
+describe('a branch holiday is nobody’s working day', () => {
+  it('shows no capacity on the holiday, refuses a booking on it as outside working hours (overridable), and proposes nobody', async () => {
+    // Tuesday 2027-03-16 is an ordinary weekday, kept by this branch as a holiday.
+    const branch = await makeBranch(t.ctx.db, { timeZone: 'America/Chicago', holidays: ['2027-03-16'] });
+    const site = await makeSiteWithUnit(t.ctx.db, branch.id);
+    const dee = await makeUser(t.ctx.db, 'technician', branch.id, { name: 'Dee Park', skills: [] });
+    const agent = await signedInAgent(t.app, (await makeUser(t.ctx.db, 'dispatcher', branch.id)).email, TEST_PASSWORD);
+    const w = await makeWorkOrder(t.ctx.db, { branchId: branch.id, siteId: site.site.id, unitId: site.unit.id, estimatedMinutes: 60 });
+
+    const load = await agent.get('/api/roster/load').query({ branchId: branch.id, from: '2027-03-15', to: '2027-03-17' });
+    expect(load.status).toBe(200);
+    const days = new Map(load.body.load.map((l: { day: string }) => [l.day, l]));
+    expect(days.get('2027-03-16')).toMatchObject({ capacityMinutes: 0, holiday: true });
+    expect(days.get('2027-03-15')).toMatchObject({ capacityMinutes: 510 });
+    expect((days.get('2027-03-15') as { holiday?: boolean }).holiday).toBeUndefined();
+
+    // 09:00 CDT on the holiday = 14:00Z.
+    const refused = await book(agent, w.id, dee.id, '2027-03-16T14:00:00Z');
+    expect(refused.status).toBe(409);
+    expect(refused.body.error.code).toBe('outside_hours');
+    expect(refused.body.error.details).toMatchObject({ rules: ['working_hours'], hours: null });
+    expect(refused.body.error.details.breaches[0].message).toBe('Tuesday, March 16 is a branch holiday; Dee Park is not rostered to work.');
+    expect(await stateOf(w.id)).toBe('unplaced');
+
+    const suggest = await agent.post('/api/roster/suggest').send({ workOrderId: w.id, day: '2027-03-16' });
+    expect(suggest.body.candidates.every((c: { eligible: boolean }) => !c.eligible)).toBe(true);
+
+    const ok = await book(agent, w.id, dee.id, '2027-03-16T14:00:00Z', { overrideRules: ['working_hours'], overrideReason: 'Hospital chiller, owner asked' });
+    expect(ok.status).toBe(201);
+  });
+});
+
 describe('suggestions and evening out propose no booking that breaks a rule', () => {
   it('ranks out a technician without the skill or past the due time, saying which rule (not "no free slot")', async () => {
     // A branch of its own, so only this test's technicians and work count.

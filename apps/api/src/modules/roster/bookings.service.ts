@@ -207,7 +207,7 @@ async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Pl
   if (tech.branchId !== wo.branchId) {
     throw conflict('other_branch', `${tech.name} works in another branch than ${workOrderLabel(wo.number)}. Pick a technician of the work order's branch.`);
   }
-  const [branch] = await tx.select({ id: branches.id, timeZone: branches.timeZone, baseLat: branches.baseLat, baseLon: branches.baseLon }).from(branches).where(eq(branches.id, wo.branchId)).limit(1);
+  const [branch] = await tx.select({ id: branches.id, timeZone: branches.timeZone, baseLat: branches.baseLat, baseLon: branches.baseLon, holidays: branches.holidays }).from(branches).where(eq(branches.id, wo.branchId)).limit(1);
   const tz = branch!.timeZone;
 
   // No overlap with another booking of the same technician (not overridable: checked first, so nobody

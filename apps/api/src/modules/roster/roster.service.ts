@@ -26,7 +26,7 @@ import {
 export async function rosterBranch(db: Tx, user: SessionUser, requested: string | undefined): Promise<BranchRow> {
   const id = resolveBranch(user, requested);
   if (!id) throw badRequest('Choose a branch to see its roster.');
-  const [b] = await db.select({ id: branches.id, timeZone: branches.timeZone, baseLat: branches.baseLat, baseLon: branches.baseLon }).from(branches).where(eq(branches.id, id)).limit(1);
+  const [b] = await db.select({ id: branches.id, timeZone: branches.timeZone, baseLat: branches.baseLat, baseLon: branches.baseLon, holidays: branches.holidays }).from(branches).where(eq(branches.id, id)).limit(1);
   if (!b) throw notFound('branch');
   return b;
 }
@@ -111,7 +111,10 @@ export async function load(db: Db, user: SessionUser, q: z.output<typeof loadQue
   const rows = await branchBookings(db, branch.id, range.start, range.end);
   const calcBookings = rows.map(toCalcBooking);
   const out: TechnicianDayLoad[] = [];
-  for (const day of daysBetween(q.from, q.to)) out.push(...technicianLoad(calcBookings, techs, day));
+  const holidays = new Set(branch.holidays);
+  for (const day of daysBetween(q.from, q.to)) {
+    for (const l of technicianLoad(calcBookings, techs, day)) out.push(holidays.has(day) ? { ...l, holiday: true } : l);
+  }
   return { timeZone: branch.timeZone, load: out };
 }
 

@@ -30,6 +30,8 @@ export interface BranchRow {
   timeZone: string;
   baseLat: number;
   baseLon: number;
+  /** The branch's holidays: nobody is rostered on them (calc's `workingWindow`). */
+  holidays: string[];
 }
 
 export function toCalcTechnician(t: TechRow, branch: BranchRow): CalcTechnician {
@@ -41,6 +43,7 @@ export function toCalcTechnician(t: TechRow, branch: BranchRow): CalcTechnician 
     workingHours: t.workingHours ?? {},
     timeZone: branch.timeZone,
     start: { lat: t.startLat ?? branch.baseLat, lon: t.startLon ?? branch.baseLon },
+    holidays: branch.holidays,
   };
 }
 

@@ -12,7 +12,7 @@ import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, 
 import type { Booking, Technician, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
 import { priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
-import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, loadState, monthName, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
+import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, gaugeText, loadState, offDayWord, monthName, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
 import { formatMinutes } from '@/lib/format';
 import { colourOf, leakDeadline, TechSwatch } from './parts';
 import { overrideSummary } from './rules';
@@ -77,12 +77,12 @@ function LoadLine({ l, wide }: { l: TechnicianDayLoad | undefined; wide?: boolea
       <span className={`flex items-start gap-1 ${wide ? 'flex-wrap' : ''}`}>
         <span className="mt-px">{stateIcon[state]}</span>
         {off && !l.bookedMinutes ? (
-          <span className="text-slate">Day off</span>
+          <span className="text-slate">{gaugeText(l)}</span>
         ) : (
           <span className={`flex tabular ${wide ? 'flex-wrap gap-x-1' : 'flex-col'}`}>
             {/* The spaces keep the words apart for tools that read the text nodes one after another. */}
             <span className="font-semibold">{formatMinutes(l.bookedMinutes)}</span>{' '}
-            <span className="text-slate">{off ? 'on a day off' : `of ${formatMinutes(l.capacityMinutes)}`}</span>
+            <span className="text-slate">{off ? `on a ${offDayWord(l)}` : `of ${formatMinutes(l.capacityMinutes)}`}</span>
             {state === 'over' && (
               <>
                 {' '}

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { Booking } from '@coilpath/contract';
-import { cellKey, cellLabel, daysRange, entryTime, groupBookings, localDaysOf, loadWords, stepDate, viewDays, viewTitle, weekOf } from './board';
+import { cellKey, cellLabel, daysRange, entryTime, gaugeText, groupBookings, localDaysOf, loadWords, stepDate, viewDays, viewTitle, weekOf } from './board';
 
 /*
  * America/Chicago (CST = UTC−6, CDT = UTC−5) falls back on Sunday 2026-11-01 at 02:00 CDT (07:00Z) and
@@ -172,5 +172,13 @@ describe('what a cell says', () => {
     expect(loadWords(load(60, 0))).toBe('1 h 00 min on a day off. Over: booked on a day off');
     expect(loadWords(load(450, 510))).toBe('7 h 30 min of 8 h 30 min. Nearly full');
     expect(loadWords(load(420, 510))).toBe('7 h 00 min of 8 h 30 min');
+  });
+
+  it('calls a branch holiday a holiday, not a day off', () => {
+    const holiday = { ...load(0, 0), day: '2026-12-25', holiday: true };
+    expect(gaugeText(holiday)).toBe('Holiday');
+    expect(cellLabel('Anneke Strand', '2026-12-25', 0, holiday)).toBe('Anneke Strand, Friday 25 December: no bookings, Holiday');
+    expect(loadWords({ ...load(60, 0), holiday: true })).toBe('1 h 00 min on a holiday. Over: booked on a holiday');
+    expect(gaugeText(load(0, 0))).toBe('Day off');
   });
 });

@@ -175,16 +175,23 @@ export function loadState(l: Pick<TechnicianDayLoad, 'bookedMinutes' | 'capacity
   return (l.ratio ?? 0) >= NEARLY_FULL ? 'near' : 'ok';
 }
 
-/** The load in words: "5 h 30 min of 8 h 30 min", "Day off", "1 h 00 min on a day off", plus "Over by …". */
-export function loadWords(l: Pick<TechnicianDayLoad, 'bookedMinutes' | 'capacityMinutes' | 'ratio' | 'overloaded'>): string {
-  const base =
-    l.capacityMinutes === 0
-      ? l.bookedMinutes > 0
-        ? `${formatMinutes(l.bookedMinutes)} on a day off`
-        : 'Day off'
-      : `${formatMinutes(l.bookedMinutes)} of ${formatMinutes(l.capacityMinutes)}`;
+type LoadFigures = Pick<TechnicianDayLoad, 'bookedMinutes' | 'capacityMinutes' | 'holiday'>;
+
+/** A day without working time: the branch's holiday, or the technician's day off. */
+export const offDayWord = (l: Pick<TechnicianDayLoad, 'holiday'>): string => (l.holiday ? 'holiday' : 'day off');
+
+/** The booked time against the working time: "5 h 30 min of 8 h 30 min", "Day off", "Holiday", "1 h 00 min on a day off". */
+export function gaugeText(l: LoadFigures): string {
+  if (l.capacityMinutes > 0) return `${formatMinutes(l.bookedMinutes)} of ${formatMinutes(l.capacityMinutes)}`;
+  const word = offDayWord(l);
+  return l.bookedMinutes > 0 ? `${formatMinutes(l.bookedMinutes)} on a ${word}` : word.charAt(0).toUpperCase() + word.slice(1);
+}
+
+/** The load in words: `gaugeText`, plus "Over by …" or "Nearly full". */
+export function loadWords(l: LoadFigures & Pick<TechnicianDayLoad, 'ratio' | 'overloaded'>): string {
+  const base = gaugeText(l);
   const state = loadState(l);
-  if (state === 'over') return l.capacityMinutes === 0 ? `${base}. Over: booked on a day off` : `${base}. Over by ${formatMinutes(l.bookedMinutes - l.capacityMinutes)}`;
+  if (state === 'over') return l.capacityMinutes === 0 ? `${base}. Over: booked on a ${offDayWord(l)}` : `${base}. Over by ${formatMinutes(l.bookedMinutes - l.capacityMinutes)}`;
   if (state === 'near') return `${base}. Nearly full`;
   return base;
 }

@@ -1,28 +1,21 @@
 import { AlertTriangle, CheckCircle2, Moon } from 'lucide-react';
 import type { Technician, TechnicianDayLoad } from '@coilpath/contract';
 import { formatMinutes } from '@/lib/format';
+import { gaugeText, loadState, offDayWord } from './board';
 import { TechSwatch } from './parts';
 
 const dayHeading = (day: string) => new Date(`${day}T12:00:00Z`).toLocaleDateString('en-US', { weekday: 'short', day: 'numeric', timeZone: 'UTC' });
 
-/** Share of capacity at which a day counts as nearly full. */
-const NEARLY_FULL = 0.85;
-
-export function gaugeText(l: Pick<TechnicianDayLoad, 'bookedMinutes' | 'capacityMinutes'>): string {
-  if (l.capacityMinutes === 0) return l.bookedMinutes > 0 ? `${formatMinutes(l.bookedMinutes)} on a day off` : 'Day off';
-  return `${formatMinutes(l.bookedMinutes)} of ${formatMinutes(l.capacityMinutes)}`;
-}
-
 function Gauge({ l, techName }: { l: TechnicianDayLoad; techName: string }) {
   const offDay = l.capacityMinutes === 0;
   const ratio = l.ratio ?? (l.bookedMinutes > 0 ? Infinity : 0);
-  const state = l.overloaded ? 'over' : ratio >= NEARLY_FULL ? 'near' : 'ok';
+  const state = loadState(l);
   const pct = Math.min(100, Math.round((Number.isFinite(ratio) ? ratio : 1) * 100));
   const bar = state === 'over' ? 'bg-alarm' : state === 'near' ? 'bg-watch-base' : 'bg-coolant';
   const word =
     state === 'over'
       ? offDay
-        ? 'Booked on a day off'
+        ? `Booked on a ${offDayWord(l)}`
         : `Over by ${formatMinutes(l.bookedMinutes - l.capacityMinutes)}`
       : offDay
         ? null
