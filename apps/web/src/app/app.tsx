@@ -1,7 +1,9 @@
 import { lazy, Suspense, useState } from 'react';
 import { QueryClientProvider } from '@tanstack/react-query';
+import { PersistQueryClientProvider } from '@tanstack/react-query-persist-client';
 import { createBrowserRouter, Navigate, RouterProvider, useLocation } from 'react-router-dom';
 import { createQueryClient } from '@/lib/query-client';
+import { persistOptions } from '@/lib/query-persist';
 import { LoadingState, ErrorState } from '@/components/ui/states';
 import { NoticesProvider } from '@/components/ui/notices';
 import { SignInPage } from '@/features/auth/sign-in-page';
@@ -58,14 +60,21 @@ function NotFound() {
 
 export function App() {
   const [client] = useState(createQueryClient);
-  return (
-    <QueryClientProvider client={client}>
-      <NoticesProvider>
-        <Suspense fallback={<LoadingState />}>
-          <RouterProvider router={router} />
-        </Suspense>
-      </NoticesProvider>
-    </QueryClientProvider>
+  const [persist] = useState(() => persistOptions(client));
+  const app = (
+    <NoticesProvider>
+      <Suspense fallback={<LoadingState />}>
+        <RouterProvider router={router} />
+      </Suspense>
+    </NoticesProvider>
+  );
+  // With IndexedDB, what the technician's phone kept is restored before the first query runs.
+  return persist ? (
+    <PersistQueryClientProvider client={client} persistOptions={persist}>
+      {app}
+    </PersistQueryClientProvider>
+  ) : (
+    <QueryClientProvider client={client}>{app}</QueryClientProvider>
   );
 }
 

@@ -3,6 +3,7 @@ import { NavLink, Outlet } from 'react-router-dom';
 import { Menu, X } from 'lucide-react';
 import { Wordmark } from '@/components/ui/logo';
 import { LoadingState } from '@/components/ui/states';
+import { OfflineBanner } from '@/components/ui/offline-banner';
 import { useUser } from './session';
 import { useBranch } from './branch';
 import { screensFor } from './screens';
@@ -101,6 +102,7 @@ export function AppFrame() {
             <UserMenu user={user} />
           </div>
         </header>
+        <OfflineBanner />
         {user.role === 'owner' && (
           <div className="border-b border-slate-line bg-white px-3 py-2 sm:hidden">
             <BranchSwitcher />
