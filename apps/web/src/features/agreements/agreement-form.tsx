@@ -1,6 +1,7 @@
 import { useMemo, useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
+import { addDays } from '@coilpath/calc';
 import { agreementInputSchema, buildAgreementRrule, describeAgreementRrule, recurrencePresetLabels, recurrencePresets, type AgreementDetail } from '@coilpath/contract';
 import type { z } from 'zod';
 import { ApiError, errorMessage } from '@/lib/api-client';
@@ -9,8 +10,7 @@ import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
-import { useUnitChoices } from '@/features/watchlist/api';
-import { addDaysIso } from '@/features/watchlist/dates';
+import { useUnitChoices } from '@/lib/unit-choices';
 import { useCreateAgreement } from './api';
 
 type In = z.input<typeof agreementInputSchema>;
@@ -32,7 +32,7 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
       unitIds: [],
       recurrence: { preset: 'quarterly', startMonth: Number(today.slice(5, 7)), dayOfMonth: 15, springMonth: 4, autumnMonth: 10 },
       termStart: today,
-      termEnd: addDaysIso(addDaysIso(today, 365), -1),
+      termEnd: addDays(addDays(today, 365), -1),
       slaHours: 4,
       priceCents: 360_000,
       visitMinutes: 120,

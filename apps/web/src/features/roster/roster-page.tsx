@@ -3,7 +3,7 @@ import { useSearchParams } from 'react-router-dom';
 import { ChevronLeft, ChevronRight, Eye, EyeOff, PanelRightClose, PanelRightOpen, Plus, Scale } from 'lucide-react';
 import type { Booking, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
 import { weekdays, workOrderLabel } from '@coilpath/contract';
-import { useBranch } from '@/app/branch';
+import { useBranch } from '@/lib/branch';
 import { Button } from '@/components/ui/button';
 import { Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';

@@ -14,7 +14,8 @@ import { Pager } from '@/components/ui/pager';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { useRecordAction, useSite, useUnits } from './api';
 import { SiteForm, UnitForm } from './forms';
-import { SearchBox, StatusFilter } from './sites-page';
+import { SearchBox } from '@/components/search-box';
+import { StatusFilter } from './sites-page';
 import { UnitImport } from './unit-import';
 
 function Detail({ label, children }: { label: string; children: React.ReactNode }) {

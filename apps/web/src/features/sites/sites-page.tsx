@@ -1,11 +1,12 @@
 import { useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
-import { Archive, ArchiveRestore, Pencil, Plus, Search, Trash2 } from 'lucide-react';
+import { Archive, ArchiveRestore, Pencil, Plus, Trash2 } from 'lucide-react';
 import type { CustomerRow, SiteRow } from '@coilpath/contract';
 import { errorMessage } from '@/lib/api-client';
-import { useDebouncedSearch, useListParams } from '@/lib/use-list-params';
-import { useBranch } from '@/app/branch';
+import { useListParams } from '@/lib/use-list-params';
+import { useBranch } from '@/lib/branch';
 import { Button } from '@/components/ui/button';
+import { SearchBox } from '@/components/search-box';
 import { DataTable, type CoilpathColumn } from '@/components/ui/data-table';
 import { Dialog } from '@/components/ui/dialog';
 import { useNotify } from '@/components/ui/notices';
@@ -26,23 +27,6 @@ export function StatusFilter({ value, onChange }: { value: string; onChange: (v:
         <option value="archived">Archived</option>
         <option value="all">All</option>
       </select>
-    </label>
-  );
-}
-
-export function SearchBox({ value, onCommit, label }: { value: string; onCommit: (q: string) => void; label: string }) {
-  const [text, setText] = useDebouncedSearch(value, onCommit);
-  return (
-    <label className="relative flex min-w-0 flex-1 items-center sm:max-w-sm">
-      <span className="sr-only">{label}</span>
-      <Search className="pointer-events-none absolute left-3 size-4 text-slate" aria-hidden="true" />
-      <input
-        type="search"
-        value={text}
-        onChange={(e) => setText(e.target.value)}
-        placeholder={label}
-        className="min-h-11 w-full rounded-md border border-slate-line bg-white py-2 pl-9 pr-3"
-      />
     </label>
   );
 }

@@ -13,8 +13,8 @@ import {
 import { api, errorMessage } from '@/lib/api-client';
 import { formatInZone, formatMoney, todayInZone } from '@/lib/format';
 import { useListParams } from '@/lib/use-list-params';
-import { useBranch } from '@/app/branch';
-import { useUser } from '@/app/session';
+import { useBranch } from '@/lib/branch';
+import { useUser } from '@/lib/session';
 import { Button } from '@/components/ui/button';
 import { DataTable, type CoilpathColumn } from '@/components/ui/data-table';
 import { Dialog } from '@/components/ui/dialog';
@@ -22,7 +22,7 @@ import { useNotify } from '@/components/ui/notices';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { Pager } from '@/components/ui/pager';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
-import { SearchBox } from '@/features/sites/sites-page';
+import { SearchBox } from '@/components/search-box';
 import { BranchForm, PersonForm } from './forms';
 
 type Tab = 'people' | 'invitations' | 'branches';

@@ -10,7 +10,8 @@ import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import type { VisitDraft } from './draft';
 import { SaveStatus } from './save-status';
-import { isRetryable, useAddFinding } from './visit-api';
+import { isRetryable } from '@/lib/visit-queries';
+import { useAddFinding } from './visit-api';
 
 /** The form's own shape: selects and text give strings; the contract schema checks the result. */
 const formSchema = z.object({

@@ -9,7 +9,8 @@ import { useNotify } from '@/components/ui/notices';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import type { PendingRefrigerant, VisitDraft } from './draft';
 import { SaveStatus } from './save-status';
-import { isRetryable, useAddRefrigerant } from './visit-api';
+import { isRetryable } from '@/lib/visit-queries';
+import { useAddRefrigerant } from './visit-api';
 
 const refrigerants = listRefrigerants();
 
