@@ -82,7 +82,7 @@ import { requestPasswordReset } from '../../apps/api/src/modules/auth/password-r
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';
-import { agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, workOrders, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
+import { agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
 import { makeSiteWithUnit, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
 import { nextWeekday, type Caller, type MatrixFixture, type Side } from './matrix-fixture';
 

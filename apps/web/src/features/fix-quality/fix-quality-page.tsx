@@ -5,7 +5,7 @@ import { ArrowDownRight, ArrowUpRight, FileDown, Minus } from 'lucide-react';
 import type { FixQualityReport } from '@coilpath/contract';
 import { useBranch } from '@/lib/branch';
 import { useUser } from '@/lib/session';
-import { Card, PageHeader } from '@/components/ui/page';
+import { PageHeader } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { formatNumber, formatPercent } from '@/lib/format';
 import { GroupRateChart, MonthTrendChart } from './charts';

@@ -1,4 +1,4 @@
-import { useMemo, useState } from 'react';
+import { useCallback, useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
 import { Archive, ArchiveRestore, Pencil, Plus, Trash2 } from 'lucide-react';
 import type { CustomerRow, SiteRow } from '@coilpath/contract';
@@ -44,15 +44,20 @@ export default function SitesPage() {
   const customers = useCustomers(filter, tab === 'customers');
   const where = branch ? branch.name : 'all branches';
 
-  async function run(kind: 'customers' | 'sites', id: string, verb: 'archive' | 'unarchive' | 'delete', name: string) {
-    if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
-    try {
-      await action.mutateAsync({ kind, id, action: verb });
-      notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
-    } catch (e) {
-      notify(errorMessage(e), 'alarm');
-    }
-  }
+  const { mutateAsync } = action;
+  const run = useCallback(
+    async (kind: 'customers' | 'sites', id: string, verb: 'archive' | 'unarchive' | 'delete', name: string) => {
+      if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
+      try {
+        await mutateAsync({ kind, id, action: verb });
+        notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
+      } catch (e) {
+        notify(errorMessage(e), 'alarm');
+      }
+    },
+    [mutateAsync, notify],
+  );
+
 
   const siteColumns = useMemo<CoilpathColumn<SiteRow>[]>(
     () => [
@@ -110,8 +115,7 @@ export default function SitesPage() {
         },
       },
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [branchId],
+    [branchId, run],
   );
 
   const customerColumns = useMemo<CoilpathColumn<CustomerRow>[]>(
@@ -165,8 +169,7 @@ export default function SitesPage() {
         },
       },
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [branchId],
+    [branchId, run],
   );
 
   const q = tab === 'sites' ? sites : customers;

@@ -1,4 +1,4 @@
-import { useMemo, useState } from 'react';
+import { useCallback, useMemo, useState } from 'react';
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { Building2, CheckCircle2, Clock, MailPlus, Pencil, RotateCw, UserCheck, UserX, XCircle } from 'lucide-react';
 import { psiToKpa } from '@coilpath/calc';
@@ -100,15 +100,20 @@ export default function TeamPage() {
     mutationFn: ({ path, method }: { path: string; method: 'post' | 'delete' }) => (method === 'post' ? api.post<unknown>(path) : api.delete<unknown>(path)),
     onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: ['users'] }), qc.invalidateQueries({ queryKey: ['invitations'] })]),
   });
-  async function run(path: string, method: 'post' | 'delete', done: string, confirm?: string) {
-    if (confirm && !window.confirm(confirm)) return;
-    try {
-      await act.mutateAsync({ path, method });
-      notify(done);
-    } catch (e) {
-      notify(errorMessage(e), 'alarm');
-    }
-  }
+  const { mutateAsync } = act;
+  const run = useCallback(
+    async (path: string, method: 'post' | 'delete', done: string, confirm?: string) => {
+      if (confirm && !window.confirm(confirm)) return;
+      try {
+        await mutateAsync({ path, method });
+        notify(done);
+      } catch (e) {
+        notify(errorMessage(e), 'alarm');
+      }
+    },
+    [mutateAsync, notify],
+  );
+
 
   const peopleColumns = useMemo<CoilpathColumn<UserRow>[]>(
     () => [
@@ -196,8 +201,7 @@ export default function TeamPage() {
         },
       },
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [branchId, timeZone, me.id],
+    [branchId, timeZone, me.id, run],
   );
 
   const tabButton = (t: Tab, label: string) => (

@@ -2,7 +2,7 @@ import { useEffect } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
 import { Phone } from 'lucide-react';
-import { causeCodeLabels, workOrderKindLabels, type VisitDetail } from '@coilpath/contract';
+import { causeCodeLabels, workOrderKindLabels } from '@coilpath/contract';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
