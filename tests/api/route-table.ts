@@ -604,7 +604,7 @@ export const routeTable: RouteRow[] = [
   },
 
 
-  // ── My Day, calendar feed (technicians) ─────────────────────────────────────────────────
+  // ── Route, calendar feed (technicians) ─────────────────────────────────────────────────
   {
     method: 'GET',
     path: '/api/day',
@@ -1116,7 +1116,7 @@ export const routeTable: RouteRow[] = [
     request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}/plan/apply` }),
   },
 
-  // ── modules landing next: add their rows here (Sites/Team, Roster, My Day/Visit, Watchlist/
+  // ── modules landing next: add their rows here (Sites/Team, Roster, Route/Visit, Watchlist/
   //    Agreements, Fix Quality). Example of a branch-scoped record route:
   // {
   //   method: 'PATCH', path: '/api/sites/:id',

@@ -235,7 +235,7 @@ export default function DayPage() {
   return (
     <>
       <PageHeader
-        title="My Day"
+        title="Route"
         subtitle={
           <>
             Your stops in route order · {d.branch.name || branch?.name} · {dateLabel}

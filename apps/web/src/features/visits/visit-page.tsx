@@ -30,8 +30,8 @@ function CurrentVisit() {
   return (
     <>
       <PageHeader title="Visit" subtitle="Record readings, findings, refrigerant and photos, and close the visit." />
-      <EmptyState title="No current visit" action={<Link to="/day" className="text-coolant underline">Open My Day</Link>}>
-        You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on My Day; press “En route” there
+      <EmptyState title="No current visit" action={<Link to="/day" className="text-coolant underline">Open Route</Link>}>
+        You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on Route; press “En route” there
         to start it.
       </EmptyState>
     </>
