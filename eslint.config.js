@@ -53,8 +53,6 @@ export default defineConfig(
       'react-hooks/exhaustive-deps': 'error',
       // react-hook-form's watch() is used knowingly; Coilpath does not build with the React Compiler.
       'react-hooks/incompatible-library': 'off',
-      // A few screens reset local state when a key changes (visit, route day, view); kept until a rework.
-      'react-hooks/set-state-in-effect': 'off',
     },
   },
   {

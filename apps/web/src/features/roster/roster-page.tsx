@@ -111,9 +111,12 @@ export default function RosterPage() {
     document.addEventListener('keydown', onKey);
     return () => document.removeEventListener('keydown', onKey);
   }, [placing]);
-  useEffect(() => {
+  // Leaving the board puts a picked job back.
+  const [placingView, setPlacingView] = useState(view);
+  if (placingView !== view) {
+    setPlacingView(view);
     if (view !== 'board') setPlacing(null);
-  }, [view]);
+  }
 
   /**
    * Saves new times (a drag on the calendar or the board); a refusal reverts and says why. A move on
