@@ -62,6 +62,8 @@ export default defineConfig(
     plugins: { boundaries },
     settings: {
       'import/resolver': { [resolver]: {} },
+      // Static imports, re-exports and import(): a lazily loaded page crosses a floor like any import.
+      'boundaries/dependency-nodes': ['import', 'export', 'dynamic-import'],
       'boundaries/elements': [
         { type: 'web-app', pattern: 'apps/web/src/app' },
         { type: 'web-feature', pattern: 'apps/web/src/features/*', capture: ['feature'] },
