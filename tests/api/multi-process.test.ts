@@ -1,9 +1,9 @@
-/// <reference path="../../apps/api/src/lib/http-types.d.ts" />
 /**
  * Several API processes on one PostgreSQL: the scheduled jobs run under an advisory lock and the daily digest
  * goes out once per branch and day, however many processes tick. Needs a real server (the PostgreSQL pass of
  * `.ci/run`); skipped on PGlite, where one process owns the database.
  */
+import type {} from '../../apps/api/src/lib/http-types'; // the Request augmentation (req.user, req.ctx)
 import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';

@@ -82,7 +82,7 @@ import { requestPasswordReset } from '../../apps/api/src/modules/auth/password-r
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';
-import { agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, workOrders, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
+import { agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
 import { makeSiteWithUnit, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
 import { nextWeekday, type Caller, type MatrixFixture, type Side } from './matrix-fixture';
 
@@ -604,7 +604,7 @@ export const routeTable: RouteRow[] = [
   },
 
 
-  // ── My Day, calendar feed (technicians) ─────────────────────────────────────────────────
+  // ── Route, calendar feed (technicians) ─────────────────────────────────────────────────
   {
     method: 'GET',
     path: '/api/day',
@@ -1116,7 +1116,7 @@ export const routeTable: RouteRow[] = [
     request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}/plan/apply` }),
   },
 
-  // ── modules landing next: add their rows here (Sites/Team, Roster, My Day/Visit, Watchlist/
+  // ── modules landing next: add their rows here (Sites/Team, Roster, Route/Visit, Watchlist/
   //    Agreements, Fix Quality). Example of a branch-scoped record route:
   // {
   //   method: 'PATCH', path: '/api/sites/:id',

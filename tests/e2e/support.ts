@@ -2,7 +2,7 @@
 import assert from 'node:assert/strict';
 import type { Page } from 'playwright-core';
 import type { Role } from '@coilpath/contract';
-import { homeFor, screensFor } from '../../apps/web/src/app/screens';
+import { homeFor, screensFor } from '../../apps/web/src/lib/screens';
 import type { JourneyContext } from './harness';
 
 export const DEMO_PASSWORD = process.env.COILPATH_PASSWORD ?? 'coilpath-demo';
@@ -36,7 +36,7 @@ export async function navigationLabels(page: Page): Promise<string[]> {
 }
 
 /**
- * The navigation a role should see (apps/web/src/app/screens.ts): on a phone the technician's
+ * The navigation a role should see (apps/web/src/lib/screens.ts): on a phone the technician's
  * bottom bar shows every screen of the role; office roles on a desktop see the rail without the
  * phone-only entries.
  */

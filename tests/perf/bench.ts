@@ -263,7 +263,7 @@ interface ManifestChunk {
 
 const SCREENS: [string, string][] = [
   ['Sign-in', ''],
-  ['My Day', 'apps/web/src/features/day/day-page.tsx'],
+  ['Route', 'apps/web/src/features/day/day-page.tsx'],
   ['Visit', 'apps/web/src/features/visits/visit-page.tsx'],
   ['Roster', 'apps/web/src/features/roster/roster-page.tsx'],
   ['Watchlist', 'apps/web/src/features/watchlist/watchlist-page.tsx'],
@@ -404,7 +404,7 @@ async function main() {
   });
   for (const w of web) {
     const isSignIn = w.screen === 'Sign-in';
-    const heavyOk = isSignIn ? !w.calendar && !w.charts : (w.calendar ? ['Roster', 'Agreements', 'My Day'].includes(w.screen) : true);
+    const heavyOk = isSignIn ? !w.calendar && !w.charts : (w.calendar ? ['Roster', 'Agreements', 'Route'].includes(w.screen) : true);
     table.push([
       `Web JS to show: ${w.screen}${w.calendar ? ' (+calendar)' : ''}${w.charts ? ' (+charts)' : ''}`,
       isSignIn ? '< 150 KB gzip' : '(info)',

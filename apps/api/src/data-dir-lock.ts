@@ -130,7 +130,7 @@ export function lockDataDir(dataDir: string, purpose: string, opts: { alive?: (p
     } catch {
       continue;
     }
-    let moved: LockHolder | null = null;
+    let moved: LockHolder | null;
     try {
       moved = readHolder(aside);
     } catch {

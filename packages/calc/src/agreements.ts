@@ -70,7 +70,7 @@ export function recurrenceDates(rrule: string, termStart: IsoDate, termEnd: IsoD
   try {
     options = RRule.parseString(ruleLine);
   } catch (e) {
-    throw new RangeError(`Invalid RRULE ${JSON.stringify(ruleLine)}: ${(e as Error).message}`);
+    throw new RangeError(`Invalid RRULE ${JSON.stringify(ruleLine)}: ${(e as Error).message}`, { cause: e });
   }
   if (options.freq === undefined) throw new RangeError('RRULE needs FREQ');
   // UNTIL in UTC (with Z) becomes the zone's wall time, to compare with floating occurrences.

@@ -1,6 +1,6 @@
 /**
  * Technician, on a phone (390×844): signs in through the form, sees the technician's navigation,
- * opens My Day and the first stop, goes en route and on site, records circuit 1's readings and
+ * opens Route and the first stop, goes en route and on site, records circuit 1's readings and
  * checks the superheat and subcooling the screen computes, attaches a photo, adds a finding and
  * closes the visit as needing a return (parts). The return visit's number is handed to the
  * dispatcher journey, which books it. Then every screen in the navigation.
@@ -30,7 +30,7 @@ const EXPECTED_SUPERHEAT_F = 48 - 36.93;
 const EXPECTED_SUBCOOLING_F = 93.33 - 83;
 const TOLERANCE_F = 0.3 + 0.05;
 
-/** "Wednesday 2 December 2026", as My Day's subtitle names the day it shows. */
+/** "Wednesday 2 December 2026", as Route's subtitle names the day it shows. */
 const dayLabel = (date: string) => {
   const d = new Date(`${date}T12:00:00Z`);
   const part = (o: Intl.DateTimeFormatOptions) => new Intl.DateTimeFormat('en-GB', { ...o, timeZone: 'UTC' }).format(d);
@@ -88,7 +88,7 @@ async function degrees(output: Locator): Promise<number> {
 const notice = (page: Page, text: string | RegExp) => page.locator('[aria-live="polite"] > [role]').filter({ hasText: text });
 
 /**
- * My Day for the first date from `start` with stops, going forward with "Next day" (the demo puts
+ * Route for the first date from `start` with stops, going forward with "Next day" (the demo puts
  * a weekend's stops on the coming week). Returns the date shown and the list of stops.
  */
 async function dayWithStops(page: Page, start: string): Promise<{ date: string; stops: Locator }> {
@@ -102,22 +102,22 @@ async function dayWithStops(page: Page, start: string): Promise<{ date: string; 
     await page.getByRole('button', { name: 'Next day' }).click();
     date = addDays(date, 1);
   }
-  throw new Error(`no stops on My Day from ${start} to ${date}`);
+  throw new Error(`no stops on Route from ${start} to ${date}`);
 }
 
 export async function run(ctx: JourneyContext) {
   const page = await ctx.launch(phone);
   await signInThroughForm(ctx, page, 'technician');
   const labels = await navigationLabels(page);
-  assert.deepEqual(labels, expectedNavigation('technician', 'phone'), 'the technician sees My Day, Visit and Unit file');
-  await page.getByRole('heading', { level: 1, name: 'My Day' }).waitFor();
-  await ctx.screen(page, 'my-day');
+  assert.deepEqual(labels, expectedNavigation('technician', 'phone'), 'the technician sees Route, Visit and Unit file');
+  await page.getByRole('heading', { level: 1, name: 'Route' }).waitFor();
+  await ctx.screen(page, 'route');
 
-  // ── My Day: the first stop ──
+  // ── Route: the first stop ──
   const today = dateInZone(ctx.now(), BRANCH_ZONE);
   const { date, stops } = await dayWithStops(page, today);
-  ctx.step(`My Day ${date}${date === today ? ' (today)' : ` (first day with stops after ${today})`}: ${await stops.locator(':scope > li').count()} stop(s)`);
-  if (date !== today) await ctx.screen(page, 'my-day-with-stops');
+  ctx.step(`Route ${date}${date === today ? ' (today)' : ` (first day with stops after ${today})`}: ${await stops.locator(':scope > li').count()} stop(s)`);
+  if (date !== today) await ctx.screen(page, 'route-with-stops');
   const first = stops.locator(':scope > li').first();
   const siteName = (await first.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
   const firstText = await first.innerText();
@@ -216,13 +216,13 @@ export async function run(ctx: JourneyContext) {
   ctx.step(`closed WO-${originNumber} as needs return (parts): return visit WO-${returnNumber} created, summary sent`);
   await ctx.screen(page, 'visit-closed');
 
-  // ── Back on My Day, the stop shows closed ──
-  await page.getByRole('link', { name: 'Back to My Day' }).click();
-  await page.getByRole('heading', { level: 1, name: 'My Day' }).waitFor();
+  // ── Back on Route, the stop shows closed ──
+  await page.getByRole('link', { name: 'Back to Route' }).click();
+  await page.getByRole('heading', { level: 1, name: 'Route' }).waitFor();
   if (date !== today) await dayWithStops(page, today);
   const again = page.getByRole('list', { name: 'Stops in route order' }).locator(':scope > li').filter({ hasText: `WO-${originNumber}` });
   await again.getByText('Closed: Needs return').waitFor();
-  ctx.step('My Day shows the stop closed: needs return');
+  ctx.step('Route shows the stop closed: needs return');
 
   await visitEveryScreen(ctx, page, labels);
 }

@@ -39,7 +39,7 @@ describe('iCalendar writer', () => {
   it('writes events a general-purpose parser reads back as written', () => {
     const description = `Łukasz Żółć; Nguyễn Thị Hương, ${'Mã lỗi E4 — máy nén quá nhiệt, kiểm tra quạt dàn ngưng. '.repeat(6)}\nAccess: roof hatch → key ≥ 2 copies`;
     const ics = writeCalendar({
-      productId: '-//Coilpath//My Day//EN',
+      productId: '-//Coilpath//Route//EN',
       name: 'Coilpath: Nguyễn Thị Hương',
       stamp: new Date('2026-12-04T12:00:00Z'),
       events: [

@@ -7,9 +7,9 @@ import { persistOptions } from '@/lib/query-persist';
 import { LoadingState, ErrorState } from '@/components/ui/states';
 import { NoticesProvider } from '@/components/ui/notices';
 import { SignInPage } from '@/features/auth/sign-in-page';
-import { SessionProvider, useSessionQuery, useUser } from './session';
-import { BranchProvider } from './branch';
-import { homeFor } from './screens';
+import { SessionProvider, useSessionQuery, useUser } from '@/lib/session';
+import { BranchProvider } from '@/lib/branch';
+import { homeFor } from '@/lib/screens';
 import { RouterErrorElement } from './route-error';
 import { publicRoutes, screenRoutes } from './routes';
 

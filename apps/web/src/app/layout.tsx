@@ -4,9 +4,9 @@ import { Menu, X } from 'lucide-react';
 import { Wordmark } from '@/components/ui/logo';
 import { LoadingState } from '@/components/ui/states';
 import { OfflineBanner } from '@/components/ui/offline-banner';
-import { useUser } from './session';
-import { useBranch } from './branch';
-import { screensFor } from './screens';
+import { useUser } from '@/lib/session';
+import { useBranch } from '@/lib/branch';
+import { screensFor } from '@/lib/screens';
 import { RouteErrorBoundary } from './route-error';
 import { UserMenu } from './user-menu';
 

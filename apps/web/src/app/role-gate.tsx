@@ -1,7 +1,7 @@
 import type { ReactNode } from 'react';
 import type { Role } from '@coilpath/contract';
 import { ErrorState } from '@/components/ui/states';
-import { useUser } from './session';
+import { useUser } from '@/lib/session';
 
 /** A screen the role may not use says so, rather than showing an empty page. The API refuses too. */
 export function RoleGate({ roles, children }: { roles: readonly Role[]; children: ReactNode }) {

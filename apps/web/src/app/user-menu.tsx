@@ -7,9 +7,7 @@ import { api, ApiError, errorMessage } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { Dialog } from '@/components/ui/dialog';
 import { useNotify } from '@/components/ui/notices';
-
-/** What the sign-in page is told after a sign-out, to say what happened. */
-export type SignedOutState = { signedOut: 'here' } | { signedOut: 'everywhere'; email: string; endedAt: string };
+import type { SignedOutState } from '@/lib/session';
 
 /**
  * The signed-in person's menu in the header: who is signed in, "Sign out" (this browser) and "Sign out

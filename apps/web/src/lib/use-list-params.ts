@@ -59,7 +59,12 @@ export function useListParams(defaults: { sort?: string; status?: string; pageSi
 /** A search box's text, pushed to the URL a moment after typing stops. */
 export function useDebouncedSearch(value: string, commit: (q: string) => void, ms = 300) {
   const [text, setText] = useState(value);
-  useEffect(() => setText(value), [value]);
+  // A new value from the URL (back, a link) replaces what is typed.
+  const [shownValue, setShownValue] = useState(value);
+  if (value !== shownValue) {
+    setShownValue(value);
+    setText(value);
+  }
   useEffect(() => {
     if (text === value) return;
     const h = window.setTimeout(() => commit(text), ms);

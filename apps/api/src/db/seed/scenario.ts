@@ -203,7 +203,6 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     leakCases: [], verificationTests: [], alarms: [], warrantyClaims: [],
   };
   const historyStart = addDays(today, -730);
-  const yesterday = addDays(today, -1);
   const setupAt = new Date(`${addDays(historyStart, -60)}T15:00:00Z`);
   const thisYear = year(today);
   const phone = (area: string) => `(${area}) 555-01${String(rng.int(0, 99)).padStart(2, '0')}`;
@@ -360,7 +359,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     let charge = m.charge[0] === m.charge[1] ? m.charge[0] : rng.range(m.charge[0], m.charge[1]);
     charge = m.charge[1] <= 5 ? round1(charge) : round05(charge);
     if (site.def.special === 'leak-walk-in' && tag === 'WIF-1') charge = 28;
-    let serial = '';
+    let serial: string;
     do serial = `${m.serialPrefix}-${installDate.slice(2, 4)}${installDate.slice(5, 7)}-${rng.int(10000, 99999)}`;
     while (serials.has(`${m.make}|${serial}`));
     serials.add(`${m.make}|${serial}`);
@@ -969,7 +968,6 @@ export function buildScenario(today: string, passwordHash: string): Rows {
   leakChiller.scriptedRefrigerant = true;
   quiet(leakChiller, addDays(today, -110));
   const chillerTech = techByEmail('anneke.strand@coilpath.example');
-  let chillerCase: { id: string; due: string } | null = null;
   {
     const u = leakChiller;
     const triggerDate = prevWorkday(chicago, addDays(today, -24));
@@ -1010,7 +1008,6 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     })!;
     const caseId = rng.uuid();
     const due = addDays(triggerDate, 30);
-    chillerCase = { id: caseId, due };
     // The repair itself is not booked yet: the branch manager books it from the Watchlist (return visit, EPA 608
     // Type II, the due date as its booking deadline).
     rows.leakCases.push({

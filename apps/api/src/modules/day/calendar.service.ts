@@ -64,5 +64,5 @@ export async function calendarFeed(ctx: AppContext, token: string): Promise<stri
     sequence: b.version,
     lastModified: b.updatedAt,
   }));
-  return writeCalendar({ productId: '-//Coilpath//My Day//EN', name: `Coilpath: ${u.name}`, stamp: ctx.clock.now(), events });
+  return writeCalendar({ productId: '-//Coilpath//Route//EN', name: `Coilpath: ${u.name}`, stamp: ctx.clock.now(), events });
 }

@@ -6,7 +6,7 @@ import { endpoint } from '../../lib/endpoint';
 import { calendarFeed, revokeCalendarToken, rotateCalendarToken } from './calendar.service';
 import { technicianDay } from './day.service';
 
-/** `/api/day`: My Day, technicians only. */
+/** `/api/day`: the technician's Route, technicians only. */
 export function dayRoutes(ctx: AppContext): Router {
   const r = Router();
   r.use(requireRole('technician'));

@@ -26,7 +26,6 @@ import {
   type ModelAlert,
   type ModelAlertUnit,
   type SessionUser,
-  type VisitOutcome,
   type WarrantyClaim,
   type WarrantyClaimStatus,
   type WarrantyClaimUpdate,

@@ -1,5 +1,5 @@
 /** The Roster's read side and proposals: technicians, load per day, suggestions, evening out a week. */
-import { and, asc, eq, gt, inArray, isNull, lt, ne } from 'drizzle-orm';
+import { and, asc, eq, inArray, isNull, lt, ne } from 'drizzle-orm';
 import type { Booking, Candidate, EvenOutPreview, RosterSite, SessionUser, Technician, TechnicianDayLoad } from '@coilpath/contract';
 import { evenOutApplySchema, evenOutSchema, loadQuerySchema, suggestSchema, workOrderLabel } from '@coilpath/contract';
 import { addDays, evenOut, rankTechnicians, technicianLoad, type SchedulingJob } from '@coilpath/calc';

@@ -400,7 +400,7 @@ describe('even out moves booked work', () => {
     const branch = await makeBranch(t.ctx.db, { timeZone: 'America/Chicago' });
     const site = await makeSiteWithUnit(t.ctx.db, branch.id);
     const cal = await makeUser(t.ctx.db, 'technician', branch.id, { name: 'Cal', skills: ['chillers'] });
-    const dee = await makeUser(t.ctx.db, 'technician', branch.id, { name: 'Dee', skills: [] });
+    await makeUser(t.ctx.db, 'technician', branch.id, { name: 'Dee', skills: [] });
     const disp = await makeUser(t.ctx.db, 'dispatcher', branch.id);
     const agent = await signedInAgent(t.app, disp.email, TEST_PASSWORD);
     // Wednesday 10 March 2027 (CST): Cal has four 2-hour jobs from 07:00, Dee nothing all week.

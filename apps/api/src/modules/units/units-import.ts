@@ -6,7 +6,6 @@ import {
   applianceCategoryLabels,
   isoDateSchema,
   normalizeImportHeader,
-  unitImportColumns,
   unitImportLimits,
   unitImportRequiredColumns,
   unitKindLabels,

@@ -15,10 +15,10 @@ let sink: Awaited<ReturnType<typeof startMailSink>>;
 beforeAll(async () => {
   // The sink writes into the app's own database, so the app is built first with a mailer that
   // forwards to the SMTP transport once the sink is listening.
-  let smtp: Mailer | undefined;
-  t = await createTestApp({ now: '2026-03-10T15:00:00Z', mailer: { send: (m) => smtp!.send(m) } });
+  const smtp: { mailer?: Mailer } = {};
+  t = await createTestApp({ now: '2026-03-10T15:00:00Z', mailer: { send: (m) => smtp.mailer!.send(m) } });
   sink = await startMailSink(t.ctx.db, t.storage);
-  smtp = createSmtpMailer(sink.url, 'Coilpath <service@coilpath.example>');
+  smtp.mailer = createSmtpMailer(sink.url, 'Coilpath <service@coilpath.example>');
 });
 afterAll(async () => {
   await sink?.close();

@@ -1,7 +1,8 @@
 import { useMemo, useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { agreementInputSchema, buildAgreementRrule, describeAgreementRrule, recurrencePresetLabels, recurrencePresets, type AgreementDetail } from '@coilpath/contract';
+import { addDays } from '@coilpath/calc';
+import { agreementInputSchema, buildAgreementRrule, describeAgreementRrule, recurrencePresetLabels, recurrencePresets, type AgreementDetail, type UnitChoice } from '@coilpath/contract';
 import type { z } from 'zod';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import { todayInZone } from '@/lib/format';
@@ -9,8 +10,7 @@ import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
-import { useUnitChoices } from '@/features/watchlist/api';
-import { addDaysIso } from '@/features/watchlist/dates';
+import { useUnitChoices } from '@/lib/unit-choices';
 import { useCreateAgreement } from './api';
 
 type In = z.input<typeof agreementInputSchema>;
@@ -32,7 +32,7 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
       unitIds: [],
       recurrence: { preset: 'quarterly', startMonth: Number(today.slice(5, 7)), dayOfMonth: 15, springMonth: 4, autumnMonth: 10 },
       termStart: today,
-      termEnd: addDaysIso(addDaysIso(today, 365), -1),
+      termEnd: addDays(addDays(today, 365), -1),
       slaHours: 4,
       priceCents: 360_000,
       visitMinutes: 120,
@@ -47,7 +47,7 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
   const [tasksText, setTasksText] = useState(defaultTasks.join('\n'));
 
   const sites = useMemo(() => {
-    const m = new Map<string, { id: string; name: string; units: NonNullable<typeof units.data> }>();
+    const m = new Map<string, { id: string; name: string; units: UnitChoice[] }>();
     for (const u of units.data ?? []) {
       const s = m.get(u.siteId) ?? { id: u.siteId, name: u.siteName, units: [] };
       s.units.push(u);
@@ -56,12 +56,13 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
     return [...m.values()];
   }, [units.data]);
   const site = sites.find((s) => s.id === siteId);
-  let rulePreview = '';
-  try {
-    rulePreview = recurrence?.preset ? buildAgreementRrule({ startMonth: 1, dayOfMonth: 15, springMonth: 4, autumnMonth: 10, ...recurrence } as Out['recurrence']) : '';
-  } catch {
-    rulePreview = '';
-  }
+  const rulePreview = (() => {
+    try {
+      return recurrence?.preset ? buildAgreementRrule({ startMonth: 1, dayOfMonth: 15, springMonth: 4, autumnMonth: 10, ...recurrence } as Out['recurrence']) : '';
+    } catch {
+      return '';
+    }
+  })();
 
   const submit = handleSubmit((body) =>
     create.mutateAsync(body).then(

@@ -1,7 +1,7 @@
 import { lazy, Suspense, useCallback, useMemo, useRef, useState } from 'react';
 import { CalendarRange, Plus, RefreshCw } from 'lucide-react';
 import { describeAgreementRrule, PM_GRACE_DAYS, type AgreementRow, type PlanPreview, type PlanVisit } from '@coilpath/contract';
-import { useBranch } from '@/app/branch';
+import { useBranch } from '@/lib/branch';
 import { errorMessage } from '@/lib/api-client';
 import { formatInZone, formatMoney, todayInZone } from '@/lib/format';
 import { Badge, Card, PageHeader } from '@/components/ui/page';

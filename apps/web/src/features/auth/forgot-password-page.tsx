@@ -5,7 +5,7 @@ import { forgotPasswordSchema, type ForgotPassword } from '@coilpath/contract';
 import { api, errorMessage } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
-import { Alert, PublicShell } from './public-shell';
+import { Alert, PublicShell } from '@/components/public-shell';
 
 /** Asks for a reset link; the answer is the same whether or not the address has an account. */
 export default function ForgotPasswordPage() {

@@ -8,8 +8,8 @@ import { api, errorMessage } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { LoadingState } from '@/components/ui/states';
-import { homeFor } from '@/app/screens';
-import { Alert, PublicShell } from './public-shell';
+import { homeFor } from '@/lib/screens';
+import { Alert, PublicShell } from '@/components/public-shell';
 
 /** Chooses a new password from an e-mailed link; a used or expired link is refused with the reason. */
 export default function ResetPasswordPage() {

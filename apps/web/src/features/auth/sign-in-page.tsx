@@ -8,8 +8,8 @@ import { lazyResolver } from '@/lib/lazy-resolver';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { Wordmark } from '@/components/ui/logo';
-import { homeFor } from '@/app/screens';
-import type { SignedOutState } from '@/app/user-menu';
+import { homeFor } from '@/lib/screens';
+import type { SignedOutState } from '@/lib/session';
 
 const demoAccounts = [
   ['owner@coilpath.example', 'Owner'],

@@ -10,9 +10,9 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { useNotify } from '@/components/ui/notices';
 import { api } from '@/lib/api-client';
 import { formatInZone, formatMinutes, todayInZone, viewerZoneDiffers, zoneAbbreviation } from '@/lib/format';
-import { useBranch } from '@/app/branch';
-import { StateButton } from '../visits/visit-page';
-import { briefingQuery } from '../visits/visit-api';
+import { useBranch } from '@/lib/branch';
+import { StateButton } from '@/components/visit-state-button';
+import { briefingQuery } from '@/lib/visit-queries';
 import { RouteSketch } from './route-sketch';
 import { UnitBriefingView } from './unit-briefing';
 import { CalendarFeedCard } from './calendar-feed';
@@ -31,20 +31,27 @@ function shiftDate(date: string, days: number): string {
 const statusLabel = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' } as const;
 const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
 
+/** The order saved on this phone for the day, if it still names exactly the day's stops. */
+function savedOrder(day: DayResponse): string[] | null {
+  try {
+    const raw = localStorage.getItem(orderKey(day.date));
+    const saved = raw ? (JSON.parse(raw) as string[]) : null;
+    const ids = new Set(day.stops.map((s) => s.visitId));
+    return saved && saved.length === ids.size && saved.every((id) => ids.has(id)) ? saved : null;
+  } catch {
+    return null;
+  }
+}
+
 /** The hand-made order for the date, if it still names exactly the day's stops. */
 function useManualOrder(day: DayResponse | undefined) {
   const [order, setOrder] = useState<string[] | null>(null);
-  useEffect(() => {
-    if (!day) return;
-    try {
-      const raw = localStorage.getItem(orderKey(day.date));
-      const saved = raw ? (JSON.parse(raw) as string[]) : null;
-      const ids = new Set(day.stops.map((s) => s.visitId));
-      setOrder(saved && saved.length === ids.size && saved.every((id) => ids.has(id)) ? saved : null);
-    } catch {
-      setOrder(null);
-    }
-  }, [day]);
+  // Each new answer for the day reads the saved order again.
+  const [orderFor, setOrderFor] = useState<DayResponse | undefined>(undefined);
+  if (day && day !== orderFor) {
+    setOrderFor(day);
+    setOrder(savedOrder(day));
+  }
   const save = (next: string[] | null) => {
     if (!day) return;
     if (next) localStorage.setItem(orderKey(day.date), JSON.stringify(next));
@@ -235,7 +242,7 @@ export default function DayPage() {
   return (
     <>
       <PageHeader
-        title="My Day"
+        title="Route"
         subtitle={
           <>
             Your stops in route order · {d.branch.name || branch?.name} · {dateLabel}

@@ -5,8 +5,8 @@ import { causeCodeLabels, causeOriginLabels, formatMeasure, visitOutcomeLabels, 
 import { Badge } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
-import { AttachmentThumb } from '../visits/attachments-section';
-import { briefingQuery } from '../visits/visit-api';
+import { AttachmentThumb } from '@/components/attachment-thumb';
+import { briefingQuery } from '@/lib/visit-queries';
 
 
 /** A reading's value with its unit symbol (the reading states its units: the branch's system). */

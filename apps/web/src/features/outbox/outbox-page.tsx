@@ -5,7 +5,7 @@ import { api } from '@/lib/api-client';
 import { formatInZone } from '@/lib/format';
 import { PageHeader, Card } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
-import { useBranch } from '@/app/branch';
+import { useBranch } from '@/lib/branch';
 
 interface OutboxMessage {
   id: string;

@@ -7,7 +7,7 @@
  * a technician and day; drag a chip to another cell to move it there at the same local time. Every
  * chip opens the booking's details (move, reassign, unbook). Arrow keys move between cells.
  */
-import { useEffect, useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
+import { useEffect, useEffectEvent, useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
 import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, Moon, Plus, ShieldAlert, Siren, X } from 'lucide-react';
 import type { Booking, Technician, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
 import { priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
@@ -246,11 +246,13 @@ export function TechBoard(p: TechBoardProps) {
 
   // A job picked from the unplaced work: focus moves to the first technician's cell, ready to choose.
   const placingId = p.placing?.id;
-  useEffect(() => {
-    if (!placingId) return;
+  const focusFirstCell = useEffectEvent(() => {
     const day = narrow ? p.day : p.days.includes(p.today) ? p.today : p.days[0];
     box.current?.querySelector<HTMLElement>(`[data-nav-head^="0:"][data-day="${day}"]`)?.focus();
-    // Only when a job is picked, not on every render.
+  });
+  // Only when a job is picked, not on every render.
+  useEffect(() => {
+    if (placingId) focusFirstCell();
   }, [placingId]);
 
   const accepts = (ev: DragEvent) => ev.dataTransfer.types.includes(DRAG_WORK_ORDER) || ev.dataTransfer.types.includes(DRAG_BOOKING);

@@ -3,7 +3,7 @@ import { useSearchParams } from 'react-router-dom';
 import { ChevronLeft, ChevronRight, Eye, EyeOff, PanelRightClose, PanelRightOpen, Plus, Scale } from 'lucide-react';
 import type { Booking, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
 import { weekdays, workOrderLabel } from '@coilpath/contract';
-import { useBranch } from '@/app/branch';
+import { useBranch } from '@/lib/branch';
 import { Button } from '@/components/ui/button';
 import { Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
@@ -111,9 +111,12 @@ export default function RosterPage() {
     document.addEventListener('keydown', onKey);
     return () => document.removeEventListener('keydown', onKey);
   }, [placing]);
-  useEffect(() => {
+  // Leaving the board puts a picked job back.
+  const [placingView, setPlacingView] = useState(view);
+  if (placingView !== view) {
+    setPlacingView(view);
     if (view !== 'board') setPlacing(null);
-  }, [view]);
+  }
 
   /**
    * Saves new times (a drag on the calendar or the board); a refusal reverts and says why. A move on

@@ -1,5 +1,5 @@
 import { useState } from 'react';
-import { useFieldArray, useForm, type FieldValues, type Path, type UseFormReturn } from 'react-hook-form';
+import { useFieldArray, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { Plus, Trash2 } from 'lucide-react';
 import { listRefrigerants } from '@coilpath/calc';
@@ -21,22 +21,14 @@ import {
   type UnitRow,
   type UnitValues,
 } from '@coilpath/contract';
-import { api, ApiError } from '@/lib/api-client';
+import { api } from '@/lib/api-client';
+import { applyServerErrors } from '@/lib/form-errors';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { SafetyNote } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
-import { useBranch } from '@/app/branch';
+import { useBranch } from '@/lib/branch';
 import { useCustomers, useInvalidateSites } from './api';
-
-/** Puts the API's field messages on the form's fields, and returns the overall message. */
-export function applyServerErrors<T extends FieldValues>(form: UseFormReturn<T, unknown, unknown>, e: unknown): string {
-  if (e instanceof ApiError) {
-    for (const [path, message] of Object.entries(e.fieldErrors)) form.setError(path as Path<T>, { message });
-    return e.message;
-  }
-  return e instanceof Error ? e.message : 'The change was not saved.';
-}
 
 function FormError({ message }: { message: string | null }) {
   if (!message) return null;

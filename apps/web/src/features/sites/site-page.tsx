@@ -1,4 +1,4 @@
-import { useMemo, useState } from 'react';
+import { useCallback, useMemo, useState } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { Archive, ArchiveRestore, ArrowLeft, FileUp, Pencil, Plus, Trash2 } from 'lucide-react';
 import { applianceCategoryLabels, unitKindLabels, type UnitRow } from '@coilpath/contract';
@@ -14,7 +14,8 @@ import { Pager } from '@/components/ui/pager';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { useRecordAction, useSite, useUnits } from './api';
 import { SiteForm, UnitForm } from './forms';
-import { SearchBox, StatusFilter } from './sites-page';
+import { SearchBox } from '@/components/search-box';
+import { StatusFilter } from './sites-page';
 import { UnitImport } from './unit-import';
 
 function Detail({ label, children }: { label: string; children: React.ReactNode }) {
@@ -37,16 +38,21 @@ export default function SitePage() {
   const units = useUnits({ ...list.params, siteId });
   const [dialog, setDialog] = useState<{ kind: 'unit'; unit?: UnitRow } | { kind: 'import' } | { kind: 'site' } | null>(null);
 
-  async function run(kind: 'sites' | 'units', id: string, verb: 'archive' | 'unarchive' | 'delete', name: string) {
-    if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
-    try {
-      await action.mutateAsync({ kind, id, action: verb });
-      notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
-      if (kind === 'sites' && verb === 'delete') navigate('/sites');
-    } catch (e) {
-      notify(errorMessage(e), 'alarm');
-    }
-  }
+  const { mutateAsync } = action;
+  const run = useCallback(
+    async (kind: 'sites' | 'units', id: string, verb: 'archive' | 'unarchive' | 'delete', name: string) => {
+      if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
+      try {
+        await mutateAsync({ kind, id, action: verb });
+        notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
+        if (kind === 'sites' && verb === 'delete') navigate('/sites');
+      } catch (e) {
+        notify(errorMessage(e), 'alarm');
+      }
+    },
+    [mutateAsync, notify, navigate],
+  );
+
 
   const columns = useMemo<CoilpathColumn<UnitRow>[]>(
     () => [
@@ -112,8 +118,7 @@ export default function SitePage() {
         },
       },
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [],
+    [run],
   );
 
   if (site.isPending) return <LoadingState label="Loading the site…" />;

@@ -1,11 +1,12 @@
-import { useMemo, useState } from 'react';
+import { useCallback, useMemo, useState } from 'react';
 import { Link } from 'react-router-dom';
-import { Archive, ArchiveRestore, Pencil, Plus, Search, Trash2 } from 'lucide-react';
+import { Archive, ArchiveRestore, Pencil, Plus, Trash2 } from 'lucide-react';
 import type { CustomerRow, SiteRow } from '@coilpath/contract';
 import { errorMessage } from '@/lib/api-client';
-import { useDebouncedSearch, useListParams } from '@/lib/use-list-params';
-import { useBranch } from '@/app/branch';
+import { useListParams } from '@/lib/use-list-params';
+import { useBranch } from '@/lib/branch';
 import { Button } from '@/components/ui/button';
+import { SearchBox } from '@/components/search-box';
 import { DataTable, type CoilpathColumn } from '@/components/ui/data-table';
 import { Dialog } from '@/components/ui/dialog';
 import { useNotify } from '@/components/ui/notices';
@@ -30,23 +31,6 @@ export function StatusFilter({ value, onChange }: { value: string; onChange: (v:
   );
 }
 
-export function SearchBox({ value, onCommit, label }: { value: string; onCommit: (q: string) => void; label: string }) {
-  const [text, setText] = useDebouncedSearch(value, onCommit);
-  return (
-    <label className="relative flex min-w-0 flex-1 items-center sm:max-w-sm">
-      <span className="sr-only">{label}</span>
-      <Search className="pointer-events-none absolute left-3 size-4 text-slate" aria-hidden="true" />
-      <input
-        type="search"
-        value={text}
-        onChange={(e) => setText(e.target.value)}
-        placeholder={label}
-        className="min-h-11 w-full rounded-md border border-slate-line bg-white py-2 pl-9 pr-3"
-      />
-    </label>
-  );
-}
-
 export default function SitesPage() {
   const { branchId, branch } = useBranch();
   const list = useListParams({ sort: 'name' });
@@ -60,15 +44,20 @@ export default function SitesPage() {
   const customers = useCustomers(filter, tab === 'customers');
   const where = branch ? branch.name : 'all branches';
 
-  async function run(kind: 'customers' | 'sites', id: string, verb: 'archive' | 'unarchive' | 'delete', name: string) {
-    if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
-    try {
-      await action.mutateAsync({ kind, id, action: verb });
-      notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
-    } catch (e) {
-      notify(errorMessage(e), 'alarm');
-    }
-  }
+  const { mutateAsync } = action;
+  const run = useCallback(
+    async (kind: 'customers' | 'sites', id: string, verb: 'archive' | 'unarchive' | 'delete', name: string) => {
+      if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
+      try {
+        await mutateAsync({ kind, id, action: verb });
+        notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
+      } catch (e) {
+        notify(errorMessage(e), 'alarm');
+      }
+    },
+    [mutateAsync, notify],
+  );
+
 
   const siteColumns = useMemo<CoilpathColumn<SiteRow>[]>(
     () => [
@@ -126,8 +115,7 @@ export default function SitesPage() {
         },
       },
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [branchId],
+    [branchId, run],
   );
 
   const customerColumns = useMemo<CoilpathColumn<CustomerRow>[]>(
@@ -181,8 +169,7 @@ export default function SitesPage() {
         },
       },
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [branchId],
+    [branchId, run],
   );
 
   const q = tab === 'sites' ? sites : customers;

@@ -69,11 +69,11 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
   /** The file's bytes, base64: what is checked is what is imported. */
   const fileData = useRef<string>('');
   const [encoding, setEncoding] = useState<string | null>(null);
-  const rows = useRef<Record<string, string>[]>([]);
+  const [rows, setRows] = useState<Record<string, string>[]>([]);
 
   async function read(file: File) {
     setFileName(file.name);
-    rows.current = [];
+    setRows([]);
     setEncoding(null);
     if (file.size > unitImportLimits.maxBytes) {
       setPhase({ kind: 'failed', message: `${file.name} is larger than 6 MB. Split it into smaller files.` });
@@ -104,7 +104,7 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
         skipEmptyLines: 'greedy',
         transformHeader: normalizeImportHeader,
       });
-      rows.current = parsed.data;
+      setRows(parsed.data);
     } catch (e) {
       setPhase({ kind: 'failed', message: `${file.name} could not be shown: ${errorMessage(e)}` });
       return;
@@ -136,10 +136,10 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
     return m;
   }, [result]);
   const shown = useMemo(() => {
-    const all = rows.current.map((r, i) => ({ row: i + 1, data: r, errors: errorsByRow.get(i + 1) ?? [] }));
+    const all = rows.map((r, i) => ({ row: i + 1, data: r, errors: errorsByRow.get(i + 1) ?? [] }));
     const list = onlyProblems && errorsByRow.size > 0 ? all.filter((r) => r.errors.length > 0) : all;
     return { list: list.slice(0, 300), more: Math.max(0, list.length - 300) };
-  }, [errorsByRow, onlyProblems]);
+  }, [rows, errorsByRow, onlyProblems]);
 
   return (
     <div className="flex flex-col gap-4">

@@ -8,8 +8,8 @@ import { api, errorMessage } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { LoadingState } from '@/components/ui/states';
-import { homeFor } from '@/app/screens';
-import { Alert, PublicShell } from '@/features/auth/public-shell';
+import { homeFor } from '@/lib/screens';
+import { Alert, PublicShell } from '@/components/public-shell';
 
 /** Sign-up from an invitation link: the person confirms their name and chooses a password. */
 export default function AcceptInvitationPage() {

@@ -26,8 +26,8 @@ import { api } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { useNotify } from '@/components/ui/notices';
-import { useBranch } from '@/app/branch';
-import { applyServerErrors } from '@/features/sites/forms';
+import { useBranch } from '@/lib/branch';
+import { applyServerErrors } from '@/lib/form-errors';
 
 const num = { setValueAs: (v: unknown) => (v === '' || v === null || v === undefined ? undefined : Number(v)) };
 const dayNames: Record<(typeof weekdays)[number], string> = { sun: 'Sunday', mon: 'Monday', tue: 'Tuesday', wed: 'Wednesday', thu: 'Thursday', fri: 'Friday', sat: 'Saturday' };

@@ -1,4 +1,4 @@
-import { useMemo, useState } from 'react';
+import { useCallback, useMemo, useState } from 'react';
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { Building2, CheckCircle2, Clock, MailPlus, Pencil, RotateCw, UserCheck, UserX, XCircle } from 'lucide-react';
 import { psiToKpa } from '@coilpath/calc';
@@ -13,8 +13,8 @@ import {
 import { api, errorMessage } from '@/lib/api-client';
 import { formatInZone, formatMoney, todayInZone } from '@/lib/format';
 import { useListParams } from '@/lib/use-list-params';
-import { useBranch } from '@/app/branch';
-import { useUser } from '@/app/session';
+import { useBranch } from '@/lib/branch';
+import { useUser } from '@/lib/session';
 import { Button } from '@/components/ui/button';
 import { DataTable, type CoilpathColumn } from '@/components/ui/data-table';
 import { Dialog } from '@/components/ui/dialog';
@@ -22,7 +22,7 @@ import { useNotify } from '@/components/ui/notices';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { Pager } from '@/components/ui/pager';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
-import { SearchBox } from '@/features/sites/sites-page';
+import { SearchBox } from '@/components/search-box';
 import { BranchForm, PersonForm } from './forms';
 
 type Tab = 'people' | 'invitations' | 'branches';
@@ -100,15 +100,20 @@ export default function TeamPage() {
     mutationFn: ({ path, method }: { path: string; method: 'post' | 'delete' }) => (method === 'post' ? api.post<unknown>(path) : api.delete<unknown>(path)),
     onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: ['users'] }), qc.invalidateQueries({ queryKey: ['invitations'] })]),
   });
-  async function run(path: string, method: 'post' | 'delete', done: string, confirm?: string) {
-    if (confirm && !window.confirm(confirm)) return;
-    try {
-      await act.mutateAsync({ path, method });
-      notify(done);
-    } catch (e) {
-      notify(errorMessage(e), 'alarm');
-    }
-  }
+  const { mutateAsync } = act;
+  const run = useCallback(
+    async (path: string, method: 'post' | 'delete', done: string, confirm?: string) => {
+      if (confirm && !window.confirm(confirm)) return;
+      try {
+        await mutateAsync({ path, method });
+        notify(done);
+      } catch (e) {
+        notify(errorMessage(e), 'alarm');
+      }
+    },
+    [mutateAsync, notify],
+  );
+
 
   const peopleColumns = useMemo<CoilpathColumn<UserRow>[]>(
     () => [
@@ -196,8 +201,7 @@ export default function TeamPage() {
         },
       },
     ],
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-    [branchId, timeZone, me.id],
+    [branchId, timeZone, me.id, run],
   );
 
   const tabButton = (t: Tab, label: string) => (

@@ -15,8 +15,8 @@ import {
   type UnitFile,
   type UnitSearchResult,
 } from '@coilpath/contract';
-import { useBranch } from '@/app/branch';
-import { useUser } from '@/app/session';
+import { useBranch } from '@/lib/branch';
+import { useUser } from '@/lib/session';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { Badge, Card, PageHeader, SafetyNote } from '@/components/ui/page';

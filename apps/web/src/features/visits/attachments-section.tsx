@@ -1,6 +1,6 @@
 import { useRef, useState } from 'react';
-import { Camera, FileText, Paperclip } from 'lucide-react';
-import type { AttachmentDto, VisitDetail } from '@coilpath/contract';
+import { Camera, Paperclip } from 'lucide-react';
+import type { VisitDetail } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SelectField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
@@ -8,24 +8,7 @@ import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { SaveStatus } from './save-status';
 import { useUpload } from './visit-api';
-
-/** Browsers show JPEG, PNG, WebP and PDF; HEIC photos from some phones only download. */
-const viewable = (a: AttachmentDto) => ['image/jpeg', 'image/png', 'image/webp'].includes(a.contentType);
-
-export function AttachmentThumb({ a }: { a: AttachmentDto }) {
-  return (
-    <a href={a.url} target="_blank" rel="noreferrer" className="group flex w-28 flex-col gap-1 text-xs">
-      {viewable(a) ? (
-        <img src={a.thumbUrl} alt={`${a.kind === 'nameplate' ? 'Nameplate' : 'Photo'}: ${a.displayName}`} loading="lazy" className="size-28 rounded-md border border-slate-line object-cover" />
-      ) : (
-        <span className="flex size-28 items-center justify-center rounded-md border border-slate-line bg-frost">
-          <FileText className="size-8 text-slate" aria-hidden="true" />
-        </span>
-      )}
-      <span className="truncate text-slate group-hover:text-coolant">{a.displayName}</span>
-    </a>
-  );
-}
+import { AttachmentThumb } from '@/components/attachment-thumb';
 
 export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
   const notify = useNotify();

@@ -96,7 +96,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           )}
           <p>
             <Link to="/day" className="text-coolant underline">
-              Back to My Day
+              Back to Route
             </Link>
           </p>
         </div>

@@ -43,7 +43,12 @@ export function hasUnsaved(d: VisitDraft): boolean {
 export function useVisitDraft(visitId: string) {
   const [draft, setDraft] = useState<VisitDraft>(() => load(visitId));
   const [restored] = useState(() => hasUnsaved(load(visitId)));
-  useEffect(() => setDraft(load(visitId)), [visitId]);
+  // Another visit on the same screen: its own draft.
+  const [draftFor, setDraftFor] = useState(visitId);
+  if (draftFor !== visitId) {
+    setDraftFor(visitId);
+    setDraft(load(visitId));
+  }
   useEffect(() => {
     try {
       if (hasUnsaved(draft)) localStorage.setItem(keyFor(visitId), JSON.stringify(draft));

@@ -1,4 +1,4 @@
-import { useEffect, useRef } from 'react';
+import { useEffect, useEffectEvent, useRef } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
@@ -10,7 +10,8 @@ import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import type { VisitDraft } from './draft';
 import { SaveStatus } from './save-status';
-import { isRetryable, useAddFinding } from './visit-api';
+import { isRetryable } from '@/lib/visit-queries';
+import { useAddFinding } from './visit-api';
 
 /** The form's own shape: selects and text give strings; the contract schema checks the result. */
 const formSchema = z.object({
@@ -60,13 +61,16 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
     });
 
   // Findings queued on this phone (a reload, or saved while offline) are sent again on open.
+  // Sends what was queued when the effect runs, with the draft and sender of that render.
+  const resendQueued = useEffectEvent(() => {
+    for (const f of draft.findings) send(f);
+  });
   const resent = useRef(false);
   useEffect(() => {
     // Only on site: the API takes findings from then on (kept queued until the technician is there).
     if (resent.current || !visit.canRecord) return;
     resent.current = true;
-    for (const f of draft.findings) send(f);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    resendQueued();
   }, [visit.canRecord]);
 
   const onSubmit = form.handleSubmit((v) => {

@@ -1,4 +1,4 @@
-import { useEffect, useRef, useState } from 'react';
+import { useEffect, useEffectEvent, useRef, useState } from 'react';
 import { AlertTriangle } from 'lucide-react';
 import { listRefrigerants } from '@coilpath/calc';
 import { refrigerantEventReasonLabels, refrigerantEventReasons, type RefrigerantEventReason, type VisitDetail } from '@coilpath/contract';
@@ -9,7 +9,8 @@ import { useNotify } from '@/components/ui/notices';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import type { PendingRefrigerant, VisitDraft } from './draft';
 import { SaveStatus } from './save-status';
-import { isRetryable, useAddRefrigerant } from './visit-api';
+import { isRetryable } from '@/lib/visit-queries';
+import { useAddRefrigerant } from './visit-api';
 
 const refrigerants = listRefrigerants();
 
@@ -45,13 +46,16 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
       },
     });
 
+  // Sends what was queued when the effect runs, with the draft and sender of that render.
+  const resendQueued = useEffectEvent(() => {
+    for (const p of draft.refrigerant) send(p);
+  });
   const resent = useRef(false);
   useEffect(() => {
     // Only on site: the API takes refrigerant on a visit from then on (kept queued until the technician is there).
     if (resent.current || !visit.canRecord) return;
     resent.current = true;
-    for (const p of draft.refrigerant) send(p);
-    // eslint-disable-next-line react-hooks/exhaustive-deps
+    resendQueued();
   }, [visit.canRecord]);
 
   const submit = (e: React.FormEvent) => {

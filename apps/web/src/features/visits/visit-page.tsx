@@ -1,13 +1,10 @@
 import { useEffect } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
-import { MapPin, Navigation, Phone, Wrench } from 'lucide-react';
-import { causeCodeLabels, workOrderKindLabels, type VisitDetail } from '@coilpath/contract';
-import { Button } from '@/components/ui/button';
+import { Phone } from 'lucide-react';
+import { causeCodeLabels, workOrderKindLabels } from '@coilpath/contract';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
-import { useNotify } from '@/components/ui/notices';
-import { errorMessage } from '@/lib/api-client';
 import { formatInZone } from '@/lib/format';
 import { hasUnsaved, useVisitDraft } from './draft';
 import { ReadingsSection } from './readings-section';
@@ -15,7 +12,8 @@ import { FindingsSection } from './findings-section';
 import { RefrigerantSection } from './refrigerant-section';
 import { AttachmentsSection } from './attachments-section';
 import { CloseSection } from './close-section';
-import { currentVisitQuery, useVisitState, visitQuery } from './visit-api';
+import { StateButton } from '@/components/visit-state-button';
+import { currentVisitQuery, visitQuery } from './visit-api';
 
 const statusText = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' } as const;
 const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
@@ -32,54 +30,12 @@ function CurrentVisit() {
   return (
     <>
       <PageHeader title="Visit" subtitle="Record readings, findings, refrigerant and photos, and close the visit." />
-      <EmptyState title="No current visit" action={<Link to="/day" className="text-coolant underline">Open My Day</Link>}>
-        You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on My Day; press “En route” there
+      <EmptyState title="No current visit" action={<Link to="/day" className="text-coolant underline">Open Route</Link>}>
+        You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on Route; press “En route” there
         to start it.
       </EmptyState>
     </>
   );
-}
-
-export function StateButton({ visit, where = 'visit' }: { visit: Pick<VisitDetail, 'id' | 'status' | 'canWrite'>; where?: 'visit' | 'day' }) {
-  const notify = useNotify();
-  const m = useVisitState(visit.id);
-  if (!visit.canWrite) return null;
-  const go = (state: 'en_route' | 'on_site') =>
-    m.mutate(
-      { state },
-      {
-        onSuccess: () => notify(state === 'en_route' ? 'Marked en route.' : 'Marked on site.'),
-        onError: (e) => notify(`Not changed: ${errorMessage(e)}`, 'alarm'),
-      },
-    );
-  if (visit.status === 'booked')
-    return (
-      <Button size="lg" onClick={() => go('en_route')} busy={m.isPending}>
-        <Navigation className="size-5" aria-hidden="true" /> En route
-      </Button>
-    );
-  if (visit.status === 'en_route')
-    return (
-      <Button size="lg" onClick={() => go('on_site')} busy={m.isPending}>
-        <MapPin className="size-5" aria-hidden="true" /> On site
-      </Button>
-    );
-  if (visit.status === 'on_site' && where === 'day')
-    return (
-      <Link
-        to={`/visits/${visit.id}`}
-        className="inline-flex min-h-12 items-center justify-center gap-2 rounded-md bg-copper px-5 text-base font-medium text-white hover:bg-copper-hover"
-      >
-        <Wrench className="size-5" aria-hidden="true" /> Record the visit
-      </Link>
-    );
-  if (visit.status === 'on_site')
-    return (
-      <Button size="lg" variant="secondary" onClick={() => document.getElementById('close-out')?.scrollIntoView({ behavior: 'smooth' })}>
-        <Wrench className="size-5" aria-hidden="true" /> Go to close-out
-      </Button>
-    );
-  return null;
 }
 
 function VisitScreen({ id }: { id: string }) {

@@ -11,7 +11,8 @@ import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
-import { useCreateAlarm, useImportAlarms, useUnitChoices } from './api';
+import { useUnitChoices } from '@/lib/unit-choices';
+import { useCreateAlarm, useImportAlarms } from './api';
 import { localToIso } from './dates';
 
 type In = z.input<typeof alarmInputSchema>;

@@ -10,7 +10,6 @@ import type {
   QueueReturnVisit,
   RepeatAlarmResponse,
   ReturnVisitRow,
-  UnitChoice,
   VerificationTestInput,
 } from '@coilpath/contract';
 import { api } from '@/lib/api-client';
@@ -28,13 +27,6 @@ export function useReturnVisits(branchId: string | undefined) {
 }
 export function useRecentAlarms(branchId: string | undefined) {
   return useQuery({ queryKey: [...key(branchId), 'alarms'], queryFn: () => api.get<{ alarms: AlarmRow[] }>('/api/alarms', { branchId, limit: 20 }).then((r) => r.alarms) });
-}
-export function useUnitChoices(branchId: string | undefined) {
-  return useQuery({
-    queryKey: ['unit-choices', branchId ?? 'all'],
-    queryFn: () => api.get<{ units: UnitChoice[] }>('/api/watchlist/units', { branchId }).then((r) => r.units),
-    staleTime: 60_000,
-  });
 }
 
 /** Every Watchlist mutation refreshes the Watchlist's queries (and the Roster's, which shows the queue). */

@@ -1,12 +1,5 @@
 import { TZDate } from '@date-fns/tz';
 
-/** `YYYY-MM-DD` plus `days`. */
-export function addDaysIso(date: string, days: number): string {
-  const d = new Date(`${date}T00:00:00Z`);
-  d.setUTCDate(d.getUTCDate() + days);
-  return d.toISOString().slice(0, 10);
-}
-
 /** A `datetime-local` value read as wall time in a zone, as an ISO instant ('' when empty or unreadable). */
 export function localToIso(value: string, timeZone: string): string {
   const m = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})/.exec(value);

@@ -42,7 +42,7 @@ const caseText = (c: LeakCaseRow) => `${c.unitTag} ${c.siteName} ${c.make} ${c.m
 export function LeakCasesSection({ branchId }: { branchId: string | undefined }) {
   const q = useLeakCases(branchId);
   const rows = q.data ?? [];
-  const toText = useCallback(caseText, []);
+  const toText = useCallback((row: Parameters<typeof caseText>[0]) => caseText(row), []);
   const { q: filter, setQ, filtered } = useTableFilter(rows, toText);
   const exportCsv = () =>
     downloadCsv(

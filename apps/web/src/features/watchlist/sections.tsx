@@ -11,8 +11,8 @@ import {
   type RepeatAlarmUnit,
   type ReturnVisitRow,
 } from '@coilpath/contract';
+import { addDays } from '@coilpath/calc';
 import { errorMessage } from '@/lib/api-client';
-import { addDaysIso } from './dates';
 import { formatInZone, todayInZone } from '@/lib/format';
 import { Badge } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';
@@ -240,7 +240,7 @@ function QueueForm({ r, timeZone }: { r: ReturnVisitRow; timeZone: string }) {
   const m = useQueueReturnVisit();
   const today = todayInZone(timeZone);
   const [priority, setPriority] = useState<Priority>(r.priority);
-  const [latestDate, setLatestDate] = useState(r.latestAt ? todayInZone(timeZone, new Date(r.latestAt)) : addDaysIso(today, 7));
+  const [latestDate, setLatestDate] = useState(r.latestAt ? todayInZone(timeZone, new Date(r.latestAt)) : addDays(today, 7));
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
     m.mutate(

@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import { FileUp, Plus } from 'lucide-react';
-import { useBranch } from '@/app/branch';
+import { useBranch } from '@/lib/branch';
 import { formatInZone } from '@/lib/format';
 import { PageHeader } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';

@@ -7,7 +7,7 @@ import { CalendarRange, ClipboardCheck, Eye, FileSignature, Gauge, MapPinned, Ro
  * The API enforces the same rules; this only decides what the navigation shows.
  */
 export const screens = [
-  { path: '/day', label: 'My Day', icon: Route, roles: ['technician'] },
+  { path: '/day', label: 'Route', icon: Route, roles: ['technician'] },
   { path: '/visits', label: 'Visit', icon: ClipboardCheck, roles: ['technician'], navOnly: 'phone' },
   { path: '/roster', label: 'Roster', icon: CalendarRange, roles: ['dispatcher', 'branch_manager', 'owner'] },
   { path: '/watchlist', label: 'Watchlist', icon: Eye, roles: ['branch_manager', 'owner'] },

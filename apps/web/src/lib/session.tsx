@@ -16,6 +16,9 @@ export const sessionQuery = queryOptions({
   staleTime: 5 * 60_000,
 });
 
+/** What the sign-in page is told after a sign-out, to say what happened. */
+export type SignedOutState = { signedOut: 'here' } | { signedOut: 'everywhere'; email: string; endedAt: string };
+
 const Ctx = createContext<SessionUser | null>(null);
 
 /** The signed-in person; only used inside the app frame, where a session exists. */

@@ -1,0 +1,107 @@
+// Coilpath's lint: `npm run lint`. typescript-eslint's recommended rules (syntax only, no type information,
+// to stay fast), the React hooks rules for the web, and the layers (DEVELOPERS.md, "Layers"):
+//   web  app → features → components → lib     (a feature never imports another feature)
+//   api  lib never imports modules
+// A rule is turned off only with a one-line reason beside it.
+import { fileURLToPath } from 'node:url';
+import js from '@eslint/js';
+import { defineConfig } from 'eslint/config';
+import tseslint from 'typescript-eslint';
+import reactHooks from 'eslint-plugin-react-hooks';
+import boundaries from 'eslint-plugin-boundaries';
+
+const resolver = fileURLToPath(new URL('./eslint.resolver.cjs', import.meta.url));
+
+export default defineConfig(
+  {
+    ignores: [
+      '**/node_modules/**',
+      '**/dist/**',
+      '**/coverage/**',
+      'apps/api/src/db/migrations/**',
+      'data/**',
+      'bench/**',
+      'test-results/**',
+      'tests/e2e/artifacts/**',
+      '.vr.json',
+    ],
+  },
+  js.configs.recommended,
+  tseslint.configs.recommended,
+  {
+    files: ['**/*.{ts,tsx}'],
+    rules: {
+      // Names starting with `_` are kept on purpose (a required parameter the body does not use).
+      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrors: 'none', ignoreRestSiblings: true }],
+      // Uploaded text is checked for control characters on purpose (to refuse binary files as CSV).
+      'no-control-regex': 'off',
+    },
+  },
+  {
+    files: ['*.js', '*.cjs'],
+    languageOptions: { globals: { require: 'readonly', module: 'writable', __dirname: 'readonly', URL: 'readonly' } },
+    rules: {
+      // The import resolver is a CommonJS file: eslint-module-utils loads resolvers with require().
+      '@typescript-eslint/no-require-imports': 'off',
+    },
+  },
+  {
+    files: ['apps/web/src/**/*.{ts,tsx}'],
+    ...reactHooks.configs.flat.recommended,
+    rules: {
+      ...reactHooks.configs.flat.recommended.rules,
+      'react-hooks/exhaustive-deps': 'error',
+      // react-hook-form's watch() is used knowingly; Coilpath does not build with the React Compiler.
+      'react-hooks/incompatible-library': 'off',
+    },
+  },
+  {
+    files: ['apps/web/src/**/*.{ts,tsx}', 'apps/api/src/**/*.ts'],
+    // Tests may reach any floor to set up what they check; the layers bind the product's code.
+    ignores: ['**/*.test.{ts,tsx}'],
+    plugins: { boundaries },
+    settings: {
+      'import/resolver': { [resolver]: {} },
+      // Static imports, re-exports and import(): a lazily loaded page crosses a floor like any import.
+      'boundaries/dependency-nodes': ['import', 'export', 'dynamic-import'],
+      'boundaries/elements': [
+        { type: 'web-app', pattern: 'apps/web/src/app' },
+        { type: 'web-feature', pattern: 'apps/web/src/features/*', capture: ['feature'] },
+        { type: 'web-components', pattern: 'apps/web/src/components' },
+        { type: 'web-lib', pattern: 'apps/web/src/lib' },
+        { type: 'api-lib', pattern: 'apps/api/src/lib' },
+        { type: 'api-modules', pattern: 'apps/api/src/modules' },
+      ],
+    },
+    rules: {
+      'boundaries/dependencies': [
+        'error',
+        {
+          default: 'allow',
+          policies: [
+            {
+              from: { element: { types: { anyOf: ['web-lib', 'web-components'] } } },
+              disallow: { to: { element: { types: { anyOf: ['web-feature', 'web-app'] } } } },
+              message: 'lib/ and components/ are the bottom floors of the web: they never import features/ or app/',
+            },
+            {
+              from: { element: { type: 'web-feature' } },
+              disallow: { to: { element: { type: 'web-app' } } },
+              message: 'app/ is the top floor: a feature takes session, branch and screens from lib/',
+            },
+            {
+              from: { element: { type: 'web-feature' } },
+              disallow: { to: { element: { type: 'web-feature', captured: { feature: '!{{ from.element.captured.feature }}' } } } },
+              message: 'a feature never imports another feature: move what both need to components/ or lib/',
+            },
+            {
+              from: { element: { type: 'api-lib' } },
+              disallow: { to: { element: { type: 'api-modules' } } },
+              message: 'apps/api/src/lib is below the modules: it never imports modules/',
+            },
+          ],
+        },
+      ],
+    },
+  },
+);
