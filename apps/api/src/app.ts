@@ -1,7 +1,6 @@
-import { existsSync } from 'node:fs';
-import { join } from 'node:path';
 import express, { type NextFunction, type Request, type Response } from 'express';
 import cookieParser from 'cookie-parser';
+import compression from 'compression';
 import helmet from 'helmet';
 import { ZodError } from 'zod';
 import type { AppContext } from './context';
@@ -9,6 +8,7 @@ import { authenticate, requireAuth } from './auth/middleware';
 import { fileMissing, HttpError } from './lib/errors';
 import { StoredFileMissing } from './storage/storage';
 import { apiRoutes } from './routes';
+import { serveWebApp } from './web-static';
 
 /** Methods that change data: their bodies must be JSON (multipart only where a route says so). */
 const mutating = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
@@ -65,6 +65,9 @@ export function createApp(ctx: AppContext): express.Express {
       strictTransportSecurity: ctx.config.secureCookies,
     }),
   );
+  // Brotli or gzip (by Accept-Encoding) for text answers over 1 kB: API JSON, CSV, iCalendar, the web app's
+  // HTML, scripts and styles. Photos and PDFs are already compressed and pass through as they are.
+  app.use(compression());
   // When COILPATH_NOW set the clock, the web app reckons "today" by the server's clock (see apps/web/src/lib/now.ts).
   app.use('/api', (_req, res, next) => {
     if (ctx.config.clockOverridden) res.setHeader('X-Coilpath-Now', ctx.clock.now().toISOString());
@@ -83,11 +86,7 @@ export function createApp(ctx: AppContext): express.Express {
   app.use('/api', apiRoutes(ctx));
   app.use('/api', (_req, _res, next) => next(new HttpError(404, 'not_found', 'No such API route.')));
 
-  if (ctx.config.webDist && existsSync(join(ctx.config.webDist, 'index.html'))) {
-    const dist = ctx.config.webDist;
-    app.use(express.static(dist, { index: false, maxAge: '1h' }));
-    app.get('/{*splat}', (_req, res) => res.sendFile(join(dist, 'index.html')));
-  }
+  serveWebApp(app, ctx.config.webDist);
 
   app.use(errorHandler);
   return app;
