@@ -6,6 +6,8 @@ import { ZodError } from 'zod';
 import type { AppContext } from './context';
 import { authenticate, requireAuth } from './auth/middleware';
 import { fileMissing, HttpError } from './lib/errors';
+import { requestIdInErrors } from './lib/errors';
+import { createLogger, requestLogger } from './lib/logger';
 import { StoredFileMissing } from './storage/storage';
 import { apiRoutes } from './routes';
 import { serveWebApp } from './web-static';
@@ -54,6 +56,10 @@ export function createApp(ctx: AppContext): express.Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
+  // One JSON log line per request (id, user, status, duration; secrets redacted), the id in `X-Request-Id`
+  // and in every error body. Without `ctx.logger` (tests) nothing is logged.
+  app.use(requestLogger(ctx.logger ?? createLogger({ level: 'silent' })));
+  app.use(requestIdInErrors);
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -94,14 +100,18 @@ export function createApp(ctx: AppContext): express.Express {
 
 export { requireAuth };
 
-function errorHandler(err: unknown, _req: Request, res: Response, _next: NextFunction) {
+function errorHandler(err: unknown, req: Request, res: Response, _next: NextFunction) {
   const send = (status: number, code: string, message: string, details?: unknown) =>
     res.status(status).json({ error: details === undefined ? { code, message } : { code, message, details } });
 
-  if (err instanceof HttpError) return send(err.status, err.code, err.message, err.details);
+  if (err instanceof HttpError) {
+    // readStoredFile's 410: the key is for the administrator's log, not the answer.
+    if (err.cause instanceof StoredFileMissing) req.log.warn({ storageKey: err.cause.key }, `a stored file is missing: ${err.message}`);
+    return send(err.status, err.code, err.message, err.details);
+  }
   // A route that read a stored file without readStoredFile: still 410, never 500.
   if (err instanceof StoredFileMissing) {
-    console.warn(`[coilpath] a stored file is missing (key ${err.key})`);
+    req.log.warn({ storageKey: err.key }, 'a stored file is missing');
     const gone = fileMissing('record');
     return send(gone.status, gone.code, gone.message);
   }
@@ -117,6 +127,7 @@ function errorHandler(err: unknown, _req: Request, res: Response, _next: NextFun
   if (e?.code?.startsWith?.('LIMIT_')) return send(400, 'bad_upload', e.message ?? 'The upload was refused.');
   if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500)
     return send(e.status, 'bad_request', e.message ?? 'Bad request.');
-  console.error('[coilpath] unexpected error', err);
+  // Logged with the request's line (pino-http reads `res.err`), at level error.
+  res.err = err instanceof Error ? err : new Error(String(err));
   return send(500, 'internal', 'Something went wrong on the server. The change was not saved; try again.');
 }

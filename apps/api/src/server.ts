@@ -12,6 +12,7 @@ import { createDiskStorage } from './storage/storage';
 import { loadSecret } from './secret';
 import { DataDirLocked, lockDataDir } from './data-dir-lock';
 import { startScheduler } from './jobs/scheduler';
+import { createLogger } from './lib/logger';
 import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
@@ -41,6 +42,7 @@ const ctx: AppContext = {
   storage,
   clock,
   secret: loadSecret(env.COILPATH_SECRET, dataDir),
+  logger: createLogger({ level: env.LOG_LEVEL }),
   config: {
     sessionHours: env.SESSION_HOURS,
     secureCookies: (env.PUBLIC_URL ?? '').startsWith('https://'),

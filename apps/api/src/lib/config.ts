@@ -18,6 +18,8 @@ const envSchema = z.object({
   COILPATH_JOBS: z.enum(['on', 'off']).default('on'),
   SESSION_HOURS: z.coerce.number().min(1).max(24 * 30).default(12),
   NODE_ENV: z.string().default('development'),
+  /** Level of the JSON log lines on stdout (one per request): `silent` logs nothing. */
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /**
    * Runs the server as if it had been started at this instant (ISO 8601 with an offset, e.g.
    * `2027-03-15T06:00:00-05:00`); time then passes normally. For demos and browser journeys at a chosen
