@@ -8,7 +8,8 @@ import request from 'supertest';
 import { DrizzleQueryError } from 'drizzle-orm/errors';
 import { createApp } from '../app';
 import { createTestApp, type TestApp } from '../testing/harness';
-import { makeTwoBranches, TEST_PASSWORD } from '../testing/fixtures';
+import { makeSiteWithUnit, makeTwoBranches, makeWorkOrder, TEST_PASSWORD } from '../testing/fixtures';
+import { attachments, visits } from '../db/schema';
 import { SESSION_COOKIE } from '../auth/session';
 import { createLogger, scrubUrl } from './logger';
 
@@ -111,6 +112,30 @@ describe('the request id in every error body', () => {
     expect(line.err?.message).toContain('Failed query: select 1 where $1 = $2');
     expect(line.err?.params).toBeUndefined();
     expect(JSON.stringify(line)).not.toContain('param-value-9c1e');
+  });
+});
+
+describe('a missing stored file', () => {
+  it('answers 410 and logs the storage key for the administrator, with the request id, at level warn', async () => {
+    const { site, unit } = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    const wo = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id });
+    const [v] = await t.ctx.db.insert(visits).values({ branchId: f.a.id, workOrderId: wo.id, techId: f.inA.technician.id }).returning();
+    const storageKey = await t.storage.put(Buffer.from('gone'), { contentType: 'image/png' });
+    await t.storage.remove(storageKey);
+    const [a] = await t.ctx.db
+      .insert(attachments)
+      .values({ visitId: v!.id, unitId: unit.id, kind: 'photo', storageKey, displayName: 'coil.png', contentType: 'image/png', sizeBytes: 4 })
+      .returning();
+    const signIn = await request(t.app).post('/api/auth/sign-in').send({ email: f.owner.email, password: TEST_PASSWORD });
+    const res = await request(t.app).get(`/api/attachments/${a!.id}`).set('Cookie', String(signIn.headers['set-cookie']).split(';')[0]!);
+    expect(res.status).toBe(410);
+    expect(res.body.error.code).toBe('file_missing');
+    const id = res.headers['x-request-id'] as string;
+    expect(res.body.error.requestId).toBe(id);
+    const warning = lines().find((l) => l.requestId === id && l.level === 40);
+    expect(warning?.storageKey).toBe(storageKey);
+    expect(warning?.msg).toContain('a stored file is missing');
+    expect(lineOf(id)).toMatchObject({ status: 410, userId: f.owner.id });
   });
 });
 
