@@ -99,9 +99,11 @@ async function startApi(env: Record<string, string>): Promise<ChildProcess> {
     },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
+  // The API logs a JSON line per request (as in production): only the tail is kept, for a failed start.
   let output = '';
-  child.stdout!.on('data', (d) => (output += d));
-  child.stderr!.on('data', (d) => (output += d));
+  const keep = (d: Buffer) => (output = (output + d.toString()).slice(-64 * 1024));
+  child.stdout!.on('data', keep);
+  child.stderr!.on('data', keep);
   const deadline = Date.now() + 120_000;
   while (Date.now() < deadline) {
     if (child.exitCode !== null) throw new Error(`The API stopped while starting:\n${output}`);

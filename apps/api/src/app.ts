@@ -1,14 +1,16 @@
-import { existsSync } from 'node:fs';
-import { join } from 'node:path';
 import express, { type NextFunction, type Request, type Response } from 'express';
 import cookieParser from 'cookie-parser';
+import compression from 'compression';
 import helmet from 'helmet';
 import { ZodError } from 'zod';
 import type { AppContext } from './context';
 import { authenticate, requireAuth } from './auth/middleware';
 import { fileMissing, HttpError } from './lib/errors';
+import { requestIdInErrors } from './lib/errors';
+import { createLogger, requestLogger } from './lib/logger';
 import { StoredFileMissing } from './storage/storage';
 import { apiRoutes } from './routes';
+import { serveWebApp } from './web-static';
 
 /** Methods that change data: their bodies must be JSON (multipart only where a route says so). */
 const mutating = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
@@ -54,6 +56,10 @@ export function createApp(ctx: AppContext): express.Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
+  // One JSON log line per request (id, user, status, duration; secrets redacted), the id in `X-Request-Id`
+  // and in every error body. Without `ctx.logger` (tests) nothing is logged.
+  app.use(requestLogger(ctx.logger ?? createLogger({ level: 'silent' })));
+  app.use(requestIdInErrors);
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -65,6 +71,9 @@ export function createApp(ctx: AppContext): express.Express {
       strictTransportSecurity: ctx.config.secureCookies,
     }),
   );
+  // Brotli or gzip (by Accept-Encoding) for text answers over 1 kB: API JSON, CSV, iCalendar, the web app's
+  // HTML, scripts and styles. Photos and PDFs are already compressed and pass through as they are.
+  app.use(compression());
   // When COILPATH_NOW set the clock, the web app reckons "today" by the server's clock (see apps/web/src/lib/now.ts).
   app.use('/api', (_req, res, next) => {
     if (ctx.config.clockOverridden) res.setHeader('X-Coilpath-Now', ctx.clock.now().toISOString());
@@ -83,11 +92,7 @@ export function createApp(ctx: AppContext): express.Express {
   app.use('/api', apiRoutes(ctx));
   app.use('/api', (_req, _res, next) => next(new HttpError(404, 'not_found', 'No such API route.')));
 
-  if (ctx.config.webDist && existsSync(join(ctx.config.webDist, 'index.html'))) {
-    const dist = ctx.config.webDist;
-    app.use(express.static(dist, { index: false, maxAge: '1h' }));
-    app.get('/{*splat}', (_req, res) => res.sendFile(join(dist, 'index.html')));
-  }
+  serveWebApp(app, ctx.config.webDist);
 
   app.use(errorHandler);
   return app;
@@ -95,14 +100,18 @@ export function createApp(ctx: AppContext): express.Express {
 
 export { requireAuth };
 
-function errorHandler(err: unknown, _req: Request, res: Response, _next: NextFunction) {
+function errorHandler(err: unknown, req: Request, res: Response, _next: NextFunction) {
   const send = (status: number, code: string, message: string, details?: unknown) =>
     res.status(status).json({ error: details === undefined ? { code, message } : { code, message, details } });
 
-  if (err instanceof HttpError) return send(err.status, err.code, err.message, err.details);
+  if (err instanceof HttpError) {
+    // readStoredFile's 410: the key is for the administrator's log, not the answer.
+    if (err.cause instanceof StoredFileMissing) req.log.warn({ storageKey: err.cause.key }, `a stored file is missing: ${err.message}`);
+    return send(err.status, err.code, err.message, err.details);
+  }
   // A route that read a stored file without readStoredFile: still 410, never 500.
   if (err instanceof StoredFileMissing) {
-    console.warn(`[coilpath] a stored file is missing (key ${err.key})`);
+    req.log.warn({ storageKey: err.key }, 'a stored file is missing');
     const gone = fileMissing('record');
     return send(gone.status, gone.code, gone.message);
   }
@@ -118,6 +127,7 @@ function errorHandler(err: unknown, _req: Request, res: Response, _next: NextFun
   if (e?.code?.startsWith?.('LIMIT_')) return send(400, 'bad_upload', e.message ?? 'The upload was refused.');
   if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500)
     return send(e.status, 'bad_request', e.message ?? 'Bad request.');
-  console.error('[coilpath] unexpected error', err);
+  // Logged with the request's line (pino-http reads `res.err`), at level error.
+  res.err = err instanceof Error ? err : new Error(String(err));
   return send(500, 'internal', 'Something went wrong on the server. The change was not saved; try again.');
 }

@@ -2,6 +2,7 @@ import type { Database, Db } from './db/client';
 import type { Mailer } from './mail/mailer';
 import type { Storage } from './storage/storage';
 import type { Clock } from './lib/clock';
+import type { Logger } from './lib/logger';
 
 /** Everything a module needs, injected by createApp (tests pass in-memory stand-ins). */
 export interface AppContext {
@@ -11,6 +12,8 @@ export interface AppContext {
   storage: Storage;
   clock: Clock;
   secret: Uint8Array;
+  /** Where request lines and errors are logged (`lib/logger.ts`); absent, nothing is logged (tests). */
+  logger?: Logger;
   config: {
     sessionHours: number;
     /** Served over HTTPS: the session cookie gets `Secure`. */

@@ -8,10 +8,11 @@ import { DEMO_PASSWORD, demoToday, seedDemo } from './db/seed';
 import { clockFromEnv, readEnv } from './lib/config';
 import { createSmtpMailer } from './mail/mailer';
 import { startMailSink } from './mail/sink';
-import { createDiskStorage } from './storage/storage';
+import { openStorage } from './storage/s3';
 import { loadSecret } from './secret';
 import { DataDirLocked, lockDataDir } from './data-dir-lock';
 import { startScheduler } from './jobs/scheduler';
+import { createLogger } from './lib/logger';
 import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
@@ -27,7 +28,11 @@ try {
   process.exit(1);
 }
 const database = await openDatabase({ databaseUrl: env.DATABASE_URL, dataDir: env.DATABASE_URL ? undefined : resolve(dataDir, 'pg') });
-const storage = createDiskStorage(resolve(dataDir, 'files'));
+// Stored files: the S3 bucket S3_* names (checked now), or <data dir>/files.
+const { storage, where: filesWhere } = await openStorage(env, dataDir).catch((e: unknown) => {
+  console.error(`Coilpath cannot start: ${(e as Error).message}`);
+  process.exit(1);
+});
 const sink = env.SMTP_URL ? null : await startMailSink(database.db, storage);
 const mailer = createSmtpMailer(env.SMTP_URL ?? sink!.url, env.MAIL_FROM);
 
@@ -41,6 +46,7 @@ const ctx: AppContext = {
   storage,
   clock,
   secret: loadSecret(env.COILPATH_SECRET, dataDir),
+  logger: createLogger({ level: env.LOG_LEVEL }),
   config: {
     sessionHours: env.SESSION_HOURS,
     secureCookies: (env.PUBLIC_URL ?? '').startsWith('https://'),
@@ -57,6 +63,7 @@ server.listen(env.PORT, env.HOST, () => {
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : env.PORT;
   console.log(`Coilpath is running on http://localhost:${port} (database: ${database.kind}${database.kind === 'pglite' ? `, ${dataDir}` : ''})`);
+  console.log(`Stored files: ${filesWhere}`);
   if (clockOverridden) console.log(`Clock: COILPATH_NOW=${env.COILPATH_NOW} (now ${clock.now().toISOString()})`);
   if (seeded) console.log('Demo data loaded.');
   console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example, tech@coilpath.example — password "${DEMO_PASSWORD}"`);

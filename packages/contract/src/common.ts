@@ -31,6 +31,8 @@ export const apiErrorSchema = z.object({
     code: z.string(),
     message: z.string(),
     details: z.unknown().optional(),
+    /** The request's id (also `X-Request-Id`, and in the server's log line): quoted to an administrator. */
+    requestId: z.string().optional(),
   }),
 });
 export type ApiError = z.infer<typeof apiErrorSchema>;

@@ -16,6 +16,10 @@
  * ones in. On PGlite the data directory is locked (`coilpath.lock`) throughout, so a running server is named
  * and refused.
  *
+ * With an S3 bucket for the files (`S3_BUCKET`), the objects are not copied: the manifest says where they are
+ * (`storage`: endpoint, bucket, region, how many objects the database refers to) and a restore says so; the
+ * bucket is backed up with the object store's own means (versioning, replication).
+ *
  * Backups made before files and secret were included (a bare PGlite data-directory dump, or a bare
  * `pg_dump` file) are still restored, database only, saying so.
  */
@@ -83,12 +87,35 @@ const manifestSchema = z.object({
     /** Files the database refers to that were already missing from storage when the backup was made. */
     missing: z.array(z.string()),
   }),
+  /**
+   * Where the stored files live: `files` (in this backup, under `files/`) or an S3 bucket (not copied; the
+   * database's keys are object names there). Absent in backups made before S3 storage: `files`.
+   */
+  storage: z
+    .discriminatedUnion('kind', [
+      z.object({ kind: z.literal('files') }),
+      z.object({
+        kind: z.literal('s3'),
+        endpoint: z.string().nullable(),
+        bucket: z.string(),
+        region: z.string(),
+        referencedObjects: z.number().int().min(0),
+      }),
+    ])
+    .optional(),
   secret: z.discriminatedUnion('included', [
     z.object({ included: z.literal(true), entry: z.literal(SECRET_FILE), sha256: sha256Hex, fromEnvironment: z.boolean() }),
     z.object({ included: z.literal(false), fromEnvironment: z.boolean() }),
   ]),
 });
 export type BackupManifest = z.infer<typeof manifestSchema>;
+
+/** An object store the files live in (from `S3_*`): recorded in the manifest, never copied. */
+export interface ObjectStoreLocation {
+  endpoint: string | null;
+  bucket: string;
+  region: string;
+}
 
 export interface BackupReport {
   file: string;
@@ -104,6 +131,8 @@ export interface RestoreReport {
   /** Rows per table in the restored database (equal to the manifest's). */
   tables: Record<string, number>;
   files: { count: number; totalBytes: number };
+  /** The files stayed in this bucket (an S3 deployment's backup): nothing under `files/` was touched. */
+  objectStore: (ObjectStoreLocation & { referencedObjects: number }) | null;
   secretRestored: boolean;
   /** Where the replaced database, files and secret were moved (with `force`). */
   movedAside?: string;
@@ -268,7 +297,7 @@ async function writeArchive(file: string, entries: AsyncIterable<Buffer>): Promi
 export async function createBackup(
   target: BackupTarget,
   file: string,
-  opts: { now?: Date; secretFromEnvironment?: boolean } = {},
+  opts: { now?: Date; secretFromEnvironment?: boolean; objectStore?: ObjectStoreLocation | null } = {},
 ): Promise<BackupReport> {
   const now = opts.now ?? new Date();
   const dataDir = resolve(target.dataDir);
@@ -316,7 +345,9 @@ export async function createBackup(
     }
 
     const filesDir = join(dataDir, 'files');
-    const { keys, strays } = listStoredFiles(filesDir);
+    const objectStore = opts.objectStore ?? null;
+    // On S3 the objects stay where they are: nothing is listed or copied from the data directory.
+    const { keys, strays } = objectStore ? { keys: [], strays: [] } : listStoredFiles(filesDir);
     const secretPath = join(dataDir, SECRET_FILE);
     const secretIncluded = existsSync(secretPath);
     const fileEntries: BackupManifest['files']['entries'] = [];
@@ -336,8 +367,12 @@ export async function createBackup(
           count: fileEntries.length,
           totalBytes: fileEntries.reduce((s, f) => s + f.bytes, 0),
           entries: fileEntries,
-          missing: [...referenced].filter((k) => !present.has(k)).sort(),
+          // Not checked against a bucket: its objects are not read.
+          missing: objectStore ? [] : [...referenced].filter((k) => !present.has(k)).sort(),
         },
+        storage: objectStore
+          ? { kind: 's3', endpoint: objectStore.endpoint, bucket: objectStore.bucket, region: objectStore.region, referencedObjects: referenced.size }
+          : { kind: 'files' },
         secret: secretIncluded
           ? { included: true, entry: SECRET_FILE, sha256: secretSha, fromEnvironment: Boolean(opts.secretFromEnvironment) }
           : { included: false, fromEnvironment: Boolean(opts.secretFromEnvironment) },
@@ -558,7 +593,7 @@ export async function restoreBackup(target: BackupTarget, file: string, opts: { 
   const lock = lockDataDir(dataDir, 'restore');
   const staging = join(dataDir, `.restore-${randomBytes(6).toString('hex')}`);
   try {
-    const replaced = target.kind === 'pglite' ? ['pg', 'files', SECRET_FILE] : ['files', SECRET_FILE];
+    let replaced = target.kind === 'pglite' ? ['pg', 'files', SECRET_FILE] : ['files', SECRET_FILE];
     const hasData =
       (target.kind === 'pglite' ? existsSync(join(dataDir, 'pg')) && readdirSync(join(dataDir, 'pg')).length > 0 : await postgresHasData(target.url)) ||
       dirHasFiles(join(dataDir, 'files')) ||
@@ -583,6 +618,8 @@ export async function restoreBackup(target: BackupTarget, file: string, opts: { 
     } else {
       if (!m) throw new BackupError(`${source} has no manifest. Nothing was restored.`);
       verifyEntries(source, m, unpacked.got);
+      // The files of an S3 deployment stayed in the bucket: whatever is under files/ here is left alone.
+      if (m.storage?.kind === 's3') replaced = replaced.filter((name) => name !== 'files');
       if (m.database.kind !== target.kind) {
         throw new BackupError(
           `${source} holds a ${m.database.kind === 'pglite' ? 'embedded (PGlite)' : 'PostgreSQL'} database; it cannot be restored into ${target.kind === 'pglite' ? 'the embedded database' : 'PostgreSQL (DATABASE_URL)'}. Nothing was restored.`,
@@ -638,12 +675,14 @@ export async function restoreBackup(target: BackupTarget, file: string, opts: { 
     }
 
     const restoredFiles = m ? { count: m.files.count, totalBytes: m.files.totalBytes } : { count: 0, totalBytes: 0 };
+    const store = m?.storage?.kind === 's3' ? m.storage : null;
     return {
       file: source,
       dataDir,
       manifest: m,
       tables: tables!,
       files: restoredFiles,
+      objectStore: store ? { endpoint: store.endpoint, bucket: store.bucket, region: store.region, referencedObjects: store.referencedObjects } : null,
       secretRestored: Boolean(m?.secret.included),
       ...(movedAside ? { movedAside } : {}),
       pendingMigrations: m ? pendingAfter(m.schemaVersion) : [],

@@ -46,10 +46,10 @@ export function startScheduler(ctx: AppContext, intervalSeconds: number): { stop
     try {
       for (const job of scheduledJobs) {
         const ran = await withJobLock(ctx.database, job.name, () => job.run(ctx)).catch((err: unknown) => {
-          console.error(`[coilpath] job ${job.name} failed`, err);
+          ctx.logger?.error({ err, job: job.name }, `job ${job.name} failed`);
           return true;
         });
-        if (!ran) console.log(`[coilpath] job ${job.name}: another process is running it`);
+        if (!ran) ctx.logger?.info({ job: job.name }, `job ${job.name}: another process is running it`);
       }
     } finally {
       running = false;

@@ -19,6 +19,22 @@ const envSchema = z.object({
   SESSION_HOURS: z.coerce.number().min(1).max(24 * 30).default(12),
   NODE_ENV: z.string().default('development'),
   /**
+   * Stored files in an S3-compatible bucket instead of `<data dir>/files` (several API processes share it):
+   * set `S3_BUCKET`; `S3_URL` is the endpoint of a store other than Amazon S3 (MinIO, a local fake…).
+   */
+  S3_URL: z.preprocess((v) => (v === '' ? undefined : v), z.url({ protocol: /^https?$/, message: 'S3_URL must be an http(s):// URL' }).optional()),
+  S3_BUCKET: z.preprocess(
+    (v) => (v === '' ? undefined : v),
+    z.string().regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, 'S3_BUCKET must be a bucket name: 3–63 lowercase letters, digits, dots or hyphens').optional(),
+  ),
+  S3_REGION: z.string().min(1).default('us-east-1'),
+  S3_ACCESS_KEY_ID: z.preprocess((v) => (v === '' ? undefined : v), z.string().optional()),
+  S3_SECRET_ACCESS_KEY: z.preprocess((v) => (v === '' ? undefined : v), z.string().optional()),
+  /** `http://host/bucket/key` addressing (MinIO, local fakes); by default on when `S3_URL` is set. */
+  S3_PATH_STYLE: z.enum(['true', 'false']).optional(),
+  /** Level of the JSON log lines on stdout (one per request): `silent` logs nothing. */
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  /**
    * Runs the server as if it had been started at this instant (ISO 8601 with an offset, e.g.
    * `2027-03-15T06:00:00-05:00`); time then passes normally. For demos and browser journeys at a chosen
    * date; ignored unless set.

@@ -1,4 +1,9 @@
-/** An error that answers with a status and a stable code: `{ error: { code, message, details? } }`. */
+import type { NextFunction, Request, Response } from 'express';
+
+/**
+ * An error that answers with a status and a stable code: `{ error: { code, message, details?, requestId } }`
+ * (`requestId` added on the way out by `requestIdInErrors`).
+ */
 export class HttpError extends Error {
   constructor(
     readonly status: number,
@@ -29,3 +34,18 @@ export const fileMissing = (what: string) =>
     'file_missing',
     `The file of this ${what} is missing from Coilpath's file storage. The record is kept; an administrator can restore the file from a backup.`,
   );
+
+const isErrorBody = (body: unknown): body is { error: Record<string, unknown> } =>
+  typeof body === 'object' && body !== null && typeof (body as { error?: unknown }).error === 'object' && (body as { error?: unknown }).error !== null;
+
+/**
+ * Every JSON error answer (status 400 and up with an `error` object — from the error handler, a rate limiter or a
+ * route) carries the request's id as `error.requestId`, the id of its log line and of `X-Request-Id`, so a
+ * person can quote it and an administrator find the line.
+ */
+export function requestIdInErrors(req: Request, res: Response, next: NextFunction) {
+  const json = res.json.bind(res);
+  res.json = (body?: unknown) =>
+    json(res.statusCode >= 400 && isErrorBody(body) && req.id !== undefined ? { ...body, error: { ...body.error, requestId: String(req.id) } } : body);
+  next();
+}

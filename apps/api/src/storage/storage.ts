@@ -24,15 +24,15 @@ export interface Storage {
 
 /**
  * A stored file for a route that serves it: a missing file answers 410 `file_missing` naming `what`
- * (a photo, an e-mail attachment…) and is logged with its key for the administrator.
+ * (a photo, an e-mail attachment…); the error's `cause` keeps the key, which the error handler logs for the
+ * administrator with the request's id.
  */
 export async function readStoredFile(storage: Storage, key: string, what: string): Promise<Buffer> {
   try {
     return await storage.get(key);
   } catch (e) {
     if (!(e instanceof StoredFileMissing)) throw e;
-    console.warn(`[coilpath] a stored file is missing: ${what}, key ${key}`);
-    throw fileMissing(what);
+    throw Object.assign(fileMissing(what), { cause: e });
   }
 }
 

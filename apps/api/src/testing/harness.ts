@@ -9,6 +9,7 @@ import { openDatabase, type Database } from '../db/client';
 import { fixedClock, type Clock } from '../lib/clock';
 import type { Mailer, MailMessage } from '../mail/mailer';
 import { createMemoryStorage, type Storage } from '../storage/storage';
+import type { Logger } from '../lib/logger';
 import { databaseUrlFor, dropDatabase, onServer, type TestTemplate } from './test-template';
 
 /** The template of this run (`global-setup.ts`), or undefined outside the `api` and `tests` projects. */
@@ -81,7 +82,9 @@ export interface TestApp {
  */
 export const DEFAULT_TEST_NOW = '2026-06-03T18:00:00Z';
 
-export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?: Mailer; signInLimit?: number } = {}): Promise<TestApp> {
+export async function createTestApp(
+  opts: { clock?: Clock; now?: string; mailer?: Mailer; signInLimit?: number; /** Where to log (none: silent). */ logger?: Logger } = {},
+): Promise<TestApp> {
   const database = await openTestDatabase();
   const mailer = memoryMailer();
   const storage = createMemoryStorage();
@@ -92,6 +95,7 @@ export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?
     storage,
     clock: opts.clock ?? fixedClock(opts.now ?? DEFAULT_TEST_NOW),
     secret: new TextEncoder().encode('coilpath-test-secret-coilpath-test-secret'),
+    ...(opts.logger ? { logger: opts.logger } : {}),
     config: {
       sessionHours: 12,
       secureCookies: false,

@@ -63,7 +63,8 @@ describe('sign-in', () => {
       const unknown = await attempt('nobody@test.example');
       expect(wrong.res.status).toBe(401);
       expect(unknown.res.status).toBe(401);
-      expect(unknown.res.body).toEqual(wrong.res.body);
+      // The same answer but for the request's own id.
+      expect({ ...unknown.res.body.error, requestId: null }).toEqual({ ...wrong.res.body.error, requestId: null });
       expect(wrong.res.body.error.code).toBe('unauthorized');
       expect(wrong.params).toMatch(/^argon2id\$v=19\$m=\d+,t=\d+,p=\d+$/);
       expect(unknown.params).toBe(wrong.params);
@@ -283,7 +284,7 @@ describe('roles, branches and errors', () => {
 
     const unknown = await request(t.app).get('/api/no-such-thing');
     expect(unknown.status).toBe(404);
-    expect(unknown.body).toEqual({ error: { code: 'not_found', message: 'No such API route.' } });
+    expect(unknown.body).toEqual({ error: { code: 'not_found', message: 'No such API route.', requestId: unknown.headers['x-request-id'] } });
   });
 
   it('health names the database', async () => {

@@ -6,6 +6,7 @@ import { mailOutbox } from '../../db/schema';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
 import { notFound } from '../../lib/errors';
+import { sendStoredFile } from '../../lib/send-file';
 import { readStoredFile } from '../../storage/storage';
 
 export function outboxRoutes(ctx: AppContext): Router {
@@ -46,9 +47,7 @@ export function outboxRoutes(ctx: AppContext): Router {
         const a = m?.attachments[params.index];
         if (!m || !a?.storageKey) throw notFound('attachment');
         const content = await readStoredFile(ctx.storage, a.storageKey, 'e-mail attachment');
-        res.setHeader('Content-Type', a.contentType);
-        res.setHeader('Content-Disposition', `attachment; filename="${a.filename.replace(/[^\w.-]+/g, '_')}"`);
-        res.send(content);
+        sendStoredFile(res, { content, contentType: a.contentType, name: a.filename });
       },
     ),
   );

@@ -4,6 +4,7 @@ import { idSchema, unitSearchQuerySchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { resolveBranch } from '../../auth/middleware';
 import { endpoint } from '../../lib/endpoint';
+import { sendStoredFile } from '../../lib/send-file';
 import { readStoredFile } from '../../storage/storage';
 import { attachmentLabel } from '../visits/attachments.service';
 import { searchUnits, unitAttachment, unitFile } from './unit-file.service';
@@ -25,10 +26,7 @@ export function unitFileRoutes(ctx: AppContext): Router {
     endpoint({ params: unitParams.extend({ attachmentId: idSchema }) }, async ({ params, user, res }) => {
       const a = await unitAttachment(ctx.db, user, params.id, params.attachmentId);
       const content = await readStoredFile(ctx.storage, a.storageKey, attachmentLabel[a.kind]);
-      res.setHeader('Content-Type', a.contentType);
-      res.setHeader('Content-Disposition', `inline; filename="${a.displayName.replace(/[^\w.-]+/g, '_')}"`);
-      res.setHeader('Cache-Control', 'private, max-age=3600');
-      res.send(content);
+      sendStoredFile(res, { content, contentType: a.contentType, name: a.displayName, cacheControl: 'private, max-age=3600' });
     }),
   );
   return r;

@@ -165,7 +165,7 @@ export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: s
     await ctx.db.update(visits).set({ summarySentAt: ctx.clock.now() }).where(eq(visits.id, visitId));
     return { sent: true, to, error: null };
   } catch (err) {
-    console.error('[coilpath] service summary mail failed', err);
+    ctx.logger?.error({ err, visitId }, 'service summary mail failed');
     return { sent: false, to, error: 'The mail server did not take the summary. The visit is closed; send the summary again from this screen.' };
   }
 }

@@ -17,6 +17,7 @@ import { endpoint, idParams } from '../../lib/endpoint';
 import { badRequest, unauthorized } from '../../lib/errors';
 import { assertVisitWritable, loadVisit } from './access';
 import { addAttachment, readAttachment } from './attachments.service';
+import { sendStoredFile } from '../../lib/send-file';
 import { unitBriefing } from './briefing.service';
 import { closeVisit, resendSummary } from './closeout.service';
 import { recordRefrigerantEvent } from './refrigerant.service';
@@ -90,11 +91,7 @@ export function attachmentsRoutes(ctx: AppContext): Router {
     '/:id',
     endpoint({ params: idParams, query: z.object({ thumb: z.string().optional() }) }, async ({ user, params, res }) => {
       const { attachment: a, content } = await readAttachment(ctx, user, params.id);
-      res.setHeader('Content-Type', a.contentType);
-      res.setHeader('Content-Length', String(content.length));
-      res.setHeader('Cache-Control', 'private, max-age=3600');
-      res.setHeader('Content-Disposition', `inline; filename="${a.displayName.replace(/[^\w.-]+/g, '_')}"`);
-      res.send(content);
+      sendStoredFile(res, { content, contentType: a.contentType, name: a.displayName, cacheControl: 'private, max-age=3600' });
     }),
   );
   return r;

@@ -110,7 +110,7 @@ export const digestJob: ScheduledJob = {
     if (done.length) {
       const by = new Map<string, number>();
       for (const r of done) by.set(r.status, (by.get(r.status) ?? 0) + 1);
-      console.log(`[coilpath] job watchlist-digest: ${[...by].map(([s, n]) => `${s} ${n}`).join(', ')}`);
+      ctx.logger?.info({ job: 'watchlist-digest', runs: Object.fromEntries(by) }, `job watchlist-digest: ${[...by].map(([s, n]) => `${s} ${n}`).join(', ')}`);
     }
   },
 };

@@ -457,7 +457,11 @@ function UnitFileView({ id }: { id: string }) {
             <ul className="grid grid-cols-2 gap-3 sm:grid-cols-4 lg:grid-cols-6">
               {f.attachments.map((a) => (
                 <li key={a.id}>
-                  <a href={a.url} target="_blank" rel="noreferrer" className="block rounded-md border border-slate-line p-1 hover:border-coolant">
+                  <a
+                    href={a.url}
+                    {...(a.contentType.startsWith('image/') ? { target: '_blank', rel: 'noreferrer' } : { download: a.displayName })}
+                    className="block rounded-md border border-slate-line p-1 hover:border-coolant"
+                  >
                     {a.contentType.startsWith('image/') ? (
                       <img src={a.url} alt={a.displayName} loading="lazy" className="aspect-square w-full rounded object-cover" />
                     ) : (
