@@ -2,6 +2,7 @@ import type { Database, Db } from './db/client';
 import type { Mailer } from './mail/mailer';
 import type { Storage } from './storage/storage';
 import type { Clock } from './lib/clock';
+import type { JobQueue } from './jobs/queue';
 
 /** Everything a module needs, injected by createApp (tests pass in-memory stand-ins). */
 export interface AppContext {
@@ -10,6 +11,8 @@ export interface AppContext {
   mailer: Mailer;
   storage: Storage;
   clock: Clock;
+  /** Work done after answering (`jobs/queue.ts`). */
+  jobs: JobQueue;
   secret: Uint8Array;
   config: {
     sessionHours: number;

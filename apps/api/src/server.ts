@@ -12,6 +12,7 @@ import { createDiskStorage } from './storage/storage';
 import { loadSecret } from './secret';
 import { DataDirLocked, lockDataDir } from './data-dir-lock';
 import { startScheduler } from './jobs/scheduler';
+import { createJobQueue } from './jobs/queue';
 import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
@@ -40,6 +41,7 @@ const ctx: AppContext = {
   mailer,
   storage,
   clock,
+  jobs: createJobQueue(),
   secret: loadSecret(env.COILPATH_SECRET, dataDir),
   config: {
     sessionHours: env.SESSION_HOURS,
@@ -73,6 +75,7 @@ async function shutdown(signal: string) {
   scheduler?.stop();
   server.close();
   server.closeAllConnections();
+  await ctx.jobs.idle();
   await sink?.close();
   await database.close();
   process.exit(0);

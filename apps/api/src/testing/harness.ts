@@ -7,6 +7,7 @@ import { createApp } from '../app';
 import type { AppContext } from '../context';
 import { openDatabase, type Database } from '../db/client';
 import { fixedClock, type Clock } from '../lib/clock';
+import { createJobQueue } from '../jobs/queue';
 import type { Mailer, MailMessage } from '../mail/mailer';
 import { createMemoryStorage, type Storage } from '../storage/storage';
 import { databaseUrlFor, dropDatabase, onServer, type TestTemplate } from './test-template';
@@ -91,6 +92,7 @@ export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?
     mailer: opts.mailer ?? mailer,
     storage,
     clock: opts.clock ?? fixedClock(opts.now ?? DEFAULT_TEST_NOW),
+    jobs: createJobQueue(),
     secret: new TextEncoder().encode('coilpath-test-secret-coilpath-test-secret'),
     config: {
       sessionHours: 12,

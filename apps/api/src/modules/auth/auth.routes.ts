@@ -52,8 +52,9 @@ export function authRoutes(ctx: AppContext): Router {
   });
   r.post('/forgot-password', resetLimiter, async (req, res) => {
     const { email } = forgotPasswordSchema.parse(req.body ?? {});
-    await requestPasswordReset(ctx, email);
+    // Answered first; the lookup and the e-mail are a job (the answer must not tell who has an account).
     res.status(202).json({ message: forgotPasswordAnswer });
+    requestPasswordReset(ctx, email);
   });
   r.post('/reset-password/check', resetLimiter, async (req, res) => {
     const { token } = linkCheckSchema.parse(req.body ?? {});

@@ -262,7 +262,9 @@ describe('password reset', () => {
   it('answers the same whether or not the address exists, and mails only real accounts', async () => {
     const before = t.mailer.sent.length;
     const known = await request(t.app).post('/api/auth/forgot-password').send({ email: f.inB.manager.email });
+    await t.ctx.jobs.idle();
     const unknown = await request(t.app).post('/api/auth/forgot-password').send({ email: 'nobody@test.example' });
+    await t.ctx.jobs.idle();
     expect(known.status).toBe(202);
     expect(unknown.status).toBe(202);
     expect(unknown.body).toEqual(known.body);
@@ -275,6 +277,7 @@ describe('password reset', () => {
     const person = await makeUser(t.ctx.db, 'branch_manager', f.b.id);
     const otherDevice = await signedInAgent(t.app, person.email, TEST_PASSWORD);
     await request(t.app).post('/api/auth/forgot-password').send({ email: person.email });
+    await t.ctx.jobs.idle();
     const token = tokenOf(linkIn(person.email));
 
     const check = await request(t.app).post('/api/auth/reset-password/check').send({ token });
@@ -300,8 +303,10 @@ describe('password reset', () => {
   it('refuses an expired or tampered reset link, and an older link once a newer one was sent', async () => {
     const person = await makeUser(t.ctx.db, 'dispatcher', f.a.id);
     await request(t.app).post('/api/auth/forgot-password').send({ email: person.email });
+    await t.ctx.jobs.idle();
     const first = tokenOf(linkIn(person.email));
     await request(t.app).post('/api/auth/forgot-password').send({ email: person.email });
+    await t.ctx.jobs.idle();
     const second = tokenOf(linkIn(person.email));
     expect((await request(t.app).post('/api/auth/reset-password/check').send({ token: first })).body.error.code).toBe('link_used');
 
