@@ -19,8 +19,10 @@ export interface AppContext {
     /** Served over HTTPS: the session cookie gets `Secure`. */
     secureCookies: boolean;
     publicUrl: string;
-    /** Sign-in attempts allowed per 15 minutes per client and e-mail. */
+    /** Failed sign-ins allowed per 15 minutes per address (IP) and e-mail. */
     signInLimit: number;
+    /** Other sign-in limits (per account, per address); defaults in `auth/sign-in-limits.ts`. */
+    signInLimits?: Partial<import('./auth/sign-in-limits').SignInLimits>;
     /**
      * The clock is set to another instant (`COILPATH_NOW`): every API answer carries `X-Coilpath-Now` so the
      * web app reckons "today" by the server's clock rather than the browser's.

@@ -82,7 +82,7 @@ export interface TestApp {
  */
 export const DEFAULT_TEST_NOW = '2026-06-03T18:00:00Z';
 
-export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?: Mailer; signInLimit?: number } = {}): Promise<TestApp> {
+export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?: Mailer; signInLimit?: number; signInLimits?: AppContext['config']['signInLimits'] } = {}): Promise<TestApp> {
   const database = await openTestDatabase();
   const mailer = memoryMailer();
   const storage = createMemoryStorage();
@@ -99,6 +99,7 @@ export async function createTestApp(opts: { clock?: Clock; now?: string; mailer?
       secureCookies: false,
       publicUrl: 'http://coilpath.test',
       signInLimit: opts.signInLimit ?? 1000,
+      signInLimits: opts.signInLimits ?? { perAccount: 1000, perAddress: 1000 },
     },
   };
   return { app: createApp(ctx), ctx, database, mailer, storage, close: () => database.close() };

@@ -3,7 +3,8 @@ import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { SESSION_COOKIE } from '../../auth/session';
-import { unauthorized } from '../../lib/errors';
+import { HttpError, unauthorized } from '../../lib/errors';
+import { createSignInGuard, signInLimitsFrom, signInRefusalMessage } from '../../auth/sign-in-limits';
 import { signIn, signOut, signOutEverywhere } from './auth.service';
 import { checkPasswordReset, requestPasswordReset, resetPassword } from './password-reset.service';
 
@@ -19,24 +20,25 @@ export function setSessionCookie(ctx: AppContext, res: Response, token: string) 
 
 export function authRoutes(ctx: AppContext): Router {
   const r = Router();
-  const limiter = rateLimit({
-    windowMs: 15 * 60 * 1000,
-    limit: ctx.config.signInLimit,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String((req.body as { email?: unknown })?.email ?? '').toLowerCase()}`,
-    handler: (_req, res) => {
-      res.status(429).json({
-        error: { code: 'too_many_attempts', message: 'Too many sign-in attempts. Wait 15 minutes and try again.' },
-      });
-    },
-  });
-
-  r.post('/sign-in', limiter, async (req, res) => {
+  // Failed sign-ins per address and account, per account and per address (sign-in-limits.ts).
+  const guard = createSignInGuard(ctx.clock, signInLimitsFrom(ctx.config.signInLimit, ctx.config.signInLimits));
+  r.post('/sign-in', async (req, res) => {
     const input = signInSchema.parse(req.body ?? {});
-    const { user, token } = await signIn(ctx, input);
-    setSessionCookie(ctx, res, token);
-    res.json({ user });
+    const address = ipKeyGenerator(req.ip ?? '');
+    const refusal = guard.check(address, input.email);
+    if (refusal) {
+      res.setHeader('Retry-After', String(refusal.retryAfterSeconds));
+      throw new HttpError(429, 'too_many_attempts', signInRefusalMessage(refusal), { retryAfterSeconds: refusal.retryAfterSeconds, scope: refusal.scope });
+    }
+    try {
+      const { user, token } = await signIn(ctx, input);
+      guard.succeeded(address, input.email);
+      setSessionCookie(ctx, res, token);
+      res.json({ user });
+    } catch (e) {
+      if (e instanceof HttpError && e.status === 401) guard.failed(address, input.email);
+      throw e;
+    }
   });
 
   // Password reset: public and rate limited; the answer never says whether the address exists.
