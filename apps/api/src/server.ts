@@ -13,6 +13,7 @@ import { loadSecret } from './secret';
 import { DataDirLocked, lockDataDir } from './data-dir-lock';
 import { startScheduler } from './jobs/scheduler';
 import { createJobQueue } from './jobs/queue';
+import { warmPasswordRules } from './auth/password-rules';
 import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
@@ -62,6 +63,7 @@ server.listen(env.PORT, env.HOST, () => {
   if (clockOverridden) console.log(`Clock: COILPATH_NOW=${env.COILPATH_NOW} (now ${clock.now().toISOString()})`);
   if (seeded) console.log('Demo data loaded.');
   console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example, tech@coilpath.example — password "${DEMO_PASSWORD}"`);
+  warmPasswordRules();
   if (sink) console.log(`Mail goes to the local sink (smtp port ${sink.port}); read it at /outbox as the owner.`);
 });
 

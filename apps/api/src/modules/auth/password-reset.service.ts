@@ -4,6 +4,7 @@ import type { AppContext } from '../../context';
 import { auditEvents, branches, passwordResets, users } from '../../db/schema';
 import { composeMail, mail, mailTime } from '../../mail/compose';
 import { hashPassword } from '../../auth/password';
+import { assertPasswordAllowed } from '../../auth/password-rules';
 import { signSession } from '../../auth/session';
 import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
 import { linkErrors } from '../team/team.service';
@@ -18,7 +19,9 @@ export const RESET_MAILS_PER_HOUR = 3;
  * (`ctx.jobs`), so the answer and its time are the same whether or not the address has an account.
  */
 export function requestPasswordReset(ctx: AppContext, email: string): void {
-  ctx.jobs.enqueue('password-reset', () => sendPasswordReset(ctx, email));
+  ctx.jobs.enqueue('password-reset', async () => {
+    await sendPasswordReset(ctx, email);
+  });
 }
 
 /**
@@ -88,7 +91,7 @@ async function openReset(ctx: AppContext, signed: string) {
   const token = verifyLinkToken(ctx.secret, 'password-reset', signed);
   if (!token) throw linkErrors.invalid(RESET);
   const [r] = await ctx.db
-    .select({ id: passwordResets.id, userId: passwordResets.userId, usedAt: passwordResets.usedAt, expiresAt: passwordResets.expiresAt, email: users.email, active: users.active })
+    .select({ id: passwordResets.id, userId: passwordResets.userId, usedAt: passwordResets.usedAt, expiresAt: passwordResets.expiresAt, email: users.email, name: users.name, active: users.active })
     .from(passwordResets)
     .innerJoin(users, eq(users.id, passwordResets.userId))
     .where(eq(passwordResets.tokenHash, hashLinkToken(token)))
@@ -110,6 +113,7 @@ export async function checkPasswordReset(ctx: AppContext, signed: string): Promi
  */
 export async function resetPassword(ctx: AppContext, signed: string, password: string): Promise<{ user: SessionUser; token: string }> {
   const r = await openReset(ctx, signed);
+  await assertPasswordAllowed(password, { email: r.email, name: r.name });
   const passwordHash = await hashPassword(password);
   const now = ctx.clock.now();
   const u = await ctx.db.transaction(async (tx) => {

@@ -196,6 +196,15 @@ describe('invitations', () => {
     expect(preview.body.invitation).toMatchObject({ email: 'robin.field@test.example', branchName: 'Boulder', role: 'technician' });
 
     const agent = request.agent(t.app);
+    // The password rule (auth/password-rules.ts): not one containing the name, not a common one.
+    const withName = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'robin-field-2026', confirm: 'robin-field-2026' });
+    expect(withName.status).toBe(400);
+    expect(withName.body.error.code).toBe('weak_password');
+    expect(withName.body.error.message).toContain('"robin');
+    expect(withName.body.error.details.fields[0].path).toBe('password');
+    const common = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'password123', confirm: 'password123' });
+    expect(common.body.error.code).toBe('weak_password');
+    expect(common.body.error.message).toContain('commonly used password');
     const accepted = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'a-long-password-1', confirm: 'a-long-password-1' });
     expect(accepted.status).toBe(201);
     expect(accepted.body.user).toMatchObject({ email: 'robin.field@test.example', role: 'technician', branchId: den.body.id });
@@ -286,6 +295,13 @@ describe('password reset', () => {
     const mismatch = await request(t.app).post('/api/auth/reset-password').send({ token, password: 'new-password-123', confirm: 'different-456' });
     expect(mismatch.status).toBe(400);
 
+    // Common passwords are refused, with the reason, and the link stays usable.
+    for (const weak of ['password123', 'qwerty2024']) {
+      const refused = await request(t.app).post('/api/auth/reset-password').send({ token, password: weak, confirm: weak });
+      expect(refused.status, weak).toBe(400);
+      expect(refused.body.error.code).toBe('weak_password');
+      expect(refused.body.error.message).toMatch(/too easy to guess\. This is (similar to )?a commonly used password\./);
+    }
     const browser = request.agent(t.app);
     const res = await browser.post('/api/auth/reset-password').send({ token, password: 'new-password-123', confirm: 'new-password-123' });
     expect(res.status).toBe(200);
