@@ -19,6 +19,10 @@ export interface AppContext {
     /** Served over HTTPS: the session cookie gets `Secure`. */
     secureCookies: boolean;
     publicUrl: string;
+    /**
+     * Started in demo mode (`startMode` in lib/config.ts): only then may `/api/config` show the demo password.
+     */
+    demoMode?: boolean;
     /** Failed sign-ins allowed per 15 minutes per address (IP) and e-mail. */
     signInLimit: number;
     /** Other sign-in limits (per account, per address); defaults in `auth/sign-in-limits.ts`. */

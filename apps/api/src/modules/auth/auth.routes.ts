@@ -1,11 +1,12 @@
 import { Router, type Response } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
-import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
+import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, ownerSetupSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { SESSION_COOKIE } from '../../auth/session';
 import { HttpError, unauthorized } from '../../lib/errors';
 import { createSignInGuard, signInLimitsFrom, signInRefusalMessage } from '../../auth/sign-in-limits';
 import { signIn, signOut, signOutEverywhere } from './auth.service';
+import { checkOwnerSetup, completeOwnerSetup } from './owner-setup.service';
 import { checkPasswordReset, requestPasswordReset, resetPassword } from './password-reset.service';
 
 export function setSessionCookie(ctx: AppContext, res: Response, token: string) {
@@ -86,6 +87,35 @@ export function authRoutes(ctx: AppContext): Router {
   r.get('/me', (req, res) => {
     if (!req.user) throw unauthorized();
     res.json({ user: req.user });
+  });
+  return r;
+}
+
+/**
+ * `/api/setup` — the first owner of a Coilpath started without demo data, from the one-time link the server
+ * printed (public: the signed token is the credential; rate limited per address).
+ */
+export function setupRoutes(ctx: AppContext): Router {
+  const r = Router();
+  const limiter = rateLimit({
+    windowMs: 15 * 60 * 1000,
+    limit: Math.max(ctx.config.signInLimit, 10),
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|setup`,
+    handler: (_req, res) => {
+      res.status(429).json({ error: { code: 'too_many_attempts', message: 'Too many attempts. Wait 15 minutes and try again.' } });
+    },
+  });
+  r.post('/check', limiter, async (req, res) => {
+    const { token } = linkCheckSchema.parse(req.body ?? {});
+    res.json(await checkOwnerSetup(ctx, token));
+  });
+  r.post('/', limiter, async (req, res) => {
+    const input = ownerSetupSchema.parse(req.body ?? {});
+    const { user, token } = await completeOwnerSetup(ctx, input);
+    setSessionCookie(ctx, res, token);
+    res.status(201).json({ user });
   });
   return r;
 }
