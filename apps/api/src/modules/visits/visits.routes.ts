@@ -93,7 +93,9 @@ export function attachmentsRoutes(ctx: AppContext): Router {
       res.setHeader('Content-Type', a.contentType);
       res.setHeader('Content-Length', String(content.length));
       res.setHeader('Cache-Control', 'private, max-age=3600');
-      res.setHeader('Content-Disposition', `inline; filename="${a.displayName.replace(/[^\w.-]+/g, '_')}"`);
+      // Pictures show in the page; anything else (a PDF) is downloaded, never opened as a page of this site.
+      const disposition = a.contentType.startsWith('image/') ? 'inline' : 'attachment';
+      res.setHeader('Content-Disposition', `${disposition}; filename="${a.displayName.replace(/[^\w.-]+/g, '_')}"`);
       res.send(content);
     }),
   );
