@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { emailSchema, idSchema, limits } from './common';
+import { emailSchema, idSchema, limits, oneLine } from './common';
 import { linkTokenSchema, newPasswordSchema } from './team';
 import { roleSchema } from './vocabulary';
 
@@ -37,7 +37,7 @@ export type PublicConfig = z.infer<typeof publicConfigSchema>;
 export const ownerSetupSchema = z
   .object({
     token: linkTokenSchema,
-    name: z.string().trim().min(1, 'Enter your name').max(limits.name),
+    name: oneLine(limits.name, 'Enter your name'),
     email: emailSchema,
     password: newPasswordSchema,
     confirm: z.string(),

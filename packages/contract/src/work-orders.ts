@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, instantSchema, isoDateSchema, limits } from './common';
+import { idSchema, instantSchema, isoDateSchema, limits, optionalOneLine } from './common';
 import { causeCodeSchema, prioritySchema, workOrderKindSchema, workOrderStateSchema, type WorkOrderState } from './vocabulary';
 
 /** The model alert an inspection work order checks for. */
@@ -29,7 +29,7 @@ const workOrderFields = {
   requestedTo: instantSchema.nullable().optional(),
   slaDueAt: instantSchema.nullable().optional(),
   latestAt: instantSchema.nullable().optional(),
-  requiredSkill: optionalText(60),
+  requiredSkill: optionalOneLine(60),
   requiredCertification: requiredCertificationSchema.nullable().optional(),
   estimatedMinutes: z.coerce
     .number({ message: 'Enter the estimated minutes' })
