@@ -21,6 +21,7 @@ import {
   customerPatchSchema,
   customersQuerySchema,
   forgotPasswordSchema,
+  ownerSetupSchema,
   invitationInputSchema,
   linkCheckSchema,
   resetPasswordSchema,
@@ -78,7 +79,8 @@ import {
 import { eq } from 'drizzle-orm';
 import { randomBytes } from 'node:crypto';
 import type { MailMessage } from '../../apps/api/src/mail/mailer';
-import { requestPasswordReset } from '../../apps/api/src/modules/auth/password-reset.service';
+import { sendPasswordReset } from '../../apps/api/src/modules/auth/password-reset.service';
+import { signLinkToken } from '../../apps/api/src/auth/tokens';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';
@@ -159,7 +161,7 @@ async function invitationToken(f: MatrixFixture, side: Side) {
 
 async function resetToken(f: MatrixFixture, side: Side) {
   const u = await makeUser(f.db, 'technician', side.branch.id);
-  await requestPasswordReset(f.ctx, u.email);
+  await sendPasswordReset(f.ctx, u.email);
   return lastMailedToken(f);
 }
 
@@ -256,6 +258,25 @@ export const routeTable: RouteRow[] = [
   // ── health, config, auth ────────────────────────────────────────────────────────────────
   { method: 'GET', path: '/api/health', expect: open(200) },
   { method: 'GET', path: '/api/config', expect: open(200) },
+  // The first-owner setup: this database has people already, so a well-signed link answers 410 to anyone.
+  {
+    method: 'POST',
+    path: '/api/setup/check',
+    expect: open(410),
+    body: linkCheckSchema,
+    request: (f) => ({ path: '/api/setup/check', body: { token: signLinkToken(f.ctx.secret, 'owner-setup', randomBytes(32).toString('base64url')) } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/setup',
+    expect: open(410),
+    body: ownerSetupSchema,
+    textFields: ['name'],
+    request: (f) => ({
+      path: '/api/setup',
+      body: { token: signLinkToken(f.ctx.secret, 'owner-setup', randomBytes(32).toString('base64url')), name: 'Robin Field', email: 'robin.field@test.example', password: 'a-new-password-42', confirm: 'a-new-password-42' },
+    }),
+  },
   {
     method: 'POST',
     path: '/api/auth/sign-in',

@@ -5,6 +5,7 @@ import helmet from 'helmet';
 import { ZodError } from 'zod';
 import type { AppContext } from './context';
 import { authenticate, requireAuth } from './auth/middleware';
+import { noStoreWhenSignedIn, sameOriginOnly } from './auth/same-origin';
 import { fileMissing, HttpError } from './lib/errors';
 import { requestIdInErrors } from './lib/errors';
 import { createLogger, requestLogger } from './lib/logger';
@@ -79,6 +80,7 @@ export function createApp(ctx: AppContext): express.Express {
     if (ctx.config.clockOverridden) res.setHeader('X-Coilpath-Now', ctx.clock.now().toISOString());
     next();
   });
+  app.use('/api', sameOriginOnly(ctx));
   app.use('/api', requireJsonBodies);
   // CSV imports carry a whole file: up to 6 MB of units (8 MB as base64), 900 kB of alarms (1.2 MB as
   // base64); every other body stays small.
@@ -88,6 +90,7 @@ export function createApp(ctx: AppContext): express.Express {
   app.use('/api', refuseUnstorableText);
   app.use('/api', cookieParser());
   app.use('/api', authenticate(ctx));
+  app.use('/api', noStoreWhenSignedIn);
 
   app.use('/api', apiRoutes(ctx));
   app.use('/api', (_req, _res, next) => next(new HttpError(404, 'not_found', 'No such API route.')));

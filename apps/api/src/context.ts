@@ -3,6 +3,7 @@ import type { Mailer } from './mail/mailer';
 import type { Storage } from './storage/storage';
 import type { Clock } from './lib/clock';
 import type { Logger } from './lib/logger';
+import type { JobQueue } from './jobs/queue';
 
 /** Everything a module needs, injected by createApp (tests pass in-memory stand-ins). */
 export interface AppContext {
@@ -11,6 +12,8 @@ export interface AppContext {
   mailer: Mailer;
   storage: Storage;
   clock: Clock;
+  /** Work done after answering (`jobs/queue.ts`). */
+  jobs: JobQueue;
   secret: Uint8Array;
   /** Where request lines and errors are logged (`lib/logger.ts`); absent, nothing is logged (tests). */
   logger?: Logger;
@@ -19,8 +22,14 @@ export interface AppContext {
     /** Served over HTTPS: the session cookie gets `Secure`. */
     secureCookies: boolean;
     publicUrl: string;
-    /** Sign-in attempts allowed per 15 minutes per client and e-mail. */
+    /**
+     * Started in demo mode (`startMode` in lib/config.ts): only then may `/api/config` show the demo password.
+     */
+    demoMode?: boolean;
+    /** Failed sign-ins allowed per 15 minutes per address (IP) and e-mail. */
     signInLimit: number;
+    /** Other sign-in limits (per account, per address); defaults in `auth/sign-in-limits.ts`. */
+    signInLimits?: Partial<import('./auth/sign-in-limits').SignInLimits>;
     /**
      * The clock is set to another instant (`COILPATH_NOW`): every API answer carries `X-Coilpath-Now` so the
      * web app reckons "today" by the server's clock rather than the browser's.

@@ -1,7 +1,7 @@
 import { Router } from 'express';
 import type { AppContext } from './context';
 import { requireAuth } from './auth/middleware';
-import { authRoutes } from './modules/auth/auth.routes';
+import { authRoutes, setupRoutes } from './modules/auth/auth.routes';
 import { healthRoutes } from './modules/health/health.routes';
 import { outboxRoutes } from './modules/outbox/outbox.routes';
 import { branchesRoutes } from './modules/branches/branches.routes';
@@ -25,6 +25,7 @@ export function apiRoutes(ctx: AppContext): Router {
   const api = Router();
   api.use(healthRoutes(ctx));
   api.use('/auth', authRoutes(ctx));
+  api.use('/setup', setupRoutes(ctx));
   api.use('/branches', requireAuth, branchesRoutes(ctx));
   api.use('/outbox', requireAuth, outboxRoutes(ctx));
   api.use('/customers', requireAuth, customersRoutes(ctx));

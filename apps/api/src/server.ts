@@ -1,11 +1,14 @@
 import { resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createServer } from 'node:http';
+import { eq } from 'drizzle-orm';
+import { appMeta } from './db/schema';
 import { createApp } from './app';
 import type { AppContext } from './context';
 import { openDatabase } from './db/client';
 import { DEMO_PASSWORD, demoToday, seedDemo } from './db/seed';
-import { clockFromEnv, readEnv } from './lib/config';
+import { clockFromEnv, readEnv, startMode } from './lib/config';
+import { issueOwnerSetup } from './modules/auth/owner-setup.service';
 import { createSmtpMailer } from './mail/mailer';
 import { startMailSink } from './mail/sink';
 import { openStorage } from './storage/s3';
@@ -13,6 +16,8 @@ import { loadSecret } from './secret';
 import { DataDirLocked, lockDataDir } from './data-dir-lock';
 import { startScheduler } from './jobs/scheduler';
 import { createLogger } from './lib/logger';
+import { createJobQueue } from './jobs/queue';
+import { warmPasswordRules } from './auth/password-rules';
 import './modules/watchlist/watchlist.jobs';
 
 const env = readEnv();
@@ -36,8 +41,10 @@ const { storage, where: filesWhere } = await openStorage(env, dataDir).catch((e:
 const sink = env.SMTP_URL ? null : await startMailSink(database.db, storage);
 const mailer = createSmtpMailer(env.SMTP_URL ?? sink!.url, env.MAIL_FROM);
 
+// Demo data only in demo mode (never on a published server); otherwise an empty database gets a setup link.
+const mode = startMode(env);
 let seeded = false;
-if (env.COILPATH_SEED === 'auto') seeded = (await seedDemo(database.db, { today: demoToday(clock.now()) })).seeded;
+if (mode === 'demo') seeded = (await seedDemo(database.db, { today: demoToday(clock.now()) })).seeded;
 
 const ctx: AppContext = {
   database,
@@ -45,6 +52,7 @@ const ctx: AppContext = {
   mailer,
   storage,
   clock,
+  jobs: createJobQueue(),
   secret: loadSecret(env.COILPATH_SECRET, dataDir),
   logger: createLogger({ level: env.LOG_LEVEL }),
   config: {
@@ -52,10 +60,14 @@ const ctx: AppContext = {
     secureCookies: (env.PUBLIC_URL ?? '').startsWith('https://'),
     publicUrl: env.PUBLIC_URL ?? `http://localhost:${env.PORT}`,
     signInLimit: 20,
+    demoMode: mode === 'demo',
     clockOverridden,
     webDist: fileURLToPath(new URL('../../web/dist', import.meta.url)),
   },
 };
+
+const setupLink = mode === 'production' ? await issueOwnerSetup(ctx) : null;
+const demoAccounts = mode === 'production' && !setupLink ? await database.db.select().from(appMeta).where(eq(appMeta.key, 'demo_seeded')).limit(1) : [];
 
 const app = createApp(ctx);
 const server = createServer(app);
@@ -66,7 +78,10 @@ server.listen(env.PORT, env.HOST, () => {
   console.log(`Stored files: ${filesWhere}`);
   if (clockOverridden) console.log(`Clock: COILPATH_NOW=${env.COILPATH_NOW} (now ${clock.now().toISOString()})`);
   if (seeded) console.log('Demo data loaded.');
-  console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example, tech@coilpath.example — password "${DEMO_PASSWORD}"`);
+  if (mode === 'demo') console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example, tech@coilpath.example — password "${DEMO_PASSWORD}"`);
+  if (setupLink) console.log(`No one has an account yet. The first owner sets their name, e-mail and password once at (valid 24 hours; a restart prints a new link):\n  ${setupLink}`);
+  if (demoAccounts.length) console.warn('Warning: this database holds the demo data, whose accounts share a published password. Deactivate them on the Team screen.');
+  warmPasswordRules();
   if (sink) console.log(`Mail goes to the local sink (smtp port ${sink.port}); read it at /outbox as the owner.`);
 });
 
@@ -80,6 +95,7 @@ async function shutdown(signal: string) {
   scheduler?.stop();
   server.close();
   server.closeAllConnections();
+  await ctx.jobs.idle();
   await sink?.close();
   await database.close();
   process.exit(0);

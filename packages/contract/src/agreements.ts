@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, isoDateSchema, limits } from './common';
+import { idSchema, isoDateSchema, limits, oneLine } from './common';
 import { workOrderStateSchema } from './vocabulary';
 
 /* ------------------------------------------------------------ recurrence */
@@ -93,7 +93,7 @@ export type AgreementStatus = z.infer<typeof agreementStatusSchema>;
 
 const agreementFields = {
   siteId: idSchema,
-  name: z.string().trim().min(1, 'Name the agreement').max(limits.name),
+  name: oneLine(limits.name, 'Name the agreement'),
   unitIds: z.array(idSchema).min(1, 'Pick at least one covered unit').max(200),
   recurrence: recurrenceSchema,
   seasonNotes: z.string().trim().max(limits.longText).optional(),

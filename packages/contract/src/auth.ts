@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { emailSchema, idSchema, limits } from './common';
+import { emailSchema, idSchema, limits, oneLine } from './common';
+import { linkTokenSchema, newPasswordSchema } from './team';
 import { roleSchema } from './vocabulary';
 
 export const signInSchema = z.strictObject({
@@ -31,3 +32,15 @@ export const publicConfigSchema = z.object({
   demoPassword: z.string().nullable(),
 });
 export type PublicConfig = z.infer<typeof publicConfigSchema>;
+
+/** `POST /api/setup`: the first owner of a new Coilpath, from the one-time link printed at the first start. */
+export const ownerSetupSchema = z
+  .object({
+    token: linkTokenSchema,
+    name: oneLine(limits.name, 'Enter your name'),
+    email: emailSchema,
+    password: newPasswordSchema,
+    confirm: z.string(),
+  })
+  .refine((v) => v.password === v.confirm, { message: 'The two passwords differ', path: ['confirm'] });
+export type OwnerSetup = z.input<typeof ownerSetupSchema>;

@@ -9,6 +9,26 @@ export const limits = {
   password: { min: 10, max: 200 },
 } as const;
 
+/** Control characters — C0 (NUL, TAB, LF, CR…), DEL and C1 — refused in one-line fields. */
+export const controlCharacter = /\p{Cc}/u;
+export const oneLineMessage = 'Use a single line: no line breaks, tabs or other control characters';
+
+/**
+ * A one-line text field (names, codes, phone numbers, addresses on one line): trimmed, at most `max`
+ * characters, and no control characters (CR and LF would split a mail header or a CSV row; NUL cannot be
+ * stored). `required` is the message for an empty value; without it the field may be empty.
+ */
+export function oneLine(max: number, required?: string) {
+  const s = z.string().trim();
+  return (required ? s.min(1, required) : s).max(max, `At most ${max} characters`).regex(/^\P{Cc}*$/u, oneLineMessage);
+}
+
+/** An optional one-line field: blank becomes `null`. */
+export const optionalOneLine = (max: number) =>
+  oneLine(max)
+    .nullish()
+    .transform((v) => (v ? v : null));
+
 export const idSchema = z.uuid({ message: 'Must be an id' });
 
 /** A calendar date `YYYY-MM-DD` that really exists (2026-02-30 is refused). */

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { base64FileSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneOfCsvOrFile, oneOfCsvOrFileMessage, pageQuerySchema } from './common';
+import { base64FileSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, oneOfCsvOrFile, oneOfCsvOrFileMessage, optionalOneLine, pageQuerySchema } from './common';
 import { applianceCategorySchema, unitKindSchema } from './vocabulary';
 
 /** Optional free text: blank input becomes `null`, so forms can send empty fields. */
@@ -11,8 +11,8 @@ const optionalText = (max: number = limits.shortText) =>
     .nullish()
     .transform((v) => (v ? v : null));
 
-const requiredText = (what: string, max: number = limits.shortText) =>
-  z.string().trim().min(1, `Enter ${what}`).max(max, `At most ${max} characters`);
+/** A required one-line field (names, addresses, make, model, serial). */
+const requiredText = (what: string, max: number = limits.shortText) => oneLine(max, `Enter ${what}`);
 
 const optionalEmail = z
   .string()
@@ -39,9 +39,9 @@ export const customerInputSchema = z.object({
   /** Required from the owner (who sees every branch); others always create in their own branch. */
   branchId: idSchema.nullish(),
   name: requiredText('the customer name', limits.name),
-  contactName: optionalText(limits.name),
+  contactName: optionalOneLine(limits.name),
   contactEmail: optionalEmail,
-  contactPhone: optionalText(40),
+  contactPhone: optionalOneLine(40),
   billingAddress: optionalText(),
   notes: optionalText(limits.longText),
 });
@@ -77,16 +77,16 @@ export const siteInputSchema = z.object({
   customerId: idSchema,
   name: requiredText('the site name', limits.name),
   address: requiredText('the street address'),
-  city: z.string().trim().max(limits.name).default(''),
-  region: z.string().trim().max(limits.name).default(''),
-  postalCode: z.string().trim().max(20).default(''),
+  city: oneLine(limits.name).default(''),
+  region: oneLine(limits.name).default(''),
+  postalCode: oneLine(20).default(''),
   lat: z.coerce.number({ message: 'Enter the latitude in degrees' }).pipe(latitudeSchema),
   lon: z.coerce.number({ message: 'Enter the longitude in degrees' }).pipe(longitudeSchema),
   accessNotes: optionalText(limits.longText),
   /** Who receives the service summaries. */
-  contactName: optionalText(limits.name),
+  contactName: optionalOneLine(limits.name),
   contactEmail: optionalEmail,
-  contactPhone: optionalText(40),
+  contactPhone: optionalOneLine(40),
 });
 export type SiteInput = z.input<typeof siteInputSchema>;
 export type SiteValues = z.output<typeof siteInputSchema>;

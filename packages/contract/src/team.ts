@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { emailSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, pageQuerySchema } from './common';
+import { emailSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, optionalOneLine, pageQuerySchema } from './common';
 import { epa608TypeSchema, roleSchema, workingHoursSchema, type Epa608Type, type Role, type WorkingHours } from './vocabulary';
 
 /** True for an IANA time-zone name this runtime knows (e.g. `America/Denver`). */
@@ -19,20 +19,15 @@ export const timeZoneSchema = z
   .min(1, 'Choose the time zone')
   .refine(isIanaTimeZone, 'Use an IANA time-zone name such as America/Denver');
 
-const optionalText = (max: number) =>
-  z
-    .string()
-    .trim()
-    .max(max, `At most ${max} characters`)
-    .nullish()
-    .transform((v) => (v ? v : null));
+/** Optional one-line text: blank becomes `null`. */
+const optionalText = optionalOneLine;
 
 // ---------------------------------------------------------------------------------------------
 // Branches
 // ---------------------------------------------------------------------------------------------
 
 export const branchInputSchema = z.object({
-  name: z.string().trim().min(1, 'Enter the branch name').max(limits.name),
+  name: oneLine(limits.name, 'Enter the branch name'),
   /** Short code shown in lists, e.g. DEN. */
   code: z
     .string()
@@ -42,7 +37,7 @@ export const branchInputSchema = z.object({
     .regex(/^[A-Za-z0-9]+$/, 'Letters and digits only')
     .transform((c) => c.toUpperCase()),
   timeZone: timeZoneSchema,
-  baseAddress: z.string().trim().max(limits.shortText).default(''),
+  baseAddress: oneLine(limits.shortText).default(''),
   baseLat: z.coerce.number({ message: 'Enter the latitude in degrees' }).pipe(latitudeSchema),
   baseLon: z.coerce.number({ message: 'Enter the longitude in degrees' }).pipe(longitudeSchema),
   /** Branch holidays (no planned work), `YYYY-MM-DD` in the branch's calendar. */
@@ -112,13 +107,13 @@ export const skillSuggestions = [
 /** A person's working profile, shared by the invitation and the edit form. */
 export const userProfileSchema = z
   .object({
-    name: z.string().trim().min(1, 'Enter the name').max(limits.name),
+    name: oneLine(limits.name, 'Enter the name'),
     role: roleSchema,
     /** Owners belong to no branch (they see all); everyone else needs one. */
     branchId: idSchema.nullish().transform((v) => v ?? null),
     phone: optionalText(40),
     skills: z
-      .array(z.string().trim().min(1).max(40))
+      .array(oneLine(40, 'Enter the skill'))
       .max(20)
       .default([])
       .transform((xs) => [...new Set(xs.map((x) => x.toLowerCase()))]),
@@ -201,7 +196,7 @@ export const linkCheckSchema = z.object({ token: linkTokenSchema });
 export const acceptInvitationSchema = z
   .object({
     token: linkTokenSchema,
-    name: z.string().trim().min(1, 'Enter your name').max(limits.name),
+    name: oneLine(limits.name, 'Enter your name'),
     password: newPasswordSchema,
     confirm: z.string(),
   })

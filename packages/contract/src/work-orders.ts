@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, instantSchema, isoDateSchema, limits } from './common';
+import { idSchema, instantSchema, isoDateSchema, limits, optionalOneLine } from './common';
 import { causeCodeSchema, prioritySchema, workOrderKindSchema, workOrderStateSchema, type WorkOrderState } from './vocabulary';
 
 /** The model alert an inspection work order checks for. */
@@ -9,15 +9,6 @@ export type ModelAlertRef = z.infer<typeof modelAlertRefSchema>;
 /** EPA 608 types a job's refrigerant work can require ('universal' = needs a Universal certificate). */
 export const requiredCertificationSchema = z.enum(['I', 'II', 'III', 'universal']);
 export type RequiredCertification = z.infer<typeof requiredCertificationSchema>;
-
-const optionalText = (max: number) =>
-  z
-    .string()
-    .trim()
-    .max(max)
-    .transform((s) => (s === '' ? null : s))
-    .nullable()
-    .optional();
 
 /** Kinds that repeat earlier work and must name the work order they come from. */
 export const kindsWithOrigin = ['return_visit', 'callback'] as const;
@@ -29,7 +20,7 @@ const workOrderFields = {
   requestedTo: instantSchema.nullable().optional(),
   slaDueAt: instantSchema.nullable().optional(),
   latestAt: instantSchema.nullable().optional(),
-  requiredSkill: optionalText(60),
+  requiredSkill: optionalOneLine(60),
   requiredCertification: requiredCertificationSchema.nullable().optional(),
   estimatedMinutes: z.coerce
     .number({ message: 'Enter the estimated minutes' })

@@ -1,5 +1,7 @@
 import { createHash, createHmac, randomBytes, timingSafeEqual } from 'node:crypto';
 
+export type LinkPurpose = 'invitation' | 'password-reset' | 'owner-setup';
+
 /** A single-use link token: the link carries the token, the database only its SHA-256. */
 export function newLinkToken(): { token: string; hash: string } {
   const token = randomBytes(32).toString('base64url');
@@ -14,12 +16,12 @@ export function hashLinkToken(token: string): string {
  * Signs a link token for one purpose (HMAC-SHA-256 with the app secret), so a tampered or
  * foreign link is refused before any database lookup. The link carries `<token>.<signature>`.
  */
-export function signLinkToken(secret: Uint8Array, purpose: 'invitation' | 'password-reset', token: string): string {
+export function signLinkToken(secret: Uint8Array, purpose: LinkPurpose, token: string): string {
   return `${token}.${linkSignature(secret, purpose, token)}`;
 }
 
 /** The token inside a signed link, or `null` when the signature does not match. */
-export function verifyLinkToken(secret: Uint8Array, purpose: 'invitation' | 'password-reset', signed: string): string | null {
+export function verifyLinkToken(secret: Uint8Array, purpose: LinkPurpose, signed: string): string | null {
   const dot = signed.lastIndexOf('.');
   if (dot <= 0) return null;
   const token = signed.slice(0, dot);

@@ -8,6 +8,7 @@ import { createGunzip, gzipSync } from 'node:zlib';
 import { eq } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, describe, expect, it } from 'vitest';
+import { createJobQueue } from '../jobs/queue';
 import { createApp } from '../app';
 import type { AppContext } from '../context';
 import { DataDirLocked, LOCK_FILE } from '../data-dir-lock';
@@ -34,6 +35,7 @@ function appOn(database: Database, dataDir: string) {
     mailer: memoryMailer(),
     storage: createDiskStorage(join(dataDir, 'files')),
     clock: systemClock,
+    jobs: createJobQueue(),
     secret: loadSecret(undefined, dataDir),
     config: { sessionHours: 12, secureCookies: false, publicUrl: 'http://coilpath.test', signInLimit: 1000 },
   };

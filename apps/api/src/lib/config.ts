@@ -12,7 +12,11 @@ const envSchema = z.object({
   MAIL_FROM: z.string().default('Coilpath <no-reply@coilpath.example>'),
   /** Public address used in e-mailed links. */
   PUBLIC_URL: z.string().optional(),
-  COILPATH_SEED: z.enum(['auto', 'never']).default('auto'),
+  /**
+   * Demo data on an empty database: `demo` always, `auto` only when `PUBLIC_URL` is unset or on this machine
+   * (`startMode`), `never` not at all. Without demo data, an empty database gets a one-time setup link.
+   */
+  COILPATH_SEED: z.enum(['auto', 'demo', 'never']).default('auto'),
   /** Cron-like minute interval at which scheduled jobs check whether they are due. */
   COILPATH_JOBS_INTERVAL_SECONDS: z.coerce.number().int().min(5).default(300),
   COILPATH_JOBS: z.enum(['on', 'off']).default('on'),
@@ -60,4 +64,27 @@ export function readEnv(source: NodeJS.ProcessEnv = process.env): Env {
     throw new Error(`Bad configuration:\n${lines.join('\n')}`);
   }
   return parsed.data;
+}
+
+/** True for an address on this machine: localhost (and `*.localhost`), 127.0.0.0/8, ::1. */
+export function isLocalUrl(url: string): boolean {
+  let host: string;
+  try {
+    host = new URL(url).hostname.toLowerCase();
+  } catch {
+    return false;
+  }
+  return host === 'localhost' || host.endsWith('.localhost') || /^127(\.\d{1,3}){3}$/.test(host) || host === '[::1]';
+}
+
+/**
+ * How a start treats an empty database: `demo` loads the invented demo contractor (and `/api/config` may show
+ * its password); `production` never does — the first owner is set up through a one-time link instead. Demo
+ * only when asked (`COILPATH_SEED=demo`), or by default (`auto`) when the server is not published
+ * (`PUBLIC_URL` unset or on this machine, as for `npm start`).
+ */
+export function startMode(env: Pick<Env, 'COILPATH_SEED' | 'PUBLIC_URL'>): 'demo' | 'production' {
+  if (env.COILPATH_SEED === 'demo') return 'demo';
+  if (env.COILPATH_SEED === 'never') return 'production';
+  return !env.PUBLIC_URL || isLocalUrl(env.PUBLIC_URL) ? 'demo' : 'production';
 }

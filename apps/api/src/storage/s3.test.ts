@@ -3,6 +3,7 @@
  * the same interface as the disk — generated keys, the same bytes back, a missing object is
  * `StoredFileMissing` and so 410 `file_missing` through the routes.
  */
+import { createJobQueue } from '../jobs/queue';
 import { spawnSync } from 'node:child_process';
 import { createHash, randomBytes } from 'node:crypto';
 import { existsSync, mkdtempSync, rmSync } from 'node:fs';
@@ -163,6 +164,7 @@ describe.runIf(!process.env.DATABASE_URL)('backups of an S3 deployment', { timeo
       mailer: memoryMailer(),
       storage: createS3Storage(settings),
       clock: systemClock,
+      jobs: createJobQueue(),
       secret: loadSecret(undefined, dataDir),
       config: { sessionHours: 12, secureCookies: false, publicUrl: 'http://coilpath.test', signInLimit: 1000 },
     };

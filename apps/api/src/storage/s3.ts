@@ -50,7 +50,7 @@ export function createS3Storage(settings: S3Settings): Storage & { client: S3Cli
       } catch (e) {
         const status = (e as S3ServiceException).$metadata?.httpStatusCode;
         const why = status === 404 ? 'it does not exist' : status === 403 ? 'access was refused (check S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY)' : (e as Error).message;
-        throw new Error(`The S3 bucket ${Bucket}${settings.endpoint ? ` at ${settings.endpoint}` : ''} cannot be used: ${why}.`);
+        throw new Error(`The S3 bucket ${Bucket}${settings.endpoint ? ` at ${settings.endpoint}` : ''} cannot be used: ${why}.`, { cause: e });
       }
     },
     async put(content, meta) {

@@ -7,6 +7,7 @@ import { createApp } from '../app';
 import type { AppContext } from '../context';
 import { openDatabase, type Database } from '../db/client';
 import { fixedClock, type Clock } from '../lib/clock';
+import { createJobQueue } from '../jobs/queue';
 import type { Mailer, MailMessage } from '../mail/mailer';
 import { createMemoryStorage, type Storage } from '../storage/storage';
 import type { Logger } from '../lib/logger';
@@ -83,7 +84,14 @@ export interface TestApp {
 export const DEFAULT_TEST_NOW = '2026-06-03T18:00:00Z';
 
 export async function createTestApp(
-  opts: { clock?: Clock; now?: string; mailer?: Mailer; signInLimit?: number; /** Where to log (none: silent). */ logger?: Logger } = {},
+  opts: {
+    clock?: Clock;
+    now?: string;
+    mailer?: Mailer;
+    signInLimit?: number;
+    signInLimits?: AppContext['config']['signInLimits'];
+    /** Where to log (none: silent). */ logger?: Logger;
+  } = {},
 ): Promise<TestApp> {
   const database = await openTestDatabase();
   const mailer = memoryMailer();
@@ -94,6 +102,7 @@ export async function createTestApp(
     mailer: opts.mailer ?? mailer,
     storage,
     clock: opts.clock ?? fixedClock(opts.now ?? DEFAULT_TEST_NOW),
+    jobs: createJobQueue(),
     secret: new TextEncoder().encode('coilpath-test-secret-coilpath-test-secret'),
     ...(opts.logger ? { logger: opts.logger } : {}),
     config: {
@@ -101,6 +110,7 @@ export async function createTestApp(
       secureCookies: false,
       publicUrl: 'http://coilpath.test',
       signInLimit: opts.signInLimit ?? 1000,
+      signInLimits: opts.signInLimits ?? { perAccount: 1000, perAddress: 1000 },
     },
   };
   return { app: createApp(ctx), ctx, database, mailer, storage, close: () => database.close() };

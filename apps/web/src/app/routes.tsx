@@ -20,6 +20,7 @@ const OutboxPage = lazy(() => import('@/features/outbox/outbox-page'));
 const ForgotPasswordPage = lazy(() => import('@/features/auth/forgot-password-page'));
 const ResetPasswordPage = lazy(() => import('@/features/auth/reset-password-page'));
 const AcceptInvitationPage = lazy(() => import('@/features/team/accept-invitation-page'));
+const OwnerSetupPage = lazy(() => import('@/features/auth/owner-setup-page'));
 
 const all = ['owner', 'branch_manager', 'dispatcher', 'technician'] as const;
 
@@ -45,4 +46,5 @@ export const publicRoutes: RouteObject[] = [
   { path: '/forgot-password', element: <ForgotPasswordPage /> },
   { path: '/reset-password', element: <ResetPasswordPage /> },
   { path: '/accept-invitation', element: <AcceptInvitationPage /> },
+  { path: '/setup', element: <OwnerSetupPage /> },
 ];

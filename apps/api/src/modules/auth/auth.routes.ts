@@ -1,10 +1,12 @@
 import { Router, type Response } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
-import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
+import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, ownerSetupSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { SESSION_COOKIE } from '../../auth/session';
-import { unauthorized } from '../../lib/errors';
+import { HttpError, unauthorized } from '../../lib/errors';
+import { createSignInGuard, signInLimitsFrom, signInRefusalMessage } from '../../auth/sign-in-limits';
 import { signIn, signOut, signOutEverywhere } from './auth.service';
+import { checkOwnerSetup, completeOwnerSetup } from './owner-setup.service';
 import { checkPasswordReset, requestPasswordReset, resetPassword } from './password-reset.service';
 
 export function setSessionCookie(ctx: AppContext, res: Response, token: string) {
@@ -19,24 +21,25 @@ export function setSessionCookie(ctx: AppContext, res: Response, token: string) 
 
 export function authRoutes(ctx: AppContext): Router {
   const r = Router();
-  const limiter = rateLimit({
-    windowMs: 15 * 60 * 1000,
-    limit: ctx.config.signInLimit,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String((req.body as { email?: unknown })?.email ?? '').toLowerCase()}`,
-    handler: (_req, res) => {
-      res.status(429).json({
-        error: { code: 'too_many_attempts', message: 'Too many sign-in attempts. Wait 15 minutes and try again.' },
-      });
-    },
-  });
-
-  r.post('/sign-in', limiter, async (req, res) => {
+  // Failed sign-ins per address and account, per account and per address (sign-in-limits.ts).
+  const guard = createSignInGuard(ctx.clock, signInLimitsFrom(ctx.config.signInLimit, ctx.config.signInLimits));
+  r.post('/sign-in', async (req, res) => {
     const input = signInSchema.parse(req.body ?? {});
-    const { user, token } = await signIn(ctx, input);
-    setSessionCookie(ctx, res, token);
-    res.json({ user });
+    const address = ipKeyGenerator(req.ip ?? '');
+    const refusal = guard.check(address, input.email);
+    if (refusal) {
+      res.setHeader('Retry-After', String(refusal.retryAfterSeconds));
+      throw new HttpError(429, 'too_many_attempts', signInRefusalMessage(refusal), { retryAfterSeconds: refusal.retryAfterSeconds, scope: refusal.scope });
+    }
+    try {
+      const { user, token } = await signIn(ctx, input);
+      guard.succeeded(address, input.email);
+      setSessionCookie(ctx, res, token);
+      res.json({ user });
+    } catch (e) {
+      if (e instanceof HttpError && e.status === 401) guard.failed(address, input.email);
+      throw e;
+    }
   });
 
   // Password reset: public and rate limited; the answer never says whether the address exists.
@@ -52,8 +55,9 @@ export function authRoutes(ctx: AppContext): Router {
   });
   r.post('/forgot-password', resetLimiter, async (req, res) => {
     const { email } = forgotPasswordSchema.parse(req.body ?? {});
-    await requestPasswordReset(ctx, email);
+    // Answered first; the lookup and the e-mail are a job (the answer must not tell who has an account).
     res.status(202).json({ message: forgotPasswordAnswer });
+    requestPasswordReset(ctx, email);
   });
   r.post('/reset-password/check', resetLimiter, async (req, res) => {
     const { token } = linkCheckSchema.parse(req.body ?? {});
@@ -83,6 +87,35 @@ export function authRoutes(ctx: AppContext): Router {
   r.get('/me', (req, res) => {
     if (!req.user) throw unauthorized();
     res.json({ user: req.user });
+  });
+  return r;
+}
+
+/**
+ * `/api/setup` — the first owner of a Coilpath started without demo data, from the one-time link the server
+ * printed (public: the signed token is the credential; rate limited per address).
+ */
+export function setupRoutes(ctx: AppContext): Router {
+  const r = Router();
+  const limiter = rateLimit({
+    windowMs: 15 * 60 * 1000,
+    limit: Math.max(ctx.config.signInLimit, 10),
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|setup`,
+    handler: (_req, res) => {
+      res.status(429).json({ error: { code: 'too_many_attempts', message: 'Too many attempts. Wait 15 minutes and try again.' } });
+    },
+  });
+  r.post('/check', limiter, async (req, res) => {
+    const { token } = linkCheckSchema.parse(req.body ?? {});
+    res.json(await checkOwnerSetup(ctx, token));
+  });
+  r.post('/', limiter, async (req, res) => {
+    const input = ownerSetupSchema.parse(req.body ?? {});
+    const { user, token } = await completeOwnerSetup(ctx, input);
+    setSessionCookie(ctx, res, token);
+    res.status(201).json({ user });
   });
   return r;
 }

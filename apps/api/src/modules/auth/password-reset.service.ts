@@ -1,37 +1,75 @@
-import { and, eq, isNull, sql } from 'drizzle-orm';
+import { and, count, eq, gt, isNull, sql } from 'drizzle-orm';
 import type { SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { branches, passwordResets, users } from '../../db/schema';
+import { auditEvents, branches, passwordResets, users } from '../../db/schema';
 import { composeMail, mail, mailTime } from '../../mail/compose';
 import { hashPassword } from '../../auth/password';
+import { assertPasswordAllowed } from '../../auth/password-rules';
 import { signSession } from '../../auth/session';
 import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
 import { linkErrors } from '../team/team.service';
 
 export const RESET_MINUTES = 60;
 
+/** Reset e-mails sent to one account within an hour at most; further requests are dropped (and audited). */
+export const RESET_MAILS_PER_HOUR = 3;
+
 /**
- * Sends a single-use reset link when the address belongs to an active account. The caller answers
- * the same either way, so the answer does not reveal who has an account.
+ * Asks for a reset link. Answers at once: the lookup, the link and the e-mail are a job done after the answer
+ * (`ctx.jobs`), so the answer and its time are the same whether or not the address has an account.
  */
-export async function requestPasswordReset(ctx: AppContext, email: string): Promise<void> {
+export function requestPasswordReset(ctx: AppContext, email: string): void {
+  ctx.jobs.enqueue('password-reset', async () => {
+    await sendPasswordReset(ctx, email);
+  });
+}
+
+/**
+ * Sends a single-use reset link when the address belongs to an active account, at most
+ * `RESET_MAILS_PER_HOUR` an hour per account (reckoned by `ctx.clock` from the links made): a request past
+ * that sends nothing, and is logged and recorded as `password_reset.throttled` in the audit events.
+ */
+export async function sendPasswordReset(ctx: AppContext, email: string): Promise<'sent' | 'throttled' | 'no_account'> {
   const [u] = await ctx.db
     .select({ id: users.id, name: users.name, active: users.active, timeZone: branches.timeZone })
     .from(users)
     .leftJoin(branches, eq(branches.id, users.branchId))
     .where(eq(users.email, email))
     .limit(1);
-  if (!u || !u.active) return;
+  if (!u || !u.active) return 'no_account';
   const now = ctx.clock.now();
+  const hourAgo = new Date(now.getTime() - 60 * 60_000);
   const { token, hash } = newLinkToken();
   const expiresAt = new Date(now.getTime() + RESET_MINUTES * 60_000);
-  await ctx.db.transaction(async (tx) => {
+  const made = await ctx.db.transaction(async (tx) => {
+    // The user's row is locked so two processes count and add the links one after the other.
+    await tx.select({ id: users.id }).from(users).where(eq(users.id, u.id)).for('update');
+    const [recent] = await tx
+      .select({ n: count() })
+      .from(passwordResets)
+      .where(and(eq(passwordResets.userId, u.id), gt(passwordResets.createdAt, hourAgo)));
+    const sentInLastHour = recent?.n ?? 0;
+    if (sentInLastHour >= RESET_MAILS_PER_HOUR) {
+      await tx.insert(auditEvents).values({
+        actorId: null,
+        action: 'password_reset.throttled',
+        entity: 'user',
+        entityId: u.id,
+        details: { sentInLastHour, limit: RESET_MAILS_PER_HOUR },
+        at: now,
+      });
+      return false;
+    }
     // Only the newest link works.
     await tx.update(passwordResets).set({ usedAt: now }).where(and(eq(passwordResets.userId, u.id), isNull(passwordResets.usedAt)));
     await tx.insert(passwordResets).values({ userId: u.id, tokenHash: hash, expiresAt, createdAt: now });
+    return true;
   });
+  if (!made) {
+    console.warn(`[coilpath] password reset for user ${u.id} not sent: ${RESET_MAILS_PER_HOUR} links already sent within the hour`);
+    return 'throttled';
+  }
   const link = `${ctx.config.publicUrl.replace(/\/$/, '')}/reset-password?token=${encodeURIComponent(signLinkToken(ctx.secret, 'password-reset', token))}`;
-  // A mail failure must not change the answer (that would tell who has an account): log it.
   const message = composeMail('Choose a new Coilpath password', [
     mail.p(`Hello ${u.name},`),
     mail.p('Someone (we hope you) asked to choose a new password for this Coilpath account.'),
@@ -41,9 +79,9 @@ export async function requestPasswordReset(ctx: AppContext, email: string): Prom
     ),
     mail.p('If you did not ask for this, ignore this message: your password stays as it is.', true),
   ]);
-  await ctx.mailer
-    .send({ to: email, ...message })
-    .catch((e: unknown) => console.error('[coilpath] password-reset mail failed', e));
+  // The answer went out long ago; a failure is logged for the operator.
+  await ctx.mailer.send({ to: email, ...message }).catch((e: unknown) => console.error('[coilpath] password-reset mail failed', e));
+  return 'sent';
 }
 
 const RESET = 'password reset';
@@ -53,7 +91,7 @@ async function openReset(ctx: AppContext, signed: string) {
   const token = verifyLinkToken(ctx.secret, 'password-reset', signed);
   if (!token) throw linkErrors.invalid(RESET);
   const [r] = await ctx.db
-    .select({ id: passwordResets.id, userId: passwordResets.userId, usedAt: passwordResets.usedAt, expiresAt: passwordResets.expiresAt, email: users.email, active: users.active })
+    .select({ id: passwordResets.id, userId: passwordResets.userId, usedAt: passwordResets.usedAt, expiresAt: passwordResets.expiresAt, email: users.email, name: users.name, active: users.active })
     .from(passwordResets)
     .innerJoin(users, eq(users.id, passwordResets.userId))
     .where(eq(passwordResets.tokenHash, hashLinkToken(token)))
@@ -75,6 +113,7 @@ export async function checkPasswordReset(ctx: AppContext, signed: string): Promi
  */
 export async function resetPassword(ctx: AppContext, signed: string, password: string): Promise<{ user: SessionUser; token: string }> {
   const r = await openReset(ctx, signed);
+  await assertPasswordAllowed(password, { email: r.email, name: r.name });
   const passwordHash = await hashPassword(password);
   const now = ctx.clock.now();
   const u = await ctx.db.transaction(async (tx) => {

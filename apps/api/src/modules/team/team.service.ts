@@ -16,6 +16,7 @@ import type { Tx } from '../../db/client';
 import { branches, invitations, users } from '../../db/schema';
 import { assertBranch } from '../../auth/middleware';
 import { hashPassword } from '../../auth/password';
+import { assertPasswordAllowed } from '../../auth/password-rules';
 import { signSession } from '../../auth/session';
 import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
 import { conflict, forbidden, HttpError, notFound } from '../../lib/errors';
@@ -308,6 +309,8 @@ export async function previewInvitation(ctx: AppContext, signed: string): Promis
 
 /** Creates the account from the invitation (single use, even when two tabs race) and signs in. */
 export async function acceptInvitation(ctx: AppContext, input: { token: string; name: string; password: string }) {
+  const invited = await openInvitation(ctx, ctx.db, input.token);
+  await assertPasswordAllowed(input.password, { email: invited.email, name: input.name });
   const passwordHash = await hashPassword(input.password);
   const created = await ctx.db.transaction(async (tx) => {
     const inv = await openInvitation(ctx, tx, input.token);

@@ -196,6 +196,15 @@ describe('invitations', () => {
     expect(preview.body.invitation).toMatchObject({ email: 'robin.field@test.example', branchName: 'Boulder', role: 'technician' });
 
     const agent = request.agent(t.app);
+    // The password rule (auth/password-rules.ts): not one containing the name, not a common one.
+    const withName = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'robin-field-2026', confirm: 'robin-field-2026' });
+    expect(withName.status).toBe(400);
+    expect(withName.body.error.code).toBe('weak_password');
+    expect(withName.body.error.message).toContain('"robin');
+    expect(withName.body.error.details.fields[0].path).toBe('password');
+    const common = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'password123', confirm: 'password123' });
+    expect(common.body.error.code).toBe('weak_password');
+    expect(common.body.error.message).toContain('commonly used password');
     const accepted = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'a-long-password-1', confirm: 'a-long-password-1' });
     expect(accepted.status).toBe(201);
     expect(accepted.body.user).toMatchObject({ email: 'robin.field@test.example', role: 'technician', branchId: den.body.id });
@@ -262,7 +271,9 @@ describe('password reset', () => {
   it('answers the same whether or not the address exists, and mails only real accounts', async () => {
     const before = t.mailer.sent.length;
     const known = await request(t.app).post('/api/auth/forgot-password').send({ email: f.inB.manager.email });
+    await t.ctx.jobs.idle();
     const unknown = await request(t.app).post('/api/auth/forgot-password').send({ email: 'nobody@test.example' });
+    await t.ctx.jobs.idle();
     expect(known.status).toBe(202);
     expect(unknown.status).toBe(202);
     expect(unknown.body).toEqual(known.body);
@@ -275,6 +286,7 @@ describe('password reset', () => {
     const person = await makeUser(t.ctx.db, 'branch_manager', f.b.id);
     const otherDevice = await signedInAgent(t.app, person.email, TEST_PASSWORD);
     await request(t.app).post('/api/auth/forgot-password').send({ email: person.email });
+    await t.ctx.jobs.idle();
     const token = tokenOf(linkIn(person.email));
 
     const check = await request(t.app).post('/api/auth/reset-password/check').send({ token });
@@ -283,6 +295,13 @@ describe('password reset', () => {
     const mismatch = await request(t.app).post('/api/auth/reset-password').send({ token, password: 'new-password-123', confirm: 'different-456' });
     expect(mismatch.status).toBe(400);
 
+    // Common passwords are refused, with the reason, and the link stays usable.
+    for (const weak of ['password123', 'qwerty2024']) {
+      const refused = await request(t.app).post('/api/auth/reset-password').send({ token, password: weak, confirm: weak });
+      expect(refused.status, weak).toBe(400);
+      expect(refused.body.error.code).toBe('weak_password');
+      expect(refused.body.error.message).toMatch(/too easy to guess\. This is (similar to )?a commonly used password\./);
+    }
     const browser = request.agent(t.app);
     const res = await browser.post('/api/auth/reset-password').send({ token, password: 'new-password-123', confirm: 'new-password-123' });
     expect(res.status).toBe(200);
@@ -300,8 +319,10 @@ describe('password reset', () => {
   it('refuses an expired or tampered reset link, and an older link once a newer one was sent', async () => {
     const person = await makeUser(t.ctx.db, 'dispatcher', f.a.id);
     await request(t.app).post('/api/auth/forgot-password').send({ email: person.email });
+    await t.ctx.jobs.idle();
     const first = tokenOf(linkIn(person.email));
     await request(t.app).post('/api/auth/forgot-password').send({ email: person.email });
+    await t.ctx.jobs.idle();
     const second = tokenOf(linkIn(person.email));
     expect((await request(t.app).post('/api/auth/reset-password/check').send({ token: first })).body.error.code).toBe('link_used');
 

@@ -100,6 +100,16 @@ describe('GET /api/attachments/:id', () => {
     expect((await tech2.get(url)).status).toBe(404);
     expect((await tech.get('/api/attachments/00000000-0000-4000-8000-000000000000')).status).toBe(404);
   });
+
+  it('shows a photo inline but sends a PDF as a download (attachment), never as a page of the site', async () => {
+    const photo = await tech.post(`/api/visits/${visitId}/attachments`).attach('file', tinyPng, 'a.png');
+    expect((await manager.get(photo.body.attachment.url)).headers['content-disposition']).toMatch(/^inline; /);
+    const pdf = await tech.post(`/api/visits/${visitId}/attachments`).field('kind', 'document').attach('file', tinyPdf, 'report.pdf');
+    expect(pdf.status).toBe(201);
+    const res = await manager.get(pdf.body.attachment.url);
+    expect(res.headers['content-type']).toBe('application/pdf');
+    expect(res.headers['content-disposition']).toBe('attachment; filename="report.pdf"');
+  });
 });
 
 describe('cleanDisplayName', () => {

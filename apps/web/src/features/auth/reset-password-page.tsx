@@ -4,7 +4,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { Link, useNavigate, useSearchParams } from 'react-router-dom';
 import { resetPasswordSchema, type ResetPassword, type SessionUser } from '@coilpath/contract';
-import { api, errorMessage } from '@/lib/api-client';
+import { api, ApiError, errorMessage } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { LoadingState } from '@/components/ui/states';
@@ -32,7 +32,10 @@ export default function ResetPasswordPage() {
       qc.setQueryData(['session'], user);
       navigate(homeFor(user.role), { replace: true });
     } catch (e) {
-      setError(errorMessage(e));
+      // The server's password rule (a common or guessable password) answers on the field itself.
+      const onPassword = e instanceof ApiError ? e.fieldErrors.password : undefined;
+      if (onPassword) form.setError('password', { message: onPassword });
+      else setError(errorMessage(e));
     }
   });
 
@@ -55,7 +58,7 @@ export default function ResetPasswordPage() {
           For <strong className="text-ink">{check.data.email}</strong>. Choosing a new password signs you out on every other device.
         </p>
         <input type="hidden" autoComplete="username" value={check.data.email} readOnly />
-        <TextField label="New password" type="password" autoComplete="new-password" hint="At least 10 characters." {...form.register('password')} error={form.formState.errors.password?.message} />
+        <TextField label="New password" type="password" autoComplete="new-password" hint="At least 10 characters; not a common password, nor one with your name in it." {...form.register('password')} error={form.formState.errors.password?.message} />
         <TextField label="New password again" type="password" autoComplete="new-password" {...form.register('confirm')} error={form.formState.errors.confirm?.message} />
         {error && <Alert tone="alarm">{error}</Alert>}
         <Button type="submit" size="lg" busy={form.formState.isSubmitting}>
