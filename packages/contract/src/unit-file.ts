@@ -61,6 +61,7 @@ export const unitFileReadingSchema = z.object({
   superheat: n,
   subcooling: n,
   /** The units of the values above (the unit branch's system; see ReadingDto). */
+  elevationMeters: z.number(),
   units: z.object({ pressure: pressureUnitSchema, temperature: temperatureUnitSchema }),
 });
 export type UnitFileReading = z.infer<typeof unitFileReadingSchema>;

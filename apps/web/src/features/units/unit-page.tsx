@@ -8,6 +8,7 @@ import {
   causeOriginLabels,
   measureSymbol,
   readingUnitsBySystem,
+  readingsElevationNote,
   unitKindLabels,
   visitOutcomeLabels,
   workOrderKindLabels,
@@ -250,6 +251,7 @@ function UnitFileView({ id }: { id: string }) {
               values in {measureSymbol('pressure', units)}; temperatures in {measureSymbol('temperature', units)}
               {units.temperature === 'C' ? ', superheat and subcooling in K' : ''} ({f.branch.name}’s unit setting). Refrigerant work needs the
               proper EPA 608 certification.
+              {readingsElevationNote(f.readings, f.branch.unitSystem) && <> {readingsElevationNote(f.readings, f.branch.unitSystem)}</>}
             </SafetyNote>
           </div>
           {circuitsWithReadings.length === 0 ? (
