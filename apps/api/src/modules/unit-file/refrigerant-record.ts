@@ -41,7 +41,7 @@ import {
   type RefrigerantRecordObligation,
   type SessionUser,
 } from '@coilpath/contract';
-import type { Db } from '../../db/client';
+import type { Db, Tx } from '../../db/client';
 import { branches, circuits, customers, leakCases, refrigerantEvents, sites, units, users, verificationTests } from '../../db/schema';
 import { readableUnit } from './unit-file.service';
 
@@ -218,7 +218,7 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
 }
 
 /** Loads what the ledger is built from for one unit (no access check). */
-export async function loadLedgerSource(db: Db, unit: LedgerSourceRows['unit'] & { id: string }): Promise<LedgerSourceRows> {
+export async function loadLedgerSource(db: Db | Tx, unit: LedgerSourceRows['unit'] & { id: string }): Promise<LedgerSourceRows> {
   const person = (r: { name: string | null; epa608Type: string | null; epa608Number: string | null }): Person =>
     r.name === null ? null : { name: r.name, epa608Type: r.epa608Type ?? 'none', epa608Number: r.epa608Number };
   const [eventRows, caseRows] = await Promise.all([
