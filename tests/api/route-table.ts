@@ -35,6 +35,7 @@ import {
   unitInputSchema,
   unitsQuerySchema,
   unitUpdateSchema,
+  refrigerantRecordQuerySchema,
   userProfileSchema,
   usersQuerySchema,
   dayQuerySchema,
@@ -952,6 +953,13 @@ export const routeTable: RouteRow[] = [
     path: '/api/units/:id/file',
     expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
     request: (_f, side) => ({ path: `/api/units/${side.unit.id}/file` }),
+  },
+  {
+    method: 'GET',
+    path: '/api/units/:id/refrigerant-record',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    query: refrigerantRecordQuerySchema,
+    request: (_f, side) => ({ path: `/api/units/${side.unit.id}/refrigerant-record` }),
   },
   {
     method: 'GET',

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatMeasure, readingUnitsBySystem, readingUnitsSchema, unitSystemOf } from './measure';
+import { elevationMetersSchema, elevationNote, feetToMetres, formatElevation, formatMeasure, metresToFeet, readingsElevationNote, readingUnitsBySystem, readingUnitsSchema, unitSystemOf } from './measure';
 import { saveReadingsSchema } from './visits';
 
 const circuitId = '00000000-0000-4000-8000-000000000001';
@@ -66,5 +66,26 @@ describe('saveReadingsSchema', () => {
       { path: 'units.temperature', message: 'Pressure and temperature units must come from one system: psig with F, or kPag with C' },
     ]);
     expect(issues({ units: si, readings: [{ circuitId }, { circuitId }] }).map((i) => i.message)).toEqual(['Each circuit may appear once']);
+  });
+});
+
+describe('elevation', () => {
+  it('converts with the international foot: 5,280 ft (a statute mile) is 1,609.344 m exactly (1959 agreement: 1 ft = 0.3048 m)', () => {
+    expect(feetToMetres(5280)).toBeCloseTo(1609.344, 9);
+    expect(metresToFeet(1609.344)).toBeCloseTo(5280, 9);
+  });
+  it('shows feet for an imperial branch and metres for an SI one, and says nothing at sea level', () => {
+    expect(formatElevation(1609, 'si')).toBe('1,609 m');
+    expect(formatElevation(1609.344, 'imperial')).toBe('5,280 ft (1,609 m)');
+    expect(elevationNote(1609, 'si')).toBe('Gauge readings corrected for 1,609 m (standard atmosphere, ISO 2533).');
+    expect(elevationNote(0, 'imperial')).toBeNull();
+    expect(readingsElevationNote([{ elevationMeters: 0 }, { elevationMeters: 1609 }], 'si')).toContain('corrected for 1,609 m');
+    expect(readingsElevationNote([{ elevationMeters: 0 }], 'si')).toBeNull();
+  });
+  it('takes −500 m to 5,000 m and refuses beyond', () => {
+    expect(elevationMetersSchema.parse('1609')).toBe(1609);
+    expect(elevationMetersSchema.safeParse(5001).success).toBe(false);
+    expect(elevationMetersSchema.safeParse(-501).success).toBe(false);
+    expect(elevationMetersSchema.safeParse('high').success).toBe(false);
   });
 });

@@ -81,3 +81,41 @@ export const readingLimits: Record<UnitSystem, { pressure: { min: number; max: n
   imperial: { pressure: { min: -14.7, max: 1000 }, temperature: { min: -100, max: 400 } },
   si: { pressure: { min: -101.4, max: 6900 }, temperature: { min: -74, max: 205 } },
 };
+
+/* ------------------------------------------------------------------ elevation */
+
+/** Metres in one foot: the international foot, exactly 0.3048 m (1959 international yard and pound agreement). */
+export const METRES_PER_FOOT = 0.3048;
+export const feetToMetres = (ft: number) => ft * METRES_PER_FOOT;
+export const metresToFeet = (m: number) => m / METRES_PER_FOOT;
+
+/** A branch's elevation, metres: from the shore of the Dead Sea (about −430 m) to 5,000 m, inside the standard atmosphere's range. */
+export const ELEVATION_LIMITS_M = { min: -500, max: 5000 } as const;
+export const elevationMetersSchema = z.coerce
+  .number({ message: 'Enter the elevation' })
+  .min(ELEVATION_LIMITS_M.min, 'At least −500 m (−1,640 ft)')
+  .max(ELEVATION_LIMITS_M.max, 'At most 5,000 m (16,404 ft)');
+
+const grouped = (n: number) => Math.round(n).toLocaleString('en-US').replace('-', '−');
+
+/** "1,609 m" for an SI branch; "5,280 ft (1,609 m)" for an imperial one. */
+export function formatElevation(metres: number, system: UnitSystem): string {
+  return system === 'imperial' ? `${grouped(metresToFeet(metres))} ft (${grouped(metres)} m)` : `${grouped(metres)} m`;
+}
+
+/**
+ * What a screen says about readings computed at an elevation — "Gauge readings corrected for 1,609 m" —
+ * or null at sea level (0 m), where nothing is corrected.
+ */
+export function elevationNote(metres: number | null | undefined, system: UnitSystem): string | null {
+  if (metres === null || metres === undefined || metres === 0) return null;
+  return `Gauge readings corrected for ${formatElevation(metres, system)} (standard atmosphere, ISO 2533).`;
+}
+
+/** The note for a set of saved readings, each computed at its own stored elevation (null when all were at 0 m). */
+export function readingsElevationNote(readings: readonly { elevationMeters: number }[], system: UnitSystem): string | null {
+  const at = [...new Set(readings.map((r) => r.elevationMeters).filter((m) => m !== 0))].sort((a, b) => a - b);
+  if (at.length === 0) return null;
+  if (at.length === 1) return elevationNote(at[0], system);
+  return `Gauge readings corrected for the elevation each was taken at: ${at.map((m) => formatElevation(m, system)).join(', ')} (standard atmosphere, ISO 2533).`;
+}

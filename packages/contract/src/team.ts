@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { emailSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, optionalOneLine, pageQuerySchema } from './common';
+import { elevationMetersSchema } from './measure';
 import { epa608TypeSchema, roleSchema, workingHoursSchema, type Epa608Type, type Role, type WorkingHours } from './vocabulary';
 
 /** True for an IANA time-zone name this runtime knows (e.g. `America/Denver`). */
@@ -50,6 +51,8 @@ export const branchInputSchema = z.object({
   labourRate: z.coerce.number({ message: 'Enter the hourly rate' }).min(0).max(100_000),
   currency: z.string().regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD').default('USD'),
   unitSystem: z.enum(['imperial', 'si']).default('imperial'),
+  /** Elevation of the branch's area, metres above sea level (gauges read against the air there). */
+  elevationMeters: elevationMetersSchema.default(0),
   /** Sensor check: largest acceptable difference between controller and reference gauge. */
   sensorTolerancePercent: z.coerce.number().min(0, 'Cannot be negative').max(50, 'At most 50 %'),
   sensorToleranceAbsolute: z.coerce.number().min(0, 'Cannot be negative').max(100, 'At most 100 psi'),
@@ -78,6 +81,7 @@ export interface BranchDetail {
   labourRate: number;
   currency: string;
   unitSystem: 'imperial' | 'si';
+  elevationMeters: number;
   sensorTolerancePercent: number;
   sensorToleranceAbsolute: number;
   repeatAlarmCount: number;

@@ -2,14 +2,17 @@ import { z } from 'zod';
 import { idSchema, limits } from './common';
 import { pressureUnitSchema, temperatureUnitSchema, unitSystemSchema } from './measure';
 import {
+  additionExemptionSchema,
   alarmSourceSchema,
   applianceCategorySchema,
   attachmentKindSchema,
   causeCodeSchema,
   causeOriginSchema,
   leakCaseStatusSchema,
+  leakObligationStateSchema,
   prioritySchema,
   refrigerantEventReasonSchema,
+  refrigerantRecordEventKindSchema,
   unitKindSchema,
   visitOutcomeSchema,
   workOrderKindSchema,
@@ -58,6 +61,7 @@ export const unitFileReadingSchema = z.object({
   superheat: n,
   subcooling: n,
   /** The units of the values above (the unit branch's system; see ReadingDto). */
+  elevationMeters: z.number(),
   units: z.object({ pressure: pressureUnitSchema, temperature: temperatureUnitSchema }),
 });
 export type UnitFileReading = z.infer<typeof unitFileReadingSchema>;
@@ -229,3 +233,117 @@ export const unitSearchResultSchema = z.object({
   more: z.boolean(),
 });
 export type UnitSearchResult = z.infer<typeof unitSearchResultSchema>;
+
+/* ------------------------------------------------------------ refrigerant record */
+
+/** `GET /api/units/:id/refrigerant-record`: JSON (default), or the auditor's copy as CSV or PDF. */
+export const refrigerantRecordQuerySchema = z.strictObject({
+  format: z.enum(['json', 'csv', 'pdf']).default('json'),
+});
+export type RefrigerantRecordQuery = z.infer<typeof refrigerantRecordQuerySchema>;
+
+const person = z.object({
+  name: z.string(),
+  /** EPA 608 certification type and number as recorded on the person (null when none is recorded). */
+  epa608Type: z.string(),
+  epa608Number: z.string().nullable(),
+});
+
+/** The leak rate computed at one counted addition, under the rule in force that day. */
+export const refrigerantRecordRateSchema = z.object({
+  /** Percent of full charge per year, full precision. */
+  leakRatePercent: z.number(),
+  inScope: z.boolean(),
+  rule: z.string().nullable(),
+  thresholdPercent: z.number().nullable(),
+  /** Strictly over the threshold, compared exactly (a rate equal to it is not over). */
+  overThreshold: z.boolean(),
+});
+
+export const refrigerantRecordEventSchema = z.object({
+  kind: refrigerantRecordEventKindSchema,
+  date: z.string(),
+  /** The refrigerant event, leak case or verification test the entry comes from. */
+  sourceId: idSchema,
+  /** When it was written down (UTC); null where the record keeps only a date. */
+  recordedAt: z.string().nullable(),
+  poundsAdded: z.number().nullable(),
+  poundsRecovered: z.number().nullable(),
+  reason: refrigerantEventReasonSchema.nullable(),
+  exempt: additionExemptionSchema.nullable(),
+  /** Counted toward the leak rate (a non-exempt addition). */
+  counted: z.boolean(),
+  /** The leak case this entry belongs to (grouped by leak), when there is one. */
+  leakCaseId: idSchema.nullable(),
+  cylinderLot: z.string().nullable(),
+  visitId: idSchema.nullable(),
+  /** Who did it: the technician of an addition, the person who recorded a test. */
+  by: person.nullable(),
+  /** Verification tests. */
+  stage: z.enum(['initial', 'follow-up']).nullable(),
+  passed: z.boolean().nullable(),
+  /** Counted additions: the rate at that moment. */
+  rate: refrigerantRecordRateSchema.nullable(),
+  /** This addition opened the obligation triggered on its date. */
+  opensObligation: z.boolean(),
+  note: z.string().nullable(),
+});
+export type RefrigerantRecordEvent = z.infer<typeof refrigerantRecordEventSchema>;
+
+export const refrigerantRecordObligationSchema = z.object({
+  triggeredOn: z.string(),
+  leakRatePercent: z.number(),
+  rule: z.string().nullable(),
+  thresholdPercent: z.number().nullable(),
+  repairDueDate: z.string(),
+  repairedOn: z.string().nullable(),
+  /** Initial verification test due by the repair deadline; follow-up within 10 days of a passed initial test. */
+  initialTestDue: z.string(),
+  followUpTestDue: z.string().nullable(),
+  state: leakObligationStateSchema,
+  /** The Watchlist's leak case opened for it, when one was. */
+  leakCaseId: idSchema.nullable(),
+  /** Repairs, tests and plans dated from the trigger to the next obligation's, in order. */
+  timeline: z.array(z.object({ date: z.string(), kind: refrigerantRecordEventKindSchema, text: z.string() })),
+});
+export type RefrigerantRecordObligation = z.infer<typeof refrigerantRecordObligationSchema>;
+
+export const refrigerantRecordSchema = z.object({
+  /** The branch's date the record is computed for. */
+  asOf: z.string(),
+  generatedAt: z.string(),
+  appliance: z.object({
+    unitId: idSchema,
+    tag: z.string(),
+    kind: unitKindSchema,
+    make: z.string(),
+    model: z.string(),
+    serial: z.string(),
+    installDate: z.string().nullable(),
+    refrigerant: z.string(),
+    applianceCategory: applianceCategorySchema,
+    fullChargeLb: z.number(),
+    /** How the full charge was determined. */
+    fullChargeBasis: z.string(),
+    circuits: z.array(z.object({ number: z.number().int(), chargeLb: z.number().nullable() })),
+    site: z.object({ name: z.string(), address: z.string(), city: z.string(), region: z.string(), customerName: z.string() }),
+    branch: z.object({ id: idSchema, name: z.string(), timeZone: z.string() }),
+  }),
+  method: z.enum(['annualizing', 'rolling-average']),
+  industrialShutdown: z.boolean(),
+  /** The rule in force on asOf. */
+  inScope: z.boolean(),
+  rule: z.string().nullable(),
+  thresholdPercent: z.number().nullable(),
+  /** At the latest counted addition. */
+  leakRatePercent: z.number(),
+  chronicYears: z.array(z.number().int()),
+  events: z.array(refrigerantRecordEventSchema),
+  obligations: z.array(refrigerantRecordObligationSchema),
+  openObligation: refrigerantRecordObligationSchema.nullable(),
+  /** Set when the ledger could not be computed (e.g. a refrigerant Coilpath has no rule data for). */
+  computeError: z.string().nullable(),
+  cautions: z.array(z.string()),
+  sources: z.array(z.string()),
+});
+export type RefrigerantRecord = z.infer<typeof refrigerantRecordSchema>;

@@ -197,6 +197,8 @@ export interface ReadingDto {
   liquidSaturationTemp: number | null;
   superheat: number | null;
   subcooling: number | null;
+  /** The branch elevation (metres) the saturation temperatures were computed at (gauge values are as read). */
+  elevationMeters: number;
   notes: string | null;
   units: ReadingUnits;
 }
@@ -372,6 +374,8 @@ export interface VisitDetail {
     sensorTolerancePercent: number;
     /** The branch setting, in psi (a pressure difference) whatever the unit system. */
     sensorToleranceAbsolute: number;
+    /** Metres above sea level: gauge readings are made absolute with the standard atmosphere there. */
+    elevationMeters: number;
   };
   units: VisitUnitDto[];
   readings: ReadingDto[];

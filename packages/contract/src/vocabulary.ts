@@ -163,6 +163,45 @@ export const leakCaseStatuses = ['open', 'repaired', 'closed', 'retrofit_planned
 export const leakCaseStatusSchema = z.enum(leakCaseStatuses);
 export type LeakCaseStatus = z.infer<typeof leakCaseStatusSchema>;
 
+/** State of a leak-repair obligation in the refrigerant record (`leakObligations` in @coilpath/calc). */
+export const leakObligationStates = ['open', 'overdue', 'repaired', 'verified', 'plan'] as const;
+export const leakObligationStateSchema = z.enum(leakObligationStates);
+export type LeakObligationState = z.infer<typeof leakObligationStateSchema>;
+export const leakObligationStateLabels: Record<LeakObligationState, string> = {
+  open: 'Repair owed',
+  overdue: 'Repair overdue',
+  repaired: 'Repaired, verification pending',
+  verified: 'Repaired and verified',
+  plan: 'Retrofit or retirement plan',
+};
+
+/** Kinds of entry in a unit's refrigerant record. */
+export const refrigerantRecordEventKinds = ['addition', 'recovery', 'repair', 'verification', 'retrofit-or-retirement-plan'] as const;
+export const refrigerantRecordEventKindSchema = z.enum(refrigerantRecordEventKinds);
+export type RefrigerantRecordEventKind = z.infer<typeof refrigerantRecordEventKindSchema>;
+export const refrigerantRecordEventKindLabels: Record<RefrigerantRecordEventKind, string> = {
+  addition: 'Refrigerant added',
+  recovery: 'Refrigerant recovered',
+  repair: 'Leak repaired',
+  verification: 'Verification test',
+  'retrofit-or-retirement-plan': 'Retrofit or retirement plan',
+};
+
+/** Why an addition is not counted toward the leak rate (40 CFR 82.157(b)). */
+export const additionExemptionKinds = ['installation', 'retrofit', 'seasonal-variance'] as const;
+export const additionExemptionSchema = z.enum(additionExemptionKinds);
+export type AdditionExemptionKind = z.infer<typeof additionExemptionSchema>;
+export const additionExemptionLabels: Record<AdditionExemptionKind, string> = {
+  installation: 'Exempt: charge of a new appliance',
+  retrofit: 'Exempt: right after a retrofit',
+  'seasonal-variance': 'Exempt: seasonal variance',
+};
+
+export const leakRateMethodLabels: Record<'annualizing' | 'rolling-average', string> = {
+  annualizing: 'Annualizing method',
+  'rolling-average': 'Rolling-average method',
+};
+
 export const alarmSources = ['form', 'csv', 'api', 'controller'] as const;
 export const alarmSourceSchema = z.enum(alarmSources);
 export type AlarmSource = z.infer<typeof alarmSourceSchema>;

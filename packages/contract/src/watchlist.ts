@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { base64FileSchema, idSchema, instantSchema, isoDateSchema, limits, oneOfCsvOrFile, oneOfCsvOrFileMessage } from './common';
-import { leakCaseStatusSchema, prioritySchema, returnNeedSchema, causeCodeSchema, causeOriginSchema, workOrderStateSchema, workOrderKindSchema, visitOutcomeSchema, epa608TypeSchema } from './vocabulary';
+import { leakCaseStatusSchema, leakObligationStateSchema, prioritySchema, returnNeedSchema, causeCodeSchema, causeOriginSchema, workOrderStateSchema, workOrderKindSchema, visitOutcomeSchema, epa608TypeSchema } from './vocabulary';
 
 /* ---------------------------------------------------------------- alarms */
 
@@ -165,6 +165,11 @@ export interface LeakCaseRow {
   repairedOn: string | null;
   chronic: boolean;
   status: z.infer<typeof leakCaseStatusSchema>;
+  /**
+   * The state of this case's obligation in the unit's refrigerant record (`leakObligations` over every
+   * addition, repair and test); null when the record has no obligation for this case.
+   */
+  obligationState: z.infer<typeof leakObligationStateSchema> | null;
   planKind: 'retrofit' | 'retire' | null;
   planDueDate: string | null;
   notes: string | null;

@@ -59,6 +59,8 @@ export const branches = pgTable('branches', {
   refrigerantPriceCentsPerLb: integer().notNull().default(0),
   currency: text().notNull().default('USD'),
   unitSystem: text().$type<'imperial' | 'si'>().notNull().default('imperial'),
+  /** Elevation of the branch's area above sea level, metres: gauge readings are made absolute with the ISA pressure there. */
+  elevationMeters: doublePrecision().notNull().default(0),
   sensorTolerancePercent: doublePrecision().notNull().default(3),
   sensorToleranceAbsolute: doublePrecision().notNull().default(5),
   repeatAlarmCount: integer().notNull().default(2),
@@ -456,6 +458,8 @@ export const readings = pgTable('readings', {
   liquidSaturationTemp: doublePrecision(),
   superheat: doublePrecision(),
   subcooling: doublePrecision(),
+  /** The branch elevation (metres) the saturation temperatures were computed at; the gauge values stay as read. */
+  elevationMeters: doublePrecision().notNull().default(0),
   notes: text(),
   createdAt: createdAt(),
 }, (t) => [

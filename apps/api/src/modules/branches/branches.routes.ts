@@ -23,6 +23,7 @@ export function branchesRoutes(ctx: AppContext): Router {
           timeZone: branches.timeZone,
           unitSystem: branches.unitSystem,
           currency: branches.currency,
+          elevationMeters: branches.elevationMeters,
           sensorTolerancePercent: branches.sensorTolerancePercent,
           sensorToleranceAbsolute: branches.sensorToleranceAbsolute,
           repeatAlarmCount: branches.repeatAlarmCount,

@@ -20,6 +20,7 @@ const toDetail = (b: BranchRow): BranchDetail => ({
   labourRate: b.labourRateCents / 100,
   currency: b.currency,
   unitSystem: b.unitSystem,
+  elevationMeters: b.elevationMeters,
   sensorTolerancePercent: b.sensorTolerancePercent,
   sensorToleranceAbsolute: b.sensorToleranceAbsolute,
   repeatAlarmCount: b.repeatAlarmCount,

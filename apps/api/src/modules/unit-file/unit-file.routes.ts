@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { idSchema, unitSearchQuerySchema } from '@coilpath/contract';
+import { idSchema, refrigerantRecordQuerySchema, unitSearchQuerySchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { resolveBranch } from '../../auth/middleware';
 import { endpoint } from '../../lib/endpoint';
@@ -8,11 +8,14 @@ import { sendStoredFile } from '../../lib/send-file';
 import { readStoredFile } from '../../storage/storage';
 import { attachmentLabel } from '../visits/attachments.service';
 import { searchUnits, unitAttachment, unitFile } from './unit-file.service';
+import { refrigerantRecord } from './refrigerant-record';
+import { recordCsv, recordFileName, recordPdf } from './refrigerant-record.export';
 
 const unitParams = z.object({ id: idSchema });
 
 /**
- * Mounted at `/api/units` beside the units CRUD routes: only `/:id/file` (and its attachments) live here.
+ * Mounted at `/api/units` beside the units CRUD routes: only `/:id/file` (and its attachments) and
+ * `/:id/refrigerant-record` live here.
  * Every signed-in role may call it; the service answers 404 for a unit outside the person's scope.
  */
 export function unitFileRoutes(ctx: AppContext): Router {
@@ -20,6 +23,25 @@ export function unitFileRoutes(ctx: AppContext): Router {
   r.get(
     '/:id/file',
     endpoint({ params: unitParams }, ({ params, user }) => unitFile(ctx.db, user, params.id)),
+  );
+  r.get(
+    '/:id/refrigerant-record',
+    endpoint({ params: unitParams, query: refrigerantRecordQuerySchema }, async ({ params, query, user, res }) => {
+      const now = ctx.clock.now();
+      const record = await refrigerantRecord(ctx.db, user, params.id, now);
+      if (query.format === 'json') return record;
+      res.setHeader('Cache-Control', 'private, no-store');
+      if (query.format === 'csv') {
+        res.setHeader('Content-Type', 'text/csv; charset=utf-8');
+        res.setHeader('Content-Disposition', `attachment; filename="${recordFileName(record, 'csv')}"`);
+        res.send(recordCsv(record));
+        return;
+      }
+      const pdf = await recordPdf(record, now);
+      res.setHeader('Content-Type', 'application/pdf');
+      res.setHeader('Content-Disposition', `attachment; filename="${recordFileName(record, 'pdf')}"`);
+      res.send(pdf);
+    }),
   );
   r.get(
     '/:id/file/attachments/:attachmentId',

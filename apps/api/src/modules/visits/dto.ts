@@ -46,6 +46,7 @@ export function readingDto(r: typeof readings.$inferSelect, circuitNumber: numbe
     liquidSaturationTemp: t(r.liquidSaturationTemp, computed),
     superheat: dt(r.superheat),
     subcooling: dt(r.subcooling),
+    elevationMeters: r.elevationMeters,
     notes: r.notes,
     units,
   };

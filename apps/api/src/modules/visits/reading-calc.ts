@@ -1,4 +1,4 @@
-import { convertPressure, convertTemperature, subcooling, superheat } from '@coilpath/calc';
+import { atmosphericPressureAt, convertPressure, convertTemperature, subcooling, superheat } from '@coilpath/calc';
 import { readingPressureFields, readingTemperatureFields, type ReadingInput, type ReadingUnits } from '@coilpath/contract';
 
 /** The stored (canonical) units of `readings`: psig and °F; superheat and subcooling in °F (a difference). */
@@ -48,12 +48,16 @@ export function toStoredUnits(r: Measured, from: ReadingUnits): Required<{ [K in
  * liquid pressure, or discharge pressure when no liquid pressure was taken) with @coilpath/calc, from
  * values in psig/°F. Kept at full precision: the answer rounds in the units it shows.
  * A value outside the refrigerant's table, or an unknown refrigerant, leaves that result empty.
+ *
+ * Gauge pressures are made absolute with the standard atmosphere at the branch's elevation
+ * (`atmosphericPressureAt`, ISA / ISO 2533): at 1,609 m that is 83.4 kPa, not sea level's 101.325.
  */
-export function computeReading(refrigerant: string, r: ReadingValues): ReadingComputed {
+export function computeReading(refrigerant: string, r: ReadingValues, at: { elevationMeters?: number } = {}): ReadingComputed {
   const out: ReadingComputed = { suctionSaturationTemp: null, liquidSaturationTemp: null, superheat: null, subcooling: null };
+  const atmosphericPressureKPa = atmosphericPressureAt(at.elevationMeters ?? 0);
   if (given(r.suctionPressure) && given(r.suctionLineTemp)) {
     try {
-      const s = superheat({ refrigerant, suctionPressure: r.suctionPressure, suctionLineTemp: r.suctionLineTemp });
+      const s = superheat({ refrigerant, suctionPressure: r.suctionPressure, suctionLineTemp: r.suctionLineTemp, atmosphericPressureKPa });
       out.suctionSaturationTemp = s.saturationTemp;
       out.superheat = s.superheat;
     } catch {
@@ -63,7 +67,7 @@ export function computeReading(refrigerant: string, r: ReadingValues): ReadingCo
   const high = given(r.liquidPressure) ? r.liquidPressure : given(r.dischargePressure) ? r.dischargePressure : null;
   if (high !== null && given(r.liquidLineTemp)) {
     try {
-      const s = subcooling({ refrigerant, liquidPressure: high, liquidLineTemp: r.liquidLineTemp });
+      const s = subcooling({ refrigerant, liquidPressure: high, liquidLineTemp: r.liquidLineTemp, atmosphericPressureKPa });
       out.liquidSaturationTemp = s.saturationTemp;
       out.subcooling = s.subcooling;
     } catch {

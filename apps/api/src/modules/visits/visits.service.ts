@@ -144,6 +144,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
       unitSystem: branch.unitSystem,
       sensorTolerancePercent: branch.sensorTolerancePercent,
       sensorToleranceAbsolute: branch.sensorToleranceAbsolute,
+      elevationMeters: branch.elevationMeters,
     },
     units: unitList,
     readings: readingRows.map((x) => readingDto(x.r, x.number, branch.unitSystem)),
@@ -217,12 +218,14 @@ export async function saveReadings(ctx: AppContext, user: SessionUser, id: strin
     const circuitIds = input.readings.map((r) => r.circuitId);
     const [cs, [branch]] = await Promise.all([
       tx.select().from(circuits).where(inArray(circuits.id, circuitIds)),
-      tx.select({ unitSystem: branches.unitSystem }).from(branches).where(eq(branches.id, v.branchId)),
+      tx.select({ unitSystem: branches.unitSystem, elevationMeters: branches.elevationMeters }).from(branches).where(eq(branches.id, v.branchId)),
     ]);
     const byId = new Map(cs.map((c) => [c.id, c]));
     const bad = circuitIds.filter((c) => !byId.has(c) || !unitMap.has(byId.get(c)!.unitId));
     if (bad.length) throw badRequest('A circuit is not on this visit’s units.', { fields: [{ path: 'readings.circuitId', message: 'Not a circuit of this visit' }] });
     const now = ctx.clock.now();
+    // Gauges read against the air where they are: the branch's elevation, stored with the readings it computed them at.
+    const elevationMeters = branch?.elevationMeters ?? 0;
     await tx.delete(readings).where(and(eq(readings.visitId, id), inArray(readings.circuitId, circuitIds)));
     const rows = await tx
       .insert(readings)
@@ -239,7 +242,8 @@ export async function saveReadings(ctx: AppContext, user: SessionUser, id: strin
             refrigerant,
             ...stored,
             notes: r.notes ?? null,
-            ...computeReading(refrigerant, stored),
+            elevationMeters,
+            ...computeReading(refrigerant, stored, { elevationMeters }),
           };
         }),
       )

@@ -14,11 +14,14 @@ import {
   type VerificationTestInput,
   type BookRepair,
   type LeakCaseStatus,
+  type ApplianceCategory,
+  type LeakObligationState,
+  leakObligationStateLabels,
   workOrderLabel,
 } from '@coilpath/contract';
 import { LEAK_RULES, addDays, repeatAlarms, requiredCertificationFor, verificationDeadlines, zonedInstant } from '@coilpath/calc';
 import type { AppContext } from '../../context';
-import type { Tx } from '../../db/client';
+import type { Db, Tx } from '../../db/client';
 import {
   alarms,
   auditEvents,
@@ -36,6 +39,7 @@ import {
 import { assertBranch } from '../../auth/middleware';
 import { HttpError, conflict, notFound, unprocessable } from '../../lib/errors';
 import { branchFilter, branchesById, branchesInScope, daysBetween, todayIn, type BranchInfo } from './scope';
+import { buildLedger, loadLedgerSource } from '../unit-file/refrigerant-record';
 import {
   OpenReturnChanged,
   findOpenReturn,
@@ -237,6 +241,7 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
       model: units.model,
       refrigerant: units.refrigerant,
       fullChargeLb: units.fullChargeLb,
+      applianceCategory: units.applianceCategory,
       siteName: sites.name,
       woId: workOrders.id,
       woNumber: workOrders.number,
@@ -265,6 +270,11 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
   const visitOf = new Map<string, string>();
   for (const v of repairVisits) if (!visitOf.has(v.workOrderId)) visitOf.set(v.workOrderId, v.id);
   const now = ctx.clock.now();
+  const states = await obligationStates(
+    ctx.db,
+    rows.map((r) => ({ id: r.c.unitId, refrigerant: r.refrigerant, fullChargeLb: r.fullChargeLb, applianceCategory: r.applianceCategory, timeZone: branchMap.get(r.c.branchId)?.timeZone ?? 'UTC' })),
+    now,
+  );
   const list = rows.map((r): LeakCaseRow => {
     const c = r.c;
     const today = todayIn(branchMap.get(c.branchId)?.timeZone ?? 'UTC', now);
@@ -290,6 +300,7 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
       repairedOn: c.repairedOn,
       chronic: c.chronic,
       status: c.status,
+      obligationState: states.get(c.id) ?? null,
       planKind: c.planKind,
       planDueDate: c.planDueDate,
       notes: c.notes,
@@ -303,6 +314,26 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
   });
   // The most urgent first: nearest unmet deadline, then cases with every deadline met.
   return list.sort((a, b) => (a.next?.due ?? '9999').localeCompare(b.next?.due ?? '9999'));
+}
+
+/**
+ * The state of each leak case's obligation in its unit's refrigerant record (the ledger of
+ * `leakObligations`, one per unit), by case id. A case the record has no obligation for is absent.
+ */
+async function obligationStates(
+  db: Db | Tx,
+  unitList: { id: string; refrigerant: string; fullChargeLb: number; applianceCategory: ApplianceCategory; timeZone: string }[],
+  now: Date,
+): Promise<Map<string, LeakObligationState>> {
+  const out = new Map<string, LeakObligationState>();
+  const seen = new Set<string>();
+  for (const u of unitList) {
+    if (seen.has(u.id)) continue;
+    seen.add(u.id);
+    const ledger = buildLedger(await loadLedgerSource(db, u), todayIn(u.timeZone, now));
+    for (const o of ledger.obligations) if (o.leakCaseId) out.set(o.leakCaseId, o.state);
+  }
+  return out;
 }
 
 async function oneCase(ctx: AppContext, user: SessionUser, id: string): Promise<LeakCaseRow> {
@@ -440,6 +471,17 @@ export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: stri
       if (!followUpPassed && !planned) {
         throw unprocessable(
           'A leak case closes after a passed follow-up verification test (40 CFR 82.157(e) [M], 84.106(e) [S]). Record the tests first, or mark a retrofit or retirement plan.',
+        );
+      }
+      // The unit's refrigerant record must agree: its obligation for this case verified (tests after the repair) or under a plan.
+      const [u] = await tx
+        .select({ id: units.id, refrigerant: units.refrigerant, fullChargeLb: units.fullChargeLb, applianceCategory: units.applianceCategory })
+        .from(units)
+        .where(eq(units.id, c.unitId));
+      const state = (await obligationStates(tx, [{ ...u!, timeZone: b?.timeZone ?? 'UTC' }], now)).get(c.id);
+      if (state === 'open' || state === 'overdue' || state === 'repaired') {
+        throw unprocessable(
+          `The unit’s refrigerant record shows this leak’s repair obligation as “${leakObligationStateLabels[state]}”: a passed initial and a passed follow-up verification test, both on or after the repair date, close it (40 CFR 82.157(e) [M], 84.106(e) [S]).`,
         );
       }
       await tx.update(leakCases).set({ status: 'closed', closedAt: now, notes: patch.notes ?? c.notes, updatedAt: now }).where(eq(leakCases.id, id));

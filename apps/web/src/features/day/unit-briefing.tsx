@@ -1,7 +1,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, Droplets, History, Siren } from 'lucide-react';
-import { causeCodeLabels, causeOriginLabels, formatMeasure, visitOutcomeLabels, type MeasureKind, type ReadingUnits } from '@coilpath/contract';
+import { causeCodeLabels, causeOriginLabels, formatMeasure, readingsElevationNote, unitSystemOf, visitOutcomeLabels, type MeasureKind, type ReadingUnits } from '@coilpath/contract';
 import { Badge } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
@@ -138,6 +138,9 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
               })}
             </tbody>
           </table>
+          {readingsElevationNote(b.lastReadings, unitSystemOf(b.units) ?? 'imperial') && (
+            <p className="text-xs text-slate">{readingsElevationNote(b.lastReadings, unitSystemOf(b.units) ?? 'imperial')}</p>
+          )}
         </div>
       )}
 

@@ -5,6 +5,8 @@ import { useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { psiToKpa } from '@coilpath/calc';
 import {
+  feetToMetres,
+  metresToFeet,
   branchInputSchema,
   epa608Labels,
   epa608Types,
@@ -28,6 +30,55 @@ import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { useNotify } from '@/components/ui/notices';
 import { useBranch } from '@/lib/branch';
 import { applyServerErrors } from '@/lib/form-errors';
+
+/**
+ * The branch's elevation, kept in metres (the schema's `elevationMeters`) and typed in feet for an
+ * imperial branch: what is typed is kept as text while typing, and the field holds the metres.
+ */
+function ElevationField({ control, imperial, error }: { control: Control<BranchInput, unknown, BranchValues>; imperial: boolean; error: string | undefined }) {
+  return (
+    <Controller
+      control={control}
+      name="elevationMeters"
+      render={({ field }) => <ElevationInput metres={field.value as number | string | undefined} onChange={field.onChange} onBlur={field.onBlur} imperial={imperial} error={error} />}
+    />
+  );
+}
+
+function ElevationInput({ metres, onChange, onBlur, imperial, error }: { metres: number | string | undefined; onChange: (v: number | string) => void; onBlur: () => void; imperial: boolean; error: string | undefined }) {
+  const shown = (m: number | string | undefined) => {
+    const n = Number(m ?? 0);
+    return typeof m === 'string' || !Number.isFinite(n) ? String(m ?? '') : String(Math.round((imperial ? metresToFeet(n) : n) * 10) / 10);
+  };
+  const [text, setText] = useState(() => shown(metres));
+  const [unit, setUnit] = useState(imperial);
+  if (unit !== imperial) {
+    // The unit system changed: show the same elevation in the other unit.
+    setUnit(imperial);
+    setText(shown(metres));
+  }
+  return (
+    <TextField
+      label={imperial ? 'Elevation (ft above sea level)' : 'Elevation (m above sea level)'}
+      inputMode="decimal"
+      value={text}
+      onBlur={onBlur}
+      onChange={(ev: { target: { value: string } }) => {
+        const t = ev.target.value;
+        setText(t);
+        const n = t.trim() === '' ? 0 : Number(t);
+        // Not a number: handed on as typed, so the schema refuses it with its message.
+        onChange(Number.isFinite(n) ? (imperial ? feetToMetres(n) : n) : t);
+      }}
+      error={error}
+      hint={
+        imperial && Number.isFinite(Number(metres))
+          ? `= ${Math.round(Number(metres))} m. Gauge readings are corrected with the standard atmosphere there (0 = sea level).`
+          : 'Gauge readings are corrected with the standard atmosphere there (0 = sea level).'
+      }
+    />
+  );
+}
 
 const num = { setValueAs: (v: unknown) => (v === '' || v === null || v === undefined ? undefined : Number(v)) };
 const dayNames: Record<(typeof weekdays)[number], string> = { sun: 'Sunday', mon: 'Monday', tue: 'Tuesday', wed: 'Wednesday', thu: 'Thursday', fri: 'Friday', sat: 'Saturday' };
@@ -279,6 +330,7 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       labourRate: 95,
       currency: 'USD',
       unitSystem: 'imperial',
+      elevationMeters: 0,
       sensorTolerancePercent: 3,
       sensorToleranceAbsolute: 5,
       repeatAlarmCount: 2,
@@ -335,6 +387,7 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
           <option value="imperial">psig and °F</option>
           <option value="si">kPa(g) and °C</option>
         </SelectField>
+        <ElevationField control={form.control} imperial={unitSystem !== 'si'} error={e.elevationMeters?.message} />
       </div>
       <Controller
         control={form.control}

@@ -4,6 +4,7 @@ import { Building2, CheckCircle2, Clock, MailPlus, Pencil, RotateCw, UserCheck, 
 import { psiToKpa } from '@coilpath/calc';
 import {
   epa608Labels,
+  formatElevation,
   roleLabels,
   type BranchDetail,
   type InvitationRow,
@@ -366,6 +367,8 @@ export default function TeamPage() {
                   <dd className="tabular">{formatMoney(Math.round(b.labourRate * 100), b.currency)} / h</dd>
                   <dt className="text-slate">Readings in</dt>
                   <dd>{b.unitSystem === 'si' ? 'kPa(g) and °C' : 'psig and °F'}</dd>
+                  <dt className="text-slate">Elevation</dt>
+                  <dd className="tabular">{formatElevation(b.elevationMeters ?? 0, b.unitSystem)}</dd>
                   <dt className="text-slate">Sensor check</dt>
                   <dd className="tabular">
                     ±{b.sensorTolerancePercent} % or ±{b.sensorToleranceAbsolute} psi

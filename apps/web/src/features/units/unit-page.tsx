@@ -1,13 +1,14 @@
 import { useEffect, useState, type ReactNode } from 'react';
 import { Link, useParams, useSearchParams } from 'react-router-dom';
 import { queryOptions, useQuery } from '@tanstack/react-query';
-import { AlertTriangle, CheckCircle2, FileText, Printer, Search } from 'lucide-react';
+import { AlertTriangle, FileText, Printer, Search } from 'lucide-react';
 import {
   applianceCategoryLabels,
   causeCodeLabels,
   causeOriginLabels,
   measureSymbol,
   readingUnitsBySystem,
+  readingsElevationNote,
   unitKindLabels,
   visitOutcomeLabels,
   workOrderKindLabels,
@@ -26,6 +27,7 @@ import { formatInZone, formatNumber, viewerZoneDiffers, zoneAbbreviation } from 
 import { CircuitTrend } from './readings-chart';
 import { ReadingsTable } from './readings-table';
 import { UnitTable } from './unit-table';
+import { RefrigerantRecordCard } from './refrigerant-record';
 import { appNow } from '@/lib/now';
 
 const unitFileQuery = (id: string) =>
@@ -33,15 +35,6 @@ const unitFileQuery = (id: string) =>
 const unitSearchQuery = (q: string, branchId: string | undefined) =>
   queryOptions({ queryKey: ['units', 'search', q, branchId], queryFn: () => api.get<UnitSearchResult>('/api/unit-file', { q, branchId }) });
 
-const reasonLabels: Record<string, string> = {
-  leak_top_off: 'Leak top-off',
-  repair_recharge: 'Recharge after repair',
-  initial_charge: 'Initial charge',
-  recovery: 'Recovery',
-  retrofit: 'Retrofit',
-  seasonal_variance: 'Seasonal variance',
-  other: 'Other',
-};
 
 export default function UnitPage() {
   const { id } = useParams();
@@ -258,6 +251,7 @@ function UnitFileView({ id }: { id: string }) {
               values in {measureSymbol('pressure', units)}; temperatures in {measureSymbol('temperature', units)}
               {units.temperature === 'C' ? ', superheat and subcooling in K' : ''} ({f.branch.name}’s unit setting). Refrigerant work needs the
               proper EPA 608 certification.
+              {readingsElevationNote(f.readings, f.branch.unitSystem) && <> {readingsElevationNote(f.readings, f.branch.unitSystem)}</>}
             </SafetyNote>
           </div>
           {circuitsWithReadings.length === 0 ? (
@@ -342,54 +336,11 @@ function UnitFileView({ id }: { id: string }) {
           </Card>
         </div>
 
-        <Card title="Refrigerant log">
-          <p className="mb-2 text-sm text-slate">
-            The leak rate is calculated at each addition by the annualizing method (pounds added ÷ full charge × 365 ÷ days since the previous
-            addition, at most 365). Additions after a new charge, a retrofit or for seasonal variance do not count (40 CFR 82.157(b)). The rule
-            and threshold are those in force on the day.
-          </p>
-          {f.refrigerantLog.length === 0 ? (
-            <p className="text-sm text-slate">No refrigerant added or recovered on record.</p>
-          ) : (
-            <UnitTable caption="Refrigerant log with running leak rate" head={['Date', 'Reason', 'Added', 'Recovered', 'Leak rate', 'Rule applied', 'By']}>
-              {f.refrigerantLog.map((e) => (
-                <tr key={e.id}>
-                  <td className="whitespace-nowrap">{e.date}</td>
-                  <td>{reasonLabels[e.reason] ?? e.reason}</td>
-                  <td className="tabular">{e.poundsAdded ? `${formatNumber(e.poundsAdded, 1)} lb` : '—'}</td>
-                  <td className="tabular">{e.poundsRecovered ? `${formatNumber(e.poundsRecovered, 1)} lb` : '—'}</td>
-                  <td className="tabular whitespace-nowrap">
-                    {e.leakRatePercent === null ? (
-                      '—'
-                    ) : e.exceeds ? (
-                      <span className="font-medium text-alarm">
-                        <AlertTriangle className="inline size-3.5" aria-hidden="true" /> {formatNumber(e.leakRatePercent, 1)} % — over
-                      </span>
-                    ) : (
-                      <span>
-                        <CheckCircle2 className="inline size-3.5 text-ok" aria-hidden="true" /> {formatNumber(e.leakRatePercent, 1)} % — within
-                      </span>
-                    )}
-                  </td>
-                  <td>
-                    {e.rule ? (
-                      <>
-                        {e.rule}, threshold {e.thresholdPercent} %/yr
-                        {e.repairDueDate && <span className="block text-xs text-alarm">Repair due by {e.repairDueDate}</span>}
-                        {e.chronic && <span className="block text-xs text-alarm">Chronic leaker (125 % of charge this year)</span>}
-                      </>
-                    ) : (
-                      <span className="text-xs text-slate">{e.note ?? '—'}</span>
-                    )}
-                  </td>
-                  <td>{e.techName ?? '—'}</td>
-                </tr>
-              ))}
-            </UnitTable>
-          )}
-          {f.leakCases.length > 0 && (
-            <div className="mt-4">
-              <h3 className="mb-2 text-sm font-semibold">Leak cases</h3>
+        <RefrigerantRecordCard unitId={u.id} />
+
+        {f.leakCases.length > 0 && (
+          <Card title="Leak cases (Watchlist)">
+            <div>
               <ul className="flex flex-col gap-2">
                 {f.leakCases.map((c) => (
                   <li key={c.id} className="rounded-md border border-slate-line p-3 text-sm">
@@ -407,8 +358,8 @@ function UnitFileView({ id }: { id: string }) {
                 ))}
               </ul>
             </div>
-          )}
-        </Card>
+          </Card>
+        )}
 
         <Card title={`Work orders (${f.workOrders.length})`}>
           {f.workOrders.length === 0 ? (

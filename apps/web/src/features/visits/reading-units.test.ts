@@ -78,6 +78,18 @@ describe('live superheat and subcooling', () => {
     expect(Math.abs(figure(shK!.text) - (figure(shF!.text) * 5) / 9)).toBeLessThanOrEqual(0.06);
   });
 
+  it('at a branch 1,609 m up reads the gauge against the ISA atmosphere there: the reference point’s dew, not sea level’s', () => {
+    // ISA / ISO 2533 table [S] (tests/reference/atmosphere.test.ts): 1,600 m 83.5235 kPa, 2,000 m 79.4952 kPa,
+    // log-linear to 1,609 m: 83.4306 kPa = 12.100 psia. 111.5 psig at 14.696 psia (126.196 psia) has dew 36.93 °F
+    // (CoolProp reference above); on a gauge at 1,609 m that absolute pressure reads 111.5 + 14.696 − 12.100 psig.
+    const atm = 83.5235 * Math.exp((Math.log(79.4952 / 83.5235) * 9) / 400) / 6.894757293168;
+    const gauge = String(111.5 + 14.696 - atm);
+    const [high] = computeLive('R-410A', { suctionPressure: gauge, suctionLineTemp: '48.7' }, imperial, 1609);
+    expect(Math.abs(figure(high!.text) - (48.7 - 36.93))).toBeLessThanOrEqual(0.1);
+    const [sea] = computeLive('R-410A', { suctionPressure: gauge, suctionLineTemp: '48.7' }, imperial);
+    expect(figure(high!.text) - figure(sea!.text)).toBeGreaterThan(1);
+  });
+
   it('says the table range in the branch’s units when a pressure is outside it', () => {
     const [sh] = computeLive('R-410A', { suctionPressure: '40000', suctionLineTemp: '10' }, si);
     expect(sh).toMatchObject({ text: 'Superheat cannot be computed', error: true });

@@ -3,7 +3,7 @@
  * typed as numbers, live superheat/subcooling in the branch's units (@coilpath/calc), the sensor check
  * with the branch's psi tolerance in the same units, and the body the API receives (units stated).
  */
-import { convertPressure, convertTemperature, pressureRange, psiToKpa, sensorCheck, subcooling, superheat } from '@coilpath/calc';
+import { atmosphericPressureAt, convertPressure, convertTemperature, pressureRange, psiToKpa, sensorCheck, subcooling, superheat } from '@coilpath/calc';
 import {
   formatMeasure,
   measureSymbol,
@@ -105,14 +105,17 @@ export interface ComputedLine {
   error?: boolean;
 }
 
-/** Live superheat and subcooling from what is typed, computed by calc in the branch's units. */
-export function computeLive(refrigerant: string, v: Record<string, string>, units: ReadingUnits): ComputedLine[] {
+/**
+ * Live superheat and subcooling from what is typed, computed by calc in the branch's units, the gauges
+ * read against the standard atmosphere at the branch's elevation (ISA / ISO 2533; 0 m = sea level).
+ */
+export function computeLive(refrigerant: string, v: Record<string, string>, units: ReadingUnits, elevationMeters = 0): ComputedLine[] {
   const sp = valueOf(v.suctionPressure);
   const st = valueOf(v.suctionLineTemp);
   const lp = valueOf(v.liquidPressure);
   const high = lp ?? valueOf(v.dischargePressure);
   const lt = valueOf(v.liquidLineTemp);
-  const opts = { pressureUnit: units.pressure, temperatureUnit: units.temperature } as const;
+  const opts = { pressureUnit: units.pressure, temperatureUnit: units.temperature, atmosphericPressureKPa: atmosphericPressureAt(elevationMeters) } as const;
   const t = (n: number) => formatMeasure(n, 'temperature', units);
   const d = (n: number) => formatMeasure(n, 'temperatureDifference', units);
   const outside = () => {
@@ -159,11 +162,18 @@ export function sensorCheckView(
   controller: number | null,
   reference: number | null,
   units: ReadingUnits,
-  branch: { sensorTolerancePercent: number; sensorToleranceAbsolute: number },
+  branch: { sensorTolerancePercent: number; sensorToleranceAbsolute: number; elevationMeters?: number },
 ): SensorCheckView | null {
   if (controller === null || reference === null) return null;
   const toleranceAbsolute = units.pressure === 'kPag' ? psiToKpa(branch.sensorToleranceAbsolute) : branch.sensorToleranceAbsolute;
-  const c = sensorCheck({ controllerValue: controller, referenceValue: reference, tolerancePercent: branch.sensorTolerancePercent, toleranceAbsolute });
+  const c = sensorCheck({
+    controllerValue: controller,
+    referenceValue: reference,
+    tolerancePercent: branch.sensorTolerancePercent,
+    toleranceAbsolute,
+    pressureUnit: units.pressure,
+    atmosphericPressureKPa: atmosphericPressureAt(branch.elevationMeters ?? 0),
+  });
   const sign = c.difference >= 0 ? '+' : '−';
   const pct = c.percent === null ? '' : `, ${(Math.round(Math.abs(c.percent) * 10) / 10).toFixed(1)} %`;
   return {

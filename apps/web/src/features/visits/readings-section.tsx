@@ -1,6 +1,6 @@
 import { useMemo } from 'react';
 import { AlertTriangle, CheckCircle2 } from 'lucide-react';
-import { measureSymbol, readingUnitsBySystem, type ReadingUnits, type VisitDetail, type VisitUnitDto } from '@coilpath/contract';
+import { elevationNote, measureSymbol, readingUnitsBySystem, type ReadingUnits, type VisitDetail, type VisitUnitDto } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { Card, SafetyNote } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
@@ -96,8 +96,8 @@ function SensorMark({ controller, reference, units, branch }: { controller: stri
   );
 }
 
-function Computed({ refrigerant, v, where, units }: { refrigerant: string; v: Record<string, string>; where: string; units: ReadingUnits }) {
-  const out = computeLive(refrigerant, v, units);
+function Computed({ refrigerant, v, where, units, elevationMeters }: { refrigerant: string; v: Record<string, string>; where: string; units: ReadingUnits; elevationMeters: number }) {
+  const out = computeLive(refrigerant, v, units, elevationMeters);
   if (!out.length) return <p className="text-sm text-slate">Enter a pressure and its line temperature to see superheat and subcooling.</p>;
   return (
     <div className="flex flex-col gap-2 sm:flex-row sm:gap-6">
@@ -176,6 +176,7 @@ export function ReadingsSection({
             ? `Pressures in ${measureSymbol('pressure', units)}; temperatures in °C; superheat and subcooling in K`
             : `Pressures in ${measureSymbol('pressure', units)}; temperatures, superheat and subcooling in °F`}{' '}
           — {visit.branch.name}’s unit setting.
+          {elevationNote(visit.branch.elevationMeters, visit.branch.unitSystem) && <> {elevationNote(visit.branch.elevationMeters, visit.branch.unitSystem)}</>}
         </p>
         {circuitsCount === 0 && <p className="text-sm text-slate">This visit’s units have no circuits on file, so there is nothing to read here. The office can add circuits in the Unit file.</p>}
         {visit.units.map((u: VisitUnitDto) =>
@@ -228,7 +229,7 @@ export function ReadingsSection({
                   </div>
                 </div>
                 <div className="mt-3 rounded-md bg-frost p-3">
-                  <Computed refrigerant={u.refrigerant} v={v} where={where} units={units} />
+                  <Computed refrigerant={u.refrigerant} v={v} where={where} units={units} elevationMeters={visit.branch.elevationMeters} />
                 </div>
               </fieldset>
             );

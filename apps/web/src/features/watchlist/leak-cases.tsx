@@ -1,6 +1,6 @@
 import { useCallback, useState } from 'react';
 import { AlertTriangle, CheckCircle2, Clock, Wrench } from 'lucide-react';
-import { epa608Labels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
+import { epa608Labels, leakObligationStateLabels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';
@@ -144,6 +144,11 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
         </div>
         <div className="flex flex-wrap gap-1">
           <Badge tone="neutral">{statusLabels[c.status]}</Badge>
+          {c.obligationState && (
+            <Badge tone={c.obligationState === 'open' || c.obligationState === 'overdue' ? 'alarm' : c.obligationState === 'repaired' ? 'watch' : 'ok'}>
+              Record: {leakObligationStateLabels[c.obligationState]}
+            </Badge>
+          )}
           {c.chronic && <Badge tone="alarm">Chronic leaker (≥ 125 % a year)</Badge>}
           {c.next && <DeadlineBadge d={c.next} />}
         </div>

@@ -1,0 +1,2 @@
+ALTER TABLE "branches" ADD COLUMN "elevation_meters" double precision DEFAULT 0 NOT NULL;--> statement-breakpoint
+ALTER TABLE "readings" ADD COLUMN "elevation_meters" double precision DEFAULT 0 NOT NULL;
