@@ -97,6 +97,16 @@ describe('registering sources', () => {
   });
 });
 
+describe('a site with an alarm source', () => {
+  it('is not deleted (409 has_history naming the source) rather than failing in the database', async () => {
+    const u = await makeSiteWithUnit(t.ctx.db, f.a.id);
+    await newSource(u.site.id);
+    const res = await (await agent(f.inA.manager)).delete(`/api/sites/${u.site.id}`);
+    expect(res.status).toBe(409);
+    expect(res.body.error.details.history).toMatchObject({ alarmSources: 1 });
+  });
+});
+
 describe('POST /api/ingest/alarms/:sourceId', () => {
   it('accepts a signed alarm (202), stores it as a controller alarm, and shows the delivery on the source', async () => {
     const s = await newSource();
