@@ -138,6 +138,7 @@ export async function sendRequest(
   let req = request(app)[row.method.toLowerCase() as 'get' | 'post' | 'put' | 'patch' | 'delete'](spec.path);
   if (user) req = req.set('Cookie', await sessionCookie(f.ctx, user));
   if (spec.query) req = req.query(spec.query);
+  if (spec.headers) req = req.set(spec.headers);
   let res;
   if (spec.files) {
     for (const [k, v] of Object.entries((spec.body ?? {}) as Record<string, unknown>)) req = req.field(k, typeof v === 'string' ? v : JSON.stringify(v));

@@ -75,6 +75,10 @@ import {
   leakCasePatchSchema,
   verificationTestInputSchema,
   bookRepairSchema,
+  alarmSourceCreateSchema,
+  alarmSourceListQuerySchema,
+  alarmSourcePatchSchema,
+  mapDeliverySchema,
   type Role,
 } from '@coilpath/contract';
 import { eq } from 'drizzle-orm';
@@ -85,8 +89,9 @@ import { signLinkToken } from '../../apps/api/src/auth/tokens';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';
-import { agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
+import { alarmDeliveries, alarmSources, agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
 import { makeSiteWithUnit, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
+import { newSourceSecret, sealSecret, signatureHeader } from '../../apps/api/src/modules/alarm-sources/signature';
 import { nextWeekday, type Caller, type MatrixFixture, type Side } from './matrix-fixture';
 
 export type Method = 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
@@ -100,6 +105,8 @@ export interface RequestSpec {
   query?: Record<string, string>;
   /** Sent as multipart/form-data (with `body`'s fields as form fields). */
   files?: { field: string; name: string; content: Buffer; contentType: string }[];
+  /** Extra request headers (e.g. a machine route's signature). */
+  headers?: Record<string, string>;
 }
 
 export interface RouteRow {
@@ -254,6 +261,22 @@ async function bareUnit(f: MatrixFixture, side: Side) {
   return u!;
 }
 
+/** An alarm source at the side's site, with its secret. */
+async function alarmSourceOf(f: MatrixFixture, side: Side) {
+  const secret = newSourceSecret();
+  const [s] = await f.db.insert(alarmSources).values({ branchId: side.branch.id, siteId: side.site.id, name: `BMS ${unique()}`, secretBox: sealSecret(f.ctx.secret, secret) }).returning();
+  return { source: s!, secret };
+}
+
+/** A signed delivery whose unit tag matched no unit of the site. */
+async function unmatchedDelivery(f: MatrixFixture, side: Side) {
+  const { source } = await alarmSourceOf(f, side);
+  const [d] = await f.db
+    .insert(alarmDeliveries)
+    .values({ sourceId: source.id, branchId: side.branch.id, deliveryId: unique(), status: 'unmatched', reason: 'unknown_unit', unitTag: 'AHU-X', code: 'FAN', raisedAt: f.ctx.clock.now(), receivedAt: f.ctx.clock.now() })
+    .returning();
+  return d!;
+}
 
 export const routeTable: RouteRow[] = [
   // ── health, config, auth ────────────────────────────────────────────────────────────────
@@ -1078,6 +1101,61 @@ export const routeTable: RouteRow[] = [
     body: bookRepairSchema,
     textFields: ['notes'],
     request: async (f, side) => ({ path: `/api/leak-cases/${(await openLeakCase(f, side)).id}/repair-visit`, body: { priority: 'high', notes: 'Bring nitrogen' } }),
+  },
+
+  // ── Alarm sources (managers) and the signed ingest route (machine-to-machine) ─────────
+  {
+    method: 'GET',
+    path: '/api/alarm-sources',
+    expect: roles(managers, 200, { scoped: true }),
+    query: alarmSourceListQuerySchema,
+    request: (_f, side) => ({ path: '/api/alarm-sources', query: { branchId: side.branch.id } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/alarm-sources',
+    expect: roles(managers, 201, { scoped: true }),
+    body: alarmSourceCreateSchema,
+    textFields: ['name'],
+    request: (_f, side) => ({ path: '/api/alarm-sources', body: { siteId: side.site.id, name: 'Roof BMS' } }),
+  },
+  {
+    method: 'PATCH',
+    path: '/api/alarm-sources/:id',
+    expect: roles(managers, 200, { scoped: true }),
+    body: alarmSourcePatchSchema,
+    textFields: ['name'],
+    request: async (f, side) => ({ path: `/api/alarm-sources/${(await alarmSourceOf(f, side)).source.id}`, body: { name: 'Penthouse BMS', enabled: false } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/alarm-sources/:id/rotate',
+    expect: roles(managers, 200, { scoped: true }),
+    request: async (f, side) => ({ path: `/api/alarm-sources/${(await alarmSourceOf(f, side)).source.id}/rotate` }),
+  },
+  {
+    method: 'POST',
+    path: '/api/alarm-sources/deliveries/:id/map',
+    expect: roles(managers, 200, { scoped: true }),
+    body: mapDeliverySchema,
+    request: async (f, side) => ({ path: `/api/alarm-sources/deliveries/${(await unmatchedDelivery(f, side)).id}/map`, body: { unitId: side.unit.id } }),
+  },
+  {
+    method: 'POST',
+    path: '/api/ingest/alarms/:sourceId',
+    // The signature is the credential: any caller, session or not, with a signed delivery gets 202.
+    expect: open(202),
+    noBadInput: 'the signature is checked before the body is read; malformed, unsigned and oversized bodies are covered in modules/alarm-sources/alarm-sources.test.ts',
+    request: async (f, side) => {
+      const { source, secret } = await alarmSourceOf(f, side);
+      const body = { deliveryId: unique(), unitTag: side.unit.tag, code: 'LP1', raisedAt: f.ctx.clock.now().toISOString() };
+      const ts = String(Math.floor(f.ctx.clock.now().getTime() / 1000));
+      return {
+        path: `/api/ingest/alarms/${source.id}`,
+        body,
+        headers: { 'X-Coilpath-Timestamp': ts, 'X-Coilpath-Signature': signatureHeader(secret, ts, Buffer.from(JSON.stringify(body))) },
+      };
+    },
   },
 
   // ── Agreements (owners, branch managers) ────────────────────────────────────────────────

@@ -10,6 +10,8 @@ import { fileMissing, HttpError } from './lib/errors';
 import { requestIdInErrors } from './lib/errors';
 import { createLogger, requestLogger } from './lib/logger';
 import { StoredFileMissing } from './storage/storage';
+import { badText } from './lib/unstorable-text';
+import { ingestRoutes } from './modules/alarm-sources/alarm-sources.routes';
 import { apiRoutes } from './routes';
 import { serveWebApp } from './web-static';
 
@@ -23,15 +25,6 @@ function requireJsonBodies(req: Request, _res: Response, next: NextFunction) {
   if (length === 0 && !chunked) return next();
   if (req.is('application/json') || req.is('multipart/form-data')) return next();
   next(new HttpError(415, 'unsupported_media_type', 'Send the request body as JSON (Content-Type: application/json).'));
-}
-
-const loneSurrogate = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
-
-/** Text PostgreSQL cannot store: U+0000 (text) and unpaired surrogates (jsonb). */
-function badText(v: unknown, depth = 0): boolean {
-  if (typeof v === 'string') return v.includes('\u0000') || loneSurrogate.test(v);
-  if (depth > 32 || !v || typeof v !== 'object') return false;
-  return Object.entries(v).some(([k, x]) => badText(k) || badText(x, depth + 1));
 }
 
 /**
@@ -82,6 +75,9 @@ export function createApp(ctx: AppContext): express.Express {
   });
   app.use('/api', sameOriginOnly(ctx));
   app.use('/api', requireJsonBodies);
+  // Machine-to-machine (lib/machine-routes.ts): signed alarms read their exact bytes with their own raw
+  // parser, before the JSON parser and without the session cookie (authenticate is mounted after).
+  app.use('/api/ingest', ingestRoutes(ctx));
   // CSV imports carry a whole file: up to 6 MB of units (8 MB as base64), 900 kB of alarms (1.2 MB as
   // base64); every other body stays small.
   app.use('/api/units/import', express.json({ limit: '9mb' }));

@@ -16,10 +16,12 @@ import { fixQualityRoutes, warrantyClaimRoutes } from './modules/fix-quality/fix
 import { unitFileRoutes, unitSearchRoutes } from './modules/unit-file/unit-file.routes';
 import { alarmsRoutes, leakCasesRoutes, watchlistRoutes } from './modules/watchlist/watchlist.routes';
 import { agreementsRoutes } from './modules/agreements/agreements.routes';
+import { alarmSourcesRoutes } from './modules/alarm-sources/alarm-sources.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
  * applies its own role and branch rules. An unknown path falls through to the 404 in app.ts.
+ * Machine-to-machine routes (`/api/ingest`, `lib/machine-routes.ts`) are mounted in app.ts, before the body parsers.
  */
 export function apiRoutes(ctx: AppContext): Router {
   const api = Router();
@@ -50,5 +52,6 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/watchlist', requireAuth, watchlistRoutes(ctx));
   api.use('/leak-cases', requireAuth, leakCasesRoutes(ctx));
   api.use('/agreements', requireAuth, agreementsRoutes(ctx));
+  api.use('/alarm-sources', requireAuth, alarmSourcesRoutes(ctx));
   return api;
 }

@@ -39,6 +39,29 @@ describe('repeatAlarms', () => {
     expect(r[0]).toMatchObject({ count: 3, first: at(50 * DAY), last: at(52 * DAY), totalCount: 5, circuits: [], circuitsDiffer: false });
   });
 
+  it('reports the latest span when two spans hold as many alarms (product rule: act on the most recent burst)', () => {
+    const times = [0, 1, 50, 51].map((d) => at(d * DAY));
+    const r = repeatAlarms(times.map((raisedAt) => ({ unitId: 'U', circuit: null, code: 'E1', raisedAt })), { windowDays: 7 });
+    expect(r).toHaveLength(1);
+    expect(r[0]).toMatchObject({ count: 2, first: at(50 * DAY), last: at(51 * DAY), totalCount: 4 });
+    // Three equal spans in input order that is not time order: still the latest.
+    const shuffled = [90, 0, 45, 1, 91, 46].map((d) => ({ unitId: 'U', circuit: null, code: 'E1', raisedAt: at(d * DAY) }));
+    expect(repeatAlarms(shuffled, { windowDays: 7 })[0]).toMatchObject({ count: 2, first: at(90 * DAY), last: at(91 * DAY) });
+  });
+
+  it('compares alarm codes without regard to case and reports the spelling of the span\'s last alarm', () => {
+    const alarms: UnitAlarm[] = [
+      { unitId: 'RTU-1', circuit: 1, code: 'lp1', raisedAt: at(0) },
+      { unitId: 'RTU-1', circuit: 1, code: 'LP1', raisedAt: at(2 * DAY) },
+      { unitId: 'RTU-1', circuit: 1, code: 'Lp1 ', raisedAt: at(DAY) },
+      { unitId: 'RTU-1', circuit: 1, code: 'HP1', raisedAt: at(DAY) },
+    ];
+    const r = repeatAlarms(alarms, { minCount: 3 });
+    expect(r).toEqual([{ unitId: 'RTU-1', code: 'LP1', count: 3, first: at(0), last: at(2 * DAY), circuits: [1], circuitsDiffer: false, totalCount: 3 }]);
+    // Two spellings alone would not have crossed a rule of 3 before: now they do, and HP1 stays apart.
+    expect(repeatAlarms(alarms, { minCount: 2 }).map((g) => g.code)).toEqual(['LP1']);
+  });
+
   it('asks "in the last M days" with asOf (inclusive at both ends)', () => {
     const alarms = [0, 10, 20, 40].map((d) => ({ unitId: 'U', circuit: 'A', code: 'E', raisedAt: at(d * DAY) }));
     const r = repeatAlarms(alarms, { windowDays: 30, asOf: at(40 * DAY) });

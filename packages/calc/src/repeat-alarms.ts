@@ -7,6 +7,14 @@ function parseInstant(v: string | Date): number {
   return typeof v === 'string' ? Date.parse(v) : Number.NaN;
 }
 
+/**
+ * The key two alarm codes are the same code by: without regard to case (Unicode default case folding
+ * approximated by upper-casing, locale-independent), surrounding spaces dropped.
+ */
+export function sameCode(code: string): string {
+  return code.trim().toUpperCase();
+}
+
 export interface UnitAlarm {
   unitId: string;
   /** Circuit the controller reported (e.g. 1, 2, 'A'). */
@@ -46,8 +54,11 @@ export interface RepeatAlarmGroup {
  * The window: a group repeats when at least `minCount` of its alarms have raisedAt values lying
  * within a span of `windowDays` days — last − first ≤ windowDays × 24 h, inclusive (so exactly N in
  * exactly M days counts; N spread over M days + 1 ms does not). Without `asOf` the reported span is
- * the one holding the most alarms (the earliest such span on a tie); with `asOf` it is
- * [asOf − windowDays, asOf]. Results are sorted by count (descending), then unit and code.
+ * the one holding the most alarms (the latest such span on a tie: the most recent burst is the one
+ * to act on); with `asOf` it is [asOf − windowDays, asOf]. Alarm codes are compared without regard to
+ * case ("lp1" and "LP1" are one code, as a controller and a person typing may spell it); a group reports
+ * the code as spelled by the last alarm of its span. Results are sorted by count (descending), then unit
+ * and code.
  */
 export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOptions = {}): RepeatAlarmGroup[] {
   const windowDays = opts.windowDays ?? 30;
@@ -79,10 +90,11 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
       byCode = new Map();
       buckets.set(a.unitId, byCode);
     }
-    let b = byCode.get(a.code);
+    const key = sameCode(a.code);
+    let b = byCode.get(key);
     if (!b) {
       b = { unitId: a.unitId, code: a.code, idx: [], total: 0 };
-      byCode.set(a.code, b);
+      byCode.set(key, b);
       all.push(b);
     }
     b.total++;
@@ -105,7 +117,8 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
       for (let right = 0; right < idx.length; right++) {
         const tr = times[idx[right] as number] as number;
         while (tr - (times[idx[left] as number] as number) > windowMs) left++;
-        if (right - left + 1 > bestLen) {
+        // `>=`: on a tie the later span wins.
+        if (right - left + 1 >= bestLen) {
           bestLen = right - left + 1;
           from = left;
           to = right;
@@ -124,7 +137,7 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
     }
     out.push({
       unitId: b.unitId,
-      code: b.code,
+      code: (alarms[idx[to] as number] as UnitAlarm).code,
       count,
       first: new Date(times[idx[from] as number] as number).toISOString(),
       last: new Date(times[idx[to] as number] as number).toISOString(),

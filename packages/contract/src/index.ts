@@ -11,4 +11,5 @@ export * from './roster';
 export * from './fix-quality';
 export * from './unit-file';
 export * from './watchlist';
+export * from './alarm-sources';
 export * from './agreements';

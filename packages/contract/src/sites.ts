@@ -221,6 +221,8 @@ export interface HistoryCounts {
   leakCases: number;
   findings: number;
   attachments: number;
+  /** Controllers registered for the site (alarm sources): their deliveries are history too. */
+  alarmSources: number;
 }
 
 // ---------------------------------------------------------------------------------------------

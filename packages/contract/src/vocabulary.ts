@@ -206,6 +206,30 @@ export const alarmSources = ['form', 'csv', 'api', 'controller'] as const;
 export const alarmSourceSchema = z.enum(alarmSources);
 export type AlarmSource = z.infer<typeof alarmSourceSchema>;
 
+/** What became of a request an alarm source made (see `alarm_deliveries`). */
+export const alarmDeliveryStatuses = ['accepted', 'unmatched', 'mapped', 'rejected'] as const;
+export const alarmDeliveryStatusSchema = z.enum(alarmDeliveryStatuses);
+export type AlarmDeliveryStatus = z.infer<typeof alarmDeliveryStatusSchema>;
+export const alarmDeliveryStatusLabels: Record<AlarmDeliveryStatus, string> = {
+  accepted: 'Accepted',
+  unmatched: 'Unknown unit tag',
+  mapped: 'Mapped to a unit',
+  rejected: 'Rejected',
+};
+
+/** Why an alarm source's request was refused. */
+export const alarmRejectionReasons = ['missing_signature', 'bad_signature', 'timestamp_skew', 'source_disabled', 'malformed_body', 'invalid_body', 'raised_in_future'] as const;
+export type AlarmRejectionReason = (typeof alarmRejectionReasons)[number];
+export const alarmRejectionReasonLabels: Record<AlarmRejectionReason, string> = {
+  missing_signature: 'No signature or timestamp header',
+  bad_signature: 'The signature does not match the secret',
+  timestamp_skew: 'The timestamp is more than 5 minutes from Coilpath\'s clock',
+  source_disabled: 'The source is disabled',
+  malformed_body: 'The body is not JSON',
+  invalid_body: 'The body lacks a field or has a wrong one',
+  raised_in_future: 'The alarm is dated in the future',
+};
+
 export const attachmentKinds = ['photo', 'nameplate', 'document'] as const;
 export const attachmentKindSchema = z.enum(attachmentKinds);
 export type AttachmentKind = z.infer<typeof attachmentKindSchema>;

@@ -546,6 +546,59 @@ export const alarms = pgTable('alarms', {
   index('alarms_unit_raised_idx').on(t.unitId, t.raisedAt),
 ]);
 
+/**
+ * A controller at a site that posts alarms to `POST /api/ingest/alarms/:id`, signed with HMAC-SHA256.
+ * HMAC needs the secret itself, so it is kept — encrypted with AES-256-GCM under a key derived from the
+ * server's secret (`modules/alarm-sources/secret-box.ts`), never in clear. After a rotation the previous
+ * secret stays valid until `previous_valid_until`.
+ */
+export const alarmSources = pgTable('alarm_sources', {
+  id: id(),
+  branchId: uuid().notNull().references(() => branches.id),
+  siteId: uuid().notNull().references(() => sites.id),
+  name: text().notNull(),
+  secretBox: text().notNull(),
+  previousSecretBox: text(),
+  previousValidUntil: instant(),
+  disabledAt: instant(),
+  createdById: uuid().references(() => users.id),
+  rotatedAt: instant(),
+  createdAt: createdAt(),
+}, (t) => [index('alarm_sources_branch_idx').on(t.branchId), index('alarm_sources_site_idx').on(t.siteId)]);
+
+/**
+ * Every request a known alarm source made: `accepted` (an alarm was stored), `unmatched` (signed, but no
+ * unit with that tag at the site — a manager maps it), `mapped` (mapped afterwards), `rejected` (refused,
+ * with the reason; a rejected delivery never holds its delivery id, so a forged request cannot block a
+ * real one). One signed delivery id per source (`alarm_deliveries_source_delivery_uq`).
+ */
+export const alarmDeliveries = pgTable('alarm_deliveries', {
+  id: id(),
+  sourceId: uuid().notNull().references(() => alarmSources.id),
+  branchId: uuid().notNull().references(() => branches.id),
+  deliveryId: text(),
+  status: text().$type<'accepted' | 'unmatched' | 'mapped' | 'rejected'>().notNull(),
+  reason: text(),
+  unitTag: text(),
+  code: text(),
+  circuit: integer(),
+  raisedAt: instant(),
+  message: text(),
+  alarmId: uuid().references(() => alarms.id),
+  receivedAt: instant().notNull(),
+}, (t) => [
+  uniqueIndex('alarm_deliveries_source_delivery_uq').on(t.sourceId, t.deliveryId),
+  index('alarm_deliveries_source_received_idx').on(t.sourceId, t.receivedAt),
+]);
+
+/** The repeat-alarm e-mail: at most one per unit and branch-local day (the primary key claims the day). */
+export const repeatAlarmNotices = pgTable('repeat_alarm_notices', {
+  unitId: uuid().notNull().references(() => units.id),
+  day: date({ mode: 'string' }).notNull(),
+  code: text().notNull(),
+  sentAt: instant().notNull(),
+}, (t) => [primaryKey({ columns: [t.unitId, t.day] })]);
+
 export const attachments = pgTable('attachments', {
   id: id(),
   visitId: uuid().references(() => visits.id),

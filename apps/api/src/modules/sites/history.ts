@@ -5,6 +5,7 @@ import {
   agreements,
   agreementUnits,
   alarms,
+  alarmSources,
   attachments,
   findings,
   leakCases,
@@ -22,7 +23,7 @@ export async function historyCounts(db: Tx, unitIds: string[], siteId?: string):
   const anyUnit = unitIds.length > 0;
   const woWhere = siteId ? eq(workOrders.siteId, siteId) : anyUnit ? inArray(workOrders.unitId, unitIds) : undefined;
   const zero = Promise.resolve([{ n: 0 }]);
-  const [workOrderCount, visitCount, readingCount, alarmCount, refrigerantCount, agreementCount, leakCount, findingCount, attachmentCount] =
+  const [workOrderCount, visitCount, readingCount, alarmCount, refrigerantCount, agreementCount, leakCount, findingCount, attachmentCount, sourceCount] =
     await Promise.all([
       woWhere ? n(db.select({ n: count() }).from(workOrders).where(woWhere)) : 0,
       woWhere
@@ -37,6 +38,7 @@ export async function historyCounts(db: Tx, unitIds: string[], siteId?: string):
       n(anyUnit ? db.select({ n: count() }).from(leakCases).where(inArray(leakCases.unitId, unitIds)) : zero),
       n(anyUnit ? db.select({ n: count() }).from(findings).where(inArray(findings.unitId, unitIds)) : zero),
       n(anyUnit ? db.select({ n: count() }).from(attachments).where(inArray(attachments.unitId, unitIds)) : zero),
+      siteId ? n(db.select({ n: count() }).from(alarmSources).where(eq(alarmSources.siteId, siteId))) : 0,
     ]);
   return {
     workOrders: workOrderCount,
@@ -48,6 +50,7 @@ export async function historyCounts(db: Tx, unitIds: string[], siteId?: string):
     leakCases: leakCount,
     findings: findingCount,
     attachments: attachmentCount,
+    alarmSources: sourceCount,
   };
 }
 
@@ -61,6 +64,7 @@ const labels: Record<keyof HistoryCounts, [string, string]> = {
   leakCases: ['leak case', 'leak cases'],
   findings: ['finding', 'findings'],
   attachments: ['photo or document', 'photos or documents'],
+  alarmSources: ['alarm source', 'alarm sources'],
 };
 
 /** Refuses a delete with 409 when anything is recorded against the record, naming what. */

@@ -8,7 +8,7 @@
 import { TZDate } from '@date-fns/tz';
 import { and, eq, isNull } from 'drizzle-orm';
 import { DUE_SOON_DAYS, type SessionUser } from '@coilpath/contract';
-import { zonedDate } from '@coilpath/calc';
+import { sameCode, zonedDate } from '@coilpath/calc';
 import type { AppContext } from '../../context';
 import { branches, jobRuns, users } from '../../db/schema';
 import { scheduledJobs, type ScheduledJob } from '../../jobs/scheduler';
@@ -73,8 +73,8 @@ async function digestForBranch(ctx: AppContext, b: typeof branches.$inferSelect,
     repeatAlarmUnits(ctx, [b], now),
     repeatAlarmUnits(ctx, [b], new Date(now.getTime() - 86_400_000)),
   ]);
-  const before = new Set(yesterday.units.map((u) => `${u.unitId}|${u.code}`));
-  const fresh = today.units.filter((u) => !before.has(`${u.unitId}|${u.code}`));
+  const before = new Set(yesterday.units.map((u) => `${u.unitId}|${sameCode(u.code)}`));
+  const fresh = today.units.filter((u) => !before.has(`${u.unitId}|${sameCode(u.code)}`));
   if (cases.length === 0 && fresh.length === 0) return { branchId: b.id, runKey, status: 'nothing_to_report', recipients: [] };
   if (managers.length === 0) return { branchId: b.id, runKey, status: 'no_recipients', recipients: [] };
 

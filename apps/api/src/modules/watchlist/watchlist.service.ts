@@ -19,7 +19,7 @@ import {
   leakObligationStateLabels,
   workOrderLabel,
 } from '@coilpath/contract';
-import { LEAK_RULES, addDays, repeatAlarms, requiredCertificationFor, verificationDeadlines, zonedInstant } from '@coilpath/calc';
+import { LEAK_RULES, addDays, repeatAlarms, requiredCertificationFor, sameCode, verificationDeadlines, zonedInstant } from '@coilpath/calc';
 import type { AppContext } from '../../context';
 import type { Db, Tx } from '../../db/client';
 import {
@@ -141,7 +141,7 @@ export async function repeatAlarmUnits(ctx: AppContext, scope: BranchInfo[], asO
       });
     }
     const f = findingRows
-      .filter((x) => x.unitId === g.unitId && x.createdAt.getTime() >= from && (x.alarmCode === null || x.alarmCode === g.code))
+      .filter((x) => x.unitId === g.unitId && x.createdAt.getTime() >= from && (x.alarmCode === null || sameCode(x.alarmCode) === sameCode(g.code)))
       .map((x) => ({ ...x, createdAt: x.createdAt.toISOString() }));
     out.units.push({
       unitId: g.unitId,

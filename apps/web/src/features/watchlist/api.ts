@@ -1,5 +1,11 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type {
+  AlarmDeliveryRow,
+  AlarmSourceCreate,
+  AlarmSourceList,
+  AlarmSourcePatch,
+  AlarmSourceRow,
+  AlarmSourceSecret,
   AlarmImportResult,
   AlarmInput,
   AlarmRow,
@@ -72,5 +78,30 @@ export function useQueueReturnVisit() {
   return useMutation({
     mutationFn: ({ id, body }: { id: string; body: QueueReturnVisit }) => api.patch<{ returnVisit: ReturnVisitRow }>(`/api/watchlist/return-visits/${id}`, body),
     onSuccess: refresh,
+  });
+}
+
+/* ---------------------------------------------------------------- alarm sources */
+
+export function useAlarmSources(branchId: string | undefined) {
+  return useQuery({ queryKey: [...key(branchId), 'alarm-sources'], queryFn: () => api.get<AlarmSourceList>('/api/alarm-sources', { branchId }).then((r) => r.sources) });
+}
+export function useCreateAlarmSource() {
+  const refresh = useRefresh();
+  return useMutation({ mutationFn: (body: AlarmSourceCreate) => api.post<AlarmSourceSecret>('/api/alarm-sources', body), onSuccess: refresh });
+}
+export function useRotateAlarmSource() {
+  const refresh = useRefresh();
+  return useMutation({ mutationFn: (id: string) => api.post<AlarmSourceSecret>(`/api/alarm-sources/${id}/rotate`, {}), onSuccess: refresh });
+}
+export function usePatchAlarmSource() {
+  const refresh = useRefresh();
+  return useMutation({ mutationFn: ({ id, patch }: { id: string; patch: AlarmSourcePatch }) => api.patch<{ source: AlarmSourceRow }>(`/api/alarm-sources/${id}`, patch), onSuccess: refresh });
+}
+export function useMapDelivery() {
+  const refresh = useRefresh();
+  return useMutation({
+    mutationFn: ({ id, unitId }: { id: string; unitId: string }) => api.post<{ delivery: AlarmDeliveryRow; alarmId: string }>(`/api/alarm-sources/deliveries/${id}/map`, { unitId }),
+    onSettled: refresh,
   });
 }

@@ -7,6 +7,7 @@ import { Button } from '@/components/ui/button';
 import { LeakCasesSection } from './leak-cases';
 import { RepeatAlarmsSection, ReturnVisitsSection } from './sections';
 import { AlarmForm, AlarmImport } from './alarm-entry';
+import { AlarmSourcesSection } from './alarm-sources';
 import { appNow } from '@/lib/now';
 
 /** The branch manager's Watchlist: leak-case deadlines, repeat-alarm units, return visits to book. */
@@ -40,6 +41,7 @@ export default function WatchlistPage() {
         <LeakCasesSection branchId={branchId} />
         <RepeatAlarmsSection branchId={branchId} timeZone={timeZone} />
         <ReturnVisitsSection branchId={branchId} timeZone={timeZone} />
+        <AlarmSourcesSection branchId={branchId} timeZone={timeZone} />
       </div>
     </>
   );
