@@ -15,6 +15,9 @@ import type { ModelAlertRef } from './work-orders';
  * - return visits per service call: return-visit work orders linked to eligible jobs ÷ eligible jobs;
  * - days to resolve: from the job being opened to the close of the last visit of the job and its follow-ups,
  *   for eligible jobs whose last visit closed resolved.
+ * - pending (maturity): a job whose window has not run out as of "now" (a follow-up opened at the window's
+ *   last instant still counts) cannot be called a first-time fix yet; it counts as pending and in no other
+ *   figure until the window closes.
  * The period holds the jobs whose first visit closed between `from` 00:00 and `to` 24:00 UTC; months are UTC months.
  */
 export const fixQualityTables = ['byBranch', 'byTechnician', 'byMonth', 'byModel', 'byCause', 'byOrigin', 'factoryDefects', 'modelAlerts'] as const;
@@ -66,6 +69,11 @@ export const fixQualityFiguresSchema = z.object({
   /** Jobs counted in `avgDaysToResolve`. */
   resolvedJobs: z.number().int(),
   avgDaysToResolve: z.number().nullable(),
+  /**
+   * Service calls (not declined) whose callback window has not yet run out as of the report's "now": a
+   * callback may still come, so they are counted here only, in no other figure, until their window closes.
+   */
+  pending: z.number().int(),
 });
 export type FixQualityFigures = z.infer<typeof fixQualityFiguresSchema>;
 

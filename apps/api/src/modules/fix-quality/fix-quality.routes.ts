@@ -33,7 +33,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
     '/fix-quality',
     readers,
     endpoint({ query: fixQualityQuerySchema }, ({ query, user }) =>
-      fixQualityReport(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId)),
+      fixQualityReport(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId), ctx.clock.now()),
     ),
   );
 
@@ -68,7 +68,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
           ? tableCsv(query.table, { defects: await factoryDefectReview(ctx.db, period, branchId) })
           : query.table === 'modelAlerts'
             ? tableCsv(query.table, { alerts: await modelAlerts(ctx.db, user) })
-            : tableCsv(query.table, { report: await fixQualityReport(ctx.db, period, branchId) });
+            : tableCsv(query.table, { report: await fixQualityReport(ctx.db, period, branchId, ctx.clock.now()) });
       res.setHeader('Content-Type', 'text/csv; charset=utf-8');
       res.setHeader('Content-Disposition', `attachment; filename="${csvFileName(query.table, query.from, query.to)}"`);
       res.send(csv);
@@ -82,7 +82,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
       const branchId = resolveBranch(user, query.branchId);
       const period = { from: query.from, to: query.to };
       const [report, defects, alerts, branch] = await Promise.all([
-        fixQualityReport(ctx.db, period, branchId),
+        fixQualityReport(ctx.db, period, branchId, ctx.clock.now()),
         factoryDefectReview(ctx.db, period, branchId),
         modelAlerts(ctx.db, user),
         branchId ? ctx.db.select({ name: branches.name }).from(branches).where(eq(branches.id, branchId)).limit(1) : Promise.resolve([]),

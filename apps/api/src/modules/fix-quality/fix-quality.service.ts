@@ -92,6 +92,7 @@ interface CountRow {
   return_visits: number | string | null;
   resolved_jobs: number | string;
   days: number | string | null;
+  pending: number | string | null;
 }
 
 /** The kinds of group the report answers (`g` of a counted row; the bits of the former GROUPING SETS query). */
@@ -101,13 +102,19 @@ const MONTH_MS = (y: number, m: number) => Date.UTC(y, m, 1);
 
 /**
  * Splits [start, end) (UTC midnights) into the whole calendar months (UTC) inside it, read from
- * `fix_quality_sums`, and the days before and after them, counted from `service_call_facts`.
+ * `fix_quality_sums`, and the days before and after them, counted from `service_call_facts`. With
+ * `sumsUntil`, only months that end at or before that instant come from the sums (the sums hold the counts
+ * of mature jobs; see `fixQualityReport`), the days after them are counted job by job.
  */
-export function splitByMonths(start: string, end: string): { months: [string, string] | null; edges: [string, string][] } {
+export function splitByMonths(start: string, end: string, sumsUntil?: string): { months: [string, string] | null; edges: [string, string][] } {
   const s = new Date(start);
   const e = new Date(end);
   const firstFull = s.getUTCDate() === 1 ? s.getTime() : MONTH_MS(s.getUTCFullYear(), s.getUTCMonth() + 1);
-  const lastFullEnd = MONTH_MS(e.getUTCFullYear(), e.getUTCMonth());
+  let lastFullEnd = MONTH_MS(e.getUTCFullYear(), e.getUTCMonth());
+  if (sumsUntil !== undefined) {
+    const h = new Date(sumsUntil);
+    lastFullEnd = Math.min(lastFullEnd, MONTH_MS(h.getUTCFullYear(), h.getUTCMonth()));
+  }
   const iso = (ms: number) => new Date(ms).toISOString();
   if (firstFull >= lastFullEnd) return { months: null, edges: s.getTime() < e.getTime() ? [[start, end]] : [] };
   const edges: [string, string][] = [];
@@ -137,12 +144,17 @@ export function splitByMonths(start: string, end: string): { months: [string, st
  * and for eligible jobs: return visits booked off the job (any time), and the days from opening to the last
  * closed visit of the job and its follow-ups when that visit resolved it (summed exactly in microseconds).
  */
-export async function reportGroups(db: Tx, range: { start: string; curStart: string; end: string }, branchId: string | undefined): Promise<CountRow[]> {
+export async function reportGroups(
+  db: Tx,
+  range: { start: string; curStart: string; end: string },
+  branchId: string | undefined,
+  maturity: { at: Date; sumsUntil: string },
+): Promise<CountRow[]> {
   const ofBranch = (alias: string) => (branchId ? sql`AND ${sql.raw(alias)}.branch_id = ${branchId}` : sql``);
   const columns = sql`branch_id, month, dim, tech_id, make, model, cause_code, origin, jobs, eligible, first_time_fixed,
-    resolved_first_visits, callbacks, return_visits, resolved_jobs, resolve_us`;
+    resolved_first_visits, callbacks, return_visits, resolved_jobs, resolve_us, 0 AS pending`;
   const parts = (cur: boolean, from: string, to: string, onlyTotals: boolean): SQL[] => {
-    const { months, edges } = splitByMonths(from, to);
+    const { months, edges } = splitByMonths(from, to, maturity.sumsUntil);
     const flag = sql.raw(cur ? 'true' : 'false');
     const out: SQL[] = [];
     if (months) {
@@ -160,8 +172,8 @@ export async function reportGroups(db: Tx, range: { start: string; curStart: str
           ${onlyTotals ? sql`NULL::uuid AS tech_id, NULL::text AS make, NULL::text AS model, NULL::text AS cause_code` : sql`tech_id, make, model, cause_code`}, origin,
           count(*)::int AS jobs, sum(eligible)::int AS eligible, sum(first_time_fixed)::int AS first_time_fixed,
           sum(resolved_first_visits)::int AS resolved_first_visits, sum(callbacks)::int AS callbacks, sum(return_visits)::int AS return_visits,
-          sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::bigint AS resolve_us
-        FROM fix_quality_jobs j WHERE (${within}) ${ofBranch('j')}
+          sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::bigint AS resolve_us, sum(pending)::int AS pending
+        FROM fix_quality_jobs_at(${maturity.at.toISOString()}::timestamptz) j WHERE (${within}) ${ofBranch('j')}
         GROUP BY branch_id, month, ${onlyTotals ? sql`origin` : sql`GROUPING SETS ((tech_id), (make, model), (cause_code), (origin))`}`);
     }
     return out;
@@ -170,7 +182,7 @@ export async function reportGroups(db: Tx, range: { start: string; curStart: str
   if (all.length === 0) return [];
   const sums = sql`sum(eligible)::int AS eligible, sum(first_time_fixed)::int AS first_time_fixed,
       sum(resolved_first_visits)::int AS resolved_first_visits, sum(callbacks)::int AS callbacks, sum(return_visits)::int AS return_visits,
-      sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::float8 / 86400000000 AS days`;
+      sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::float8 / 86400000000 AS days, sum(pending)::int AS pending`;
   const g = (bits: number) => sql.raw(String(bits));
   // Each job is counted once in every dimension: the totals, per branch and per month add up one of them.
   return rows<CountRow>(
@@ -221,6 +233,7 @@ export function figuresOf(r: CountRow | undefined): FixQualityFigures {
     returnVisitsPerServiceCall: q.eligible === 0 ? null : returnVisits / q.eligible,
     resolvedJobs,
     avgDaysToResolve: resolvedJobs === 0 ? null : n(r?.days) / resolvedJobs,
+    pending: n(r?.pending),
   };
 }
 
@@ -247,17 +260,25 @@ function monthsOf(p: Period): string[] {
 
 export const NONE = '(none recorded)';
 
-export async function fixQualityReport(db: Db, period: Period, branchId: string | undefined): Promise<FixQualityReport> {
+/**
+ * The report as of `at` (the server's clock). A job whose callback window has not run out by `at` is
+ * `pending` and counts in nothing else (`fix_quality_jobs_at`, migration 0012): its first-time fix cannot be
+ * known yet. The kept sums hold the counts of mature jobs, so they are read only for months that end at least
+ * the longest callback window of the branches shown before `at`; the later days are counted job by job.
+ */
+export async function fixQualityReport(db: Db, period: Period, branchId: string | undefined, at: Date): Promise<FixQualityReport> {
   const prev = previousPeriod(period);
   const cur = bounds(period);
-  const counted = await reportGroups(db, { start: bounds(prev).start, curStart: cur.start, end: cur.end }, branchId);
-  const current = counted.filter((r) => r.cur);
-  const ofKind = (g: number) => current.filter((r) => Number(r.g) === g);
-
   const branchRows = await db
     .select({ id: branches.id, name: branches.name, windowDays: branches.callbackWindowDays })
     .from(branches)
     .where(branchId ? eq(branches.id, branchId) : undefined);
+  const longestWindow = Math.max(0, ...branchRows.map((b) => b.windowDays));
+  const sumsUntil = new Date(at.getTime() - longestWindow * DAY_MS).toISOString();
+  const counted = await reportGroups(db, { start: bounds(prev).start, curStart: cur.start, end: cur.end }, branchId, { at, sumsUntil });
+  const current = counted.filter((r) => r.cur);
+  const ofKind = (g: number) => current.filter((r) => Number(r.g) === g);
+
   const windows = new Map(branchRows.map((b) => [b.id, b.windowDays]));
   const branchNames = new Map(branchRows.map((b) => [b.id, b.name]));
   const techIds = ofKind(GROUPED.tech).map((r) => r.tech_id!);

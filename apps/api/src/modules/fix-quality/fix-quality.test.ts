@@ -495,7 +495,7 @@ describe('exports', () => {
     expect(res.headers['content-disposition']).toContain('coilpath-fix-quality-byTechnician-2026-03-01-to-2026-03-31.csv');
     const lines = res.text.replace(/^\uFEFF/, '').trim().split(/\r\n/);
     expect(lines[0]).toBe(
-      'group,service_calls_eligible,first_time_fixed,first_time_fix_rate_pct,resolved_first_visits,callbacks,callback_rate_pct,return_visits,return_visits_per_service_call,jobs_resolved,avg_days_to_resolve',
+      'group,service_calls_eligible,first_time_fixed,first_time_fix_rate_pct,resolved_first_visits,callbacks,callback_rate_pct,return_visits,return_visits_per_service_call,jobs_resolved,avg_days_to_resolve,pending_in_callback_window',
     );
     expect(lines).toHaveLength(1 + 3); // TA1, TA2, TB1
   });
@@ -571,5 +571,64 @@ describe('exports', () => {
     const d = report.change.firstTimeFixRate;
     if (d !== null) expect(read.flat).toContain(`${d >= 0 ? '+' : '−'}${Math.abs(d * 100).toFixed(1)} pts`);
     expect(read.flat).not.toContain('\uFFFD');
+  });
+});
+
+describe('maturity: calls still inside their callback window', () => {
+  /**
+   * "Now" is 2026-07-01 12:00 UTC (this file's clock). Period June 2026. Branch A's window is 30 days, B's 14;
+   * a call is mature once now is past first close + window × 24 h (a callback opened at that instant still
+   * counts, so a window ending exactly now is still open):
+   *  MA1 A closed 06-01 11:59:59 resolved → window ends 07-01 11:59:59, a second before now: mature, fixed.
+   *  MA2 A closed 06-01 12:00:00 resolved → window ends exactly now: pending.
+   *  MA3 A closed 06-20 12:00 resolved, callback 06-25 → window ends 07-20: pending (not yet a callback figure).
+   *  MA4 A closed 06-10 declined → neither counted nor pending.
+   *  MB1 B closed 06-16 12:00 resolved → window ends 06-30 12:00: mature, fixed.
+   *  MB2 B closed 06-17 12:00:01 resolved → window ends 07-01 12:00:01: pending.
+   * Eligible 2 (MA1, MB1), both fixed the first time; pending 3.
+   */
+  const JUNE = '/api/reports/fix-quality?from=2026-06-01&to=2026-06-30';
+  beforeAll(async () => {
+    const A = { branchId: f.a.id, siteId: fx.u1.site.id, unitId: fx.u1.unit.id, techId: fx.ta1.id };
+    const B = { branchId: f.b.id, siteId: fx.u3.site.id, unitId: fx.u3.unit.id, techId: fx.tb1.id };
+    await job('MA1', { ...A, openedAt: '2026-06-01T08:00:00Z', closedAt: '2026-06-01T11:59:59Z', outcome: 'resolved' });
+    await job('MA2', { ...A, openedAt: '2026-06-01T08:00:00Z', closedAt: '2026-06-01T12:00:00Z', outcome: 'resolved' });
+    const ma3 = await job('MA3', { ...A, openedAt: '2026-06-20T08:00:00Z', closedAt: '2026-06-20T12:00:00Z', outcome: 'resolved' });
+    await workOrder({ ...A, kind: 'callback', openedAt: '2026-06-25T09:00:00Z', originWorkOrderId: ma3.id, state: 'unplaced' });
+    await job('MA4', { ...A, openedAt: '2026-06-10T08:00:00Z', closedAt: '2026-06-10T12:00:00Z', outcome: 'declined' });
+    await job('MB1', { ...B, openedAt: '2026-06-16T08:00:00Z', closedAt: '2026-06-16T12:00:00Z', outcome: 'resolved' });
+    await job('MB2', { ...B, openedAt: '2026-06-17T08:00:00Z', closedAt: '2026-06-17T12:00:01Z', outcome: 'resolved' });
+  });
+
+  it('counts a call as pending until its own branch’s window has run out, and in no rate', async () => {
+    const r = (await (await owner()).get(JUNE)).body as FixQualityReport;
+    expect(r.pending).toBe(3);
+    expect(r.eligible).toBe(2);
+    expect(r.firstTimeFixed).toBe(2);
+    expect(r.firstTimeFixRate).toBe(1);
+    // MA3's callback is not counted while the call is pending.
+    expect(r.callbacks).toBe(0);
+    expect(group(r, 'byBranch', f.a.id)).toMatchObject({ eligible: 1, pending: 2 });
+    expect(group(r, 'byBranch', f.b.id)).toMatchObject({ eligible: 1, pending: 1 });
+    expect(group(r, 'byMonth', '2026-06')).toMatchObject({ eligible: 2, pending: 3 });
+    // March's calls are long mature: nothing pending there.
+    expect(((await (await owner()).get(Q)).body as FixQualityReport).pending).toBe(0);
+  });
+
+  it('says in the CSV and the PDF how many calls are pending', async () => {
+    const agent = await owner();
+    const csv = await agent.get('/api/reports/fix-quality.csv?from=2026-06-01&to=2026-06-30&table=byMonth');
+    const rows = Papa.parse<Record<string, string>>(csv.text.replace(/^\uFEFF/, ''), { header: true, skipEmptyLines: true }).data;
+    expect(rows.find((x) => x.group === '2026-06')).toMatchObject({ service_calls_eligible: '2', pending_in_callback_window: '3' });
+    const pdf = await agent
+      .get('/api/reports/fix-quality.pdf?from=2026-06-01&to=2026-06-30')
+      .buffer(true)
+      .parse((res, cb) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
+    const read = await readPdf(pdf.body as Buffer);
+    expect(read.flat).toContain('3 calls are still inside their 14 or 30-day callback window');
   });
 });

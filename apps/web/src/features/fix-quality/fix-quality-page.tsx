@@ -205,7 +205,18 @@ export default function FixQualityPage() {
       ) : (
         <div className="flex flex-col gap-5">
           <Headlines r={q.data} />
-          {q.data.eligible === 0 && (
+          <p className="rounded-md border border-slate-line bg-white p-3 text-sm" role="status">
+            {q.data.pending === 0 ? (
+              <>No call of this period is still inside its {q.data.windowDays.join(' or ') || 30}-day callback window: every call is counted.</>
+            ) : (
+              <>
+                <strong className="tabular">{q.data.pending}</strong> {q.data.pending === 1 ? 'call is' : 'calls are'} still inside{' '}
+                {q.data.pending === 1 ? 'its' : 'their'} {q.data.windowDays.join(' or ') || 30}-day callback window: a callback may still come,
+                so {q.data.pending === 1 ? 'it is' : 'they are'} left out of the rates until the window closes.
+              </>
+            )}
+          </p>
+          {q.data.eligible === 0 && q.data.pending === 0 && (
             <p className="rounded-md border border-dashed border-slate-line bg-white p-4 text-sm text-slate">
               No service call had its first visit closed in this period{branchId ? ' in this branch' : ''}. Choose a longer period; the figures
               fill in as technicians close visits.
@@ -215,6 +226,10 @@ export default function FixQualityPage() {
             <summary className="cursor-pointer font-medium">How these figures are counted</summary>
             <ul className="mt-2 list-disc space-y-1 pl-5 text-slate">
               <li>Only service calls count, and only when their first visit was not declined by the customer.</li>
+              <li>
+                A call counts only once its callback window has run out; until then it is <strong>pending</strong>, shown apart and left out of
+                every rate, so a recent period is not flattered by calls that have not had time to come back.
+              </li>
               <li>
                 A call is <strong>fixed the first time</strong> when its first visit closed as resolved and no return visit or callback was
                 opened within the branch’s callback window ({q.data.windowDays.join(' or ') || 30} days) after that visit closed.
