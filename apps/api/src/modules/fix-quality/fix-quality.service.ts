@@ -8,7 +8,7 @@
  * `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
  */
 import { eq, inArray, sql, type SQL } from 'drizzle-orm';
-import { addDays, fixQualityFromCounts, zonedDate, zonedInstant } from '@coilpath/calc';
+import { addDays, fixQualityFromCounts, previousPeriod, zonedDate, zonedInstant } from '@coilpath/calc';
 import {
   causeCodeLabels,
   causeOriginLabels,
@@ -56,13 +56,8 @@ export interface Period {
 }
 
 const dayMs = (d: string) => Date.parse(`${d}T00:00:00Z`);
-const isoDay = (ms: number) => new Date(ms).toISOString().slice(0, 10);
 
-/** The period of equal length that ends the day before `from`. */
-export function previousPeriod(p: Period): Period {
-  const len = (dayMs(p.to) - dayMs(p.from)) / DAY_MS + 1;
-  return { from: isoDay(dayMs(p.from) - len * DAY_MS), to: isoDay(dayMs(p.from) - DAY_MS) };
-}
+/** The comparison period (same length, ending the day before `from`): `previousPeriod` in @coilpath/calc, shared with the screen. */
 
 /** [start, end) instants of a period of UTC calendar dates. */
 const bounds = (p: Period) => ({ start: new Date(dayMs(p.from)).toISOString(), end: new Date(dayMs(p.to) + DAY_MS).toISOString() });
