@@ -518,7 +518,7 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
 }
 
 /** Records a warranty claim's status, amount and reference for one factory-defect case. */
-export async function updateWarrantyClaim(db: Db, user: SessionUser, workOrderId: string, body: WarrantyClaimUpdate): Promise<WarrantyClaim> {
+export async function updateWarrantyClaim(db: Db, clock: Clock, user: SessionUser, workOrderId: string, body: WarrantyClaimUpdate): Promise<WarrantyClaim> {
   return db.transaction(async (tx) => {
     const [wo] = await tx.select({ id: workOrders.id, branchId: workOrders.branchId }).from(workOrders).where(eq(workOrders.id, workOrderId)).limit(1);
     if (!wo || (user.role !== 'owner' && wo.branchId !== user.branchId)) throw notFound('work order');
@@ -539,7 +539,7 @@ export async function updateWarrantyClaim(db: Db, user: SessionUser, workOrderId
       reference: body.reference !== undefined ? body.reference || null : (existing?.reference ?? null),
       notes: body.notes !== undefined ? body.notes || null : (existing?.notes ?? null),
       updatedById: user.id,
-      updatedAt: new Date(),
+      updatedAt: clock.now(),
     };
     const [saved] = await tx
       .insert(warrantyClaims)

@@ -337,6 +337,8 @@ describe('factory-defect review and warranty claims', () => {
     const ok = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed', amountCents: 26_000, reference: 'TM-CLM-1' });
     expect(ok.status).toBe(200);
     expect(ok.body.claim).toMatchObject({ status: 'claimed', amountCents: 26_000, reference: 'TM-CLM-1' });
+    // Stamped with the app's clock (this file runs at 2026-07-01 12:00 UTC), not the machine's.
+    expect(ok.body.claim.updatedAt).toBe('2026-07-01T12:00:00.000Z');
     const paid = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'paid' });
     expect(paid.body.claim).toMatchObject({ status: 'paid', amountCents: 26_000, reference: 'TM-CLM-1' });
     const review = await o.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31');
