@@ -110,7 +110,7 @@ export const fixQualityReportSchema = fixQualityFiguresSchema.extend({
 });
 export type FixQualityReport = z.infer<typeof fixQualityReportSchema>;
 
-/** Factory-defect review: one callback or return visit with a factory-defect finding. */
+/** Factory-defect review: one service call, callback or return visit with a factory-defect finding. */
 export const warrantyClaimSchema = z.object({
   status: warrantyClaimStatusSchema,
   amountCents: z.number().int().nullable(),
@@ -144,6 +144,8 @@ export const factoryDefectCaseSchema = z.object({
   refrigerantLb: z.number(),
   refrigerantCostCents: z.number().int(),
   costCents: z.number().int(),
+  /** The claim's recorded amount minus `costCents` (null while no amount is recorded: the claim defaults to the cost). */
+  amountDifferenceCents: z.number().int().nullable(),
   claim: warrantyClaimSchema,
 });
 export type FactoryDefectCase = z.infer<typeof factoryDefectCaseSchema>;
@@ -153,6 +155,8 @@ export const factoryDefectModelSchema = z.object({
   make: z.string(),
   model: z.string(),
   cases: z.number().int(),
+  /** Service calls whose own (first) visits found the factory defect. */
+  firstVisits: z.number().int(),
   callbacks: z.number().int(),
   returnVisits: z.number().int(),
   unitsAffected: z.number().int(),

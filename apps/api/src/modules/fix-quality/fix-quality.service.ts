@@ -356,10 +356,13 @@ const iso = (v: Date | string) => (v instanceof Date ? v : new Date(v)).toISOStr
 const textArray = (v: string[] | string): string[] => (Array.isArray(v) ? v : v.replace(/^{|}$/g, '').split(',').filter(Boolean));
 
 /**
- * The factory-defect cases: callbacks and return visits opened in the period with a finding of origin
- * `factory_defect` on one of their visits. A case costs the labour of its visits and of the visits of work
- * booked off it (a return visit whose origin is the callback) — recorded labour minutes, else on-site to
- * close — at the branch's labour rate, and the refrigerant added on those visits at the branch's price per pound.
+ * The factory-defect cases: service calls (first visits included: a warranty repair on the first visit is
+ * claimable too), callbacks and return visits opened in the period with a finding of origin `factory_defect`
+ * on one of their visits. A case costs the labour of its visits — and, for a callback or return visit, of the
+ * visits of work booked off it (a return visit whose origin is the callback; a service call's follow-ups are
+ * cases of their own) — recorded labour minutes, else on-site to close — at the branch's labour rate, and the
+ * refrigerant added on those visits at the branch's price per pound. The claim's amount defaults to that cost;
+ * `amountDifferenceCents` is the recorded amount minus the cost.
  */
 export async function factoryDefectCases(db: Tx, opts: { period?: Period; branchId?: string | undefined; workOrderId?: string }): Promise<FactoryDefectCase[]> {
   const range = opts.period ? bounds(opts.period) : null;
@@ -372,18 +375,18 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
     db,
     sql`
     WITH cases AS (
-      SELECT w.id, coalesce(w.unit_id, (array_agg(fd.unit_id ORDER BY fd.created_at) FILTER (WHERE fd.unit_id IS NOT NULL))[1]) AS unit_id,
+      SELECT w.id, w.kind, coalesce(w.unit_id, (array_agg(fd.unit_id ORDER BY fd.created_at) FILTER (WHERE fd.unit_id IS NOT NULL))[1]) AS unit_id,
         array_agg(DISTINCT fd.cause_code) AS causes
       FROM findings fd
       JOIN visits v ON v.id = fd.visit_id
       JOIN work_orders w ON w.id = v.work_order_id
-      WHERE fd.origin = 'factory_defect' AND w.kind IN ('callback', 'return_visit') ${sql.join(filters, sql` `)}
-      GROUP BY w.id, w.unit_id
+      WHERE fd.origin = 'factory_defect' AND w.kind IN ('service_call', 'callback', 'return_visit') ${sql.join(filters, sql` `)}
+      GROUP BY w.id, w.kind, w.unit_id
     ),
     case_work AS (
       SELECT c.id AS case_id, c.id AS wo_id FROM cases c
       UNION ALL
-      SELECT c.id, w2.id FROM cases c JOIN work_orders w2 ON w2.origin_work_order_id = c.id
+      SELECT c.id, w2.id FROM cases c JOIN work_orders w2 ON w2.origin_work_order_id = c.id WHERE c.kind <> 'service_call'
     ),
     labour AS (
       SELECT cw.case_id AS work_order_id,
@@ -451,6 +454,7 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
       refrigerantLb: Math.round(refrigerantLb * 100) / 100,
       refrigerantCostCents,
       costCents: labourCostCents + refrigerantCostCents,
+      amountDifferenceCents: claim.amountCents === null ? null : claim.amountCents - (labourCostCents + refrigerantCostCents),
       claim,
     };
   });
@@ -469,6 +473,7 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
           make: c.make,
           model: c.model,
           cases: 0,
+          firstVisits: 0,
           callbacks: 0,
           returnVisits: 0,
           unitsAffected: 0,
@@ -492,6 +497,7 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
     const m = g.m;
     m.cases++;
     if (c.kind === 'callback') m.callbacks++;
+    else if (c.kind === 'service_call') m.firstVisits++;
     else m.returnVisits++;
     g.units.add(c.unitId);
     g.sites.add(c.siteId);
@@ -524,10 +530,12 @@ export async function updateWarrantyClaim(db: Db, clock: Clock, user: SessionUse
     if (!wo || (user.role !== 'owner' && wo.branchId !== user.branchId)) throw notFound('work order');
     const [isCase] = await factoryDefectCases(tx, { workOrderId });
     if (!isCase) {
-      throw unprocessable('A warranty claim belongs to a callback or return visit with a factory-defect finding; this work order has none.');
+      throw unprocessable('A warranty claim belongs to a service call, callback or return visit with a factory-defect finding; this work order has none.');
     }
     const [existing] = await tx.select().from(warrantyClaims).where(eq(warrantyClaims.workOrderId, workOrderId)).limit(1);
-    const amountCents = body.amountCents !== undefined ? body.amountCents : (existing?.amountCents ?? null);
+    // The amount defaults to the job's computed cost once the claim is claimed or paid.
+    const kept = body.amountCents !== undefined ? body.amountCents : (existing?.amountCents ?? null);
+    const amountCents = kept === null && (body.status === 'claimed' || body.status === 'paid') ? isCase.costCents : kept;
     if ((body.status === 'claimed' || body.status === 'paid') && amountCents === null) {
       throw unprocessable('Enter the amount claimed from the manufacturer before marking the claim claimed or paid.', {
         fields: [{ path: 'amountCents', message: 'Enter the amount' }],

@@ -332,8 +332,16 @@ describe('factory-defect review and warranty claims', () => {
 
   it('records a claim (owner), refuses a work order without a factory defect and other branches', async () => {
     const o = await owner();
-    const missing = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed' });
-    expect(missing.status).toBe(422);
+    // Claimed without an amount: the amount defaults to the case's computed cost ($260.00, worked out above).
+    const byDefault = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed' });
+    expect(byDefault.status).toBe(200);
+    expect(byDefault.body.claim.amountCents).toBe(26_000);
+    // A different amount is kept and its difference from the cost shown: $250.00 − $260.00 = −$10.00.
+    await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed', amountCents: 25_000 });
+    const diffCase = (await o.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31')).body.cases.find(
+      (c: { workOrderId: string }) => c.workOrderId === ids.J2cb,
+    );
+    expect(diffCase.amountDifferenceCents).toBe(-1_000);
     const ok = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed', amountCents: 26_000, reference: 'TM-CLM-1' });
     expect(ok.status).toBe(200);
     expect(ok.body.claim).toMatchObject({ status: 'claimed', amountCents: 26_000, reference: 'TM-CLM-1' });
@@ -352,6 +360,29 @@ describe('factory-defect review and warranty claims', () => {
     const tech = await signedInAgent(t.app, f.inB.technician.email, TEST_PASSWORD);
     expect((await tech.patch(`/api/warranty-claims/${ids.J6cb}`).send({ status: 'to_claim' })).status).toBe(403);
     expect((await o.patch(`/api/warranty-claims/${ids.J6cb}`).send({ status: 'refunded' })).status).toBe(400);
+  });
+});
+
+describe('factory defects found on the first visit', () => {
+  it('counts a service call whose first visit found a factory defect, costed on its own visits', async () => {
+    // May 2026, branch A ($90/h, $50/lb): FV1 opened 05-04 08:00, its first visit 60 labour minutes, 1.2 lb
+    // added, finding component_failure/factory_defect → $90.00 + $60.00 = $150.00. A callback booked off it
+    // (05-10, 30 min, no finding) is not part of the case: a service call's follow-ups are cases of their own.
+    const A = f.a.id;
+    const w = await workOrder({ branchId: A, siteId: fx.u2.site.id, unitId: fx.u2.unit.id, kind: 'service_call', openedAt: '2026-05-04T08:00:00Z' });
+    const v = await visit({ branchId: A, workOrderId: w.id, techId: fx.ta1.id, closedAt: '2026-05-04T12:00:00Z', outcome: 'resolved', labourMinutes: 60, finding: { unitId: fx.u2.unit.id, causeCode: 'component_failure', origin: 'factory_defect' } });
+    await t.ctx.db.insert(refrigerantEvents).values({ unitId: fx.u2.unit.id, visitId: v.id, date: '2026-05-04', refrigerant: 'R-410A', poundsAdded: 1.2, poundsRecovered: 0, reason: 'leak_top_off' });
+    const cb = await workOrder({ branchId: A, siteId: fx.u2.site.id, unitId: fx.u2.unit.id, kind: 'callback', openedAt: '2026-05-10T08:00:00Z', originWorkOrderId: w.id });
+    await visit({ branchId: A, workOrderId: cb.id, techId: fx.ta1.id, closedAt: '2026-05-10T12:00:00Z', outcome: 'resolved', labourMinutes: 30 });
+    const o = await owner();
+    const review = (await o.get('/api/reports/fix-quality/factory-defects?from=2026-05-01&to=2026-05-31')).body;
+    expect(review.cases.map((c: { workOrderId: string }) => c.workOrderId)).toEqual([w.id]);
+    expect(review.cases[0]).toMatchObject({ kind: 'service_call', visits: 1, labourCostCents: 9_000, refrigerantCostCents: 6_000, costCents: 15_000, amountDifferenceCents: null });
+    expect(review.models[0]).toMatchObject({ key: 'Acme|AX-1', cases: 1, firstVisits: 1, callbacks: 0, returnVisits: 0, toClaimCents: 15_000 });
+    // Claimable: paid without an amount records the computed cost.
+    const paid = await o.patch(`/api/warranty-claims/${w.id}`).send({ status: 'paid' });
+    expect(paid.status).toBe(200);
+    expect(paid.body.claim.amountCents).toBe(15_000);
   });
 });
 
