@@ -27,7 +27,41 @@ describe('fixQuality', () => {
       callbacks: 1,
       callbackRate: 1 / 4,
       resolvedFirstVisits: 4,
+      pending: 0,
     });
+  });
+
+  it('counts a call whose callback window has not run out as pending, and nothing else (hand-worked)', () => {
+    // Window 30 days (common practice, no source). "Now" is 2027-04-10 12:00 UTC; a call is mature once
+    // now is past first close + 30 × 24 h.
+    const asOf = '2027-04-10T12:00:00Z';
+    const jobs = [
+      // closed 03-01 15:00 → window ends 03-31 15:00, long past: mature, fixed the first time
+      job({ id: 'old' }),
+      // closed 03-11 11:59:59 → window ends 04-10 11:59:59, one second before now: mature, with a callback
+      job({ id: 'edge-mature', firstVisitClosedAt: '2027-03-11T11:59:59Z', followUps: [{ kind: 'callback', openedAt: '2027-03-20T08:00:00Z' }] }),
+      // closed 03-11 12:00 → window ends exactly now: a callback opened this instant would still count: pending
+      job({ id: 'edge-pending', firstVisitClosedAt: '2027-03-11T12:00:00Z' }),
+      // closed 04-01 (day 9 of its window) resolved: pending although nothing came back yet
+      job({ id: 'young', firstVisitClosedAt: '2027-04-01T10:00:00Z' }),
+      // closed 04-02 and already called back: still pending (its figures wait for the window)
+      job({ id: 'young-cb', firstVisitClosedAt: '2027-04-02T10:00:00Z', followUps: [{ kind: 'callback', openedAt: '2027-04-05T10:00:00Z' }] }),
+      // declined: neither eligible nor pending
+      job({ id: 'declined', firstVisitOutcome: 'declined', firstVisitClosedAt: '2027-04-03T10:00:00Z' }),
+    ];
+    expect(fixQuality(jobs, { asOf })).toEqual({
+      eligible: 2,
+      firstTimeFixed: 1,
+      firstTimeFixRate: 1 / 2,
+      callbacks: 1,
+      callbackRate: 1 / 2,
+      resolvedFirstVisits: 2,
+      pending: 3,
+    });
+    // Without "now" all five non-declined calls count, the young ones flattering the rate: 3 of 5 vs 1 of 2.
+    expect(fixQuality(jobs)).toMatchObject({ eligible: 5, firstTimeFixed: 3, pending: 0 });
+    // One millisecond later the boundary call matures.
+    expect(fixQuality(jobs, { asOf: '2027-04-10T12:00:00.001Z' })).toMatchObject({ eligible: 3, firstTimeFixed: 2, pending: 2 });
   });
 
   it('includes a follow-up opened exactly windowDays later and excludes one a millisecond after', () => {

@@ -16,6 +16,12 @@ export interface FixQualityJob {
 export interface FixQualityOptions {
   /** Callback window in days after the first visit closed; default 30 (common practice, no source). */
   windowDays?: number;
+  /**
+   * "Now" for maturity: a job whose window has not run out by then (first visit closed + window ≥ asOf; a
+   * follow-up opened at the window's last instant still counts) is pending and counts in nothing else.
+   * Without it every job counts as mature.
+   */
+  asOf?: Instant;
 }
 
 export interface FixQualityResult {
@@ -31,6 +37,8 @@ export interface FixQualityResult {
   callbackRate: number | null;
   /** Eligible jobs resolved on the first visit (the callback-rate denominator). */
   resolvedFirstVisits: number;
+  /** Jobs that would be eligible but whose callback window had not run out by `asOf`. */
+  pending: number;
 }
 
 /**
@@ -44,16 +52,22 @@ export function fixQuality(jobs: readonly FixQualityJob[], opts: FixQualityOptio
     throw new RangeError('windowDays must be a finite number of 0 or more');
   }
   const windowMs = windowDays * DAY_MS;
+  const asOf = opts.asOf === undefined ? null : instantMs(opts.asOf, 'asOf');
+  let pending = 0;
   let eligible = 0;
   let firstTimeFixed = 0;
   let callbacks = 0;
   let resolved = 0;
   for (const job of jobs) {
     if (job.kind !== 'service_call' || job.firstVisitOutcome === 'declined') continue;
+    const closed = instantMs(job.firstVisitClosedAt, `job ${job.id} firstVisitClosedAt`);
+    if (asOf !== null && closed + windowMs >= asOf) {
+      pending++;
+      continue;
+    }
     eligible++;
     if (job.firstVisitOutcome !== 'resolved') continue;
     resolved++;
-    const closed = instantMs(job.firstVisitClosedAt, `job ${job.id} firstVisitClosedAt`);
     let anyFollowUp = false;
     let callback = false;
     for (const f of job.followUps) {
@@ -66,11 +80,11 @@ export function fixQuality(jobs: readonly FixQualityJob[], opts: FixQualityOptio
     if (!anyFollowUp) firstTimeFixed++;
     if (callback) callbacks++;
   }
-  return fixQualityFromCounts({ eligible, firstTimeFixed, callbacks, resolvedFirstVisits: resolved });
+  return fixQualityFromCounts({ eligible, firstTimeFixed, callbacks, resolvedFirstVisits: resolved, pending });
 }
 
-/** The counts behind {@link FixQualityResult}, e.g. as a database aggregates them job by job. */
-export type FixQualityCounts = Pick<FixQualityResult, 'eligible' | 'firstTimeFixed' | 'callbacks' | 'resolvedFirstVisits'>;
+/** The counts behind {@link FixQualityResult}, e.g. as a database aggregates them job by job (`pending` 0 when left out). */
+export type FixQualityCounts = Pick<FixQualityResult, 'eligible' | 'firstTimeFixed' | 'callbacks' | 'resolvedFirstVisits'> & { pending?: number };
 
 /**
  * The rates of {@link fixQuality} from counts made elsewhere with the same per-job definitions (eligible:
@@ -92,6 +106,7 @@ export function fixQualityFromCounts(c: FixQualityCounts): FixQualityResult {
     callbacks: c.callbacks,
     callbackRate: c.resolvedFirstVisits === 0 ? null : c.callbacks / c.resolvedFirstVisits,
     resolvedFirstVisits: c.resolvedFirstVisits,
+    pending: c.pending ?? 0,
   };
 }
 

@@ -17,3 +17,4 @@ export * from './dates';
 export * from './units';
 export * from './atmosphere';
 export * from './csv';
+export * from './report-periods';

@@ -15,6 +15,9 @@ import type { ModelAlertRef } from './work-orders';
  * - return visits per service call: return-visit work orders linked to eligible jobs ÷ eligible jobs;
  * - days to resolve: from the job being opened to the close of the last visit of the job and its follow-ups,
  *   for eligible jobs whose last visit closed resolved.
+ * - pending (maturity): a job whose window has not run out as of "now" (a follow-up opened at the window's
+ *   last instant still counts) cannot be called a first-time fix yet; it counts as pending and in no other
+ *   figure until the window closes.
  * The period holds the jobs whose first visit closed between `from` 00:00 and `to` 24:00 UTC; months are UTC months.
  */
 export const fixQualityTables = ['byBranch', 'byTechnician', 'byMonth', 'byModel', 'byCause', 'byOrigin', 'factoryDefects', 'modelAlerts'] as const;
@@ -66,6 +69,11 @@ export const fixQualityFiguresSchema = z.object({
   /** Jobs counted in `avgDaysToResolve`. */
   resolvedJobs: z.number().int(),
   avgDaysToResolve: z.number().nullable(),
+  /**
+   * Service calls (not declined) whose callback window has not yet run out as of the report's "now": a
+   * callback may still come, so they are counted here only, in no other figure, until their window closes.
+   */
+  pending: z.number().int(),
 });
 export type FixQualityFigures = z.infer<typeof fixQualityFiguresSchema>;
 
@@ -102,7 +110,7 @@ export const fixQualityReportSchema = fixQualityFiguresSchema.extend({
 });
 export type FixQualityReport = z.infer<typeof fixQualityReportSchema>;
 
-/** Factory-defect review: one callback or return visit with a factory-defect finding. */
+/** Factory-defect review: one service call, callback or return visit with a factory-defect finding. */
 export const warrantyClaimSchema = z.object({
   status: warrantyClaimStatusSchema,
   amountCents: z.number().int().nullable(),
@@ -136,6 +144,8 @@ export const factoryDefectCaseSchema = z.object({
   refrigerantLb: z.number(),
   refrigerantCostCents: z.number().int(),
   costCents: z.number().int(),
+  /** The claim's recorded amount minus `costCents` (null while no amount is recorded: the claim defaults to the cost). */
+  amountDifferenceCents: z.number().int().nullable(),
   claim: warrantyClaimSchema,
 });
 export type FactoryDefectCase = z.infer<typeof factoryDefectCaseSchema>;
@@ -145,6 +155,8 @@ export const factoryDefectModelSchema = z.object({
   make: z.string(),
   model: z.string(),
   cases: z.number().int(),
+  /** Service calls whose own (first) visits found the factory defect. */
+  firstVisits: z.number().int(),
   callbacks: z.number().int(),
   returnVisits: z.number().int(),
   unitsAffected: z.number().int(),

@@ -53,7 +53,7 @@ async function reviewFactoryDefects(ctx: JourneyContext, page: Page) {
     return cells[i]!;
   };
   assert.equal(cell('Make and model'), MODEL);
-  const cases = /^(\d+) \((\d+) callbacks?, (\d+) return visits?\)$/.exec(cell('Cases'));
+  const cases = /^(\d+) \((\d+) callbacks?, (\d+) return visits?, (\d+) first visits?\)$/.exec(cell('Cases'));
   assert.ok(cases, `the Cases column counts callbacks (${cell('Cases')})`);
   assert.ok(Number(cases[2]) >= 1, `the ${MODEL} had callbacks (${cell('Cases')})`);
   const cost = cell('Cost');

@@ -70,6 +70,18 @@ describe('splitByMonths', () => {
     expect(splitByMonths(z('2026-02-15'), z('2026-03-15'))).toEqual({ months: null, edges: [[z('2026-02-15'), z('2026-03-15')]] });
     // Across a year end, starting on the first of a month.
     expect(splitByMonths(z('2025-12-01'), z('2026-01-10'))).toEqual({ months: ['2025-12-01', '2026-01-01'], edges: [[z('2026-01-01'), z('2026-01-10')]] });
+    // Sums only for months that end by `sumsUntil` (now minus the longest callback window): with now
+    // 2026-11-20 and a 30-day window, sumsUntil is 10-21; October ends after it and is counted job by job.
+    expect(splitByMonths(z('2026-01-01'), z('2026-11-21'), '2026-10-21T00:00:00.000Z')).toEqual({
+      months: ['2026-01-01', '2026-10-01'],
+      edges: [[z('2026-10-01'), z('2026-11-21')]],
+    });
+    // A month ending exactly at `sumsUntil` still comes from the sums; nothing does when it is before the period.
+    expect(splitByMonths(z('2026-01-01'), z('2026-11-21'), z('2026-10-01'))).toEqual({
+      months: ['2026-01-01', '2026-10-01'],
+      edges: [[z('2026-10-01'), z('2026-11-21')]],
+    });
+    expect(splitByMonths(z('2026-03-01'), z('2026-04-01'), z('2026-02-10'))).toEqual({ months: null, edges: [[z('2026-03-01'), z('2026-04-01')]] });
   });
 });
 
@@ -342,13 +354,14 @@ interface Counts {
   returnVisits: number;
   resolvedJobs: number;
   days: number;
+  pending: number;
 }
 
 /**
  * The report's counts straight from work orders, visits, findings, branches and units, with the definitions
  * of packages/contract/src/fix-quality.ts (first visit = earliest closed visit; window W in whole 24-hour days).
  */
-async function plainCounts(from: string, to: string, branchId?: string) {
+async function plainCounts(from: string, to: string, now: Date, branchId?: string) {
   const [wos, vs, fs, bs, us] = await Promise.all([
     db.select().from(workOrders),
     db.select().from(visits),
@@ -362,7 +375,7 @@ async function plainCounts(from: string, to: string, branchId?: string) {
   const closedOf = (woId: string) => vs.filter((v) => v.workOrderId === woId && v.closedAt).map((v) => ({ ...v, t: v.closedAt!.getTime() }));
   const groups = new Map<string, Counts>();
   const add = (key: string, c: Omit<Counts, 'jobs'>) => {
-    const g = groups.get(key) ?? { jobs: 0, eligible: 0, firstTimeFixed: 0, resolvedFirstVisits: 0, callbacks: 0, returnVisits: 0, resolvedJobs: 0, days: 0 };
+    const g = groups.get(key) ?? { jobs: 0, eligible: 0, firstTimeFixed: 0, resolvedFirstVisits: 0, callbacks: 0, returnVisits: 0, resolvedJobs: 0, days: 0, pending: 0 };
     g.jobs++;
     for (const k of Object.keys(c) as (keyof typeof c)[]) g[k] += c[k];
     groups.set(key, g);
@@ -376,10 +389,14 @@ async function plainCounts(from: string, to: string, branchId?: string) {
     const last = [job, ...followUps].flatMap((x) => closedOf(x.id)).sort(byKey).at(-1)!;
     const window = bs.find((b) => b.id === job.branchId)!.callbackWindowDays * DAY;
     const inside = (kind: string) => followUps.some((f) => f.kind === kind && f.createdAt.getTime() <= first.t + window);
-    const eligible = first.outcome !== 'declined';
+    // Mature once now is past the window's last instant (a follow-up opened at that instant still counts).
+    const mature = first.t + window < now.getTime();
+    const pending = first.outcome !== 'declined' && !mature;
+    const eligible = first.outcome !== 'declined' && mature;
     const resolved = eligible && first.outcome === 'resolved';
     const resolvedJob = eligible && last.outcome === 'resolved';
     const c = {
+      pending: pending ? 1 : 0,
       eligible: eligible ? 1 : 0,
       firstTimeFixed: resolved && !inside('callback') && !inside('return_visit') ? 1 : 0,
       resolvedFirstVisits: resolved ? 1 : 0,
@@ -404,8 +421,9 @@ async function plainCounts(from: string, to: string, branchId?: string) {
 function reportCounts(r: FixQualityReport) {
   const out = new Map<string, Omit<Counts, 'jobs'>>();
   const put = (key: string, g: FixQualityReport['previous']) => {
-    if (g.eligible === 0 && g.resolvedJobs === 0 && g.returnVisits === 0 && g.firstTimeFixed === 0) return;
+    if (g.eligible === 0 && g.resolvedJobs === 0 && g.returnVisits === 0 && g.firstTimeFixed === 0 && g.pending === 0) return;
     out.set(key, {
+      pending: g.pending,
       eligible: g.eligible,
       firstTimeFixed: g.firstTimeFixed,
       resolvedFirstVisits: g.resolvedFirstVisits,
@@ -423,7 +441,7 @@ function reportCounts(r: FixQualityReport) {
 function expectSameCounts(report: FixQualityReport, plain: Map<string, Counts>) {
   const expected = new Map<string, Omit<Counts, 'jobs'>>();
   for (const [key, { jobs: _jobs, ...c }] of plain) {
-    if (c.eligible === 0 && c.resolvedJobs === 0 && c.returnVisits === 0 && c.firstTimeFixed === 0) continue;
+    if (c.eligible === 0 && c.resolvedJobs === 0 && c.returnVisits === 0 && c.firstTimeFixed === 0 && c.pending === 0) continue;
     expected.set(key, c);
   }
   const got = reportCounts(report);
@@ -454,7 +472,8 @@ describe('fix_quality_sums under random changes', () => {
         return { from: iso(start), to: iso(start + days - 1) };
       });
     await fc.assert(
-      fc.asyncProperty(fc.array(seedJob, { minLength: 3, maxLength: 20, size: 'max' }), fc.array(op, { maxLength: 40, size: 'max' }), period, fc.boolean(), async (seeds, changes, p, oneBranch) => {
+      // "Now" from inside the jobs' span to well after it: some or all callback windows still open.
+      fc.asyncProperty(fc.array(seedJob, { minLength: 3, maxLength: 20, size: 'max' }), fc.array(op, { maxLength: 40, size: 'max' }), period, fc.boolean(), fc.integer({ min: 20 * 24, max: 200 * 24 }), async (seeds, changes, p, oneBranch, nowHours) => {
         // A clean start: no work from the previous run (and no sums left behind by its deletion).
         await db.update(workOrders).set({ originWorkOrderId: null });
         await db.delete(findings);
@@ -464,12 +483,14 @@ describe('fix_quality_sums under random changes', () => {
         for (const o of [...seeds, ...changes]) await apply(w, o);
         await expectSumsAgree();
         const branchId = oneBranch ? w.branches[0] : undefined;
-        const report = await fixQualityReport(db, p, branchId);
-        expectSameCounts(report, await plainCounts(p.from, p.to, branchId));
-        const prev = await plainCounts(report.previousPeriod.from, report.previousPeriod.to, branchId);
+        const now = new Date(T0 + nowHours * HOUR);
+        const report = await fixQualityReport(db, p, branchId, now);
+        expectSameCounts(report, await plainCounts(p.from, p.to, now, branchId));
+        const prev = await plainCounts(report.previousPeriod.from, report.previousPeriod.to, now, branchId);
         expect(report.previous.eligible).toBe(prev.get('all')?.eligible ?? 0);
         expect(report.previous.firstTimeFixed).toBe(prev.get('all')?.firstTimeFixed ?? 0);
         expect(report.previous.callbacks).toBe(prev.get('all')?.callbacks ?? 0);
+        expect(report.previous.pending).toBe(prev.get('all')?.pending ?? 0);
       }),
       // Shrinking a failure re-runs whole scenarios: bounded, so a failure is reported in good time.
       { numRuns: 25, interruptAfterTimeLimit: 90_000 },

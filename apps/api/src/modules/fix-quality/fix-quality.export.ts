@@ -16,6 +16,7 @@ const rate = (r: number | null) => (r === null ? '' : (r * 100).toFixed(1));
 const round = (n: number | null, d = 2) => (n === null ? '' : n.toFixed(d));
 const money = (cents: number | null) => (cents === null ? '' : (cents / 100).toFixed(2));
 
+/** `pending_in_callback_window`: calls whose callback window had not run out when the file was written (in no other column). */
 const groupColumns = [
   'group',
   'service_calls_eligible',
@@ -28,6 +29,7 @@ const groupColumns = [
   'return_visits_per_service_call',
   'jobs_resolved',
   'avg_days_to_resolve',
+  'pending_in_callback_window',
 ] as const;
 
 const groupRow = (g: FixQualityGroup) => ({
@@ -42,6 +44,7 @@ const groupRow = (g: FixQualityGroup) => ({
   return_visits_per_service_call: round(g.returnVisitsPerServiceCall),
   jobs_resolved: g.resolvedJobs,
   avg_days_to_resolve: round(g.avgDaysToResolve, 1),
+  pending_in_callback_window: g.pending,
 });
 
 const caseColumns = [
@@ -134,6 +137,13 @@ const signed = (d: number | null, digits = 2) => (d === null ? '—' : `${d >= 0
 const usd = (cents: number, currency = 'USD') =>
   (cents / 100).toLocaleString('en-US', { style: 'currency', currency, maximumFractionDigits: 0 });
 
+/** "98 calls still inside their 30-day window": the pending calls in words (PDF and screen say the same). */
+export function pendingSentence(pending: number, windowDays: number[]): string {
+  const w = windowDays.length ? windowDays.join(' or ') : '30';
+  if (pending === 0) return `No call of this period is still inside its ${w}-day callback window: every call is counted.`;
+  return `${pending} ${pending === 1 ? 'call is' : 'calls are'} still inside ${pending === 1 ? 'its' : 'their'} ${w}-day callback window and not counted in the rates yet.`;
+}
+
 interface PdfInput {
   report: FixQualityReport;
   defects: FactoryDefectReview;
@@ -175,15 +185,18 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
         signed(report.change.avgDaysToResolve, 1),
       ],
       ['Service calls counted', String(report.eligible), String(report.previous.eligible), signed(report.change.eligible, 0)],
+      ['Calls still inside their callback window (not counted yet)', String(report.pending), String(report.previous.pending), ''],
     ],
   );
   pdf.doc.moveDown(0.4);
+  pdf.paragraph(pendingSentence(report.pending, report.windowDays), { size: 9 });
   pdf.paragraph(
     `How these are counted: a service call counts when its first visit was not declined. It is fixed the first time when that visit ` +
       `resolved it and no return visit or callback was opened within the branch's callback window (${report.windowDays.join(' / ') || 30} days) ` +
       `after the visit closed. The callback rate divides the calls with a callback inside the window by the calls resolved on the first visit. ` +
       `Days to resolve run from the call being opened to the close of its last visit (including follow-ups), for calls that ended resolved. ` +
-      `The period holds the calls whose first visit closed within it (UTC dates).`,
+      `The period holds the calls whose first visit closed within it (UTC dates). A call counts only once its callback window has ` +
+      `run out; until then it is shown as pending and left out of every rate.`,
     { size: 8.5, color: pdfSlate },
   );
 

@@ -33,7 +33,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
     '/fix-quality',
     readers,
     endpoint({ query: fixQualityQuerySchema }, ({ query, user }) =>
-      fixQualityReport(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId)),
+      fixQualityReport(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId), ctx.clock.now()),
     ),
   );
 
@@ -68,7 +68,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
           ? tableCsv(query.table, { defects: await factoryDefectReview(ctx.db, period, branchId) })
           : query.table === 'modelAlerts'
             ? tableCsv(query.table, { alerts: await modelAlerts(ctx.db, user) })
-            : tableCsv(query.table, { report: await fixQualityReport(ctx.db, period, branchId) });
+            : tableCsv(query.table, { report: await fixQualityReport(ctx.db, period, branchId, ctx.clock.now()) });
       res.setHeader('Content-Type', 'text/csv; charset=utf-8');
       res.setHeader('Content-Disposition', `attachment; filename="${csvFileName(query.table, query.from, query.to)}"`);
       res.send(csv);
@@ -81,13 +81,14 @@ export function fixQualityRoutes(ctx: AppContext): Router {
     endpoint({ query: fixQualityQuerySchema }, async ({ query, user, res }) => {
       const branchId = resolveBranch(user, query.branchId);
       const period = { from: query.from, to: query.to };
+      const now = ctx.clock.now();
       const [report, defects, alerts, branch] = await Promise.all([
-        fixQualityReport(ctx.db, period, branchId),
+        fixQualityReport(ctx.db, period, branchId, now),
         factoryDefectReview(ctx.db, period, branchId),
         modelAlerts(ctx.db, user),
         branchId ? ctx.db.select({ name: branches.name }).from(branches).where(eq(branches.id, branchId)).limit(1) : Promise.resolve([]),
       ]);
-      const pdf = await reportPdf({ report, defects, alerts, branchName: branch[0]?.name ?? 'All branches', generatedAt: ctx.clock.now() });
+      const pdf = await reportPdf({ report, defects, alerts, branchName: branch[0]?.name ?? 'All branches', generatedAt: now });
       res.setHeader('Content-Type', 'application/pdf');
       res.setHeader('Content-Disposition', `attachment; filename="coilpath-fix-quality-${query.from}-to-${query.to}.pdf"`);
       res.send(pdf);
@@ -104,7 +105,7 @@ export function warrantyClaimRoutes(ctx: AppContext): Router {
     '/:workOrderId',
     requireRole('owner', 'branch_manager'),
     endpoint({ params: z.object({ workOrderId: idSchema }), body: warrantyClaimUpdateSchema }, async ({ params, body, user }) => ({
-      claim: await updateWarrantyClaim(ctx.db, user, params.workOrderId, body),
+      claim: await updateWarrantyClaim(ctx.db, ctx.clock, user, params.workOrderId, body),
     })),
   );
   return r;

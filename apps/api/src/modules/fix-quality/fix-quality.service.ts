@@ -8,7 +8,7 @@
  * `fixQualityFromCounts`. Definitions: see packages/contract/src/fix-quality.ts.
  */
 import { eq, inArray, sql, type SQL } from 'drizzle-orm';
-import { addDays, fixQualityFromCounts, zonedDate, zonedInstant } from '@coilpath/calc';
+import { addDays, fixQualityFromCounts, previousPeriod, zonedDate, zonedInstant } from '@coilpath/calc';
 import {
   causeCodeLabels,
   causeOriginLabels,
@@ -55,13 +55,8 @@ export interface Period {
 }
 
 const dayMs = (d: string) => Date.parse(`${d}T00:00:00Z`);
-const isoDay = (ms: number) => new Date(ms).toISOString().slice(0, 10);
 
-/** The period of equal length that ends the day before `from`. */
-export function previousPeriod(p: Period): Period {
-  const len = (dayMs(p.to) - dayMs(p.from)) / DAY_MS + 1;
-  return { from: isoDay(dayMs(p.from) - len * DAY_MS), to: isoDay(dayMs(p.from) - DAY_MS) };
-}
+/** The comparison period (same length, ending the day before `from`): `previousPeriod` in @coilpath/calc, shared with the screen. */
 
 /** [start, end) instants of a period of UTC calendar dates. */
 const bounds = (p: Period) => ({ start: new Date(dayMs(p.from)).toISOString(), end: new Date(dayMs(p.to) + DAY_MS).toISOString() });
@@ -91,6 +86,7 @@ interface CountRow {
   return_visits: number | string | null;
   resolved_jobs: number | string;
   days: number | string | null;
+  pending: number | string | null;
 }
 
 /** The kinds of group the report answers (`g` of a counted row; the bits of the former GROUPING SETS query). */
@@ -100,13 +96,19 @@ const MONTH_MS = (y: number, m: number) => Date.UTC(y, m, 1);
 
 /**
  * Splits [start, end) (UTC midnights) into the whole calendar months (UTC) inside it, read from
- * `fix_quality_sums`, and the days before and after them, counted from `service_call_facts`.
+ * `fix_quality_sums`, and the days before and after them, counted from `service_call_facts`. With
+ * `sumsUntil`, only months that end at or before that instant come from the sums (the sums hold the counts
+ * of mature jobs; see `fixQualityReport`), the days after them are counted job by job.
  */
-export function splitByMonths(start: string, end: string): { months: [string, string] | null; edges: [string, string][] } {
+export function splitByMonths(start: string, end: string, sumsUntil?: string): { months: [string, string] | null; edges: [string, string][] } {
   const s = new Date(start);
   const e = new Date(end);
   const firstFull = s.getUTCDate() === 1 ? s.getTime() : MONTH_MS(s.getUTCFullYear(), s.getUTCMonth() + 1);
-  const lastFullEnd = MONTH_MS(e.getUTCFullYear(), e.getUTCMonth());
+  let lastFullEnd = MONTH_MS(e.getUTCFullYear(), e.getUTCMonth());
+  if (sumsUntil !== undefined) {
+    const h = new Date(sumsUntil);
+    lastFullEnd = Math.min(lastFullEnd, MONTH_MS(h.getUTCFullYear(), h.getUTCMonth()));
+  }
   const iso = (ms: number) => new Date(ms).toISOString();
   if (firstFull >= lastFullEnd) return { months: null, edges: s.getTime() < e.getTime() ? [[start, end]] : [] };
   const edges: [string, string][] = [];
@@ -136,12 +138,17 @@ export function splitByMonths(start: string, end: string): { months: [string, st
  * and for eligible jobs: return visits booked off the job (any time), and the days from opening to the last
  * closed visit of the job and its follow-ups when that visit resolved it (summed exactly in microseconds).
  */
-export async function reportGroups(db: Tx, range: { start: string; curStart: string; end: string }, branchId: string | undefined): Promise<CountRow[]> {
+export async function reportGroups(
+  db: Tx,
+  range: { start: string; curStart: string; end: string },
+  branchId: string | undefined,
+  maturity: { at: Date; sumsUntil: string },
+): Promise<CountRow[]> {
   const ofBranch = (alias: string) => (branchId ? sql`AND ${sql.raw(alias)}.branch_id = ${branchId}` : sql``);
   const columns = sql`branch_id, month, dim, tech_id, make, model, cause_code, origin, jobs, eligible, first_time_fixed,
-    resolved_first_visits, callbacks, return_visits, resolved_jobs, resolve_us`;
+    resolved_first_visits, callbacks, return_visits, resolved_jobs, resolve_us, 0 AS pending`;
   const parts = (cur: boolean, from: string, to: string, onlyTotals: boolean): SQL[] => {
-    const { months, edges } = splitByMonths(from, to);
+    const { months, edges } = splitByMonths(from, to, maturity.sumsUntil);
     const flag = sql.raw(cur ? 'true' : 'false');
     const out: SQL[] = [];
     if (months) {
@@ -159,8 +166,8 @@ export async function reportGroups(db: Tx, range: { start: string; curStart: str
           ${onlyTotals ? sql`NULL::uuid AS tech_id, NULL::text AS make, NULL::text AS model, NULL::text AS cause_code` : sql`tech_id, make, model, cause_code`}, origin,
           count(*)::int AS jobs, sum(eligible)::int AS eligible, sum(first_time_fixed)::int AS first_time_fixed,
           sum(resolved_first_visits)::int AS resolved_first_visits, sum(callbacks)::int AS callbacks, sum(return_visits)::int AS return_visits,
-          sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::bigint AS resolve_us
-        FROM fix_quality_jobs j WHERE (${within}) ${ofBranch('j')}
+          sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::bigint AS resolve_us, sum(pending)::int AS pending
+        FROM fix_quality_jobs_at(${maturity.at.toISOString()}::timestamptz) j WHERE (${within}) ${ofBranch('j')}
         GROUP BY branch_id, month, ${onlyTotals ? sql`origin` : sql`GROUPING SETS ((tech_id), (make, model), (cause_code), (origin))`}`);
     }
     return out;
@@ -169,7 +176,7 @@ export async function reportGroups(db: Tx, range: { start: string; curStart: str
   if (all.length === 0) return [];
   const sums = sql`sum(eligible)::int AS eligible, sum(first_time_fixed)::int AS first_time_fixed,
       sum(resolved_first_visits)::int AS resolved_first_visits, sum(callbacks)::int AS callbacks, sum(return_visits)::int AS return_visits,
-      sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::float8 / 86400000000 AS days`;
+      sum(resolved_jobs)::int AS resolved_jobs, sum(resolve_us)::float8 / 86400000000 AS days, sum(pending)::int AS pending`;
   const g = (bits: number) => sql.raw(String(bits));
   // Each job is counted once in every dimension: the totals, per branch and per month add up one of them.
   return rows<CountRow>(
@@ -220,6 +227,7 @@ export function figuresOf(r: CountRow | undefined): FixQualityFigures {
     returnVisitsPerServiceCall: q.eligible === 0 ? null : returnVisits / q.eligible,
     resolvedJobs,
     avgDaysToResolve: resolvedJobs === 0 ? null : n(r?.days) / resolvedJobs,
+    pending: n(r?.pending),
   };
 }
 
@@ -246,17 +254,25 @@ function monthsOf(p: Period): string[] {
 
 export const NONE = '(none recorded)';
 
-export async function fixQualityReport(db: Db, period: Period, branchId: string | undefined): Promise<FixQualityReport> {
+/**
+ * The report as of `at` (the server's clock). A job whose callback window has not run out by `at` is
+ * `pending` and counts in nothing else (`fix_quality_jobs_at`, migration 0014): its first-time fix cannot be
+ * known yet. The kept sums hold the counts of mature jobs, so they are read only for months that end at least
+ * the longest callback window of the branches shown before `at`; the later days are counted job by job.
+ */
+export async function fixQualityReport(db: Db, period: Period, branchId: string | undefined, at: Date): Promise<FixQualityReport> {
   const prev = previousPeriod(period);
   const cur = bounds(period);
-  const counted = await reportGroups(db, { start: bounds(prev).start, curStart: cur.start, end: cur.end }, branchId);
-  const current = counted.filter((r) => r.cur);
-  const ofKind = (g: number) => current.filter((r) => Number(r.g) === g);
-
   const branchRows = await db
     .select({ id: branches.id, name: branches.name, windowDays: branches.callbackWindowDays })
     .from(branches)
     .where(branchId ? eq(branches.id, branchId) : undefined);
+  const longestWindow = Math.max(0, ...branchRows.map((b) => b.windowDays));
+  const sumsUntil = new Date(at.getTime() - longestWindow * DAY_MS).toISOString();
+  const counted = await reportGroups(db, { start: bounds(prev).start, curStart: cur.start, end: cur.end }, branchId, { at, sumsUntil });
+  const current = counted.filter((r) => r.cur);
+  const ofKind = (g: number) => current.filter((r) => Number(r.g) === g);
+
   const windows = new Map(branchRows.map((b) => [b.id, b.windowDays]));
   const branchNames = new Map(branchRows.map((b) => [b.id, b.name]));
   const techIds = ofKind(GROUPED.tech).map((r) => r.tech_id!);
@@ -339,10 +355,13 @@ const iso = (v: Date | string) => (v instanceof Date ? v : new Date(v)).toISOStr
 const textArray = (v: string[] | string): string[] => (Array.isArray(v) ? v : v.replace(/^{|}$/g, '').split(',').filter(Boolean));
 
 /**
- * The factory-defect cases: callbacks and return visits opened in the period with a finding of origin
- * `factory_defect` on one of their visits. A case costs the labour of its visits and of the visits of work
- * booked off it (a return visit whose origin is the callback) — recorded labour minutes, else on-site to
- * close — at the branch's labour rate, and the refrigerant added on those visits at the branch's price per pound.
+ * The factory-defect cases: service calls (first visits included: a warranty repair on the first visit is
+ * claimable too), callbacks and return visits opened in the period with a finding of origin `factory_defect`
+ * on one of their visits. A case costs the labour of its visits — and, for a callback or return visit, of the
+ * visits of work booked off it (a return visit whose origin is the callback; a service call's follow-ups are
+ * cases of their own) — recorded labour minutes, else on-site to close — at the branch's labour rate, and the
+ * refrigerant added on those visits at the branch's price per pound. The claim's amount defaults to that cost;
+ * `amountDifferenceCents` is the recorded amount minus the cost.
  */
 export async function factoryDefectCases(db: Tx, opts: { period?: Period; branchId?: string | undefined; workOrderId?: string }): Promise<FactoryDefectCase[]> {
   const range = opts.period ? bounds(opts.period) : null;
@@ -355,18 +374,18 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
     db,
     sql`
     WITH cases AS (
-      SELECT w.id, coalesce(w.unit_id, (array_agg(fd.unit_id ORDER BY fd.created_at) FILTER (WHERE fd.unit_id IS NOT NULL))[1]) AS unit_id,
+      SELECT w.id, w.kind, coalesce(w.unit_id, (array_agg(fd.unit_id ORDER BY fd.created_at) FILTER (WHERE fd.unit_id IS NOT NULL))[1]) AS unit_id,
         array_agg(DISTINCT fd.cause_code) AS causes
       FROM findings fd
       JOIN visits v ON v.id = fd.visit_id
       JOIN work_orders w ON w.id = v.work_order_id
-      WHERE fd.origin = 'factory_defect' AND w.kind IN ('callback', 'return_visit') ${sql.join(filters, sql` `)}
-      GROUP BY w.id, w.unit_id
+      WHERE fd.origin = 'factory_defect' AND w.kind IN ('service_call', 'callback', 'return_visit') ${sql.join(filters, sql` `)}
+      GROUP BY w.id, w.kind, w.unit_id
     ),
     case_work AS (
       SELECT c.id AS case_id, c.id AS wo_id FROM cases c
       UNION ALL
-      SELECT c.id, w2.id FROM cases c JOIN work_orders w2 ON w2.origin_work_order_id = c.id
+      SELECT c.id, w2.id FROM cases c JOIN work_orders w2 ON w2.origin_work_order_id = c.id WHERE c.kind <> 'service_call'
     ),
     labour AS (
       SELECT cw.case_id AS work_order_id,
@@ -434,6 +453,7 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
       refrigerantLb: Math.round(refrigerantLb * 100) / 100,
       refrigerantCostCents,
       costCents: labourCostCents + refrigerantCostCents,
+      amountDifferenceCents: claim.amountCents === null ? null : claim.amountCents - (labourCostCents + refrigerantCostCents),
       claim,
     };
   });
@@ -452,6 +472,7 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
           make: c.make,
           model: c.model,
           cases: 0,
+          firstVisits: 0,
           callbacks: 0,
           returnVisits: 0,
           unitsAffected: 0,
@@ -475,6 +496,7 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
     const m = g.m;
     m.cases++;
     if (c.kind === 'callback') m.callbacks++;
+    else if (c.kind === 'service_call') m.firstVisits++;
     else m.returnVisits++;
     g.units.add(c.unitId);
     g.sites.add(c.siteId);
@@ -501,16 +523,18 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
 }
 
 /** Records a warranty claim's status, amount and reference for one factory-defect case. */
-export async function updateWarrantyClaim(db: Db, user: SessionUser, workOrderId: string, body: WarrantyClaimUpdate): Promise<WarrantyClaim> {
+export async function updateWarrantyClaim(db: Db, clock: Clock, user: SessionUser, workOrderId: string, body: WarrantyClaimUpdate): Promise<WarrantyClaim> {
   return db.transaction(async (tx) => {
     const [wo] = await tx.select({ id: workOrders.id, branchId: workOrders.branchId }).from(workOrders).where(eq(workOrders.id, workOrderId)).limit(1);
     if (!wo || (user.role !== 'owner' && wo.branchId !== user.branchId)) throw notFound('work order');
     const [isCase] = await factoryDefectCases(tx, { workOrderId });
     if (!isCase) {
-      throw unprocessable('A warranty claim belongs to a callback or return visit with a factory-defect finding; this work order has none.');
+      throw unprocessable('A warranty claim belongs to a service call, callback or return visit with a factory-defect finding; this work order has none.');
     }
     const [existing] = await tx.select().from(warrantyClaims).where(eq(warrantyClaims.workOrderId, workOrderId)).limit(1);
-    const amountCents = body.amountCents !== undefined ? body.amountCents : (existing?.amountCents ?? null);
+    // The amount defaults to the job's computed cost once the claim is claimed or paid.
+    const kept = body.amountCents !== undefined ? body.amountCents : (existing?.amountCents ?? null);
+    const amountCents = kept === null && (body.status === 'claimed' || body.status === 'paid') ? isCase.costCents : kept;
     if ((body.status === 'claimed' || body.status === 'paid') && amountCents === null) {
       throw unprocessable('Enter the amount claimed from the manufacturer before marking the claim claimed or paid.', {
         fields: [{ path: 'amountCents', message: 'Enter the amount' }],
@@ -522,7 +546,7 @@ export async function updateWarrantyClaim(db: Db, user: SessionUser, workOrderId
       reference: body.reference !== undefined ? body.reference || null : (existing?.reference ?? null),
       notes: body.notes !== undefined ? body.notes || null : (existing?.notes ?? null),
       updatedById: user.id,
-      updatedAt: new Date(),
+      updatedAt: clock.now(),
     };
     const [saved] = await tx
       .insert(warrantyClaims)

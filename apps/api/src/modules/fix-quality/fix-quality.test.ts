@@ -332,11 +332,21 @@ describe('factory-defect review and warranty claims', () => {
 
   it('records a claim (owner), refuses a work order without a factory defect and other branches', async () => {
     const o = await owner();
-    const missing = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed' });
-    expect(missing.status).toBe(422);
+    // Claimed without an amount: the amount defaults to the case's computed cost ($260.00, worked out above).
+    const byDefault = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed' });
+    expect(byDefault.status).toBe(200);
+    expect(byDefault.body.claim.amountCents).toBe(26_000);
+    // A different amount is kept and its difference from the cost shown: $250.00 − $260.00 = −$10.00.
+    await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed', amountCents: 25_000 });
+    const diffCase = (await o.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31')).body.cases.find(
+      (c: { workOrderId: string }) => c.workOrderId === ids.J2cb,
+    );
+    expect(diffCase.amountDifferenceCents).toBe(-1_000);
     const ok = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'claimed', amountCents: 26_000, reference: 'TM-CLM-1' });
     expect(ok.status).toBe(200);
     expect(ok.body.claim).toMatchObject({ status: 'claimed', amountCents: 26_000, reference: 'TM-CLM-1' });
+    // Stamped with the app's clock (this file runs at 2026-07-01 12:00 UTC), not the machine's.
+    expect(ok.body.claim.updatedAt).toBe('2026-07-01T12:00:00.000Z');
     const paid = await o.patch(`/api/warranty-claims/${ids.J2cb}`).send({ status: 'paid' });
     expect(paid.body.claim).toMatchObject({ status: 'paid', amountCents: 26_000, reference: 'TM-CLM-1' });
     const review = await o.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31');
@@ -350,6 +360,29 @@ describe('factory-defect review and warranty claims', () => {
     const tech = await signedInAgent(t.app, f.inB.technician.email, TEST_PASSWORD);
     expect((await tech.patch(`/api/warranty-claims/${ids.J6cb}`).send({ status: 'to_claim' })).status).toBe(403);
     expect((await o.patch(`/api/warranty-claims/${ids.J6cb}`).send({ status: 'refunded' })).status).toBe(400);
+  });
+});
+
+describe('factory defects found on the first visit', () => {
+  it('counts a service call whose first visit found a factory defect, costed on its own visits', async () => {
+    // May 2026, branch A ($90/h, $50/lb): FV1 opened 05-04 08:00, its first visit 60 labour minutes, 1.2 lb
+    // added, finding component_failure/factory_defect → $90.00 + $60.00 = $150.00. A callback booked off it
+    // (05-10, 30 min, no finding) is not part of the case: a service call's follow-ups are cases of their own.
+    const A = f.a.id;
+    const w = await workOrder({ branchId: A, siteId: fx.u2.site.id, unitId: fx.u2.unit.id, kind: 'service_call', openedAt: '2026-05-04T08:00:00Z' });
+    const v = await visit({ branchId: A, workOrderId: w.id, techId: fx.ta1.id, closedAt: '2026-05-04T12:00:00Z', outcome: 'resolved', labourMinutes: 60, finding: { unitId: fx.u2.unit.id, causeCode: 'component_failure', origin: 'factory_defect' } });
+    await t.ctx.db.insert(refrigerantEvents).values({ unitId: fx.u2.unit.id, visitId: v.id, date: '2026-05-04', refrigerant: 'R-410A', poundsAdded: 1.2, poundsRecovered: 0, reason: 'leak_top_off' });
+    const cb = await workOrder({ branchId: A, siteId: fx.u2.site.id, unitId: fx.u2.unit.id, kind: 'callback', openedAt: '2026-05-10T08:00:00Z', originWorkOrderId: w.id });
+    await visit({ branchId: A, workOrderId: cb.id, techId: fx.ta1.id, closedAt: '2026-05-10T12:00:00Z', outcome: 'resolved', labourMinutes: 30 });
+    const o = await owner();
+    const review = (await o.get('/api/reports/fix-quality/factory-defects?from=2026-05-01&to=2026-05-31')).body;
+    expect(review.cases.map((c: { workOrderId: string }) => c.workOrderId)).toEqual([w.id]);
+    expect(review.cases[0]).toMatchObject({ kind: 'service_call', visits: 1, labourCostCents: 9_000, refrigerantCostCents: 6_000, costCents: 15_000, amountDifferenceCents: null });
+    expect(review.models[0]).toMatchObject({ key: 'Acme|AX-1', cases: 1, firstVisits: 1, callbacks: 0, returnVisits: 0, toClaimCents: 15_000 });
+    // Claimable: paid without an amount records the computed cost.
+    const paid = await o.patch(`/api/warranty-claims/${w.id}`).send({ status: 'paid' });
+    expect(paid.status).toBe(200);
+    expect(paid.body.claim.amountCents).toBe(15_000);
   });
 });
 
@@ -495,7 +528,7 @@ describe('exports', () => {
     expect(res.headers['content-disposition']).toContain('coilpath-fix-quality-byTechnician-2026-03-01-to-2026-03-31.csv');
     const lines = res.text.replace(/^\uFEFF/, '').trim().split(/\r\n/);
     expect(lines[0]).toBe(
-      'group,service_calls_eligible,first_time_fixed,first_time_fix_rate_pct,resolved_first_visits,callbacks,callback_rate_pct,return_visits,return_visits_per_service_call,jobs_resolved,avg_days_to_resolve',
+      'group,service_calls_eligible,first_time_fixed,first_time_fix_rate_pct,resolved_first_visits,callbacks,callback_rate_pct,return_visits,return_visits_per_service_call,jobs_resolved,avg_days_to_resolve,pending_in_callback_window',
     );
     expect(lines).toHaveLength(1 + 3); // TA1, TA2, TB1
   });
@@ -571,5 +604,64 @@ describe('exports', () => {
     const d = report.change.firstTimeFixRate;
     if (d !== null) expect(read.flat).toContain(`${d >= 0 ? '+' : '−'}${Math.abs(d * 100).toFixed(1)} pts`);
     expect(read.flat).not.toContain('\uFFFD');
+  });
+});
+
+describe('maturity: calls still inside their callback window', () => {
+  /**
+   * "Now" is 2026-07-01 12:00 UTC (this file's clock). Period June 2026. Branch A's window is 30 days, B's 14;
+   * a call is mature once now is past first close + window × 24 h (a callback opened at that instant still
+   * counts, so a window ending exactly now is still open):
+   *  MA1 A closed 06-01 11:59:59 resolved → window ends 07-01 11:59:59, a second before now: mature, fixed.
+   *  MA2 A closed 06-01 12:00:00 resolved → window ends exactly now: pending.
+   *  MA3 A closed 06-20 12:00 resolved, callback 06-25 → window ends 07-20: pending (not yet a callback figure).
+   *  MA4 A closed 06-10 declined → neither counted nor pending.
+   *  MB1 B closed 06-16 12:00 resolved → window ends 06-30 12:00: mature, fixed.
+   *  MB2 B closed 06-17 12:00:01 resolved → window ends 07-01 12:00:01: pending.
+   * Eligible 2 (MA1, MB1), both fixed the first time; pending 3.
+   */
+  const JUNE = '/api/reports/fix-quality?from=2026-06-01&to=2026-06-30';
+  beforeAll(async () => {
+    const A = { branchId: f.a.id, siteId: fx.u1.site.id, unitId: fx.u1.unit.id, techId: fx.ta1.id };
+    const B = { branchId: f.b.id, siteId: fx.u3.site.id, unitId: fx.u3.unit.id, techId: fx.tb1.id };
+    await job('MA1', { ...A, openedAt: '2026-06-01T08:00:00Z', closedAt: '2026-06-01T11:59:59Z', outcome: 'resolved' });
+    await job('MA2', { ...A, openedAt: '2026-06-01T08:00:00Z', closedAt: '2026-06-01T12:00:00Z', outcome: 'resolved' });
+    const ma3 = await job('MA3', { ...A, openedAt: '2026-06-20T08:00:00Z', closedAt: '2026-06-20T12:00:00Z', outcome: 'resolved' });
+    await workOrder({ ...A, kind: 'callback', openedAt: '2026-06-25T09:00:00Z', originWorkOrderId: ma3.id, state: 'unplaced' });
+    await job('MA4', { ...A, openedAt: '2026-06-10T08:00:00Z', closedAt: '2026-06-10T12:00:00Z', outcome: 'declined' });
+    await job('MB1', { ...B, openedAt: '2026-06-16T08:00:00Z', closedAt: '2026-06-16T12:00:00Z', outcome: 'resolved' });
+    await job('MB2', { ...B, openedAt: '2026-06-17T08:00:00Z', closedAt: '2026-06-17T12:00:01Z', outcome: 'resolved' });
+  });
+
+  it('counts a call as pending until its own branch’s window has run out, and in no rate', async () => {
+    const r = (await (await owner()).get(JUNE)).body as FixQualityReport;
+    expect(r.pending).toBe(3);
+    expect(r.eligible).toBe(2);
+    expect(r.firstTimeFixed).toBe(2);
+    expect(r.firstTimeFixRate).toBe(1);
+    // MA3's callback is not counted while the call is pending.
+    expect(r.callbacks).toBe(0);
+    expect(group(r, 'byBranch', f.a.id)).toMatchObject({ eligible: 1, pending: 2 });
+    expect(group(r, 'byBranch', f.b.id)).toMatchObject({ eligible: 1, pending: 1 });
+    expect(group(r, 'byMonth', '2026-06')).toMatchObject({ eligible: 2, pending: 3 });
+    // March's calls are long mature: nothing pending there.
+    expect(((await (await owner()).get(Q)).body as FixQualityReport).pending).toBe(0);
+  });
+
+  it('says in the CSV and the PDF how many calls are pending', async () => {
+    const agent = await owner();
+    const csv = await agent.get('/api/reports/fix-quality.csv?from=2026-06-01&to=2026-06-30&table=byMonth');
+    const rows = Papa.parse<Record<string, string>>(csv.text.replace(/^\uFEFF/, ''), { header: true, skipEmptyLines: true }).data;
+    expect(rows.find((x) => x.group === '2026-06')).toMatchObject({ service_calls_eligible: '2', pending_in_callback_window: '3' });
+    const pdf = await agent
+      .get('/api/reports/fix-quality.pdf?from=2026-06-01&to=2026-06-30')
+      .buffer(true)
+      .parse((res, cb) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (c: Buffer) => chunks.push(c));
+        res.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
+    const read = await readPdf(pdf.body as Buffer);
+    expect(read.flat).toContain('3 calls are still inside their 14 or 30-day callback window');
   });
 });

@@ -37,7 +37,8 @@ const modelColumns = [
   mcol.accessor((m) => `${m.make} ${m.model}`, { id: 'model', header: 'Make and model', cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
   mcol.accessor('cases', {
     header: 'Cases',
-    cell: (c) => `${c.getValue()} (${c.row.original.callbacks} callbacks, ${c.row.original.returnVisits} return visits)`,
+    cell: (c) =>
+      `${c.getValue()} (${c.row.original.callbacks} callbacks, ${c.row.original.returnVisits} return visits, ${c.row.original.firstVisits} first visits)`,
   }),
   mcol.accessor('unitsAffected', { header: 'Units' }),
   mcol.accessor('sitesAffected', { header: 'Sites' }),
@@ -155,6 +156,12 @@ export function FactoryDefectReviewSection({ query, timeZone }: { query: PeriodQ
       cell: (c) => (
         <div className="flex min-w-72 flex-col gap-1">
           <Badge tone={claimTone[c.row.original.claim.status]}>{claimStatusLabels[c.row.original.claim.status]}</Badge>
+          {c.row.original.amountDifferenceCents !== null && c.row.original.amountDifferenceCents !== 0 && (
+            <span className="text-xs text-slate">
+              Claimed {formatMoney(Math.abs(c.row.original.amountDifferenceCents), c.row.original.currency)}{' '}
+              {c.row.original.amountDifferenceCents > 0 ? 'more' : 'less'} than the computed cost
+            </span>
+          )}
           <ClaimEditor c={c.row.original} queryKey={queryKey} />
         </div>
       ),
@@ -167,7 +174,7 @@ export function FactoryDefectReviewSection({ query, timeZone }: { query: PeriodQ
       actions={<CsvLink href={csvUrl(query, 'factoryDefects')} label="CSV" />}
     >
       <p className="mb-3 max-w-prose text-sm text-slate">
-        Callbacks and return visits opened in this period whose finding was a <strong>factory defect</strong>: the labour and refrigerant
+        Service calls (first visits included), callbacks and return visits opened in this period whose finding was a <strong>factory defect</strong>: the labour and refrigerant
         they cost at each branch’s rates (set on the Team screen) — the manufacturer’s to pay. Record each warranty claim as it moves from
         to claim to claimed, then paid or denied.
       </p>
@@ -177,7 +184,7 @@ export function FactoryDefectReviewSection({ query, timeZone }: { query: PeriodQ
         <ErrorState error={q.error} onRetry={() => q.refetch()} />
       ) : q.data.cases.length === 0 ? (
         <EmptyState title="No factory defects in this period">
-          When a technician records a finding with the origin “Factory defect” on a callback or return visit, the case appears here with its cost.
+          When a technician records a finding with the origin “Factory defect” on a service call, callback or return visit, the case appears here with its cost.
         </EmptyState>
       ) : (
         <div className="flex flex-col gap-4">

@@ -14,21 +14,14 @@ import { csvUrl, pdfUrl, reportQuery, type PeriodQuery } from './fix-quality-api
 import { GroupSection } from './group-table';
 import { ModelAlertsSection } from './model-alerts';
 import { appNow } from '@/lib/now';
+import { activePreset, previousPeriod, reportPresetKeys, reportPresets, type ReportPresetKey } from '@coilpath/calc';
 
-const isoDay = (d: Date) => d.toISOString().slice(0, 10);
-
-/** Period presets in UTC calendar dates (the report's period is UTC). */
-function presets(today: Date) {
-  const y = today.getUTCFullYear();
-  const m = today.getUTCMonth();
-  const q = Math.floor(m / 3) * 3;
-  return {
-    last12: { label: 'Last 12 months', from: isoDay(new Date(Date.UTC(y, m - 11, 1))), to: isoDay(today) },
-    last30: { label: 'Last 30 days', from: isoDay(new Date(today.getTime() - 29 * 86_400_000)), to: isoDay(today) },
-    quarter: { label: 'This quarter', from: isoDay(new Date(Date.UTC(y, q, 1))), to: isoDay(today) },
-    year: { label: 'This year', from: `${y}-01-01`, to: isoDay(today) },
-  };
-}
+const presetLabels: Record<ReportPresetKey, string> = {
+  last12: 'Last 12 months',
+  last30: 'Last 30 days',
+  quarter: 'This quarter',
+  year: 'This year',
+};
 
 type Better = 'up' | 'down';
 
@@ -127,12 +120,15 @@ export default function FixQualityPage() {
   const user = useUser();
   const { branchId, branch, timeZone } = useBranch();
   const [params, setParams] = useSearchParams();
-  const p = useMemo(() => presets(appNow()), []);
+  // Presets in UTC calendar dates (the report's period is UTC), defined once in @coilpath/calc.
+  const p = useMemo(() => reportPresets(appNow().toISOString().slice(0, 10)), []);
   const from = params.get('from') ?? p.last12.from;
   const to = params.get('to') ?? p.last12.to;
+  const active = activePreset(p, { from, to }, params.get('preset') ?? (params.get('from') ? null : 'last12'));
+  const prev = from <= to ? previousPeriod({ from, to }) : null;
   const query: PeriodQuery = { from, to, branchId };
   const q = useQuery(reportQuery(query));
-  const setPeriod = (f: string, t: string) => setParams({ from: f, to: t }, { replace: true });
+  const setPeriod = (f: string, t: string, preset?: ReportPresetKey) => setParams({ from: f, to: t, ...(preset ? { preset } : {}) }, { replace: true });
   const branchName = branch?.name ?? 'All branches';
 
   return (
@@ -142,7 +138,7 @@ export default function FixQualityPage() {
         subtitle={
           <>
             Where service calls are fixed the first time, where they come back, and why — <strong>{branchName}</strong>, first visits closed{' '}
-            {from} to {to} (UTC dates), compared with the {q.data ? `${q.data.previousPeriod.from} to ${q.data.previousPeriod.to}` : 'previous period'}.
+            {from} to {to} (UTC dates), compared with {prev ? `${prev.from} to ${prev.to}` : 'the previous period'} (as many days, ending the day before).
           </>
         }
         actions={
@@ -184,15 +180,15 @@ export default function FixQualityPage() {
           />
         </label>
         <div className="flex flex-wrap gap-2" role="group" aria-label="Quick periods">
-          {Object.values(p).map((x) => (
+          {reportPresetKeys.map((k) => (
             <button
-              key={x.label}
+              key={k}
               type="button"
-              aria-pressed={x.from === from && x.to === to}
-              onClick={() => setPeriod(x.from, x.to)}
+              aria-pressed={active === k}
+              onClick={() => setPeriod(p[k].from, p[k].to, k)}
               className="min-h-11 rounded-md border border-slate-line px-3 text-sm aria-pressed:border-coolant aria-pressed:bg-coolant-tint aria-pressed:font-medium"
             >
-              {x.label}
+              {presetLabels[k]}
             </button>
           ))}
         </div>
@@ -205,7 +201,18 @@ export default function FixQualityPage() {
       ) : (
         <div className="flex flex-col gap-5">
           <Headlines r={q.data} />
-          {q.data.eligible === 0 && (
+          <p className="rounded-md border border-slate-line bg-white p-3 text-sm" role="status">
+            {q.data.pending === 0 ? (
+              <>No call of this period is still inside its {q.data.windowDays.join(' or ') || 30}-day callback window: every call is counted.</>
+            ) : (
+              <>
+                <strong className="tabular">{q.data.pending}</strong> {q.data.pending === 1 ? 'call is' : 'calls are'} still inside{' '}
+                {q.data.pending === 1 ? 'its' : 'their'} {q.data.windowDays.join(' or ') || 30}-day callback window: a callback may still come,
+                so {q.data.pending === 1 ? 'it is' : 'they are'} left out of the rates until the window closes.
+              </>
+            )}
+          </p>
+          {q.data.eligible === 0 && q.data.pending === 0 && (
             <p className="rounded-md border border-dashed border-slate-line bg-white p-4 text-sm text-slate">
               No service call had its first visit closed in this period{branchId ? ' in this branch' : ''}. Choose a longer period; the figures
               fill in as technicians close visits.
@@ -215,6 +222,10 @@ export default function FixQualityPage() {
             <summary className="cursor-pointer font-medium">How these figures are counted</summary>
             <ul className="mt-2 list-disc space-y-1 pl-5 text-slate">
               <li>Only service calls count, and only when their first visit was not declined by the customer.</li>
+              <li>
+                A call counts only once its callback window has run out; until then it is <strong>pending</strong>, shown apart and left out of
+                every rate, so a recent period is not flattered by calls that have not had time to come back.
+              </li>
               <li>
                 A call is <strong>fixed the first time</strong> when its first visit closed as resolved and no return visit or callback was
                 opened within the branch’s callback window ({q.data.windowDays.join(' or ') || 30} days) after that visit closed.

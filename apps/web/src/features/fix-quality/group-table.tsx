@@ -29,6 +29,7 @@ export function groupColumns(first: string): CoilpathColumn<FixQualityGroup>[] {
     }),
     col.accessor('returnVisitsPerServiceCall', { header: 'Return visits / call', cell: (c) => formatNumber(c.getValue(), 2) }),
     col.accessor('avgDaysToResolve', { header: 'Days to resolve', cell: (c) => formatNumber(c.getValue(), 1) }),
+    col.accessor('pending', { header: 'Still in callback window', cell: (c) => c.getValue() }),
   ] as CoilpathColumn<FixQualityGroup>[];
 }
 
