@@ -8,12 +8,12 @@ import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:f
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { eq, inArray } from 'drizzle-orm';
+import { eq, inArray, sql } from 'drizzle-orm';
 import { migrate as migratePglite } from 'drizzle-orm/pglite/migrator';
 import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
 import { migrationsFolder, type Database } from './client';
 import { bookings, leakCases, visits, workOrders } from './schema';
-import { makeSiteWithUnit, makeTwoBranches, makeWorkOrder } from '../testing/fixtures';
+import { makeSiteWithUnit, makeUser, makeWorkOrder } from '../testing/fixtures';
 import { openTestDatabase } from '../testing/harness';
 
 let database: Database;
@@ -42,7 +42,12 @@ afterAll(async () => {
 describe('migration 0010 (one open return visit per unit)', () => {
   it('folds the extras into the one furthest along, keeps their needs, deadline and priority, and then refuses a second', async () => {
     const db = database.db;
-    const f = await makeTwoBranches(db);
+    // The branch as the previous release's table has it (later migrations add columns the schema file knows).
+    const inserted = (await db.execute(
+      sql`INSERT INTO branches (name, code, time_zone, base_lat, base_lon) VALUES ('Alpha', 'B1', 'America/Chicago', 41.88, -87.63) RETURNING id`,
+    )) as unknown as { rows: { id: string }[] };
+    const alpha = { id: inserted.rows[0]!.id };
+    const f = { a: alpha, inA: { technician: await makeUser(db, 'technician', alpha.id) } };
     const [p, q, r] = [await makeSiteWithUnit(db, f.a.id), await makeSiteWithUnit(db, f.a.id), await makeSiteWithUnit(db, f.a.id)];
     const origin = await makeWorkOrder(db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, state: 'closed', outcome: 'needs_return' });
     const ret = (unit: typeof p, v: Omit<Partial<typeof workOrders.$inferInsert>, 'unitId'>) =>

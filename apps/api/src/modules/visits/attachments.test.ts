@@ -108,7 +108,7 @@ describe('GET /api/attachments/:id', () => {
     expect(pdf.status).toBe(201);
     const res = await manager.get(pdf.body.attachment.url);
     expect(res.headers['content-type']).toBe('application/pdf');
-    expect(res.headers['content-disposition']).toBe('attachment; filename="report.pdf"');
+    expect(res.headers['content-disposition']).toBe('attachment; filename="report.pdf"; filename*=UTF-8\'\'report.pdf');
   });
 });
 
