@@ -84,7 +84,7 @@ function StopCard({
   const done = stop.status === 'closed';
   return (
     <li>
-      <Card className={done ? 'opacity-80' : ''}>
+      <Card>
         <div className="flex items-start gap-3">
           <span
             aria-hidden="true"
