@@ -1,5 +1,6 @@
 import { Router, type Response } from 'express';
-import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { ipKeyGenerator } from 'express-rate-limit';
+import { publicLimiter } from '../../auth/public-limiter';
 import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, ownerSetupSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { SESSION_COOKIE } from '../../auth/session';
@@ -43,16 +44,7 @@ export function authRoutes(ctx: AppContext): Router {
   });
 
   // Password reset: public and rate limited; the answer never says whether the address exists.
-  const resetLimiter = rateLimit({
-    windowMs: 15 * 60 * 1000,
-    limit: ctx.config.signInLimit,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|reset`,
-    handler: (_req, res) => {
-      res.status(429).json({ error: { code: 'too_many_attempts', message: 'Too many attempts. Wait 15 minutes and try again.' } });
-    },
-  });
+  const resetLimiter = publicLimiter('reset', ctx.config.signInLimit);
   r.post('/forgot-password', resetLimiter, async (req, res) => {
     const { email } = forgotPasswordSchema.parse(req.body ?? {});
     // Answered first; the lookup and the e-mail are a job (the answer must not tell who has an account).
@@ -97,16 +89,7 @@ export function authRoutes(ctx: AppContext): Router {
  */
 export function setupRoutes(ctx: AppContext): Router {
   const r = Router();
-  const limiter = rateLimit({
-    windowMs: 15 * 60 * 1000,
-    limit: Math.max(ctx.config.signInLimit, 10),
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|setup`,
-    handler: (_req, res) => {
-      res.status(429).json({ error: { code: 'too_many_attempts', message: 'Too many attempts. Wait 15 minutes and try again.' } });
-    },
-  });
+  const limiter = publicLimiter('setup', Math.max(ctx.config.signInLimit, 10));
   r.post('/check', limiter, async (req, res) => {
     const { token } = linkCheckSchema.parse(req.body ?? {});
     res.json(await checkOwnerSetup(ctx, token));

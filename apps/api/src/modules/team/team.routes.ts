@@ -1,5 +1,5 @@
 import { Router } from 'express';
-import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { publicLimiter } from '../../auth/public-limiter';
 import { acceptInvitationSchema, invitationInputSchema, linkCheckSchema, userProfileSchema, usersQuerySchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { requireAuth, requireRole } from '../../auth/middleware';
@@ -29,16 +29,7 @@ export function usersRoutes(ctx: AppContext): Router {
  */
 export function invitationsRoutes(ctx: AppContext): Router {
   const r = Router();
-  const limiter = rateLimit({
-    windowMs: 15 * 60 * 1000,
-    limit: Math.max(ctx.config.signInLimit, 10),
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    keyGenerator: (req) => ipKeyGenerator(req.ip ?? ''),
-    handler: (_req, res) => {
-      res.status(429).json({ error: { code: 'too_many_attempts', message: 'Too many attempts. Wait 15 minutes and try again.' } });
-    },
-  });
+  const limiter = publicLimiter('invitation', Math.max(ctx.config.signInLimit, 10));
   r.post('/check', limiter, async (req, res) => {
     const { token } = linkCheckSchema.parse(req.body ?? {});
     res.json({ invitation: await svc.previewInvitation(ctx, token) });
