@@ -219,6 +219,14 @@ export default function DayPage() {
     };
   }, [day, manualOrder]);
 
+  // Offline with nothing kept for this day: say so, rather than loading until the signal returns.
+  if (q.isPending && q.fetchStatus === 'paused') {
+    return (
+      <EmptyState title="This day is not kept on this device">
+        There is no connection, and this day was not opened here while there was one. It loads when the connection is back.
+      </EmptyState>
+    );
+  }
   if (q.isPending) return <LoadingState label="Loading your day…" />;
   if (q.isError) return <ErrorState error={q.error} onRetry={() => q.refetch()} />;
   const d = q.data;
