@@ -72,6 +72,17 @@ const EXEMPT_BY_REASON: Partial<Record<RefrigerantEventReason, AdditionExemption
   seasonal_variance: 'seasonal-variance',
 };
 
+/**
+ * A refrigerant entry as an addition to the leak-rate calculation: `null` for a recovery or an entry
+ * with nothing added; an installation charge, retrofit or seasonal top-up is marked exempt
+ * (40 CFR 82.157(b), 84.106(b)). The one mapping for the ledger and the check made at each entry.
+ */
+export function additionOf(e: { date: string; poundsAdded: number; reason: RefrigerantEventReason }, leakId?: string): RefrigerantAddition | null {
+  if (e.reason === 'recovery' || e.poundsAdded <= 0) return null;
+  const exempt = EXEMPT_BY_REASON[e.reason];
+  return { date: e.date, pounds: e.poundsAdded, ...(leakId ? { leakId } : {}), ...(exempt ? { exempt } : {}) };
+}
+
 type Person = { name: string; epa608Type: string; epa608Number: string | null } | null;
 
 export interface LedgerSourceRows {
@@ -126,13 +137,13 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
 
   for (const e of src.events) {
     const base = { ...blank, date: e.date, sourceId: e.id, recordedAt: e.createdAt.toISOString(), poundsAdded: e.poundsAdded, poundsRecovered: e.poundsRecovered, reason: e.reason, cylinderLot: e.cylinderLot, visitId: e.visitId, by: e.tech, leakCaseId: leakIdOf.get(e.id) ?? null };
-    if (e.reason === 'recovery' || e.poundsAdded <= 0) {
+    const leakId = leakIdOf.get(e.id);
+    const a = additionOf(e, leakId);
+    if (!a) {
       entries.push({ ...base, kind: e.poundsAdded > 0 || e.poundsRecovered > 0 || e.reason === 'recovery' ? 'recovery' : 'addition', note: e.poundsAdded > 0 ? 'Recorded as a recovery: not counted toward the leak rate.' : null });
       continue;
     }
-    const exempt = EXEMPT_BY_REASON[e.reason] ?? null;
-    const leakId = leakIdOf.get(e.id);
-    const a: RefrigerantAddition = { date: e.date, pounds: e.poundsAdded, ...(leakId ? { leakId } : {}), ...(exempt ? { exempt } : {}) };
+    const exempt = a.exempt ?? null;
     additions.push(a);
     ledgerEvents.push({ kind: 'addition', ...a });
     entries.push({ ...base, kind: 'addition', exempt, counted: exempt === null, note: exempt ? 'Not counted toward the leak rate (40 CFR 82.157(b)).' : null });

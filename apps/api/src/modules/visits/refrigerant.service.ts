@@ -12,6 +12,7 @@ import { badRequest, conflict, forbidden, notFound } from '../../lib/errors';
 import { assertVisitRecordable, loadReadableUnit, loadVisit, type UnitRow } from './access';
 import { leakCaseDto, refrigerantEventDto } from './dto';
 import { unitsOfWorkOrder } from './visits.service';
+import { additionOf } from '../unit-file/refrigerant-record';
 import { workOrders } from '../../db/schema';
 
 /** Leak cases in these states still stand: a new case is not opened beside one. */
@@ -22,17 +23,19 @@ const METHOD = 'annualizing' as const;
 
 type Input = z.output<typeof refrigerantEventInputSchema>;
 
-/** The unit's leak rate and repair obligation as of a date, over every addition on record. */
+/** The unit's leak rate and repair obligation as of a date, over every addition on record (exempt ones not counted). */
 async function leakCheck(tx: Tx, unit: UnitRow, asOf: string): Promise<LeakCheckDto | null> {
-  const adds = await tx
-    .select({ date: refrigerantEvents.date, pounds: refrigerantEvents.poundsAdded })
+  const rows = await tx
+    .select({ date: refrigerantEvents.date, poundsAdded: refrigerantEvents.poundsAdded, reason: refrigerantEvents.reason })
     .from(refrigerantEvents)
     .where(and(eq(refrigerantEvents.unitId, unit.id), gt(refrigerantEvents.poundsAdded, 0)))
     .orderBy(asc(refrigerantEvents.date));
+  // Counted and exempt additions as the unit's refrigerant record has them (one mapping for both).
+  const additions = rows.map((r) => additionOf(r)).filter((a) => a !== null);
   try {
     const o = leakRepairObligation({
       appliance: { category: unit.applianceCategory, fullCharge: unit.fullChargeLb, refrigerant: unit.refrigerant },
-      additions: adds,
+      additions,
       asOf,
       method: METHOD,
     });

@@ -213,6 +213,28 @@ describe('POST /api/units/:id/refrigerant-events', () => {
     expect(await t.ctx.db.select().from(leakCases).where(eq(leakCases.unitId, leaky.unit.id))).toHaveLength(1);
   });
 
+  it('does not count an installation charge toward the leak rate, as the unit’s refrigerant record does not', async () => {
+    // 40 CFR 82.157(b) / 84.106(b): no leak rate is calculated at an addition made at installation.
+    // Counted, 80 lb on a 100 lb comfort-cooling unit would read 80 % > 10 % and open a leak case.
+    const fresh = await makeSiteWithUnit(t.ctx.db, f.a.id, { unit: { fullChargeLb: 100, refrigerant: 'R-410A', applianceCategory: 'comfort_cooling' } });
+    const { visit } = await book({ siteId: fresh.site.id, unitId: fresh.unit.id, onSite: true });
+    const post = (body: object) => tech.post(`/api/units/${fresh.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', visitId: visit.id, ...body });
+    const charge = await post({ poundsAdded: 80, reason: 'initial_charge', date: '2026-02-01' });
+    expect(charge.status).toBe(201);
+    expect(charge.body.leakCheck).toMatchObject({ exceeds: false, leakRatePercent: 0 });
+    expect(charge.body.leakCaseOpened).toBe(false);
+    // A later 2 lb top-up counts: 2/100 × 365/37 × 100 = 19.73 % (annualizing, 40 CFR 82.152; the interval
+    // runs from the last addition, exempt or not) — over 10 %, so this one opens the case.
+    const top = await post({ poundsAdded: 2, reason: 'leak_top_off', date: '2026-03-10' });
+    expect(top.body.leakCheck.leakRatePercent).toBeCloseTo((2 / 100) * (365 / 37) * 100, 1);
+    expect(top.body.leakCaseOpened).toBe(true);
+    const record = await manager.get(`/api/units/${fresh.unit.id}/refrigerant-record`);
+    expect(record.status).toBe(200);
+    // The check at entry and the record agree: the same rate, one obligation, from the top-up.
+    expect(record.body.leakRatePercent).toBeCloseTo(top.body.leakCheck.leakRatePercent, 1);
+    expect(record.body.obligations.map((o: { triggeredOn: string }) => o.triggeredOn)).toEqual(['2026-03-10']);
+  });
+
   it('is idempotent with a client id, and refuses units off the technician’s assignments (404) and the office (403)', async () => {
     const { visit } = await book({ onSite: true });
     const id = '0b6f8a7c-7d65-4a2e-9f1e-5a4b3c2d1e0f';
