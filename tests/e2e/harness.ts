@@ -93,12 +93,14 @@ export function createJourneyContext(opts: { base: string; name: string; outDir:
           impact: v.impact ?? null,
           help: v.help,
           nodes: v.nodes.slice(0, 3).map((n) => n.target.join(' ')),
+          // The first offending element and axe's reason, so a failure can be understood from the log alone.
+          first: v.nodes[0] ? `${v.nodes[0].html.slice(0, 600)}\n    ${(v.nodes[0].failureSummary ?? '').replace(/\n/g, ' ')}` : '',
         }));
       });
       const bad = violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
       for (const v of violations.filter((x) => !bad.includes(x))) opts.log(`    axe (${v.impact}) on ${name}: ${v.id} — ${v.help}`);
       if (bad.length > 0) {
-        const lines = bad.map((v) => `  ${v.impact} ${v.id}: ${v.help} at ${v.nodes.join(' | ')}`);
+        const lines = bad.map((v) => `  ${v.impact} ${v.id}: ${v.help} at ${v.nodes.join(' | ')}\n    first: ${v.first}`);
         throw new Error(`axe found serious/critical accessibility violations on "${name}":\n${lines.join('\n')}`);
       }
     },

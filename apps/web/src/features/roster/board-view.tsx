@@ -486,7 +486,7 @@ export function TechBoard(p: TechBoardProps) {
                       className={`border-l border-slate-line/70 p-0.5 align-top ${d === p.today ? 'bg-coolant-tint' : ''} ${drop['data-drop-target'] ? 'outline-2 -outline-offset-2 outline-coolant' : ''}`}
                     >
                       {quiet.has(d) ? (
-                        <QuietHead t={t} d={d} r={r} c={c} label={cellLabel(t.name, d, 0, p.load?.get(cellKey(t.id, d)), p.today)} onOpenDay={p.onOpenDay} />
+                        <QuietHead t={t} d={d} r={r} c={c} load={p.load?.get(cellKey(t.id, d))} today={p.today} onOpenDay={p.onOpenDay} />
                       ) : (
                         head(t, d, r, c, entries.length, false)
                       )}
@@ -507,7 +507,12 @@ export function TechBoard(p: TechBoardProps) {
   );
 }
 
-function QuietHead({ t, d, r, c, label, onOpenDay }: { t: Technician; d: string; r: number; c: number; label: string; onOpenDay: (techId: string, day: string) => void }) {
+/**
+ * The head of a day nobody works: "Off", or "Holiday" on the branch's holiday — a word of the cell's
+ * spoken name ("…: no bookings, Day off" / "…, Holiday"), so what is seen is what is heard.
+ */
+function QuietHead({ t, d, r, c, load, today, onOpenDay }: { t: Technician; d: string; r: number; c: number; load: TechnicianDayLoad | undefined; today: string; onOpenDay: (techId: string, day: string) => void }) {
+  const label = cellLabel(t.name, d, 0, load, today);
   return (
     <button
       type="button"
@@ -519,7 +524,7 @@ function QuietHead({ t, d, r, c, label, onOpenDay }: { t: Technician; d: string;
       className="flex w-full items-center justify-center gap-1 rounded px-1 py-1 text-xs text-slate hover:bg-slate-faint"
     >
       <Moon className="size-3.5 shrink-0" aria-hidden="true" />
-      Off
+      {load?.holiday ? 'Holiday' : 'Off'}
     </button>
   );
 }

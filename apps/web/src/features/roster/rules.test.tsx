@@ -10,7 +10,7 @@ import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import type { Booking, Technician, WorkOrder } from '@coilpath/contract';
 import { NoticesProvider } from '@/components/ui/notices';
 import { ApiError } from '@/lib/api-client';
-import { groupBookings } from './board';
+import { cellKey, groupBookings } from './board';
 import { chipSuffix, TechBoard } from './board-view';
 import { BookDialog, unproposedText } from './book-dialog';
 import { BookingDialog } from './booking-dialog';
@@ -253,5 +253,35 @@ describe('the booking form warns before the dispatcher confirms', () => {
     const rule = unproposedText({ name: 'Ana Ruiz', blockedBy: ['skill'], reasons: ['Lacks the skill "chiller"', 'EPA 608 Universal covers the Type II refrigerant work'] });
     expect(rule).toBe('Ana Ruiz is not proposed for this job that day: Lacks the skill "chiller". Pick another technician or day, or book against the rule with a reason.');
     expect(rule).not.toMatch(/free time/);
+  });
+});
+
+describe('a day nobody works on the board', () => {
+  // WCAG 2.5.3 "Label in Name": the words a quiet day's head shows are part of its spoken name,
+  // a branch holiday included (it once showed "Off" while its name said "Holiday").
+  it('shows a word of its name: "Holiday" on the branch holiday, "Off" on a day off', () => {
+    const days = ['2027-03-08', '2027-03-09', '2027-03-10', '2027-03-11', '2027-03-12', '2027-03-13', '2027-03-14'];
+    const load = new Map(
+      days.map((d, i) => {
+        const holiday = d === '2027-03-12';
+        const capacity = holiday || i >= 5 ? 0 : 510;
+        return [cellKey(ana.id, d), { techId: ana.id, day: d, bookedMinutes: 0, capacityMinutes: capacity, ratio: capacity ? 0 : null, overloaded: false, holiday }];
+      }),
+    );
+    const html = wrap(
+      <TechBoard techs={[ana]} days={days} day="2027-03-09" today="2027-03-08" timeZone={tz} cells={groupBookings([], tz, days)} load={load} placing={null}
+        onOpen={() => {}} onOpenDay={() => {}} onPlace={() => {}} onMoveTo={() => {}} onPickDay={() => {}} onCancelPlacing={() => {}} />,
+    );
+    const head = (col: number) => {
+      const m = new RegExp(`<button[^>]*data-nav-head="0:${col}"[^>]*>([\\s\\S]*?)</button>`).exec(html);
+      expect(m, `the head of column ${col}`).not.toBeNull();
+      return { label: /aria-label="([^"]*)"/.exec(m![0])![1]!, shown: text(m![1]!) };
+    };
+    const holiday = head(4);
+    expect(holiday.shown).toBe('Holiday');
+    expect(holiday.label.toLowerCase()).toContain(holiday.shown.toLowerCase());
+    const off = head(5);
+    expect(off.shown).toBe('Off');
+    expect(off.label.toLowerCase()).toContain(off.shown.toLowerCase());
   });
 });
