@@ -10,7 +10,6 @@ import { DEMO_PASSWORD, demoToday, seedDemo } from './db/seed';
 import { clockFromEnv, readEnv, startMode } from './lib/config';
 import { issueOwnerSetup } from './modules/auth/owner-setup.service';
 import { createSmtpMailer } from './mail/mailer';
-import { startMailSink } from './mail/sink';
 import { openStorage } from './storage/s3';
 import { loadSecret } from './secret';
 import { DataDirLocked, lockDataDir } from './data-dir-lock';
@@ -38,7 +37,17 @@ const { storage, where: filesWhere } = await openStorage(env, dataDir).catch((e:
   console.error(`Coilpath cannot start: ${(e as Error).message}`);
   process.exit(1);
 });
-const sink = env.SMTP_URL ? null : await startMailSink(database.db, storage);
+// Without SMTP_URL, mail goes to the local sink (read at /outbox). Its SMTP server and parser are
+// development packages: a server installed without them (`npm ci --omit=dev`) must name a relay.
+const sink = env.SMTP_URL
+  ? null
+  : await import('./mail/sink')
+      .then(({ startMailSink }) => startMailSink(database.db, storage))
+      .catch((e: unknown) => {
+        const missing = (e as { code?: string }).code === 'ERR_MODULE_NOT_FOUND';
+        console.error(`Coilpath cannot start: ${missing ? 'the local mail sink is not installed (a production install); set SMTP_URL to your mail relay' : (e as Error).message}.`);
+        process.exit(1);
+      });
 const mailer = createSmtpMailer(env.SMTP_URL ?? sink!.url, env.MAIL_FROM);
 
 // Demo data only in demo mode (never on a published server); otherwise an empty database gets a setup link.
