@@ -33,6 +33,11 @@ export function addDays(date: IsoDate, days: number): IsoDate {
   return fromDayNumber(dayNumber(date) + days);
 }
 
+/** Whole calendar days from `from` to `to` (negative when `to` is earlier). */
+export function daysFrom(from: IsoDate, to: IsoDate): number {
+  return dayNumber(to, 'to') - dayNumber(from, 'from');
+}
+
 /** Milliseconds since the epoch for an instant; `RangeError` when it cannot be read. */
 export function instantMs(value: Instant, what = 'instant'): number {
   const ms = value instanceof Date ? value.getTime() : typeof value === 'string' ? Date.parse(value) : Number.NaN;

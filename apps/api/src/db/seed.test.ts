@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, asc, count, eq, gte, lt, sql } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
+import { addDays } from '@coilpath/calc';
 import type { Database } from './client';
 import * as s from './schema';
 import { DEMO_PASSWORD, demoToday, seedDemo } from './seed';
@@ -28,7 +29,6 @@ const localDay = (at: Date, tz: string) => {
   const d = new TZDate(at.getTime(), tz);
   return `${d.getFullYear()}-${String(d.getMonth() + 1).padStart(2, '0')}-${String(d.getDate()).padStart(2, '0')}`;
 };
-const addDays = (d: string, n: number) => new Date(Date.parse(`${d}T00:00:00Z`) + n * 86_400_000).toISOString().slice(0, 10);
 
 describe('demo scenario', { timeout: 120_000 }, () => {
   let a: Database;

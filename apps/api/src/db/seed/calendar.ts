@@ -1,7 +1,7 @@
 import { TZDate } from '@date-fns/tz';
+import { addDays } from '@coilpath/calc';
 
 /** Calendar helpers on `YYYY-MM-DD` strings (no time zone) and local wall times. */
-const DAY = 86_400_000;
 
 const parts = (d: string) => [Number(d.slice(0, 4)), Number(d.slice(5, 7)), Number(d.slice(8, 10))] as const;
 const iso = (ms: number) => new Date(ms).toISOString().slice(0, 10);
@@ -10,9 +10,7 @@ const utcMs = (d: string) => {
   return Date.UTC(y, m - 1, dd);
 };
 
-export const addDays = (d: string, n: number): string => iso(utcMs(d) + n * DAY);
-/** Whole days from `b` to `a` (a − b). */
-export const daysBetween = (a: string, b: string): number => Math.round((utcMs(a) - utcMs(b)) / DAY);
+export { addDays };
 /** 0 = Sunday … 6 = Saturday. */
 export const weekday = (d: string): number => new Date(utcMs(d)).getUTCDay();
 export const weekdayKey = (d: string) => (['sun', 'mon', 'tue', 'wed', 'thu', 'fri', 'sat'] as const)[weekday(d)]!;

@@ -3,6 +3,8 @@
  * (reference/LEAK-RULES.md): every addition on a covered appliance either stays at or under its
  * threshold or has a leak case. The product's own computation lives in @coilpath/calc.
  */
+import { daysFrom } from '@coilpath/calc';
+
 export const PART84_FROM = '2026-01-01';
 
 export interface CoveredBy {
@@ -43,10 +45,10 @@ export function coveredBy(unit: LeakUnit, date: string): CoveredBy | null {
  * Days in the annualizing method: days since the previous addition, capped at 365; 365 when there
  * was none, and (Part 84, 84.106(b)(1)) for the first calculation after 2026-01-01.
  */
-export function annualizingDays(cover: CoveredBy, previousAddition: string | null, date: string, daysBetween: (a: string, b: string) => number): number {
+export function annualizingDays(cover: CoveredBy, previousAddition: string | null, date: string): number {
   if (!previousAddition) return 365;
   if (cover.rule === '40 CFR 84.106' && previousAddition < PART84_FROM) return 365;
-  return Math.min(Math.max(daysBetween(date, previousAddition), 1), 365);
+  return Math.min(Math.max(daysFrom(previousAddition, date), 1), 365);
 }
 
 /** lb added ÷ full charge × 365 ÷ days × 100. */

@@ -10,13 +10,12 @@ import type {
   WorkOrderKind,
   WorkOrderState,
 } from '@coilpath/contract';
-import { isRefrigerantId, subcooling, superheat } from '@coilpath/calc';
+import { daysFrom, isRefrigerantId, subcooling, superheat } from '@coilpath/calc';
 import type * as t from '../schema';
 import {
   addDays,
   addMinutes,
   addMonths,
-  daysBetween,
   hhmmToMinutes,
   localDate,
   month,
@@ -818,7 +817,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       for (;;) {
         const id = rng.uuid();
         const rrule = plan === 'monthly' ? `FREQ=MONTHLY;BYMONTHDAY=${day}` : plan === 'quarterly' ? `FREQ=MONTHLY;INTERVAL=3;BYMONTHDAY=${day}` : `FREQ=YEARLY;BYMONTH=4,10;BYMONTHDAY=${day}`;
-        const years = (daysBetween(end, start) + 1) / 365;
+        const years = (daysFrom(start, end) + 1) / 365;
         const at = wallTime(start, 9 * 60, b.tz);
         rows.agreements.push({
           id, branchId: b.id, siteId: site.id, name, rrule,
@@ -987,13 +986,13 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     // weekend, so the day count and rate shift slightly — e.g. 42 days gives 45.87 %; the stored rate is computed, not typed.) If the previous addition fell before 2026-01-01, the first Part 84
     // calculation uses 365 days (84.106(b)(1)), so the addition is sized to exceed the threshold either way.
     const cover = coveredBy({ refrigerant: u.refrigerant, fullChargeLb: u.fullChargeLb, applianceCategory: u.applianceCategory }, triggerDate)!;
-    const days = cover ? annualizingDays(cover, sc1.slot.date, triggerDate, daysBetween) : 365;
+    const days = cover ? annualizingDays(cover, sc1.slot.date, triggerDate) : 365;
     const lb = days < 365 ? 9.5 : 23.5;
     const triggerId = rng.uuid();
     const sc2 = closedCall({
       unit: u, date: triggerDate, exact: true, cause: 'refrigerant_leak', origin: 'wear', circuit: 2, outcome: 'needs_return', alarmCode: 'LP2',
       priority: 'high', requiredSkill: 'chiller', tech: chillerTech, minutes: 200, wantsReturn: ['leak_search'],
-      findingNotes: `Circuit 2 low again ${daysBetween(triggerDate, sc1.slot.date)} days after the last top-off; added ${lb} lb. Leak rate over the comfort-cooling threshold: leak case opened.`,
+      findingNotes: `Circuit 2 low again ${daysFrom(sc1.slot.date, triggerDate)} days after the last top-off; added ${lb} lb. Leak rate over the comfort-cooling threshold: leak case opened.`,
       refrigerant: [{ unit: u, added: lb, reason: 'leak_top_off', scripted: true, id: triggerId }],
     })!;
     const rate = annualizedRate(lb, u.fullChargeLb, days);
@@ -1037,7 +1036,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     // Annualizing: 4 ÷ 28 × 365 ÷ 19 × 100 = 274.4 % > 20 % (commercial refrigeration); repair due 30 days after the addition —
     // three days ago. (With no 2026 addition before it, 365 days are used and the addition is sized to exceed 20 % anyway.)
     const cover = coveredBy({ refrigerant: u.refrigerant, fullChargeLb: u.fullChargeLb, applianceCategory: u.applianceCategory }, triggerDate);
-    const days = cover ? annualizingDays(cover, sc1.slot.date, triggerDate, daysBetween) : 365;
+    const days = cover ? annualizingDays(cover, sc1.slot.date, triggerDate) : 365;
     const lb = days < 365 ? 4 : 7;
     const triggerId = rng.uuid();
     const sc2 = closedCall({
@@ -1085,7 +1084,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       refrigerant: [{ unit: u, added: 12, reason: 'leak_top_off', scripted: true, id: triggerId }],
     })!;
     // Annualizing (40 CFR 82.157): 12 ÷ 85 × 365 ÷ 60 × 100 = 85.88 % > 10 % → repaired within 30 days, verified twice.
-    const days = daysBetween(sc2.slot.date, sc1.slot.date);
+    const days = daysFrom(sc1.slot.date, sc2.slot.date);
     const rate = annualizedRate(12, 85, days);
     const caseId = rng.uuid();
     const fix = closedCall({
@@ -1286,7 +1285,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
     for (const occ of occurrences(term)) {
       const planned = nextWorkday(b, occ);
       if (planned >= today || planned < historyStart) continue;
-      const daysAgo = daysBetween(today, planned);
+      const daysAgo = daysFrom(planned, today);
       const missed = missedPerBranch.get(b.id) ?? 0;
       if (daysAgo > 20 && daysAgo < 200 && missed < 2 && rng.chance(0.12)) {
         missedPerBranch.set(b.id, missed + 1);
@@ -1325,7 +1324,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       let d = addDays(earliest, rng.int(0, 110));
       while (d < addDays(horizon, -2)) {
         const cause = rng.weighted(causesFor(u));
-        const recent = daysBetween(horizon, d) < 14;
+        const recent = daysFrom(d, horizon) < 14;
         const call = closedCall({ unit: u, date: d, cause, outcome: recent ? rng.pick<VisitOutcome>(['resolved', 'resolved', 'declined']) : undefined });
         if (call) followUps(call, cause, horizon);
         d = addDays(d, rng.int(lo, hi));
@@ -1369,7 +1368,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
         const eligible = b.units.filter((u) => !storyOwned.has(u.id));
         // Units free this week and without a visit in the last three weeks first; units with a plain booked
         // service call later this week only once those run out (a branch this busy has few units left over).
-        const rank = (u: Unit) => (usedThisWeek.has(u) ? 2 : 0) + (daysBetween(today, lastVisit.get(u.id) ?? historyStart) > 21 ? 0 : 1);
+        const rank = (u: Unit) => (usedThisWeek.has(u) ? 2 : 0) + (daysFrom(lastVisit.get(u.id) ?? historyStart, today) > 21 ? 0 : 1);
         const ranked = (list: Unit[]) => rng.shuffle(list).sort((x, y) => rank(x) - rank(y));
         const pool = ranked(eligible);
         for (const day of days) {
@@ -1419,7 +1418,7 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       const cover = coveredBy({ refrigerant: u.refrigerant, fullChargeLb: u.fullChargeLb, applianceCategory: u.applianceCategory }, r.date);
       if (cover && !p.spec.scripted) {
         // Random top-offs stay under 90 % of the threshold, so the only leak cases are the scripted ones.
-        const days = annualizingDays(cover, lastAddition.get(u.id) ?? null, r.date, daysBetween);
+        const days = annualizingDays(cover, lastAddition.get(u.id) ?? null, r.date);
         const max = Math.floor(((0.9 * cover.thresholdPercent) / 100) * u.fullChargeLb * (days / 365) * 10) / 10;
         if (max < 0.3) continue;
         r.poundsAdded = Math.min(r.poundsAdded ?? 0, max);

@@ -14,14 +14,14 @@ import {
   agreementInputSchema,
   agreementPatchSchema,
 } from '@coilpath/contract';
-import { addDays, levelVisitsAcrossWeeks, planAgreementVisits, zonedDate, zonedInstant } from '@coilpath/calc';
+import { addDays, daysFrom, levelVisitsAcrossWeeks, planAgreementVisits, zonedDate, zonedInstant } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { agreementUnits, agreements, auditEvents, branches, customers, sites, units, users, workOrders } from '../../db/schema';
 import { assertBranch } from '../../auth/middleware';
 import { notFound, unprocessable } from '../../lib/errors';
-import { branchFilter, branchesById, daysBetween, todayIn } from '../watchlist/scope';
+import { branchFilter, branchesById, todayIn } from '../watchlist/scope';
 
 /** Planned-maintenance visits one technician can take in a week (one a working day): the levelling cap per technician. */
 export const PM_VISITS_PER_TECH_WEEK = 5;
@@ -443,7 +443,7 @@ export async function pmCompletion(ctx: AppContext, user: SessionUser, q: { bran
     const counts = byAgreement.get(a.id);
     if (counts) out.agreements.push({ agreementId: a.id, branchId: a.branchId, name: a.name, siteName, ...counts });
     const today = todayOf.get(a.branchId)!;
-    const daysLeft = daysBetween(today, a.termEnd);
+    const daysLeft = daysFrom(today, a.termEnd);
     if (a.status === 'active' && daysLeft >= 0 && daysLeft <= RENEWAL_DAYS) {
       out.renewals.push({ agreementId: a.id, branchId: a.branchId, name: a.name, siteName, customerName, termEnd: a.termEnd, daysLeft, priceCents: a.priceCents });
     }

@@ -1,7 +1,7 @@
 import { and, asc, eq, gte, inArray, isNull, lt, ne, or } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
-import { planRoute } from '@coilpath/calc';
+import { addDays, planRoute } from '@coilpath/calc';
 import { weekdays, type DayResponse, type DayStop, type SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
@@ -14,11 +14,6 @@ export function startOfDayIn(date: string, timeZone: string, hh = 0, mm = 0): Da
   return new Date(new TZDate(y, m - 1, d, hh, mm, 0, timeZone).getTime());
 }
 
-export function addDaysIso(date: string, days: number): string {
-  const t = new Date(`${date}T00:00:00Z`);
-  t.setUTCDate(t.getUTCDate() + days);
-  return t.toISOString().slice(0, 10);
-}
 
 /** A non-fixed booking may be reached up to this many minutes before it starts. */
 const LOOSE_EARLY_MINUTES = 30;
@@ -52,7 +47,7 @@ export async function technicianDay(ctx: AppContext, user: SessionUser, date: st
   const tz = me.branch.timeZone;
   const day = date ?? format(new TZDate(ctx.clock.now().getTime(), tz), 'yyyy-MM-dd');
   const from = startOfDayIn(day, tz);
-  const to = startOfDayIn(addDaysIso(day, 1), tz);
+  const to = startOfDayIn(addDays(day, 1), tz);
 
   const rows = await ctx.db
     .select({ visit: visits, booking: bookings, wo: workOrders, site: sites })

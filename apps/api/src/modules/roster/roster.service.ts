@@ -10,7 +10,7 @@ import { assertBranch, resolveBranch } from '../../auth/middleware';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
 import { createBooking, overlapping, ruleJob, updateBooking } from './bookings.service';
 import {
-  daysBetween,
+  eachDay,
   localRange,
   localTime,
   mondayOf,
@@ -112,7 +112,7 @@ export async function load(db: Db, user: SessionUser, q: z.output<typeof loadQue
   const calcBookings = rows.map(toCalcBooking);
   const out: TechnicianDayLoad[] = [];
   const holidays = new Set(branch.holidays);
-  for (const day of daysBetween(q.from, q.to)) {
+  for (const day of eachDay(q.from, q.to)) {
     for (const l of technicianLoad(calcBookings, techs, day)) out.push(holidays.has(day) ? { ...l, holiday: true } : l);
   }
   return { timeZone: branch.timeZone, load: out };
@@ -242,7 +242,7 @@ export async function evenOutPreview(db: Db, user: SessionUser, input: z.output<
   const result = evenOut({ jobs, techs, bookings: calcBookings, movable, week, options: { now } });
 
   const before = new Map<string, number>();
-  for (const day of daysBetween(week, last)) {
+  for (const day of eachDay(week, last)) {
     for (const l of technicianLoad(calcBookings, techs, day)) before.set(l.techId, (before.get(l.techId) ?? 0) + l.bookedMinutes);
   }
   const after = new Map<string, { booked: number; capacity: number }>();

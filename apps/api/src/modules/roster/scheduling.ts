@@ -77,7 +77,7 @@ export function toCalcBooking(b: BookingRow): CalcBooking {
 export const priorityRank: Record<Priority, number> = { emergency: 3, high: 2, normal: 1, low: 0 };
 
 /** Every local day from `from` to `to`, inclusive. */
-export function daysBetween(from: string, to: string): string[] {
+export function eachDay(from: string, to: string): string[] {
   const out: string[] = [];
   for (let d = from; d <= to; d = addDays(d, 1)) out.push(d);
   return out;

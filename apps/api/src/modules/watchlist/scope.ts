@@ -49,9 +49,5 @@ export async function branchesById(db: Db | Tx, ids: string[]): Promise<Map<stri
 /** Today's date in a branch's time zone. */
 export const todayIn = (timeZone: string, now: Date) => zonedDate(now, timeZone);
 
-/** Whole days from `from` to `to` (YYYY-MM-DD). */
-export function daysBetween(from: string, to: string): number {
-  return Math.round((Date.parse(`${to}T00:00:00Z`) - Date.parse(`${from}T00:00:00Z`)) / 86_400_000);
-}
 
 export { sql };

@@ -19,7 +19,7 @@ import {
   leakObligationStateLabels,
   workOrderLabel,
 } from '@coilpath/contract';
-import { LEAK_RULES, addDays, repeatAlarms, requiredCertificationFor, sameCode, verificationDeadlines, zonedInstant } from '@coilpath/calc';
+import { LEAK_RULES, addDays, daysFrom, repeatAlarms, requiredCertificationFor, sameCode, verificationDeadlines, zonedInstant } from '@coilpath/calc';
 import type { AppContext } from '../../context';
 import type { Db, Tx } from '../../db/client';
 import {
@@ -38,7 +38,7 @@ import {
 } from '../../db/schema';
 import { assertBranch } from '../../auth/middleware';
 import { HttpError, conflict, notFound, unprocessable } from '../../lib/errors';
-import { branchFilter, branchesById, branchesInScope, daysBetween, todayIn, type BranchInfo } from './scope';
+import { branchFilter, branchesById, branchesInScope, todayIn, type BranchInfo } from './scope';
 import { buildLedger, loadLedgerSource } from '../unit-file/refrigerant-record';
 import {
   OpenReturnChanged,
@@ -208,7 +208,7 @@ interface CaseBase {
  */
 export function leakDeadlines(c: CaseBase, tests: { kind: 'initial' | 'follow_up'; testedOn: string; passed: boolean }[], today: string): LeakDeadline[] {
   const mk = (what: LeakDeadline['what'], due: string, met: boolean): LeakDeadline => {
-    const daysLeft = daysBetween(today, due);
+    const daysLeft = daysFrom(today, due);
     const state = met ? 'met' : daysLeft < 0 ? 'overdue' : daysLeft <= DUE_SOON_DAYS ? 'due_soon' : 'ok';
     return { what, due, daysLeft, state, source: sourceOf(c.rule, what) };
   };

@@ -2,6 +2,7 @@ import { useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, Droplets, History, Siren } from 'lucide-react';
 import { causeCodeLabels, causeOriginLabels, formatMeasure, readingsElevationNote, unitSystemOf, visitOutcomeLabels, type MeasureKind, type ReadingUnits } from '@coilpath/contract';
+import { daysFrom } from '@coilpath/calc';
 import { Badge } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
@@ -19,7 +20,7 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
   if (q.isError) return <ErrorState error={q.error} onRetry={() => q.refetch()} title="The briefing could not be loaded" />;
   const b = q.data;
   const r = b.refrigerantThisYear;
-  const leakDaysLeft = b.openLeakCase ? Math.round((Date.parse(b.openLeakCase.repairDueDate) - Date.parse(today)) / 86_400_000) : null;
+  const leakDaysLeft = b.openLeakCase ? daysFrom(today, b.openLeakCase.repairDueDate) : null;
   return (
     <div className="flex flex-col gap-3 text-sm">
       <p className="text-slate">

@@ -8,6 +8,7 @@
  * says it runs into the next day; on a later day it says when it ends and which day it came from.
  * This matches the load figures, which count a booking's minutes on each day they fall on.
  */
+import { addDays } from '@coilpath/calc';
 import type { Booking, TechnicianDayLoad } from '@coilpath/contract';
 import { formatMinutes } from '@/lib/format';
 import { instantToLocal, localToInstant, wallDate, wallFrom } from './zone';
@@ -24,8 +25,8 @@ const weekdayShort = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'] as const;
 const monthLong = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'] as const;
 const monthShort = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'] as const;
 
-/** A calendar date 'YYYY-MM-DD' plus whole days. */
-export const addDays = (day: string, n: number) => wallDate(new Date(wallFrom(day).getTime() + n * 86_400_000));
+/** A calendar date 'YYYY-MM-DD' plus whole days (the calc's one definition). */
+export { addDays };
 /** Day of the week, 0 = Sunday. */
 export const weekdayOf = (day: string) => wallFrom(day).getUTCDay();
 /** The Monday on or before a date. */
