@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fixQuality, fixQualityBy, type FixQualityJob } from './fix-quality';
+import { fixQuality, type FixQualityJob } from './fix-quality';
 
 const job = (over: Partial<FixQualityJob> & { id: string }): FixQualityJob => ({
   kind: 'service_call',
@@ -80,12 +80,5 @@ describe('fixQuality', () => {
   it('rejects bad instants and windows', () => {
     expect(() => fixQuality([job({ id: 'bad', firstVisitClosedAt: 'yesterday' })])).toThrow(RangeError);
     expect(() => fixQuality([], { windowDays: -1 })).toThrow(RangeError);
-  });
-
-  it('groups with fixQualityBy', () => {
-    const jobs = [{ ...job({ id: 'a' }), branch: 'N' }, { ...job({ id: 'b', firstVisitOutcome: 'needs_return' }), branch: 'S' }];
-    const r = fixQualityBy(jobs, (j) => j.branch);
-    expect(r.N?.firstTimeFixRate).toBe(1);
-    expect(r.S?.firstTimeFixRate).toBe(0);
   });
 });

@@ -1,4 +1,12 @@
-/** First-time-fix and callback rates over service jobs. */
+/**
+ * First-time-fix and callback rates over service jobs.
+ *
+ * The product counts in SQL (the view `fix_quality_jobs`, `fix_quality_jobs_at(at)` and the sums its
+ * triggers keep, in the API's migrations); that is the one definition the reports use. `fixQuality` below
+ * is the same rule written plainly, job by job: the test oracle the SQL is checked against over generated
+ * histories (`apps/api/src/modules/fix-quality/fix-quality-sums.test.ts`), not called by the product.
+ * `fixQualityFromCounts` turns the SQL's counts into rates.
+ */
 import { DAY_MS, instantMs, type Instant } from './dates';
 
 export type FirstVisitOutcome = 'resolved' | 'needs_return' | 'declined';
@@ -108,22 +116,4 @@ export function fixQualityFromCounts(c: FixQualityCounts): FixQualityResult {
     resolvedFirstVisits: c.resolvedFirstVisits,
     pending: c.pending ?? 0,
   };
-}
-
-/** {@link fixQuality} per group (branch, technician, unit kind, ...), keyed by `groupOf(job)`. */
-export function fixQualityBy<J extends FixQualityJob>(
-  jobs: readonly J[],
-  groupOf: (job: J) => string,
-  opts: FixQualityOptions = {},
-): Record<string, FixQualityResult> {
-  const groups = new Map<string, J[]>();
-  for (const j of jobs) {
-    const k = groupOf(j);
-    const list = groups.get(k);
-    if (list) list.push(j);
-    else groups.set(k, [j]);
-  }
-  const out: Record<string, FixQualityResult> = {};
-  for (const [k, list] of groups) out[k] = fixQuality(list, opts);
-  return out;
 }

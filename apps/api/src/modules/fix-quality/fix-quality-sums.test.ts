@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { asc, eq, inArray, sql } from 'drizzle-orm';
+import { fixQuality } from '@coilpath/calc';
 import { causeCodes, causeOrigins, type FixQualityReport, type VisitOutcome } from '@coilpath/contract';
 import type { Database, Db } from '../../db/client';
 import { branches, findings, fixQualitySums, fixQualitySumsPending, units, visits, workOrders } from '../../db/schema';
@@ -387,20 +388,29 @@ async function plainCounts(from: string, to: string, now: Date, branchId?: strin
     const finding = fs.filter((f) => f.visitId === first.id).map((f) => ({ ...f, t: f.createdAt.getTime() })).sort(byKey)[0];
     const followUps = wos.filter((f) => f.originWorkOrderId === job.id && (f.kind === 'callback' || f.kind === 'return_visit'));
     const last = [job, ...followUps].flatMap((x) => closedOf(x.id)).sort(byKey).at(-1)!;
-    const window = bs.find((b) => b.id === job.branchId)!.callbackWindowDays * DAY;
-    const inside = (kind: string) => followUps.some((f) => f.kind === kind && f.createdAt.getTime() <= first.t + window);
-    // Mature once now is past the window's last instant (a follow-up opened at that instant still counts).
-    const mature = first.t + window < now.getTime();
-    const pending = first.outcome !== 'declined' && !mature;
-    const eligible = first.outcome !== 'declined' && mature;
-    const resolved = eligible && first.outcome === 'resolved';
+    // First-time fix, callbacks and maturity by the pure definition (calc's `fixQuality`, kept as this
+    // test's oracle): the SQL of the migrations is the product's, and must count the same job by job.
+    const o = fixQuality(
+      [
+        {
+          id: job.id,
+          kind: job.kind,
+          // A visit closed without an outcome is not a resolved one.
+          firstVisitOutcome: first.outcome ?? 'needs_return',
+          firstVisitClosedAt: first.closedAt!,
+          followUps: followUps.map((f) => ({ kind: f.kind as 'callback' | 'return_visit', openedAt: f.createdAt })),
+        },
+      ],
+      { windowDays: bs.find((b) => b.id === job.branchId)!.callbackWindowDays, asOf: now },
+    );
+    const eligible = o.eligible === 1;
     const resolvedJob = eligible && last.outcome === 'resolved';
     const c = {
-      pending: pending ? 1 : 0,
-      eligible: eligible ? 1 : 0,
-      firstTimeFixed: resolved && !inside('callback') && !inside('return_visit') ? 1 : 0,
-      resolvedFirstVisits: resolved ? 1 : 0,
-      callbacks: resolved && inside('callback') ? 1 : 0,
+      pending: o.pending,
+      eligible: o.eligible,
+      firstTimeFixed: o.firstTimeFixed,
+      resolvedFirstVisits: o.resolvedFirstVisits,
+      callbacks: o.callbacks,
       returnVisits: eligible ? followUps.filter((f) => f.kind === 'return_visit').length : 0,
       resolvedJobs: resolvedJob ? 1 : 0,
       days: resolvedJob ? (last.t - job.createdAt.getTime()) / DAY : 0,
