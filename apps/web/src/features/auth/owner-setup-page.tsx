@@ -1,23 +1,20 @@
-import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQuery, useQueryClient } from '@tanstack/react-query';
-import { useNavigate, useSearchParams } from 'react-router-dom';
-import { ownerSetupSchema, type OwnerSetup, type SessionUser } from '@coilpath/contract';
-import { api, ApiError, errorMessage } from '@/lib/api-client';
+import { useQuery } from '@tanstack/react-query';
+import { useSearchParams } from 'react-router-dom';
+import { ownerSetupSchema, type OwnerSetup } from '@coilpath/contract';
+import { api, errorMessage } from '@/lib/api-client';
+import { useLinkSignIn } from '@/lib/link-sign-in';
+import { NewPasswordFields } from '@/components/new-password-fields';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { LoadingState } from '@/components/ui/states';
-import { homeFor } from '@/lib/screens';
 import { Alert, PublicShell } from '@/components/public-shell';
 
 /** The first owner of a new Coilpath, from the one-time link the server printed at its first start. */
 export default function OwnerSetupPage() {
   const [sp] = useSearchParams();
   const token = sp.get('token') ?? '';
-  const qc = useQueryClient();
-  const navigate = useNavigate();
-  const [error, setError] = useState<string | null>(null);
   const check = useQuery({
     queryKey: ['owner-setup-check', token],
     queryFn: () => api.post<{ ok: true }>('/api/setup/check', { token }),
@@ -25,19 +22,7 @@ export default function OwnerSetupPage() {
     retry: false,
   });
   const form = useForm<OwnerSetup>({ resolver: zodResolver(ownerSetupSchema), defaultValues: { token, name: '', email: '', password: '', confirm: '' } });
-  const onSubmit = form.handleSubmit(async (values) => {
-    setError(null);
-    try {
-      const { user } = await api.post<{ user: SessionUser }>('/api/setup', values);
-      qc.setQueryData(['session'], user);
-      navigate(homeFor(user.role), { replace: true });
-    } catch (e) {
-      // The server's password rule (a common or guessable password) answers on the field itself.
-      const onPassword = e instanceof ApiError ? e.fieldErrors.password : undefined;
-      if (onPassword) form.setError('password', { message: onPassword });
-      else setError(errorMessage(e));
-    }
-  });
+  const { onSubmit, error } = useLinkSignIn(form, '/api/setup');
 
   let body;
   if (!token) body = <Alert tone="alarm">This page needs the setup link the server printed when it first started. Open that link.</Alert>;
@@ -52,8 +37,7 @@ export default function OwnerSetupPage() {
         </p>
         <TextField label="Your name" autoComplete="name" {...form.register('name')} error={form.formState.errors.name?.message} />
         <TextField label="E-mail" type="email" autoComplete="username" {...form.register('email')} error={form.formState.errors.email?.message} />
-        <TextField label="Password" type="password" autoComplete="new-password" hint="At least 10 characters; not a common password, nor one with your name in it." {...form.register('password')} error={form.formState.errors.password?.message} />
-        <TextField label="Password again" type="password" autoComplete="new-password" {...form.register('confirm')} error={form.formState.errors.confirm?.message} />
+        <NewPasswordFields form={form} />
         {error && <Alert tone="alarm">{error}</Alert>}
         <Button type="submit" size="lg" busy={form.formState.isSubmitting}>
           Set up Coilpath

@@ -1,23 +1,20 @@
-import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { useQuery, useQueryClient } from '@tanstack/react-query';
-import { useNavigate, useSearchParams } from 'react-router-dom';
-import { acceptInvitationSchema, roleLabels, type AcceptInvitation, type InvitationPreview, type SessionUser } from '@coilpath/contract';
-import { api, ApiError, errorMessage } from '@/lib/api-client';
+import { useQuery } from '@tanstack/react-query';
+import { useSearchParams } from 'react-router-dom';
+import { acceptInvitationSchema, roleLabels, type AcceptInvitation, type InvitationPreview } from '@coilpath/contract';
+import { api, errorMessage } from '@/lib/api-client';
+import { useLinkSignIn } from '@/lib/link-sign-in';
+import { NewPasswordFields } from '@/components/new-password-fields';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { LoadingState } from '@/components/ui/states';
-import { homeFor } from '@/lib/screens';
 import { Alert, PublicShell } from '@/components/public-shell';
 
 /** Sign-up from an invitation link: the person confirms their name and chooses a password. */
 export default function AcceptInvitationPage() {
   const [sp] = useSearchParams();
   const token = sp.get('token') ?? '';
-  const qc = useQueryClient();
-  const navigate = useNavigate();
-  const [error, setError] = useState<string | null>(null);
   const check = useQuery({
     queryKey: ['invitation-check', token],
     queryFn: () => api.post<{ invitation: InvitationPreview }>('/api/invitations/check', { token }).then((r) => r.invitation),
@@ -29,19 +26,7 @@ export default function AcceptInvitationPage() {
     values: { token, name: check.data?.name ?? '', password: '', confirm: '' },
     resetOptions: { keepDirtyValues: true },
   });
-  const onSubmit = form.handleSubmit(async (values) => {
-    setError(null);
-    try {
-      const { user } = await api.post<{ user: SessionUser }>('/api/invitations/accept', values);
-      qc.setQueryData(['session'], user);
-      navigate(homeFor(user.role), { replace: true });
-    } catch (e) {
-      // The server's password rule (a common or guessable password) answers on the field itself.
-      const onPassword = e instanceof ApiError ? e.fieldErrors.password : undefined;
-      if (onPassword) form.setError('password', { message: onPassword });
-      else setError(errorMessage(e));
-    }
-  });
+  const { onSubmit, error } = useLinkSignIn(form, '/api/invitations/accept');
 
   let body;
   if (!token) body = <Alert tone="alarm">This page needs the link from your invitation e-mail. Open the link again.</Alert>;
@@ -63,8 +48,7 @@ export default function AcceptInvitationPage() {
         </p>
         <input type="hidden" autoComplete="username" value={inv.email} readOnly />
         <TextField label="Your name" autoComplete="name" {...form.register('name')} error={form.formState.errors.name?.message} />
-        <TextField label="Password" type="password" autoComplete="new-password" hint="At least 10 characters; not a common password, nor one with your name in it." {...form.register('password')} error={form.formState.errors.password?.message} />
-        <TextField label="Password again" type="password" autoComplete="new-password" {...form.register('confirm')} error={form.formState.errors.confirm?.message} />
+        <NewPasswordFields form={form} />
         {error && <Alert tone="alarm">{error}</Alert>}
         <Button type="submit" size="lg" busy={form.formState.isSubmitting}>
           Create my account
