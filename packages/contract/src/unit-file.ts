@@ -66,31 +66,6 @@ export const unitFileReadingSchema = z.object({
 });
 export type UnitFileReading = z.infer<typeof unitFileReadingSchema>;
 
-/** One refrigerant event with the leak rate computed at that addition (@coilpath/calc). */
-export const unitFileRefrigerantEventSchema = z.object({
-  id: idSchema,
-  date: z.string(),
-  refrigerant: z.string(),
-  poundsAdded: z.number(),
-  poundsRecovered: z.number(),
-  reason: refrigerantEventReasonSchema,
-  cylinderLot: z.string().nullable(),
-  techName: z.string().nullable(),
-  visitId: idSchema.nullable(),
-  /** Whether this addition counts toward the leak rate (not after a retrofit, new charge or seasonal variance). */
-  counts: z.boolean(),
-  /** Percent per year by the annualizing method at this addition; null for events that do not count. */
-  leakRatePercent: n,
-  rule: z.string().nullable(),
-  thresholdPercent: n,
-  exceeds: z.boolean(),
-  repairDueDate: z.string().nullable(),
-  chronic: z.boolean(),
-  /** Why no rate was computed, when none was. */
-  note: z.string().nullable(),
-});
-export type UnitFileRefrigerantEvent = z.infer<typeof unitFileRefrigerantEventSchema>;
-
 export const unitFileSchema = z.object({
   unit: z.object({
     id: idSchema,
@@ -159,9 +134,6 @@ export const unitFileSchema = z.object({
       techName: z.string().nullable(),
     }),
   ),
-  refrigerantLog: z.array(unitFileRefrigerantEventSchema),
-  /** The leak-rate method the log uses. */
-  leakRateMethod: z.literal('annualizing'),
   leakCases: z.array(
     z.object({
       id: idSchema,

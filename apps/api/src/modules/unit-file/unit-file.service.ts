@@ -4,8 +4,7 @@
  * Anyone else gets 404, so the unit's existence is not revealed.
  */
 import { and, asc, desc, eq, exists, ilike, inArray, isNull, or, sql } from 'drizzle-orm';
-import { leakRepairObligation, type RefrigerantAddition } from '@coilpath/calc';
-import type { RefrigerantEventReason, SessionUser, UnitFile, UnitFileRefrigerantEvent, UnitSearchQuery, UnitSearchResult } from '@coilpath/contract';
+import type { SessionUser, UnitFile, UnitSearchQuery, UnitSearchResult } from '@coilpath/contract';
 import type { Db } from '../../db/client';
 import {
   agreements,
@@ -19,7 +18,6 @@ import {
   findings,
   leakCases,
   readings,
-  refrigerantEvents,
   sites,
   units,
   users,
@@ -33,13 +31,6 @@ import { readingDto } from '../visits/dto';
 /** Readings returned for the trend (the latest ones). */
 const READINGS_LIMIT = 1500;
 const ALARMS_LIMIT = 500;
-
-/**
- * Additions that count toward the leak rate: 40 CFR 82.157(b) excludes additions made immediately after a
- * retrofit or the installation of a new appliance, and those that qualify as seasonal variance
- * (shared/reference/LEAK-RULES.md). Recovery adds nothing.
- */
-const notCounted: readonly RefrigerantEventReason[] = ['initial_charge', 'retrofit', 'seasonal_variance', 'recovery'];
 
 /** A technician may read a unit they have (or had) a visit or booking on. */
 function techAssigned(db: Db, techId: string, unitId = units.id) {
@@ -78,47 +69,12 @@ export async function readableUnit(db: Db, user: SessionUser, unitId: string) {
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 const attachmentUrl = (unitId: string, id: string) => `/api/units/${unitId}/file/attachments/${id}`;
 
-/** The running leak rate at each refrigerant addition (annualizing method), with the rule applied. */
-export function refrigerantLog(
-  unit: { refrigerant: string; fullChargeLb: number; applianceCategory: UnitFile['unit']['applianceCategory'] },
-  events: { id: string; date: string; refrigerant: string; poundsAdded: number; poundsRecovered: number; reason: RefrigerantEventReason; cylinderLot: string | null; techName: string | null; visitId: string | null }[],
-): UnitFileRefrigerantEvent[] {
-  const additions: RefrigerantAddition[] = [];
-  return events.map((e) => {
-    const counts = e.poundsAdded > 0 && !notCounted.includes(e.reason);
-    const base = { ...e, counts, leakRatePercent: null, rule: null, thresholdPercent: null, exceeds: false, repairDueDate: null, chronic: false, note: null };
-    if (!counts) return { ...base, note: e.poundsAdded > 0 ? 'Not counted toward the leak rate (40 CFR 82.157(b) exclusions).' : null };
-    additions.push({ date: e.date, pounds: e.poundsAdded });
-    if (!(unit.fullChargeLb > 0)) return { ...base, note: 'No full charge recorded for this unit, so no leak rate.' };
-    try {
-      const o = leakRepairObligation({
-        appliance: { category: unit.applianceCategory, fullCharge: unit.fullChargeLb, refrigerant: unit.refrigerant },
-        additions,
-        asOf: e.date,
-        method: 'annualizing',
-      });
-      return {
-        ...base,
-        leakRatePercent: Math.round(o.leakRate * 10) / 10,
-        rule: o.rule,
-        thresholdPercent: o.thresholdPercent,
-        exceeds: o.exceeds,
-        repairDueDate: o.repairDueDate,
-        chronic: o.chronic,
-        note: o.inScope ? null : 'No leak-repair rule applies to this refrigerant and charge on this date.',
-      };
-    } catch (err) {
-      return { ...base, note: `No leak rate: ${(err as Error).message}` };
-    }
-  });
-}
-
 export async function unitFile(db: Db, user: SessionUser, unitId: string): Promise<UnitFile> {
   const u = await readableUnit(db, user, unitId);
   const unitWorkOrders = db.select({ id: workOrders.id }).from(workOrders).where(eq(workOrders.unitId, unitId));
   const unitVisits = db.select({ id: visits.id }).from(visits).where(inArray(visits.workOrderId, unitWorkOrders));
 
-  const [siteRows, branchRows, circuitRows, agreementRows, alarmRows, readingRows, findingRows, eventRows, caseRows, attachmentRows, woRows] =
+  const [siteRows, branchRows, circuitRows, agreementRows, alarmRows, readingRows, findingRows, caseRows, attachmentRows, woRows] =
     await Promise.all([
       db
         .select({ id: sites.id, name: sites.name, address: sites.address, city: sites.city, region: sites.region, accessNotes: sites.accessNotes, customerName: customers.name })
@@ -149,12 +105,6 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
         .leftJoin(users, eq(users.id, visits.techId))
         .where(or(eq(findings.unitId, unitId), and(isNull(findings.unitId), eq(workOrders.unitId, unitId))))
         .orderBy(desc(findings.createdAt)),
-      db
-        .select({ e: refrigerantEvents, techName: users.name })
-        .from(refrigerantEvents)
-        .leftJoin(users, eq(users.id, refrigerantEvents.techId))
-        .where(eq(refrigerantEvents.unitId, unitId))
-        .orderBy(asc(refrigerantEvents.date), asc(refrigerantEvents.createdAt)),
       db.select().from(leakCases).where(eq(leakCases.unitId, unitId)).orderBy(desc(leakCases.openedOn)),
       db
         .select()
@@ -239,21 +189,6 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
       createdAt: f.createdAt.toISOString(),
       techName,
     })),
-    refrigerantLog: refrigerantLog(
-      u,
-      eventRows.map(({ e, techName }) => ({
-        id: e.id,
-        date: e.date,
-        refrigerant: e.refrigerant,
-        poundsAdded: e.poundsAdded,
-        poundsRecovered: e.poundsRecovered,
-        reason: e.reason,
-        cylinderLot: e.cylinderLot,
-        techName,
-        visitId: e.visitId,
-      })),
-    ),
-    leakRateMethod: 'annualizing',
     leakCases: caseRows.map((c) => ({
       id: c.id,
       openedOn: c.openedOn,
