@@ -12,12 +12,14 @@ import {
   leakObligationStateSchema,
   prioritySchema,
   refrigerantEventReasonSchema,
+  refrigerantRecordEventKindLabels,
   refrigerantRecordEventKindSchema,
   unitKindSchema,
   visitOutcomeSchema,
   workOrderKindSchema,
   workOrderStateSchema,
 } from './vocabulary';
+import { refrigerantEventReasonLabels } from './visits';
 
 /**
  * Unit file (DESIGN §3, `/units/:id`): everything known about one unit. Readable by the owner, the unit
@@ -243,6 +245,8 @@ export const refrigerantRecordEventSchema = z.object({
   poundsRecovered: z.number().nullable(),
   reason: refrigerantEventReasonSchema.nullable(),
   exempt: additionExemptionSchema.nullable(),
+  /** Refrigerant entries: the circuit, by number, when one was named. */
+  circuit: z.number().int().nullable(),
   /** Counted toward the leak rate (a non-exempt addition). */
   counted: z.boolean(),
   /** The leak case this entry belongs to (grouped by leak), when there is one. */
@@ -261,6 +265,16 @@ export const refrigerantRecordEventSchema = z.object({
   note: z.string().nullable(),
 });
 export type RefrigerantRecordEvent = z.infer<typeof refrigerantRecordEventSchema>;
+
+/**
+ * An entry of the record in words, the same on screen and in the auditor's PDF: "Refrigerant added —
+ * Leak top-off — circuit 2", "Initial verification test — passed".
+ */
+export function refrigerantRecordEntryText(e: Pick<RefrigerantRecordEvent, 'kind' | 'stage' | 'passed' | 'reason' | 'circuit' | 'note'>): string {
+  if (e.kind === 'verification') return `${e.stage === 'initial' ? 'Initial' : 'Follow-up'} verification test — ${e.passed ? 'passed' : 'failed'}`;
+  const parts = [refrigerantRecordEventKindLabels[e.kind], e.reason ? refrigerantEventReasonLabels[e.reason] : e.note, e.circuit != null ? `circuit ${e.circuit}` : null];
+  return parts.filter(Boolean).join(' — ');
+}
 
 export const refrigerantRecordObligationSchema = z.object({
   triggeredOn: z.string(),

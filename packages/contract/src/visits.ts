@@ -142,6 +142,8 @@ export const refrigerantEventInputSchema = z
     poundsAdded: pounds.default(0),
     poundsRecovered: pounds.default(0),
     reason: refrigerantEventReasonSchema,
+    /** The circuit, by number, on a unit with several (the leak rate stays per appliance). */
+    circuit: z.number({ error: 'Choose a circuit' }).int('Choose a circuit').min(1, 'Choose a circuit').max(99, 'Choose a circuit').nullable().optional(),
     cylinderLot: z.string().trim().max(60).nullable().optional(),
   })
   .refine((v) => v.poundsAdded > 0 || v.poundsRecovered > 0, {
@@ -225,6 +227,7 @@ export interface RefrigerantEventDto {
   poundsAdded: number;
   poundsRecovered: number;
   reason: RefrigerantEventReason;
+  circuit: number | null;
   cylinderLot: string | null;
   techId: string | null;
   createdAt: string;

@@ -491,6 +491,12 @@ export const refrigerantEvents = pgTable('refrigerant_events', {
   poundsAdded: doublePrecision().notNull().default(0),
   poundsRecovered: doublePrecision().notNull().default(0),
   reason: text().$type<RefrigerantEventReason>().notNull(),
+  /**
+   * The circuit the refrigerant went into or came out of, by number, on a unit with several (null: the
+   * unit as a whole, or not said). Informational: the leak rate stays per appliance — 40 CFR 82.152 defines
+   * it as the rate at which "an appliance" loses refrigerant, against the appliance's full charge.
+   */
+  circuit: integer(),
   cylinderLot: text(),
   techId: uuid().references(() => users.id),
   createdAt: createdAt(),

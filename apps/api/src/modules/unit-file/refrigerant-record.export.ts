@@ -7,6 +7,7 @@ import {
   leakObligationStateLabels,
   leakRateMethodLabels,
   refrigerantEventReasonLabels,
+  refrigerantRecordEntryText,
   refrigerantRecordEventKindLabels,
   unitKindLabels,
   type Epa608Type,
@@ -27,6 +28,7 @@ export const recordCsvColumns = [
   'pounds_added',
   'pounds_recovered',
   'reason',
+  'circuit',
   'exempt',
   'counted',
   'leak_case',
@@ -63,6 +65,7 @@ export function recordCsv(r: RefrigerantRecord): string {
     pounds_added: e.kind === 'addition' || e.kind === 'recovery' ? e.poundsAdded : null,
     pounds_recovered: e.kind === 'addition' || e.kind === 'recovery' ? e.poundsRecovered : null,
     reason: e.reason ? refrigerantEventReasonLabels[e.reason] : null,
+    circuit: e.circuit,
     exempt: e.exempt ? additionExemptionLabels[e.exempt] : null,
     counted: e.kind === 'addition' ? e.counted : null,
     leak_case: e.leakCaseId,
@@ -133,13 +136,7 @@ export async function recordPdf(r: RefrigerantRecord, generatedAt: Date): Promis
     [11, 24, 7, 13, 9, 17, 19],
     r.events.map((e) => [
       e.date,
-      [
-        e.kind === 'verification' ? `${e.stage === 'initial' ? 'Initial' : 'Follow-up'} verification test ${e.passed ? 'passed' : 'failed'}` : refrigerantRecordEventKindLabels[e.kind],
-        e.reason ? refrigerantEventReasonLabels[e.reason] : '',
-        e.opensObligation ? 'opened a repair obligation' : '',
-      ]
-        .filter(Boolean)
-        .join(' — '),
+      `${refrigerantRecordEntryText(e)}${e.opensObligation ? ' — opened a repair obligation' : ''}`,
       e.kind === 'addition' ? lb(e.poundsAdded) : e.kind === 'recovery' ? `−${lb(e.poundsRecovered)}` : '',
       e.kind === 'addition' ? (e.exempt ? additionExemptionLabels[e.exempt] : 'Yes') : '',
       e.rate ? pct(e.rate.leakRatePercent) : '',

@@ -44,7 +44,7 @@ beforeAll(async () => {
     .values([
       { unitId: u.unit.id, date: '2024-01-10', refrigerant: 'R-22', poundsAdded: 100, reason: 'initial_charge', techId: tech.id },
       { unitId: u.unit.id, date: '2024-07-08', refrigerant: 'R-22', poundsAdded: 5, reason: 'leak_top_off', techId: tech.id, cylinderLot: '=HYPERLINK("x")', createdAt: new Date('2024-07-08T15:30:00Z') },
-      { unitId: u.unit.id, date: '2025-07-08', refrigerant: 'R-22', poundsAdded: 10, reason: 'leak_top_off', techId: tech.id },
+      { unitId: u.unit.id, date: '2025-07-08', refrigerant: 'R-22', poundsAdded: 10, reason: 'leak_top_off', techId: tech.id, circuit: 2 },
       { unitId: u.unit.id, date: '2025-09-06', refrigerant: 'R-22', poundsAdded: 12, reason: 'leak_top_off', techId: tech.id },
       { unitId: u.unit.id, date: '2025-10-01', refrigerant: 'R-22', poundsRecovered: 3, reason: 'recovery', techId: tech.id },
     ])
@@ -168,6 +168,9 @@ describe('GET /api/units/:id/refrigerant-record', () => {
     expect(first.cylinder_lot).toBe(`'=HYPERLINK("x")`);
     // Recorded instants in America/Chicago with the offset: 15:30 UTC is 10:30 CDT (UTC−5) on 2024-07-08.
     expect(first.recorded_at).toBe('2024-07-08T10:30:00-05:00');
+    // The circuit named at entry; none where it was not.
+    expect(rows.find((x) => x.record === 'event' && x.date === '2025-07-08')!.circuit).toBe('2');
+    expect(first.circuit).toBe('');
     const obligations = rows.filter((x) => x.record === 'obligation');
     expect(obligations.map((o) => [o.date, o.repair_due, o.state])).toEqual([
       ['2024-07-08', '2024-08-07', 'Repaired and verified'],
@@ -182,7 +185,7 @@ describe('GET /api/units/:id/refrigerant-record', () => {
     const pdf = await readPdf(res.body as Buffer);
     expect(pdf.title).toContain('Refrigerant record — CH-1');
     expect(pdf.marked).toBe(true);
-    for (const s of ['RR-77', 'R-22', '100 lb', 'Łukasz Żółć', 'EPA-TEST-0042', '10.14', '73.00', '2025-10-06', 'Repair overdue', 'Repaired and verified', '40 CFR 82.157', '40 CFR 84 Subpart C', 'manufacturer', 'local codes', 'licensed practice']) {
+    for (const s of ['RR-77', 'R-22', '100 lb', 'Łukasz Żółć', 'EPA-TEST-0042', '10.14', '73.00', '2025-10-06', 'Repair overdue', 'Repaired and verified', 'circuit 2', '40 CFR 82.157', '40 CFR 84 Subpart C', 'manufacturer', 'local codes', 'licensed practice']) {
       expect(pdf.flat).toContain(s);
     }
     expect(pdf.roles).toEqual(expect.arrayContaining(['H1', 'H2', 'Table', 'TH', 'TD', 'L']));

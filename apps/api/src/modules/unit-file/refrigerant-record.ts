@@ -93,6 +93,7 @@ export interface LedgerSourceRows {
     poundsAdded: number;
     poundsRecovered: number;
     reason: RefrigerantEventReason;
+    circuit: number | null;
     cylinderLot: string | null;
     visitId: string | null;
     createdAt: Date;
@@ -133,10 +134,10 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
   const entries: RefrigerantRecordEvent[] = [];
   const ledgerEvents: LedgerEvent[] = [];
   const additions: RefrigerantAddition[] = [];
-  const blank = { poundsAdded: null, poundsRecovered: null, reason: null, exempt: null, counted: false, leakCaseId: null, cylinderLot: null, visitId: null, by: null, stage: null, passed: null, rate: null, opensObligation: false, note: null };
+  const blank = { poundsAdded: null, poundsRecovered: null, reason: null, exempt: null, circuit: null, counted: false, leakCaseId: null, cylinderLot: null, visitId: null, by: null, stage: null, passed: null, rate: null, opensObligation: false, note: null };
 
   for (const e of src.events) {
-    const base = { ...blank, date: e.date, sourceId: e.id, recordedAt: e.createdAt.toISOString(), poundsAdded: e.poundsAdded, poundsRecovered: e.poundsRecovered, reason: e.reason, cylinderLot: e.cylinderLot, visitId: e.visitId, by: e.tech, leakCaseId: leakIdOf.get(e.id) ?? null };
+    const base = { ...blank, date: e.date, sourceId: e.id, recordedAt: e.createdAt.toISOString(), poundsAdded: e.poundsAdded, poundsRecovered: e.poundsRecovered, reason: e.reason, circuit: e.circuit, cylinderLot: e.cylinderLot, visitId: e.visitId, by: e.tech, leakCaseId: leakIdOf.get(e.id) ?? null };
     const leakId = leakIdOf.get(e.id);
     const a = additionOf(e, leakId);
     if (!a) {
@@ -257,6 +258,7 @@ export async function loadLedgerSource(db: Db | Tx, unit: LedgerSourceRows['unit
       poundsAdded: e.poundsAdded,
       poundsRecovered: e.poundsRecovered,
       reason: e.reason,
+      circuit: e.circuit,
       cylinderLot: e.cylinderLot,
       visitId: e.visitId,
       createdAt: e.createdAt,

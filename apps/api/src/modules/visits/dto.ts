@@ -77,6 +77,7 @@ export function refrigerantEventDto(e: typeof refrigerantEvents.$inferSelect): R
     poundsAdded: e.poundsAdded,
     poundsRecovered: e.poundsRecovered,
     reason: e.reason,
+    circuit: e.circuit,
     cylinderLot: e.cylinderLot,
     techId: e.techId,
     createdAt: iso(e.createdAt),

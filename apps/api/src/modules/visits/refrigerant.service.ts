@@ -7,7 +7,7 @@ import { refrigerantEventInputSchema } from '@coilpath/contract';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
-import { branches, leakCases, refrigerantEvents, units } from '../../db/schema';
+import { branches, circuits, leakCases, refrigerantEvents, units } from '../../db/schema';
 import { badRequest, conflict, forbidden, notFound } from '../../lib/errors';
 import { assertVisitRecordable, loadReadableUnit, loadVisit, type UnitRow } from './access';
 import { leakCaseDto, refrigerantEventDto } from './dto';
@@ -98,6 +98,14 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
       }
     }
 
+    if (input.circuit != null) {
+      const numbers = (await tx.select({ number: circuits.number }).from(circuits).where(eq(circuits.unitId, unit.id)).orderBy(asc(circuits.number))).map((c) => c.number);
+      if (!numbers.includes(input.circuit)) {
+        const has = numbers.length === 0 ? 'no circuits on record' : numbers.length === 1 ? `only circuit ${numbers[0]}` : `circuits ${numbers.slice(0, -1).join(', ')} and ${numbers.at(-1)}`;
+        throw badRequest(`This unit has no circuit ${input.circuit}: it has ${has}.`, { fields: [{ path: 'circuit', message: 'Choose one of the unit’s circuits' }] });
+      }
+    }
+
     const [branch] = await tx.select({ timeZone: branches.timeZone }).from(branches).where(eq(branches.id, unit.branchId));
     if (!branch) throw notFound('branch');
     const today = format(new TZDate(ctx.clock.now().getTime(), branch.timeZone), 'yyyy-MM-dd');
@@ -117,6 +125,7 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
         poundsAdded: input.poundsAdded,
         poundsRecovered: input.poundsRecovered,
         reason: input.reason,
+        circuit: input.circuit ?? null,
         cylinderLot: input.cylinderLot ?? null,
         techId: user.id,
       })

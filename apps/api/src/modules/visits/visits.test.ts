@@ -235,6 +235,24 @@ describe('POST /api/units/:id/refrigerant-events', () => {
     expect(record.body.obligations.map((o: { triggeredOn: string }) => o.triggeredOn)).toEqual(['2026-03-10']);
   });
 
+  it('records the circuit on a unit with several, refuses one the unit does not have, and shows it in the record', async () => {
+    const { visit } = await book({ onSite: true });
+    const post = (body: object) => tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', reason: 'leak_top_off', visitId: visit.id, poundsAdded: 0.5, ...body });
+    const circuits = circuitIds.length;
+    expect(circuits).toBeGreaterThan(1);
+    const wrong = await post({ circuit: circuits + 3 });
+    expect(wrong.status).toBe(400);
+    expect(wrong.body.error.message).toBe(`This unit has no circuit ${circuits + 3}: it has circuits ${Array.from({ length: circuits - 1 }, (_, i) => i + 1).join(', ')} and ${circuits}.`);
+    expect(wrong.body.error.details.fields.map((x: { path: string }) => x.path)).toEqual(['circuit']);
+    const ok = await post({ circuit: 2 });
+    expect(ok.status).toBe(201);
+    expect(ok.body.event.circuit).toBe(2);
+    const stored = await t.ctx.db.select().from(refrigerantEvents).where(eq(refrigerantEvents.id, ok.body.event.id));
+    expect(stored[0]!.circuit).toBe(2);
+    const record = await manager.get(`/api/units/${place.unit.id}/refrigerant-record`);
+    expect(record.body.events.find((e: { sourceId: string }) => e.sourceId === ok.body.event.id)).toMatchObject({ circuit: 2, kind: 'addition' });
+  });
+
   it('is idempotent with a client id, and refuses units off the technician’s assignments (404) and the office (403)', async () => {
     const { visit } = await book({ onSite: true });
     const id = '0b6f8a7c-7d65-4a2e-9f1e-5a4b3c2d1e0f';

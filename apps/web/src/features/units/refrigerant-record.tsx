@@ -9,8 +9,7 @@ import {
   additionExemptionLabels,
   leakObligationStateLabels,
   leakRateMethodLabels,
-  refrigerantEventReasonLabels,
-  refrigerantRecordEventKindLabels,
+  refrigerantRecordEntryText,
   type LeakObligationState,
   type RefrigerantRecord,
   type RefrigerantRecordEvent,
@@ -37,11 +36,6 @@ const stateTone: Record<LeakObligationState, 'alarm' | 'watch' | 'ok' | 'neutral
   plan: 'neutral',
 };
 
-function entryText(e: RefrigerantRecordEvent): string {
-  if (e.kind === 'verification') return `${e.stage === 'initial' ? 'Initial' : 'Follow-up'} verification test — ${e.passed ? 'passed' : 'failed'}`;
-  const label = refrigerantRecordEventKindLabels[e.kind];
-  return e.reason ? `${label} — ${refrigerantEventReasonLabels[e.reason]}` : e.note ? `${label} — ${e.note}` : label;
-}
 
 function Rate({ e }: { e: RefrigerantRecordEvent }) {
   if (e.kind !== 'addition') return <>—</>;
@@ -85,7 +79,7 @@ export function RefrigerantRecordView({ record: r }: { record: RefrigerantRecord
             <tr key={`${e.kind}-${e.sourceId}`}>
               <td className="whitespace-nowrap">{e.date}</td>
               <td>
-                {entryText(e)}
+                {refrigerantRecordEntryText(e)}
                 {e.opensObligation && <span className="block text-xs font-medium text-alarm">Opened a repair obligation</span>}
               </td>
               <td className="tabular whitespace-nowrap">

@@ -1,0 +1,1 @@
+ALTER TABLE "refrigerant_events" ADD COLUMN "circuit" integer;
