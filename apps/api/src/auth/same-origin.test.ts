@@ -2,7 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { createTestApp, signedInAgent, type TestApp } from '../testing/harness';
 import { makeTwoBranches, TEST_PASSWORD } from '../testing/fixtures';
-import { crossOriginProblem, machineToMachineRoutes } from './same-origin';
+import { crossOriginProblem } from './same-origin';
+import { MACHINE_ROUTES } from '../lib/machine-routes';
 
 let t: TestApp;
 let f: Awaited<ReturnType<typeof makeTwoBranches>>;
@@ -51,8 +52,15 @@ describe('state-changing requests come from the same origin only', () => {
     expect((await owner.get(`/api/branches/${f.a.id}`).set('Origin', 'https://evil.example')).status).toBe(200);
   });
 
-  it('has an explicit (empty) list of machine-to-machine routes', () => {
-    expect(machineToMachineRoutes).toEqual([]);
+  it('exempts only the listed machine-to-machine routes (a controller’s signed alarm) and compares origins by host', async () => {
+    expect(MACHINE_ROUTES.map((r) => `${r.method} ${r.path}`)).toEqual(['POST /api/ingest/alarms/:sourceId']);
+    // From another site, the alarm ingest is not refused as cross-origin (its signature decides: 401 here).
+    const ingest = await request(t.app).post('/api/ingest/alarms/5b0e5c2e-0000-4000-8000-000000000000').set('Origin', 'https://controls.example').send({});
+    expect(ingest.status).not.toBe(403);
+    expect(ingest.body.error?.code).not.toBe('cross_origin');
+    // A look-alike path is not exempt.
+    const lookalike = await owner.post('/api/ingest/alarms-export').set('Origin', 'https://evil.example').send({});
+    expect(lookalike.body.error?.code).toBe('cross_origin');
     expect(crossOriginProblem({ origin: 'http://a.test:3000', host: 'a.test:3000' }, 'http://b.test')).toBeNull();
     expect(crossOriginProblem({ origin: 'http://a.test:3001', host: 'a.test:3000' }, 'http://b.test')).toMatch(/another site/);
   });

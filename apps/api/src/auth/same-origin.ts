@@ -1,13 +1,7 @@
 import type { NextFunction, Request, Response } from 'express';
 import type { AppContext } from '../context';
 import { HttpError } from '../lib/errors';
-
-/**
- * Routes called by machines, not browsers, that prove themselves otherwise (e.g. an HMAC signature) and so
- * are exempt from the same-origin check: path prefixes under `/api`. Each entry is a deliberate decision;
- * none yet (the sensor ingest, `/api/ingest/…`, will be the first).
- */
-export const machineToMachineRoutes: readonly string[] = [];
+import { isMachineRoute } from '../lib/machine-routes';
 
 const stateChanging = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 
@@ -41,13 +35,14 @@ export function crossOriginProblem(
 /**
  * State-changing requests (POST, PUT, PATCH, DELETE under `/api`, whatever their body) must come from
  * Coilpath's own pages: `Origin` (or, without it, `Sec-Fetch-Site`) must be this server (the request's host)
- * or `PUBLIC_URL`. Others answer 403 `cross_origin`. Routes in `machineToMachineRoutes` are exempt.
+ * or `PUBLIC_URL`. Others answer 403 `cross_origin`. The machine-to-machine routes of `lib/machine-routes.ts`
+ * (signed by their caller, never carrying a cookie) are exempt: each is listed there deliberately.
  */
 export function sameOriginOnly(ctx: AppContext) {
   return (req: Request, _res: Response, next: NextFunction) => {
     if (!stateChanging.has(req.method)) return next();
     const path = req.originalUrl.split('?')[0]!;
-    if (machineToMachineRoutes.some((prefix) => path.startsWith(prefix))) return next();
+    if (isMachineRoute(req.method, path)) return next();
     const problem = crossOriginProblem(
       { origin: req.get('origin'), host: req.get('host'), secFetchSite: req.get('sec-fetch-site') },
       ctx.config.publicUrl,
