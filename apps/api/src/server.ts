@@ -55,15 +55,16 @@ const mode = startMode(env);
 let seeded = false;
 if (mode === 'demo') seeded = (await seedDemo(database.db, { today: demoToday(clock.now()) })).seeded;
 
+const logger = createLogger({ level: env.LOG_LEVEL });
 const ctx: AppContext = {
   database,
   db: database.db,
   mailer,
   storage,
   clock,
-  jobs: createJobQueue(),
+  jobs: createJobQueue(logger),
   secret: loadSecret(env.COILPATH_SECRET, dataDir),
-  logger: createLogger({ level: env.LOG_LEVEL }),
+  logger,
   config: {
     sessionHours: env.SESSION_HOURS,
     secureCookies: (env.PUBLIC_URL ?? '').startsWith('https://'),

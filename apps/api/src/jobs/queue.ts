@@ -1,3 +1,5 @@
+import type { Logger } from '../lib/logger';
+
 /**
  * Work done after the answer has gone out (a password-reset e-mail): the request that asked for it answers at
  * once, the same way and in the same time whatever the work finds. Jobs run in this process one at a time, in
@@ -11,7 +13,8 @@ export interface JobQueue {
   idle(): Promise<void>;
 }
 
-export function createJobQueue(): JobQueue {
+/** `logger`: where a failed job is reported (the server's logger; absent in tests, where failures go to stderr). */
+export function createJobQueue(logger?: Pick<Logger, 'error'>): JobQueue {
   let tail: Promise<void> = Promise.resolve();
   return {
     enqueue(name, fn) {
@@ -19,7 +22,7 @@ export function createJobQueue(): JobQueue {
         // setImmediate: after the I/O that sends the answer, not in the same turn.
         .then(() => new Promise<void>((resolve) => setImmediate(resolve)))
         .then(fn)
-        .catch((err: unknown) => console.error(`[coilpath] job ${name} failed`, err));
+        .catch((err: unknown) => (logger ? logger.error({ err, job: name }, 'job failed') : console.error(`[coilpath] job ${name} failed`, err)));
     },
     idle: () => tail,
   };

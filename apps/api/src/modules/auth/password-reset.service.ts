@@ -66,7 +66,7 @@ export async function sendPasswordReset(ctx: AppContext, email: string): Promise
     return true;
   });
   if (!made) {
-    console.warn(`[coilpath] password reset for user ${u.id} not sent: ${RESET_MAILS_PER_HOUR} links already sent within the hour`);
+    ctx.logger?.warn({ userId: u.id }, `password reset not sent: ${RESET_MAILS_PER_HOUR} links already sent within the hour`);
     return 'throttled';
   }
   const link = `${ctx.config.publicUrl.replace(/\/$/, '')}/reset-password?token=${encodeURIComponent(signLinkToken(ctx.secret, 'password-reset', token))}`;
@@ -80,7 +80,7 @@ export async function sendPasswordReset(ctx: AppContext, email: string): Promise
     mail.p('If you did not ask for this, ignore this message: your password stays as it is.', true),
   ]);
   // The answer went out long ago; a failure is logged for the operator.
-  await ctx.mailer.send({ to: email, ...message }).catch((e: unknown) => console.error('[coilpath] password-reset mail failed', e));
+  await ctx.mailer.send({ to: email, ...message }).catch((err: unknown) => ctx.logger?.error({ err, userId: u.id }, 'password-reset mail failed'));
   return 'sent';
 }
 
