@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, isoDateSchema, limits, oneLine } from './common';
+import { idSchema, isoDateSchema, limits, oneLine, pickedIdSchema } from './common';
 import { workOrderStateSchema } from './vocabulary';
 
 /* ------------------------------------------------------------ recurrence */
@@ -92,7 +92,7 @@ export const agreementStatusSchema = z.enum(agreementStatuses);
 export type AgreementStatus = z.infer<typeof agreementStatusSchema>;
 
 const agreementFields = {
-  siteId: idSchema,
+  siteId: pickedIdSchema('a site'),
   name: oneLine(limits.name, 'Name the agreement'),
   unitIds: z.array(idSchema).min(1, 'Pick at least one covered unit').max(200),
   recurrence: recurrenceSchema,

@@ -3,7 +3,7 @@
  * signed with the source's secret (HMAC-SHA256). The format is documented in README.md ("Alarm sources").
  */
 import { z } from 'zod';
-import { idSchema, instantSchema, limits } from './common';
+import { idSchema, instantSchema, limits, pickedIdSchema } from './common';
 import type { AlarmDeliveryStatus, AlarmRejectionReason } from './vocabulary';
 import { alarmCodeSchema, circuitNumberSchema } from './watchlist';
 
@@ -21,7 +21,7 @@ export const ALARM_BODY_LIMIT_BYTES = 16 * 1024;
 export const alarmSourceNameSchema = z.string().trim().min(1, 'Name the controller, e.g. "Roof BMS"').max(limits.name);
 
 export const alarmSourceCreateSchema = z.strictObject({
-  siteId: idSchema,
+  siteId: pickedIdSchema('a site'),
   name: alarmSourceNameSchema,
 });
 export type AlarmSourceCreate = z.input<typeof alarmSourceCreateSchema>;
@@ -36,7 +36,7 @@ export type AlarmSourcePatch = z.input<typeof alarmSourcePatchSchema>;
 
 export const alarmSourceListQuerySchema = z.object({ branchId: idSchema.optional() });
 
-export const mapDeliverySchema = z.strictObject({ unitId: idSchema });
+export const mapDeliverySchema = z.strictObject({ unitId: pickedIdSchema('a unit') });
 export type MapDelivery = z.input<typeof mapDeliverySchema>;
 
 /** The JSON a controller posts (unknown fields are ignored, so a controller may send more). */

@@ -30,6 +30,8 @@ export const optionalOneLine = (max: number) =>
     .transform((v) => (v ? v : null));
 
 export const idSchema = z.uuid({ message: 'Must be an id' });
+/** An id a person picks from a list: an empty or unknown pick says what to choose ("Choose a site"), never "Must be an id". */
+export const pickedIdSchema = (what: string) => z.uuid({ message: `Choose ${what}` });
 
 /** A calendar date `YYYY-MM-DD` that really exists (2026-02-30 is refused). */
 export const isoDateSchema = z.iso.date({ message: 'Use a real date as YYYY-MM-DD' });

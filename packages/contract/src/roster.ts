@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, instantSchema, isoDateSchema, limits } from './common';
+import { idSchema, instantSchema, isoDateSchema, limits, pickedIdSchema } from './common';
 import { epa608TypeSchema, prioritySchema, workingHoursSchema, workOrderKindSchema, workOrderStateSchema } from './vocabulary';
 import { requiredCertificationSchema } from './work-orders';
 
@@ -67,7 +67,7 @@ export function requestedOverrides(v: { overrideHours?: boolean | undefined; ove
 export const bookingCreateSchema = z
   .strictObject({
     workOrderId: idSchema,
-    techId: idSchema,
+    techId: pickedIdSchema('a technician'),
     startAt: instantSchema,
     endAt: instantSchema.optional(),
     fixed: z.boolean().optional(),
@@ -81,7 +81,7 @@ export type BookingCreate = z.input<typeof bookingCreateSchema>;
 export const bookingUpdateSchema = z
   .strictObject({
     version: z.number().int().min(1),
-    techId: idSchema.optional(),
+    techId: pickedIdSchema('a technician').optional(),
     startAt: instantSchema.optional(),
     endAt: instantSchema.optional(),
     fixed: z.boolean().optional(),

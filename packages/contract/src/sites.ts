@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { base64FileSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, oneOfCsvOrFile, oneOfCsvOrFileMessage, optionalOneLine, pageQuerySchema } from './common';
+import { base64FileSchema, idSchema, pickedIdSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, oneOfCsvOrFile, oneOfCsvOrFileMessage, optionalOneLine, pageQuerySchema } from './common';
 import { applianceCategorySchema, unitKindSchema } from './vocabulary';
 
 /** Optional free text: blank input becomes `null`, so forms can send empty fields. */
@@ -74,7 +74,7 @@ export const customerSortKeys = ['name', 'contactName', 'siteCount', 'branchName
 // ---------------------------------------------------------------------------------------------
 
 export const siteInputSchema = z.object({
-  customerId: idSchema,
+  customerId: pickedIdSchema('a customer'),
   name: requiredText('the site name', limits.name),
   address: requiredText('the street address'),
   city: oneLine(limits.name).default(''),
@@ -134,7 +134,7 @@ export const circuitInputSchema = z.object({
 });
 
 const unitFieldsSchema = z.object({
-  siteId: idSchema,
+  siteId: pickedIdSchema('a site'),
   tag: requiredText('the unit tag (e.g. RTU-3)', 40),
   kind: unitKindSchema,
   make: requiredText('the make', 80),
@@ -294,7 +294,7 @@ export const unitImportLimits = { maxRows: 20_000, maxBytes: 6 * 1024 * 1024 } a
 
 export const unitImportSchema = z
   .object({
-    siteId: idSchema,
+    siteId: pickedIdSchema('a site'),
     mode: z.enum(['dry-run', 'commit']),
     /** The CSV file's text, header row first. */
     csv: z.string().min(1, 'The file is empty').max(unitImportLimits.maxBytes, 'The file is larger than 6 MB; split it').optional(),

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, instantSchema, isoDateSchema, limits, optionalOneLine } from './common';
+import { idSchema, instantSchema, pickedIdSchema, isoDateSchema, limits, optionalOneLine } from './common';
 import { causeCodeSchema, prioritySchema, workOrderKindSchema, workOrderStateSchema, type WorkOrderState } from './vocabulary';
 
 /** The model alert an inspection work order checks for. */
@@ -36,8 +36,8 @@ function windowInOrder(v: { requestedFrom?: string | null | undefined; requested
 /** A new work order (the Roster's "New work order" form and Watchlist's return visits). */
 export const workOrderCreateSchema = z
   .strictObject({
-    siteId: idSchema,
-    unitId: idSchema.nullable().optional(),
+    siteId: pickedIdSchema('a site'),
+    unitId: pickedIdSchema('a unit').nullable().optional(),
     kind: workOrderKindSchema,
     ...workOrderFields,
     priority: prioritySchema.default('normal'),
