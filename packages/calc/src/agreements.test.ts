@@ -11,10 +11,10 @@ describe('expandAgreementVisits', () => {
       holidays: ['2027-01-01'],
     });
     expect(r).toEqual([
-      { date: '2027-01-04', originalDate: '2027-01-01', moved: true }, // holiday (Fri) → Mon
-      { date: '2027-04-01', originalDate: '2027-04-01', moved: false },
-      { date: '2027-07-01', originalDate: '2027-07-01', moved: false },
-      { date: '2027-10-01', originalDate: '2027-10-01', moved: false },
+      { date: '2027-01-04', originalDate: '2027-01-01', moved: true, movedBecause: 'holiday' }, // holiday (Fri) → Mon
+      { date: '2027-04-01', originalDate: '2027-04-01', moved: false, movedBecause: null },
+      { date: '2027-07-01', originalDate: '2027-07-01', moved: false, movedBecause: null },
+      { date: '2027-10-01', originalDate: '2027-10-01', moved: false, movedBecause: null },
     ]);
   });
 
@@ -26,10 +26,21 @@ describe('expandAgreementVisits', () => {
     expect(r.visits).toHaveLength(8);
     // Sat 6 → Mon 8, Sun 7 → Mon 8 taken → Tue 9; and so on each week.
     expect(r.visits.slice(0, 2)).toEqual([
-      { date: '2027-03-08', originalDate: '2027-03-06', moved: true },
-      { date: '2027-03-09', originalDate: '2027-03-07', moved: true },
+      { date: '2027-03-08', originalDate: '2027-03-06', moved: true, movedBecause: 'weekend' },
+      { date: '2027-03-09', originalDate: '2027-03-07', moved: true, movedBecause: 'weekend' },
     ]);
     expect(new Set(r.visits.map((v) => v.date)).size).toBe(8);
+  });
+
+  it('says why each visit moved: the holiday first (also on a weekend), the weekend, or a day already taken', () => {
+    // Daily, Thu 2027-03-18 (a branch holiday) … Tue 23; common practice, no source. Thu 18 → Fri 19 (holiday);
+    // Fri 19's own visit finds its day taken → Mon 22 (taken); Sat 20 → Tue 23 (weekend).
+    const r = planAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-18', termEnd: '2027-03-23', timeZone: 'America/Chicago', holidays: ['2027-03-18', '2027-03-20'] });
+    const why = Object.fromEntries(r.visits.map((v) => [v.originalDate, [v.date, v.movedBecause]]));
+    expect(why['2027-03-18']).toEqual(['2027-03-19', 'holiday']);
+    expect(why['2027-03-19']).toEqual(['2027-03-22', 'taken']);
+    // Sat 20 is also declared a holiday: the holiday is named.
+    expect(why['2027-03-20']).toEqual(['2027-03-23', 'holiday']);
   });
 
   it('at the end of the term takes the previous free working day, and lists what cannot be placed with the reason', () => {

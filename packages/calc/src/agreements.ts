@@ -29,6 +29,11 @@ export interface AgreementVisit {
   originalDate: IsoDate;
   /** True when moved off a weekend or holiday. */
   moved: boolean;
+  /**
+   * Why it moved: the date the recurrence gave is a branch holiday (said first when it is also a weekend
+   * day), a weekend day, or a working day already holding another visit of the plan; null when not moved.
+   */
+  movedBecause: 'holiday' | 'weekend' | 'taken' | null;
 }
 
 const MAX_OCCURRENCES = 10_000;
@@ -137,7 +142,8 @@ export function planAgreementVisits(input: ExpandAgreementInput): AgreementPlan 
       continue;
     }
     used.add(n);
-    visits.push({ date: fromDayNumber(n), originalDate: date, moved: n !== n0 });
+    const movedBecause = n === n0 ? null : holidays.has(n0) ? 'holiday' : weekend.has(new Date(n0 * 86_400_000).getUTCDay()) ? 'weekend' : 'taken';
+    visits.push({ date: fromDayNumber(n), originalDate: date, moved: n !== n0, movedBecause });
   }
   return { visits: visits.sort((a, b) => a.date.localeCompare(b.date)), dropped };
 }

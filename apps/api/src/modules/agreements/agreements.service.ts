@@ -245,18 +245,16 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
         throw unprocessable(`The branch's planned maintenance is too full to place these visits: ${(e as Error).message}`);
       }
       const byId = new Map(levelled.map((l) => [l.id, l]));
-      const holidays = new Set(b!.holidays);
       planned = future.map((v) => {
         const l = byId.get(`1:${v.originalDate}`)!;
         const reasons: string[] = [];
-        if (v.moved) {
-          const weekday = new Date(`${v.originalDate}T12:00:00Z`).getUTCDay();
+        if (v.movedBecause) {
           reasons.push(
-            holidays.has(v.originalDate)
-              ? `moved off the holiday ${v.originalDate}`
-              : weekday === 0 || weekday === 6
-                ? `moved off the weekend (${v.originalDate})`
-                : `moved to the next free working day: ${v.originalDate} already had a visit of this plan`,
+            {
+              holiday: `moved off the holiday ${v.originalDate}`,
+              weekend: `moved off the weekend (${v.originalDate})`,
+              taken: `moved to the next free working day: ${v.originalDate} already had a visit of this plan`,
+            }[v.movedBecause],
           );
         }
         if (l.date !== v.date) reasons.push(`moved to a later week: the week of ${v.date} already had ${maxPerWeek} planned visits`);
