@@ -305,6 +305,7 @@ export interface VisitUnitDto {
 }
 
 export type VisitStatus = 'booked' | 'en_route' | 'on_site' | 'closed';
+export const visitStatusLabels: Record<VisitStatus, string> = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' };
 
 /**
  * The rule for recording work on a visit: readings, findings and refrigerant are recorded on a visit

@@ -162,6 +162,13 @@ export type RefrigerantEventReason = z.infer<typeof refrigerantEventReasonSchema
 export const leakCaseStatuses = ['open', 'repaired', 'closed', 'retrofit_planned', 'retire_planned'] as const;
 export const leakCaseStatusSchema = z.enum(leakCaseStatuses);
 export type LeakCaseStatus = z.infer<typeof leakCaseStatusSchema>;
+export const leakCaseStatusLabels: Record<LeakCaseStatus, string> = {
+  open: 'Open',
+  repaired: 'Repaired, verifying',
+  closed: 'Closed',
+  retrofit_planned: 'Retrofit planned',
+  retire_planned: 'Retirement planned',
+};
 
 /** State of a leak-repair obligation in the refrigerant record (`leakObligations` in @coilpath/calc). */
 export const leakObligationStates = ['open', 'overdue', 'repaired', 'verified', 'plan'] as const;

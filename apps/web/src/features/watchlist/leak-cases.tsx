@@ -1,6 +1,6 @@
 import { useCallback, useState } from 'react';
 import { AlertTriangle, CheckCircle2, Clock, Wrench } from 'lucide-react';
-import { epa608Labels, leakObligationStateLabels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
+import { epa608Labels, leakCaseStatusLabels, leakObligationStateLabels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';
@@ -18,13 +18,6 @@ const whatLabels: Record<LeakDeadline['what'], string> = {
   retrofit_retire_plan: 'Retrofit or retirement plan',
   retrofit_retire_complete: 'Retrofit or retirement done',
 };
-const statusLabels: Record<LeakCaseRow['status'], string> = {
-  open: 'Open',
-  repaired: 'Repaired, verifying',
-  closed: 'Closed',
-  retrofit_planned: 'Retrofit planned',
-  retire_planned: 'Retirement planned',
-};
 
 export const woLabel = (n: number | null) => (n === null ? 'work order' : `WO-${n}`);
 const isFinished = (state: OpenReturnDetails['state']) => state === 'closed' || state === 'cancelled';
@@ -37,7 +30,7 @@ export function DeadlineBadge({ d }: { d: LeakDeadline }) {
   return <Badge tone="neutral">{d.daysLeft} days left</Badge>;
 }
 
-const caseText = (c: LeakCaseRow) => `${c.unitTag} ${c.siteName} ${c.make} ${c.model} ${c.refrigerant} ${c.rule} ${statusLabels[c.status]} ${c.next ? whatLabels[c.next.what] : ''}`;
+const caseText = (c: LeakCaseRow) => `${c.unitTag} ${c.siteName} ${c.make} ${c.model} ${c.refrigerant} ${c.rule} ${leakCaseStatusLabels[c.status]} ${c.next ? whatLabels[c.next.what] : ''}`;
 
 export function LeakCasesSection({ branchId }: { branchId: string | undefined }) {
   const q = useLeakCases(branchId);
@@ -143,7 +136,7 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
           </p>
         </div>
         <div className="flex flex-wrap gap-1">
-          <Badge tone="neutral">{statusLabels[c.status]}</Badge>
+          <Badge tone="neutral">{leakCaseStatusLabels[c.status]}</Badge>
           {c.obligationState && (
             <Badge tone={c.obligationState === 'open' || c.obligationState === 'overdue' ? 'alarm' : c.obligationState === 'repaired' ? 'watch' : 'ok'}>
               Record: {leakObligationStateLabels[c.obligationState]}
