@@ -12,7 +12,7 @@ const UNIT = '0e6f2f61-4f0b-4c38-8f5a-6c1b9d7a2e10';
 const E1 = '5b0c7a52-8a1e-4a43-9a55-0f3c1d2e4b61';
 const E2 = '9d3e1c7b-2a4f-4e58-b6c9-1f0a8e7d5c32';
 const BR = '1d3e1c7b-2a4f-4e58-b6c9-1f0a8e7d5c33';
-const blank = { poundsRecovered: 0, exempt: null, leakCaseId: null, cylinderLot: null, visitId: null, stage: null, passed: null, note: null, recordedAt: null };
+const blank = { poundsRecovered: 0, exempt: null, circuit: null, leakCaseId: null, cylinderLot: null, visitId: null, stage: null, passed: null, note: null, recordedAt: null };
 const by = { name: 'Łukasz Żółć', epa608Type: 'universal', epa608Number: 'EPA-TEST-0042' };
 
 const record: RefrigerantRecord = refrigerantRecordSchema.parse({
