@@ -124,7 +124,8 @@ export function planAgreementVisits(input: ExpandAgreementInput): AgreementPlan 
   const holidays = new Set(input.holidays.map((h) => dayNumber(h, 'holiday')));
   const first = dayNumber(input.termStart, 'termStart');
   const last = dayNumber(input.termEnd, 'termEnd');
-  const working = (n: number) => !holidays.has(n) && !weekend.has(new Date(n * 86_400_000).getUTCDay());
+  const onWeekend = (n: number) => weekend.has(new Date(n * 86_400_000).getUTCDay());
+  const working = (n: number) => !holidays.has(n) && !onWeekend(n);
   const used = new Set<number>();
   const free = (n: number) => working(n) && !used.has(n);
   const visits: AgreementVisit[] = [];
@@ -142,7 +143,7 @@ export function planAgreementVisits(input: ExpandAgreementInput): AgreementPlan 
       continue;
     }
     used.add(n);
-    const movedBecause = n === n0 ? null : holidays.has(n0) ? 'holiday' : weekend.has(new Date(n0 * 86_400_000).getUTCDay()) ? 'weekend' : 'taken';
+    const movedBecause = n === n0 ? null : holidays.has(n0) ? 'holiday' : onWeekend(n0) ? 'weekend' : 'taken';
     visits.push({ date: fromDayNumber(n), originalDate: date, moved: n !== n0, movedBecause });
   }
   return { visits: visits.sort((a, b) => a.date.localeCompare(b.date)), dropped };

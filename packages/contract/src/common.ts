@@ -30,6 +30,10 @@ export const optionalOneLine = (max: number) =>
     .transform((v) => (v ? v : null));
 
 export const idSchema = z.uuid({ message: 'Must be an id' });
+/** Items in words: "a", "a and b", "a, b and c". */
+export const andList = (items: readonly (string | number)[]): string =>
+  items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`;
+
 /** An id a person picks from a list: an empty or unknown pick says what to choose ("Choose a site"), never "Must be an id". */
 export const pickedIdSchema = (what: string) => z.uuid({ message: `Choose ${what}` });
 

@@ -12,6 +12,7 @@ import {
   bookingCreateSchema,
   bookingListQuerySchema,
   bookingRuleCodes,
+  andList,
   bookingRuleLabels,
   bookingRules,
   bookingUpdateSchema,
@@ -162,8 +163,6 @@ function whatElse(rules: readonly BookingRule[]): string {
   return who && when ? 'another technician or time' : who ? 'another technician' : 'another time';
 }
 
-const joinAnd = (items: readonly string[]) => (items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`);
-
 /** The 409 for a placement that breaks rules nobody overrode: names each one, and what the dispatcher can do. */
 function ruleRefusal(open: readonly RuleBreach[], extra: Record<string, unknown>) {
   const rules = open.map((b) => b.rule);
@@ -173,7 +172,7 @@ function ruleRefusal(open: readonly RuleBreach[], extra: Record<string, unknown>
     breaches: open.map((b) => ({ rule: b.rule, message: b.message })),
     ...extra,
   };
-  const message = `${open.map((b) => b.message).join(' ')} Pick ${whatElse(rules)}, or override the ${joinAnd(rules.map((r) => bookingRuleLabels[r]))} with a reason.`;
+  const message = `${open.map((b) => b.message).join(' ')} Pick ${whatElse(rules)}, or override the ${andList(rules.map((r) => bookingRuleLabels[r]))} with a reason.`;
   return conflict(rules.length === 1 ? bookingRuleCodes[rules[0]!] : 'booking_rules', message, details);
 }
 

@@ -3,7 +3,7 @@ import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { leakRepairObligation, listRefrigerants } from '@coilpath/calc';
 import type { LeakCheckDto, RefrigerantEventResult, SessionUser } from '@coilpath/contract';
-import { refrigerantEventInputSchema } from '@coilpath/contract';
+import { andList, refrigerantEventInputSchema } from '@coilpath/contract';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
@@ -101,7 +101,7 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
     if (input.circuit != null) {
       const numbers = (await tx.select({ number: circuits.number }).from(circuits).where(eq(circuits.unitId, unit.id)).orderBy(asc(circuits.number))).map((c) => c.number);
       if (!numbers.includes(input.circuit)) {
-        const has = numbers.length === 0 ? 'no circuits on record' : numbers.length === 1 ? `only circuit ${numbers[0]}` : `circuits ${numbers.slice(0, -1).join(', ')} and ${numbers.at(-1)}`;
+        const has = numbers.length === 0 ? 'no circuits on record' : numbers.length === 1 ? `only circuit ${numbers[0]}` : `circuits ${andList(numbers)}`;
         throw badRequest(`This unit has no circuit ${input.circuit}: it has ${has}.`, { fields: [{ path: 'circuit', message: 'Choose one of the unit’s circuits' }] });
       }
     }

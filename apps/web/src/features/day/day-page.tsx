@@ -3,7 +3,7 @@ import { Link, useSearchParams } from 'react-router-dom';
 import { queryOptions, useQuery, useQueryClient } from '@tanstack/react-query';
 import { ArrowDown, ArrowUp, ChevronLeft, ChevronRight, ClipboardCheck, KeyRound, MapPin, RotateCcw } from 'lucide-react';
 import { planRoute } from '@coilpath/calc';
-import { priorityLabels, unitKindLabels, visitOutcomeLabels, workOrderKindLabels, type DayResponse, type DayStop } from '@coilpath/contract';
+import { priorityLabels, unitKindLabels, visitOutcomeLabels, visitStatusLabels, workOrderKindLabels, type DayResponse, type DayStop } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
@@ -28,7 +28,6 @@ function shiftDate(date: string, days: number): string {
   return d.toISOString().slice(0, 10);
 }
 
-const statusLabel = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' } as const;
 const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
 
 /** The order saved on this phone for the day, if it still names exactly the day's stops. */
@@ -102,7 +101,7 @@ function StopCard({
               {stop.site.city ? `, ${stop.site.city}` : ''}
             </p>
             <div className="mt-1 flex flex-wrap items-center gap-1">
-              <Badge tone={statusTone[stop.status]}>{statusLabel[stop.status]}{done && stop.outcome ? `: ${visitOutcomeLabels[stop.outcome]}` : ''}</Badge>
+              <Badge tone={statusTone[stop.status]}>{visitStatusLabels[stop.status]}{done && stop.outcome ? `: ${visitOutcomeLabels[stop.outcome]}` : ''}</Badge>
               <Badge>
                 WO-{wo.number} {workOrderKindLabels[wo.kind]}
               </Badge>

@@ -6,7 +6,7 @@
  */
 import { bookingBreaches, workOrderDueAt, type RuleBreach, type RuleJob } from '@coilpath/calc';
 import type { Booking, BookingRule, BookingRuleRefusal, Technician, WorkOrder } from '@coilpath/contract';
-import { bookingRuleLabels, bookingRules } from '@coilpath/contract';
+import { andList, bookingRuleLabels, bookingRules } from '@coilpath/contract';
 import { ApiError } from '@/lib/api-client';
 
 /** What the rules read of a work order from the unplaced queue. */
@@ -45,10 +45,8 @@ export function offeredRules(warnings: readonly RuleBreach[], refused: readonly 
   return bookingRules.filter((r) => all.has(r));
 }
 
-const listOf = (items: readonly string[]) => (items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]}`);
-
 /** "working hours", "required skill and due time". */
-export const ruleNames = (rules: readonly BookingRule[]) => listOf(rules.map((r) => bookingRuleLabels[r]));
+export const ruleNames = (rules: readonly BookingRule[]) => andList(rules.map((r) => bookingRuleLabels[r]));
 
 /**
  * What a booking's chip says about an override: a short badge, the reason, and a sentence for screen

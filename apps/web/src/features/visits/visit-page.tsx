@@ -2,7 +2,7 @@ import { useEffect } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
 import { Phone } from 'lucide-react';
-import { causeCodeLabels, workOrderKindLabels } from '@coilpath/contract';
+import { causeCodeLabels, visitStatusLabels, workOrderKindLabels } from '@coilpath/contract';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
@@ -15,7 +15,6 @@ import { CloseSection } from './close-section';
 import { StateButton } from '@/components/visit-state-button';
 import { currentVisitQuery, visitQuery } from './visit-api';
 
-const statusText = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' } as const;
 const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
 
 /** `/visits` without an id: the technician's current visit, or an honest empty state. */
@@ -57,7 +56,7 @@ function VisitScreen({ id }: { id: string }) {
         }
         actions={
           <>
-            <Badge tone={statusTone[v.status]}>{statusText[v.status]}</Badge>
+            <Badge tone={statusTone[v.status]}>{visitStatusLabels[v.status]}</Badge>
             <StateButton visit={v} />
           </>
         }
@@ -145,7 +144,7 @@ function VisitScreen({ id }: { id: string }) {
               <ol className="flex flex-col gap-1 text-sm">
                 {v.events.map((e, i) => (
                   <li key={i} className="tabular-nums">
-                    {formatInZone(e.at, tz, 'HH:mm')} · {statusText[e.state as keyof typeof statusText] ?? e.state}
+                    {formatInZone(e.at, tz, 'HH:mm')} · {visitStatusLabels[e.state as keyof typeof visitStatusLabels] ?? e.state}
                   </li>
                 ))}
               </ol>
