@@ -6,6 +6,7 @@ import {
   applianceCategoryLabels,
   causeCodeLabels,
   causeOriginLabels,
+  leakCaseStatusLabels,
   measureSymbol,
   readingUnitsBySystem,
   readingsElevationNote,
@@ -344,7 +345,7 @@ function UnitFileView({ id }: { id: string }) {
               <ul className="flex flex-col gap-2">
                 {f.leakCases.map((c) => (
                   <li key={c.id} className="rounded-md border border-slate-line p-3 text-sm">
-                    <Badge tone={c.status === 'open' ? 'alarm' : 'ok'}>{c.status.replace(/_/g, ' ')}</Badge> Opened {c.openedOn} at{' '}
+                    <Badge tone={c.status === 'open' ? 'alarm' : 'ok'}>{leakCaseStatusLabels[c.status]}</Badge> Opened {c.openedOn} at{' '}
                     {formatNumber(c.leakRatePercent, 1)} %/yr ({c.method}) over {c.thresholdPercent} % under {c.rule}. Repair due {c.repairDueDate}
                     {c.repairedOn ? `, repaired ${c.repairedOn}` : ''}
                     {c.chronic ? ' · chronic leaker' : ''}.
