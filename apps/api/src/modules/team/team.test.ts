@@ -108,9 +108,15 @@ describe('branches', () => {
   });
 
   it('PATCH changes only the fields sent', async () => {
+    // Fields with a schema default (holidays, currency, units, elevation) must not fall back to it on a partial PATCH.
+    const set = await owner
+      .patch(`/api/branches/${f.a.id}`)
+      .send({ holidays: ['2026-12-25'], currency: 'CAD', unitSystem: 'si', elevationMeters: 1609 });
+    expect(set.status).toBe(200);
     const res = await owner.patch(`/api/branches/${f.a.id}`).send({ callbackWindowDays: 45 });
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ callbackWindowDays: 45, timeZone: 'America/Chicago', name: 'Alpha' });
+    expect(res.body).toMatchObject({ holidays: ['2026-12-25'], currency: 'CAD', unitSystem: 'si', elevationMeters: 1609 });
     expect((await managerA.patch(`/api/branches/${f.a.id}`).send({ callbackWindowDays: 1 })).status).toBe(403);
     // A manager reads their own branch's settings, not another's.
     expect((await managerA.get(`/api/branches/${f.a.id}`)).status).toBe(200);
