@@ -8,7 +8,7 @@ import { classify, idbOutboxStore, memoryOutboxStore, Outbox, waitingText, type 
 // reason, conflicts told); the HTTP status meanings are RFC 9110 §15 (4xx client error, 5xx server error,
 // 408 Request Timeout, 429 from RFC 6585 §4).
 
-const finding = (visitId: string, id: string): OutboxWrite => ({ kind: 'finding', visitId, body: { id, causeCode: 'refrigerant_leak', origin: 'wear' } as never });
+const finding = (visitId: string, id: string): OutboxWrite => ({ kind: 'finding', visitId, body: { id, causeCode: 'refrigerant_leak', origin: 'wear' } });
 const state = (visitId: string, s: 'en_route' | 'on_site'): OutboxWrite => ({ kind: 'state', visitId, body: { state: s } });
 const close = (visitId: string): OutboxWrite => ({ kind: 'close', visitId, body: { outcome: 'resolved' } });
 

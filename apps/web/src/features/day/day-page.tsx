@@ -12,6 +12,7 @@ import { api } from '@/lib/api-client';
 import { formatInZone, formatMinutes, todayInZone, viewerZoneDiffers, zoneAbbreviation } from '@/lib/format';
 import { useBranch } from '@/lib/branch';
 import { StateButton } from '@/components/visit-state-button';
+import { OutboxPanel } from '@/components/outbox-panel';
 import { briefingQuery } from '@/lib/visit-queries';
 import { RouteSketch } from './route-sketch';
 import { UnitBriefingView } from './unit-briefing';
@@ -263,6 +264,7 @@ export default function DayPage() {
           ) : undefined
         }
       />
+      <OutboxPanel placeOf={(id) => byId.get(id)?.site.name} />
       <nav aria-label="Choose the day" className="mb-4 flex flex-wrap items-center gap-2">
         <Button variant="secondary" onClick={() => setParams({ date: shiftDate(d.date, -1) })}>
           <ChevronLeft className="size-4" aria-hidden="true" /> Previous day

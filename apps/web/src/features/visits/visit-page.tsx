@@ -13,6 +13,7 @@ import { RefrigerantSection } from './refrigerant-section';
 import { AttachmentsSection } from './attachments-section';
 import { CloseSection } from './close-section';
 import { StateButton } from '@/components/visit-state-button';
+import { OutboxPanel } from '@/components/outbox-panel';
 import { currentVisitQuery, visitQuery } from './visit-api';
 
 const statusText = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' } as const;
@@ -42,7 +43,13 @@ function VisitScreen({ id }: { id: string }) {
   const q = useQuery(visitQuery(id));
   const { draft, update, restored } = useVisitDraft(id);
   if (q.isPending) return <LoadingState label="Loading the visit…" />;
-  if (q.isError) return <ErrorState error={q.error} onRetry={() => q.refetch()} />;
+  if (q.isError)
+    return (
+      <>
+        <OutboxPanel visitId={id} />
+        <ErrorState error={q.error} onRetry={() => q.refetch()} />
+      </>
+    );
   const v = q.data;
   const tz = v.branch.timeZone;
   return (
@@ -62,6 +69,7 @@ function VisitScreen({ id }: { id: string }) {
           </>
         }
       />
+      <OutboxPanel visitId={id} />
       {restored && hasUnsaved(draft) && (
         <p role="status" className="mb-4 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm">
           Entries from your last session on this phone were restored. They are not saved yet: save them below.
