@@ -13,14 +13,19 @@ export function StateButton({ visit, where = 'visit' }: { visit: Pick<VisitDetai
   const qc = useQueryClient();
   if (!visit.canWrite) return null;
   // Through the outbox: shown at once, kept on the phone and sent in order (a refusal shows in the outbox panel).
-  const go = (state: 'en_route' | 'on_site') =>
-    queueWrite(qc, { kind: 'state', visitId: visit.id, body: { state } }).then(
+  const go = (state: 'en_route' | 'on_site') => {
+    const what = state === 'en_route' ? 'Marked en route' : 'Marked on site';
+    return queueWrite(
+      qc,
+      { kind: 'state', visitId: visit.id, body: { state } },
+      { sent: () => notify(`${what}.`), stopped: (e) => notify(`Not changed: ${e.problem?.message ?? 'refused'}`, 'alarm') },
+    ).then(
       () => {
-        const what = state === 'en_route' ? 'Marked en route' : 'Marked on site';
-        notify(onlineManager.isOnline() ? `${what}.` : `${what} on this phone; it is sent when the connection is back.`);
+        if (!onlineManager.isOnline()) notify(`${what} on this phone; it is sent when the connection is back.`);
       },
       (e: unknown) => notify(`Not changed: ${errorMessage(e)}`, 'alarm'),
     );
+  };
   if (visit.status === 'booked')
     return (
       <Button size="lg" onClick={() => void go('en_route')}>

@@ -176,11 +176,11 @@ export class Outbox {
   }
 
   /** Keeps a write (resolves once it is stored) and starts sending. */
-  async add(write: OutboxWrite): Promise<OutboxEntry> {
+  async add(write: OutboxWrite, id?: string): Promise<OutboxEntry> {
     let entry!: OutboxEntry;
     await this.change((es) => {
       entry = {
-        id: this.o.newId?.() ?? crypto.randomUUID(),
+        id: id ?? this.o.newId?.() ?? crypto.randomUUID(),
         seq: (es.at(-1)?.seq ?? 0) + 1,
         queuedAt: (this.o.now?.() ?? new Date()).toISOString(),
         write,

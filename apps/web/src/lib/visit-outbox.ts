@@ -181,9 +181,15 @@ export function applyToDay(d: DayResponse, w: OutboxWrite, at: string): DayRespo
   return changed ? { ...d, stops } : d;
 }
 
-type Listener = (entry: OutboxEntry, answer: unknown) => void;
+/** What a screen hears of one write it queued, while the page lives. */
+export interface WriteReport {
+  /** The server accepted it (its answer). */
+  sent?(answer: unknown): void;
+  /** The server refused it or it conflicts (the outbox panel shows it too). */
+  stopped?(entry: OutboxEntry): void;
+}
 
-let current: { qc: QueryClient; box: Outbox; sent: Set<Listener> } | null = null;
+let current: { qc: QueryClient; box: Outbox; reports: Map<string, WriteReport> } | null = null;
 
 const waitingOf = (box: Outbox, visitId?: string) => box.list().filter((e) => e.state === 'waiting' && (!visitId || e.write.visitId === visitId));
 
@@ -210,7 +216,7 @@ function overlay(qc: QueryClient, box: Outbox, only?: readonly unknown[]) {
 export function connectOutbox(qc: QueryClient): Outbox {
   if (current?.qc === qc) return current.box;
   current?.box.stop();
-  const sent = new Set<Listener>();
+  const reports = new Map<string, WriteReport>();
   const box = new Outbox({
     store: typeof indexedDB === 'undefined' ? memoryOutboxStore() : idbOutboxStore(),
     send: sendWrite,
@@ -223,7 +229,8 @@ export function connectOutbox(qc: QueryClient): Outbox {
         const later = waitingOf(box, w.visitId);
         qc.setQueryData(['visit', w.visitId], later.reduce((x, e) => applyToVisit(x, e.write, e.queuedAt), v));
       }
-      for (const fn of sent) fn(entry, answer);
+      reports.get(entry.id)?.sent?.(answer);
+      reports.delete(entry.id);
       // Once nothing of the visit waits, the server's own answers replace what the phone laid over them.
       if (!waitingOf(box, w.visitId).length) {
         void qc.invalidateQueries({ queryKey: ['visit', w.visitId] });
@@ -233,12 +240,14 @@ export function connectOutbox(qc: QueryClient): Outbox {
       if (!waitingOf(box).length) void qc.invalidateQueries({ queryKey: ['day'] });
     },
     onStopped: (entry) => {
+      reports.get(entry.id)?.stopped?.(entry);
+      reports.delete(entry.id);
       // No longer laid over: show the server's state.
       void qc.invalidateQueries({ queryKey: ['visit', entry.write.visitId] });
       void qc.invalidateQueries({ queryKey: ['day'] });
     },
   });
-  current = { qc, box, sent };
+  current = { qc, box, reports };
   // Answers from the server (not the phone's own writes) get the waiting entries laid over again.
   qc.getQueryCache().subscribe((ev) => {
     if (ev.type !== 'updated' || ev.action.type !== 'success' || ev.action.manual) return;
@@ -260,20 +269,23 @@ export function overlayRestored(qc: QueryClient) {
   if (current?.qc === qc) overlay(qc, current.box);
 }
 
-/** Keeps a write, shows it on the screens at once, and sends it when it can. */
-export async function queueWrite(qc: QueryClient, write: OutboxWrite): Promise<OutboxEntry> {
+/**
+ * Keeps a write, shows it on the screens at once, and sends it when it can. Resolves once it is kept on
+ * the phone; `report` hears when it arrives or is refused (while this page lives: after a reload the
+ * outbox panel still shows a refusal).
+ */
+export async function queueWrite(qc: QueryClient, write: OutboxWrite, report?: WriteReport): Promise<OutboxEntry> {
   const box = connectOutbox(qc);
-  const entry = await box.add(write);
-  overlay(qc, box);
-  return entry;
-}
-
-/** Hears each write that arrived (e.g. to show what the server computed from it). */
-export function onWriteSent(qc: QueryClient, fn: Listener): () => void {
-  connectOutbox(qc);
-  const set = current!.sent;
-  set.add(fn);
-  return () => set.delete(fn);
+  const id = crypto.randomUUID();
+  if (report) current!.reports.set(id, report);
+  try {
+    const entry = await box.add(write, id);
+    overlay(qc, box);
+    return entry;
+  } catch (e) {
+    current?.reports.delete(id);
+    throw e;
+  }
 }
 
 const none: readonly OutboxEntry[] = [];

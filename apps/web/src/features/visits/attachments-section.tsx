@@ -1,7 +1,7 @@
 import { useRef, useState } from 'react';
 import { Camera, Paperclip } from 'lucide-react';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
-import type { VisitDetail } from '@coilpath/contract';
+import type { AttachmentDto, VisitDetail } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SelectField } from '@/components/ui/field';
 import { Badge, Card } from '@/components/ui/page';
@@ -21,8 +21,17 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
 
   // Through the outbox: the file is kept on the phone (IndexedDB) and sent in order, once (its client id).
   const send = (file: File, k: typeof kind) =>
-    queueWrite(qc, { kind: 'attachment', visitId: visit.id, id: crypto.randomUUID(), attachKind: k, file, fileName: file.name }).then(
-      () => notify(onlineManager.isOnline() ? `Attaching ${file.name}.` : `${file.name} kept on this phone; it is sent when the connection is back.`),
+    queueWrite(
+      qc,
+      { kind: 'attachment', visitId: visit.id, id: crypto.randomUUID(), attachKind: k, file, fileName: file.name },
+      {
+        sent: (r) => notify(`Attached ${(r as { attachment: AttachmentDto }).attachment.displayName}.`),
+        stopped: (e) => notify(`Not attached: ${e.problem?.message ?? 'refused'}`, 'alarm'),
+      },
+    ).then(
+      () => {
+        if (!onlineManager.isOnline()) notify(`${file.name} kept on this phone; it is sent when the connection is back.`);
+      },
       (e: unknown) => notify(`Not attached: ${errorMessage(e)}`, 'alarm'),
     );
   const onPick = (e: React.ChangeEvent<HTMLInputElement>) => {

@@ -1,4 +1,4 @@
-import { useEffect, useState } from 'react';
+import { useState } from 'react';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
@@ -19,7 +19,7 @@ import { TextAreaField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
-import { onWriteSent, queueWrite, useOutbox } from '@/lib/visit-outbox';
+import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import { formatInZone } from '@/lib/format';
 import { useResendSummary } from './visit-api';
 
@@ -64,19 +64,15 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   const [summary, setSummary] = useState<SummaryMailResult | null>(null);
 
   // The server's answer to the close-out once it arrived (return visit, summary e-mail).
-  useEffect(
-    () =>
-      onWriteSent(qc, (entry, answer) => {
-        if (entry.write.kind !== 'close' || entry.write.visitId !== visit.id || !answer) return;
-        const r = answer as CloseVisitResult;
-        setResult(r);
-        notify(
-          `Visit closed as ${visitOutcomeLabels[r.visit.outcome ?? 'resolved'].toLowerCase()}.${r.returnWorkOrder ? (r.returnWorkOrder.joined ? ` Added to the open return visit WO-${r.returnWorkOrder.number}.` : ` Return visit WO-${r.returnWorkOrder.number} created.`) : ''}${r.summary.sent ? ` Summary sent to ${r.summary.to}.` : ' The summary e-mail was not sent.'}`,
-          r.summary.sent ? 'ok' : 'alarm',
-        );
-      }),
-    [qc, visit.id, notify],
-  );
+  const arrived = (answer: unknown) => {
+    const r = answer as CloseVisitResult | undefined;
+    if (!r?.visit) return; // a close-out found done on a retry: the visit's own answer says how it closed
+    setResult(r);
+    notify(
+      `Visit closed as ${visitOutcomeLabels[r.visit.outcome ?? 'resolved'].toLowerCase()}.${r.returnWorkOrder ? (r.returnWorkOrder.joined ? ` Added to the open return visit WO-${r.returnWorkOrder.number}.` : ` Return visit WO-${r.returnWorkOrder.number} created.`) : ''}${r.summary.sent ? ` Summary sent to ${r.summary.to}.` : ' The summary e-mail was not sent.'}`,
+      r.summary.sent ? 'ok' : 'alarm',
+    );
+  };
 
   const doResend = () =>
     resend.mutate(undefined, {
@@ -140,7 +136,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
       kind: 'close',
       visitId: visit.id,
       body: { outcome, returnNeeds: outcome === 'needs_return' ? needs : [], returnNotes: returnNotes.trim() || null, notes: notes.trim() || null },
-    }).then(
+    }, { sent: arrived, stopped: (e) => notify(`Visit not closed: ${e.problem?.message ?? 'refused'}`, 'alarm') }).then(
       () => {
         if (!onlineManager.isOnline()) notify('Visit closed on this phone; the close-out is sent when the connection is back.');
       },

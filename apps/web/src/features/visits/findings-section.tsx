@@ -49,8 +49,17 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
 
   // Through the outbox: shown at once, kept on the phone, sent in order once (its id makes a resend harmless).
   const send = (f: FindingInput & { id: string }) =>
-    queueWrite(qc, { kind: 'finding', visitId: visit.id, body: f }).then(
-      () => notify(onlineManager.isOnline() ? `Finding recorded: ${causeCodeLabels[f.causeCode]}.` : `Finding kept on this phone: ${causeCodeLabels[f.causeCode]}. It is sent when the connection is back.`),
+    queueWrite(
+      qc,
+      { kind: 'finding', visitId: visit.id, body: f },
+      {
+        sent: () => notify(`Finding saved: ${causeCodeLabels[f.causeCode]}.`),
+        stopped: (e) => notify(`Finding not saved: ${e.problem?.message ?? 'refused'}`, 'alarm'),
+      },
+    ).then(
+      () => {
+        if (!onlineManager.isOnline()) notify(`Finding kept on this phone: ${causeCodeLabels[f.causeCode]}. It is sent when the connection is back.`);
+      },
       (e: unknown) => notify(`Finding not kept: ${errorMessage(e)}`, 'alarm'),
     );
 

@@ -164,10 +164,14 @@ export function ReadingsSection({
     const body = form.body;
     const count = `${body.readings.length} circuit${body.readings.length === 1 ? '' : 's'}`;
     // Through the outbox: the values show as saved on this phone at once and are sent in order (a resend replaces, never doubles).
-    queueWrite(qc, { kind: 'readings', visitId: visit.id, body }).then(
+    queueWrite(
+      qc,
+      { kind: 'readings', visitId: visit.id, body },
+      { sent: () => notify(`Readings saved for ${count}.`), stopped: (e) => notify(`Readings not saved: ${e.problem?.message ?? 'refused'}`, 'alarm') },
+    ).then(
       () => {
         update((d) => ({ ...d, readings: {}, readingsUnits: undefined, readingsDirty: false, savedAt: appNow().toISOString() }));
-        notify(onlineManager.isOnline() ? `Readings recorded for ${count}.` : `Readings for ${count} kept on this phone; they are sent when the connection is back.`);
+        if (!onlineManager.isOnline()) notify(`Readings for ${count} kept on this phone; they are sent when the connection is back.`);
       },
       (e: unknown) => notify(`Readings not kept: ${errorMessage(e)}`, 'alarm'),
     );

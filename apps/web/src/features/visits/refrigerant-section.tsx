@@ -8,7 +8,7 @@ import { SelectField, TextField } from '@/components/ui/field';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
-import { onWriteSent, queueWrite, useOutbox } from '@/lib/visit-outbox';
+import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import type { PendingRefrigerant, VisitDraft } from './draft';
 
 const refrigerants = listRefrigerants();
@@ -28,25 +28,24 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
 
   const qc = useQueryClient();
   const { entries } = useOutbox(visit.id);
-  // What the server computed from a refrigerant event of this visit once it arrived (leak rate, a leak case).
-  useEffect(
-    () =>
-      onWriteSent(qc, (entry, answer) => {
-        if (entry.write.kind !== 'refrigerant' || entry.write.visitId !== visit.id) return;
-        const r = answer as RefrigerantEventResult;
-        const rate = r.leakCheck ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.` : '';
-        const text = r.leakCaseOpened && r.leakCase
-          ? `Refrigerant saved.${rate} A leak case is open: repair due ${r.leakCase.repairDueDate}. The branch manager sees it on the Watchlist.`
-          : `Refrigerant saved.${rate}`;
-        setLastResult(text);
-        notify(text, r.leakCaseOpened ? 'alarm' : 'ok');
-      }),
-    [qc, visit.id, notify],
-  );
+  // What the server computed from the event once it arrived (leak rate, a leak case).
+  const arrived = (answer: unknown) => {
+    const r = answer as RefrigerantEventResult;
+    const rate = r.leakCheck ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.` : '';
+    const text = r.leakCaseOpened && r.leakCase
+      ? `Refrigerant saved.${rate} A leak case is open: repair due ${r.leakCase.repairDueDate}. The branch manager sees it on the Watchlist.`
+      : `Refrigerant saved.${rate}`;
+    setLastResult(text);
+    notify(text, r.leakCaseOpened ? 'alarm' : 'ok');
+  };
 
   // Through the outbox: shown at once, kept on the phone, sent in order once (its id makes a resend harmless).
   const send = (p: PendingRefrigerant) =>
-    queueWrite(qc, { kind: 'refrigerant', visitId: visit.id, unitId: p.unitId, body: p.body }).then(
+    queueWrite(
+      qc,
+      { kind: 'refrigerant', visitId: visit.id, unitId: p.unitId, body: p.body },
+      { sent: arrived, stopped: (e) => notify(`Refrigerant not saved: ${e.problem?.message ?? 'refused'}`, 'alarm') },
+    ).then(
       () => {
         if (!onlineManager.isOnline()) notify('Refrigerant kept on this phone; it is sent when the connection is back (the leak rate is computed then).');
       },
