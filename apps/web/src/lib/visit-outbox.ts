@@ -204,10 +204,11 @@ function overlay(qc: QueryClient, box: Outbox, only?: readonly unknown[]) {
     if (!data) continue;
     if (root === 'visit' && typeof id === 'string' && visitIds.has(id)) {
       const next = waiting.reduce((v, e) => applyToVisit(v, e.write, e.queuedAt), data as VisitDetail);
-      if (next !== data) qc.setQueryData(q.queryKey, next);
+      // Keeps the time the answer was fetched: the screens say "as of" it.
+      if (next !== data) qc.setQueryData(q.queryKey, next, { updatedAt: q.state.dataUpdatedAt });
     } else if (root === 'day') {
       const next = waiting.reduce((d, e) => applyToDay(d, e.write, e.queuedAt), data as DayResponse);
-      if (next !== data) qc.setQueryData(q.queryKey, next);
+      if (next !== data) qc.setQueryData(q.queryKey, next, { updatedAt: q.state.dataUpdatedAt });
     }
   }
 }

@@ -1,8 +1,11 @@
 import { queryOptions } from '@tanstack/react-query';
-import type { UnitBriefing } from '@coilpath/contract';
+import type { UnitBriefing, UnitFile } from '@coilpath/contract';
 import { api } from '@/lib/api-client';
 
-/** What the technician's route and the visit screen share: the unit briefing (writes go through ./visit-outbox.ts). */
+/** What the technician's route, the visit screen and the Unit file share: the unit briefing and the unit file (writes go through ./visit-outbox.ts). */
 
 export const briefingQuery = (unitId: string) =>
   queryOptions({ queryKey: ['unit-briefing', unitId], queryFn: () => api.get<UnitBriefing>(`/api/units/${unitId}/briefing`), staleTime: 5 * 60_000 });
+
+export const unitFileQuery = (id: string) =>
+  queryOptions({ queryKey: ['units', 'file', id], queryFn: () => api.get<UnitFile>(`/api/units/${id}/file`) });

@@ -2,7 +2,7 @@ import { and, asc, eq, gte, inArray, isNull, lt, ne, or } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { planRoute } from '@coilpath/calc';
-import { weekdays, type DayResponse, type DayStop, type SessionUser } from '@coilpath/contract';
+import { weekdays, type DayResponse, type DayStop, type SessionUser, type WorkingHours } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
@@ -18,6 +18,19 @@ export function addDaysIso(date: string, days: number): string {
   const t = new Date(`${date}T00:00:00Z`);
   t.setUTCDate(t.getUTCDate() + days);
   return t.toISOString().slice(0, 10);
+}
+
+/**
+ * The first date after `date` the technician works: a weekday with working hours set, or Monday to Friday
+ * when none are set (common practice, no source). Within two weeks, else simply the next date.
+ */
+export function nextWorkingDate(date: string, hours: WorkingHours | null): string {
+  for (let i = 1; i <= 14; i++) {
+    const next = addDaysIso(date, i);
+    const wd = weekdays[new Date(`${next}T12:00:00Z`).getUTCDay()]!;
+    if (hours ? hours[wd] : wd !== 'sat' && wd !== 'sun') return next;
+  }
+  return addDaysIso(date, 1);
 }
 
 /** A non-fixed booking may be reached up to this many minutes before it starts. */
@@ -148,6 +161,7 @@ export async function technicianDay(ctx: AppContext, user: SessionUser, date: st
 
   return {
     date: day,
+    nextWorkingDate: nextWorkingDate(day, me.workingHours ?? null),
     timeZone: tz,
     branch: { id: me.branch.id, name: me.branch.name },
     tech: { id: me.id, name: me.name },
