@@ -1,5 +1,5 @@
 import { queryOptions } from '@tanstack/react-query';
-import type { UnitBriefing, UnitFile } from '@coilpath/contract';
+import type { UnitBriefing, UnitFile, VisitDetail } from '@coilpath/contract';
 import { api } from '@/lib/api-client';
 
 /** What the technician's route, the visit screen and the Unit file share: the unit briefing and the unit file (writes go through ./visit-outbox.ts). */
@@ -9,3 +9,6 @@ export const briefingQuery = (unitId: string) =>
 
 export const unitFileQuery = (id: string) =>
   queryOptions({ queryKey: ['units', 'file', id], queryFn: () => api.get<UnitFile>(`/api/units/${id}/file`) });
+
+export const visitQuery = (id: string) =>
+  queryOptions({ queryKey: ['visit', id], queryFn: () => api.get<VisitDetail>(`/api/visits/${id}`) });

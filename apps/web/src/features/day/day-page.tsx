@@ -13,7 +13,7 @@ import { formatInZone, formatMinutes, todayInZone, viewerZoneDiffers, zoneAbbrev
 import { useBranch } from '@/lib/branch';
 import { StateButton } from '@/components/visit-state-button';
 import { OutboxPanel } from '@/components/outbox-panel';
-import { briefingQuery, unitFileQuery } from '@/lib/visit-queries';
+import { briefingQuery, unitFileQuery, visitQuery } from '@/lib/visit-queries';
 import { useOnline } from '@/lib/online';
 import { appTimeOf } from '@/lib/now';
 import { RouteSketch } from './route-sketch';
@@ -200,17 +200,19 @@ export default function DayPage() {
   const day = q.data;
   const [manualOrder, setManualOrder] = useManualOrder(day);
 
-  // Kept for the day: while there is a connection, fetch every stop's unit briefing and unit file, and the
-  // next working day's route with its stops' too; the phone keeps them (lib/query-persist.ts) for the roof.
+  // Kept for the day: while there is a connection, fetch every stop's visit, unit briefing and unit file, and
+  // the next working day's route with its stops' too; the phone keeps them (lib/query-persist.ts) for the roof.
   const online = useOnline();
   useEffect(() => {
     if (!day || !online) return;
     const keepUnits = (d: DayResponse) => {
-      for (const s of d.stops)
+      for (const s of d.stops) {
+        void qc.prefetchQuery(visitQuery(s.visitId));
         for (const u of s.units) {
           void qc.prefetchQuery(briefingQuery(u.id));
           void qc.prefetchQuery(unitFileQuery(u.id));
         }
+      }
     };
     keepUnits(day);
     if (day.nextWorkingDate) {

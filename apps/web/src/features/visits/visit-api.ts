@@ -1,12 +1,9 @@
 import { queryOptions, useMutation, useQueryClient } from '@tanstack/react-query';
-import type { CurrentVisitResult, SummaryMailResult, VisitDetail } from '@coilpath/contract';
+import type { CurrentVisitResult, SummaryMailResult } from '@coilpath/contract';
 import { api } from '@/lib/api-client';
 
 // The technician's writes on a visit go through the outbox (`@/lib/visit-outbox`); what is here reads,
 // or (sending the summary again) needs the connection there and then.
-
-export const visitQuery = (id: string) =>
-  queryOptions({ queryKey: ['visit', id], queryFn: () => api.get<VisitDetail>(`/api/visits/${id}`) });
 
 export const currentVisitQuery = queryOptions({
   queryKey: ['visit', 'current'],

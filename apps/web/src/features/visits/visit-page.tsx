@@ -14,7 +14,8 @@ import { AttachmentsSection } from './attachments-section';
 import { CloseSection } from './close-section';
 import { StateButton } from '@/components/visit-state-button';
 import { OutboxPanel } from '@/components/outbox-panel';
-import { currentVisitQuery, visitQuery } from './visit-api';
+import { currentVisitQuery } from './visit-api';
+import { visitQuery } from '@/lib/visit-queries';
 
 const statusText = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' } as const;
 const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
@@ -42,6 +43,13 @@ function CurrentVisit() {
 function VisitScreen({ id }: { id: string }) {
   const q = useQuery(visitQuery(id));
   const { draft, update, restored } = useVisitDraft(id);
+  // Offline with nothing kept for this visit: say so, rather than loading until the signal returns.
+  if (q.isPending && q.fetchStatus === 'paused')
+    return (
+      <EmptyState title="This visit is not kept on this device" action={<Link to="/day" className="text-coolant underline">Open Route</Link>}>
+        There is no connection, and this visit was not opened here (or on its Route) while there was one. It loads when the connection is back.
+      </EmptyState>
+    );
   if (q.isPending) return <LoadingState label="Loading the visit…" />;
   if (q.isError)
     return (
