@@ -1,0 +1,160 @@
+/**
+ * The technician works a stop without signal (390×844): signed in and with the route opened online, the
+ * network is cut and the app reopened; on the kept route the technician goes en route and on site, records
+ * a reading and a finding and closes the visit, all offline; the screens show each change at once and the
+ * banner counts what waits ("5 changes waiting to send"). With the connection back the outbox sends them in
+ * order, the count goes, and the API holds each change exactly once (one reading for the circuit, one
+ * finding, one en-route and one on-site event, the visit closed as resolved).
+ * Works the first stop still booked on the first day with stops (after the technician journey closed its
+ * first stop, the second one); creates no return visit.
+ */
+import assert from 'node:assert/strict';
+import type { Page } from 'playwright-core';
+import type { JourneyContext } from '../harness';
+import { phone } from '../harness';
+import { addDays, dateInZone } from '../handoff';
+import { signInThroughForm } from '../support';
+
+export const title = 'Technician works a stop offline';
+
+/** The demo technician works in the Chicago branch (apps/api/src/db/seed/catalogue.ts). */
+const BRANCH_ZONE = 'America/Chicago';
+const routeHeading = (page: Page) => page.getByRole('heading', { level: 1, name: 'Route' });
+const notice = (page: Page, text: string | RegExp) => page.locator('[role="status"], [role="alert"]').filter({ hasText: text }).first();
+
+/** The query keys the phone keeps in IndexedDB (apps/web/src/lib/query-persist.ts), as JSON text; '' before any. */
+const keptKeys = () =>
+  new Promise<string>((resolve) => {
+    const open = indexedDB.open('coilpath');
+    open.onerror = () => resolve('');
+    open.onsuccess = () => {
+      const db = open.result;
+      if (!db.objectStoreNames.contains('kept-answers')) {
+        db.close();
+        return resolve('');
+      }
+      const get = db.transaction('kept-answers').objectStore('kept-answers').get('coilpath.query-cache');
+      get.onerror = () => resolve('');
+      get.onsuccess = () => {
+        db.close();
+        resolve(typeof get.result === 'string' ? (get.result.match(/"queryKey":\[[^\]]*\]/g) ?? []).join(' ') : '');
+      };
+    };
+  });
+
+interface VisitDto {
+  status: string;
+  outcome: string | null;
+  readings: { circuitId: string; suctionPressure: number | null }[];
+  findings: { causeCode: string; notes: string | null }[];
+  events: { state: string }[];
+}
+
+export async function run(ctx: JourneyContext): Promise<void> {
+  const page = await ctx.launch(phone);
+  // While the network is cut, the page's own refetches fail at the network layer: expected here.
+  ctx.allowConsoleError(/ERR_INTERNET_DISCONNECTED|Failed to fetch|net::ERR_FAILED/);
+  await signInThroughForm(ctx, page, 'technician');
+  await page.waitForFunction(() => navigator.serviceWorker?.controller != null, undefined, { timeout: 30_000 });
+
+  // The first day from today with a stop still booked, opened online.
+  const today = dateInZone(ctx.now(), BRANCH_ZONE);
+  const stops = page.getByRole('list', { name: 'Stops in route order' });
+  const booked = stops.locator(':scope > li').filter({ has: page.getByRole('button', { name: 'En route' }) });
+  let date = today;
+  for (let i = 0; ; i++) {
+    await page.goto(`${ctx.base}/day?date=${date}`);
+    await routeHeading(page).waitFor();
+    await page.waitForFunction(() => !document.querySelector('[aria-busy="true"]'));
+    if ((await booked.count()) > 0) break;
+    assert.ok(i < 14, 'the demo books the technician within two weeks');
+    date = addDays(date, 1);
+  }
+  const stop = booked.first();
+  const site = (await stop.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
+  const href = await stop.getByRole('link', { name: 'Open visit' }).getAttribute('href');
+  const visitId = /\/visits\/([\w-]+)$/.exec(href ?? '')?.[1];
+  assert.ok(visitId, `the stop links its visit (${href})`);
+  const before = (await (await page.request.get(`${ctx.base}/api/visits/${visitId}`)).json()) as VisitDto;
+  assert.equal(before.status, 'booked');
+
+  // The phone keeps the route, the visit and its briefings (written a moment after each answer).
+  const kept = (keys: string) => keys.includes(`["day","${date}"]`) && keys.includes(`["visit","${visitId}"]`);
+  for (let i = 0; !kept(await page.evaluate(keptKeys)); i++) {
+    assert.ok(i < 60, `the phone keeps the route of ${date} and the visit at ${site} (IndexedDB)`);
+    await page.waitForTimeout(250);
+  }
+  ctx.step(`route of ${date} and the visit at ${site} kept on the phone`);
+
+  // ── No signal: the app reopens from the phone ──
+  await page.context().setOffline(true);
+  await page.reload();
+  await routeHeading(page).waitFor();
+  await page.getByText('Offline.', { exact: false }).first().waitFor();
+  await page.getByText(/^Kept on this phone, as of (\w{3} \d{1,2} \w{3}, )?\d\d:\d\d\.$/).waitFor();
+  ctx.step(`offline: ${await page.getByText(/^Kept on this phone, as of/).innerText()}`);
+
+  const card = stops.locator(':scope > li').filter({ hasText: site }).first();
+  await card.getByRole('button', { name: 'En route' }).click();
+  await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
+  await card.getByRole('button', { name: 'On site' }).click();
+  await notice(page, 'Marked on site on this phone; it is sent when the connection is back.').waitFor();
+  await page.getByText('2 changes waiting to send', { exact: false }).first().waitFor();
+  await ctx.screen(page, 'route-offline-waiting');
+  ctx.step('offline: en route and on site from Route; the banner counts 2 changes waiting');
+
+  await card.getByRole('link', { name: 'Record the visit' }).click();
+  await page.getByRole('heading', { level: 1, name: /^Visit · / }).waitFor();
+
+  // A reading on the first circuit (values only recorded: the technician journey checks the computation).
+  const suction = page.getByLabel(/^Suction pressure, .*circuit 1 \(psig\)$/).first();
+  await suction.fill('118');
+  await page.getByLabel(/^Suction line temperature, .*circuit 1 \(°F\)$/).first().fill('52');
+  await page.getByRole('button', { name: 'Save readings' }).click();
+  await notice(page, /^Readings for 1 circuit kept on this phone/).waitFor();
+  assert.equal(await suction.inputValue(), '118', 'the kept reading shows in the form');
+
+  // A finding.
+  await page.getByLabel('Cause code').selectOption({ label: 'Sensor fault' });
+  await page.getByLabel('Origin').selectOption({ label: 'Wear' });
+  await page.getByLabel('Notes', { exact: true }).fill('Suction transducer reads 6 psi high against the reference gauge; recalibrated.');
+  await page.getByRole('button', { name: 'Add finding' }).click();
+  await notice(page, 'Finding kept on this phone: Sensor fault.').waitFor();
+  await page.getByRole('listitem').filter({ hasText: 'Sensor fault' }).filter({ hasText: 'Waiting to send' }).waitFor();
+
+  // Close-out.
+  await page.getByRole('radio', { name: /^Resolved/ }).check();
+  await page.getByLabel('Notes for the summary').fill('Transducer recalibrated; unit running within range.');
+  await page.getByRole('button', { name: 'Close visit' }).click();
+  await notice(page, 'Visit closed on this phone; the close-out is sent when the connection is back.').waitFor();
+  await page.getByText(/The close-out is kept on this phone and waits to send/).waitFor();
+  await page.getByText('5 changes waiting to send', { exact: false }).first().waitFor();
+  await ctx.screen(page, 'visit-offline-closed');
+  ctx.step('offline: a reading, a finding and the close-out recorded; 5 changes waiting to send');
+
+  // ── The connection is back: everything arrives, in order, once ──
+  await page.context().setOffline(false);
+  await page.getByText(/changes? waiting to send/).first().waitFor({ state: 'detached', timeout: 30_000 });
+  await page.getByText(/Service summary \(with PDF\) sent to \S+@\S+\.|Service summary not sent/).first().waitFor({ timeout: 30_000 });
+  assert.match(await page.locator('#close-out').innerText(), /Closed .* as Resolved/, 'the close-out shows the server’s close');
+  ctx.step('back online: the outbox emptied; the close-out shows the server’s answer');
+
+  const after = (await (await page.request.get(`${ctx.base}/api/visits/${visitId}`)).json()) as VisitDto;
+  assert.equal(after.status, 'closed');
+  assert.equal(after.outcome, 'resolved');
+  const circuitReadings = after.readings.filter((r) => r.suctionPressure === 118);
+  assert.equal(circuitReadings.length, 1, `one reading of 118 psig arrived (${after.readings.length} readings in all)`);
+  assert.equal(after.readings.length - before.readings.length <= 1, true, 'no reading was doubled');
+  assert.equal(after.findings.filter((f) => f.causeCode === 'sensor_fault' && /transducer/.test(f.notes ?? '')).length, 1, 'one finding arrived');
+  assert.equal(after.events.filter((e) => e.state === 'en_route').length, 1, 'en route recorded once');
+  assert.equal(after.events.filter((e) => e.state === 'on_site').length, 1, 'on site recorded once');
+  ctx.step('the API holds one reading, one finding, one en-route and one on-site event; the visit closed as resolved');
+
+  // On Route the stop shows closed, from the server.
+  await page.getByRole('link', { name: 'Back to Route' }).click();
+  await routeHeading(page).waitFor();
+  await page.goto(`${ctx.base}/day?date=${date}`);
+  await stops.locator(':scope > li').filter({ hasText: site }).first().getByText('Closed: Resolved').waitFor();
+  ctx.step(`Route shows ${site} closed: resolved`);
+  ctx.expectNoConsoleErrors();
+}
