@@ -5,15 +5,19 @@
  * banner counts what waits ("5 changes waiting to send"). With the connection back the outbox sends them in
  * order, the count goes, and the API holds each change exactly once (one reading for the circuit, one
  * finding, one en-route and one on-site event, the visit closed as resolved).
+ * Then a conflict: offline, the technician marks the next booked stop en route while the dispatcher unbooks
+ * that visit; back online the change is refused, told in words, never sent over the office's change, and
+ * discarded.
  * Works the first stop still booked on the first day with stops (after the technician journey closed its
- * first stop, the second one); creates no return visit.
+ * first stop, the second one); creates no return visit; unbooks one later stop (its work order goes back
+ * to the unplaced queue).
  */
 import assert from 'node:assert/strict';
-import type { Page } from 'playwright-core';
+import { request, type Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { phone } from '../harness';
 import { addDays, dateInZone } from '../handoff';
-import { signInThroughForm } from '../support';
+import { DEMO_PASSWORD, demo, signInThroughForm } from '../support';
 
 export const title = 'Technician works a stop offline';
 
@@ -156,5 +160,54 @@ export async function run(ctx: JourneyContext): Promise<void> {
   await page.goto(`${ctx.base}/day?date=${date}`);
   await stops.locator(':scope > li').filter({ hasText: site }).first().getByText('Closed: Resolved').waitFor();
   ctx.step(`Route shows ${site} closed: resolved`);
+
+  // ── A conflict: the office unbooks a stop while the phone, offline, marks it en route ──
+  let conflictDate = date;
+  for (let i = 0; ; i++) {
+    await page.goto(`${ctx.base}/day?date=${conflictDate}`);
+    await routeHeading(page).waitFor();
+    await page.waitForFunction(() => !document.querySelector('[aria-busy="true"]'));
+    if ((await booked.count()) > 0) break;
+    assert.ok(i < 14, 'the demo books the technician another stop within two weeks');
+    conflictDate = addDays(conflictDate, 1);
+  }
+  const other = booked.first();
+  const otherSite = (await other.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
+  const otherHref = await other.getByRole('link', { name: 'Open visit' }).getAttribute('href');
+  const otherId = /\/visits\/([\w-]+)$/.exec(otherHref ?? '')?.[1];
+  assert.ok(otherId, `the stop links its visit (${otherHref})`);
+  // The unbooked visit answers 404 to the phone's change and to its refetch: expected here.
+  ctx.allowConsoleError(new RegExp(`status of 404 .*/api/visits/${otherId}`));
+  await page.context().setOffline(true);
+  await page.getByText('Offline.', { exact: false }).first().waitFor();
+  await other.getByRole('button', { name: 'En route' }).click();
+  await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
+
+  const office = await request.newContext({ baseURL: ctx.base });
+  try {
+    const signedIn = await office.post('/api/auth/sign-in', { data: { email: demo.dispatcher, password: DEMO_PASSWORD } });
+    assert.equal(signedIn.status(), 200, 'the dispatcher signs in');
+    const v = (await (await office.get(`/api/visits/${otherId}`)).json()) as { booking: { id: string } | null };
+    assert.ok(v.booking, 'the visit has a booking');
+    const unbooked = await office.delete(`/api/bookings/${v.booking.id}`);
+    assert.ok(unbooked.ok(), `the dispatcher unbooks the visit (${unbooked.status()})`);
+    ctx.step(`offline: en route at ${otherSite}; meanwhile the dispatcher unbooks that visit`);
+
+    await page.context().setOffline(false);
+    const refused = page.getByRole('list', { name: 'Changes the server did not accept' }).getByRole('listitem').filter({ hasText: otherSite });
+    await refused.waitFor({ timeout: 30_000 });
+    const words = await refused.innerText();
+    assert.match(words, /Not sent — the visit changed at the office: En route/, 'the conflict names the change');
+    assert.match(words, /The office moved this visit to another technician or unbooked it while this phone was offline/, 'the conflict is told in words');
+    await page.getByText('1 change not accepted by the server', { exact: false }).first().waitFor();
+    await ctx.screen(page, 'route-conflict');
+    assert.equal((await office.get(`/api/visits/${otherId}`)).status(), 404, 'the unbooked visit stays unbooked: nothing was sent over it');
+    await refused.getByRole('button', { name: 'Discard' }).click();
+    await refused.waitFor({ state: 'detached' });
+    await notice(page, 'Discarded: En route. It was not saved.').waitFor();
+    ctx.step('back online: the conflict is shown in words, not sent over the office’s change, and discarded');
+  } finally {
+    await office.dispose();
+  }
   ctx.expectNoConsoleErrors();
 }

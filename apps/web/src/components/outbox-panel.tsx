@@ -24,7 +24,8 @@ export function describeWrite(w: OutboxWrite): string {
   }
 }
 
-function StoppedEntry({ e, where }: { e: OutboxEntry; where: string | undefined }) {
+function StoppedEntry({ e }: { e: OutboxEntry }) {
+  const where = e.place;
   const notify = useNotify();
   const { outbox } = useOutbox();
   const conflict = e.state === 'conflict';
@@ -72,7 +73,7 @@ function StoppedEntry({ e, where }: { e: OutboxEntry; where: string | undefined 
  * What the phone still has to send (one visit's, or all): the count waiting, and each write the server
  * refused or that conflicts with the office's change, with its reason and a way to discard it.
  */
-export function OutboxPanel({ visitId, placeOf }: { visitId?: string; placeOf?: (visitId: string) => string | undefined }) {
+export function OutboxPanel({ visitId }: { visitId?: string }) {
   const { entries } = useOutbox(visitId);
   const online = useOnline();
   const stopped = entries.filter((e) => e.state !== 'waiting');
@@ -94,7 +95,7 @@ export function OutboxPanel({ visitId, placeOf }: { visitId?: string; placeOf?: 
       {stopped.length > 0 && (
         <ul className="flex flex-col gap-2" aria-label="Changes the server did not accept">
           {stopped.map((e) => (
-            <StoppedEntry key={e.id} e={e} where={placeOf?.(e.write.visitId)} />
+            <StoppedEntry key={e.id} e={e} />
           ))}
         </ul>
       )}

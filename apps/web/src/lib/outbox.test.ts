@@ -124,7 +124,7 @@ describe('the outbox', () => {
       ['close', 'waiting'],
     ]);
     expect(stopped).toEqual(['Choose a cause']);
-    expect(waitingText(box.list())).toBe('1 change waiting to send, 1 not accepted by the server');
+    expect(waitingText(box.list())).toBe('1 change waiting to send, 1 change not accepted by the server');
 
     await box.flush(); // a refused write is not tried again by itself
     expect(server.arrived).toEqual(['v2:state:en_route']);

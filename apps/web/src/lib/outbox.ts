@@ -51,6 +51,8 @@ export interface OutboxEntry {
   attempts: number;
   /** The server's reason (failed, conflict) or the last retryable error (waiting). */
   problem: OutboxProblem | null;
+  /** Where the write was made, in words (the stop's site), to name it even after the visit is gone. */
+  place?: string | undefined;
 }
 
 /** Where the entries are kept: the whole list, read once and written after each change. */
@@ -176,17 +178,18 @@ export class Outbox {
   }
 
   /** Keeps a write (resolves once it is stored) and starts sending. */
-  async add(write: OutboxWrite, id?: string): Promise<OutboxEntry> {
+  async add(write: OutboxWrite, meta: { id?: string; place?: string | undefined } = {}): Promise<OutboxEntry> {
     let entry!: OutboxEntry;
     await this.change((es) => {
       entry = {
-        id: id ?? this.o.newId?.() ?? crypto.randomUUID(),
+        id: meta.id ?? this.o.newId?.() ?? crypto.randomUUID(),
         seq: (es.at(-1)?.seq ?? 0) + 1,
         queuedAt: (this.o.now?.() ?? new Date()).toISOString(),
         write,
         state: 'waiting',
         attempts: 0,
         problem: null,
+        place: meta.place,
       };
       return [...es, entry];
     });
@@ -290,6 +293,6 @@ export function waitingText(entries: readonly OutboxEntry[]): string | null {
   const stopped = entries.length - waiting;
   const parts: string[] = [];
   if (waiting) parts.push(`${waiting} change${waiting === 1 ? '' : 's'} waiting to send`);
-  if (stopped) parts.push(`${stopped} not accepted by the server`);
+  if (stopped) parts.push(`${stopped} change${stopped === 1 ? '' : 's'} not accepted by the server`);
   return parts.length ? parts.join(', ') : null;
 }

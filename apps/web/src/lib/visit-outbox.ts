@@ -270,6 +270,17 @@ export function overlayRestored(qc: QueryClient) {
   if (current?.qc === qc) overlay(qc, current.box);
 }
 
+/** The site of a visit as the kept answers name it (the visit, else a stop on a kept route). */
+function placeOf(qc: QueryClient, visitId: string): string | undefined {
+  const v = qc.getQueryData<VisitDetail>(['visit', visitId]);
+  if (v?.site) return v.site.name;
+  for (const [, d] of qc.getQueriesData<DayResponse>({ queryKey: ['day'] })) {
+    const s = d?.stops.find((x) => x.visitId === visitId);
+    if (s) return s.site.name;
+  }
+  return undefined;
+}
+
 /**
  * Keeps a write, shows it on the screens at once, and sends it when it can. Resolves once it is kept on
  * the phone; `report` hears when it arrives or is refused (while this page lives: after a reload the
@@ -280,7 +291,7 @@ export async function queueWrite(qc: QueryClient, write: OutboxWrite, report?: W
   const id = crypto.randomUUID();
   if (report) current!.reports.set(id, report);
   try {
-    const entry = await box.add(write, id);
+    const entry = await box.add(write, { id, place: placeOf(qc, write.visitId) });
     overlay(qc, box);
     return entry;
   } catch (e) {

@@ -291,7 +291,7 @@ export default function DayPage() {
           <strong className="font-semibold">Kept on this phone, as of {asOf}.</strong> Changes the office made since then show when the connection is back.
         </p>
       )}
-      <OutboxPanel placeOf={(id) => byId.get(id)?.site.name} />
+      <OutboxPanel />
       <nav aria-label="Choose the day" className="mb-4 flex flex-wrap items-center gap-2">
         <Button variant="secondary" onClick={() => setParams({ date: shiftDate(d.date, -1) })}>
           <ChevronLeft className="size-4" aria-hidden="true" /> Previous day
