@@ -8,9 +8,9 @@
  * Then a conflict: offline, the technician marks the next booked stop en route while the dispatcher unbooks
  * that visit; back online the change is refused, told in words, never sent over the office's change, and
  * discarded.
- * Works the first stop still booked on the first day with stops (after the technician journey closed its
- * first stop, the second one); creates no return visit; unbooks one later stop (its work order goes back
- * to the unplaced queue).
+ * Works the first stop still booked from today; creates no return visit; unbooks one later stop and books
+ * its work order again as it was. Runs after the office journeys (file name 50-…): closing a stop of the
+ * week the dispatcher journey drags bookings in made its board drag refuse (seen, cause not found).
  */
 import assert from 'node:assert/strict';
 import { request, type Page } from 'playwright-core';
@@ -178,6 +178,14 @@ export async function run(ctx: JourneyContext): Promise<void> {
   assert.ok(otherId, `the stop links its visit (${otherHref})`);
   // The unbooked visit answers 404 to the phone's change and to its refetch: expected here.
   ctx.allowConsoleError(new RegExp(`status of 404 .*/api/visits/${otherId}`));
+  // The booking as Route knows it, to book the work order again at the end (the journeys after this one
+  // find the technician's week as the demo made it).
+  const dayAnswer = (await (await page.request.get(`${ctx.base}/api/day?date=${conflictDate}`)).json()) as {
+    tech: { id: string };
+    stops: { visitId: string; booking: { startAt: string; endAt: string; fixed: boolean }; workOrder: { id: string } }[];
+  };
+  const otherStop = dayAnswer.stops.find((s) => s.visitId === otherId);
+  assert.ok(otherStop, 'the stop is on the day’s answer');
   await page.context().setOffline(true);
   await page.getByText('Offline.', { exact: false }).first().waitFor();
   await other.getByRole('button', { name: 'En route' }).click();
@@ -206,6 +214,16 @@ export async function run(ctx: JourneyContext): Promise<void> {
     await refused.waitFor({ state: 'detached' });
     await notice(page, 'Discarded: En route. It was not saved.').waitFor();
     ctx.step('back online: the conflict is shown in words, not sent over the office’s change, and discarded');
+
+    // The office books the work order again as it was (overriding, with a reason, any rule the demo's booking broke).
+    const again = { workOrderId: otherStop.workOrder.id, techId: dayAnswer.tech.id, startAt: otherStop.booking.startAt, endAt: otherStop.booking.endAt, fixed: otherStop.booking.fixed };
+    let rebooked = await office.post('/api/bookings', { data: again });
+    if (rebooked.status() === 409) {
+      const rules = ((await rebooked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
+      assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await rebooked.text()})`);
+      rebooked = await office.post('/api/bookings', { data: { ...again, overrideRules: rules, overrideReason: 'Booked again as before after the offline conflict check.' } });
+    }
+    assert.equal(rebooked.status(), 201, `the work order is booked again (${await rebooked.text()})`);
   } finally {
     await office.dispose();
   }
