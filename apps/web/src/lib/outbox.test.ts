@@ -190,6 +190,29 @@ describe('the outbox', () => {
     expect(box.list()).toEqual([]);
   });
 
+  it('loses nothing and sends each entry once when two tabs share the store (each change applies to what the store holds; one send run at a time)', async () => {
+    const store = idbOutboxStore(createStore(`outbox-tabs-${Math.random()}`, 'entries'));
+    const server = fakeServer();
+    server.setOnline(false);
+    // The tabs' lock (the browser's Web Locks in the app): one send run at a time.
+    let lock: Promise<void> = Promise.resolve();
+    const exclusive = (run: () => Promise<void>) => {
+      const next = lock.then(run);
+      lock = next.catch(() => undefined);
+      return next;
+    };
+    const tabA = new Outbox({ store, send: server.send, isOnline: server.isOnline, retryDelay: null, newId: ids, exclusive });
+    const tabB = new Outbox({ store, send: server.send, isOnline: server.isOnline, retryDelay: null, newId: ids, exclusive });
+    await Promise.all([tabA.ready(), tabB.ready()]);
+    await tabA.add(finding('v1', 'f1'));
+    await tabB.add(finding('v1', 'f2')); // tab B never saw f1 in its own list
+    expect((await store.read()).map((e) => (e.write.kind === 'finding' ? e.write.body.id : ''))).toEqual(['f1', 'f2']);
+    server.setOnline(true);
+    await Promise.all([tabA.flush(), tabB.flush()]);
+    expect(server.arrived).toEqual(['v1:finding', 'v1:finding']);
+    expect(await store.read()).toEqual([]);
+  });
+
   it('keeps its entries in IndexedDB, photos (Blobs) included', async () => {
     const store = idbOutboxStore(createStore(`outbox-test-${Math.random()}`, 'entries'));
     const server = fakeServer();

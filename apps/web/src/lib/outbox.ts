@@ -18,7 +18,7 @@
  * failed mutation rather than keeping it with its reason to show and discard, and resumes paused mutations
  * without a per-visit order. This module is small and owns exactly those rules.
  */
-import { createStore, get, set, type UseStore } from 'idb-keyval';
+import { createStore, get, update, type UseStore } from 'idb-keyval';
 import type { CloseVisit, FindingInput, RefrigerantEventInput, SaveReadings, VisitStateChange } from '@coilpath/contract';
 import { ApiError } from './api-client';
 
@@ -55,17 +55,31 @@ export interface OutboxEntry {
   place?: string | undefined;
 }
 
-/** Where the entries are kept: the whole list, read once and written after each change. */
+/**
+ * Where the entries are kept: the whole list. `update` reads, changes and writes it in one step (one
+ * IndexedDB transaction), so two tabs of the app never write over each other's entries.
+ */
 export interface OutboxStore {
   read(): Promise<OutboxEntry[]>;
-  write(entries: OutboxEntry[]): Promise<void>;
+  update(fn: (entries: OutboxEntry[]) => OutboxEntry[]): Promise<OutboxEntry[]>;
 }
 
 /** The store on the phone: IndexedDB database `coilpath-outbox` (idb-keyval keeps one object store per database). */
 export function idbOutboxStore(store: UseStore = createStore('coilpath-outbox', 'entries')): OutboxStore {
   return {
     read: async () => (await get<OutboxEntry[]>('entries', store)) ?? [],
-    write: (entries) => set('entries', entries, store),
+    update: async (fn) => {
+      let out: OutboxEntry[] = [];
+      await update<OutboxEntry[]>(
+        'entries',
+        (kept) => {
+          out = fn(kept ?? []);
+          return out;
+        },
+        store,
+      );
+      return out;
+    },
   };
 }
 
@@ -74,9 +88,9 @@ export function memoryOutboxStore(initial: OutboxEntry[] = []): OutboxStore {
   let kept = structuredClone(initial);
   return {
     read: () => Promise.resolve(structuredClone(kept)),
-    write: (entries) => {
-      kept = structuredClone(entries);
-      return Promise.resolve();
+    update: (fn) => {
+      kept = structuredClone(fn(structuredClone(kept)));
+      return Promise.resolve(structuredClone(kept));
     },
   };
 }
@@ -122,7 +136,15 @@ export interface OutboxOptions {
   retryDelay?: ((n: number) => number) | null;
   now?(): Date;
   newId?(): string;
+  /**
+   * Runs a send run alone across the app's tabs (default: the Web Locks API where the browser has it), so
+   * two tabs never send the same entry at once (it would arrive once anyway: the ids make a resend harmless).
+   */
+  exclusive?(run: () => Promise<void>): Promise<void>;
 }
+
+const webLock = (run: () => Promise<void>): Promise<void> =>
+  typeof navigator !== 'undefined' && navigator.locks ? navigator.locks.request('coilpath-outbox', () => run()).then(() => undefined) : run();
 
 export class Outbox {
   private entries: readonly OutboxEntry[] = [];
@@ -165,13 +187,15 @@ export class Outbox {
     for (const fn of this.listeners) fn();
   }
 
-  /** Runs changes to the list one after another, each written to the store before the next. */
+  /**
+   * Runs changes to the list one after another, each applied to what the store holds (another tab may have
+   * changed it) and written before the next; the page's list is then what the store holds.
+   */
   private change(fn: (entries: readonly OutboxEntry[]) => readonly OutboxEntry[]): Promise<void> {
     const run = this.chain.then(async () => {
       await this.loaded;
-      this.entries = fn(this.entries);
+      this.entries = await this.o.store.update((kept) => [...fn(kept)]);
       this.emit();
-      await this.o.store.write([...this.entries]);
     });
     this.chain = run.catch(() => undefined);
     return run;
@@ -232,39 +256,44 @@ export class Outbox {
     this.flushing = (async () => {
       await this.loaded;
       await this.chain;
-      do {
-        this.again = false;
-        if (this.o.isOnline && !this.o.isOnline()) return;
-        for (let e = this.next(); e; e = this.next()) {
-          let outcome: Outcome;
-          let answer: unknown;
-          try {
-            answer = await this.o.send(e.write);
-            outcome = { kind: 'sent' };
-          } catch (err) {
-            outcome = classify(err, e);
-          }
-          const id = e.id;
-          if (outcome.kind === 'sent') {
-            this.retriesInRow = 0;
-            await this.change((es) => es.filter((x) => x.id !== id));
-            this.o.onSent?.(e, answer);
-          } else if (outcome.kind === 'retry') {
-            const problem = outcome.problem;
-            await this.change((es) => es.map((x) => (x.id === id ? { ...x, attempts: x.attempts + 1, problem } : x)));
-            this.scheduleRetry();
-            return;
-          } else {
-            const stopped: OutboxEntry = { ...e, state: outcome.kind, problem: outcome.problem };
-            await this.change((es) => es.map((x) => (x.id === id ? stopped : x)));
-            this.o.onStopped?.(stopped);
-          }
-        }
-      } while (this.again);
+      await (this.o.exclusive ?? webLock)(() => this.run());
     })().finally(() => {
       this.flushing = null;
     });
     return this.flushing;
+  }
+
+  private async run(): Promise<void> {
+    await this.change((kept) => kept); // what another tab sent or added meanwhile
+    do {
+      this.again = false;
+      if (this.o.isOnline && !this.o.isOnline()) return;
+      for (let e = this.next(); e; e = this.next()) {
+        let outcome: Outcome;
+        let answer: unknown;
+        try {
+          answer = await this.o.send(e.write);
+          outcome = { kind: 'sent' };
+        } catch (err) {
+          outcome = classify(err, e);
+        }
+        const id = e.id;
+        if (outcome.kind === 'sent') {
+          this.retriesInRow = 0;
+          await this.change((es) => es.filter((x) => x.id !== id));
+          this.o.onSent?.(e, answer);
+        } else if (outcome.kind === 'retry') {
+          const problem = outcome.problem;
+          await this.change((es) => es.map((x) => (x.id === id ? { ...x, attempts: x.attempts + 1, problem } : x)));
+          this.scheduleRetry();
+          return;
+        } else {
+          const stopped: OutboxEntry = { ...e, state: outcome.kind, problem: outcome.problem };
+          await this.change((es) => es.map((x) => (x.id === id ? stopped : x)));
+          this.o.onStopped?.(stopped);
+        }
+      }
+    } while (this.again);
   }
 
   private scheduleRetry() {
