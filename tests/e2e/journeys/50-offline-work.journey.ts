@@ -5,10 +5,10 @@
  * banner counts what waits ("5 changes waiting to send"). With the connection back the outbox sends them in
  * order, the count goes, and the API holds each change exactly once (one reading for the circuit, one
  * finding, one en-route and one on-site event, the visit closed as resolved).
- * Then a conflict: offline, the technician marks the next booked stop en route while the dispatcher unbooks
+ * First a conflict: offline, the technician marks the first booked stop en route while the dispatcher unbooks
  * that visit; back online the change is refused, told in words, never sent over the office's change, and
- * discarded.
- * Works the first stop still booked from today; creates no return visit; unbooks one later stop and books
+ * discarded; the office then books the work order again as it was.
+ * Works the first stop still booked from today; creates no return visit; unbooks one stop and books
  * its work order again as it was. Runs after the office journeys (file name 50-…): closing a stop of the
  * week the dispatcher journey drags bookings in made its board drag refuse (seen, cause not found).
  */
@@ -54,6 +54,26 @@ interface VisitDto {
   events: { state: string }[];
 }
 
+/** The first day from `from` with a stop still booked, as the API answers it (not the phone's kept copy). */
+async function firstBooked(ctx: JourneyContext, page: Page, from: string): Promise<{ date: string; visitId: string }> {
+  let date = from;
+  for (let i = 0; i < 14; i++, date = addDays(date, 1)) {
+    const day = (await (await page.request.get(`${ctx.base}/api/day?date=${date}`)).json()) as { stops: { visitId: string; status: string }[] };
+    const stop = day.stops.find((s) => s.status === 'booked');
+    if (stop) return { date, visitId: stop.visitId };
+  }
+  throw new Error(`the demo books the technician a stop within two weeks of ${from}`);
+}
+
+/** Opens Route on the date and waits for the stop's card with its "En route" button. */
+async function openStop(ctx: JourneyContext, page: Page, date: string, visitId: string) {
+  await page.goto(`${ctx.base}/day?date=${date}`);
+  await routeHeading(page).waitFor();
+  const card = page.getByRole('list', { name: 'Stops in route order' }).locator(':scope > li').filter({ has: page.locator(`a[href="/visits/${visitId}"]`) });
+  await card.getByRole('button', { name: 'En route' }).waitFor();
+  return card;
+}
+
 export async function run(ctx: JourneyContext): Promise<void> {
   const page = await ctx.launch(phone);
   // While the network is cut, the page's own refetches fail at the network layer: expected here.
@@ -61,20 +81,75 @@ export async function run(ctx: JourneyContext): Promise<void> {
   await signInThroughForm(ctx, page, 'technician');
   await page.waitForFunction(() => navigator.serviceWorker?.controller != null, undefined, { timeout: 30_000 });
 
-  // The first day from today with a stop still booked, opened online.
+  // ── A conflict: the office unbooks a stop while the phone, offline, marks it en route ──
   const today = dateInZone(ctx.now(), BRANCH_ZONE);
   const stops = page.getByRole('list', { name: 'Stops in route order' });
-  const booked = stops.locator(':scope > li').filter({ has: page.getByRole('button', { name: 'En route' }) });
-  let date = today;
-  for (let i = 0; ; i++) {
-    await page.goto(`${ctx.base}/day?date=${date}`);
-    await routeHeading(page).waitFor();
-    await page.waitForFunction(() => !document.querySelector('[aria-busy="true"]'));
-    if ((await booked.count()) > 0) break;
-    assert.ok(i < 14, 'the demo books the technician within two weeks');
-    date = addDays(date, 1);
+  let conflictDate = today;
+  const conflictFound = await firstBooked(ctx, page, today);
+  conflictDate = conflictFound.date;
+  const other = await openStop(ctx, page, conflictDate, conflictFound.visitId);
+  const otherSite = (await other.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
+  const otherHref = await other.getByRole('link', { name: 'Open visit' }).getAttribute('href');
+  const otherId = /\/visits\/([\w-]+)$/.exec(otherHref ?? '')?.[1];
+  assert.ok(otherId, `the stop links its visit (${otherHref})`);
+  // The unbooked visit answers 404 to the phone's change and to its refetch: expected here.
+  ctx.allowConsoleError(new RegExp(`status of 404 .*/api/visits/${otherId}`));
+  // The booking as Route knows it, to book the work order again at the end (the journeys after this one
+  // find the technician's week as the demo made it).
+  const dayAnswer = (await (await page.request.get(`${ctx.base}/api/day?date=${conflictDate}`)).json()) as {
+    tech: { id: string };
+    stops: { visitId: string; booking: { startAt: string; endAt: string; fixed: boolean }; workOrder: { id: string } }[];
+  };
+  const otherStop = dayAnswer.stops.find((s) => s.visitId === otherId);
+  assert.ok(otherStop, 'the stop is on the day’s answer');
+  await page.context().setOffline(true);
+  await page.getByText('Offline.', { exact: false }).first().waitFor();
+  await other.getByRole('button', { name: 'En route' }).click();
+  await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
+
+  const office = await request.newContext({ baseURL: ctx.base });
+  try {
+    const signedIn = await office.post('/api/auth/sign-in', { data: { email: demo.dispatcher, password: DEMO_PASSWORD } });
+    assert.equal(signedIn.status(), 200, 'the dispatcher signs in');
+    const v = (await (await office.get(`/api/visits/${otherId}`)).json()) as { booking: { id: string } | null };
+    assert.ok(v.booking, 'the visit has a booking');
+    const unbooked = await office.delete(`/api/bookings/${v.booking.id}`);
+    assert.ok(unbooked.ok(), `the dispatcher unbooks the visit (${unbooked.status()})`);
+    ctx.step(`offline: en route at ${otherSite}; meanwhile the dispatcher unbooks that visit`);
+
+    await page.context().setOffline(false);
+    const refused = page.getByRole('list', { name: 'Changes the server did not accept' }).getByRole('listitem').filter({ hasText: otherSite });
+    await refused.waitFor({ timeout: 30_000 });
+    const words = await refused.innerText();
+    assert.match(words, /Not sent — the visit changed at the office: En route/, 'the conflict names the change');
+    assert.match(words, /The office moved this visit to another technician or unbooked it while this phone was offline/, 'the conflict is told in words');
+    await page.getByText('1 change not accepted by the server', { exact: false }).first().waitFor();
+    await ctx.screen(page, 'route-conflict');
+    assert.equal((await office.get(`/api/visits/${otherId}`)).status(), 404, 'the unbooked visit stays unbooked: nothing was sent over it');
+    await refused.getByRole('button', { name: 'Discard' }).click();
+    await refused.waitFor({ state: 'detached' });
+    await notice(page, 'Discarded: En route. It was not saved.').waitFor();
+    ctx.step('back online: the conflict is shown in words, not sent over the office’s change, and discarded');
+
+    // The office books the work order again as it was (overriding, with a reason, any rule the demo's booking broke):
+    // the stop is booked again, for the rest of this journey and the ones after it.
+    const again = { workOrderId: otherStop.workOrder.id, techId: dayAnswer.tech.id, startAt: otherStop.booking.startAt, endAt: otherStop.booking.endAt, fixed: otherStop.booking.fixed };
+    let rebooked = await office.post('/api/bookings', { data: again });
+    if (rebooked.status() === 409) {
+      const rules = ((await rebooked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
+      assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await rebooked.text()})`);
+      rebooked = await office.post('/api/bookings', { data: { ...again, overrideRules: rules, overrideReason: 'Booked again as before after the offline conflict check.' } });
+    }
+    assert.equal(rebooked.status(), 201, `the work order is booked again (${await rebooked.text()})`);
+  } finally {
+    await office.dispose();
   }
-  const stop = booked.first();
+
+  // ── Working offline: the first day from today with a stop still booked, opened online ──
+  let date = today;
+  const found = await firstBooked(ctx, page, today);
+  date = found.date;
+  const stop = await openStop(ctx, page, date, found.visitId);
   const site = (await stop.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
   const href = await stop.getByRole('link', { name: 'Open visit' }).getAttribute('href');
   const visitId = /\/visits\/([\w-]+)$/.exec(href ?? '')?.[1];
@@ -161,71 +236,5 @@ export async function run(ctx: JourneyContext): Promise<void> {
   await stops.locator(':scope > li').filter({ hasText: site }).first().getByText('Closed: Resolved').waitFor();
   ctx.step(`Route shows ${site} closed: resolved`);
 
-  // ── A conflict: the office unbooks a stop while the phone, offline, marks it en route ──
-  let conflictDate = date;
-  for (let i = 0; ; i++) {
-    await page.goto(`${ctx.base}/day?date=${conflictDate}`);
-    await routeHeading(page).waitFor();
-    await page.waitForFunction(() => !document.querySelector('[aria-busy="true"]'));
-    if ((await booked.count()) > 0) break;
-    assert.ok(i < 14, 'the demo books the technician another stop within two weeks');
-    conflictDate = addDays(conflictDate, 1);
-  }
-  const other = booked.first();
-  const otherSite = (await other.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
-  const otherHref = await other.getByRole('link', { name: 'Open visit' }).getAttribute('href');
-  const otherId = /\/visits\/([\w-]+)$/.exec(otherHref ?? '')?.[1];
-  assert.ok(otherId, `the stop links its visit (${otherHref})`);
-  // The unbooked visit answers 404 to the phone's change and to its refetch: expected here.
-  ctx.allowConsoleError(new RegExp(`status of 404 .*/api/visits/${otherId}`));
-  // The booking as Route knows it, to book the work order again at the end (the journeys after this one
-  // find the technician's week as the demo made it).
-  const dayAnswer = (await (await page.request.get(`${ctx.base}/api/day?date=${conflictDate}`)).json()) as {
-    tech: { id: string };
-    stops: { visitId: string; booking: { startAt: string; endAt: string; fixed: boolean }; workOrder: { id: string } }[];
-  };
-  const otherStop = dayAnswer.stops.find((s) => s.visitId === otherId);
-  assert.ok(otherStop, 'the stop is on the day’s answer');
-  await page.context().setOffline(true);
-  await page.getByText('Offline.', { exact: false }).first().waitFor();
-  await other.getByRole('button', { name: 'En route' }).click();
-  await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
-
-  const office = await request.newContext({ baseURL: ctx.base });
-  try {
-    const signedIn = await office.post('/api/auth/sign-in', { data: { email: demo.dispatcher, password: DEMO_PASSWORD } });
-    assert.equal(signedIn.status(), 200, 'the dispatcher signs in');
-    const v = (await (await office.get(`/api/visits/${otherId}`)).json()) as { booking: { id: string } | null };
-    assert.ok(v.booking, 'the visit has a booking');
-    const unbooked = await office.delete(`/api/bookings/${v.booking.id}`);
-    assert.ok(unbooked.ok(), `the dispatcher unbooks the visit (${unbooked.status()})`);
-    ctx.step(`offline: en route at ${otherSite}; meanwhile the dispatcher unbooks that visit`);
-
-    await page.context().setOffline(false);
-    const refused = page.getByRole('list', { name: 'Changes the server did not accept' }).getByRole('listitem').filter({ hasText: otherSite });
-    await refused.waitFor({ timeout: 30_000 });
-    const words = await refused.innerText();
-    assert.match(words, /Not sent — the visit changed at the office: En route/, 'the conflict names the change');
-    assert.match(words, /The office moved this visit to another technician or unbooked it while this phone was offline/, 'the conflict is told in words');
-    await page.getByText('1 change not accepted by the server', { exact: false }).first().waitFor();
-    await ctx.screen(page, 'route-conflict');
-    assert.equal((await office.get(`/api/visits/${otherId}`)).status(), 404, 'the unbooked visit stays unbooked: nothing was sent over it');
-    await refused.getByRole('button', { name: 'Discard' }).click();
-    await refused.waitFor({ state: 'detached' });
-    await notice(page, 'Discarded: En route. It was not saved.').waitFor();
-    ctx.step('back online: the conflict is shown in words, not sent over the office’s change, and discarded');
-
-    // The office books the work order again as it was (overriding, with a reason, any rule the demo's booking broke).
-    const again = { workOrderId: otherStop.workOrder.id, techId: dayAnswer.tech.id, startAt: otherStop.booking.startAt, endAt: otherStop.booking.endAt, fixed: otherStop.booking.fixed };
-    let rebooked = await office.post('/api/bookings', { data: again });
-    if (rebooked.status() === 409) {
-      const rules = ((await rebooked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
-      assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await rebooked.text()})`);
-      rebooked = await office.post('/api/bookings', { data: { ...again, overrideRules: rules, overrideReason: 'Booked again as before after the offline conflict check.' } });
-    }
-    assert.equal(rebooked.status(), 201, `the work order is booked again (${await rebooked.text()})`);
-  } finally {
-    await office.dispose();
-  }
   ctx.expectNoConsoleErrors();
 }

@@ -20,8 +20,9 @@ import { RouteSketch } from './route-sketch';
 import { UnitBriefingView } from './unit-briefing';
 import { CalendarFeedCard } from './calendar-feed';
 
+// Opened online, Route always asks the server again (the office may have changed the day since the phone kept it).
 const dayQuery = (date: string | undefined) =>
-  queryOptions({ queryKey: ['day', date ?? 'today'], queryFn: () => api.get<DayResponse>('/api/day', { date }) });
+  queryOptions({ queryKey: ['day', date ?? 'today'], queryFn: () => api.get<DayResponse>('/api/day', { date }), refetchOnMount: 'always' });
 
 const orderKey = (date: string) => `coilpath.day-order.${date}`;
 
