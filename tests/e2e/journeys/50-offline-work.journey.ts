@@ -84,9 +84,8 @@ export async function run(ctx: JourneyContext): Promise<void> {
   // ── A conflict: the office unbooks a stop while the phone, offline, marks it en route ──
   const today = dateInZone(ctx.now(), BRANCH_ZONE);
   const stops = page.getByRole('list', { name: 'Stops in route order' });
-  let conflictDate = today;
   const conflictFound = await firstBooked(ctx, page, today);
-  conflictDate = conflictFound.date;
+  const conflictDate = conflictFound.date;
   const other = await openStop(ctx, page, conflictDate, conflictFound.visitId);
   const otherSite = (await other.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
   const otherHref = await other.getByRole('link', { name: 'Open visit' }).getAttribute('href');
