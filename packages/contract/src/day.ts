@@ -67,6 +67,8 @@ export interface DayRoute {
 
 export interface DayResponse {
   date: string;
+  /** The technician's next working day after `date` (their working hours; Monday to Friday when none are set): the phone keeps its route too. */
+  nextWorkingDate: string;
   timeZone: string;
   branch: { id: string; name: string };
   tech: { id: string; name: string };

@@ -167,7 +167,9 @@ export const closeVisitSchema = z
   });
 export type CloseVisit = z.input<typeof closeVisitSchema>;
 
+/** The form fields of POST /api/visits/:id/attachments. `id` (made by the client) makes a retried upload idempotent. */
 export const attachmentUploadFieldsSchema = z.object({
+  id: idSchema.optional(),
   kind: attachmentKindSchema.optional(),
 });
 

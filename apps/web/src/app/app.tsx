@@ -4,6 +4,7 @@ import { PersistQueryClientProvider } from '@tanstack/react-query-persist-client
 import { createBrowserRouter, Navigate, RouterProvider, useLocation } from 'react-router-dom';
 import { createQueryClient } from '@/lib/query-client';
 import { persistOptions } from '@/lib/query-persist';
+import { overlayRestored } from '@/lib/visit-outbox';
 import { LoadingState, ErrorState } from '@/components/ui/states';
 import { NoticesProvider } from '@/components/ui/notices';
 import { SignInPage } from '@/features/auth/sign-in-page';
@@ -70,7 +71,7 @@ export function App() {
   );
   // With IndexedDB, what the technician's phone kept is restored before the first query runs.
   return persist ? (
-    <PersistQueryClientProvider client={client} persistOptions={persist}>
+    <PersistQueryClientProvider client={client} persistOptions={persist} onSuccess={() => overlayRestored(client)}>
       {app}
     </PersistQueryClientProvider>
   ) : (

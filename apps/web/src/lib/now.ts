@@ -22,3 +22,8 @@ export function noteServerNow(header: string | null, browserMs: number = Date.no
   if (Number.isNaN(server)) return;
   offsetMs = server - browserMs;
 }
+
+/** An instant the browser's clock recorded (e.g. when an answer was fetched), as the app's clock sees it. */
+export function appTimeOf(browserMs: number): Date {
+  return new Date(browserMs + offsetMs);
+}

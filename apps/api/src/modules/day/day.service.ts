@@ -2,7 +2,7 @@ import { and, asc, eq, gte, inArray, isNull, lt, ne, or } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { addDays, planRoute } from '@coilpath/calc';
-import { weekdays, type DayResponse, type DayStop, type SessionUser } from '@coilpath/contract';
+import { weekdays, type DayResponse, type DayStop, type SessionUser, type WorkingHours } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
@@ -14,6 +14,18 @@ export function startOfDayIn(date: string, timeZone: string, hh = 0, mm = 0): Da
   return new Date(new TZDate(y, m - 1, d, hh, mm, 0, timeZone).getTime());
 }
 
+/**
+ * The first date after `date` the technician works: a weekday with working hours set, or Monday to Friday
+ * when none are set (common practice, no source). Within two weeks, else simply the next date.
+ */
+export function nextWorkingDate(date: string, hours: WorkingHours | null): string {
+  for (let i = 1; i <= 14; i++) {
+    const next = addDays(date, i);
+    const wd = weekdays[new Date(`${next}T12:00:00Z`).getUTCDay()]!;
+    if (hours ? hours[wd] : wd !== 'sat' && wd !== 'sun') return next;
+  }
+  return addDays(date, 1);
+}
 
 /** A non-fixed booking may be reached up to this many minutes before it starts. */
 const LOOSE_EARLY_MINUTES = 30;
@@ -143,6 +155,7 @@ export async function technicianDay(ctx: AppContext, user: SessionUser, date: st
 
   return {
     date: day,
+    nextWorkingDate: nextWorkingDate(day, me.workingHours ?? null),
     timeZone: tz,
     branch: { id: me.branch.id, name: me.branch.name },
     tech: { id: me.id, name: me.name },

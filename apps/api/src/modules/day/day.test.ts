@@ -6,6 +6,7 @@ import { createTestApp, signedInAgent, type TestApp } from '../../testing/harnes
 import { makeSiteWithUnit, makeTwoBranches, makeUser, TEST_PASSWORD } from '../../testing/fixtures';
 import { sites, units, workOrders } from '../../db/schema';
 import { makeBookedVisit } from '../visits/visits.fixtures';
+import { nextWorkingDate } from './day.service';
 
 // 23:00 on 10 March in Chicago (CDT, UTC−5) is already 11 March in UTC.
 const NOW = '2026-03-11T04:00:00Z';
@@ -82,6 +83,15 @@ describe('GET /api/day', () => {
     // Each leg is the arrival minus the previous departure; the legs add up to the route's drive minutes.
     expect(legs).toBeCloseTo(route.driveMinutes, 6);
     expect(route.driveMinutes).toBeGreaterThan(0);
+  });
+
+  it('names the next working day: the technician’s next weekday with hours, Monday to Friday without any', async () => {
+    // 2026-03-13 is a Friday and 2026-03-16 the Monday after (the Gregorian calendar, e.g. `cal 3 2026`).
+    expect((await tech.get('/api/day?date=2026-03-13')).body.nextWorkingDate).toBe('2026-03-16');
+    expect((await tech.get('/api/day?date=2026-03-10')).body.nextWorkingDate).toBe('2026-03-11');
+    expect(nextWorkingDate('2026-03-13', null)).toBe('2026-03-16');
+    const hours = { sun: null, mon: null, tue: null, wed: null, thu: null, fri: null, sat: { start: '08:00', end: '12:00' } };
+    expect(nextWorkingDate('2026-03-10', hours)).toBe('2026-03-14');
   });
 
   it('answers an empty day honestly and refuses a bad date', async () => {

@@ -3,7 +3,7 @@ import { fileTypeFromBuffer } from 'file-type';
 import { attachmentContentTypes, type AttachmentDto, type AttachmentKind, type SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { attachments, units, visits, workOrders } from '../../db/schema';
-import { badRequest, HttpError, notFound } from '../../lib/errors';
+import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
 import { readStoredFile } from '../../storage/storage';
 import { assertVisitReadable, assertVisitWritable, loadReadableUnit, loadVisit } from './access';
 import { attachmentDto } from './dto';
@@ -35,10 +35,18 @@ export async function addAttachment(
   user: SessionUser,
   visitId: string,
   file: { buffer: Buffer; originalname?: string; size: number } | undefined,
-  fields: { kind?: AttachmentKind | undefined; unitId?: string | undefined },
+  fields: { id?: string | undefined; kind?: AttachmentKind | undefined; unitId?: string | undefined },
 ): Promise<AttachmentDto> {
   const v = await loadVisit(ctx.db, visitId);
   assertVisitWritable(user, v);
+  if (fields.id) {
+    // A client-made id seen before answers the stored attachment (a retried upload), never a second copy.
+    const [existing] = await ctx.db.select().from(attachments).where(eq(attachments.id, fields.id)).limit(1);
+    if (existing) {
+      if (existing.visitId !== visitId) throw conflict('id_taken', 'That attachment id belongs to another visit.');
+      return attachmentDto(existing);
+    }
+  }
   if (!file || file.size === 0) {
     throw badRequest('Choose a photo or PDF to attach.', { fields: [{ path: 'file', message: 'No file was sent' }] });
   }
@@ -65,6 +73,7 @@ export async function addAttachment(
       const [a] = await tx
         .insert(attachments)
         .values({
+          ...(fields.id ? { id: fields.id } : {}),
           visitId,
           unitId,
           kind,

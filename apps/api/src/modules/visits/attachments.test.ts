@@ -57,6 +57,19 @@ describe('POST /api/visits/:id/attachments', () => {
     expect(u!.nameplateAttachmentId).toBe(plate.body.attachment.id);
   });
 
+  it('stores an upload sent again with the same client id once (a phone retrying after a lost answer)', async () => {
+    const id = crypto.randomUUID();
+    const first = await tech.post(`/api/visits/${visitId}/attachments`).field('id', id).attach('file', tinyPng, 'coil.png');
+    expect(first.status).toBe(201);
+    expect(first.body.attachment.id).toBe(id);
+    const again = await tech.post(`/api/visits/${visitId}/attachments`).field('id', id).attach('file', tinyPng, 'coil.png');
+    expect(again.status).toBe(201);
+    expect(again.body.attachment.id).toBe(id);
+    expect(await t.ctx.db.select().from(attachments).where(eq(attachments.id, id))).toHaveLength(1);
+    const bad = await tech.post(`/api/visits/${visitId}/attachments`).field('id', 'not-a-uuid').attach('file', tinyPng, 'coil.png');
+    expect(bad.status).toBe(400);
+  });
+
   it('refuses a text file renamed .jpg (415)', async () => {
     const before = await t.ctx.db.select().from(attachments);
     const res = await tech

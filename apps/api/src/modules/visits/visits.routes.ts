@@ -69,7 +69,7 @@ export function visitsRoutes(ctx: AppContext): Router {
     endpoint(
       { params: idParams, body: attachmentUploadFieldsSchema.extend({ unitId: idSchema.optional() }), status: 201 },
       async ({ user, params, body, req }) => ({
-        attachment: await addAttachment(ctx, user, params.id, req.file, { kind: body.kind, unitId: body.unitId }),
+        attachment: await addAttachment(ctx, user, params.id, req.file, { id: body.id, kind: body.kind, unitId: body.unitId }),
       }),
     ),
   );

@@ -12,13 +12,17 @@ import { api } from '@/lib/api-client';
 import { formatInZone, formatMinutes, todayInZone, viewerZoneDiffers, zoneAbbreviation } from '@/lib/format';
 import { useBranch } from '@/lib/branch';
 import { StateButton } from '@/components/visit-state-button';
-import { briefingQuery } from '@/lib/visit-queries';
+import { OutboxPanel } from '@/components/outbox-panel';
+import { briefingQuery, unitFileQuery, visitQuery } from '@/lib/visit-queries';
+import { useOnline } from '@/lib/online';
+import { appTimeOf } from '@/lib/now';
 import { RouteSketch } from './route-sketch';
 import { UnitBriefingView } from './unit-briefing';
 import { CalendarFeedCard } from './calendar-feed';
 
+// Opened online, Route always asks the server again (the office may have changed the day since the phone kept it).
 const dayQuery = (date: string | undefined) =>
-  queryOptions({ queryKey: ['day', date ?? 'today'], queryFn: () => api.get<DayResponse>('/api/day', { date }) });
+  queryOptions({ queryKey: ['day', date ?? 'today'], queryFn: () => api.get<DayResponse>('/api/day', { date }), refetchOnMount: 'always' });
 
 const orderKey = (date: string) => `coilpath.day-order.${date}`;
 
@@ -196,11 +200,28 @@ export default function DayPage() {
   const day = q.data;
   const [manualOrder, setManualOrder] = useManualOrder(day);
 
-  // Fetch every unit briefing now, while there is a connection; they stay cached for the roof.
+  // Kept for the day: while there is a connection, fetch every stop's visit, unit briefing and unit file, and
+  // the next working day's route with its stops' too; the phone keeps them (lib/query-persist.ts) for the roof.
+  const online = useOnline();
   useEffect(() => {
-    if (!day) return;
-    for (const s of day.stops) for (const u of s.units) void qc.prefetchQuery(briefingQuery(u.id));
-  }, [day, qc]);
+    if (!day || !online) return;
+    const keepUnits = (d: DayResponse) => {
+      for (const s of d.stops) {
+        void qc.prefetchQuery(visitQuery(s.visitId));
+        for (const u of s.units) {
+          void qc.prefetchQuery(briefingQuery(u.id));
+          void qc.prefetchQuery(unitFileQuery(u.id));
+        }
+      }
+    };
+    keepUnits(day);
+    if (day.nextWorkingDate) {
+      void qc.prefetchQuery(dayQuery(day.nextWorkingDate)).then(() => {
+        const next = qc.getQueryData(dayQuery(day.nextWorkingDate).queryKey);
+        if (next) keepUnits(next);
+      });
+    }
+  }, [day, online, qc]);
 
   const route = useMemo(() => {
     if (!day) return null;
@@ -236,6 +257,9 @@ export default function DayPage() {
   const arrivals = new Map(route!.arrivals.map((a) => [a.id, a]));
   const next = ordered.find((s) => s.status !== 'closed');
   const dateLabel = formatInZone(`${d.date}T12:00:00Z`, 'UTC', 'EEEE d MMMM yyyy');
+  // Offline, the route shows what the phone kept: say when it was fetched ("as of 06:42", the branch's time).
+  const fetchedAt = q.dataUpdatedAt ? appTimeOf(q.dataUpdatedAt) : null;
+  const asOf = fetchedAt ? formatInZone(fetchedAt, tz, todayInZone(tz, fetchedAt) === today ? 'HH:mm' : 'EEE d MMM, HH:mm') : null;
 
   const move = (index: number, dir: -1 | 1) => {
     const ids = ordered.map((s) => s.visitId);
@@ -262,6 +286,12 @@ export default function DayPage() {
           ) : undefined
         }
       />
+      {!online && asOf && (
+        <p role="status" className="mb-4 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm">
+          <strong className="font-semibold">Kept on this phone, as of {asOf}.</strong> Changes the office made since then show when the connection is back.
+        </p>
+      )}
+      <OutboxPanel />
       <nav aria-label="Choose the day" className="mb-4 flex flex-wrap items-center gap-2">
         <Button variant="secondary" onClick={() => setParams({ date: shiftDate(d.date, -1) })}>
           <ChevronLeft className="size-4" aria-hidden="true" /> Previous day

@@ -14,7 +14,6 @@ import {
   visitOutcomeLabels,
   workOrderKindLabels,
   workOrderStateLabels,
-  type UnitFile,
   type UnitSearchResult,
 } from '@coilpath/contract';
 import { useBranch } from '@/lib/branch';
@@ -30,9 +29,8 @@ import { ReadingsTable } from './readings-table';
 import { UnitTable } from './unit-table';
 import { RefrigerantRecordCard } from './refrigerant-record';
 import { appNow } from '@/lib/now';
+import { unitFileQuery } from '@/lib/visit-queries';
 
-const unitFileQuery = (id: string) =>
-  queryOptions({ queryKey: ['units', 'file', id], queryFn: () => api.get<UnitFile>(`/api/units/${id}/file`) });
 const unitSearchQuery = (q: string, branchId: string | undefined) =>
   queryOptions({ queryKey: ['units', 'search', q, branchId], queryFn: () => api.get<UnitSearchResult>('/api/unit-file', { q, branchId }) });
 

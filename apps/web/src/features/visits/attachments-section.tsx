@@ -1,33 +1,39 @@
 import { useRef, useState } from 'react';
 import { Camera, Paperclip } from 'lucide-react';
-import type { VisitDetail } from '@coilpath/contract';
+import { onlineManager, useQueryClient } from '@tanstack/react-query';
+import type { AttachmentDto, VisitDetail } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SelectField } from '@/components/ui/field';
-import { Card } from '@/components/ui/page';
+import { Badge, Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
-import { SaveStatus } from './save-status';
-import { useUpload } from './visit-api';
+import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import { AttachmentThumb } from '@/components/attachment-thumb';
 
 export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
   const notify = useNotify();
-  const upload = useUpload(visit.id);
+  const qc = useQueryClient();
+  const { entries } = useOutbox(visit.id);
   const [kind, setKind] = useState<'photo' | 'nameplate' | 'document'>('photo');
   const camera = useRef<HTMLInputElement>(null);
   const files = useRef<HTMLInputElement>(null);
-  const [last, setLast] = useState<{ file: File; kind: typeof kind } | null>(null);
+  const waiting = entries.flatMap((e) => (e.state === 'waiting' && e.write.kind === 'attachment' ? [e.write] : []));
 
-  const send = (file: File, k: typeof kind) => {
-    setLast({ file, kind: k });
-    upload.mutate(
-      { file, kind: k },
+  // Through the outbox: the file is kept on the phone (IndexedDB) and sent in order, once (its client id).
+  const send = (file: File, k: typeof kind) =>
+    queueWrite(
+      qc,
+      { kind: 'attachment', visitId: visit.id, id: crypto.randomUUID(), attachKind: k, file, fileName: file.name },
       {
-        onSuccess: (r) => notify(`Attached ${r.attachment.displayName}.`),
-        onError: (e) => notify(`Not attached: ${errorMessage(e)}`, 'alarm'),
+        sent: (r) => notify(`Attached ${(r as { attachment: AttachmentDto }).attachment.displayName}.`),
+        stopped: (e) => notify(`Not attached: ${e.problem?.message ?? 'refused'}`, 'alarm'),
       },
+    ).then(
+      () => {
+        if (!onlineManager.isOnline()) notify(`${file.name} kept on this phone; it is sent when the connection is back.`);
+      },
+      (e: unknown) => notify(`Not attached: ${errorMessage(e)}`, 'alarm'),
     );
-  };
   const onPick = (e: React.ChangeEvent<HTMLInputElement>) => {
     const f = e.target.files?.[0];
     e.target.value = '';
@@ -36,12 +42,21 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
       notify(`${f.name} is larger than 15 MB; take a smaller photo or split the document.`, 'alarm');
       return;
     }
-    send(f, kind === 'document' && f.type.startsWith('image/') ? 'photo' : kind);
+    void send(f, kind === 'document' && f.type.startsWith('image/') ? 'photo' : kind);
   };
 
   return (
     <Card title="Photos and documents">
-      {visit.attachments.length === 0 ? (
+      {waiting.length > 0 && (
+        <ul className="mb-3 flex flex-col gap-1 text-sm" aria-label="Files waiting to send">
+          {waiting.map((w) => (
+            <li key={w.id}>
+              {w.fileName} <Badge tone="watch">Waiting to send</Badge>
+            </li>
+          ))}
+        </ul>
+      )}
+      {visit.attachments.length === 0 && waiting.length === 0 ? (
         <p className="mb-3 text-sm text-slate">No photos yet. Photograph the nameplate, the wiring and what you found; PDFs (reports, quotes) can be attached too.</p>
       ) : (
         <ul className="mb-3 flex flex-wrap gap-3">
@@ -62,10 +77,10 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
             </SelectField>
           </div>
           <div className="flex flex-wrap gap-2">
-            <Button size="lg" variant="secondary" onClick={() => camera.current?.click()} busy={upload.isPending}>
+            <Button size="lg" variant="secondary" onClick={() => camera.current?.click()}>
               <Camera className="size-5" aria-hidden="true" /> Take photo
             </Button>
-            <Button size="lg" variant="secondary" onClick={() => files.current?.click()} busy={upload.isPending}>
+            <Button size="lg" variant="secondary" onClick={() => files.current?.click()}>
               <Paperclip className="size-5" aria-hidden="true" /> Choose file
             </Button>
           </div>
@@ -79,16 +94,6 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
             onChange={onPick}
           />
           <p className="text-xs text-slate">JPEG, PNG, WebP, HEIC or PDF, up to 15 MB each.</p>
-          {(upload.isPending || upload.isError) && (
-            <SaveStatus
-              pending={upload.isPending}
-              failureCount={upload.failureCount}
-              paused={upload.isPaused}
-              error={upload.error}
-              dirty
-              onRetry={last ? () => send(last.file, last.kind) : undefined}
-            />
-          )}
         </div>
       )}
     </Card>

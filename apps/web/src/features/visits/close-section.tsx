@@ -1,4 +1,5 @@
 import { useState } from 'react';
+import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
 import {
@@ -17,9 +18,10 @@ import { Button } from '@/components/ui/button';
 import { TextAreaField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
-import { ApiError, errorMessage } from '@/lib/api-client';
+import { errorMessage } from '@/lib/api-client';
+import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import { formatInZone } from '@/lib/format';
-import { useCloseVisit, useResendSummary } from './visit-api';
+import { useResendSummary } from './visit-api';
 
 const outcomeHelp: Record<VisitOutcome, string> = {
   resolved: 'Fixed; nothing more is needed.',
@@ -49,7 +51,9 @@ function SummaryLine({ s, onResend, busy }: { s: SummaryMailResult; onResend(): 
 
 export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: boolean }) {
   const notify = useNotify();
-  const close = useCloseVisit(visit.id);
+  const qc = useQueryClient();
+  const { entries } = useOutbox(visit.id);
+  const closeWaiting = entries.some((e) => e.write.kind === 'close' && e.state === 'waiting');
   const resend = useResendSummary(visit.id);
   const [outcome, setOutcome] = useState<VisitOutcome | ''>('');
   const [needs, setNeeds] = useState<ReturnNeed[]>([]);
@@ -58,6 +62,17 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   const [error, setError] = useState<string | null>(null);
   const [result, setResult] = useState<CloseVisitResult | null>(null);
   const [summary, setSummary] = useState<SummaryMailResult | null>(null);
+
+  // The server's answer to the close-out once it arrived (return visit, summary e-mail).
+  const arrived = (answer: unknown) => {
+    const r = answer as CloseVisitResult | undefined;
+    if (!r?.visit) return; // a close-out found done on a retry: the visit's own answer says how it closed
+    setResult(r);
+    notify(
+      `Visit closed as ${visitOutcomeLabels[r.visit.outcome ?? 'resolved'].toLowerCase()}.${r.returnWorkOrder ? (r.returnWorkOrder.joined ? ` Added to the open return visit WO-${r.returnWorkOrder.number}.` : ` Return visit WO-${r.returnWorkOrder.number} created.`) : ''}${r.summary.sent ? ` Summary sent to ${r.summary.to}.` : ' The summary e-mail was not sent.'}`,
+      r.summary.sent ? 'ok' : 'alarm',
+    );
+  };
 
   const doResend = () =>
     resend.mutate(undefined, {
@@ -85,7 +100,12 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
                 : `Return visit WO-${result.returnWorkOrder.number} is in the unplaced queue for the office to book.`}
             </p>
           )}
-          {s ? (
+          {closeWaiting ? (
+            <p role="status" className="rounded-md border border-watch-base/40 bg-watch-tint p-3">
+              The close-out is kept on this phone and waits to send, after the changes made before it. The service summary goes to the site contact
+              once it arrives.
+            </p>
+          ) : s ? (
             <SummaryLine s={s} onResend={doResend} busy={resend.isPending} />
           ) : visit.summarySentAt ? (
             <p className="inline-flex items-center gap-1 text-ok">
@@ -111,20 +131,16 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
     setError(null);
     if (!outcome) return setError('Choose the outcome of the visit.');
     if (outcome === 'needs_return' && needs.length === 0) return setError('Say what the return visit needs.');
-    close.mutate(
-      { outcome, returnNeeds: outcome === 'needs_return' ? needs : [], returnNotes: returnNotes.trim() || null, notes: notes.trim() || null },
-      {
-        onSuccess: (r) => {
-          setResult(r);
-          notify(
-            `Visit closed as ${visitOutcomeLabels[r.visit.outcome ?? 'resolved'].toLowerCase()}.${r.returnWorkOrder ? (r.returnWorkOrder.joined ? ` Added to the open return visit WO-${r.returnWorkOrder.number}.` : ` Return visit WO-${r.returnWorkOrder.number} created.`) : ''}${r.summary.sent ? ` Summary sent to ${r.summary.to}.` : ' The summary e-mail was not sent.'}`,
-            r.summary.sent ? 'ok' : 'alarm',
-          );
-        },
-        onError: (err) => {
-          setError(err instanceof ApiError ? err.message : errorMessage(err));
-        },
+    // Through the outbox: closed on this phone at once, sent after the visit's earlier changes.
+    queueWrite(qc, {
+      kind: 'close',
+      visitId: visit.id,
+      body: { outcome, returnNeeds: outcome === 'needs_return' ? needs : [], returnNotes: returnNotes.trim() || null, notes: notes.trim() || null },
+    }, { sent: arrived, stopped: (e) => notify(`Visit not closed: ${e.problem?.message ?? 'refused'}`, 'alarm') }).then(
+      () => {
+        if (!onlineManager.isOnline()) notify('Visit closed on this phone; the close-out is sent when the connection is back.');
       },
+      (err: unknown) => setError(errorMessage(err)),
     );
   };
 
@@ -178,7 +194,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
             {error}
           </p>
         )}
-        <Button type="submit" size="lg" busy={close.isPending} disabled={notOnSite || unsaved}>
+        <Button type="submit" size="lg" disabled={notOnSite || unsaved}>
           Close visit
         </Button>
         <p className="text-xs text-slate">Closing sends the service summary with a PDF copy to the site contact.</p>

@@ -1,5 +1,6 @@
 import { useEffect, useEffectEvent, useRef } from 'react';
 import { useForm } from 'react-hook-form';
+import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
 import { causeCodeLabels, causeCodes, causeOriginLabels, causeOrigins, findingInputSchema, type FindingInput, type VisitDetail } from '@coilpath/contract';
@@ -8,10 +9,8 @@ import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { Badge, Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
+import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import type { VisitDraft } from './draft';
-import { SaveStatus } from './save-status';
-import { isRetryable } from '@/lib/visit-queries';
-import { useAddFinding } from './visit-api';
 
 /** The form's own shape: selects and text give strings; the contract schema checks the result. */
 const formSchema = z.object({
@@ -39,7 +38,8 @@ const toInput = (v: z.output<typeof formSchema>, id: string): FindingInput & { i
 
 export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; draft: VisitDraft; update(fn: (d: VisitDraft) => VisitDraft): void }) {
   const notify = useNotify();
-  const add = useAddFinding(visit.id);
+  const qc = useQueryClient();
+  const { entries } = useOutbox(visit.id);
   const circuits = [...new Set(visit.units.flatMap((u) => u.circuits.map((c) => c.number)))].sort((a, b) => a - b);
   const form = useForm<FormValues>({
     resolver: zodResolver(formSchema),
@@ -47,55 +47,59 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
   });
   const unitTag = (id: string | null | undefined) => visit.units.find((u) => u.id === id)?.tag;
 
+  // Through the outbox: shown at once, kept on the phone, sent in order once (its id makes a resend harmless).
   const send = (f: FindingInput & { id: string }) =>
-    add.mutate(f, {
-      onSuccess: () => {
-        update((d) => ({ ...d, findings: d.findings.filter((x) => x.id !== f.id) }));
-        notify(`Finding saved: ${causeCodeLabels[f.causeCode]}.`);
+    queueWrite(
+      qc,
+      { kind: 'finding', visitId: visit.id, body: f },
+      {
+        sent: () => notify(`Finding saved: ${causeCodeLabels[f.causeCode]}.`),
+        stopped: (e) => notify(`Finding not saved: ${e.problem?.message ?? 'refused'}`, 'alarm'),
       },
-      onError: (e) => {
-        // A refusal (4xx) will not succeed on retry: drop it from the queue and say why.
-        if (!isRetryable(e)) update((d) => ({ ...d, findings: d.findings.filter((x) => x.id !== f.id) }));
-        notify(`Finding not saved: ${errorMessage(e)}`, 'alarm');
+    ).then(
+      () => {
+        if (!onlineManager.isOnline()) notify(`Finding kept on this phone: ${causeCodeLabels[f.causeCode]}. It is sent when the connection is back.`);
       },
-    });
+      (e: unknown) => notify(`Finding not kept: ${errorMessage(e)}`, 'alarm'),
+    );
 
-  // Findings queued on this phone (a reload, or saved while offline) are sent again on open.
-  // Sends what was queued when the effect runs, with the draft and sender of that render.
-  const resendQueued = useEffectEvent(() => {
-    for (const f of draft.findings) send(f);
+  // Findings a phone queued in its visit draft before the outbox existed move to the outbox once on site.
+  const moveQueued = useEffectEvent(() => {
+    const queued = draft.findings;
+    if (!queued.length) return;
+    update((d) => ({ ...d, findings: [] }));
+    for (const f of queued) void send(f);
   });
-  const resent = useRef(false);
+  const moved = useRef(false);
   useEffect(() => {
-    // Only on site: the API takes findings from then on (kept queued until the technician is there).
-    if (resent.current || !visit.canRecord) return;
-    resent.current = true;
-    resendQueued();
+    if (moved.current || !visit.canRecord) return;
+    moved.current = true;
+    moveQueued();
   }, [visit.canRecord]);
 
   const onSubmit = form.handleSubmit((v) => {
     const f = toInput(formSchema.parse(v), crypto.randomUUID());
-    update((d) => ({ ...d, findings: [...d.findings, f] }));
     form.reset({ ...form.getValues(), alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '' });
-    send(f);
+    void send(f);
   });
 
-  const saved = visit.findings;
-  const pending = draft.findings.filter((p) => !saved.some((s) => s.id === p.id));
+  const waitingIds = new Set(entries.filter((e) => e.state === 'waiting' && e.write.kind === 'finding').map((e) => (e.write.kind === 'finding' ? e.write.body.id : '')));
+  const saved = visit.findings.filter((f) => !draft.findings.some((p) => p.id === f.id));
+  const pending = draft.findings;
   return (
     <Card title="Findings">
       {saved.length + pending.length === 0 ? (
         <p className="mb-3 text-sm text-slate">No findings yet. Record what caused the problem and where it came from.</p>
       ) : (
         <ul className="mb-4 flex flex-col gap-2">
-          {[...saved.map((f) => ({ f, isPending: false })), ...pending.map((f) => ({ f, isPending: true }))].map(({ f, isPending }) => (
+          {[...saved.map((f) => ({ f, isPending: waitingIds.has(f.id) })), ...pending.map((f) => ({ f, isPending: true }))].map(({ f, isPending }) => (
             <li key={f.id} className="rounded-md border border-slate-line p-3 text-sm">
               <div className="flex flex-wrap items-center gap-2">
                 <strong>{causeCodeLabels[f.causeCode]}</strong>
                 <Badge>{causeOriginLabels[f.origin]}</Badge>
                 {f.alarmCode && <Badge tone="info">Alarm {f.alarmCode}</Badge>}
                 {unitTag(f.unitId) && visit.units.length > 1 && <Badge>{unitTag(f.unitId)}</Badge>}
-                {isPending && <Badge tone="watch">Not saved yet</Badge>}
+                {isPending && <Badge tone="watch">Waiting to send</Badge>}
               </div>
               {(f.reportedCircuit != null || f.actualCircuit != null) && (
                 <p className="mt-1">
@@ -109,18 +113,6 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
             </li>
           ))}
         </ul>
-      )}
-      {pending.length > 0 && (
-        <div className="mb-3">
-          <SaveStatus
-            pending={add.isPending}
-            failureCount={add.failureCount}
-            paused={add.isPaused}
-            error={add.error}
-            dirty
-            onRetry={() => pending.forEach(send)}
-          />
-        </div>
       )}
       {visit.canRecord && (
         <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">

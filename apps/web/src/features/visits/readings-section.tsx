@@ -1,4 +1,5 @@
 import { useMemo } from 'react';
+import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { AlertTriangle, CheckCircle2 } from 'lucide-react';
 import { elevationNote, measureSymbol, readingUnitsBySystem, type ReadingUnits, type VisitDetail, type VisitUnitDto } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
@@ -19,7 +20,8 @@ import {
   toggleSign,
   type ReadingField,
 } from './reading-units';
-import { useSaveReadings } from './visit-api';
+import { queueWrite, useOutbox } from '@/lib/visit-outbox';
+import { useOnline } from '@/lib/online';
 import { appNow } from '@/lib/now';
 
 function NumberInput({
@@ -123,7 +125,10 @@ export function ReadingsSection({
   update(fn: (d: VisitDraft) => VisitDraft): void;
 }) {
   const notify = useNotify();
-  const save = useSaveReadings(visit.id);
+  const qc = useQueryClient();
+  const online = useOnline();
+  const { entries } = useOutbox(visit.id);
+  const readingsWaiting = entries.some((e) => e.state === 'waiting' && e.write.kind === 'readings');
   const multi = visit.units.length > 1;
   const units = readingUnitsBySystem[visit.branch.unitSystem];
   const byCircuit = useMemo(() => new Map(visit.readings.map((r) => [r.circuitId, r])), [visit.readings]);
@@ -157,13 +162,19 @@ export function ReadingsSection({
       return;
     }
     const body = form.body;
-    save.mutate(body, {
-      onSuccess: () => {
+    const count = `${body.readings.length} circuit${body.readings.length === 1 ? '' : 's'}`;
+    // Through the outbox: the values show as saved on this phone at once and are sent in order (a resend replaces, never doubles).
+    queueWrite(
+      qc,
+      { kind: 'readings', visitId: visit.id, body },
+      { sent: () => notify(`Readings saved for ${count}.`), stopped: (e) => notify(`Readings not saved: ${e.problem?.message ?? 'refused'}`, 'alarm') },
+    ).then(
+      () => {
         update((d) => ({ ...d, readings: {}, readingsUnits: undefined, readingsDirty: false, savedAt: appNow().toISOString() }));
-        notify(`Readings saved for ${body.readings.length} circuit${body.readings.length === 1 ? '' : 's'}.`);
+        if (!onlineManager.isOnline()) notify(`Readings for ${count} kept on this phone; they are sent when the connection is back.`);
       },
-      onError: (e) => notify(`Readings not saved: ${errorMessage(e)}`, 'alarm'),
-    });
+      (e: unknown) => notify(`Readings not kept: ${errorMessage(e)}`, 'alarm'),
+    );
   };
 
   const circuitsCount = visit.units.reduce((n, u) => n + u.circuits.length, 0);
@@ -238,15 +249,14 @@ export function ReadingsSection({
         {visit.canRecord && circuitsCount > 0 && (
           <div className="flex flex-col gap-2 sm:flex-row sm:items-center sm:justify-between">
             <SaveStatus
-              pending={save.isPending}
-              failureCount={save.failureCount}
-              paused={save.isPaused}
-              error={save.error}
+              pending={readingsWaiting && online}
+              failureCount={0}
+              paused={readingsWaiting && !online}
+              error={null}
               dirty={draft.readingsDirty}
               savedText={visit.readings.length ? 'Readings saved' : 'No readings yet'}
-              onRetry={submit}
             />
-            <Button size="lg" onClick={submit} busy={save.isPending}>
+            <Button size="lg" onClick={submit}>
               Save readings
             </Button>
           </div>

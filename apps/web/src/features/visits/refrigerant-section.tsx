@@ -1,22 +1,20 @@
 import { useEffect, useEffectEvent, useRef, useState } from 'react';
 import { AlertTriangle } from 'lucide-react';
 import { listRefrigerants } from '@coilpath/calc';
-import { refrigerantEventReasonLabels, refrigerantEventReasons, type RefrigerantEventReason, type VisitDetail } from '@coilpath/contract';
+import { refrigerantEventReasonLabels, refrigerantEventReasons, type RefrigerantEventReason, type RefrigerantEventResult, type VisitDetail } from '@coilpath/contract';
+import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
-import { ApiError, errorMessage } from '@/lib/api-client';
+import { errorMessage } from '@/lib/api-client';
+import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import type { PendingRefrigerant, VisitDraft } from './draft';
-import { SaveStatus } from './save-status';
-import { isRetryable } from '@/lib/visit-queries';
-import { useAddRefrigerant } from './visit-api';
 
 const refrigerants = listRefrigerants();
 
 export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetail; draft: VisitDraft; update(fn: (d: VisitDraft) => VisitDraft): void }) {
   const notify = useNotify();
-  const add = useAddRefrigerant(visit.id);
   const first = visit.units[0];
   const [unitId, setUnitId] = useState(first?.id ?? '');
   const unit = visit.units.find((u) => u.id === unitId);
@@ -28,34 +26,44 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [lastResult, setLastResult] = useState<string | null>(null);
 
-  const send = (p: PendingRefrigerant) =>
-    add.mutate(p, {
-      onSuccess: (r) => {
-        update((d) => ({ ...d, refrigerant: d.refrigerant.filter((x) => x.body.id !== p.body.id) }));
-        const rate = r.leakCheck ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.` : '';
-        const text = r.leakCaseOpened && r.leakCase
-          ? `Refrigerant saved.${rate} A leak case is open: repair due ${r.leakCase.repairDueDate}. The branch manager sees it on the Watchlist.`
-          : `Refrigerant saved.${rate}`;
-        setLastResult(text);
-        notify(text, r.leakCaseOpened ? 'alarm' : 'ok');
-      },
-      onError: (e) => {
-        if (!isRetryable(e)) update((d) => ({ ...d, refrigerant: d.refrigerant.filter((x) => x.body.id !== p.body.id) }));
-        if (e instanceof ApiError) setErrors(e.fieldErrors);
-        notify(`Refrigerant not saved: ${errorMessage(e)}`, 'alarm');
-      },
-    });
+  const qc = useQueryClient();
+  const { entries } = useOutbox(visit.id);
+  // What the server computed from the event once it arrived (leak rate, a leak case).
+  const arrived = (answer: unknown) => {
+    const r = answer as RefrigerantEventResult;
+    const rate = r.leakCheck ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.` : '';
+    const text = r.leakCaseOpened && r.leakCase
+      ? `Refrigerant saved.${rate} A leak case is open: repair due ${r.leakCase.repairDueDate}. The branch manager sees it on the Watchlist.`
+      : `Refrigerant saved.${rate}`;
+    setLastResult(text);
+    notify(text, r.leakCaseOpened ? 'alarm' : 'ok');
+  };
 
-  // Sends what was queued when the effect runs, with the draft and sender of that render.
-  const resendQueued = useEffectEvent(() => {
-    for (const p of draft.refrigerant) send(p);
+  // Through the outbox: shown at once, kept on the phone, sent in order once (its id makes a resend harmless).
+  const send = (p: PendingRefrigerant) =>
+    queueWrite(
+      qc,
+      { kind: 'refrigerant', visitId: visit.id, unitId: p.unitId, body: p.body },
+      { sent: arrived, stopped: (e) => notify(`Refrigerant not saved: ${e.problem?.message ?? 'refused'}`, 'alarm') },
+    ).then(
+      () => {
+        if (!onlineManager.isOnline()) notify('Refrigerant kept on this phone; it is sent when the connection is back (the leak rate is computed then).');
+      },
+      (e: unknown) => notify(`Refrigerant not kept: ${errorMessage(e)}`, 'alarm'),
+    );
+
+  // Events a phone queued in its visit draft before the outbox existed move to the outbox once on site.
+  const moveQueued = useEffectEvent(() => {
+    const queued = draft.refrigerant;
+    if (!queued.length) return;
+    update((d) => ({ ...d, refrigerant: [] }));
+    for (const p of queued) void send(p);
   });
-  const resent = useRef(false);
+  const moved = useRef(false);
   useEffect(() => {
-    // Only on site: the API takes refrigerant on a visit from then on (kept queued until the technician is there).
-    if (resent.current || !visit.canRecord) return;
-    resent.current = true;
-    resendQueued();
+    if (moved.current || !visit.canRecord) return;
+    moved.current = true;
+    moveQueued();
   }, [visit.canRecord]);
 
   const submit = (e: React.FormEvent) => {
@@ -72,14 +80,14 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
       unitId: unit.id,
       body: { id: crypto.randomUUID(), visitId: visit.id, refrigerant, poundsAdded: a, poundsRecovered: r, reason, cylinderLot: lot.trim() || null },
     };
-    update((d) => ({ ...d, refrigerant: [...d.refrigerant, p] }));
     setAdded('');
     setRecovered('');
     setLot('');
-    send(p);
+    void send(p);
   };
 
   const pending = draft.refrigerant.filter((p) => !visit.refrigerantEvents.some((e) => e.id === p.body.id));
+  const waitingIds = new Set(entries.filter((e) => e.state === 'waiting').map((e) => (e.write.kind === 'refrigerant' ? e.write.body.id : '')));
   const mismatch = unit && refrigerant !== unit.refrigerant;
   return (
     <Card title="Refrigerant">
@@ -94,6 +102,12 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
               <li key={ev.id} className="tabular-nums">
                 {ev.refrigerant}: added {ev.poundsAdded.toFixed(1)} lb, recovered {ev.poundsRecovered.toFixed(1)} lb · {refrigerantEventReasonLabels[ev.reason]}
                 {ev.cylinderLot ? ` · lot ${ev.cylinderLot}` : ''}
+                {waitingIds.has(ev.id) && (
+                  <>
+                    {' '}
+                    <Badge tone="watch">Waiting to send</Badge>
+                  </>
+                )}
               </li>
             ))}
             {pending.map((p) => (
@@ -102,9 +116,6 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
               </li>
             ))}
           </ul>
-        )}
-        {pending.length > 0 && (
-          <SaveStatus pending={add.isPending} failureCount={add.failureCount} paused={add.isPaused} error={add.error} dirty onRetry={() => pending.forEach(send)} />
         )}
         {lastResult && (
           <p role="status" className="rounded-md bg-frost p-2 text-sm">

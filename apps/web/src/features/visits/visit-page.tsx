@@ -13,7 +13,9 @@ import { RefrigerantSection } from './refrigerant-section';
 import { AttachmentsSection } from './attachments-section';
 import { CloseSection } from './close-section';
 import { StateButton } from '@/components/visit-state-button';
-import { currentVisitQuery, visitQuery } from './visit-api';
+import { OutboxPanel } from '@/components/outbox-panel';
+import { currentVisitQuery } from './visit-api';
+import { visitQuery } from '@/lib/visit-queries';
 
 const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
 
@@ -40,8 +42,21 @@ function CurrentVisit() {
 function VisitScreen({ id }: { id: string }) {
   const q = useQuery(visitQuery(id));
   const { draft, update, restored } = useVisitDraft(id);
+  // Offline with nothing kept for this visit: say so, rather than loading until the signal returns.
+  if (q.isPending && q.fetchStatus === 'paused')
+    return (
+      <EmptyState title="This visit is not kept on this device" action={<Link to="/day" className="text-coolant underline">Open Route</Link>}>
+        There is no connection, and this visit was not opened here (or on its Route) while there was one. It loads when the connection is back.
+      </EmptyState>
+    );
   if (q.isPending) return <LoadingState label="Loading the visit…" />;
-  if (q.isError) return <ErrorState error={q.error} onRetry={() => q.refetch()} />;
+  if (q.isError)
+    return (
+      <>
+        <OutboxPanel visitId={id} />
+        <ErrorState error={q.error} onRetry={() => q.refetch()} />
+      </>
+    );
   const v = q.data;
   const tz = v.branch.timeZone;
   return (
@@ -61,6 +76,7 @@ function VisitScreen({ id }: { id: string }) {
           </>
         }
       />
+      <OutboxPanel visitId={id} />
       {restored && hasUnsaved(draft) && (
         <p role="status" className="mb-4 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm">
           Entries from your last session on this phone were restored. They are not saved yet: save them below.
