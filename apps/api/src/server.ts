@@ -19,6 +19,7 @@ import { createLogger } from './lib/logger';
 import { createJobQueue } from './jobs/queue';
 import { warmPasswordRules } from './auth/password-rules';
 import './modules/watchlist/watchlist.jobs';
+import './modules/events/events.jobs';
 
 const env = readEnv();
 const { clock, overridden: clockOverridden } = clockFromEnv(env);

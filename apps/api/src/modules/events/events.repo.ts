@@ -1,0 +1,33 @@
+/** Every query of the live events (`live_events`, written by the triggers of migration 0015). */
+import { and, asc, eq, gt, inArray, sql } from 'drizzle-orm';
+import type { Db } from '../../db/client';
+import { liveEvents } from '../../db/schema';
+
+export type LiveEventRecord = typeof liveEvents.$inferSelect;
+
+export async function findEvent(db: Db, id: number): Promise<LiveEventRecord | undefined> {
+  const [row] = await db.select().from(liveEvents).where(eq(liveEvents.id, id)).limit(1);
+  return row;
+}
+
+/** The rows after `afterId` of `branches` (null: every branch), oldest first, at most `limit`. */
+export async function eventsAfter(db: Db, afterId: number, branches: string[] | null, limit: number): Promise<LiveEventRecord[]> {
+  if (branches?.length === 0) return [];
+  const where = branches ? and(gt(liveEvents.id, afterId), inArray(liveEvents.branchId, branches)) : gt(liveEvents.id, afterId);
+  return db.select().from(liveEvents).where(where).orderBy(asc(liveEvents.id)).limit(limit);
+}
+
+/** The newest id (0 when none): where a screen that sends no `Last-Event-ID` starts. */
+export async function lastEventId(db: Db): Promise<number> {
+  const [row] = await db.select({ id: sql<number>`coalesce(max(${liveEvents.id}), 0)::bigint` }).from(liveEvents);
+  return Number(row?.id ?? 0);
+}
+
+/**
+ * Removes rows written before `olderThan` ago by the database's own clock (rows are stamped with the
+ * database's `now()`, which an overridden application clock does not move). Answers how many.
+ */
+export async function pruneEvents(db: Db, olderThan: string): Promise<number> {
+  const gone = await db.delete(liveEvents).where(sql`${liveEvents.at} < now() - ${olderThan}::interval`).returning({ id: liveEvents.id });
+  return gone.length;
+}
