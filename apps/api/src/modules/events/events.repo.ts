@@ -1,7 +1,7 @@
 /** Every query of the live events (`live_events`, written by the triggers of migration 0015). */
 import { and, asc, eq, gt, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../../db/client';
-import { liveEvents } from '../../db/schema';
+import { endedSessions, liveEvents, users } from '../../db/schema';
 
 export type LiveEventRecord = typeof liveEvents.$inferSelect;
 
@@ -30,4 +30,18 @@ export async function lastEventId(db: Db): Promise<number> {
 export async function pruneEvents(db: Db, olderThan: string): Promise<number> {
   const gone = await db.delete(liveEvents).where(sql`${liveEvents.at} < now() - ${olderThan}::interval`).returning({ id: liveEvents.id });
   return gone.length;
+}
+
+/** What decides whether a session still holds: the person's row and whether the session was signed out. */
+export async function sessionState(db: Db, userId: string, sessionId: string | null) {
+  const [row] = await db
+    .select({
+      active: users.active,
+      sessionVersion: users.sessionVersion,
+      ended: sql<boolean>`exists (select 1 from ${endedSessions} where ${endedSessions.sessionId} = ${sessionId ?? ''})`,
+    })
+    .from(users)
+    .where(eq(users.id, userId))
+    .limit(1);
+  return row;
 }

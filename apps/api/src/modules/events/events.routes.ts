@@ -36,7 +36,7 @@ export function eventsRoutes(ctx: AppContext): Router {
       if (open) res.write(text);
     };
     // A dropped stream is reconnected by the browser after `retry` milliseconds.
-    write('retry: 2000\n: connected\n\n');
+    write('retry: 2000\n\n');
     let close = () => undefined as void;
     const end = () => {
       if (!open) return;
@@ -48,12 +48,14 @@ export function eventsRoutes(ctx: AppContext): Router {
     const keepAlive = setInterval(() => write(': keep-alive\n\n'), keepAliveMs);
     req.on('close', end);
     try {
-      close = await openLiveStream(ctx, user, lastEventId(req), {
+      close = await openLiveStream(ctx, user, req.session?.id ?? null, lastEventId(req), {
         send: (e: LiveEvent) => write(`id: ${e.id}\nevent: ${e.kind}\ndata: ${JSON.stringify(e)}\n\n`),
         mark: (id) => write(`id: ${id}\n\n`),
         drop: end,
       });
       if (!open) close();
+      // Listening (and what was missed sent): from here on nothing is lost.
+      write(': connected\n\n');
     } catch (err) {
       req.log.error({ err }, 'the live events could not be opened');
       end();

@@ -7,7 +7,7 @@ import { liveKindsFor, type LiveEvent, type SessionUser } from '@coilpath/contra
 import type { AppContext } from '../../context';
 import type { Database } from '../../db/client';
 import { branchScope } from '../../auth/middleware';
-import { eventsAfter, findEvent, lastEventId, pruneEvents, type LiveEventRecord } from './events.repo';
+import { eventsAfter, findEvent, lastEventId, pruneEvents, sessionState, type LiveEventRecord } from './events.repo';
 
 /** The one rule of who hears what: within the person's branches, the kinds of their role, a `day` only their own. */
 export function mayHear(user: SessionUser, e: Pick<LiveEventRecord, 'branchId' | 'kind' | 'userId'>): boolean {
@@ -26,8 +26,8 @@ export function toLiveEvent(row: LiveEventRecord): LiveEvent {
 interface Subscriber {
   user: SessionUser;
   send(event: LiveEvent): void;
-  /** The person's row changed or a session of theirs ended: the stream closes and the screen reconnects. */
-  drop(): void;
+  /** The person's row changed or a session of theirs ended (`coilpath_user`): is the stream's session still good? */
+  recheck(): void;
 }
 
 /** One listener per database for this process, fanning out to the connected screens. */
@@ -43,7 +43,7 @@ class LiveHub {
       this.stop.push(await this.database.listen('coilpath_live', (id) => void this.deliver(Number(id))));
       this.stop.push(
         await this.database.listen('coilpath_user', (userId) => {
-          for (const s of this.subscribers) if (s.user.id === userId) s.drop();
+          for (const s of this.subscribers) if (s.user.id === userId) s.recheck();
         }),
       );
     })();
@@ -88,17 +88,30 @@ export interface LiveStream {
  * Opens a person's stream: listens first, then sends what they missed after `lastId` (or, without one, marks
  * the newest id), then the events as they come, each once. Answers a function that closes it.
  */
-export async function openLiveStream(ctx: AppContext, user: SessionUser, lastId: number | undefined, out: LiveStream): Promise<() => void> {
+export async function openLiveStream(
+  ctx: AppContext,
+  user: SessionUser,
+  sessionId: string | null,
+  lastId: number | undefined,
+  out: LiveStream,
+): Promise<() => void> {
   const held: LiveEvent[] = [];
   let replaying = true;
   const replayed = new Set<number>();
+  // The session as it stood when the stream opened (it was just checked): a deactivation, a raised session
+  // version (password reset, sign-out everywhere) or this session's sign-out ends the stream; a sign-in elsewhere does not.
+  const opened = await sessionState(ctx.db, user.id, sessionId);
+  const recheck = async () => {
+    const now = await sessionState(ctx.db, user.id, sessionId).catch(() => undefined);
+    if (!now || !now.active || now.ended || now.sessionVersion !== opened?.sessionVersion) out.drop();
+  };
   const unsubscribe = await hubFor(ctx.database).subscribe({
     user,
     send: (e) => {
       if (replaying) held.push(e);
       else out.send(e);
     },
-    drop: () => out.drop(),
+    recheck: () => void recheck(),
   });
   try {
     if (lastId === undefined) out.mark(await lastEventId(ctx.db));
