@@ -58,3 +58,8 @@ export type LiveEvent =
 export function firstName(name: string): string {
   return name.trim().split(/\s+/)[0] ?? name;
 }
+
+/** What a Roster chip says after someone else changed its booking. */
+export function changedByLabel(name: string): string {
+  return `Changed by ${firstName(name)} just now`;
+}
