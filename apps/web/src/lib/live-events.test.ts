@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { QueryKey } from '@tanstack/react-query';
 import type { LiveEvent } from '@coilpath/contract';
 import { rosterKeys } from '@/features/roster/api';
-import { applyLiveEvent, concerns } from './live-events';
+import { applyLiveEvent, changedByOf, concerns } from './live-events';
 
 const A = '00000000-0000-4000-8000-00000000000a';
 const B = '00000000-0000-4000-8000-00000000000b';
@@ -60,5 +60,26 @@ describe('applyLiveEvent', () => {
     expect(predicates).toHaveLength(1);
     expect(predicates[0]!(keys.bookingsB)).toBe(true);
     expect(predicates[0]!(keys.bookingsA)).toBe(false);
+  });
+});
+
+describe('who changed a booking', () => {
+  const ana = { id: 'u-ana', name: 'Ana Lindqvist' };
+  const priya = { id: 'u-priya', name: 'Priya Venkatesh' };
+  const none = () => undefined;
+
+  it('is noted for a roster change by someone else, not for one’s own, and one’s own clears it', () => {
+    applyLiveEvent(roster(A, { by: ana, bookings: ['bk-7', 'bk-8'] } as Partial<LiveEvent>), priya.id, none);
+    expect(changedByOf('bk-7')).toBe('Ana Lindqvist');
+    expect(changedByOf('bk-8')).toBe('Ana Lindqvist');
+    applyLiveEvent(roster(A, { by: priya, bookings: ['bk-7'] } as Partial<LiveEvent>), priya.id, none);
+    expect(changedByOf('bk-7')).toBeNull();
+    expect(changedByOf('bk-8')).toBe('Ana Lindqvist');
+  });
+
+  it('is not noted without a person (a job, an import) or without the bookings named', () => {
+    applyLiveEvent(roster(A, { by: null, bookings: ['bk-9'] } as Partial<LiveEvent>), priya.id, none);
+    applyLiveEvent(roster(A, { by: ana, bookings: null } as Partial<LiveEvent>), priya.id, none);
+    expect(changedByOf('bk-9')).toBeNull();
   });
 });

@@ -48,6 +48,13 @@ const changedBy = new Map<string, string>();
 const changeListeners = new Set<() => void>();
 const emitChange = () => changeListeners.forEach((l) => l());
 
+/** One's own change of these bookings: whoever changed them before is no longer news. */
+function clearChangedBy(bookingIds: readonly string[]): void {
+  let any = false;
+  for (const id of bookingIds) any = changedBy.delete(id) || any;
+  if (any) emitChange();
+}
+
 /** Notes that `bookingIds` were changed by `name` (someone else); each note goes after `CHANGED_BY_MS`. */
 export function noteChangedBy(bookingIds: readonly string[], name: string): void {
   for (const id of bookingIds) changedBy.set(id, name);
@@ -58,6 +65,11 @@ export function noteChangedBy(bookingIds: readonly string[], name: string): void
   }, CHANGED_BY_MS);
 }
 
+/** Who else just changed this booking (full name), or null. */
+export function changedByOf(bookingId: string): string | null {
+  return changedBy.get(bookingId) ?? null;
+}
+
 /** The name of whoever else just changed this booking, or null (the chip says it with `changedByLabel`). */
 export function useChangedBy(bookingId: string): string | null {
   return useSyncExternalStore(
@@ -65,16 +77,21 @@ export function useChangedBy(bookingId: string): string | null {
       changeListeners.add(listener);
       return () => changeListeners.delete(listener);
     },
-    () => changedBy.get(bookingId) ?? null,
+    () => changedByOf(bookingId),
   );
 }
 
 /* ------------------------------------------------- the stream */
 
-/** What an event does on this screen: invalidate its queries; a roster change by someone else marks its chips. */
+/**
+ * What an event does on this screen: invalidate its queries; a roster change by someone else marks its chips
+ * ("Changed by Ana just now"), one's own clears the marks of the bookings it touched.
+ */
 export function applyLiveEvent(event: LiveEvent, myId: string, invalidate: (predicate: (key: QueryKey) => boolean) => void): void {
   invalidate((key) => concerns(event, key));
-  if (event.kind === 'roster' && event.by && event.by.id !== myId && event.bookings?.length) noteChangedBy(event.bookings, event.by.name);
+  if (event.kind !== 'roster' || !event.by || !event.bookings?.length) return;
+  if (event.by.id === myId) clearChangedBy(event.bookings);
+  else noteChangedBy(event.bookings, event.by.name);
 }
 
 /** After the server refused the stream (signed out, or the server was away too long), try again this much later. */
