@@ -228,10 +228,12 @@ function Chip({
         </span>
       )}
       {changer && (
-        <span className="mt-0.5 block font-medium text-copper-hover" data-testid="chip-changed-by">
+        <>
           <Sep />
-          {changedByLabel(changer)}
-        </span>
+          <span className="mt-0.5 block font-medium text-copper-hover" data-testid="chip-changed-by">
+            {changedByLabel(changer)}
+          </span>
+        </>
       )}
       <span className="sr-only">{chipSuffix(e, today, wide)}</span>
     </button>
