@@ -2,12 +2,14 @@
  * Two dispatchers of one branch, each in their own browser on a desktop (1440×900), both on the Roster's
  * board. The second books a job a couple of weeks ahead; the first drags its chip to the day before. Without
  * a reload, the second's board shows the chip on its new day saying "Changed by Priya just now" (the live
- * events of `GET /api/events`); the first, who moved it, sees no such line on their own chip.
+ * events of `GET /api/events`); the first, who moved it, sees no such line on their own chip. Then a
+ * technician sets off to one of her stops, and both boards show that stop "En route" (this leaves that stop
+ * en route in the demo: a started visit cannot be unbooked).
  */
 import assert from 'node:assert/strict';
 import type { Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
-import { desktop } from '../harness';
+import { desktop, phone } from '../harness';
 import { addDays, dateInZone, weekdayOf } from '../handoff';
 import { DEMO_PASSWORD, demo } from '../support';
 
@@ -16,13 +18,16 @@ export const title = 'Two dispatchers see each other’s moves';
 /** The demo's Chicago branch (apps/api/src/db/seed/catalogue.ts): two dispatchers share its board. */
 const BRANCH_ZONE = 'America/Chicago';
 const SECOND_DISPATCHER = 'dispatch2@coilpath.example';
+/** A Chicago technician other than the one the technician journeys use. */
+const TECHNICIAN = { name: 'Anneke Strand', email: 'anneke.strand@coilpath.example' };
 
-async function signIn(ctx: JourneyContext, page: Page, email: string) {
+async function signIn(ctx: JourneyContext, page: Page, email: string, home = '/roster') {
   await page.goto(`${ctx.base}/sign-in`);
   await page.getByLabel('E-mail').fill(email);
   await page.getByLabel('Password').fill(DEMO_PASSWORD);
   await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.waitForURL((u) => u.pathname === '/roster', { timeout: 15_000 });
+  await page.waitForURL((u) => u.pathname === home, { timeout: 15_000 });
+  if (home !== '/roster') return;
   await page.getByRole('table', { name: /^Technician board/ }).waitFor();
   await page.getByRole('combobox', { name: 'Show' }).selectOption('all');
   ctx.step(`signed in as ${email} → the Roster's board`);
@@ -110,10 +115,38 @@ export async function run(ctx: JourneyContext) {
   ctx.step(`the second board shows WO-${job.number} on ${tuesday}: "${(await mark.innerText()).trim()}", without a reload`);
   await ctx.screen(second, 'roster-changed-by-another');
 
-  // Leave the demo as it was for the journeys after this one.
+  // Leave the demo as it was for the journeys after this one (this booking, at least).
   const unbook = await first.request.delete(`${ctx.base}/api/bookings/${booking.id}`, { headers: { Origin: ctx.base } });
   assert.equal(unbook.status(), 204, `unbooking WO-${job.number}`);
   await chip(second, tuesday).waitFor({ state: 'detached', timeout: 10_000 });
   ctx.step(`unbooked by the first: the chip left the second board too`);
+
+  // ── A technician sets off: the stop's state moves on both boards ──
+  type Row = { id: string; techId: string; startAt: string; visitId: string | null; workOrder: { number: number; state: string } };
+  const techs = ((await (await first.request.get(`${ctx.base}/api/roster/technicians`)).json()) as { technicians: { id: string; name: string }[] }).technicians;
+  const techId = techs.find((t) => t.name === TECHNICIAN.name)?.id;
+  assert.ok(techId, `${TECHNICIAN.name} works in the branch`);
+  const now = ctx.now();
+  const rows = ((await (await first.request.get(`${ctx.base}/api/bookings`, {
+    params: { from: now.toISOString(), to: new Date(now.getTime() + 14 * 86_400_000).toISOString(), techId },
+  })).json()) as { bookings: Row[] }).bookings;
+  const stop = rows.filter((b) => b.workOrder.state === 'booked' && b.visitId).sort((a, b) => a.startAt.localeCompare(b.startAt))[0];
+  assert.ok(stop, `${TECHNICIAN.name} has a stop ahead`);
+  const stopDay = dateInZone(new Date(stop.startAt), BRANCH_ZONE);
+  const stopCell = `board-${techId}-${stopDay}`;
+  for (const page of [first, second]) {
+    await page.getByRole('button', { name: 'Today', exact: true }).click();
+    await showCell(page, stopCell);
+    await page.getByTestId(stopCell).locator(`[data-chip="${stop.id}"]`).waitFor();
+  }
+  const technician = await ctx.launch(phone);
+  await signIn(ctx, technician, TECHNICIAN.email, '/day');
+  const enRoute = await technician.request.patch(`${ctx.base}/api/visits/${stop.visitId}`, { data: { state: 'en_route' }, headers: { Origin: ctx.base } });
+  assert.equal(enRoute.status(), 200, `${TECHNICIAN.name} sets off to WO-${stop.workOrder.number}: ${await enRoute.text()}`);
+  for (const page of [first, second]) {
+    await page.getByTestId(stopCell).locator(`[data-chip="${stop.id}"]`).filter({ hasText: 'En route' }).waitFor({ timeout: 10_000 });
+  }
+  ctx.step(`${TECHNICIAN.name} set off to WO-${stop.workOrder.number} (${stopDay}): both boards say "En route" without a reload`);
+  await ctx.screen(first, 'roster-stop-en-route');
   ctx.expectNoConsoleErrors();
 }
