@@ -1,5 +1,6 @@
 /** Every query of the live events (`live_events`, written by the triggers of migration 0015). */
-import { and, asc, eq, gt, inArray, sql } from 'drizzle-orm';
+import { and, asc, eq, gt, inArray, isNull, or, sql } from 'drizzle-orm';
+import type { LiveEventKind } from '@coilpath/contract';
 import type { Db } from '../../db/client';
 import { endedSessions, liveEvents, users } from '../../db/schema';
 
@@ -10,10 +11,23 @@ export async function findEvent(db: Db, id: number): Promise<LiveEventRecord | u
   return row;
 }
 
-/** The rows after `afterId` of `branches` (null: every branch), oldest first, at most `limit`. */
-export async function eventsAfter(db: Db, afterId: number, branches: string[] | null, limit: number): Promise<LiveEventRecord[]> {
-  if (branches?.length === 0) return [];
-  const where = branches ? and(gt(liveEvents.id, afterId), inArray(liveEvents.branchId, branches)) : gt(liveEvents.id, afterId);
+/**
+ * The rows after `afterId` a person may see, oldest first, at most `limit`: of `scope.branches` (null: every
+ * branch), of `scope.kinds`, addressed to no one or to `scope.userId` (`mayHear` in events.service.ts says the same).
+ */
+export async function eventsAfter(
+  db: Db,
+  afterId: number,
+  scope: { branches: string[] | null; kinds: readonly LiveEventKind[]; userId: string },
+  limit: number,
+): Promise<LiveEventRecord[]> {
+  if (scope.branches?.length === 0 || scope.kinds.length === 0) return [];
+  const where = and(
+    gt(liveEvents.id, afterId),
+    inArray(liveEvents.kind, [...scope.kinds]),
+    or(isNull(liveEvents.userId), eq(liveEvents.userId, scope.userId)),
+    scope.branches ? inArray(liveEvents.branchId, scope.branches) : undefined,
+  );
   return db.select().from(liveEvents).where(where).orderBy(asc(liveEvents.id)).limit(limit);
 }
 

@@ -73,7 +73,7 @@ function hubFor(database: Database): LiveHub {
   return hub;
 }
 
-/** At most this many missed events are sent again on a reconnect (a day's worth for a busy branch). */
+/** At most this many missed events are sent again on a reconnect (more than a busy branch's day). */
 const REPLAY_LIMIT = 2000;
 
 export interface LiveStream {
@@ -116,7 +116,8 @@ export async function openLiveStream(
   try {
     if (lastId === undefined) out.mark(await lastEventId(ctx.db));
     else {
-      for (const row of await eventsAfter(ctx.db, lastId, branchScope(user), REPLAY_LIMIT)) {
+      const scope = { branches: branchScope(user), kinds: liveKindsFor(user.role), userId: user.id };
+      for (const row of await eventsAfter(ctx.db, lastId, scope, REPLAY_LIMIT)) {
         if (!mayHear(user, row)) continue;
         out.send(toLiveEvent(row));
         replayed.add(Number(row.id));
