@@ -52,6 +52,8 @@ export async function sessionState(db: Db, userId: string, sessionId: string | n
     .select({
       active: users.active,
       sessionVersion: users.sessionVersion,
+      role: users.role,
+      branchId: users.branchId,
       ended: sql<boolean>`exists (select 1 from ${endedSessions} where ${endedSessions.sessionId} = ${sessionId ?? ''})`,
     })
     .from(users)

@@ -99,11 +99,14 @@ export async function openLiveStream(
   let replaying = true;
   const replayed = new Set<number>();
   // The session as it stood when the stream opened (it was just checked): a deactivation, a raised session
-  // version (password reset, sign-out everywhere) or this session's sign-out ends the stream; a sign-in elsewhere does not.
+  // version (password reset, sign-out everywhere), this session's sign-out or another role or branch (the scope
+  // the stream was opened with) ends the stream; a sign-in elsewhere does not. The screen reconnects, and is
+  // checked again.
   const opened = await sessionState(ctx.db, user.id, sessionId);
+  const stillGood = (now: typeof opened) =>
+    !!now && now.active && !now.ended && now.sessionVersion === opened?.sessionVersion && now.role === user.role && now.branchId === user.branchId;
   const recheck = async () => {
-    const now = await sessionState(ctx.db, user.id, sessionId).catch(() => undefined);
-    if (!now || !now.active || now.ended || now.sessionVersion !== opened?.sessionVersion) out.drop();
+    if (!stillGood(await sessionState(ctx.db, user.id, sessionId).catch(() => undefined))) out.drop();
   };
   const unsubscribe = await hubFor(ctx.database).subscribe({
     user,
@@ -114,6 +117,10 @@ export async function openLiveStream(
     recheck: () => void recheck(),
   });
   try {
+    if (!stillGood(opened)) {
+      out.drop();
+      return unsubscribe;
+    }
     if (lastId === undefined) out.mark(await lastEventId(ctx.db));
     else {
       const scope = { branches: branchScope(user), kinds: liveKindsFor(user.role), userId: user.id };

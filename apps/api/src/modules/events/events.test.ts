@@ -250,6 +250,19 @@ describe('GET /api/events', () => {
     await s.until(() => s.ended, 'the stream to end');
   });
 
+  it('ends when the person’s role changes or they are deactivated (the screen reconnects with what it may see now)', async () => {
+    const person = await makeUser(t.ctx.db, 'dispatcher', f.b.id);
+    const a = await connect(base, await cookieOf(t.app, person.email));
+    await t.ctx.db.execute(sql`update users set role = 'branch_manager' where id = ${person.id}`);
+    await a.until(() => a.ended, 'the stream to end at the role change');
+    const cookie = await cookieOf(t.app, person.email);
+    const b = await connect(base, cookie);
+    expect(b.status).toBe(200);
+    await t.ctx.db.execute(sql`update users set active = false where id = ${person.id}`);
+    await b.until(() => b.ended, 'the stream to end at the deactivation');
+    expect((await connect(base, cookie)).status).toBe(401);
+  });
+
   it('sends a keep-alive comment at the configured interval', async () => {
     const app = createApp({ ...t.ctx, config: { ...t.ctx.config, liveKeepAliveMs: 20 } });
     const s = await connect(await serve(app), cookies.dispatcherA!);
