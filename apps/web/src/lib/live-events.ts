@@ -78,6 +78,8 @@ export function useChangedBy(bookingId: string): string | null {
       return () => changeListeners.delete(listener);
     },
     () => changedByOf(bookingId),
+    // Rendered outside a browser (tests render to a string): no one has changed anything.
+    () => null,
   );
 }
 
