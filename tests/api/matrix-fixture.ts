@@ -4,6 +4,7 @@
  * `Side` of records (customer, site, unit with two circuits, work order). Sessions are minted
  * directly (no argon2 per call).
  */
+import type { IncomingMessage } from 'node:http';
 import type { Express } from 'express';
 import request from 'supertest';
 import { eq, sql } from 'drizzle-orm';
@@ -139,6 +140,26 @@ export async function sendRequest(
   if (user) req = req.set('Cookie', await sessionCookie(f.ctx, user));
   if (spec.query) req = req.query(spec.query);
   if (spec.headers) req = req.set(spec.headers);
+  if (row.stream) {
+    // An open stream: read up to its first bytes, then hang up (an error answer ends by itself).
+    req = req.buffer(true).parse((response, done) => {
+      const res = response as unknown as IncomingMessage;
+      let text = '';
+      let finished = false;
+      const finish = () => {
+        if (finished) return;
+        finished = true;
+        done(null, (res.statusCode ?? 0) >= 400 ? safeJson(text) : text);
+      };
+      res.setEncoding('utf8');
+      res.once('data', (chunk: string) => {
+        text += chunk;
+        finish();
+        res.destroy();
+      });
+      res.once('end', finish);
+    });
+  }
   let res;
   if (spec.files) {
     for (const [k, v] of Object.entries((spec.body ?? {}) as Record<string, unknown>)) req = req.field(k, typeof v === 'string' ? v : JSON.stringify(v));
@@ -153,4 +174,12 @@ export async function sendRequest(
 /** Calls a row's route as `caller` against `side` with the row's minimal valid request. */
 export async function callRoute(app: Express, f: MatrixFixture, row: RouteRow, caller: Caller, side: Side) {
   return sendRequest(app, f, row, caller, await requestFor(f, row, caller, side));
+}
+
+function safeJson(text: string): unknown {
+  try {
+    return JSON.parse(text);
+  } catch {
+    return text;
+  }
 }

@@ -122,6 +122,11 @@ export interface RouteRow {
   query?: z.ZodType;
   /** Body fields holding free text: SQL and HTML in them must be stored and returned verbatim. */
   textFields?: string[];
+  /**
+   * The answer is a stream that stays open (Server-Sent Events): the request is ended once the status and the
+   * first bytes have arrived.
+   */
+  stream?: boolean;
   /** Skip the bad-input test for this row, saying why. */
   noBadInput?: string;
 }
@@ -1221,6 +1226,13 @@ export const routeTable: RouteRow[] = [
     path: '/api/agreements/:id/plan/apply',
     expect: roles(managers, 200, { scoped: true }),
     request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}/plan/apply` }),
+  },
+  {
+    // Server-Sent Events: the answer never ends, so the matrix reads its status and first bytes and hangs up.
+    method: 'GET',
+    path: '/api/events',
+    expect: signedIn(200),
+    stream: true,
   },
 
   // ── modules landing next: add their rows here (Sites/Team, Roster, Route/Visit, Watchlist/

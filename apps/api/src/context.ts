@@ -35,6 +35,8 @@ export interface AppContext {
      * web app reckons "today" by the server's clock rather than the browser's.
      */
     clockOverridden?: boolean;
+    /** How often `GET /api/events` sends a keep-alive comment (default 25 s; tests pass a short one). */
+    liveKeepAliveMs?: number;
     /** Serve the built web app from this folder when it exists. */
     webDist?: string | undefined;
   };

@@ -17,6 +17,7 @@ import { unitFileRoutes, unitSearchRoutes } from './modules/unit-file/unit-file.
 import { alarmsRoutes, leakCasesRoutes, watchlistRoutes } from './modules/watchlist/watchlist.routes';
 import { agreementsRoutes } from './modules/agreements/agreements.routes';
 import { alarmSourcesRoutes } from './modules/alarm-sources/alarm-sources.routes';
+import { eventsRoutes } from './modules/events/events.routes';
 
 /**
  * Every API module, mounted under `/api`. Modules behind `requireAuth` need a session; each module
@@ -53,5 +54,7 @@ export function apiRoutes(ctx: AppContext): Router {
   api.use('/leak-cases', requireAuth, leakCasesRoutes(ctx));
   api.use('/agreements', requireAuth, agreementsRoutes(ctx));
   api.use('/alarm-sources', requireAuth, alarmSourcesRoutes(ctx));
+  // Server-Sent Events for the signed-in person's screens (modules/events/).
+  api.use('/events', requireAuth, eventsRoutes(ctx));
   return api;
 }

@@ -18,6 +18,7 @@ import { createLogger } from './lib/logger';
 import { createJobQueue } from './jobs/queue';
 import { warmPasswordRules } from './auth/password-rules';
 import './modules/watchlist/watchlist.jobs';
+import './modules/events/events.jobs';
 
 const env = readEnv();
 const { clock, overridden: clockOverridden } = clockFromEnv(env);
@@ -88,7 +89,7 @@ server.listen(env.PORT, env.HOST, () => {
   console.log(`Stored files: ${filesWhere}`);
   if (clockOverridden) console.log(`Clock: COILPATH_NOW=${env.COILPATH_NOW} (now ${clock.now().toISOString()})`);
   if (seeded) console.log('Demo data loaded.');
-  if (mode === 'demo') console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example, tech@coilpath.example — password "${DEMO_PASSWORD}"`);
+  if (mode === 'demo') console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example (and dispatch2@), tech@coilpath.example — password "${DEMO_PASSWORD}"`);
   if (setupLink) console.log(`No one has an account yet. The first owner sets their name, e-mail and password once at (valid 24 hours; a restart prints a new link):\n  ${setupLink}`);
   if (demoAccounts.length) console.warn('Warning: this database holds the demo data, whose accounts share a published password. Deactivate them on the Team screen.');
   warmPasswordRules();

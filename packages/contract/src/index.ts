@@ -13,3 +13,4 @@ export * from './unit-file';
 export * from './watchlist';
 export * from './alarm-sources';
 export * from './agreements';
+export * from './events';

@@ -48,6 +48,13 @@ export interface Database {
   local?: LocalChanges;
   /** Raw SQL for maintenance (backups, advisory locks). */
   exec(sql: string): Promise<void>;
+  /**
+   * Hears `pg_notify(channel, payload)` of every commit (this process's and, on PostgreSQL, every other's):
+   * PGlite's own notifications, or one dedicated connection per database on PostgreSQL that LISTENs for all
+   * channels asked for (opened at the first call, reconnected when lost, closed with the database).
+   * Answers a function that stops listening.
+   */
+  listen(channel: string, listener: (payload: string) => void): Promise<() => Promise<void>>;
   close(): Promise<void>;
   pglite?: PGlite;
   pool?: pg.Pool;
@@ -75,6 +82,7 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
     // listener that would crash the process. The pool replaces the connection on the next query.
     pool.on('error', (err) => console.error(`[coilpath] idle database connection lost: ${err.message}`));
     const db = drizzlePg(pool, { schema, casing: 'snake_case' }) as unknown as Db;
+    const listening = pgListener(opts.databaseUrl);
     database = {
       db,
       kind: 'postgres',
@@ -82,7 +90,11 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
       exec: async (s) => {
         await pool.query(s);
       },
-      close: () => pool.end(),
+      listen: listening.listen,
+      close: async () => {
+        await listening.close();
+        await pool.end();
+      },
     };
     if (opts.migrate !== false) {
       // Several API processes may start together: one migrates while the others wait, then find nothing to do.
@@ -107,6 +119,7 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
       exec: async (s) => {
         await client.exec(s);
       },
+      listen: (channel, listener) => client.listen(channel, listener),
       close: () => client.close(),
     };
     if (opts.migrate !== false) {
@@ -115,4 +128,68 @@ export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
     }
   }
   return database;
+}
+
+/**
+ * PostgreSQL: one connection kept aside for LISTEN (a pooled connection cannot hold it). Opened at the first
+ * `listen`; when the server drops it, it is opened again after a second and LISTENs again for every channel
+ * (notifications sent in between are not heard: whoever needs them reads them back from their table).
+ */
+function pgListener(connectionString: string) {
+  const listeners = new Map<string, Set<(payload: string) => void>>();
+  let client: Promise<pg.Client> | null = null;
+  let closed = false;
+  let retry: NodeJS.Timeout | undefined;
+  const quote = (channel: string) => `"${channel.replace(/"/g, '""')}"`;
+  const connect = (): Promise<pg.Client> => {
+    const c = new pg.Client({ connectionString });
+    const lost = (err?: Error) => {
+      if (client === null || closed) return;
+      if (err) console.error(`[coilpath] notification connection lost: ${err.message}`);
+      client = null;
+      c.removeAllListeners();
+      c.on('error', () => undefined);
+      void c.end().catch(() => undefined);
+      retry = setTimeout(() => {
+        if (!closed && listeners.size > 0 && client === null) client = connect();
+      }, 1000);
+      retry.unref();
+    };
+    c.on('notification', (m) => listeners.get(m.channel)?.forEach((l) => l(m.payload ?? '')));
+    c.on('error', lost);
+    c.on('end', () => lost());
+    const ready = (async () => {
+      await c.connect();
+      for (const channel of listeners.keys()) await c.query(`LISTEN ${quote(channel)}`);
+      return c;
+    })();
+    ready.catch((err: Error) => lost(err));
+    return ready;
+  };
+  return {
+    async listen(channel: string, listener: (payload: string) => void) {
+      let set = listeners.get(channel);
+      const fresh = !set;
+      if (!set) listeners.set(channel, (set = new Set()));
+      set.add(listener);
+      if (!client) client = connect();
+      else if (fresh) await (await client).query(`LISTEN ${quote(channel)}`);
+      await client;
+      return async () => {
+        set.delete(listener);
+        if (set.size === 0 && listeners.get(channel) === set) {
+          listeners.delete(channel);
+          const c = await client?.catch(() => null);
+          await c?.query(`UNLISTEN ${quote(channel)}`).catch(() => undefined);
+        }
+      };
+    },
+    async close() {
+      closed = true;
+      clearTimeout(retry);
+      const c = await client?.catch(() => null);
+      client = null;
+      await c?.end().catch(() => undefined);
+    },
+  };
 }

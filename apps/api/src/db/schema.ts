@@ -5,6 +5,7 @@
 import { sql } from 'drizzle-orm';
 import {
   bigint,
+  bigserial,
   boolean,
   date,
   doublePrecision,
@@ -370,6 +371,23 @@ export const rosterRevisions = pgTable('roster_revisions', {
   branchId: uuid().primaryKey(),
   revision: bigint({ mode: 'number' }).notNull().default(0),
 });
+
+/**
+ * What the open screens hear (`GET /api/events`, `modules/events/`): one row per change a screen shows, written by
+ * database triggers in the committing transaction (migration 0015) and announced with `pg_notify('coilpath_live', id)`.
+ * `kind`: `roster` (with the branch's new roster revision), `day` (for the technician `user_id`), `visit`, `alarm`,
+ * `leak-case`. A reconnecting screen gets the rows after its `Last-Event-ID`; rows older than a day are pruned.
+ * Never written by the application.
+ */
+export const liveEvents = pgTable('live_events', {
+  id: bigserial({ mode: 'number' }).primaryKey(),
+  branchId: uuid().notNull(),
+  kind: text().$type<'roster' | 'day' | 'visit' | 'alarm' | 'leak-case'>().notNull(),
+  /** The technician a `day` event is for; null for the others. */
+  userId: uuid(),
+  payload: jsonb().$type<Record<string, unknown>>().notNull().default({}),
+  at: instant().notNull().defaultNow(),
+}, (t) => [index('live_events_at_idx').on(t.at)]);
 
 export const bookings = pgTable('bookings', {
   id: id(),

@@ -7,6 +7,7 @@ import { OfflineBanner } from '@/components/ui/offline-banner';
 import { useUser } from '@/lib/session';
 import { useBranch } from '@/lib/branch';
 import { screensFor } from '@/lib/screens';
+import { useLiveEvents } from '@/lib/live-events';
 import { RouteErrorBoundary } from './route-error';
 import { UserMenu } from './user-menu';
 
@@ -36,6 +37,8 @@ function BranchSwitcher() {
 
 export function AppFrame() {
   const user = useUser();
+  // The screens update themselves while signed in: one stream per session (lib/live-events.ts).
+  useLiveEvents(user.id);
   const [menuOpen, setMenuOpen] = useState(false);
   const items = screensFor(user.role);
   const railItems = items.filter((s) => !('navOnly' in s));

@@ -148,6 +148,7 @@ export function applyToVisit(v: VisitDetail, w: OutboxWrite, at: string): VisitD
             poundsRecovered: b.poundsRecovered ?? 0,
             reason: b.reason,
             cylinderLot: b.cylinderLot ?? null,
+            circuit: b.circuit ?? null,
             techId: v.techId,
             createdAt: at,
           },

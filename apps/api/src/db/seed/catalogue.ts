@@ -67,6 +67,12 @@ export const STREETS = [
   'Silverbirch Crossing', 'Tansy Street', 'Underhill Parkway', 'Vesper Lane', 'Wickerby Road', 'Yarrowfield Drive',
 ];
 
+/**
+ * A second dispatcher of the first branch (Chicago), added after every other draw of the scenario so the rest
+ * of the demo stays as it was: two dispatchers on one board see each other's changes (`GET /api/events`).
+ */
+export const SECOND_DISPATCHER = { name: 'Ana Lindqvist', email: 'dispatch2@coilpath.example' } as const;
+
 export const BRANCHES: BranchDef[] = [
   {
     key: 'chicago',

@@ -30,6 +30,7 @@ import {
   BRANCHES,
   DEFECT_MODEL,
   MODELS,
+  SECOND_DISPATCHER,
   STREETS,
   type BranchDef,
   type CustomerKind,
@@ -1426,6 +1427,23 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       lastAddition.set(u.id, r.date);
     }
     rows.refrigerantEvents.push(r);
+  }
+
+  // ───────────────────────── a second dispatcher in the first branch ─────────────────────────
+  // Added last, with a generator of its own, so every draw above stays as it was.
+  {
+    const main = rng;
+    rng = new Rng(SEED ^ 0x5d1a7c03);
+    try {
+      const b = branches[0]!;
+      rows.users.push({
+        id: rng.uuid(), email: SECOND_DISPATCHER.email, name: SECOND_DISPATCHER.name, role: 'dispatcher', branchId: b.id, passwordHash,
+        phone: phone(b.def.areaCode), skills: [], epa608Type: 'none', epa608Number: null, workingHours: null,
+        startAddress: null, startLat: null, startLon: null, colorIndex: 0, calendarToken: token(), createdAt: setupAt,
+      });
+    } finally {
+      rng = main;
+    }
   }
 
   (rows.workOrders as WoRow[]).sort((a, b) => a.createdAt.getTime() - b.createdAt.getTime() || (a.id < b.id ? -1 : 1));

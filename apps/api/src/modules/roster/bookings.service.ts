@@ -27,6 +27,7 @@ import { attachments, auditEvents, bookings, branches, findings, leakCases, read
 import { assertBranch, branchScope, resolveBranch } from '../../auth/middleware';
 import { conflict, notFound } from '../../lib/errors';
 import { localDay, localTime, toCalcTechnician } from './scheduling';
+import { actAs } from '../events/actor';
 
 /** The rule names of @coilpath/calc (which checks them) and @coilpath/contract (which carries them) are one list. */
 type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
@@ -288,6 +289,7 @@ async function lockWorkOrder(tx: Tx, user: SessionUser, id: string): Promise<typ
 
 /** Books an unplaced work order, creating its visit in the same transaction. */
 export async function createBooking(tx: Tx, user: SessionUser, input: z.output<typeof bookingCreateSchema>, now: Date): Promise<Booking> {
+  await actAs(tx, user.id);
   const wo = await lockWorkOrder(tx, user, input.workOrderId);
   if (wo.state !== 'unplaced') {
     throw conflict('not_unplaced', `${workOrderLabel(wo.number)} is already ${wo.state.replace('_', ' ')}. Move its booking on the calendar instead.`);
@@ -339,6 +341,7 @@ async function lockBooking(tx: Tx, user: SessionUser, id: string) {
 
 /** Moves, resizes or reassigns a booking based on the version the client saw. */
 export async function updateBooking(tx: Tx, user: SessionUser, id: string, input: z.output<typeof bookingUpdateSchema>, now: Date): Promise<Booking> {
+  await actAs(tx, user.id);
   const b = await lockBooking(tx, user, id);
   if (b.version !== input.version) {
     const current = await getBooking(tx, id);
@@ -379,6 +382,7 @@ export async function updateBooking(tx: Tx, user: SessionUser, id: string, input
 
 /** Unbooks: deletes the untouched visit and the booking; the work order goes back to the queue. */
 export async function deleteBooking(tx: Tx, user: SessionUser, id: string, now: Date): Promise<void> {
+  await actAs(tx, user.id);
   const b = await lockBooking(tx, user, id);
   const [wo] = await tx.select({ id: workOrders.id, number: workOrders.number, state: workOrders.state }).from(workOrders).where(eq(workOrders.id, b.workOrderId)).for('update').limit(1);
   const { visitId, started } = await visitStarted(tx, b.id);

@@ -11,6 +11,7 @@ import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
 import { summaryMail, summaryPdf, summarySections } from './summary';
 import { visitDetail } from './visits.service';
+import { actAs } from '../events/actor';
 
 type Input = z.output<typeof closeVisitSchema>;
 
@@ -27,6 +28,7 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
     ctx.db.transaction(async (tx) => {
       const v = await loadVisit(tx, id, { lock: true });
       assertVisitWritable(user, v);
+      await actAs(tx, user.id);
       if (!v.onSiteAt) {
         throw conflict('not_on_site', 'Mark yourself on site before closing the visit, so its times are right.');
       }

@@ -33,6 +33,7 @@ import { modelAlertRef } from '@coilpath/contract';
 import { assertVisitReadable, assertVisitRecordable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
 import { attachmentDto, findingDto, readingDto, refrigerantEventDto } from './dto';
 import { computeReading, toStoredUnits } from './reading-calc';
+import { actAs } from '../events/actor';
 
 /** The units a visit covers: the work order's unit, or every active unit at the site when it names none. */
 export async function unitsOfWorkOrder(db: Tx, wo: { unitId: string | null; siteId: string }) {
@@ -183,6 +184,7 @@ export async function changeState(ctx: AppContext, user: SessionUser, id: string
   await ctx.db.transaction(async (tx) => {
     const v = await loadVisit(tx, id, { lock: true });
     assertVisitWritable(user, v);
+    await actAs(tx, user.id);
     const now = ctx.clock.now();
     if (input.state === 'en_route') {
       if (v.onSiteAt) throw conflict('bad_state', 'You are already on site for this visit; it cannot go back to en route.');

@@ -10,10 +10,11 @@
 import { useEffect, useEffectEvent, useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
 import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, Moon, Plus, ShieldAlert, Siren, X } from 'lucide-react';
 import type { Booking, Technician, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
-import { priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
+import { changedByLabel, priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, gaugeText, loadState, offDayWord, monthName, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
 import { formatMinutes } from '@/lib/format';
+import { useChangedBy } from '@/lib/live-events';
 import { colourOf, leakDeadline, TechSwatch } from './parts';
 import { overrideSummary } from './rules';
 
@@ -146,6 +147,8 @@ function Chip({
   const leak = leakDeadline(w.leakRepairDueDate, today, e.start.date);
   const override = overrideSummary(b);
   const movable = draggable && w.state === 'booked' && !b.fixed && !e.fromEarlierDay;
+  // Someone else (another dispatcher) just changed this booking: said on the chip for a minute.
+  const changer = useChangedBy(b.id);
   return (
     <button
       type="button"
@@ -223,6 +226,14 @@ function Chip({
         <span aria-hidden="true" className="mt-0.5 line-clamp-2 block text-slate italic" title={override.reason}>
           “{override.reason}”
         </span>
+      )}
+      {changer && (
+        <>
+          <Sep />
+          <span className="mt-0.5 block font-medium text-copper-hover" data-testid="chip-changed-by">
+            {changedByLabel(changer)}
+          </span>
+        </>
       )}
       <span className="sr-only">{chipSuffix(e, today, wide)}</span>
     </button>
