@@ -95,7 +95,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
       .innerJoin(circuits, eq(circuits.id, readings.circuitId))
       .where(eq(readings.visitId, id))
       .orderBy(asc(circuits.number)),
-    db.select().from(findings).where(eq(findings.visitId, id)).orderBy(asc(findings.createdAt)),
+    db.select().from(findings).where(eq(findings.visitId, id)).orderBy(asc(findings.createdAt), asc(findings.id)),
     db.select().from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id)).orderBy(asc(refrigerantEvents.createdAt)),
     db.select().from(attachments).where(eq(attachments.visitId, id)).orderBy(asc(attachments.createdAt)),
     db.select().from(visitEvents).where(eq(visitEvents.visitId, id)).orderBy(asc(visitEvents.at)),
@@ -114,6 +114,8 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
     returnNeeds: v.returnNeeds,
     returnNotes: v.returnNotes,
     notes: v.notes,
+    notesAudience: v.notesAudience,
+    rootCauseFindingId: v.rootCauseFindingId,
     summarySentAt: v.summarySentAt?.toISOString() ?? null,
     version: v.version,
     booking: row!.booking ? { id: row!.booking.id, startAt: row!.booking.startAt.toISOString(), endAt: row!.booking.endAt.toISOString() } : null,
@@ -284,6 +286,7 @@ export async function addFinding(ctx: AppContext, user: SessionUser, id: string,
         reportedCircuit: input.reportedCircuit ?? null,
         actualCircuit: input.actualCircuit ?? null,
         notes: input.notes ?? null,
+        notesAudience: input.notesAudience,
       })
       .returning();
     return { finding: findingDto(f!), created: true };

@@ -2,12 +2,18 @@ import { useState } from 'react';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
 import {
+  causeCodeLabels,
+  causeOriginLabels,
+  noteAudienceLabels,
+  noteAudiences,
   returnNeedLabels,
+  rootCauseChoice,
   returnNeeds,
   visitOutcomeLabels,
   visitOutcomes,
   workOrderStateLabels,
   type CloseVisitResult,
+  type NoteAudience,
   type ReturnNeed,
   type SummaryMailResult,
   type VisitDetail,
@@ -55,6 +61,8 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   const [needs, setNeeds] = useState<ReturnNeed[]>([]);
   const [returnNotes, setReturnNotes] = useState('');
   const [notes, setNotes] = useState('');
+  const [notesAudience, setNotesAudience] = useState<NoteAudience>('internal');
+  const [rootCause, setRootCause] = useState<string>('');
   const [error, setError] = useState<string | null>(null);
   const [result, setResult] = useState<CloseVisitResult | null>(null);
   const [summary, setSummary] = useState<SummaryMailResult | null>(null);
@@ -111,8 +119,21 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
     setError(null);
     if (!outcome) return setError('Choose the outcome of the visit.');
     if (outcome === 'needs_return' && needs.length === 0) return setError('Say what the return visit needs.');
+    // The same rule the server applies (`rootCauseChoice`): a choice among several findings.
+    const choice = rootCauseChoice(
+      visit.findings.map((f) => f.id),
+      rootCause || null,
+    );
+    if (!choice.ok) return setError(choice.message);
     close.mutate(
-      { outcome, returnNeeds: outcome === 'needs_return' ? needs : [], returnNotes: returnNotes.trim() || null, notes: notes.trim() || null },
+      {
+        outcome,
+        returnNeeds: outcome === 'needs_return' ? needs : [],
+        returnNotes: returnNotes.trim() || null,
+        notes: notes.trim() || null,
+        notesAudience,
+        rootCauseFindingId: choice.findingId,
+      },
       {
         onSuccess: (r) => {
           setResult(r);
@@ -166,7 +187,51 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
             </div>
           </fieldset>
         )}
-        <TextAreaField label="Notes for the summary" value={notes} onChange={(e) => setNotes(e.target.value)} />
+        {visit.findings.length > 0 && (
+          <fieldset>
+            <legend className="mb-1 text-sm font-medium">Root cause</legend>
+            <p className="mb-2 text-sm text-slate">
+              {visit.findings.length > 1 ? 'Which finding caused the call? Fix Quality counts the call under this one.' : 'The one finding is the root cause.'}
+            </p>
+            <div className="flex flex-col gap-2">
+              {visit.findings.map((f) => (
+                <label
+                  key={f.id}
+                  className="flex min-h-12 cursor-pointer items-start gap-3 rounded-md border border-slate-line p-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint"
+                >
+                  <input
+                    type="radio"
+                    name="rootCause"
+                    value={f.id}
+                    checked={visit.findings.length === 1 ? !rootCause || rootCause === f.id : rootCause === f.id}
+                    onChange={() => setRootCause(f.id)}
+                    className="mt-1 size-5"
+                  />
+                  <span>
+                    <span className="block font-medium">{causeCodeLabels[f.causeCode]}</span>
+                    <span className="block text-sm text-slate">
+                      {causeOriginLabels[f.origin]}
+                      {f.notes ? ` — ${f.notes}` : ''}
+                    </span>
+                  </span>
+                </label>
+              ))}
+            </div>
+          </fieldset>
+        )}
+        <TextAreaField label="Notes" value={notes} onChange={(e) => setNotes(e.target.value)} />
+        <fieldset>
+          <legend className="mb-2 text-sm font-medium">Who the notes are for</legend>
+          <div className="grid grid-cols-1 gap-2 sm:grid-cols-2">
+            {noteAudiences.map((a) => (
+              <label key={a} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint">
+                <input type="radio" name="notesAudience" value={a} checked={notesAudience === a} onChange={() => setNotesAudience(a)} className="size-5" />
+                {noteAudienceLabels[a]}
+              </label>
+            ))}
+          </div>
+          <p className="mt-1 text-xs text-slate">Only notes for the customer go into the service summary; return needs, warranty and staffing stay internal.</p>
+        </fieldset>
         {unsaved && (
           <p className="inline-flex items-center gap-1 text-sm text-watch">
             <AlertTriangle className="size-4" aria-hidden="true" /> Some entries are not saved yet; they will not be in the summary. Save them first.
