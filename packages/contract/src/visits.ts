@@ -166,12 +166,35 @@ export const closeVisitSchema = z
     labourMinutes: z.number().int().min(0).max(24 * 60).nullable().optional(),
     /** The finding marked as the call's root cause (see `rootCauseChoice`). */
     rootCauseFindingId: idSchema.nullable().optional(),
+    /** The technician confirms closing a leak repair as resolved with nothing to show it (see `leakRepairCloseRefusal`). */
+    confirmedWithoutVerification: z.boolean().optional(),
   })
   .refine((v) => v.outcome !== 'needs_return' || v.returnNeeds.length > 0, {
     message: 'Say what the return visit needs',
     path: ['returnNeeds'],
   });
 export type CloseVisit = z.input<typeof closeVisitSchema>;
+
+/**
+ * Closing a leak repair as resolved with nothing to show the leak is fixed — no verification test recorded on
+ * its leak case and no refrigerant entry on the visit — needs the technician's explicit confirmation
+ * (`confirmedWithoutVerification: true`). The API answers a close without it with 422 and this message; the
+ * Visit screen asks with the same words before sending.
+ */
+export function leakRepairCloseRefusal(p: {
+  leakRepair: { verificationTests: number } | null;
+  outcome: VisitOutcome;
+  refrigerantEntries: number;
+  confirmed: boolean | undefined;
+}): { code: 'leak_repair_unverified'; message: string } | null {
+  if (!p.leakRepair || p.outcome !== 'resolved' || p.confirmed === true) return null;
+  if (p.leakRepair.verificationTests > 0 || p.refrigerantEntries > 0) return null;
+  return {
+    code: 'leak_repair_unverified',
+    message:
+      'This visit is the repair of an open leak case, and neither a verification test nor a refrigerant entry is recorded. Confirm that you are closing the repair as resolved without them.',
+  };
+}
 
 /**
  * The root-cause rule of a close-out: a call's cause is the finding the technician marks as its root cause.
@@ -376,6 +399,8 @@ export interface VisitDetail {
   notesAudience: NoteAudience;
   /** The finding marked as the call's root cause (null: none marked, or no findings). */
   rootCauseFindingId: string | null;
+  /** This visit repairs an open leak case: the case and how many verification tests it has (`leakRepairCloseRefusal`). */
+  leakRepair: { leakCaseId: string; repairDueDate: string; verificationTests: number } | null;
   summarySentAt: string | null;
   version: number;
   booking: { id: string; startAt: string; endAt: string } | null;

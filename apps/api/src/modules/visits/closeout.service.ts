@@ -1,16 +1,16 @@
 import { and, eq, inArray } from 'drizzle-orm';
 import type { CloseVisitResult, SessionUser, SummaryMailResult, WorkOrderState } from '@coilpath/contract';
-import { closeVisitSchema, returnNeedLabels, rootCauseChoice } from '@coilpath/contract';
+import { closeVisitSchema, leakRepairCloseRefusal, returnNeedLabels, rootCauseChoice } from '@coilpath/contract';
 import { requiredCertificationFor } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
-import { branches, customers, findings, leakCases, sites, units, users, visitEvents, visits, workOrders } from '../../db/schema';
+import { branches, customers, findings, leakCases, refrigerantEvents, sites, units, users, visitEvents, visits, workOrders } from '../../db/schema';
 import { conflict, forbidden, HttpError } from '../../lib/errors';
 import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
 import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
 import { summaryMail, summaryPdf, summarySections, type SummaryContext } from './summary';
-import { visitDetail } from './visits.service';
+import { leakRepairOf, visitDetail } from './visits.service';
 
 type Input = z.output<typeof closeVisitSchema>;
 
@@ -34,6 +34,15 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
       const findingIds = (await tx.select({ id: findings.id }).from(findings).where(eq(findings.visitId, id))).map((f) => f.id);
       const rootCause = rootCauseChoice(findingIds, input.rootCauseFindingId);
       if (!rootCause.ok) throw new HttpError(422, rootCause.code, rootCause.message, { fields: [{ path: 'rootCauseFindingId', message: rootCause.message }] });
+      // A leak repair closed as resolved with nothing to show for it needs the technician's confirmation.
+      const [woRow] = await tx.select({ id: workOrders.id, leakCaseId: workOrders.leakCaseId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+      const unverified = leakRepairCloseRefusal({
+        leakRepair: await leakRepairOf(tx, woRow!),
+        outcome: input.outcome,
+        refrigerantEntries: (await tx.select({ id: refrigerantEvents.id }).from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id))).length,
+        confirmed: input.confirmedWithoutVerification,
+      });
+      if (unverified) throw new HttpError(422, unverified.code, unverified.message, { fields: [{ path: 'confirmedWithoutVerification', message: unverified.message }] });
       const now = ctx.clock.now();
       await tx
         .update(visits)

@@ -1,14 +1,15 @@
 /**
  * A call's root cause: the finding the technician marks at close-out (required among several findings, the
  * only one by default, none without findings), and Fix Quality's cause, origin and factory-defect review
- * following the mark rather than the first finding typed.
+ * following the mark rather than the first finding typed. Also the close-out's other confirmation: a leak
+ * repair closed as resolved with nothing to show for it.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import type { Clock } from '../../lib/clock';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
-import { serviceCallFacts, visits, workOrders } from '../../db/schema';
+import { leakCases, serviceCallFacts, verificationTests, visits, workOrders } from '../../db/schema';
 import { makeBookedVisit } from './visits.fixtures';
 
 let now = new Date('2026-03-10T15:00:00Z');
@@ -92,6 +93,50 @@ describe('POST /api/visits/:id/close — root cause', () => {
     expect(r2.status).toBe(200);
     const [facts] = await t.ctx.db.select().from(serviceCallFacts).where(eq(serviceCallFacts.jobId, two.workOrder.id));
     expect(facts).toMatchObject({ causeCode: 'wiring_fault', origin: 'factory_defect' });
+  });
+});
+
+describe('POST /api/visits/:id/close — a leak repair closed as resolved', () => {
+  async function repairVisit() {
+    const booked = await onSiteVisit();
+    const [lc] = await t.ctx.db
+      .insert(leakCases)
+      .values({ branchId: f.a.id, unitId: place.unit.id, openedOn: '2026-03-01', rule: '40 CFR 82.157', method: 'annualizing', thresholdPercent: 10, leakRatePercent: 25, repairDueDate: '2026-03-31', repairWorkOrderId: booked.workOrder.id })
+      .returning();
+    return { ...booked, leakCase: lc! };
+  }
+  const clearCases = () => t.ctx.db.update(leakCases).set({ status: 'closed' }).where(eq(leakCases.unitId, place.unit.id));
+
+  it('asks for an explicit confirmation without a verification test or refrigerant entry (422), then closes with it', async () => {
+    await clearCases();
+    const { visit, leakCase } = await repairVisit();
+    const detail = await tech.get(`/api/visits/${visit.id}`);
+    expect(detail.body.leakRepair).toEqual({ leakCaseId: leakCase.id, repairDueDate: '2026-03-31', verificationTests: 0 });
+    const refused = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' });
+    expect(refused.status).toBe(422);
+    expect(refused.body.error.code).toBe('leak_repair_unverified');
+    expect(refused.body.error.message).toMatch(/neither a verification test nor a refrigerant entry/);
+    expect((await t.ctx.db.select().from(visits).where(eq(visits.id, visit.id)))[0]!.closedAt).toBeNull();
+    // `false` is no confirmation.
+    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved', confirmedWithoutVerification: false })).status).toBe(422);
+    const ok = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved', confirmedWithoutVerification: true });
+    expect(ok.status).toBe(200);
+  });
+
+  it('needs no confirmation with a refrigerant entry, with a verification test, or when the repair is not closed as resolved', async () => {
+    await clearCases();
+    const a = await repairVisit();
+    expect((await tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ visitId: a.visit.id, refrigerant: 'R-410A', poundsAdded: 4, reason: 'repair_recharge' })).status).toBe(201);
+    expect((await tech.post(`/api/visits/${a.visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    await clearCases();
+    const b = await repairVisit();
+    await t.ctx.db.insert(verificationTests).values({ leakCaseId: b.leakCase.id, kind: 'initial', testedOn: '2026-03-10', passed: true });
+    expect((await tech.get(`/api/visits/${b.visit.id}`)).body.leakRepair.verificationTests).toBe(1);
+    expect((await tech.post(`/api/visits/${b.visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    await clearCases();
+    const c = await repairVisit();
+    expect((await tech.post(`/api/visits/${c.visit.id}/close`).send({ outcome: 'declined' })).status).toBe(200);
+    await clearCases();
   });
 });
 

@@ -4,6 +4,7 @@ import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
 import {
   causeCodeLabels,
   causeOriginLabels,
+  leakRepairCloseRefusal,
   noteAudienceLabels,
   noteAudiences,
   returnNeedLabels,
@@ -63,6 +64,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   const [notes, setNotes] = useState('');
   const [notesAudience, setNotesAudience] = useState<NoteAudience>('internal');
   const [rootCause, setRootCause] = useState<string>('');
+  const [confirmedUnverified, setConfirmedUnverified] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const [result, setResult] = useState<CloseVisitResult | null>(null);
   const [summary, setSummary] = useState<SummaryMailResult | null>(null);
@@ -114,6 +116,10 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   if (!visit.canWrite) return null;
 
   const notOnSite = visit.status !== 'on_site';
+  // The server's rule: a leak repair closed as resolved with no verification test and no refrigerant entry is confirmed in words.
+  const unverified = outcome
+    ? leakRepairCloseRefusal({ leakRepair: visit.leakRepair, outcome, refrigerantEntries: visit.refrigerantEvents.length, confirmed: false })
+    : null;
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
     setError(null);
@@ -125,6 +131,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
       rootCause || null,
     );
     if (!choice.ok) return setError(choice.message);
+    if (unverified && !confirmedUnverified) return setError(unverified.message);
     close.mutate(
       {
         outcome,
@@ -133,6 +140,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
         notes: notes.trim() || null,
         notesAudience,
         rootCauseFindingId: choice.findingId,
+        ...(unverified ? { confirmedWithoutVerification: confirmedUnverified } : {}),
       },
       {
         onSuccess: (r) => {
@@ -219,7 +227,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
             </div>
           </fieldset>
         )}
-        <TextAreaField label="Notes" value={notes} onChange={(e) => setNotes(e.target.value)} />
+        <TextAreaField label="Visit notes" value={notes} onChange={(e) => setNotes(e.target.value)} />
         <fieldset>
           <legend className="mb-2 text-sm font-medium">Who the notes are for</legend>
           <div className="grid grid-cols-1 gap-2 sm:grid-cols-2">
@@ -232,6 +240,18 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           </div>
           <p className="mt-1 text-xs text-slate">Only notes for the customer go into the service summary; return needs, warranty and staffing stay internal.</p>
         </fieldset>
+        {unverified && (
+          <div className="flex flex-col gap-2 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm text-ink">
+            <p className="inline-flex items-start gap-1">
+              <AlertTriangle className="mt-0.5 size-4 shrink-0 text-watch" aria-hidden="true" />
+              <span>{unverified.message}</span>
+            </p>
+            <label className="flex min-h-12 cursor-pointer items-center gap-3">
+              <input type="checkbox" className="size-5" checked={confirmedUnverified} onChange={(e) => setConfirmedUnverified(e.target.checked)} />
+              Yes, close the leak repair as resolved without a verification test or refrigerant entry
+            </label>
+          </div>
+        )}
         {unsaved && (
           <p className="inline-flex items-center gap-1 text-sm text-watch">
             <AlertTriangle className="size-4" aria-hidden="true" /> Some entries are not saved yet; they will not be in the summary. Save them first.
