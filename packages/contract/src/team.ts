@@ -64,6 +64,14 @@ export const branchInputSchema = z.object({
   callbackWindowDays: z.coerce.number().int('Whole number').min(1, 'At least 1 day').max(365),
   /** Inspections created from a model alert are due this many days later (the database default is 30). */
   inspectionDueDays: z.coerce.number().int('Whole number').min(1, 'At least 1 day').max(365).optional(),
+  /** The contractor as the customer's service summary names it (blank: the branch's name). Left out: unchanged (stored default ''). */
+  tradingName: oneLine(limits.name).optional(),
+  /** The office's postal address, phone and contractor's licence number, printed on every service summary. */
+  officeAddress: oneLine(limits.shortText).optional(),
+  officePhone: oneLine(40).optional(),
+  licenceNumber: oneLine(60).optional(),
+  /** The office's e-mail: the Reply-To of every service summary (blank: replies go to the sending address). */
+  officeEmail: z.union([z.literal(''), emailSchema]).optional(),
 });
 export type BranchInput = z.input<typeof branchInputSchema>;
 export type BranchValues = z.output<typeof branchInputSchema>;
@@ -88,6 +96,11 @@ export interface BranchDetail {
   repeatAlarmDays: number;
   callbackWindowDays: number;
   inspectionDueDays: number;
+  tradingName: string;
+  officeAddress: string;
+  officePhone: string;
+  licenceNumber: string;
+  officeEmail: string;
   archivedAt: string | null;
 }
 

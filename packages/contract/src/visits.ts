@@ -6,12 +6,14 @@ import {
   attachmentKindSchema,
   causeCodeSchema,
   causeOriginSchema,
+  noteAudienceSchema,
   refrigerantEventReasonSchema,
   returnNeedSchema,
   visitOutcomeSchema,
   type AttachmentKind,
   type CauseCode,
   type CauseOrigin,
+  type NoteAudience,
   type ReturnNeed,
   type VisitOutcome,
   type WorkOrderKind,
@@ -126,6 +128,8 @@ export const findingInputSchema = z.strictObject({
   reportedCircuit: z.number().int().min(1).max(20).nullable().optional(),
   actualCircuit: z.number().int().min(1).max(20).nullable().optional(),
   notes: z.string().trim().max(limits.longText).nullable().optional(),
+  /** Who the finding's notes are for; internal notes never reach the customer's summary. */
+  notesAudience: noteAudienceSchema.default('internal'),
 });
 export type FindingInput = z.infer<typeof findingInputSchema>;
 
@@ -159,7 +163,13 @@ export const closeVisitSchema = z
     returnNeeds: z.array(returnNeedSchema).max(4).default([]),
     returnNotes: z.string().trim().max(limits.longText).nullable().optional(),
     notes: z.string().trim().max(limits.longText).nullable().optional(),
+    /** Who the notes are for: `customer` notes go into the service summary, `internal` ones never do. */
+    notesAudience: noteAudienceSchema.default('internal'),
     labourMinutes: z.number().int().min(0).max(24 * 60).nullable().optional(),
+    /** The finding marked as the call's root cause (see `rootCauseChoice`). */
+    rootCauseFindingId: idSchema.nullable().optional(),
+    /** The technician confirms closing a leak repair as resolved with nothing to show it (see `leakRepairCloseRefusal`). */
+    confirmedWithoutVerification: z.boolean().optional(),
   })
   .refine((v) => v.outcome !== 'needs_return' || v.returnNeeds.length > 0, {
     message: 'Say what the return visit needs',
@@ -168,6 +178,51 @@ export const closeVisitSchema = z
 export type CloseVisit = z.input<typeof closeVisitSchema>;
 
 /** The form fields of POST /api/visits/:id/attachments. `id` (made by the client) makes a retried upload idempotent. */
+/**
+ * Closing a leak repair as resolved with nothing to show the leak is fixed — no verification test recorded on
+ * its leak case and no refrigerant entry on the visit — needs the technician's explicit confirmation
+ * (`confirmedWithoutVerification: true`). The API answers a close without it with 422 and this message; the
+ * Visit screen asks with the same words before sending.
+ */
+export function leakRepairCloseRefusal(p: {
+  leakRepair: { verificationTests: number } | null;
+  outcome: VisitOutcome;
+  refrigerantEntries: number;
+  confirmed: boolean | undefined;
+}): { code: 'leak_repair_unverified'; message: string } | null {
+  if (!p.leakRepair || p.outcome !== 'resolved' || p.confirmed === true) return null;
+  if (p.leakRepair.verificationTests > 0 || p.refrigerantEntries > 0) return null;
+  return {
+    code: 'leak_repair_unverified',
+    message:
+      'This visit is the repair of an open leak case, and neither a verification test nor a refrigerant entry is recorded. Confirm that you are closing the repair as resolved without them.',
+  };
+}
+
+/**
+ * The root-cause rule of a close-out: a call's cause is the finding the technician marks as its root cause.
+ * With more than one finding the choice is required; with one, that finding is the root cause unless
+ * another is named; with none there is no root cause. A chosen id that is not one of the visit's findings
+ * is refused. The API answers a refusal with 422 and this message; the Visit screen asks with the same words.
+ */
+export function rootCauseChoice(
+  findingIds: readonly string[],
+  chosen: string | null | undefined,
+): { ok: true; findingId: string | null } | { ok: false; code: 'root_cause_required' | 'root_cause_unknown'; message: string } {
+  if (chosen) {
+    return findingIds.includes(chosen)
+      ? { ok: true, findingId: chosen }
+      : { ok: false, code: 'root_cause_unknown', message: 'The root cause must be one of this visit’s findings. Choose it again from the list.' };
+  }
+  if (findingIds.length === 0) return { ok: true, findingId: null };
+  if (findingIds.length === 1) return { ok: true, findingId: findingIds[0]! };
+  return {
+    ok: false,
+    code: 'root_cause_required',
+    message: `This visit has ${findingIds.length} findings: mark the one that caused the call as its root cause before closing.`,
+  };
+}
+
 export const attachmentUploadFieldsSchema = z.object({
   id: idSchema.optional(),
   kind: attachmentKindSchema.optional(),
@@ -217,6 +272,7 @@ export interface FindingDto {
   reportedCircuit: number | null;
   actualCircuit: number | null;
   notes: string | null;
+  notesAudience: NoteAudience;
   createdAt: string;
 }
 
@@ -346,6 +402,11 @@ export interface VisitDetail {
   returnNeeds: ReturnNeed[];
   returnNotes: string | null;
   notes: string | null;
+  notesAudience: NoteAudience;
+  /** The finding marked as the call's root cause (null: none marked, or no findings). */
+  rootCauseFindingId: string | null;
+  /** This visit repairs an open leak case: the case and how many verification tests it has (`leakRepairCloseRefusal`). */
+  leakRepair: { leakCaseId: string; repairDueDate: string; verificationTests: number } | null;
   summarySentAt: string | null;
   version: number;
   booking: { id: string; startAt: string; endAt: string } | null;

@@ -109,6 +109,18 @@ export const causeOriginLabels: Record<CauseOrigin, string> = {
   external: 'External',
 };
 
+/**
+ * Who a note is for. `internal` notes (return needs, warranty, staffing) stay in Coilpath; only `customer`
+ * notes go into the customer's service summary. Notes recorded before audiences existed are internal.
+ */
+export const noteAudiences = ['internal', 'customer'] as const;
+export const noteAudienceSchema = z.enum(noteAudiences);
+export type NoteAudience = z.infer<typeof noteAudienceSchema>;
+export const noteAudienceLabels: Record<NoteAudience, string> = {
+  internal: 'Internal (office only)',
+  customer: 'For the customer',
+};
+
 export const unitKinds = [
   'rooftop_unit',
   'split_system',

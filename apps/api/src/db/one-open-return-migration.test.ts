@@ -57,8 +57,13 @@ describe('migration 0010 (one open return visit per unit)', () => {
         .insert(bookings)
         .values({ branchId: f.a.id, workOrderId: woId, techId: f.inA.technician.id, startAt: new Date('2026-12-16T15:00:00Z'), endAt: new Date('2026-12-16T17:00:00Z') })
         .returning();
-      const [v] = await db.insert(visits).values({ branchId: f.a.id, workOrderId: woId, bookingId: b!.id, techId: f.inA.technician.id }).returning();
-      return { booking: b!, visit: v! };
+      // The visit as the previous release's table has it (migration 0017 adds columns the schema file knows).
+      const v = (
+        (await db.execute(
+          sql`INSERT INTO visits (branch_id, work_order_id, booking_id, tech_id) VALUES (${f.a.id}, ${woId}, ${b!.id}, ${f.inA.technician.id}) RETURNING id`,
+        )) as unknown as { rows: { id: string }[] }
+      ).rows[0]!;
+      return { booking: b!, visit: v };
     };
 
     // Unit p: three open returns; the booked one is furthest along and stays.

@@ -30,6 +30,7 @@ import type {
   CauseOrigin,
   Epa608Type,
   LeakCaseStatus,
+  NoteAudience,
   Priority,
   RefrigerantEventReason,
   ReturnNeed,
@@ -71,6 +72,13 @@ export const branches = pgTable('branches', {
   inspectionDueDays: integer().notNull().default(30),
   /** The branch manager's daily digest is sent at this local hour. */
   digestHour: integer().notNull().default(7),
+  /** The contractor as the customer's service summary names it (empty: the branch's name). */
+  tradingName: text().notNull().default(''),
+  /** The office's postal address, phone, contractor's licence number and e-mail (the summary's Reply-To). */
+  officeAddress: text().notNull().default(''),
+  officePhone: text().notNull().default(''),
+  licenceNumber: text().notNull().default(''),
+  officeEmail: text().notNull().default(''),
   archivedAt: instant(),
   createdAt: createdAt(),
 }, (t) => [uniqueIndex('branches_code_uq').on(t.code)]);
@@ -374,7 +382,7 @@ export const rosterRevisions = pgTable('roster_revisions', {
 
 /**
  * What the open screens hear (`GET /api/events`, `modules/events/`): one row per change a screen shows, written by
- * database triggers in the committing transaction (migration 0015) and announced with `pg_notify('coilpath_live', id)`.
+ * database triggers in the committing transaction (migration 0016) and announced with `pg_notify('coilpath_live', id)`.
  * `kind`: `roster` (with the branch's new roster revision), `day` (for the technician `user_id`), `visit`, `alarm`,
  * `leak-case`. A reconnecting screen gets the rows after its `Last-Event-ID`; rows older than a day are pruned.
  * Never written by the application.
@@ -433,6 +441,10 @@ export const visits = pgTable('visits', {
   returnNeeds: jsonb().$type<ReturnNeed[]>().notNull().default([]),
   returnNotes: text(),
   notes: text(),
+  /** Who the technician's notes are for: `internal` (the default) never reaches the customer's summary. */
+  notesAudience: text().$type<NoteAudience>().notNull().default('internal'),
+  /** The finding the technician marked as the call's root cause (a finding of this visit; see closeVisitSchema). */
+  rootCauseFindingId: uuid(),
   labourMinutes: integer(),
   summarySentAt: instant(),
   version: integer().notNull().default(1),
@@ -443,6 +455,8 @@ export const visits = pgTable('visits', {
   index('visits_tech_idx').on(t.techId, t.createdAt),
   index('visits_closed_idx').on(t.branchId, t.closedAt),
   uniqueIndex('visits_booking_uq').on(t.bookingId),
+  // The root cause is one of the visit's own findings: the foreign key (id, root_cause_finding_id) →
+  // findings (visit_id, id) is hand-written in migration 0017 (drizzle-kit would add it before the unique key it needs).
 ]);
 
 export const visitEvents = pgTable('visit_events', {
@@ -497,8 +511,14 @@ export const findings = pgTable('findings', {
   reportedCircuit: integer(),
   actualCircuit: integer(),
   notes: text(),
+  /** Who the finding's notes are for: `internal` (the default) or `customer`. The finding itself is always told in plain words. */
+  notesAudience: text().$type<NoteAudience>().notNull().default('internal'),
   createdAt: createdAt(),
-}, (t) => [index('findings_visit_idx').on(t.visitId), index('findings_unit_idx').on(t.unitId, t.createdAt)]);
+}, (t) => [
+  index('findings_visit_idx').on(t.visitId),
+  index('findings_unit_idx').on(t.unitId, t.createdAt),
+  unique('findings_visit_id_uq').on(t.visitId, t.id),
+]);
 
 export const refrigerantEvents = pgTable('refrigerant_events', {
   id: id(),

@@ -1,4 +1,4 @@
-import { count, eq } from 'drizzle-orm';
+import { count, eq, sql } from 'drizzle-orm';
 import { hashPassword } from '../auth/password';
 import type { Db, Tx } from './client';
 import * as schema from './schema';
@@ -61,6 +61,11 @@ export async function seedDemo(db: Db, opts: SeedOptions = {}): Promise<{ seeded
     // Checked again inside the transaction so two processes starting together load it once at most.
     if (await alreadySeeded(tx)) return { seeded: false };
     for (const [table, values] of inOrder(rows)) await insertAll(tx, table, values);
+    // Each closed visit's root cause is the first finding its story records (its findings exist only now).
+    const marks = new Map<string, string>();
+    for (const f of rows.findings) if (f.id && !marks.has(f.visitId)) marks.set(f.visitId, f.id);
+    const pairs = JSON.stringify([...marks].map(([v, f]) => ({ v, f })));
+    await tx.execute(sql`UPDATE visits SET root_cause_finding_id = m.f FROM jsonb_to_recordset(${pairs}::jsonb) AS m(v uuid, f uuid) WHERE visits.id = m.v AND visits.closed_at IS NOT NULL`);
     await tx.insert(schema.appMeta).values({ key: 'demo_seeded', value: { today } });
     return { seeded: true };
   });

@@ -8,6 +8,7 @@ const vietnamese = 'Nguyễn Thị Hương';
 
 const sections: SummarySections = {
   title: `Service summary WO-1042 - Hội An Clinic`,
+  contractor: ['Żółć & Nguyễn Cooling', '12 Żurawia, Kraków'],
   facts: [
     ['Work order', 'WO-1042, Repair'],
     ['Site', 'Hội An Clinic, 12 Żurawia, Kraków'],
@@ -21,6 +22,7 @@ const sections: SummarySections = {
   ],
   findings: [`Refrigerant leak (origin: wear). Reported by ${vietnamese}: charge ≥ 2 lb short → leak search`],
   refrigerant: ['2026-12-04: R-410A, added 2.0 lb, recovered 0.0 lb (Leak repair)'],
+  leaks: [],
   outcome: ['Outcome: Resolved', `Technician's notes: change of −0.02 in the trend; ${vietnamese} confirmed`],
 };
 

@@ -13,6 +13,8 @@ export interface MailMessage {
   text: string;
   /** The HTML part (simple, inline-styled, no images): every message has both (see `composeMail`). */
   html: string;
+  /** Where the recipient's reply goes (a branch's office address), when not to the sender. */
+  replyTo?: string;
   /** Extra header fields, e.g. `Auto-Submitted: auto-generated` on digests. */
   headers?: Record<string, string>;
   attachments?: MailAttachment[];

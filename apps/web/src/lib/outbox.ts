@@ -19,7 +19,8 @@
  * without a per-visit order. This module is small and owns exactly those rules.
  */
 import { createStore, get, update, type UseStore } from 'idb-keyval';
-import type { CloseVisit, FindingInput, RefrigerantEventInput, SaveReadings, VisitStateChange } from '@coilpath/contract';
+import type { z } from 'zod';
+import type { CloseVisit, findingInputSchema, RefrigerantEventInput, SaveReadings, VisitStateChange } from '@coilpath/contract';
 import { ApiError } from './api-client';
 
 export type AttachKind = 'photo' | 'nameplate' | 'document';
@@ -28,7 +29,7 @@ export type AttachKind = 'photo' | 'nameplate' | 'document';
 export type OutboxWrite =
   | { kind: 'state'; visitId: string; body: VisitStateChange }
   | { kind: 'readings'; visitId: string; body: SaveReadings }
-  | { kind: 'finding'; visitId: string; body: FindingInput & { id: string } }
+  | { kind: 'finding'; visitId: string; body: z.input<typeof findingInputSchema> & { id: string } }
   | { kind: 'refrigerant'; visitId: string; unitId: string; body: RefrigerantEventInput & { id: string } }
   | { kind: 'attachment'; visitId: string; id: string; attachKind: AttachKind; file: Blob; fileName: string }
   | { kind: 'close'; visitId: string; body: CloseVisit };

@@ -127,6 +127,7 @@ export function applyToVisit(v: VisitDetail, w: OutboxWrite, at: string): VisitD
         reportedCircuit: b.reportedCircuit ?? null,
         actualCircuit: b.actualCircuit ?? null,
         notes: b.notes ?? null,
+        notesAudience: b.notesAudience ?? 'internal',
         createdAt: at,
       };
       return { ...v, findings: [...v.findings, f] };

@@ -243,6 +243,9 @@ export function buildScenario(today: string, passwordHash: string): Rows {
       labourRateCents: def.labourRateCents, refrigerantPriceCentsPerLb: def.refrigerantPriceCentsPerLb,
       currency: 'USD', unitSystem: 'imperial', sensorTolerancePercent: 3, sensorToleranceAbsolute: 5,
       repeatAlarmCount: 2, repeatAlarmDays: 30, callbackWindowDays: 30, digestHour: 7, createdAt: setupAt,
+      // The contractor on the customer's summary (invented; 555-01xx numbers are reserved for fiction).
+      tradingName: `${def.name} Coil & Comfort (demo)`, officeAddress: def.baseAddress, officePhone: `(${def.areaCode}) 555-0100`,
+      licenceNumber: `DEMO-${def.code}-0001`, officeEmail: `office.${def.code.toLowerCase()}@coilpath.example`,
     });
     let color = 0;
     for (const p of def.people) addPerson(b, p, color++);

@@ -35,6 +35,11 @@ export function branchesRoutes(ctx: AppContext): Router {
           baseLon: branches.baseLon,
           holidays: branches.holidays,
           labourRateCents: branches.labourRateCents,
+          tradingName: branches.tradingName,
+          officeAddress: branches.officeAddress,
+          officePhone: branches.officePhone,
+          licenceNumber: branches.licenceNumber,
+          officeEmail: branches.officeEmail,
         })
         .from(branches)
         .where(and(isNull(branches.archivedAt), scope ? inArray(branches.id, scope) : undefined))

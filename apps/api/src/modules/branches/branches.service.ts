@@ -27,6 +27,11 @@ const toDetail = (b: BranchRow): BranchDetail => ({
   repeatAlarmDays: b.repeatAlarmDays,
   callbackWindowDays: b.callbackWindowDays,
   inspectionDueDays: b.inspectionDueDays,
+  tradingName: b.tradingName,
+  officeAddress: b.officeAddress,
+  officePhone: b.officePhone,
+  licenceNumber: b.licenceNumber,
+  officeEmail: b.officeEmail,
   archivedAt: b.archivedAt?.toISOString() ?? null,
 });
 

@@ -1,4 +1,4 @@
-/** Every query of the live events (`live_events`, written by the triggers of migration 0015). */
+/** Every query of the live events (`live_events`, written by the triggers of migration 0016). */
 import { and, asc, eq, gt, inArray, isNull, or, sql } from 'drizzle-orm';
 import type { LiveEventKind } from '@coilpath/contract';
 import type { Db } from '../../db/client';

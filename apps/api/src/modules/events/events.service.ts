@@ -1,6 +1,6 @@
 /**
  * Live events: what the open screens hear (`GET /api/events`). The database's triggers write each change to
- * `live_events` and announce its id (`coilpath_live`, migration 0015); each API process listens once per
+ * `live_events` and announce its id (`coilpath_live`, migration 0016); each API process listens once per
  * database (`LiveHub`) and hands the event to its connected screens whose person may see it (`mayHear`).
  */
 import { liveKindsFor, type LiveEvent, type SessionUser } from '@coilpath/contract';

@@ -115,6 +115,17 @@ describe('fix_quality_sums', () => {
     expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: null })).toEqual([]);
     expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })[0]).toMatchObject({ jobs: 1 });
     expect(rowOf(rows, a.id, '2026-03-01', 'origin', { origin: 'wear' })[0]).toMatchObject({ jobs: 1 });
+    // A second finding, then the technician marks it as the root cause: the job moves to the marked finding's cause.
+    const [marked] = await db.insert(findings).values({ visitId: v1!.id, unitId: unit.id, causeCode: 'refrigerant_leak', origin: 'factory_defect' }).returning();
+    await db.update(visits).set({ rootCauseFindingId: marked!.id }).where(eq(visits.id, v1!.id));
+    rows = await expectSumsAgree();
+    expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })).toEqual([]);
+    expect(rowOf(rows, a.id, '2026-03-01', 'origin', { origin: 'factory_defect' })[0]).toMatchObject({ jobs: 1 });
+    // Marked back on the first finding (and the second dropped), as the rest of this history expects.
+    await db.update(visits).set({ rootCauseFindingId: null }).where(eq(visits.id, v1!.id));
+    await db.delete(findings).where(eq(findings.id, marked!.id));
+    rows = await expectSumsAgree();
+    expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })[0]).toMatchObject({ jobs: 1 });
 
     // A callback opened 18 days after the close: inside the 30-day window.
     const cb = await makeWorkOrder(db, { branchId: a.id, siteId: site.id, unitId: unit.id, kind: 'callback', originWorkOrderId: job.id, createdAt: new Date('2026-03-20T10:00:00Z') });
@@ -229,6 +240,7 @@ const op = fc.oneof(
   { arbitrary: fc.record({ t: fc.constant('close' as const), visit: pick, hours: fc.option(later, { freq: 5 }), outcome }), weight: 2 },
   { arbitrary: fc.record({ t: fc.constant('finding' as const), visit: pick, cause: fc.constantFrom(...causeCodes), origin: fc.constantFrom(...causeOrigins), at: minute }), weight: 3 },
   { arbitrary: fc.record({ t: fc.constant('dropFinding' as const), finding: pick }), weight: 1 },
+  { arbitrary: fc.record({ t: fc.constant('markRootCause' as const), finding: fc.option(pick) }), weight: 2 },
   { arbitrary: fc.record({ t: fc.constant('followUp' as const), job: pick, kind: fc.constantFrom('callback' as const, 'return_visit' as const), hours: later }), weight: 3 },
   { arbitrary: fc.record({ t: fc.constant('delete' as const), wo: pick }), weight: 1 },
   { arbitrary: fc.record({ t: fc.constant('move' as const), wo: pick, branch: pick }), weight: 1 },
@@ -306,7 +318,16 @@ async function apply(w: World, o: Op) {
     }
     case 'dropFinding': {
       const f = of(await db.select({ id: findings.id }).from(findings).orderBy(findings.id), o.finding);
-      if (f) await db.delete(findings).where(eq(findings.id, f.id));
+      if (f) {
+        await db.update(visits).set({ rootCauseFindingId: null }).where(eq(visits.rootCauseFindingId, f.id));
+        await db.delete(findings).where(eq(findings.id, f.id));
+      }
+      return;
+    }
+    case 'markRootCause': {
+      // The technician marks a finding as its visit's root cause (none: the mark is taken off the finding's visit).
+      const f = of(await db.select({ id: findings.id, visitId: findings.visitId }).from(findings).orderBy(findings.id), o.finding ?? 0);
+      if (f) await db.update(visits).set({ rootCauseFindingId: o.finding === null ? null : f.id }).where(eq(visits.id, f.visitId));
       return;
     }
     case 'followUp': {
@@ -321,6 +342,7 @@ async function apply(w: World, o: Op) {
       await db.update(workOrders).set({ originWorkOrderId: null }).where(eq(workOrders.originWorkOrderId, wo.id));
       const vs = (await db.select({ id: visits.id }).from(visits).where(eq(visits.workOrderId, wo.id))).map((v) => v.id);
       if (vs.length) {
+        await db.update(visits).set({ rootCauseFindingId: null }).where(inArray(visits.id, vs));
         await db.delete(findings).where(inArray(findings.visitId, vs));
         await db.delete(visits).where(inArray(visits.id, vs));
       }
@@ -385,7 +407,9 @@ async function plainCounts(from: string, to: string, now: Date, branchId?: strin
     if (job.kind !== 'service_call' || (branchId && job.branchId !== branchId)) continue;
     const first = closedOf(job.id).sort(byKey)[0];
     if (!first || first.t < start || first.t >= end) continue;
-    const finding = fs.filter((f) => f.visitId === first.id).map((f) => ({ ...f, t: f.createdAt.getTime() })).sort(byKey)[0];
+    // The call's cause: its first visit's marked root cause, else that visit's only finding (migration 0017).
+    const own = fs.filter((f) => f.visitId === first.id);
+    const finding = first.rootCauseFindingId ? own.find((f) => f.id === first.rootCauseFindingId) : own.length === 1 ? own[0] : undefined;
     const followUps = wos.filter((f) => f.originWorkOrderId === job.id && (f.kind === 'callback' || f.kind === 'return_visit'));
     const last = [job, ...followUps].flatMap((x) => closedOf(x.id)).sort(byKey).at(-1)!;
     // First-time fix, callbacks and maturity by the pure definition (calc's `fixQuality`, kept as this
@@ -486,6 +510,7 @@ describe('fix_quality_sums under random changes', () => {
       fc.asyncProperty(fc.array(seedJob, { minLength: 3, maxLength: 20, size: 'max' }), fc.array(op, { maxLength: 40, size: 'max' }), period, fc.boolean(), fc.integer({ min: 20 * 24, max: 200 * 24 }), async (seeds, changes, p, oneBranch, nowHours) => {
         // A clean start: no work from the previous run (and no sums left behind by its deletion).
         await db.update(workOrders).set({ originWorkOrderId: null });
+        await db.update(visits).set({ rootCauseFindingId: null });
         await db.delete(findings);
         await db.delete(visits);
         await db.delete(workOrders);

@@ -356,8 +356,8 @@ const textArray = (v: string[] | string): string[] => (Array.isArray(v) ? v : v.
 
 /**
  * The factory-defect cases: service calls (first visits included: a warranty repair on the first visit is
- * claimable too), callbacks and return visits opened in the period with a finding of origin `factory_defect`
- * on one of their visits. A case costs the labour of its visits — and, for a callback or return visit, of the
+ * claimable too), callbacks and return visits opened in the period whose root cause (the finding marked on
+ * one of their visits, the view `visit_root_causes` of migration 0017) is of origin `factory_defect`. A case costs the labour of its visits — and, for a callback or return visit, of the
  * visits of work booked off it (a return visit whose origin is the callback; a service call's follow-ups are
  * cases of their own) — recorded labour minutes, else on-site to close — at the branch's labour rate, and the
  * refrigerant added on those visits at the branch's price per pound. The claim's amount defaults to that cost;
@@ -376,7 +376,7 @@ export async function factoryDefectCases(db: Tx, opts: { period?: Period; branch
     WITH cases AS (
       SELECT w.id, w.kind, coalesce(w.unit_id, (array_agg(fd.unit_id ORDER BY fd.created_at) FILTER (WHERE fd.unit_id IS NOT NULL))[1]) AS unit_id,
         array_agg(DISTINCT fd.cause_code) AS causes
-      FROM findings fd
+      FROM visit_root_causes fd
       JOIN visits v ON v.id = fd.visit_id
       JOIN work_orders w ON w.id = v.work_order_id
       WHERE fd.origin = 'factory_defect' AND w.kind IN ('service_call', 'callback', 'return_visit') ${sql.join(filters, sql` `)}
@@ -529,7 +529,7 @@ export async function updateWarrantyClaim(db: Db, clock: Clock, user: SessionUse
     if (!wo || (user.role !== 'owner' && wo.branchId !== user.branchId)) throw notFound('work order');
     const [isCase] = await factoryDefectCases(tx, { workOrderId });
     if (!isCase) {
-      throw unprocessable('A warranty claim belongs to a service call, callback or return visit with a factory-defect finding; this work order has none.');
+      throw unprocessable('A warranty claim belongs to a service call, callback or return visit whose root cause is a factory defect; this work order has none.');
     }
     const [existing] = await tx.select().from(warrantyClaims).where(eq(warrantyClaims.workOrderId, workOrderId)).limit(1);
     // The amount defaults to the job's computed cost once the claim is claimed or paid.

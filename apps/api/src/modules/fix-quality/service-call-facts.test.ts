@@ -52,9 +52,27 @@ describe('service_call_facts', () => {
     const [v1] = await db.insert(visits).values({ branchId: branch.id, workOrderId: job.id, techId: tech.id }).returning();
     await db.update(visits).set({ closedAt: new Date('2026-03-02T10:00:00Z'), outcome: 'needs_return' }).where(eq(visits.id, v1!.id));
     await db.insert(findings).values({ visitId: v1!.id, unitId: unit.id, causeCode: 'airflow', origin: 'wear', createdAt: new Date('2026-03-02T09:00:00Z') });
-    await db.insert(findings).values({ visitId: v1!.id, unitId: unit.id, causeCode: 'settings', origin: 'external', createdAt: new Date('2026-03-02T09:30:00Z') });
     facts = await expectRebuildAgrees();
+    // One finding: it is the root cause by default.
     expect(facts[0]).toMatchObject({ firstVisitId: v1!.id, firstOutcome: 'needs_return', techId: tech.id, causeCode: 'airflow', origin: 'wear', lastOutcome: 'needs_return' });
+    const [second] = await db
+      .insert(findings)
+      .values({ visitId: v1!.id, unitId: unit.id, causeCode: 'settings', origin: 'external', createdAt: new Date('2026-03-02T09:30:00Z') })
+      .returning();
+    // Two findings and none marked: no cause (close-out requires the mark; migration 0017).
+    facts = await expectRebuildAgrees();
+    expect(facts[0]).toMatchObject({ causeCode: null, origin: null });
+    // The technician marks the second finding: the call's cause is the marked one, not the first typed.
+    await db.update(visits).set({ rootCauseFindingId: second!.id }).where(eq(visits.id, v1!.id));
+    facts = await expectRebuildAgrees();
+    expect(facts[0]).toMatchObject({ causeCode: 'settings', origin: 'external' });
+    await db.update(findings).set({ origin: 'installation' }).where(eq(findings.id, second!.id));
+    facts = await expectRebuildAgrees();
+    expect(facts[0]).toMatchObject({ causeCode: 'settings', origin: 'installation' });
+    await db.update(visits).set({ rootCauseFindingId: null }).where(eq(visits.id, v1!.id));
+    await db.delete(findings).where(eq(findings.id, second!.id));
+    facts = await expectRebuildAgrees();
+    expect(facts[0]).toMatchObject({ causeCode: 'airflow', origin: 'wear' });
 
     // A return visit and a callback booked off the job; the return visit resolves it.
     const rv = await makeWorkOrder(db, { branchId: branch.id, siteId: site.id, unitId: unit.id, kind: 'return_visit', originWorkOrderId: job.id, createdAt: new Date('2026-03-03T08:00:00Z') });

@@ -1,16 +1,16 @@
 import { and, eq, inArray } from 'drizzle-orm';
 import type { CloseVisitResult, SessionUser, SummaryMailResult, WorkOrderState } from '@coilpath/contract';
-import { closeVisitSchema, returnNeedLabels } from '@coilpath/contract';
+import { closeVisitSchema, leakRepairCloseRefusal, returnNeedLabels, rootCauseChoice } from '@coilpath/contract';
 import { requiredCertificationFor } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
-import { branches, customers, leakCases, sites, units, visitEvents, visits, workOrders } from '../../db/schema';
-import { conflict, forbidden } from '../../lib/errors';
+import { branches, customers, findings, leakCases, refrigerantEvents, sites, units, users, visitEvents, visits, workOrders } from '../../db/schema';
+import { conflict, forbidden, HttpError } from '../../lib/errors';
 import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
 import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
-import { summaryMail, summaryPdf, summarySections } from './summary';
-import { visitDetail } from './visits.service';
+import { summaryMail, summaryPdf, summarySections, type SummaryContext } from './summary';
+import { leakRepairOf, visitDetail } from './visits.service';
 import { actAs } from '../events/actor';
 
 type Input = z.output<typeof closeVisitSchema>;
@@ -32,12 +32,27 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
       if (!v.onSiteAt) {
         throw conflict('not_on_site', 'Mark yourself on site before closing the visit, so its times are right.');
       }
+      // The root cause: required among several findings, the only one by default (`rootCauseChoice`).
+      const findingIds = (await tx.select({ id: findings.id }).from(findings).where(eq(findings.visitId, id))).map((f) => f.id);
+      const rootCause = rootCauseChoice(findingIds, input.rootCauseFindingId);
+      if (!rootCause.ok) throw new HttpError(422, rootCause.code, rootCause.message, { fields: [{ path: 'rootCauseFindingId', message: rootCause.message }] });
+      // A leak repair closed as resolved with nothing to show for it needs the technician's confirmation.
+      const [woRow] = await tx.select({ id: workOrders.id, leakCaseId: workOrders.leakCaseId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+      const unverified = leakRepairCloseRefusal({
+        leakRepair: await leakRepairOf(tx, woRow!),
+        outcome: input.outcome,
+        refrigerantEntries: (await tx.select({ id: refrigerantEvents.id }).from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id))).length,
+        confirmed: input.confirmedWithoutVerification,
+      });
+      if (unverified) throw new HttpError(422, unverified.code, unverified.message, { fields: [{ path: 'confirmedWithoutVerification', message: unverified.message }] });
       const now = ctx.clock.now();
       await tx
         .update(visits)
         .set({
           closedAt: now,
           outcome: input.outcome,
+          rootCauseFindingId: rootCause.findingId,
+          notesAudience: input.notes !== undefined ? input.notesAudience : v.notesAudience,
           returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
           returnNotes: input.outcome === 'needs_return' ? (input.returnNotes ?? null) : null,
           notes: input.notes ?? v.notes,
@@ -148,6 +163,31 @@ async function summaryAddress(ctx: AppContext, visitId: string): Promise<string 
   return row?.site?.trim() || row?.customer?.trim() || null;
 }
 
+/** Who the summary speaks for (the branch's contractor details, the technician) and the units' open leak cases. */
+async function summaryContext(ctx: AppContext, visitId: string, unitIds: string[]): Promise<SummaryContext> {
+  const [row] = await ctx.db
+    .select({ branch: branches, techName: users.name, epa608Number: users.epa608Number })
+    .from(visits)
+    .innerJoin(branches, eq(branches.id, visits.branchId))
+    .innerJoin(users, eq(users.id, visits.techId))
+    .where(eq(visits.id, visitId))
+    .limit(1);
+  const b = row!.branch;
+  const cases = unitIds.length
+    ? await ctx.db
+        .select({ unitTag: units.tag, openedOn: leakCases.openedOn, leakRatePercent: leakCases.leakRatePercent, thresholdPercent: leakCases.thresholdPercent, repairDueDate: leakCases.repairDueDate })
+        .from(leakCases)
+        .innerJoin(units, eq(units.id, leakCases.unitId))
+        .where(and(inArray(leakCases.unitId, unitIds), eq(leakCases.status, 'open')))
+        .orderBy(leakCases.repairDueDate)
+    : [];
+  return {
+    contractor: { tradingName: b.tradingName, address: b.officeAddress, phone: b.officePhone, licenceNumber: b.licenceNumber, email: b.officeEmail },
+    technician: { name: row!.techName, epa608Number: row!.epa608Number },
+    openLeakCases: cases,
+  };
+}
+
 /**
  * Mails the service summary (text + PDF) of a closed visit and records `summarySentAt`. Never
  * throws for a mail failure: it answers `{ sent: false, error }` so the screen can say so.
@@ -157,10 +197,13 @@ export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: s
   if (!to) return { sent: false, to: null, error: 'Neither the site nor the customer has a contact e-mail address, so no summary was sent.' };
   try {
     const detail = await visitDetail(ctx.db, user, visitId);
-    const s = summarySections(detail);
+    const c = await summaryContext(ctx, visitId, detail.units.map((u) => u.id));
+    const s = summarySections(detail, c);
     const pdf = await summaryPdf(s, ctx.clock.now());
     await ctx.mailer.send({
       to,
+      // Replies go to the branch's office, not to Coilpath's sending address.
+      ...(c.contractor.email.trim() ? { replyTo: c.contractor.email.trim() } : {}),
       ...summaryMail(s),
       attachments: [{ filename: `service-summary-WO-${detail.workOrder.number ?? 'visit'}.pdf`, content: pdf, contentType: 'application/pdf' }],
     });

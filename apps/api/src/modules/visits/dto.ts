@@ -63,6 +63,7 @@ export function findingDto(f: typeof findings.$inferSelect): FindingDto {
     reportedCircuit: f.reportedCircuit,
     actualCircuit: f.actualCircuit,
     notes: f.notes,
+    notesAudience: f.notesAudience,
     createdAt: iso(f.createdAt),
   };
 }

@@ -1,9 +1,15 @@
-/** The service summary a customer receives when a visit closes: plain text and a PDF copy. */
+/**
+ * The service summary a customer receives when a visit closes: plain text and a PDF copy. It speaks for the
+ * contractor (the branch's trading name, address, phone, licence number and office e-mail; the technician's
+ * name and EPA 608 certification number) and tells the customer only what is theirs: notes marked for the
+ * customer, the findings in plain words, the readings, refrigerant added or recovered, and any open leak
+ * case with its repair deadline. Internal notes (a visit's or finding's notes left `internal`, reading notes,
+ * return-visit needs and their notes) never go into it.
+ */
 import {
   causeCodeLabels,
   causeOriginLabels,
   refrigerantEventReasonLabels,
-  returnNeedLabels,
   visitOutcomeLabels,
   workOrderKindLabels,
   formatMeasure,
@@ -32,40 +38,62 @@ function readingLines(r: ReadingDto, unitTag: string): string[] {
     lines.push(`  Discharge pressure ${p(r.dischargePressure)} (controller ${p(r.dischargePressureController)})`);
   lines.push(`  Liquid line ${t(r.liquidLineTemp)}, subcooling ${d(r.subcooling)}`);
   if (r.outdoorTemp !== null) lines.push(`  Outdoor air ${t(r.outdoorTemp)}`);
-  if (r.notes) lines.push(`  Notes: ${r.notes}`);
+  // A reading's notes are the technician's working notes: internal.
   return lines;
+}
+
+/** Who the summary speaks for, and what the visit's units owe under the leak-repair rules. */
+export interface SummaryContext {
+  contractor: { tradingName: string; address: string; phone: string; licenceNumber: string; email: string };
+  technician: { name: string; epa608Number: string | null };
+  /** Open leak cases on the visit's units (repair still due). */
+  openLeakCases: { unitTag: string; openedOn: string; leakRatePercent: number; thresholdPercent: number; repairDueDate: string }[];
 }
 
 export interface SummarySections {
   title: string;
+  /** The contractor's name and how to reach it (heads the summary). */
+  contractor: string[];
   facts: [string, string][];
   readings: string[];
   findings: string[];
   refrigerant: string[];
+  /** Open leak cases with their repair deadlines. */
+  leaks: string[];
   outcome: string[];
 }
 
-export function summarySections(v: VisitDetail): SummarySections {
+/** A calendar date `YYYY-MM-DD` as words ("Thu 10 Dec 2026"), without moving it through a zone. */
+const dateWords = (d: string) =>
+  new Date(`${d}T12:00:00Z`).toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).replace(/,/g, '');
+
+export function summarySections(v: VisitDetail, c: SummaryContext): SummarySections {
   const tz = v.branch.timeZone;
   const tagOf = new Map(v.units.map((u) => [u.id, `${u.tag} (${u.make} ${u.model}, serial ${u.serial})`]));
   const wo = `WO-${v.workOrder.number ?? '?'}`;
   const outcome = [`Outcome: ${v.outcome ? visitOutcomeLabels[v.outcome] : '-'}`];
-  if (v.outcome === 'needs_return') {
-    outcome.push(`A return visit is needed for: ${v.returnNeeds.map((n) => returnNeedLabels[n]).join(', ') || '-'}. The branch will book it with you.`);
-    if (v.returnNotes) outcome.push(`What is needed: ${v.returnNotes}`);
-  }
-  if (v.notes) outcome.push(`Technician's notes: ${v.notes}`);
+  // What the return visit needs (parts, a second technician…) and its notes are the office's: internal.
+  if (v.outcome === 'needs_return') outcome.push('A return visit is needed. We will contact you to book it.');
+  if (v.notes && v.notesAudience === 'customer') outcome.push(`Technician's notes: ${v.notes}`);
+  const name = c.contractor.tradingName.trim() || v.branch.name;
+  const contractor = [
+    name,
+    c.contractor.address.trim(),
+    [c.contractor.phone.trim() && `Phone ${c.contractor.phone.trim()}`, c.contractor.email.trim()].filter(Boolean).join(' · '),
+    c.contractor.licenceNumber.trim() && `Licence ${c.contractor.licenceNumber.trim()}`,
+  ].filter((l): l is string => !!l);
+  const techLine = c.technician.epa608Number?.trim() ? `${c.technician.name} (EPA 608 certification ${c.technician.epa608Number.trim()})` : c.technician.name;
   return {
     title: `Service summary ${wo} - ${v.site.name}`,
+    contractor,
     facts: [
       ['Work order', `${wo}, ${workOrderKindLabels[v.workOrder.kind]}`],
       ['Site', `${v.site.name}, ${v.site.address}${v.site.city ? `, ${v.site.city}` : ''}`],
       ['Reported problem', v.workOrder.complaint || '-'],
       ['Units', v.units.map((u) => tagOf.get(u.id)).join('; ') || '-'],
-      ['Technician', v.techName],
+      ['Technician', techLine],
       ['Arrived', when(v.onSiteAt, tz)],
       ['Closed', when(v.closedAt, tz)],
-      ['Branch', v.branch.name],
     ],
     readings: v.readings.flatMap((r) => readingLines(r, v.units.find((u) => u.id === r.unitId)?.tag ?? 'Unit')),
     findings: v.findings.map((f) => {
@@ -73,11 +101,15 @@ export function summarySections(v: VisitDetail): SummarySections {
       if (f.alarmCode) parts.push(`alarm ${f.alarmCode}`);
       if (f.reportedCircuit !== null || f.actualCircuit !== null)
         parts.push(`reported on circuit ${f.reportedCircuit ?? '-'}, found on circuit ${f.actualCircuit ?? '-'}`);
-      return `${parts.join('; ')}${f.notes ? `. ${f.notes}` : ''}`;
+      return `${parts.join('; ')}${f.notes && f.notesAudience === 'customer' ? `. ${f.notes}` : ''}`;
     }),
     refrigerant: v.refrigerantEvents.map(
       (e) =>
         `${e.date}: ${e.refrigerant}, added ${e.poundsAdded.toFixed(1)} lb, recovered ${e.poundsRecovered.toFixed(1)} lb (${refrigerantEventReasonLabels[e.reason]})${e.cylinderLot ? `, cylinder/lot ${e.cylinderLot}` : ''}`,
+    ),
+    leaks: c.openLeakCases.map(
+      (l) =>
+        `${l.unitTag}: a leak rate of ${l.leakRatePercent.toFixed(1)} % a year is above the ${l.thresholdPercent} % limit (found ${dateWords(l.openedOn)}). The repair is due by ${dateWords(l.repairDueDate)}.`,
     ),
     outcome,
   };
@@ -85,12 +117,13 @@ export function summarySections(v: VisitDetail): SummarySections {
 
 /** The summary as e-mail blocks: the same sections as the PDF. */
 export function summaryBlocks(s: SummarySections): MailBlock[] {
-  const blocks: MailBlock[] = [mail.facts(s.facts), mail.heading('Readings')];
+  const blocks: MailBlock[] = [...s.contractor.map((l, i) => mail.p(l, i > 0)), mail.facts(s.facts), mail.heading('Readings')];
   if (!s.readings.length) blocks.push(mail.p('No readings were recorded.'));
   // A reading's first line names the unit and circuit; the indented lines below are its values.
   for (const l of s.readings) blocks.push(mail.p(l.startsWith('  ') ? l.trim() : l));
   blocks.push(mail.heading('Findings'), s.findings.length ? mail.list(s.findings) : mail.p('No findings were recorded.'));
   if (s.refrigerant.length) blocks.push(mail.heading('Refrigerant'), mail.list(s.refrigerant));
+  if (s.leaks.length) blocks.push(mail.heading('Leak repair due'), mail.list(s.leaks));
   blocks.push(mail.heading('Outcome'), ...s.outcome.map((l) => mail.p(l)));
   blocks.push(mail.p('A PDF copy of this summary is attached.', true));
   return blocks;
@@ -110,6 +143,7 @@ export function summaryText(s: SummarySections): string {
 export function summaryPdf(s: SummarySections, createdAt?: Date): Promise<Buffer> {
   const pdf = createPdf({ title: s.title, subject: 'Service summary', createdAt });
   pdf.heading(s.title, 1);
+  s.contractor.forEach((l, i) => pdf.paragraph(l, i === 0 ? { strong: true } : { color: pdfSlate }));
   for (const [k, val] of s.facts) pdf.paragraph(val, { lead: `${k}: ` });
   pdf.heading('Readings');
   if (!s.readings.length) pdf.paragraph('No readings were recorded.', { color: pdfSlate });
@@ -120,6 +154,10 @@ export function summaryPdf(s: SummarySections, createdAt?: Date): Promise<Buffer
   if (s.refrigerant.length) {
     pdf.heading('Refrigerant');
     pdf.list(s.refrigerant);
+  }
+  if (s.leaks.length) {
+    pdf.heading('Leak repair due');
+    pdf.list(s.leaks);
   }
   pdf.heading('Outcome');
   for (const l of s.outcome) pdf.paragraph(l);

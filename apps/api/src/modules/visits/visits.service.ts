@@ -19,6 +19,7 @@ import {
   branches,
   circuits,
   findings,
+  leakCases,
   readings,
   refrigerantEvents,
   sites,
@@ -65,6 +66,20 @@ async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: st
   }));
 }
 
+/**
+ * The open leak case this work order repairs (its repair visit, or the case it was made for), with the number
+ * of verification tests recorded on it; null when the work order repairs none.
+ */
+export async function leakRepairOf(db: Tx, wo: { id: string; leakCaseId: string | null }) {
+  const [c] = await db
+    .select({ leakCaseId: leakCases.id, repairDueDate: leakCases.repairDueDate, verificationTests: sql<number>`(SELECT count(*) FROM verification_tests vt WHERE vt.leak_case_id = "leak_cases"."id")::int` })
+    .from(leakCases)
+    .where(and(eq(leakCases.status, 'open'), wo.leakCaseId ? sql`(${leakCases.repairWorkOrderId} = ${wo.id} OR ${leakCases.id} = ${wo.leakCaseId})` : eq(leakCases.repairWorkOrderId, wo.id)))
+    .orderBy(asc(leakCases.repairDueDate))
+    .limit(1);
+  return c ?? null;
+}
+
 /** Everything the Visit screen shows, one query per section. */
 export async function visitDetail(db: Tx, user: SessionUser, id: string): Promise<VisitDetail> {
   const [row] = await db
@@ -88,7 +103,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
   const { visit: v, wo, site, branch } = row!;
   const canWrite = user.role === 'technician' && v.techId === user.id && !v.closedAt;
 
-  const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows] = await Promise.all([
+  const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows, leakRepair] = await Promise.all([
     unitsWithCircuits(db, wo),
     db
       .select({ r: readings, number: circuits.number })
@@ -96,10 +111,11 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
       .innerJoin(circuits, eq(circuits.id, readings.circuitId))
       .where(eq(readings.visitId, id))
       .orderBy(asc(circuits.number)),
-    db.select().from(findings).where(eq(findings.visitId, id)).orderBy(asc(findings.createdAt)),
+    db.select().from(findings).where(eq(findings.visitId, id)).orderBy(asc(findings.createdAt), asc(findings.id)),
     db.select().from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id)).orderBy(asc(refrigerantEvents.createdAt)),
     db.select().from(attachments).where(eq(attachments.visitId, id)).orderBy(asc(attachments.createdAt)),
     db.select().from(visitEvents).where(eq(visitEvents.visitId, id)).orderBy(asc(visitEvents.at)),
+    leakRepairOf(db, wo),
   ]);
 
   return {
@@ -115,6 +131,9 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
     returnNeeds: v.returnNeeds,
     returnNotes: v.returnNotes,
     notes: v.notes,
+    notesAudience: v.notesAudience,
+    rootCauseFindingId: v.rootCauseFindingId,
+    leakRepair,
     summarySentAt: v.summarySentAt?.toISOString() ?? null,
     version: v.version,
     booking: row!.booking ? { id: row!.booking.id, startAt: row!.booking.startAt.toISOString(), endAt: row!.booking.endAt.toISOString() } : null,
@@ -286,6 +305,7 @@ export async function addFinding(ctx: AppContext, user: SessionUser, id: string,
         reportedCircuit: input.reportedCircuit ?? null,
         actualCircuit: input.actualCircuit ?? null,
         notes: input.notes ?? null,
+        notesAudience: input.notesAudience,
       })
       .returning();
     return { finding: findingDto(f!), created: true };

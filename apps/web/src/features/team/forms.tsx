@@ -337,6 +337,11 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       repeatAlarmDays: 30,
       callbackWindowDays: 30,
       inspectionDueDays: 30,
+      tradingName: '',
+      officeAddress: '',
+      officePhone: '',
+      licenceNumber: '',
+      officeEmail: '',
     },
   });
   const e = form.formState.errors;
@@ -394,6 +399,21 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
         name="holidays"
         render={({ field }) => <HolidaysField value={(field.value as string[] | undefined) ?? []} onChange={field.onChange} error={e.holidays?.message ?? e.holidays?.[0]?.message} />}
       />
+      <fieldset className="grid gap-4 sm:grid-cols-2">
+        <legend className="mb-2 text-sm font-semibold">On the customer’s service summary</legend>
+        <TextField label="Trading name" hint="Blank: the branch’s name" {...form.register('tradingName')} error={e.tradingName?.message} />
+        <TextField label="Licence number" {...form.register('licenceNumber')} error={e.licenceNumber?.message} />
+        <TextField label="Office address" autoComplete="street-address" {...form.register('officeAddress')} error={e.officeAddress?.message} />
+        <TextField label="Office phone" type="tel" autoComplete="tel" {...form.register('officePhone')} error={e.officePhone?.message} />
+        <TextField
+          label="Office e-mail"
+          type="email"
+          autoComplete="email"
+          hint="Customers’ replies to a summary go here"
+          {...form.register('officeEmail')}
+          error={e.officeEmail?.message}
+        />
+      </fieldset>
       <fieldset className="grid gap-4 sm:grid-cols-3">
         <legend className="mb-2 text-sm font-semibold">Thresholds</legend>
         <TextField label="Sensor check tolerance (%)" inputMode="decimal" {...form.register('sensorTolerancePercent', num)} error={e.sensorTolerancePercent?.message} hint="Controller vs reference gauge" />

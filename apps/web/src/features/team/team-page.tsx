@@ -382,6 +382,12 @@ export default function TeamPage() {
                   <dd className="tabular">{b.callbackWindowDays} days</dd>
                   <dt className="text-slate">Model-alert inspections due</dt>
                   <dd className="tabular">within {b.inspectionDueDays} days</dd>
+                  <dt className="text-slate">On summaries</dt>
+                  <dd>
+                    {b.tradingName || b.name}
+                    {b.licenceNumber ? `, licence ${b.licenceNumber}` : ''}
+                    {b.officeEmail ? <span className="block text-xs text-slate">Replies to {b.officeEmail}</span> : <span className="block text-xs text-slate">No office e-mail: replies go to the sending address</span>}
+                  </dd>
                   <dt className="text-slate">Holidays</dt>
                   <dd>{b.holidays.length ? `${b.holidays.length} (next ${b.holidays.find((d) => d >= todayInZone(b.timeZone)) ?? '—'})` : 'None'}</dd>
                 </dl>

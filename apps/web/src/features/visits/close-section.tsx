@@ -3,12 +3,19 @@ import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
 import {
+  causeCodeLabels,
+  causeOriginLabels,
+  leakRepairCloseRefusal,
+  noteAudienceLabels,
+  noteAudiences,
   returnNeedLabels,
+  rootCauseChoice,
   returnNeeds,
   visitOutcomeLabels,
   visitOutcomes,
   workOrderStateLabels,
   type CloseVisitResult,
+  type NoteAudience,
   type ReturnNeed,
   type SummaryMailResult,
   type VisitDetail,
@@ -59,6 +66,9 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   const [needs, setNeeds] = useState<ReturnNeed[]>([]);
   const [returnNotes, setReturnNotes] = useState('');
   const [notes, setNotes] = useState('');
+  const [notesAudience, setNotesAudience] = useState<NoteAudience>('internal');
+  const [rootCause, setRootCause] = useState<string>('');
+  const [confirmedUnverified, setConfirmedUnverified] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const [result, setResult] = useState<CloseVisitResult | null>(null);
   const [summary, setSummary] = useState<SummaryMailResult | null>(null);
@@ -126,16 +136,35 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   if (!visit.canWrite) return null;
 
   const notOnSite = visit.status !== 'on_site';
+  // The server's rule: a leak repair closed as resolved with no verification test and no refrigerant entry is confirmed in words.
+  const unverified = outcome
+    ? leakRepairCloseRefusal({ leakRepair: visit.leakRepair, outcome, refrigerantEntries: visit.refrigerantEvents.length, confirmed: false })
+    : null;
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
     setError(null);
     if (!outcome) return setError('Choose the outcome of the visit.');
     if (outcome === 'needs_return' && needs.length === 0) return setError('Say what the return visit needs.');
+    // The same rule the server applies (`rootCauseChoice`): a choice among several findings.
+    const choice = rootCauseChoice(
+      visit.findings.map((f) => f.id),
+      rootCause || null,
+    );
+    if (!choice.ok) return setError(choice.message);
+    if (unverified && !confirmedUnverified) return setError(unverified.message);
     // Through the outbox: closed on this phone at once, sent after the visit's earlier changes.
     queueWrite(qc, {
       kind: 'close',
       visitId: visit.id,
-      body: { outcome, returnNeeds: outcome === 'needs_return' ? needs : [], returnNotes: returnNotes.trim() || null, notes: notes.trim() || null },
+      body: {
+        outcome,
+        returnNeeds: outcome === 'needs_return' ? needs : [],
+        returnNotes: returnNotes.trim() || null,
+        notes: notes.trim() || null,
+        notesAudience,
+        rootCauseFindingId: choice.findingId,
+        ...(unverified ? { confirmedWithoutVerification: confirmedUnverified } : {}),
+      },
     }, { sent: arrived, stopped: (e) => notify(`Visit not closed: ${e.problem?.message ?? 'refused'}`, 'alarm') }).then(
       () => {
         if (!onlineManager.isOnline()) notify('Visit closed on this phone; the close-out is sent when the connection is back.');
@@ -182,7 +211,63 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
             </div>
           </fieldset>
         )}
-        <TextAreaField label="Notes for the summary" value={notes} onChange={(e) => setNotes(e.target.value)} />
+        {visit.findings.length > 0 && (
+          <fieldset>
+            <legend className="mb-1 text-sm font-medium">Root cause</legend>
+            <p className="mb-2 text-sm text-slate">
+              {visit.findings.length > 1 ? 'Which finding caused the call? Fix Quality counts the call under this one.' : 'The one finding is the root cause.'}
+            </p>
+            <div className="flex flex-col gap-2">
+              {visit.findings.map((f) => (
+                <label
+                  key={f.id}
+                  className="flex min-h-12 cursor-pointer items-start gap-3 rounded-md border border-slate-line p-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint"
+                >
+                  <input
+                    type="radio"
+                    name="rootCause"
+                    value={f.id}
+                    checked={visit.findings.length === 1 ? !rootCause || rootCause === f.id : rootCause === f.id}
+                    onChange={() => setRootCause(f.id)}
+                    className="mt-1 size-5"
+                  />
+                  <span>
+                    <span className="block font-medium">{causeCodeLabels[f.causeCode]}</span>
+                    <span className="block text-sm text-slate">
+                      {causeOriginLabels[f.origin]}
+                      {f.notes ? ` — ${f.notes}` : ''}
+                    </span>
+                  </span>
+                </label>
+              ))}
+            </div>
+          </fieldset>
+        )}
+        <TextAreaField label="Visit notes" value={notes} onChange={(e) => setNotes(e.target.value)} />
+        <fieldset>
+          <legend className="mb-2 text-sm font-medium">Who the notes are for</legend>
+          <div className="grid grid-cols-1 gap-2 sm:grid-cols-2">
+            {noteAudiences.map((a) => (
+              <label key={a} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint">
+                <input type="radio" name="notesAudience" value={a} checked={notesAudience === a} onChange={() => setNotesAudience(a)} className="size-5" />
+                {noteAudienceLabels[a]}
+              </label>
+            ))}
+          </div>
+          <p className="mt-1 text-xs text-slate">Only notes for the customer go into the service summary; return needs, warranty and staffing stay internal.</p>
+        </fieldset>
+        {unverified && (
+          <div className="flex flex-col gap-2 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm text-ink">
+            <p className="inline-flex items-start gap-1">
+              <AlertTriangle className="mt-0.5 size-4 shrink-0 text-watch" aria-hidden="true" />
+              <span>{unverified.message}</span>
+            </p>
+            <label className="flex min-h-12 cursor-pointer items-center gap-3">
+              <input type="checkbox" className="size-5" checked={confirmedUnverified} onChange={(e) => setConfirmedUnverified(e.target.checked)} />
+              Yes, close the leak repair as resolved without a verification test or refrigerant entry
+            </label>
+          </div>
+        )}
         {unsaved && (
           <p className="inline-flex items-center gap-1 text-sm text-watch">
             <AlertTriangle className="size-4" aria-hidden="true" /> Some entries are not saved yet; they will not be in the summary. Save them first.

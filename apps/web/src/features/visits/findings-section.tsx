@@ -3,7 +3,17 @@ import { useForm } from 'react-hook-form';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
-import { causeCodeLabels, causeCodes, causeOriginLabels, causeOrigins, findingInputSchema, type FindingInput, type VisitDetail } from '@coilpath/contract';
+import {
+  causeCodeLabels,
+  causeCodes,
+  causeOriginLabels,
+  causeOrigins,
+  findingInputSchema,
+  noteAudienceLabels,
+  noteAudiences,
+  type FindingInput,
+  type VisitDetail,
+} from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { Badge, Card } from '@/components/ui/page';
@@ -21,6 +31,7 @@ const formSchema = z.object({
   reportedCircuit: z.string(),
   actualCircuit: z.string(),
   notes: z.string().max(4000),
+  notesAudience: z.enum(noteAudiences),
 });
 type FormValues = z.input<typeof formSchema>;
 
@@ -34,6 +45,7 @@ const toInput = (v: z.output<typeof formSchema>, id: string): FindingInput & { i
     reportedCircuit: v.reportedCircuit ? Number(v.reportedCircuit) : null,
     actualCircuit: v.actualCircuit ? Number(v.actualCircuit) : null,
     notes: v.notes.trim() || null,
+    notesAudience: v.notesAudience,
   }) as FindingInput & { id: string };
 
 export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; draft: VisitDraft; update(fn: (d: VisitDraft) => VisitDraft): void }) {
@@ -43,7 +55,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
   const circuits = [...new Set(visit.units.flatMap((u) => u.circuits.map((c) => c.number)))].sort((a, b) => a - b);
   const form = useForm<FormValues>({
     resolver: zodResolver(formSchema),
-    defaultValues: { unitId: visit.units.length === 1 ? visit.units[0]!.id : '', causeCode: undefined, origin: undefined, alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '' },
+    defaultValues: { unitId: visit.units.length === 1 ? visit.units[0]!.id : '', causeCode: undefined, origin: undefined, alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '', notesAudience: 'internal' },
   });
   const unitTag = (id: string | null | undefined) => visit.units.find((u) => u.id === id)?.tag;
 
@@ -79,7 +91,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
 
   const onSubmit = form.handleSubmit((v) => {
     const f = toInput(formSchema.parse(v), crypto.randomUUID());
-    form.reset({ ...form.getValues(), alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '' });
+    form.reset({ ...form.getValues(), alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '', notesAudience: 'internal' });
     void send(f);
   });
 
@@ -109,7 +121,11 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
                   )}
                 </p>
               )}
-              {f.notes && <p className="mt-1 text-slate">{f.notes}</p>}
+              {f.notes && (
+                <p className="mt-1 text-slate">
+                  {f.notes} <span className="text-xs">({noteAudienceLabels[f.notesAudience ?? 'internal'].toLowerCase()})</span>
+                </p>
+              )}
             </li>
           ))}
         </ul>
@@ -162,6 +178,13 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
           <div className="sm:col-span-2">
             <TextAreaField label="Notes" {...form.register('notes')} />
           </div>
+          <SelectField label="Who the notes are for" hint="Only notes for the customer go into the service summary." {...form.register('notesAudience')}>
+            {noteAudiences.map((a) => (
+              <option key={a} value={a}>
+                {noteAudienceLabels[a]}
+              </option>
+            ))}
+          </SelectField>
           <div className="sm:col-span-2">
             <Button type="submit" size="lg" variant="secondary" className="w-full sm:w-auto">
               Add finding
