@@ -520,7 +520,7 @@ function mixedMeasures(mixed: { pglite: MixedFigures | null; postgres: MixedFigu
     const errs = Object.entries(f.errors).map(([s, n]) => `${n}× ${s}`).join(', ') || 'none';
     const ok = Object.keys(f.errors).length === 0 && f.over1s === 0 && table.filter((r) => r[0]!.startsWith(`${label}:`)).every((r) => !r[8]!.startsWith('FAIL'));
     console.log(
-      `\n${label}: ${f.requests} requests in ${f.seconds} s = ${f.rps.toFixed(1)} requests/s; errors: ${errs}; over 1 s: ${f.over1s}; budgets ${ok ? 'hold' : 'FAIL'}.` +
+      `\n${label}: ${f.requests} requests in ${f.seconds} s (the window and the answers still due after it) = ${f.rps.toFixed(1)} requests/s; errors: ${errs}; over 1 s: ${f.over1s}; budgets ${ok ? 'hold' : 'FAIL'}.` +
         `\n  event-loop delay, API: mean ${ms(f.apiLoopDelay?.mean)}, p99 ${ms(f.apiLoopDelay?.p99)}, max ${ms(f.apiLoopDelay?.max)}; bench client: mean ${ms(f.clientLoopDelay.mean)}, p99 ${ms(f.clientLoopDelay.p99)}, max ${ms(f.clientLoopDelay.max)}` +
         `\n  (setup before the window: sign-ins, bookings, visits on site: ${f.setupSeconds} s)`,
     );

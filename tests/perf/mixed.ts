@@ -8,9 +8,11 @@
  *    booking moved (`PATCH /api/bookings/:id` with its version) every 30 s;
  *  - 5 managers: the Watchlist (its four requests) every 15 s;
  *  - the owner: Fix Quality for a year of all branches once a minute.
- * Each client's first request falls at a random point of its first interval (seeded; within the first half of
- * the run when the run is shorter than the interval), so the clients do not fire in lockstep. A client that
- * falls behind starts its next round as soon as the last one is answered.
+ * Each client's first request falls at a random point of its first interval (seeded), so the clients do not
+ * fire in lockstep and the requests per second are the scenario's whatever the run's length: in a run shorter
+ * than an interval only the clients whose first turn falls inside it take part — except the owner, whose one
+ * report falls in the first half of such a run. A client that falls behind starts its next round as soon as
+ * the last one is answered; no request starts after the window (those under way are awaited and counted).
  *
  * Before the measured window, and through the API as the people would: everyone signs in; each branch's
  * dispatcher books one new service call per technician after the technician's last booking of the day (working
@@ -29,6 +31,12 @@ import { BENCH_END, BENCH_OWNER, BENCH_PASSWORD, benchManager } from './scenario
 export const MIXED_NOW = `${BENCH_END}T07:00:00-06:00`;
 const DAY = BENCH_END;
 const MINUTE = 60_000;
+
+/** The instant of a local wall-clock time on a `YYYY-MM-DD` date in a zone. */
+function localAt(date: string, hh: number, mm: number, zone: string): number {
+  const [y, m, d] = date.split('-').map(Number) as [number, number, number];
+  return new TZDate(y, m - 1, d, hh, mm, 0, zone).getTime();
+}
 
 export const ROUTE_CLASSES = ['day', 'briefing', 'readings', 'rosterWeek', 'rosterLoad', 'move', 'watchlist', 'fixQuality'] as const;
 export type RouteClass = (typeof ROUTE_CLASSES)[number];
@@ -116,8 +124,8 @@ export async function readMixedPlan(database: Database): Promise<MixedPlan> {
   const branchRows = await q<{ id: string; time_zone: string; code: string }>(sql`SELECT id, time_zone, code FROM branches ORDER BY code`);
   const branches: PlanBranch[] = [];
   for (const b of branchRows) {
-    const from = new Date(new TZDate(`${DAY}T00:00:00`, b.time_zone).getTime());
-    const to = new Date(from.getTime() + 36 * 60 * MINUTE); // a day ends within 25 h in any zone; only this day has bookings here
+    const from = new Date(localAt(DAY, 0, 0, b.time_zone));
+    const to = new Date(from.getTime() + 24 * 60 * MINUTE); // no change of daylight-saving time on 27 November
     const people = await q<{ id: string; email: string; role: string }>(
       sql`SELECT id, email, role FROM users WHERE branch_id = ${b.id} AND role IN ('technician', 'dispatcher') AND active ORDER BY email`,
     );
@@ -125,7 +133,7 @@ export async function readMixedPlan(database: Database): Promise<MixedPlan> {
       sql`SELECT tech_id, max(end_at) AS end_at FROM bookings WHERE branch_id = ${b.id} AND start_at >= ${from.toISOString()} AND start_at < ${to.toISOString()} GROUP BY tech_id`,
     );
     const lastBy = new Map(last.map((r) => [r.tech_id, new Date(r.end_at).getTime()]));
-    const dayStart = new TZDate(`${DAY}T07:00:00`, b.time_zone).getTime();
+    const dayStart = localAt(DAY, 7, 0, b.time_zone);
     const units = await q<{ id: string; site_id: string }>(
       sql`SELECT id, site_id FROM units WHERE branch_id = ${b.id} AND refrigerant IS NOT NULL AND archived_at IS NULL ORDER BY serial LIMIT 40`,
     );
@@ -223,7 +231,7 @@ const ceilTo = (ms: number, step: number) => Math.ceil(ms / (step * MINUTE)) * s
 
 /** Working-hours override for a booking that ends after 15:30 local (the scenario's working day). */
 function hoursOverride(endMs: number, zone: string) {
-  const dayEnd = new TZDate(`${DAY}T15:30:00`, zone).getTime();
+  const dayEnd = localAt(DAY, 15, 30, zone);
   return endMs > dayEnd ? { overrideRules: ['working_hours'], overrideReason: 'Bench: work after the day already booked' } : {};
 }
 
@@ -299,9 +307,8 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   const monday = new Date(Date.parse(`${DAY}T00:00:00Z`) - 4 * 1440 * MINUTE).toISOString().slice(0, 10);
   const sunday = new Date(Date.parse(`${monday}T00:00:00Z`) + 6 * 1440 * MINUTE).toISOString().slice(0, 10);
   const weekOf = (zone: string) => {
-    const from = new Date(new TZDate(`${monday}T00:00:00`, zone).getTime()).toISOString();
-    const to = new Date(new TZDate(`${monday}T00:00:00`, zone).getTime() + 7 * 1440 * MINUTE + 60 * MINUTE).toISOString();
-    return { from, to };
+    const from = localAt(monday, 0, 0, zone);
+    return { from: new Date(from).toISOString(), to: new Date(from + 7 * 1440 * MINUTE).toISOString() };
   };
   const year = { from: new Date(Date.parse(`${DAY}T00:00:00Z`) - 364 * 1440 * MINUTE).toISOString().slice(0, 10), to: DAY };
 
@@ -320,7 +327,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   });
 
   const ms = o.seconds * 1000;
-  const spread = (interval: number) => rng.next() * Math.min(interval, ms / 2);
+  const spread = (interval: number) => rng.next() * interval;
   const clientLoop = monitorEventLoopDelay({ resolution: 10 });
   await o.apiLoop?.reset();
   clientLoop.enable();
@@ -333,7 +340,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   for (const t of techs) {
     const visit = openVisit.get(t.tech.id)!;
     const maybeReadings = async () => {
-      if (rng.chance(0.1)) await t.client.call('readings', 'POST', `/api/visits/${visit.visitId}/readings`, readingsBody(visit.circuitId));
+      if (rng.chance(0.1) && performance.now() < stopAt) await t.client.call('readings', 'POST', `/api/visits/${visit.visitId}/readings`, readingsBody(visit.circuitId));
     };
     loops.push(
       every(t0, spread(30_000), 30_000, stopAt, async () => {
@@ -342,6 +349,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
         for (const stop of day?.stops ?? []) {
           const unit = stop.units[0];
           if (!unit) continue;
+          if (performance.now() >= stopAt) break;
           await t.client.get('briefing', `/api/units/${unit.id}/briefing`);
           await maybeReadings();
         }
@@ -390,7 +398,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       }),
     );
   }
-  loops.push(every(t0, spread(60_000), 60_000, stopAt, async () => void (await owner.get('fixQuality', `/api/reports/fix-quality?from=${year.from}&to=${year.to}`))));
+  loops.push(every(t0, rng.next() * Math.min(60_000, ms / 2), 60_000, stopAt, async () => void (await owner.get('fixQuality', `/api/reports/fix-quality?from=${year.from}&to=${year.to}`))));
 
   await Promise.all(loops);
   const elapsed = (performance.now() - t0) / 1000;
