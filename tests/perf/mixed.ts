@@ -257,6 +257,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   const setupStart = performance.now();
   o.log(`mixed: ${everyone.length} sign-ins`);
   await pool(everyone, 4, (c) => c.signIn());
+  o.log(`mixed: signed in after ${((performance.now() - setupStart) / 1000).toFixed(0)} s`);
 
   // Each branch's dispatcher books a service call per technician after their day, and one to move around.
   o.log('mixed: booking a visit per technician (dispatchers), en route and on site (technicians)');
@@ -290,6 +291,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       }
     }
   });
+  o.log(`mixed: booked after ${((performance.now() - setupStart) / 1000).toFixed(0)} s`);
   await pool(techs, 4, async ({ client, tech }) => {
     const v = openVisit.get(tech.id)!;
     await client.call(null, 'PATCH', `/api/visits/${v.visitId}`, { state: 'en_route' });
