@@ -71,6 +71,8 @@ export interface LoopDelay {
 
 export interface MixedFigures {
   seconds: number;
+  /** API processes answering (behind the bench's round-robin proxy when more than one). */
+  processes?: number;
   clients: { technicians: number; dispatchers: number; managers: number; owners: number };
   setupSeconds: number;
   requests: number;
