@@ -221,7 +221,7 @@ const sleep = (ms: number) => new Promise((r) => setTimeout(r, Math.max(0, ms)))
 async function every(t0: number, offsetMs: number, intervalMs: number, stopAt: number, round: () => Promise<void>) {
   let next = t0 + offsetMs;
   for (;;) {
-    await sleep(next - performance.now());
+    await sleep(Math.min(next, stopAt) - performance.now());
     if (performance.now() >= stopAt) return;
     await round();
     next = Math.max(next + intervalMs, performance.now());
