@@ -264,7 +264,8 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   // Each branch's dispatcher books a service call per technician after their day, and one to move around.
   o.log('mixed: booking a visit per technician (dispatchers), en route and on site (technicians)');
   const openVisit = new Map<string, { visitId: string; circuitId: string }>();
-  const movable: { client: Client; id: string; version: number; zone: string; startAt: number; endAt: number; moved: boolean }[] = [];
+  /** Per branch (by index): the booking its dispatcher moves. */
+  const movable: ({ id: string; version: number; zone: string; startAt: number; endAt: number; moved: boolean } | undefined)[] = [];
   const circuitsOf = new Map<string, string>();
   await pool(plan.branches.map((b, bi) => ({ b, bi })), 3, async ({ b, bi }) => {
     const d = dispatchers[bi]!;
@@ -289,7 +290,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       if (ti === 0) {
         const later = start + 90 * MINUTE;
         const m = await book(tech, b.units[(ti + 20) % b.units.length]!, later, 'Planned check (bench: the booking the dispatcher moves)');
-        movable.push({ client: d, id: m.id, version: m.version, zone: b.zone, startAt: later, endAt: later + 60 * MINUTE, moved: false });
+        movable[bi] = { id: m.id, version: m.version, zone: b.zone, startAt: later, endAt: later + 60 * MINUTE, moved: false };
       }
     }
   });
