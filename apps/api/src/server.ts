@@ -21,6 +21,8 @@ import './modules/watchlist/watchlist.jobs';
 import './modules/events/events.jobs';
 
 const env = readEnv();
+// `npm run bench` only: the event-loop delay, answered over the IPC channel of the bench that started this process.
+if (env.COILPATH_BENCH_ELD === '1') (await import('./lib/bench-event-loop')).answerEventLoopDelay();
 const { clock, overridden: clockOverridden } = clockFromEnv(env);
 const dataDir = resolve(env.COILPATH_DATA_DIR);
 // The embedded database is for one process: a second server on the same data directory is refused before it

@@ -43,6 +43,11 @@ const envSchema = z.object({
    * `2027-03-15T06:00:00-05:00`); time then passes normally. For demos and browser journeys at a chosen
    * date; ignored unless set.
    */
+  /**
+   * `1`: the process measures its event-loop delay and answers it over the IPC channel of the process that
+   * started it (`npm run bench` only; lib/bench-event-loop.ts). Off otherwise.
+   */
+  COILPATH_BENCH_ELD: z.enum(['0', '1']).default('0'),
   COILPATH_NOW: z.preprocess(
     (v) => (v === '' ? undefined : v),
     z.iso.datetime({ offset: true, message: 'COILPATH_NOW must be an ISO 8601 instant with an offset, e.g. 2027-03-15T06:00:00-05:00' }).optional(),
