@@ -3,14 +3,18 @@ import { dayQuerySchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint } from '../../lib/endpoint';
+import { createRevisionCache } from '../../lib/revision-cache';
 import { calendarFeed, revokeCalendarToken, rotateCalendarToken } from './calendar.service';
 import { technicianDay } from './day.service';
 
 /** `/api/day`: the technician's Route, technicians only. */
 export function dayRoutes(ctx: AppContext): Router {
   const r = Router();
+  // Every technician's Route refetches its day often (and at 7 a.m. all at once): reused while the branch's
+  // roster revision stands (one entry per technician and date; room for a large branch's today and tomorrow).
+  const days = createRevisionCache(512);
   r.use(requireRole('technician'));
-  r.get('/', endpoint({ query: dayQuerySchema }, ({ user, query }) => technicianDay(ctx, user, query.date)));
+  r.get('/', endpoint({ query: dayQuerySchema }, ({ user, query }) => technicianDay(ctx, user, query.date, days)));
   return r;
 }
 

@@ -6,6 +6,7 @@ import { weekdays, type DayResponse, type DayStop, type SessionUser, type Workin
 import type { AppContext } from '../../context';
 import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
+import type { RevisionCache } from '../../lib/revision-cache';
 import { visitStatus } from '../visits/access';
 
 /** Midnight of a `YYYY-MM-DD` date in a zone, as an instant. */
@@ -39,7 +40,29 @@ export function calendarFeedUrl(ctx: AppContext, token: string | null): string |
  * notes, units and work order, and the route `planRoute` suggests from their start location with
  * each stop's appointment window respected.
  */
-export async function technicianDay(ctx: AppContext, user: SessionUser, date: string | undefined): Promise<DayResponse> {
+export async function technicianDay(
+  ctx: AppContext,
+  user: SessionUser,
+  date: string | undefined,
+  cache?: RevisionCache,
+): Promise<DayResponse> {
+  const me = await technician(ctx, user.id);
+  const day = date ?? format(new TZDate(ctx.clock.now().getTime(), me.branch.timeZone), 'yyyy-MM-dd');
+  // Every row the day is made of (bookings, visits, work orders, sites, units, the branch, the technician's
+  // name, hours and start point) raises the branch's roster revision at commit (migration 0004), so the day is
+  // reused while it stands. What raises nothing (the start address's wording, the calendar feed) is added after.
+  // A recomputation reads the technician again, after the revision it is kept under.
+  const body = cache
+    ? await cache.read(ctx.database, me.branch.id, `day ${me.id} ${day}`, async () => dayOf(ctx, await technician(ctx, user.id), day))
+    : await dayOf(ctx, me, day);
+  return {
+    ...body,
+    route: { ...body.route, start: { ...body.route.start, label: startLabel(me) } },
+    calendarFeed: { active: !!me.calendarToken, url: calendarFeedUrl(ctx, me.calendarToken) },
+  };
+}
+
+async function technician(ctx: AppContext, userId: string) {
   const [me] = await ctx.db
     .select({
       id: users.id,
@@ -53,11 +76,19 @@ export async function technicianDay(ctx: AppContext, user: SessionUser, date: st
     })
     .from(users)
     .innerJoin(branches, eq(branches.id, users.branchId))
-    .where(eq(users.id, user.id))
+    .where(eq(users.id, userId))
     .limit(1);
   if (!me) throw notFound('branch');
+  return me;
+}
+type Technician = Awaited<ReturnType<typeof technician>>;
+
+/** Where the technician's day starts, in words: their own start address, else the branch's shop. */
+const startLabel = (me: Technician) =>
+  me.startLat !== null && me.startLon !== null ? me.startAddress || 'Start' : me.branch.baseAddress || `${me.branch.name} shop`;
+
+async function dayOf(ctx: AppContext, me: Technician, day: string): Promise<Omit<DayResponse, 'calendarFeed'>> {
   const tz = me.branch.timeZone;
-  const day = date ?? format(new TZDate(ctx.clock.now().getTime(), tz), 'yyyy-MM-dd');
   const from = startOfDayIn(day, tz);
   const to = startOfDayIn(addDays(day, 1), tz);
 
@@ -67,7 +98,7 @@ export async function technicianDay(ctx: AppContext, user: SessionUser, date: st
     .innerJoin(bookings, eq(bookings.id, visits.bookingId))
     .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
     .innerJoin(sites, eq(sites.id, workOrders.siteId))
-    .where(and(eq(visits.techId, user.id), gte(bookings.startAt, from), lt(bookings.startAt, to), ne(workOrders.state, 'cancelled')))
+    .where(and(eq(visits.techId, me.id), gte(bookings.startAt, from), lt(bookings.startAt, to), ne(workOrders.state, 'cancelled')))
     .orderBy(asc(bookings.startAt));
 
   const unitIds = [...new Set(rows.flatMap((r) => (r.wo.unitId ? [r.wo.unitId] : [])))];
@@ -143,7 +174,7 @@ export async function technicianDay(ctx: AppContext, user: SessionUser, date: st
   const start = {
     lat: me.startLat ?? me.branch.baseLat,
     lon: me.startLon ?? me.branch.baseLon,
-    label: me.startLat !== null && me.startLon !== null ? me.startAddress || 'Start' : me.branch.baseAddress || `${me.branch.name} shop`,
+    label: startLabel(me),
   };
   const plan = planRoute({ start, stops: stops.map((s) => s.routeStop), dayStart });
   let prevDepart = 0;
@@ -169,6 +200,5 @@ export async function technicianDay(ctx: AppContext, user: SessionUser, date: st
       driveMinutes: plan.driveMinutes,
       lateStops: plan.lateStops,
     },
-    calendarFeed: { active: !!me.calendarToken, url: calendarFeedUrl(ctx, me.calendarToken) },
   };
 }

@@ -4,7 +4,8 @@ import ICAL from 'ical.js';
 import { eq } from 'drizzle-orm';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeUser, TEST_PASSWORD } from '../../testing/fixtures';
-import { sites, units, workOrders } from '../../db/schema';
+import { sql } from 'drizzle-orm';
+import { sites, units, users, workOrders } from '../../db/schema';
 import { makeBookedVisit } from '../visits/visits.fixtures';
 import { nextWorkingDate } from './day.service';
 
@@ -105,6 +106,41 @@ describe('GET /api/day', () => {
   it('is for technicians only', async () => {
     expect((await manager.get('/api/day')).status).toBe(403);
     expect((await request(t.app).get('/api/day')).status).toBe(401);
+  });
+});
+
+describe('GET /api/day, kept while the roster revision stands', () => {
+  const nearName = async () =>
+    ((await tech.get('/api/day?date=2026-03-10')).body.stops as { visitId: string; site: { name: string } }[]).find((s) => s.visitId === ids.near)!.site.name;
+
+  it('is reused until a change the day is made of commits, and then answers afresh', async () => {
+    const before = await nearName();
+    // A rename that raises no revision (the trigger switched off for the moment) is not seen: the day was kept.
+    await t.ctx.db.execute(sql`ALTER TABLE sites DISABLE TRIGGER roster_revision`);
+    try {
+      await t.ctx.db.update(sites).set({ name: 'Renamed quietly' }).where(eq(sites.id, ids.nearSite!));
+    } finally {
+      await t.ctx.db.execute(sql`ALTER TABLE sites ENABLE TRIGGER roster_revision`);
+    }
+    expect(await nearName()).toBe(before);
+    // A change that raises the revision (the same site, renamed again) is seen at once.
+    await t.ctx.db.update(sites).set({ name: 'Renamed openly' }).where(eq(sites.id, ids.nearSite!));
+    expect(await nearName()).toBe('Renamed openly');
+    // The technician's own change of state on a stop is seen at once.
+    expect((await tech.patch(`/api/visits/${ids.near}`).send({ state: 'en_route' })).status).toBe(200);
+    const day = (await tech.get('/api/day?date=2026-03-10')).body as { stops: { visitId: string; status: string }[] };
+    expect(day.stops.find((s) => s.visitId === ids.near)!.status).toBe('en_route');
+  });
+
+  it('words the start address and the calendar feed as they are now, though neither raises the revision', async () => {
+    await tech.get('/api/day?date=2026-03-10');
+    await t.ctx.db.update(users).set({ startAddress: '12 Depot Lane' }).where(eq(users.id, f.inA.technician.id));
+    const res = await tech.get('/api/day?date=2026-03-10');
+    expect(res.body.route.start.label).toBe('12 Depot Lane');
+    expect(res.body.calendarFeed.active).toBe(false);
+    expect((await tech.post('/api/calendar/token')).status).toBe(201);
+    expect((await tech.get('/api/day?date=2026-03-10')).body.calendarFeed.active).toBe(true);
+    expect((await tech.delete('/api/calendar/token')).status).toBe(204);
   });
 });
 
