@@ -6,7 +6,11 @@ const TARGETS =
 /** Fields where "Enter" moves on: those typed into on one line (a textarea's Enter is a new line; a checkbox's and a radio's do nothing). */
 const SOURCES = 'input:not([type=checkbox]):not([type=radio]):not([type=range]):not([type=color]):not([readonly])';
 
-const targetsIn = (root: HTMLElement) => [...root.querySelectorAll<HTMLElement>(TARGETS)].filter((el) => !el.closest('[inert]'));
+const targetsIn = (root: HTMLElement) =>
+  [...root.querySelectorAll<HTMLElement>(TARGETS)]
+    .filter((el) => !el.closest('[inert]'))
+    // Page order (not every DOM implementation answers a selector list in document order).
+    .sort((a, b) => (a.compareDocumentPosition(b) & Node.DOCUMENT_POSITION_FOLLOWING ? -1 : 1));
 /** The group's own action (its save button), marked `data-enter-action`; else the form is submitted. */
 const actionIn = (root: HTMLElement) => root.querySelector<HTMLElement>('[data-enter-action]');
 
@@ -29,7 +33,7 @@ export function useEnterNext<T extends HTMLElement>() {
     const sources = targetsIn(root).filter((el): el is HTMLInputElement => el instanceof HTMLInputElement && el.matches(SOURCES));
     const targets = targetsIn(root);
     const lastHint = actionIn(root) ? 'done' : 'go';
-    for (const el of sources) el.enterKeyHint = el === targets[targets.length - 1] ? lastHint : 'next';
+    for (const el of sources) el.setAttribute('enterkeyhint', el === targets[targets.length - 1] ? lastHint : 'next');
   });
 
   const onKeyDown = useCallback((e: KeyboardEvent<T>) => {
