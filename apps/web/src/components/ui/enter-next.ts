@@ -1,4 +1,4 @@
-import { useCallback, useLayoutEffect, useRef, type KeyboardEvent } from 'react';
+import { useCallback, useLayoutEffect, useState, type KeyboardEvent } from 'react';
 
 /** Where "Enter" can take the technician: every enabled form control but buttons and file pickers, in page order. */
 const TARGETS =
@@ -20,15 +20,15 @@ const actionIn = (root: HTMLElement) => root.querySelector<HTMLElement>('[data-e
  * button) or, without one, submits the form. The phone's keyboard shows "next" on every field but the last
  * (`enterkeyhint`), and "done" or "go" there.
  *
- *   const enter = useEnterNext<HTMLFormElement>();
- *   <form ref={enter.ref} onKeyDown={enter.onKeyDown}>…<Button type="submit">Save</Button></form>
+ *   const { attach, onKeyDown } = useEnterNext<HTMLFormElement>();
+ *   <form ref={attach} onKeyDown={onKeyDown}>…<Button type="submit">Save</Button></form>
  */
 export function useEnterNext<T extends HTMLElement>() {
-  const ref = useRef<T>(null);
+  // The group's element, from a callback ref (so it is state, not read from a ref while rendering).
+  const [root, attach] = useState<T | null>(null);
 
   // After every render (fields come and go with the form): what the keyboard's Enter key says.
   useLayoutEffect(() => {
-    const root = ref.current;
     if (!root) return;
     const sources = targetsIn(root).filter((el): el is HTMLInputElement => el instanceof HTMLInputElement && el.matches(SOURCES));
     const targets = targetsIn(root);
@@ -37,9 +37,9 @@ export function useEnterNext<T extends HTMLElement>() {
   });
 
   const onKeyDown = useCallback((e: KeyboardEvent<T>) => {
-    const root = ref.current;
+    const root = e.currentTarget;
     const field = e.target;
-    if (e.key !== 'Enter' || e.shiftKey || e.altKey || e.ctrlKey || e.metaKey || e.nativeEvent.isComposing || !root) return;
+    if (e.key !== 'Enter' || e.shiftKey || e.altKey || e.ctrlKey || e.metaKey || e.nativeEvent.isComposing) return;
     if (!(field instanceof HTMLInputElement) || !field.matches(SOURCES)) return;
     const targets = targetsIn(root);
     const i = targets.indexOf(field);
@@ -58,5 +58,6 @@ export function useEnterNext<T extends HTMLElement>() {
     } else field.form?.requestSubmit();
   }, []);
 
-  return { ref, onKeyDown };
+  /** `attach` is the group element's ref. */
+  return { attach, onKeyDown };
 }

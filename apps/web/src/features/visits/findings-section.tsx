@@ -97,7 +97,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
   });
 
   // "Enter" in the alarm code moves on rather than adding the finding half filled.
-  const enter = useEnterNext<HTMLFormElement>();
+  const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLFormElement>();
   const waitingIds = new Set(entries.filter((e) => e.state === 'waiting' && e.write.kind === 'finding').map((e) => (e.write.kind === 'finding' ? e.write.body.id : '')));
   const saved = visit.findings.filter((f) => !draft.findings.some((p) => p.id === f.id));
   const pending = draft.findings;
@@ -134,7 +134,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
         </ul>
       )}
       {visit.canRecord && (
-        <form ref={enter.ref} onKeyDown={enter.onKeyDown} onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">
+        <form ref={enterGroup} onKeyDown={enterNext} onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">
           {visit.units.length > 1 && (
             <SelectField label="Unit" {...form.register('unitId')}>
               <option value="">Not one unit</option>

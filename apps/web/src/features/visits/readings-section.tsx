@@ -178,11 +178,11 @@ export function ReadingsSection({
   };
 
   // "Enter" in a reading moves to the next one; from the last, to "Save readings".
-  const enter = useEnterNext<HTMLDivElement>();
+  const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLDivElement>();
   const circuitsCount = visit.units.reduce((n, u) => n + u.circuits.length, 0);
   return (
     <Card title="Readings">
-      <div ref={enter.ref} onKeyDown={enter.onKeyDown} className="flex flex-col gap-4">
+      <div ref={enterGroup} onKeyDown={enterNext} className="flex flex-col gap-4">
         <SafetyNote />
         <p className="text-sm text-slate">
           {units.temperature === 'C'

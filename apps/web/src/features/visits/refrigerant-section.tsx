@@ -27,7 +27,7 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
   /** The circuit by number ('' = the unit as a whole, or not said); asked only on a unit with several. */
   const [circuit, setCircuit] = useState('');
   const circuits = unit && unit.circuits.length > 1 ? [...unit.circuits].sort((a, b) => a.number - b.number) : [];
-  const enter = useEnterNext<HTMLFormElement>();
+  const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLFormElement>();
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [lastResult, setLastResult] = useState<string | null>(null);
 
@@ -139,7 +139,7 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
           </p>
         )}
         {visit.canRecord && (
-          <form ref={enter.ref} onKeyDown={enter.onKeyDown} onSubmit={submit} noValidate className="grid grid-cols-2 gap-3 lg:grid-cols-3">
+          <form ref={enterGroup} onKeyDown={enterNext} onSubmit={submit} noValidate className="grid grid-cols-2 gap-3 lg:grid-cols-3">
             {visit.units.length > 1 && (
               <div className="col-span-2 lg:col-span-1">
                 <SelectField

@@ -25,7 +25,7 @@ const id = (n: number) => `00000000-0000-4000-8000-${String(n).padStart(12, '0')
 const unit = (n: number, circuits: number): VisitUnitDto => ({
   id: id(100 + n),
   tag: `RTU-${n}`,
-  kind: 'rooftop',
+  kind: 'rooftop_unit',
   make: 'Testmake',
   model: 'TM-1',
   serial: `S-${n}`,
