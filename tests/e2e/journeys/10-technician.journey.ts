@@ -203,7 +203,7 @@ export async function run(ctx: JourneyContext) {
   await page.getByLabel('Return visit notes (parts, who to bring)').fill('Condenser fan motor, 1/3 hp, 1075 rpm; bring the capacitor too.');
   // One finding: it is the call's root cause, already chosen.
   assert.ok(await page.getByRole('group', { name: 'Root cause' }).getByRole('radio', { name: /Component failure/ }).isChecked(), 'the one finding is the root cause');
-  await page.getByLabel('Visit notes').fill('Unit running on one condenser fan; return visit booked to replace the motor.');
+  await page.getByLabel('Visit notes', { exact: true }).fill('Unit running on one condenser fan; return visit booked to replace the motor.');
   await page.getByRole('radio', { name: 'For the customer' }).check();
   await page.getByRole('button', { name: 'Close visit' }).click();
   const created = page.getByText(/Return visit WO-\d+ is in the unplaced queue for the office to book\./);
