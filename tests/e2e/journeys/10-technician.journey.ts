@@ -163,8 +163,32 @@ export async function run(ctx: JourneyContext) {
     return { sh, sc };
   };
   const typed = await checkComputed('as typed');
+  // "Enter" moves to the next reading (the phone's keypad says "next"); the figures stay in the circuit's sticky bar.
+  const liquidLine = field('Liquid line temperature', '°F');
+  assert.equal(await liquidLine.getAttribute('inputmode'), 'decimal', 'readings use the numeric keypad');
+  assert.equal(await liquidLine.getAttribute('enterkeyhint'), 'next', 'the keypad’s Enter key says next');
+  await liquidLine.press('Enter');
+  assert.ok(await field('Discharge pressure', 'psig').evaluate((el) => el === document.activeElement), 'Enter moved to the discharge pressure');
+  const bar = page.getByRole('group', { name: `Computed values, ${circuit}` });
+  await page.evaluate(() => window.scrollBy(0, 400));
+  const barBox = await bar.boundingBox();
+  assert.ok(barBox && barBox.y >= 0 && barBox.y < 120, `the computed values stay at the top while the fields scroll (bar at ${barBox?.y})`);
   await page.getByRole('button', { name: 'Save readings' }).click();
   await notice(page, 'Readings saved for 1 circuit.').waitFor();
+  // The notice covers no input or button: on a phone it takes the screen bar's place at the bottom.
+  const covered = await page.evaluate(() => {
+    const notes = Array.from(document.querySelectorAll('[aria-live="polite"] > [role]')).map((n) => n.getBoundingClientRect()).filter((r) => r.height > 0);
+    const nav = document.querySelector('nav[aria-label="Screens"].fixed')?.getBoundingClientRect();
+    const hits: string[] = [];
+    for (const el of Array.from(document.querySelectorAll<HTMLElement>('main button, main input, main select, main textarea, main a[href], main summary'))) {
+      const r = el.getBoundingClientRect();
+      if (!r.width || !r.height || el.classList.contains('sr-only')) continue;
+      const bottom = nav ? Math.min(r.bottom, nav.top) : r.bottom; // under the screen bar it is hidden anyway
+      if (notes.some((n) => r.left < n.right && r.right > n.left && r.top < n.bottom && bottom > n.top)) hits.push(el.getAttribute('aria-label') ?? el.textContent?.trim() ?? el.tagName);
+    }
+    return hits;
+  });
+  assert.deepEqual(covered, [], 'the notice covers no input or button');
   // After the save the inputs show the server's values; the computation still agrees.
   await page.getByRole('button', { name: 'Save readings' }).waitFor();
   assert.equal(await field('Suction pressure', 'psig').inputValue(), String(READINGS.suctionPsig), 'the saved suction pressure is shown');

@@ -111,7 +111,7 @@ export function AppFrame() {
             <BranchSwitcher />
           </div>
         )}
-        <main id="main" className={`mx-auto w-full max-w-content flex-1 px-3 py-5 md:px-6 ${isTech ? 'pb-24 md:pb-6' : ''}`}>
+        <main id="main" className={`mx-auto w-full max-w-content flex-1 px-3 pt-5 md:px-6 md:pb-5 ${isTech ? 'pb-[calc(6rem+var(--notice-space,0px))] md:pb-6' : 'pb-[calc(1.25rem+var(--notice-space,0px))]'}`}>
           <RouteErrorBoundary>
             <Suspense fallback={<LoadingState />}>
               <Outlet />

@@ -54,7 +54,14 @@ export const SelectField = forwardRef<HTMLSelectElement, FieldProps & SelectHTML
   const fid = id ?? auto;
   return (
     <FieldShell id={fid} label={label} error={error} hint={hint}>
-      <select ref={ref} id={fid} aria-invalid={error ? true : undefined} className={`${control} ${className}`} {...rest}>
+      <select
+        ref={ref}
+        id={fid}
+        aria-invalid={error ? true : undefined}
+        aria-describedby={error ? `${fid}-error` : hint ? `${fid}-hint` : undefined}
+        className={`${control} ${className}`}
+        {...rest}
+      >
         {children}
       </select>
     </FieldShell>

@@ -32,7 +32,7 @@ export function ErrorState({ error, onRetry, title = 'This could not be loaded' 
       </div>
       <p className="text-sm text-ink">{errorMessage(error)}</p>
       {onRetry && (
-        <Button variant="secondary" size="sm" onClick={onRetry}>
+        <Button variant="secondary" onClick={onRetry}>
           <RotateCw className="size-4" aria-hidden="true" /> Try again
         </Button>
       )}

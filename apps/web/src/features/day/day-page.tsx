@@ -350,7 +350,6 @@ export default function DayPage() {
               {manualOrder && (
                 <Button
                   variant="ghost"
-                  size="sm"
                   className="mt-2"
                   onClick={() => {
                     setManualOrder(null);

@@ -24,7 +24,7 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
   return (
     <div className="flex flex-col gap-3 text-sm">
       <p className="text-slate">
-        <Link to={`/units/${b.unit.id}`} className="font-medium text-coolant underline">
+        <Link to={`/units/${b.unit.id}`} className="inline-flex min-h-11 min-w-11 items-center font-medium text-coolant underline">
           {b.unit.tag}
         </Link>{' '}
         · {b.unit.make} {b.unit.model} · serial {b.unit.serial} · {b.unit.refrigerant}, full charge {b.unit.fullChargeLb} lb

@@ -4,11 +4,12 @@ import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import type { AttachmentDto, VisitDetail } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SelectField } from '@/components/ui/field';
-import { Badge, Card } from '@/components/ui/page';
+import { Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import { AttachmentThumb } from '@/components/attachment-thumb';
+import { QueuedThumb } from './queued-thumb';
 
 export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
   const notify = useNotify();
@@ -47,15 +48,6 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
 
   return (
     <Card title="Photos and documents">
-      {waiting.length > 0 && (
-        <ul className="mb-3 flex flex-col gap-1 text-sm" aria-label="Files waiting to send">
-          {waiting.map((w) => (
-            <li key={w.id}>
-              {w.fileName} <Badge tone="watch">Waiting to send</Badge>
-            </li>
-          ))}
-        </ul>
-      )}
       {visit.attachments.length === 0 && waiting.length === 0 ? (
         <p className="mb-3 text-sm text-slate">No photos yet. Photograph the nameplate, the wiring and what you found; PDFs (reports, quotes) can be attached too.</p>
       ) : (
@@ -63,6 +55,12 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
           {visit.attachments.map((a) => (
             <li key={a.id}>
               <AttachmentThumb a={a} />
+            </li>
+          ))}
+          {/* Kept on the phone until the connection is back: drawn from the queued bytes. */}
+          {waiting.map((w) => (
+            <li key={w.id}>
+              <QueuedThumb file={w.file} fileName={w.fileName} kind={w.attachKind} />
             </li>
           ))}
         </ul>

@@ -48,7 +48,7 @@ function SummaryLine({ s, onResend, busy }: { s: SummaryMailResult; onResend(): 
       </span>
       <span>{s.error}</span>
       {s.to && (
-        <Button size="sm" variant="secondary" onClick={onResend} busy={busy}>
+        <Button variant="secondary" onClick={onResend} busy={busy}>
           Send summary again
         </Button>
       )}
@@ -125,7 +125,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
             <SummaryLine s={{ sent: false, to: 'the site contact', error: 'The service summary has not been sent.' }} onResend={doResend} busy={resend.isPending} />
           )}
           <p>
-            <Link to="/day" className="text-coolant underline">
+            <Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">
               Back to Route
             </Link>
           </p>

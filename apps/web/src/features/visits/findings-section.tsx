@@ -16,6 +16,7 @@ import {
 } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
+import { useEnterNext } from '@/components/ui/enter-next';
 import { Badge, Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
@@ -95,6 +96,8 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
     void send(f);
   });
 
+  // "Enter" in the alarm code moves on rather than adding the finding half filled.
+  const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLFormElement>();
   const waitingIds = new Set(entries.filter((e) => e.state === 'waiting' && e.write.kind === 'finding').map((e) => (e.write.kind === 'finding' ? e.write.body.id : '')));
   const saved = visit.findings.filter((f) => !draft.findings.some((p) => p.id === f.id));
   const pending = draft.findings;
@@ -131,7 +134,7 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
         </ul>
       )}
       {visit.canRecord && (
-        <form onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">
+        <form ref={enterGroup} onKeyDown={enterNext} onSubmit={onSubmit} noValidate className="grid grid-cols-1 gap-3 sm:grid-cols-2">
           {visit.units.length > 1 && (
             <SelectField label="Unit" {...form.register('unitId')}>
               <option value="">Not one unit</option>

@@ -105,19 +105,29 @@ export interface ComputedLine {
   error?: boolean;
 }
 
+/** One side of the live computation: the saturation temperature and the difference from the line, or why there is none. */
+export type LiveSide =
+  | { ok: true; saturation: number; line: number; value: number }
+  | { ok: false; why: string };
+
+export interface LiveValues {
+  /** Superheat from suction pressure (dew point) and suction line temperature; absent until both are typed. */
+  superheat?: LiveSide;
+  /** Subcooling from liquid pressure (or discharge, when no liquid pressure) and liquid line temperature. */
+  subcooling?: LiveSide & { fromDischarge: boolean };
+}
+
 /**
  * Live superheat and subcooling from what is typed, computed by calc in the branch's units, the gauges
  * read against the standard atmosphere at the branch's elevation (ISA / ISO 2533; 0 m = sea level).
  */
-export function computeLive(refrigerant: string, v: Record<string, string>, units: ReadingUnits, elevationMeters = 0): ComputedLine[] {
+export function liveValues(refrigerant: string, v: Record<string, string>, units: ReadingUnits, elevationMeters = 0): LiveValues {
   const sp = valueOf(v.suctionPressure);
   const st = valueOf(v.suctionLineTemp);
   const lp = valueOf(v.liquidPressure);
   const high = lp ?? valueOf(v.dischargePressure);
   const lt = valueOf(v.liquidLineTemp);
   const opts = { pressureUnit: units.pressure, temperatureUnit: units.temperature, atmosphericPressureKPa: atmosphericPressureAt(elevationMeters) } as const;
-  const t = (n: number) => formatMeasure(n, 'temperature', units);
-  const d = (n: number) => formatMeasure(n, 'temperatureDifference', units);
   const outside = () => {
     try {
       const r = pressureRange(refrigerant, opts);
@@ -126,22 +136,48 @@ export function computeLive(refrigerant: string, v: Record<string, string>, unit
       return `${refrigerant} is not in Coilpath’s tables`;
     }
   };
-  const out: ComputedLine[] = [];
+  const out: LiveValues = {};
   if (sp !== null && st !== null) {
     try {
       const s = superheat({ refrigerant, suctionPressure: sp, suctionLineTemp: st, ...opts });
-      out.push({ key: 'sh', text: `Superheat ${d(s.superheat)}`, detail: `line ${t(st)} − dew ${t(s.saturationTemp)}` });
+      out.superheat = { ok: true, saturation: s.saturationTemp, line: st, value: s.superheat };
     } catch {
-      out.push({ key: 'sh', text: 'Superheat cannot be computed', detail: outside(), error: true });
+      out.superheat = { ok: false, why: outside() };
     }
   }
   if (high !== null && lt !== null) {
+    const fromDischarge = lp === null;
     try {
       const s = subcooling({ refrigerant, liquidPressure: high, liquidLineTemp: lt, ...opts });
-      out.push({ key: 'sc', text: `Subcooling ${d(s.subcooling)}`, detail: `bubble ${t(s.saturationTemp)} − line ${t(lt)}${lp === null ? ' (from discharge pressure)' : ''}` });
+      out.subcooling = { ok: true, saturation: s.saturationTemp, line: lt, value: s.subcooling, fromDischarge };
     } catch {
-      out.push({ key: 'sc', text: 'Subcooling cannot be computed', detail: outside(), error: true });
+      out.subcooling = { ok: false, why: outside(), fromDischarge };
     }
+  }
+  return out;
+}
+
+/** The live values as sentences (superheat, then subcooling). */
+export function computeLive(refrigerant: string, v: Record<string, string>, units: ReadingUnits, elevationMeters = 0): ComputedLine[] {
+  const live = liveValues(refrigerant, v, units, elevationMeters);
+  const t = (n: number) => formatMeasure(n, 'temperature', units);
+  const d = (n: number) => formatMeasure(n, 'temperatureDifference', units);
+  const out: ComputedLine[] = [];
+  const sh = live.superheat;
+  if (sh) {
+    out.push(
+      sh.ok
+        ? { key: 'sh', text: `Superheat ${d(sh.value)}`, detail: `line ${t(sh.line)} − dew ${t(sh.saturation)}` }
+        : { key: 'sh', text: 'Superheat cannot be computed', detail: sh.why, error: true },
+    );
+  }
+  const sc = live.subcooling;
+  if (sc) {
+    out.push(
+      sc.ok
+        ? { key: 'sc', text: `Subcooling ${d(sc.value)}`, detail: `bubble ${t(sc.saturation)} − line ${t(sc.line)}${sc.fromDischarge ? ' (from discharge pressure)' : ''}` }
+        : { key: 'sc', text: 'Subcooling cannot be computed', detail: sc.why, error: true },
+    );
   }
   return out;
 }

@@ -23,6 +23,8 @@ import {
 import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import { useOnline } from '@/lib/online';
 import { appNow } from '@/lib/now';
+import { useEnterNext } from '@/components/ui/enter-next';
+import { CircuitSummary } from './circuit-summary';
 
 function NumberInput({
   id,
@@ -98,20 +100,18 @@ function SensorMark({ controller, reference, units, branch }: { controller: stri
   );
 }
 
-function Computed({ refrigerant, v, where, units, elevationMeters }: { refrigerant: string; v: Record<string, string>; where: string; units: ReadingUnits; elevationMeters: number }) {
+/** How the live figures were reached ("line 48.0 °F − dew 36.9 °F"), or why one cannot be computed; the figures are in the circuit's summary bar. */
+function ComputedDetail({ refrigerant, v, units, elevationMeters }: { refrigerant: string; v: Record<string, string>; units: ReadingUnits; elevationMeters: number }) {
   const out = computeLive(refrigerant, v, units, elevationMeters);
   if (!out.length) return <p className="text-sm text-slate">Enter a pressure and its line temperature to see superheat and subcooling.</p>;
   return (
-    <div className="flex flex-col gap-2 sm:flex-row sm:gap-6">
+    <ul className="flex flex-col gap-1 text-sm tabular-nums">
       {out.map((o) => (
-        <div key={o.key}>
-          <output aria-label={`${o.text.split(' ')[0]}, ${where}`} className={`block text-xl font-semibold tabular-nums ${o.error ? 'text-alarm' : 'text-ink'}`}>
-            {o.text}
-          </output>
-          <span className="text-sm text-slate tabular-nums">({o.detail})</span>
-        </div>
+        <li key={o.key} className={o.error ? 'text-alarm' : 'text-slate'}>
+          {o.text}: {o.detail}
+        </li>
       ))}
-    </div>
+    </ul>
   );
 }
 
@@ -177,10 +177,12 @@ export function ReadingsSection({
     );
   };
 
+  // "Enter" in a reading moves to the next one; from the last, to "Save readings".
+  const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLDivElement>();
   const circuitsCount = visit.units.reduce((n, u) => n + u.circuits.length, 0);
   return (
     <Card title="Readings">
-      <div className="flex flex-col gap-4">
+      <div ref={enterGroup} onKeyDown={enterNext} className="flex flex-col gap-4">
         <SafetyNote />
         <p className="text-sm text-slate">
           {units.temperature === 'C'
@@ -211,6 +213,14 @@ export function ReadingsSection({
                 <legend className="px-1 text-base font-semibold">
                   {multi ? `${u.tag} · ` : ''}Circuit {c.number} <span className="text-sm font-normal text-slate">({u.refrigerant})</span>
                 </legend>
+                <CircuitSummary
+                  title={`${multi ? `${u.tag} · ` : ''}Circuit ${c.number}`}
+                  where={where}
+                  refrigerant={u.refrigerant}
+                  values={v}
+                  units={units}
+                  branch={visit.branch}
+                />
                 <div className="flex flex-col gap-4">
                   <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">
                     {input('suctionPressure')}
@@ -240,7 +250,7 @@ export function ReadingsSection({
                   </div>
                 </div>
                 <div className="mt-3 rounded-md bg-frost p-3">
-                  <Computed refrigerant={u.refrigerant} v={v} where={where} units={units} elevationMeters={visit.branch.elevationMeters} />
+                  <ComputedDetail refrigerant={u.refrigerant} v={v} units={units} elevationMeters={visit.branch.elevationMeters} />
                 </div>
               </fieldset>
             );
@@ -256,7 +266,7 @@ export function ReadingsSection({
               dirty={draft.readingsDirty}
               savedText={visit.readings.length ? 'Readings saved' : 'No readings yet'}
             />
-            <Button size="lg" onClick={submit}>
+            <Button size="lg" onClick={submit} data-enter-action>
               Save readings
             </Button>
           </div>

@@ -10,6 +10,7 @@ import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import type { PendingRefrigerant, VisitDraft } from './draft';
+import { useEnterNext } from '@/components/ui/enter-next';
 
 const refrigerants = listRefrigerants();
 
@@ -23,6 +24,10 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
   const [recovered, setRecovered] = useState('');
   const [reason, setReason] = useState<RefrigerantEventReason>('leak_top_off');
   const [lot, setLot] = useState('');
+  /** The circuit by number ('' = the unit as a whole, or not said); asked only on a unit with several. */
+  const [circuit, setCircuit] = useState('');
+  const circuits = unit && unit.circuits.length > 1 ? [...unit.circuits].sort((a, b) => a.number - b.number) : [];
+  const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLFormElement>();
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [lastResult, setLastResult] = useState<string | null>(null);
 
@@ -78,7 +83,17 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
     if (Object.keys(errs).length || !unit) return;
     const p: PendingRefrigerant = {
       unitId: unit.id,
-      body: { id: crypto.randomUUID(), visitId: visit.id, refrigerant, poundsAdded: a, poundsRecovered: r, reason, cylinderLot: lot.trim() || null },
+      body: {
+        id: crypto.randomUUID(),
+        visitId: visit.id,
+        refrigerant,
+        poundsAdded: a,
+        poundsRecovered: r,
+        reason,
+        cylinderLot: lot.trim() || null,
+        // Only a circuit this unit has (the API refuses another); the leak rate stays per appliance.
+        ...(circuits.some((c) => String(c.number) === circuit) ? { circuit: Number(circuit) } : {}),
+      },
     };
     setAdded('');
     setRecovered('');
@@ -101,6 +116,7 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
             {visit.refrigerantEvents.map((ev) => (
               <li key={ev.id} className="tabular-nums">
                 {ev.refrigerant}: added {ev.poundsAdded.toFixed(1)} lb, recovered {ev.poundsRecovered.toFixed(1)} lb · {refrigerantEventReasonLabels[ev.reason]}
+                {ev.circuit != null ? ` · circuit ${ev.circuit}` : ''}
                 {ev.cylinderLot ? ` · lot ${ev.cylinderLot}` : ''}
                 {waitingIds.has(ev.id) && (
                   <>
@@ -123,7 +139,7 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
           </p>
         )}
         {visit.canRecord && (
-          <form onSubmit={submit} noValidate className="grid grid-cols-2 gap-3 lg:grid-cols-3">
+          <form ref={enterGroup} onKeyDown={enterNext} onSubmit={submit} noValidate className="grid grid-cols-2 gap-3 lg:grid-cols-3">
             {visit.units.length > 1 && (
               <div className="col-span-2 lg:col-span-1">
                 <SelectField
@@ -131,6 +147,7 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
                   value={unitId}
                   onChange={(e) => {
                     setUnitId(e.target.value);
+                    setCircuit('');
                     const u = visit.units.find((x) => x.id === e.target.value);
                     if (u) setRefrigerant(u.refrigerant);
                   }}
@@ -138,6 +155,24 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
                   {visit.units.map((u) => (
                     <option key={u.id} value={u.id}>
                       {u.tag} ({u.refrigerant}, full charge {u.fullChargeLb} lb)
+                    </option>
+                  ))}
+                </SelectField>
+              </div>
+            )}
+            {circuits.length > 0 && (
+              <div className="col-span-2 lg:col-span-1">
+                <SelectField
+                  label="Circuit"
+                  value={circuit}
+                  onChange={(e) => setCircuit(e.target.value)}
+                  hint="The leak rate stays per appliance: pounds on any circuit count against the unit’s full charge."
+                >
+                  <option value="">Whole unit (no one circuit)</option>
+                  {circuits.map((c) => (
+                    <option key={c.id} value={String(c.number)}>
+                      Circuit {c.number}
+                      {c.chargeLb !== null ? ` (charge ${c.chargeLb} lb)` : ''}
                     </option>
                   ))}
                 </SelectField>

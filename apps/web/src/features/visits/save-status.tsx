@@ -47,7 +47,7 @@ export function SaveStatus({
       <span className="inline-flex flex-wrap items-center gap-2 text-alarm">
         <AlertTriangle className="size-4" aria-hidden="true" /> Not saved: {errorMessage(error)} Your entries are kept on this phone.
         {onRetry && (
-          <Button size="sm" variant="secondary" onClick={onRetry}>
+          <Button variant="secondary" onClick={onRetry}>
             <RotateCw className="size-4" aria-hidden="true" /> Retry now
           </Button>
         )}

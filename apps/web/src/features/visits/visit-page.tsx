@@ -31,7 +31,7 @@ function CurrentVisit() {
   return (
     <>
       <PageHeader title="Visit" subtitle="Record readings, findings, refrigerant and photos, and close the visit." />
-      <EmptyState title="No current visit" action={<Link to="/day" className="text-coolant underline">Open Route</Link>}>
+      <EmptyState title="No current visit" action={<Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">Open Route</Link>}>
         You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on Route; press “En route” there
         to start it.
       </EmptyState>
@@ -45,7 +45,7 @@ function VisitScreen({ id }: { id: string }) {
   // Offline with nothing kept for this visit: say so, rather than loading until the signal returns.
   if (q.isPending && q.fetchStatus === 'paused')
     return (
-      <EmptyState title="This visit is not kept on this device" action={<Link to="/day" className="text-coolant underline">Open Route</Link>}>
+      <EmptyState title="This visit is not kept on this device" action={<Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">Open Route</Link>}>
         There is no connection, and this visit was not opened here (or on its Route) while there was one. It loads when the connection is back.
       </EmptyState>
     );
@@ -138,7 +138,7 @@ function VisitScreen({ id }: { id: string }) {
                   <ul>
                     {v.units.map((u) => (
                       <li key={u.id}>
-                        <Link to={`/units/${u.id}`} className="text-coolant underline">
+                        <Link to={`/units/${u.id}`} className="inline-flex min-h-11 min-w-11 items-center text-coolant underline">
                           {u.tag}
                         </Link>{' '}
                         {u.make} {u.model} · {u.refrigerant}, full charge {u.fullChargeLb} lb · {u.circuits.length} circuit{u.circuits.length === 1 ? '' : 's'}
