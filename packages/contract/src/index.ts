@@ -1,4 +1,5 @@
 export * from './vocabulary';
+export * from './date-words';
 export * from './common';
 export * from './auth';
 export * from './sites';

@@ -9,6 +9,7 @@
  * and finally visits every screen in the navigation.
  */
 import assert from 'node:assert/strict';
+import { format } from 'date-fns';
 import type { Locator, Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { desktop } from '../harness';
@@ -59,7 +60,7 @@ async function bookTheLeakRepair(ctx: JourneyContext, page: Page): Promise<numbe
   const said = await noticeText(page, /Repair visit WO-\d+ is in the Roster queue/);
   const number = Number(/WO-(\d+)/.exec(said)![1]);
   assert.ok(number > 0, `the notice names the work order (${said})`);
-  assert.match(said, /to be booked by \d{4}-\d{2}-\d{2} with an EPA 608 .+ technician\./, 'the notice gives the deadline and the certification');
+  assert.match(said, /to be booked by \d{1,2} [A-Z][a-z]{2} \d{4} with an EPA 608 .+ technician\./, 'the notice gives the deadline and the certification');
   // The card now names the repair visit instead of offering to book it again.
   await card.getByText(`Repair visit WO-${number}: in the Roster queue, not booked yet`).waitFor();
   assert.equal(await book.count(), 0, 'the case cannot be booked twice');
@@ -146,7 +147,9 @@ async function buildQuarterlyAgreement(ctx: JourneyContext, page: Page) {
   const terms = await panel.innerText();
   assert.match(terms, /8 hours/, 'the SLA is saved');
   assert.match(terms, /\$4,200/, 'the price is saved');
-  assert.match(terms, new RegExp(`${termStart} → ${termEnd}`), 'the term is saved');
+  // Dates in words as date-fns writes "d MMM yyyy" (the house style, DEVELOPERS.md "Dates on screen").
+  const words = (d: string) => format(new Date(`${d}T12:00:00`), 'd MMM yyyy');
+  assert.match(terms, new RegExp(`${words(termStart)} → ${words(termEnd)}`), 'the term is saved, its dates in words');
   assert.match(terms, /Replace filters · Clean condenser coil · Check belts and bearings · Test safeties and controls/, 'the tasks are saved');
   assert.match(terms, /No visits planned yet/, 'no visits before the plan is applied');
   ctx.step(`saved “${AGREEMENT_NAME}” (${unitCount} unit(s), ${termStart} → ${termEnd})`);

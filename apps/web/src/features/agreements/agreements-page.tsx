@@ -1,6 +1,6 @@
 import { lazy, Suspense, useCallback, useMemo, useRef, useState } from 'react';
 import { CalendarRange, Plus, RefreshCw } from 'lucide-react';
-import { describeAgreementRrule, PM_GRACE_DAYS, type AgreementRow, type PlanPreview, type PlanVisit } from '@coilpath/contract';
+import { recordDate, describeAgreementRrule, PM_GRACE_DAYS, type AgreementRow, type PlanPreview, type PlanVisit } from '@coilpath/contract';
 import { useBranch } from '@/lib/branch';
 import { errorMessage } from '@/lib/api-client';
 import { formatInZone, formatMoney, todayInZone } from '@/lib/format';
@@ -103,7 +103,7 @@ function AgreementsTable({ rows, onOpen, selected }: { rows: AgreementRow[]; onO
       { id: 'site', header: 'Site', accessorFn: (a) => a.siteName },
       { id: 'units', header: 'Units', accessorFn: (a) => a.units.length, cell: ({ row: { original: a } }) => a.units.map((u) => u.tag).join(', ') },
       { id: 'rule', header: 'Visits', enableSorting: false, cell: ({ row: { original: a } }) => <span className="text-xs">{describeAgreementRrule(a.rrule)}</span> },
-      { id: 'term', header: 'Term ends', accessorFn: (a) => a.termEnd, cell: ({ row: { original: a } }) => `${a.termStart} → ${a.termEnd}` },
+      { id: 'term', header: 'Term ends', accessorFn: (a) => a.termEnd, cell: ({ row: { original: a } }) => `${recordDate(a.termStart)} → ${recordDate(a.termEnd)}` },
       { id: 'sla', header: 'SLA', accessorFn: (a) => a.slaHours, cell: ({ row: { original: a } }) => `${a.slaHours} h` },
       { id: 'price', header: 'Price', accessorFn: (a) => a.priceCents, cell: ({ row: { original: a } }) => formatMoney(a.priceCents) },
       { id: 'next', header: 'Next visit', accessorFn: (a) => a.nextPlannedDate ?? '', cell: ({ row: { original: a } }) => a.nextPlannedDate ?? (a.plannedCount ? 'None ahead' : 'Not planned') },
@@ -187,7 +187,7 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
         <div><dt className="text-slate">Customer</dt><dd>{a.customerName}</dd></div>
         <div><dt className="text-slate">Covered units</dt><dd>{a.units.map((u) => `${u.tag} (${u.make} ${u.model})`).join(', ')}</dd></div>
         <div><dt className="text-slate">Visits</dt><dd>{describeAgreementRrule(a.rrule)}</dd></div>
-        <div><dt className="text-slate">Term</dt><dd className="tabular">{a.termStart} → {a.termEnd}</dd></div>
+        <div><dt className="text-slate">Term</dt><dd className="tabular">{recordDate(a.termStart)} → {recordDate(a.termEnd)}</dd></div>
         <div><dt className="text-slate">SLA response</dt><dd>{a.slaHours} hours</dd></div>
         <div><dt className="text-slate">Price</dt><dd>{formatMoney(a.priceCents)}</dd></div>
         <div><dt className="text-slate">Per visit</dt><dd>{a.visitMinutes} minutes</dd></div>
@@ -238,7 +238,7 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
               <ul className="mt-1 list-disc pl-5">
                 {preview.dropped.map((d) => (
                   <li key={d.ruleDate}>
-                    <span className="tabular">{d.ruleDate}</span> — {d.reason}
+                    <span className="tabular">{recordDate(d.ruleDate)}</span> — {d.reason}
                   </li>
                 ))}
               </ul>
@@ -259,8 +259,8 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
               <tbody>
                 {preview.visits.map((v) => (
                   <tr key={`${v.ruleDate}-${v.workOrderId ?? 'new'}`} className="border-t border-slate-line/70">
-                    <td className="tabular px-2 py-1 whitespace-nowrap">{v.plannedDate}</td>
-                    <td className="tabular px-2 py-1 whitespace-nowrap">{v.ruleDate}</td>
+                    <td className="tabular px-2 py-1 whitespace-nowrap">{recordDate(v.plannedDate)}</td>
+                    <td className="tabular px-2 py-1 whitespace-nowrap">{recordDate(v.ruleDate)}</td>
                     <td className="px-2 py-1"><Badge tone={actionTone[v.action]}>{actionLabels[v.action]}</Badge></td>
                     <td className="px-2 py-1 text-xs">{v.moved ?? ''}</td>
                   </tr>
@@ -411,7 +411,7 @@ function PmCompletionSection({ branchId, onOpen }: { branchId: string | undefine
                       {r.name}
                     </button>
                     <span className="text-slate">
-                      {r.customerName} · {r.siteName} · ends {r.termEnd} · {formatMoney(r.priceCents)}
+                      {r.customerName} · {r.siteName} · ends {recordDate(r.termEnd)} · {formatMoney(r.priceCents)}
                     </span>
                   </li>
                 ))}

@@ -1,7 +1,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, Droplets, History, Siren } from 'lucide-react';
-import { causeCodeLabels, causeOriginLabels, formatMeasure, readingsElevationNote, unitSystemOf, visitOutcomeLabels, type MeasureKind, type ReadingUnits } from '@coilpath/contract';
+import { recordDate, causeCodeLabels, causeOriginLabels, formatMeasure, readingsElevationNote, unitSystemOf, visitOutcomeLabels, type MeasureKind, type ReadingUnits } from '@coilpath/contract';
 import { daysFrom } from '@coilpath/calc';
 import { Badge } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
@@ -35,7 +35,7 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
           <AlertTriangle className="mt-0.5 size-4 shrink-0 text-alarm" aria-hidden="true" />
           <p>
             <strong className="text-alarm">Open leak case</strong>: leak rate {b.openLeakCase.leakRatePercent.toFixed(1)} % a year over the{' '}
-            {b.openLeakCase.thresholdPercent} % threshold ({b.openLeakCase.rule}); repair due <strong>{b.openLeakCase.repairDueDate}</strong>
+            {b.openLeakCase.thresholdPercent} % threshold ({b.openLeakCase.rule}); repair due <strong>{recordDate(b.openLeakCase.repairDueDate)}</strong>
             {leakDaysLeft !== null && (leakDaysLeft < 0 ? ` — ${-leakDaysLeft} days overdue` : ` — in ${leakDaysLeft} days`)}
             {b.openLeakCase.chronic ? '; chronic leaker' : ''}.
           </p>

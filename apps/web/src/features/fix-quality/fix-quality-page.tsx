@@ -2,7 +2,7 @@ import { useMemo } from 'react';
 import { useSearchParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
 import { ArrowDownRight, ArrowUpRight, FileDown, Minus } from 'lucide-react';
-import type { FixQualityReport } from '@coilpath/contract';
+import { recordDate, type FixQualityReport } from '@coilpath/contract';
 import { useBranch } from '@/lib/branch';
 import { useUser } from '@/lib/session';
 import { PageHeader } from '@/components/ui/page';
@@ -138,7 +138,7 @@ export default function FixQualityPage() {
         subtitle={
           <>
             Where service calls are fixed the first time, where they come back, and why — <strong>{branchName}</strong>, first visits closed{' '}
-            {from} to {to} (UTC dates), compared with {prev ? `${prev.from} to ${prev.to}` : 'the previous period'} (as many days, ending the day before).
+            {recordDate(from)} to {recordDate(to)} (UTC dates), compared with {prev ? `${recordDate(prev.from)} to ${recordDate(prev.to)}` : 'the previous period'} (as many days, ending the day before).
           </>
         }
         actions={

@@ -1,6 +1,6 @@
 import { AlertTriangle } from 'lucide-react';
 import type { Booking, Technician, WorkOrder } from '@coilpath/contract';
-import { epa608Labels, priorityLabels, workOrderKindLabels, workOrderLabel } from '@coilpath/contract';
+import { scheduleDay, epa608Labels, priorityLabels, workOrderKindLabels, workOrderLabel } from '@coilpath/contract';
 import { formatInZone } from '@/lib/format';
 import { overrideSummary } from './rules';
 import { instantToLocal } from './zone';
@@ -37,7 +37,7 @@ export function Refusal({ message }: { message: string | null | undefined }) {
 /** Whether the leak-repair deadline has passed today or falls before the booked day. */
 export function leakDeadline(dueDate: string | null, today: string, bookedDay?: string): { overdue: boolean; text: string } | null {
   if (!dueDate) return null;
-  const due = new Date(`${dueDate}T12:00:00Z`).toLocaleDateString('en-US', { day: 'numeric', month: 'short', timeZone: 'UTC' });
+  const due = scheduleDay(dueDate, today);
   if (dueDate < today) return { overdue: true, text: `Leak repair overdue (due ${due})` };
   if (bookedDay && dueDate < bookedDay) return { overdue: true, text: `Booked after the leak-repair deadline (${due})` };
   return { overdue: false, text: `Leak repair due ${due}` };

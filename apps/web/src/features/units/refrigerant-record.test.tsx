@@ -50,7 +50,7 @@ describe('RefrigerantRecordView', () => {
   });
   it('shows each obligation with its deadline and its state’s label from the vocabulary, and the caution', () => {
     expect(html).toContain(leakObligationStateLabels.overdue);
-    expect(html).toContain('Repair due 2024-08-07');
+    expect(html).toContain('Repair due 7 Aug 2024');
     expect(html).toContain('role="note"');
     expect(html).toContain('local codes');
   });

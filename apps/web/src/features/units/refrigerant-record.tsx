@@ -6,6 +6,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { AlertTriangle, CheckCircle2, FileDown } from 'lucide-react';
 import {
+  recordDate,
   additionExemptionLabels,
   leakObligationStateLabels,
   leakRateMethodLabels,
@@ -77,7 +78,7 @@ export function RefrigerantRecordView({ record: r }: { record: RefrigerantRecord
         <UnitTable caption="Refrigerant record: every entry with the leak rate at that moment" head={['Date', 'Entry', 'Pounds', 'Leak rate', 'Rule, threshold', 'By']}>
           {r.events.map((e) => (
             <tr key={`${e.kind}-${e.sourceId}`}>
-              <td className="whitespace-nowrap">{e.date}</td>
+              <td className="whitespace-nowrap">{recordDate(e.date)}</td>
               <td>
                 {refrigerantRecordEntryText(e)}
                 {e.opensObligation && <span className="block text-xs font-medium text-alarm">Opened a repair obligation</span>}
@@ -115,14 +116,14 @@ export function RefrigerantRecordView({ record: r }: { record: RefrigerantRecord
             {r.obligations.map((o) => (
               <li key={o.triggeredOn} className="rounded-md border border-slate-line p-3 text-sm">
                 <Badge tone={stateTone[o.state]}>{leakObligationStateLabels[o.state]}</Badge>{' '}
-                {o.triggeredOn}: {formatNumber(o.leakRatePercent, 2)} %/yr over {o.thresholdPercent} % ({o.rule}). Repair due {o.repairDueDate}; initial
+                {recordDate(o.triggeredOn)}: {formatNumber(o.leakRatePercent, 2)} %/yr over {o.thresholdPercent} % ({o.rule}). Repair due {recordDate(o.repairDueDate)}; initial
                 verification test due {o.initialTestDue}
                 {o.followUpTestDue ? `; follow-up test due ${o.followUpTestDue}` : ''}.
                 {o.timeline.length > 0 && (
                   <ul className="mt-1 list-inside list-disc text-xs text-slate">
                     {o.timeline.map((x, i) => (
                       <li key={i}>
-                        {x.date} — {x.text}
+                        {recordDate(x.date)} — {x.text}
                       </li>
                     ))}
                   </ul>

@@ -3,6 +3,7 @@ import { Link, useParams, useSearchParams } from 'react-router-dom';
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { AlertTriangle, FileText, Printer, Search } from 'lucide-react';
 import {
+  recordDate,
   applianceCategoryLabels,
   causeCodeLabels,
   causeOriginLabels,
@@ -343,9 +344,9 @@ function UnitFileView({ id }: { id: string }) {
               <ul className="flex flex-col gap-2">
                 {f.leakCases.map((c) => (
                   <li key={c.id} className="rounded-md border border-slate-line p-3 text-sm">
-                    <Badge tone={c.status === 'open' ? 'alarm' : 'ok'}>{leakCaseStatusLabels[c.status]}</Badge> Opened {c.openedOn} at{' '}
-                    {formatNumber(c.leakRatePercent, 1)} %/yr ({c.method}) over {c.thresholdPercent} % under {c.rule}. Repair due {c.repairDueDate}
-                    {c.repairedOn ? `, repaired ${c.repairedOn}` : ''}
+                    <Badge tone={c.status === 'open' ? 'alarm' : 'ok'}>{leakCaseStatusLabels[c.status]}</Badge> Opened {recordDate(c.openedOn)} at{' '}
+                    {formatNumber(c.leakRatePercent, 1)} %/yr ({c.method}) over {c.thresholdPercent} % under {c.rule}. Repair due {recordDate(c.repairDueDate)}
+                    {c.repairedOn ? `, repaired ${recordDate(c.repairedOn)}` : ''}
                     {c.chronic ? ' · chronic leaker' : ''}.
                     {c.verificationTests.length > 0 && (
                       <span className="block text-xs text-slate">

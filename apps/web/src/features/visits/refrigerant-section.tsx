@@ -1,7 +1,7 @@
 import { useEffect, useEffectEvent, useRef, useState } from 'react';
 import { AlertTriangle } from 'lucide-react';
 import { listRefrigerants } from '@coilpath/calc';
-import { refrigerantEventReasonLabels, refrigerantEventReasons, type RefrigerantEventReason, type RefrigerantEventResult, type VisitDetail } from '@coilpath/contract';
+import { recordDate, refrigerantEventReasonLabels, refrigerantEventReasons, type RefrigerantEventReason, type RefrigerantEventResult, type VisitDetail } from '@coilpath/contract';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';
@@ -38,7 +38,7 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
     const r = answer as RefrigerantEventResult;
     const rate = r.leakCheck ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.` : '';
     const text = r.leakCaseOpened && r.leakCase
-      ? `Refrigerant saved.${rate} A leak case is open: repair due ${r.leakCase.repairDueDate}. The branch manager sees it on the Watchlist.`
+      ? `Refrigerant saved.${rate} A leak case is open: repair due ${recordDate(r.leakCase.repairDueDate)}. The branch manager sees it on the Watchlist.`
       : `Refrigerant saved.${rate}`;
     setLastResult(text);
     notify(text, r.leakCaseOpened ? 'alarm' : 'ok');

@@ -59,6 +59,8 @@ function VisitScreen({ id }: { id: string }) {
     );
   const v = q.data;
   const tz = v.branch.timeZone;
+  // A timeline whose events fall on more than one day (a visit reopened the next morning) dates each line.
+  const timelineSpansDays = new Set(v.events.map((e) => formatInZone(e.at, tz, 'yyyy-MM-dd'))).size > 1;
   return (
     <>
       <PageHeader
@@ -160,7 +162,8 @@ function VisitScreen({ id }: { id: string }) {
               <ol className="flex flex-col gap-1 text-sm">
                 {v.events.map((e, i) => (
                   <li key={i} className="tabular-nums">
-                    {formatInZone(e.at, tz, 'HH:mm')} · {visitStatusLabels[e.state as keyof typeof visitStatusLabels] ?? e.state}
+                    {formatInZone(e.at, tz, timelineSpansDays ? 'EEE d MMM, HH:mm' : 'HH:mm')} ·{' '}
+                    {visitStatusLabels[e.state as keyof typeof visitStatusLabels] ?? e.state}
                   </li>
                 ))}
               </ol>

@@ -1,6 +1,6 @@
 import { useCallback, useState } from 'react';
 import { AlertTriangle, CheckCircle2, Clock, Wrench } from 'lucide-react';
-import { epa608Labels, leakCaseStatusLabels, leakObligationStateLabels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
+import { recordDate, epa608Labels, leakCaseStatusLabels, leakObligationStateLabels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';
@@ -110,8 +110,8 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
           const wo = r.leakCase.repairWorkOrder;
           notify(
             r.joined
-              ? `The repair joined ${woLabel(wo?.number ?? null)}, the return visit already open for ${c.unitTag}: it now includes the leak repair, to be booked by ${c.repairDueDate} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`
-              : `Repair visit ${woLabel(wo?.number ?? null)} is in the Roster queue, to be booked by ${c.repairDueDate} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`,
+              ? `The repair joined ${woLabel(wo?.number ?? null)}, the return visit already open for ${c.unitTag}: it now includes the leak repair, to be booked by ${recordDate(c.repairDueDate)} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`
+              : `Repair visit ${woLabel(wo?.number ?? null)} is in the Roster queue, to be booked by ${recordDate(c.repairDueDate)} with an EPA 608 ${epa608Labels[c.requiredCertification]} technician.`,
           );
         },
         onError: (e) => {
@@ -132,7 +132,7 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
             {c.unitTag} <span className="font-normal text-slate">· {c.siteName}</span>
           </h3>
           <p className="tabular text-sm text-slate">
-            {c.make} {c.model} · {c.refrigerant}, full charge {c.fullChargeLb.toFixed(1)} lb · opened {c.openedOn}
+            {c.make} {c.model} · {c.refrigerant}, full charge {c.fullChargeLb.toFixed(1)} lb · opened {recordDate(c.openedOn)}
           </p>
         </div>
         <div className="flex flex-wrap gap-1">
@@ -198,7 +198,7 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
               {c.repairWorkOrder ? 'Book another repair visit' : 'Book repair visit'}
             </Button>
             <p className="basis-full text-xs text-slate">
-              Creates a return visit in the Roster queue (or joins the one already open for this unit): needs EPA 608 {epa608Labels[c.requiredCertification]}, to be booked by {c.repairDueDate}.
+              Creates a return visit in the Roster queue (or joins the one already open for this unit): needs EPA 608 {epa608Labels[c.requiredCertification]}, to be booked by {recordDate(c.repairDueDate)}.
             </p>
           </>
         )}
@@ -270,7 +270,7 @@ function PlanForm({ c, onDone }: { c: LeakCaseRow; onDone: () => void }) {
       { id: c.id, patch: { action: 'plan', planKind } },
       {
         onSuccess: (r) => {
-          notify(`${planKind === 'retrofit' ? 'Retrofit' : 'Retirement'} plan for ${c.unitTag} recorded; it is due to be carried out by ${r.leakCase.planDueDate}.`);
+          notify(`${planKind === 'retrofit' ? 'Retrofit' : 'Retirement'} plan for ${c.unitTag} recorded; it is due to be carried out by ${r.leakCase.planDueDate ? recordDate(r.leakCase.planDueDate) : 'its deadline'}.`);
           onDone();
         },
         onError: (err) => setError(errorMessage(err)),
