@@ -1,6 +1,7 @@
 /** Maintenance agreements: covered units, recurrence, term, SLA, price, tasks; visit plans; PM completion. */
 import { and, asc, eq, gte, inArray, lte, ne, sql } from 'drizzle-orm';
 import {
+  recordDate,
   PM_GRACE_DAYS,
   buildAgreementRrule,
   parseAgreementRrule,
@@ -251,13 +252,13 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
         if (v.movedBecause) {
           reasons.push(
             {
-              holiday: `moved off the holiday ${v.originalDate}`,
-              weekend: `moved off the weekend (${v.originalDate})`,
-              taken: `moved to the next free working day: ${v.originalDate} already had a visit of this plan`,
+              holiday: `moved off the holiday ${recordDate(v.originalDate)}`,
+              weekend: `moved off the weekend (${recordDate(v.originalDate)})`,
+              taken: `moved to the next free working day: ${recordDate(v.originalDate)} already had a visit of this plan`,
             }[v.movedBecause],
           );
         }
-        if (l.date !== v.date) reasons.push(`moved to a later week: the week of ${v.date} already had ${maxPerWeek} planned visits`);
+        if (l.date !== v.date) reasons.push(`moved to a later week: the week of ${recordDate(v.date)} already had ${maxPerWeek} planned visits`);
         const text = reasons.join('; ');
         return { ruleDate: v.originalDate, workingDate: v.date, plannedDate: l.date, moved: text ? text[0]!.toUpperCase() + text.slice(1) : null };
       });

@@ -79,7 +79,7 @@ describe('visit plan', () => {
     expect(preview.body.counts).toEqual({ new: 4, keep: 0, move: 0, locked: 0, cancel: 0 });
     expect(preview.body.visits.map((v: { plannedDate: string }) => v.plannedDate)).toEqual(['2027-01-15', '2027-04-16', '2027-07-15', '2027-10-15']);
     const april = preview.body.visits[1];
-    expect(april).toMatchObject({ ruleDate: '2027-04-15', moved: 'Moved off the holiday 2027-04-15' });
+    expect(april).toMatchObject({ ruleDate: '2027-04-15', moved: 'Moved off the holiday 15 Apr 2027' });
     expect(await pmRows(a.id)).toHaveLength(0);
 
     const applied = await mgr.post(`/api/agreements/${a.id}/plan/apply`);

@@ -1,6 +1,7 @@
 /** The refrigerant record as CSV (the shared `toCsv`) and as PDF (the shared `createPdf`): the copy a manager hands an auditor. */
 import { csvTimestamp, toCsv } from '@coilpath/calc';
 import {
+  recordDate,
   additionExemptionLabels,
   applianceCategoryLabels,
   epa608Labels,
@@ -112,7 +113,7 @@ export async function recordPdf(r: RefrigerantRecord, generatedAt: Date): Promis
 
   pdf.heading('Appliance');
   pdf.paragraph(`${a.site.name} — ${a.site.customerName}, ${[a.site.address, a.site.city, a.site.region].filter(Boolean).join(', ')}`, { lead: 'Site: ' });
-  pdf.paragraph(`${a.tag}, ${unitKindLabels[a.kind]}: ${a.make} ${a.model}, serial ${a.serial}${a.installDate ? `, installed ${a.installDate}` : ''}`, { lead: 'Unit: ' });
+  pdf.paragraph(`${a.tag}, ${unitKindLabels[a.kind]}: ${a.make} ${a.model}, serial ${a.serial}${a.installDate ? `, installed ${recordDate(a.installDate)}` : ''}`, { lead: 'Unit: ' });
   pdf.paragraph(`${a.refrigerant}; ${applianceCategoryLabels[a.applianceCategory]}`, { lead: 'Refrigerant and category: ' });
   pdf.paragraph(`${a.fullChargeLb} lb. ${a.fullChargeBasis}`, { lead: 'Full charge: ' });
   if (a.circuits.length > 1) {

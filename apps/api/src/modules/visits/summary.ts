@@ -7,6 +7,7 @@
  * return-visit needs and their notes) never go into it.
  */
 import {
+  scheduleDay,
   causeCodeLabels,
   causeOriginLabels,
   refrigerantEventReasonLabels,
@@ -63,9 +64,6 @@ export interface SummarySections {
   outcome: string[];
 }
 
-/** A calendar date `YYYY-MM-DD` as words ("Thu 10 Dec 2026"), without moving it through a zone. */
-const dateWords = (d: string) =>
-  new Date(`${d}T12:00:00Z`).toLocaleDateString('en-GB', { weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).replace(/,/g, '');
 
 export function summarySections(v: VisitDetail, c: SummaryContext): SummarySections {
   const tz = v.branch.timeZone;
@@ -105,11 +103,11 @@ export function summarySections(v: VisitDetail, c: SummaryContext): SummarySecti
     }),
     refrigerant: v.refrigerantEvents.map(
       (e) =>
-        `${e.date}: ${e.refrigerant}, added ${e.poundsAdded.toFixed(1)} lb, recovered ${e.poundsRecovered.toFixed(1)} lb (${refrigerantEventReasonLabels[e.reason]})${e.cylinderLot ? `, cylinder/lot ${e.cylinderLot}` : ''}`,
+        `${scheduleDay(e.date)}: ${e.refrigerant}, added ${e.poundsAdded.toFixed(1)} lb, recovered ${e.poundsRecovered.toFixed(1)} lb (${refrigerantEventReasonLabels[e.reason]})${e.cylinderLot ? `, cylinder/lot ${e.cylinderLot}` : ''}`,
     ),
     leaks: c.openLeakCases.map(
       (l) =>
-        `${l.unitTag}: a leak rate of ${l.leakRatePercent.toFixed(1)} % a year is above the ${l.thresholdPercent} % limit (found ${dateWords(l.openedOn)}). The repair is due by ${dateWords(l.repairDueDate)}.`,
+        `${l.unitTag}: a leak rate of ${l.leakRatePercent.toFixed(1)} % a year is above the ${l.thresholdPercent} % limit (found ${scheduleDay(l.openedOn)}). The repair is due by ${scheduleDay(l.repairDueDate)}.`,
     ),
     outcome,
   };

@@ -7,7 +7,7 @@
  */
 import { TZDate } from '@date-fns/tz';
 import { and, eq, isNull } from 'drizzle-orm';
-import { DUE_SOON_DAYS, type SessionUser } from '@coilpath/contract';
+import { scheduleDay, DUE_SOON_DAYS, type SessionUser } from '@coilpath/contract';
 import { sameCode, zonedDate } from '@coilpath/calc';
 import type { AppContext } from '../../context';
 import { branches, jobRuns, users } from '../../db/schema';
@@ -81,7 +81,7 @@ async function digestForBranch(ctx: AppContext, b: typeof branches.$inferSelect,
   const caseLines = cases.map((c) => {
     const n = c.next!;
     const when = n.daysLeft < 0 ? `OVERDUE by ${-n.daysLeft} day${n.daysLeft === -1 ? '' : 's'}` : n.daysLeft === 0 ? 'due TODAY' : `due in ${n.daysLeft} day${n.daysLeft === 1 ? '' : 's'}`;
-    return `${c.unitTag} at ${c.siteName} (${c.refrigerant}, leak rate ${c.leakRatePercent.toFixed(1)} % over ${c.thresholdPercent} %, ${c.rule}): ${whatLabels[n.what]} ${when} (${n.due})`;
+    return `${c.unitTag} at ${c.siteName} (${c.refrigerant}, leak rate ${c.leakRatePercent.toFixed(1)} % over ${c.thresholdPercent} %, ${c.rule}): ${whatLabels[n.what]} ${when} (${scheduleDay(n.due)})`;
   });
   const freshLines = fresh.map(
     (u) =>

@@ -2,6 +2,7 @@
 import { and, asc, desc, eq, gte, inArray, isNotNull, isNull, ne, sql } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import {
+  recordDate,
   DUE_SOON_DAYS,
   type LeakCasePatch,
   type LeakCaseRow,
@@ -459,7 +460,7 @@ export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: stri
     if (patch.action === 'repaired') {
       if (c.status !== 'open') throw unprocessable(`Only an open case can be marked repaired; this one is ${c.status.replace('_', ' ')}.`);
       if (patch.repairedOn > today) throw unprocessable('The repair date is in the future.');
-      if (patch.repairedOn < c.openedOn) throw unprocessable(`The repair date is before the case opened (${c.openedOn}).`);
+      if (patch.repairedOn < c.openedOn) throw unprocessable(`The repair date is before the case opened (${recordDate(c.openedOn)}).`);
       await tx
         .update(leakCases)
         .set({ status: 'repaired', repairedOn: patch.repairedOn, notes: patch.notes ?? c.notes, updatedAt: now })
@@ -515,7 +516,7 @@ export async function addVerificationTest(ctx: AppContext, user: SessionUser, id
     const [b] = (await branchesById(tx, [c.branchId])).values();
     const today = todayIn(b?.timeZone ?? 'UTC', ctx.clock.now());
     if (input.testedOn > today) throw unprocessable('The test date is in the future.');
-    if (input.testedOn < c.openedOn) throw unprocessable(`The test date is before the case opened (${c.openedOn}).`);
+    if (input.testedOn < c.openedOn) throw unprocessable(`The test date is before the case opened (${recordDate(c.openedOn)}).`);
     const tests = await tx.select().from(verificationTests).where(eq(verificationTests.leakCaseId, id));
     if (input.kind === 'follow_up' && !tests.some((t) => t.kind === 'initial' && t.passed && t.testedOn <= input.testedOn)) {
       throw unprocessable('Record a passed initial verification test first: the follow-up test comes after it (40 CFR 82.157(e) [M], 84.106(e) [S]).');

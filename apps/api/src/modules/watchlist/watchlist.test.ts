@@ -352,7 +352,7 @@ describe('daily digest', () => {
     expect(t.mailer.sent).toHaveLength(1);
     expect(t.mailer.sent[0]!.to).toBe(f.inA.manager.email);
     expect(t.mailer.sent[0]!.text).toContain(unitA.unit.tag);
-    expect(t.mailer.sent[0]!.text).toContain('repair due in 5 days (2026-12-20)');
+    expect(t.mailer.sent[0]!.text).toContain('repair due in 5 days (Sun 20 Dec 2026)');
 
     // Later the same day, and from a "second process" (a fresh call): nothing more is sent.
     const again = await at('2026-12-15T20:00:00.000Z');
