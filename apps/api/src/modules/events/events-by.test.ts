@@ -14,6 +14,8 @@ import { makeSiteWithUnit, makeTwoBranches, makeUser, makeWorkOrder, TEST_PASSWO
 import { addDays } from '@coilpath/calc';
 import { mayHear, toLiveEvent } from './events.service';
 import { changeAs } from './actor';
+import request from 'supertest';
+import { signatureHeader } from '../alarm-sources/signature';
 
 let t: TestApp;
 let f: Awaited<ReturnType<typeof makeTwoBranches>>;
@@ -165,6 +167,25 @@ describe('by: who made the change', () => {
   it('names no one for a change made by no person (a job, a controller), and the person for changeAs', async () => {
     const byJob = one(await eventsOf(() => makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: siteA.site.id })), 'roster');
     expect(byJob.by).toBeNull();
+    // A controller's signed alarm (the source registered by a manager, the alarm sent by no one).
+    const source = ok(201)(await as.manager!.post('/api/alarm-sources').send({ siteId: siteA.site.id, name: 'Roof BMS' })) as { id: string; secret: string };
+    const raw = JSON.stringify({ deliveryId: 'd-by-1', unitTag: siteA.unit.tag, code: 'LP1', raisedAt: `${today}T11:00:00Z` });
+    const ts = String(Math.floor(t.ctx.clock.now().getTime() / 1000));
+    const byController = one(
+      await eventsOf(async () =>
+        ok(202)(
+          await request(t.app)
+            .post(`/api/ingest/alarms/${source.id}`)
+            .set('Content-Type', 'application/json')
+            .set('X-Coilpath-Timestamp', ts)
+            .set('X-Coilpath-Signature', signatureHeader(source.secret, ts, Buffer.from(raw)))
+            .send(raw),
+        ),
+      ),
+      'alarm',
+    );
+    expect(byController.by).toBeNull();
+    expect(byController.kind === 'alarm' && byController.units).toEqual([siteA.unit.id]);
     const byPerson = one(await eventsOf(() => changeAs(t.ctx.db, ana.id, (tx) => makeWorkOrder(tx as never, { branchId: f.a.id, siteId: siteA.site.id }))), 'roster');
     expect(byPerson.by).toEqual(who(ana));
   });
