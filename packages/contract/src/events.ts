@@ -24,7 +24,7 @@ export function liveKindsFor(role: Role): readonly LiveEventKind[] {
   }
 }
 
-/** Who made the change (null: made by a job, an import or a controller, or not said). */
+/** Who made the change: the signed-in person whose request made it; null when no person did (a job, a controller). */
 export type LiveActor = { id: string; name: string } | null;
 
 interface LiveEventBase {
