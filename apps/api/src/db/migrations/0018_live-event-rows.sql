@@ -6,27 +6,33 @@
 -- `leak-case` event its leak cases. An immediate row trigger notes each row in a transaction-local setting per
 -- branch; the deferred triggers that write the events at commit read the notes (every statement has run).
 -- Up to 50 rows are named; beyond that (an agreement's plan, a CSV import) the list is `null`: many.
+-- TG_ARGV: the list's name and the column that names the row, `id` or `unit_id` (the three tables have both).
 CREATE OR REPLACE FUNCTION live_note_row() RETURNS trigger LANGUAGE plpgsql AS $$
 DECLARE
-  r jsonb;
-  branch uuid;
+  r record;
   item text;
   flag text;
   noted text;
 BEGIN
   IF TG_OP = 'DELETE' THEN
-    r := to_jsonb(OLD);
+    r := OLD;
   ELSE
-    r := to_jsonb(NEW);
+    r := NEW;
   END IF;
-  branch := (r ->> 'branch_id')::uuid;
-  item := r ->> TG_ARGV[1];
-  IF branch IS NULL OR item IS NULL THEN
+  IF r.branch_id IS NULL THEN
     RETURN NULL;
   END IF;
-  flag := 'coilpath.live_' || TG_ARGV[0] || '_' || replace(branch::text, '-', '');
+  flag := 'coilpath.live_' || TG_ARGV[0] || '_' || replace(r.branch_id::text, '-', '');
   noted := coalesce(current_setting(flag, true), '');
-  IF noted = '*' OR position(item || ',' in noted) > 0 THEN
+  IF noted = '*' THEN
+    RETURN NULL;
+  END IF;
+  IF TG_ARGV[1] = 'unit_id' THEN
+    item := r.unit_id::text;
+  ELSE
+    item := r.id::text;
+  END IF;
+  IF item IS NULL OR position(item || ',' in noted) > 0 THEN
     RETURN NULL;
   END IF;
   PERFORM set_config(flag, CASE WHEN length(noted) >= 50 * 37 THEN '*' ELSE noted || item || ',' END, true);
