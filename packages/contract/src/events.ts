@@ -24,7 +24,7 @@ export function liveKindsFor(role: Role): readonly LiveEventKind[] {
   }
 }
 
-/** Who made the change (null: made by a job, an import or a controller, or not said). */
+/** Who made the change: the signed-in person whose request made it; null when no person did (a job, a controller). */
 export type LiveActor = { id: string; name: string } | null;
 
 interface LiveEventBase {
@@ -42,6 +42,8 @@ export type LiveEvent =
       revision: number;
       /** The bookings the change touched; null when many (more than 50). */
       bookings: string[] | null;
+      /** The work orders the change touched (the unplaced queue, return visits); null when many. */
+      workOrders: string[] | null;
     })
   | (LiveEventBase & { kind: 'day'; techId: string })
   | (LiveEventBase & {
@@ -52,14 +54,37 @@ export type LiveEvent =
       techId: string;
       state: 'booked' | 'en_route' | 'on_site' | 'closed';
     })
-  | (LiveEventBase & { kind: 'alarm' | 'leak-case' });
+  | (LiveEventBase & {
+      kind: 'alarm';
+      /** The units whose alarms the change touched (the Watchlist's repeat-alarm rows); null when many. */
+      units: string[] | null;
+    })
+  | (LiveEventBase & {
+      kind: 'leak-case';
+      /** The leak cases the change touched; null when many. */
+      leakCases: string[] | null;
+    });
+
+/** The rows an event names, by what they are (absent: it names none of that kind; null: many). */
+export function liveEventRows(e: LiveEvent): { bookings?: string[] | null; workOrders?: string[] | null; units?: string[] | null; leakCases?: string[] | null } {
+  switch (e.kind) {
+    case 'roster':
+      return { bookings: e.bookings, workOrders: e.workOrders };
+    case 'alarm':
+      return { units: e.units };
+    case 'leak-case':
+      return { leakCases: e.leakCases };
+    default:
+      return {};
+  }
+}
 
 /** "Ana" of "Ana Pereira": how a screen names who made a change. */
 export function firstName(name: string): string {
   return name.trim().split(/\s+/)[0] ?? name;
 }
 
-/** What a Roster chip says after someone else changed its booking. */
+/** What a chip or row says after someone else changed it (changes by a job or a controller say nothing). */
 export function changedByLabel(name: string): string {
   return `Changed by ${firstName(name)} just now`;
 }

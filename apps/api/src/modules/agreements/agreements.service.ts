@@ -23,6 +23,7 @@ import { agreementUnits, agreements, auditEvents, branches, customers, sites, un
 import { assertBranch } from '../../auth/middleware';
 import { notFound, unprocessable } from '../../lib/errors';
 import { branchFilter, branchesById, todayIn } from '../watchlist/scope';
+import { actAs } from '../events/actor';
 
 /** Planned-maintenance visits one technician can take in a week (one a working day): the levelling cap per technician. */
 export const PM_VISITS_PER_TECH_WEEK = 5;
@@ -113,6 +114,7 @@ async function checkUnits(tx: Tx, siteId: string, unitIds: string[]) {
 
 export async function createAgreement(ctx: AppContext, user: SessionUser, input: z.infer<typeof agreementInputSchema>): Promise<AgreementDetail> {
   const id = await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
     if (!site) throw notFound('site');
     assertBranch(user, site.branchId, 'site');
@@ -142,6 +144,7 @@ export async function createAgreement(ctx: AppContext, user: SessionUser, input:
 
 export async function patchAgreement(ctx: AppContext, user: SessionUser, id: string, patch: z.infer<typeof agreementPatchSchema>): Promise<AgreementDetail> {
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const [a] = await tx.select().from(agreements).where(eq(agreements.id, id)).limit(1);
     if (!a) throw notFound('agreement');
     assertBranch(user, a.branchId, 'agreement');
@@ -325,6 +328,7 @@ export async function previewPlan(ctx: AppContext, user: SessionUser, id: string
 
 export async function applyPlan(ctx: AppContext, user: SessionUser, id: string): Promise<PlanPreview & { applied: true }> {
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const { a, tz, visits, counts, adopt, dropped } = await computePlan(tx, ctx, user, id, true);
     const unitRows = await tx
       .select({ id: units.id, tag: units.tag })

@@ -27,6 +27,7 @@ import { alarmSources } from '../../db/schema';
 import * as repo from './alarm-sources.repo';
 import { presentDelivery, presentSource } from './alarm-sources.present';
 import { newSourceSecret, openSecret, readSignatureHeader, sealSecret, signatureMatches } from './signature';
+import { actAs } from '../events/actor';
 
 const HOUR_MS = 3_600_000;
 /** An alarm raised later than this past "now" is refused (the same allowance as an alarm typed in). */
@@ -125,6 +126,7 @@ export async function mapDelivery(ctx: AppContext, user: SessionUser, deliveryId
   if (!unit || unit.branchId !== d.branchId) throw notFound('unit');
   if (unit.siteId !== found.siteId) throw unprocessable(`Unit ${unit.tag} is at ${unit.siteName}, not at the alarm source's site; choose a unit of that site.`);
   const alarmId = await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const id = await repo.insertAlarm(tx, { branchId: d.branchId, unitId: unit.id, circuit: d.circuit, code: d.code!, description: d.message, raisedAt: d.raisedAt! });
     if (!(await repo.markMapped(tx, d.id, id))) throw conflict('not_unmatched', 'This delivery was mapped meanwhile.');
     return id;

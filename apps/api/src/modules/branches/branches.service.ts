@@ -5,6 +5,7 @@ import type { AppContext } from '../../context';
 import { branches } from '../../db/schema';
 import { assertBranch } from '../../auth/middleware';
 import { conflict, notFound } from '../../lib/errors';
+import { changeAs } from '../events/actor';
 
 type BranchRow = typeof branches.$inferSelect;
 
@@ -55,7 +56,7 @@ export async function getBranch(ctx: AppContext, user: SessionUser, id: string):
 
 export async function createBranch(ctx: AppContext, user: SessionUser, v: BranchValues): Promise<BranchDetail> {
   await refuseTakenCode(ctx, v.code);
-  const [b] = await ctx.db.insert(branches).values(columns(v) as typeof branches.$inferInsert).returning({ id: branches.id });
+  const [b] = await changeAs(ctx.db, user.id, (tx) => tx.insert(branches).values(columns(v) as typeof branches.$inferInsert).returning({ id: branches.id }));
   return getBranch(ctx, user, b!.id);
 }
 
@@ -63,6 +64,6 @@ export async function updateBranch(ctx: AppContext, user: SessionUser, id: strin
   await getBranch(ctx, user, id);
   await refuseTakenCode(ctx, v.code, id);
   const set = columns(v);
-  if (Object.keys(set).length) await ctx.db.update(branches).set(set).where(eq(branches.id, id));
+  if (Object.keys(set).length) await changeAs(ctx.db, user.id, (tx) => tx.update(branches).set(set).where(eq(branches.id, id)));
   return getBranch(ctx, user, id);
 }

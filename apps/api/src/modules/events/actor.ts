@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import type { Tx } from '../../db/client';
+import type { Db, Tx } from '../../db/client';
 
 /**
  * Names who makes the changes of this transaction, for the live events the database triggers write
@@ -8,4 +8,15 @@ import type { Tx } from '../../db/client';
  */
 export async function actAs(tx: Tx, userId: string): Promise<void> {
   await tx.execute(sql`select set_config('coilpath.actor', ${userId}, true)`);
+}
+
+/**
+ * A change made as one statement, in a transaction of its own that names who makes it (a statement outside a
+ * transaction could not carry the transaction-local setting to the triggers).
+ */
+export function changeAs<T>(db: Db, userId: string, change: (tx: Tx) => Promise<T>): Promise<T> {
+  return db.transaction(async (tx) => {
+    await actAs(tx, userId);
+    return change(tx);
+  });
 }

@@ -3,7 +3,7 @@
  * `live_events` and announce its id (`coilpath_live`, migration 0016); each API process listens once per
  * database (`LiveHub`) and hands the event to its connected screens whose person may see it (`mayHear`).
  */
-import { liveKindsFor, type LiveEvent, type SessionUser } from '@coilpath/contract';
+import { liveKindsFor, type LiveEvent, type LiveEventKind, type SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import type { Database } from '../../db/client';
 import { branchScope } from '../../auth/middleware';
@@ -17,10 +17,18 @@ export function mayHear(user: SessionUser, e: Pick<LiveEventRecord, 'branchId' |
   return e.userId === null || e.userId === user.id;
 }
 
+/** The rows an event names (migration 0018); a row written before names none. */
+const namesNone: Partial<Record<LiveEventKind, Record<string, unknown>>> = {
+  roster: { bookings: [], workOrders: [] },
+  alarm: { units: [] },
+  'leak-case': { leakCases: [] },
+};
+
 export function toLiveEvent(row: LiveEventRecord): LiveEvent {
   const { by = null, ...payload } = row.payload as { by?: LiveEvent['by'] } & Record<string, unknown>;
   const base = { id: Number(row.id), branchId: row.branchId, at: new Date(row.at).toISOString(), by, kind: row.kind };
-  return (row.kind === 'day' ? { ...payload, ...base, techId: row.userId } : { ...payload, ...base }) as LiveEvent;
+  const named = { ...namesNone[row.kind], ...payload };
+  return (row.kind === 'day' ? { ...named, ...base, techId: row.userId } : { ...named, ...base }) as LiveEvent;
 }
 
 interface Subscriber {

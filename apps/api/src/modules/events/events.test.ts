@@ -45,6 +45,8 @@ interface Stream {
   headers: Record<string, string | string[] | undefined>;
   events: (LiveEvent & { sseId: string; sseEvent: string })[];
   comments: string[];
+  /** The last `id:` received (an event's, or the mark sent at the start): what a browser sends back on reconnecting. */
+  lastId: string | undefined;
   ended: boolean;
   /** Resolves once `condition` holds (checked at every chunk received), rejects after `timeoutMs`. */
   until(condition: () => boolean, what: string, timeoutMs?: number): Promise<void>;
@@ -62,6 +64,7 @@ async function connect(base: string, cookie: string, lastEventId?: string): Prom
     headers: {},
     events: [],
     comments: [],
+    lastId: undefined,
     ended: false,
     until(condition, what, timeoutMs = 5000) {
       if (condition()) return Promise.resolve();
@@ -103,6 +106,7 @@ async function connect(base: string, cookie: string, lastEventId?: string): Prom
               fields[line.slice(0, colon)] = line.slice(colon + 1).trimStart();
             }
           }
+          if (fields.id !== undefined) s.lastId = fields.id;
           if (fields.data !== undefined) s.events.push({ ...(JSON.parse(fields.data) as LiveEvent), sseId: fields.id ?? '', sseEvent: fields.event ?? 'message' });
         }
         waiters.forEach((w) => w());
@@ -236,6 +240,31 @@ describe('GET /api/events', () => {
     const fresh = await connect(base, cookies.dispatcherA!);
     expect(fresh.events).toEqual([]);
     expect(await maxId()).toBeGreaterThan(from);
+  });
+
+  it('after the stream drops, reconnecting with the last id it received sends what happened meanwhile', async () => {
+    const first = await connect(base, cookies.dispatcherA!);
+    expect(first.lastId).toBe(String(await maxId()));
+    first.close();
+    const booking = await bookInA(f.inA.technician.id, '2027-03-12T15:00:00Z');
+    const again = await connect(base, cookies.dispatcherA!, first.lastId);
+    const missed = again.events.find((e) => e.kind === 'roster' && e.bookings?.includes(booking.id));
+    expect(missed?.by).toEqual({ id: f.inA.dispatcher.id, name: f.inA.dispatcher.name });
+    expect(again.events.every((e) => e.id > Number(first.lastId))).toBe(true);
+  });
+
+  it('never sends another branch’s alarms or leak cases (with the rows they name) to a manager', async () => {
+    const managerB = await connect(base, await cookieOf(t.app, f.inB.manager.email));
+    const owner = await connect(base, cookies.owner!);
+    const alarm = await request(t.app).post('/api/alarms').set('Cookie', cookies.managerA!).send({ unitId: siteA.unit.id, code: 'LP-4', raisedAt: '2027-03-01T11:30:00Z' });
+    expect(alarm.status, JSON.stringify(alarm.body)).toBe(201);
+    await owner.until(() => owner.events.some((e) => e.kind === 'alarm' && e.branchId === f.a.id && e.units?.includes(siteA.unit.id)), 'the owner hears A’s alarm and its unit');
+    // Then one in B: B's manager hears it, and nothing of A came before it.
+    const alarmB = await request(t.app).post('/api/alarms').set('Cookie', cookies.dispatcherB!).send({ unitId: siteB.unit.id, code: 'LP-4', raisedAt: '2027-03-01T11:30:00Z' });
+    expect(alarmB.status, JSON.stringify(alarmB.body)).toBe(201);
+    await managerB.until(() => managerB.events.some((e) => e.kind === 'alarm'), 'branch B’s alarm');
+    expect(managerB.events.every((e) => e.branchId === f.b.id)).toBe(true);
+    expect(managerB.events.find((e) => e.kind === 'alarm')).toMatchObject({ units: [siteB.unit.id], by: { id: f.inB.dispatcher.id } });
   });
 
   it('ends when its session is signed out, not when the person signs in elsewhere', async () => {

@@ -36,6 +36,7 @@ import type { Db, Tx } from '../../db/client';
 import { auditEvents, branches, users, warrantyClaims, workOrders } from '../../db/schema';
 import type { Clock } from '../../lib/clock';
 import { notFound, unprocessable } from '../../lib/errors';
+import { actAs } from '../events/actor';
 
 const DAY_MS = 86_400_000;
 
@@ -525,6 +526,7 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
 /** Records a warranty claim's status, amount and reference for one factory-defect case. */
 export async function updateWarrantyClaim(db: Db, clock: Clock, user: SessionUser, workOrderId: string, body: WarrantyClaimUpdate): Promise<WarrantyClaim> {
   return db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const [wo] = await tx.select({ id: workOrders.id, branchId: workOrders.branchId }).from(workOrders).where(eq(workOrders.id, workOrderId)).limit(1);
     if (!wo || (user.role !== 'owner' && wo.branchId !== user.branchId)) throw notFound('work order');
     const [isCase] = await factoryDefectCases(tx, { workOrderId });
@@ -772,6 +774,7 @@ export async function modelAlerts(db: Db, user: SessionUser): Promise<ModelAlert
 export async function createInspections(db: Db, clock: Clock, user: SessionUser, body: CreateInspections): Promise<CreateInspectionsResult> {
   const purpose = modelAlertPurpose(body.make, body.model, body.causeCode);
   return db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     // One creator at a time per alert, so two clicks cannot double the work orders.
     await tx.execute(sql`SELECT pg_advisory_xact_lock(hashtext(${purpose}))`);
     const [found] = await loadModelAlerts(tx, { make: body.make, model: body.model, causeCode: body.causeCode });

@@ -21,6 +21,7 @@ import {
   type BranchRow,
   type TechRow,
 } from './scheduling';
+import { actAs } from '../events/actor';
 
 /** The branch a Roster request is about; the owner must choose one. */
 export async function rosterBranch(db: Tx, user: SessionUser, requested: string | undefined): Promise<BranchRow> {
@@ -331,6 +332,7 @@ export async function evenOutApply(db: Db, user: SessionUser, input: z.output<ty
     return e;
   };
   return db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const out: Booking[] = [];
     for (const m of input.moves) {
       try {

@@ -20,6 +20,7 @@ import { assertBranch } from '../../auth/middleware';
 import { badRequest, conflict, notFound } from '../../lib/errors';
 import { historyCounts, refuseIfHistory } from './history';
 import { listBranch, orderFor, pageWindow, searchAny } from './list-query';
+import { actAs, changeAs } from '../events/actor';
 
 type CustomersQuery = z.output<typeof customersQuerySchema>;
 type SitesQuery = z.output<typeof sitesQuerySchema>;
@@ -132,6 +133,7 @@ export async function setCustomerArchived(ctx: AppContext, user: SessionUser, id
 
 export async function deleteCustomer(ctx: AppContext, user: SessionUser, id: string): Promise<void> {
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const c = await getCustomer(tx, user, id);
     const [s] = await tx.select({ n: count() }).from(sites).where(eq(sites.customerId, id));
     if ((s?.n ?? 0) > 0) {
@@ -221,10 +223,12 @@ export async function getSite(db: Tx, user: SessionUser, id: string): Promise<Si
 export async function createSite(ctx: AppContext, user: SessionUser, input: SiteValues): Promise<SiteRow> {
   const customer = await getCustomer(ctx.db, user, input.customerId);
   if (customer.archivedAt) throw conflict('customer_archived', `${customer.name} is archived. Unarchive the customer before adding sites.`);
-  const [s] = await ctx.db
-    .insert(sites)
-    .values({ ...input, branchId: customer.branchId })
-    .returning({ id: sites.id });
+  const [s] = await changeAs(ctx.db, user.id, (tx) =>
+    tx
+      .insert(sites)
+      .values({ ...input, branchId: customer.branchId })
+      .returning({ id: sites.id }),
+  );
   return getSite(ctx.db, user, s!.id);
 }
 
@@ -234,7 +238,7 @@ export async function updateSite(ctx: AppContext, user: SessionUser, id: string,
     const c = await getCustomer(ctx.db, user, patch.customerId);
     if (c.branchId !== site.branchId) throw conflict('other_branch', 'A site can only move to a customer of its own branch.');
   }
-  if (Object.keys(patch).length) await ctx.db.update(sites).set(patch).where(eq(sites.id, id));
+  if (Object.keys(patch).length) await changeAs(ctx.db, user.id, (tx) => tx.update(sites).set(patch).where(eq(sites.id, id)));
   return getSite(ctx.db, user, id);
 }
 
@@ -244,6 +248,7 @@ export async function updateSite(ctx: AppContext, user: SessionUser, id: string,
  */
 export async function setSiteArchived(ctx: AppContext, user: SessionUser, id: string, archived: boolean) {
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const site = await getSite(tx, user, id);
     if (archived && !site.archivedAt) {
       const now = ctx.clock.now();
@@ -260,6 +265,7 @@ export async function setSiteArchived(ctx: AppContext, user: SessionUser, id: st
 
 export async function deleteSite(ctx: AppContext, user: SessionUser, id: string): Promise<void> {
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const site = await getSite(tx, user, id);
     const unitIds = (await tx.select({ id: units.id }).from(units).where(eq(units.siteId, id))).map((u) => u.id);
     refuseIfHistory(site.name, await historyCounts(tx, unitIds, id));

@@ -21,6 +21,7 @@ import { signSession } from '../../auth/session';
 import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
 import { conflict, forbidden, HttpError, notFound } from '../../lib/errors';
 import { listBranch, orderFor, pageWindow, searchAny } from '../sites/list-query';
+import { actAs } from '../events/actor';
 
 export const INVITATION_HOURS = 72;
 /** Technician colours on the Roster (tailwind `tech-0` … `tech-7`). */
@@ -142,6 +143,7 @@ function profileColumns(p: UserProfile) {
 
 export async function updateUser(ctx: AppContext, actor: SessionUser, id: string, profile: UserProfile): Promise<UserRow> {
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, actor.id);
     const current = await getUser(tx, actor, id);
     if (current.role === 'owner' && profile.role !== 'owner') await refuseLastOwner(tx, current);
     await assertActiveBranch(tx, profile.branchId);
@@ -164,6 +166,7 @@ export async function updateUser(ctx: AppContext, actor: SessionUser, id: string
 /** Deactivation signs the person out everywhere and keeps every record they made. */
 export async function setUserActive(ctx: AppContext, actor: SessionUser, id: string, active: boolean): Promise<UserRow> {
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, actor.id);
     const current = await getUser(tx, actor, id);
     if (!active) {
       if (current.id === actor.id) throw forbidden('You cannot deactivate yourself. Ask another owner.');
@@ -248,6 +251,7 @@ export async function createInvitation(ctx: AppContext, actor: SessionUser, emai
   await assertActiveBranch(ctx.db, profile.branchId);
   const { hash, link, expiresAt } = await issueInvitationToken(ctx);
   const id = await ctx.db.transaction(async (tx) => {
+    await actAs(tx, actor.id);
     // A new invitation replaces any earlier open one for the same address.
     await tx
       .update(invitations)
@@ -344,6 +348,8 @@ export async function acceptInvitation(ctx: AppContext, input: { token: string; 
         lastSignInAt: ctx.clock.now(),
       })
       .returning();
+    // The new person's first change is their own arrival on the Roster.
+    await actAs(tx, u!.id);
     return u!;
   });
   const token = await signSession(ctx.secret, { sub: created.id, sv: created.sessionVersion }, ctx.config.sessionHours, ctx.clock.now());

@@ -23,6 +23,7 @@ import { circuits, sites, units } from '../../db/schema';
 import { badRequest, conflict, HttpError } from '../../lib/errors';
 import { getSite } from '../sites/sites.service';
 import { importText } from '../../lib/text-file';
+import { actAs } from '../events/actor';
 
 const squash = (s: string) => s.toLowerCase().replace(/[^a-z0-9]/g, '');
 
@@ -264,6 +265,7 @@ export async function importUnits(ctx: AppContext, user: SessionUser, input: Uni
 
   try {
     await ctx.db.transaction(async (tx) => {
+      await actAs(tx, user.id);
       for (let i = 0; i < good.length; i += 500) {
         const batch = good.slice(i, i + 500);
         const ids = await tx

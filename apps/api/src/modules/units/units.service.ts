@@ -10,6 +10,7 @@ import { conflict, HttpError, notFound } from '../../lib/errors';
 import { historyCounts, refuseIfHistory } from '../sites/history';
 import { listBranch, orderFor, pageWindow, searchAny } from '../sites/list-query';
 import { getSite, statusFilter } from '../sites/sites.service';
+import { actAs, changeAs } from '../events/actor';
 
 type UnitsQuery = z.output<typeof unitsQuerySchema>;
 
@@ -122,6 +123,7 @@ async function refuseDuplicateSerial(db: Tx, make: string, serial: string, excep
 export async function createUnit(ctx: AppContext, user: SessionUser, input: UnitValues): Promise<UnitRow> {
   assertKnownRefrigerant(input.refrigerant);
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const site = await getSite(tx, user, input.siteId);
     if (site.archivedAt) throw conflict('site_archived', `${site.name} is archived. Unarchive the site before adding units.`);
     await refuseDuplicateSerial(tx, input.make, input.serial);
@@ -142,6 +144,7 @@ export async function createUnit(ctx: AppContext, user: SessionUser, input: Unit
 export async function updateUnit(ctx: AppContext, user: SessionUser, id: string, input: UnitUpdateValues): Promise<UnitRow> {
   assertKnownRefrigerant(input.refrigerant);
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const current = await getUnit(tx, user, id);
     await refuseDuplicateSerial(tx, input.make, input.serial, id);
     const { circuits: wanted, ...fields } = input;
@@ -173,12 +176,13 @@ export async function setUnitArchived(ctx: AppContext, user: SessionUser, id: st
     const [site] = await ctx.db.select({ archivedAt: sites.archivedAt, name: sites.name }).from(sites).where(eq(sites.id, unit.siteId));
     if (site?.archivedAt) throw conflict('site_archived', `${site.name} is archived. Unarchive the site to bring its units back.`);
   }
-  await ctx.db.update(units).set({ archivedAt: archived ? ctx.clock.now() : null }).where(eq(units.id, id));
+  await changeAs(ctx.db, user.id, (tx) => tx.update(units).set({ archivedAt: archived ? ctx.clock.now() : null }).where(eq(units.id, id)));
   return getUnit(ctx.db, user, id);
 }
 
 export async function deleteUnit(ctx: AppContext, user: SessionUser, id: string): Promise<void> {
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const unit = await getUnit(tx, user, id);
     refuseIfHistory(`${unit.tag} (${unit.make} ${unit.serial})`, await historyCounts(tx, [id]));
     await tx.delete(units).where(eq(units.id, id));

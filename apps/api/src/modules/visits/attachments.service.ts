@@ -8,6 +8,7 @@ import { readStoredFile } from '../../storage/storage';
 import { assertVisitReadable, assertVisitWritable, loadReadableUnit, loadVisit } from './access';
 import { attachmentDto } from './dto';
 import { unitsOfWorkOrder } from './visits.service';
+import { actAs } from '../events/actor';
 
 /** A client's file name made safe to show: no path, no control characters, at most 120 characters. */
 export function cleanDisplayName(name: string | undefined, fallback = 'upload'): string {
@@ -70,6 +71,7 @@ export async function addAttachment(
   const storageKey = await ctx.storage.put(file.buffer, { contentType: detected.mime });
   try {
     const row = await ctx.db.transaction(async (tx) => {
+      await actAs(tx, user.id);
       const [a] = await tx
         .insert(attachments)
         .values({

@@ -14,6 +14,7 @@ import { leakCaseDto, refrigerantEventDto } from './dto';
 import { unitsOfWorkOrder } from './visits.service';
 import { additionOf } from '../unit-file/refrigerant-record';
 import { workOrders } from '../../db/schema';
+import { actAs } from '../events/actor';
 
 /** Leak cases in these states still stand: a new case is not opened beside one. */
 export const OPEN_LEAK_CASE_STATUSES = ['open', 'retrofit_planned', 'retire_planned'] as const;
@@ -70,6 +71,7 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
     throw badRequest(`Unknown refrigerant ${input.refrigerant}.`, { fields: [{ path: 'refrigerant', message: 'Choose a refrigerant from the list' }] });
   }
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     // One writer per unit at a time, so two saves cannot open two leak cases.
     await tx.select({ id: units.id }).from(units).where(eq(units.id, unit.id)).for('update');
 

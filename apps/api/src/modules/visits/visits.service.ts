@@ -233,6 +233,7 @@ async function visitUnitIds(tx: Tx, v: VisitRow): Promise<Map<string, { refriger
  */
 export async function saveReadings(ctx: AppContext, user: SessionUser, id: string, input: SaveReadings): Promise<{ readings: ReadingDto[] }> {
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const v = await loadVisit(tx, id, { lock: true });
     assertVisitRecordable(user, v);
     const unitMap = await visitUnitIds(tx, v);
@@ -277,6 +278,7 @@ export async function saveReadings(ctx: AppContext, user: SessionUser, id: strin
 /** Records a finding. A client-made `id` seen before answers the saved finding (a retried save). */
 export async function addFinding(ctx: AppContext, user: SessionUser, id: string, input: FindingInput): Promise<{ finding: FindingDto; created: boolean }> {
   return ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const v = await loadVisit(tx, id, { lock: true });
     if (input.id) {
       assertVisitReadable(user, v);

@@ -20,6 +20,7 @@ import { assertBranch } from '../../auth/middleware';
 import { HttpError, notFound, unprocessable } from '../../lib/errors';
 import { importText } from '../../lib/text-file';
 import { branchFilter, oneBranch } from './scope';
+import { actAs, changeAs } from '../events/actor';
 
 /** Most rows one import may carry. */
 export const MAX_IMPORT_ROWS = 10_000;
@@ -73,19 +74,21 @@ export async function createAlarm(ctx: AppContext, user: SessionUser, input: z.i
       .limit(1);
     if (!c) throw unprocessable(`The unit has no circuit ${input.circuit}.`);
   }
-  const [a] = await ctx.db
-    .insert(alarms)
-    .values({
-      branchId: unit.branchId,
-      unitId: unit.id,
-      circuit: input.circuit,
-      code: input.code,
-      description: input.description ?? null,
-      raisedAt,
-      clearedAt,
-      source: input.source,
-    })
-    .returning({ id: alarms.id });
+  const [a] = await changeAs(ctx.db, user.id, (tx) =>
+    tx
+      .insert(alarms)
+      .values({
+        branchId: unit.branchId,
+        unitId: unit.id,
+        circuit: input.circuit,
+        code: input.code,
+        description: input.description ?? null,
+        raisedAt,
+        clearedAt,
+        source: input.source,
+      })
+      .returning({ id: alarms.id }),
+  );
   const [row] = await ctx.db
     .select(alarmColumns)
     .from(alarms)
@@ -255,6 +258,7 @@ export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.
     throw new HttpError(422, 'import_refused', `Nothing was imported: ${errors.length} error${errors.length === 1 ? '' : 's'} in ${rowsWithErrors} row${rowsWithErrors === 1 ? '' : 's'}. Fix the file and import it again.`, result);
   }
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     for (let i = 0; i < fresh.length; i += 500) {
       await tx.insert(alarms).values(
         fresh.slice(i, i + 500).map((r) => ({

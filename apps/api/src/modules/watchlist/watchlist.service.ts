@@ -50,6 +50,7 @@ import {
   openReturnExists,
   withOneOpenReturn,
 } from '../work-orders/open-return';
+import { actAs } from '../events/actor';
 
 /* ------------------------------------------------------------ repeat alarms */
 
@@ -364,6 +365,7 @@ async function audit(tx: Tx, user: SessionUser, action: string, entity: string, 
 export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: string, input: { priority: BookRepair['priority'] & string; notes?: string | undefined }) {
   const booked = await withOneOpenReturn(ctx.db, () =>
     ctx.db.transaction(async (tx) => {
+      await actAs(tx, user.id);
       const c = await loadCase(tx, user, id);
       if (c.repairWorkOrderId) {
         const [wo] = await tx
@@ -452,6 +454,7 @@ export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: str
 
 export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: string, patch: LeakCasePatch): Promise<LeakCaseRow> {
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const c = await loadCase(tx, user, id);
     const [b] = (await branchesById(tx, [c.branchId])).values();
     const today = todayIn(b?.timeZone ?? 'UTC', ctx.clock.now());
@@ -511,6 +514,7 @@ export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: stri
  */
 export async function addVerificationTest(ctx: AppContext, user: SessionUser, id: string, input: VerificationTestInput): Promise<LeakCaseRow> {
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const c = await loadCase(tx, user, id);
     if (c.status === 'closed') throw unprocessable('This leak case is closed.');
     const [b] = (await branchesById(tx, [c.branchId])).values();
@@ -600,6 +604,7 @@ export async function listReturnVisits(ctx: AppContext, user: SessionUser, branc
 /** Sets a return visit's priority and latest booking date (end of that day in the branch's zone) for the Roster queue. */
 export async function queueReturnVisit(ctx: AppContext, user: SessionUser, id: string, input: QueueReturnVisit): Promise<ReturnVisitRow> {
   await ctx.db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const [wo] = await tx.select().from(workOrders).where(eq(workOrders.id, id)).limit(1);
     if (!wo || wo.kind !== 'return_visit') throw notFound('return visit');
     assertBranch(user, wo.branchId, 'return visit');

@@ -8,6 +8,7 @@ import { bookings, leakCases, sites, units, workOrders } from '../../db/schema';
 import { assertBranch, branchScope, resolveBranch } from '../../auth/middleware';
 import { badRequest, conflict, notFound } from '../../lib/errors';
 import { findOpenReturn, openReturnExists, withOneOpenReturn } from './open-return';
+import { actAs } from '../events/actor';
 
 const origin = alias(workOrders, 'origin_work_order');
 
@@ -115,6 +116,7 @@ const instantOrNull = (v: string | null | undefined) => (v === undefined ? undef
  */
 export async function createWorkOrder(db: Db, user: SessionUser, input: z.output<typeof workOrderCreateSchema>): Promise<WorkOrder> {
   return withOneOpenReturn(db, () => db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
     if (!site) throw notFound('site');
     assertBranch(user, site.branchId, 'site');
@@ -172,6 +174,7 @@ const finished: readonly WorkOrderState[] = ['closed', 'cancelled'];
 
 export async function updateWorkOrder(db: Db, user: SessionUser, id: string, input: z.output<typeof workOrderUpdateSchema>, now: Date): Promise<WorkOrder> {
   return db.transaction(async (tx) => {
+    await actAs(tx, user.id);
     const [w] = await tx.select().from(workOrders).where(eq(workOrders.id, id)).for('update').limit(1);
     if (!w) throw notFound('work order');
     assertBranch(user, w.branchId, 'work order');

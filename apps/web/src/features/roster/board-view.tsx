@@ -148,7 +148,7 @@ function Chip({
   const override = overrideSummary(b);
   const movable = draggable && w.state === 'booked' && !b.fixed && !e.fromEarlierDay;
   // Someone else (another dispatcher) just changed this booking: said on the chip for a minute.
-  const changer = useChangedBy(b.id);
+  const changer = useChangedBy('booking', b.id);
   return (
     <button
       type="button"

@@ -15,6 +15,7 @@ import type { RosterView } from './board';
 import { bookingSummary, colourOf, EventBody, eventNameExtras } from './parts';
 import { movedTimes, toWallClock } from './zone';
 import { appNowMs } from '@/lib/now';
+import { changedByNoteId } from '@/components/changed-by';
 
 type CalendarViewName = 'timeGridDay' | 'timeGridWeek' | 'dayGridMonth';
 const fcView: Record<Exclude<RosterView, 'board'>, CalendarViewName> = { day: 'timeGridDay', week: 'timeGridWeek', month: 'dayGridMonth' };
@@ -146,6 +147,8 @@ export default function CalendarView({ view, date, timeZone: tz, today, bookings
             const b = arg.event.extendedProps.booking as Booking | undefined;
             if (!b) return;
             arg.el.setAttribute('aria-label', `${bookingSummary(b, techById.get(b.techId), tz)}, ${b.workOrder.siteName}.${eventNameExtras(b)} Open to move, reassign or unbook.`);
+            // "Changed by …" inside the event is not part of a name set by aria-label: it is its description.
+            arg.el.setAttribute('aria-describedby', changedByNoteId('booking', b.id));
           }}
           eventClick={(arg: EventClickArg) => {
             arg.jsEvent.preventDefault();

@@ -4,6 +4,7 @@ import { scheduleDay, epa608Labels, priorityLabels, workOrderKindLabels, workOrd
 import { formatInZone } from '@/lib/format';
 import { overrideSummary } from './rules';
 import { instantToLocal } from './zone';
+import { ChangedByNote } from '@/components/changed-by';
 
 /**
  * The Roster's technician colours: the `tech-0..7` tokens of tailwind.config.ts (muted hues, each at
@@ -95,6 +96,8 @@ export function EventBody({
           {leak.text}
         </div>
       )}
+      {/* Someone else just changed this booking; read after the event's name (its aria-describedby). */}
+      <ChangedByNote row="booking" id={booking.id} className="mt-0.5 self-start truncate rounded bg-white px-1 font-semibold text-ink" />
     </div>
   );
 }

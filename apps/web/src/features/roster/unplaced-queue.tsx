@@ -10,6 +10,7 @@ import { formatInZone } from '@/lib/format';
 import { DRAG_WORK_ORDER } from './board';
 import { leakDeadline } from './parts';
 import { appNowMs } from '@/lib/now';
+import { ChangedByNote } from '@/components/changed-by';
 
 /** Where a job's handle drags to: FullCalendar's time grids, or the technician board (native drag and drop). */
 export type QueueMode = 'calendar' | 'board';
@@ -20,7 +21,7 @@ const col = createColumnHelper<CoilpathFeatures, WorkOrder>();
 type SortKey = 'priority' | 'age' | 'due' | 'skill' | 'kind';
 const sortLabels: Record<SortKey, string> = { priority: 'Priority', age: 'Oldest first', due: 'Due soonest', skill: 'Required skill', kind: 'Kind' };
 
-function QueueItem({
+export function QueueItem({
   w,
   timeZone,
   today,
@@ -112,6 +113,7 @@ function QueueItem({
             {leak.text}
           </div>
         )}
+        <ChangedByNote row="workOrder" id={w.id} className="block text-xs font-medium text-copper-hover" />
       </div>
       <Button size="sm" variant="secondary" className="shrink-0" onClick={() => onBook(w)} aria-label={`Book ${workOrderLabel(w.number)}…`}>
         Book…

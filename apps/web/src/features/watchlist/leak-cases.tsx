@@ -10,6 +10,7 @@ import { useNotify } from '@/components/ui/notices';
 import { TableTools, downloadCsv, useTableFilter } from '@/components/ui/table-tools';
 import { useAddVerificationTest, useBookRepair, useLeakCases, usePatchLeakCase } from './api';
 import { OpenReturnOffer, OpenWorkOrderLink, openReturnOf, workOrderStateText } from './open-return';
+import { ChangedByNote } from '@/components/changed-by';
 
 const whatLabels: Record<LeakDeadline['what'], string> = {
   repair: 'Repair',
@@ -91,7 +92,7 @@ export function LeakCasesSection({ branchId }: { branchId: string | undefined })
   );
 }
 
-function LeakCaseCard({ c }: { c: LeakCaseRow }) {
+export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
   const notify = useNotify();
   const book = useBookRepair();
   const patch = usePatchLeakCase();
@@ -134,6 +135,7 @@ function LeakCaseCard({ c }: { c: LeakCaseRow }) {
           <p className="tabular text-sm text-slate">
             {c.make} {c.model} · {c.refrigerant}, full charge {c.fullChargeLb.toFixed(1)} lb · opened {recordDate(c.openedOn)}
           </p>
+          <ChangedByNote row="leakCase" id={c.id} />
         </div>
         <div className="flex flex-wrap gap-1">
           <Badge tone="neutral">{leakCaseStatusLabels[c.status]}</Badge>

@@ -23,6 +23,7 @@ import { TableTools, downloadCsv, useTableFilter } from '@/components/ui/table-t
 import { csvTimestamp } from '@/lib/csv';
 import { useQueueReturnVisit, useRepeatAlarms, useReturnVisits } from './api';
 import { woLabel } from './leak-cases';
+import { ChangedByNote } from '@/components/changed-by';
 
 /* ----------------------------------------------------------- repeat alarms */
 
@@ -42,6 +43,7 @@ export function RepeatAlarmsSection({ branchId, timeZone }: { branchId: string |
           <div>
             <a className="font-medium text-coolant underline-offset-2 hover:underline" href={`/units/${u.unitId}`}>{u.unitTag}</a>
             <div className="text-xs text-slate">{u.make} {u.model} · {u.serial}</div>
+            <ChangedByNote row="unit" id={u.unitId} />
           </div>
         ),
       },
@@ -177,6 +179,7 @@ export function ReturnVisitsSection({ branchId, timeZone }: { branchId: string |
           <div>
             {r.siteName}
             <div className="text-xs text-slate">{r.unitTag ?? 'Whole site'} · return {woLabel(r.number)}</div>
+            <ChangedByNote row="workOrder" id={r.workOrderId} />
           </div>
         ),
       },
