@@ -149,6 +149,6 @@ describe('e-mail messages', () => {
     expect(raw).toMatch(/^Auto-Submitted: auto-generated\r$/m);
     expect(mail.headers.get('auto-submitted')).toBe('auto-generated');
     expect(mail.text).toContain('Prepared Tue 15 Dec 2026, 07:05 CST');
-    expect(mail.text).toContain('repair due in 5 days (2026-12-20)');
+    expect(mail.text).toContain('repair due in 5 days (Sun 20 Dec 2026)');
   });
 });
