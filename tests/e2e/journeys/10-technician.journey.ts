@@ -142,7 +142,8 @@ export async function run(ctx: JourneyContext) {
   await page.getByRole('button', { name: 'Go to close-out' }).waitFor();
   // The timeline lists each state change with its time.
   const timeline = page.locator('section').filter({ has: page.getByRole('heading', { name: 'Timeline', exact: true }) });
-  await timeline.getByText(/^\d\d:\d\d · On site$/).waitFor();
+  // A time alone, or dated ("Sat 5 Dec, 07:24") when the timeline's events fall on more than one day.
+  await timeline.getByText(/^(?:[A-Z][a-z]{2} \d{1,2} [A-Z][a-z]{2}, )?\d\d:\d\d · On site$/).waitFor();
   assert.match(await timeline.innerText(), /\d\d:\d\d · En route/, 'the timeline records en route');
   ctx.step('marked en route, then on site');
 
