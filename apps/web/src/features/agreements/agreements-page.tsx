@@ -106,7 +106,7 @@ function AgreementsTable({ rows, onOpen, selected }: { rows: AgreementRow[]; onO
       { id: 'term', header: 'Term ends', accessorFn: (a) => a.termEnd, cell: ({ row: { original: a } }) => `${recordDate(a.termStart)} → ${recordDate(a.termEnd)}` },
       { id: 'sla', header: 'SLA', accessorFn: (a) => a.slaHours, cell: ({ row: { original: a } }) => `${a.slaHours} h` },
       { id: 'price', header: 'Price', accessorFn: (a) => a.priceCents, cell: ({ row: { original: a } }) => formatMoney(a.priceCents) },
-      { id: 'next', header: 'Next visit', accessorFn: (a) => a.nextPlannedDate ?? '', cell: ({ row: { original: a } }) => a.nextPlannedDate ?? (a.plannedCount ? 'None ahead' : 'Not planned') },
+      { id: 'next', header: 'Next visit', accessorFn: (a) => a.nextPlannedDate ?? '', cell: ({ row: { original: a } }) => (a.nextPlannedDate ? recordDate(a.nextPlannedDate) : a.plannedCount ? 'None ahead' : 'Not planned') },
       { id: 'status', header: 'Status', accessorFn: (a) => a.status, cell: ({ row: { original: a } }) => <Badge tone={a.status === 'active' ? 'ok' : 'neutral'}>{a.status === 'active' ? 'Active' : a.status === 'ended' ? 'Ended' : 'Cancelled'}</Badge> },
     ],
     [onOpen, selected],
@@ -386,7 +386,7 @@ function PmCompletionSection({ branchId, onOpen }: { branchId: string | undefine
       ) : (
         <>
           <p className="text-sm text-slate">
-            Planned visits due since {q.data.from}. On time: closed within {PM_GRACE_DAYS} days of the planned date; late: closed after that; missed: still not done {PM_GRACE_DAYS} days after it.
+            Planned visits due since {recordDate(q.data.from)}. On time: closed within {PM_GRACE_DAYS} days of the planned date; late: closed after that; missed: still not done {PM_GRACE_DAYS} days after it.
           </p>
           <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-3">
             {q.data.branches.map((b) => (

@@ -167,7 +167,7 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
                 {whatLabels[d.what]}
                 <span className="block text-xs text-slate">{d.source}</span>
               </td>
-              <td className="tabular py-1.5 pr-2 whitespace-nowrap">{d.due}</td>
+              <td className="tabular py-1.5 pr-2 whitespace-nowrap">{recordDate(d.due)}</td>
               <td className="py-1.5"><DeadlineBadge d={d} /></td>
             </tr>
           ))}
