@@ -66,6 +66,7 @@ const caseColumns = [
   'currency',
   'claim_status',
   'claim_amount',
+  'claim_difference',
   'claim_reference',
 ] as const;
 
@@ -102,6 +103,8 @@ export function tableCsv(table: FixQualityTable, src: CsvSources): string {
       currency: c.currency,
       claim_status: c.claim.status,
       claim_amount: money(c.claim.amountCents),
+      /** The recorded claim amount minus the job's computed cost (empty while no amount is recorded). */
+      claim_difference: money(c.amountDifferenceCents),
       claim_reference: c.claim.reference ?? '',
     }));
     return toCsv(caseColumns, rows);

@@ -568,8 +568,13 @@ describe('exports', () => {
       expect(new Date(r.opened_at!).toISOString()).toBe(new Date(c.openedAt).toISOString());
       expect(r.opened_at!.slice(-6)).toBe(zone === 'America/Phoenix' ? '-07:00' : new Date(c.openedAt) < new Date('2026-03-08T08:00:00Z') ? '-06:00' : '-05:00');
       if (c.siteName.startsWith('=')) expect(r.site).toBe(`'${c.siteName}`);
+      // The claim's difference from the computed cost: amount − cost, empty while no amount is recorded.
+      const amount = r.claim_amount === '' ? null : Number(r.claim_amount);
+      expect(r.claim_difference).toBe(amount === null ? '' : (amount - Number(r.cost)).toFixed(2));
     }
     expect(rows.some((r) => r.site === `'=HYPERLINK("http://x.example","Roof")`)).toBe(true);
+    // The claim recorded above (26,000 cents) has its difference written.
+    expect(rows.some((r) => r.claim_amount === '260.00' && r.claim_difference !== '')).toBe(true);
   });
 
   it('refuses an unknown table and a technician', async () => {
