@@ -2,7 +2,7 @@ import { useEffect } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
 import { Phone } from 'lucide-react';
-import { causeCodeLabels, visitStatusLabels, workOrderKindLabels } from '@coilpath/contract';
+import { causeCodeLabels, epa608Labels, visitStatusLabels, workOrderKindLabels } from '@coilpath/contract';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
@@ -152,7 +152,7 @@ function VisitScreen({ id }: { id: string }) {
               {v.workOrder.requiredCertification && (
                 <div>
                   <dt className="text-slate">Certification needed</dt>
-                  <dd>EPA 608 Type {v.workOrder.requiredCertification === 'universal' ? 'Universal' : v.workOrder.requiredCertification}</dd>
+                  <dd>EPA 608 {epa608Labels[v.workOrder.requiredCertification]}</dd>
                 </div>
               )}
             </dl>
