@@ -22,6 +22,7 @@ import {
   type UnitKind,
   type ApplianceCategory,
   type RefrigerantEventReason,
+  type Epa608Type,
 } from './vocabulary';
 
 /** Largest file a visit upload may be (photos, nameplates, PDFs). */
@@ -417,7 +418,7 @@ export interface VisitDetail {
     state: WorkOrderState;
     priority: Priority;
     complaint: string;
-    requiredCertification: string | null;
+    requiredCertification: Epa608Type | null;
     /** Latest acceptable time for the work (leak-repair deadlines, model-alert inspections). */
     latestAt: string | null;
     /** An inspection created from a model alert: what to check for. */
