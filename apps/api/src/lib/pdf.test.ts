@@ -24,6 +24,7 @@ const sections: SummarySections = {
   refrigerant: ['2026-12-04: R-410A, added 2.0 lb, recovered 0.0 lb (Leak repair)'],
   leaks: [],
   outcome: ['Outcome: Resolved', `Technician's notes: change of −0.02 in the trend; ${vietnamese} confirmed`],
+  signOff: { lines: [`Signed by ${vietnamese}`, 'Signed Fri 4 Dec 2026, 11:40 CST'], image: null },
 };
 
 describe('the shared PDF setup', () => {
