@@ -7,7 +7,8 @@ CREATE TABLE "live_events" (
 	"at" timestamp with time zone DEFAULT now() NOT NULL
 );
 --> statement-breakpoint
-CREATE INDEX "live_events_at_idx" ON "live_events" USING btree ("at");-- hand-written:
+CREATE INDEX "live_events_at_idx" ON "live_events" USING btree ("at");--> statement-breakpoint
+-- hand-written:
 -- live_events: what the open screens hear (GET /api/events, apps/api/src/modules/events/). Triggers write the rows
 -- in the committing transaction and announce each id with pg_notify('coilpath_live', id), delivered at commit;
 -- every API process LISTENs once and hands the row to its connected screens that may see it. Who made the change
