@@ -54,7 +54,7 @@ describe('the shared PDF setup', () => {
     expect(read.roles[0]).toBe('Root');
     expect(read.roles[1]).toBe('Document');
     expect(read.roles.filter((r) => r === 'H1')).toHaveLength(1);
-    expect(read.roles.filter((r) => r === 'H2')).toEqual(['H2', 'H2', 'H2', 'H2']); // Readings, Findings, Refrigerant, Outcome
+    expect(read.roles.filter((r) => r === 'H2')).toEqual(['H2', 'H2', 'H2', 'H2', 'H2']); // Readings, Findings, Refrigerant, Outcome, Customer sign-off
     expect(read.roles).toEqual(expect.arrayContaining(['P', 'L', 'LI', 'Lbl', 'LBody']));
   });
 
