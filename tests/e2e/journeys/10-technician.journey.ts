@@ -207,7 +207,7 @@ export async function run(ctx: JourneyContext) {
   await page.getByLabel('Return visit notes (parts, who to bring)').fill('Condenser fan motor, 1/3 hp, 1075 rpm; bring the capacitor too.');
   // One finding: it is the call's root cause, already chosen.
   assert.ok(await page.getByRole('group', { name: 'Root cause' }).getByRole('radio', { name: /Component failure/ }).isChecked(), 'the one finding is the root cause');
-  await page.getByLabel('Visit notes').fill('Unit running on one condenser fan; return visit booked to replace the motor.');
+  await page.getByLabel('Visit notes', { exact: true }).fill('Unit running on one condenser fan; return visit booked to replace the motor.');
   await page.getByRole('radio', { name: 'For the customer' }).check();
   // The customer's on-site contact signs on the phone: printed name, then a stroke drawn on the pad with the mouse.
   await page.getByRole('radio', { name: 'Customer signs' }).check();
@@ -216,9 +216,11 @@ export async function run(ctx: JourneyContext) {
   await pad.scrollIntoViewIfNeeded();
   const padStatus = page.getByRole('status').filter({ hasText: /^The pad is empty\.$|^Signature drawn\.$/ });
   assert.equal(await padStatus.innerText(), 'The pad is empty.', 'the pad starts empty');
-  const box = await pad.boundingBox();
-  assert.ok(box && box.width > 300, `the pad spans the phone's width (${box?.width} px)`);
   const drawStroke = async () => {
+    // Where the pad is now (clicking Clear may have scrolled the page).
+    await pad.scrollIntoViewIfNeeded();
+    const box = await pad.boundingBox();
+    assert.ok(box && box.width > 300, `the pad spans the phone's width (${box?.width} px)`);
     await page.mouse.move(box.x + 20, box.y + box.height * 0.6);
     await page.mouse.down();
     for (let i = 1; i <= 24; i++) {
