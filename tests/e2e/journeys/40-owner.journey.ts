@@ -153,7 +153,6 @@ async function signedSummaryInOutbox(ctx: JourneyContext, page: Page) {
   await message.click();
   const attachment = page.getByRole('list', { name: 'Attachments' }).getByRole('link', { name: new RegExp(`service-summary-WO-${signed.workOrderNumber}\\.pdf`) });
   await attachment.waitFor();
-  await ctx.screen(page, 'mail-outbox-signed-summary');
   const [download] = await Promise.all([page.waitForEvent('download'), attachment.click()]);
   const path = await download.path();
   assert.ok(path, 'the PDF downloaded');
@@ -164,6 +163,9 @@ async function signedSummaryInOutbox(ctx: JourneyContext, page: Page) {
   assert.match(pdf.flat, /Signed \w{3} \d{1,2} \w{3} \d{4}, \d\d:\d\d C[SD]T/, 'the PDF gives the signing time in the branch’s zone (Chicago)');
   const images = await pdfImageCount(bytes);
   assert.equal(images, 1, 'the PDF draws the signature image');
+  // The message is open and its PDF read: screenshot and axe now (a page with a downloaded attachment may not reach "network idle").
+  await ctx.screenshot(page, 'mail-outbox-signed-summary');
+  await ctx.axe(page, 'mail-outbox-signed-summary');
   ctx.step(`Mail outbox: the summary of WO-${signed.workOrderNumber} carries ${signed.signerName}'s signature (${images} image, name and time in the text)`);
 }
 
@@ -180,7 +182,7 @@ export async function run(ctx: JourneyContext) {
   await reviewFactoryDefects(ctx, page);
   await createInspections(ctx, page);
   await exportDefectCsv(ctx, page);
-  await signedSummaryInOutbox(ctx, page);
 
   await visitEveryScreen(ctx, page, labels);
+  await signedSummaryInOutbox(ctx, page);
 }
