@@ -754,7 +754,7 @@ export const routeTable: RouteRow[] = [
     request: async (f, side) => {
       const now = f.ctx.clock.now();
       await f.db.update(visits).set({ closedAt: now, outcome: 'resolved' }).where(eq(visits.id, side.booked.visit.id));
-      await f.db.insert(visitSignatures).values({ visitId: side.booked.visit.id, signerName: 'Dana Whitfield', signedAt: now, imagePng: tinyPng, recordedAt: now });
+      await f.db.insert(visitSignatures).values({ visitId: side.booked.visit.id, signerName: 'Dana Whitfield', signedAt: now, imagePng: tinyPng, recordedAt: now }).onConflictDoNothing();
       return { path: `/api/visits/${side.booked.visit.id}/signature` };
     },
   },
