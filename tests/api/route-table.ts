@@ -89,7 +89,7 @@ import { signLinkToken } from '../../apps/api/src/auth/tokens';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';
-import { alarmDeliveries, alarmSources, agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, mailOutbox, sites, units, users, visits } from '../../apps/api/src/db/schema';
+import { alarmDeliveries, alarmSources, agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, mailOutbox, sites, units, users, visits, visitSignatures } from '../../apps/api/src/db/schema';
 import { makeSiteWithUnit, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
 import { newSourceSecret, sealSecret, signatureHeader } from '../../apps/api/src/modules/alarm-sources/signature';
 import { nextWeekday, type Caller, type MatrixFixture, type Side } from './matrix-fixture';
@@ -738,8 +738,25 @@ export const routeTable: RouteRow[] = [
     textFields: ['notes', 'returnNotes'],
     request: (_f, side) => ({
       path: `/api/visits/${side.booked.visit.id}/close`,
-      body: { outcome: 'needs_return', returnNeeds: ['parts'], returnNotes: 'Bring a TXV', notes: 'Leak at the TXV' },
+      body: {
+        outcome: 'needs_return',
+        returnNeeds: ['parts'],
+        returnNotes: 'Bring a TXV',
+        notes: 'Leak at the TXV',
+        signature: { kind: 'signed', signerName: 'Dana Whitfield', imagePng: tinyPng.toString('base64') },
+      },
     }),
+  },
+  {
+    method: 'GET',
+    path: '/api/visits/:id/signature',
+    expect: { ...roles(['owner', 'branch_manager', 'dispatcher'], 200, { scoped: true }), technician: { own: 200, other: 404 } },
+    request: async (f, side) => {
+      const now = f.ctx.clock.now();
+      await f.db.update(visits).set({ closedAt: now, outcome: 'resolved' }).where(eq(visits.id, side.booked.visit.id));
+      await f.db.insert(visitSignatures).values({ visitId: side.booked.visit.id, signerName: 'Dana Whitfield', signedAt: now, imagePng: tinyPng, recordedAt: now }).onConflictDoNothing();
+      return { path: `/api/visits/${side.booked.visit.id}/signature` };
+    },
   },
   {
     method: 'POST',

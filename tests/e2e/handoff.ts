@@ -12,6 +12,8 @@ const file = join(repoRoot, 'test-results/e2e/handoff.json');
 export interface Handoff {
   /** The return visit the technician's close-out created (the number shown as WO-<n>). */
   returnVisit?: { number: number; siteName: string; originNumber: number };
+  /** The visit the technician closed with the customer's signature (its work order) and who signed. */
+  signedSummary?: { workOrderNumber: number; signerName: string };
 }
 
 export function writeHandoff(patch: Handoff): void {

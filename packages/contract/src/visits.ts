@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { idSchema, isoDateSchema, limits } from './common';
+import { idSchema, instantSchema, isoDateSchema, limits } from './common';
 import { pressureSymbols, readingLimits, readingUnitsSchema, temperatureSymbols, unitSystemOf, type ReadingUnits, type UnitSystem } from './measure';
 import type { ModelAlertRef } from './work-orders';
 import {
@@ -23,6 +23,7 @@ import {
   type ApplianceCategory,
   type RefrigerantEventReason,
   type Epa608Type,
+  type SignatureKind,
 } from './vocabulary';
 
 /** Largest file a visit upload may be (photos, nameplates, PDFs). */
@@ -157,6 +158,52 @@ export const refrigerantEventInputSchema = z
   });
 export type RefrigerantEventInput = z.input<typeof refrigerantEventInputSchema>;
 
+/** Largest signature image a close-out carries: the PNG's bytes (a signature pad's PNG is typically 5–40 KB). */
+export const signatureMaxBytes = 200 * 1024;
+/** The base64 text of `signatureMaxBytes` bytes. */
+const signatureMaxBase64 = Math.ceil(signatureMaxBytes / 3) * 4;
+/** Every PNG begins with the same 8 bytes (PNG spec §5.2, 89 50 4E 47 0D 0A 1A 0A): "iVBORw0KGgo" in base64. */
+const PNG_BASE64_PREFIX = 'iVBORw0KGgo';
+
+/**
+ * The customer's sign-off in a close-out: the signer's printed name and the drawn signature as a PNG (base64,
+ * without a `data:` prefix), or "customer not available" (no signature). The API decodes the image in full
+ * and refuses one that is not a PNG. `signedAt` is when the phone took the signature (a close-out can wait
+ * offline); the server keeps it when it lies between arriving on site and now, else uses its own clock.
+ */
+export const closeSignatureSchema = z.discriminatedUnion(
+  'kind',
+  [
+    z.strictObject({
+      kind: z.literal('signed'),
+      signerName: z.string().trim().min(1, 'Enter the name of the person signing').max(120, 'Use at most 120 characters for the name'),
+      imagePng: z
+        .string()
+        .min(1, 'Draw the signature on the pad')
+        .max(signatureMaxBase64, `The signature image is larger than ${signatureMaxBytes / 1024} KB; clear the pad and sign again`)
+        .regex(/^[A-Za-z0-9+/]+={0,2}$/, 'The signature image must be PNG data in base64')
+        .refine((s) => s.startsWith(PNG_BASE64_PREFIX), 'The signature image must be a PNG'),
+      signedAt: instantSchema.optional(),
+    }),
+    z.strictObject({ kind: z.literal('customer_not_available') }),
+  ],
+  { error: 'Choose whether the customer signs or is not available' },
+);
+export type CloseSignature = z.input<typeof closeSignatureSchema>;
+
+/**
+ * The sign-off rule of a close-out: every close-out says whether the customer's on-site contact signed or was
+ * not available (`signature` in the body). The API answers a close-out without it with 422 and this message; the
+ * Visit screen asks with the same words.
+ */
+export function signatureChoiceRefusal(signature: { kind: SignatureKind } | null | undefined): { code: 'signature_required'; message: string } | null {
+  if (signature) return null;
+  return {
+    code: 'signature_required',
+    message: 'Ask the customer’s on-site contact to sign with their printed name, or choose “Customer not available”, before closing.',
+  };
+}
+
 /** POST /api/visits/:id/close. */
 export const closeVisitSchema = z
   .strictObject({
@@ -171,6 +218,8 @@ export const closeVisitSchema = z
     rootCauseFindingId: idSchema.nullable().optional(),
     /** The technician confirms closing a leak repair as resolved with nothing to show it (see `leakRepairCloseRefusal`). */
     confirmedWithoutVerification: z.boolean().optional(),
+    /** The customer's sign-off: signed or not available (required at close-out, see `signatureChoiceRefusal`). */
+    signature: closeSignatureSchema.optional(),
   })
   .refine((v) => v.outcome !== 'needs_return' || v.returnNeeds.length > 0, {
     message: 'Say what the return visit needs',
@@ -409,6 +458,8 @@ export interface VisitDetail {
   /** This visit repairs an open leak case: the case and how many verification tests it has (`leakRepairCloseRefusal`). */
   leakRepair: { leakCaseId: string; repairDueDate: string; verificationTests: number } | null;
   summarySentAt: string | null;
+  /** The customer's sign-off at close-out; null while open (and for visits closed before sign-offs were asked). */
+  signature: VisitSignatureDto | null;
   version: number;
   booking: { id: string; startAt: string; endAt: string } | null;
   workOrder: {
@@ -458,6 +509,11 @@ export interface VisitDetail {
   /** For the assigned technician of an open visit not on site yet: why nothing can be recorded (the API's refusal). */
   recordRefusal: string | null;
 }
+
+/** A closed visit's sign-off: the signer's name and when they signed (the image at `imageUrl`), or not available. */
+export type VisitSignatureDto =
+  | { kind: 'signed'; signerName: string; signedAt: string; imageUrl: string }
+  | { kind: 'customer_not_available'; recordedAt: string };
 
 export interface SummaryMailResult {
   sent: boolean;

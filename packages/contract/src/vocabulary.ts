@@ -121,6 +121,17 @@ export const noteAudienceLabels: Record<NoteAudience, string> = {
   customer: 'For the customer',
 };
 
+/**
+ * The customer's sign-off at close-out: the on-site contact signs on the technician's phone, or the technician
+ * records that no one was there to sign. One of the two is chosen at every close-out (`signatureChoiceRefusal`).
+ */
+export const signatureKinds = ['signed', 'customer_not_available'] as const;
+export type SignatureKind = (typeof signatureKinds)[number];
+export const signatureKindLabels: Record<SignatureKind, string> = {
+  signed: 'Customer signs',
+  customer_not_available: 'Customer not available',
+};
+
 export const unitKinds = [
   'rooftop_unit',
   'split_system',

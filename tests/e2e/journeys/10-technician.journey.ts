@@ -2,7 +2,8 @@
  * Technician, on a phone (390×844): signs in through the form, sees the technician's navigation,
  * opens Route and the first stop, goes en route and on site, records circuit 1's readings and
  * checks the superheat and subcooling the screen computes, attaches a photo, adds a finding and
- * closes the visit as needing a return (parts). The return visit's number is handed to the
+ * closes the visit as needing a return (parts), with the
+ * customer's contact signing on the pad (drawn with the mouse). The return visit's number is handed to the
  * dispatcher journey, which books it. Then every screen in the navigation.
  */
 import assert from 'node:assert/strict';
@@ -25,6 +26,9 @@ const BRANCH_ZONE = 'America/Chicago';
  * Superheat = suction line − dew = 48 − 36.93 = 11.07 °F; subcooling = bubble − liquid line = 93.33 − 83 = 10.33 °F.
  * The reference file's own accuracy bar for Coilpath's tables is ±0.3 °F; the screen rounds to 0.1 °F.
  */
+/** The customer's on-site contact who signs the close-out (invented for the journey). */
+const SIGNER = 'Marisol Okafor';
+
 const READINGS = { suctionPsig: 111.5, suctionLineF: 48, liquidPsig: 289.2, liquidLineF: 83 };
 const EXPECTED_SUPERHEAT_F = 48 - 36.93;
 const EXPECTED_SUBCOOLING_F = 93.33 - 83;
@@ -230,6 +234,33 @@ export async function run(ctx: JourneyContext) {
   assert.ok(await page.getByRole('group', { name: 'Root cause' }).getByRole('radio', { name: /Component failure/ }).isChecked(), 'the one finding is the root cause');
   await page.getByLabel('Visit notes', { exact: true }).fill('Unit running on one condenser fan; return visit booked to replace the motor.');
   await page.getByRole('radio', { name: 'For the customer' }).check();
+  // The customer's on-site contact signs on the phone: printed name, then a stroke drawn on the pad with the mouse.
+  await page.getByRole('radio', { name: 'Customer signs' }).check();
+  await page.getByLabel('Signer’s printed name').fill(SIGNER);
+  const pad = page.getByRole('img', { name: 'Signature', exact: true });
+  await pad.scrollIntoViewIfNeeded();
+  const padStatus = page.getByRole('status').filter({ hasText: /^The pad is empty\.$|^Signature drawn\.$/ });
+  assert.equal(await padStatus.innerText(), 'The pad is empty.', 'the pad starts empty');
+  const drawStroke = async () => {
+    // Where the pad is now (clicking Clear may have scrolled the page).
+    await pad.scrollIntoViewIfNeeded();
+    const box = await pad.boundingBox();
+    assert.ok(box && box.width > 300, `the pad spans the phone's width (${box?.width} px)`);
+    await page.mouse.move(box.x + 20, box.y + box.height * 0.6);
+    await page.mouse.down();
+    for (let i = 1; i <= 24; i++) {
+      await page.mouse.move(box.x + 20 + i * ((box.width - 40) / 24), box.y + box.height * (0.5 + 0.3 * Math.sin(i / 2)), { steps: 2 });
+    }
+    await page.mouse.up();
+  };
+  await drawStroke();
+  await padStatus.filter({ hasText: 'Signature drawn.' }).waitFor();
+  // Clear empties the pad; the signature is drawn again.
+  await page.getByRole('button', { name: 'Clear' }).click();
+  await padStatus.filter({ hasText: 'The pad is empty.' }).waitFor();
+  await drawStroke();
+  await padStatus.filter({ hasText: 'Signature drawn.' }).waitFor();
+  await ctx.screen(page, 'visit-signature');
   await page.getByRole('button', { name: 'Close visit' }).click();
   const created = page.getByText(/Return visit WO-\d+ is in the unplaced queue for the office to book\./);
   await created.waitFor();
@@ -240,7 +271,17 @@ export async function run(ctx: JourneyContext) {
   assert.match(closeOut, /Closed .* as Needs return — needs parts\./, 'the close-out says how the visit closed');
   assert.match(closeOut, /Service summary \(with PDF\) sent to \S+@\S+\./, 'the service summary was sent to the site contact');
   assert.equal(await page.getByRole('button', { name: 'Close visit' }).count(), 0, 'a closed visit cannot be closed again');
-  writeHandoff({ returnVisit: { number: returnNumber, siteName, originNumber } });
+  // The closed visit shows the sign-off: the signature as the server keeps it, and the signer's name.
+  assert.match(closeOut, new RegExp(`Signed by ${SIGNER}, `), 'the close-out names the signer');
+  const signature = page.getByRole('img', { name: `Signature of ${SIGNER}` });
+  await signature.scrollIntoViewIfNeeded();
+  assert.match((await signature.getAttribute('src')) ?? '', /^\/api\/visits\/[\w-]+\/signature$/, 'the signature is served by the API');
+  const signatureWidth = await signature.evaluate(async (img: HTMLImageElement) => {
+    if (!img.complete) await new Promise((r) => img.addEventListener('load', r, { once: true }));
+    return img.naturalWidth;
+  });
+  assert.ok(signatureWidth > 0, 'the stored signature loads as an image');
+  writeHandoff({ returnVisit: { number: returnNumber, siteName, originNumber }, signedSummary: { workOrderNumber: originNumber, signerName: SIGNER } });
   ctx.step(`closed WO-${originNumber} as needs return (parts): return visit WO-${returnNumber} created, summary sent`);
   await ctx.screen(page, 'visit-closed');
 

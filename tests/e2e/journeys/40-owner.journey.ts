@@ -6,6 +6,8 @@
  *  - creates inspection work orders for the units at risk from the model alert, and sees that none
  *    are left to create, even after reloading;
  *  - exports the factory-defect cases as CSV and reads the file;
+ *  - on Mail outbox, downloads the service summary the technician's customer signed and reads the signer's
+ *    name and the signature image in its PDF;
  * and finally visits every screen in the navigation.
  */
 import assert from 'node:assert/strict';
@@ -14,6 +16,8 @@ import type { Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { desktop } from '../harness';
 import { expectedNavigation, navigationLabels, signInThroughForm, visitEveryScreen } from '../support';
+import { readHandoff } from '../handoff';
+import { pdfImageCount, readPdf } from '../../../apps/api/src/testing/pdf-text';
 
 export const title = 'Owner on a desktop';
 
@@ -132,6 +136,39 @@ async function exportDefectCsv(ctx: JourneyContext, page: Page) {
   ctx.step(`exported ${download.suggestedFilename()}: ${rows.length} case(s), ${qrx.length} on the ${MODEL}`);
 }
 
+/**
+ * The service summary the technician's journey signed (handed over in test-results/e2e/handoff.json): on
+ * Mail outbox the owner opens the message, downloads its PDF and reads it with a general-purpose PDF reader
+ * (pdfjs-dist): the signer's name is in the text and the signature is an image on the page.
+ */
+async function signedSummaryInOutbox(ctx: JourneyContext, page: Page) {
+  const signed = readHandoff().signedSummary;
+  if (!signed) {
+    ctx.step('no signed close-out from the technician journey in this run: the outbox PDF check needs 10-technician first');
+    return;
+  }
+  await page.getByRole('link', { name: 'Mail outbox' }).first().click();
+  await page.getByRole('heading', { level: 1, name: 'Mail outbox' }).waitFor();
+  const message = page.getByRole('button', { name: new RegExp(`^Service summary WO-${signed.workOrderNumber} `) }).first();
+  await message.click();
+  const attachment = page.getByRole('list', { name: 'Attachments' }).getByRole('link', { name: new RegExp(`service-summary-WO-${signed.workOrderNumber}\\.pdf`) });
+  await attachment.waitFor();
+  const [download] = await Promise.all([page.waitForEvent('download'), attachment.click()]);
+  const path = await download.path();
+  assert.ok(path, 'the PDF downloaded');
+  const bytes = await readFile(path);
+  const pdf = await readPdf(bytes);
+  assert.ok(pdf.flat.includes('Customer sign-off'), 'the PDF has the sign-off section');
+  assert.ok(pdf.flat.includes(`Signed by ${signed.signerName}`), `the PDF names the signer (${signed.signerName})`);
+  assert.match(pdf.flat, /Signed \w{3} \d{1,2} \w{3} \d{4}, \d\d:\d\d C[SD]T/, 'the PDF gives the signing time in the branch’s zone (Chicago)');
+  const images = await pdfImageCount(bytes);
+  assert.equal(images, 1, 'the PDF draws the signature image');
+  // The message is open and its PDF read: screenshot and axe now (a page with a downloaded attachment may not reach "network idle").
+  await ctx.screenshot(page, 'mail-outbox-signed-summary');
+  await ctx.axe(page, 'mail-outbox-signed-summary');
+  ctx.step(`Mail outbox: the summary of WO-${signed.workOrderNumber} carries ${signed.signerName}'s signature (${images} image, name and time in the text)`);
+}
+
 export async function run(ctx: JourneyContext) {
   const page = await ctx.launch(desktop);
   await signInThroughForm(ctx, page, 'owner');
@@ -147,4 +184,5 @@ export async function run(ctx: JourneyContext) {
   await exportDefectCsv(ctx, page);
 
   await visitEveryScreen(ctx, page, labels);
+  await signedSummaryInOutbox(ctx, page);
 }

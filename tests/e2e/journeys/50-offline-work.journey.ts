@@ -202,6 +202,7 @@ export async function run(ctx: JourneyContext): Promise<void> {
 
   // Close-out.
   await page.getByRole('radio', { name: /^Resolved/ }).check();
+  await page.getByRole('radio', { name: 'Customer not available' }).check();
   await page.getByLabel('Visit notes', { exact: true }).fill('Transducer recalibrated; unit running within range.');
   await page.getByRole('button', { name: 'Close visit' }).click();
   await notice(page, 'Visit closed on this phone; the close-out is sent when the connection is back.').waitFor();

@@ -7,6 +7,8 @@ import {
   bigint,
   bigserial,
   boolean,
+  check,
+  customType,
   date,
   doublePrecision,
   index,
@@ -44,6 +46,11 @@ import type {
 } from '@coilpath/contract';
 
 const id = () => uuid().primaryKey().defaultRandom();
+/** Binary data (`bytea`), read and written as a Buffer. */
+const bytea = customType<{ data: Buffer; driverData: Buffer | Uint8Array }>({
+  dataType: () => 'bytea',
+  fromDriver: (v) => (Buffer.isBuffer(v) ? v : Buffer.from(v)),
+});
 const instant = () => timestamp({ withTimezone: true, mode: 'date' });
 const createdAt = () => instant().notNull().defaultNow();
 
@@ -457,6 +464,23 @@ export const visits = pgTable('visits', {
   uniqueIndex('visits_booking_uq').on(t.bookingId),
   // The root cause is one of the visit's own findings: the foreign key (id, root_cause_finding_id) →
   // findings (visit_id, id) is hand-written in migration 0017 (drizzle-kit would add it before the unique key it needs).
+]);
+
+/**
+ * The customer's sign-off at a visit's close-out (one per closed visit, written in the close's transaction):
+ * the signer's printed name, when they signed and the signature as PNG bytes (at most 200 KB, decoded on the
+ * way in), or — all three null — "customer not available". Kept apart from `visits` so that reading a visit
+ * never reads the image. Visits closed before sign-offs were asked have no row.
+ */
+export const visitSignatures = pgTable('visit_signatures', {
+  visitId: uuid().primaryKey().references(() => visits.id, { onDelete: 'cascade' }),
+  signerName: text(),
+  signedAt: instant(),
+  imagePng: bytea(),
+  /** When the close-out recorded the sign-off (the server's clock). */
+  recordedAt: instant().notNull(),
+}, (t) => [
+  check('visit_signatures_signed_ck', sql`(${t.signerName} is null and ${t.signedAt} is null and ${t.imagePng} is null) or (${t.signerName} is not null and ${t.signedAt} is not null and ${t.imagePng} is not null)`),
 ]);
 
 export const visitEvents = pgTable('visit_events', {

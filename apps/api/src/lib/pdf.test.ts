@@ -24,6 +24,7 @@ const sections: SummarySections = {
   refrigerant: ['2026-12-04: R-410A, added 2.0 lb, recovered 0.0 lb (Leak repair)'],
   leaks: [],
   outcome: ['Outcome: Resolved', `Technician's notes: change of −0.02 in the trend; ${vietnamese} confirmed`],
+  signOff: { lines: [`Signed by ${vietnamese}`, 'Signed Fri 4 Dec 2026, 11:40 CST'], image: null },
 };
 
 describe('the shared PDF setup', () => {
@@ -53,7 +54,7 @@ describe('the shared PDF setup', () => {
     expect(read.roles[0]).toBe('Root');
     expect(read.roles[1]).toBe('Document');
     expect(read.roles.filter((r) => r === 'H1')).toHaveLength(1);
-    expect(read.roles.filter((r) => r === 'H2')).toEqual(['H2', 'H2', 'H2', 'H2']); // Readings, Findings, Refrigerant, Outcome
+    expect(read.roles.filter((r) => r === 'H2')).toEqual(['H2', 'H2', 'H2', 'H2', 'H2']); // Readings, Findings, Refrigerant, Outcome, Customer sign-off
     expect(read.roles).toEqual(expect.arrayContaining(['P', 'L', 'LI', 'Lbl', 'LBody']));
   });
 

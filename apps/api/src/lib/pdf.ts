@@ -60,6 +60,8 @@ export interface CoilpathPdf {
   table(headers: string[], widths: number[], rows: string[][], options?: { align?: ('left' | 'right')[]; size?: number; empty?: string }): void;
   /** Starts a new page when less than `height` points are left. */
   ensureSpace(height: number): void;
+  /** A picture (an image drawn by `draw`) tagged as a Figure with its alternate text for screen readers. */
+  figure(alt: string, draw: () => void): void;
   /** Drawing that is decoration, not content (rules): marked as an artifact. */
   artifact(draw: () => void): void;
   /** Ends the document; resolves to the file's bytes. */
@@ -216,6 +218,9 @@ export function createPdf(setup: PdfSetup): CoilpathPdf {
     },
     ensureSpace,
     artifact,
+    figure(alt, draw) {
+      root.add(doc.struct('Figure', { alt }, draw));
+    },
     finish() {
       root.end();
       doc.end();

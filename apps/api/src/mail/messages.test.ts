@@ -11,7 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createTestApp, signedInAgent, type TestApp } from '../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD, weekdayHours } from '../testing/fixtures';
 import { leakCases, sites, users } from '../db/schema';
-import { makeBookedVisit } from '../modules/visits/visits.fixtures';
+import { makeBookedVisit, NOT_AVAILABLE } from '../modules/visits/visits.fixtures';
 import { runDigest } from '../modules/watchlist/watchlist.jobs';
 import { createTransportMailer, type Mailer } from './mailer';
 
@@ -117,7 +117,7 @@ describe('e-mail messages', () => {
     const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, techId: f.inA.technician.id, startAt: '2026-12-15T12:30:00Z' });
     const tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
     expect((await tech.patch(`/api/visits/${visit.id}`).send({ state: 'on_site' })).status).toBe(200);
-    const closed = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' });
+    const closed = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     expect(closed.body.summary).toMatchObject({ sent: true });
     const { mail, raw } = await lastParsed();
     expectBothParts(mail, raw);

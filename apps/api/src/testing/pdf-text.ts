@@ -3,7 +3,7 @@
  * not with the code that wrote it: the text of every page, the document info, the catalog's
  * accessibility entries and the structure tree.
  */
-import { getDocument } from 'pdfjs-dist/legacy/build/pdf.mjs';
+import { getDocument, OPS } from 'pdfjs-dist/legacy/build/pdf.mjs';
 
 export interface StructNode {
   role?: string;
@@ -78,4 +78,20 @@ export async function readPdf(bytes: Buffer | Uint8Array): Promise<PdfReading> {
 export function pdfFontNames(bytes: Buffer): string[] {
   const raw = bytes.toString('latin1');
   return [...new Set([...raw.matchAll(/\/BaseFont\s*\/([A-Za-z0-9+_-]+)/g)].map((m) => m[1]!))];
+}
+
+/** How many images the PDF paints (pdfjs-dist's operator list: `paintImageXObject` and inline images), page by page summed. */
+export async function pdfImageCount(bytes: Buffer | Uint8Array): Promise<number> {
+  const pdf = await getDocument({ data: new Uint8Array(bytes), useSystemFonts: false, isEvalSupported: false, verbosity: 0 }).promise;
+  try {
+    const paints = new Set<number>([OPS.paintImageXObject, OPS.paintInlineImageXObject, OPS.paintImageXObjectRepeat]);
+    let n = 0;
+    for (let i = 1; i <= pdf.numPages; i++) {
+      const ops = await (await pdf.getPage(i)).getOperatorList();
+      n += ops.fnArray.filter((f) => paints.has(f)).length;
+    }
+    return n;
+  } finally {
+    await pdf.destroy();
+  }
 }

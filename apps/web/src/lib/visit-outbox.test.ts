@@ -32,6 +32,15 @@ function visit(over: Partial<VisitDetail> = {}): VisitDetail {
 }
 
 describe('a write laid over the kept visit', () => {
+  it('shows a waiting close-out’s sign-off: the signature from the phone (a data URL), or not available', () => {
+    const onSite = visit({ status: 'on_site', onSiteAt: at, signature: null });
+    const png = 'iVBORw0KGgoAAAANSUhEUg';
+    const signed = applyToVisit(onSite, { kind: 'close', visitId: 'v1', body: { outcome: 'resolved', signature: { kind: 'signed', signerName: ' Dana Whitfield ', imagePng: png, signedAt: '2026-12-07T15:01:00.000Z' } } }, at);
+    expect(signed.signature).toEqual({ kind: 'signed', signerName: 'Dana Whitfield', signedAt: '2026-12-07T15:01:00.000Z', imageUrl: `data:image/png;base64,${png}` });
+    const away = applyToVisit(onSite, { kind: 'close', visitId: 'v1', body: { outcome: 'resolved', signature: { kind: 'customer_not_available' } } }, at);
+    expect(away.signature).toEqual({ kind: 'customer_not_available', recordedAt: at });
+  });
+
   it('moves the state: en route, then on site opens recording; a repeated tap changes nothing', () => {
     const enRoute = applyToVisit(visit(), { kind: 'state', visitId: 'v1', body: { state: 'en_route' } }, at);
     expect(enRoute).toMatchObject({ status: 'en_route', enRouteAt: at, canRecord: false, recordRefusal: recordingRefusal('en_route')!.message });

@@ -11,6 +11,7 @@ import { onlineManager, useQueryClient, type QueryClient } from '@tanstack/react
 import {
   recordingRefusal,
   type AttachmentDto,
+  type CloseVisit,
   type CloseVisitResult,
   type DayResponse,
   type FindingDto,
@@ -46,6 +47,13 @@ export function sendWrite(w: OutboxWrite): Promise<unknown> {
   }
 }
 
+/** A close-out's sign-off as the visit will show it; the image, still on the phone, as a data URL. */
+const signatureOf = (s: CloseVisit['signature'], at: string): VisitDetail['signature'] => {
+  if (!s) return null;
+  if (s.kind === 'customer_not_available') return { kind: 'customer_not_available', recordedAt: at };
+  return { kind: 'signed', signerName: s.signerName.trim(), signedAt: s.signedAt ?? at, imageUrl: `data:image/png;base64,${s.imagePng}` };
+};
+
 const statusAfter = (w: OutboxWrite, status: VisitStatus): VisitStatus => {
   if (w.kind === 'close') return 'closed';
   if (w.kind !== 'state' || status === 'closed' || status === 'on_site') return status;
@@ -69,6 +77,7 @@ export function applyToVisit(v: VisitDetail, w: OutboxWrite, at: string): VisitD
         closedAt: status === 'closed' ? at : v.closedAt,
         outcome: w.kind === 'close' ? w.body.outcome : v.outcome,
         returnNeeds: w.kind === 'close' ? (w.body.returnNeeds ?? []) : v.returnNeeds,
+        signature: w.kind === 'close' ? signatureOf(w.body.signature, at) : v.signature,
         canWrite: v.canWrite && status !== 'closed',
         canRecord: v.canWrite && status === 'on_site',
         recordRefusal: v.canWrite && status !== 'closed' ? (refusal?.message ?? null) : null,

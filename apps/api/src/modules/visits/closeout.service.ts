@@ -1,10 +1,10 @@
 import { and, eq, inArray } from 'drizzle-orm';
 import type { CloseVisitResult, SessionUser, SummaryMailResult, WorkOrderState } from '@coilpath/contract';
-import { closeVisitSchema, leakRepairCloseRefusal, returnNeedLabels, rootCauseChoice } from '@coilpath/contract';
+import { closeVisitSchema, leakRepairCloseRefusal, returnNeedLabels, rootCauseChoice, signatureChoiceRefusal } from '@coilpath/contract';
 import { requiredCertificationFor } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
-import { branches, customers, findings, leakCases, refrigerantEvents, sites, units, users, visitEvents, visits, workOrders } from '../../db/schema';
+import { branches, customers, findings, leakCases, refrigerantEvents, sites, units, users, visitEvents, visitSignatures, visits, workOrders } from '../../db/schema';
 import { conflict, forbidden, HttpError } from '../../lib/errors';
 import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
 import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
@@ -12,6 +12,7 @@ import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
 import { summaryMail, summaryPdf, summarySections, type SummaryContext } from './summary';
 import { leakRepairOf, visitDetail } from './visits.service';
 import { actAs } from '../events/actor';
+import { decodeSignaturePng, signatureImage, signedAtOf } from './signature';
 
 type Input = z.output<typeof closeVisitSchema>;
 
@@ -45,6 +46,10 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
         confirmed: input.confirmedWithoutVerification,
       });
       if (unverified) throw new HttpError(422, unverified.code, unverified.message, { fields: [{ path: 'confirmedWithoutVerification', message: unverified.message }] });
+      // The customer's sign-off: signed (a whole PNG, decoded here) or not available; one of the two is required.
+      const unsigned = signatureChoiceRefusal(input.signature);
+      if (unsigned) throw new HttpError(422, unsigned.code, unsigned.message, { fields: [{ path: 'signature', message: unsigned.message }] });
+      const signaturePng = input.signature?.kind === 'signed' ? decodeSignaturePng(input.signature.imagePng) : null;
       const now = ctx.clock.now();
       await tx
         .update(visits)
@@ -62,6 +67,11 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
         })
         .where(eq(visits.id, id));
       await tx.insert(visitEvents).values({ visitId: id, state: 'closed', at: now, byUserId: user.id });
+      await tx.insert(visitSignatures).values(
+        input.signature?.kind === 'signed'
+          ? { visitId: id, signerName: input.signature.signerName, signedAt: signedAtOf(input.signature.signedAt, v.onSiteAt, now), imagePng: signaturePng!, recordedAt: now }
+          : { visitId: id, recordedAt: now },
+      );
       const [wo] = await tx
         .update(workOrders)
         .set({
@@ -198,7 +208,7 @@ export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: s
   try {
     const detail = await visitDetail(ctx.db, user, visitId);
     const c = await summaryContext(ctx, visitId, detail.units.map((u) => u.id));
-    const s = summarySections(detail, c);
+    const s = summarySections(detail, { ...c, signatureImage: detail.signature?.kind === 'signed' ? await signatureImage(ctx.db, visitId) : null });
     const pdf = await summaryPdf(s, ctx.clock.now());
     await ctx.mailer.send({
       to,

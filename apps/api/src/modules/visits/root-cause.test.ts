@@ -10,7 +10,7 @@ import type { Clock } from '../../lib/clock';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
 import { leakCases, serviceCallFacts, verificationTests, visits, workOrders } from '../../db/schema';
-import { makeBookedVisit } from './visits.fixtures';
+import { makeBookedVisit, NOT_AVAILABLE } from './visits.fixtures';
 
 let now = new Date('2026-03-10T15:00:00Z');
 const clock: Clock = { now: () => new Date(now) };
@@ -51,7 +51,7 @@ describe('POST /api/visits/:id/close — root cause', () => {
     const { visit, workOrder } = await onSiteVisit();
     await addFinding(visit.id, { causeCode: 'airflow', origin: 'wear' });
     await addFinding(visit.id, { causeCode: 'refrigerant_leak', origin: 'installation' });
-    const res = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' });
+    const res = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('root_cause_required');
     expect(res.body.error.message).toMatch(/2 findings: mark the one that caused the call/);
@@ -66,10 +66,10 @@ describe('POST /api/visits/:id/close — root cause', () => {
     const b = await onSiteVisit();
     const own = await addFinding(a.visit.id, { causeCode: 'airflow', origin: 'wear' });
     const foreign = await addFinding(b.visit.id, { causeCode: 'settings', origin: 'external' });
-    const res = await tech.post(`/api/visits/${a.visit.id}/close`).send({ outcome: 'resolved', rootCauseFindingId: foreign });
+    const res = await tech.post(`/api/visits/${a.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: foreign });
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('root_cause_unknown');
-    const ok = await tech.post(`/api/visits/${a.visit.id}/close`).send({ outcome: 'resolved', rootCauseFindingId: own });
+    const ok = await tech.post(`/api/visits/${a.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: own });
     expect(ok.status).toBe(200);
     expect(ok.body.visit.rootCauseFindingId).toBe(own);
   });
@@ -77,19 +77,19 @@ describe('POST /api/visits/:id/close — root cause', () => {
   it('takes the only finding by default, none without findings, and the marked one among several', async () => {
     const one = await onSiteVisit();
     const only = await addFinding(one.visit.id, { causeCode: 'airflow', origin: 'wear' });
-    const r1 = await tech.post(`/api/visits/${one.visit.id}/close`).send({ outcome: 'resolved' });
+    const r1 = await tech.post(`/api/visits/${one.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     expect(r1.status).toBe(200);
     expect(r1.body.visit.rootCauseFindingId).toBe(only);
 
     const none = await onSiteVisit();
-    const r0 = await tech.post(`/api/visits/${none.visit.id}/close`).send({ outcome: 'resolved' });
+    const r0 = await tech.post(`/api/visits/${none.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     expect(r0.status).toBe(200);
     expect(r0.body.visit.rootCauseFindingId).toBeNull();
 
     const two = await onSiteVisit();
     await addFinding(two.visit.id, { causeCode: 'airflow', origin: 'wear' });
     const second = await addFinding(two.visit.id, { causeCode: 'wiring_fault', origin: 'factory_defect' });
-    const r2 = await tech.post(`/api/visits/${two.visit.id}/close`).send({ outcome: 'resolved', rootCauseFindingId: second });
+    const r2 = await tech.post(`/api/visits/${two.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: second });
     expect(r2.status).toBe(200);
     const [facts] = await t.ctx.db.select().from(serviceCallFacts).where(eq(serviceCallFacts.jobId, two.workOrder.id));
     expect(facts).toMatchObject({ causeCode: 'wiring_fault', origin: 'factory_defect' });
@@ -112,14 +112,14 @@ describe('POST /api/visits/:id/close — a leak repair closed as resolved', () =
     const { visit, leakCase } = await repairVisit();
     const detail = await tech.get(`/api/visits/${visit.id}`);
     expect(detail.body.leakRepair).toEqual({ leakCaseId: leakCase.id, repairDueDate: '2026-03-31', verificationTests: 0 });
-    const refused = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' });
+    const refused = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     expect(refused.status).toBe(422);
     expect(refused.body.error.code).toBe('leak_repair_unverified');
     expect(refused.body.error.message).toMatch(/neither a verification test nor a refrigerant entry/);
     expect((await t.ctx.db.select().from(visits).where(eq(visits.id, visit.id)))[0]!.closedAt).toBeNull();
     // `false` is no confirmation.
-    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved', confirmedWithoutVerification: false })).status).toBe(422);
-    const ok = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved', confirmedWithoutVerification: true });
+    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', confirmedWithoutVerification: false })).status).toBe(422);
+    const ok = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', confirmedWithoutVerification: true });
     expect(ok.status).toBe(200);
   });
 
@@ -127,15 +127,15 @@ describe('POST /api/visits/:id/close — a leak repair closed as resolved', () =
     await clearCases();
     const a = await repairVisit();
     expect((await tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ visitId: a.visit.id, refrigerant: 'R-410A', poundsAdded: 4, reason: 'repair_recharge' })).status).toBe(201);
-    expect((await tech.post(`/api/visits/${a.visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    expect((await tech.post(`/api/visits/${a.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);
     await clearCases();
     const b = await repairVisit();
     await t.ctx.db.insert(verificationTests).values({ leakCaseId: b.leakCase.id, kind: 'initial', testedOn: '2026-03-10', passed: true });
     expect((await tech.get(`/api/visits/${b.visit.id}`)).body.leakRepair.verificationTests).toBe(1);
-    expect((await tech.post(`/api/visits/${b.visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    expect((await tech.post(`/api/visits/${b.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);
     await clearCases();
     const c = await repairVisit();
-    expect((await tech.post(`/api/visits/${c.visit.id}/close`).send({ outcome: 'declined' })).status).toBe(200);
+    expect((await tech.post(`/api/visits/${c.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'declined' })).status).toBe(200);
     await clearCases();
   });
 });
@@ -163,14 +163,14 @@ describe('Fix Quality follows the marked root cause', () => {
     const j1 = await visitB();
     await find(j1.visit.id, 'airflow', 'wear');
     const j1root = await find(j1.visit.id, 'component_failure', 'factory_defect');
-    expect((await techB.post(`/api/visits/${j1.visit.id}/close`).send({ outcome: 'resolved', rootCauseFindingId: j1root })).status).toBe(200);
+    expect((await techB.post(`/api/visits/${j1.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: j1root })).status).toBe(200);
     const j2 = await visitB();
     await find(j2.visit.id, 'wiring_fault', 'factory_defect');
     const j2root = await find(j2.visit.id, 'settings', 'installation');
-    expect((await techB.post(`/api/visits/${j2.visit.id}/close`).send({ outcome: 'resolved', rootCauseFindingId: j2root })).status).toBe(200);
+    expect((await techB.post(`/api/visits/${j2.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: j2root })).status).toBe(200);
     const j3 = await visitB();
     await find(j3.visit.id, 'airflow', 'wear');
-    expect((await techB.post(`/api/visits/${j3.visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    expect((await techB.post(`/api/visits/${j3.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);
 
     now = new Date('2026-06-03T18:00:00Z');
     owner = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD); // a session from March has expired by June

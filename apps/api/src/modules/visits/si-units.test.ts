@@ -8,7 +8,7 @@ import { eq, sql } from 'drizzle-orm';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
 import { branches, circuits, readings } from '../../db/schema';
-import { makeBookedVisit } from './visits.fixtures';
+import { makeBookedVisit, NOT_AVAILABLE } from './visits.fixtures';
 
 const NOW = '2026-03-10T15:00:00Z';
 const KPA_G_C = { pressure: 'kPag', temperature: 'C' } as const;
@@ -180,7 +180,7 @@ describe('readings shown elsewhere on an SI branch', () => {
       readings: [{ circuitId: circuitIds[0], suctionPressure: 768.8, suctionPressureController: 790, suctionLineTemp: 9.3, liquidPressure: 2412.5, liquidLineTemp: 35.8 }],
     });
     t.mailer.sent.length = 0;
-    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);
     const text = t.mailer.sent[0]!.text;
     expect(text).toContain('Suction pressure 768.8 kPa(g) (controller 790.0 kPa(g)), saturation 2.7 °C');
     expect(text).toMatch(/Suction line 9\.3 °C, superheat 6\.[5-6] K/);

@@ -14,7 +14,7 @@ import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/
 import { readPdf } from '../../testing/pdf-text';
 import { circuits, leakCases, users } from '../../db/schema';
 import { createTransportMailer, type Mailer } from '../../mail/mailer';
-import { makeBookedVisit } from './visits.fixtures';
+import { makeBookedVisit, NOT_AVAILABLE } from './visits.fixtures';
 
 const PSIG_F = { pressure: 'psig', temperature: 'F' } as const;
 
@@ -74,8 +74,7 @@ async function closeWithEverything(notesAudience: 'internal' | 'customer') {
   expect((await tech.post(`/api/units/${p.unit.id}/refrigerant-events`).send({ visitId: visit.id, refrigerant: 'R-410A', poundsAdded: 3.5, reason: 'leak_top_off' })).status).toBe(201);
   const notes = notesAudience === 'customer' ? 'Your unit is running normally again.' : INTERNAL.visit;
   mailer.raw.length = 0;
-  const res = await tech.post(`/api/visits/${visit.id}/close`).send({
-    outcome: 'needs_return',
+  const res = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return',
     returnNeeds: ['parts'],
     returnNotes: INTERNAL.returnNotes,
     notes,

@@ -5,7 +5,7 @@ import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/
 import { circuits, mailOutbox } from '../../db/schema';
 import { startMailSink } from '../../mail/sink';
 import { createSmtpMailer, type Mailer } from '../../mail/mailer';
-import { makeBookedVisit } from './visits.fixtures';
+import { makeBookedVisit, NOT_AVAILABLE } from './visits.fixtures';
 
 const PSIG_F = { pressure: 'psig', temperature: 'F' } as const;
 
@@ -36,7 +36,7 @@ describe('service summary through the real SMTP sink', () => {
     await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
     await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'wiring_fault', origin: 'factory_defect', reportedCircuit: 1, actualCircuit: 2 });
 
-    const res = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'needs_return', returnNeeds: ['manufacturer'], returnNotes: 'Factory to confirm the wiring change' });
+    const res = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds: ['manufacturer'], returnNotes: 'Factory to confirm the wiring change' });
     expect(res.status).toBe(200);
     expect(res.body.summary).toMatchObject({ sent: true, to: p.site.contactEmail });
 

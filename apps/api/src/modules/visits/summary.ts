@@ -18,7 +18,7 @@ import {
   type ReadingDto,
   type VisitDetail,
 } from '@coilpath/contract';
-import { createPdf, pdfSlate } from '../../lib/pdf';
+import { createPdf, pdfSlate, type CoilpathPdf } from '../../lib/pdf';
 import { composeMail, mail, mailTime, type MailBlock } from '../../mail/compose';
 
 /** An instant in the branch's zone, with the zone's name: "Tue 10 Mar 2026, 09:00 CDT". */
@@ -49,6 +49,8 @@ export interface SummaryContext {
   technician: { name: string; epa608Number: string | null };
   /** Open leak cases on the visit's units (repair still due). */
   openLeakCases: { unitTag: string; openedOn: string; leakRatePercent: number; thresholdPercent: number; repairDueDate: string }[];
+  /** The customer's signature (PNG bytes, checked at close-out) when the visit's sign-off is `signed`. */
+  signatureImage?: Buffer | null;
 }
 
 export interface SummarySections {
@@ -62,6 +64,8 @@ export interface SummarySections {
   /** Open leak cases with their repair deadlines. */
   leaks: string[];
   outcome: string[];
+  /** The customer's sign-off in words ("Signed by …, <time in the branch's zone>" or not available), and the image. */
+  signOff: { lines: string[]; image: Buffer | null };
 }
 
 
@@ -110,7 +114,16 @@ export function summarySections(v: VisitDetail, c: SummaryContext): SummarySecti
         `${l.unitTag}: a leak rate of ${l.leakRatePercent.toFixed(1)} % a year is above the ${l.thresholdPercent} % limit (found ${scheduleDay(l.openedOn)}). The repair is due by ${scheduleDay(l.repairDueDate)}.`,
     ),
     outcome,
+    signOff: signOffOf(v, c.signatureImage ?? null),
   };
+}
+
+/** The sign-off section: who signed and when (in the branch's zone), or that no one was there to sign. */
+function signOffOf(v: VisitDetail, image: Buffer | null): SummarySections['signOff'] {
+  const sig = v.signature;
+  if (sig?.kind === 'signed') return { lines: [`Signed by ${sig.signerName}`, `Signed ${when(sig.signedAt, v.branch.timeZone)}`], image };
+  if (sig?.kind === 'customer_not_available') return { lines: ['Customer not available to sign'], image: null };
+  return { lines: [], image: null };
 }
 
 /** The summary as e-mail blocks: the same sections as the PDF. */
@@ -123,6 +136,7 @@ export function summaryBlocks(s: SummarySections): MailBlock[] {
   if (s.refrigerant.length) blocks.push(mail.heading('Refrigerant'), mail.list(s.refrigerant));
   if (s.leaks.length) blocks.push(mail.heading('Leak repair due'), mail.list(s.leaks));
   blocks.push(mail.heading('Outcome'), ...s.outcome.map((l) => mail.p(l)));
+  if (s.signOff.lines.length) blocks.push(mail.heading('Customer sign-off'), ...s.signOff.lines.map((l) => mail.p(l)));
   blocks.push(mail.p('A PDF copy of this summary is attached.', true));
   return blocks;
 }
@@ -135,6 +149,29 @@ export function summaryMail(s: SummarySections): { subject: string; text: string
 /** The plain-text part (also what the PDF is checked against). */
 export function summaryText(s: SummarySections): string {
   return summaryMail(s).text;
+}
+
+/** Largest box the signature is drawn in, in points (1/72 in): about 3.3 × 1.1 in. */
+const SIGNATURE_BOX = { width: 240, height: 80 };
+
+/**
+ * Draws the signature image (a PNG checked at close-out) as a tagged Figure whose alternate text names the
+ * signer, scaled to fit `SIGNATURE_BOX` with its proportions, above a thin rule (an artifact).
+ */
+function signatureFigure(pdf: CoilpathPdf, png: Buffer, alt: string) {
+  // PNG spec §11.2.2: width and height are the first 8 bytes of IHDR's data (offset 16).
+  const w = png.readUInt32BE(16);
+  const h = png.readUInt32BE(20);
+  const scale = Math.min(SIGNATURE_BOX.width / w, SIGNATURE_BOX.height / h);
+  const size = { width: w * scale, height: h * scale };
+  pdf.ensureSpace(size.height + 30);
+  const y = pdf.doc.y + 4;
+  pdf.figure(alt, () => void pdf.doc.image(png, pdf.left, y, size));
+  pdf.artifact(() => {
+    pdf.doc.moveTo(pdf.left, y + size.height + 2).lineTo(pdf.left + SIGNATURE_BOX.width, y + size.height + 2).lineWidth(0.5).strokeColor(pdfSlate).stroke();
+  });
+  pdf.doc.x = pdf.left;
+  pdf.doc.y = y + size.height + 6;
 }
 
 /** The same summary as a PDF, through the shared setup (Roboto Flex embedded, tagged for screen readers). */
@@ -159,6 +196,11 @@ export function summaryPdf(s: SummarySections, createdAt?: Date): Promise<Buffer
   }
   pdf.heading('Outcome');
   for (const l of s.outcome) pdf.paragraph(l);
+  if (s.signOff.lines.length) {
+    pdf.heading('Customer sign-off');
+    if (s.signOff.image) signatureFigure(pdf, s.signOff.image, s.signOff.lines[0]!);
+    for (const l of s.signOff.lines) pdf.paragraph(l);
+  }
   pdf.doc.moveDown(1);
   pdf.paragraph(
     'Readings guide diagnosis alongside the equipment manufacturer’s data. Refrigerant work is done under EPA Section 608 certification.',

@@ -58,3 +58,6 @@ export const tinyPng = Buffer.from(
 
 /** The smallest PDF file-type recognises (signature + header). */
 export const tinyPdf = Buffer.from('%PDF-1.4\n1 0 obj <<>> endobj\ntrailer <<>>\n%%EOF\n');
+
+/** The close-out's sign-off when the test is not about it: the customer was not available to sign. */
+export const NOT_AVAILABLE = { kind: 'customer_not_available' } as const;

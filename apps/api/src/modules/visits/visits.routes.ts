@@ -14,8 +14,9 @@ import { z } from 'zod';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
-import { badRequest, unauthorized } from '../../lib/errors';
-import { assertVisitWritable, loadVisit } from './access';
+import { badRequest, notFound, unauthorized } from '../../lib/errors';
+import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
+import { signatureImage } from './signature';
 import { addAttachment, readAttachment } from './attachments.service';
 import { sendStoredFile } from '../../lib/send-file';
 import { unitBriefing } from './briefing.service';
@@ -77,6 +78,17 @@ export function visitsRoutes(ctx: AppContext): Router {
   r.post(
     '/:id/close',
     endpoint({ params: idParams, body: closeVisitSchema }, ({ user, params, body }) => closeVisit(ctx, user, params.id, body)),
+  );
+
+  // The customer's signature image (PNG) of a closed, signed visit: whoever may read the visit; 404 when not signed.
+  r.get(
+    '/:id/signature',
+    endpoint({ params: idParams }, async ({ user, params, res }) => {
+      assertVisitReadable(user, await loadVisit(ctx.db, params.id));
+      const png = await signatureImage(ctx.db, params.id);
+      if (!png) throw notFound('signature');
+      sendStoredFile(res, { content: png, contentType: 'image/png', name: 'signature.png', cacheControl: 'private, max-age=3600' });
+    }),
   );
 
   r.post('/:id/summary', endpoint({ params: idParams }, async ({ user, params }) => ({ summary: await resendSummary(ctx, user, params.id) })));

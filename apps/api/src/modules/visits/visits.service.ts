@@ -35,6 +35,7 @@ import { assertVisitReadable, assertVisitRecordable, assertVisitWritable, loadVi
 import { attachmentDto, findingDto, readingDto, refrigerantEventDto } from './dto';
 import { computeReading, toStoredUnits } from './reading-calc';
 import { actAs } from '../events/actor';
+import { visitSignatureDto } from './signature';
 
 /** The units a visit covers: the work order's unit, or every active unit at the site when it names none. */
 export async function unitsOfWorkOrder(db: Tx, wo: { unitId: string | null; siteId: string }) {
@@ -103,7 +104,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
   const { visit: v, wo, site, branch } = row!;
   const canWrite = user.role === 'technician' && v.techId === user.id && !v.closedAt;
 
-  const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows, leakRepair] = await Promise.all([
+  const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows, leakRepair, signature] = await Promise.all([
     unitsWithCircuits(db, wo),
     db
       .select({ r: readings, number: circuits.number })
@@ -116,6 +117,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
     db.select().from(attachments).where(eq(attachments.visitId, id)).orderBy(asc(attachments.createdAt)),
     db.select().from(visitEvents).where(eq(visitEvents.visitId, id)).orderBy(asc(visitEvents.at)),
     leakRepairOf(db, wo),
+    visitSignatureDto(db, id),
   ]);
 
   return {
@@ -135,6 +137,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
     rootCauseFindingId: v.rootCauseFindingId,
     leakRepair,
     summarySentAt: v.summarySentAt?.toISOString() ?? null,
+    signature,
     version: v.version,
     booking: row!.booking ? { id: row!.booking.id, startAt: row!.booking.startAt.toISOString(), endAt: row!.booking.endAt.toISOString() } : null,
     workOrder: {

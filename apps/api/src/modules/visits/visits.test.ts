@@ -4,7 +4,7 @@ import { eq } from 'drizzle-orm';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeUser, TEST_PASSWORD } from '../../testing/fixtures';
 import { alarms, circuits, findings, leakCases, readings, refrigerantEvents, visitEvents, visits, workOrders } from '../../db/schema';
-import { makeBookedVisit } from './visits.fixtures';
+import { makeBookedVisit, NOT_AVAILABLE } from './visits.fixtures';
 
 const NOW = '2026-03-10T15:00:00Z';
 /** The units every imperial body states. */
@@ -316,7 +316,7 @@ describe('recording only on site', () => {
 
   it('refuses them once the visit is closed (409 visit_closed)', async () => {
     const { visit } = await book({ onSite: true });
-    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(200);
+    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);
     for (const [what, send] of Object.entries(record(visit.id))) {
       const res = await send();
       expect(res.status, what).toBe(409);
@@ -328,8 +328,8 @@ describe('recording only on site', () => {
 describe('POST /api/visits/:id/close', () => {
   it('needs what the return visit needs (400) and the technician on site (409)', async () => {
     const { visit } = await book();
-    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'needs_return' })).status).toBe(400);
-    const early = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' });
+    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return' })).status).toBe(400);
+    const early = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     expect(early.status).toBe(409);
     expect(early.body.error.code).toBe('not_on_site');
   });
@@ -343,7 +343,7 @@ describe('POST /api/visits/:id/close', () => {
 
     const res = await tech
       .post(`/api/visits/${visit.id}/close`)
-      .send({ outcome: 'needs_return', returnNeeds: ['leak_search', 'parts'], returnNotes: 'Leak search on circuit 1; bring a core', labourMinutes: 75 });
+      .send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds: ['leak_search', 'parts'], returnNotes: 'Leak search on circuit 1; bring a core', labourMinutes: 75 });
     expect(res.status).toBe(200);
     expect(res.body.visit.status).toBe('closed');
     expect(res.body.visit.canWrite).toBe(false);
@@ -376,7 +376,7 @@ describe('POST /api/visits/:id/close', () => {
     expect(v!.summarySentAt).not.toBeNull();
 
     // Closed: no more work, no second close.
-    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' })).status).toBe(409);
+    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(409);
     expect((await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'airflow', origin: 'wear' })).status).toBe(409);
   });
 
@@ -386,7 +386,7 @@ describe('POST /api/visits/:id/close', () => {
     const mailer = t.ctx.mailer;
     t.ctx.mailer = { send: () => Promise.reject(new Error('SMTP down')) };
     try {
-      const res = await tech.post(`/api/visits/${visit.id}/close`).send({ outcome: 'resolved' });
+      const res = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
       expect(res.status).toBe(200);
       expect(res.body.summary.sent).toBe(false);
       expect(res.body.summary.error).toMatch(/visit is closed/);
@@ -435,7 +435,7 @@ describe('GET /api/units/:id/briefing', () => {
     });
     await tech.post(`/api/visits/${first.visit.id}/findings`).send({ causeCode: 'sensor_fault', origin: 'wear', reportedCircuit: 1, actualCircuit: 1 });
     await tech.post(`/api/units/${u.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', poundsAdded: 2.5, reason: 'leak_top_off', date: '2026-03-09' });
-    await tech.post(`/api/visits/${first.visit.id}/close`).send({ outcome: 'resolved' });
+    await tech.post(`/api/visits/${first.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     await t.ctx.db.insert(alarms).values([
       { branchId: f.a.id, unitId: u.unit.id, circuit: 1, code: 'LP1', raisedAt: new Date('2026-03-01T10:00:00Z'), source: 'controller' },
       { branchId: f.a.id, unitId: u.unit.id, circuit: 1, code: 'LP1', raisedAt: new Date('2026-03-08T10:00:00Z'), source: 'controller' },

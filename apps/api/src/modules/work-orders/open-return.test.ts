@@ -9,7 +9,7 @@ import { and, eq, notInArray } from 'drizzle-orm';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeWorkOrder, TEST_PASSWORD } from '../../testing/fixtures';
 import { bookings, leakCases, visits, workOrders } from '../../db/schema';
-import { makeBookedVisit } from '../visits/visits.fixtures';
+import { makeBookedVisit, NOT_AVAILABLE } from '../visits/visits.fixtures';
 import { OPEN_RETURN_INDEX } from '../../db/schema';
 
 /** 2026-12-15 09:00 in Chicago (branch A, UTC−6 in December). */
@@ -56,7 +56,7 @@ async function leakCase(p: Place, repairDueDate = '2026-12-20') {
 }
 
 const closeNeedingReturn = (visitId: string, returnNeeds: string[], returnNotes?: string) =>
-  tech.post(`/api/visits/${visitId}/close`).send({ outcome: 'needs_return', returnNeeds, ...(returnNotes ? { returnNotes } : {}) });
+  tech.post(`/api/visits/${visitId}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds, ...(returnNotes ? { returnNotes } : {}) });
 
 /** The unit's return visits that are still open. */
 const openReturns = (p: Place) =>

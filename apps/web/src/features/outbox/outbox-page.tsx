@@ -64,7 +64,8 @@ export default function OutboxPage() {
                     <div className="grid gap-3 lg:grid-cols-2">
                       <section aria-label={`Plain-text part of ${m.subject}`}>
                         <h3 className="mb-1 text-sm font-semibold">Plain text</h3>
-                        <pre className="max-h-96 overflow-auto whitespace-pre-wrap rounded border border-slate-line bg-frost p-3 font-sans text-sm">
+                        {/* Focusable so the scrolling text can be read with the keyboard. */}
+                        <pre tabIndex={0} className="max-h-96 overflow-auto whitespace-pre-wrap rounded border border-slate-line bg-frost p-3 font-sans text-sm">
                           {m.text ?? 'This message has no plain-text part.'}
                         </pre>
                       </section>

@@ -5,36 +5,58 @@ import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
 import {
   causeCodeLabels,
   causeOriginLabels,
+  closeSignatureSchema,
   leakRepairCloseRefusal,
   noteAudienceLabels,
   noteAudiences,
   returnNeedLabels,
   rootCauseChoice,
   returnNeeds,
+  signatureChoiceRefusal,
+  signatureKindLabels,
+  signatureKinds,
   visitOutcomeLabels,
   visitOutcomes,
   workOrderStateLabels,
   type CloseVisitResult,
   type NoteAudience,
   type ReturnNeed,
+  type CloseSignature,
+  type SignatureKind,
   type SummaryMailResult,
   type VisitDetail,
   type VisitOutcome,
 } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
-import { TextAreaField } from '@/components/ui/field';
+import { TextAreaField, TextField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { queueWrite, useOutbox } from '@/lib/visit-outbox';
 import { formatInZone } from '@/lib/format';
 import { useResendSummary } from './visit-api';
+import { SignaturePadField, type DrawnSignature } from './signature-pad';
 
 const outcomeHelp: Record<VisitOutcome, string> = {
   resolved: 'Fixed; nothing more is needed.',
   needs_return: 'More work is needed: a return visit goes to the unplaced queue for the office to book.',
   declined: 'The customer declined the work.',
 };
+
+/** A closed visit's sign-off: the signature with the signer's name and time, or that no one could sign. */
+function SignOff({ visit }: { visit: VisitDetail }) {
+  const sig = visit.signature;
+  if (!sig) return null;
+  if (sig.kind === 'customer_not_available') return <p>Customer not available to sign.</p>;
+  return (
+    <figure className="flex flex-col gap-1">
+      <img src={sig.imageUrl} alt={`Signature of ${sig.signerName}`} className="h-24 w-full max-w-xs rounded border border-slate-line bg-white object-contain" />
+      <figcaption>
+        Signed by <strong>{sig.signerName}</strong>, {formatInZone(sig.signedAt, visit.branch.timeZone)}
+      </figcaption>
+    </figure>
+  );
+}
 
 function SummaryLine({ s, onResend, busy }: { s: SummaryMailResult; onResend(): void; busy: boolean }) {
   return s.sent ? (
@@ -69,6 +91,9 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   const [notesAudience, setNotesAudience] = useState<NoteAudience>('internal');
   const [rootCause, setRootCause] = useState<string>('');
   const [confirmedUnverified, setConfirmedUnverified] = useState(false);
+  const [signOff, setSignOff] = useState<SignatureKind | ''>('');
+  const [signerName, setSignerName] = useState('');
+  const [drawn, setDrawn] = useState<DrawnSignature | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [result, setResult] = useState<CloseVisitResult | null>(null);
   const [summary, setSummary] = useState<SummaryMailResult | null>(null);
@@ -102,6 +127,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
             Closed {visit.closedAt ? formatInZone(visit.closedAt, visit.branch.timeZone) : ''} as <strong>{visit.outcome ? visitOutcomeLabels[visit.outcome] : '—'}</strong>
             {visit.outcome === 'needs_return' && visit.returnNeeds.length > 0 && <> — needs {visit.returnNeeds.map((n) => returnNeedLabels[n].toLowerCase()).join(', ')}</>}.
           </p>
+          <SignOff visit={visit} />
           {result?.returnWorkOrder && (
             <p className="inline-flex items-center gap-1 text-ok">
               <CheckCircle2 className="size-4" aria-hidden="true" />
@@ -152,6 +178,14 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
     );
     if (!choice.ok) return setError(choice.message);
     if (unverified && !confirmedUnverified) return setError(unverified.message);
+    // The sign-off: one of the two choices (`signatureChoiceRefusal`), and a signed one checked by the same schema as the API's.
+    const unsigned = signatureChoiceRefusal(signOff ? { kind: signOff } : null);
+    if (unsigned) return setError(unsigned.message);
+    const asked: CloseSignature =
+      signOff === 'signed' ? { kind: 'signed', signerName, imagePng: drawn?.imagePng ?? '', ...(drawn ? { signedAt: drawn.signedAt } : {}) } : { kind: 'customer_not_available' };
+    const parsed = closeSignatureSchema.safeParse(asked);
+    if (!parsed.success) return setError(parsed.error.issues[0]?.message ?? 'Check the signature.');
+    const signature = parsed.data;
     // Through the outbox: closed on this phone at once, sent after the visit's earlier changes.
     queueWrite(qc, {
       kind: 'close',
@@ -164,6 +198,7 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
         notesAudience,
         rootCauseFindingId: choice.findingId,
         ...(unverified ? { confirmedWithoutVerification: confirmedUnverified } : {}),
+        signature,
       },
     }, { sent: arrived, stopped: (e) => notify(`Visit not closed: ${e.problem?.message ?? 'refused'}`, 'alarm') }).then(
       () => {
@@ -268,6 +303,24 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
             </label>
           </div>
         )}
+        <fieldset>
+          <legend className="mb-1 text-sm font-medium">Customer sign-off</legend>
+          <p className="mb-2 text-sm text-slate">The customer’s on-site contact signs here; the signature and their name go on the service summary.</p>
+          <div className="grid grid-cols-1 gap-2 sm:grid-cols-2">
+            {signatureKinds.map((k) => (
+              <label key={k} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint">
+                <input type="radio" name="signOff" value={k} checked={signOff === k} onChange={() => setSignOff(k)} className="size-5" />
+                {signatureKindLabels[k]}
+              </label>
+            ))}
+          </div>
+          {signOff === 'signed' && (
+            <div className="mt-3 flex flex-col gap-3">
+              <TextField label="Signer’s printed name" autoComplete="off" value={signerName} onChange={(e) => setSignerName(e.target.value)} maxLength={120} />
+              <SignaturePadField label="Signature" onChange={setDrawn} />
+            </div>
+          )}
+        </fieldset>
         {unsaved && (
           <p className="inline-flex items-center gap-1 text-sm text-watch">
             <AlertTriangle className="size-4" aria-hidden="true" /> Some entries are not saved yet; they will not be in the summary. Save them first.
