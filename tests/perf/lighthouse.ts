@@ -52,6 +52,8 @@ export interface LighthouseFigures {
   median: LighthouseRun;
 }
 
+class RetryableLighthouseError extends Error {}
+
 interface Score {
   score: number | null;
 }
@@ -68,7 +70,10 @@ async function once(url: string, cookie: string, chromePath: string): Promise<{ 
     });
     if (!result) throw new Error('Lighthouse returned no result');
     const lhr = result.lhr;
-    if (lhr.runtimeError) throw new Error(`Lighthouse: ${lhr.runtimeError.code}: ${lhr.runtimeError.message}`);
+    if (lhr.runtimeError) {
+      const message = `Lighthouse: ${lhr.runtimeError.code}: ${lhr.runtimeError.message}`;
+      throw lhr.runtimeError.code === 'NO_NAVSTART' ? new RetryableLighthouseError(message) : new Error(message);
+    }
     // A page that ended elsewhere (the sign-in page: the cookie did not take) would measure the wrong screen.
     if (!lhr.finalDisplayedUrl.includes('/day')) throw new Error(`Lighthouse ended on ${lhr.finalDisplayedUrl}, not the Route screen`);
     const categoryScore = (id: string) => {
@@ -120,7 +125,16 @@ export async function runLighthouse(opts: {
   let userAgent = '';
   for (let i = 0; i < opts.runs; i++) {
     opts.log(`lighthouse: ${url} (run ${i + 1} of ${opts.runs}, load average ${loadavg()[0]!.toFixed(2)})`);
-    const r = await once(url, opts.cookie, chromePath);
+    // Lighthouse sometimes loses its trace's start on a busy machine (NO_NAVSTART, "run Lighthouse again"): retried twice.
+    let r: Awaited<ReturnType<typeof once>> | undefined;
+    for (let attempt = 1; !r; attempt++) {
+      try {
+        r = await once(url, opts.cookie, chromePath);
+      } catch (e) {
+        if (attempt >= 3 || !(e instanceof RetryableLighthouseError)) throw e;
+        opts.log(`lighthouse: ${e.message}; again (attempt ${attempt + 1} of 3)`);
+      }
+    }
     runs.push(r.run);
     version = r.version;
     userAgent = r.userAgent;
