@@ -8,6 +8,7 @@
  * follows from timings Lighthouse simulates from what it observed, so a busy CPU lowers it; the load average
  * is printed beside the scores.
  */
+import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { loadavg } from 'node:os';
 import * as chromeLauncher from 'chrome-launcher';
@@ -141,7 +142,9 @@ export async function runLighthouse(opts: {
   }
   const sorted = [...runs].sort((a, b) => a.performance - b.performance);
   const median = sorted[Math.floor((sorted.length - 1) / 2)]!;
-  const chromium = /(?:HeadlessChrome|Chrome)\/([\d.]+)/.exec(userAgent)?.[1] ?? 'unknown';
+  // The user agent carries only the major version (156.0.0.0); the binary says the whole of it.
+  const reported = /Chromium ([\d.]+)/.exec(spawnSync(chromePath, ['--version'], { encoding: 'utf8' }).stdout ?? '')?.[1];
+  const chromium = reported ?? /(?:HeadlessChrome|Chrome)\/([\d.]+)/.exec(userAgent)?.[1] ?? 'unknown';
   return { url, date: opts.date, stops: opts.stops, lighthouseVersion: version, chromium, runs, median };
 }
 
