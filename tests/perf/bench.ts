@@ -23,7 +23,8 @@
  * The mixed-load phase starts its own API process on a throwaway copy of the scenario (it writes), with the
  * clock at the bench's day and the event-loop delay measured inside the API (COILPATH_BENCH_ELD=1).
  * The Lighthouse phase starts the built app on a throwaway copy of the demo data (COILPATH_SEED=demo, the clock
- * at BENCH_LIGHTHOUSE_NOW, default a Monday 07:00) and measures the Route screen as the demo technician in Debian's Chromium.
+ * at BENCH_LIGHTHOUSE_NOW, default a Monday 07:00) and measures the Route screen as the demo technician in
+ * Debian's Chromium (tests/perf/lighthouse.ts).
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { Agent, createServer, request, type Server } from 'node:http';
