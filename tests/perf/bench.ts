@@ -10,6 +10,10 @@
  *   npm run bench -- --no-mixed         without the mixed-load phase (tests/perf/mixed.ts)
  *   npm run bench -- --mixed-seconds 10 the mixed-load phase for 10 s instead of 60
  *   npm run bench -- --only-mixed       the mixed-load phase alone (no bundle sizes, single measures or calc)
+ *   npm run bench -- --no-lighthouse    without the Lighthouse phase (tests/perf/lighthouse.ts)
+ *   npm run bench -- --only-lighthouse  the Lighthouse phase alone (needs no `bench:data`: it runs on the demo)
+ *   npm run bench -- --lighthouse-runs 3
+ *                                       Lighthouse 3 times, reporting the run with the median performance
  *   npm run bench -- --postgres --processes 4
  *                                       the mixed phase on PostgreSQL against 4 API processes (ports 3211–3214)
  *                                       behind a small round-robin proxy on 3210
@@ -18,11 +22,15 @@
  * benchmark database, jobs off; the figures are wall-clock times seen by an HTTP client on the same machine.
  * The mixed-load phase starts its own API process on a throwaway copy of the scenario (it writes), with the
  * clock at the bench's day and the event-loop delay measured inside the API (COILPATH_BENCH_ELD=1).
+ * The Lighthouse phase starts the built app on a throwaway copy of the demo data (COILPATH_SEED=demo, the clock
+ * at BENCH_LIGHTHOUSE_NOW, default a Monday 07:00) and measures the Route screen as the demo technician in
+ * Debian's Chromium (tests/perf/lighthouse.ts).
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { Agent, createServer, request, type Server } from 'node:http';
-import { cpSync, existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { resolve } from 'node:path';
+import { cpSync, existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { cpus, tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import argon2 from 'argon2';
 import autocannon from 'autocannon';
@@ -32,13 +40,20 @@ import { hashOptions } from '../../apps/api/src/auth/password';
 import { Rng } from '../../apps/api/src/db/seed/random';
 import { openDatabase } from '../../apps/api/src/db/client';
 import { benchDataDir, benchMeta, loadBenchScenario, openBenchDatabase } from './load';
+import { lighthouseRows, runLighthouse, type LighthouseFigures } from './lighthouse';
 import { MIXED_NOW, mixedRows, readMixedPlan, runMixed, type LoopDelay, type MixedFigures } from './mixed';
 import { BENCH_END, BENCH_OWNER, BENCH_PASSWORD } from './scenario';
 
 const argv = process.argv.slice(2);
 const args = new Set(argv);
+const onlyLighthouse = args.has('--only-lighthouse');
 const onlyMixed = args.has('--only-mixed');
-const withMixed = onlyMixed || !args.has('--no-mixed');
+if (onlyLighthouse && onlyMixed) throw new Error('--only-lighthouse and --only-mixed exclude each other');
+const withMixed = !onlyLighthouse && (onlyMixed || !args.has('--no-mixed'));
+const withLighthouse = !onlyMixed && (onlyLighthouse || !args.has('--no-lighthouse'));
+const lighthouseRunsArg = argv.indexOf('--lighthouse-runs');
+const lighthouseRuns = lighthouseRunsArg >= 0 ? Number(argv[lighthouseRunsArg + 1]) : 1;
+if (!Number.isInteger(lighthouseRuns) || lighthouseRuns < 1) throw new Error('--lighthouse-runs needs a whole number of runs (at least 1)');
 const mixedSecondsArg = argv.indexOf('--mixed-seconds');
 const mixedSeconds = mixedSecondsArg >= 0 ? Number(argv[mixedSecondsArg + 1]) : 60;
 if (!Number.isFinite(mixedSeconds) || mixedSeconds < 1) throw new Error('--mixed-seconds needs a number of seconds (at least 1)');
@@ -191,11 +206,11 @@ async function stopApi(child: ChildProcess) {
   if (child.exitCode === null) child.kill('SIGKILL');
 }
 
-async function signIn(email: string): Promise<string> {
+async function signIn(email: string, password = BENCH_PASSWORD): Promise<string> {
   const res = await fetch(`${BASE}/api/auth/sign-in`, {
     method: 'POST',
     headers: { 'content-type': 'application/json' },
-    body: JSON.stringify({ email, password: BENCH_PASSWORD }),
+    body: JSON.stringify({ email, password }),
   });
   if (!res.ok) throw new Error(`sign-in of ${email} answered ${res.status}: ${await res.text()}`);
   return res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
@@ -352,12 +367,14 @@ interface ScreenSize {
   charts: boolean;
 }
 
+function buildWeb() {
+  log('web: vite build');
+  const r = spawnSync(process.execPath, ['node_modules/vite/bin/vite.js', 'build', '--logLevel', 'error'], { stdio: 'inherit' });
+  if (r.status !== 0) throw new Error('vite build failed');
+}
+
 function measureWeb(): ScreenSize[] {
-  if (!args.has('--skip-web') || !existsSync('apps/web/dist/.vite/manifest.json')) {
-    log('web: vite build');
-    const r = spawnSync(process.execPath, ['node_modules/vite/bin/vite.js', 'build', '--logLevel', 'error'], { stdio: 'inherit' });
-    if (r.status !== 0) throw new Error('vite build failed');
-  }
+  if (!args.has('--skip-web') || !existsSync('apps/web/dist/.vite/manifest.json')) buildWeb();
   const dist = resolve('apps/web/dist');
   const manifest = JSON.parse(readFileSync(resolve(dist, '.vite/manifest.json'), 'utf8')) as Record<string, ManifestChunk>;
   const gz = new Map<string, number>();
@@ -402,6 +419,66 @@ function measureWeb(): ScreenSize[] {
     }
     return { screen, gzipKb: bytes / 1024, calendar, charts };
   });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Lighthouse: the Route screen as the demo technician (tests/perf/lighthouse.ts)
+// ---------------------------------------------------------------------------------------------
+
+/** The demo's clock for the Lighthouse phase: a Monday morning, so the demo technician has a day of stops. */
+const LIGHTHOUSE_NOW = process.env.BENCH_LIGHTHOUSE_NOW ?? '2026-12-07T07:00:00-06:00';
+const DEMO_TECHNICIAN = 'tech@coilpath.example';
+const DEMO_PASSWORD = 'coilpath-demo';
+
+/**
+ * The built app on a throwaway copy of the demo (loaded at start for LIGHTHOUSE_NOW), an HTTP sign-in as the demo
+ * technician, then Lighthouse on `/day` — or, when the technician's today has no stops, on the first day after
+ * it that has (`/day?date=…`, within a week), as the browser journeys do.
+ */
+async function lighthouseOnRoute(): Promise<LighthouseFigures> {
+  if (!existsSync('apps/web/dist/index.html')) buildWeb();
+  const dir = mkdtempSync(join(tmpdir(), 'coilpath-lighthouse-'));
+  try {
+    log(`lighthouse: starting the built app on the demo data (clock at ${LIGHTHOUSE_NOW})`);
+    const child = await startApi({ COILPATH_DATA_DIR: dir, COILPATH_SEED: 'demo', COILPATH_NOW: LIGHTHOUSE_NOW });
+    try {
+      const cookie = await signIn(DEMO_TECHNICIAN, DEMO_PASSWORD);
+      const dayOf = async (date?: string) => {
+        const res = await fetch(`${BASE}/api/day${date ? `?date=${date}` : ''}`, { headers: { cookie } });
+        if (!res.ok) throw new Error(`GET /api/day answered ${res.status}: ${(await res.text()).slice(0, 300)}`);
+        return (await res.json()) as { date: string; stops: unknown[] };
+      };
+      const today = await dayOf();
+      let day = today;
+      for (let i = 1; i < 7 && day.stops.length === 0; i++) day = await dayOf(shiftDay(today.date, i));
+      if (day.stops.length === 0) throw new Error(`the demo technician has no stops from ${today.date} for a week`);
+      const path = day.date === today.date ? '/day' : `/day?date=${day.date}`;
+      return await runLighthouse({ base: BASE, path, date: day.date, stops: day.stops.length, cookie, runs: lighthouseRuns, log });
+    } finally {
+      await stopApi(child);
+    }
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+function lighthouseMeasures(f: LighthouseFigures) {
+  const head = ['measure (Lighthouse, Route, mobile)', 'budget', 'value', 'result'];
+  const table = lighthouseRows(f);
+  const load = f.median.loadAverage.map((v) => v.toFixed(2)).join(', ');
+  console.log(
+    `\nLighthouse ${f.lighthouseVersion} in Chromium ${f.chromium}, default mobile profile (simulated slow 4G, 4× CPU slowdown), ` +
+      `as the demo technician: ${f.url} (${f.date}, ${f.stops} stop${f.stops === 1 ? '' : 's'}); ` +
+      `${f.runs.length === 1 ? 'one run' : `the run with the median performance of ${f.runs.length} (performance ${f.runs.map((r) => r.performance.toFixed(2)).join(', ')})`}. ` +
+      `Load average (1, 5, 15 min) at the end of the run: ${load} on ${cpus().length} cores; Lighthouse's benchmark index ${f.median.benchmarkIndex ?? '—'}. ` +
+      'The performance budget is for a quiet machine.\n',
+  );
+  printTable(head, table, (i) => i === 2);
+  if (f.median.failures.length) {
+    console.log('\nAccessibility audits that fail:');
+    for (const a of f.median.failures) console.log(`- ${a.id} (${a.title}): ${a.nodes.join(' · ') || 'no node named'}`);
+  }
+  return [head, ...table];
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -585,31 +662,38 @@ function mixedMeasures(mixed: { pglite: MixedFigures | null; postgres: MixedFigu
 }
 
 async function main() {
-  if (!existsSync(resolve(benchDataDir(), 'pg'))) {
-    console.error('No benchmark data: run `npm run bench:data` first (about 2–3 minutes).');
+  if (!onlyLighthouse && !existsSync(resolve(benchDataDir(), 'pg'))) {
+    console.error('No benchmark data: run `npm run bench:data` first (about 2–3 minutes), or `npm run bench -- --only-lighthouse`.');
     process.exit(1);
   }
   const started = new Date().toISOString();
-  const web = args.has('--no-web') || onlyMixed ? [] : measureWeb();
-  const pglite = onlyMixed ? null : await apiOn('pglite');
+  const singles = !onlyMixed && !onlyLighthouse;
+  const web = args.has('--no-web') || !singles ? [] : measureWeb();
+  // Before the API phases and the mixed load: the page is measured on the freshest build and the quietest machine.
+  const lighthouse = withLighthouse ? await lighthouseOnRoute() : null;
+  const pglite = singles ? await apiOn('pglite') : null;
   const mixed: { pglite: MixedFigures | null; postgres: MixedFigures | null } = { pglite: null, postgres: null };
   if (withMixed) mixed.pglite = await mixedOn('pglite');
   let postgres: ApiFigures | null = null;
-  if (pgUrl) {
+  if (pgUrl && (singles || withMixed)) {
     if (args.has('--postgres')) startPostgres();
     await ensurePostgresScenario();
-    if (!onlyMixed) postgres = await apiOn('postgres');
+    if (singles) postgres = await apiOn('postgres');
     if (withMixed) mixed.postgres = await mixedOn('postgres');
   }
-  const calc = onlyMixed ? null : await measureCalc();
+  const calc = singles ? await measureCalc() : null;
 
-  console.log(`\nCoilpath benchmark, ${started} (${process.platform}, ${(await import('node:os')).cpus().length} cores, Node ${process.version})`);
-  console.log(`Scenario: data/bench, history to ${BENCH_END}; API over HTTP on 127.0.0.1; PG = PostgreSQL${pgUrl ? '' : ' (not run: add --postgres)'}\n`);
+  console.log(`\nCoilpath benchmark, ${started} (${process.platform}, ${cpus().length} cores, Node ${process.version})`);
+  if (!onlyLighthouse) console.log(`Scenario: data/bench, history to ${BENCH_END}; API over HTTP on 127.0.0.1; PG = PostgreSQL${pgUrl ? '' : ' (not run: add --postgres)'}\n`);
   const table = pglite && calc ? singleMeasures(pglite, postgres, calc, web) : null;
+  const lighthouseTable = lighthouse ? lighthouseMeasures(lighthouse) : null;
   const mixedTable = withMixed ? mixedMeasures(mixed) : null;
 
   mkdirSync('bench', { recursive: true });
-  writeFileSync('bench/results.json', `${JSON.stringify({ started, end: BENCH_END, pglite, postgres, calc, web, table, mixedSeconds: withMixed ? mixedSeconds : null, mixed, mixedTable }, null, 2)}\n`);
+  writeFileSync(
+    'bench/results.json',
+    `${JSON.stringify({ started, end: BENCH_END, pglite, postgres, calc, web, table, lighthouse, lighthouseTable, mixedSeconds: withMixed ? mixedSeconds : null, mixed, mixedTable }, null, 2)}\n`,
+  );
   console.log('Written to bench/results.json.');
 }
 
