@@ -122,7 +122,7 @@ async function exportDefectCsv(ctx: JourneyContext, page: Page) {
   const lines = text.split(/\r?\n/).filter((l) => l.length > 0);
   assert.equal(
     lines[0],
-    'work_order,kind,branch,site,unit,make,model,causes,opened_at,visits,labour_hours,labour_cost,refrigerant_lb,refrigerant_cost,cost,currency,claim_status,claim_amount,claim_reference',
+    'work_order,kind,branch,site,unit,make,model,causes,opened_at,visits,labour_hours,labour_cost,refrigerant_lb,refrigerant_cost,cost,currency,claim_status,claim_amount,claim_difference,claim_reference',
     'the CSV starts with its header row',
   );
   const rows = lines.slice(1);
