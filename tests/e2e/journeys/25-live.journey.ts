@@ -38,11 +38,30 @@ async function signIn(ctx: JourneyContext, page: Page, email: string, home = '/r
 
 /** Moves the board a week at a time until the cell exists (at most four weeks). */
 async function showCell(page: Page, testId: string) {
+  // Step week by week towards the cell's date (earlier or later than the week shown), each time waiting for the
+  // new week's cells before looking again.
   const title = page.locator('h2[aria-live="polite"]');
-  for (let i = 0; i < 4 && (await page.getByTestId(testId).count()) === 0; i++) {
+  const target = testId.slice(-10);
+  const shownDays = () =>
+    page.locator('[data-testid^="board-"]').evaluateAll((els) =>
+      els.map((e) => e.getAttribute('data-testid')!.slice(-10)).filter((d) => /^\d{4}-\d{2}-\d{2}$/.test(d)).sort(),
+    );
+  for (let i = 0; i < 8 && (await page.getByTestId(testId).count()) === 0; i++) {
+    await page.locator('[data-testid^="board-"]').first().waitFor();
+    const days = await shownDays();
+    if (days.includes(target)) break;
     const before = await title.innerText();
-    await page.getByRole('button', { name: 'Next week' }).click();
-    await page.waitForFunction((t) => document.querySelector('h2[aria-live="polite"]')?.textContent !== t, before);
+    await page.getByRole('button', { name: target < days[0]! ? 'Previous week' : 'Next week' }).click();
+    // The title names the new week and the cells are the new week's (their earliest day moved).
+    await page.waitForFunction(
+      ([t, first]) => {
+        const days = Array.from(document.querySelectorAll('[data-testid^="board-"]'), (e) => e.getAttribute('data-testid')!.slice(-10))
+          .filter((d) => /^\d{4}-\d{2}-\d{2}$/.test(d))
+          .sort();
+        return document.querySelector('h2[aria-live="polite"]')?.textContent !== t && days.length > 0 && days[0] !== first;
+      },
+      [before, days[0]] as const,
+    );
   }
   assert.equal(await page.getByTestId(testId).count(), 1, `the board reaches ${testId}`);
 }
@@ -145,7 +164,6 @@ export async function run(ctx: JourneyContext) {
   const stopDay = dateInZone(new Date(stop.startAt), BRANCH_ZONE);
   const stopCell = `board-${techId}-${stopDay}`;
   for (const page of [first, second]) {
-    await page.getByRole('button', { name: 'Today', exact: true }).click();
     await showCell(page, stopCell);
     await page.getByTestId(stopCell).locator(`[data-chip="${stop.id}"]`).waitFor();
   }
