@@ -57,3 +57,26 @@ export async function visitEveryScreen(ctx: JourneyContext, page: Page, labels: 
     await ctx.screen(page, label.toLowerCase());
   }
 }
+
+/**
+ * The keys of the answers the phone keeps in IndexedDB (apps/web/src/lib/query-persist.ts), as JSON text; '' before
+ * any. Runs in the page: `page.evaluate(keptKeys)`.
+ */
+export const keptKeys = () =>
+  new Promise<string>((resolve) => {
+    const open = indexedDB.open('coilpath');
+    open.onerror = () => resolve('');
+    open.onsuccess = () => {
+      const db = open.result;
+      if (!db.objectStoreNames.contains('kept-answers')) {
+        db.close();
+        return resolve('');
+      }
+      const get = db.transaction('kept-answers').objectStore('kept-answers').get('coilpath.query-cache');
+      get.onerror = () => resolve('');
+      get.onsuccess = () => {
+        db.close();
+        resolve(typeof get.result === 'string' ? (get.result.match(/"queryKey":\[[^\]]*\]/g) ?? []).join(' ') : '');
+      };
+    };
+  });

@@ -10,33 +10,13 @@ import type { Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { phone } from '../harness';
 import { addDays, dateInZone } from '../handoff';
-import { signInThroughForm } from '../support';
+import { signInThroughForm, keptKeys } from '../support';
 
 export const title = 'Technician offline';
 
 /** The demo technician works in the Chicago branch (apps/api/src/db/seed/catalogue.ts). */
 const BRANCH_ZONE = 'America/Chicago';
 const routeHeading = (page: Page) => page.getByRole('heading', { level: 1, name: /^(My Day|Route)$/ });
-
-/** The keys of the answers the phone keeps in IndexedDB (apps/web/src/lib/query-persist.ts), as JSON text; '' before any. */
-const keptKeys = () =>
-  new Promise<string>((resolve) => {
-    const open = indexedDB.open('coilpath');
-    open.onerror = () => resolve('');
-    open.onsuccess = () => {
-      const db = open.result;
-      if (!db.objectStoreNames.contains('kept-answers')) {
-        db.close();
-        return resolve('');
-      }
-      const get = db.transaction('kept-answers').objectStore('kept-answers').get('coilpath.query-cache');
-      get.onerror = () => resolve('');
-      get.onsuccess = () => {
-        db.close();
-        resolve(typeof get.result === 'string' ? (get.result.match(/"queryKey":\[[^\]]*\]/g) ?? []).join(' ') : '');
-      };
-    };
-  });
 
 export async function run(ctx: JourneyContext): Promise<void> {
   const page = await ctx.launch(phone);

@@ -17,7 +17,7 @@ import { request, type Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { phone } from '../harness';
 import { addDays, dateInZone } from '../handoff';
-import { DEMO_PASSWORD, demo, signInThroughForm } from '../support';
+import { DEMO_PASSWORD, demo, signInThroughForm, keptKeys } from '../support';
 
 export const title = 'Technician works a stop offline';
 
@@ -25,26 +25,6 @@ export const title = 'Technician works a stop offline';
 const BRANCH_ZONE = 'America/Chicago';
 const routeHeading = (page: Page) => page.getByRole('heading', { level: 1, name: 'Route' });
 const notice = (page: Page, text: string | RegExp) => page.locator('[role="status"], [role="alert"]').filter({ hasText: text }).first();
-
-/** The query keys the phone keeps in IndexedDB (apps/web/src/lib/query-persist.ts), as JSON text; '' before any. */
-const keptKeys = () =>
-  new Promise<string>((resolve) => {
-    const open = indexedDB.open('coilpath');
-    open.onerror = () => resolve('');
-    open.onsuccess = () => {
-      const db = open.result;
-      if (!db.objectStoreNames.contains('kept-answers')) {
-        db.close();
-        return resolve('');
-      }
-      const get = db.transaction('kept-answers').objectStore('kept-answers').get('coilpath.query-cache');
-      get.onerror = () => resolve('');
-      get.onsuccess = () => {
-        db.close();
-        resolve(typeof get.result === 'string' ? (get.result.match(/"queryKey":\[[^\]]*\]/g) ?? []).join(' ') : '');
-      };
-    };
-  });
 
 interface VisitDto {
   status: string;

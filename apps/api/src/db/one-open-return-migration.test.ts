@@ -4,40 +4,22 @@
  * The migrations are applied in two steps (those before it from a copy of the folder, then the rest), on PGlite or,
  * with `DATABASE_URL`, on PostgreSQL.
  */
-import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq, inArray, sql } from 'drizzle-orm';
-import { migrate as migratePglite } from 'drizzle-orm/pglite/migrator';
-import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
-import { migrationsFolder, type Database } from './client';
+import type { Database } from './client';
 import { bookings, leakCases, visits, workOrders } from './schema';
 import { makeSiteWithUnit, makeUser, makeWorkOrder } from '../testing/fixtures';
-import { openTestDatabase } from '../testing/harness';
+import { databaseBefore } from '../testing/before-migration';
 
 let database: Database;
-let before: string;
-const migrate = (folder: string) =>
-  database.kind === 'pglite' ? migratePglite(database.db, { migrationsFolder: folder }) : migratePg(database.db as never, { migrationsFolder: folder });
+let before: Awaited<ReturnType<typeof databaseBefore>>;
 
 beforeAll(async () => {
   // The migrations before this one, as a database of the previous release has them.
-  before = mkdtempSync(join(tmpdir(), 'coilpath-before-one-open-return-'));
-  cpSync(migrationsFolder, before, { recursive: true });
-  const journalPath = join(before, 'meta', '_journal.json');
-  const journal = JSON.parse(readFileSync(journalPath, 'utf8')) as { entries: { idx: number; tag: string }[] };
-  const mine = journal.entries.find((e) => e.tag.endsWith('_one-open-return'));
-  if (!mine) throw new Error('no one-open-return migration in the journal');
-  journal.entries = journal.entries.filter((e) => e.idx < mine.idx);
-  writeFileSync(journalPath, JSON.stringify(journal));
-  database = await openTestDatabase({ migrate: false });
-  await migrate(before);
+  before = await databaseBefore('_one-open-return');
+  database = before.database;
 });
-afterAll(async () => {
-  await database?.close();
-  if (before) rmSync(before, { recursive: true, force: true });
-});
+afterAll(() => before?.close());
 
 describe('migration 0010 (one open return visit per unit)', () => {
   it('folds the extras into the one furthest along, keeps their needs, deadline and priority, and then refuses a second', async () => {
@@ -84,7 +66,7 @@ describe('migration 0010 (one open return visit per unit)', () => {
     // Unit r: one open return, untouched.
     const r1 = await ret(r, { state: 'unplaced', complaint: 'Alone' });
 
-    await migrate(migrationsFolder);
+    await before.migrateRest();
 
     const byId = async (id: string) => (await db.select().from(workOrders).where(eq(workOrders.id, id)))[0]!;
     const kept = await byId(b.id);

@@ -5,38 +5,20 @@
  * The migrations are applied in two steps (those before it from a copy of the folder, then the rest), on PGlite or,
  * with `DATABASE_URL`, on PostgreSQL.
  */
-import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sql } from 'drizzle-orm';
-import { migrate as migratePglite } from 'drizzle-orm/pglite/migrator';
-import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
-import { migrationsFolder, type Database } from './client';
+import type { Database } from './client';
 import { makeSiteWithUnit, makeUser, makeWorkOrder } from '../testing/fixtures';
-import { openTestDatabase } from '../testing/harness';
+import { databaseBefore } from '../testing/before-migration';
 
 let database: Database;
-let before: string;
-const migrate = (folder: string) =>
-  database.kind === 'pglite' ? migratePglite(database.db, { migrationsFolder: folder }) : migratePg(database.db as never, { migrationsFolder: folder });
+let before: Awaited<ReturnType<typeof databaseBefore>>;
 
 beforeAll(async () => {
-  before = mkdtempSync(join(tmpdir(), 'coilpath-before-root-cause-'));
-  cpSync(migrationsFolder, before, { recursive: true });
-  const journalPath = join(before, 'meta', '_journal.json');
-  const journal = JSON.parse(readFileSync(journalPath, 'utf8')) as { entries: { idx: number; tag: string }[] };
-  const mine = journal.entries.find((e) => e.tag.endsWith('_root-cause-and-summary'));
-  if (!mine) throw new Error('no root-cause-and-summary migration in the journal');
-  journal.entries = journal.entries.filter((e) => e.idx < mine.idx);
-  writeFileSync(journalPath, JSON.stringify(journal));
-  database = await openTestDatabase({ migrate: false });
-  await migrate(before);
+  before = await databaseBefore('_root-cause-and-summary');
+  database = before.database;
 });
-afterAll(async () => {
-  await database?.close();
-  if (before) rmSync(before, { recursive: true, force: true });
-});
+afterAll(() => before?.close());
 
 type Rows<T> = { rows: T[] };
 const one = async <T>(q: ReturnType<typeof sql>) => ((await database.db.execute(q)) as unknown as Rows<T>).rows;
@@ -74,7 +56,7 @@ describe('migration 0017 (root cause, note audience, contractor details)', () =>
     await finding('00000000-0000-4000-8000-000000000004', v3, 'airflow', 'wear', '2026-03-04T09:00:00Z');
     const [old] = await one<{ cause_code: string }>(sql`SELECT cause_code FROM service_call_facts WHERE job_id = ${j1.id}`);
 
-    await migrate(migrationsFolder);
+    await before.migrateRest();
 
     const marks = await one<{ id: string; root_cause_finding_id: string | null; notes_audience: string }>(
       sql`SELECT id, root_cause_finding_id, notes_audience FROM visits ORDER BY closed_at NULLS LAST`,
