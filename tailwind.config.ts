@@ -1,7 +1,7 @@
 import type { Config } from 'tailwindcss';
 
 /**
- * Coilpath's theme tokens (shared/UI.md). Technician colours meet WCAG AA with white text; each tint
+ * Coilpath's theme tokens (docs/UI.md). Technician colours meet WCAG AA with white text; each tint
  * is light enough that its tone's colour as small text on it meets 4.5:1 (checked by axe in the journeys).
  */
 export default {

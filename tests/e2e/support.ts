@@ -7,7 +7,7 @@ import type { JourneyContext } from './harness';
 
 export const DEMO_PASSWORD = process.env.COILPATH_PASSWORD ?? 'coilpath-demo';
 
-/** The demo sign-ins (DESIGN §8; printed by the server at start). */
+/** The demo sign-ins (docs/DESIGN.md §8; printed by the server at start). */
 export const demo: Record<Role, string> = {
   owner: 'owner@coilpath.example',
   branch_manager: 'manager@coilpath.example',

@@ -4,7 +4,7 @@
  * accessibility, in Debian's Chromium (`CHROME_PATH`, default /usr/bin/chromium). Lighthouse 12 (13 needs
  * Node 22.19). The session cookie, from an HTTP sign-in, goes with every request through `extraHeaders`.
  *
- * Budgets (issue 17): performance ≥ 0.9 and accessibility 1.0 — on a quiet machine. The performance score
+ * Budgets: performance ≥ 0.9 and accessibility 1.0 — on a quiet machine. The performance score
  * follows from timings Lighthouse simulates from what it observed, so a busy CPU lowers it; the load average
  * is printed beside the scores.
  */

@@ -14,7 +14,7 @@
  *   pressure against geometric altitude: 500 m 95 461 Pa, 850 m 91 523 Pa, 2,500 m 74 691 Pa, as
  *   quoted from the 1976 publication in AeroPython/scikit-aero tests/test_coesa.py [S].
  * - R-410A dew points: CoolProp 8.0.0 reference points in tests/reference/data/refrigerant-saturation.json
- *   (a copy of shared/reference/refrigerant-saturation.json), at a 14.696 psia atmosphere.
+ *   (a copy of tests/reference/data/refrigerant-saturation.json), at a 14.696 psia atmosphere.
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';

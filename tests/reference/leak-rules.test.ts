@@ -1,6 +1,6 @@
 /**
  * Reference check: Coilpath's leak-rate and leak-repair logic against the US EPA rules as extracted
- * in shared/reference/LEAK-RULES.md. Each expectation names the section and that file's tag:
+ * in docs/reference/LEAK-RULES.md. Each expectation names the section and that file's tag:
  * [P] read in an official text or mirror, [S] seen only in a secondary source, [M] from memory.
  * LEAK-RULES.md §3: no EPA worked numeric example exists, so the checks follow from the wording.
  */

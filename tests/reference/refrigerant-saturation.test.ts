@@ -1,6 +1,6 @@
 /**
  * Reference check: Coilpath's saturation tables against the CoolProp 8.0.0 reference points in
- * shared/reference/refrigerant-saturation.json (PropsSI, HEOS backend; the file's `coolprop_fluid`
+ * tests/reference/data/refrigerant-saturation.json (PropsSI, HEOS backend; the file's `coolprop_fluid`
  * names the fluid used for each refrigerant). Every value compared below comes from that file.
  * Accuracy required: ±0.3 °F at every point, bubble and dew, psig/°F and kPag/°C.
  */
@@ -22,7 +22,7 @@ interface RefFile {
   refrigerants: Record<string, { coolprop_fluid: string; composition_mass: Record<string, number> | null; points: RefPoint[] }>;
 }
 
-// A verbatim copy of the project's reference file (shared/reference/refrigerant-saturation.json,
+// A verbatim copy of the project's reference file (tests/reference/data/refrigerant-saturation.json,
 // CoolProp 8.0.0) is kept in tests/reference/data so the check runs from any checkout.
 const file = new URL('./data/refrigerant-saturation.json', import.meta.url);
 const ref = JSON.parse(readFileSync(file, 'utf8')) as RefFile;

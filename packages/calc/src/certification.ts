@@ -1,6 +1,6 @@
 /**
  * EPA Section 608 technician certification (40 CFR 82.161 — section number from memory, see
- * shared/reference/TRADE-FACTS.md): Type I small appliances, Type II high-pressure appliances (most
+ * docs/reference/TRADE-FACTS.md): Type I small appliances, Type II high-pressure appliances (most
  * commercial comfort cooling and refrigeration), Type III low-pressure appliances (some chillers),
  * Universal all three.
  */

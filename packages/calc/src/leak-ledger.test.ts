@@ -1,5 +1,5 @@
 /**
- * The refrigerant ledger. Rule values are those of LEAK_RULES (shared/reference/LEAK-RULES.md):
+ * The refrigerant ledger. Rule values are those of LEAK_RULES (docs/reference/LEAK-RULES.md):
  * thresholds 82.157(c)(2) [P] (20/30/10) and pre-2019 35/35/15/15 [P]; repair 30 days and 120 with
  * an industrial-process shutdown, 82.157(d) [M] / 84.106(d) [S]; chronic leaker 125 %, 82.157(j) [S]
  * and EPA fact sheet P100PI79 [P]; Part 84 from 2026-01-01, 15 lb, residential and light-commercial

@@ -4,7 +4,7 @@
  * chronic-leaker years. Also `leakRate` and `leakRepairObligation`, the one-calculation views other
  * code uses, computed by the same core.
  *
- * Sources as in `leak-rules.ts` (shared/reference/LEAK-RULES.md, tags [P]/[S]/[M]):
+ * Sources as in `leak-rules.ts` (docs/reference/LEAK-RULES.md, tags [P]/[S]/[M]):
  * - 82.157(b) [P]: the rate is calculated every time refrigerant is added, unless the addition is made
  *   immediately after a retrofit or the installation of a new appliance, or is a seasonal variance.
  * - 82.152 "leak rate" [S; step wording M]: annualizing — lb added to return to full charge, in one

@@ -4,7 +4,7 @@
  * and the choice of the rule in force ({@link ruleInForce}). The computations over a unit's
  * refrigerant ledger (leak rate, obligations, chronic-leaker years) are in `leak-ledger.ts`.
  *
- * Source extract: shared/reference/LEAK-RULES.md, whose tags are kept here: [P] read in an official
+ * Source extract: docs/reference/LEAK-RULES.md, whose tags are kept here: [P] read in an official
  * text or a mirror, [S] seen only in a secondary source, [M] from memory. Check the current eCFR
  * before relying on an [S] or [M] item in the field.
  */

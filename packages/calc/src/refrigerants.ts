@@ -54,7 +54,7 @@ export interface RefrigerantInfo {
 }
 
 /**
- * Refrigerant facts. Sources (see shared/reference/LEAK-RULES.md §4):
+ * Refrigerant facts. Sources (see docs/reference/LEAK-RULES.md §4):
  * - Safety groups: ASHRAE 34 as cited by a refrigerant reference page [S1] or drawdown.org [S2];
  *   R-448A [M]; R-507A A1 and R-1234yf A2L per LEAK-RULES.md's notes.
  * - GWP: AR4 component values of 42 U.S.C. 7675(c)(1) and (e)(1)(D)(i) [P]

@@ -4,7 +4,7 @@ import { causeCodeLabels, causeCodeSchema, warrantyClaimStatusSchema, workOrderK
 import type { ModelAlertRef } from './work-orders';
 
 /**
- * Fix Quality (DESIGN §3): first-time fix, callbacks, causes, factory-defect costs and model alerts.
+ * Fix Quality (docs/DESIGN.md §3): first-time fix, callbacks, causes, factory-defect costs and model alerts.
  *
  * Definitions (the same as `fixQuality` in @coilpath/calc, shown on screen in plain words):
  * - a job is a `service_call` work order; its first visit is its earliest closed visit;

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 
 /**
- * Units of refrigerant-circuit readings (DESIGN §5, UI.md "Units and numbers"). A branch reads in
+ * Units of refrigerant-circuit readings (docs/DESIGN.md §5, docs/UI.md "Units and numbers"). A branch reads in
  * one system: imperial (psig, °F) or SI (kPa(g), °C). Readings are stored in psig/°F; a body that
  * carries readings states its units, and every reading the API answers states the units of its values.
  */

@@ -7,7 +7,7 @@ import { requiredCertificationSchema } from './work-orders';
 export const maxBookingMinutes = 16 * 60;
 
 /**
- * The booking rules a dispatcher or manager may book against with a stated reason (DESIGN §3
+ * The booking rules a dispatcher or manager may book against with a stated reason (docs/DESIGN.md §3
  * "Override"). Checked by `bookingBreaches` in `@coilpath/calc`, which says what each one is.
  */
 export const bookingRules = ['skill', 'certification', 'working_hours', 'due_time'] as const;

@@ -22,7 +22,7 @@ import {
 import { refrigerantEventReasonLabels } from './visits';
 
 /**
- * Unit file (DESIGN §3, `/units/:id`): everything known about one unit. Readable by the owner, the unit
+ * Unit file (docs/DESIGN.md §3, `/units/:id`): everything known about one unit. Readable by the owner, the unit
  * branch's managers and dispatchers, and technicians who have (or had) a visit or booking on the unit.
  */
 

@@ -1,6 +1,6 @@
 import { z } from 'zod';
 
-/** Roles of DESIGN §2. */
+/** Roles of docs/DESIGN.md §2. */
 export const roles = ['owner', 'branch_manager', 'dispatcher', 'technician'] as const;
 export const roleSchema = z.enum(roles);
 export type Role = z.infer<typeof roleSchema>;

@@ -75,7 +75,7 @@ export interface OpenOptions {
 export async function openDatabase(opts: OpenOptions = {}): Promise<Database> {
   let database: Database;
   if (opts.databaseUrl) {
-    // Short API queries: JIT costs more than it saves (measured, STACK.md). Set as a startup option of
+    // Short API queries: JIT costs more than it saves (measured with the bench: a planning-time cost on every short query). Set as a startup option of
     // every connection, so no query can race ahead of it.
     const pool = new pg.Pool({ connectionString: opts.databaseUrl, max: 10, options: '-c jit=off' });
     // An idle connection the server ends (restart, admin shutdown) emits 'error' on the pool; without a

@@ -1,5 +1,5 @@
 /**
- * Coilpath's data model (DESIGN §4). All instants are `timestamptz` (UTC); calendar dates are `date`
+ * Coilpath's data model (docs/DESIGN.md §4). All instants are `timestamptz` (UTC); calendar dates are `date`
  * strings; column names are snake_case (drizzle `casing`).
  */
 import { sql } from 'drizzle-orm';

@@ -48,7 +48,7 @@ function inOrder(rows: Rows): [Parameters<Tx['insert']>[0], object[]][] {
 }
 
 /**
- * Loads the invented demo scenario (DESIGN §8). Deterministic apart from the anchoring date and
+ * Loads the invented demo scenario (docs/DESIGN.md §8). Deterministic apart from the anchoring date and
  * idempotent: a database that already holds demo data (or any branch) is left as it is.
  */
 export async function seedDemo(db: Db, opts: SeedOptions = {}): Promise<{ seeded: boolean }> {

@@ -10,7 +10,7 @@ function addressText(a: AddressObject | AddressObject[] | undefined): string {
 }
 
 /**
- * The local SMTP sink (DESIGN §7): listens on 127.0.0.1, accepts every message and files it in
+ * The local SMTP sink (docs/DESIGN.md §7): listens on 127.0.0.1, accepts every message and files it in
  * `mail_outbox` (attachments behind the storage interface), which `/outbox` shows.
  */
 export async function startMailSink(db: Db, storage: Storage): Promise<{ url: string; port: number; close(): Promise<void> }> {

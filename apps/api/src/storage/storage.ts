@@ -14,7 +14,7 @@ export class StoredFileMissing extends Error {
   }
 }
 
-/** File storage behind a small interface (DESIGN §7): names are generated, never the client's. */
+/** File storage behind a small interface (docs/DESIGN.md §7): names are generated, never the client's. */
 export interface Storage {
   put(content: Buffer, meta: { contentType: string }): Promise<string>;
   /** The file's bytes; `StoredFileMissing` when the key is well formed but nothing is stored under it. */

@@ -4,7 +4,7 @@ import { createStore } from 'idb-keyval';
 import { ApiError } from './api-client';
 import { classify, idbOutboxStore, memoryOutboxStore, Outbox, waitingText, type OutboxWrite } from './outbox';
 
-// The rules checked here are Coilpath's own (issue 17: in order, exactly once, refusals kept with their
+// The rules checked here are Coilpath's own (in order, exactly once, refusals kept with their
 // reason, conflicts told); the HTTP status meanings are RFC 9110 §15 (4xx client error, 5xx server error,
 // 408 Request Timeout, 429 from RFC 6585 §4).
 

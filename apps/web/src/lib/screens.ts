@@ -3,7 +3,7 @@ import type { LucideIcon } from 'lucide-react';
 import { CalendarRange, ClipboardCheck, Eye, FileSignature, Gauge, MapPinned, Route, Users, Mail, Building2 } from 'lucide-react';
 
 /**
- * The screens of DESIGN §3, with the roles that may use them, in the order of the day's work.
+ * The screens of docs/DESIGN.md §3, with the roles that may use them, in the order of the day's work.
  * The API enforces the same rules; this only decides what the navigation shows.
  */
 export const screens = [

@@ -217,7 +217,7 @@ export interface ModelDef {
   installYears: [number, number];
 }
 
-/** The rooftop model with the factory harness defect (DESIGN §8). */
+/** The rooftop model with the factory harness defect (docs/DESIGN.md §8). */
 export const DEFECT_MAKE = 'Quellmark';
 export const DEFECT_MODEL = 'QRX-20';
 

@@ -75,7 +75,7 @@ describe('forgot-password', () => {
   });
 
   it('takes as long for an unknown address as for a real one (median of 25 each, ratio under 1.5)', async () => {
-    // The issue's check (issue 16): the answer must not reveal, by its time, whether the account exists.
+    // The answer must not reveal, by its time, whether the account exists.
     // The client here shares the server's thread, so the job that runs after the answer would be timed with it
     // (a remote client has the answer by then): the queue is held while a request is timed and the job runs
     // after the stopwatch stops. Samples alternate, the first ones warm up, and medians are compared so that

@@ -16,7 +16,7 @@ import { onlySent } from './list-query';
 /** Offices only: technicians read unit history through their own routes. */
 const office = requireRole('owner', 'branch_manager', 'dispatcher');
 
-/** `/api/customers` — branch-scoped (DESIGN §2). */
+/** `/api/customers` — branch-scoped (docs/DESIGN.md §2). */
 export function customersRoutes(ctx: AppContext): Router {
   const r = Router();
   r.use(office);
@@ -30,7 +30,7 @@ export function customersRoutes(ctx: AppContext): Router {
   return r;
 }
 
-/** `/api/sites` — branch-scoped (DESIGN §2). */
+/** `/api/sites` — branch-scoped (docs/DESIGN.md §2). */
 export function sitesRoutes(ctx: AppContext): Router {
   const r = Router();
   r.use(office);

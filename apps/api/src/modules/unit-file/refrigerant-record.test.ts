@@ -1,6 +1,6 @@
 /**
  * GET /api/units/:id/refrigerant-record over a hand-worked history. Every expected value is worked by
- * hand from the rule text in shared/reference/LEAK-RULES.md (section and tag beside each):
+ * hand from the rule text in docs/reference/LEAK-RULES.md (section and tag beside each):
  *
  * Unit: R-22 (HCFC, ozone-depleting), full charge 100 lb, comfort cooling → 40 CFR 82.157 applies
  * (82.157(a) [P]: 50 lb or more of class I/II refrigerant), threshold 10 % (82.157(c)(2) [P]).

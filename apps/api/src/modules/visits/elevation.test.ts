@@ -10,7 +10,7 @@
  *   exponential in height over 400 m, so log-linear interpolation gives 1,609 m: 83.4306 kPa (the
  *   interpolation's own error is under 1 Pa; a 1,609 m elevation as geopotential height is within 0.5 m).
  * - R-410A dew point 36.93 °F at 111.5 psig against 14.696 psia, i.e. at 126.196 psia: CoolProp 8.0.0,
- *   shared/reference/refrigerant-saturation.json. 1 psi = 6.894 757 kPa (NIST SP 811, B.8).
+ *   tests/reference/data/refrigerant-saturation.json. 1 psi = 6.894 757 kPa (NIST SP 811, B.8).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';

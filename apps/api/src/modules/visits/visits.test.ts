@@ -99,7 +99,7 @@ describe('PATCH /api/visits/:id (state buttons)', () => {
 describe('POST /api/visits/:id/readings', () => {
   it('stores gauge and controller values and computes saturation, superheat and subcooling', async () => {
     const { visit } = await book({ onSite: true });
-    // Check values: shared/reference/refrigerant-saturation.json (CoolProp 8.0.0), R-410A
+    // Check values: tests/reference/data/refrigerant-saturation.json (CoolProp 8.0.0), R-410A
     // 111.5 psig dew 36.93 °F; 349.9 psig bubble 106.66 °F.
     const res = await tech.post(`/api/visits/${visit.id}/readings`).send({
       units: PSIG_F,

@@ -2,7 +2,7 @@
  * The Watchlist's leak cases read the unit's refrigerant record (`leakObligations`): each case carries
  * its obligation's state, and a case does not close while the record shows its obligation unverified.
  *
- * Hand-worked (shared/reference/LEAK-RULES.md): R-22, 100 lb, comfort cooling → 40 CFR 82.157 [P],
+ * Hand-worked (docs/reference/LEAK-RULES.md): R-22, 100 lb, comfort cooling → 40 CFR 82.157 [P],
  * threshold 10 % (82.157(c)(2) [P]). 100 lb initial charge on 2024-01-10 (exempt, 82.157(b) [P]); 5 lb on
  * 2024-07-08, 180 days later: 5/100 × 365/180 × 100 = 10.14 % > 10 → repair owed by 2024-08-07 (82.157(d) [M]).
  * Verification: an initial and a follow-up test after the repair (82.157(e) [M]); a test dated before

@@ -1,5 +1,5 @@
 /**
- * One open return visit per unit (issue 13 §2): a leak case's repair visit and a close-out's return share one
+ * One open return visit per unit: a leak case's repair visit and a close-out's return share one
  * truck roll, the database refuses a second open return on a unit, and racing requests make exactly one.
  * On PGlite the transactions of parallel requests take turns; the PostgreSQL pass of `.ci/run`
  * (`DATABASE_URL`) runs the same races for real, where the unique index decides.
