@@ -82,7 +82,7 @@ export default defineConfig({
       { extends: false, test: { name: 'contract', include: ['packages/contract/src/**/*.test.ts'] } },
       {
         extends: false,
-        test: { name: 'api', include: ['apps/api/src/**/*.test.ts'], testTimeout: 30_000, hookTimeout: 60_000, ...databaseTests },
+        test: { name: 'api', include: ['apps/api/src/**/*.test.ts'], testTimeout: 30_000, hookTimeout: 120_000, ...databaseTests },
       },
       {
         extends: false,
