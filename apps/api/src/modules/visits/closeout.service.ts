@@ -11,7 +11,7 @@ import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
 import { summaryMail, summaryPdf, summarySections, type SummaryContext } from './summary';
 import { leakRepairOf, visitDetail } from './visits.service';
-import { actAs } from '../events/actor';
+import { actAs, changeAs } from '../events/actor';
 import { decodeSignaturePng, signatureImage, signedAtOf } from './signature';
 
 type Input = z.output<typeof closeVisitSchema>;
@@ -217,7 +217,8 @@ export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: s
       ...summaryMail(s),
       attachments: [{ filename: `service-summary-WO-${detail.workOrder.number ?? 'visit'}.pdf`, content: pdf, contentType: 'application/pdf' }],
     });
-    await ctx.db.update(visits).set({ summarySentAt: ctx.clock.now() }).where(eq(visits.id, visitId));
+    // The "sent" mark is the sender's change: the live screens name them, as for every change a person makes.
+    await changeAs(ctx.db, user.id, (tx) => tx.update(visits).set({ summarySentAt: ctx.clock.now() }).where(eq(visits.id, visitId)));
     return { sent: true, to, error: null };
   } catch (err) {
     ctx.logger?.error({ err, visitId }, 'service summary mail failed');

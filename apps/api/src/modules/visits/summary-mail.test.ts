@@ -1,8 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { eq } from 'drizzle-orm';
+import { and, eq, gt, sql } from 'drizzle-orm';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, TEST_PASSWORD } from '../../testing/fixtures';
-import { circuits, mailOutbox } from '../../db/schema';
+import { circuits, liveEvents, mailOutbox } from '../../db/schema';
+import { toLiveEvent } from '../events/events.service';
 import { startMailSink } from '../../mail/sink';
 import { createSmtpMailer, type Mailer } from '../../mail/mailer';
 import { makeBookedVisit, NOT_AVAILABLE } from './visits.fixtures';
@@ -36,9 +37,14 @@ describe('service summary through the real SMTP sink', () => {
     await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
     await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'wiring_fault', origin: 'factory_defect', reportedCircuit: 1, actualCircuit: 2 });
 
+    const [newest] = await t.ctx.db.select({ id: sql<number>`coalesce(max(${liveEvents.id}), 0)::int` }).from(liveEvents);
     const res = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds: ['manufacturer'], returnNotes: 'Factory to confirm the wiring change' });
     expect(res.status).toBe(200);
     expect(res.body.summary).toMatchObject({ sent: true, to: p.site.contactEmail });
+    // Every change of the close, the summary's "sent" mark included, names the technician on the live screens.
+    const written = await t.ctx.db.select().from(liveEvents).where(and(gt(liveEvents.id, Number(newest!.id)), eq(liveEvents.branchId, f.a.id)));
+    expect(written.length).toBeGreaterThan(0);
+    expect(written.map((e) => toLiveEvent(e).by)).toEqual(written.map(() => ({ id: f.inA.technician.id, name: f.inA.technician.name })));
 
     // The sink files the message after the SMTP session ends: wait for the row, bounded.
     let rows: (typeof mailOutbox.$inferSelect)[] = [];
