@@ -12,6 +12,8 @@
  *   npm run bench -- --only-mixed       the mixed-load phase alone (no bundle sizes, single measures or calc)
  *   npm run bench -- --no-lighthouse    without the Lighthouse phase (tests/perf/lighthouse.ts)
  *   npm run bench -- --only-lighthouse  the Lighthouse phase alone (needs no `bench:data`: it runs on the demo)
+ *   npm run bench -- --only-web         builds the web app and prints the bundle sizes alone, judged against
+ *                                       WEB_BUDGETS (needs no `bench:data`); exits 1 when a screen is over budget
  *   npm run bench -- --lighthouse-runs 3
  *                                       Lighthouse 3 times, reporting the run with the median performance
  *   npm run bench -- --postgres --processes 4
@@ -48,7 +50,8 @@ const argv = process.argv.slice(2);
 const args = new Set(argv);
 const onlyLighthouse = args.has('--only-lighthouse');
 const onlyMixed = args.has('--only-mixed');
-if (onlyLighthouse && onlyMixed) throw new Error('--only-lighthouse and --only-mixed exclude each other');
+const onlyWeb = args.has('--only-web');
+if ([onlyLighthouse, onlyMixed, onlyWeb].filter(Boolean).length > 1) throw new Error('--only-lighthouse, --only-mixed and --only-web exclude each other');
 const withMixed = !onlyLighthouse && (onlyMixed || !args.has('--no-mixed'));
 const withLighthouse = !onlyMixed && (onlyLighthouse || !args.has('--no-lighthouse'));
 const lighthouseRunsArg = argv.indexOf('--lighthouse-runs');
@@ -347,7 +350,7 @@ interface ManifestChunk {
 }
 
 const SCREENS: [string, string][] = [
-  ['Sign-in', ''],
+  ['Sign-in', 'apps/web/src/features/auth/sign-in-page.tsx'],
   ['Route', 'apps/web/src/features/day/day-page.tsx'],
   ['Visit', 'apps/web/src/features/visits/visit-page.tsx'],
   ['Roster', 'apps/web/src/features/roster/roster-page.tsx'],
@@ -359,6 +362,12 @@ const SCREENS: [string, string][] = [
   ['Team', 'apps/web/src/features/team/team-page.tsx'],
   ['Outbox', 'apps/web/src/features/outbox/outbox-page.tsx'],
 ];
+
+/**
+ * Budgets of the gzipped JavaScript a screen needs before it can show, KB (#17): the sign-in page; the Route and
+ * Visit screens, light enough for a technician's phone on a weak signal. Other screens are reported, not judged.
+ */
+const WEB_BUDGETS: Record<string, number> = { 'Sign-in': 150, Route: 160, Visit: 160 };
 
 interface ScreenSize {
   screen: string;
@@ -399,7 +408,8 @@ function measureWeb(): ScreenSize[] {
   return SCREENS.map(([screen, src]) => {
     const keys = closure(entryKey);
     if (src) {
-      if (frameKey) closure(frameKey, keys);
+      // The signed-in frame comes with every screen but the sign-in page.
+      if (frameKey && screen !== 'Sign-in') closure(frameKey, keys);
       // A page that another page also imports statically lands in a shared chunk keyed `_<name>-<hash>.js`.
       const base = src.split('/').pop()!.replace(/\.tsx?$/, '');
       const key = manifest[src] ? src : Object.keys(manifest).find((k) => k.startsWith(`_${base}-`));
@@ -588,6 +598,36 @@ function printTable(head: string[], table: string[][], right: (i: number) => boo
   for (const r of table) console.log(line(r));
 }
 
+/**
+ * One row per screen: its gzipped JavaScript against its budget (WEB_BUDGETS), and where FullCalendar and the
+ * charts load (the sign-in page loads neither; the calendar only on Roster, Agreements and Route).
+ */
+function webRows(web: ScreenSize[]): [measure: string, target: string, value: string, result: string][] {
+  return web.map((w) => {
+    const budget = WEB_BUDGETS[w.screen];
+    const heavyOk = w.screen === 'Sign-in' ? !w.calendar && !w.charts : w.calendar ? ['Roster', 'Agreements', 'Route'].includes(w.screen) : true;
+    return [
+      `Web JS to show: ${w.screen}${w.calendar ? ' (+calendar)' : ''}${w.charts ? ' (+charts)' : ''}`,
+      budget === undefined ? '(info)' : `≤ ${budget} KB gzip`,
+      `${w.gzipKb.toFixed(1)} KB`,
+      budget === undefined ? (heavyOk ? '' : 'FAIL') : w.gzipKb <= budget && heavyOk ? 'pass' : 'FAIL',
+    ];
+  });
+}
+
+/** `--only-web`: the bundle sizes alone; false when a screen is over its budget. */
+function webMeasures(web: ScreenSize[]): boolean {
+  const rows = webRows(web);
+  console.log(`\nCoilpath web bundle sizes (gzipped JavaScript a screen needs before it shows, from the Vite manifest)\n`);
+  printTable(['measure', 'budget', 'gzip', 'result'], rows, (i) => i === 2);
+  const calendarOn = web.filter((w) => w.calendar).map((w) => w.screen);
+  const chartsOn = web.filter((w) => w.charts).map((w) => w.screen);
+  console.log(`\nFullCalendar loads on: ${calendarOn.join(', ') || 'none'}; charts load on: ${chartsOn.join(', ') || 'none'}.`);
+  const over = rows.filter((r) => r[3] === 'FAIL');
+  console.log(over.length ? `Over budget: ${over.map((r) => r[0]).join('; ')}.` : 'Every budget holds.');
+  return over.length === 0;
+}
+
 /** The table of single measures (one thing at a time). */
 function singleMeasures(pglite: ApiFigures, postgres: ApiFigures | null, calc: Awaited<ReturnType<typeof measureCalc>>, web: ScreenSize[]) {
   type Row = { measure: string; target: string; stat: 'median' | 'p95'; limit: [number, number]; a?: Stat; b?: Stat | null; unit?: string };
@@ -617,20 +657,7 @@ function singleMeasures(pglite: ApiFigures, postgres: ApiFigures | null, calc: A
       result,
     ];
   });
-  for (const w of web) {
-    const isSignIn = w.screen === 'Sign-in';
-    const heavyOk = isSignIn ? !w.calendar && !w.charts : (w.calendar ? ['Roster', 'Agreements', 'Route'].includes(w.screen) : true);
-    table.push([
-      `Web JS to show: ${w.screen}${w.calendar ? ' (+calendar)' : ''}${w.charts ? ' (+charts)' : ''}`,
-      isSignIn ? '< 150 KB gzip' : '(info)',
-      `${w.gzipKb.toFixed(1)} KB`,
-      '',
-      '',
-      '',
-      '',
-      isSignIn ? (w.gzipKb < 150 && heavyOk ? 'pass' : 'FAIL') : '',
-    ]);
-  }
+  for (const [measure, target, value, result] of webRows(web)) table.push([measure, target, value, '', '', '', '', result]);
   printTable(head, table, (i) => i >= 2 && i <= 6);
   console.log(`\nRoster load test: ${pglite.roster.requests} requests in 10 s on PGlite (${pglite.roster.non2xx} not 2xx)${postgres ? `, ${postgres.roster.requests} on PostgreSQL (${postgres.roster.non2xx} not 2xx)` : ''}.`);
   const calendarOn = web.filter((w) => w.calendar).map((w) => w.screen);
@@ -662,6 +689,10 @@ function mixedMeasures(mixed: { pglite: MixedFigures | null; postgres: MixedFigu
 }
 
 async function main() {
+  if (onlyWeb) {
+    if (!webMeasures(measureWeb())) process.exitCode = 1;
+    return;
+  }
   if (!onlyLighthouse && !existsSync(resolve(benchDataDir(), 'pg'))) {
     console.error('No benchmark data: run `npm run bench:data` first (about 2–3 minutes), or `npm run bench -- --only-lighthouse`.');
     process.exit(1);

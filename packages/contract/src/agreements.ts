@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { idSchema, isoDateSchema, limits, oneLine, pickedIdSchema } from './common';
-import { workOrderStateSchema } from './vocabulary';
+import { workOrderStateSchema } from './vocabulary-schemas';
 
 /* ------------------------------------------------------------ recurrence */
 

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { emailSchema, idSchema, limits, oneLine } from './common';
 import { linkTokenSchema, newPasswordSchema } from './team';
-import { roleSchema } from './vocabulary';
+import { roleSchema } from './vocabulary-schemas';
 
 export const signInSchema = z.strictObject({
   email: emailSchema,

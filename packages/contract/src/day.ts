@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { isoDateSchema } from './common';
 import type { Priority, UnitKind, VisitOutcome, WorkOrderKind, WorkOrderState } from './vocabulary';
-import type { VisitStatus } from './visits';
+import type { VisitStatus } from './visit-status';
 
 /** GET /api/day?date — the date defaults to today in the technician's branch time zone. */
 export const dayQuerySchema = z.object({ date: isoDateSchema.optional() });

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { idSchema, isoDateSchema, limits } from './common';
-import { causeCodeLabels, causeCodeSchema, warrantyClaimStatusSchema, workOrderKindSchema, workOrderStateSchema, type CauseCode } from './vocabulary';
+import { causeCodeLabels, type CauseCode } from './vocabulary';
+import { causeCodeSchema, warrantyClaimStatusSchema, workOrderKindSchema, workOrderStateSchema } from './vocabulary-schemas';
 import type { ModelAlertRef } from './work-orders';
 
 /**

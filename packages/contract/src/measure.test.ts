@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { elevationMetersSchema, elevationNote, feetToMetres, formatElevation, formatMeasure, metresToFeet, readingsElevationNote, readingUnitsBySystem, readingUnitsSchema, unitSystemOf } from './measure';
+import { elevationNote, feetToMetres, formatElevation, formatMeasure, metresToFeet, readingsElevationNote, readingUnitsBySystem, unitSystemOf } from './measure';
+import { elevationMetersSchema, readingUnitsSchema } from './measure-schemas';
 import { saveReadingsSchema } from './visits';
 
 const circuitId = '00000000-0000-4000-8000-000000000001';

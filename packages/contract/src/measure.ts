@@ -1,21 +1,22 @@
-import { z } from 'zod';
-
 /**
  * Units of refrigerant-circuit readings (docs/DESIGN.md §5, docs/UI.md "Units and numbers"). A branch reads in
  * one system: imperial (psig, °F) or SI (kPa(g), °C). Readings are stored in psig/°F; a body that
  * carries readings states its units, and every reading the API answers states the units of its values.
+ *
+ * Free of zod, so a screen can print a measure without loading a schema; the schemas of these units and of
+ * an elevation are in `measure-schemas.ts`.
  */
 
-export const unitSystemSchema = z.enum(['imperial', 'si'], { message: 'Choose imperial or SI units' });
-export type UnitSystem = z.infer<typeof unitSystemSchema>;
+export const unitSystems = ['imperial', 'si'] as const;
+export type UnitSystem = (typeof unitSystems)[number];
 
 /** Gauge pressure units (the tokens `@coilpath/calc` takes). */
-export const pressureUnitSchema = z.enum(['psig', 'kPag'], { message: 'State the pressure unit: psig or kPag' });
-export type PressureUnit = z.infer<typeof pressureUnitSchema>;
+export const pressureUnits = ['psig', 'kPag'] as const;
+export type PressureUnit = (typeof pressureUnits)[number];
 
 /** Temperature units (the tokens `@coilpath/calc` takes). */
-export const temperatureUnitSchema = z.enum(['F', 'C'], { message: 'State the temperature unit: F or C' });
-export type TemperatureUnit = z.infer<typeof temperatureUnitSchema>;
+export const temperatureUnits = ['F', 'C'] as const;
+export type TemperatureUnit = (typeof temperatureUnits)[number];
 
 export interface ReadingUnits {
   pressure: PressureUnit;
@@ -34,14 +35,6 @@ export function unitSystemOf(units: ReadingUnits): UnitSystem | null {
   if (units.pressure === 'kPag' && units.temperature === 'C') return 'si';
   return null;
 }
-
-/** The units a body's readings are in: one system, never mixed. */
-export const readingUnitsSchema = z
-  .strictObject({ pressure: pressureUnitSchema, temperature: temperatureUnitSchema })
-  .refine((u) => unitSystemOf(u) !== null, {
-    message: 'Pressure and temperature units must come from one system: psig with F, or kPag with C',
-    path: ['temperature'],
-  });
 
 /** What a screen, an e-mail or a PDF prints after a value. */
 export const pressureSymbols: Record<PressureUnit, string> = { psig: 'psig', kPag: 'kPa(g)' };
@@ -82,6 +75,54 @@ export const readingLimits: Record<UnitSystem, { pressure: { min: number; max: n
   si: { pressure: { min: -101.4, max: 6900 }, temperature: { min: -74, max: 205 } },
 };
 
+/** The pressure fields of a reading (gauge pressures, psig or kPa(g)). */
+export const readingPressureFields = [
+  'suctionPressure',
+  'liquidPressure',
+  'dischargePressure',
+  'suctionPressureController',
+  'liquidPressureController',
+  'dischargePressureController',
+] as const;
+/** The temperature fields of a reading (°F or °C). */
+export const readingTemperatureFields = ['suctionLineTemp', 'liquidLineTemp', 'outdoorTemp'] as const;
+export type ReadingPressureField = (typeof readingPressureFields)[number];
+export type ReadingTemperatureField = (typeof readingTemperatureFields)[number];
+
+const withThousands = (n: number) => n.toLocaleString('en-US');
+
+/**
+ * The values of a body's readings outside the range of its units (`readingLimits`), each with what the screen
+ * and the API say: "Below a full vacuum (−14.7 psig)", "Above 205 °C". None for a mixed pair of units (refused
+ * on its own). The route's schema (`saveReadingsSchema`) and the Visit screen's form apply this one rule.
+ */
+export function readingRangeIssues(
+  units: ReadingUnits,
+  readings: readonly Partial<Record<ReadingPressureField | ReadingTemperatureField, number | null>>[],
+): { index: number; field: ReadingPressureField | ReadingTemperatureField; message: string }[] {
+  const system = unitSystemOf(units);
+  if (!system) return [];
+  const lim = readingLimits[system];
+  const p = pressureSymbols[units.pressure];
+  const t = temperatureSymbols[units.temperature];
+  const issues: { index: number; field: ReadingPressureField | ReadingTemperatureField; message: string }[] = [];
+  readings.forEach((r, index) => {
+    for (const field of readingPressureFields) {
+      const x = r[field];
+      if (x === null || x === undefined) continue;
+      if (x < lim.pressure.min) issues.push({ index, field, message: `Below a full vacuum (${withThousands(lim.pressure.min)} ${p})` });
+      else if (x > lim.pressure.max) issues.push({ index, field, message: `Above ${withThousands(lim.pressure.max)} ${p}` });
+    }
+    for (const field of readingTemperatureFields) {
+      const x = r[field];
+      if (x === null || x === undefined) continue;
+      if (x < lim.temperature.min) issues.push({ index, field, message: `Below ${withThousands(lim.temperature.min).replace('-', '−')} ${t}` });
+      else if (x > lim.temperature.max) issues.push({ index, field, message: `Above ${withThousands(lim.temperature.max)} ${t}` });
+    }
+  });
+  return issues;
+}
+
 /* ------------------------------------------------------------------ elevation */
 
 /** Metres in one foot: the international foot, exactly 0.3048 m (1959 international yard and pound agreement). */
@@ -91,11 +132,6 @@ export const metresToFeet = (m: number) => m / METRES_PER_FOOT;
 
 /** A branch's elevation, metres: from the shore of the Dead Sea (about −430 m) to 5,000 m, inside the standard atmosphere's range. */
 export const ELEVATION_LIMITS_M = { min: -500, max: 5000 } as const;
-export const elevationMetersSchema = z.coerce
-  .number({ message: 'Enter the elevation' })
-  .min(ELEVATION_LIMITS_M.min, 'At least −500 m (−1,640 ft)')
-  .max(ELEVATION_LIMITS_M.max, 'At most 5,000 m (16,404 ft)');
-
 const grouped = (n: number) => Math.round(n).toLocaleString('en-US').replace('-', '−');
 
 /** "1,609 m" for an SI branch; "5,280 ft (1,609 m)" for an imperial one. */

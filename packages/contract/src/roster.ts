@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { idSchema, instantSchema, isoDateSchema, limits, pickedIdSchema } from './common';
-import { epa608TypeSchema, prioritySchema, workingHoursSchema, workOrderKindSchema, workOrderStateSchema } from './vocabulary';
+import { epa608TypeSchema, prioritySchema, workingHoursSchema, workOrderKindSchema, workOrderStateSchema } from './vocabulary-schemas';
 import { requiredCertificationSchema } from './work-orders';
 
 /** The longest single booking (a job longer than a day is split into several visits). */

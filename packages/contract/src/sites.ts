@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { base64FileSchema, idSchema, pickedIdSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, oneOfCsvOrFile, oneOfCsvOrFileMessage, optionalOneLine, pageQuerySchema } from './common';
-import { applianceCategorySchema, unitKindSchema } from './vocabulary';
+import { applianceCategorySchema, unitKindSchema } from './vocabulary-schemas';
 
 /** Optional free text: blank input becomes `null`, so forms can send empty fields. */
 const optionalText = (max: number = limits.shortText) =>

@@ -1,7 +1,8 @@
 import { z } from 'zod';
 import { emailSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, optionalOneLine, pageQuerySchema } from './common';
-import { elevationMetersSchema } from './measure';
-import { epa608TypeSchema, roleSchema, workingHoursSchema, type Epa608Type, type Role, type WorkingHours } from './vocabulary';
+import { elevationMetersSchema } from './measure-schemas';
+import type { Epa608Type, Role } from './vocabulary';
+import { epa608TypeSchema, roleSchema, workingHoursSchema, type WorkingHours } from './vocabulary-schemas';
 
 /** True for an IANA time-zone name this runtime knows (e.g. `America/Denver`). */
 export function isIanaTimeZone(name: string): boolean {

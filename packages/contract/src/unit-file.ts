@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { idSchema, limits } from './common';
-import { pressureUnitSchema, temperatureUnitSchema, unitSystemSchema } from './measure';
+import { pressureUnitSchema, temperatureUnitSchema, unitSystemSchema } from './measure-schemas';
+import { refrigerantEventReasonLabels, refrigerantRecordEventKindLabels } from './vocabulary';
 import {
   additionExemptionSchema,
   alarmSourceSchema,
@@ -12,14 +13,12 @@ import {
   leakObligationStateSchema,
   prioritySchema,
   refrigerantEventReasonSchema,
-  refrigerantRecordEventKindLabels,
   refrigerantRecordEventKindSchema,
   unitKindSchema,
   visitOutcomeSchema,
   workOrderKindSchema,
   workOrderStateSchema,
-} from './vocabulary';
-import { refrigerantEventReasonLabels } from './visits';
+} from './vocabulary-schemas';
 
 /**
  * Unit file (docs/DESIGN.md §3, `/units/:id`): everything known about one unit. Readable by the owner, the unit

@@ -1,45 +1,31 @@
 import { z } from 'zod';
 import { idSchema, instantSchema, isoDateSchema, limits } from './common';
-import { pressureSymbols, readingLimits, readingUnitsSchema, temperatureSymbols, unitSystemOf, type ReadingUnits, type UnitSystem } from './measure';
+import { readingRangeIssues, type ReadingUnits, type UnitSystem } from './measure';
+import { readingUnitsSchema } from './measure-schemas';
 import type { ModelAlertRef } from './work-orders';
-import {
-  attachmentKindSchema,
-  causeCodeSchema,
-  causeOriginSchema,
-  noteAudienceSchema,
-  refrigerantEventReasonSchema,
-  returnNeedSchema,
-  visitOutcomeSchema,
-  type AttachmentKind,
-  type CauseCode,
-  type CauseOrigin,
-  type NoteAudience,
-  type ReturnNeed,
-  type VisitOutcome,
-  type WorkOrderKind,
-  type WorkOrderState,
-  type Priority,
-  type UnitKind,
-  type ApplianceCategory,
-  type RefrigerantEventReason,
-  type Epa608Type,
-  type SignatureKind,
+import type { VisitStatus } from './visit-status';
+import type {
+  AttachmentKind,
+  CauseCode,
+  CauseOrigin,
+  NoteAudience,
+  ReturnNeed,
+  VisitOutcome,
+  WorkOrderKind,
+  WorkOrderState,
+  Priority,
+  UnitKind,
+  ApplianceCategory,
+  RefrigerantEventReason,
+  Epa608Type,
+  SignatureKind,
 } from './vocabulary';
+import { attachmentKindSchema, causeCodeSchema, causeOriginSchema, noteAudienceSchema, refrigerantEventReasonSchema, returnNeedSchema, visitOutcomeSchema } from './vocabulary-schemas';
 
 /** Largest file a visit upload may be (photos, nameplates, PDFs). */
 export const attachmentMaxBytes = 15 * 1024 * 1024;
 /** Content types a visit upload may have (checked on the server by content, not by name). */
 export const attachmentContentTypes = ['image/jpeg', 'image/png', 'image/webp', 'image/heic', 'image/heif', 'application/pdf'] as const;
-
-export const refrigerantEventReasonLabels: Record<RefrigerantEventReason, string> = {
-  leak_top_off: 'Leak top-off',
-  repair_recharge: 'Recharge after repair',
-  initial_charge: 'Initial charge',
-  recovery: 'Recovery',
-  retrofit: 'Retrofit',
-  seasonal_variance: 'Seasonal variance',
-  other: 'Other',
-};
 
 /** PATCH /api/visits/:id — the technician's state buttons (closing has its own route). */
 export const visitStateChangeSchema = z.strictObject({
@@ -66,22 +52,6 @@ export const readingInputSchema = z.strictObject({
 });
 export type ReadingInput = z.infer<typeof readingInputSchema>;
 
-/** The pressure fields of a reading (gauge pressures, psig or kPa(g)). */
-export const readingPressureFields = [
-  'suctionPressure',
-  'liquidPressure',
-  'dischargePressure',
-  'suctionPressureController',
-  'liquidPressureController',
-  'dischargePressureController',
-] as const;
-/** The temperature fields of a reading (°F or °C). */
-export const readingTemperatureFields = ['suctionLineTemp', 'liquidLineTemp', 'outdoorTemp'] as const;
-export type ReadingPressureField = (typeof readingPressureFields)[number];
-export type ReadingTemperatureField = (typeof readingTemperatureFields)[number];
-
-const withThousands = (n: number) => n.toLocaleString('en-US');
-
 /**
  * POST /api/visits/:id/readings — one entry per circuit; saving a circuit again replaces this visit's
  * earlier entry. `units` states what the values are in (psig with F, or kPag with C; never mixed); the
@@ -98,25 +68,7 @@ export const saveReadingsSchema = z
     if (new Set(v.readings.map((r) => r.circuitId)).size !== v.readings.length) {
       ctx.addIssue({ code: 'custom', message: 'Each circuit may appear once', path: ['readings'] });
     }
-    const system = unitSystemOf(v.units);
-    if (!system) return; // refused by readingUnitsSchema
-    const lim = readingLimits[system];
-    const p = pressureSymbols[v.units.pressure];
-    const t = temperatureSymbols[v.units.temperature];
-    v.readings.forEach((r, i) => {
-      for (const f of readingPressureFields) {
-        const x = r[f];
-        if (x === null || x === undefined) continue;
-        if (x < lim.pressure.min) ctx.addIssue({ code: 'custom', message: `Below a full vacuum (${withThousands(lim.pressure.min)} ${p})`, path: ['readings', i, f] });
-        else if (x > lim.pressure.max) ctx.addIssue({ code: 'custom', message: `Above ${withThousands(lim.pressure.max)} ${p}`, path: ['readings', i, f] });
-      }
-      for (const f of readingTemperatureFields) {
-        const x = r[f];
-        if (x === null || x === undefined) continue;
-        if (x < lim.temperature.min) ctx.addIssue({ code: 'custom', message: `Below ${withThousands(lim.temperature.min).replace('-', '−')} ${t}`, path: ['readings', i, f] });
-        else if (x > lim.temperature.max) ctx.addIssue({ code: 'custom', message: `Above ${withThousands(lim.temperature.max)} ${t}`, path: ['readings', i, f] });
-      }
-    });
+    for (const issue of readingRangeIssues(v.units, v.readings)) ctx.addIssue({ code: 'custom', message: issue.message, path: ['readings', issue.index, issue.field] });
   });
 export type SaveReadings = z.infer<typeof saveReadingsSchema>;
 
@@ -410,33 +362,6 @@ export interface VisitUnitDto {
   fullChargeLb: number;
   applianceCategory: ApplianceCategory;
   circuits: VisitCircuitDto[];
-}
-
-export type VisitStatus = 'booked' | 'en_route' | 'on_site' | 'closed';
-export const visitStatusLabels: Record<VisitStatus, string> = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' };
-
-/**
- * The rule for recording work on a visit: readings, findings and refrigerant are recorded on a visit
- * that is on site (until it is closed). The API refuses others with 409 and this code and message;
- * the Visit screen shows the same message (`VisitDetail.recordRefusal`) instead of the forms.
- */
-export function recordingRefusal(status: VisitStatus): { code: 'not_on_site' | 'visit_closed'; message: string } | null {
-  switch (status) {
-    case 'on_site':
-      return null;
-    case 'closed':
-      return { code: 'visit_closed', message: 'This visit is already closed; it takes no more work. Add a return visit if more is needed.' };
-    case 'en_route':
-      return {
-        code: 'not_on_site',
-        message: 'This visit is en route, not on site yet. Readings, findings and refrigerant are recorded on site: mark yourself on site first.',
-      };
-    default:
-      return {
-        code: 'not_on_site',
-        message: 'This visit is booked, not started. Readings, findings and refrigerant are recorded on site: go en route, then mark yourself on site.',
-      };
-  }
 }
 
 export interface VisitDetail {

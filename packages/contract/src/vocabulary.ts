@@ -1,9 +1,11 @@
-import { z } from 'zod';
-
+/**
+ * Coilpath's words: the lists of states, kinds and causes, their types and the labels a screen shows for them.
+ * Free of zod, so a screen can show a label without loading a schema; the zod enums of these lists are in
+ * `vocabulary-schemas.ts`, built from the lists here.
+ */
 /** Roles of docs/DESIGN.md §2. */
 export const roles = ['owner', 'branch_manager', 'dispatcher', 'technician'] as const;
-export const roleSchema = z.enum(roles);
-export type Role = z.infer<typeof roleSchema>;
+export type Role = (typeof roles)[number];
 export const roleLabels: Record<Role, string> = {
   owner: 'Owner',
   branch_manager: 'Branch manager',
@@ -13,8 +15,7 @@ export const roleLabels: Record<Role, string> = {
 
 /** EPA Section 608 certification types (40 CFR 82.161). `none` = not certified. */
 export const epa608Types = ['none', 'I', 'II', 'III', 'universal'] as const;
-export const epa608TypeSchema = z.enum(epa608Types);
-export type Epa608Type = z.infer<typeof epa608TypeSchema>;
+export type Epa608Type = (typeof epa608Types)[number];
 export const epa608Labels: Record<Epa608Type, string> = {
   none: 'Not certified',
   I: 'Type I',
@@ -24,8 +25,7 @@ export const epa608Labels: Record<Epa608Type, string> = {
 };
 
 export const workOrderKinds = ['service_call', 'return_visit', 'callback', 'planned_maintenance'] as const;
-export const workOrderKindSchema = z.enum(workOrderKinds);
-export type WorkOrderKind = z.infer<typeof workOrderKindSchema>;
+export type WorkOrderKind = (typeof workOrderKinds)[number];
 export const workOrderKindLabels: Record<WorkOrderKind, string> = {
   service_call: 'Service call',
   return_visit: 'Return visit',
@@ -34,8 +34,7 @@ export const workOrderKindLabels: Record<WorkOrderKind, string> = {
 };
 
 export const workOrderStates = ['unplaced', 'booked', 'en_route', 'on_site', 'closed', 'cancelled'] as const;
-export const workOrderStateSchema = z.enum(workOrderStates);
-export type WorkOrderState = z.infer<typeof workOrderStateSchema>;
+export type WorkOrderState = (typeof workOrderStates)[number];
 export const workOrderStateLabels: Record<WorkOrderState, string> = {
   unplaced: 'Unplaced',
   booked: 'Booked',
@@ -46,8 +45,7 @@ export const workOrderStateLabels: Record<WorkOrderState, string> = {
 };
 
 export const priorities = ['emergency', 'high', 'normal', 'low'] as const;
-export const prioritySchema = z.enum(priorities);
-export type Priority = z.infer<typeof prioritySchema>;
+export type Priority = (typeof priorities)[number];
 export const priorityLabels: Record<Priority, string> = {
   emergency: 'Emergency',
   high: 'High',
@@ -56,8 +54,7 @@ export const priorityLabels: Record<Priority, string> = {
 };
 
 export const visitOutcomes = ['resolved', 'needs_return', 'declined'] as const;
-export const visitOutcomeSchema = z.enum(visitOutcomes);
-export type VisitOutcome = z.infer<typeof visitOutcomeSchema>;
+export type VisitOutcome = (typeof visitOutcomes)[number];
 export const visitOutcomeLabels: Record<VisitOutcome, string> = {
   resolved: 'Resolved',
   needs_return: 'Needs return',
@@ -66,8 +63,7 @@ export const visitOutcomeLabels: Record<VisitOutcome, string> = {
 
 /** What a return visit needs (Visit close-out). */
 export const returnNeeds = ['parts', 'leak_search', 'manufacturer', 'second_tech'] as const;
-export const returnNeedSchema = z.enum(returnNeeds);
-export type ReturnNeed = z.infer<typeof returnNeedSchema>;
+export type ReturnNeed = (typeof returnNeeds)[number];
 export const returnNeedLabels: Record<ReturnNeed, string> = {
   parts: 'Parts',
   leak_search: 'Leak search',
@@ -85,8 +81,7 @@ export const causeCodes = [
   'settings',
   'no_fault_found',
 ] as const;
-export const causeCodeSchema = z.enum(causeCodes);
-export type CauseCode = z.infer<typeof causeCodeSchema>;
+export type CauseCode = (typeof causeCodes)[number];
 export const causeCodeLabels: Record<CauseCode, string> = {
   refrigerant_leak: 'Refrigerant leak',
   sensor_fault: 'Sensor fault',
@@ -99,8 +94,7 @@ export const causeCodeLabels: Record<CauseCode, string> = {
 };
 
 export const causeOrigins = ['factory_defect', 'installation', 'wear', 'prior_service', 'external'] as const;
-export const causeOriginSchema = z.enum(causeOrigins);
-export type CauseOrigin = z.infer<typeof causeOriginSchema>;
+export type CauseOrigin = (typeof causeOrigins)[number];
 export const causeOriginLabels: Record<CauseOrigin, string> = {
   factory_defect: 'Factory defect',
   installation: 'Installation',
@@ -114,8 +108,7 @@ export const causeOriginLabels: Record<CauseOrigin, string> = {
  * notes go into the customer's service summary. Notes recorded before audiences existed are internal.
  */
 export const noteAudiences = ['internal', 'customer'] as const;
-export const noteAudienceSchema = z.enum(noteAudiences);
-export type NoteAudience = z.infer<typeof noteAudienceSchema>;
+export type NoteAudience = (typeof noteAudiences)[number];
 export const noteAudienceLabels: Record<NoteAudience, string> = {
   internal: 'Internal (office only)',
   customer: 'For the customer',
@@ -144,8 +137,7 @@ export const unitKinds = [
   'ice_machine',
   'boiler',
 ] as const;
-export const unitKindSchema = z.enum(unitKinds);
-export type UnitKind = z.infer<typeof unitKindSchema>;
+export type UnitKind = (typeof unitKinds)[number];
 export const unitKindLabels: Record<UnitKind, string> = {
   rooftop_unit: 'Rooftop unit',
   split_system: 'Split system',
@@ -161,8 +153,7 @@ export const unitKindLabels: Record<UnitKind, string> = {
 
 /** Appliance categories of the refrigerant leak rules (40 CFR 82.157(c), 84.106(c)). */
 export const applianceCategories = ['comfort_cooling', 'commercial_refrigeration', 'industrial_process', 'other'] as const;
-export const applianceCategorySchema = z.enum(applianceCategories);
-export type ApplianceCategory = z.infer<typeof applianceCategorySchema>;
+export type ApplianceCategory = (typeof applianceCategories)[number];
 export const applianceCategoryLabels: Record<ApplianceCategory, string> = {
   comfort_cooling: 'Comfort cooling',
   commercial_refrigeration: 'Commercial refrigeration',
@@ -179,12 +170,19 @@ export const refrigerantEventReasons = [
   'seasonal_variance',
   'other',
 ] as const;
-export const refrigerantEventReasonSchema = z.enum(refrigerantEventReasons);
-export type RefrigerantEventReason = z.infer<typeof refrigerantEventReasonSchema>;
+export type RefrigerantEventReason = (typeof refrigerantEventReasons)[number];
+export const refrigerantEventReasonLabels: Record<RefrigerantEventReason, string> = {
+  leak_top_off: 'Leak top-off',
+  repair_recharge: 'Recharge after repair',
+  initial_charge: 'Initial charge',
+  recovery: 'Recovery',
+  retrofit: 'Retrofit',
+  seasonal_variance: 'Seasonal variance',
+  other: 'Other',
+};
 
 export const leakCaseStatuses = ['open', 'repaired', 'closed', 'retrofit_planned', 'retire_planned'] as const;
-export const leakCaseStatusSchema = z.enum(leakCaseStatuses);
-export type LeakCaseStatus = z.infer<typeof leakCaseStatusSchema>;
+export type LeakCaseStatus = (typeof leakCaseStatuses)[number];
 export const leakCaseStatusLabels: Record<LeakCaseStatus, string> = {
   open: 'Open',
   repaired: 'Repaired, verifying',
@@ -195,8 +193,7 @@ export const leakCaseStatusLabels: Record<LeakCaseStatus, string> = {
 
 /** State of a leak-repair obligation in the refrigerant record (`leakObligations` in @coilpath/calc). */
 export const leakObligationStates = ['open', 'overdue', 'repaired', 'verified', 'plan'] as const;
-export const leakObligationStateSchema = z.enum(leakObligationStates);
-export type LeakObligationState = z.infer<typeof leakObligationStateSchema>;
+export type LeakObligationState = (typeof leakObligationStates)[number];
 export const leakObligationStateLabels: Record<LeakObligationState, string> = {
   open: 'Repair owed',
   overdue: 'Repair overdue',
@@ -207,8 +204,7 @@ export const leakObligationStateLabels: Record<LeakObligationState, string> = {
 
 /** Kinds of entry in a unit's refrigerant record. */
 export const refrigerantRecordEventKinds = ['addition', 'recovery', 'repair', 'verification', 'retrofit-or-retirement-plan'] as const;
-export const refrigerantRecordEventKindSchema = z.enum(refrigerantRecordEventKinds);
-export type RefrigerantRecordEventKind = z.infer<typeof refrigerantRecordEventKindSchema>;
+export type RefrigerantRecordEventKind = (typeof refrigerantRecordEventKinds)[number];
 export const refrigerantRecordEventKindLabels: Record<RefrigerantRecordEventKind, string> = {
   addition: 'Refrigerant added',
   recovery: 'Refrigerant recovered',
@@ -219,8 +215,7 @@ export const refrigerantRecordEventKindLabels: Record<RefrigerantRecordEventKind
 
 /** Why an addition is not counted toward the leak rate (40 CFR 82.157(b)). */
 export const additionExemptionKinds = ['installation', 'retrofit', 'seasonal-variance'] as const;
-export const additionExemptionSchema = z.enum(additionExemptionKinds);
-export type AdditionExemptionKind = z.infer<typeof additionExemptionSchema>;
+export type AdditionExemptionKind = (typeof additionExemptionKinds)[number];
 export const additionExemptionLabels: Record<AdditionExemptionKind, string> = {
   installation: 'Exempt: charge of a new appliance',
   retrofit: 'Exempt: right after a retrofit',
@@ -233,13 +228,11 @@ export const leakRateMethodLabels: Record<'annualizing' | 'rolling-average', str
 };
 
 export const alarmSources = ['form', 'csv', 'api', 'controller'] as const;
-export const alarmSourceSchema = z.enum(alarmSources);
-export type AlarmSource = z.infer<typeof alarmSourceSchema>;
+export type AlarmSource = (typeof alarmSources)[number];
 
 /** What became of a request an alarm source made (see `alarm_deliveries`). */
 export const alarmDeliveryStatuses = ['accepted', 'unmatched', 'mapped', 'rejected'] as const;
-export const alarmDeliveryStatusSchema = z.enum(alarmDeliveryStatuses);
-export type AlarmDeliveryStatus = z.infer<typeof alarmDeliveryStatusSchema>;
+export type AlarmDeliveryStatus = (typeof alarmDeliveryStatuses)[number];
 export const alarmDeliveryStatusLabels: Record<AlarmDeliveryStatus, string> = {
   accepted: 'Accepted',
   unmatched: 'Unknown unit tag',
@@ -261,28 +254,10 @@ export const alarmRejectionReasonLabels: Record<AlarmRejectionReason, string> = 
 };
 
 export const attachmentKinds = ['photo', 'nameplate', 'document'] as const;
-export const attachmentKindSchema = z.enum(attachmentKinds);
-export type AttachmentKind = z.infer<typeof attachmentKindSchema>;
+export type AttachmentKind = (typeof attachmentKinds)[number];
 
 export const warrantyClaimStatuses = ['to_claim', 'claimed', 'paid', 'denied'] as const;
-export const warrantyClaimStatusSchema = z.enum(warrantyClaimStatuses);
-export type WarrantyClaimStatus = z.infer<typeof warrantyClaimStatusSchema>;
+export type WarrantyClaimStatus = (typeof warrantyClaimStatuses)[number];
 
 export const weekdays = ['sun', 'mon', 'tue', 'wed', 'thu', 'fri', 'sat'] as const;
 export type Weekday = (typeof weekdays)[number];
-
-const hhmm = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use 24-hour HH:MM');
-export const dayHoursSchema = z
-  .object({ start: hhmm, end: hhmm })
-  .refine((h) => h.start < h.end, { message: 'The day must end after it starts', path: ['end'] })
-  .nullable();
-export const workingHoursSchema = z.object({
-  sun: dayHoursSchema,
-  mon: dayHoursSchema,
-  tue: dayHoursSchema,
-  wed: dayHoursSchema,
-  thu: dayHoursSchema,
-  fri: dayHoursSchema,
-  sat: dayHoursSchema,
-});
-export type WorkingHours = z.infer<typeof workingHoursSchema>;

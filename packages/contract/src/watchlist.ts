@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { base64FileSchema, idSchema, instantSchema, isoDateSchema, limits, oneOfCsvOrFile, oneOfCsvOrFileMessage } from './common';
-import { leakCaseStatusSchema, leakObligationStateSchema, prioritySchema, returnNeedSchema, causeCodeSchema, causeOriginSchema, workOrderStateSchema, workOrderKindSchema, visitOutcomeSchema, epa608TypeSchema } from './vocabulary';
+import { leakCaseStatusSchema, leakObligationStateSchema, prioritySchema, returnNeedSchema, causeCodeSchema, causeOriginSchema, workOrderStateSchema, workOrderKindSchema, visitOutcomeSchema, epa608TypeSchema } from './vocabulary-schemas';
 
 /* ---------------------------------------------------------------- alarms */
 

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { idSchema, instantSchema, pickedIdSchema, isoDateSchema, limits, optionalOneLine } from './common';
-import { causeCodeSchema, prioritySchema, workOrderKindSchema, workOrderStateSchema, type WorkOrderState } from './vocabulary';
+import type { WorkOrderState } from './vocabulary';
+import { causeCodeSchema, prioritySchema, workOrderKindSchema, workOrderStateSchema } from './vocabulary-schemas';
 
 /** The model alert an inspection work order checks for. */
 export const modelAlertRefSchema = z.object({ title: z.string(), make: z.string(), model: z.string(), causeCode: causeCodeSchema });

@@ -7,7 +7,6 @@ import { persistOptions } from '@/lib/query-persist';
 import { overlayRestored } from '@/lib/visit-outbox';
 import { LoadingState, ErrorState } from '@/components/ui/states';
 import { NoticesProvider } from '@/components/ui/notices';
-import { SignInPage } from '@/features/auth/sign-in-page';
 import { SessionProvider, useSessionQuery, useUser } from '@/lib/session';
 import { BranchProvider } from '@/lib/branch';
 import { homeFor } from '@/lib/screens';
@@ -16,6 +15,8 @@ import { publicRoutes, screenRoutes } from './routes';
 
 /** The signed-in frame (navigation, branch switcher) loads after sign-in, not with the sign-in page. */
 const AppFrame = lazy(() => import('./layout').then((m) => ({ default: m.AppFrame })));
+/** The sign-in page (and react-hook-form with it) loads only where it shows, not with a signed-in screen. */
+const SignInPage = lazy(() => import('@/features/auth/sign-in-page').then((m) => ({ default: m.SignInPage })));
 
 function RequireSession() {
   const session = useSessionQuery();

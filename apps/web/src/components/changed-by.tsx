@@ -3,7 +3,7 @@
  * Watchlist row): said in words, not by colour alone, and gone after a minute by the app's clock
  * (`useChangedBy` in lib/live-events.ts). Changes made by no person (a job, a controller) say nothing.
  */
-import { changedByLabel } from '@coilpath/contract';
+import { changedByLabel } from '@coilpath/contract/events';
 import { useChangedBy, type ChangedRow } from '@/lib/live-events';
 
 /** The note's element id, for an `aria-describedby` of an element whose name is set by `aria-label`. */

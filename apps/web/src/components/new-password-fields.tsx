@@ -1,5 +1,5 @@
 import type { FieldValues, Path, UseFormReturn } from 'react-hook-form';
-import { limits } from '@coilpath/contract';
+import { limits } from '@coilpath/contract/common';
 import { TextField } from '@/components/ui/field';
 
 /** A new password and its repeat, with the rule the server applies said once. */

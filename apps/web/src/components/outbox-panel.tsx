@@ -1,5 +1,5 @@
 import { AlertTriangle, CloudUpload, RotateCw, Trash2 } from 'lucide-react';
-import { causeCodeLabels, visitOutcomeLabels } from '@coilpath/contract';
+import { causeCodeLabels, visitOutcomeLabels } from '@coilpath/contract/vocabulary';
 import { Button } from '@/components/ui/button';
 import { useNotify } from '@/components/ui/notices';
 import { useOnline } from '@/lib/online';

@@ -7,7 +7,8 @@
  */
 import { useEffect, useSyncExternalStore } from 'react';
 import { useQueryClient, type QueryKey } from '@tanstack/react-query';
-import { liveEventKinds, liveEventRows, type LiveEvent } from '@coilpath/contract';
+import { liveEventKinds, liveEventRows } from '@coilpath/contract/events';
+import type { LiveEvent } from '@coilpath/contract';
 import { appNowMs } from './now';
 
 /** Query keys a branch-scoped screen uses: the branch's id, '' (none chosen yet) or 'all' (the owner's every branch). */

@@ -8,18 +8,8 @@
  */
 import { useSyncExternalStore } from 'react';
 import { onlineManager, useQueryClient, type QueryClient } from '@tanstack/react-query';
-import {
-  recordingRefusal,
-  type AttachmentDto,
-  type CloseVisit,
-  type CloseVisitResult,
-  type DayResponse,
-  type FindingDto,
-  type ReadingDto,
-  type RefrigerantEventResult,
-  type VisitDetail,
-  type VisitStatus,
-} from '@coilpath/contract';
+import { recordingRefusal } from '@coilpath/contract/visit-status';
+import type { AttachmentDto, CloseVisit, CloseVisitResult, DayResponse, FindingDto, ReadingDto, RefrigerantEventResult, VisitDetail, VisitStatus } from '@coilpath/contract';
 import { api } from './api-client';
 import { idbOutboxStore, memoryOutboxStore, Outbox, type OutboxEntry, type OutboxWrite } from './outbox';
 import { appNow } from './now';

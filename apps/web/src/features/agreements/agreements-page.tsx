@@ -1,6 +1,8 @@
 import { lazy, Suspense, useCallback, useMemo, useRef, useState } from 'react';
 import { CalendarRange, Plus, RefreshCw } from 'lucide-react';
-import { recordDate, describeAgreementRrule, PM_GRACE_DAYS, type AgreementRow, type PlanPreview, type PlanVisit } from '@coilpath/contract';
+import { recordDate } from '@coilpath/contract/date-words';
+import { describeAgreementRrule, PM_GRACE_DAYS } from '@coilpath/contract/agreements';
+import type { AgreementRow, PlanPreview, PlanVisit } from '@coilpath/contract';
 import { useBranch } from '@/lib/branch';
 import { errorMessage } from '@/lib/api-client';
 import { formatInZone, formatMoney, todayInZone } from '@/lib/format';

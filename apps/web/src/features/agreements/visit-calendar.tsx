@@ -1,6 +1,7 @@
 import FullCalendar from '@fullcalendar/react';
 import dayGridPlugin from '@fullcalendar/daygrid';
-import { workOrderStateLabels, type PlannedVisitRow } from '@coilpath/contract';
+import { workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import type { PlannedVisitRow } from '@coilpath/contract';
 
 const stateColour: Record<string, string> = {
   unplaced: '#1F7A8C',

@@ -1,7 +1,8 @@
 import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
-import { forgotPasswordSchema, type ForgotPassword } from '@coilpath/contract';
+import { forgotPasswordSchema } from '@coilpath/contract/team';
+import type { ForgotPassword } from '@coilpath/contract';
 import { api, errorMessage } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';

@@ -20,7 +20,7 @@ const demoAccounts = [
 
 /** The contract's sign-in schema, loaded after the page shows (zod is not needed to draw it). */
 const signInResolver = lazyResolver<SignIn>(async () => {
-  const [{ zodResolver }, { signInSchema }] = await Promise.all([import('@hookform/resolvers/zod'), import('@coilpath/contract')]);
+  const [{ zodResolver }, { signInSchema }] = await Promise.all([import('@hookform/resolvers/zod'), import('@coilpath/contract/auth')]);
   return zodResolver(signInSchema) as Resolver<SignIn>;
 });
 

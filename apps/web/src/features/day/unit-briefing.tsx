@@ -1,7 +1,10 @@
 import { useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, Droplets, History, Siren } from 'lucide-react';
-import { recordDate, causeCodeLabels, causeOriginLabels, formatMeasure, readingsElevationNote, unitSystemOf, visitOutcomeLabels, type MeasureKind, type ReadingUnits } from '@coilpath/contract';
+import { recordDate } from '@coilpath/contract/date-words';
+import { causeCodeLabels, causeOriginLabels, visitOutcomeLabels } from '@coilpath/contract/vocabulary';
+import { formatMeasure, readingsElevationNote, unitSystemOf } from '@coilpath/contract/measure';
+import type { MeasureKind, ReadingUnits } from '@coilpath/contract';
 import { daysFrom } from '@coilpath/calc';
 import { Badge } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';

@@ -3,16 +3,9 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { createColumnHelper } from '@tanstack/react-table';
 import { Link } from 'react-router-dom';
-import {
-  causeCodeLabels,
-  warrantyClaimStatuses,
-  warrantyClaimUpdateSchema,
-  workOrderKindLabels,
-  type FactoryDefectCase,
-  type FactoryDefectModel,
-  type WarrantyClaimStatus,
-  type WarrantyClaimUpdate,
-} from '@coilpath/contract';
+import { causeCodeLabels, warrantyClaimStatuses, workOrderKindLabels } from '@coilpath/contract/vocabulary';
+import { warrantyClaimUpdateSchema } from '@coilpath/contract/fix-quality';
+import type { FactoryDefectCase, FactoryDefectModel, WarrantyClaimStatus, WarrantyClaimUpdate } from '@coilpath/contract';
 import { DataTable, type CoilpathColumn, type CoilpathFeatures } from '@/components/ui/data-table';
 import { Badge, Card } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';

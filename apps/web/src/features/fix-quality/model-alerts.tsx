@@ -1,7 +1,10 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, ClipboardPlus } from 'lucide-react';
-import { modelAlertTitle, workOrderLabel, workOrderStateLabels, type ModelAlert } from '@coilpath/contract';
+import { modelAlertTitle } from '@coilpath/contract/fix-quality';
+import { workOrderLabel } from '@coilpath/contract/work-orders';
+import { workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import type { ModelAlert } from '@coilpath/contract';
 import { Badge, Card } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';

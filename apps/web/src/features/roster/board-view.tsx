@@ -10,7 +10,9 @@
 import { useEffect, useEffectEvent, useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
 import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, Moon, Plus, ShieldAlert, Siren, X } from 'lucide-react';
 import type { Booking, Technician, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
-import { changedByLabel, priorityLabels, workOrderKindLabels, workOrderLabel, workOrderStateLabels } from '@coilpath/contract';
+import { changedByLabel } from '@coilpath/contract/events';
+import { priorityLabels, workOrderKindLabels, workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import { workOrderLabel } from '@coilpath/contract/work-orders';
 import { Button } from '@/components/ui/button';
 import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, gaugeText, loadState, offDayWord, monthName, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
 import { formatMinutes } from '@/lib/format';

@@ -10,7 +10,7 @@ import dayGridPlugin from '@fullcalendar/daygrid';
 import interactionPlugin, { type DropArg, type EventResizeDoneArg } from '@fullcalendar/interaction';
 import type { BusinessHoursInput, EventClickArg, EventContentArg, EventDropArg, EventInput } from '@fullcalendar/core';
 import type { Booking, Technician } from '@coilpath/contract';
-import { weekdays } from '@coilpath/contract';
+import { weekdays } from '@coilpath/contract/vocabulary';
 import type { RosterView } from './board';
 import { bookingSummary, colourOf, EventBody, eventNameExtras } from './parts';
 import { movedTimes, toWallClock } from './zone';

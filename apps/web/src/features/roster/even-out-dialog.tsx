@@ -1,6 +1,7 @@
 import { useEffect, useState } from 'react';
 import type { Technician } from '@coilpath/contract';
-import { priorityLabels, workOrderLabel } from '@coilpath/contract';
+import { priorityLabels } from '@coilpath/contract/vocabulary';
+import { workOrderLabel } from '@coilpath/contract/work-orders';
 import { Button } from '@/components/ui/button';
 import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';

@@ -1,6 +1,8 @@
 import { AlertTriangle } from 'lucide-react';
 import type { Booking, Technician, WorkOrder } from '@coilpath/contract';
-import { scheduleDay, epa608Labels, priorityLabels, workOrderKindLabels, workOrderLabel } from '@coilpath/contract';
+import { scheduleDay } from '@coilpath/contract/date-words';
+import { epa608Labels, priorityLabels, workOrderKindLabels } from '@coilpath/contract/vocabulary';
+import { workOrderLabel } from '@coilpath/contract/work-orders';
 import { formatInZone } from '@/lib/format';
 import { overrideSummary } from './rules';
 import { instantToLocal } from './zone';

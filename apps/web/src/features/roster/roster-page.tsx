@@ -2,7 +2,8 @@ import { lazy, Suspense, useCallback, useEffect, useMemo, useState, type ReactNo
 import { useSearchParams } from 'react-router-dom';
 import { ChevronLeft, ChevronRight, Eye, EyeOff, PanelRightClose, PanelRightOpen, Plus, Scale } from 'lucide-react';
 import type { Booking, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
-import { weekdays, workOrderLabel } from '@coilpath/contract';
+import { weekdays } from '@coilpath/contract/vocabulary';
+import { workOrderLabel } from '@coilpath/contract/work-orders';
 import { useBranch } from '@/lib/branch';
 import { Button } from '@/components/ui/button';
 import { Card, PageHeader } from '@/components/ui/page';

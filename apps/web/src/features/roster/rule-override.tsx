@@ -6,7 +6,7 @@
 import { AlertTriangle } from 'lucide-react';
 import type { RuleBreach } from '@coilpath/calc';
 import type { BookingRule } from '@coilpath/contract';
-import { bookingRuleLabels } from '@coilpath/contract';
+import { bookingRuleLabels } from '@coilpath/contract/roster';
 import { TextAreaField } from '@/components/ui/field';
 import type { UseFormRegisterReturn } from 'react-hook-form';
 import { offeredRules } from './rules';

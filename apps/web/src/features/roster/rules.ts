@@ -6,7 +6,8 @@
  */
 import { bookingBreaches, workOrderDueAt, type RuleBreach, type RuleJob } from '@coilpath/calc';
 import type { Booking, BookingRule, BookingRuleRefusal, Technician, WorkOrder } from '@coilpath/contract';
-import { andList, bookingRuleLabels, bookingRules } from '@coilpath/contract';
+import { andList } from '@coilpath/contract/common';
+import { bookingRuleLabels, bookingRules } from '@coilpath/contract/roster';
 import { ApiError } from '@/lib/api-client';
 
 /** What the rules read of a work order from the unplaced queue. */

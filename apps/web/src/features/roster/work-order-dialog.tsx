@@ -2,16 +2,8 @@ import { useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
-import {
-  kindsWithOrigin,
-  priorities,
-  priorityLabels,
-  workOrderCreateSchema,
-  workOrderKindLabels,
-  workOrderKinds,
-  workOrderLabel,
-  workOrderStateLabels,
-} from '@coilpath/contract';
+import { kindsWithOrigin, workOrderCreateSchema, workOrderLabel } from '@coilpath/contract/work-orders';
+import { priorities, priorityLabels, workOrderKindLabels, workOrderKinds, workOrderStateLabels } from '@coilpath/contract/vocabulary';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { useNotify } from '@/components/ui/notices';

@@ -3,24 +3,9 @@ import { useFieldArray, useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { Plus, Trash2 } from 'lucide-react';
 import { listRefrigerants } from '@coilpath/calc';
-import {
-  applianceCategories,
-  applianceCategoryLabels,
-  customerInputSchema,
-  siteInputSchema,
-  unitInputSchema,
-  unitKindLabels,
-  unitKinds,
-  type CustomerInput,
-  type CustomerRow,
-  type CustomerValues,
-  type SiteInput,
-  type SiteRow,
-  type SiteValues,
-  type UnitInput,
-  type UnitRow,
-  type UnitValues,
-} from '@coilpath/contract';
+import { applianceCategories, applianceCategoryLabels, unitKindLabels, unitKinds } from '@coilpath/contract/vocabulary';
+import { customerInputSchema, siteInputSchema, unitInputSchema } from '@coilpath/contract/sites';
+import type { CustomerInput, CustomerRow, CustomerValues, SiteInput, SiteRow, SiteValues, UnitInput, UnitRow, UnitValues } from '@coilpath/contract';
 import { api } from '@/lib/api-client';
 import { applyServerErrors } from '@/lib/form-errors';
 import { Button } from '@/components/ui/button';

@@ -1,7 +1,8 @@
 import { useCallback, useMemo, useState } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { Archive, ArchiveRestore, ArrowLeft, FileUp, Pencil, Plus, Trash2 } from 'lucide-react';
-import { applianceCategoryLabels, unitKindLabels, type UnitRow } from '@coilpath/contract';
+import { applianceCategoryLabels, unitKindLabels } from '@coilpath/contract/vocabulary';
+import type { UnitRow } from '@coilpath/contract';
 import { errorMessage } from '@/lib/api-client';
 import { formatNumber } from '@/lib/format';
 import { useListParams } from '@/lib/use-list-params';

@@ -1,15 +1,8 @@
 import { useMemo, useRef, useState } from 'react';
 import Papa from 'papaparse';
 import { AlertTriangle, CheckCircle2, Download, FileUp } from 'lucide-react';
-import {
-  normalizeImportHeader,
-  unitImportColumns,
-  unitImportExample,
-  unitImportLimits,
-  type SiteRow,
-  type UnitImportResult,
-  type UnitImportRowError,
-} from '@coilpath/contract';
+import { normalizeImportHeader, unitImportColumns, unitImportExample, unitImportLimits } from '@coilpath/contract/sites';
+import type { SiteRow, UnitImportResult, UnitImportRowError } from '@coilpath/contract';
 import { api, ApiError, errorMessage } from '@/lib/api-client';
 import { downloadCsv } from '@/lib/csv';
 import { bytesToBase64, convertedNote, decodeAs } from '@/lib/file-bytes';

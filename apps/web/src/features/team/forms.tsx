@@ -4,26 +4,10 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useQueryClient } from '@tanstack/react-query';
 import { z } from 'zod';
 import { psiToKpa } from '@coilpath/calc';
-import {
-  feetToMetres,
-  metresToFeet,
-  branchInputSchema,
-  epa608Labels,
-  epa608Types,
-  invitationInputSchema,
-  roleLabels,
-  roles,
-  skillSuggestions,
-  userProfileSchema,
-  weekdays,
-  type BranchDetail,
-  type BranchInput,
-  type BranchValues,
-  type InvitationInput,
-  type UserProfile,
-  type UserRow,
-  type WorkingHours,
-} from '@coilpath/contract';
+import { feetToMetres, metresToFeet } from '@coilpath/contract/measure';
+import { branchInputSchema, invitationInputSchema, skillSuggestions, userProfileSchema } from '@coilpath/contract/team';
+import { epa608Labels, epa608Types, roleLabels, roles, weekdays } from '@coilpath/contract/vocabulary';
+import type { BranchDetail, BranchInput, BranchValues, InvitationInput, UserProfile, UserRow, WorkingHours } from '@coilpath/contract';
 import { api } from '@/lib/api-client';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';

@@ -2,15 +2,9 @@ import { useCallback, useMemo, useState } from 'react';
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { Building2, CheckCircle2, Clock, MailPlus, Pencil, RotateCw, UserCheck, UserX, XCircle } from 'lucide-react';
 import { psiToKpa } from '@coilpath/calc';
-import {
-  epa608Labels,
-  formatElevation,
-  roleLabels,
-  type BranchDetail,
-  type InvitationRow,
-  type Page,
-  type UserRow,
-} from '@coilpath/contract';
+import { epa608Labels, roleLabels } from '@coilpath/contract/vocabulary';
+import { formatElevation } from '@coilpath/contract/measure';
+import type { BranchDetail, InvitationRow, Page, UserRow } from '@coilpath/contract';
 import { api, errorMessage } from '@/lib/api-client';
 import { formatInZone, formatMoney, todayInZone } from '@/lib/format';
 import { useListParams } from '@/lib/use-list-params';

@@ -1,6 +1,7 @@
 /** Readings trend per circuit (recharts, loaded only with the Unit file chunk). */
 import { CartesianGrid, Legend, Line, LineChart, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
-import { formatMeasure, measureSymbol, type ReadingUnits, type UnitFileReading } from '@coilpath/contract';
+import { formatMeasure, measureSymbol } from '@coilpath/contract/measure';
+import type { ReadingUnits, UnitFileReading } from '@coilpath/contract';
 import { formatInZone } from '@/lib/format';
 
 /**

@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { Link } from 'react-router-dom';
-import { formatMeasure, type MeasureKind, type ReadingUnits, type UnitFileReading } from '@coilpath/contract';
+import { formatMeasure } from '@coilpath/contract/measure';
+import type { MeasureKind, ReadingUnits, UnitFileReading } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { formatInZone } from '@/lib/format';
 import { UnitTable } from './unit-table';

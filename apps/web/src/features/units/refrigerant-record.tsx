@@ -5,16 +5,10 @@
  */
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { AlertTriangle, CheckCircle2, FileDown } from 'lucide-react';
-import {
-  recordDate,
-  additionExemptionLabels,
-  leakObligationStateLabels,
-  leakRateMethodLabels,
-  refrigerantRecordEntryText,
-  type LeakObligationState,
-  type RefrigerantRecord,
-  type RefrigerantRecordEvent,
-} from '@coilpath/contract';
+import { recordDate } from '@coilpath/contract/date-words';
+import { additionExemptionLabels, leakObligationStateLabels, leakRateMethodLabels } from '@coilpath/contract/vocabulary';
+import { refrigerantRecordEntryText } from '@coilpath/contract/unit-file';
+import type { LeakObligationState, RefrigerantRecord, RefrigerantRecordEvent } from '@coilpath/contract';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { api } from '@/lib/api-client';

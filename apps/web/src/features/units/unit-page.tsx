@@ -2,21 +2,10 @@ import { useEffect, useState, type ReactNode } from 'react';
 import { Link, useParams, useSearchParams } from 'react-router-dom';
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { AlertTriangle, FileText, Printer, Search } from 'lucide-react';
-import {
-  recordDate,
-  applianceCategoryLabels,
-  causeCodeLabels,
-  causeOriginLabels,
-  leakCaseStatusLabels,
-  measureSymbol,
-  readingUnitsBySystem,
-  readingsElevationNote,
-  unitKindLabels,
-  visitOutcomeLabels,
-  workOrderKindLabels,
-  workOrderStateLabels,
-  type UnitSearchResult,
-} from '@coilpath/contract';
+import { recordDate } from '@coilpath/contract/date-words';
+import { applianceCategoryLabels, causeCodeLabels, causeOriginLabels, leakCaseStatusLabels, unitKindLabels, visitOutcomeLabels, workOrderKindLabels, workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import { measureSymbol, readingUnitsBySystem, readingsElevationNote } from '@coilpath/contract/measure';
+import type { UnitSearchResult } from '@coilpath/contract';
 import { useBranch } from '@/lib/branch';
 import { useUser } from '@/lib/session';
 import { Button } from '@/components/ui/button';

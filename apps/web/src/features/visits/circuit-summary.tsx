@@ -1,5 +1,6 @@
 import { AlertTriangle, CheckCircle2 } from 'lucide-react';
-import { formatMeasure, type ReadingUnits } from '@coilpath/contract';
+import { formatMeasure } from '@coilpath/contract/measure';
+import type { ReadingUnits } from '@coilpath/contract';
 import { liveValues, parseEntry, sensorCheckView, type LiveSide } from './reading-units';
 
 type Branch = { sensorTolerancePercent: number; sensorToleranceAbsolute: number; elevationMeters: number };

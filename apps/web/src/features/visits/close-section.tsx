@@ -2,31 +2,9 @@ import { useState } from 'react';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
-import {
-  causeCodeLabels,
-  causeOriginLabels,
-  closeSignatureSchema,
-  leakRepairCloseRefusal,
-  noteAudienceLabels,
-  noteAudiences,
-  returnNeedLabels,
-  rootCauseChoice,
-  returnNeeds,
-  signatureChoiceRefusal,
-  signatureKindLabels,
-  signatureKinds,
-  visitOutcomeLabels,
-  visitOutcomes,
-  workOrderStateLabels,
-  type CloseVisitResult,
-  type NoteAudience,
-  type ReturnNeed,
-  type CloseSignature,
-  type SignatureKind,
-  type SummaryMailResult,
-  type VisitDetail,
-  type VisitOutcome,
-} from '@coilpath/contract';
+import { causeCodeLabels, causeOriginLabels, noteAudienceLabels, noteAudiences, returnNeedLabels, returnNeeds, signatureKindLabels, signatureKinds, visitOutcomeLabels, visitOutcomes, workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import { closeSignatureSchema, leakRepairCloseRefusal, rootCauseChoice, signatureChoiceRefusal } from '@coilpath/contract/visits';
+import type { CloseVisitResult, NoteAudience, ReturnNeed, CloseSignature, SignatureKind, SummaryMailResult, VisitDetail, VisitOutcome } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { TextAreaField, TextField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';

@@ -3,17 +3,9 @@ import { useForm } from 'react-hook-form';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
-import {
-  causeCodeLabels,
-  causeCodes,
-  causeOriginLabels,
-  causeOrigins,
-  findingInputSchema,
-  noteAudienceLabels,
-  noteAudiences,
-  type FindingInput,
-  type VisitDetail,
-} from '@coilpath/contract';
+import { causeCodeLabels, causeCodes, causeOriginLabels, causeOrigins, noteAudienceLabels, noteAudiences } from '@coilpath/contract/vocabulary';
+import { findingInputSchema } from '@coilpath/contract/visits';
+import type { FindingInput, VisitDetail } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextAreaField, TextField } from '@/components/ui/field';
 import { useEnterNext } from '@/components/ui/enter-next';

@@ -4,15 +4,8 @@
  * with the branch's psi tolerance in the same units, and the body the API receives (units stated).
  */
 import { atmosphericPressureAt, convertPressure, convertTemperature, pressureRange, psiToKpa, sensorCheck, subcooling, superheat } from '@coilpath/calc';
-import {
-  formatMeasure,
-  measureSymbol,
-  saveReadingsSchema,
-  type ReadingDto,
-  type ReadingInput,
-  type ReadingUnits,
-  type SaveReadings,
-} from '@coilpath/contract';
+import { formatMeasure, measureSymbol, readingRangeIssues } from '@coilpath/contract/measure';
+import type { ReadingDto, ReadingInput, ReadingUnits, SaveReadings } from '@coilpath/contract';
 
 export const readingFields = [
   'suctionPressure',
@@ -221,13 +214,14 @@ export function sensorCheckView(
 
 export interface ReadingsForm {
   body: SaveReadings | null;
-  /** Field errors by input id `${circuitId}.${field}`, from the shared contract schema. */
+  /** Field errors by input id `${circuitId}.${field}`, by the contract's rule (`readingRangeIssues`). */
   errors: Record<string, string>;
 }
 
 /**
  * The body the API receives — the units stated, one entry per circuit with something typed — checked
- * with the same zod schema the route uses, so a value out of range is marked before it is sent.
+ * with the range rule the route's schema applies (`readingRangeIssues`), so a value out of range is marked
+ * before it is sent (without loading zod on the Visit screen).
  */
 export function readingsForm(circuitIds: string[], valuesOf: (circuitId: string) => Record<string, string>, units: ReadingUnits): ReadingsForm {
   const readings: ReadingInput[] = [];
@@ -249,15 +243,6 @@ export function readingsForm(circuitIds: string[], valuesOf: (circuitId: string)
   }
   if (!readings.length) return { body: null, errors };
   const body = { units, readings };
-  const parsed = saveReadingsSchema.safeParse(body);
-  if (!parsed.success) {
-    for (const issue of parsed.error.issues) {
-      const [root, index, field] = issue.path;
-      if (root === 'readings' && typeof index === 'number' && typeof field === 'string') {
-        const id = `${readings[index]!.circuitId}.${field}`;
-        errors[id] ??= issue.message;
-      }
-    }
-  }
+  for (const issue of readingRangeIssues(units, readings)) errors[`${readings[issue.index]!.circuitId}.${issue.field}`] ??= issue.message;
   return { body: Object.keys(errors).length ? null : body, errors };
 }

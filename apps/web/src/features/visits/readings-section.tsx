@@ -1,7 +1,8 @@
 import { useMemo } from 'react';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { AlertTriangle, CheckCircle2 } from 'lucide-react';
-import { elevationNote, measureSymbol, readingUnitsBySystem, type ReadingUnits, type VisitDetail, type VisitUnitDto } from '@coilpath/contract';
+import { elevationNote, measureSymbol, readingUnitsBySystem } from '@coilpath/contract/measure';
+import type { ReadingUnits, VisitDetail, VisitUnitDto } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { Card, SafetyNote } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';

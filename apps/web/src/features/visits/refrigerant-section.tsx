@@ -1,7 +1,9 @@
 import { useEffect, useEffectEvent, useRef, useState } from 'react';
 import { AlertTriangle } from 'lucide-react';
 import { listRefrigerants } from '@coilpath/calc';
-import { recordDate, refrigerantEventReasonLabels, refrigerantEventReasons, type RefrigerantEventReason, type RefrigerantEventResult, type VisitDetail } from '@coilpath/contract';
+import { recordDate } from '@coilpath/contract/date-words';
+import { refrigerantEventReasonLabels, refrigerantEventReasons } from '@coilpath/contract/vocabulary';
+import type { RefrigerantEventReason, RefrigerantEventResult, VisitDetail } from '@coilpath/contract';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Button } from '@/components/ui/button';
 import { SelectField, TextField } from '@/components/ui/field';

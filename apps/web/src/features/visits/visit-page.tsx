@@ -2,20 +2,29 @@ import { useEffect } from 'react';
 import { Link, useNavigate, useParams } from 'react-router-dom';
 import { useQuery } from '@tanstack/react-query';
 import { Phone } from 'lucide-react';
-import { causeCodeLabels, epa608Labels, visitStatusLabels, workOrderKindLabels } from '@coilpath/contract';
+import { causeCodeLabels, epa608Labels, workOrderKindLabels } from '@coilpath/contract/vocabulary';
+import { visitStatusLabels } from '@coilpath/contract/visit-status';
 import { Badge, Card, PageHeader } from '@/components/ui/page';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
 import { hasUnsaved, useVisitDraft } from './draft';
-import { ReadingsSection } from './readings-section';
-import { FindingsSection } from './findings-section';
-import { RefrigerantSection } from './refrigerant-section';
-import { AttachmentsSection } from './attachments-section';
-import { CloseSection } from './close-section';
 import { StateButton } from '@/components/visit-state-button';
 import { OutboxPanel } from '@/components/outbox-panel';
 import { currentVisitQuery } from './visit-api';
 import { visitQuery } from '@/lib/visit-queries';
+import { lazySection } from '@/components/ui/lazy-section';
+
+/**
+ * The work sections, below the job on a phone, are each their own chunk, fetched while the visit loads: the
+ * first view waits for neither the refrigerants' saturation tables (readings), zod and the form library
+ * (findings), nor the signature pad (close-out).
+ */
+const ReadingsSection = lazySection('Readings', () => import('./readings-section').then((m) => m.ReadingsSection));
+const FindingsSection = lazySection('Findings', () => import('./findings-section').then((m) => m.FindingsSection));
+const RefrigerantSection = lazySection('Refrigerant', () => import('./refrigerant-section').then((m) => m.RefrigerantSection));
+const AttachmentsSection = lazySection('Photos and documents', () => import('./attachments-section').then((m) => m.AttachmentsSection));
+const CloseSection = lazySection('Close-out', () => import('./close-section').then((m) => m.CloseSection));
+const sections = [ReadingsSection, FindingsSection, RefrigerantSection, AttachmentsSection, CloseSection];
 
 const statusTone = { booked: 'neutral', en_route: 'info', on_site: 'brand', closed: 'ok' } as const;
 
@@ -40,6 +49,7 @@ function CurrentVisit() {
 }
 
 function VisitScreen({ id }: { id: string }) {
+  useEffect(() => sections.forEach((s) => s.preload()), []);
   const q = useQuery(visitQuery(id));
   const { draft, update, restored } = useVisitDraft(id);
   // Offline with nothing kept for this visit: say so, rather than loading until the signal returns.

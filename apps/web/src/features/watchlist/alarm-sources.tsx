@@ -1,13 +1,7 @@
 import { useMemo, useState } from 'react';
 import { AlertTriangle, Copy, KeyRound, Plus, Power, RotateCcw } from 'lucide-react';
-import {
-  alarmDeliveryStatusLabels,
-  alarmRejectionReasonLabels,
-  type AlarmDeliveryRow,
-  type AlarmRejectionReason,
-  type AlarmSourceRow,
-  type AlarmSourceSecret,
-} from '@coilpath/contract';
+import { alarmDeliveryStatusLabels, alarmRejectionReasonLabels } from '@coilpath/contract/vocabulary';
+import type { AlarmDeliveryRow, AlarmRejectionReason, AlarmSourceRow, AlarmSourceSecret } from '@coilpath/contract';
 import { errorMessage } from '@/lib/api-client';
 import { formatInZone } from '@/lib/format';
 import { Badge } from '@/components/ui/page';

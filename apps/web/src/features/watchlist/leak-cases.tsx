@@ -1,6 +1,8 @@
 import { useCallback, useState } from 'react';
 import { AlertTriangle, CheckCircle2, Clock, Wrench } from 'lucide-react';
-import { recordDate, epa608Labels, leakCaseStatusLabels, leakObligationStateLabels, priorities, priorityLabels, type LeakCaseRow, type LeakDeadline, type OpenReturnDetails, type Priority } from '@coilpath/contract';
+import { recordDate } from '@coilpath/contract/date-words';
+import { epa608Labels, leakCaseStatusLabels, leakObligationStateLabels, priorities, priorityLabels } from '@coilpath/contract/vocabulary';
+import type { LeakCaseRow, LeakDeadline, OpenReturnDetails, Priority } from '@coilpath/contract';
 import { ApiError, errorMessage } from '@/lib/api-client';
 import { Badge, Card, SafetyNote } from '@/components/ui/page';
 import { Button } from '@/components/ui/button';

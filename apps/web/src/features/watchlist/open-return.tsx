@@ -1,6 +1,8 @@
 import { Link } from 'react-router-dom';
 import { ExternalLink } from 'lucide-react';
-import { openReturnDetailsSchema, workOrderLabel, workOrderStateLabels, type OpenReturnDetails } from '@coilpath/contract';
+import { openReturnDetailsSchema, workOrderLabel } from '@coilpath/contract/work-orders';
+import { workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import type { OpenReturnDetails } from '@coilpath/contract';
 import { ApiError } from '@/lib/api-client';
 
 /** The open return visit a 409 `open_return_exists` names; null for any other error. */

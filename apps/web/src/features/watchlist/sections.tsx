@@ -1,16 +1,7 @@
 import { useCallback, useMemo, useState } from 'react';
 import { AlertTriangle, Send } from 'lucide-react';
-import {
-  causeCodeLabels,
-  priorities,
-  priorityLabels,
-  returnNeedLabels,
-  visitOutcomeLabels,
-  workOrderKindLabels,
-  type Priority,
-  type RepeatAlarmUnit,
-  type ReturnVisitRow,
-} from '@coilpath/contract';
+import { causeCodeLabels, priorities, priorityLabels, returnNeedLabels, visitOutcomeLabels, workOrderKindLabels } from '@coilpath/contract/vocabulary';
+import type { Priority, RepeatAlarmUnit, ReturnVisitRow } from '@coilpath/contract';
 import { addDays } from '@coilpath/calc';
 import { errorMessage } from '@/lib/api-client';
 import { formatInZone, todayInZone } from '@/lib/format';
