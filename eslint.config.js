@@ -1,7 +1,9 @@
 // Coilpath's lint: `npm run lint`. typescript-eslint's recommended rules (syntax only, no type information,
 // to stay fast), the React hooks rules for the web, and the layers (DEVELOPERS.md, "Layers"):
 //   web  app → features → components → lib     (a feature never imports another feature)
-//   api  lib never imports modules
+//   api  lib never imports modules; routes → service → repo: a route never imports a repo or another route
+//        file; only routes (and the app) use the HTTP side of auth (middleware, cookies): the rest asks
+//        auth/policy.ts
 // A rule is turned off only with a one-line reason beside it.
 import { fileURLToPath } from 'node:url';
 import js from '@eslint/js';
@@ -102,6 +104,31 @@ export default defineConfig(
           ],
         },
       ],
+    },
+  },
+  {
+    // API layers inside a module (DEVELOPERS.md, "Layers"). Files, not folders, so plain import patterns:
+    // eslint-plugin-boundaries classifies folders.
+    files: ['apps/api/src/modules/**/*.ts'],
+    ignores: ['**/*.test.ts', 'apps/api/src/modules/*/*.routes.ts'],
+    rules: {
+      'no-restricted-imports': ['error', {
+        patterns: [
+          { group: ['**/auth/middleware', '**/auth/cookies'], message: 'services, repos and presenters never reach HTTP: who may act is auth/policy.ts; middleware and cookies belong to routes' },
+          { group: ['**/*.routes'], message: 'a service never imports a route file: move what both need down (a service, a repo, or auth/)' },
+        ],
+      }],
+    },
+  },
+  {
+    files: ['apps/api/src/modules/*/*.routes.ts'],
+    rules: {
+      'no-restricted-imports': ['error', {
+        patterns: [
+          { group: ['**/*.repo'], message: 'a route calls its service, never a repo (routes → service → repo)' },
+          { group: ['**/*.routes'], message: 'a route file never imports another route file: move what both need down (auth/cookies.ts, a service)' },
+        ],
+      }],
     },
   },
 );

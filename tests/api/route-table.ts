@@ -85,7 +85,7 @@ import { eq } from 'drizzle-orm';
 import { randomBytes } from 'node:crypto';
 import type { MailMessage } from '../../apps/api/src/mail/mailer';
 import { sendPasswordReset } from '../../apps/api/src/modules/auth/password-reset.service';
-import { signLinkToken } from '../../apps/api/src/auth/tokens';
+import { signLinkToken } from '../../apps/api/src/auth/link-tokens';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';

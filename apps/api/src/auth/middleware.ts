@@ -1,33 +1,18 @@
 import type { NextFunction, Request, Response } from 'express';
-import { eq, sql } from 'drizzle-orm';
-import type { Role, SessionUser } from '@coilpath/contract';
+import type { Role } from '@coilpath/contract';
 import type { AppContext } from '../context';
-import { endedSessions, users } from '../db/schema';
-import { forbidden, notFound, unauthorized } from '../lib/errors';
-import { SESSION_COOKIE, verifySession } from './session';
+import { unauthorized } from '../lib/errors';
+import { enforce, roleMayAct } from './policy';
+import { sessionCookieOf } from './cookies';
+import { prepareSessionUser } from './session.repo';
+import { verifySession } from './session';
 
 /**
  * Reads the session cookie; sets `req.user` (and `req.session`) when the token is valid, the user is active,
  * the token's session version is the user's, and the session was not signed out (`ended_sessions`).
  */
 export function authenticate(ctx: AppContext) {
-  // Asked on every request: built once (a named prepared statement on PostgreSQL). An empty session id (a
-  // token from before ids) matches no ended session.
-  const sessionUser = ctx.db
-    .select({
-      id: users.id,
-      name: users.name,
-      email: users.email,
-      role: users.role,
-      branchId: users.branchId,
-      active: users.active,
-      sessionVersion: users.sessionVersion,
-      ended: sql<boolean>`exists (select 1 from ${endedSessions} where ${endedSessions.sessionId} = ${sql.placeholder('sid')})`,
-    })
-    .from(users)
-    .where(eq(users.id, sql.placeholder('id')))
-    .limit(1)
-    .prepare('coilpath_session_user');
+  const sessionUser = prepareSessionUser(ctx.db);
   type Row = Awaited<ReturnType<typeof sessionUser.execute>>[number] | undefined;
   // On PGlite the database tells this (its only) process when a user row changes or one of their sessions is
   // signed out, so rows are kept between requests — per user and session — and dropped at that notice; on
@@ -59,8 +44,8 @@ export function authenticate(ctx: AppContext) {
     return row;
   };
   return async (req: Request, _res: Response, next: NextFunction) => {
-    const token: unknown = req.cookies?.[SESSION_COOKIE];
-    if (typeof token === 'string' && token) {
+    const token = sessionCookieOf(req);
+    if (token) {
       const claims = await verifySession(ctx.secret, token, ctx.clock.now());
       if (claims) {
         const u = await readUser(claims.sub, claims.sid ?? '');
@@ -79,42 +64,14 @@ export function requireAuth(req: Request, _res: Response, next: NextFunction) {
   next();
 }
 
-const roleNames: Record<Role, string> = {
-  owner: 'owners',
-  branch_manager: 'branch managers',
-  dispatcher: 'dispatchers',
-  technician: 'technicians',
-};
-
-/** 401 without a session, 403 when the role may not use the route. */
+/** 401 without a session, 403 when the role may not use the route (`roleMayAct` in `policy.ts`). */
 export function requireRole(...allowed: Role[]) {
   return (req: Request, _res: Response, next: NextFunction) => {
     if (!req.user) throw unauthorized();
-    if (!allowed.includes(req.user.role)) {
-      throw forbidden(`Only ${allowed.map((r) => roleNames[r]).join(', ')} may do this.`);
-    }
+    enforce(roleMayAct(req.user, allowed));
     next();
   };
 }
 
-/**
- * The branches a user may see: `null` = every branch (owner). A request for another branch's data is
- * answered 404, never 403, so it does not reveal that the record exists.
- */
-export function branchScope(user: SessionUser): string[] | null {
-  if (user.role === 'owner') return null;
-  return user.branchId ? [user.branchId] : [];
-}
-
-/** Resolves the branch a list request is about; refuses another branch with 404. */
-export function resolveBranch(user: SessionUser, requested: string | undefined): string | undefined {
-  if (user.role === 'owner') return requested;
-  if (requested && requested !== user.branchId) throw notFound('branch');
-  return user.branchId ?? undefined;
-}
-
-/** Throws 404 when a record's branch is outside the user's scope. */
-export function assertBranch(user: SessionUser, branchId: string | null | undefined, what = 'record'): void {
-  if (user.role === 'owner') return;
-  if (!branchId || branchId !== user.branchId) throw notFound(what);
-}
+// Routes have long taken these from here; the rules live in `policy.ts`.
+export { assertBranch, branchScope, resolveBranch } from './policy';

@@ -20,7 +20,7 @@ import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { agreementUnits, agreements, auditEvents, branches, customers, sites, units, users, workOrders } from '../../db/schema';
-import { assertBranch } from '../../auth/middleware';
+import { assertBranch } from '../../auth/policy';
 import { notFound, unprocessable } from '../../lib/errors';
 import { branchFilter, branchesById, todayIn } from '../watchlist/scope';
 import { actAs } from '../events/actor';

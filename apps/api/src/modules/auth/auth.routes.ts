@@ -1,24 +1,14 @@
-import { Router, type Response } from 'express';
+import { Router } from 'express';
 import { ipKeyGenerator } from 'express-rate-limit';
 import { publicLimiter } from '../../auth/public-limiter';
 import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, ownerSetupSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { SESSION_COOKIE } from '../../auth/session';
+import { clearSessionCookie, setSessionCookie } from '../../auth/cookies';
 import { HttpError, unauthorized } from '../../lib/errors';
 import { createSignInGuard, signInLimitsFrom, signInRefusalMessage } from '../../auth/sign-in-limits';
 import { signIn, signOut, signOutEverywhere } from './auth.service';
 import { checkOwnerSetup, completeOwnerSetup } from './owner-setup.service';
 import { checkPasswordReset, requestPasswordReset, resetPassword } from './password-reset.service';
-
-export function setSessionCookie(ctx: AppContext, res: Response, token: string) {
-  res.cookie(SESSION_COOKIE, token, {
-    httpOnly: true,
-    sameSite: 'lax',
-    secure: ctx.config.secureCookies,
-    path: '/',
-    maxAge: ctx.config.sessionHours * 3600 * 1000,
-  });
-}
 
 export function authRoutes(ctx: AppContext): Router {
   const r = Router();
@@ -65,14 +55,14 @@ export function authRoutes(ctx: AppContext): Router {
   // Open to anyone (a stale cookie can always be dropped); a live session is ended on the server too.
   r.post('/sign-out', async (req, res) => {
     if (req.user && req.session) await signOut(ctx, req.user, req.session);
-    res.clearCookie(SESSION_COOKIE, { path: '/' });
+    clearSessionCookie(res);
     res.status(204).end();
   });
 
   r.post('/sign-out-everywhere', async (req, res) => {
     if (!req.user) throw unauthorized();
     const answer = await signOutEverywhere(ctx, req.user);
-    res.clearCookie(SESSION_COOKIE, { path: '/' });
+    clearSessionCookie(res);
     res.json(answer);
   });
 

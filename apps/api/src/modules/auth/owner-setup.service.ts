@@ -6,9 +6,8 @@ import { appMeta, auditEvents, users } from '../../db/schema';
 import { hashPassword } from '../../auth/password';
 import { assertPasswordAllowed } from '../../auth/password-rules';
 import { signSession } from '../../auth/session';
-import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
+import { hashLinkToken, linkErrors, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/link-tokens';
 import { HttpError } from '../../lib/errors';
-import { linkErrors } from '../team/team.service';
 
 /** The key in `app_meta` of the pending setup link (its token's SHA-256 and expiry). */
 const SETUP_KEY = 'owner_setup';

@@ -6,8 +6,7 @@ import { composeMail, mail, mailTime } from '../../mail/compose';
 import { hashPassword } from '../../auth/password';
 import { assertPasswordAllowed } from '../../auth/password-rules';
 import { signSession } from '../../auth/session';
-import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
-import { linkErrors } from '../team/team.service';
+import { hashLinkToken, linkErrors, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/link-tokens';
 
 export const RESET_MINUTES = 60;
 

@@ -3,7 +3,7 @@ import type { z } from 'zod';
 import type { BranchDetail, BranchValues, SessionUser, branchPatchSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { branches } from '../../db/schema';
-import { assertBranch } from '../../auth/middleware';
+import { assertBranch } from '../../auth/policy';
 import { conflict, notFound } from '../../lib/errors';
 import { changeAs } from '../events/actor';
 

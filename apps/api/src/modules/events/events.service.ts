@@ -6,7 +6,7 @@
 import { liveKindsFor, type LiveEvent, type LiveEventKind, type SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import type { Database } from '../../db/client';
-import { branchScope } from '../../auth/middleware';
+import { branchScope } from '../../auth/policy';
 import { eventsAfter, findEvent, lastEventId, pruneEvents, sessionState, type LiveEventRecord } from './events.repo';
 
 /** The one rule of who hears what: within the person's branches, the kinds of their role, a `day` only their own. */

@@ -24,7 +24,7 @@ import { bookingBreaches, unoverridden, workingWindow, workOrderDueAt, type Book
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
 import { attachments, auditEvents, bookings, branches, findings, leakCases, readings, sites, units, users, visits, workOrders } from '../../db/schema';
-import { assertBranch, branchScope, resolveBranch } from '../../auth/middleware';
+import { assertBranch, branchScope, resolveBranch } from '../../auth/policy';
 import { conflict, notFound } from '../../lib/errors';
 import { localDay, localTime, toCalcTechnician } from './scheduling';
 import { actAs } from '../events/actor';

@@ -10,7 +10,8 @@ import {
   suggestSchema,
 } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { requireRole, resolveBranch } from '../../auth/middleware';
+import { requireRole } from '../../auth/middleware';
+import { resolveBranch } from '../../auth/policy';
 import { endpoint, idParams } from '../../lib/endpoint';
 import { createRevisionCache } from '../../lib/revision-cache';
 import { createBooking, deleteBooking, listBookings, updateBooking } from './bookings.service';

@@ -6,7 +6,7 @@ import { addDays, evenOut, rankTechnicians, technicianLoad, type SchedulingJob }
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
 import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
-import { assertBranch, resolveBranch } from '../../auth/middleware';
+import { assertBranch, resolveBranch } from '../../auth/policy';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
 import { createBooking, overlapping, ruleJob, updateBooking } from './bookings.service';
 import {

@@ -1,7 +1,7 @@
 import { asc, desc, ilike, or, type SQL } from 'drizzle-orm';
 import type { PgColumn } from 'drizzle-orm/pg-core';
 import type { SessionUser } from '@coilpath/contract';
-import { resolveBranch } from '../../auth/middleware';
+import { resolveBranch } from '../../auth/policy';
 import { notFound } from '../../lib/errors';
 
 /** `%`, `_` and `\` typed by a person are literal characters, not patterns. */

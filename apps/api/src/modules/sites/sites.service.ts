@@ -16,7 +16,7 @@ import type {
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { branches, customers, sites, units } from '../../db/schema';
-import { assertBranch } from '../../auth/middleware';
+import { assertBranch, enforce, ownBranchForNew } from '../../auth/policy';
 import { badRequest, conflict, notFound } from '../../lib/errors';
 import { historyCounts, refuseIfHistory } from './history';
 import { listBranch, orderFor, pageWindow, searchAny } from './list-query';
@@ -100,11 +100,9 @@ export async function getCustomer(db: Tx, user: SessionUser, id: string): Promis
 
 /** The branch a new record goes to: the owner names it; everyone else creates in their own. */
 async function targetBranch(db: Tx, user: SessionUser, requested: string | null | undefined): Promise<string> {
-  if (user.role !== 'owner') {
-    if (!user.branchId) throw notFound('branch');
-    if (requested && requested !== user.branchId) throw notFound('branch');
-    return user.branchId;
-  }
+  const own = ownBranchForNew(user, requested);
+  enforce(own);
+  if (own.ok && own.branchId) return own.branchId;
   if (!requested) throw badRequest('Choose the branch this customer belongs to.', { fields: [{ path: 'branchId', message: 'Choose the branch' }] });
   const [b] = await db.select({ id: branches.id, archivedAt: branches.archivedAt }).from(branches).where(eq(branches.id, requested));
   if (!b) throw notFound('branch');

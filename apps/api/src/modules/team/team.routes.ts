@@ -4,7 +4,7 @@ import { acceptInvitationSchema, invitationInputSchema, linkCheckSchema, userPro
 import type { AppContext } from '../../context';
 import { requireAuth, requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
-import { setSessionCookie } from '../auth/auth.routes';
+import { setSessionCookie } from '../../auth/cookies';
 import * as svc from './team.service';
 
 /**

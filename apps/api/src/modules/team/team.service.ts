@@ -14,12 +14,12 @@ import { composeMail, mail, mailTime } from '../../mail/compose';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { branches, invitations, users } from '../../db/schema';
-import { assertBranch } from '../../auth/middleware';
+import { assertBranch, enforce, mayDeactivate } from '../../auth/policy';
 import { hashPassword } from '../../auth/password';
 import { assertPasswordAllowed } from '../../auth/password-rules';
 import { signSession } from '../../auth/session';
-import { hashLinkToken, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/tokens';
-import { conflict, forbidden, HttpError, notFound } from '../../lib/errors';
+import { hashLinkToken, linkErrors, newLinkToken, signLinkToken, verifyLinkToken } from '../../auth/link-tokens';
+import { conflict, HttpError, notFound } from '../../lib/errors';
 import { listBranch, orderFor, pageWindow, searchAny } from '../sites/list-query';
 import { actAs } from '../events/actor';
 
@@ -169,7 +169,7 @@ export async function setUserActive(ctx: AppContext, actor: SessionUser, id: str
     await actAs(tx, actor.id);
     const current = await getUser(tx, actor, id);
     if (!active) {
-      if (current.id === actor.id) throw forbidden('You cannot deactivate yourself. Ask another owner.');
+      enforce(mayDeactivate(actor, current.id));
       await refuseLastOwner(tx, current);
       await tx
         .update(users)
@@ -287,12 +287,6 @@ export async function revokeInvitation(ctx: AppContext, id: string): Promise<Inv
 }
 
 // ---- public: the invited person's side ------------------------------------------------------
-
-export const linkErrors = {
-  invalid: (what: string) => new HttpError(400, 'link_invalid', `This ${what} link is not valid (it may be incomplete or altered). Copy the whole link from the e-mail, or ask for a new one.`),
-  used: (what: string, next: string) => new HttpError(410, 'link_used', `This ${what} link has already been used. ${next}`),
-  expired: (what: string, next: string) => new HttpError(410, 'link_expired', `This ${what} link has expired. ${next}`),
-};
 
 async function openInvitation(ctx: AppContext, db: Tx, signed: string) {
   const token = verifyLinkToken(ctx.secret, 'invitation', signed);

@@ -5,7 +5,7 @@ import type { Clock } from '../../lib/clock';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeTwoBranches, makeUser, TEST_PASSWORD, weekdayHours } from '../../testing/fixtures';
 import { branches, users } from '../../db/schema';
-import { signLinkToken } from '../../auth/tokens';
+import { signLinkToken } from '../../auth/link-tokens';
 
 /** A clock the test can move (expiry of links). */
 const clock: Clock & { at: Date; advance(hours: number): void } = {

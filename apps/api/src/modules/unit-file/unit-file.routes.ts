@@ -2,7 +2,7 @@ import { Router } from 'express';
 import { z } from 'zod';
 import { idSchema, refrigerantRecordQuerySchema, unitSearchQuerySchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { resolveBranch } from '../../auth/middleware';
+import { resolveBranch } from '../../auth/policy';
 import { endpoint } from '../../lib/endpoint';
 import { sendStoredFile } from '../../lib/send-file';
 import { readStoredFile } from '../../storage/storage';

@@ -26,6 +26,7 @@ import {
   workOrders,
 } from '../../db/schema';
 import { notFound } from '../../lib/errors';
+import { enforce, unitMayRead } from '../../auth/policy';
 import { readingDto } from '../visits/dto';
 
 /** Readings returned for the trend (the latest ones). */
@@ -56,13 +57,12 @@ function techAssigned(db: Db, techId: string, unitId = units.id) {
 export async function readableUnit(db: Db, user: SessionUser, unitId: string) {
   const [u] = await db.select().from(units).where(eq(units.id, unitId)).limit(1);
   if (!u) throw notFound('unit');
-  if (user.role === 'owner') return u;
+  let onAssignments = false;
   if (user.role === 'technician') {
     const [ok] = await db.select({ id: units.id }).from(units).where(and(eq(units.id, unitId), techAssigned(db, user.id))).limit(1);
-    if (!ok) throw notFound('unit');
-    return u;
+    onAssignments = !!ok;
   }
-  if (u.branchId !== user.branchId) throw notFound('unit');
+  enforce(unitMayRead(user, u, onAssignments));
   return u;
 }
 

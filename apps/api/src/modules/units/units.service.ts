@@ -5,7 +5,7 @@ import type { CircuitRow, Page, SessionUser, UnitRow, UnitUpdateValues, UnitValu
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { circuits, readings, sites, units } from '../../db/schema';
-import { assertBranch } from '../../auth/middleware';
+import { assertBranch } from '../../auth/policy';
 import { conflict, HttpError, notFound } from '../../lib/errors';
 import { historyCounts, refuseIfHistory } from '../sites/history';
 import { listBranch, orderFor, pageWindow, searchAny } from '../sites/list-query';

@@ -16,7 +16,8 @@ import type { SessionUser } from '@coilpath/contract';
 import { recordingRefusal } from '@coilpath/contract';
 import type { Tx } from '../../db/client';
 import { units, visits, workOrders } from '../../db/schema';
-import { conflict, forbidden, notFound } from '../../lib/errors';
+import { conflict, notFound } from '../../lib/errors';
+import { enforce, unitMayRead, visitMayRead, visitMayRecordWork } from '../../auth/policy';
 
 export type VisitRow = typeof visits.$inferSelect;
 
@@ -28,22 +29,13 @@ export async function loadVisit(db: Tx, id: string, opts: { lock?: boolean } = {
 
 /** Throws 404 when the signed-in person may not see the visit. */
 export function assertVisitReadable(user: SessionUser, v: VisitRow | undefined): asserts v is VisitRow {
-  if (!v) throw notFound('visit');
-  if (user.role === 'technician') {
-    if (v.techId !== user.id) throw notFound('visit');
-    return;
-  }
-  if (user.role === 'owner') return;
-  if (!user.branchId || v.branchId !== user.branchId) throw notFound('visit');
+  enforce(visitMayRead(user, v));
 }
 
 /** Throws 404/403/409 unless the signed-in person is the assigned technician of an open visit. */
 export function assertVisitWritable(user: SessionUser, v: VisitRow | undefined): asserts v is VisitRow {
-  assertVisitReadable(user, v);
-  if (user.role !== 'technician') {
-    throw forbidden('Only the technician assigned to this visit records its work. Ask them, or reassign the visit on the Roster.');
-  }
-  if (v.closedAt) {
+  enforce(visitMayRecordWork(user, v));
+  if (v!.closedAt) {
     throw conflict('visit_closed', 'This visit is already closed; it takes no more work. Add a return visit if more is needed.');
   }
 }
@@ -99,10 +91,6 @@ export async function loadReadableUnit(db: Tx, user: SessionUser, unitId: string
     .where(eq(units.id, unitId))
     .limit(1);
   if (!row) throw notFound('unit');
-  if (user.role === 'technician') {
-    if (!row.assigned) throw notFound('unit');
-  } else if (user.role !== 'owner' && row.unit.branchId !== user.branchId) {
-    throw notFound('unit');
-  }
+  enforce(unitMayRead(user, row.unit, row.assigned));
   return row.unit;
 }

@@ -10,6 +10,7 @@ import { readingUnitsBySystem, type SessionUser, type UnitBriefing } from '@coil
 import type { AppContext } from '../../context';
 import { alarms, attachments, branches, circuits, findings, leakCases, readings, refrigerantEvents, sites, units, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
+import { enforce, unitMayRead } from '../../auth/policy';
 import { unitOnAssignments } from './access';
 import { attachmentDto, findingDto, leakCaseDto, readingDto } from './dto';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
@@ -35,7 +36,7 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
     .where(eq(units.id, unitId))
     .limit(1);
   if (!row) throw notFound('unit');
-  if (user.role === 'technician' ? !row.assigned : user.role !== 'owner' && row.unit.branchId !== user.branchId) throw notFound('unit');
+  enforce(unitMayRead(user, row.unit, row.assigned));
   const u = row.unit;
   const now = ctx.clock.now();
   const year = format(new TZDate(now.getTime(), row.timeZone), 'yyyy');

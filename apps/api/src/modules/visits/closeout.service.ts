@@ -5,7 +5,8 @@ import { requiredCertificationFor } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import { branches, customers, findings, leakCases, refrigerantEvents, sites, units, users, visitEvents, visitSignatures, visits, workOrders } from '../../db/schema';
-import { conflict, forbidden, HttpError } from '../../lib/errors';
+import { conflict, HttpError } from '../../lib/errors';
+import { enforce, visitMayResendSummary } from '../../auth/policy';
 import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
 import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
@@ -231,6 +232,6 @@ export async function resendSummary(ctx: AppContext, user: SessionUser, visitId:
   const v = await loadVisit(ctx.db, visitId);
   assertVisitReadable(user, v);
   if (!v.closedAt) throw conflict('visit_open', 'The summary is sent when the visit closes. Close the visit first.');
-  if (user.role === 'technician' && v.techId !== user.id) throw forbidden();
+  enforce(visitMayResendSummary(user, v));
   return sendSummary(ctx, user, visitId);
 }

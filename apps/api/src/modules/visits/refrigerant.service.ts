@@ -8,7 +8,8 @@ import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
 import { branches, circuits, leakCases, refrigerantEvents, units } from '../../db/schema';
-import { badRequest, conflict, forbidden, notFound } from '../../lib/errors';
+import { badRequest, conflict, notFound } from '../../lib/errors';
+import { enforce, mayRecordRefrigerant } from '../../auth/policy';
 import { assertVisitRecordable, loadReadableUnit, loadVisit, type UnitRow } from './access';
 import { leakCaseDto, refrigerantEventDto } from './dto';
 import { unitsOfWorkOrder } from './visits.service';
@@ -64,9 +65,7 @@ async function leakCheck(tx: Tx, unit: UnitRow, asOf: string): Promise<LeakCheck
  */
 export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser, unitId: string, input: Input): Promise<RefrigerantEventResult & { created: boolean }> {
   const unit = await loadReadableUnit(ctx.db, user, unitId);
-  if (user.role !== 'technician') {
-    throw forbidden('Only the technician doing the work records refrigerant added or recovered.');
-  }
+  enforce(mayRecordRefrigerant(user));
   if (!listRefrigerants().some((r) => r.id === input.refrigerant)) {
     throw badRequest(`Unknown refrigerant ${input.refrigerant}.`, { fields: [{ path: 'refrigerant', message: 'Choose a refrigerant from the list' }] });
   }

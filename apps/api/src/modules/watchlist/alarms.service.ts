@@ -16,7 +16,7 @@ import { zonedInstant } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import { alarms, circuits, sites, units } from '../../db/schema';
-import { assertBranch } from '../../auth/middleware';
+import { assertBranch } from '../../auth/policy';
 import { HttpError, notFound, unprocessable } from '../../lib/errors';
 import { importText } from '../../lib/text-file';
 import { branchFilter, oneBranch } from './scope';

@@ -4,7 +4,7 @@ import type { SessionUser } from '@coilpath/contract';
 import { zonedDate } from '@coilpath/calc';
 import type { Db, Tx } from '../../db/client';
 import { branches } from '../../db/schema';
-import { resolveBranch } from '../../auth/middleware';
+import { resolveBranch } from '../../auth/policy';
 import { badRequest, notFound } from '../../lib/errors';
 
 /** Matches no row: a branch user without a branch sees nothing. */

@@ -37,7 +37,7 @@ import {
   visits,
   workOrders,
 } from '../../db/schema';
-import { assertBranch } from '../../auth/middleware';
+import { assertBranch } from '../../auth/policy';
 import { HttpError, conflict, notFound, unprocessable } from '../../lib/errors';
 import { branchFilter, branchesById, branchesInScope, todayIn, type BranchInfo } from './scope';
 import { buildLedger, loadLedgerSource } from '../unit-file/refrigerant-record';

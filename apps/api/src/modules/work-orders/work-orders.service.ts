@@ -5,7 +5,7 @@ import { modelAlertRef, workOrderCreateSchema, workOrderLabel, workOrderListQuer
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
 import { bookings, leakCases, sites, units, workOrders } from '../../db/schema';
-import { assertBranch, branchScope, resolveBranch } from '../../auth/middleware';
+import { assertBranch, branchScope, resolveBranch } from '../../auth/policy';
 import { badRequest, conflict, notFound } from '../../lib/errors';
 import { findOpenReturn, openReturnExists, withOneOpenReturn } from './open-return';
 import { actAs } from '../events/actor';

@@ -1,4 +1,5 @@
 import { createHash, createHmac, randomBytes, timingSafeEqual } from 'node:crypto';
+import { HttpError } from '../lib/errors';
 
 export type LinkPurpose = 'invitation' | 'password-reset' | 'owner-setup';
 
@@ -34,3 +35,10 @@ export function verifyLinkToken(secret: Uint8Array, purpose: LinkPurpose, signed
 function linkSignature(secret: Uint8Array, purpose: string, token: string): string {
   return createHmac('sha256', secret).update(`coilpath:${purpose}:${token}`).digest('base64url');
 }
+
+/** The refusals of a link (invitation, password reset, first-owner setup), the same words for each. */
+export const linkErrors = {
+  invalid: (what: string) => new HttpError(400, 'link_invalid', `This ${what} link is not valid (it may be incomplete or altered). Copy the whole link from the e-mail, or ask for a new one.`),
+  used: (what: string, next: string) => new HttpError(410, 'link_used', `This ${what} link has already been used. ${next}`),
+  expired: (what: string, next: string) => new HttpError(410, 'link_expired', `This ${what} link has expired. ${next}`),
+};
