@@ -1,33 +1,42 @@
 /**
- * The technician works a stop without signal (390×844): signed in and with the route opened online, the
- * network is cut and the app reopened; on the kept route the technician goes en route and on site, records
- * a reading and a finding and closes the visit, all offline; the screens show each change at once and the
- * banner counts what waits ("5 changes waiting to send"). With the connection back the outbox sends them in
- * order, the count goes, and the API holds each change exactly once (one reading for the circuit, one
- * finding, one en-route and one on-site event, the visit closed as resolved).
+ * The technician works the day's route without signal (390×844): signed in and with the route opened online
+ * (Route fetches every stop's visit), the network is cut and the app reopened; on the kept route the
+ * technician works two stops: en route and on site from Route, then on each Visit a reading, a finding, a photo
+ * (its thumbnail drawn from the bytes kept on the phone) and the close-out — the first with "Customer not
+ * available", the second signed on the pad. Between the stops the app is reloaded, still offline: the outbox
+ * survives and the banner still counts 6 changes waiting; after the second stop it counts 12. With the
+ * connection back the outbox sends them in order, the count goes, and the API holds each change exactly once
+ * per stop (one reading, one finding, one photo, one en-route, on-site and close event, the sign-off: the signer
+ * and the stored signature image, or "not available"; the visit closed as resolved).
  * First a conflict: offline, the technician marks the first booked stop en route while the dispatcher unbooks
  * that visit; back online the change is refused, told in words, never sent over the office's change, and
  * discarded; the office then books the work order again as it was.
- * Works the first stop still booked from today; creates no return visit; unbooks one stop and books
- * its work order again as it was. Runs after the office journeys (file name 50-…): closing a stop of the
- * week the dispatcher journey drags bookings in made its board drag refuse (seen, cause not found).
+ * Works the first two stops still booked on the first such day from today; creates no return visit; unbooks one
+ * stop and books its work order again as it was. Runs last, after the office journeys (file name 50-…): closing
+ * stops of the week the dispatcher journey drags bookings in made its board drag refuse (seen, cause not found).
  */
 import assert from 'node:assert/strict';
+import { deflateSync } from 'node:zlib';
 import { request, type Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { phone } from '../harness';
 import { addDays, dateInZone } from '../handoff';
 import { DEMO_PASSWORD, demo, signInThroughForm, keptKeys } from '../support';
 
-export const title = 'Technician works a stop offline';
+export const title = 'Technician works two stops offline';
 
 /** The demo technician works in the Chicago branch (apps/api/src/db/seed/catalogue.ts). */
 const BRANCH_ZONE = 'America/Chicago';
 const routeHeading = (page: Page) => page.getByRole('heading', { level: 1, name: 'Route' });
 const notice = (page: Page, text: string | RegExp) => page.locator('[role="status"], [role="alert"]').filter({ hasText: text }).first();
 
+/** The second stop's on-site contact who signs its close-out (invented for the journey). */
+const SIGNER = 'Teodora Vance';
+
 interface VisitDto {
   status: string;
+  attachments: { displayName: string }[];
+  signature: { kind: string; signerName?: string } | null;
   outcome: string | null;
   readings: { circuitId: string; suctionPressure: number | null }[];
   findings: { causeCode: string; notes: string | null }[];
@@ -43,6 +52,69 @@ async function firstBooked(ctx: JourneyContext, page: Page, from: string): Promi
     if (stop) return { date, visitId: stop.visitId };
   }
   throw new Error(`the demo books the technician a stop within two weeks of ${from}`);
+}
+
+/** The first day from `from` with two stops still booked (the API's answer), and those two in route order. */
+async function firstTwoBooked(ctx: JourneyContext, page: Page, from: string): Promise<{ date: string; visitIds: [string, string] }> {
+  let date = from;
+  for (let i = 0; i < 14; i++, date = addDays(date, 1)) {
+    const day = (await (await page.request.get(`${ctx.base}/api/day?date=${date}`)).json()) as { stops: { visitId: string; status: string }[] };
+    const booked = day.stops.filter((s) => s.status === 'booked');
+    if (booked.length >= 2) return { date, visitIds: [booked[0]!.visitId, booked[1]!.visitId] };
+  }
+  throw new Error(`the demo books the technician two stops on a day within two weeks of ${from}`);
+}
+
+/** The natural width of an image once loaded (runs in the page). */
+const imageWidth = async (img: HTMLImageElement) => {
+  if (!img.complete) await new Promise((r) => img.addEventListener('load', r, { once: true }));
+  return img.naturalWidth;
+};
+
+/** A stroke drawn with the mouse across the signature pad, until the pad says it is drawn. */
+async function drawSignature(page: Page) {
+  const pad = page.getByRole('img', { name: 'Signature', exact: true });
+  await pad.scrollIntoViewIfNeeded();
+  const box = await pad.boundingBox();
+  assert.ok(box && box.width > 300, `the pad spans the phone's width (${box?.width} px)`);
+  await page.mouse.move(box.x + 20, box.y + box.height * 0.6);
+  await page.mouse.down();
+  for (let i = 1; i <= 24; i++) await page.mouse.move(box.x + 20 + i * ((box.width - 40) / 24), box.y + box.height * (0.5 + 0.3 * Math.sin(i / 2)), { steps: 2 });
+  await page.mouse.up();
+  await page.getByRole('status').filter({ hasText: /^Signature drawn\.$/ }).waitFor();
+}
+
+/** A small real PNG (16×16 RGB, two colours in squares) built byte by byte. */
+function samplePng(): Buffer {
+  const crcTable = Array.from({ length: 256 }, (_, n) => {
+    let c = n;
+    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
+    return c >>> 0;
+  });
+  const crc32 = (buf: Buffer) => {
+    let c = 0xffffffff;
+    for (const b of buf) c = crcTable[(c ^ b) & 0xff]! ^ (c >>> 8);
+    return (c ^ 0xffffffff) >>> 0;
+  };
+  const chunk = (type: string, data: Buffer) => {
+    const body = Buffer.concat([Buffer.from(type, 'ascii'), data]);
+    const len = Buffer.alloc(4);
+    len.writeUInt32BE(data.length);
+    const crc = Buffer.alloc(4);
+    crc.writeUInt32BE(crc32(body));
+    return Buffer.concat([len, body, crc]);
+  };
+  const ihdr = Buffer.alloc(13);
+  ihdr.writeUInt32BE(16, 0);
+  ihdr.writeUInt32BE(16, 4);
+  ihdr[8] = 8;
+  ihdr[9] = 2;
+  const rows: number[] = [];
+  for (let y = 0; y < 16; y++) {
+    rows.push(0);
+    for (let x = 0; x < 16; x++) rows.push(...(((x >> 2) + (y >> 2)) % 2 ? [0xb8, 0x73, 0x33] : [0xe8, 0xf1, 0xf8]));
+  }
+  return Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), chunk('IHDR', ihdr), chunk('IDAT', deflateSync(Buffer.from(rows))), chunk('IEND', Buffer.alloc(0))]);
 }
 
 /** Opens Route on the date and waits for the stop's card with its "En route" button. */
@@ -124,25 +196,27 @@ export async function run(ctx: JourneyContext): Promise<void> {
     await office.dispose();
   }
 
-  // ── Working offline: the first day from today with a stop still booked, opened online ──
-  let date = today;
-  const found = await firstBooked(ctx, page, today);
-  date = found.date;
-  const stop = await openStop(ctx, page, date, found.visitId);
-  const site = (await stop.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
-  const href = await stop.getByRole('link', { name: 'Open visit' }).getAttribute('href');
-  const visitId = /\/visits\/([\w-]+)$/.exec(href ?? '')?.[1];
-  assert.ok(visitId, `the stop links its visit (${href})`);
-  const before = (await (await page.request.get(`${ctx.base}/api/visits/${visitId}`)).json()) as VisitDto;
-  assert.equal(before.status, 'booked');
+  // ── Working offline: the first day from today with two stops still booked, opened online ──
+  const { date, visitIds } = await firstTwoBooked(ctx, page, today);
+  await page.goto(`${ctx.base}/day?date=${date}`);
+  await routeHeading(page).waitFor();
+  const work: { visitId: string; site: string; before: VisitDto }[] = [];
+  for (const visitId of visitIds) {
+    const card = stops.locator(':scope > li').filter({ has: page.locator(`a[href="/visits/${visitId}"]`) });
+    await card.getByRole('button', { name: 'En route' }).waitFor();
+    const site = (await card.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
+    const before = (await (await page.request.get(`${ctx.base}/api/visits/${visitId}`)).json()) as VisitDto;
+    assert.equal(before.status, 'booked');
+    work.push({ visitId, site, before });
+  }
 
-  // The phone keeps the route, the visit and its briefings (written a moment after each answer).
-  const kept = (keys: string) => keys.includes(`["day","${date}"]`) && keys.includes(`["visit","${visitId}"]`);
+  // The phone keeps the route and both visits (Route fetches every stop's visit; written a moment after each answer).
+  const kept = (keys: string) => keys.includes(`["day","${date}"]`) && visitIds.every((id) => keys.includes(`["visit","${id}"]`));
   for (let i = 0; !kept(await page.evaluate(keptKeys)); i++) {
-    assert.ok(i < 60, `the phone keeps the route of ${date} and the visit at ${site} (IndexedDB)`);
+    assert.ok(i < 60, `the phone keeps the route of ${date} and the visits at ${work.map((w) => w.site).join(' and ')} (IndexedDB)`);
     await page.waitForTimeout(250);
   }
-  ctx.step(`route of ${date} and the visit at ${site} kept on the phone`);
+  ctx.step(`route of ${date} and the visits at ${work.map((w) => w.site).join(' and ')} kept on the phone`);
 
   // ── No signal: the app reopens from the phone ──
   await page.context().setOffline(true);
@@ -152,69 +226,122 @@ export async function run(ctx: JourneyContext): Promise<void> {
   await page.getByText(/^Kept on this phone, as of (\w{3} \d{1,2} \w{3}, )?\d\d:\d\d\.$/).waitFor();
   ctx.step(`offline: ${await page.getByText(/^Kept on this phone, as of/).innerText()}`);
 
-  const card = stops.locator(':scope > li').filter({ hasText: site }).first();
-  await card.getByRole('button', { name: 'En route' }).click();
-  await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
-  await card.getByRole('button', { name: 'On site' }).click();
-  await notice(page, 'Marked on site on this phone; it is sent when the connection is back.').waitFor();
-  await page.getByText('2 changes waiting to send', { exact: false }).first().waitFor();
-  await ctx.screen(page, 'route-offline-waiting');
-  ctx.step('offline: en route and on site from Route; the banner counts 2 changes waiting');
+  const plan = [
+    { suction: '118', cause: 'Sensor fault', causeCode: 'sensor_fault', notes: 'Suction transducer reads 6 psi high against the reference gauge; recalibrated.', photo: 'stop1-transducer.png', signer: null },
+    { suction: '121', cause: 'Airflow', causeCode: 'airflow', notes: 'Condenser coil matted with cottonwood; washed and combed.', photo: 'stop2-coil.png', signer: SIGNER },
+  ] as const;
+  for (const [n, w] of work.entries()) {
+    const p = plan[n]!;
+    const waitingBefore = n * 6;
+    if (n > 0) {
+      // To Route without signal (the service worker serves the app, the phone the route).
+      await page.goto(`${ctx.base}/day?date=${date}`);
+      await routeHeading(page).waitFor();
+    }
+    const card = stops.locator(':scope > li').filter({ hasText: w.site }).first();
+    await card.getByRole('button', { name: 'En route' }).click();
+    await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
+    await card.getByRole('button', { name: 'On site' }).click();
+    await notice(page, 'Marked on site on this phone; it is sent when the connection is back.').waitFor();
+    await page.getByText(`${waitingBefore + 2} changes waiting to send`, { exact: false }).first().waitFor();
+    if (n === 0) await ctx.screen(page, 'route-offline-waiting');
+    await card.getByRole('link', { name: 'Record the visit' }).click();
+    await page.getByRole('heading', { level: 1, name: /^Visit · / }).waitFor();
 
-  await card.getByRole('link', { name: 'Record the visit' }).click();
-  await page.getByRole('heading', { level: 1, name: /^Visit · / }).waitFor();
+    // A reading on the first circuit (values only recorded: the technician journey checks the computation).
+    const suction = page.getByLabel(/^Suction pressure, .*circuit 1 \(psig\)$/).first();
+    await suction.fill(p.suction);
+    await page.getByLabel(/^Suction line temperature, .*circuit 1 \(°F\)$/).first().fill('52');
+    await page.getByRole('button', { name: 'Save readings' }).click();
+    await notice(page, /^Readings for 1 circuit kept on this phone/).waitFor();
+    assert.equal(await suction.inputValue(), p.suction, 'the kept reading shows in the form');
 
-  // A reading on the first circuit (values only recorded: the technician journey checks the computation).
-  const suction = page.getByLabel(/^Suction pressure, .*circuit 1 \(psig\)$/).first();
-  await suction.fill('118');
-  await page.getByLabel(/^Suction line temperature, .*circuit 1 \(°F\)$/).first().fill('52');
-  await page.getByRole('button', { name: 'Save readings' }).click();
-  await notice(page, /^Readings for 1 circuit kept on this phone/).waitFor();
-  assert.equal(await suction.inputValue(), '118', 'the kept reading shows in the form');
+    // A finding.
+    await page.getByLabel('Cause code').selectOption({ label: p.cause });
+    await page.getByLabel('Origin').selectOption({ label: 'Wear' });
+    await page.getByLabel('Notes', { exact: true }).fill(p.notes);
+    await page.getByRole('button', { name: 'Add finding' }).click();
+    await notice(page, `Finding kept on this phone: ${p.cause}.`).waitFor();
+    await page.getByRole('listitem').filter({ hasText: p.cause }).filter({ hasText: 'Waiting to send' }).waitFor();
 
-  // A finding.
-  await page.getByLabel('Cause code').selectOption({ label: 'Sensor fault' });
-  await page.getByLabel('Origin').selectOption({ label: 'Wear' });
-  await page.getByLabel('Notes', { exact: true }).fill('Suction transducer reads 6 psi high against the reference gauge; recalibrated.');
-  await page.getByRole('button', { name: 'Add finding' }).click();
-  await notice(page, 'Finding kept on this phone: Sensor fault.').waitFor();
-  await page.getByRole('listitem').filter({ hasText: 'Sensor fault' }).filter({ hasText: 'Waiting to send' }).waitFor();
+    // A photo: kept on the phone, its thumbnail drawn from the kept bytes.
+    await page.getByLabel('Photo or PDF file').setInputFiles({ name: p.photo, mimeType: 'image/png', buffer: samplePng() });
+    await notice(page, `${p.photo} kept on this phone; it is sent when the connection is back.`).waitFor();
+    const thumb = page.getByRole('img', { name: `Photo waiting to send: ${p.photo}` });
+    await thumb.scrollIntoViewIfNeeded();
+    assert.equal(await thumb.evaluate(imageWidth), 16, 'the waiting photo’s thumbnail shows the 16×16 PNG');
 
-  // Close-out.
-  await page.getByRole('radio', { name: /^Resolved/ }).check();
-  await page.getByRole('radio', { name: 'Customer not available' }).check();
-  await page.getByLabel('Visit notes', { exact: true }).fill('Transducer recalibrated; unit running within range.');
-  await page.getByRole('button', { name: 'Close visit' }).click();
-  await notice(page, 'Visit closed on this phone; the close-out is sent when the connection is back.').waitFor();
-  await page.getByText(/The close-out is kept on this phone and waits to send/).waitFor();
-  await page.getByText('5 changes waiting to send', { exact: false }).first().waitFor();
+    // Close-out: the first stop's customer is not there; at the second the contact signs on the pad.
+    await page.getByRole('radio', { name: /^Resolved/ }).check();
+    if (p.signer) {
+      await page.getByRole('radio', { name: 'Customer signs' }).check();
+      await page.getByLabel('Signer’s printed name').fill(p.signer);
+      await drawSignature(page);
+    } else {
+      await page.getByRole('radio', { name: 'Customer not available' }).check();
+    }
+    await page.getByLabel('Visit notes', { exact: true }).fill(`Stop ${n + 1} worked without signal; unit running within range.`);
+    await page.getByRole('button', { name: 'Close visit' }).click();
+    await notice(page, 'Visit closed on this phone; the close-out is sent when the connection is back.').waitFor();
+    await page.getByText(/The close-out is kept on this phone and waits to send/).waitFor();
+    await page.getByText(`${waitingBefore + 6} changes waiting to send`, { exact: false }).first().waitFor();
+    if (p.signer) assert.match(await page.locator('#close-out').innerText(), new RegExp(`Signed by ${p.signer}, `), 'the waiting close-out shows the signature');
+    ctx.step(`offline at ${w.site}: en route, on site, a reading, a finding, a photo and the close-out (${p.signer ? `signed by ${p.signer}` : 'customer not available'}); ${waitingBefore + 6} changes waiting`);
+
+    if (n === 0) {
+      // The app reloaded while still offline: the outbox is kept on the phone, the count stays, the photo waits.
+      await page.reload();
+      await page.getByRole('heading', { level: 1, name: /^Visit · / }).waitFor();
+      await page.getByText('Offline.', { exact: false }).first().waitFor();
+      await page.getByText('6 changes waiting to send', { exact: false }).first().waitFor();
+      await page.getByText(/The close-out is kept on this phone and waits to send/).waitFor();
+      const kept = page.getByRole('img', { name: `Photo waiting to send: ${p.photo}` });
+      await kept.scrollIntoViewIfNeeded();
+      assert.equal(await kept.evaluate(imageWidth), 16, 'after the reload the waiting photo still shows from the phone');
+      await ctx.screen(page, 'visit-offline-reloaded');
+      ctx.step('reloaded offline: still 6 changes waiting, the close-out and the photo kept on the phone');
+    }
+  }
   await ctx.screen(page, 'visit-offline-closed');
-  ctx.step('offline: a reading, a finding and the close-out recorded; 5 changes waiting to send');
 
   // ── The connection is back: everything arrives, in order, once ──
   await page.context().setOffline(false);
-  await page.getByText(/changes? waiting to send/).first().waitFor({ state: 'detached', timeout: 30_000 });
+  await page.getByText(/changes? waiting to send/).first().waitFor({ state: 'detached', timeout: 60_000 });
   await page.getByText(/Service summary \(with PDF\) sent to \S+@\S+\.|Service summary not sent/).first().waitFor({ timeout: 30_000 });
   assert.match(await page.locator('#close-out').innerText(), /Closed .* as Resolved/, 'the close-out shows the server’s close');
   ctx.step('back online: the outbox emptied; the close-out shows the server’s answer');
 
-  const after = (await (await page.request.get(`${ctx.base}/api/visits/${visitId}`)).json()) as VisitDto;
-  assert.equal(after.status, 'closed');
-  assert.equal(after.outcome, 'resolved');
-  const circuitReadings = after.readings.filter((r) => r.suctionPressure === 118);
-  assert.equal(circuitReadings.length, 1, `one reading of 118 psig arrived (${after.readings.length} readings in all)`);
-  assert.equal(after.readings.length - before.readings.length <= 1, true, 'no reading was doubled');
-  assert.equal(after.findings.filter((f) => f.causeCode === 'sensor_fault' && /transducer/.test(f.notes ?? '')).length, 1, 'one finding arrived');
-  assert.equal(after.events.filter((e) => e.state === 'en_route').length, 1, 'en route recorded once');
-  assert.equal(after.events.filter((e) => e.state === 'on_site').length, 1, 'on site recorded once');
-  ctx.step('the API holds one reading, one finding, one en-route and one on-site event; the visit closed as resolved');
+  for (const [n, w] of work.entries()) {
+    const p = plan[n]!;
+    const after = (await (await page.request.get(`${ctx.base}/api/visits/${w.visitId}`)).json()) as VisitDto;
+    assert.equal(after.status, 'closed', `${w.site} is closed`);
+    assert.equal(after.outcome, 'resolved');
+    assert.equal(after.readings.filter((r) => r.suctionPressure === Number(p.suction)).length, 1, `one reading of ${p.suction} psig arrived at ${w.site} (${after.readings.length} in all)`);
+    assert.ok(after.readings.length - w.before.readings.length <= 1, 'no reading was doubled');
+    assert.equal(after.findings.filter((f) => f.causeCode === p.causeCode && f.notes === p.notes).length, 1, `one finding arrived at ${w.site}`);
+    assert.equal(after.findings.length, w.before.findings.length + 1, 'no finding was doubled');
+    assert.equal(after.attachments.length, w.before.attachments.length + 1, `one photo arrived at ${w.site}`);
+    assert.equal(after.attachments.filter((a) => a.displayName.includes(p.photo.replace(/\.png$/, ''))).length, 1, `the photo ${p.photo} arrived once`);
+    assert.equal(after.events.filter((e) => e.state === 'en_route').length, 1, 'en route recorded once');
+    assert.equal(after.events.filter((e) => e.state === 'on_site').length, 1, 'on site recorded once');
+    assert.equal(after.events.filter((e) => e.state === 'closed').length, 1, 'closed once');
+    if (p.signer) {
+      assert.equal(after.signature?.kind, 'signed');
+      assert.equal(after.signature?.signerName, p.signer);
+      const img = await page.request.get(`${ctx.base}/api/visits/${w.visitId}/signature`);
+      assert.equal(img.status(), 200, 'the signature image is stored');
+      assert.match(img.headers()['content-type'] ?? '', /^image\/png/);
+    } else {
+      assert.equal(after.signature?.kind, 'customer_not_available');
+    }
+  }
+  ctx.step('the API holds, per stop, one reading, one finding, one photo, one en-route, on-site and close event, the sign-off; both closed as resolved');
 
-  // On Route the stop shows closed, from the server.
-  await page.getByRole('link', { name: 'Back to Route' }).click();
-  await routeHeading(page).waitFor();
+  // On Route both stops show closed, from the server.
   await page.goto(`${ctx.base}/day?date=${date}`);
-  await stops.locator(':scope > li').filter({ hasText: site }).first().getByText('Closed: Resolved').waitFor();
-  ctx.step(`Route shows ${site} closed: resolved`);
+  await routeHeading(page).waitFor();
+  for (const w of work) await stops.locator(':scope > li').filter({ hasText: w.site }).first().getByText('Closed: Resolved').waitFor();
+  ctx.step(`Route shows ${work.map((w) => w.site).join(' and ')} closed: resolved`);
 
   ctx.expectNoConsoleErrors();
 }

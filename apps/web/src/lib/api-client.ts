@@ -1,4 +1,5 @@
 import { noteServerNow } from './now';
+import { noteNetworkAnswer, noteNetworkFailure } from './online';
 
 /** The one HTTP client of the web app: JSON in and out, the API's error shape turned into ApiError. */
 export class ApiError extends Error {
@@ -44,10 +45,14 @@ async function request<T>(method: string, path: string, body?: unknown, init?: R
       body: body === undefined ? undefined : body instanceof FormData ? body : JSON.stringify(body),
       ...init,
     });
-  } catch {
+  } catch (e) {
+    if (e instanceof DOMException && e.name === 'AbortError') throw e; // cancelled here, not a lost connection
+    // No answer at all: the phone is offline, whatever navigator.onLine says (./online.ts).
+    noteNetworkFailure();
     throw new ApiError(0, 'network', 'Coilpath could not reach the server. Check the connection and try again.');
   }
   noteServerNow(res.headers.get('x-coilpath-now'));
+  noteNetworkAnswer();
   if (res.status === 204) return undefined as T;
   const type = res.headers.get('content-type') ?? '';
   const data: unknown = type.includes('application/json') ? await res.json().catch(() => null) : null;
