@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { idSchema, instantSchema, isoDateSchema, limits } from './common';
 import { pressureSymbols, readingLimits, readingUnitsSchema, temperatureSymbols, unitSystemOf, type ReadingUnits, type UnitSystem } from './measure';
 import type { ModelAlertRef } from './work-orders';
+import type { CircuitTargets } from './sites';
 import {
   attachmentKindSchema,
   causeCodeSchema,
@@ -397,6 +398,8 @@ export interface VisitCircuitDto {
   number: number;
   compressorCount: number;
   chargeLb: number | null;
+  /** The manufacturer's target superheat and subcooling ranges, in the unit branch's system (°F or K); null ranges where none is set. */
+  targets: CircuitTargets;
 }
 
 export interface VisitUnitDto {
