@@ -35,6 +35,7 @@ import {
   unitInputSchema,
   unitsQuerySchema,
   unitUpdateSchema,
+  circuitTargetsInputSchema,
   refrigerantRecordQuerySchema,
   userProfileSchema,
   usersQuerySchema,
@@ -525,6 +526,17 @@ export const routeTable: RouteRow[] = [
     body: unitUpdateSchema,
     textFields: ['notes', 'make', 'model'],
     request: (_f, side) => ({ path: `/api/units/${side.unit.id}`, body: unitBody({ tag: side.unit.tag, circuits: [{ number: 1, compressorCount: 1 }, { number: 2, compressorCount: 1 }] }) }),
+  },
+  {
+    method: 'PUT',
+    path: '/api/units/:id/circuits/:number/targets',
+    expect: roles(office, 200, { scoped: true }),
+    body: circuitTargetsInputSchema,
+    textFields: ['source'],
+    request: (_f, side) => ({
+      path: `/api/units/${side.unit.id}/circuits/1/targets`,
+      body: { temperature: 'F', superheatMin: 8, superheatMax: 12, subcoolingMin: 10, subcoolingMax: 15, source: 'Nameplate' },
+    }),
   },
   {
     method: 'POST',

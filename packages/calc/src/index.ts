@@ -18,3 +18,4 @@ export * from './units';
 export * from './atmosphere';
 export * from './csv';
 export * from './report-periods';
+export * from './target-range';

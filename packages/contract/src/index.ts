@@ -4,6 +4,7 @@ export * from './date-words';
 export * from './common';
 export * from './auth';
 export * from './sites';
+export * from './target-range';
 export * from './team';
 export * from './measure';
 export * from './measure-schemas';

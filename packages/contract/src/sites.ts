@@ -1,5 +1,7 @@
 import { z } from 'zod';
 import { base64FileSchema, idSchema, pickedIdSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, oneOfCsvOrFile, oneOfCsvOrFileMessage, optionalOneLine, pageQuerySchema } from './common';
+import { temperatureUnitSchema } from './measure-schemas';
+import { circuitTargetKinds, targetRangeLimits, type CircuitTargets } from './target-range';
 import { applianceCategorySchema, unitKindSchema } from './vocabulary-schemas';
 
 /** Optional free text: blank input becomes `null`, so forms can send empty fields. */
@@ -170,6 +172,64 @@ export type UnitValues = z.output<typeof unitInputSchema>;
 /** An edit sends the whole unit; the site is fixed once created. */
 export const unitUpdateSchema = unitFieldsSchema.omit({ siteId: true }).refine(warrantyAfterInstall.check, warrantyAfterInstall.params);
 export type UnitUpdateValues = z.output<typeof unitUpdateSchema>;
+
+// ---------------------------------------------------------------------------------------------
+// A circuit's target ranges (the manufacturer's target superheat and subcooling)
+// ---------------------------------------------------------------------------------------------
+
+/** One end of a range: a number, or blank (a form's empty field) for none. Accepts "−" as a minus. */
+const targetBound = z.preprocess(
+  (v) => (typeof v === 'string' ? (v.trim() === '' ? null : v.trim().replace('\u2212', '-')) : v),
+  z.coerce
+    .number({ message: 'Enter a number' })
+    .refine(Number.isFinite, 'Enter a number')
+    .nullish()
+    .transform((v) => v ?? null),
+);
+
+/**
+ * `PUT /api/units/:id/circuits/:number/targets` and the Unit file's form: a circuit's target superheat and
+ * subcooling ranges, each optional (both ends, or neither), min ≤ max, in the stated temperature unit (°F, or
+ * C for kelvin — the branch's system; the server stores °F differences, as readings). `source` says where
+ * the figures come from ("nameplate", "installation manual p. 14"). Blank everything to clear.
+ */
+export const circuitTargetsInputSchema = z
+  .strictObject({
+    temperature: temperatureUnitSchema,
+    superheatMin: targetBound,
+    superheatMax: targetBound,
+    subcoolingMin: targetBound,
+    subcoolingMax: targetBound,
+    source: optionalOneLine(limits.name),
+  })
+  .superRefine((v, ctx) => {
+    const lim = targetRangeLimits[v.temperature];
+    const unit = v.temperature === 'F' ? '°F' : 'K';
+    for (const kind of circuitTargetKinds) {
+      const min = v[`${kind}Min`];
+      const max = v[`${kind}Max`];
+      for (const [key, value] of [[`${kind}Min`, min], [`${kind}Max`, max]] as const) {
+        if (value !== null && (value < lim.min || value > lim.max)) {
+          ctx.addIssue({ code: 'custom', path: [key], message: `Between ${lim.min} and ${lim.max} ${unit}` });
+        }
+      }
+      if ((min === null) !== (max === null)) {
+        ctx.addIssue({ code: 'custom', path: [min === null ? `${kind}Min` : `${kind}Max`], message: 'Enter both ends of the range, or clear both' });
+      } else if (min !== null && max !== null && min > max) {
+        ctx.addIssue({ code: 'custom', path: [`${kind}Max`], message: `The highest ${kind} cannot be below the lowest (${min} ${unit})` });
+      }
+    }
+  });
+export type CircuitTargetsInput = z.input<typeof circuitTargetsInputSchema>;
+export type CircuitTargetsValues = z.output<typeof circuitTargetsInputSchema>;
+
+export const targetRangeSchema = z.object({ min: z.number(), max: z.number() });
+/** A circuit's target ranges as the API answers them: in the unit branch's system (°F or K), null where none is set. */
+export const circuitTargetsSchema = z.object({
+  superheat: targetRangeSchema.nullable(),
+  subcooling: targetRangeSchema.nullable(),
+  source: z.string().nullable(),
+}) satisfies z.ZodType<CircuitTargets>;
 
 export const unitsQuerySchema = pageQuerySchema.extend({
   branchId: idSchema.optional(),

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { idSchema, limits } from './common';
+import { circuitTargetsSchema } from './sites';
 import { pressureUnitSchema, temperatureUnitSchema, unitSystemSchema } from './measure-schemas';
 import { refrigerantEventReasonLabels, refrigerantRecordEventKindLabels } from './vocabulary';
 import {
@@ -95,7 +96,16 @@ export const unitFileSchema = z.object({
   }),
   branch: z.object({ id: idSchema, name: z.string(), timeZone: z.string(), unitSystem: unitSystemSchema }),
   nameplate: unitFileAttachmentSchema.nullable(),
-  circuits: z.array(z.object({ id: idSchema, number: z.number().int(), compressorCount: z.number().int(), chargeLb: n })),
+  circuits: z.array(
+    z.object({
+      id: idSchema,
+      number: z.number().int(),
+      compressorCount: z.number().int(),
+      chargeLb: n,
+      /** Target superheat and subcooling ranges, in the branch's system (°F or K). */
+      targets: circuitTargetsSchema,
+    }),
+  ),
   agreements: z.array(
     z.object({
       id: idSchema,

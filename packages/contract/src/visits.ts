@@ -3,6 +3,7 @@ import { idSchema, instantSchema, isoDateSchema, limits } from './common';
 import { readingRangeIssues, type ReadingUnits, type UnitSystem } from './measure';
 import { readingUnitsSchema } from './measure-schemas';
 import type { ModelAlertRef } from './work-orders';
+import type { CircuitTargets } from './target-range';
 import type { VisitStatus } from './visit-status';
 import type {
   AttachmentKind,
@@ -349,6 +350,8 @@ export interface VisitCircuitDto {
   number: number;
   compressorCount: number;
   chargeLb: number | null;
+  /** The manufacturer's target superheat and subcooling ranges, in the unit branch's system (°F or K); null ranges where none is set. */
+  targets: CircuitTargets;
 }
 
 export interface VisitUnitDto {

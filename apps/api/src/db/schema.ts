@@ -223,7 +223,21 @@ export const circuits = pgTable('circuits', {
   number: integer().notNull(),
   compressorCount: integer().notNull().default(1),
   chargeLb: doublePrecision(),
-}, (t) => [uniqueIndex('circuits_unit_number_uq').on(t.unitId, t.number)]);
+  /**
+   * The manufacturer's target superheat and subcooling ranges (migration 0020), stored as readings store
+   * temperature differences: °F, full precision. A range has both ends or neither, min ≤ max.
+   */
+  targetSuperheatMinF: doublePrecision(),
+  targetSuperheatMaxF: doublePrecision(),
+  targetSubcoolingMinF: doublePrecision(),
+  targetSubcoolingMaxF: doublePrecision(),
+  /** Where the target ranges come from ("nameplate", "installation manual p. 14"). */
+  targetSource: text(),
+}, (t) => [
+  uniqueIndex('circuits_unit_number_uq').on(t.unitId, t.number),
+  check('circuits_target_superheat_ck', sql`(${t.targetSuperheatMinF} is null and ${t.targetSuperheatMaxF} is null) or (${t.targetSuperheatMinF} is not null and ${t.targetSuperheatMaxF} is not null and ${t.targetSuperheatMinF} <= ${t.targetSuperheatMaxF})`),
+  check('circuits_target_subcooling_ck', sql`(${t.targetSubcoolingMinF} is null and ${t.targetSubcoolingMaxF} is null) or (${t.targetSubcoolingMinF} is not null and ${t.targetSubcoolingMaxF} is not null and ${t.targetSubcoolingMinF} <= ${t.targetSubcoolingMaxF})`),
+]);
 
 export const agreements = pgTable('agreements', {
   id: id(),

@@ -27,7 +27,7 @@ import {
 } from '../../db/schema';
 import { notFound } from '../../lib/errors';
 import { enforce, unitMayRead } from '../../auth/policy';
-import { readingDto } from '../visits/dto';
+import { circuitTargetsDto, readingDto } from '../visits/dto';
 
 /** Readings returned for the trend (the latest ones). */
 const READINGS_LIMIT = 1500;
@@ -82,7 +82,7 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
         .innerJoin(customers, eq(customers.id, sites.customerId))
         .where(eq(sites.id, u.siteId)),
       db.select({ id: branches.id, name: branches.name, timeZone: branches.timeZone, unitSystem: branches.unitSystem }).from(branches).where(eq(branches.id, u.branchId)),
-      db.select({ id: circuits.id, number: circuits.number, compressorCount: circuits.compressorCount, chargeLb: circuits.chargeLb }).from(circuits).where(eq(circuits.unitId, unitId)).orderBy(asc(circuits.number)),
+      db.select().from(circuits).where(eq(circuits.unitId, unitId)).orderBy(asc(circuits.number)),
       db
         .select({ id: agreements.id, name: agreements.name, status: agreements.status, termStart: agreements.termStart, termEnd: agreements.termEnd, slaHours: agreements.slaHours, rrule: agreements.rrule })
         .from(agreementUnits)
@@ -163,7 +163,7 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
     site,
     branch,
     nameplate: nameplate ? toAttachment(nameplate) : null,
-    circuits: circuitRows,
+    circuits: circuitRows.map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb, targets: circuitTargetsDto(c, branch.unitSystem) })),
     agreements: agreementRows,
     alarms: alarmRows.map((a) => ({
       id: a.id,

@@ -1,10 +1,14 @@
 import { Router } from 'express';
-import { unitImportSchema, unitInputSchema, unitsQuerySchema, unitUpdateSchema } from '@coilpath/contract';
+import { z } from 'zod';
+import { circuitTargetsInputSchema, unitImportSchema, unitInputSchema, unitsQuerySchema, unitUpdateSchema } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
 import * as svc from './units.service';
 import { importUnits } from './units-import';
+import { setCircuitTargets } from './circuit-targets.service';
+
+const circuitParams = idParams.extend({ number: z.coerce.number().int().min(1).max(8) });
 
 /**
  * `/api/units` — the office's unit records (list, CRUD, CSV import, archive). Branch-scoped; the
@@ -18,6 +22,11 @@ export function unitsRoutes(ctx: AppContext): Router {
   r.post('/import', office, endpoint({ body: unitImportSchema }, ({ user, body }) => importUnits(ctx, user, body)));
   r.get('/:id', office, endpoint({ params: idParams }, ({ user, params }) => svc.getUnit(ctx.db, user, params.id)));
   r.put('/:id', office, endpoint({ params: idParams, body: unitUpdateSchema }, ({ user, params, body }) => svc.updateUnit(ctx, user, params.id, body)));
+  r.put(
+    '/:id/circuits/:number/targets',
+    office,
+    endpoint({ params: circuitParams, body: circuitTargetsInputSchema }, ({ user, params, body }) => setCircuitTargets(ctx, user, params.id, params.number, body)),
+  );
   r.post('/:id/archive', office, endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, true)));
   r.post('/:id/unarchive', office, endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, false)));
   r.delete('/:id', office, endpoint({ params: idParams }, ({ user, params }) => svc.deleteUnit(ctx, user, params.id)));

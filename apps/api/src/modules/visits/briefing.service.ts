@@ -12,7 +12,7 @@ import { alarms, attachments, branches, circuits, findings, leakCases, readings,
 import { notFound } from '../../lib/errors';
 import { enforce, unitMayRead } from '../../auth/policy';
 import { unitOnAssignments } from './access';
-import { attachmentDto, findingDto, leakCaseDto, readingDto } from './dto';
+import { attachmentDto, circuitTargetsDto, findingDto, leakCaseDto, readingDto } from './dto';
 import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
 
 const PHOTO_LIMIT = 8;
@@ -113,7 +113,7 @@ export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: s
       siteId: u.siteId,
       siteName: row.siteName,
     },
-    circuits: circuitRows.map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb })),
+    circuits: circuitRows.map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb, targets: circuitTargetsDto(c, row.unitSystem) })),
     lastVisit: last
       ? {
           visitId: last.visit.id,

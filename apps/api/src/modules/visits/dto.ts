@@ -1,6 +1,6 @@
 import { convertPressure, convertTemperature, convertTemperatureDifference } from '@coilpath/calc';
-import { readingUnitsBySystem, type AttachmentDto, type FindingDto, type LeakCaseDto, type ReadingDto, type RefrigerantEventDto, type UnitSystem } from '@coilpath/contract';
-import type { attachments, findings, leakCases, readings, refrigerantEvents } from '../../db/schema';
+import { readingUnitsBySystem, type AttachmentDto, type CircuitTargets, type FindingDto, type LeakCaseDto, type ReadingDto, type RefrigerantEventDto, type UnitSystem } from '@coilpath/contract';
+import type { attachments, circuits, findings, leakCases, readings, refrigerantEvents } from '../../db/schema';
 import { STORED_UNITS } from './reading-calc';
 
 const iso = (d: Date) => d.toISOString();
@@ -112,5 +112,23 @@ export function attachmentDto(a: typeof attachments.$inferSelect): AttachmentDto
     createdAt: iso(a.createdAt),
     url: `/api/attachments/${a.id}`,
     thumbUrl: `/api/attachments/${a.id}?thumb=1`,
+  };
+}
+
+/**
+ * A circuit's stored target ranges (°F differences) as the API answers them: in the branch's system (°F or K),
+ * to 0.01 like the values typed on a gauge (a range typed in K comes back as typed).
+ */
+export function circuitTargetsDto(
+  c: Pick<typeof circuits.$inferSelect, 'targetSuperheatMinF' | 'targetSuperheatMaxF' | 'targetSubcoolingMinF' | 'targetSubcoolingMaxF' | 'targetSource'>,
+  system: UnitSystem,
+): CircuitTargets {
+  const to = readingUnitsBySystem[system].temperature;
+  const dt = (x: number) => gauge(convertTemperatureDifference(x, STORED_UNITS.temperature, to))!;
+  const range = (min: number | null, max: number | null) => (min === null || max === null ? null : { min: dt(min), max: dt(max) });
+  return {
+    superheat: range(c.targetSuperheatMinF, c.targetSuperheatMaxF),
+    subcooling: range(c.targetSubcoolingMinF, c.targetSubcoolingMaxF),
+    source: c.targetSource,
   };
 }

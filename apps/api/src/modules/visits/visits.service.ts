@@ -9,6 +9,7 @@ import type {
   VisitDetail,
   VisitStateChange,
   VisitUnitDto,
+  UnitSystem,
 } from '@coilpath/contract';
 import { recordingRefusal } from '@coilpath/contract';
 import type { AppContext } from '../../context';
@@ -32,7 +33,7 @@ import {
 import { badRequest, conflict } from '../../lib/errors';
 import { modelAlertRef } from '@coilpath/contract';
 import { assertVisitReadable, assertVisitRecordable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
-import { attachmentDto, findingDto, readingDto, refrigerantEventDto } from './dto';
+import { attachmentDto, circuitTargetsDto, findingDto, readingDto, refrigerantEventDto } from './dto';
 import { computeReading, toStoredUnits } from './reading-calc';
 import { actAs } from '../events/actor';
 import { visitSignatureDto } from './signature';
@@ -46,7 +47,7 @@ export async function unitsOfWorkOrder(db: Tx, wo: { unitId: string | null; site
     .orderBy(asc(units.tag));
 }
 
-async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: string }): Promise<VisitUnitDto[]> {
+async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: string }, unitSystem: UnitSystem): Promise<VisitUnitDto[]> {
   const us = await unitsOfWorkOrder(db, wo);
   const cs = us.length
     ? await db.select().from(circuits).where(inArray(circuits.unitId, us.map((u) => u.id))).orderBy(asc(circuits.number))
@@ -63,7 +64,7 @@ async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: st
     applianceCategory: u.applianceCategory,
     circuits: cs
       .filter((c) => c.unitId === u.id)
-      .map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb })),
+      .map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb, targets: circuitTargetsDto(c, unitSystem) })),
   }));
 }
 
@@ -105,7 +106,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
   const canWrite = user.role === 'technician' && v.techId === user.id && !v.closedAt;
 
   const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows, leakRepair, signature] = await Promise.all([
-    unitsWithCircuits(db, wo),
+    unitsWithCircuits(db, wo, branch.unitSystem),
     db
       .select({ r: readings, number: circuits.number })
       .from(readings)

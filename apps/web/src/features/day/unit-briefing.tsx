@@ -5,12 +5,15 @@ import { recordDate } from '@coilpath/contract/date-words';
 import { causeCodeLabels, causeOriginLabels, visitOutcomeLabels } from '@coilpath/contract/vocabulary';
 import { formatMeasure, readingsElevationNote, unitSystemOf } from '@coilpath/contract/measure';
 import type { MeasureKind, ReadingUnits } from '@coilpath/contract';
+import { targetRangeCaution } from '@coilpath/contract/target-range';
 import { daysFrom } from '@coilpath/calc';
 import { Badge } from '@/components/ui/page';
 import { ErrorState, LoadingState } from '@/components/ui/states';
 import { formatInZone } from '@/lib/format';
 import { AttachmentThumb } from '@/components/attachment-thumb';
 import { briefingQuery } from '@/lib/visit-queries';
+import { TargetRangeList } from '@/components/target-range';
+import { targetLines } from '@/lib/target-range';
 
 
 /** A reading's value with its unit symbol (the reading states its units: the branch's system). */
@@ -145,6 +148,26 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
           {readingsElevationNote(b.lastReadings, unitSystemOf(b.units) ?? 'imperial') && (
             <p className="text-xs text-slate">{readingsElevationNote(b.lastReadings, unitSystemOf(b.units) ?? 'imperial')}</p>
           )}
+        </div>
+      )}
+
+      {b.circuits.some((c) => c.targets?.superheat || c.targets?.subcooling) && (
+        <div className="flex flex-col gap-1">
+          <p className="font-medium">Target ranges</p>
+          <ul className="flex flex-col gap-1">
+            {b.circuits.map((c) => {
+              const last = b.lastReadings.find((x) => x.circuitId === c.id);
+              const lines = targetLines(c.targets, b.units.temperature, { superheat: last?.superheat ?? null, subcooling: last?.subcooling ?? null }, b.units);
+              if (lines.length === 0) return null;
+              return (
+                <li key={c.id}>
+                  <span className="text-xs text-slate">Circuit {c.number}{last ? ', last readings' : ''}{c.targets.source ? ` — from ${c.targets.source}` : ''}</span>
+                  <TargetRangeList lines={lines} label={`Target ranges, circuit ${c.number}`} />
+                </li>
+              );
+            })}
+          </ul>
+          <p className="text-xs text-slate">{targetRangeCaution}</p>
         </div>
       )}
 

@@ -18,6 +18,7 @@ import { CircuitTrend } from './readings-chart';
 import { ReadingsTable } from './readings-table';
 import { UnitTable } from './unit-table';
 import { RefrigerantRecordCard } from './refrigerant-record';
+import { CircuitTargetsList } from './circuit-targets';
 import { appNow } from '@/lib/now';
 import { unitFileQuery } from '@/lib/visit-queries';
 
@@ -127,6 +128,7 @@ function Dl({ items }: { items: [string, ReactNode][] }) {
 
 function UnitFileView({ id }: { id: string }) {
   const q = useQuery(unitFileQuery(id));
+  const user = useUser();
   const [allAlarms, setAllAlarms] = useState(false);
   if (q.isPending) return <LoadingState label="Opening the unit file…" />;
   if (q.isError)
@@ -204,16 +206,9 @@ function UnitFileView({ id }: { id: string }) {
           </Card>
           <Card title="Circuits and agreement">
             {f.circuits.length === 0 ? (
-              <p className="text-sm text-slate">No refrigerant circuits (e.g. a boiler).</p>
+              <p className="mb-3 text-sm text-slate">No refrigerant circuits (e.g. a boiler).</p>
             ) : (
-              <ul className="mb-3 text-sm">
-                {f.circuits.map((c) => (
-                  <li key={c.id}>
-                    Circuit {c.number}: {c.compressorCount} compressor{c.compressorCount === 1 ? '' : 's'}
-                    {c.chargeLb ? `, ${formatNumber(c.chargeLb, 1)} lb` : ''}
-                  </li>
-                ))}
-              </ul>
+              <CircuitTargetsList file={f} canEdit={user.role !== 'technician'} />
             )}
             {f.agreements.length === 0 ? (
               <p className="text-sm text-slate">Not covered by a maintenance agreement.</p>

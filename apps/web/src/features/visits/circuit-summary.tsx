@@ -1,7 +1,9 @@
 import { AlertTriangle, CheckCircle2 } from 'lucide-react';
 import { formatMeasure } from '@coilpath/contract/measure';
-import type { ReadingUnits } from '@coilpath/contract';
-import { liveValues, parseEntry, sensorCheckView, type LiveSide } from './reading-units';
+import type { CircuitTargets, ReadingUnits, TemperatureUnit } from '@coilpath/contract';
+import { TargetRangeList } from '@/components/target-range';
+import { targetLines } from '@/lib/target-range';
+import { liveValues, parseEntry, sensorCheckView, type LiveSide, type LiveValues } from './reading-units';
 
 type Branch = { sensorTolerancePercent: number; sensorToleranceAbsolute: number; elevationMeters: number };
 
@@ -43,9 +45,10 @@ function Figure({ label, name, side, pick, units, kind, live }: {
 /**
  * The circuit's computed values, kept in view while the technician types (sticky under the header): the
  * dew and bubble points, superheat and subcooling (calc, through `liveValues`), and the controller against
- * the gauge (`sensorCheckView`, the branch's tolerance). Nothing is computed here.
+ * the gauge (`sensorCheckView`, the branch's tolerance), and the circuit's target ranges with below / within /
+ * above (`targetLines`, calc's `targetVerdict`). Nothing is computed here.
  */
-export function CircuitSummary({ title, where, refrigerant, values, units, branch }: {
+export function CircuitSummary({ title, where, refrigerant, values, units, branch, targets, targetsUnit }: {
   /** "RTU-1 · Circuit 2" */
   title: string;
   /** "RTU-1 circuit 2": names the figures for a screen reader. */
@@ -54,8 +57,14 @@ export function CircuitSummary({ title, where, refrigerant, values, units, branc
   values: Record<string, string>;
   units: ReadingUnits;
   branch: Branch;
+  /** The circuit's target ranges (absent in answers kept from before they existed), in `targetsUnit`. */
+  targets?: CircuitTargets | null;
+  /** The unit of `targets` (the unit branch's system); the screen's own unit when not given. */
+  targetsUnit?: TemperatureUnit;
 }) {
   const live = liveValues(refrigerant, values, units, branch.elevationMeters);
+  const value = (side: LiveValues['superheat']) => (side?.ok ? side.value : null);
+  const targetList = targetLines(targets, targetsUnit ?? units.temperature, { superheat: value(live.superheat), subcooling: value(live.subcooling) }, units);
   const sensors = sensorPairs.flatMap(([key, label, controller, gauge]) => {
     const view = sensorCheckView(num(values[controller]), num(values[gauge]), units, branch);
     return view ? [{ key, label, view }] : [];
@@ -76,6 +85,7 @@ export function CircuitSummary({ title, where, refrigerant, values, units, branc
         <Figure label="Bubble point" name={`Liquid saturation, ${where}`} side={live.subcooling} pick="saturation" units={units} kind="temperature" live={false} />
         <Figure label="Subcooling" name={`Subcooling, ${where}`} side={live.subcooling} pick="value" units={units} kind="temperatureDifference" live />
       </dl>
+      <TargetRangeList lines={targetList} label={`Target ranges, ${where}`} className="mt-1" />
       {sensors.length > 0 && (
         <ul aria-label={`Controller against gauge, ${where}`} className="mt-1 flex flex-wrap gap-x-3 gap-y-0.5 text-xs tabular-nums">
           {sensors.map(({ key, label, view }) => (

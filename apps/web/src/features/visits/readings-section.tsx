@@ -3,6 +3,7 @@ import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { AlertTriangle, CheckCircle2 } from 'lucide-react';
 import { elevationNote, measureSymbol, readingUnitsBySystem } from '@coilpath/contract/measure';
 import type { ReadingUnits, VisitDetail, VisitUnitDto } from '@coilpath/contract';
+import { targetRangeCaution } from '@coilpath/contract/target-range';
 import { Button } from '@/components/ui/button';
 import { Card, SafetyNote } from '@/components/ui/page';
 import { useNotify } from '@/components/ui/notices';
@@ -181,10 +182,18 @@ export function ReadingsSection({
   // "Enter" in a reading moves to the next one; from the last, to "Save readings".
   const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLDivElement>();
   const circuitsCount = visit.units.reduce((n, u) => n + u.circuits.length, 0);
+  const hasTargets = visit.units.some((u) => u.circuits.some((c) => c.targets?.superheat || c.targets?.subcooling));
   return (
     <Card title="Readings">
       <div ref={enterGroup} onKeyDown={enterNext} className="flex flex-col gap-4">
-        <SafetyNote />
+        {hasTargets ? (
+          <SafetyNote>
+            Readings guide diagnosis alongside the manufacturer’s charging data, local codes and licensed practice. {targetRangeCaution} Refrigerant work
+            needs the proper EPA 608 certification.
+          </SafetyNote>
+        ) : (
+          <SafetyNote />
+        )}
         <p className="text-sm text-slate">
           {units.temperature === 'C'
             ? `Pressures in ${measureSymbol('pressure', units)}; temperatures in °C; superheat and subcooling in K`
@@ -221,6 +230,8 @@ export function ReadingsSection({
                   values={v}
                   units={units}
                   branch={visit.branch}
+                  targets={c.targets}
+                  targetsUnit={readingUnitsBySystem[visit.branch.unitSystem].temperature}
                 />
                 <div className="flex flex-col gap-4">
                   <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">

@@ -32,7 +32,7 @@ const unit = (n: number, circuits: number): VisitUnitDto => ({
   refrigerant: 'R-410A',
   fullChargeLb: 20,
   applianceCategory: 'comfort_cooling',
-  circuits: Array.from({ length: circuits }, (_, i) => ({ id: id(200 + n * 10 + i), number: i + 1, compressorCount: 1, chargeLb: 10 })),
+  circuits: Array.from({ length: circuits }, (_, i) => ({ id: id(200 + n * 10 + i), number: i + 1, compressorCount: 1, chargeLb: 10, targets: { superheat: null, subcooling: null, source: null } })),
 });
 
 const visitWith = (units: VisitUnitDto[]): VisitDetail => ({
@@ -226,6 +226,30 @@ describe('a circuit’s sticky summary', () => {
     expect(screen.getByRole('status', { name: 'Subcooling, circuit 1' }).textContent).toBe('—');
     const sensors = within(screen.getByRole('list', { name: 'Controller against gauge, circuit 1' })).getAllByRole('listitem').map((li) => li.textContent);
     expect(sensors).toEqual(['Suction controller +6.5 psi, 5.8 % · outside', 'Discharge controller +0.5 psi, 0.2 % · within']);
+  });
+
+  it('shows the circuit’s target ranges and, once computed, below / within / above in words', () => {
+    // Superheat ≈ 11.1 °F against 8–12 °F: within; subcooling ≈ 10.3 °F against 12–15 °F: below.
+    const targets = { superheat: { min: 8, max: 12 }, subcooling: { min: 12, max: 15 }, source: 'Nameplate' };
+    const { unmount } = render(
+      <CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={values} units={readingUnitsBySystem.imperial} branch={branch} targets={targets} targetsUnit="F" />,
+    );
+    const lines = () => within(screen.getByRole('list', { name: 'Target ranges, circuit 1' })).getAllByRole('listitem').map((li) => li.textContent);
+    expect(lines()).toEqual(['Superheat target 8.0–12.0 °F · within target', 'Subcooling target 12.0–15.0 °F · below target']);
+    unmount();
+    // Nothing typed yet: the ranges alone, no verdict. An SI screen shows the °F ranges in kelvin (8–12 °F = 4.4–6.7 K).
+    render(<CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={{}} units={readingUnitsBySystem.si} branch={branch} targets={targets} targetsUnit="F" />);
+    expect(lines()).toEqual(['Superheat target 4.4–6.7 K', 'Subcooling target 6.7–8.3 K']);
+  });
+
+  it('a superheat above its range says so; a circuit without ranges shows none', () => {
+    const { unmount } = render(
+      <CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={values} units={readingUnitsBySystem.imperial} branch={branch} targets={{ superheat: { min: 5, max: 10 }, subcooling: null, source: null }} targetsUnit="F" />,
+    );
+    expect(within(screen.getByRole('list', { name: 'Target ranges, circuit 1' })).getAllByRole('listitem').map((li) => li.textContent)).toEqual(['Superheat target 5.0–10.0 °F · above target']);
+    unmount();
+    render(<CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={values} units={readingUnitsBySystem.imperial} branch={branch} targets={{ superheat: null, subcooling: null, source: null }} targetsUnit="F" />);
+    expect(screen.queryByRole('list', { name: 'Target ranges, circuit 1' })).toBeNull();
   });
 
   it('is on the readings form for every circuit, and follows the typing', async () => {

@@ -1,0 +1,7 @@
+ALTER TABLE "circuits" ADD COLUMN "target_superheat_min_f" double precision;--> statement-breakpoint
+ALTER TABLE "circuits" ADD COLUMN "target_superheat_max_f" double precision;--> statement-breakpoint
+ALTER TABLE "circuits" ADD COLUMN "target_subcooling_min_f" double precision;--> statement-breakpoint
+ALTER TABLE "circuits" ADD COLUMN "target_subcooling_max_f" double precision;--> statement-breakpoint
+ALTER TABLE "circuits" ADD COLUMN "target_source" text;--> statement-breakpoint
+ALTER TABLE "circuits" ADD CONSTRAINT "circuits_target_superheat_ck" CHECK (("circuits"."target_superheat_min_f" is null and "circuits"."target_superheat_max_f" is null) or ("circuits"."target_superheat_min_f" is not null and "circuits"."target_superheat_max_f" is not null and "circuits"."target_superheat_min_f" <= "circuits"."target_superheat_max_f"));--> statement-breakpoint
+ALTER TABLE "circuits" ADD CONSTRAINT "circuits_target_subcooling_ck" CHECK (("circuits"."target_subcooling_min_f" is null and "circuits"."target_subcooling_max_f" is null) or ("circuits"."target_subcooling_min_f" is not null and "circuits"."target_subcooling_max_f" is not null and "circuits"."target_subcooling_min_f" <= "circuits"."target_subcooling_max_f"));
