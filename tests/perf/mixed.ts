@@ -14,6 +14,11 @@
  * report falls in the first half of such a run. A client that falls behind starts its next round as soon as
  * the last one is answered; no request starts after the window (those under way are awaited and counted).
  *
+ * `clientsScale` K (bench `--clients-scale K`) signs every person in K times: each session runs that person's
+ * round on its own (the same day, stops, units and visit — what K phones of one person would ask), so the load
+ * is K times the scenario's with requests as realistic as one person's; each dispatcher session moves its own
+ * booking (on the branch's first K technicians). `closedLoop` drops the pauses between read rounds.
+ *
  * Before the measured window, and through the API as the people would: everyone signs in; each branch's
  * dispatcher books one new service call per technician after the technician's last booking of the day (working
  * hours overridden with a reason where it runs past them) and one more for the booking moves; each technician
