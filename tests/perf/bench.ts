@@ -580,7 +580,14 @@ async function mixedOn(kind: 'pglite' | 'postgres', processes = 1): Promise<Mixe
         read: async () => worstLoopDelay(await Promise.all(loops.map((l) => l.read()))),
       };
       const figures = await runMixed({ base: BASE, seconds: mixedSeconds, clientsScale, closedLoop, plan, apiLoop, log: (s) => log(`${label} ${s}`) });
-      return { ...figures, processes: n, loadAverage: loadavg() };
+      const done = { ...figures, processes: n, loadAverage: loadavg() };
+      // Each run's totals as soon as it ends: a long comparison stopped half-way still leaves its figures.
+      const worstP95 = Math.max(...Object.values(done.classes).filter((c) => c.requests > 0).map((c) => c.p95));
+      log(
+        `${label} mixed, ${n} process${n === 1 ? '' : 'es'}: ${done.requests} requests in ${done.seconds} s = ${done.rps.toFixed(1)}/s, ` +
+          `worst p95 ${worstP95.toFixed(0)} ms, errors ${JSON.stringify(done.errors)}, over 1 s ${done.over1s}, load average ${done.loadAverage.map((v) => v.toFixed(1)).join(' ')}`,
+      );
+      return done;
     } finally {
       await new Promise((r) => (proxy ? proxy.close(r) : r(null)));
       await Promise.all(children.map(stopApi));
