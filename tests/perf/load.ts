@@ -22,9 +22,13 @@ const ESTIMATED_ROWS = 2_150_000;
 const CHUNK = 4_000;
 /**
  * Tables whose triggers keep service_call_facts (rebuilt in one statement after the load) or raise
- * roster_revisions (nothing to keep: the new database has no cached reads).
+ * roster_revisions and briefing_revisions (nothing to keep: the new database has no cached reads). Visits'
+ * `unit_id` (filled by a trigger otherwise, migration 0021) comes with the generator's rows.
  */
-const TRIGGER_TABLES = ['work_orders', 'visits', 'findings', 'bookings', 'sites', 'units', 'leak_cases', 'users', 'branches'];
+const TRIGGER_TABLES = [
+  'work_orders', 'visits', 'findings', 'bookings', 'sites', 'units', 'leak_cases', 'users', 'branches',
+  'circuits', 'readings', 'refrigerant_events', 'alarms', 'attachments',
+];
 /**
  * Tables whose triggers keep fix_quality_sums (migration 0005): off until service_call_facts is rebuilt, so
  * its rows are not summed one by one; the sums are rebuilt in one statement after the facts.

@@ -14,6 +14,11 @@
  * report falls in the first half of such a run. A client that falls behind starts its next round as soon as
  * the last one is answered; no request starts after the window (those under way are awaited and counted).
  *
+ * `clientsScale` K (bench `--clients-scale K`) signs every person in K times: each session runs that person's
+ * round on its own (the same day, stops, units and visit — what K phones of one person would ask), so the load
+ * is K times the scenario's with requests as realistic as one person's; each dispatcher session moves its own
+ * booking (on the branch's first K technicians). `closedLoop` drops the pauses between read rounds.
+ *
  * Before the measured window, and through the API as the people would: everyone signs in; each branch's
  * dispatcher books one new service call per technician after the technician's last booking of the day (working
  * hours overridden with a reason where it runs past them) and one more for the booking moves; each technician
@@ -73,7 +78,12 @@ export interface MixedFigures {
   seconds: number;
   /** API processes answering (behind the bench's round-robin proxy when more than one). */
   processes?: number;
+  /** The machine's load average (1, 5, 15 min) when the window closed. */
+  loadAverage?: number[];
   clients: { technicians: number; dispatchers: number; managers: number; owners: number };
+  /** Sessions per person (`--clients-scale`), and whether the clients asked as fast as answered. */
+  clientsScale?: number;
+  closedLoop?: boolean;
   setupSeconds: number;
   requests: number;
   rps: number;
@@ -89,6 +99,13 @@ export interface MixedOptions {
   /** Where the API answers, e.g. http://127.0.0.1:3210. */
   base: string;
   seconds: number;
+  /**
+   * Sessions per person (default 1): every technician, dispatcher, manager and the owner signs in `clientsScale`
+   * times and each session runs that person's round on its own (see the file's comment).
+   */
+  clientsScale?: number;
+  /** Every client starts its next round as soon as the last is answered (no pause: the API's capacity). */
+  closedLoop?: boolean;
   /** The database the API runs on (read for ids before the API starts; the writes go through the API). */
   plan: MixedPlan;
   /** Resets and reads the API's event-loop delay (null when it cannot be asked). */
@@ -250,25 +267,32 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   const rng = new Rng(20);
   const { plan } = o;
   const mk = (email: string) => new Client(email, o.base, rec);
-  const dispatchers = plan.branches.map((b) => mk(b.dispatcher));
-  const techs = plan.branches.flatMap((b, bi) => b.techs.map((t, ti) => ({ client: mk(t.email), branch: b, bi, tech: t, ti })));
-  const managers = plan.branches.slice(0, 5).map((_, bi) => mk(benchManager(bi)));
-  const owner = mk(BENCH_OWNER);
-  const everyone = [...dispatchers, ...techs.map((t) => t.client), ...managers, owner];
+  const K = o.clientsScale ?? 1;
+  if (!Number.isInteger(K) || K < 1) throw new Error('clientsScale needs a whole number (at least 1)');
+  const sessions = <T>(make: (j: number) => T) => Array.from({ length: K }, (_, j) => make(j));
+  // K sessions per person: `dispatchers[bi][j]` is session j of branch bi's dispatcher.
+  const dispatchers = plan.branches.map((b) => sessions(() => mk(b.dispatcher)));
+  const techs = plan.branches.flatMap((b, bi) => b.techs.flatMap((t, ti) => sessions((j) => ({ client: mk(t.email), branch: b, bi, tech: t, ti, j }))));
+  const managers = plan.branches.slice(0, 5).flatMap((_, bi) => sessions(() => mk(benchManager(bi))));
+  const owners = sessions(() => mk(BENCH_OWNER));
+  const everyone = [...dispatchers.flat(), ...techs.map((t) => t.client), ...managers, ...owners];
+  for (const b of plan.branches) if (b.techs.length < K) throw new Error(`clientsScale ${K}: a branch has only ${b.techs.length} technicians (one movable booking per dispatcher session)`);
 
   const setupStart = performance.now();
-  o.log(`mixed: ${everyone.length} sign-ins`);
+  o.log(`mixed: ${everyone.length} sign-ins (${K} session${K === 1 ? '' : 's'} per person)`);
   await pool(everyone, 4, (c) => c.signIn());
   o.log(`mixed: signed in after ${((performance.now() - setupStart) / 1000).toFixed(0)} s`);
 
-  // Each branch's dispatcher books a service call per technician after their day, and one to move around.
+  // Each branch's dispatcher books a service call per technician after their day, and one to move around
+  // per dispatcher session (on the branch's first K technicians, so no two sessions move the same booking).
   o.log('mixed: booking a visit per technician (dispatchers), en route and on site (technicians)');
   const openVisit = new Map<string, { visitId: string; circuitId: string }>();
-  /** Per branch (by index): the booking its dispatcher moves. */
-  const movable: ({ id: string; version: number; zone: string; startAt: number; endAt: number; moved: boolean } | undefined)[] = [];
+  type Movable = { id: string; version: number; zone: string; startAt: number; endAt: number; moved: boolean };
+  /** Per branch (by index) and dispatcher session: the booking that session moves. */
+  const movable: Movable[][] = plan.branches.map(() => []);
   const circuitsOf = new Map<string, string>();
   await pool(plan.branches.map((b, bi) => ({ b, bi })), 3, async ({ b, bi }) => {
-    const d = dispatchers[bi]!;
+    const d = dispatchers[bi]![0]!;
     const book = async (tech: PlanTech, unit: { id: string; siteId: string }, startAt: number, complaint: string) => {
       const wo = await d.call<{ workOrder: { id: string } }>(null, 'POST', '/api/work-orders', { siteId: unit.siteId, unitId: unit.id, kind: 'service_call', complaint, estimatedMinutes: 60 });
       const endAt = startAt + 60 * MINUTE;
@@ -287,15 +311,15 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       const booking = await book(tech, unit, start, 'No cooling (bench: the visit on site)');
       openVisit.set(tech.id, { visitId: booking.visitId!, circuitId: '' });
       circuitsOf.set(tech.id, unit.id);
-      if (ti === 0) {
+      if (ti < K) {
         const later = start + 90 * MINUTE;
         const m = await book(tech, b.units[(ti + 20) % b.units.length]!, later, 'Planned check (bench: the booking the dispatcher moves)');
-        movable[bi] = { id: m.id, version: m.version, zone: b.zone, startAt: later, endAt: later + 60 * MINUTE, moved: false };
+        movable[bi]!.push({ id: m.id, version: m.version, zone: b.zone, startAt: later, endAt: later + 60 * MINUTE, moved: false });
       }
     }
   });
   o.log(`mixed: booked after ${((performance.now() - setupStart) / 1000).toFixed(0)} s`);
-  await pool(techs, 4, async ({ client, tech }) => {
+  await pool(techs.filter((t) => t.j === 0), 4, async ({ client, tech }) => {
     const v = openVisit.get(tech.id)!;
     await client.call(null, 'PATCH', `/api/visits/${v.visitId}`, { state: 'en_route' });
     const detail = await client.call<{ units: { id: string; circuits: { id: string }[] }[] }>(null, 'PATCH', `/api/visits/${v.visitId}`, { state: 'on_site' });
@@ -303,9 +327,9 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
     const circuit = unit?.circuits[0];
     if (!circuit) throw new Error(`visit ${v.visitId} shows no circuit`);
     v.circuitId = circuit.id;
-    // The day once before the window: the Route screen opened at sign-in.
-    await client.get(null, `/api/day?date=${DAY}`);
   });
+  // The day once before the window, in every session: the Route screen opened at sign-in.
+  await pool(techs, 4, ({ client }) => client.get(null, `/api/day?date=${DAY}`));
   const setupSeconds = (performance.now() - setupStart) / 1000;
 
   // The roster's week as the screen asks for it: Monday to Sunday in the branch's zone.
@@ -332,14 +356,16 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   });
 
   const ms = o.seconds * 1000;
-  const spread = (interval: number) => rng.next() * interval;
+  // Closed loop: the read rounds follow one another without a pause (the writes keep their rates).
+  const spread = (interval: number) => (o.closedLoop ? 0 : rng.next() * interval);
+  const pace = (interval: number) => (o.closedLoop ? 0 : interval);
   const clientLoop = monitorEventLoopDelay({ resolution: 10 });
   await o.apiLoop?.reset();
   clientLoop.enable();
   rec.measuring = true;
   const t0 = performance.now();
   const stopAt = t0 + ms;
-  o.log(`mixed: ${techs.length} technicians, ${dispatchers.length} dispatchers, ${managers.length} managers and the owner for ${o.seconds} s`);
+  o.log(`mixed: ${techs.length} technician, ${dispatchers.flat().length} dispatcher, ${managers.length} manager and ${owners.length} owner sessions for ${o.seconds} s${o.closedLoop ? ', closed loop' : ''}`);
 
   const loops: Promise<void>[] = [];
   for (const t of techs) {
@@ -348,7 +374,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       if (rng.chance(0.1) && performance.now() < stopAt) await t.client.call('readings', 'POST', `/api/visits/${visit.visitId}/readings`, readingsBody(visit.circuitId));
     };
     loops.push(
-      every(t0, spread(30_000), 30_000, stopAt, async () => {
+      every(t0, spread(30_000), pace(30_000), stopAt, async () => {
         const day = await t.client.get<DayAnswer>('day', `/api/day?date=${DAY}`);
         await maybeReadings();
         for (const stop of day?.stops ?? []) {
@@ -361,18 +387,18 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       }),
     );
   }
-  for (const [bi, d] of dispatchers.entries()) {
+  for (const [bi, sessionsOfBranch] of dispatchers.entries()) for (const [j, d] of sessionsOfBranch.entries()) {
     const b = plan.branches[bi]!;
     const w = weekOf(b.zone);
     loops.push(
-      every(t0, spread(5_000), 5_000, stopAt, async () => {
+      every(t0, spread(5_000), pace(5_000), stopAt, async () => {
         await Promise.all([
           d.get('rosterWeek', `/api/bookings?branchId=${b.id}&from=${encodeURIComponent(w.from)}&to=${encodeURIComponent(w.to)}`),
           d.get('rosterLoad', `/api/roster/load?branchId=${b.id}&from=${monday}&to=${sunday}`),
         ]);
       }),
     );
-    const m = movable[bi];
+    const m = movable[bi]![j];
     if (m) {
       loops.push(
         every(t0, spread(30_000), 30_000, stopAt, async () => {
@@ -393,7 +419,7 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   }
   for (const mgr of managers) {
     loops.push(
-      every(t0, spread(15_000), 15_000, stopAt, async () => {
+      every(t0, spread(15_000), pace(15_000), stopAt, async () => {
         await Promise.all([
           mgr.get('watchlist', '/api/leak-cases'),
           mgr.get('watchlist', '/api/watchlist/repeat-alarms'),
@@ -403,7 +429,9 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       }),
     );
   }
-  loops.push(every(t0, rng.next() * Math.min(60_000, ms / 2), 60_000, stopAt, async () => void (await owner.get('fixQuality', `/api/reports/fix-quality?from=${year.from}&to=${year.to}`))));
+  for (const owner of owners) {
+    loops.push(every(t0, rng.next() * Math.min(60_000, ms / 2), 60_000, stopAt, async () => void (await owner.get('fixQuality', `/api/reports/fix-quality?from=${year.from}&to=${year.to}`))));
+  }
 
   await Promise.all(loops);
   const elapsed = (performance.now() - t0) / 1000;
@@ -428,7 +456,9 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   const nsMs = (ns: number) => ns / 1e6;
   return {
     seconds: Math.round(elapsed * 10) / 10,
-    clients: { technicians: techs.length, dispatchers: dispatchers.length, managers: managers.length, owners: 1 },
+    clients: { technicians: techs.length, dispatchers: dispatchers.flat().length, managers: managers.length, owners: owners.length },
+    clientsScale: K,
+    closedLoop: o.closedLoop ?? false,
     setupSeconds: Math.round(setupSeconds * 10) / 10,
     requests: rec.samples.length,
     rps: rec.samples.length / elapsed,

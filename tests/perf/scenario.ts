@@ -229,7 +229,7 @@ export function branchRows(b: number, passwordHash: string): TableRows {
         job.outcome = outcome;
       } else if (job.kind === 'planned_maintenance' && job.secondVisit) outcome = 'needs_return';
       visits.push({
-        id: visitId, branch_id: branchId, work_order_id: woId, booking_id: bookingId, tech_id: techId, en_route_at: iso(onSite - travel),
+        id: visitId, branch_id: branchId, work_order_id: woId, unit_id: job.unit.id, booking_id: bookingId, tech_id: techId, en_route_at: iso(onSite - travel),
         on_site_at: iso(onSite), closed_at: iso(closed), outcome, return_needs: outcome === 'needs_return' ? ['parts'] : [],
         labour_minutes: minutes, notes: null, created_at: iso(onSite - travel), updated_at: iso(closed),
       });

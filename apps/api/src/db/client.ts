@@ -21,19 +21,24 @@ export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0] | Db;
 export interface LocalChanges {
   /** Rises for a branch at each commit that changes what its Roster shows. */
   rosterRevision(branchId: string): number;
+  /** Rises for a site at each commit that changes what a unit briefing there shows (migration 0021). */
+  briefingRevision(siteId: string): number;
   /** Calls `listener` with a user's id when their row changes or goes. */
   onUserChange(listener: (userId: string) => void): () => void;
 }
 
 async function listenForChanges(client: PGlite): Promise<LocalChanges> {
   const revisions = new Map<string, number>();
+  const briefings = new Map<string, number>();
   const userListeners = new Set<(userId: string) => void>();
   // PGlite hands notifications over before the committing query's promise settles, so whoever committed
   // (and everyone after) already sees the new revision.
   await client.listen('coilpath_roster', (branchId) => revisions.set(branchId, (revisions.get(branchId) ?? 0) + 1));
+  await client.listen('coilpath_site', (siteId) => briefings.set(siteId, (briefings.get(siteId) ?? 0) + 1));
   await client.listen('coilpath_user', (userId) => userListeners.forEach((l) => l(userId)));
   return {
     rosterRevision: (branchId) => revisions.get(branchId) ?? 0,
+    briefingRevision: (siteId) => briefings.get(siteId) ?? 0,
     onUserChange(listener) {
       userListeners.add(listener);
       return () => userListeners.delete(listener);

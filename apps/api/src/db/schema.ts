@@ -402,6 +402,17 @@ export const rosterRevisions = pgTable('roster_revisions', {
 });
 
 /**
+ * A counter per site that deferred triggers raise at the commit of any change a unit briefing of the site shows
+ * (migration 0021: the site and its units, circuits, work orders, visits, findings, readings, leak cases,
+ * refrigerant entries, alarms and photos; the branch's settings and technicians' names for all its sites).
+ * `GET /api/units/:id/briefing` reuses its answer while the revision stands.
+ */
+export const briefingRevisions = pgTable('briefing_revisions', {
+  siteId: uuid().primaryKey(),
+  revision: bigint({ mode: 'number' }).notNull().default(0),
+});
+
+/**
  * What the open screens hear (`GET /api/events`, `modules/events/`): one row per change a screen shows, written by
  * database triggers in the committing transaction (migration 0016) and announced with `pg_notify('coilpath_live', id)`.
  * `kind`: `roster` (with the branch's new roster revision), `day` (for the technician `user_id`), `visit`, `alarm`,
@@ -453,6 +464,11 @@ export const visits = pgTable('visits', {
   id: id(),
   branchId: uuid().notNull().references(() => branches.id),
   workOrderId: uuid().notNull().references(() => workOrders.id),
+  /**
+   * The work order's unit (null for site-wide work), copied by a trigger on insert and kept when the work order's
+   * unit changes (migration 0021), so a unit's last visit is one index descent (`visits_unit_closed_idx`).
+   */
+  unitId: uuid().references(() => units.id),
   bookingId: uuid().references(() => bookings.id, { onDelete: 'set null' }),
   techId: uuid().notNull().references(() => users.id),
   enRouteAt: instant(),
@@ -475,6 +491,7 @@ export const visits = pgTable('visits', {
   index('visits_work_order_idx').on(t.workOrderId),
   index('visits_tech_idx').on(t.techId, t.createdAt),
   index('visits_closed_idx').on(t.branchId, t.closedAt),
+  index('visits_unit_closed_idx').on(t.unitId, t.closedAt),
   uniqueIndex('visits_booking_uq').on(t.bookingId),
   // The root cause is one of the visit's own findings: the foreign key (id, root_cause_finding_id) →
   // findings (visit_id, id) is hand-written in migration 0017 (drizzle-kit would add it before the unique key it needs).

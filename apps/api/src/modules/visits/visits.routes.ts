@@ -20,6 +20,7 @@ import { signatureImage } from './signature';
 import { addAttachment, readAttachment } from './attachments.service';
 import { sendStoredFile } from '../../lib/send-file';
 import { unitBriefing } from './briefing.service';
+import { briefingRevisionOf, createRevisionCache } from '../../lib/revision-cache';
 import { closeVisit, resendSummary } from './closeout.service';
 import { recordRefrigerantEvent } from './refrigerant.service';
 import { addFinding, changeState, currentVisit, saveReadings, visitDetail } from './visits.service';
@@ -112,7 +113,10 @@ export function attachmentsRoutes(ctx: AppContext): Router {
 /** `/api/units/:id/briefing` and `/api/units/:id/refrigerant-events` (the units CRUD lives in modules/units). */
 export function briefingRoutes(ctx: AppContext): Router {
   const r = Router();
-  r.get('/:id/briefing', endpoint({ params: idParams }, ({ user, params }) => unitBriefing(ctx, user, params.id)));
+  // Each technician opens the briefing of every stop, often several times a day: the answer is kept per unit
+  // while its site's briefing revision stands (migration 0021), for every unit a day's routes may hold.
+  const briefings = createRevisionCache(4096, briefingRevisionOf);
+  r.get('/:id/briefing', endpoint({ params: idParams }, ({ user, params }) => unitBriefing(ctx, user, params.id, briefings)));
   r.post(
     '/:id/refrigerant-events',
     endpoint({ params: idParams, body: refrigerantEventInputSchema }, async ({ user, params, body, res }) => {
