@@ -1,3 +1,5 @@
+import type { ZodType } from 'zod';
+import type * as Responses from '@coilpath/contract/responses';
 import { noteServerNow } from './now';
 import { noteNetworkAnswer, noteNetworkFailure } from './online';
 
@@ -35,7 +37,27 @@ export function withQuery(path: string, query?: Query): string {
   return s ? `${path}?${s}` : path;
 }
 
-async function request<T>(method: string, path: string, body?: unknown, init?: RequestInit): Promise<T> {
+/** The name of a response schema in `@coilpath/contract/responses` (e.g. `'dayResponseSchema'`). */
+export type ResponseSchemaName = { [K in keyof typeof Responses]: (typeof Responses)[K] extends ZodType ? K : never }[keyof typeof Responses];
+
+export interface RequestOptions {
+  /**
+   * The answer's schema: in development and tests the answer is parsed with it (loaded on demand, so the
+   * production build carries no response schema) and a mismatch throws `response_mismatch`; the answer itself
+   * is returned as received.
+   */
+  check?: ResponseSchemaName;
+}
+
+async function checkAnswer(method: string, path: string, check: ResponseSchemaName, data: unknown): Promise<void> {
+  const schemas = await import('@coilpath/contract/responses');
+  const parsed = (schemas[check] as ZodType).safeParse(data);
+  if (parsed.success) return;
+  const said = parsed.error.issues.map((i) => `${i.path.join('.') || '(answer)'}: ${i.message}`).join('; ');
+  throw new ApiError(0, 'response_mismatch', `${method} ${path} answered something ${check} does not allow: ${said}`, { issues: parsed.error.issues });
+}
+
+async function request<T>(method: string, path: string, body?: unknown, init?: RequestInit, options?: RequestOptions): Promise<T> {
   let res: Response;
   try {
     res = await fetch(path, {
@@ -61,11 +83,13 @@ async function request<T>(method: string, path: string, body?: unknown, init?: R
     if (res.status === 401 && !path.startsWith('/api/auth/')) onUnauthorized?.();
     throw new ApiError(res.status, e?.code ?? 'http_error', e?.message ?? `The server answered ${res.status}.`, e?.details);
   }
+  // Dropped from the production build (import.meta.env is replaced at build time).
+  if (options?.check && (import.meta.env.DEV || import.meta.env.MODE === 'test')) await checkAnswer(method, path, options.check, data);
   return data as T;
 }
 
 export const api = {
-  get: <T>(path: string, query?: Query) => request<T>('GET', withQuery(path, query)),
+  get: <T>(path: string, query?: Query, options?: RequestOptions) => request<T>('GET', withQuery(path, query), undefined, undefined, options),
   post: <T>(path: string, body?: unknown) => request<T>('POST', path, body ?? {}),
   patch: <T>(path: string, body?: unknown) => request<T>('PATCH', path, body ?? {}),
   put: <T>(path: string, body?: unknown) => request<T>('PUT', path, body ?? {}),

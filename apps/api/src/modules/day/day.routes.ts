@@ -6,6 +6,7 @@ import { endpoint } from '../../lib/endpoint';
 import { createRevisionCache } from '../../lib/revision-cache';
 import { calendarFeed, revokeCalendarToken, rotateCalendarToken } from './calendar.service';
 import { technicianDay } from './day.service';
+import { calendarTokenResultSchema, dayResponseSchema } from '@coilpath/contract/responses';
 
 /** `/api/day`: the technician's Route, technicians only. */
 export function dayRoutes(ctx: AppContext): Router {
@@ -14,7 +15,7 @@ export function dayRoutes(ctx: AppContext): Router {
   // roster revision stands (one entry per technician and date; room for a large branch's today and tomorrow).
   const days = createRevisionCache(512);
   r.use(requireRole('technician'));
-  r.get('/', endpoint({ query: dayQuerySchema }, ({ user, query }) => technicianDay(ctx, user, query.date, days)));
+  r.get('/', endpoint({ query: dayQuerySchema, response: dayResponseSchema }, ({ user, query }) => technicianDay(ctx, user, query.date, days)));
   return r;
 }
 
@@ -24,8 +25,8 @@ export function dayRoutes(ctx: AppContext): Router {
  */
 export function calendarRoutes(ctx: AppContext): Router {
   const r = Router();
-  r.post('/token', requireRole('technician'), endpoint({ status: 201 }, ({ user }) => rotateCalendarToken(ctx, user.id)));
-  r.delete('/token', requireRole('technician'), endpoint({}, async ({ user }) => {
+  r.post('/token', requireRole('technician'), endpoint({ status: 201, response: calendarTokenResultSchema }, ({ user }) => rotateCalendarToken(ctx, user.id)));
+  r.delete('/token', requireRole('technician'), endpoint({ response: 'empty' }, async ({ user }) => {
     await revokeCalendarToken(ctx, user.id);
   }));
   r.get('/:token.ics', async (req, res) => {

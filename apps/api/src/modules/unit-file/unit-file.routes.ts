@@ -10,6 +10,7 @@ import { attachmentLabel } from '../visits/attachments.service';
 import { searchUnits, unitAttachment, unitFile } from './unit-file.service';
 import { refrigerantRecord } from './refrigerant-record';
 import { recordCsv, recordFileName, recordPdf } from './refrigerant-record.export';
+import { refrigerantRecordSchema, unitFileSchema, unitSearchResultSchema } from '@coilpath/contract/responses';
 
 const unitParams = z.object({ id: idSchema });
 
@@ -22,11 +23,11 @@ export function unitFileRoutes(ctx: AppContext): Router {
   const r = Router();
   r.get(
     '/:id/file',
-    endpoint({ params: unitParams }, ({ params, user }) => unitFile(ctx.db, user, params.id)),
+    endpoint({ params: unitParams, response: unitFileSchema }, ({ params, user }) => unitFile(ctx.db, user, params.id)),
   );
   r.get(
     '/:id/refrigerant-record',
-    endpoint({ params: unitParams, query: refrigerantRecordQuerySchema }, async ({ params, query, user, res }) => {
+    endpoint({ params: unitParams, query: refrigerantRecordQuerySchema, response: refrigerantRecordSchema }, async ({ params, query, user, res }) => {
       const now = ctx.clock.now();
       const record = await refrigerantRecord(ctx.db, user, params.id, now);
       if (query.format === 'json') return record;
@@ -45,7 +46,7 @@ export function unitFileRoutes(ctx: AppContext): Router {
   );
   r.get(
     '/:id/file/attachments/:attachmentId',
-    endpoint({ params: unitParams.extend({ attachmentId: idSchema }) }, async ({ params, user, res }) => {
+    endpoint({ params: unitParams.extend({ attachmentId: idSchema }), response: 'file' }, async ({ params, user, res }) => {
       const a = await unitAttachment(ctx.db, user, params.id, params.attachmentId);
       const content = await readStoredFile(ctx.storage, a.storageKey, attachmentLabel[a.kind]);
       sendStoredFile(res, { content, contentType: a.contentType, name: a.displayName, cacheControl: 'private, max-age=3600' });
@@ -59,7 +60,7 @@ export function unitSearchRoutes(ctx: AppContext): Router {
   const r = Router();
   r.get(
     '/',
-    endpoint({ query: unitSearchQuerySchema }, ({ query, user }) => searchUnits(ctx.db, user, query, resolveBranch(user, query.branchId))),
+    endpoint({ query: unitSearchQuerySchema, response: unitSearchResultSchema }, ({ query, user }) => searchUnits(ctx.db, user, query, resolveBranch(user, query.branchId))),
   );
   return r;
 }

@@ -24,25 +24,26 @@ import { briefingRevisionOf, createRevisionCache } from '../../lib/revision-cach
 import { closeVisit, resendSummary } from './closeout.service';
 import { recordRefrigerantEvent } from './refrigerant.service';
 import { addFinding, changeState, currentVisit, saveReadings, visitDetail } from './visits.service';
+import { attachmentAnswerSchema, closeVisitResultSchema, currentVisitResultSchema, findingAnswerSchema, readingsAnswerSchema, refrigerantEventResultSchema, summaryAnswerSchema, unitBriefingSchema, visitDetailSchema } from '@coilpath/contract/responses';
 
 /** `/api/visits`: the Visit screen's reads and the assigned technician's writes. */
 export function visitsRoutes(ctx: AppContext): Router {
   const r = Router();
 
-  r.get('/current', requireRole('technician'), endpoint({}, ({ user }) => currentVisit(ctx, user)));
+  r.get('/current', requireRole('technician'), endpoint({ response: currentVisitResultSchema }, ({ user }) => currentVisit(ctx, user)));
 
-  r.get('/:id', endpoint({ params: idParams }, ({ user, params }) => visitDetail(ctx.db, user, params.id)));
+  r.get('/:id', endpoint({ params: idParams, response: visitDetailSchema }, ({ user, params }) => visitDetail(ctx.db, user, params.id)));
 
-  r.patch('/:id', endpoint({ params: idParams, body: visitStateChangeSchema }, ({ user, params, body }) => changeState(ctx, user, params.id, body)));
+  r.patch('/:id', endpoint({ params: idParams, body: visitStateChangeSchema, response: visitDetailSchema }, ({ user, params, body }) => changeState(ctx, user, params.id, body)));
 
   r.post(
     '/:id/readings',
-    endpoint({ params: idParams, body: saveReadingsSchema }, ({ user, params, body }) => saveReadings(ctx, user, params.id, body)),
+    endpoint({ params: idParams, body: saveReadingsSchema, response: readingsAnswerSchema }, ({ user, params, body }) => saveReadings(ctx, user, params.id, body)),
   );
 
   r.post(
     '/:id/findings',
-    endpoint({ params: idParams, body: findingInputSchema }, async ({ user, params, body, res }) => {
+    endpoint({ params: idParams, body: findingInputSchema, response: findingAnswerSchema }, async ({ user, params, body, res }) => {
       const out = await addFinding(ctx, user, params.id, body);
       res.status(out.created ? 201 : 200).json({ finding: out.finding });
     }),
@@ -69,7 +70,7 @@ export function visitsRoutes(ctx: AppContext): Router {
     },
     upload,
     endpoint(
-      { params: idParams, body: attachmentUploadFieldsSchema.extend({ unitId: idSchema.optional() }), status: 201 },
+      { params: idParams, body: attachmentUploadFieldsSchema.extend({ unitId: idSchema.optional() }), status: 201, response: attachmentAnswerSchema },
       async ({ user, params, body, req }) => ({
         attachment: await addAttachment(ctx, user, params.id, req.file, { id: body.id, kind: body.kind, unitId: body.unitId }),
       }),
@@ -78,13 +79,13 @@ export function visitsRoutes(ctx: AppContext): Router {
 
   r.post(
     '/:id/close',
-    endpoint({ params: idParams, body: closeVisitSchema }, ({ user, params, body }) => closeVisit(ctx, user, params.id, body)),
+    endpoint({ params: idParams, body: closeVisitSchema, response: closeVisitResultSchema }, ({ user, params, body }) => closeVisit(ctx, user, params.id, body)),
   );
 
   // The customer's signature image (PNG) of a closed, signed visit: whoever may read the visit; 404 when not signed.
   r.get(
     '/:id/signature',
-    endpoint({ params: idParams }, async ({ user, params, res }) => {
+    endpoint({ params: idParams, response: 'file' }, async ({ user, params, res }) => {
       assertVisitReadable(user, await loadVisit(ctx.db, params.id));
       const png = await signatureImage(ctx.db, params.id);
       if (!png) throw notFound('signature');
@@ -92,7 +93,7 @@ export function visitsRoutes(ctx: AppContext): Router {
     }),
   );
 
-  r.post('/:id/summary', endpoint({ params: idParams }, async ({ user, params }) => ({ summary: await resendSummary(ctx, user, params.id) })));
+  r.post('/:id/summary', endpoint({ params: idParams, response: summaryAnswerSchema }, async ({ user, params }) => ({ summary: await resendSummary(ctx, user, params.id) })));
 
   return r;
 }
@@ -102,7 +103,7 @@ export function attachmentsRoutes(ctx: AppContext): Router {
   const r = Router();
   r.get(
     '/:id',
-    endpoint({ params: idParams, query: z.object({ thumb: z.string().optional() }) }, async ({ user, params, res }) => {
+    endpoint({ params: idParams, query: z.object({ thumb: z.string().optional() }), response: 'file' }, async ({ user, params, res }) => {
       const { attachment: a, content } = await readAttachment(ctx, user, params.id);
       sendStoredFile(res, { content, contentType: a.contentType, name: a.displayName, cacheControl: 'private, max-age=3600' });
     }),
@@ -116,10 +117,10 @@ export function briefingRoutes(ctx: AppContext): Router {
   // Each technician opens the briefing of every stop, often several times a day: the answer is kept per unit
   // while its site's briefing revision stands (migration 0021), for every unit a day's routes may hold.
   const briefings = createRevisionCache(4096, briefingRevisionOf);
-  r.get('/:id/briefing', endpoint({ params: idParams }, ({ user, params }) => unitBriefing(ctx, user, params.id, briefings)));
+  r.get('/:id/briefing', endpoint({ params: idParams, response: unitBriefingSchema }, ({ user, params }) => unitBriefing(ctx, user, params.id, briefings)));
   r.post(
     '/:id/refrigerant-events',
-    endpoint({ params: idParams, body: refrigerantEventInputSchema }, async ({ user, params, body, res }) => {
+    endpoint({ params: idParams, body: refrigerantEventInputSchema, response: refrigerantEventResultSchema }, async ({ user, params, body, res }) => {
       const { created, ...out } = await recordRefrigerantEvent(ctx, user, params.id, body);
       res.status(created ? 201 : 200).json(out);
     }),

@@ -24,7 +24,7 @@ import { CalendarFeedCard } from './calendar-feed';
 
 // Opened online, Route always asks the server again (the office may have changed the day since the phone kept it).
 const dayQuery = (date: string | undefined) =>
-  queryOptions({ queryKey: ['day', date ?? 'today'], queryFn: () => api.get<DayResponse>('/api/day', { date }), refetchOnMount: 'always' });
+  queryOptions({ queryKey: ['day', date ?? 'today'], queryFn: () => api.get<DayResponse>('/api/day', { date }, { check: 'dayResponseSchema' }), refetchOnMount: 'always' });
 
 const orderKey = (date: string) => `coilpath.day-order.${date}`;
 

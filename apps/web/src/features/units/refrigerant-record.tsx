@@ -18,7 +18,7 @@ import { UnitTable } from './unit-table';
 export const refrigerantRecordQuery = (unitId: string) =>
   queryOptions({
     queryKey: ['units', 'refrigerant-record', unitId],
-    queryFn: () => api.get<RefrigerantRecord>(`/api/units/${unitId}/refrigerant-record`),
+    queryFn: () => api.get<RefrigerantRecord>(`/api/units/${unitId}/refrigerant-record`, undefined, { check: 'refrigerantRecordSchema' }),
   });
 
 export const recordDownloadUrl = (unitId: string, format: 'csv' | 'pdf') => `/api/units/${unitId}/refrigerant-record?format=${format}`;

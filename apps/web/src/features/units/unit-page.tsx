@@ -23,7 +23,7 @@ import { appNow } from '@/lib/now';
 import { unitFileQuery } from '@/lib/visit-queries';
 
 const unitSearchQuery = (q: string, branchId: string | undefined) =>
-  queryOptions({ queryKey: ['units', 'search', q, branchId], queryFn: () => api.get<UnitSearchResult>('/api/unit-file', { q, branchId }) });
+  queryOptions({ queryKey: ['units', 'search', q, branchId], queryFn: () => api.get<UnitSearchResult>('/api/unit-file', { q, branchId }, { check: 'unitSearchResultSchema' }) });
 
 
 export default function UnitPage() {

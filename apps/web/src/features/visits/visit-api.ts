@@ -7,7 +7,7 @@ import { api } from '@/lib/api-client';
 
 export const currentVisitQuery = queryOptions({
   queryKey: ['visit', 'current'],
-  queryFn: () => api.get<CurrentVisitResult>('/api/visits/current'),
+  queryFn: () => api.get<CurrentVisitResult>('/api/visits/current', undefined, { check: 'currentVisitResultSchema' }),
   staleTime: 0,
 });
 

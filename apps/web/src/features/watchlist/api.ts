@@ -23,16 +23,16 @@ import { api } from '@/lib/api-client';
 const key = (branchId: string | undefined) => ['watchlist', branchId ?? 'all'] as const;
 
 export function useLeakCases(branchId: string | undefined) {
-  return useQuery({ queryKey: [...key(branchId), 'leak-cases'], queryFn: () => api.get<{ leakCases: LeakCaseRow[] }>('/api/leak-cases', { branchId }).then((r) => r.leakCases) });
+  return useQuery({ queryKey: [...key(branchId), 'leak-cases'], queryFn: () => api.get<{ leakCases: LeakCaseRow[] }>('/api/leak-cases', { branchId }, { check: 'leakCaseListAnswerSchema' }).then((r) => r.leakCases) });
 }
 export function useRepeatAlarms(branchId: string | undefined) {
-  return useQuery({ queryKey: [...key(branchId), 'repeat-alarms'], queryFn: () => api.get<RepeatAlarmResponse>('/api/watchlist/repeat-alarms', { branchId }) });
+  return useQuery({ queryKey: [...key(branchId), 'repeat-alarms'], queryFn: () => api.get<RepeatAlarmResponse>('/api/watchlist/repeat-alarms', { branchId }, { check: 'repeatAlarmResponseSchema' }) });
 }
 export function useReturnVisits(branchId: string | undefined) {
-  return useQuery({ queryKey: [...key(branchId), 'return-visits'], queryFn: () => api.get<{ returnVisits: ReturnVisitRow[] }>('/api/watchlist/return-visits', { branchId }).then((r) => r.returnVisits) });
+  return useQuery({ queryKey: [...key(branchId), 'return-visits'], queryFn: () => api.get<{ returnVisits: ReturnVisitRow[] }>('/api/watchlist/return-visits', { branchId }, { check: 'returnVisitListAnswerSchema' }).then((r) => r.returnVisits) });
 }
 export function useRecentAlarms(branchId: string | undefined) {
-  return useQuery({ queryKey: [...key(branchId), 'alarms'], queryFn: () => api.get<{ alarms: AlarmRow[] }>('/api/alarms', { branchId, limit: 20 }).then((r) => r.alarms) });
+  return useQuery({ queryKey: [...key(branchId), 'alarms'], queryFn: () => api.get<{ alarms: AlarmRow[] }>('/api/alarms', { branchId, limit: 20 }, { check: 'alarmListAnswerSchema' }).then((r) => r.alarms) });
 }
 
 /** Every Watchlist mutation refreshes the Watchlist's queries (and the Roster's, which shows the queue). */
