@@ -1,5 +1,4 @@
 import { Router } from 'express';
-import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import {
   createInspectionsSchema,
@@ -9,16 +8,11 @@ import {
   warrantyClaimUpdateSchema,
 } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { branches } from '../../db/schema';
 import { requireRole, resolveBranch } from '../../auth/middleware';
 import { endpoint } from '../../lib/endpoint';
-import {
-  createInspections,
-  factoryDefectReview,
-  fixQualityReport,
-  modelAlerts,
-  updateWarrantyClaim,
-} from './fix-quality.service';
+import { fixQualityReport, reportScopeName } from './fix-quality.service';
+import { factoryDefectReview, updateWarrantyClaim } from './factory-defects.service';
+import { createInspections, modelAlerts } from './model-alerts.service';
 import { csvFileName, reportPdf, tableCsv } from './fix-quality.export';
 
 /**
@@ -82,13 +76,13 @@ export function fixQualityRoutes(ctx: AppContext): Router {
       const branchId = resolveBranch(user, query.branchId);
       const period = { from: query.from, to: query.to };
       const now = ctx.clock.now();
-      const [report, defects, alerts, branch] = await Promise.all([
+      const [report, defects, alerts, branchName] = await Promise.all([
         fixQualityReport(ctx.db, period, branchId, now),
         factoryDefectReview(ctx.db, period, branchId),
         modelAlerts(ctx.db, user),
-        branchId ? ctx.db.select({ name: branches.name }).from(branches).where(eq(branches.id, branchId)).limit(1) : Promise.resolve([]),
+        reportScopeName(ctx.db, branchId),
       ]);
-      const pdf = await reportPdf({ report, defects, alerts, branchName: branch[0]?.name ?? 'All branches', generatedAt: now });
+      const pdf = await reportPdf({ report, defects, alerts, branchName, generatedAt: now });
       res.setHeader('Content-Type', 'application/pdf');
       res.setHeader('Content-Disposition', `attachment; filename="coilpath-fix-quality-${query.from}-to-${query.to}.pdf"`);
       res.send(pdf);
