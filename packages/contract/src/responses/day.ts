@@ -2,7 +2,7 @@
 import { z } from 'zod';
 import type { CalendarTokenResult, DayResponse, DayRoute, DayStop } from '../day';
 import type { Agree, AllAgree } from './agree';
-import { prioritySchema, unitKindSchema, visitOutcomeSchema, workOrderKindSchema, workOrderStateSchema } from '../vocabulary';
+import { prioritySchema, unitKindSchema, visitOutcomeSchema, workOrderKindSchema, workOrderStateSchema } from '../vocabulary-schemas';
 
 export const dayRouteArrivalSchema = z.object({
   id: z.string(),

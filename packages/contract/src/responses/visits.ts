@@ -1,6 +1,6 @@
 /** Answers of `/api/visits`, `/api/attachments` and the unit briefing (the Visit screen). */
 import { z } from 'zod';
-import { readingUnitsSchema, unitSystemSchema } from '../measure';
+import { readingUnitsSchema, unitSystemSchema } from '../measure-schemas';
 import { modelAlertRefSchema } from '../work-orders';
 import type {
   AttachmentDto,
@@ -15,7 +15,8 @@ import type {
   VisitUnitDto,
 } from '../visits';
 import type { Agree, AllAgree } from './agree';
-import { applianceCategorySchema, attachmentKindSchema, causeCodeSchema, causeOriginSchema, epa608TypeSchema, noteAudienceSchema, prioritySchema, refrigerantEventReasonSchema, returnNeedSchema, unitKindSchema, visitOutcomeSchema, workOrderKindSchema, workOrderStateSchema } from '../vocabulary';
+import { circuitTargetsSchema } from '../sites';
+import { applianceCategorySchema, epa608TypeSchema, attachmentKindSchema, causeCodeSchema, causeOriginSchema, noteAudienceSchema, prioritySchema, refrigerantEventReasonSchema, returnNeedSchema, unitKindSchema, visitOutcomeSchema, workOrderKindSchema, workOrderStateSchema } from '../vocabulary-schemas';
 
 
 
@@ -47,7 +48,8 @@ export const visitCircuitDtoSchema = z.object({
   id: z.string(),
   number: z.number(),
   compressorCount: z.number(),
-  chargeLb: z.number().nullable()
+  chargeLb: z.number().nullable(),
+  targets: circuitTargetsSchema
 });
 
 export const visitStatusSchema = z.union([z.literal('booked'), z.literal('en_route'), z.literal('on_site'), z.literal('closed')]);

@@ -2,17 +2,7 @@
 import { z } from 'zod';
 import type { AlarmImportResult, AlarmRow, BookRepairResult, LeakCaseRow, RepeatAlarmResponse, ReturnVisitRow, UnitChoice } from '../watchlist';
 import type { Agree, AllAgree } from './agree';
-import {
-  causeCodeSchema,
-  causeOriginSchema,
-  leakCaseStatusSchema,
-  leakObligationStateSchema,
-  prioritySchema,
-  returnNeedSchema,
-  visitOutcomeSchema,
-  workOrderKindSchema,
-  workOrderStateSchema,
-} from '../vocabulary';
+import { causeCodeSchema, causeOriginSchema, leakCaseStatusSchema, leakObligationStateSchema, prioritySchema, returnNeedSchema, visitOutcomeSchema, workOrderKindSchema, workOrderStateSchema } from '../vocabulary-schemas';
 
 export const alarmRowSchema = z.object({
   id: z.string(),
