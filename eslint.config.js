@@ -34,7 +34,10 @@ export default defineConfig(
     files: ['**/*.{ts,tsx}'],
     rules: {
       // Names starting with `_` are kept on purpose (a required parameter the body does not use).
-      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrors: 'none', ignoreRestSiblings: true }],
+      '@typescript-eslint/no-unused-vars': [
+        'error',
+        { argsIgnorePattern: '^_', varsIgnorePattern: '^_', caughtErrors: 'none', ignoreRestSiblings: true },
+      ],
       // Uploaded text is checked for control characters on purpose (to refuse binary files as CSV).
       'no-control-regex': 'off',
     },
@@ -112,23 +115,39 @@ export default defineConfig(
     files: ['apps/api/src/modules/**/*.ts'],
     ignores: ['**/*.test.ts', 'apps/api/src/modules/*/*.routes.ts'],
     rules: {
-      'no-restricted-imports': ['error', {
-        patterns: [
-          { group: ['**/auth/middleware', '**/auth/cookies'], message: 'services, repos and presenters never reach HTTP: who may act is auth/policy.ts; middleware and cookies belong to routes' },
-          { group: ['**/*.routes'], message: 'a service never imports a route file: move what both need down (a service, a repo, or auth/)' },
-        ],
-      }],
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            {
+              group: ['**/auth/middleware', '**/auth/cookies'],
+              message:
+                'services, repos and presenters never reach HTTP: who may act is auth/policy.ts; middleware and cookies belong to routes',
+            },
+            {
+              group: ['**/*.routes'],
+              message: 'a service never imports a route file: move what both need down (a service, a repo, or auth/)',
+            },
+          ],
+        },
+      ],
     },
   },
   {
     files: ['apps/api/src/modules/*/*.routes.ts'],
     rules: {
-      'no-restricted-imports': ['error', {
-        patterns: [
-          { group: ['**/*.repo'], message: 'a route calls its service, never a repo (routes → service → repo)' },
-          { group: ['**/*.routes'], message: 'a route file never imports another route file: move what both need down (auth/cookies.ts, a service)' },
-        ],
-      }],
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            { group: ['**/*.repo'], message: 'a route calls its service, never a repo (routes → service → repo)' },
+            {
+              group: ['**/*.routes'],
+              message: 'a route file never imports another route file: move what both need down (auth/cookies.ts, a service)',
+            },
+          ],
+        },
+      ],
     },
   },
 );

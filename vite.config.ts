@@ -58,9 +58,14 @@ const pwa = VitePWA({
     runtimeCaching: [
       {
         // Photo thumbnails on the technician's briefings (`/api/attachments/:id?thumb=1`; a stored file never changes).
-        urlPattern: ({ url, request }) => request.method === 'GET' && url.searchParams.has('thumb') && /^\/api\/attachments\/[^/]+$/.test(url.pathname),
+        urlPattern: ({ url, request }) =>
+          request.method === 'GET' && url.searchParams.has('thumb') && /^\/api\/attachments\/[^/]+$/.test(url.pathname),
         handler: 'CacheFirst',
-        options: { cacheName: 'coilpath-thumbnails', expiration: { maxEntries: 400, maxAgeSeconds: 14 * 86_400 }, cacheableResponse: { statuses: [200] } },
+        options: {
+          cacheName: 'coilpath-thumbnails',
+          expiration: { maxEntries: 400, maxAgeSeconds: 14 * 86_400 },
+          cacheableResponse: { statuses: [200] },
+        },
       },
     ],
   },

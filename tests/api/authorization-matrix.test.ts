@@ -28,8 +28,14 @@ describe('the route table', () => {
     const rows = routeTable.map(key);
     const duplicates = rows.filter((k, i) => rows.indexOf(k) !== i);
     expect(duplicates, 'rows listed twice in tests/api/route-table.ts').toEqual([]);
-    expect(served.filter((k) => !rows.includes(k)), 'routes missing from tests/api/route-table.ts').toEqual([]);
-    expect(rows.filter((k) => !served.includes(k)), 'rows in tests/api/route-table.ts for routes that do not exist').toEqual([]);
+    expect(
+      served.filter((k) => !rows.includes(k)),
+      'routes missing from tests/api/route-table.ts',
+    ).toEqual([]);
+    expect(
+      rows.filter((k) => !served.includes(k)),
+      'rows in tests/api/route-table.ts for routes that do not exist',
+    ).toEqual([]);
   });
 });
 
@@ -43,7 +49,13 @@ describe('authorization matrix', () => {
       const sides = async () => (row.method === 'GET' ? (shared ??= await f.makeSides()) : f.makeSides());
       for (const caller of callers) {
         const outcome = row.expect[caller];
-        const cases = typeof outcome === 'number' ? ([['own', outcome]] as const) : ([['own', outcome.own], ['other', outcome.other]] as const);
+        const cases =
+          typeof outcome === 'number'
+            ? ([['own', outcome]] as const)
+            : ([
+                ['own', outcome.own],
+                ['other', outcome.other],
+              ] as const);
         for (const [which, status] of cases) {
           const s = await sides();
           const res = await callRoute(t.app, f, row, caller, which === 'own' ? s.own : s.other);

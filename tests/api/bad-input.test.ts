@@ -30,7 +30,17 @@ const nasty = {
   sql: ["'; DROP TABLE users; --", "Robert'); DELETE FROM sites WHERE ('1'='1", '1 OR 1=1', '" OR ""="'],
   html: ['<script>alert(1)</script>', '<img src=x onerror="alert(1)">', '</textarea><b>bold</b>', '&lt;&amp;&#39;'],
   traversal: ['../../etc/passwd', '..\\..\\windows\\win.ini', '/etc/shadow', '%2e%2e%2f%2e%2e%2fetc%2fpasswd', 'a/../../b.png'],
-  dates: ['2026-02-30', '2026-13-01', '2026-00-10', '2025-02-29', '2026-02-30T10:00:00Z', '2026-06-01T25:61:00Z', '30/02/2026', 'yesterday', ''],
+  dates: [
+    '2026-02-30',
+    '2026-13-01',
+    '2026-00-10',
+    '2025-02-29',
+    '2026-02-30T10:00:00Z',
+    '2026-06-01T25:61:00Z',
+    '30/02/2026',
+    'yesterday',
+    '',
+  ],
   numbers: [-1, -0.5, -1e9, 1e308, Number.MAX_SAFE_INTEGER * 16, 0.000001, NaN, Infinity, -Infinity],
   control: ['\u0000', 'a\u0000b', '\u202e', '\ud800', ' '.repeat(50)],
 };
@@ -78,10 +88,15 @@ function badBodies(valid: Record<string, unknown>, schema: z.ZodType): fc.Arbitr
       const { [k]: _gone, ...rest } = valid;
       return { label: `missing ${k}`, body: rest };
     }),
-    fc.tuple(fc.string({ minLength: 1, maxLength: 12 }).filter((k) => !fields.includes(k) && k !== '__proto__'), anyJson).map(([k, v]) =>
-      set(k, v, 'extra field'),
-    ),
-    fc.tuple(field, textValue).map(([k, v]) => set(k, v, `text ${JSON.stringify(v.slice(0, 20))}${v.length > 20 ? `… (${v.length})` : ''} in`)),
+    fc
+      .tuple(
+        fc.string({ minLength: 1, maxLength: 12 }).filter((k) => !fields.includes(k) && k !== '__proto__'),
+        anyJson,
+      )
+      .map(([k, v]) => set(k, v, 'extra field')),
+    fc
+      .tuple(field, textValue)
+      .map(([k, v]) => set(k, v, `text ${JSON.stringify(v.slice(0, 20))}${v.length > 20 ? `… (${v.length})` : ''} in`)),
     fc.tuple(field, fc.constantFrom(...nasty.numbers)).map(([k, v]) => set(k, v, `number ${v} in`)),
     fc.tuple(field, fc.constantFrom(...nasty.dates)).map(([k, v]) => set(k, v, `date ${v} in`)),
     fc.constantFrom<Mutation>(
@@ -103,23 +118,52 @@ function badQueries(valid: Record<string, string>, schema: z.ZodType): fc.Arbitr
   const fields = [...new Set([...Object.keys(valid), ...Object.keys(shape)])];
   const field = fields.length ? fc.constantFrom(...fields) : fc.constant('q');
   const value = fc.oneof(
-    fc.constantFrom('abc', '-1', '0', 'NaN', 'Infinity', '1e400', '1.5', 'true', '', ...nasty.dates, ...nasty.sql, ...nasty.html, ...nasty.traversal),
+    fc.constantFrom(
+      'abc',
+      '-1',
+      '0',
+      'NaN',
+      'Infinity',
+      '1e400',
+      '1.5',
+      'true',
+      '',
+      ...nasty.dates,
+      ...nasty.sql,
+      ...nasty.html,
+      ...nasty.traversal,
+    ),
     fc.integer({ min: 1_000, max: 4_000 }).map((n) => 'y'.repeat(n)),
     fc.string({ maxLength: 30 }),
   );
   const arb: fc.Arbitrary<QueryMutation> = fc.oneof(
     fc.tuple(field, value).map(([k, v]) => ({ label: `${k}=${JSON.stringify(v.slice(0, 24))}`, query: { ...valid, [k]: v } })),
-    fc.tuple(field, fc.array(value, { minLength: 2, maxLength: 3 })).map(([k, v]) => ({ label: `${k} repeated`, query: { ...valid, [k]: v } })),
-    fc.tuple(fc.string({ minLength: 1, maxLength: 10 }).filter((k) => !fields.includes(k)), value).map(([k, v]) => ({
-      label: `extra ${k}`,
-      query: { ...valid, [k]: v },
-    })),
+    fc
+      .tuple(field, fc.array(value, { minLength: 2, maxLength: 3 }))
+      .map(([k, v]) => ({ label: `${k} repeated`, query: { ...valid, [k]: v } })),
+    fc
+      .tuple(
+        fc.string({ minLength: 1, maxLength: 10 }).filter((k) => !fields.includes(k)),
+        value,
+      )
+      .map(([k, v]) => ({
+        label: `extra ${k}`,
+        query: { ...valid, [k]: v },
+      })),
   );
   return arb.map(labelled);
 }
 
 /** Values that are never a valid id, date or index in a path segment. */
-const badSegments = ['not-an-id', '..%2F..%2Fetc%2Fpasswd', '2026-02-30', "'%20OR%201%3D1--", 'x'.repeat(300), '%00', '00000000-0000-0000-0000-00000000000g'];
+const badSegments = [
+  'not-an-id',
+  '..%2F..%2Fetc%2Fpasswd',
+  '2026-02-30',
+  "'%20OR%201%3D1--",
+  'x'.repeat(300),
+  '%00',
+  '00000000-0000-0000-0000-00000000000g',
+];
 
 /** Who exercises a row: the first caller whose own-branch call succeeds. */
 function happyCaller(row: RouteRow): Caller | null {
@@ -200,18 +244,33 @@ describe('bad input', () => {
         // Uploads: traversal and markup in file names are accepted only as harmless display names;
         // content that is not what it claims, a missing file and a bad kind are refused.
         const file = valid.files[0]!;
-        const upload = (name: string, content: Buffer, body: Record<string, string> = (valid.body ?? {}) as Record<string, string>) => (spec: RequestSpec) => ({
-          ...spec,
-          body,
-          files: [{ ...file, name, content }],
-        });
-        for (const name of [...nasty.traversal.map((t) => `${t}.png`), '<img src=x onerror=alert(1)>.png', `${'n'.repeat(400)}.png`, 'CON.png', '.htaccess']) {
+        const upload =
+          (name: string, content: Buffer, body: Record<string, string> = (valid.body ?? {}) as Record<string, string>) =>
+          (spec: RequestSpec) => ({
+            ...spec,
+            body,
+            files: [{ ...file, name, content }],
+          });
+        for (const name of [
+          ...nasty.traversal.map((t) => `${t}.png`),
+          '<img src=x onerror=alert(1)>.png',
+          `${'n'.repeat(400)}.png`,
+          'CON.png',
+          '.htaccess',
+        ]) {
           const res = await check(row, who, own, `file name ${name.slice(0, 40)}`, false, upload(name, file.content));
           const names = valuesAt(res.body, 'displayName').filter((v): v is string => typeof v === 'string');
           for (const n of names) expect(n, `stored display name for ${name.slice(0, 40)}`).not.toMatch(/[\\/]|\.\./);
         }
         await check(row, who, own, 'text content named .png', true, upload('photo.png', Buffer.from('just text, not a picture')));
-        await check(row, who, own, 'HTML content named .png', true, upload('photo.png', Buffer.from('<html><script>alert(1)</script></html>')));
+        await check(
+          row,
+          who,
+          own,
+          'HTML content named .png',
+          true,
+          upload('photo.png', Buffer.from('<html><script>alert(1)</script></html>')),
+        );
         await check(row, who, own, 'empty file', true, upload('photo.png', Buffer.alloc(0)));
         await check(row, who, own, 'kind is not a kind', true, upload('photo.png', file.content, { kind: 'executable' }));
         await check(row, who, own, 'no file at all', true, (spec) => ({ ...spec, files: undefined, body: undefined }));
@@ -230,8 +289,15 @@ describe('bad input', () => {
               ([k, v]) => row.textFields?.includes(k) && typeof v === 'string' && v !== validBody[k],
             );
             const stored = parsed?.success && text ? (parsed.data as Record<string, unknown>)[text[0]] : undefined;
-            await check(row, who, own, m.label, refused, (spec) => ({ ...spec, body: m.body, rawBody: m.rawBody }),
-              text && typeof stored === 'string' ? { key: text[0], value: stored } : undefined);
+            await check(
+              row,
+              who,
+              own,
+              m.label,
+              refused,
+              (spec) => ({ ...spec, body: m.body, rawBody: m.rawBody }),
+              text && typeof stored === 'string' ? { key: text[0], value: stored } : undefined,
+            );
           }),
           { numRuns: RUNS },
         );

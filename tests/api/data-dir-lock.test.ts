@@ -20,10 +20,21 @@ afterAll(async () => {
 
 /** Runs server.ts on `dataDir` to its end; returns its exit code and what it printed. */
 async function runToExit(dataDir: string): Promise<{ code: number | null; output: string }> {
-  const env: NodeJS.ProcessEnv = { ...process.env, PORT: String(await freePort()), HOST: '127.0.0.1', COILPATH_DATA_DIR: dataDir, COILPATH_JOBS: 'off', COILPATH_SEED: 'never' };
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    PORT: String(await freePort()),
+    HOST: '127.0.0.1',
+    COILPATH_DATA_DIR: dataDir,
+    COILPATH_JOBS: 'off',
+    COILPATH_SEED: 'never',
+  };
   delete env.DATABASE_URL;
   delete env.NODE_OPTIONS;
-  const child = spawn(process.execPath, ['--import', 'tsx', 'apps/api/src/server.ts'], { cwd: repoRoot, env, stdio: ['ignore', 'pipe', 'pipe'] });
+  const child = spawn(process.execPath, ['--import', 'tsx', 'apps/api/src/server.ts'], {
+    cwd: repoRoot,
+    env,
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
   let output = '';
   child.stdout.on('data', (d: Buffer) => (output += d.toString()));
   child.stderr.on('data', (d: Buffer) => (output += d.toString()));

@@ -10,7 +10,10 @@ describe('listRoutes', () => {
     inner.get('/', (_req, res) => res.end());
     inner.post('/', (_req, res) => res.end());
     inner.patch('/:id', (_req, res) => res.end());
-    inner.route('/:id/notes').get((_req, res) => res.end()).delete((_req, res) => res.end());
+    inner
+      .route('/:id/notes')
+      .get((_req, res) => res.end())
+      .delete((_req, res) => res.end());
     const deeper = Router();
     deeper.get('/:index', (_req, res) => res.end());
     inner.use('/:id/files', deeper);

@@ -66,12 +66,25 @@ export async function makeMatrixFixture(ctx: AppContext): Promise<MatrixFixture>
     const startAt = nextWeekday(ctx.clock.now());
     const [booking] = await db
       .insert(bookings)
-      .values({ branchId: branch.id, workOrderId: bookedOrder.id, techId: technician.id, startAt, endAt: new Date(startAt.getTime() + 3600_000) })
+      .values({
+        branchId: branch.id,
+        workOrderId: bookedOrder.id,
+        techId: technician.id,
+        startAt,
+        endAt: new Date(startAt.getTime() + 3600_000),
+      })
       .returning();
     const now = ctx.clock.now();
     const [visit] = await db
       .insert(visits)
-      .values({ branchId: branch.id, workOrderId: bookedOrder.id, bookingId: booking!.id, techId: technician.id, enRouteAt: now, onSiteAt: now })
+      .values({
+        branchId: branch.id,
+        workOrderId: bookedOrder.id,
+        bookingId: booking!.id,
+        techId: technician.id,
+        enRouteAt: now,
+        onSiteAt: now,
+      })
       .returning();
     return { branch, customer, site, unit, workOrder, technician, booked: { workOrder: bookedOrder, booking: booking!, visit: visit! } };
   };
@@ -162,7 +175,8 @@ export async function sendRequest(
   }
   let res;
   if (spec.files) {
-    for (const [k, v] of Object.entries((spec.body ?? {}) as Record<string, unknown>)) req = req.field(k, typeof v === 'string' ? v : JSON.stringify(v));
+    for (const [k, v] of Object.entries((spec.body ?? {}) as Record<string, unknown>))
+      req = req.field(k, typeof v === 'string' ? v : JSON.stringify(v));
     for (const file of spec.files) req = req.attach(file.field, file.content, { filename: file.name, contentType: file.contentType });
     res = await req;
   } else if (spec.rawBody !== undefined) res = await req.set('Content-Type', 'application/json').send(spec.rawBody);

@@ -82,7 +82,13 @@ describe('response declarations', () => {
     });
     expect(endpoints.length).toBeGreaterThan(90);
     const undeclared = endpoints.filter((e) => e.response === undefined).map((e) => e.key);
-    expect(undeclared.filter((k) => !stillUndeclared.includes(k)), 'routes without `response` in endpoint()').toEqual([]);
-    expect(stillUndeclared.filter((k) => !undeclared.includes(k)), 'rows of stillUndeclared that now declare (remove them)').toEqual([]);
+    expect(
+      undeclared.filter((k) => !stillUndeclared.includes(k)),
+      'routes without `response` in endpoint()',
+    ).toEqual([]);
+    expect(
+      stillUndeclared.filter((k) => !undeclared.includes(k)),
+      'rows of stillUndeclared that now declare (remove them)',
+    ).toEqual([]);
   });
 });

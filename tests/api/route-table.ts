@@ -90,7 +90,24 @@ import { signLinkToken } from '../../apps/api/src/auth/link-tokens';
 import { createInvitation } from '../../apps/api/src/modules/team/team.service';
 import { findOpenReturn } from '../../apps/api/src/modules/work-orders/open-return';
 import { z as zod } from 'zod';
-import { alarmDeliveries, alarmSources, agreements, agreementUnits, attachments, bookings, circuits, customers, findings, leakCases, mailOutbox, sites, units, users, visits, visitSignatures } from '../../apps/api/src/db/schema';
+import {
+  alarmDeliveries,
+  alarmSources,
+  agreements,
+  agreementUnits,
+  attachments,
+  bookings,
+  circuits,
+  customers,
+  findings,
+  leakCases,
+  mailOutbox,
+  sites,
+  units,
+  users,
+  visits,
+  visitSignatures,
+} from '../../apps/api/src/db/schema';
 import { makeSiteWithUnit, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../apps/api/src/testing/fixtures';
 import { newSourceSecret, sealSecret, signatureHeader } from '../../apps/api/src/modules/alarm-sources/signature';
 import { nextWeekday, type Caller, type MatrixFixture, type Side } from './matrix-fixture';
@@ -169,7 +186,12 @@ function lastMailedToken(f: MatrixFixture): string {
 
 async function invitationToken(f: MatrixFixture, side: Side) {
   const owner = { id: f.owner.id, name: f.owner.name, email: f.owner.email, role: f.owner.role, branchId: null };
-  const inv = await createInvitation(f.ctx, owner, `invitee.${unique()}@test.example`, userProfileSchema.parse({ name: 'Invitee', role: 'technician', branchId: side.branch.id }));
+  const inv = await createInvitation(
+    f.ctx,
+    owner,
+    `invitee.${unique()}@test.example`,
+    userProfileSchema.parse({ name: 'Invitee', role: 'technician', branchId: side.branch.id }),
+  );
   return { id: inv.id, token: lastMailedToken(f) };
 }
 
@@ -184,7 +206,13 @@ async function resetToken(f: MatrixFixture, side: Side) {
  * but not record work (403 in their scope, 404 outside it).
  */
 function visitWork(status: number): Record<Caller, Outcome> {
-  return { anonymous: 401, owner: 403, branch_manager: { own: 403, other: 404 }, dispatcher: { own: 403, other: 404 }, technician: { own: status, other: 404 } };
+  return {
+    anonymous: 401,
+    owner: 403,
+    branch_manager: { own: 403, other: 404 },
+    dispatcher: { own: 403, other: 404 },
+    technician: { own: status, other: 404 },
+  };
 }
 
 const isoDay = (d: Date) => d.toISOString().slice(0, 10);
@@ -208,7 +236,16 @@ async function openLeakCase(f: MatrixFixture, side: Side) {
   const today = f.ctx.clock.now();
   const [c] = await f.db
     .insert(leakCases)
-    .values({ branchId: side.branch.id, unitId: side.unit.id, openedOn: daysFrom(today, -25), rule: 'comfort_cooling', method: 'annualizing', thresholdPercent: 10, leakRatePercent: 24, repairDueDate: daysFrom(today, 5) })
+    .values({
+      branchId: side.branch.id,
+      unitId: side.unit.id,
+      openedOn: daysFrom(today, -25),
+      rule: 'comfort_cooling',
+      method: 'annualizing',
+      thresholdPercent: 10,
+      leakRatePercent: 24,
+      repairDueDate: daysFrom(today, 5),
+    })
     .returning();
   return c!;
 }
@@ -218,7 +255,17 @@ async function quarterlyAgreement(f: MatrixFixture, side: Side) {
   const today = f.ctx.clock.now();
   const [a] = await f.db
     .insert(agreements)
-    .values({ branchId: side.branch.id, siteId: side.site.id, name: `PM ${unique()}`, rrule: 'FREQ=MONTHLY;INTERVAL=3;BYMONTHDAY=15', termStart: daysFrom(today, 1), termEnd: daysFrom(today, 365), slaHours: 24, priceCents: 120_000, visitMinutes: 90 })
+    .values({
+      branchId: side.branch.id,
+      siteId: side.site.id,
+      name: `PM ${unique()}`,
+      rrule: 'FREQ=MONTHLY;INTERVAL=3;BYMONTHDAY=15',
+      termStart: daysFrom(today, 1),
+      termEnd: daysFrom(today, 365),
+      slaHours: 24,
+      priceCents: 120_000,
+      visitMinutes: 90,
+    })
     .returning();
   await f.db.insert(agreementUnits).values({ agreementId: a!.id, unitId: side.unit.id });
   return a!;
@@ -226,9 +273,19 @@ async function quarterlyAgreement(f: MatrixFixture, side: Side) {
 
 /** A return visit whose visit found a factory defect (a warranty-claim case). */
 async function factoryDefectReturn(f: MatrixFixture, side: Side) {
-  const wo = await makeWorkOrder(f.db, { branchId: side.branch.id, siteId: side.site.id, unitId: side.unit.id, kind: 'return_visit', originWorkOrderId: side.booked.workOrder.id, state: 'closed' });
+  const wo = await makeWorkOrder(f.db, {
+    branchId: side.branch.id,
+    siteId: side.site.id,
+    unitId: side.unit.id,
+    kind: 'return_visit',
+    originWorkOrderId: side.booked.workOrder.id,
+    state: 'closed',
+  });
   const now = f.ctx.clock.now();
-  const [v] = await f.db.insert(visits).values({ branchId: side.branch.id, workOrderId: wo.id, techId: side.technician.id, onSiteAt: now, closedAt: now, outcome: 'resolved' }).returning();
+  const [v] = await f.db
+    .insert(visits)
+    .values({ branchId: side.branch.id, workOrderId: wo.id, techId: side.technician.id, onSiteAt: now, closedAt: now, outcome: 'resolved' })
+    .returning();
   await f.db.insert(findings).values({ visitId: v!.id, unitId: side.unit.id, causeCode: 'refrigerant_leak', origin: 'factory_defect' });
   return wo;
 }
@@ -249,20 +306,41 @@ const unitBody = (over: Record<string, unknown> = {}) => ({
 
 /** A customer with no sites, a site with no units, a unit with no history: deletable. */
 async function bareCustomer(f: MatrixFixture, side: Side) {
-  const [c] = await f.db.insert(customers).values({ branchId: side.branch.id, name: `Bare ${unique()}` }).returning();
+  const [c] = await f.db
+    .insert(customers)
+    .values({ branchId: side.branch.id, name: `Bare ${unique()}` })
+    .returning();
   return c!;
 }
 async function bareSite(f: MatrixFixture, side: Side) {
   const [s] = await f.db
     .insert(sites)
-    .values({ branchId: side.branch.id, customerId: side.customer.id, name: `Bare ${unique()}`, address: '1 Empty Lot', lat: 41.9, lon: -87.7 })
+    .values({
+      branchId: side.branch.id,
+      customerId: side.customer.id,
+      name: `Bare ${unique()}`,
+      address: '1 Empty Lot',
+      lat: 41.9,
+      lon: -87.7,
+    })
     .returning();
   return s!;
 }
 async function bareUnit(f: MatrixFixture, side: Side) {
   const [u] = await f.db
     .insert(units)
-    .values({ branchId: side.branch.id, siteId: side.site.id, tag: `RTU-${unique()}`, kind: 'rooftop_unit', make: 'M', model: 'X', serial: unique(), refrigerant: 'R-410A', fullChargeLb: 5, applianceCategory: 'comfort_cooling' })
+    .values({
+      branchId: side.branch.id,
+      siteId: side.site.id,
+      tag: `RTU-${unique()}`,
+      kind: 'rooftop_unit',
+      make: 'M',
+      model: 'X',
+      serial: unique(),
+      refrigerant: 'R-410A',
+      fullChargeLb: 5,
+      applianceCategory: 'comfort_cooling',
+    })
     .returning();
   return u!;
 }
@@ -270,7 +348,10 @@ async function bareUnit(f: MatrixFixture, side: Side) {
 /** An alarm source at the side's site, with its secret. */
 async function alarmSourceOf(f: MatrixFixture, side: Side) {
   const secret = newSourceSecret();
-  const [s] = await f.db.insert(alarmSources).values({ branchId: side.branch.id, siteId: side.site.id, name: `BMS ${unique()}`, secretBox: sealSecret(f.ctx.secret, secret) }).returning();
+  const [s] = await f.db
+    .insert(alarmSources)
+    .values({ branchId: side.branch.id, siteId: side.site.id, name: `BMS ${unique()}`, secretBox: sealSecret(f.ctx.secret, secret) })
+    .returning();
   return { source: s!, secret };
 }
 
@@ -279,7 +360,17 @@ async function unmatchedDelivery(f: MatrixFixture, side: Side) {
   const { source } = await alarmSourceOf(f, side);
   const [d] = await f.db
     .insert(alarmDeliveries)
-    .values({ sourceId: source.id, branchId: side.branch.id, deliveryId: unique(), status: 'unmatched', reason: 'unknown_unit', unitTag: 'AHU-X', code: 'FAN', raisedAt: f.ctx.clock.now(), receivedAt: f.ctx.clock.now() })
+    .values({
+      sourceId: source.id,
+      branchId: side.branch.id,
+      deliveryId: unique(),
+      status: 'unmatched',
+      reason: 'unknown_unit',
+      unitTag: 'AHU-X',
+      code: 'FAN',
+      raisedAt: f.ctx.clock.now(),
+      receivedAt: f.ctx.clock.now(),
+    })
     .returning();
   return d!;
 }
@@ -294,7 +385,10 @@ export const routeTable: RouteRow[] = [
     path: '/api/setup/check',
     expect: open(410),
     body: linkCheckSchema,
-    request: (f) => ({ path: '/api/setup/check', body: { token: signLinkToken(f.ctx.secret, 'owner-setup', randomBytes(32).toString('base64url')) } }),
+    request: (f) => ({
+      path: '/api/setup/check',
+      body: { token: signLinkToken(f.ctx.secret, 'owner-setup', randomBytes(32).toString('base64url')) },
+    }),
   },
   {
     method: 'POST',
@@ -304,7 +398,13 @@ export const routeTable: RouteRow[] = [
     textFields: ['name'],
     request: (f) => ({
       path: '/api/setup',
-      body: { token: signLinkToken(f.ctx.secret, 'owner-setup', randomBytes(32).toString('base64url')), name: 'Robin Field', email: 'robin.field@test.example', password: 'a-new-password-42', confirm: 'a-new-password-42' },
+      body: {
+        token: signLinkToken(f.ctx.secret, 'owner-setup', randomBytes(32).toString('base64url')),
+        name: 'Robin Field',
+        email: 'robin.field@test.example',
+        password: 'a-new-password-42',
+        confirm: 'a-new-password-42',
+      },
     }),
   },
   {
@@ -317,7 +417,6 @@ export const routeTable: RouteRow[] = [
   { method: 'POST', path: '/api/auth/sign-out', expect: open(204) },
   { method: 'POST', path: '/api/auth/sign-out-everywhere', expect: signedIn(200) },
   { method: 'GET', path: '/api/auth/me', expect: signedIn(200) },
-
 
   {
     method: 'POST',
@@ -399,7 +498,10 @@ export const routeTable: RouteRow[] = [
     expect: roles(office, 201, { scoped: true }),
     body: customerInputSchema,
     textFields: ['name', 'notes', 'billingAddress'],
-    request: (_f, side) => ({ path: '/api/customers', body: { branchId: side.branch.id, name: 'Lakeside Foods', notes: 'Gate code at the office' } }),
+    request: (_f, side) => ({
+      path: '/api/customers',
+      body: { branchId: side.branch.id, name: 'Lakeside Foods', notes: 'Gate code at the office' },
+    }),
   },
   {
     method: 'GET',
@@ -448,7 +550,14 @@ export const routeTable: RouteRow[] = [
     textFields: ['name', 'address', 'accessNotes'],
     request: (_f, side) => ({
       path: '/api/sites',
-      body: { customerId: side.customer.id, name: 'North plant', address: '5 Mill Road', lat: 41.9, lon: -87.7, accessNotes: 'Ladder in the boiler room' },
+      body: {
+        customerId: side.customer.id,
+        name: 'North plant',
+        address: '5 Mill Road',
+        lat: 41.9,
+        lon: -87.7,
+        accessNotes: 'Ladder in the boiler room',
+      },
     }),
   },
   {
@@ -525,7 +634,16 @@ export const routeTable: RouteRow[] = [
     expect: roles(office, 200, { scoped: true }),
     body: unitUpdateSchema,
     textFields: ['notes', 'make', 'model'],
-    request: (_f, side) => ({ path: `/api/units/${side.unit.id}`, body: unitBody({ tag: side.unit.tag, circuits: [{ number: 1, compressorCount: 1 }, { number: 2, compressorCount: 1 }] }) }),
+    request: (_f, side) => ({
+      path: `/api/units/${side.unit.id}`,
+      body: unitBody({
+        tag: side.unit.tag,
+        circuits: [
+          { number: 1, compressorCount: 1 },
+          { number: 2, compressorCount: 1 },
+        ],
+      }),
+    }),
   },
   {
     method: 'PUT',
@@ -592,7 +710,9 @@ export const routeTable: RouteRow[] = [
     method: 'POST',
     path: '/api/users/:id/reactivate',
     expect: roles(['owner'], 200),
-    request: async (f, side) => ({ path: `/api/users/${(await makeUser(f.db, 'technician', side.branch.id, { active: false })).id}/reactivate` }),
+    request: async (f, side) => ({
+      path: `/api/users/${(await makeUser(f.db, 'technician', side.branch.id, { active: false })).id}/reactivate`,
+    }),
   },
 
   // ── invitations (owner; check/accept are public, the e-mailed token is the credential) ──
@@ -634,7 +754,12 @@ export const routeTable: RouteRow[] = [
     textFields: ['name'],
     request: async (f, side) => ({
       path: '/api/invitations/accept',
-      body: { token: (await invitationToken(f, side)).token, name: 'Robin Field', password: 'a-new-password-42', confirm: 'a-new-password-42' },
+      body: {
+        token: (await invitationToken(f, side)).token,
+        name: 'Robin Field',
+        password: 'a-new-password-42',
+        confirm: 'a-new-password-42',
+      },
     }),
   },
 
@@ -664,7 +789,6 @@ export const routeTable: RouteRow[] = [
       return { path: `/api/outbox/${m!.id}/attachments/0` };
     },
   },
-
 
   // ── Route, calendar feed (technicians) ─────────────────────────────────────────────────
   {
@@ -716,7 +840,10 @@ export const routeTable: RouteRow[] = [
       const [c] = await circuitsOf(f, side.unit.id);
       return {
         path: `/api/visits/${side.booked.visit.id}/readings`,
-        body: { units: { pressure: 'psig', temperature: 'F' }, readings: [{ circuitId: c!.id, suctionPressure: 118, liquidPressure: 340, suctionLineTemp: 52, liquidLineTemp: 95 }] },
+        body: {
+          units: { pressure: 'psig', temperature: 'F' },
+          readings: [{ circuitId: c!.id, suctionPressure: 118, liquidPressure: 340, suctionLineTemp: 52, liquidLineTemp: 95 }],
+        },
       };
     },
   },
@@ -766,7 +893,10 @@ export const routeTable: RouteRow[] = [
     request: async (f, side) => {
       const now = f.ctx.clock.now();
       await f.db.update(visits).set({ closedAt: now, outcome: 'resolved' }).where(eq(visits.id, side.booked.visit.id));
-      await f.db.insert(visitSignatures).values({ visitId: side.booked.visit.id, signerName: 'Dana Whitfield', signedAt: now, imagePng: tinyPng, recordedAt: now }).onConflictDoNothing();
+      await f.db
+        .insert(visitSignatures)
+        .values({ visitId: side.booked.visit.id, signerName: 'Dana Whitfield', signedAt: now, imagePng: tinyPng, recordedAt: now })
+        .onConflictDoNothing();
       return { path: `/api/visits/${side.booked.visit.id}/signature` };
     },
   },
@@ -788,7 +918,15 @@ export const routeTable: RouteRow[] = [
       const storageKey = await f.ctx.storage.put(tinyPng, { contentType: 'image/png' });
       const [a] = await f.db
         .insert(attachments)
-        .values({ visitId: side.booked.visit.id, unitId: side.unit.id, kind: 'photo', storageKey, displayName: 'nameplate.png', contentType: 'image/png', sizeBytes: tinyPng.length })
+        .values({
+          visitId: side.booked.visit.id,
+          unitId: side.unit.id,
+          kind: 'photo',
+          storageKey,
+          displayName: 'nameplate.png',
+          contentType: 'image/png',
+          sizeBytes: tinyPng.length,
+        })
         .returning();
       return { path: `/api/attachments/${a!.id}` };
     },
@@ -851,7 +989,10 @@ export const routeTable: RouteRow[] = [
     query: bookingListQuerySchema,
     request: (f, side) => {
       const from = nextWeekday(f.ctx.clock.now(), 0);
-      return { path: '/api/bookings', query: { branchId: side.branch.id, from: from.toISOString(), to: new Date(from.getTime() + 7 * 86_400_000).toISOString() } };
+      return {
+        path: '/api/bookings',
+        query: { branchId: side.branch.id, from: from.toISOString(), to: new Date(from.getTime() + 7 * 86_400_000).toISOString() },
+      };
     },
   },
   {
@@ -861,7 +1002,11 @@ export const routeTable: RouteRow[] = [
     body: bookingCreateSchema,
     request: async (f, side) => ({
       path: '/api/bookings',
-      body: { workOrderId: side.workOrder.id, techId: (await freeTechnician(f, side)).id, startAt: nextWeekday(f.ctx.clock.now(), 18).toISOString() },
+      body: {
+        workOrderId: side.workOrder.id,
+        techId: (await freeTechnician(f, side)).id,
+        startAt: nextWeekday(f.ctx.clock.now(), 18).toISOString(),
+      },
     }),
   },
   {
@@ -909,7 +1054,10 @@ export const routeTable: RouteRow[] = [
     query: loadQuerySchema,
     request: (f, side) => {
       const from = nextWeekday(f.ctx.clock.now());
-      return { path: '/api/roster/load', query: { branchId: side.branch.id, from: isoDay(from), to: isoDay(new Date(from.getTime() + 6 * 86_400_000)) } };
+      return {
+        path: '/api/roster/load',
+        query: { branchId: side.branch.id, from: isoDay(from), to: isoDay(new Date(from.getTime() + 6 * 86_400_000)) },
+      };
     },
   },
   {
@@ -917,14 +1065,20 @@ export const routeTable: RouteRow[] = [
     path: '/api/roster/suggest',
     expect: roles(office, 200, { scoped: true }),
     body: suggestSchema,
-    request: (f, side) => ({ path: '/api/roster/suggest', body: { workOrderId: side.workOrder.id, day: isoDay(nextWeekday(f.ctx.clock.now())) } }),
+    request: (f, side) => ({
+      path: '/api/roster/suggest',
+      body: { workOrderId: side.workOrder.id, day: isoDay(nextWeekday(f.ctx.clock.now())) },
+    }),
   },
   {
     method: 'POST',
     path: '/api/roster/even-out',
     expect: roles(office, 200, { scoped: true }),
     body: evenOutSchema,
-    request: (f, side) => ({ path: '/api/roster/even-out', body: { branchId: side.branch.id, week: isoDay(nextWeekday(f.ctx.clock.now())) } }),
+    request: (f, side) => ({
+      path: '/api/roster/even-out',
+      body: { branchId: side.branch.id, week: isoDay(nextWeekday(f.ctx.clock.now())) },
+    }),
   },
   {
     method: 'POST',
@@ -936,11 +1090,19 @@ export const routeTable: RouteRow[] = [
       const tech = await freeTechnician(f, side);
       return {
         path: '/api/roster/even-out/apply',
-        body: { proposals: [{ workOrderId: side.workOrder.id, techId: tech.id, startAt: startAt.toISOString(), endAt: new Date(startAt.getTime() + 3600_000).toISOString() }] },
+        body: {
+          proposals: [
+            {
+              workOrderId: side.workOrder.id,
+              techId: tech.id,
+              startAt: startAt.toISOString(),
+              endAt: new Date(startAt.getTime() + 3600_000).toISOString(),
+            },
+          ],
+        },
       };
     },
   },
-
 
   // ── Fix Quality (owners, branch managers) and warranty claims ───────────────────────────
   ...(['/api/reports/fix-quality', '/api/reports/fix-quality/factory-defects', '/api/reports/fix-quality.pdf'] as const).map(
@@ -949,7 +1111,10 @@ export const routeTable: RouteRow[] = [
       path,
       expect: roles(managers, 200, { scoped: true }),
       query: fixQualityQuerySchema,
-      request: (f, side) => ({ path, query: { branchId: side.branch.id, from: daysFrom(f.ctx.clock.now(), -90), to: isoDay(f.ctx.clock.now()) } }),
+      request: (f, side) => ({
+        path,
+        query: { branchId: side.branch.id, from: daysFrom(f.ctx.clock.now(), -90), to: isoDay(f.ctx.clock.now()) },
+      }),
     }),
   ),
   {
@@ -1026,7 +1191,15 @@ export const routeTable: RouteRow[] = [
       const storageKey = await f.ctx.storage.put(tinyPng, { contentType: 'image/png' });
       const [a] = await f.db
         .insert(attachments)
-        .values({ visitId: side.booked.visit.id, unitId: side.unit.id, kind: 'nameplate', storageKey, displayName: 'nameplate.png', contentType: 'image/png', sizeBytes: tinyPng.length })
+        .values({
+          visitId: side.booked.visit.id,
+          unitId: side.unit.id,
+          kind: 'nameplate',
+          storageKey,
+          displayName: 'nameplate.png',
+          contentType: 'image/png',
+          sizeBytes: tinyPng.length,
+        })
         .returning();
       return { path: `/api/units/${side.unit.id}/file/attachments/${a!.id}` };
     },
@@ -1048,7 +1221,13 @@ export const routeTable: RouteRow[] = [
     textFields: ['description'],
     request: (f, side) => ({
       path: '/api/alarms',
-      body: { unitId: side.unit.id, circuit: 1, code: 'HP-1', description: 'High head pressure lockout', raisedAt: f.ctx.clock.now().toISOString() },
+      body: {
+        unitId: side.unit.id,
+        circuit: 1,
+        code: 'HP-1',
+        description: 'High head pressure lockout',
+        raisedAt: f.ctx.clock.now().toISOString(),
+      },
     }),
   },
   {
@@ -1059,7 +1238,11 @@ export const routeTable: RouteRow[] = [
     textFields: ['csv'],
     request: (f, side) => ({
       path: '/api/alarms/import',
-      body: { branchId: side.branch.id, mode: 'dry_run', csv: `unit_serial,circuit,code,raised_at\n${side.unit.serial},1,HP-1,${f.ctx.clock.now().toISOString()}\n` },
+      body: {
+        branchId: side.branch.id,
+        mode: 'dry_run',
+        csv: `unit_serial,circuit,code,raised_at\n${side.unit.serial},1,HP-1,${f.ctx.clock.now().toISOString()}\n`,
+      },
     }),
   },
   {
@@ -1091,10 +1274,19 @@ export const routeTable: RouteRow[] = [
     request: async (f, side) => {
       // The origin visit closed as needing a return, as the technician's close does; its return visit is the
       // unit's one open return (made once per side: a unit has at most one).
-      await f.db.update(visits).set({ closedAt: f.ctx.clock.now(), outcome: 'needs_return', returnNeeds: ['parts'] }).where(eq(visits.id, side.booked.visit.id));
+      await f.db
+        .update(visits)
+        .set({ closedAt: f.ctx.clock.now(), outcome: 'needs_return', returnNeeds: ['parts'] })
+        .where(eq(visits.id, side.booked.visit.id));
       const wo =
         (await findOpenReturn(f.db, side.unit.id)) ??
-        (await makeWorkOrder(f.db, { branchId: side.branch.id, siteId: side.site.id, unitId: side.unit.id, kind: 'return_visit', originWorkOrderId: side.booked.workOrder.id }));
+        (await makeWorkOrder(f.db, {
+          branchId: side.branch.id,
+          siteId: side.site.id,
+          unitId: side.unit.id,
+          kind: 'return_visit',
+          originWorkOrderId: side.booked.workOrder.id,
+        }));
       return { path: `/api/watchlist/return-visits/${wo.id}`, body: { priority: 'high', latestDate: daysFrom(f.ctx.clock.now(), 7) } };
     },
   },
@@ -1124,8 +1316,14 @@ export const routeTable: RouteRow[] = [
     textFields: ['notes'],
     request: async (f, side) => {
       const c = await openLeakCase(f, side);
-      await f.db.update(leakCases).set({ status: 'repaired', repairedOn: daysFrom(f.ctx.clock.now(), -2) }).where(eq(leakCases.id, c.id));
-      return { path: `/api/leak-cases/${c.id}/verification-tests`, body: { kind: 'initial', testedOn: daysFrom(f.ctx.clock.now(), -1), passed: true, notes: 'Held pressure' } };
+      await f.db
+        .update(leakCases)
+        .set({ status: 'repaired', repairedOn: daysFrom(f.ctx.clock.now(), -2) })
+        .where(eq(leakCases.id, c.id));
+      return {
+        path: `/api/leak-cases/${c.id}/verification-tests`,
+        body: { kind: 'initial', testedOn: daysFrom(f.ctx.clock.now(), -1), passed: true, notes: 'Held pressure' },
+      };
     },
   },
   {
@@ -1134,7 +1332,10 @@ export const routeTable: RouteRow[] = [
     expect: roles(managers, 201, { scoped: true }),
     body: bookRepairSchema,
     textFields: ['notes'],
-    request: async (f, side) => ({ path: `/api/leak-cases/${(await openLeakCase(f, side)).id}/repair-visit`, body: { priority: 'high', notes: 'Bring nitrogen' } }),
+    request: async (f, side) => ({
+      path: `/api/leak-cases/${(await openLeakCase(f, side)).id}/repair-visit`,
+      body: { priority: 'high', notes: 'Bring nitrogen' },
+    }),
   },
 
   // ── Alarm sources (managers) and the signed ingest route (machine-to-machine) ─────────
@@ -1159,7 +1360,10 @@ export const routeTable: RouteRow[] = [
     expect: roles(managers, 200, { scoped: true }),
     body: alarmSourcePatchSchema,
     textFields: ['name'],
-    request: async (f, side) => ({ path: `/api/alarm-sources/${(await alarmSourceOf(f, side)).source.id}`, body: { name: 'Penthouse BMS', enabled: false } }),
+    request: async (f, side) => ({
+      path: `/api/alarm-sources/${(await alarmSourceOf(f, side)).source.id}`,
+      body: { name: 'Penthouse BMS', enabled: false },
+    }),
   },
   {
     method: 'POST',
@@ -1172,14 +1376,18 @@ export const routeTable: RouteRow[] = [
     path: '/api/alarm-sources/deliveries/:id/map',
     expect: roles(managers, 200, { scoped: true }),
     body: mapDeliverySchema,
-    request: async (f, side) => ({ path: `/api/alarm-sources/deliveries/${(await unmatchedDelivery(f, side)).id}/map`, body: { unitId: side.unit.id } }),
+    request: async (f, side) => ({
+      path: `/api/alarm-sources/deliveries/${(await unmatchedDelivery(f, side)).id}/map`,
+      body: { unitId: side.unit.id },
+    }),
   },
   {
     method: 'POST',
     path: '/api/ingest/alarms/:sourceId',
     // The signature is the credential: any caller, session or not, with a signed delivery gets 202.
     expect: open(202),
-    noBadInput: 'the signature is checked before the body is read; malformed, unsigned and oversized bodies are covered in modules/alarm-sources/alarm-sources.test.ts',
+    noBadInput:
+      'the signature is checked before the body is read; malformed, unsigned and oversized bodies are covered in modules/alarm-sources/alarm-sources.test.ts',
     request: async (f, side) => {
       const { source, secret } = await alarmSourceOf(f, side);
       const body = { deliveryId: unique(), unitTag: side.unit.tag, code: 'LP1', raisedAt: f.ctx.clock.now().toISOString() };
@@ -1242,7 +1450,10 @@ export const routeTable: RouteRow[] = [
     expect: roles(managers, 200, { scoped: true }),
     body: agreementPatchSchema,
     textFields: ['name', 'seasonNotes'],
-    request: async (f, side) => ({ path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}`, body: { seasonNotes: 'Belts in autumn' } }),
+    request: async (f, side) => ({
+      path: `/api/agreements/${(await quarterlyAgreement(f, side)).id}`,
+      body: { seasonNotes: 'Belts in autumn' },
+    }),
   },
   {
     method: 'POST',

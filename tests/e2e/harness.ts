@@ -47,7 +47,13 @@ interface Logged {
 /** The session check on the sign-in page answers 401 before anyone signs in: not an error. */
 const expectedByDefault = (e: Logged) => /status of 401/.test(e.text) && /\/api\/auth\/me(\?|$)/.test(e.url);
 
-export function createJourneyContext(opts: { base: string; name: string; outDir: string; log: (s: string) => void; clockOffsetMs?: number }) {
+export function createJourneyContext(opts: {
+  base: string;
+  name: string;
+  outDir: string;
+  log: (s: string) => void;
+  clockOffsetMs?: number;
+}) {
   const contexts: BrowserContext[] = [];
   const errors: Logged[] = [];
   const allowed: RegExp[] = [];

@@ -57,7 +57,8 @@ const args = new Set(argv);
 const onlyLighthouse = args.has('--only-lighthouse');
 const onlyMixed = args.has('--only-mixed');
 const onlyWeb = args.has('--only-web');
-if ([onlyLighthouse, onlyMixed, onlyWeb].filter(Boolean).length > 1) throw new Error('--only-lighthouse, --only-mixed and --only-web exclude each other');
+if ([onlyLighthouse, onlyMixed, onlyWeb].filter(Boolean).length > 1)
+  throw new Error('--only-lighthouse, --only-mixed and --only-web exclude each other');
 const withMixed = !onlyLighthouse && (onlyMixed || !args.has('--no-mixed'));
 const withLighthouse = !onlyMixed && (onlyLighthouse || !args.has('--no-lighthouse'));
 const lighthouseRunsArg = argv.indexOf('--lighthouse-runs');
@@ -68,13 +69,19 @@ const mixedSeconds = mixedSecondsArg >= 0 ? Number(argv[mixedSecondsArg + 1]) : 
 if (!Number.isFinite(mixedSeconds) || mixedSeconds < 1) throw new Error('--mixed-seconds needs a number of seconds (at least 1)');
 const processesArg = argv.indexOf('--processes');
 /** `--processes 4` or a list, `--processes 1,2,4`: the mixed phase on PostgreSQL once per count, compared. */
-const processCounts = processesArg >= 0 ? String(argv[processesArg + 1] ?? '').split(',').map(Number) : [1];
+const processCounts =
+  processesArg >= 0
+    ? String(argv[processesArg + 1] ?? '')
+        .split(',')
+        .map(Number)
+    : [1];
 if (!processCounts.length || processCounts.some((n) => !Number.isInteger(n) || n < 1)) {
   throw new Error('--processes needs a whole number of API processes (at least 1), or a list of them: --processes 1,2,4');
 }
 const clientsScaleArg = argv.indexOf('--clients-scale');
 const clientsScale = clientsScaleArg >= 0 ? Number(argv[clientsScaleArg + 1]) : 1;
-if (!Number.isInteger(clientsScale) || clientsScale < 1 || clientsScale > 15) throw new Error('--clients-scale needs a whole number of sessions per person, 1 to 15');
+if (!Number.isInteger(clientsScale) || clientsScale < 1 || clientsScale > 15)
+  throw new Error('--clients-scale needs a whole number of sessions per person, 1 to 15');
 const closedLoop = args.has('--closed-loop');
 const PORT = Number(process.env.BENCH_PORT ?? 3210);
 const BASE = `http://127.0.0.1:${PORT}`;
@@ -159,7 +166,10 @@ async function startApi(env: Record<string, string>, port = PORT): Promise<Child
   const deadline = Date.now() + 120_000;
   while (Date.now() < deadline) {
     if (child.exitCode !== null) throw new Error(`The API stopped while starting:\n${output}`);
-    const ok = await fetch(`http://127.0.0.1:${port}/api/health`).then((r) => r.ok, () => false);
+    const ok = await fetch(`http://127.0.0.1:${port}/api/health`).then(
+      (r) => r.ok,
+      () => false,
+    );
     if (ok) return child;
     await new Promise((r) => setTimeout(r, 250));
   }
@@ -185,10 +195,13 @@ function roundRobinProxy(port: number, targets: number[]): Promise<Server> {
   let next = 0;
   const server = createServer((req, res) => {
     const target = targets[next++ % targets.length]!;
-    const upstream = request({ host: '127.0.0.1', port: target, method: req.method, path: req.url, headers: req.headers, agent }, (answer) => {
-      res.writeHead(answer.statusCode ?? 502, answer.headers);
-      answer.pipe(res);
-    });
+    const upstream = request(
+      { host: '127.0.0.1', port: target, method: req.method, path: req.url, headers: req.headers, agent },
+      (answer) => {
+        res.writeHead(answer.statusCode ?? 502, answer.headers);
+        answer.pipe(res);
+      },
+    );
     upstream.on('error', (e) => {
       if (!res.headersSent) res.writeHead(502, { 'content-type': 'text/plain' });
       res.end(`proxy: ${e.message}`);
@@ -229,7 +242,10 @@ async function signIn(email: string, password = BENCH_PASSWORD): Promise<string>
     body: JSON.stringify({ email, password }),
   });
   if (!res.ok) throw new Error(`sign-in of ${email} answered ${res.status}: ${await res.text()}`);
-  return res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+  return res.headers
+    .getSetCookie()
+    .map((c) => c.split(';')[0])
+    .join('; ');
 }
 
 async function get(path: string, cookie: string) {
@@ -278,7 +294,12 @@ async function measureApi(label: string, ids: Ids): Promise<ApiFigures> {
     fixQuality,
     fixQualityBranch,
     briefing,
-    roster: { ...s, requests: result.requests.total, non2xx: result.non2xx + result.errors + result.timeouts, rps: result.requests.average },
+    roster: {
+      ...s,
+      requests: result.requests.total,
+      non2xx: result.non2xx + result.errors + result.timeouts,
+      rps: result.requests.average,
+    },
   };
 }
 
@@ -287,7 +308,8 @@ async function measureApi(label: string, ids: Ids): Promise<ApiFigures> {
 // ---------------------------------------------------------------------------------------------
 
 function startPostgres() {
-  if (spawnSync('sh', ['-c', 'command -v pg_ctlcluster']).status !== 0) throw new Error('pg_ctlcluster not found: apt-get install postgresql');
+  if (spawnSync('sh', ['-c', 'command -v pg_ctlcluster']).status !== 0)
+    throw new Error('pg_ctlcluster not found: apt-get install postgresql');
   const run = (cmd: string) => spawnSync('sh', ['-c', cmd], { encoding: 'utf8' });
   const [version, cluster] = run('pg_lsclusters -h | head -1').stdout.trim().split(/\s+/);
   run(`pg_ctlcluster ${version} ${cluster} start 2>/dev/null || true`);
@@ -424,7 +446,10 @@ function measureWeb(): ScreenSize[] {
       // The signed-in frame comes with every screen but the sign-in page.
       if (frameKey && screen !== 'Sign-in') closure(frameKey, keys);
       // A page that another page also imports statically lands in a shared chunk keyed `_<name>-<hash>.js`.
-      const base = src.split('/').pop()!.replace(/\.tsx?$/, '');
+      const base = src
+        .split('/')
+        .pop()!
+        .replace(/\.tsx?$/, '');
       const key = manifest[src] ? src : Object.keys(manifest).find((k) => k.startsWith(`_${base}-`));
       if (!key) throw new Error(`${src} is not a chunk of the build`);
       closure(key, keys);
@@ -570,7 +595,9 @@ async function mixedOn(kind: 'pglite' | 'postgres', processes = 1): Promise<Mixe
   }
   log(`${label} mixed: copy made in ${((Date.now() - t0) / 1000).toFixed(0)} s`);
   try {
-    const database = await (copyUrl ? openDatabase({ databaseUrl: copyUrl }) : openDatabase({ dataDir: resolve(env.COILPATH_DATA_DIR!, 'pg') }));
+    const database = await (copyUrl
+      ? openDatabase({ databaseUrl: copyUrl })
+      : openDatabase({ dataDir: resolve(env.COILPATH_DATA_DIR!, 'pg') }));
     const plan = await readMixedPlan(database).finally(() => database.close());
     // Several processes (PostgreSQL only): on the ports after PORT, behind a round-robin proxy on PORT.
     const n = kind === 'postgres' ? processes : 1;
@@ -582,17 +609,32 @@ async function mixedOn(kind: 'pglite' | 'postgres', processes = 1): Promise<Mixe
       else {
         log(`${label} mixed: ${n} API processes on ports ${PORT + 1}–${PORT + n} behind a round-robin proxy on ${PORT}`);
         for (let i = 1; i <= n; i++) children.push(await startApi(apiEnv, PORT + i));
-        proxy = await roundRobinProxy(PORT, children.map((_, i) => PORT + 1 + i));
+        proxy = await roundRobinProxy(
+          PORT,
+          children.map((_, i) => PORT + 1 + i),
+        );
       }
       const loops = children.map(loopDelayOf);
       const apiLoop = {
         reset: async () => void (await Promise.all(loops.map((l) => l.reset()))),
         read: async () => worstLoopDelay(await Promise.all(loops.map((l) => l.read()))),
       };
-      const figures = await runMixed({ base: BASE, seconds: mixedSeconds, clientsScale, closedLoop, plan, apiLoop, log: (s) => log(`${label} ${s}`) });
+      const figures = await runMixed({
+        base: BASE,
+        seconds: mixedSeconds,
+        clientsScale,
+        closedLoop,
+        plan,
+        apiLoop,
+        log: (s) => log(`${label} ${s}`),
+      });
       const done = { ...figures, processes: n, loadAverage: loadavg() };
       // Each run's totals as soon as it ends: a long comparison stopped half-way still leaves its figures.
-      const worstP95 = Math.max(...Object.values(done.classes).filter((c) => c.requests > 0).map((c) => c.p95));
+      const worstP95 = Math.max(
+        ...Object.values(done.classes)
+          .filter((c) => c.requests > 0)
+          .map((c) => c.p95),
+      );
       log(
         `${label} mixed, ${n} process${n === 1 ? '' : 'es'}: ${done.requests} requests in ${done.seconds} s = ${done.rps.toFixed(1)}/s, ` +
           `worst p95 ${worstP95.toFixed(0)} ms, errors ${JSON.stringify(done.errors)}, over 1 s ${done.over1s}, load average ${done.loadAverage.map((v) => v.toFixed(1)).join(' ')}`,
@@ -625,7 +667,8 @@ function printTable(head: string[], table: string[][], right: (i: number) => boo
 function webRows(web: ScreenSize[]): [measure: string, target: string, value: string, result: string][] {
   return web.map((w) => {
     const budget = WEB_BUDGETS[w.screen];
-    const heavyOk = w.screen === 'Sign-in' ? !w.calendar && !w.charts : w.calendar ? ['Roster', 'Agreements', 'Route'].includes(w.screen) : true;
+    const heavyOk =
+      w.screen === 'Sign-in' ? !w.calendar && !w.charts : w.calendar ? ['Roster', 'Agreements', 'Route'].includes(w.screen) : true;
     return [
       `Web JS to show: ${w.screen}${w.calendar ? ' (+calendar)' : ''}${w.charts ? ' (+charts)' : ''}`,
       budget === undefined ? '(info)' : `≤ ${budget} KB gzip`,
@@ -652,11 +695,38 @@ function webMeasures(web: ScreenSize[]): boolean {
 function singleMeasures(pglite: ApiFigures, postgres: ApiFigures | null, calc: Awaited<ReturnType<typeof measureCalc>>, web: ScreenSize[]) {
   type Row = { measure: string; target: string; stat: 'median' | 'p95'; limit: [number, number]; a?: Stat; b?: Stat | null; unit?: string };
   const rows: Row[] = [
-    { measure: 'Fix Quality report, 1 year, all branches', target: 'median < 300 ms', stat: 'median', limit: [0, 300], a: pglite.fixQuality, b: postgres?.fixQuality },
-    { measure: 'Fix Quality report, 1 year, one branch', target: '(info)', stat: 'median', limit: [0, Infinity], a: pglite.fixQualityBranch, b: postgres?.fixQualityBranch },
-    { measure: 'Roster week (bookings + load), 20 clients', target: 'p95 < 60 ms', stat: 'p95', limit: [0, 60], a: pglite.roster, b: postgres?.roster },
+    {
+      measure: 'Fix Quality report, 1 year, all branches',
+      target: 'median < 300 ms',
+      stat: 'median',
+      limit: [0, 300],
+      a: pglite.fixQuality,
+      b: postgres?.fixQuality,
+    },
+    {
+      measure: 'Fix Quality report, 1 year, one branch',
+      target: '(info)',
+      stat: 'median',
+      limit: [0, Infinity],
+      a: pglite.fixQualityBranch,
+      b: postgres?.fixQualityBranch,
+    },
+    {
+      measure: 'Roster week (bookings + load), 20 clients',
+      target: 'p95 < 60 ms',
+      stat: 'p95',
+      limit: [0, 60],
+      a: pglite.roster,
+      b: postgres?.roster,
+    },
     { measure: 'Unit briefing', target: 'p95 < 30 ms', stat: 'p95', limit: [0, 30], a: pglite.briefing, b: postgres?.briefing },
-    { measure: `Sign-in: argon2id hash (${Math.round(hashOptions.memoryCost / 1024)} MiB, t=${hashOptions.timeCost})`, target: '50–250 ms', stat: 'median', limit: [50, 250], a: calc.hash },
+    {
+      measure: `Sign-in: argon2id hash (${Math.round(hashOptions.memoryCost / 1024)} MiB, t=${hashOptions.timeCost})`,
+      target: '50–250 ms',
+      stat: 'median',
+      limit: [50, 250],
+      a: calc.hash,
+    },
     { measure: 'planRoute, 40 stops', target: '< 50 ms', stat: 'p95', limit: [0, 50], a: calc.planRoute },
     { measure: 'evenOut, 200 jobs × 15 techs, 1 week', target: '< 1 s', stat: 'p95', limit: [0, 1000], a: calc.evenOut },
     { measure: 'repeatAlarms, 120,000 alarms', target: '< 200 ms', stat: 'p95', limit: [0, 200], a: calc.repeatAlarms },
@@ -665,7 +735,13 @@ function singleMeasures(pglite: ApiFigures, postgres: ApiFigures | null, calc: A
   const head = ['measure', 'target', 'PGlite median', 'PGlite p95', 'PG median', 'PG p95', 'PG/PGlite', 'result'];
   const table: string[][] = rows.map((r) => {
     const pass = [ok(r.a, r), r.b === undefined || r.b === null ? undefined : ok(r.b, r)];
-    const result = r.target === '(info)' ? '' : pass.filter((p) => p !== undefined).map((p) => (p ? 'pass' : 'FAIL')).join(' / ');
+    const result =
+      r.target === '(info)'
+        ? ''
+        : pass
+            .filter((p) => p !== undefined)
+            .map((p) => (p ? 'pass' : 'FAIL'))
+            .join(' / ');
     return [
       r.measure,
       r.target,
@@ -679,19 +755,25 @@ function singleMeasures(pglite: ApiFigures, postgres: ApiFigures | null, calc: A
   });
   for (const [measure, target, value, result] of webRows(web)) table.push([measure, target, value, '', '', '', '', result]);
   printTable(head, table, (i) => i >= 2 && i <= 6);
-  console.log(`\nRoster load test: ${pglite.roster.requests} requests in 10 s on PGlite (${pglite.roster.non2xx} not 2xx)${postgres ? `, ${postgres.roster.requests} on PostgreSQL (${postgres.roster.non2xx} not 2xx)` : ''}.`);
+  console.log(
+    `\nRoster load test: ${pglite.roster.requests} requests in 10 s on PGlite (${pglite.roster.non2xx} not 2xx)${postgres ? `, ${postgres.roster.requests} on PostgreSQL (${postgres.roster.non2xx} not 2xx)` : ''}.`,
+  );
   const calendarOn = web.filter((w) => w.calendar).map((w) => w.screen);
   const chartsOn = web.filter((w) => w.charts).map((w) => w.screen);
-  if (web.length) console.log(`FullCalendar loads on: ${calendarOn.join(', ') || 'none'}; charts load on: ${chartsOn.join(', ') || 'none'}.`);
+  if (web.length)
+    console.log(`FullCalendar loads on: ${calendarOn.join(', ') || 'none'}; charts load on: ${chartsOn.join(', ') || 'none'}.`);
   return [head, ...table];
 }
 
 /** The label of one mixed run: its database, and its API processes when more than one. */
-const runLabel = (kind: 'PGlite' | 'PostgreSQL', f: MixedFigures) => ((f.processes ?? 1) > 1 ? `${kind}, ${f.processes} API processes` : kind);
+const runLabel = (kind: 'PGlite' | 'PostgreSQL', f: MixedFigures) =>
+  (f.processes ?? 1) > 1 ? `${kind}, ${f.processes} API processes` : kind;
 
 /** Whether a run kept every budget: no error, nothing over 1 s, every class passing. */
 const runHolds = (label: string, f: MixedFigures, table: string[][]) =>
-  Object.keys(f.errors).length === 0 && f.over1s === 0 && table.filter((r) => r[0]!.startsWith(`${label}:`)).every((r) => !r[8]!.startsWith('FAIL'));
+  Object.keys(f.errors).length === 0 &&
+  f.over1s === 0 &&
+  table.filter((r) => r[0]!.startsWith(`${label}:`)).every((r) => !r[8]!.startsWith('FAIL'));
 
 /** The mixed-load table: one row per route class and run, then the totals and event-loop delays. */
 function mixedMeasures(mixed: { pglite: MixedFigures | null; postgres: MixedFigures[] }) {
@@ -701,14 +783,20 @@ function mixedMeasures(mixed: { pglite: MixedFigures | null; postgres: MixedFigu
     ...mixed.postgres.map((f) => [runLabel('PostgreSQL', f), f] as [string, MixedFigures]),
   ];
   const table = runs.flatMap(([label, f]) => mixedRows(label, f));
-  const who = `${150 * clientsScale} technician, ${10 * clientsScale} dispatcher, ${5 * clientsScale} manager and ${clientsScale} owner session${clientsScale === 1 ? '' : 's'}` +
+  const who =
+    `${150 * clientsScale} technician, ${10 * clientsScale} dispatcher, ${5 * clientsScale} manager and ${clientsScale} owner session${clientsScale === 1 ? '' : 's'}` +
     (clientsScale > 1 ? ` (${clientsScale} per person)` : '');
   const pace = closedLoop ? 'closed loop: every read round starts as soon as the last is answered' : "at the scenario's own pace";
-  console.log(`\nMixed load (${mixedSeconds} s): ${who}, ${pace}; budgets: read p95 < 100 ms and p99 < 250 ms, write p95 < 150 ms, 0 errors, no request over 1 s.\n`);
+  console.log(
+    `\nMixed load (${mixedSeconds} s): ${who}, ${pace}; budgets: read p95 < 100 ms and p99 < 250 ms, write p95 < 150 ms, 0 errors, no request over 1 s.\n`,
+  );
   printTable(head, table, (i) => i >= 2 && i <= 6);
   const ms = (v: number | undefined) => (v === undefined ? '—' : `${v.toFixed(1)} ms`);
   for (const [label, f] of runs) {
-    const errs = Object.entries(f.errors).map(([s, n]) => `${n}× ${s}`).join(', ') || 'none';
+    const errs =
+      Object.entries(f.errors)
+        .map(([s, n]) => `${n}× ${s}`)
+        .join(', ') || 'none';
     console.log(
       `\n${label}: ${f.requests} requests in ${f.seconds} s (the window and the answers still due after it) = ${f.rps.toFixed(1)} requests/s; errors: ${errs}; over 1 s: ${f.over1s}; budgets ${runHolds(label, f, table) ? 'hold' : 'FAIL'}.` +
         `\n  event-loop delay, API: mean ${ms(f.apiLoopDelay?.mean)}, p99 ${ms(f.apiLoopDelay?.p99)}, max ${ms(f.apiLoopDelay?.max)}; bench client: mean ${ms(f.clientLoopDelay.mean)}, p99 ${ms(f.clientLoopDelay.p99)}, max ${ms(f.clientLoopDelay.max)}` +
@@ -721,10 +809,28 @@ function mixedMeasures(mixed: { pglite: MixedFigures | null; postgres: MixedFigu
 
 /** Requests per second by database and API processes, with the worst read and write p95 and the budgets. */
 function processComparison(runs: [string, MixedFigures][], table: string[][]) {
-  const head = ['run', 'API processes', 'sessions', 'requests/s', 'vs 1 process', 'worst read p95 ms', 'worst read p99 ms', 'worst write p95 ms', 'errors', 'over 1 s', 'API loop p99 ms', 'load avg (1 min)', 'budgets'];
+  const head = [
+    'run',
+    'API processes',
+    'sessions',
+    'requests/s',
+    'vs 1 process',
+    'worst read p95 ms',
+    'worst read p99 ms',
+    'worst write p95 ms',
+    'errors',
+    'over 1 s',
+    'API loop p99 ms',
+    'load avg (1 min)',
+    'budgets',
+  ];
   const basePg = runs.find(([l, f]) => l.startsWith('PostgreSQL') && (f.processes ?? 1) === 1);
   const worst = (f: MixedFigures, write: boolean, q: 'p95' | 'p99') =>
-    Math.max(...Object.entries(f.classes).filter(([c, v]) => WRITE_CLASSES.includes(c as never) === write && v.requests > 0).map(([, v]) => v[q]));
+    Math.max(
+      ...Object.entries(f.classes)
+        .filter(([c, v]) => WRITE_CLASSES.includes(c as never) === write && v.requests > 0)
+        .map(([, v]) => v[q]),
+    );
   const rows = runs.map(([label, f]) => {
     const sessionsCount = f.clients.technicians + f.clients.dispatchers + f.clients.managers + f.clients.owners;
     const base = label.startsWith('PostgreSQL') && basePg ? basePg[1] : null;
@@ -744,7 +850,9 @@ function processComparison(runs: [string, MixedFigures][], table: string[][]) {
       runHolds(label, f, table) ? 'hold' : 'FAIL',
     ];
   });
-  console.log(`\nRequests per second by API processes (${mixedSeconds} s each${closedLoop ? ', closed loop' : ''}; ${cpus().length} cores):\n`);
+  console.log(
+    `\nRequests per second by API processes (${mixedSeconds} s each${closedLoop ? ', closed loop' : ''}; ${cpus().length} cores):\n`,
+  );
   printTable(head, rows, (i) => i >= 1 && i <= 11);
   return [head, ...rows];
 }
@@ -776,7 +884,10 @@ async function main() {
   const calc = singles ? await measureCalc() : null;
 
   console.log(`\nCoilpath benchmark, ${started} (${process.platform}, ${cpus().length} cores, Node ${process.version})`);
-  if (!onlyLighthouse) console.log(`Scenario: data/bench, history to ${BENCH_END}; API over HTTP on 127.0.0.1; PG = PostgreSQL${pgUrl ? '' : ' (not run: add --postgres)'}\n`);
+  if (!onlyLighthouse)
+    console.log(
+      `Scenario: data/bench, history to ${BENCH_END}; API over HTTP on 127.0.0.1; PG = PostgreSQL${pgUrl ? '' : ' (not run: add --postgres)'}\n`,
+    );
   const table = pglite && calc ? singleMeasures(pglite, postgres, calc, web) : null;
   const lighthouseTable = lighthouse ? lighthouseMeasures(lighthouse) : null;
   const mixedOut = withMixed ? mixedMeasures(mixed) : null;

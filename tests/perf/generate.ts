@@ -13,7 +13,11 @@ try {
   const meta = await loadBenchScenario(database);
   const fresh = Date.now() - t0 > 5_000;
   const where = url ? 'PostgreSQL (BENCH_DATABASE_URL)' : benchDataDir();
-  console.log(fresh ? `Loaded the benchmark scenario into ${where} in ${meta.seconds} s:` : `The benchmark scenario is already in ${where} (use --force to load it again):`);
+  console.log(
+    fresh
+      ? `Loaded the benchmark scenario into ${where} in ${meta.seconds} s:`
+      : `The benchmark scenario is already in ${where} (use --force to load it again):`,
+  );
   for (const [table, n] of Object.entries(meta.rows)) console.log(`  ${table.padEnd(20)} ${n.toLocaleString('en-US').padStart(10)}`);
 } finally {
   await database.close();

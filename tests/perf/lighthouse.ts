@@ -153,8 +153,18 @@ export function lighthouseRows(f: LighthouseFigures): string[][] {
   const m = f.median;
   const score = (v: number) => v.toFixed(2);
   const rows: string[][] = [
-    ['Performance score', `≥ ${score(LIGHTHOUSE_BUDGETS.performance)}`, score(m.performance), m.performance >= LIGHTHOUSE_BUDGETS.performance ? 'pass' : 'FAIL'],
-    ['Accessibility score', `= ${score(LIGHTHOUSE_BUDGETS.accessibility)}`, score(m.accessibility), m.accessibility >= LIGHTHOUSE_BUDGETS.accessibility ? 'pass' : 'FAIL'],
+    [
+      'Performance score',
+      `≥ ${score(LIGHTHOUSE_BUDGETS.performance)}`,
+      score(m.performance),
+      m.performance >= LIGHTHOUSE_BUDGETS.performance ? 'pass' : 'FAIL',
+    ],
+    [
+      'Accessibility score',
+      `= ${score(LIGHTHOUSE_BUDGETS.accessibility)}`,
+      score(m.accessibility),
+      m.accessibility >= LIGHTHOUSE_BUDGETS.accessibility ? 'pass' : 'FAIL',
+    ],
   ];
   for (const [id, label, unit] of METRICS) {
     const x = m.metrics[id]!;

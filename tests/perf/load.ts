@@ -26,8 +26,20 @@ const CHUNK = 4_000;
  * `unit_id` (filled by a trigger otherwise, migration 0021) comes with the generator's rows.
  */
 const TRIGGER_TABLES = [
-  'work_orders', 'visits', 'findings', 'bookings', 'sites', 'units', 'leak_cases', 'users', 'branches',
-  'circuits', 'readings', 'refrigerant_events', 'alarms', 'attachments',
+  'work_orders',
+  'visits',
+  'findings',
+  'bookings',
+  'sites',
+  'units',
+  'leak_cases',
+  'users',
+  'branches',
+  'circuits',
+  'readings',
+  'refrigerant_events',
+  'alarms',
+  'attachments',
 ];
 /**
  * Tables whose triggers keep fix_quality_sums (migration 0005): off until service_call_facts is rebuilt, so
@@ -124,13 +136,18 @@ export async function loadBenchScenario(database: Database, label = 'bench:data'
     }
   };
   // Bulk-load mode: no foreign-key triggers (superuser only; skipped quietly otherwise), secondary indexes later.
-  const replica = await query(database, 'SET session_replication_role = replica').then(() => true, () => false);
-  const indexes = (await query(
-    database,
-    `SELECT i.indexname, i.indexdef FROM pg_indexes i
+  const replica = await query(database, 'SET session_replication_role = replica').then(
+    () => true,
+    () => false,
+  );
+  const indexes = (
+    await query(
+      database,
+      `SELECT i.indexname, i.indexdef FROM pg_indexes i
      WHERE i.schemaname = 'public' AND NOT EXISTS (SELECT 1 FROM pg_constraint c WHERE c.conname = i.indexname)
        AND i.indexdef NOT LIKE 'CREATE UNIQUE%'`,
-  )).rows as { indexname: string; indexdef: string }[];
+    )
+  ).rows as { indexname: string; indexdef: string }[];
   for (const ix of indexes) await query(database, `DROP INDEX "${ix.indexname}"`);
   // The Fix Quality facts and sums are rebuilt in one statement each at the end instead of row by row
   // (migrations 0002 and 0005).

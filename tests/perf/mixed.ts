@@ -162,7 +162,9 @@ export async function readMixedPlan(database: Database): Promise<MixedPlan> {
       id: b.id,
       zone: b.time_zone,
       dispatcher: dispatcher.email,
-      techs: people.filter((p) => p.role === 'technician').map((p) => ({ id: p.id, email: p.email, lastEnd: Math.max(dayStart, lastBy.get(p.id) ?? dayStart) })),
+      techs: people
+        .filter((p) => p.role === 'technician')
+        .map((p) => ({ id: p.id, email: p.email, lastEnd: Math.max(dayStart, lastBy.get(p.id) ?? dayStart) })),
       units: units.map((u) => ({ id: u.id, siteId: u.site_id })),
     });
   }
@@ -201,7 +203,10 @@ class Client {
     });
     if (!res.ok) throw new Error(`sign-in of ${this.email} answered ${res.status}: ${await res.text()}`);
     await res.arrayBuffer();
-    this.cookie = res.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+    this.cookie = res.headers
+      .getSetCookie()
+      .map((c) => c.split(';')[0])
+      .join('; ');
   }
 
   /** A request; timed (when the window is open) under `cls`. Answers the parsed body, or null when it failed. */
@@ -272,11 +277,15 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   const sessions = <T>(make: (j: number) => T) => Array.from({ length: K }, (_, j) => make(j));
   // K sessions per person: `dispatchers[bi][j]` is session j of branch bi's dispatcher.
   const dispatchers = plan.branches.map((b) => sessions(() => mk(b.dispatcher)));
-  const techs = plan.branches.flatMap((b, bi) => b.techs.flatMap((t, ti) => sessions((j) => ({ client: mk(t.email), branch: b, bi, tech: t, ti, j }))));
+  const techs = plan.branches.flatMap((b, bi) =>
+    b.techs.flatMap((t, ti) => sessions((j) => ({ client: mk(t.email), branch: b, bi, tech: t, ti, j }))),
+  );
   const managers = plan.branches.slice(0, 5).flatMap((_, bi) => sessions(() => mk(benchManager(bi))));
   const owners = sessions(() => mk(BENCH_OWNER));
   const everyone = [...dispatchers.flat(), ...techs.map((t) => t.client), ...managers, ...owners];
-  for (const b of plan.branches) if (b.techs.length < K) throw new Error(`clientsScale ${K}: a branch has only ${b.techs.length} technicians (one movable booking per dispatcher session)`);
+  for (const b of plan.branches)
+    if (b.techs.length < K)
+      throw new Error(`clientsScale ${K}: a branch has only ${b.techs.length} technicians (one movable booking per dispatcher session)`);
 
   const setupStart = performance.now();
   o.log(`mixed: ${everyone.length} sign-ins (${K} session${K === 1 ? '' : 's'} per person)`);
@@ -291,43 +300,64 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   /** Per branch (by index) and dispatcher session: the booking that session moves. */
   const movable: Movable[][] = plan.branches.map(() => []);
   const circuitsOf = new Map<string, string>();
-  await pool(plan.branches.map((b, bi) => ({ b, bi })), 3, async ({ b, bi }) => {
-    const d = dispatchers[bi]![0]!;
-    const book = async (tech: PlanTech, unit: { id: string; siteId: string }, startAt: number, complaint: string) => {
-      const wo = await d.call<{ workOrder: { id: string } }>(null, 'POST', '/api/work-orders', { siteId: unit.siteId, unitId: unit.id, kind: 'service_call', complaint, estimatedMinutes: 60 });
-      const endAt = startAt + 60 * MINUTE;
-      const res = await d.call<BookingAnswer>(null, 'POST', '/api/bookings', {
-        workOrderId: wo!.workOrder.id,
-        techId: tech.id,
-        startAt: new Date(startAt).toISOString(),
-        endAt: new Date(endAt).toISOString(),
-        ...hoursOverride(endAt, b.zone),
-      });
-      return res!.booking;
-    };
-    for (const [ti, tech] of b.techs.entries()) {
-      const unit = b.units[ti % b.units.length]!;
-      const start = ceilTo(tech.lastEnd, 15);
-      const booking = await book(tech, unit, start, 'No cooling (bench: the visit on site)');
-      openVisit.set(tech.id, { visitId: booking.visitId!, circuitId: '' });
-      circuitsOf.set(tech.id, unit.id);
-      if (ti < K) {
-        const later = start + 90 * MINUTE;
-        const m = await book(tech, b.units[(ti + 20) % b.units.length]!, later, 'Planned check (bench: the booking the dispatcher moves)');
-        movable[bi]!.push({ id: m.id, version: m.version, zone: b.zone, startAt: later, endAt: later + 60 * MINUTE, moved: false });
+  await pool(
+    plan.branches.map((b, bi) => ({ b, bi })),
+    3,
+    async ({ b, bi }) => {
+      const d = dispatchers[bi]![0]!;
+      const book = async (tech: PlanTech, unit: { id: string; siteId: string }, startAt: number, complaint: string) => {
+        const wo = await d.call<{ workOrder: { id: string } }>(null, 'POST', '/api/work-orders', {
+          siteId: unit.siteId,
+          unitId: unit.id,
+          kind: 'service_call',
+          complaint,
+          estimatedMinutes: 60,
+        });
+        const endAt = startAt + 60 * MINUTE;
+        const res = await d.call<BookingAnswer>(null, 'POST', '/api/bookings', {
+          workOrderId: wo!.workOrder.id,
+          techId: tech.id,
+          startAt: new Date(startAt).toISOString(),
+          endAt: new Date(endAt).toISOString(),
+          ...hoursOverride(endAt, b.zone),
+        });
+        return res!.booking;
+      };
+      for (const [ti, tech] of b.techs.entries()) {
+        const unit = b.units[ti % b.units.length]!;
+        const start = ceilTo(tech.lastEnd, 15);
+        const booking = await book(tech, unit, start, 'No cooling (bench: the visit on site)');
+        openVisit.set(tech.id, { visitId: booking.visitId!, circuitId: '' });
+        circuitsOf.set(tech.id, unit.id);
+        if (ti < K) {
+          const later = start + 90 * MINUTE;
+          const m = await book(
+            tech,
+            b.units[(ti + 20) % b.units.length]!,
+            later,
+            'Planned check (bench: the booking the dispatcher moves)',
+          );
+          movable[bi]!.push({ id: m.id, version: m.version, zone: b.zone, startAt: later, endAt: later + 60 * MINUTE, moved: false });
+        }
       }
-    }
-  });
+    },
+  );
   o.log(`mixed: booked after ${((performance.now() - setupStart) / 1000).toFixed(0)} s`);
-  await pool(techs.filter((t) => t.j === 0), 4, async ({ client, tech }) => {
-    const v = openVisit.get(tech.id)!;
-    await client.call(null, 'PATCH', `/api/visits/${v.visitId}`, { state: 'en_route' });
-    const detail = await client.call<{ units: { id: string; circuits: { id: string }[] }[] }>(null, 'PATCH', `/api/visits/${v.visitId}`, { state: 'on_site' });
-    const unit = detail!.units.find((u) => u.id === circuitsOf.get(tech.id)) ?? detail!.units[0];
-    const circuit = unit?.circuits[0];
-    if (!circuit) throw new Error(`visit ${v.visitId} shows no circuit`);
-    v.circuitId = circuit.id;
-  });
+  await pool(
+    techs.filter((t) => t.j === 0),
+    4,
+    async ({ client, tech }) => {
+      const v = openVisit.get(tech.id)!;
+      await client.call(null, 'PATCH', `/api/visits/${v.visitId}`, { state: 'en_route' });
+      const detail = await client.call<{ units: { id: string; circuits: { id: string }[] }[] }>(null, 'PATCH', `/api/visits/${v.visitId}`, {
+        state: 'on_site',
+      });
+      const unit = detail!.units.find((u) => u.id === circuitsOf.get(tech.id)) ?? detail!.units[0];
+      const circuit = unit?.circuits[0];
+      if (!circuit) throw new Error(`visit ${v.visitId} shows no circuit`);
+      v.circuitId = circuit.id;
+    },
+  );
   // The day once before the window, in every session: the Route screen opened at sign-in.
   await pool(techs, 4, ({ client }) => client.get(null, `/api/day?date=${DAY}`));
   const setupSeconds = (performance.now() - setupStart) / 1000;
@@ -365,13 +395,16 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
   rec.measuring = true;
   const t0 = performance.now();
   const stopAt = t0 + ms;
-  o.log(`mixed: ${techs.length} technician, ${dispatchers.flat().length} dispatcher, ${managers.length} manager and ${owners.length} owner sessions for ${o.seconds} s${o.closedLoop ? ', closed loop' : ''}`);
+  o.log(
+    `mixed: ${techs.length} technician, ${dispatchers.flat().length} dispatcher, ${managers.length} manager and ${owners.length} owner sessions for ${o.seconds} s${o.closedLoop ? ', closed loop' : ''}`,
+  );
 
   const loops: Promise<void>[] = [];
   for (const t of techs) {
     const visit = openVisit.get(t.tech.id)!;
     const maybeReadings = async () => {
-      if (rng.chance(0.1) && performance.now() < stopAt) await t.client.call('readings', 'POST', `/api/visits/${visit.visitId}/readings`, readingsBody(visit.circuitId));
+      if (rng.chance(0.1) && performance.now() < stopAt)
+        await t.client.call('readings', 'POST', `/api/visits/${visit.visitId}/readings`, readingsBody(visit.circuitId));
     };
     loops.push(
       every(t0, spread(30_000), pace(30_000), stopAt, async () => {
@@ -387,36 +420,37 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       }),
     );
   }
-  for (const [bi, sessionsOfBranch] of dispatchers.entries()) for (const [j, d] of sessionsOfBranch.entries()) {
-    const b = plan.branches[bi]!;
-    const w = weekOf(b.zone);
-    loops.push(
-      every(t0, spread(5_000), pace(5_000), stopAt, async () => {
-        await Promise.all([
-          d.get('rosterWeek', `/api/bookings?branchId=${b.id}&from=${encodeURIComponent(w.from)}&to=${encodeURIComponent(w.to)}`),
-          d.get('rosterLoad', `/api/roster/load?branchId=${b.id}&from=${monday}&to=${sunday}`),
-        ]);
-      }),
-    );
-    const m = movable[bi]![j];
-    if (m) {
+  for (const [bi, sessionsOfBranch] of dispatchers.entries())
+    for (const [j, d] of sessionsOfBranch.entries()) {
+      const b = plan.branches[bi]!;
+      const w = weekOf(b.zone);
       loops.push(
-        every(t0, spread(30_000), 30_000, stopAt, async () => {
-          // Half an hour later, then back: never onto the technician's visit before it.
-          const shift = (m.moved ? -30 : 30) * MINUTE;
-          const startAt = m.startAt + shift;
-          const endAt = m.endAt + shift;
-          const res = await d.call<BookingAnswer>('move', 'PATCH', `/api/bookings/${m.id}`, {
-            version: m.version,
-            startAt: new Date(startAt).toISOString(),
-            endAt: new Date(endAt).toISOString(),
-            ...hoursOverride(endAt, m.zone),
-          });
-          if (res) Object.assign(m, { version: res.booking.version, startAt, endAt, moved: !m.moved });
+        every(t0, spread(5_000), pace(5_000), stopAt, async () => {
+          await Promise.all([
+            d.get('rosterWeek', `/api/bookings?branchId=${b.id}&from=${encodeURIComponent(w.from)}&to=${encodeURIComponent(w.to)}`),
+            d.get('rosterLoad', `/api/roster/load?branchId=${b.id}&from=${monday}&to=${sunday}`),
+          ]);
         }),
       );
+      const m = movable[bi]![j];
+      if (m) {
+        loops.push(
+          every(t0, spread(30_000), 30_000, stopAt, async () => {
+            // Half an hour later, then back: never onto the technician's visit before it.
+            const shift = (m.moved ? -30 : 30) * MINUTE;
+            const startAt = m.startAt + shift;
+            const endAt = m.endAt + shift;
+            const res = await d.call<BookingAnswer>('move', 'PATCH', `/api/bookings/${m.id}`, {
+              version: m.version,
+              startAt: new Date(startAt).toISOString(),
+              endAt: new Date(endAt).toISOString(),
+              ...hoursOverride(endAt, m.zone),
+            });
+            if (res) Object.assign(m, { version: res.booking.version, startAt, endAt, moved: !m.moved });
+          }),
+        );
+      }
     }
-  }
   for (const mgr of managers) {
     loops.push(
       every(t0, spread(15_000), pace(15_000), stopAt, async () => {
@@ -430,7 +464,15 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
     );
   }
   for (const owner of owners) {
-    loops.push(every(t0, rng.next() * Math.min(60_000, ms / 2), 60_000, stopAt, async () => void (await owner.get('fixQuality', `/api/reports/fix-quality?from=${year.from}&to=${year.to}`))));
+    loops.push(
+      every(
+        t0,
+        rng.next() * Math.min(60_000, ms / 2),
+        60_000,
+        stopAt,
+        async () => void (await owner.get('fixQuality', `/api/reports/fix-quality?from=${year.from}&to=${year.to}`)),
+      ),
+    );
   }
 
   await Promise.all(loops);
@@ -451,7 +493,14 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
       errs[String(s.status)] = (errs[String(s.status)] ?? 0) + 1;
       errors[String(s.status)] = (errors[String(s.status)] ?? 0) + 1;
     }
-    classes[cls] = { requests: mine.length, p50: at(0.5), p95: at(0.95), p99: at(0.99), max: sorted.length ? sorted[sorted.length - 1]! : NaN, errors: errs };
+    classes[cls] = {
+      requests: mine.length,
+      p50: at(0.5),
+      p95: at(0.95),
+      p99: at(0.99),
+      max: sorted.length ? sorted[sorted.length - 1]! : NaN,
+      errors: errs,
+    };
   }
   const nsMs = (ns: number) => ns / 1e6;
   return {
@@ -466,7 +515,12 @@ export async function runMixed(o: MixedOptions): Promise<MixedFigures> {
     over1s: rec.samples.filter((s) => s.ms > 1000).length,
     classes,
     apiLoopDelay,
-    clientLoopDelay: { mean: nsMs(clientLoop.mean), p50: nsMs(clientLoop.percentile(50)), p99: nsMs(clientLoop.percentile(99)), max: nsMs(clientLoop.max) },
+    clientLoopDelay: {
+      mean: nsMs(clientLoop.mean),
+      p50: nsMs(clientLoop.percentile(50)),
+      p99: nsMs(clientLoop.percentile(99)),
+      max: nsMs(clientLoop.max),
+    },
   };
 }
 
@@ -511,7 +565,11 @@ export function mixedRows(label: string, f: MixedFigures): string[][] {
       fmt(c.p95),
       fmt(c.p99),
       fmt(c.max),
-      errs ? Object.entries(c.errors).map(([s, n]) => `${n}× ${s}`).join(', ') : '0',
+      errs
+        ? Object.entries(c.errors)
+            .map(([s, n]) => `${n}× ${s}`)
+            .join(', ')
+        : '0',
       c.requests === 0 ? '—' : failed.length ? `FAIL (${failed.join(', ')})` : 'pass',
     ]);
   }

@@ -81,7 +81,21 @@ export function globalRows(passwordHash: string): TableRows {
   return new Map([
     [
       'users',
-      [{ id: rng.uuid(), email: BENCH_OWNER, name: 'Bench Owner', role: 'owner', branch_id: null, password_hash: passwordHash, skills: [], epa608_type: 'none', working_hours: null, color_index: 0, created_at: '2023-01-02T12:00:00Z' }],
+      [
+        {
+          id: rng.uuid(),
+          email: BENCH_OWNER,
+          name: 'Bench Owner',
+          role: 'owner',
+          branch_id: null,
+          password_hash: passwordHash,
+          skills: [],
+          epa608_type: 'none',
+          working_hours: null,
+          color_index: 0,
+          created_at: '2023-01-02T12:00:00Z',
+        },
+      ],
     ],
   ]);
 }
@@ -114,17 +128,43 @@ export function branchRows(b: number, passwordHash: string): TableRows {
   const alarms = t('alarms');
 
   branches.push({
-    id: branchId, name: `${place.city} branch`, code, time_zone: zone, base_address: `1 ${STREETS[b]}, ${place.city}`,
-    base_lat: place.lat, base_lon: place.lon, holidays: [], labour_rate_cents: 11_000 + b * 200, refrigerant_price_cents_per_lb: 8_500,
-    currency: 'USD', unit_system: 'imperial', sensor_tolerance_percent: 3, sensor_tolerance_absolute: 5, repeat_alarm_count: 2,
-    repeat_alarm_days: 30, callback_window_days: b % 3 === 0 ? 45 : 30, digest_hour: 7, created_at: '2023-01-02T12:00:00Z',
+    id: branchId,
+    name: `${place.city} branch`,
+    code,
+    time_zone: zone,
+    base_address: `1 ${STREETS[b]}, ${place.city}`,
+    base_lat: place.lat,
+    base_lon: place.lon,
+    holidays: [],
+    labour_rate_cents: 11_000 + b * 200,
+    refrigerant_price_cents_per_lb: 8_500,
+    currency: 'USD',
+    unit_system: 'imperial',
+    sensor_tolerance_percent: 3,
+    sensor_tolerance_absolute: 5,
+    repeat_alarm_count: 2,
+    repeat_alarm_days: 30,
+    callback_window_days: b % 3 === 0 ? 45 : 30,
+    digest_hour: 7,
+    created_at: '2023-01-02T12:00:00Z',
   });
   const person = (role: string, email: string, name: string, hours: WorkingHours | null, color: number) => {
     const id = rng.uuid();
     users.push({
-      id, email, name, role, branch_id: branchId, password_hash: passwordHash, skills: role === 'technician' ? ['rooftop', 'controls'] : [],
-      epa608_type: role === 'technician' ? 'universal' : 'none', working_hours: hours, start_address: hours ? `1 ${STREETS[b]}` : null,
-      start_lat: hours ? place.lat : null, start_lon: hours ? place.lon : null, color_index: color, created_at: '2023-01-02T12:00:00Z',
+      id,
+      email,
+      name,
+      role,
+      branch_id: branchId,
+      password_hash: passwordHash,
+      skills: role === 'technician' ? ['rooftop', 'controls'] : [],
+      epa608_type: role === 'technician' ? 'universal' : 'none',
+      working_hours: hours,
+      start_address: hours ? `1 ${STREETS[b]}` : null,
+      start_lat: hours ? place.lat : null,
+      start_lon: hours ? place.lon : null,
+      color_index: color,
+      created_at: '2023-01-02T12:00:00Z',
     });
     return id;
   };
@@ -133,9 +173,15 @@ export function branchRows(b: number, passwordHash: string): TableRows {
   const day = { start: '07:00', end: '15:30' };
   const hours: WorkingHours = { sun: null, mon: day, tue: day, wed: day, thu: day, fri: day, sat: null };
   const techs: string[] = [];
-  for (let i = 0; i < TECHS_PER_BRANCH; i++) techs.push(person('technician', `tech${b + 1}-${i + 1}@bench.coilpath.example`, `Technician ${code}-${i + 1}`, hours, i));
+  for (let i = 0; i < TECHS_PER_BRANCH; i++)
+    techs.push(person('technician', `tech${b + 1}-${i + 1}@bench.coilpath.example`, `Technician ${code}-${i + 1}`, hours, i));
 
-  interface U { id: string; siteId: string; circuits: string[]; model: ModelDef }
+  interface U {
+    id: string;
+    siteId: string;
+    circuits: string[];
+    model: ModelDef;
+  }
   const unitList: U[] = [];
   const siteIds: string[] = [];
   for (let c = 0; c < SITES_PER_BRANCH / 3; c++) {
@@ -145,19 +191,35 @@ export function branchRows(b: number, passwordHash: string): TableRows {
       const siteId = rng.uuid();
       siteIds.push(siteId);
       sites.push({
-        id: siteId, branch_id: branchId, customer_id: customerId, name: `Site ${code}-${c * 3 + s + 1}`,
-        address: `${rng.int(100, 9899)} ${rng.pick(STREETS)}`, city: place.city, lat: place.lat + rng.range(-0.2, 0.2),
-        lon: place.lon + rng.range(-0.25, 0.25), created_at: '2023-01-02T12:00:00Z',
+        id: siteId,
+        branch_id: branchId,
+        customer_id: customerId,
+        name: `Site ${code}-${c * 3 + s + 1}`,
+        address: `${rng.int(100, 9899)} ${rng.pick(STREETS)}`,
+        city: place.city,
+        lat: place.lat + rng.range(-0.2, 0.2),
+        lon: place.lon + rng.range(-0.25, 0.25),
+        created_at: '2023-01-02T12:00:00Z',
       });
       for (let k = 0; k < UNITS_PER_SITE; k++) {
         const model = rng.pick(MODEL_LIST);
         const unitId = rng.uuid();
         const circuitIds: string[] = [];
         units.push({
-          id: unitId, branch_id: branchId, site_id: siteId, tag: `U-${k + 1}`, kind: model.kind, make: model.make, model: model.model,
-          serial: `${model.serialPrefix}-${code}-${rng.hex(8)}`, install_date: `${rng.int(model.installYears[0], model.installYears[1])}-0${rng.int(1, 9)}-15`,
-          refrigerant: model.refrigerant, full_charge_lb: rng.range(model.charge[0], model.charge[1] + 0.01), appliance_category: model.category,
-          tonnage: model.tonnage, created_at: '2023-01-02T12:00:00Z',
+          id: unitId,
+          branch_id: branchId,
+          site_id: siteId,
+          tag: `U-${k + 1}`,
+          kind: model.kind,
+          make: model.make,
+          model: model.model,
+          serial: `${model.serialPrefix}-${code}-${rng.hex(8)}`,
+          install_date: `${rng.int(model.installYears[0], model.installYears[1])}-0${rng.int(1, 9)}-15`,
+          refrigerant: model.refrigerant,
+          full_charge_lb: rng.range(model.charge[0], model.charge[1] + 0.01),
+          appliance_category: model.category,
+          tonnage: model.tonnage,
+          created_at: '2023-01-02T12:00:00Z',
         });
         for (let n = 1; n <= Math.max(1, model.circuits); n++) {
           const circuitId = rng.uuid();
@@ -170,7 +232,15 @@ export function branchRows(b: number, passwordHash: string): TableRows {
   }
 
   // Work: per working day, fresh service calls and maintenance, plus follow-ups scheduled by earlier visits.
-  interface Job { id: string; unit: U; kind: string; origin: string | null; createdMs: number; secondVisit: boolean; outcome?: string }
+  interface Job {
+    id: string;
+    unit: U;
+    kind: string;
+    origin: string | null;
+    createdMs: number;
+    secondVisit: boolean;
+    outcome?: string;
+  }
   const queued = new Map<number, Job[]>(); // day index → follow-ups and second visits due
   const days = historyDays();
   const localStart = (d: string) => new TZDate(`${d}T07:00:00`, zone).getTime();
@@ -220,27 +290,65 @@ export function branchRows(b: number, passwordHash: string): TableRows {
       const bookingId = rng.uuid();
       const visitId = rng.uuid();
       bookings.push({
-        id: bookingId, branch_id: branchId, work_order_id: woId, tech_id: techId, start_at: iso(onSite - travel), end_at: iso(closed),
-        version: 1, created_at: iso(Math.min(job.createdMs + 3_600_000, onSite - travel)),
+        id: bookingId,
+        branch_id: branchId,
+        work_order_id: woId,
+        tech_id: techId,
+        start_at: iso(onSite - travel),
+        end_at: iso(closed),
+        version: 1,
+        created_at: iso(Math.min(job.createdMs + 3_600_000, onSite - travel)),
       });
       let outcome = 'resolved';
       if (job.kind === 'service_call') {
-        outcome = rng.weighted([['resolved', 78], ['needs_return', 17], ['declined', 5]] as const);
+        outcome = rng.weighted([
+          ['resolved', 78],
+          ['needs_return', 17],
+          ['declined', 5],
+        ] as const);
         job.outcome = outcome;
       } else if (job.kind === 'planned_maintenance' && job.secondVisit) outcome = 'needs_return';
       visits.push({
-        id: visitId, branch_id: branchId, work_order_id: woId, unit_id: job.unit.id, booking_id: bookingId, tech_id: techId, en_route_at: iso(onSite - travel),
-        on_site_at: iso(onSite), closed_at: iso(closed), outcome, return_needs: outcome === 'needs_return' ? ['parts'] : [],
-        labour_minutes: minutes, notes: null, created_at: iso(onSite - travel), updated_at: iso(closed),
+        id: visitId,
+        branch_id: branchId,
+        work_order_id: woId,
+        unit_id: job.unit.id,
+        booking_id: bookingId,
+        tech_id: techId,
+        en_route_at: iso(onSite - travel),
+        on_site_at: iso(onSite),
+        closed_at: iso(closed),
+        outcome,
+        return_needs: outcome === 'needs_return' ? ['parts'] : [],
+        labour_minutes: minutes,
+        notes: null,
+        created_at: iso(onSite - travel),
+        updated_at: iso(closed),
       });
       if (job.kind === 'service_call' || job.kind === 'callback') {
         const cause = rng.weighted(CAUSES);
         const origin = job.unit.model.make === 'Quellmark' && rng.chance(0.5) ? 'factory_defect' : rng.weighted(ORIGINS);
-        findings.push({ id: rng.uuid(), visit_id: visitId, unit_id: job.unit.id, cause_code: cause, origin, notes: null, created_at: iso(closed - 60_000) });
+        findings.push({
+          id: rng.uuid(),
+          visit_id: visitId,
+          unit_id: job.unit.id,
+          cause_code: cause,
+          origin,
+          notes: null,
+          created_at: iso(closed - 60_000),
+        });
         if (job.unit.model.refrigerant && (cause === 'refrigerant_leak' || rng.chance(0.2))) {
           refrigerantEvents.push({
-            id: rng.uuid(), unit_id: job.unit.id, visit_id: visitId, date: d, refrigerant: job.unit.model.refrigerant,
-            pounds_added: Math.round(rng.range(0.5, 6) * 10) / 10, pounds_recovered: 0, reason: 'leak_top_off', tech_id: techId, created_at: iso(closed),
+            id: rng.uuid(),
+            unit_id: job.unit.id,
+            visit_id: visitId,
+            date: d,
+            refrigerant: job.unit.model.refrigerant,
+            pounds_added: Math.round(rng.range(0.5, 6) * 10) / 10,
+            pounds_recovered: 0,
+            reason: 'leak_top_off',
+            tech_id: techId,
+            created_at: iso(closed),
           });
         }
       }
@@ -251,19 +359,44 @@ export function branchRows(b: number, passwordHash: string): TableRows {
         const sp = rng.range(95, 145);
         const lp = rng.range(280, 420);
         readings.push({
-          id: rng.uuid(), visit_id: visitId, unit_id: job.unit.id, circuit_id: circuitId, taken_at: iso(onSite + (r + 1) * 5 * 60_000),
-          refrigerant: job.unit.model.refrigerant, suction_pressure: round1(sp), liquid_pressure: round1(lp), discharge_pressure: round1(lp + rng.range(5, 25)),
-          suction_line_temp: round1(rng.range(45, 65)), liquid_line_temp: round1(rng.range(85, 105)), outdoor_temp: round1(rng.range(40, 100)),
-          suction_pressure_controller: round1(sp + rng.range(-4, 4)), liquid_pressure_controller: round1(lp + rng.range(-8, 8)), created_at: iso(closed),
+          id: rng.uuid(),
+          visit_id: visitId,
+          unit_id: job.unit.id,
+          circuit_id: circuitId,
+          taken_at: iso(onSite + (r + 1) * 5 * 60_000),
+          refrigerant: job.unit.model.refrigerant,
+          suction_pressure: round1(sp),
+          liquid_pressure: round1(lp),
+          discharge_pressure: round1(lp + rng.range(5, 25)),
+          suction_line_temp: round1(rng.range(45, 65)),
+          liquid_line_temp: round1(rng.range(85, 105)),
+          outdoor_temp: round1(rng.range(40, 100)),
+          suction_pressure_controller: round1(sp + rng.range(-4, 4)),
+          liquid_pressure_controller: round1(lp + rng.range(-8, 8)),
+          created_at: iso(closed),
         });
       }
       // What this visit sets in motion.
       if (job.kind === 'service_call') {
         if (outcome === 'needs_return') {
-          pushQueue(di + rng.int(1, 7), { id: rng.uuid(), unit: job.unit, kind: 'return_visit', origin: job.id, createdMs: closed + 600_000, secondVisit: false });
+          pushQueue(di + rng.int(1, 7), {
+            id: rng.uuid(),
+            unit: job.unit,
+            kind: 'return_visit',
+            origin: job.id,
+            createdMs: closed + 600_000,
+            secondVisit: false,
+          });
         } else if (outcome === 'resolved' && rng.chance(0.08)) {
           const later = rng.int(2, 50);
-          pushQueue(di + later, { id: rng.uuid(), unit: job.unit, kind: 'callback', origin: job.id, createdMs: closed + (later - 1) * DAY_MS, secondVisit: false });
+          pushQueue(di + later, {
+            id: rng.uuid(),
+            unit: job.unit,
+            kind: 'callback',
+            origin: job.id,
+            createdMs: closed + (later - 1) * DAY_MS,
+            secondVisit: false,
+          });
         }
       } else if (job.kind === 'planned_maintenance' && job.secondVisit) {
         pushQueue(di + 1, { id: job.id, unit: job.unit, kind: 'second', origin: job.id, createdMs: job.createdMs, secondVisit: false });
@@ -284,8 +417,16 @@ export function branchRows(b: number, passwordHash: string): TableRows {
         const raised = at + k * rng.int(1, 9) * DAY_MS;
         if (raised > startMs + spanMs) break;
         alarms.push({
-          id: rng.uuid(), branch_id: branchId, unit_id: u.id, circuit: 1, code, description: null, raised_at: iso(raised),
-          cleared_at: iso(raised + rng.int(10, 600) * 60_000), source: 'controller', created_at: iso(raised),
+          id: rng.uuid(),
+          branch_id: branchId,
+          unit_id: u.id,
+          circuit: 1,
+          code,
+          description: null,
+          raised_at: iso(raised),
+          cleared_at: iso(raised + rng.int(10, 600) * 60_000),
+          source: 'controller',
+          created_at: iso(raised),
         });
       }
       n -= burst;
@@ -294,11 +435,25 @@ export function branchRows(b: number, passwordHash: string): TableRows {
   return tables;
 }
 
-function workOrderRow(j: { id: string; unit: { id: string; siteId: string }; kind: string; origin: string | null; createdMs: number }, branchId: string): DbRow {
+function workOrderRow(
+  j: { id: string; unit: { id: string; siteId: string }; kind: string; origin: string | null; createdMs: number },
+  branchId: string,
+): DbRow {
   return {
-    id: j.id, branch_id: branchId, site_id: j.unit.siteId, unit_id: j.unit.id, kind: j.kind, state: 'closed', priority: 'normal',
-    complaint: j.kind === 'planned_maintenance' ? 'Planned maintenance' : 'No cooling', estimated_minutes: 90, origin_work_order_id: j.origin,
-    return_needs: [], created_at: iso(j.createdMs), updated_at: iso(j.createdMs), closed_at: null,
+    id: j.id,
+    branch_id: branchId,
+    site_id: j.unit.siteId,
+    unit_id: j.unit.id,
+    kind: j.kind,
+    state: 'closed',
+    priority: 'normal',
+    complaint: j.kind === 'planned_maintenance' ? 'Planned maintenance' : 'No cooling',
+    estimated_minutes: 90,
+    origin_work_order_id: j.origin,
+    return_needs: [],
+    created_at: iso(j.createdMs),
+    updated_at: iso(j.createdMs),
+    closed_at: null,
   };
 }
 

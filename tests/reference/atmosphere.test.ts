@@ -82,7 +82,9 @@ describe('R-410A suction gauge at 1,609 m (ISA atmosphere) against the CoolProp 
   it('the reading whose absolute pressure is the reference point 111.5 psig (126.196 psia) gives that point’s dew temperature, 36.93 °F', () => {
     const reading = 111.5 + ref.atmosphere_psia - atmPsia; // ≈ 114.10 psig on a gauge at 1,609 m
     expect(reading).toBeCloseTo(114.095, 2);
-    expect(Math.abs(saturationTemperature('R-410A', reading, { atmosphericPressureKPa: atmKpa }) - point(111.5).dew_F)).toBeLessThanOrEqual(0.02);
+    expect(Math.abs(saturationTemperature('R-410A', reading, { atmosphericPressureKPa: atmKpa }) - point(111.5).dew_F)).toBeLessThanOrEqual(
+      0.02,
+    );
   });
 
   it('111.5 psig read at 1,609 m is 123.60 psia: about 1.2 °F lower saturation than at sea level, as the reference table gives', () => {
@@ -100,7 +102,12 @@ describe('R-410A suction gauge at 1,609 m (ISA atmosphere) against the CoolProp 
   it('so a superheat computed with the sea-level atmosphere at 1,609 m is about 1.2 °F low', () => {
     const line = 48;
     const wrong = superheat({ refrigerant: 'R-410A', suctionPressure: 111.5, suctionLineTemp: line }).superheat;
-    const right = superheat({ refrigerant: 'R-410A', suctionPressure: 111.5, suctionLineTemp: line, atmosphericPressureKPa: atmKpa }).superheat;
+    const right = superheat({
+      refrigerant: 'R-410A',
+      suctionPressure: 111.5,
+      suctionLineTemp: line,
+      atmosphericPressureKPa: atmKpa,
+    }).superheat;
     expect(right - wrong).toBeCloseTo(point(111.5).dew_F - referenceDewAt(111.5 + atmPsia, [point(81.1), point(111.5), point(148.7)]), 1);
   });
 });

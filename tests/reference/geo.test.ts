@@ -25,7 +25,9 @@ const pairs: [string, { lat: number; lon: number }, { lat: number; lon: number }
 
 describe('greatCircleDistance vs geolib 3.3.14', () => {
   it.each(pairs)('%s: equals geolib getDistance scaled to a 6371.0088 km sphere (within 1 m)', (_name, a, b) => {
-    const theirsKm = (geolib.getDistance({ latitude: a.lat, longitude: a.lon }, { latitude: b.lat, longitude: b.lon }, 0.001) / 1000) * ((EARTH_RADIUS_KM * 1000) / GEOLIB_RADIUS_M);
+    const theirsKm =
+      (geolib.getDistance({ latitude: a.lat, longitude: a.lon }, { latitude: b.lat, longitude: b.lon }, 0.001) / 1000) *
+      ((EARTH_RADIUS_KM * 1000) / GEOLIB_RADIUS_M);
     expect(Math.abs(greatCircleDistance(a, b, 'km') - theirsKm)).toBeLessThan(0.001);
   });
 
@@ -37,7 +39,9 @@ describe('greatCircleDistance vs geolib 3.3.14', () => {
 
   it('miles agree with geolib convertDistance', () => {
     const [, a, b] = pairs[2]!;
-    const m = geolib.getDistance({ latitude: a.lat, longitude: a.lon }, { latitude: b.lat, longitude: b.lon }, 0.001) * ((EARTH_RADIUS_KM * 1000) / GEOLIB_RADIUS_M);
+    const m =
+      geolib.getDistance({ latitude: a.lat, longitude: a.lon }, { latitude: b.lat, longitude: b.lon }, 0.001) *
+      ((EARTH_RADIUS_KM * 1000) / GEOLIB_RADIUS_M);
     expect(greatCircleDistance(a, b, 'mi')).toBeCloseTo(geolib.convertDistance(m, 'mi'), 3);
   });
 });

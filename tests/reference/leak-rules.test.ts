@@ -11,16 +11,32 @@ const one = (date: string, pounds: number) => [{ date, pounds }];
 
 describe('40 CFR 82 Subpart F (ODS)', () => {
   it('82.157(a) [P]: a full charge of 50 lb is in scope (50 or more pounds), 49 lb is not', () => {
-    const at50 = leakRepairObligation({ appliance: { category: 'comfort_cooling', fullCharge: 50, refrigerant: 'R-22' }, additions: one('2027-03-01', 1), asOf: '2027-03-01' });
+    const at50 = leakRepairObligation({
+      appliance: { category: 'comfort_cooling', fullCharge: 50, refrigerant: 'R-22' },
+      additions: one('2027-03-01', 1),
+      asOf: '2027-03-01',
+    });
     expect(at50.inScope).toBe(true);
     expect(at50.rule).toBe('40 CFR 82.157');
-    const at49 = leakRepairObligation({ appliance: { category: 'comfort_cooling', fullCharge: 49, refrigerant: 'R-22' }, additions: one('2027-03-01', 1), asOf: '2027-03-01' });
+    const at49 = leakRepairObligation({
+      appliance: { category: 'comfort_cooling', fullCharge: 49, refrigerant: 'R-22' },
+      additions: one('2027-03-01', 1),
+      asOf: '2027-03-01',
+    });
     expect(at49.inScope).toBe(false);
   });
 
   it('82.157(a) [P] (85 FR 14150): since 10 Apr 2020 an appliance with solely a substitute (HFC) is out of Part 82', () => {
-    const before = leakRepairObligation({ appliance: { category: 'comfort_cooling', fullCharge: 60, refrigerant: 'R-410A' }, additions: one('2020-04-09', 1), asOf: '2020-04-09' });
-    const after = leakRepairObligation({ appliance: { category: 'comfort_cooling', fullCharge: 60, refrigerant: 'R-410A' }, additions: one('2020-04-10', 1), asOf: '2020-04-10' });
+    const before = leakRepairObligation({
+      appliance: { category: 'comfort_cooling', fullCharge: 60, refrigerant: 'R-410A' },
+      additions: one('2020-04-09', 1),
+      asOf: '2020-04-09',
+    });
+    const after = leakRepairObligation({
+      appliance: { category: 'comfort_cooling', fullCharge: 60, refrigerant: 'R-410A' },
+      additions: one('2020-04-10', 1),
+      asOf: '2020-04-10',
+    });
     expect(before.rule).toBe('40 CFR 82.157');
     expect(after.inScope).toBe(false);
   });
@@ -42,10 +58,23 @@ describe('40 CFR 82 Subpart F (ODS)', () => {
   });
 
   it('before 2019 [P] (www3.epa.gov/ozone/title6/608/leak.html): "more than 50 pounds"; commercial 35 %, IPR 35 %, comfort 15 %, other 15 %', () => {
-    const at50 = leakRepairObligation({ appliance: { category: 'comfort_cooling', fullCharge: 50, refrigerant: 'R-22' }, additions: one('2018-06-01', 10), asOf: '2018-06-01' });
+    const at50 = leakRepairObligation({
+      appliance: { category: 'comfort_cooling', fullCharge: 50, refrigerant: 'R-22' },
+      additions: one('2018-06-01', 10),
+      asOf: '2018-06-01',
+    });
     expect(at50.inScope).toBe(false);
-    for (const [category, t] of [['commercial_refrigeration', 35], ['industrial_process', 35], ['comfort_cooling', 15], ['other', 15]] as const) {
-      const r = leakRepairObligation({ appliance: { category, fullCharge: 51, refrigerant: 'R-22' }, additions: one('2018-06-01', 1), asOf: '2018-06-01' });
+    for (const [category, t] of [
+      ['commercial_refrigeration', 35],
+      ['industrial_process', 35],
+      ['comfort_cooling', 15],
+      ['other', 15],
+    ] as const) {
+      const r = leakRepairObligation({
+        appliance: { category, fullCharge: 51, refrigerant: 'R-22' },
+        additions: one('2018-06-01', 1),
+        asOf: '2018-06-01',
+      });
       expect(r.thresholdPercent).toBe(t);
     }
   });
@@ -68,7 +97,11 @@ describe('40 CFR 82 Subpart F (ODS)', () => {
   });
 
   it('82.157(d) [M]: repair within 30 days of the addition that showed the rate over the threshold', () => {
-    const r = leakRepairObligation({ appliance: { category: 'comfort_cooling', fullCharge: 100, refrigerant: 'R-22' }, additions: one('2027-06-01', 11), asOf: '2027-06-05' });
+    const r = leakRepairObligation({
+      appliance: { category: 'comfort_cooling', fullCharge: 100, refrigerant: 'R-22' },
+      additions: one('2027-06-01', 11),
+      asOf: '2027-06-05',
+    });
     expect(r.repairDueDate).toBe('2027-07-01');
     expect(r.verificationRequired).toBe(true); // 82.157(e) [M]
   });
@@ -90,12 +123,18 @@ describe('40 CFR 84 Subpart C (AIM Act, HFCs)', () => {
     const appliance = { category: 'commercial_refrigeration' as const, fullCharge: 15, refrigerant: 'R-404A' };
     expect(leakRepairObligation({ appliance, additions: one('2026-01-01', 1), asOf: '2026-01-01' }).rule).toBe('40 CFR 84.106');
     expect(leakRepairObligation({ appliance, additions: one('2025-12-31', 1), asOf: '2025-12-31' }).inScope).toBe(false);
-    expect(leakRepairObligation({ appliance: { ...appliance, fullCharge: 14.9 }, additions: one('2026-03-01', 1), asOf: '2026-03-01' }).inScope).toBe(false);
+    expect(
+      leakRepairObligation({ appliance: { ...appliance, fullCharge: 14.9 }, additions: one('2026-03-01', 1), asOf: '2026-03-01' }).inScope,
+    ).toBe(false);
   });
 
   it('84.106(a) [S] and LEAK-RULES.md: R-1234yf (GWP below 53 [M]) is outside Part 84; every other HFC listed is above 53', () => {
     for (const r of listRefrigerants()) {
-      const o = leakRepairObligation({ appliance: { category: 'other', fullCharge: 100, refrigerant: r.id }, additions: one('2027-01-10', 1), asOf: '2027-01-10' });
+      const o = leakRepairObligation({
+        appliance: { category: 'other', fullCharge: 100, refrigerant: r.id },
+        additions: one('2027-01-10', 1),
+        asOf: '2027-01-10',
+      });
       if (r.id === 'R-1234yf') expect(o.inScope).toBe(false);
       else if (r.id === 'R-22') expect(o.rule).toBe('40 CFR 82.157');
       else expect(o.rule).toBe('40 CFR 84.106');
@@ -103,8 +142,17 @@ describe('40 CFR 84 Subpart C (AIM Act, HFCs)', () => {
   });
 
   it('84.106(c)(2) [S]: IPR 30 %, commercial refrigeration 20 %, comfort cooling and other 10 %', () => {
-    for (const [category, t] of [['industrial_process', 30], ['commercial_refrigeration', 20], ['comfort_cooling', 10], ['other', 10]] as const) {
-      const r = leakRepairObligation({ appliance: { category, fullCharge: 40, refrigerant: 'R-448A' }, additions: one('2026-05-01', 1), asOf: '2026-05-01' });
+    for (const [category, t] of [
+      ['industrial_process', 30],
+      ['commercial_refrigeration', 20],
+      ['comfort_cooling', 10],
+      ['other', 10],
+    ] as const) {
+      const r = leakRepairObligation({
+        appliance: { category, fullCharge: 40, refrigerant: 'R-448A' },
+        additions: one('2026-05-01', 1),
+        asOf: '2026-05-01',
+      });
       expect(r.thresholdPercent).toBe(t);
     }
   });
@@ -123,26 +171,47 @@ describe('40 CFR 84 Subpart C (AIM Act, HFCs)', () => {
   });
 
   it('84.106(d) [S]: repair within 30 days; 120 days with an industrial shutdown', () => {
-    const base = { appliance: { category: 'industrial_process' as const, fullCharge: 100, refrigerant: 'R-134a' }, additions: one('2026-03-01', 31), asOf: '2026-03-01' };
+    const base = {
+      appliance: { category: 'industrial_process' as const, fullCharge: 100, refrigerant: 'R-134a' },
+      additions: one('2026-03-01', 31),
+      asOf: '2026-03-01',
+    };
     expect(leakRepairObligation(base).repairDueDate).toBe('2026-03-31');
     expect(leakRepairObligation({ ...base, industrialShutdown: true }).repairDueDate).toBe('2026-06-29');
   });
 });
 
 describe('the refrigerant ledger (leakObligations) against the rules', () => {
-  const add = (date: string, pounds: number, extra: Partial<Extract<LedgerEvent, { kind: 'addition' }>> = {}): LedgerEvent => ({ kind: 'addition', date, pounds, ...extra });
-  const r22 = (category: 'comfort_cooling' | 'commercial_refrigeration' | 'industrial_process' | 'other', fullCharge: number) => ({ category, fullCharge, refrigerant: 'R-22' });
+  const add = (date: string, pounds: number, extra: Partial<Extract<LedgerEvent, { kind: 'addition' }>> = {}): LedgerEvent => ({
+    kind: 'addition',
+    date,
+    pounds,
+    ...extra,
+  });
+  const r22 = (category: 'comfort_cooling' | 'commercial_refrigeration' | 'industrial_process' | 'other', fullCharge: number) => ({
+    category,
+    fullCharge,
+    refrigerant: 'R-22',
+  });
 
   it('82.157(b) [P]: an addition immediately following installation, a retrofit, or a seasonal variance is not counted', () => {
     for (const exempt of ['installation', 'retrofit', 'seasonal-variance'] as const) {
-      const r = leakObligations({ appliance: r22('comfort_cooling', 100), events: [add('2027-03-01', 60, { exempt })], asOf: '2027-03-01' });
+      const r = leakObligations({
+        appliance: r22('comfort_cooling', 100),
+        events: [add('2027-03-01', 60, { exempt })],
+        asOf: '2027-03-01',
+      });
       expect(r.leakRate).toBe(0);
       expect(r.obligations).toEqual([]);
     }
   });
 
   it('82.157(b) [P]: the rate is calculated at every counted addition, so a later small one does not undo an earlier one over the threshold', () => {
-    const r = leakObligations({ appliance: r22('comfort_cooling', 100), events: [add('2027-01-01', 1), add('2027-02-01', 12), add('2027-12-01', 0.5)], asOf: '2027-12-01' });
+    const r = leakObligations({
+      appliance: r22('comfort_cooling', 100),
+      events: [add('2027-01-01', 1), add('2027-02-01', 12), add('2027-12-01', 0.5)],
+      asOf: '2027-12-01',
+    });
     expect(r.obligations.map((o) => o.triggeredOn)).toEqual(['2027-02-01']);
     expect(r.openObligation?.state).toBe('overdue');
   });
@@ -162,8 +231,14 @@ describe('the refrigerant ledger (leakObligations) against the rules', () => {
 
   it('82.157(d) [M] / 84.106(d) [S]: 120 days only when an industrial-process shutdown is needed; comfort cooling keeps 30', () => {
     const events = [add('2027-04-01', 40)];
-    expect(leakObligations({ appliance: r22('industrial_process', 100), events, asOf: '2027-04-01', industrialShutdown: true }).obligations[0]?.repairDueDate).toBe('2027-07-30');
-    expect(leakObligations({ appliance: r22('comfort_cooling', 100), events, asOf: '2027-04-01', industrialShutdown: true }).obligations[0]?.repairDueDate).toBe('2027-05-01');
+    expect(
+      leakObligations({ appliance: r22('industrial_process', 100), events, asOf: '2027-04-01', industrialShutdown: true }).obligations[0]
+        ?.repairDueDate,
+    ).toBe('2027-07-30');
+    expect(
+      leakObligations({ appliance: r22('comfort_cooling', 100), events, asOf: '2027-04-01', industrialShutdown: true }).obligations[0]
+        ?.repairDueDate,
+    ).toBe('2027-05-01');
   });
 
   it('82.157(e) [M]: verified after a passed initial and a passed follow-up verification test; a failed one leaves the repair owed (within the original window [M])', () => {
@@ -173,14 +248,26 @@ describe('the refrigerant ledger (leakObligations) against the rules', () => {
       { kind: 'verification', date: '2027-04-20', stage: 'initial', passed: true },
     ];
     const appliance = r22('comfort_cooling', 100);
-    const passed = leakObligations({ appliance, events: [...events, { kind: 'verification', date: '2027-04-28', stage: 'follow-up', passed: true }], asOf: '2027-05-10' });
+    const passed = leakObligations({
+      appliance,
+      events: [...events, { kind: 'verification', date: '2027-04-28', stage: 'follow-up', passed: true }],
+      asOf: '2027-05-10',
+    });
     expect(passed.obligations[0]?.state).toBe('verified');
-    const failed = leakObligations({ appliance, events: [...events, { kind: 'verification', date: '2027-04-28', stage: 'follow-up', passed: false }], asOf: '2027-05-10' });
+    const failed = leakObligations({
+      appliance,
+      events: [...events, { kind: 'verification', date: '2027-04-28', stage: 'follow-up', passed: false }],
+      asOf: '2027-05-10',
+    });
     expect(failed.obligations[0]).toMatchObject({ state: 'overdue', repairDueDate: '2027-05-01', repairedOn: null });
   });
 
   it('82.157(h) [S/M]: a retrofit or retirement plan takes the place of the repair', () => {
-    const r = leakObligations({ appliance: r22('commercial_refrigeration', 100), events: [add('2027-04-01', 40), { kind: 'retrofit-or-retirement-plan', date: '2027-04-25' }], asOf: '2027-06-01' });
+    const r = leakObligations({
+      appliance: r22('commercial_refrigeration', 100),
+      events: [add('2027-04-01', 40), { kind: 'retrofit-or-retirement-plan', date: '2027-04-25' }],
+      asOf: '2027-06-01',
+    });
     expect(r.obligations[0]?.state).toBe('plan');
     expect(r.openObligation).toBeNull();
   });
@@ -200,7 +287,10 @@ describe('the refrigerant ledger (leakObligations) against the rules', () => {
   it('82.157(j) [S] / EPA fact sheet P100PI79 [P]: the chronic-leaker report starts with the 2019 rule — 2018 is never listed', () => {
     const events = [add('2018-03-01', 130), add('2019-03-01', 130)];
     expect(leakObligations({ appliance: r22('comfort_cooling', 100), events, asOf: '2019-12-31' }).chronicYears).toEqual([2019]);
-    expect(leakRepairObligation({ appliance: r22('comfort_cooling', 100), additions: [{ date: '2018-03-01', pounds: 130 }], asOf: '2018-12-31' }).chronic).toBe(false);
+    expect(
+      leakRepairObligation({ appliance: r22('comfort_cooling', 100), additions: [{ date: '2018-03-01', pounds: 130 }], asOf: '2018-12-31' })
+        .chronic,
+    ).toBe(false);
   });
 
   it('84.106(a) [S]: residential and light-commercial air conditioning and heat pumps are excluded from Part 84', () => {

@@ -52,7 +52,10 @@ describe(`saturation vs ${ref.source}`, () => {
           const slope = (saturationPressure(rid, refF + 0.05, { point }) - saturationPressure(rid, refF - 0.05, { point })) / 0.1;
           expect(Math.abs(psig - p.psig) / slope, `${point} pressure at ${refF} °F`).toBeLessThanOrEqual(TOL_F);
           const kpag = saturationPressure(rid, refC, { point, pressureUnit: 'kPag', temperatureUnit: 'C' });
-          const slopeC = (saturationPressure(rid, refC + 0.03, { point, pressureUnit: 'kPag', temperatureUnit: 'C' }) - saturationPressure(rid, refC - 0.03, { point, pressureUnit: 'kPag', temperatureUnit: 'C' })) / 0.06;
+          const slopeC =
+            (saturationPressure(rid, refC + 0.03, { point, pressureUnit: 'kPag', temperatureUnit: 'C' }) -
+              saturationPressure(rid, refC - 0.03, { point, pressureUnit: 'kPag', temperatureUnit: 'C' })) /
+            0.06;
           expect(Math.abs(kpag - p.kPag) / slopeC, `${point} kPag at ${refC} °C`).toBeLessThanOrEqual(TOL_C);
         }
       });

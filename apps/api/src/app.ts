@@ -37,7 +37,9 @@ const fileContentRoutes = new Set(['/api/units/import']);
 function refuseUnstorableText(req: Request, _res: Response, next: NextFunction) {
   if (fileContentRoutes.has(req.originalUrl.split('?')[0]!)) return next();
   if (badText(req.body) || badText(req.query)) {
-    return next(new HttpError(400, 'invalid', 'Text may not contain the NUL character (U+0000) or unpaired surrogates (not valid Unicode).'));
+    return next(
+      new HttpError(400, 'invalid', 'Text may not contain the NUL character (U+0000) or unpaired surrogates (not valid Unicode).'),
+    );
   }
   next();
 }
@@ -124,8 +126,7 @@ function errorHandler(err: unknown, req: Request, res: Response, _next: NextFunc
   if (e?.type === 'entity.too.large' || e?.code === 'LIMIT_FILE_SIZE')
     return send(413, 'too_large', e.code === 'LIMIT_FILE_SIZE' ? 'The file is larger than the limit.' : 'The request body is too large.');
   if (e?.code?.startsWith?.('LIMIT_')) return send(400, 'bad_upload', e.message ?? 'The upload was refused.');
-  if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500)
-    return send(e.status, 'bad_request', e.message ?? 'Bad request.');
+  if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500) return send(e.status, 'bad_request', e.message ?? 'Bad request.');
   // Logged with the request's line (pino-http reads `res.err`), at level error.
   res.err = err instanceof Error ? err : new Error(String(err));
   return send(500, 'internal', 'Something went wrong on the server. The change was not saved; try again.');

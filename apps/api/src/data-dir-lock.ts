@@ -61,7 +61,13 @@ function readHolder(file: string): LockHolder | null {
   try {
     const h = JSON.parse(readFileSync(file, 'utf8')) as Partial<LockHolder>;
     if (typeof h.pid !== 'number' || typeof h.token !== 'string') return null;
-    return { pid: h.pid, host: String(h.host ?? ''), purpose: String(h.purpose ?? 'unknown'), startedAt: String(h.startedAt ?? '?'), token: h.token };
+    return {
+      pid: h.pid,
+      host: String(h.host ?? ''),
+      purpose: String(h.purpose ?? 'unknown'),
+      startedAt: String(h.startedAt ?? '?'),
+      token: h.token,
+    };
   } catch (e) {
     if ((e as NodeJS.ErrnoException).code === 'ENOENT') throw e;
     return null; // unreadable or half-written: treated as stale

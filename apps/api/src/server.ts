@@ -48,7 +48,9 @@ const sink = env.SMTP_URL
       .then(({ startMailSink }) => startMailSink(database.db, storage))
       .catch((e: unknown) => {
         const missing = (e as { code?: string }).code === 'ERR_MODULE_NOT_FOUND';
-        console.error(`Coilpath cannot start: ${missing ? 'the local mail sink is not installed (a production install); set SMTP_URL to your mail relay' : (e as Error).message}.`);
+        console.error(
+          `Coilpath cannot start: ${missing ? 'the local mail sink is not installed (a production install); set SMTP_URL to your mail relay' : (e as Error).message}.`,
+        );
         process.exit(1);
       });
 const mailer = createSmtpMailer(env.SMTP_URL ?? sink!.url, env.MAIL_FROM);
@@ -80,20 +82,32 @@ const ctx: AppContext = {
 };
 
 const setupLink = mode === 'production' ? await issueOwnerSetup(ctx) : null;
-const demoAccounts = mode === 'production' && !setupLink ? await database.db.select().from(appMeta).where(eq(appMeta.key, 'demo_seeded')).limit(1) : [];
+const demoAccounts =
+  mode === 'production' && !setupLink ? await database.db.select().from(appMeta).where(eq(appMeta.key, 'demo_seeded')).limit(1) : [];
 
 const app = createApp(ctx);
 const server = createServer(app);
 server.listen(env.PORT, env.HOST, () => {
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : env.PORT;
-  console.log(`Coilpath is running on http://localhost:${port} (database: ${database.kind}${database.kind === 'pglite' ? `, ${dataDir}` : ''})`);
+  console.log(
+    `Coilpath is running on http://localhost:${port} (database: ${database.kind}${database.kind === 'pglite' ? `, ${dataDir}` : ''})`,
+  );
   console.log(`Stored files: ${filesWhere}`);
   if (clockOverridden) console.log(`Clock: COILPATH_NOW=${env.COILPATH_NOW} (now ${clock.now().toISOString()})`);
   if (seeded) console.log('Demo data loaded.');
-  if (mode === 'demo') console.log(`Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example (and dispatch2@), tech@coilpath.example — password "${DEMO_PASSWORD}"`);
-  if (setupLink) console.log(`No one has an account yet. The first owner sets their name, e-mail and password once at (valid 24 hours; a restart prints a new link):\n  ${setupLink}`);
-  if (demoAccounts.length) console.warn('Warning: this database holds the demo data, whose accounts share a published password. Deactivate them on the Team screen.');
+  if (mode === 'demo')
+    console.log(
+      `Demo sign-ins: owner@coilpath.example, manager@coilpath.example, dispatch@coilpath.example (and dispatch2@), tech@coilpath.example — password "${DEMO_PASSWORD}"`,
+    );
+  if (setupLink)
+    console.log(
+      `No one has an account yet. The first owner sets their name, e-mail and password once at (valid 24 hours; a restart prints a new link):\n  ${setupLink}`,
+    );
+  if (demoAccounts.length)
+    console.warn(
+      'Warning: this database holds the demo data, whose accounts share a published password. Deactivate them on the Team screen.',
+    );
   warmPasswordRules();
   if (sink) console.log(`Mail goes to the local sink (smtp port ${sink.port}); read it at /outbox as the owner.`);
 });

@@ -21,7 +21,13 @@ describe('expandAgreementVisits', () => {
   it('keeps every contracted visit when two land on the same working day: the next free working day', () => {
     // Weekly on Saturday and Sunday over four weeks (2027-03-06 is a Saturday; 8 contracted visits). Common
     // practice, no source: a contracted visit moved off the weekend goes to the next working day.
-    const r = planAgreementVisits({ rrule: 'FREQ=WEEKLY;BYDAY=SA,SU', termStart: '2027-03-01', termEnd: '2027-03-31', timeZone: 'America/Chicago', holidays: [] });
+    const r = planAgreementVisits({
+      rrule: 'FREQ=WEEKLY;BYDAY=SA,SU',
+      termStart: '2027-03-01',
+      termEnd: '2027-03-31',
+      timeZone: 'America/Chicago',
+      holidays: [],
+    });
     expect(r.dropped).toEqual([]);
     expect(r.visits).toHaveLength(8);
     // Sat 6 → Mon 8, Sun 7 → Mon 8 taken → Tue 9; and so on each week.
@@ -35,7 +41,13 @@ describe('expandAgreementVisits', () => {
   it('says why each visit moved: the holiday first (also on a weekend), the weekend, or a day already taken', () => {
     // Daily, Thu 2027-03-18 (a branch holiday) … Tue 23; common practice, no source. Thu 18 → Fri 19 (holiday);
     // Fri 19's own visit finds its day taken → Mon 22 (taken); Sat 20 → Tue 23 (weekend).
-    const r = planAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-18', termEnd: '2027-03-23', timeZone: 'America/Chicago', holidays: ['2027-03-18', '2027-03-20'] });
+    const r = planAgreementVisits({
+      rrule: 'FREQ=DAILY',
+      termStart: '2027-03-18',
+      termEnd: '2027-03-23',
+      timeZone: 'America/Chicago',
+      holidays: ['2027-03-18', '2027-03-20'],
+    });
     const why = Object.fromEntries(r.visits.map((v) => [v.originalDate, [v.date, v.movedBecause]]));
     expect(why['2027-03-18']).toEqual(['2027-03-19', 'holiday']);
     expect(why['2027-03-19']).toEqual(['2027-03-22', 'taken']);
@@ -46,14 +58,28 @@ describe('expandAgreementVisits', () => {
   it('at the end of the term takes the previous free working day, and lists what cannot be placed with the reason', () => {
     // Daily in a term Tue 16 … Sun 21 with Thu 18 a holiday: Tue 16 and Wed 17 stay, Thu 18 → Fri 19 (next free);
     // then Fri 19's own visit, Sat 20 and Sun 21 find no free working day after them, nor before (16, 17, 19 taken).
-    const r = planAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-16', termEnd: '2027-03-21', timeZone: 'America/Chicago', holidays: ['2027-03-18'] });
+    const r = planAgreementVisits({
+      rrule: 'FREQ=DAILY',
+      termStart: '2027-03-16',
+      termEnd: '2027-03-21',
+      timeZone: 'America/Chicago',
+      holidays: ['2027-03-18'],
+    });
     // Daily Tue 16 … Sun 21 = 6 contracted visits; working days Tue 16, Wed 17, Fri 19 = 3 places.
     expect(r.visits.map((v) => v.date)).toEqual(['2027-03-16', '2027-03-17', '2027-03-19']);
     expect(r.dropped.map((d) => d.originalDate)).toEqual(['2027-03-19', '2027-03-20', '2027-03-21']);
     expect(r.dropped[0]!.reason).toMatch(/no free working day/);
     expect(r.visits.length + r.dropped.length).toBe(6);
     // The placed visits only, as before.
-    expect(expandAgreementVisits({ rrule: 'FREQ=DAILY', termStart: '2027-03-16', termEnd: '2027-03-21', timeZone: 'America/Chicago', holidays: ['2027-03-18'] })).toEqual(r.visits);
+    expect(
+      expandAgreementVisits({
+        rrule: 'FREQ=DAILY',
+        termStart: '2027-03-16',
+        termEnd: '2027-03-21',
+        timeZone: 'America/Chicago',
+        holidays: ['2027-03-18'],
+      }),
+    ).toEqual(r.visits);
   });
 
   it('reads a UTC DTSTART in the branch zone and clips to the term', () => {
@@ -97,7 +123,15 @@ describe('levelVisitsAcrossWeeks', () => {
       { maxPerWeek: 1, holidays: ['2027-04-12'] },
     );
     expect(r[1]).toMatchObject({ id: 'b', date: '2027-04-13', moved: true });
-    expect(() => levelVisitsAcrossWeeks([{ id: 'a', date: '2027-04-05' }, { id: 'b', date: '2027-04-05' }], { maxPerWeek: 1, maxShiftWeeks: 0 })).toThrow(RangeError);
+    expect(() =>
+      levelVisitsAcrossWeeks(
+        [
+          { id: 'a', date: '2027-04-05' },
+          { id: 'b', date: '2027-04-05' },
+        ],
+        { maxPerWeek: 1, maxShiftWeeks: 0 },
+      ),
+    ).toThrow(RangeError);
     expect(() => levelVisitsAcrossWeeks([], { maxPerWeek: 0 })).toThrow(RangeError);
   });
 });

@@ -56,7 +56,10 @@ export function recurrenceDates(rrule: string, termStart: IsoDate, termEnd: IsoD
   const last = dayNumber(termEnd, 'termEnd');
   if (last < first) throw new RangeError('termEnd is before termStart');
   if (!Number.isFinite(new TZDate(0, timeZone).getFullYear())) throw new RangeError(`Unknown time zone ${JSON.stringify(timeZone)}`);
-  const lines = rrule.split(/\r?\n/).map((l) => l.trim()).filter(Boolean);
+  const lines = rrule
+    .split(/\r?\n/)
+    .map((l) => l.trim())
+    .filter(Boolean);
   let dtstart = new Date(first * 86_400_000);
   let ruleLine: string | undefined;
   for (const line of lines) {
@@ -139,7 +142,11 @@ export function planAgreementVisits(input: ExpandAgreementInput): AgreementPlan 
       while (n >= first && !free(n)) n--;
     }
     if (n < first) {
-      dropped.push({ originalDate: date, reason: 'no free working day is left in the term for it (every working day up to the end of the term already holds one of its visits)' });
+      dropped.push({
+        originalDate: date,
+        reason:
+          'no free working day is left in the term for it (every working day up to the end of the term already holds one of its visits)',
+      });
       continue;
     }
     used.add(n);
@@ -190,7 +197,9 @@ export function levelVisitsAcrossWeeks(visits: readonly { id: string; date: IsoD
   const weekOf = (n: number) => n - ((dow(n) - weekStartsOn + 7) % 7);
   const working = (n: number) => !holidays.has(n) && !weekend.has(dow(n));
   const counts = new Map<number, number>();
-  const sorted = visits.map((v) => ({ ...v, n: dayNumber(v.date, `visit ${v.id} date`) })).sort((a, b) => a.n - b.n || a.id.localeCompare(b.id));
+  const sorted = visits
+    .map((v) => ({ ...v, n: dayNumber(v.date, `visit ${v.id} date`) }))
+    .sort((a, b) => a.n - b.n || a.id.localeCompare(b.id));
   const out: LeveledVisit[] = [];
   for (const v of sorted) {
     let n = v.n;

@@ -8,7 +8,8 @@ describe('atmosphericPressureAt (ISA / ISO 2533 troposphere)', () => {
   });
 
   it('follows p = 101.325 · (1 − 2.25577e-5 · h)^5.25588 (the formula, recomputed here)', () => {
-    for (const h of [-400, 1, 350, 1609, 4300, 11000]) expect(atmosphericPressureAt(h)).toBeCloseTo(101.325 * (1 - 2.25577e-5 * h) ** 5.25588, 12);
+    for (const h of [-400, 1, 350, 1609, 4300, 11000])
+      expect(atmosphericPressureAt(h)).toBeCloseTo(101.325 * (1 - 2.25577e-5 * h) ** 5.25588, 12);
   });
 
   it('falls about 1.2 kPa per 100 m near sea level (12 Pa/m, from memory) and keeps falling (fast-check)', () => {

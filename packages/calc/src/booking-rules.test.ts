@@ -28,7 +28,9 @@ describe('workOrderDueAt', () => {
   });
   it('leaves out the SLA time of other priorities (a target, not a rule)', () => {
     expect(workOrderDueAt({ priority: 'high', slaDueAt: '2027-03-10T22:00:00Z', latestAt: null })).toBeNull();
-    expect(workOrderDueAt({ priority: 'normal', slaDueAt: '2027-03-10T22:00:00Z', latestAt: '2027-03-12T05:59:00Z' })).toBe('2027-03-12T05:59:00.000Z');
+    expect(workOrderDueAt({ priority: 'normal', slaDueAt: '2027-03-10T22:00:00Z', latestAt: '2027-03-12T05:59:00Z' })).toBe(
+      '2027-03-12T05:59:00.000Z',
+    );
     expect(workOrderDueAt({ slaDueAt: null, latestAt: null })).toBeNull();
   });
 });
@@ -36,15 +38,23 @@ describe('workOrderDueAt', () => {
 describe('the rules', () => {
   it('skill: names the skill the work needs and the ones the technician has', () => {
     const [b] = technicianBreaches(tech({ id: 'a' }), { requiredSkill: 'chiller' });
-    expect(b).toEqual({ rule: 'skill', reason: 'Lacks the skill "chiller"', message: 'Anneke Strand lacks the skill "chiller" this work needs (has "rooftop").' });
+    expect(b).toEqual({
+      rule: 'skill',
+      reason: 'Lacks the skill "chiller"',
+      message: 'Anneke Strand lacks the skill "chiller" this work needs (has "rooftop").',
+    });
     expect(technicianBreaches(tech({ id: 'a', skills: ['chiller'] }), { requiredSkill: 'chiller' })).toEqual([]);
   });
 
   it('certification: the technician’s EPA 608 type must cover the work (Universal covers any)', () => {
     const [b] = technicianBreaches(tech({ id: 'a', epa608: 'I' }), { requiredCertification: 'II' });
     expect(b!.rule).toBe('certification');
-    expect(b!.message).toBe('Anneke Strand is not certified for this refrigerant work (needs EPA 608 Type II; Anneke Strand holds EPA 608 Type I).');
-    expect(technicianBreaches(tech({ id: 'a', epa608: 'none' }), { requiredCertification: 'I' })[0]!.message).toContain('holds no EPA 608 certification');
+    expect(b!.message).toBe(
+      'Anneke Strand is not certified for this refrigerant work (needs EPA 608 Type II; Anneke Strand holds EPA 608 Type I).',
+    );
+    expect(technicianBreaches(tech({ id: 'a', epa608: 'none' }), { requiredCertification: 'I' })[0]!.message).toContain(
+      'holds no EPA 608 certification',
+    );
     expect(technicianBreaches(tech({ id: 'a', epa608: 'universal' }), { requiredCertification: 'III' })).toEqual([]);
     expect(technicianBreaches(tech({ id: 'a', epa608: 'II' }), { requiredCertification: 'universal' })).toHaveLength(1);
   });
@@ -56,7 +66,9 @@ describe('the rules', () => {
     expect(late).toMatchObject({ rule: 'working_hours', reason: 'Outside working hours (07:00–15:30 on 2027-03-10)' });
     expect(late!.message).toBe('Anneke Strand works 07:00–15:30 on Wednesday, March 10; this booking runs 15:00–16:30 (America/Chicago).');
     expect(workingHoursBreach(t, '2027-03-11T04:00:00Z', '2027-03-11T07:00:00Z')!.message).toContain('runs 22:00–01:00 the next day');
-    expect(workingHoursBreach(t, '2027-03-07T15:00:00Z', '2027-03-07T16:00:00Z')!.message).toBe('Anneke Strand does not work on Sunday, March 7.');
+    expect(workingHoursBreach(t, '2027-03-07T15:00:00Z', '2027-03-07T16:00:00Z')!.message).toBe(
+      'Anneke Strand does not work on Sunday, March 7.',
+    );
   });
 
   it('working hours: a branch holiday has no working window, whatever the weekday’s hours say', () => {
@@ -76,7 +88,9 @@ describe('the rules', () => {
     expect(dueTimeBreach(job, '2027-03-10T17:00:00Z', 'America/Chicago')).toBeNull();
     const b = dueTimeBreach(job, '2027-03-10T17:05:00Z', 'America/Chicago');
     expect(b).toMatchObject({ rule: 'due_time', reason: 'Starts after the due time (Wednesday, March 10 at 11:00)' });
-    expect(b!.message).toBe('This work is due by Wednesday, March 10 at 11:00 (America/Chicago); this booking starts Wednesday, March 10 at 11:05, after it.');
+    expect(b!.message).toBe(
+      'This work is due by Wednesday, March 10 at 11:00 (America/Chicago); this booking starts Wednesday, March 10 at 11:05, after it.',
+    );
     expect(dueTimeBreach({ dueAt: null }, '2030-01-01T00:00:00Z', 'America/Chicago')).toBeNull();
   });
 
@@ -120,23 +134,42 @@ describe('suggestions and evening out keep the rules', () => {
     expect(rankTechnicians(job, [tech({ id: 'a' })], full)[0]!.blockedBy).toEqual(['free_time']);
     const windowed = rankTechnicians({ ...job, day: undefined, earliest: '2027-03-10T20:30:00Z' }, [tech({ id: 'a' })], []);
     expect(windowed[0]!.blockedBy).toEqual(['window']);
-    expect(windowed[0]!.reasons[0]).toBe('No free slot of 1 h 30 min on 2027-03-10 between 14:30 and 15:30, the time the job allows (8 h 30 min free)');
+    expect(windowed[0]!.reasons[0]).toBe(
+      'No free slot of 1 h 30 min on 2027-03-10 between 14:30 and 15:30, the time the job allows (8 h 30 min free)',
+    );
     expect(rankTechnicians(job, [tech({ id: 'a', workingHours: {} })], [])[0]!.blockedBy).toEqual(['working_hours']);
   });
 
   it('evenOut places a job only where it starts by its due time, or says the due time stops it', () => {
     const techs = [tech({ id: 'a' })];
     const week = '2027-03-08'; // Monday
-    const r = evenOut({ jobs: [{ ...job, day: undefined, dueAt: '2027-03-08T19:00:00Z' }], techs, bookings: [], week, options: { days: 5 } });
+    const r = evenOut({
+      jobs: [{ ...job, day: undefined, dueAt: '2027-03-08T19:00:00Z' }],
+      techs,
+      bookings: [],
+      week,
+      options: { days: 5 },
+    });
     expect(r.proposals).toHaveLength(1);
     expect(Date.parse(r.proposals[0]!.start)).toBeLessThanOrEqual(Date.parse('2027-03-08T19:00:00Z'));
     const busy: Booking[] = [{ id: 'x', techId: 'a', start: '2027-03-08T13:00:00Z', end: '2027-03-08T20:00:00Z' }];
-    const late = evenOut({ jobs: [{ ...job, day: undefined, dueAt: '2027-03-08T19:00:00Z' }], techs, bookings: busy, week, options: { days: 5 } });
+    const late = evenOut({
+      jobs: [{ ...job, day: undefined, dueAt: '2027-03-08T19:00:00Z' }],
+      techs,
+      bookings: busy,
+      week,
+      options: { days: 5 },
+    });
     expect(late.proposals).toEqual([]);
     expect(late.unplaced[0]!.reason).toBe('Due by 2027-03-08 13:00: no free slot within working hours and capacity starts by then');
     const nobody = evenOut({ jobs: [{ ...job, day: undefined, requiredSkill: 'boiler' }], techs, bookings: [], week });
     expect(nobody.unplaced[0]!.reason).toBe('No technician has the skill "boiler"');
-    const uncertified = evenOut({ jobs: [{ ...job, day: undefined, requiredCertification: 'II' }], techs: [tech({ id: 'b', epa608: 'I' })], bookings: [], week });
+    const uncertified = evenOut({
+      jobs: [{ ...job, day: undefined, requiredCertification: 'II' }],
+      techs: [tech({ id: 'b', epa608: 'I' })],
+      bookings: [],
+      week,
+    });
     expect(uncertified.unplaced[0]!.reason).toBe('No technician holds EPA 608 Type II or Universal');
   });
 });

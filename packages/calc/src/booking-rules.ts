@@ -44,7 +44,11 @@ export interface RuleBreach {
  * earlier of the two. The SLA time of other priorities is a target the dispatcher balances, not a rule.
  * Null when there is none.
  */
-export function workOrderDueAt(w: { priority?: string | null | undefined; slaDueAt?: Instant | null | undefined; latestAt?: Instant | null | undefined }): string | null {
+export function workOrderDueAt(w: {
+  priority?: string | null | undefined;
+  slaDueAt?: Instant | null | undefined;
+  latestAt?: Instant | null | undefined;
+}): string | null {
   const times = [w.latestAt, w.priority === 'emergency' ? w.slaDueAt : null]
     .filter((t): t is Instant => t !== null && t !== undefined)
     .map((t) => instantMs(t, 'due time'));
@@ -94,7 +98,11 @@ export function workingHoursBreach(tech: RuleTechnician, start: Instant, end: In
   if (win && s >= win.start && e <= win.end) return null;
   const dayName = longDay(s, tz);
   if (!win && tech.holidays?.includes(day)) {
-    return { rule: 'working_hours', reason: `Branch holiday on ${day}`, message: `${dayName} is a branch holiday; ${tech.name} is not rostered to work.` };
+    return {
+      rule: 'working_hours',
+      reason: `Branch holiday on ${day}`,
+      message: `${dayName} is a branch holiday; ${tech.name} is not rostered to work.`,
+    };
   }
   if (!win) {
     return { rule: 'working_hours', reason: `Not working on ${day}`, message: `${tech.name} does not work on ${dayName}.` };

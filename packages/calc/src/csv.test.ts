@@ -11,7 +11,13 @@ function readBack(csv: string) {
 
 describe('CSV writer', () => {
   it('writes UTF-8 with a byte-order mark and CRLF after every line, header included', () => {
-    const csv = toCsv(['name', 'note'], [{ name: 'Łukasz Żółć', note: 'line one\nline two' }, { name: 'Nguyễn Thị Hương', note: 'a, "quoted" b' }]);
+    const csv = toCsv(
+      ['name', 'note'],
+      [
+        { name: 'Łukasz Żółć', note: 'line one\nline two' },
+        { name: 'Nguyễn Thị Hương', note: 'a, "quoted" b' },
+      ],
+    );
     const { bytes, text, rows } = readBack(csv);
     expect([...bytes.slice(0, 3)]).toEqual([0xef, 0xbb, 0xbf]);
     expect(text.startsWith(CSV_BOM)).toBe(true);
@@ -28,16 +34,20 @@ describe('CSV writer', () => {
 
   it('neutralises text that a spreadsheet would run as a formula, and only that', () => {
     const nasty = ['=HYPERLINK("http://x.example","y")', '+1+2', '-2+3+cmd', '@SUM(A1)', '\t=1', '\r=1'];
-    const csv = toCsv(['v'], nasty.map((v) => ({ v })));
+    const csv = toCsv(
+      ['v'],
+      nasty.map((v) => ({ v })),
+    );
     const { rows } = readBack(csv);
     expect(rows.slice(1).map((r) => r[0])).toEqual(nasty.map((v) => `'${v}`));
     for (const r of rows.slice(1)) expect(r[0]).toMatch(/^'/);
   });
 
   it('keeps numbers numbers: a negative change still reads -0.02', () => {
-    const csv = toCsv(['change', 'count', 'text_number', 'sci', 'flag', 'empty'], [
-      { change: -0.02, count: 3, text_number: (-0.02).toFixed(2), sci: '-1e-5', flag: true, empty: null },
-    ]);
+    const csv = toCsv(
+      ['change', 'count', 'text_number', 'sci', 'flag', 'empty'],
+      [{ change: -0.02, count: 3, text_number: (-0.02).toFixed(2), sci: '-1e-5', flag: true, empty: null }],
+    );
     const { rows } = readBack(csv);
     expect(rows[1]).toEqual(['-0.02', '3', '-0.02', '-1e-5', 'true', '']);
     expect(csvCellText(Number.NaN)).toBe('');

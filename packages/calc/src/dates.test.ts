@@ -28,7 +28,9 @@ describe('dates', () => {
     expect(daysFrom('2026-03-10', '2026-02-01')).toBe(-37);
   });
   it('agrees with date-fns (a general-purpose date library) on adding and counting days (fast-check)', () => {
-    const day = fc.date({ min: new Date(Date.UTC(1990, 0, 1)), max: new Date(Date.UTC(2100, 11, 31)), noInvalidDate: true }).map((d) => d.toISOString().slice(0, 10));
+    const day = fc
+      .date({ min: new Date(Date.UTC(1990, 0, 1)), max: new Date(Date.UTC(2100, 11, 31)), noInvalidDate: true })
+      .map((d) => d.toISOString().slice(0, 10));
     // date-fns works on local wall dates: read the strings as local noon so the machine's zone cannot shift a day.
     const local = (iso: string) => new Date(`${iso}T12:00:00`);
     fc.assert(

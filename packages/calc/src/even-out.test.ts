@@ -46,7 +46,10 @@ function overlaps(a: { start: string | Date; end: string | Date }, b: { start: s
 }
 
 function checkInvariants(techs: Technician[], jobs: SchedulingJob[], bookings: Booking[], result: ReturnType<typeof evenOut>): void {
-  const all: Booking[] = [...bookings, ...result.proposals.map((p) => ({ id: `p-${p.jobId}`, techId: p.techId, start: p.start, end: p.end }))];
+  const all: Booking[] = [
+    ...bookings,
+    ...result.proposals.map((p) => ({ id: `p-${p.jobId}`, techId: p.techId, start: p.start, end: p.end })),
+  ];
   const before = new Map(days.flatMap((d) => technicianLoad(bookings, techs, d).map((l) => [`${l.techId}|${d}`, l])));
   for (const d of days) {
     for (const l of technicianLoad(all, techs, d)) {
@@ -66,7 +69,14 @@ function checkInvariants(techs: Technician[], jobs: SchedulingJob[], bookings: B
 
 describe('evenOut', () => {
   it('spreads equal jobs across equal technicians', () => {
-    const techs = makeTechs(2, lcg(1)).map((t) => ({ ...t, skills: ['rooftop'], epa608: 'universal' as const, workingHours: { mon: hours }, timeZone: 'America/Chicago', start: { lat: 41.9, lon: -87.7 } }));
+    const techs = makeTechs(2, lcg(1)).map((t) => ({
+      ...t,
+      skills: ['rooftop'],
+      epa608: 'universal' as const,
+      workingHours: { mon: hours },
+      timeZone: 'America/Chicago',
+      start: { lat: 41.9, lon: -87.7 },
+    }));
     const jobs = Array.from({ length: 4 }, (_, i) => ({ id: `j${i}`, durationMinutes: 60, lat: 41.9, lon: -87.7 }));
     const r = evenOut({ jobs, techs, bookings: [], week, options: { days: 1 } });
     expect(r.unplaced).toEqual([]);
@@ -75,9 +85,23 @@ describe('evenOut', () => {
   });
 
   it('never moves a fixed booking and works around it', () => {
-    const techs = makeTechs(1, lcg(2)).map((t) => ({ ...t, workingHours: { mon: hours }, timeZone: 'America/Chicago', start: { lat: 41.9, lon: -87.7 } }));
+    const techs = makeTechs(1, lcg(2)).map((t) => ({
+      ...t,
+      workingHours: { mon: hours },
+      timeZone: 'America/Chicago',
+      start: { lat: 41.9, lon: -87.7 },
+    }));
     const fixed: Booking = { id: 'fx', techId: techs[0]!.id, start: '2027-03-15T13:00:00Z', end: '2027-03-15T20:00:00Z', fixed: true };
-    const r = evenOut({ jobs: [{ id: 'j', durationMinutes: 60, lat: 41.9, lon: -87.7 }, { id: 'k', durationMinutes: 120, lat: 41.9, lon: -87.7 }], techs, bookings: [fixed], week, options: { days: 1 } });
+    const r = evenOut({
+      jobs: [
+        { id: 'j', durationMinutes: 60, lat: 41.9, lon: -87.7 },
+        { id: 'k', durationMinutes: 120, lat: 41.9, lon: -87.7 },
+      ],
+      techs,
+      bookings: [fixed],
+      week,
+      options: { days: 1 },
+    });
     expect(r.proposals).toHaveLength(1);
     expect(r.proposals[0]).toMatchObject({ jobId: 'j', start: '2027-03-15T20:00:00.000Z', end: '2027-03-15T21:00:00.000Z' });
     expect(overlaps(r.proposals[0]!, { start: fixed.start as string, end: fixed.end as string })).toBe(false);
@@ -86,7 +110,12 @@ describe('evenOut', () => {
 
   it('reports jobs no technician can take', () => {
     const techs = makeTechs(2, lcg(3)).map((t) => ({ ...t, skills: ['rooftop'] }));
-    const r = evenOut({ jobs: [{ id: 'c', durationMinutes: 60, requiredSkill: 'boiler', lat: 41.9, lon: -87.7 }], techs, bookings: [], week });
+    const r = evenOut({
+      jobs: [{ id: 'c', durationMinutes: 60, requiredSkill: 'boiler', lat: 41.9, lon: -87.7 }],
+      techs,
+      bookings: [],
+      week,
+    });
     expect(r.unplaced[0]!.jobId).toBe('c');
   });
 
@@ -94,7 +123,9 @@ describe('evenOut', () => {
     const r0 = lcg(42);
     const techs = makeTechs(15, r0);
     const jobs = makeJobs(200, r0);
-    const bookings: Booking[] = techs.slice(0, 5).map((t, i) => ({ id: `b${i}`, techId: t.id, start: '2027-03-16T14:00:00Z', end: '2027-03-16T17:00:00Z', fixed: i % 2 === 0 }));
+    const bookings: Booking[] = techs
+      .slice(0, 5)
+      .map((t, i) => ({ id: `b${i}`, techId: t.id, start: '2027-03-16T14:00:00Z', end: '2027-03-16T17:00:00Z', fixed: i % 2 === 0 }));
     const r = evenOut({ jobs, techs, bookings, week });
     checkInvariants(techs, jobs, bookings, r);
     expect(r.proposals.length).toBeGreaterThan(150);
@@ -102,13 +133,24 @@ describe('evenOut', () => {
 
   it('property: never exceeds capacity, never overlaps, respects skills and certification', () => {
     fc.assert(
-      fc.property(fc.integer({ min: 1, max: 1e6 }), fc.integer({ min: 1, max: 5 }), fc.integer({ min: 0, max: 40 }), (seed, nTechs, nJobs) => {
-        const r0 = lcg(seed);
-        const techs = makeTechs(nTechs, r0);
-        const jobs = makeJobs(nJobs, r0);
-        const bookings: Booking[] = techs.map((t, i) => ({ id: `b${i}`, techId: t.id, start: '2027-03-17T15:00:00Z', end: `2027-03-17T${String(16 + (i % 4)).padStart(2, '0')}:00:00Z`, fixed: true }));
-        checkInvariants(techs, jobs, bookings, evenOut({ jobs, techs, bookings, week }));
-      }),
+      fc.property(
+        fc.integer({ min: 1, max: 1e6 }),
+        fc.integer({ min: 1, max: 5 }),
+        fc.integer({ min: 0, max: 40 }),
+        (seed, nTechs, nJobs) => {
+          const r0 = lcg(seed);
+          const techs = makeTechs(nTechs, r0);
+          const jobs = makeJobs(nJobs, r0);
+          const bookings: Booking[] = techs.map((t, i) => ({
+            id: `b${i}`,
+            techId: t.id,
+            start: '2027-03-17T15:00:00Z',
+            end: `2027-03-17T${String(16 + (i % 4)).padStart(2, '0')}:00:00Z`,
+            fixed: true,
+          }));
+          checkInvariants(techs, jobs, bookings, evenOut({ jobs, techs, bookings, week }));
+        },
+      ),
       { numRuns: 25 },
     );
   });
@@ -160,7 +202,16 @@ function bookedWeek(seed: number, nTechs: number, target: (i: number) => number,
           ...(r() < 0.5 ? { requiredCertification: 'II' as const } : {}),
           ...(r() < 0.25 ? { latest: new Date(win.end + Math.floor(r() * 2) * 86_400_000).toISOString() } : {}),
         };
-        const b: Booking = { id, techId: t.id, jobId: job.id, start: new Date(at).toISOString(), end: new Date(at + len * MIN).toISOString(), lat: job.lat, lon: job.lon, ...(r() < fixedShare ? { fixed: true } : {}) };
+        const b: Booking = {
+          id,
+          techId: t.id,
+          jobId: job.id,
+          start: new Date(at).toISOString(),
+          end: new Date(at + len * MIN).toISOString(),
+          lat: job.lat,
+          lon: job.lon,
+          ...(r() < fixedShare ? { fixed: true } : {}),
+        };
         bookings.push(b);
         movable.push({ booking: b, job });
         at += (len + 30) * MIN;
@@ -180,9 +231,19 @@ function planAfter(bookings: Booking[], result: ReturnType<typeof evenOut>, jobs
   return [
     ...bookings.map((b) => {
       const m = moved.get(b.id);
-      return m ? { ...b, techId: m.to.techId, start: m.to.start, end: m.to.end, kind: 'move' as const } : { ...b, kind: 'booking' as const };
+      return m
+        ? { ...b, techId: m.to.techId, start: m.to.start, end: m.to.end, kind: 'move' as const }
+        : { ...b, kind: 'booking' as const };
     }),
-    ...result.proposals.map((p) => ({ id: `p-${p.jobId}`, jobId: p.jobId, techId: p.techId, start: p.start, end: p.end, ...loc.get(p.jobId), kind: 'proposal' as const })),
+    ...result.proposals.map((p) => ({
+      id: `p-${p.jobId}`,
+      jobId: p.jobId,
+      techId: p.techId,
+      start: p.start,
+      end: p.end,
+      ...loc.get(p.jobId),
+      kind: 'proposal' as const,
+    })),
   ];
 }
 
@@ -191,7 +252,14 @@ function sumSquares(result: ReturnType<typeof evenOut>): number {
 }
 
 /** Every hard rule for every move, and the plan's drive times, capacity and load figures. */
-function checkMoves(techs: Technician[], bookings: Booking[], jobs: SchedulingJob[], movable: MovableBooking[], result: ReturnType<typeof evenOut>, opts: { now?: string; maxMoves?: number; period: string[] }) {
+function checkMoves(
+  techs: Technician[],
+  bookings: Booking[],
+  jobs: SchedulingJob[],
+  movable: MovableBooking[],
+  result: ReturnType<typeof evenOut>,
+  opts: { now?: string; maxMoves?: number; period: string[] },
+) {
   const byBooking = new Map(movable.map((m) => [m.booking.id, m]));
   const techOf = new Map(techs.map((t) => [t.id, t]));
   expect(result.moves.length).toBeLessThanOrEqual(opts.maxMoves ?? 20);
@@ -206,7 +274,11 @@ function checkMoves(techs: Technician[], bookings: Booking[], jobs: SchedulingJo
     expect(booking.started).not.toBe(true);
     if (opts.now) expect(ms(booking.start)).toBeGreaterThan(ms(opts.now));
     // From where it stands, to the same length.
-    expect(m.from).toMatchObject({ techId: booking.techId, start: new Date(booking.start).toISOString(), end: new Date(booking.end).toISOString() });
+    expect(m.from).toMatchObject({
+      techId: booking.techId,
+      start: new Date(booking.start).toISOString(),
+      end: new Date(booking.end).toISOString(),
+    });
     expect(ms(m.to.end) - ms(m.to.start)).toBe(ms(booking.end) - ms(booking.start));
     expect(m.to.techId !== m.from.techId || m.to.day !== m.from.day).toBe(true);
     // Skill, certification, the period, inside working hours, not before it may start, never after it is due.
@@ -229,7 +301,8 @@ function checkMoves(techs: Technician[], bookings: Booking[], jobs: SchedulingJo
     const mine = plan.filter((b) => b.techId === t.id).sort((a, b) => ms(a.start) - ms(b.start));
     for (let i = 0; i < mine.length; i++) {
       const x = mine[i]!;
-      for (let k = i + 1; k < mine.length; k++) if (x.kind !== 'booking' || mine[k]!.kind !== 'booking') expect(overlaps(x, mine[k]!)).toBe(false);
+      for (let k = i + 1; k < mine.length; k++)
+        if (x.kind !== 'booking' || mine[k]!.kind !== 'booking') expect(overlaps(x, mine[k]!)).toBe(false);
       if (x.kind === 'booking') continue;
       const win = workingWindow(t, zonedDate(new Date(x.start), t.timeZone))!;
       const earlier = mine.slice(0, i).filter((b) => ms(b.end) > win.start && ms(b.start) < win.end);
@@ -238,16 +311,22 @@ function checkMoves(techs: Technician[], bookings: Booking[], jobs: SchedulingJo
       const prevEnd = prev ? Math.max(...earlier.map((b) => ms(b.end))) : win.start;
       expect(ms(x.start)).toBeGreaterThanOrEqual(prevEnd + driveMinutes(from, { lat: x.lat!, lon: x.lon! }) * MIN - 1e-3);
       const next = mine[i + 1];
-      if (next && ms(next.start) < win.end && next.lat !== undefined) expect(ms(x.end) + driveMinutes({ lat: x.lat!, lon: x.lon! }, { lat: next.lat, lon: next.lon! }) * MIN).toBeLessThanOrEqual(ms(next.start) + 1e-3);
+      if (next && ms(next.start) < win.end && next.lat !== undefined)
+        expect(ms(x.end) + driveMinutes({ lat: x.lat!, lon: x.lon! }, { lat: next.lat, lon: next.lon! }) * MIN).toBeLessThanOrEqual(
+          ms(next.start) + 1e-3,
+        );
     }
   }
-  const arrived = new Set(plan.filter((b) => b.kind !== 'booking').map((b) => `${b.techId}|${zonedDate(new Date(b.start), techOf.get(b.techId)!.timeZone)}`));
+  const arrived = new Set(
+    plan.filter((b) => b.kind !== 'booking').map((b) => `${b.techId}|${zonedDate(new Date(b.start), techOf.get(b.techId)!.timeZone)}`),
+  );
   const reported = new Map(result.load.map((l) => [`${l.techId}|${l.day}`, l]));
   for (const d of opts.period) {
     for (const l of technicianLoad(plan, techs, d)) {
       const key = `${l.techId}|${d}`;
       expect(reported.get(key)!.bookedMinutes).toBeCloseTo(l.bookedMinutes, 6); // the reported load is the plan's
-      if (arrived.has(key) || l.bookedMinutes > before.get(key)!.bookedMinutes) expect(l.bookedMinutes).toBeLessThanOrEqual(l.capacityMinutes);
+      if (arrived.has(key) || l.bookedMinutes > before.get(key)!.bookedMinutes)
+        expect(l.bookedMinutes).toBeLessThanOrEqual(l.capacityMinutes);
     }
   }
 }
@@ -268,10 +347,12 @@ function checkMoves(techs: Technician[], bookings: Booking[], jobs: SchedulingJo
  */
 function spreadLowerBound(techs: Technician[], bookings: Booking[], movable: MovableBooking[], period: string[], now: string, g: number) {
   const nowMs = ms(now);
-  const cells = techs.flatMap((t) => period.flatMap((d) => {
-    const win = workingWindow(t, d);
-    return win ? [{ t, d, win, C: (win.end - win.start) / MIN, L: 0, extra: 0 }] : [];
-  }));
+  const cells = techs.flatMap((t) =>
+    period.flatMap((d) => {
+      const win = workingWindow(t, d);
+      return win ? [{ t, d, win, C: (win.end - win.start) / MIN, L: 0, extra: 0 }] : [];
+    }),
+  );
   const zoneOf = new Map(techs.map((t) => [t.id, t.timeZone]));
   const cellAt = (techId: string, at: number) => {
     const d = zonedDate(new Date(at), zoneOf.get(techId)!);
@@ -319,13 +400,33 @@ function spreadLowerBound(techs: Technician[], bookings: Booking[], movable: Mov
 describe('evenOut moving booked jobs', () => {
   const tue = '2027-03-16';
   const twoTechs = (): Technician[] =>
-    ['a', 'b'].map((id) => ({ id, name: id, skills: ['rooftop'], epa608: 'universal' as const, workingHours: { mon: hours, tue: hours }, timeZone: 'America/Chicago', start: { lat: 41.9, lon: -87.7 } }));
+    ['a', 'b'].map((id) => ({
+      id,
+      name: id,
+      skills: ['rooftop'],
+      epa608: 'universal' as const,
+      workingHours: { mon: hours, tue: hours },
+      timeZone: 'America/Chicago',
+      start: { lat: 41.9, lon: -87.7 },
+    }));
   /** Three 2 h jobs booked on a's Tuesday (09:00, 11:30 and 14:00 Chicago). */
   const crowded = (job: Partial<SchedulingJob> = {}, booking: Partial<Booking> = {}): MovableBooking[] =>
     ['09:00', '11:30', '14:00'].map((hm, i) => {
       const start = `${tue}T${hm}:00-05:00`;
       const j: SchedulingJob = { id: `w${i}`, durationMinutes: 120, lat: 41.9, lon: -87.7, ...job };
-      return { job: j, booking: { id: `b${i}`, techId: 'a', jobId: j.id, start, end: new Date(ms(start) + 120 * MIN).toISOString(), lat: 41.9, lon: -87.7, ...booking } };
+      return {
+        job: j,
+        booking: {
+          id: `b${i}`,
+          techId: 'a',
+          jobId: j.id,
+          start,
+          end: new Date(ms(start) + 120 * MIN).toISOString(),
+          lat: 41.9,
+          lon: -87.7,
+          ...booking,
+        },
+      };
     });
 
   it('moves booked work from a crowded day to a free one, lowering the spread', () => {
@@ -346,7 +447,14 @@ describe('evenOut moving booked jobs', () => {
     // b is busy until 09:30, so a 2 h job moved there ends 11:30 at the earliest.
     const blocker: Booking = { id: 'x', techId: 'b', start: `${tue}T08:00:00-05:00`, end: `${tue}T09:30:00-05:00`, fixed: true };
     const run = (movable: MovableBooking[], opts: { now?: string } = {}, ts: Technician[] = techs) =>
-      evenOut({ jobs: [], techs: ts, bookings: [...movable.map((m) => m.booking), blocker], movable, week: tue, options: { days: 1, ...opts } });
+      evenOut({
+        jobs: [],
+        techs: ts,
+        bookings: [...movable.map((m) => m.booking), blocker],
+        movable,
+        week: tue,
+        options: { days: 1, ...opts },
+      });
     // Without a restriction the work moves (360 / 90 min → 240 / 210).
     const control = run(crowded());
     expect(control.moves.length).toBeGreaterThan(0);
@@ -374,10 +482,28 @@ describe('evenOut moving booked jobs', () => {
     const movable: MovableBooking[] = ['08:00', '14:00'].map((hm, i) => {
       const start = `${tue}T${hm}:00-05:00`;
       const job: SchedulingJob = { id: `w${i}`, durationMinutes: 360, lat: 41.9, lon: -87.7 };
-      return { job, booking: { id: `b${i}`, techId: 'a', jobId: job.id, start, end: new Date(ms(start) + 360 * MIN).toISOString(), lat: 41.9, lon: -87.7 } };
+      return {
+        job,
+        booking: {
+          id: `b${i}`,
+          techId: 'a',
+          jobId: job.id,
+          start,
+          end: new Date(ms(start) + 360 * MIN).toISOString(),
+          lat: 41.9,
+          lon: -87.7,
+        },
+      };
     });
-    const evening = (hours: number): Booking => ({ id: 'e', techId: 'b', start: `${tue}T16:00:00-05:00`, end: `${tue}T${16 + hours}:00:00-05:00`, fixed: true });
-    const run = (h: number) => evenOut({ jobs: [], techs, bookings: [...movable.map((m) => m.booking), evening(h)], movable, week: tue, options: { days: 1 } });
+    const evening = (hours: number): Booking => ({
+      id: 'e',
+      techId: 'b',
+      start: `${tue}T16:00:00-05:00`,
+      end: `${tue}T${16 + hours}:00:00-05:00`,
+      fixed: true,
+    });
+    const run = (h: number) =>
+      evenOut({ jobs: [], techs, bookings: [...movable.map((m) => m.booking), evening(h)], movable, week: tue, options: { days: 1 } });
     // 1 h after hours: a 6 h job fits (420 of 480 min).
     expect(run(1).moves).toHaveLength(1);
     // 4 h after hours: it would make 600 of 480 min, though 720/240 → 360/600 lowers the sum of squares.
@@ -407,7 +533,9 @@ describe('evenOut moving booked jobs', () => {
   it('refuses a movable list that contradicts itself', () => {
     const techs = twoTechs();
     const movable = crowded();
-    expect(() => evenOut({ jobs: [{ id: 'w0', durationMinutes: 60, lat: 41.9, lon: -87.7 }], techs, bookings: [], movable, week: tue })).toThrow(RangeError);
+    expect(() =>
+      evenOut({ jobs: [{ id: 'w0', durationMinutes: 60, lat: 41.9, lon: -87.7 }], techs, bookings: [], movable, week: tue }),
+    ).toThrow(RangeError);
     expect(() => evenOut({ jobs: [], techs, bookings: [{ ...movable[0]!.booking, techId: 'b' }], movable, week: tue })).toThrow(RangeError);
     expect(() => evenOut({ jobs: [], techs, bookings: [], movable: [movable[0]!, movable[0]!], week: tue })).toThrow(RangeError);
     expect(() => evenOut({ jobs: [], techs, bookings: [], movable, week: tue, options: { maxMoves: -1 } })).toThrow(RangeError);
@@ -416,7 +544,9 @@ describe('evenOut moving booked jobs', () => {
     const twoVisits = movable.map((m) => ({ ...m, job: movable[0]!.job, booking: { ...m.booking, jobId: movable[0]!.job.id } }));
     expect(evenOut({ jobs: [], techs, bookings: [], movable: twoVisits, week: tue, options: { days: 1 } }).moves).toHaveLength(1);
     // The booking may come only through `movable`: it counts once either way.
-    expect(evenOut({ jobs: [], techs, bookings: [], movable, week: tue, options: { days: 1 } })).toEqual(evenOut({ jobs: [], techs, bookings: movable.map((m) => m.booking), movable, week: tue, options: { days: 1 } }));
+    expect(evenOut({ jobs: [], techs, bookings: [], movable, week: tue, options: { days: 1 } })).toEqual(
+      evenOut({ jobs: [], techs, bookings: movable.map((m) => m.booking), movable, week: tue, options: { days: 1 } }),
+    );
   });
 
   it('property: every move keeps skill, certification, due time, working hours, capacity, no overlap; moves only when the load evens out', () => {

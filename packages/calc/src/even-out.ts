@@ -189,7 +189,15 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
       const bounds = localDayBounds(day, tech.timeZone);
       let booked = 0;
       for (const b of iv) booked += Math.max(0, Math.min(b.end, bounds.end) - Math.max(b.start, bounds.start)) / MINUTE;
-      cells.push({ tech, day, capacity: win ? (win.end - win.start) / MINUTE : 0, booked, dayStart: bounds.start, dayEnd: bounds.end, win });
+      cells.push({
+        tech,
+        day,
+        capacity: win ? (win.end - win.start) / MINUTE : 0,
+        booked,
+        dayStart: bounds.start,
+        dayEnd: bounds.end,
+        win,
+      });
     }
   }
 
@@ -208,7 +216,8 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
       if (c.booked + job.durationMinutes > c.capacity + 1e-9) continue;
       const slot = findSlot(c.tech, c.day, job, busy.get(c.tech.id) ?? [], opts, c.win);
       if (!slot) continue;
-      const cost = ratio2(c.booked + job.durationMinutes, c.capacity) - ratio2(c.booked, c.capacity) + (travelWeight * slot.detourMinutes) / 480;
+      const cost =
+        ratio2(c.booked + job.durationMinutes, c.capacity) - ratio2(c.booked, c.capacity) + (travelWeight * slot.detourMinutes) / 480;
       if (!best || cost < best.cost - 1e-12) best = { cell: c, slot, cost };
     }
     return best;
@@ -242,7 +251,8 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
   for (const j of input.jobs) {
     if (seen.has(j.id)) throw new RangeError(`duplicate job id ${JSON.stringify(j.id)}`);
     seen.add(j.id);
-    if (!(j.durationMinutes > 0) || !Number.isFinite(j.durationMinutes)) throw new RangeError(`job ${j.id}: durationMinutes must be a finite number greater than 0`);
+    if (!(j.durationMinutes > 0) || !Number.isFinite(j.durationMinutes))
+      throw new RangeError(`job ${j.id}: durationMinutes must be a finite number greater than 0`);
   }
   const spreadBefore = spreadOf(cells);
   const cands = new Map(input.jobs.map((j) => [j.id, candidatesFor(j)]));
@@ -272,7 +282,14 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
       });
       continue;
     }
-    const p: Placed = { job, cell: best.cell, start: best.slot.start, end: best.slot.end, travel: best.slot.travelMinutes, detour: best.slot.detourMinutes };
+    const p: Placed = {
+      job,
+      cell: best.cell,
+      start: best.slot.start,
+      end: best.slot.end,
+      travel: best.slot.travelMinutes,
+      detour: best.slot.detourMinutes,
+    };
     addBusy(p);
     placed.set(job.id, p);
   }
@@ -286,12 +303,21 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
       removeBusy(p);
       const keepSlot = findSlot(p.cell.tech, p.cell.day, job, busy.get(p.cell.tech.id) ?? [], opts, p.cell.win);
       const keepCost = keepSlot
-        ? ratio2(p.cell.booked + job.durationMinutes, p.cell.capacity) - ratio2(p.cell.booked, p.cell.capacity) + (travelWeight * keepSlot.detourMinutes) / 480
+        ? ratio2(p.cell.booked + job.durationMinutes, p.cell.capacity) -
+          ratio2(p.cell.booked, p.cell.capacity) +
+          (travelWeight * keepSlot.detourMinutes) / 480
         : Infinity;
       const best = place(job, cands.get(job.id) ?? []);
       let next: Placed = p;
       if (best && best.cost < keepCost - 1e-9) {
-        next = { job, cell: best.cell, start: best.slot.start, end: best.slot.end, travel: best.slot.travelMinutes, detour: best.slot.detourMinutes };
+        next = {
+          job,
+          cell: best.cell,
+          start: best.slot.start,
+          end: best.slot.end,
+          travel: best.slot.travelMinutes,
+          detour: best.slot.detourMinutes,
+        };
         moved = true;
       } else if (keepSlot) {
         next = { ...p, start: keepSlot.start, end: keepSlot.end, travel: keepSlot.travelMinutes, detour: keepSlot.detourMinutes };
@@ -416,7 +442,14 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
       if (k < 0 || (cands.get(job.id) ?? []).length === 0) continue;
       const best = place(job, cands.get(job.id) ?? []);
       if (!best) continue;
-      const p: Placed = { job, cell: best.cell, start: best.slot.start, end: best.slot.end, travel: best.slot.travelMinutes, detour: best.slot.detourMinutes };
+      const p: Placed = {
+        job,
+        cell: best.cell,
+        start: best.slot.start,
+        end: best.slot.end,
+        travel: best.slot.travelMinutes,
+        detour: best.slot.detourMinutes,
+      };
       addBusy(p);
       placed.set(job.id, p);
       unplaced.splice(k, 1);
@@ -430,8 +463,19 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
     moves.push({
       bookingId: m.bookingId,
       jobId: m.job.id,
-      from: { techId: m.home.tech.id, day: m.home.day, start: new Date(m.homeItem.start).toISOString(), end: new Date(m.homeItem.end).toISOString() },
-      to: { techId: m.cell.tech.id, day: zonedDate(new Date(m.item.start), tz), start: new Date(m.item.start).toISOString(), end: new Date(m.item.end).toISOString(), travelMinutes: travel },
+      from: {
+        techId: m.home.tech.id,
+        day: m.home.day,
+        start: new Date(m.homeItem.start).toISOString(),
+        end: new Date(m.homeItem.end).toISOString(),
+      },
+      to: {
+        techId: m.cell.tech.id,
+        day: zonedDate(new Date(m.item.start), tz),
+        start: new Date(m.item.start).toISOString(),
+        end: new Date(m.item.end).toISOString(),
+        travelMinutes: travel,
+      },
     });
   }
 
@@ -454,7 +498,13 @@ export function evenOut(input: EvenOutInput): EvenOutResult {
     proposals,
     moves,
     unplaced,
-    load: cells.map((c) => ({ techId: c.tech.id, day: c.day, bookedMinutes: c.booked, capacityMinutes: c.capacity, ratio: c.capacity > 0 ? c.booked / c.capacity : null })),
+    load: cells.map((c) => ({
+      techId: c.tech.id,
+      day: c.day,
+      bookedMinutes: c.booked,
+      capacityMinutes: c.capacity,
+      ratio: c.capacity > 0 ? c.booked / c.capacity : null,
+    })),
     spread: spreadOf(cells),
     spreadBefore,
     spreadWithoutMoves,
@@ -488,7 +538,11 @@ function travelFromPrevious(cell: Cell, item: BusyItem, list: readonly BusyItem[
 }
 
 /** The bookings with the movable ones added (once), after checking the movable list. */
-function movableBookings(bookings: readonly Booking[], movable: readonly MovableBooking[], jobs: readonly SchedulingJob[]): readonly Booking[] {
+function movableBookings(
+  bookings: readonly Booking[],
+  movable: readonly MovableBooking[],
+  jobs: readonly SchedulingJob[],
+): readonly Booking[] {
   if (movable.length === 0) return bookings;
   const byId = new Map(bookings.map((b) => [b.id, b]));
   const unplacedIds = new Set(jobs.map((j) => j.id));
@@ -498,7 +552,8 @@ function movableBookings(bookings: readonly Booking[], movable: readonly Movable
     if (seen.has(b.id)) throw new RangeError(`booking ${JSON.stringify(b.id)} is movable twice`);
     seen.add(b.id);
     if (unplacedIds.has(job.id)) throw new RangeError(`job ${JSON.stringify(job.id)} is both unplaced and booked`);
-    if (b.jobId !== undefined && b.jobId !== job.id) throw new RangeError(`booking ${JSON.stringify(b.id)} is for job ${JSON.stringify(b.jobId)}, not ${JSON.stringify(job.id)}`);
+    if (b.jobId !== undefined && b.jobId !== job.id)
+      throw new RangeError(`booking ${JSON.stringify(b.id)} is for job ${JSON.stringify(b.jobId)}, not ${JSON.stringify(job.id)}`);
     const same = byId.get(b.id);
     if (!same) {
       extra.push(b);

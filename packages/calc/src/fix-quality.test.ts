@@ -39,13 +39,21 @@ describe('fixQuality', () => {
       // closed 03-01 15:00 → window ends 03-31 15:00, long past: mature, fixed the first time
       job({ id: 'old' }),
       // closed 03-11 11:59:59 → window ends 04-10 11:59:59, one second before now: mature, with a callback
-      job({ id: 'edge-mature', firstVisitClosedAt: '2027-03-11T11:59:59Z', followUps: [{ kind: 'callback', openedAt: '2027-03-20T08:00:00Z' }] }),
+      job({
+        id: 'edge-mature',
+        firstVisitClosedAt: '2027-03-11T11:59:59Z',
+        followUps: [{ kind: 'callback', openedAt: '2027-03-20T08:00:00Z' }],
+      }),
       // closed 03-11 12:00 → window ends exactly now: a callback opened this instant would still count: pending
       job({ id: 'edge-pending', firstVisitClosedAt: '2027-03-11T12:00:00Z' }),
       // closed 04-01 (day 9 of its window) resolved: pending although nothing came back yet
       job({ id: 'young', firstVisitClosedAt: '2027-04-01T10:00:00Z' }),
       // closed 04-02 and already called back: still pending (its figures wait for the window)
-      job({ id: 'young-cb', firstVisitClosedAt: '2027-04-02T10:00:00Z', followUps: [{ kind: 'callback', openedAt: '2027-04-05T10:00:00Z' }] }),
+      job({
+        id: 'young-cb',
+        firstVisitClosedAt: '2027-04-02T10:00:00Z',
+        followUps: [{ kind: 'callback', openedAt: '2027-04-05T10:00:00Z' }],
+      }),
       // declined: neither eligible nor pending
       job({ id: 'declined', firstVisitOutcome: 'declined', firstVisitClosedAt: '2027-04-03T10:00:00Z' }),
     ];
@@ -65,8 +73,16 @@ describe('fixQuality', () => {
   });
 
   it('includes a follow-up opened exactly windowDays later and excludes one a millisecond after', () => {
-    const at = job({ id: 'x', firstVisitClosedAt: '2027-03-01T00:00:00.000Z', followUps: [{ kind: 'callback', openedAt: '2027-03-31T00:00:00.000Z' }] });
-    const after = job({ id: 'y', firstVisitClosedAt: '2027-03-01T00:00:00.000Z', followUps: [{ kind: 'callback', openedAt: '2027-03-31T00:00:00.001Z' }] });
+    const at = job({
+      id: 'x',
+      firstVisitClosedAt: '2027-03-01T00:00:00.000Z',
+      followUps: [{ kind: 'callback', openedAt: '2027-03-31T00:00:00.000Z' }],
+    });
+    const after = job({
+      id: 'y',
+      firstVisitClosedAt: '2027-03-01T00:00:00.000Z',
+      followUps: [{ kind: 'callback', openedAt: '2027-03-31T00:00:00.001Z' }],
+    });
     expect(fixQuality([at]).callbacks).toBe(1);
     expect(fixQuality([after]).callbacks).toBe(0);
     expect(fixQuality([after], { windowDays: 31 }).callbacks).toBe(1);

@@ -92,7 +92,9 @@ export function fixQuality(jobs: readonly FixQualityJob[], opts: FixQualityOptio
 }
 
 /** The counts behind {@link FixQualityResult}, e.g. as a database aggregates them job by job (`pending` 0 when left out). */
-export type FixQualityCounts = Pick<FixQualityResult, 'eligible' | 'firstTimeFixed' | 'callbacks' | 'resolvedFirstVisits'> & { pending?: number };
+export type FixQualityCounts = Pick<FixQualityResult, 'eligible' | 'firstTimeFixed' | 'callbacks' | 'resolvedFirstVisits'> & {
+  pending?: number;
+};
 
 /**
  * The rates of {@link fixQuality} from counts made elsewhere with the same per-job definitions (eligible:

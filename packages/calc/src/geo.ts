@@ -17,8 +17,10 @@ export type DistanceUnit = 'mi' | 'km';
 
 export function assertLatLon(p: LatLon, what = 'point'): void {
   const { lat, lon } = p ?? ({} as LatLon);
-  if (typeof lat !== 'number' || !Number.isFinite(lat) || lat < -90 || lat > 90) throw new RangeError(`${what}.lat must be a number from -90 to 90`);
-  if (typeof lon !== 'number' || !Number.isFinite(lon) || lon < -180 || lon > 180) throw new RangeError(`${what}.lon must be a number from -180 to 180`);
+  if (typeof lat !== 'number' || !Number.isFinite(lat) || lat < -90 || lat > 90)
+    throw new RangeError(`${what}.lat must be a number from -90 to 90`);
+  if (typeof lon !== 'number' || !Number.isFinite(lon) || lon < -180 || lon > 180)
+    throw new RangeError(`${what}.lon must be a number from -180 to 180`);
 }
 
 function haversineKm(a: LatLon, b: LatLon): number {
@@ -48,8 +50,10 @@ export interface DriveOptions {
 export function resolveDrive(opts: DriveOptions = {}): { speedMph: number; roadFactor: number } {
   const speedMph = opts.speedMph ?? DEFAULT_SPEED_MPH;
   const roadFactor = opts.roadFactor ?? DEFAULT_ROAD_FACTOR;
-  if (typeof speedMph !== 'number' || !Number.isFinite(speedMph) || speedMph <= 0) throw new RangeError('speedMph must be a number greater than 0');
-  if (typeof roadFactor !== 'number' || !Number.isFinite(roadFactor) || roadFactor < 1) throw new RangeError('roadFactor must be a number of 1 or more');
+  if (typeof speedMph !== 'number' || !Number.isFinite(speedMph) || speedMph <= 0)
+    throw new RangeError('speedMph must be a number greater than 0');
+  if (typeof roadFactor !== 'number' || !Number.isFinite(roadFactor) || roadFactor < 1)
+    throw new RangeError('roadFactor must be a number of 1 or more');
   return { speedMph, roadFactor };
 }
 

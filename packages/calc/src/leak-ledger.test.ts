@@ -13,9 +13,18 @@ import type { Appliance } from './leak-rules';
 
 const r22 = (category: Appliance['category'], fullCharge = 100): Appliance => ({ category, fullCharge, refrigerant: 'R-22' });
 const comfort = r22('comfort_cooling');
-const add = (date: string, pounds: number, extra: { leakId?: string; exempt?: 'installation' | 'retrofit' | 'seasonal-variance' } = {}): LedgerEvent => ({ kind: 'addition', date, pounds, ...extra });
+const add = (
+  date: string,
+  pounds: number,
+  extra: { leakId?: string; exempt?: 'installation' | 'retrofit' | 'seasonal-variance' } = {},
+): LedgerEvent => ({ kind: 'addition', date, pounds, ...extra });
 const repair = (date: string): LedgerEvent => ({ kind: 'repair', date });
-const test = (date: string, stage: 'initial' | 'follow-up', passed: boolean): LedgerEvent => ({ kind: 'verification', date, stage, passed });
+const test = (date: string, stage: 'initial' | 'follow-up', passed: boolean): LedgerEvent => ({
+  kind: 'verification',
+  date,
+  stage,
+  passed,
+});
 const plan = (date: string): LedgerEvent => ({ kind: 'retrofit-or-retirement-plan', date });
 
 describe('leakObligations — a small addition after a big one', () => {
@@ -33,7 +42,10 @@ describe('leakObligations — a small addition after a big one', () => {
     expect(r.obligations[0]!.leakRate).toBeCloseTo((20 / 100) * (365 / 90) * 100, 10);
     expect(r.openObligation).toEqual(r.obligations[0]);
     // leakRepairObligation answers for the latest addition only, as it always did.
-    expect(leakRepairObligation({ appliance: comfort, additions: events.map((e) => e as { date: string; pounds: number }), asOf: '2027-12-01' }).exceeds).toBe(false);
+    expect(
+      leakRepairObligation({ appliance: comfort, additions: events.map((e) => e as { date: string; pounds: number }), asOf: '2027-12-01' })
+        .exceeds,
+    ).toBe(false);
   });
 
   it('is open up to and including its due date, overdue the day after', () => {
@@ -70,7 +82,12 @@ describe('leakObligations — one leak topped off over several days (leakId)', (
   });
 
   it('another leak between the first and last top-off is neither summed nor the start of the interval', () => {
-    const events = [...base, add('2027-04-01', 5, { leakId: 'A' }), add('2027-04-10', 3, { leakId: 'B' }), add('2027-04-20', 2, { leakId: 'A' })];
+    const events = [
+      ...base,
+      add('2027-04-01', 5, { leakId: 'A' }),
+      add('2027-04-10', 3, { leakId: 'B' }),
+      add('2027-04-20', 2, { leakId: 'A' }),
+    ];
     const r = leakObligations({ appliance: comfort, events, asOf: '2027-04-20' });
     expect(r.leakRate).toBeCloseTo((7 / 100) * (365 / 109) * 100, 10); // 2027-01-01 → 2027-04-20
   });
@@ -86,7 +103,11 @@ describe('leakObligations — one leak topped off over several days (leakId)', (
     ];
     const same = leakObligations({ appliance: comfort, events, asOf: '2027-04-13' });
     expect(same.obligations.map((o) => o.state)).toEqual(['verified']);
-    const other = leakObligations({ appliance: comfort, events: [...events.slice(0, -1), add('2027-04-13', 4, { leakId: 'B' })], asOf: '2027-04-13' });
+    const other = leakObligations({
+      appliance: comfort,
+      events: [...events.slice(0, -1), add('2027-04-13', 4, { leakId: 'B' })],
+      asOf: '2027-04-13',
+    });
     expect(other.obligations.map((o) => [o.triggeredOn, o.state])).toEqual([
       ['2027-04-01', 'verified'],
       ['2027-04-13', 'open'],
@@ -103,7 +124,9 @@ describe('leakObligations — exact comparison at the threshold', () => {
     expect(r.thresholdPercent).toBe(30);
     expect(r.leakRate).toBe(30);
     expect(r.obligations).toEqual([]);
-    expect(leakRepairObligation({ appliance: ipr, additions: [{ date: '2027-06-01', pounds: 21.6 }], asOf: '2027-06-01' }).exceeds).toBe(false);
+    expect(leakRepairObligation({ appliance: ipr, additions: [{ date: '2027-06-01', pounds: 21.6 }], asOf: '2027-06-01' }).exceeds).toBe(
+      false,
+    );
   });
 
   it('one ten-thousandth of a pound more is over', () => {
@@ -148,12 +171,21 @@ describe('leakObligations — repair window', () => {
     for (const category of ['comfort_cooling', 'commercial_refrigeration', 'other'] as const) {
       const r = leakObligations({ appliance: r22(category), events: big, asOf: '2027-04-01', industrialShutdown: true });
       expect(r.obligations[0]?.repairDueDate, category).toBe('2027-05-01');
-      expect(leakRepairObligation({ appliance: r22(category), additions: [{ date: '2027-04-01', pounds: 40 }], asOf: '2027-04-01', industrialShutdown: true }).repairDueDate).toBe('2027-05-01');
+      expect(
+        leakRepairObligation({
+          appliance: r22(category),
+          additions: [{ date: '2027-04-01', pounds: 40 }],
+          asOf: '2027-04-01',
+          industrialShutdown: true,
+        }).repairDueDate,
+      ).toBe('2027-05-01');
     }
   });
 
   it('30 days for industrial-process refrigeration without a shutdown', () => {
-    expect(leakObligations({ appliance: r22('industrial_process'), events: big, asOf: '2027-04-01' }).obligations[0]?.repairDueDate).toBe('2027-05-01');
+    expect(leakObligations({ appliance: r22('industrial_process'), events: big, asOf: '2027-04-01' }).obligations[0]?.repairDueDate).toBe(
+      '2027-05-01',
+    );
   });
 });
 
@@ -168,13 +200,16 @@ describe('leakObligations — exempt additions', () => {
     expect(r.obligations).toHaveLength(1);
   });
 
-  it.each(['installation', 'retrofit', 'seasonal-variance'] as const)('%s: not counted by the rolling average or the chronic-leaker sum', (exempt) => {
-    const events = [add('2027-03-01', 130, { exempt }), add('2027-06-01', 5)];
-    const r = leakObligations({ appliance: comfort, events, asOf: '2027-12-31', method: 'rolling-average' });
-    expect(r.leakRate).toBeCloseTo(5, 10);
-    expect(r.chronicYears).toEqual([]);
-    expect(r.obligations).toEqual([]);
-  });
+  it.each(['installation', 'retrofit', 'seasonal-variance'] as const)(
+    '%s: not counted by the rolling average or the chronic-leaker sum',
+    (exempt) => {
+      const events = [add('2027-03-01', 130, { exempt }), add('2027-06-01', 5)];
+      const r = leakObligations({ appliance: comfort, events, asOf: '2027-12-31', method: 'rolling-average' });
+      expect(r.leakRate).toBeCloseTo(5, 10);
+      expect(r.chronicYears).toEqual([]);
+      expect(r.obligations).toEqual([]);
+    },
+  );
 
   it('leakRate and leakRepairObligation accept the mark too', () => {
     const additions = [{ date: '2027-03-01', pounds: 100, exempt: 'installation' as const }];
@@ -192,11 +227,21 @@ describe('leakObligations — scope', () => {
     const home = leakObligations({ appliance: { ...hfc, residentialOrLightCommercial: true }, events, asOf: '2026-03-01' });
     expect(home).toMatchObject({ inScope: false, rule: null, thresholdPercent: null, obligations: [], chronicYears: [] });
     expect(home.leakRate).toBeCloseTo(25, 10);
-    expect(leakRepairObligation({ appliance: { ...hfc, residentialOrLightCommercial: true }, additions: [{ date: '2026-03-01', pounds: 5 }], asOf: '2026-03-01' }).inScope).toBe(false);
+    expect(
+      leakRepairObligation({
+        appliance: { ...hfc, residentialOrLightCommercial: true },
+        additions: [{ date: '2026-03-01', pounds: 5 }],
+        asOf: '2026-03-01',
+      }).inScope,
+    ).toBe(false);
   });
 
   it('the flag does not take an R-22 appliance of 50 lb or more out of Part 82', () => {
-    const r = leakObligations({ appliance: { ...comfort, residentialOrLightCommercial: true }, events: [add('2027-03-01', 20)], asOf: '2027-03-01' });
+    const r = leakObligations({
+      appliance: { ...comfort, residentialOrLightCommercial: true },
+      events: [add('2027-03-01', 20)],
+      asOf: '2027-03-01',
+    });
     expect(r.rule).toBe('40 CFR 82.157');
     expect(r.obligations).toHaveLength(1);
   });
@@ -208,7 +253,11 @@ describe('leakObligations — scope', () => {
   });
 
   it('Part 84 counts from 2026-01-01: a 2025 addition neither counts nor starts the first interval', () => {
-    const r = leakObligations({ appliance: { ...hfc, fullCharge: 40 }, events: [add('2025-12-15', 2), add('2026-01-14', 2)], asOf: '2026-01-14' });
+    const r = leakObligations({
+      appliance: { ...hfc, fullCharge: 40 },
+      events: [add('2025-12-15', 2), add('2026-01-14', 2)],
+      asOf: '2026-01-14',
+    });
     expect(r.leakRate).toBeCloseTo(5, 10); // 2/40 over 365 days, not 2/40 × 365/30
     expect(r.obligations).toEqual([]);
   });
@@ -242,35 +291,59 @@ describe('leakObligations — repair, verification and plan', () => {
     const a = leakObligations({ appliance: comfort, events: [...opened, repair('2027-04-10')], asOf: '2027-06-01' });
     expect(a.obligations[0]).toMatchObject({ state: 'repaired', repairedOn: '2027-04-10' });
     expect(a.openObligation).toBeNull();
-    const b = leakObligations({ appliance: comfort, events: [...opened, repair('2027-04-10'), test('2027-04-10', 'initial', true), test('2027-04-18', 'follow-up', true)], asOf: '2027-06-01' });
+    const b = leakObligations({
+      appliance: comfort,
+      events: [...opened, repair('2027-04-10'), test('2027-04-10', 'initial', true), test('2027-04-18', 'follow-up', true)],
+      asOf: '2027-06-01',
+    });
     expect(b.obligations[0]).toMatchObject({ state: 'verified', repairedOn: '2027-04-10' });
   });
 
   it('a passed follow-up test without a passed initial test does not verify', () => {
-    const r = leakObligations({ appliance: comfort, events: [...opened, repair('2027-04-10'), test('2027-04-18', 'follow-up', true)], asOf: '2027-06-01' });
+    const r = leakObligations({
+      appliance: comfort,
+      events: [...opened, repair('2027-04-10'), test('2027-04-18', 'follow-up', true)],
+      asOf: '2027-06-01',
+    });
     expect(r.obligations[0]?.state).toBe('repaired');
   });
 
   it('a verification test before any repair changes nothing', () => {
-    const r = leakObligations({ appliance: comfort, events: [...opened, test('2027-04-05', 'initial', true), test('2027-04-06', 'follow-up', true)], asOf: '2027-04-20' });
+    const r = leakObligations({
+      appliance: comfort,
+      events: [...opened, test('2027-04-05', 'initial', true), test('2027-04-06', 'follow-up', true)],
+      asOf: '2027-04-20',
+    });
     expect(r.obligations[0]?.state).toBe('open');
   });
 
   it('a failed test reopens the obligation with the rule’s deadline: open before it, overdue after', () => {
     const failedInitial = [...opened, repair('2027-04-10'), test('2027-04-10', 'initial', false)];
     const before = leakObligations({ appliance: comfort, events: failedInitial, asOf: '2027-04-20' });
-    expect(before.openObligation).toMatchObject({ triggeredOn: '2027-04-01', repairDueDate: '2027-05-01', repairedOn: null, state: 'open' });
+    expect(before.openObligation).toMatchObject({
+      triggeredOn: '2027-04-01',
+      repairDueDate: '2027-05-01',
+      repairedOn: null,
+      state: 'open',
+    });
     const failedFollowUp = [...opened, repair('2027-04-10'), test('2027-04-10', 'initial', true), test('2027-05-15', 'follow-up', false)];
     const after = leakObligations({ appliance: comfort, events: failedFollowUp, asOf: '2027-05-15' });
     expect(after.openObligation).toMatchObject({ repairDueDate: '2027-05-01', repairedOn: null, state: 'overdue' });
     // repaired again and verified
-    const again = leakObligations({ appliance: comfort, events: [...failedFollowUp, repair('2027-05-16'), test('2027-05-16', 'initial', true), test('2027-05-20', 'follow-up', true)], asOf: '2027-06-01' });
+    const again = leakObligations({
+      appliance: comfort,
+      events: [...failedFollowUp, repair('2027-05-16'), test('2027-05-16', 'initial', true), test('2027-05-20', 'follow-up', true)],
+      asOf: '2027-06-01',
+    });
     expect(again.obligations[0]).toMatchObject({ state: 'verified', repairedOn: '2027-05-16' });
   });
 
   it('a failed and a passed follow-up test on the same day: the failure stands, in either input order', () => {
     const base = [...opened, repair('2027-04-10'), test('2027-04-10', 'initial', true)];
-    for (const pair of [[test('2027-04-18', 'follow-up', true), test('2027-04-18', 'follow-up', false)], [test('2027-04-18', 'follow-up', false), test('2027-04-18', 'follow-up', true)]]) {
+    for (const pair of [
+      [test('2027-04-18', 'follow-up', true), test('2027-04-18', 'follow-up', false)],
+      [test('2027-04-18', 'follow-up', false), test('2027-04-18', 'follow-up', true)],
+    ]) {
       const r = leakObligations({ appliance: comfort, events: [...base, ...pair], asOf: '2027-04-20' });
       expect(r.openObligation).toMatchObject({ state: 'open', repairedOn: null });
     }
@@ -283,7 +356,17 @@ describe('leakObligations — repair, verification and plan', () => {
   });
 
   it('after a repair, a new rate over the threshold opens a new obligation', () => {
-    const r = leakObligations({ appliance: comfort, events: [...opened, repair('2027-04-10'), test('2027-04-10', 'initial', true), test('2027-04-18', 'follow-up', true), add('2027-06-01', 10)], asOf: '2027-06-01' });
+    const r = leakObligations({
+      appliance: comfort,
+      events: [
+        ...opened,
+        repair('2027-04-10'),
+        test('2027-04-10', 'initial', true),
+        test('2027-04-18', 'follow-up', true),
+        add('2027-06-01', 10),
+      ],
+      asOf: '2027-06-01',
+    });
     expect(r.obligations.map((o) => [o.triggeredOn, o.state])).toEqual([
       ['2027-04-01', 'verified'],
       ['2027-06-01', 'open'],
@@ -297,7 +380,14 @@ describe('leakObligations — repair, verification and plan', () => {
 
   it('the rolling average starts again after a passed follow-up test', () => {
     const appliance = r22('commercial_refrigeration');
-    const events = [add('2027-01-10', 15), add('2027-03-01', 10), repair('2027-03-05'), test('2027-03-05', 'initial', true), test('2027-03-10', 'follow-up', true), add('2027-06-01', 6)];
+    const events = [
+      add('2027-01-10', 15),
+      add('2027-03-01', 10),
+      repair('2027-03-05'),
+      test('2027-03-05', 'initial', true),
+      test('2027-03-10', 'follow-up', true),
+      add('2027-06-01', 6),
+    ];
     const r = leakObligations({ appliance, events, asOf: '2027-06-01', method: 'rolling-average' });
     expect(r.obligations.map((o) => [o.triggeredOn, o.state])).toEqual([['2027-03-01', 'verified']]); // 25 % > 20 %
     expect(r.obligations[0]?.leakRate).toBeCloseTo(25, 10);
@@ -320,13 +410,30 @@ describe('leakObligations — input', () => {
 
   it('rejects bad events naming what is wrong', () => {
     const base: LeakObligationsInput = { appliance: comfort, events: [], asOf: '2027-01-01' };
-    expect(() => leakObligations({ ...base, events: [{ kind: 'topup', date: '2027-01-01' } as unknown as LedgerEvent] })).toThrow(/events\[0\]\.kind must be one of addition, repair/);
+    expect(() => leakObligations({ ...base, events: [{ kind: 'topup', date: '2027-01-01' } as unknown as LedgerEvent] })).toThrow(
+      /events\[0\]\.kind must be one of addition, repair/,
+    );
     expect(() => leakObligations({ ...base, events: [add('2027-02-30', 1)] })).toThrow(RangeError);
     expect(() => leakObligations({ ...base, events: [add('2027-01-01', -1)] })).toThrow(/pounds/);
     expect(() => leakObligations({ ...base, events: [add('2027-01-01', 1, { leakId: '' })] })).toThrow(/leakId/);
-    expect(() => leakObligations({ ...base, events: [{ kind: 'addition', date: '2027-01-01', pounds: 1, exempt: 'warranty' } as unknown as LedgerEvent] })).toThrow(/exempt must be one of installation, retrofit, seasonal-variance/);
-    expect(() => leakObligations({ ...base, events: [{ kind: 'verification', date: '2027-01-01', stage: 'final', passed: true } as unknown as LedgerEvent] })).toThrow(/stage/);
-    expect(() => leakObligations({ ...base, events: [{ kind: 'verification', date: '2027-01-01', stage: 'initial', passed: 'yes' } as unknown as LedgerEvent] })).toThrow(/passed/);
+    expect(() =>
+      leakObligations({
+        ...base,
+        events: [{ kind: 'addition', date: '2027-01-01', pounds: 1, exempt: 'warranty' } as unknown as LedgerEvent],
+      }),
+    ).toThrow(/exempt must be one of installation, retrofit, seasonal-variance/);
+    expect(() =>
+      leakObligations({
+        ...base,
+        events: [{ kind: 'verification', date: '2027-01-01', stage: 'final', passed: true } as unknown as LedgerEvent],
+      }),
+    ).toThrow(/stage/);
+    expect(() =>
+      leakObligations({
+        ...base,
+        events: [{ kind: 'verification', date: '2027-01-01', stage: 'initial', passed: 'yes' } as unknown as LedgerEvent],
+      }),
+    ).toThrow(/passed/);
     expect(() => leakObligations({ ...base, method: 'monthly' as 'annualizing' })).toThrow(/valid: annualizing, rolling-average/);
     expect(() => leakObligations({ ...base, appliance: { ...comfort, fullCharge: 0 } })).toThrow(/fullCharge/);
     expect(() => leakObligations({ ...base, appliance: { ...comfort, refrigerant: 'R-12' } })).toThrow(/valid ids/);
@@ -343,20 +450,27 @@ describe('leakObligations — input', () => {
 
 const DAYS = ['2027-01-01', '2027-02-15', '2027-03-01', '2027-03-02', '2027-06-30'];
 const eventArb: fc.Arbitrary<LedgerEvent> = fc.oneof(
-  fc.record({
-    kind: fc.constant('addition' as const),
-    date: fc.constantFrom(...DAYS),
-    pounds: fc.integer({ min: 0, max: 4000 }).map((n) => n / 100),
-    leakId: fc.option(fc.constantFrom('A', 'B'), { nil: undefined }),
-    exempt: fc.option(fc.constantFrom('installation' as const, 'seasonal-variance' as const), { nil: undefined, freq: 4 }),
-  }).map((e) => {
-    const out: LedgerEvent = { kind: 'addition', date: e.date, pounds: e.pounds };
-    if (e.leakId !== undefined) out.leakId = e.leakId;
-    if (e.exempt !== undefined) out.exempt = e.exempt;
-    return out;
-  }),
+  fc
+    .record({
+      kind: fc.constant('addition' as const),
+      date: fc.constantFrom(...DAYS),
+      pounds: fc.integer({ min: 0, max: 4000 }).map((n) => n / 100),
+      leakId: fc.option(fc.constantFrom('A', 'B'), { nil: undefined }),
+      exempt: fc.option(fc.constantFrom('installation' as const, 'seasonal-variance' as const), { nil: undefined, freq: 4 }),
+    })
+    .map((e) => {
+      const out: LedgerEvent = { kind: 'addition', date: e.date, pounds: e.pounds };
+      if (e.leakId !== undefined) out.leakId = e.leakId;
+      if (e.exempt !== undefined) out.exempt = e.exempt;
+      return out;
+    }),
   fc.record({ kind: fc.constant('repair' as const), date: fc.constantFrom(...DAYS) }),
-  fc.record({ kind: fc.constant('verification' as const), date: fc.constantFrom(...DAYS), stage: fc.constantFrom('initial' as const, 'follow-up' as const), passed: fc.boolean() }),
+  fc.record({
+    kind: fc.constant('verification' as const),
+    date: fc.constantFrom(...DAYS),
+    stage: fc.constantFrom('initial' as const, 'follow-up' as const),
+    passed: fc.boolean(),
+  }),
   fc.record({ kind: fc.constant('retrofit-or-retirement-plan' as const), date: fc.constantFrom(...DAYS) }),
 );
 
@@ -394,10 +508,27 @@ describe('leakObligations — properties (fast-check)', () => {
           const first = '2027-01-01';
           const second = addDays(first, days);
           const appliance = r22(category, fullCharge);
-          const at = leakObligations({ appliance, events: [add(first, 0.01, { exempt: 'installation' }), add(second, pounds)], asOf: second });
+          const at = leakObligations({
+            appliance,
+            events: [add(first, 0.01, { exempt: 'installation' }), add(second, pounds)],
+            asOf: second,
+          });
           expect(at.obligations).toEqual([]);
-          expect(leakRepairObligation({ appliance, additions: [{ date: first, pounds: 0.01, exempt: 'installation' }, { date: second, pounds }], asOf: second }).exceeds).toBe(false);
-          const more = leakObligations({ appliance, events: [add(first, 0.01, { exempt: 'installation' }), add(second, Number((pounds + 0.0001).toFixed(6)))], asOf: second });
+          expect(
+            leakRepairObligation({
+              appliance,
+              additions: [
+                { date: first, pounds: 0.01, exempt: 'installation' },
+                { date: second, pounds },
+              ],
+              asOf: second,
+            }).exceeds,
+          ).toBe(false);
+          const more = leakObligations({
+            appliance,
+            events: [add(first, 0.01, { exempt: 'installation' }), add(second, Number((pounds + 0.0001).toFixed(6)))],
+            asOf: second,
+          });
           expect(more.obligations).toHaveLength(1);
         },
       ),

@@ -302,7 +302,9 @@ function evaluate(input: LeakObligationsInput, options: { since?: number } = {})
   };
   const rateAt = (day: number, countFrom: number): Rate | null => {
     if (!adds.some((a) => a.day === day && !a.exempt && a.day >= countFrom)) return null;
-    return method === 'annualizing' ? annualizingAt(adds, day, fullCharge, countFrom) : rollingAt(adds, day, fullCharge, countFrom, sinceBefore(day));
+    return method === 'annualizing'
+      ? annualizingAt(adds, day, fullCharge, countFrom)
+      : rollingAt(adds, day, fullCharge, countFrom, sinceBefore(day));
   };
 
   // Walk the days in order; within a day, a fixed order of kinds (see the module notes).
@@ -528,10 +530,29 @@ export function leakRepairObligation(input: LeakRepairInput): LeakRepairObligati
   );
   const leakRateValue = ev.latest?.rate.value ?? 0;
   if (!ev.rule || ev.threshold === null) {
-    return { inScope: false, rule: null, thresholdPercent: null, leakRate: leakRateValue, exceeds: false, repairDueDate: null, verificationRequired: false, chronic: false };
+    return {
+      inScope: false,
+      rule: null,
+      thresholdPercent: null,
+      leakRate: leakRateValue,
+      exceeds: false,
+      repairDueDate: null,
+      verificationRequired: false,
+      chronic: false,
+    };
   }
   const exceeds = ev.latest !== null && over(ev.latest.rate, ev.threshold);
-  const repairDueDate = exceeds && ev.latest ? fromDayNumber(ev.latest.day + repairDaysFor(ev.rule, input.appliance.category, input.industrialShutdown)) : null;
+  const repairDueDate =
+    exceeds && ev.latest ? fromDayNumber(ev.latest.day + repairDaysFor(ev.rule, input.appliance.category, input.industrialShutdown)) : null;
   const chronic = ev.chronicYears.includes(Number(input.asOf.slice(0, 4)));
-  return { inScope: true, rule: ev.rule.rule, thresholdPercent: ev.threshold, leakRate: leakRateValue, exceeds, repairDueDate, verificationRequired: exceeds, chronic };
+  return {
+    inScope: true,
+    rule: ev.rule.rule,
+    thresholdPercent: ev.threshold,
+    leakRate: leakRateValue,
+    exceeds,
+    repairDueDate,
+    verificationRequired: exceeds,
+    chronic,
+  };
 }

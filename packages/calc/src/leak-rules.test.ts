@@ -17,7 +17,9 @@ describe('leakRate — annualizing', () => {
   });
 
   it('uses 365 days when there is no previous addition, and caps the day count at 365', () => {
-    expect(leakRate({ method: 'annualizing', fullCharge: 200, additions: [{ date: '2027-05-01', pounds: 10 }], asOf: '2027-05-01' })).toBeCloseTo(5, 10);
+    expect(
+      leakRate({ method: 'annualizing', fullCharge: 200, additions: [{ date: '2027-05-01', pounds: 10 }], asOf: '2027-05-01' }),
+    ).toBeCloseTo(5, 10);
     const capped = leakRate({
       method: 'annualizing',
       fullCharge: 200,
@@ -73,15 +75,27 @@ describe('leakRate — rolling average', () => {
     expect(leakRate({ method: 'rolling-average', fullCharge: 90, additions, asOf: '2027-03-02' })).toBeCloseTo((9 / 90) * 100, 10);
   });
   it('counts only additions after a later verification test (since)', () => {
-    expect(leakRate({ method: 'rolling-average', fullCharge: 90, additions, asOf: '2027-03-02', since: '2026-09-01' })).toBeCloseTo((4 / 90) * 100, 10);
+    expect(leakRate({ method: 'rolling-average', fullCharge: 90, additions, asOf: '2027-03-02', since: '2026-09-01' })).toBeCloseTo(
+      (4 / 90) * 100,
+      10,
+    );
     // an older `since` changes nothing
-    expect(leakRate({ method: 'rolling-average', fullCharge: 90, additions, asOf: '2027-03-02', since: '2020-01-01' })).toBeCloseTo((9 / 90) * 100, 10);
+    expect(leakRate({ method: 'rolling-average', fullCharge: 90, additions, asOf: '2027-03-02', since: '2020-01-01' })).toBeCloseTo(
+      (9 / 90) * 100,
+      10,
+    );
   });
   it('rejects bad input', () => {
     expect(() => leakRate({ method: 'rolling-average', fullCharge: 0, additions, asOf: '2027-03-02' })).toThrow(RangeError);
-    expect(() => leakRate({ method: 'rolling-average', fullCharge: 10, additions: [{ date: '2027-13-01', pounds: 1 }], asOf: '2027-03-02' })).toThrow(RangeError);
-    expect(() => leakRate({ method: 'rolling-average', fullCharge: 10, additions: [{ date: '2027-01-01', pounds: -1 }], asOf: '2027-03-02' })).toThrow(RangeError);
-    expect(() => leakRate({ method: 'weekly' as 'annualizing', fullCharge: 10, additions, asOf: '2027-03-02' })).toThrow(/valid: annualizing, rolling-average/);
+    expect(() =>
+      leakRate({ method: 'rolling-average', fullCharge: 10, additions: [{ date: '2027-13-01', pounds: 1 }], asOf: '2027-03-02' }),
+    ).toThrow(RangeError);
+    expect(() =>
+      leakRate({ method: 'rolling-average', fullCharge: 10, additions: [{ date: '2027-01-01', pounds: -1 }], asOf: '2027-03-02' }),
+    ).toThrow(RangeError);
+    expect(() => leakRate({ method: 'weekly' as 'annualizing', fullCharge: 10, additions, asOf: '2027-03-02' })).toThrow(
+      /valid: annualizing, rolling-average/,
+    );
   });
 });
 
@@ -144,7 +158,15 @@ describe('leakRepairObligation', () => {
       ],
       asOf: '2027-04-01',
     });
-    expect(r).toMatchObject({ inScope: true, rule: '40 CFR 82.157', thresholdPercent: 10, exceeds: true, repairDueDate: '2027-05-01', verificationRequired: true, chronic: false });
+    expect(r).toMatchObject({
+      inScope: true,
+      rule: '40 CFR 82.157',
+      thresholdPercent: 10,
+      exceeds: true,
+      repairDueDate: '2027-05-01',
+      verificationRequired: true,
+      chronic: false,
+    });
     expect(r.leakRate).toBeCloseTo((5 / 100) * (365 / 90) * 100, 10);
   });
 
@@ -222,14 +244,21 @@ describe('leakRepairObligation', () => {
   });
 
   it('rejects an unknown category or refrigerant', () => {
-    expect(() => leakRepairObligation({ appliance: { ...comfort, category: 'home' as 'other' }, additions: [], asOf: '2027-01-01' })).toThrow(RangeError);
-    expect(() => leakRepairObligation({ appliance: { ...comfort, refrigerant: 'R-12' }, additions: [], asOf: '2027-01-01' })).toThrow(/valid ids/);
+    expect(() =>
+      leakRepairObligation({ appliance: { ...comfort, category: 'home' as 'other' }, additions: [], asOf: '2027-01-01' }),
+    ).toThrow(RangeError);
+    expect(() => leakRepairObligation({ appliance: { ...comfort, refrigerant: 'R-12' }, additions: [], asOf: '2027-01-01' })).toThrow(
+      /valid ids/,
+    );
   });
 });
 
 describe('verificationDeadlines', () => {
   it('puts the follow-up test 10 days after a successful initial test', () => {
     expect(verificationDeadlines({ repairDueDate: '2027-05-01' })).toEqual({ initialTestDue: '2027-05-01', followUpDue: null });
-    expect(verificationDeadlines({ repairDueDate: '2027-05-01', initialTestDate: '2027-04-25' })).toEqual({ initialTestDue: '2027-05-01', followUpDue: '2027-05-05' });
+    expect(verificationDeadlines({ repairDueDate: '2027-05-01', initialTestDate: '2027-04-25' })).toEqual({
+      initialTestDue: '2027-05-01',
+      followUpDue: '2027-05-05',
+    });
   });
 });

@@ -181,7 +181,12 @@ export interface RuleScopeOptions {
 }
 
 /** The rule governing this refrigerant and full charge on `date`, or null when none applies. */
-export function ruleInForce(refrigerant: RefrigerantId | string, fullCharge: number, date: IsoDate, options?: RuleScopeOptions): LeakRule | null {
+export function ruleInForce(
+  refrigerant: RefrigerantId | string,
+  fullCharge: number,
+  date: IsoDate,
+  options?: RuleScopeOptions,
+): LeakRule | null {
   const id = assertRefrigerant(refrigerant);
   const charge = finitePositive(fullCharge, 'fullCharge');
   const day = dayNumber(date, 'date');

@@ -25,7 +25,17 @@ describe('listRefrigerants', () => {
   it('lists the eleven ids in order with their facts', () => {
     const list = listRefrigerants();
     expect(list.map((r) => r.id)).toEqual([
-      'R-410A', 'R-32', 'R-454B', 'R-134a', 'R-22', 'R-404A', 'R-407C', 'R-448A', 'R-513A', 'R-507A', 'R-1234yf',
+      'R-410A',
+      'R-32',
+      'R-454B',
+      'R-134a',
+      'R-22',
+      'R-404A',
+      'R-407C',
+      'R-448A',
+      'R-513A',
+      'R-507A',
+      'R-1234yf',
     ]);
     for (const r of list) {
       expect(['A1', 'A2L']).toContain(r.safetyGroup);
@@ -73,13 +83,20 @@ describe('saturationTemperature / saturationPressure', () => {
   });
 
   it('defaults to psig, °F and the dew point', () => {
-    expect(saturationTemperature('R-407C', 60)).toBe(saturationTemperature('R-407C', 60, { pressureUnit: 'psig', temperatureUnit: 'F', point: 'dew' }));
-    expect(saturationPressure('R-407C', 40)).toBe(saturationPressure('R-407C', 40, { pressureUnit: 'psig', temperatureUnit: 'F', point: 'dew' }));
+    expect(saturationTemperature('R-407C', 60)).toBe(
+      saturationTemperature('R-407C', 60, { pressureUnit: 'psig', temperatureUnit: 'F', point: 'dew' }),
+    );
+    expect(saturationPressure('R-407C', 40)).toBe(
+      saturationPressure('R-407C', 40, { pressureUnit: 'psig', temperatureUnit: 'F', point: 'dew' }),
+    );
   });
 
   it('converts units consistently (kPag/°C against psig/°F)', () => {
     const f = saturationTemperature('R-410A', 118, {});
-    const c = saturationTemperature('R-410A', 118 * 6.894757293168361 + 14.696 * 6.894757293168361 - 101.325, { pressureUnit: 'kPag', temperatureUnit: 'C' });
+    const c = saturationTemperature('R-410A', 118 * 6.894757293168361 + 14.696 * 6.894757293168361 - 101.325, {
+      pressureUnit: 'kPag',
+      temperatureUnit: 'C',
+    });
     expect(c).toBeCloseTo(((f - 32) * 5) / 9, 6);
   });
 
@@ -141,12 +158,17 @@ describe('saturationTemperature / saturationPressure', () => {
 
   it('property: temperature → pressure → temperature round-trips within 0.05 °F', () => {
     fc.assert(
-      fc.property(fc.constantFrom(...ids), fc.constantFrom('bubble' as const, 'dew' as const), fc.double({ min: 0, max: 1, noNaN: true }), (id, point, u) => {
-        const { min, max } = temperatureRange(id);
-        const t = min + u * (max - min);
-        const p = saturationPressure(id, t, { point });
-        return Math.abs(saturationTemperature(id, p, { point }) - t) <= 0.05;
-      }),
+      fc.property(
+        fc.constantFrom(...ids),
+        fc.constantFrom('bubble' as const, 'dew' as const),
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        (id, point, u) => {
+          const { min, max } = temperatureRange(id);
+          const t = min + u * (max - min);
+          const p = saturationPressure(id, t, { point });
+          return Math.abs(saturationTemperature(id, p, { point }) - t) <= 0.05;
+        },
+      ),
     );
   });
 
@@ -215,14 +237,20 @@ describe('gauges at altitude (atmosphericPressureKPa)', () => {
       for (const point of ['bubble', 'dew'] as const) {
         for (const p of [5, 60, 140]) {
           expect(saturationTemperature(id, p, { point, atmosphericPressureKPa: 101.325 })).toBe(saturationTemperature(id, p, { point }));
-          expect(saturationTemperature(id, p * 6.9, { point, pressureUnit: 'kPag', temperatureUnit: 'C', atmosphericPressureKPa: 101.325 })).toBe(saturationTemperature(id, p * 6.9, { point, pressureUnit: 'kPag', temperatureUnit: 'C' }));
+          expect(
+            saturationTemperature(id, p * 6.9, { point, pressureUnit: 'kPag', temperatureUnit: 'C', atmosphericPressureKPa: 101.325 }),
+          ).toBe(saturationTemperature(id, p * 6.9, { point, pressureUnit: 'kPag', temperatureUnit: 'C' }));
         }
         expect(saturationPressure(id, 20, { point, atmosphericPressureKPa: 101.325 })).toBe(saturationPressure(id, 20, { point }));
         expect(pressureRange(id, { point, atmosphericPressureKPa: 101.325 })).toEqual(pressureRange(id, { point }));
       }
     }
-    expect(superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50, atmosphericPressureKPa: 101.325 })).toEqual(superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50 }));
-    expect(subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95, atmosphericPressureKPa: 101.325 })).toEqual(subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95 }));
+    expect(superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50, atmosphericPressureKPa: 101.325 })).toEqual(
+      superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 50 }),
+    );
+    expect(subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95, atmosphericPressureKPa: 101.325 })).toEqual(
+      subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95 }),
+    );
   });
 
   it('a gauge at altitude reads more for the same absolute pressure: saturation gauge pressure up by the atmosphere difference', () => {
@@ -230,21 +258,29 @@ describe('gauges at altitude (atmosphericPressureKPa)', () => {
     const kpaDiff = 101.325 - denver; // ≈ 17.89 kPa
     for (const id of ids) {
       expect(saturationPressure(id, 40, { atmosphericPressureKPa: denver }) - saturationPressure(id, 40)).toBeCloseTo(psiDiff, 9);
-      expect(saturationPressure(id, 4, { pressureUnit: 'kPag', temperatureUnit: 'C', atmosphericPressureKPa: denver }) - saturationPressure(id, 4, { pressureUnit: 'kPag', temperatureUnit: 'C' })).toBeCloseTo(kpaDiff, 9);
+      expect(
+        saturationPressure(id, 4, { pressureUnit: 'kPag', temperatureUnit: 'C', atmosphericPressureKPa: denver }) -
+          saturationPressure(id, 4, { pressureUnit: 'kPag', temperatureUnit: 'C' }),
+      ).toBeCloseTo(kpaDiff, 9);
     }
   });
 
   it('the same gauge reading at altitude is a lower absolute pressure, so a lower saturation temperature (fast-check)', () => {
     fc.assert(
-      fc.property(fc.constantFrom(...ids), fc.double({ min: 20, max: 300, noNaN: true }), fc.double({ min: 500, max: 4000, noNaN: true }), (id, psig, elevation) => {
-        const atm = atmosphericPressureAt(elevation);
-        const { max } = pressureRange(id);
-        fc.pre(psig < max);
-        const high = saturationTemperature(id, psig, { atmosphericPressureKPa: atm });
-        expect(high).toBeLessThan(saturationTemperature(id, psig));
-        // and it is the sea-level temperature of the same absolute pressure
-        expect(high).toBeCloseTo(saturationTemperature(id, psig + atm / KPA_PER_PSI - 14.696), 9);
-      }),
+      fc.property(
+        fc.constantFrom(...ids),
+        fc.double({ min: 20, max: 300, noNaN: true }),
+        fc.double({ min: 500, max: 4000, noNaN: true }),
+        (id, psig, elevation) => {
+          const atm = atmosphericPressureAt(elevation);
+          const { max } = pressureRange(id);
+          fc.pre(psig < max);
+          const high = saturationTemperature(id, psig, { atmosphericPressureKPa: atm });
+          expect(high).toBeLessThan(saturationTemperature(id, psig));
+          // and it is the sea-level temperature of the same absolute pressure
+          expect(high).toBeCloseTo(saturationTemperature(id, psig + atm / KPA_PER_PSI - 14.696), 9);
+        },
+      ),
     );
   });
 

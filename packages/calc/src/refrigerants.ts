@@ -66,15 +66,50 @@ export interface RefrigerantInfo {
 const INFO: Record<RefrigerantId, Omit<RefrigerantInfo, 'id'>> = {
   'R-410A': { name: 'R-32/R-125 (50/50)', safetyGroup: 'A1', gwp: 2088, hasGlide: false, family: 'HFC', ozoneDepleting: false },
   'R-32': { name: 'Difluoromethane (HFC-32)', safetyGroup: 'A2L', gwp: 675, hasGlide: false, family: 'HFC', ozoneDepleting: false },
-  'R-454B': { name: 'R-32/R-1234yf (68.9/31.1)', safetyGroup: 'A2L', gwp: 466, hasGlide: true, family: 'HFC/HFO blend', ozoneDepleting: false },
-  'R-134a': { name: '1,1,1,2-Tetrafluoroethane (HFC-134a)', safetyGroup: 'A1', gwp: 1430, hasGlide: false, family: 'HFC', ozoneDepleting: false },
+  'R-454B': {
+    name: 'R-32/R-1234yf (68.9/31.1)',
+    safetyGroup: 'A2L',
+    gwp: 466,
+    hasGlide: true,
+    family: 'HFC/HFO blend',
+    ozoneDepleting: false,
+  },
+  'R-134a': {
+    name: '1,1,1,2-Tetrafluoroethane (HFC-134a)',
+    safetyGroup: 'A1',
+    gwp: 1430,
+    hasGlide: false,
+    family: 'HFC',
+    ozoneDepleting: false,
+  },
   'R-22': { name: 'Chlorodifluoromethane (HCFC-22)', safetyGroup: 'A1', gwp: 1810, hasGlide: false, family: 'HCFC', ozoneDepleting: true },
   'R-404A': { name: 'R-125/R-143a/R-134a (44/52/4)', safetyGroup: 'A1', gwp: 3922, hasGlide: true, family: 'HFC', ozoneDepleting: false },
   'R-407C': { name: 'R-32/R-125/R-134a (23/25/52)', safetyGroup: 'A1', gwp: 1774, hasGlide: true, family: 'HFC', ozoneDepleting: false },
-  'R-448A': { name: 'R-32/R-125/R-1234yf/R-134a/R-1234ze(E) (26/26/20/21/7)', safetyGroup: 'A1', gwp: 1387, hasGlide: true, family: 'HFC/HFO blend', ozoneDepleting: false },
-  'R-513A': { name: 'R-1234yf/R-134a (56/44)', safetyGroup: 'A1', gwp: 631, hasGlide: false, family: 'HFC/HFO blend', ozoneDepleting: false },
+  'R-448A': {
+    name: 'R-32/R-125/R-1234yf/R-134a/R-1234ze(E) (26/26/20/21/7)',
+    safetyGroup: 'A1',
+    gwp: 1387,
+    hasGlide: true,
+    family: 'HFC/HFO blend',
+    ozoneDepleting: false,
+  },
+  'R-513A': {
+    name: 'R-1234yf/R-134a (56/44)',
+    safetyGroup: 'A1',
+    gwp: 631,
+    hasGlide: false,
+    family: 'HFC/HFO blend',
+    ozoneDepleting: false,
+  },
   'R-507A': { name: 'R-125/R-143a (50/50)', safetyGroup: 'A1', gwp: 3985, hasGlide: false, family: 'HFC', ozoneDepleting: false },
-  'R-1234yf': { name: '2,3,3,3-Tetrafluoropropene (HFO-1234yf)', safetyGroup: 'A2L', gwp: 4, hasGlide: false, family: 'HFO', ozoneDepleting: false },
+  'R-1234yf': {
+    name: '2,3,3,3-Tetrafluoropropene (HFO-1234yf)',
+    safetyGroup: 'A2L',
+    gwp: 4,
+    hasGlide: false,
+    family: 'HFO',
+    ozoneDepleting: false,
+  },
 };
 
 /** All refrigerants with their ASHRAE 34 safety group, AR4 GWP and whether they glide. */
@@ -298,7 +333,7 @@ function temperatureAt(c: Curve, lnP: number): number {
   // The segment's Hermite curve is monotone (Fritsch–Carlson): bisection with Newton steps.
   let a = 0;
   let b = 1;
-  let t = ((lnP - (y[lo] as number)) / ((y[lo + 1] as number) - (y[lo] as number))) || 0;
+  let t = (lnP - (y[lo] as number)) / ((y[lo + 1] as number) - (y[lo] as number)) || 0;
   for (let k = 0; k < 60; k++) {
     const f = hermite(c, lo, t) - lnP;
     if (Math.abs(f) < 1e-14) break;
@@ -345,7 +380,10 @@ export function pressureRange(refrigerant: RefrigerantId | string, opts?: Satura
 }
 
 /** Temperature range of the refrigerant's table in the chosen unit (same for bubble and dew). */
-export function temperatureRange(refrigerant: RefrigerantId | string, opts?: Pick<SaturationOptions, 'temperatureUnit'>): { min: number; max: number } {
+export function temperatureRange(
+  refrigerant: RefrigerantId | string,
+  opts?: Pick<SaturationOptions, 'temperatureUnit'>,
+): { min: number; max: number } {
   const id = assertRefrigerant(refrigerant);
   const o = resolveOptions(opts);
   const t = saturationTables[id];

@@ -63,7 +63,8 @@ export interface RepeatAlarmGroup {
 export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOptions = {}): RepeatAlarmGroup[] {
   const windowDays = opts.windowDays ?? 30;
   const minCount = opts.minCount ?? 2;
-  if (typeof windowDays !== 'number' || !Number.isFinite(windowDays) || windowDays < 0) throw new RangeError('windowDays must be a finite number of 0 or more');
+  if (typeof windowDays !== 'number' || !Number.isFinite(windowDays) || windowDays < 0)
+    throw new RangeError('windowDays must be a finite number of 0 or more');
   if (!Number.isInteger(minCount) || minCount < 1) throw new RangeError('minCount must be an integer of 1 or more');
   const windowMs = windowDays * DAY_MS;
   const asOf = opts.asOf === undefined ? null : instantMs(opts.asOf, 'asOf');
@@ -146,6 +147,8 @@ export function repeatAlarms(alarms: readonly UnitAlarm[], opts: RepeatAlarmOpti
       totalCount: b.total,
     });
   }
-  out.sort((a, b) => b.count - a.count || (a.unitId < b.unitId ? -1 : a.unitId > b.unitId ? 1 : a.code < b.code ? -1 : a.code > b.code ? 1 : 0));
+  out.sort(
+    (a, b) => b.count - a.count || (a.unitId < b.unitId ? -1 : a.unitId > b.unitId ? 1 : a.code < b.code ? -1 : a.code > b.code ? 1 : 0),
+  );
   return out;
 }

@@ -14,7 +14,10 @@ describe('previousPeriod', () => {
     expect(previousPeriod({ from: '2027-01-01', to: '2027-01-01' })).toEqual({ from: '2026-12-31', to: '2026-12-31' });
     // A whole leap year (366 days) ← the 366 days before: 2027-01-01 – 2027-12-31 is 365 days, so one day of 2026 too.
     expect(previousPeriod({ from: '2028-01-01', to: '2028-12-31' })).toEqual({ from: '2026-12-31', to: '2027-12-31' });
-    for (const p of [{ from: '2026-03-01', to: '2026-03-31' }, { from: '2028-02-10', to: '2028-03-09' }]) {
+    for (const p of [
+      { from: '2026-03-01', to: '2026-03-31' },
+      { from: '2028-02-10', to: '2028-03-09' },
+    ]) {
       const prev = previousPeriod(p);
       expect(periodDays(prev)).toBe(periodDays(p));
     }

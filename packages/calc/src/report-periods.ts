@@ -57,8 +57,13 @@ export function reportPresets(today: IsoDate): Record<ReportPresetKey, DatePerio
  * The one preset to show as chosen for a period: `chosen` when it matches (the one the person clicked), else
  * the first matching preset in `reportPresetKeys` order, else none — never two at once.
  */
-export function activePreset(presets: Record<ReportPresetKey, DatePeriod>, period: DatePeriod, chosen?: string | null): ReportPresetKey | null {
+export function activePreset(
+  presets: Record<ReportPresetKey, DatePeriod>,
+  period: DatePeriod,
+  chosen?: string | null,
+): ReportPresetKey | null {
   const same = (k: ReportPresetKey) => presets[k].from === period.from && presets[k].to === period.to;
-  if (chosen && (reportPresetKeys as readonly string[]).includes(chosen) && same(chosen as ReportPresetKey)) return chosen as ReportPresetKey;
+  if (chosen && (reportPresetKeys as readonly string[]).includes(chosen) && same(chosen as ReportPresetKey))
+    return chosen as ReportPresetKey;
   return reportPresetKeys.find(same) ?? null;
 }

@@ -17,7 +17,12 @@ function lcg(seed: number): () => number {
 function makeStops(n: number, seed: number, windows: boolean): RouteStop[] {
   const r = lcg(seed);
   return Array.from({ length: n }, (_, i) => {
-    const s: RouteStop = { id: `s${i}`, lat: start.lat + (r() - 0.5) * 0.5, lon: start.lon + (r() - 0.5) * 0.7, serviceMinutes: 20 + Math.floor(r() * 60) };
+    const s: RouteStop = {
+      id: `s${i}`,
+      lat: start.lat + (r() - 0.5) * 0.5,
+      lon: start.lon + (r() - 0.5) * 0.7,
+      serviceMinutes: 20 + Math.floor(r() * 60),
+    };
     if (windows && i % 3 === 0) {
       const from = Math.floor(r() * 240);
       s.window = { from, to: from + 90 };

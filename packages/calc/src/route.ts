@@ -336,7 +336,9 @@ function heuristic(m: Model): number[] {
   const n = m.n;
   const starts: number[][] = [nearestNeighbour(m)];
   // Earliest-deadline order as a second start when windows exist.
-  const byDeadline = Array.from({ length: n }, (_, i) => i).sort((a, b) => (m.to[a] as number) - (m.to[b] as number) || (m.from[a] as number) - (m.from[b] as number));
+  const byDeadline = Array.from({ length: n }, (_, i) => i).sort(
+    (a, b) => (m.to[a] as number) - (m.to[b] as number) || (m.from[a] as number) - (m.from[b] as number),
+  );
   starts.push(byDeadline);
   const rand = mulberry32(0xc011 + n);
   const restarts = n <= 15 ? 8 : n <= 30 ? 6 : 1;
@@ -432,7 +434,14 @@ export function planRoute(input: PlanRouteInput): PlannedRoute {
     drive += m.drive[prev * m.size + m.n + 1] as number;
     miles += m.miles[prev * m.size + m.n + 1] as number;
   }
-  return { order: order.map((i) => (input.stops[i] as RouteStop).id), totalMiles: miles, driveMinutes: drive, arrivals, lateStops, lateMinutes: lateTotal };
+  return {
+    order: order.map((i) => (input.stops[i] as RouteStop).id),
+    totalMiles: miles,
+    driveMinutes: drive,
+    arrivals,
+    lateStops,
+    lateMinutes: lateTotal,
+  };
 }
 
 /** @internal Exposed for tests: the objective planRoute minimises for a given order of ids. */

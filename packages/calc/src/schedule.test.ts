@@ -1,6 +1,17 @@
 import { describe, expect, it } from 'vitest';
 import { driveMinutes } from './geo';
-import { localDayBounds, rankTechnicians, weekdayOf, technicianLoad, workingWindow, zonedDate, zonedInstant, type Booking, type SchedulingJob, type Technician } from './schedule';
+import {
+  localDayBounds,
+  rankTechnicians,
+  weekdayOf,
+  technicianLoad,
+  workingWindow,
+  zonedDate,
+  zonedInstant,
+  type Booking,
+  type SchedulingJob,
+  type Technician,
+} from './schedule';
 
 const hours = { start: '07:00', end: '17:00' };
 const tech = (over: Partial<Technician> & { id: string }): Technician => ({
@@ -67,7 +78,16 @@ describe('technicianLoad', () => {
 });
 
 describe('rankTechnicians', () => {
-  const job: SchedulingJob = { id: 'j1', durationMinutes: 90, requiredSkill: 'chiller', requiredCertification: 'II', lat: 41.9, lon: -87.65, unitId: 'CH-7', day: '2027-03-15' };
+  const job: SchedulingJob = {
+    id: 'j1',
+    durationMinutes: 90,
+    requiredSkill: 'chiller',
+    requiredCertification: 'II',
+    lat: 41.9,
+    lon: -87.65,
+    unitId: 'CH-7',
+    day: '2027-03-15',
+  };
 
   it('excludes on hard rules with plain reasons and ranks the rest', () => {
     const techs = [
@@ -78,7 +98,9 @@ describe('rankTechnicians', () => {
       tech({ id: 'near' }),
       tech({ id: 'history' }),
     ];
-    const bookings: Booking[] = [{ id: 'old', techId: 'history', start: '2027-01-10T15:00:00Z', end: '2027-01-10T16:00:00Z', unitId: 'CH-7', lat: 41.9, lon: -87.65 }];
+    const bookings: Booking[] = [
+      { id: 'old', techId: 'history', start: '2027-01-10T15:00:00Z', end: '2027-01-10T16:00:00Z', unitId: 'CH-7', lat: 41.9, lon: -87.65 },
+    ];
     const r = rankTechnicians(job, techs, bookings);
     expect(r.map((x) => x.techId)).toEqual(['history', 'near', 'far', 'noskill', 'off', 'typeI']);
     expect(r[0]!.reasons).toContain('Has worked on this unit before (1 visit)');

@@ -282,7 +282,10 @@ export function findSlot(
 
 /** @internal Bookings of one tech as sorted intervals. */
 export function intervalsFor(bookings: readonly Booking[], techId: string): Interval[] {
-  return bookings.filter((b) => b.techId === techId).map(bookingInterval).sort((a, b) => a.start - b.start);
+  return bookings
+    .filter((b) => b.techId === techId)
+    .map(bookingInterval)
+    .sort((a, b) => a.start - b.start);
 }
 
 export interface RankedTechnician {
@@ -342,11 +345,20 @@ function whenOn(ms: number, day: IsoDate, timeZone: string): string {
  * for travel from the previous stop (capped at 90 min) + 15 for having worked on this unit before).
  * Eligible technicians come first by score (ties: earlier start, then id), excluded ones after.
  */
-export function rankTechnicians(job: SchedulingJob, techs: readonly Technician[], bookings: readonly Booking[], opts: RankOptions = {}): RankedTechnician[] {
-  if (!(job.durationMinutes > 0) || !Number.isFinite(job.durationMinutes)) throw new RangeError('job.durationMinutes must be a finite number greater than 0');
+export function rankTechnicians(
+  job: SchedulingJob,
+  techs: readonly Technician[],
+  bookings: readonly Booking[],
+  opts: RankOptions = {},
+): RankedTechnician[] {
+  if (!(job.durationMinutes > 0) || !Number.isFinite(job.durationMinutes))
+    throw new RangeError('job.durationMinutes must be a finite number greater than 0');
   const limits = jobLimits(job);
   const ranked = techs.map((tech): RankedTechnician => {
-    const day = opts.day ?? job.day ?? (job.earliest ?? job.window?.from ? zonedDate((job.earliest ?? job.window?.from) as Instant, tech.timeZone) : null);
+    const day =
+      opts.day ??
+      job.day ??
+      ((job.earliest ?? job.window?.from) ? zonedDate((job.earliest ?? job.window?.from) as Instant, tech.timeZone) : null);
     if (!day) throw new RangeError('rankTechnicians needs a day: opts.day, job.day or job.earliest');
     const reasons: string[] = [];
     const hard: string[] = [];
@@ -389,7 +401,10 @@ export function rankTechnicians(job: SchedulingJob, techs: readonly Technician[]
         } else if (freeMinutes >= job.durationMinutes && findSlot(tech, day, open, busy, opts, win)) {
           const from = whenOn(Math.max(limits.earliest, win.start), day, tech.timeZone);
           const to = whenOn(Math.min(limits.latest, win.end), day, tech.timeZone);
-          block('window', `No free slot of ${dur} on ${day} between ${from} and ${to}, the time the job allows (${fmtMinutes(freeMinutes)} free)`);
+          block(
+            'window',
+            `No free slot of ${dur} on ${day} between ${from} and ${to}, the time the job allows (${fmtMinutes(freeMinutes)} free)`,
+          );
         } else {
           block('free_time', `No free slot of ${dur} on ${day} (${fmtMinutes(freeMinutes)} free)`);
         }
@@ -397,7 +412,16 @@ export function rankTechnicians(job: SchedulingJob, techs: readonly Technician[]
     }
     const base = { techId: tech.id, name: tech.name, freeMinutes, visitsToUnit };
     if (hard.length > 0 || !slot || !win) {
-      return { ...base, eligible: false, score: null, reasons: [...hard, ...reasons], blockedBy, proposedStart: null, proposedEnd: null, travelMinutes: slot ? slot.travelMinutes : null };
+      return {
+        ...base,
+        eligible: false,
+        score: null,
+        reasons: [...hard, ...reasons],
+        blockedBy,
+        proposedStart: null,
+        proposedEnd: null,
+        travelMinutes: slot ? slot.travelMinutes : null,
+      };
     }
     const capacity = (win.end - win.start) / MINUTE;
     const freeShare = Math.min(1, freeMinutes / capacity);

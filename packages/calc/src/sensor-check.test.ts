@@ -37,7 +37,12 @@ describe('sensorCheck', () => {
     const psiLow = 14.696 - denver / KPA_PER_PSI; // ≈ 2.595 psi
 
     it('gives exactly the sea-level results by default and at 101.325 kPa, whatever the controller reference', () => {
-      for (const [c, r] of [[369, 376], [103, 100], [2, 0], [118.37, 121.9]] as const) {
+      for (const [c, r] of [
+        [369, 376],
+        [103, 100],
+        [2, 0],
+        [118.37, 121.9],
+      ] as const) {
         const base = sensorCheck({ controllerValue: c, referenceValue: r });
         for (const controllerReference of ['local', 'standard'] as const) {
           const same = sensorCheck({ controllerValue: c, referenceValue: r, atmosphericPressureKPa: 101.325, controllerReference });
@@ -56,23 +61,42 @@ describe('sensorCheck', () => {
     });
 
     it('a sealed controller (standard) reads low by the atmosphere difference: 115.405 psig against 118 psig is no difference at 1,609 m', () => {
-      const r = sensorCheck({ controllerValue: 118 - psiLow, referenceValue: 118, atmosphericPressureKPa: denver, controllerReference: 'standard', toleranceAbsolute: 0, tolerancePercent: 0 });
+      const r = sensorCheck({
+        controllerValue: 118 - psiLow,
+        referenceValue: 118,
+        atmosphericPressureKPa: denver,
+        controllerReference: 'standard',
+        toleranceAbsolute: 0,
+        tolerancePercent: 0,
+      });
       expect(r.difference).toBeCloseTo(0, 10);
       expect(r.withinTolerance).toBe(true);
       expect(r.controllerAbsolute).toBeCloseTo(r.referenceAbsolute, 10);
       // the same pair compared as vented shows the whole 2.6 psi
-      expect(sensorCheck({ controllerValue: 118 - psiLow, referenceValue: 118, atmosphericPressureKPa: denver }).difference).toBeCloseTo(-psiLow, 10);
+      expect(sensorCheck({ controllerValue: 118 - psiLow, referenceValue: 118, atmosphericPressureKPa: denver }).difference).toBeCloseTo(
+        -psiLow,
+        10,
+      );
     });
 
     it('works in kPa(g): the offset is 101.325 − local kPa', () => {
-      const r = sensorCheck({ controllerValue: 800, referenceValue: 800, pressureUnit: 'kPag', atmosphericPressureKPa: denver, controllerReference: 'standard', toleranceAbsolute: 34.5 });
+      const r = sensorCheck({
+        controllerValue: 800,
+        referenceValue: 800,
+        pressureUnit: 'kPag',
+        atmosphericPressureKPa: denver,
+        controllerReference: 'standard',
+        toleranceAbsolute: 34.5,
+      });
       expect(r.difference).toBeCloseTo(101.325 - denver, 10);
       expect(r.controllerAbsolute).toBeCloseTo(901.325, 10);
       expect(r.referenceAbsolute).toBeCloseTo(800 + denver, 10);
     });
 
     it('rejects an unknown controller reference, pressure unit or atmosphere', () => {
-      expect(() => sensorCheck({ controllerValue: 1, referenceValue: 1, controllerReference: 'sealed' as 'local' })).toThrow(/valid: local, standard/);
+      expect(() => sensorCheck({ controllerValue: 1, referenceValue: 1, controllerReference: 'sealed' as 'local' })).toThrow(
+        /valid: local, standard/,
+      );
       expect(() => sensorCheck({ controllerValue: 1, referenceValue: 1, pressureUnit: 'bar' as 'psig' })).toThrow(/valid: psig, kPag/);
       expect(() => sensorCheck({ controllerValue: 1, referenceValue: 1, atmosphericPressureKPa: -1 })).toThrow(/atmosphericPressureKPa/);
     });

@@ -79,8 +79,10 @@ describe('temperature difference: °F → K is × 5/9 with no offset (NIST SP 81
 
   it('is the difference of two converted temperatures', () => {
     fc.assert(
-      fc.property(fc.double({ min: -200, max: 400, noNaN: true }), fc.double({ min: -200, max: 400, noNaN: true }), (a, b) =>
-        Math.abs(fToC(a) - fToC(b) - fDeltaToK(a - b)) <= 1e-9,
+      fc.property(
+        fc.double({ min: -200, max: 400, noNaN: true }),
+        fc.double({ min: -200, max: 400, noNaN: true }),
+        (a, b) => Math.abs(fToC(a) - fToC(b) - fDeltaToK(a - b)) <= 1e-9,
       ),
     );
   });
@@ -89,11 +91,23 @@ describe('temperature difference: °F → K is × 5/9 with no offset (NIST SP 81
     // R-410A, 118 psig suction, 52 °F line; 340 psig liquid, 95 °F line (check values from calc itself:
     // the point is that the SI path and the converted imperial path agree).
     const shF = superheat({ refrigerant: 'R-410A', suctionPressure: 118, suctionLineTemp: 52 });
-    const shC = superheat({ refrigerant: 'R-410A', suctionPressure: psiToKpa(118), suctionLineTemp: fToC(52), pressureUnit: 'kPag', temperatureUnit: 'C' });
+    const shC = superheat({
+      refrigerant: 'R-410A',
+      suctionPressure: psiToKpa(118),
+      suctionLineTemp: fToC(52),
+      pressureUnit: 'kPag',
+      temperatureUnit: 'C',
+    });
     expect(shC.superheat).toBeCloseTo(fDeltaToK(shF.superheat), 3);
     expect(shC.saturationTemp).toBeCloseTo(fToC(shF.saturationTemp), 3);
     const scF = subcooling({ refrigerant: 'R-410A', liquidPressure: 340, liquidLineTemp: 95 });
-    const scC = subcooling({ refrigerant: 'R-410A', liquidPressure: psiToKpa(340), liquidLineTemp: fToC(95), pressureUnit: 'kPag', temperatureUnit: 'C' });
+    const scC = subcooling({
+      refrigerant: 'R-410A',
+      liquidPressure: psiToKpa(340),
+      liquidLineTemp: fToC(95),
+      pressureUnit: 'kPag',
+      temperatureUnit: 'C',
+    });
     expect(scC.subcooling).toBeCloseTo(fDeltaToK(scF.subcooling), 3);
   });
 });

@@ -10,7 +10,9 @@ describe('agreement recurrence (RFC 5545 RRULE text)', () => {
     expect(buildAgreementRrule(base)).toBe('FREQ=YEARLY;BYMONTH=2,5,8,11;BYMONTHDAY=10');
     expect(buildAgreementRrule({ ...base, preset: 'every_6_months', startMonth: 9 })).toBe('FREQ=YEARLY;BYMONTH=3,9;BYMONTHDAY=10');
     expect(buildAgreementRrule({ ...base, preset: 'yearly', startMonth: 5 })).toBe('FREQ=YEARLY;BYMONTH=5;BYMONTHDAY=10');
-    expect(buildAgreementRrule({ ...base, preset: 'spring_autumn', springMonth: 3, autumnMonth: 10 })).toBe('FREQ=YEARLY;BYMONTH=3,10;BYMONTHDAY=10');
+    expect(buildAgreementRrule({ ...base, preset: 'spring_autumn', springMonth: 3, autumnMonth: 10 })).toBe(
+      'FREQ=YEARLY;BYMONTH=3,10;BYMONTHDAY=10',
+    );
   });
 
   it('reads back every rule it builds to the same rule', () => {

@@ -69,18 +69,30 @@ export function describeAgreementRrule(rrule: string): string {
   const names = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
   if (!r) {
     // Any other rule: a plain reading of FREQ, INTERVAL, BYMONTH and BYMONTHDAY.
-    const line = rrule.split(/\r?\n/).find((l) => /FREQ=/i.test(l))?.replace(/^RRULE:/i, '') ?? rrule;
+    const line =
+      rrule
+        .split(/\r?\n/)
+        .find((l) => /FREQ=/i.test(l))
+        ?.replace(/^RRULE:/i, '') ?? rrule;
     const p = Object.fromEntries(line.split(';').map((x) => x.split('=') as [string, string]));
     const unit: Record<string, string> = { DAILY: 'day', WEEKLY: 'week', MONTHLY: 'month', YEARLY: 'year' };
     const u = unit[String(p.FREQ).toUpperCase()];
     if (!u) return rrule;
     const n = Number(p.INTERVAL ?? 1);
     const every = n > 1 ? `Every ${n} ${u}s` : `Every ${u}`;
-    const m = p.BYMONTH ? ` in ${p.BYMONTH.split(',').map((x) => names[Number(x) - 1] ?? x).join(', ')}` : '';
+    const m = p.BYMONTH
+      ? ` in ${p.BYMONTH.split(',')
+          .map((x) => names[Number(x) - 1] ?? x)
+          .join(', ')}`
+      : '';
     const d = p.BYMONTHDAY ? `, aiming at day ${p.BYMONTHDAY}` : '';
     return `${every}${m}${d}`;
   }
-  const months = /BYMONTH=([\d,]+)/.exec(rrule)?.[1]?.split(',').map((m) => names[Number(m) - 1]).join(', ');
+  const months = /BYMONTH=([\d,]+)/
+    .exec(rrule)?.[1]
+    ?.split(',')
+    .map((m) => names[Number(m) - 1])
+    .join(', ');
   const label = r.preset === 'spring_autumn' ? 'Spring start-up and autumn check' : recurrencePresetLabels[r.preset];
   return `${label}${months ? ` (${months})` : ''}, aiming at day ${r.dayOfMonth}`;
 }
@@ -215,5 +227,14 @@ export interface PmCompletionResponse {
   graceDays: number;
   branches: ({ branchId: string; branchName: string } & PmCounts)[];
   agreements: ({ agreementId: string; branchId: string; name: string; siteName: string } & PmCounts)[];
-  renewals: { agreementId: string; branchId: string; name: string; siteName: string; customerName: string; termEnd: string; daysLeft: number; priceCents: number }[];
+  renewals: {
+    agreementId: string;
+    branchId: string;
+    name: string;
+    siteName: string;
+    customerName: string;
+    termEnd: string;
+    daysLeft: number;
+    priceCents: number;
+  }[];
 }

@@ -46,7 +46,11 @@ export const alarmDeliverySchema = z.object({
   code: alarmCodeSchema,
   circuit: circuitNumberSchema.nullable().optional(),
   raisedAt: instantSchema,
-  message: z.string().trim().max(limits.shortText * 5).optional(),
+  message: z
+    .string()
+    .trim()
+    .max(limits.shortText * 5)
+    .optional(),
 });
 export type AlarmDelivery = z.input<typeof alarmDeliverySchema>;
 

@@ -10,19 +10,37 @@ const issues = (body: Record<string, unknown>) => {
 describe('circuitTargetsInputSchema', () => {
   it('takes both ranges, from numbers or a form’s strings, and the source', () => {
     const r = parse({ superheatMin: '8', superheatMax: 12, subcoolingMin: ' 10 ', subcoolingMax: '15', source: ' Nameplate ' });
-    expect(r.success && r.data).toEqual({ temperature: 'F', superheatMin: 8, superheatMax: 12, subcoolingMin: 10, subcoolingMax: 15, source: 'Nameplate' });
+    expect(r.success && r.data).toEqual({
+      temperature: 'F',
+      superheatMin: 8,
+      superheatMax: 12,
+      subcoolingMin: 10,
+      subcoolingMax: 15,
+      source: 'Nameplate',
+    });
   });
 
   it('blank fields clear a range; each range is optional', () => {
     const r = parse({ superheatMin: '', superheatMax: '', subcoolingMin: 9, subcoolingMax: 11, source: '' });
-    expect(r.success && r.data).toEqual({ temperature: 'F', superheatMin: null, superheatMax: null, subcoolingMin: 9, subcoolingMax: 11, source: null });
+    expect(r.success && r.data).toEqual({
+      temperature: 'F',
+      superheatMin: null,
+      superheatMax: null,
+      subcoolingMin: 9,
+      subcoolingMax: 11,
+      source: null,
+    });
     expect(parse({}).success).toBe(true);
   });
 
   it('min = max is a range; min > max is refused on the max', () => {
     expect(parse({ superheatMin: 10, superheatMax: 10 }).success).toBe(true);
-    expect(issues({ superheatMin: 12, superheatMax: 8 })).toEqual(['superheatMax: The highest superheat cannot be below the lowest (12 °F)']);
-    expect(issues({ subcoolingMin: 10.1, subcoolingMax: 10 })).toEqual(['subcoolingMax: The highest subcooling cannot be below the lowest (10.1 °F)']);
+    expect(issues({ superheatMin: 12, superheatMax: 8 })).toEqual([
+      'superheatMax: The highest superheat cannot be below the lowest (12 °F)',
+    ]);
+    expect(issues({ subcoolingMin: 10.1, subcoolingMax: 10 })).toEqual([
+      'subcoolingMax: The highest subcooling cannot be below the lowest (10.1 °F)',
+    ]);
   });
 
   it('a range needs both ends', () => {
@@ -36,7 +54,9 @@ describe('circuitTargetsInputSchema', () => {
     expect(issues({ superheatMin: 5, superheatMax: 50.1 })).toEqual(['superheatMax: Between 0 and 50 °F']);
     expect(circuitTargetsInputSchema.safeParse({ temperature: 'C', subcoolingMin: 0, subcoolingMax: 27.7 }).success).toBe(true);
     const si = circuitTargetsInputSchema.safeParse({ temperature: 'C', subcoolingMin: 5, subcoolingMax: 28 });
-    expect(si.success ? [] : si.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`)).toEqual(['subcoolingMax: Between 0 and 27.7 K']);
+    expect(si.success ? [] : si.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`)).toEqual([
+      'subcoolingMax: Between 0 and 27.7 K',
+    ]);
   });
 
   it('refuses text that is not a number, an unknown unit and unknown fields', () => {

@@ -3,7 +3,14 @@
  * confirmation and the customer's sign-off (Coilpath's own rules; the cases are worked by hand, no outside source).
  */
 import { describe, expect, it } from 'vitest';
-import { closeSignatureSchema, closeVisitSchema, leakRepairCloseRefusal, rootCauseChoice, signatureChoiceRefusal, signatureMaxBytes } from './visits';
+import {
+  closeSignatureSchema,
+  closeVisitSchema,
+  leakRepairCloseRefusal,
+  rootCauseChoice,
+  signatureChoiceRefusal,
+  signatureMaxBytes,
+} from './visits';
 
 const A = '00000000-0000-4000-8000-00000000000a';
 const B = '00000000-0000-4000-8000-00000000000b';
@@ -27,11 +34,17 @@ describe('rootCauseChoice', () => {
 describe('leakRepairCloseRefusal', () => {
   const repair = { verificationTests: 0 };
   it('asks only for a leak repair closed as resolved with neither a verification test nor a refrigerant entry', () => {
-    expect(leakRepairCloseRefusal({ leakRepair: repair, outcome: 'resolved', refrigerantEntries: 0, confirmed: undefined })?.code).toBe('leak_repair_unverified');
-    expect(leakRepairCloseRefusal({ leakRepair: repair, outcome: 'resolved', refrigerantEntries: 0, confirmed: false })?.code).toBe('leak_repair_unverified');
+    expect(leakRepairCloseRefusal({ leakRepair: repair, outcome: 'resolved', refrigerantEntries: 0, confirmed: undefined })?.code).toBe(
+      'leak_repair_unverified',
+    );
+    expect(leakRepairCloseRefusal({ leakRepair: repair, outcome: 'resolved', refrigerantEntries: 0, confirmed: false })?.code).toBe(
+      'leak_repair_unverified',
+    );
     expect(leakRepairCloseRefusal({ leakRepair: repair, outcome: 'resolved', refrigerantEntries: 0, confirmed: true })).toBeNull();
     expect(leakRepairCloseRefusal({ leakRepair: repair, outcome: 'resolved', refrigerantEntries: 1, confirmed: undefined })).toBeNull();
-    expect(leakRepairCloseRefusal({ leakRepair: { verificationTests: 1 }, outcome: 'resolved', refrigerantEntries: 0, confirmed: undefined })).toBeNull();
+    expect(
+      leakRepairCloseRefusal({ leakRepair: { verificationTests: 1 }, outcome: 'resolved', refrigerantEntries: 0, confirmed: undefined }),
+    ).toBeNull();
     expect(leakRepairCloseRefusal({ leakRepair: repair, outcome: 'needs_return', refrigerantEntries: 0, confirmed: undefined })).toBeNull();
     expect(leakRepairCloseRefusal({ leakRepair: null, outcome: 'resolved', refrigerantEntries: 0, confirmed: undefined })).toBeNull();
   });
@@ -51,14 +64,36 @@ describe('signatureChoiceRefusal and closeSignatureSchema', () => {
   });
 
   it('needs a printed name and PNG data when signed, and nothing else when not available', () => {
-    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: ' Dana Whitfield ', imagePng: pngStart }).data).toEqual({ kind: 'signed', signerName: 'Dana Whitfield', imagePng: pngStart });
-    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: '', imagePng: pngStart }).error?.issues[0]?.message).toBe('Enter the name of the person signing');
-    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: 'Dana', imagePng: '' }).error?.issues[0]?.message).toBe('Draw the signature on the pad');
+    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: ' Dana Whitfield ', imagePng: pngStart }).data).toEqual({
+      kind: 'signed',
+      signerName: 'Dana Whitfield',
+      imagePng: pngStart,
+    });
+    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: '', imagePng: pngStart }).error?.issues[0]?.message).toBe(
+      'Enter the name of the person signing',
+    );
+    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: 'Dana', imagePng: '' }).error?.issues[0]?.message).toBe(
+      'Draw the signature on the pad',
+    );
     // JPEG's start of image (FF D8 FF) is not a PNG.
-    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: 'Dana', imagePng: Buffer.from([0xff, 0xd8, 0xff, 0xe0]).toString('base64') }).success).toBe(false);
-    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: 'Dana', imagePng: `data:image/png;base64,${pngStart}` }).success).toBe(false);
+    expect(
+      closeSignatureSchema.safeParse({
+        kind: 'signed',
+        signerName: 'Dana',
+        imagePng: Buffer.from([0xff, 0xd8, 0xff, 0xe0]).toString('base64'),
+      }).success,
+    ).toBe(false);
+    expect(
+      closeSignatureSchema.safeParse({ kind: 'signed', signerName: 'Dana', imagePng: `data:image/png;base64,${pngStart}` }).success,
+    ).toBe(false);
     // 200 KB of bytes is 273,068 base64 characters (4 per 3 bytes, rounded up to a whole group).
-    expect(closeSignatureSchema.safeParse({ kind: 'signed', signerName: 'Dana', imagePng: pngStart + 'A'.repeat(4 * Math.ceil(signatureMaxBytes / 3)) }).success).toBe(false);
+    expect(
+      closeSignatureSchema.safeParse({
+        kind: 'signed',
+        signerName: 'Dana',
+        imagePng: pngStart + 'A'.repeat(4 * Math.ceil(signatureMaxBytes / 3)),
+      }).success,
+    ).toBe(false);
     expect(closeSignatureSchema.safeParse({ kind: 'customer_not_available' }).success).toBe(true);
     expect(closeSignatureSchema.safeParse({ kind: 'customer_not_available', signerName: 'Dana' }).success).toBe(false);
   });

@@ -41,19 +41,26 @@ describe('one-line fields refuse control characters', () => {
     expect(fieldError(userProfileSchema.safeParse({ name: bad, role: 'owner' }), 'name')).toBe(oneLineMessage);
     expect(fieldError(branchInputSchema.safeParse({ name: bad }), 'name')).toBe(oneLineMessage);
     expect(fieldError(siteInputSchema.safeParse({ name: bad }), 'name')).toBe(oneLineMessage);
-    expect(fieldError(acceptInvitationSchema.safeParse({ token: 'x'.repeat(20), name: bad, password: 'p', confirm: 'p' }), 'name')).toBe(oneLineMessage);
+    expect(fieldError(acceptInvitationSchema.safeParse({ token: 'x'.repeat(20), name: bad, password: 'p', confirm: 'p' }), 'name')).toBe(
+      oneLineMessage,
+    );
     expect(fieldError(ownerSetupSchema.safeParse({ token: 'x'.repeat(20), name: bad }), 'name')).toBe(oneLineMessage);
     expect(fieldError(userProfileSchema.safeParse({ name: 'Ok', role: 'owner', phone: '555\u0000' }), 'phone')).toBe(oneLineMessage);
   });
 });
 
 describe('a pick left empty says what to choose', () => {
-  const messageAt = (r: { error?: { issues: { path: PropertyKey[]; message: string }[] } }, path: string) => r.error?.issues.find((i) => i.path.join('.') === path)?.message;
+  const messageAt = (r: { error?: { issues: { path: PropertyKey[]; message: string }[] } }, path: string) =>
+    r.error?.issues.find((i) => i.path.join('.') === path)?.message;
   it('names the thing to pick on the forms with a picker, never "Must be an id"', () => {
     expect(messageAt(siteInputSchema.safeParse({ customerId: '' }), 'customerId')).toBe('Choose a customer');
-    expect(messageAt(workOrderCreateSchema.safeParse({ siteId: '', kind: 'service_call', complaint: 'x' }), 'siteId')).toBe('Choose a site');
+    expect(messageAt(workOrderCreateSchema.safeParse({ siteId: '', kind: 'service_call', complaint: 'x' }), 'siteId')).toBe(
+      'Choose a site',
+    );
     expect(messageAt(agreementInputSchema.safeParse({ siteId: '' }), 'siteId')).toBe('Choose a site');
-    expect(messageAt(bookingCreateSchema.safeParse({ workOrderId: '00000000-0000-4000-8000-000000000001', techId: '' }), 'techId')).toBe('Choose a technician');
+    expect(messageAt(bookingCreateSchema.safeParse({ workOrderId: '00000000-0000-4000-8000-000000000001', techId: '' }), 'techId')).toBe(
+      'Choose a technician',
+    );
     expect(messageAt(alarmSourceCreateSchema.safeParse({ siteId: '', name: 'Roof BMS' }), 'siteId')).toBe('Choose a site');
   });
 });

@@ -95,5 +95,9 @@ export const base64FileSchema = (bytes: number, tooLarge: string) =>
  * detects UTF-8 or a spreadsheet's legacy Windows encoding and converts it, or refuses the file), or
  * `csv`, text already decoded (refused if it shows a wrong decoding, U+FFFD).
  */
-export const oneOfCsvOrFile = (b: { csv?: string | undefined; file?: string | undefined }) => (b.csv === undefined) !== (b.file === undefined);
-export const oneOfCsvOrFileMessage = { message: 'Send the file either as text (csv) or as base64 bytes (file), one of the two', path: ['file'] };
+export const oneOfCsvOrFile = (b: { csv?: string | undefined; file?: string | undefined }) =>
+  (b.csv === undefined) !== (b.file === undefined);
+export const oneOfCsvOrFileMessage = {
+  message: 'Send the file either as text (csv) or as base64 bytes (file), one of the two',
+  path: ['file'],
+};

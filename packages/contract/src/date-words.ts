@@ -13,7 +13,8 @@
 const isIsoDate = (s: string) => /^\d{4}-\d{2}-\d{2}$/.test(s) && !Number.isNaN(Date.parse(`${s}T12:00:00Z`));
 const parts = (iso: string, options: Intl.DateTimeFormatOptions) => {
   const out: Partial<Record<Intl.DateTimeFormatPartTypes, string>> = {};
-  for (const p of new Intl.DateTimeFormat('en-US', { ...options, timeZone: 'UTC' }).formatToParts(new Date(`${iso}T12:00:00Z`))) out[p.type] = p.value;
+  for (const p of new Intl.DateTimeFormat('en-US', { ...options, timeZone: 'UTC' }).formatToParts(new Date(`${iso}T12:00:00Z`)))
+    out[p.type] = p.value;
   return out;
 };
 

@@ -66,7 +66,12 @@ export type LiveEvent =
     });
 
 /** The rows an event names, by what they are (absent: it names none of that kind; null: many). */
-export function liveEventRows(e: LiveEvent): { bookings?: string[] | null; workOrders?: string[] | null; units?: string[] | null; leakCases?: string[] | null } {
+export function liveEventRows(e: LiveEvent): {
+  bookings?: string[] | null;
+  workOrders?: string[] | null;
+  units?: string[] | null;
+  leakCases?: string[] | null;
+} {
   switch (e.kind) {
     case 'roster':
       return { bookings: e.bookings, workOrders: e.workOrders };

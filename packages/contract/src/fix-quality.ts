@@ -21,7 +21,16 @@ import type { ModelAlertRef } from './work-orders';
  *   figure until the window closes.
  * The period holds the jobs whose first visit closed between `from` 00:00 and `to` 24:00 UTC; months are UTC months.
  */
-export const fixQualityTables = ['byBranch', 'byTechnician', 'byMonth', 'byModel', 'byCause', 'byOrigin', 'factoryDefects', 'modelAlerts'] as const;
+export const fixQualityTables = [
+  'byBranch',
+  'byTechnician',
+  'byMonth',
+  'byModel',
+  'byCause',
+  'byOrigin',
+  'factoryDefects',
+  'modelAlerts',
+] as const;
 export const fixQualityTableSchema = z.enum(fixQualityTables);
 export type FixQualityTable = z.infer<typeof fixQualityTableSchema>;
 export const fixQualityTableLabels: Record<FixQualityTable, string> = {
@@ -212,7 +221,8 @@ export function parseModelAlertPurpose(purpose: string | null | undefined): { ma
 }
 
 /** "Wiring fault on Quellmark QRX-20": how an alert is named on every screen. */
-export const modelAlertTitle = (a: { make: string; model: string; causeCode: CauseCode }) => `${causeCodeLabels[a.causeCode]} on ${a.make} ${a.model}`;
+export const modelAlertTitle = (a: { make: string; model: string; causeCode: CauseCode }) =>
+  `${causeCodeLabels[a.causeCode]} on ${a.make} ${a.model}`;
 
 export const modelAlertUnitSchema = z.object({
   unitId: idSchema,

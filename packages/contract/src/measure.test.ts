@@ -1,5 +1,14 @@
 import { describe, expect, it } from 'vitest';
-import { elevationNote, feetToMetres, formatElevation, formatMeasure, metresToFeet, readingsElevationNote, readingUnitsBySystem, unitSystemOf } from './measure';
+import {
+  elevationNote,
+  feetToMetres,
+  formatElevation,
+  formatMeasure,
+  metresToFeet,
+  readingsElevationNote,
+  readingUnitsBySystem,
+  unitSystemOf,
+} from './measure';
 import { elevationMetersSchema, readingUnitsSchema } from './measure-schemas';
 import { saveReadingsSchema } from './visits';
 
@@ -23,8 +32,12 @@ describe('reading units', () => {
   it('refuses a mixed pair, an unknown unit and extra keys', () => {
     expect(readingUnitsSchema.safeParse(si).success).toBe(true);
     expect(readingUnitsSchema.safeParse({ pressure: 'kPag', temperature: 'F' }).error?.issues[0]?.message).toMatch(/one system/);
-    expect(readingUnitsSchema.safeParse({ pressure: 'bar', temperature: 'C' }).error?.issues[0]?.message).toBe('State the pressure unit: psig or kPag');
-    expect(readingUnitsSchema.safeParse({ pressure: 'kPag', temperature: 'K' }).error?.issues[0]?.message).toBe('State the temperature unit: F or C');
+    expect(readingUnitsSchema.safeParse({ pressure: 'bar', temperature: 'C' }).error?.issues[0]?.message).toBe(
+      'State the pressure unit: psig or kPag',
+    );
+    expect(readingUnitsSchema.safeParse({ pressure: 'kPag', temperature: 'K' }).error?.issues[0]?.message).toBe(
+      'State the temperature unit: F or C',
+    );
     expect(readingUnitsSchema.safeParse({ ...si, system: 'si' }).success).toBe(false);
   });
 

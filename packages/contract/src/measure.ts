@@ -116,7 +116,8 @@ export function readingRangeIssues(
     for (const field of readingTemperatureFields) {
       const x = r[field];
       if (x === null || x === undefined) continue;
-      if (x < lim.temperature.min) issues.push({ index, field, message: `Below ${withThousands(lim.temperature.min).replace('-', '−')} ${t}` });
+      if (x < lim.temperature.min)
+        issues.push({ index, field, message: `Below ${withThousands(lim.temperature.min).replace('-', '−')} ${t}` });
       else if (x > lim.temperature.max) issues.push({ index, field, message: `Above ${withThousands(lim.temperature.max)} ${t}` });
     }
   });

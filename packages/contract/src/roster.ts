@@ -52,8 +52,11 @@ function spanOk(v: { startAt?: string | undefined; endAt?: string | undefined })
   return d > 0 && d <= maxBookingMinutes * 60_000;
 }
 const spanIssue = { message: 'The booking must end after it starts and last at most 16 hours', path: ['endAt'] };
-const reasonOk = (v: { overrideHours?: boolean | undefined; overrideRules?: BookingRule[] | undefined; overrideReason?: string | undefined }) =>
-  !(v.overrideHours || v.overrideRules?.length) || !!v.overrideReason;
+const reasonOk = (v: {
+  overrideHours?: boolean | undefined;
+  overrideRules?: BookingRule[] | undefined;
+  overrideReason?: string | undefined;
+}) => !(v.overrideHours || v.overrideRules?.length) || !!v.overrideReason;
 const reasonIssue = { message: 'Say why this booking may break the rule', path: ['overrideReason'] };
 
 /** The rules a create or update request overrides (`overrideRules`, plus working hours for `overrideHours`). */

@@ -1,5 +1,18 @@
 import { z } from 'zod';
-import { base64FileSchema, idSchema, pickedIdSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, oneOfCsvOrFile, oneOfCsvOrFileMessage, optionalOneLine, pageQuerySchema } from './common';
+import {
+  base64FileSchema,
+  idSchema,
+  pickedIdSchema,
+  isoDateSchema,
+  latitudeSchema,
+  limits,
+  longitudeSchema,
+  oneLine,
+  oneOfCsvOrFile,
+  oneOfCsvOrFileMessage,
+  optionalOneLine,
+  pageQuerySchema,
+} from './common';
 import { temperatureUnitSchema } from './measure-schemas';
 import { circuitTargetKinds, targetRangeLimits, type CircuitTargets } from './target-range';
 import { applianceCategorySchema, unitKindSchema } from './vocabulary-schemas';
@@ -163,7 +176,8 @@ const unitFieldsSchema = z.object({
     .refine((cs) => new Set(cs.map((c) => c.number)).size === cs.length, 'Circuit numbers must differ'),
 });
 const warrantyAfterInstall = {
-  check: (u: { installDate: string | null; warrantyEnd: string | null }) => !u.installDate || !u.warrantyEnd || u.warrantyEnd >= u.installDate,
+  check: (u: { installDate: string | null; warrantyEnd: string | null }) =>
+    !u.installDate || !u.warrantyEnd || u.warrantyEnd >= u.installDate,
   params: { message: 'The warranty cannot end before the install date', path: ['warrantyEnd'] },
 };
 export const unitInputSchema = unitFieldsSchema.refine(warrantyAfterInstall.check, warrantyAfterInstall.params);
@@ -208,13 +222,20 @@ export const circuitTargetsInputSchema = z
     for (const kind of circuitTargetKinds) {
       const min = v[`${kind}Min`];
       const max = v[`${kind}Max`];
-      for (const [key, value] of [[`${kind}Min`, min], [`${kind}Max`, max]] as const) {
+      for (const [key, value] of [
+        [`${kind}Min`, min],
+        [`${kind}Max`, max],
+      ] as const) {
         if (value !== null && (value < lim.min || value > lim.max)) {
           ctx.addIssue({ code: 'custom', path: [key], message: `Between ${lim.min} and ${lim.max} ${unit}` });
         }
       }
       if ((min === null) !== (max === null)) {
-        ctx.addIssue({ code: 'custom', path: [min === null ? `${kind}Min` : `${kind}Max`], message: 'Enter both ends of the range, or clear both' });
+        ctx.addIssue({
+          code: 'custom',
+          path: [min === null ? `${kind}Min` : `${kind}Max`],
+          message: 'Enter both ends of the range, or clear both',
+        });
       } else if (min !== null && max !== null && min > max) {
         ctx.addIssue({ code: 'custom', path: [`${kind}Max`], message: `The highest ${kind} cannot be below the lowest (${min} ${unit})` });
       }
@@ -236,7 +257,17 @@ export const unitsQuerySchema = pageQuerySchema.extend({
   siteId: idSchema.optional(),
   status: recordStatusSchema.default('active'),
 });
-export const unitSortKeys = ['tag', 'kind', 'make', 'model', 'serial', 'refrigerant', 'fullChargeLb', 'installDate', 'warrantyEnd'] as const;
+export const unitSortKeys = [
+  'tag',
+  'kind',
+  'make',
+  'model',
+  'serial',
+  'refrigerant',
+  'fullChargeLb',
+  'installDate',
+  'warrantyEnd',
+] as const;
 
 export interface CircuitRow {
   id: string;

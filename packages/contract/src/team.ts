@@ -1,5 +1,15 @@
 import { z } from 'zod';
-import { emailSchema, idSchema, isoDateSchema, latitudeSchema, limits, longitudeSchema, oneLine, optionalOneLine, pageQuerySchema } from './common';
+import {
+  emailSchema,
+  idSchema,
+  isoDateSchema,
+  latitudeSchema,
+  limits,
+  longitudeSchema,
+  oneLine,
+  optionalOneLine,
+  pageQuerySchema,
+} from './common';
 import { elevationMetersSchema } from './measure-schemas';
 import type { Epa608Type, Role } from './vocabulary';
 import { epa608TypeSchema, roleSchema, workingHoursSchema, type WorkingHours } from './vocabulary-schemas';
@@ -50,7 +60,10 @@ export const branchInputSchema = z.object({
     .transform((ds) => [...new Set(ds)].sort()),
   /** Labour rate per hour, in the branch's currency (e.g. 95.50). */
   labourRate: z.coerce.number({ message: 'Enter the hourly rate' }).min(0).max(100_000),
-  currency: z.string().regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD').default('USD'),
+  currency: z
+    .string()
+    .regex(/^[A-Z]{3}$/, 'Use a three-letter currency code such as USD')
+    .default('USD'),
   unitSystem: z.enum(['imperial', 'si']).default('imperial'),
   /** Elevation of the branch's area, metres above sea level (gauges read against the air there). */
   elevationMeters: elevationMetersSchema.default(0),
@@ -139,11 +152,20 @@ export const userProfileSchema = z
     epa608Number: optionalText(40),
     workingHours: workingHoursSchema.nullish().transform((v) => v ?? null),
     startAddress: optionalText(limits.shortText),
-    startLat: z.number().pipe(latitudeSchema).nullish().transform((v) => v ?? null),
-    startLon: z.number().pipe(longitudeSchema).nullish().transform((v) => v ?? null),
+    startLat: z
+      .number()
+      .pipe(latitudeSchema)
+      .nullish()
+      .transform((v) => v ?? null),
+    startLon: z
+      .number()
+      .pipe(longitudeSchema)
+      .nullish()
+      .transform((v) => v ?? null),
   })
   .superRefine((p, ctx) => {
-    if (p.role === 'owner' && p.branchId) ctx.addIssue({ code: 'custom', path: ['branchId'], message: 'Owners see every branch; leave the branch empty' });
+    if (p.role === 'owner' && p.branchId)
+      ctx.addIssue({ code: 'custom', path: ['branchId'], message: 'Owners see every branch; leave the branch empty' });
     if (p.role !== 'owner' && !p.branchId) ctx.addIssue({ code: 'custom', path: ['branchId'], message: 'Choose the branch' });
     if (p.epa608Type !== 'none' && !p.epa608Number)
       ctx.addIssue({ code: 'custom', path: ['epa608Number'], message: 'Enter the certification number' });

@@ -158,7 +158,9 @@ export const unitFileSchema = z.object({
       status: leakCaseStatusSchema,
       repairedOn: z.string().nullable(),
       closedAt: instant.nullable(),
-      verificationTests: z.array(z.object({ id: idSchema, kind: z.enum(['initial', 'follow_up']), testedOn: z.string(), passed: z.boolean() })),
+      verificationTests: z.array(
+        z.object({ id: idSchema, kind: z.enum(['initial', 'follow_up']), testedOn: z.string(), passed: z.boolean() }),
+      ),
     }),
   ),
   attachments: z.array(unitFileAttachmentSchema),
@@ -279,9 +281,16 @@ export type RefrigerantRecordEvent = z.infer<typeof refrigerantRecordEventSchema
  * An entry of the record in words, the same on screen and in the auditor's PDF: "Refrigerant added —
  * Leak top-off — circuit 2", "Initial verification test — passed".
  */
-export function refrigerantRecordEntryText(e: Pick<RefrigerantRecordEvent, 'kind' | 'stage' | 'passed' | 'reason' | 'circuit' | 'note'>): string {
-  if (e.kind === 'verification') return `${e.stage === 'initial' ? 'Initial' : 'Follow-up'} verification test — ${e.passed ? 'passed' : 'failed'}`;
-  const parts = [refrigerantRecordEventKindLabels[e.kind], e.reason ? refrigerantEventReasonLabels[e.reason] : e.note, e.circuit != null ? `circuit ${e.circuit}` : null];
+export function refrigerantRecordEntryText(
+  e: Pick<RefrigerantRecordEvent, 'kind' | 'stage' | 'passed' | 'reason' | 'circuit' | 'note'>,
+): string {
+  if (e.kind === 'verification')
+    return `${e.stage === 'initial' ? 'Initial' : 'Follow-up'} verification test — ${e.passed ? 'passed' : 'failed'}`;
+  const parts = [
+    refrigerantRecordEventKindLabels[e.kind],
+    e.reason ? refrigerantEventReasonLabels[e.reason] : e.note,
+    e.circuit != null ? `circuit ${e.circuit}` : null,
+  ];
   return parts.filter(Boolean).join(' — ');
 }
 

@@ -4,7 +4,12 @@
  */
 
 export type VisitStatus = 'booked' | 'en_route' | 'on_site' | 'closed';
-export const visitStatusLabels: Record<VisitStatus, string> = { booked: 'Booked', en_route: 'En route', on_site: 'On site', closed: 'Closed' };
+export const visitStatusLabels: Record<VisitStatus, string> = {
+  booked: 'Booked',
+  en_route: 'En route',
+  on_site: 'On site',
+  closed: 'Closed',
+};
 
 /**
  * The rule for recording work on a visit: readings, findings and refrigerant are recorded on a visit
@@ -16,16 +21,21 @@ export function recordingRefusal(status: VisitStatus): { code: 'not_on_site' | '
     case 'on_site':
       return null;
     case 'closed':
-      return { code: 'visit_closed', message: 'This visit is already closed; it takes no more work. Add a return visit if more is needed.' };
+      return {
+        code: 'visit_closed',
+        message: 'This visit is already closed; it takes no more work. Add a return visit if more is needed.',
+      };
     case 'en_route':
       return {
         code: 'not_on_site',
-        message: 'This visit is en route, not on site yet. Readings, findings and refrigerant are recorded on site: mark yourself on site first.',
+        message:
+          'This visit is en route, not on site yet. Readings, findings and refrigerant are recorded on site: mark yourself on site first.',
       };
     default:
       return {
         code: 'not_on_site',
-        message: 'This visit is booked, not started. Readings, findings and refrigerant are recorded on site: go en route, then mark yourself on site.',
+        message:
+          'This visit is booked, not started. Readings, findings and refrigerant are recorded on site: go en route, then mark yourself on site.',
       };
   }
 }

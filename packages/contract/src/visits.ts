@@ -21,7 +21,15 @@ import type {
   Epa608Type,
   SignatureKind,
 } from './vocabulary';
-import { attachmentKindSchema, causeCodeSchema, causeOriginSchema, noteAudienceSchema, refrigerantEventReasonSchema, returnNeedSchema, visitOutcomeSchema } from './vocabulary-schemas';
+import {
+  attachmentKindSchema,
+  causeCodeSchema,
+  causeOriginSchema,
+  noteAudienceSchema,
+  refrigerantEventReasonSchema,
+  returnNeedSchema,
+  visitOutcomeSchema,
+} from './vocabulary-schemas';
 
 /** Largest file a visit upload may be (photos, nameplates, PDFs). */
 export const attachmentMaxBytes = 15 * 1024 * 1024;
@@ -69,7 +77,8 @@ export const saveReadingsSchema = z
     if (new Set(v.readings.map((r) => r.circuitId)).size !== v.readings.length) {
       ctx.addIssue({ code: 'custom', message: 'Each circuit may appear once', path: ['readings'] });
     }
-    for (const issue of readingRangeIssues(v.units, v.readings)) ctx.addIssue({ code: 'custom', message: issue.message, path: ['readings', issue.index, issue.field] });
+    for (const issue of readingRangeIssues(v.units, v.readings))
+      ctx.addIssue({ code: 'custom', message: issue.message, path: ['readings', issue.index, issue.field] });
   });
 export type SaveReadings = z.infer<typeof saveReadingsSchema>;
 
@@ -102,7 +111,13 @@ export const refrigerantEventInputSchema = z
     poundsRecovered: pounds.default(0),
     reason: refrigerantEventReasonSchema,
     /** The circuit, by number, on a unit with several (the leak rate stays per appliance). */
-    circuit: z.number({ error: 'Choose a circuit' }).int('Choose a circuit').min(1, 'Choose a circuit').max(99, 'Choose a circuit').nullable().optional(),
+    circuit: z
+      .number({ error: 'Choose a circuit' })
+      .int('Choose a circuit')
+      .min(1, 'Choose a circuit')
+      .max(99, 'Choose a circuit')
+      .nullable()
+      .optional(),
     cylinderLot: z.string().trim().max(60).nullable().optional(),
   })
   .refine((v) => v.poundsAdded > 0 || v.poundsRecovered > 0, {
@@ -149,7 +164,9 @@ export type CloseSignature = z.input<typeof closeSignatureSchema>;
  * not available (`signature` in the body). The API answers a close-out without it with 422 and this message; the
  * Visit screen asks with the same words.
  */
-export function signatureChoiceRefusal(signature: { kind: SignatureKind } | null | undefined): { code: 'signature_required'; message: string } | null {
+export function signatureChoiceRefusal(
+  signature: { kind: SignatureKind } | null | undefined,
+): { code: 'signature_required'; message: string } | null {
   if (signature) return null;
   return {
     code: 'signature_required',
@@ -166,7 +183,13 @@ export const closeVisitSchema = z
     notes: z.string().trim().max(limits.longText).nullable().optional(),
     /** Who the notes are for: `customer` notes go into the service summary, `internal` ones never do. */
     notesAudience: noteAudienceSchema.default('internal'),
-    labourMinutes: z.number().int().min(0).max(24 * 60).nullable().optional(),
+    labourMinutes: z
+      .number()
+      .int()
+      .min(0)
+      .max(24 * 60)
+      .nullable()
+      .optional(),
     /** The finding marked as the call's root cause (see `rootCauseChoice`). */
     rootCauseFindingId: idSchema.nullable().optional(),
     /** The technician confirms closing a leak repair as resolved with nothing to show it (see `leakRepairCloseRefusal`). */
@@ -215,7 +238,11 @@ export function rootCauseChoice(
   if (chosen) {
     return findingIds.includes(chosen)
       ? { ok: true, findingId: chosen }
-      : { ok: false, code: 'root_cause_unknown', message: 'The root cause must be one of this visit’s findings. Choose it again from the list.' };
+      : {
+          ok: false,
+          code: 'root_cause_unknown',
+          message: 'The root cause must be one of this visit’s findings. Choose it again from the list.',
+        };
   }
   if (findingIds.length === 0) return { ok: true, findingId: null };
   if (findingIds.length === 1) return { ok: true, findingId: findingIds[0]! };
@@ -440,8 +467,7 @@ export interface VisitDetail {
 
 /** A closed visit's sign-off: the signer's name and when they signed (the image at `imageUrl`), or not available. */
 export type VisitSignatureDto =
-  | { kind: 'signed'; signerName: string; signedAt: string; imageUrl: string }
-  | { kind: 'customer_not_available'; recordedAt: string };
+  { kind: 'signed'; signerName: string; signedAt: string; imageUrl: string } | { kind: 'customer_not_available'; recordedAt: string };
 
 export interface SummaryMailResult {
   sent: boolean;

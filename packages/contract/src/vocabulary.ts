@@ -241,12 +241,20 @@ export const alarmDeliveryStatusLabels: Record<AlarmDeliveryStatus, string> = {
 };
 
 /** Why an alarm source's request was refused. */
-export const alarmRejectionReasons = ['missing_signature', 'bad_signature', 'timestamp_skew', 'source_disabled', 'malformed_body', 'invalid_body', 'raised_in_future'] as const;
+export const alarmRejectionReasons = [
+  'missing_signature',
+  'bad_signature',
+  'timestamp_skew',
+  'source_disabled',
+  'malformed_body',
+  'invalid_body',
+  'raised_in_future',
+] as const;
 export type AlarmRejectionReason = (typeof alarmRejectionReasons)[number];
 export const alarmRejectionReasonLabels: Record<AlarmRejectionReason, string> = {
   missing_signature: 'No signature or timestamp header',
   bad_signature: 'The signature does not match the secret',
-  timestamp_skew: 'The timestamp is more than 5 minutes from Coilpath\'s clock',
+  timestamp_skew: "The timestamp is more than 5 minutes from Coilpath's clock",
   source_disabled: 'The source is disabled',
   malformed_body: 'The body is not JSON',
   invalid_body: 'The body lacks a field or has a wrong one',

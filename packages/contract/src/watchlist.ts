@@ -1,6 +1,17 @@
 import { z } from 'zod';
 import { base64FileSchema, idSchema, instantSchema, isoDateSchema, limits, oneOfCsvOrFile, oneOfCsvOrFileMessage } from './common';
-import { leakCaseStatusSchema, leakObligationStateSchema, prioritySchema, returnNeedSchema, causeCodeSchema, causeOriginSchema, workOrderStateSchema, workOrderKindSchema, visitOutcomeSchema, epa608TypeSchema } from './vocabulary-schemas';
+import {
+  leakCaseStatusSchema,
+  leakObligationStateSchema,
+  prioritySchema,
+  returnNeedSchema,
+  causeCodeSchema,
+  causeOriginSchema,
+  workOrderStateSchema,
+  workOrderKindSchema,
+  visitOutcomeSchema,
+  epa608TypeSchema,
+} from './vocabulary-schemas';
 
 /* ---------------------------------------------------------------- alarms */
 
@@ -106,8 +117,25 @@ export interface RepeatAlarmUnit {
   circuits: (string | number)[];
   /** A finding recorded a different actual circuit than the reported one. */
   circuitMismatch: boolean;
-  visits: { workOrderId: string; number: number | null; kind: z.infer<typeof workOrderKindSchema>; state: z.infer<typeof workOrderStateSchema>; closedAt: string | null; outcome: z.infer<typeof visitOutcomeSchema> | null; techName: string | null }[];
-  findings: { id: string; causeCode: z.infer<typeof causeCodeSchema>; origin: z.infer<typeof causeOriginSchema>; alarmCode: string | null; reportedCircuit: number | null; actualCircuit: number | null; notes: string | null; createdAt: string }[];
+  visits: {
+    workOrderId: string;
+    number: number | null;
+    kind: z.infer<typeof workOrderKindSchema>;
+    state: z.infer<typeof workOrderStateSchema>;
+    closedAt: string | null;
+    outcome: z.infer<typeof visitOutcomeSchema> | null;
+    techName: string | null;
+  }[];
+  findings: {
+    id: string;
+    causeCode: z.infer<typeof causeCodeSchema>;
+    origin: z.infer<typeof causeOriginSchema>;
+    alarmCode: string | null;
+    reportedCircuit: number | null;
+    actualCircuit: number | null;
+    notes: string | null;
+    createdAt: string;
+  }[];
 }
 export interface RepeatAlarmResponse {
   asOf: string;

@@ -66,7 +66,12 @@ export type WorkOrderUpdate = z.input<typeof workOrderUpdateSchema>;
 
 const stateList = z
   .string()
-  .transform((s) => s.split(',').map((x) => x.trim()).filter(Boolean))
+  .transform((s) =>
+    s
+      .split(',')
+      .map((x) => x.trim())
+      .filter(Boolean),
+  )
   .pipe(z.array(workOrderStateSchema).min(1));
 
 export const workOrderListQuerySchema = z.object({
@@ -117,9 +122,7 @@ export const workOrderSchema = z.object({
   /** An inspection created from a model alert: the alert it checks for (title and cause); null for other work. */
   modelAlert: modelAlertRefSchema.nullable(),
   /** The current booking, when booked. */
-  booking: z
-    .object({ id: idSchema, techId: idSchema, startAt: z.string(), endAt: z.string(), version: z.number().int() })
-    .nullable(),
+  booking: z.object({ id: idSchema, techId: idSchema, startAt: z.string(), endAt: z.string(), version: z.number().int() }).nullable(),
   createdAt: z.string(),
   updatedAt: z.string(),
 });

@@ -70,7 +70,7 @@ function samplePng(): Buffer {
   const rows: number[] = [];
   for (let y = 0; y < size; y++) {
     rows.push(0); // filter: none
-    for (let x = 0; x < size; x++) rows.push(...((x >> 2) + (y >> 2)) % 2 ? [0xb8, 0x73, 0x33] : [0xe8, 0xf1, 0xf8]);
+    for (let x = 0; x < size; x++) rows.push(...(((x >> 2) + (y >> 2)) % 2 ? [0xb8, 0x73, 0x33] : [0xe8, 0xf1, 0xf8]));
   }
   return Buffer.concat([
     Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
@@ -120,7 +120,9 @@ export async function run(ctx: JourneyContext) {
   // ── Route: the first stop ──
   const today = dateInZone(ctx.now(), BRANCH_ZONE);
   const { date, stops } = await dayWithStops(page, today);
-  ctx.step(`Route ${date}${date === today ? ' (today)' : ` (first day with stops after ${today})`}: ${await stops.locator(':scope > li').count()} stop(s)`);
+  ctx.step(
+    `Route ${date}${date === today ? ' (today)' : ` (first day with stops after ${today})`}: ${await stops.locator(':scope > li').count()} stop(s)`,
+  );
   if (date !== today) await ctx.screen(page, 'route-with-stops');
   const first = stops.locator(':scope > li').first();
   const siteName = (await first.getByRole('heading', { level: 2 }).innerText()).replace(/^Stop \d+:\s*/, '').trim();
@@ -134,7 +136,11 @@ export async function run(ctx: JourneyContext) {
   await first.getByRole('link', { name: 'Open visit' }).click();
   await page.waitForURL((u) => /^\/visits\/[\w-]+$/.test(u.pathname));
   await page.getByRole('heading', { level: 1, name: new RegExp(`^Visit · WO-${originNumber} Service call`) }).waitFor();
-  assert.match(await page.locator('main').innerText(), new RegExp(siteName.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')), 'the visit names the stop’s site');
+  assert.match(
+    await page.locator('main').innerText(),
+    new RegExp(siteName.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')),
+    'the visit names the stop’s site',
+  );
   ctx.step(`opened WO-${originNumber} at ${siteName}`);
   await ctx.screen(page, 'visit-booked');
 
@@ -163,8 +169,14 @@ export async function run(ctx: JourneyContext) {
   const checkComputed = async (when: string) => {
     const sh = await degrees(superheatOut);
     const sc = await degrees(subcoolingOut);
-    assert.ok(Math.abs(sh - EXPECTED_SUPERHEAT_F) <= TOLERANCE_F, `superheat ${when}: screen ${sh} °F, reference ${EXPECTED_SUPERHEAT_F.toFixed(2)} °F`);
-    assert.ok(Math.abs(sc - EXPECTED_SUBCOOLING_F) <= TOLERANCE_F, `subcooling ${when}: screen ${sc} °F, reference ${EXPECTED_SUBCOOLING_F.toFixed(2)} °F`);
+    assert.ok(
+      Math.abs(sh - EXPECTED_SUPERHEAT_F) <= TOLERANCE_F,
+      `superheat ${when}: screen ${sh} °F, reference ${EXPECTED_SUPERHEAT_F.toFixed(2)} °F`,
+    );
+    assert.ok(
+      Math.abs(sc - EXPECTED_SUBCOOLING_F) <= TOLERANCE_F,
+      `subcooling ${when}: screen ${sc} °F, reference ${EXPECTED_SUBCOOLING_F.toFixed(2)} °F`,
+    );
     return { sh, sc };
   };
   const typed = await checkComputed('as typed');
@@ -173,7 +185,10 @@ export async function run(ctx: JourneyContext) {
   assert.equal(await liquidLine.getAttribute('inputmode'), 'decimal', 'readings use the numeric keypad');
   assert.equal(await liquidLine.getAttribute('enterkeyhint'), 'next', 'the keypad’s Enter key says next');
   await liquidLine.press('Enter');
-  assert.ok(await field('Discharge pressure', 'psig').evaluate((el) => el === document.activeElement), 'Enter moved to the discharge pressure');
+  assert.ok(
+    await field('Discharge pressure', 'psig').evaluate((el) => el === document.activeElement),
+    'Enter moved to the discharge pressure',
+  );
   const bar = page.getByRole('group', { name: `Computed values, ${circuit}` });
   await page.evaluate(() => window.scrollBy(0, 400));
   const barBox = await bar.boundingBox();
@@ -182,14 +197,19 @@ export async function run(ctx: JourneyContext) {
   await notice(page, 'Readings saved for 1 circuit.').waitFor();
   // The notice covers no input or button: on a phone it takes the screen bar's place at the bottom.
   const covered = await page.evaluate(() => {
-    const notes = Array.from(document.querySelectorAll('[aria-live="polite"] > [role]')).map((n) => n.getBoundingClientRect()).filter((r) => r.height > 0);
+    const notes = Array.from(document.querySelectorAll('[aria-live="polite"] > [role]'))
+      .map((n) => n.getBoundingClientRect())
+      .filter((r) => r.height > 0);
     const nav = document.querySelector('nav[aria-label="Screens"].fixed')?.getBoundingClientRect();
     const hits: string[] = [];
-    for (const el of Array.from(document.querySelectorAll<HTMLElement>('main button, main input, main select, main textarea, main a[href], main summary'))) {
+    for (const el of Array.from(
+      document.querySelectorAll<HTMLElement>('main button, main input, main select, main textarea, main a[href], main summary'),
+    )) {
       const r = el.getBoundingClientRect();
       if (!r.width || !r.height || el.classList.contains('sr-only')) continue;
       const bottom = nav ? Math.min(r.bottom, nav.top) : r.bottom; // under the screen bar it is hidden anyway
-      if (notes.some((n) => r.left < n.right && r.right > n.left && r.top < n.bottom && bottom > n.top)) hits.push(el.getAttribute('aria-label') ?? el.textContent?.trim() ?? el.tagName);
+      if (notes.some((n) => r.left < n.right && r.right > n.left && r.top < n.bottom && bottom > n.top))
+        hits.push(el.getAttribute('aria-label') ?? el.textContent?.trim() ?? el.tagName);
     }
     return hits;
   });
@@ -198,7 +218,9 @@ export async function run(ctx: JourneyContext) {
   await page.getByRole('button', { name: 'Save readings' }).waitFor();
   assert.equal(await field('Suction pressure', 'psig').inputValue(), String(READINGS.suctionPsig), 'the saved suction pressure is shown');
   await checkComputed('after saving');
-  ctx.step(`readings saved: superheat ${typed.sh} °F (reference ${EXPECTED_SUPERHEAT_F.toFixed(2)}), subcooling ${typed.sc} °F (reference ${EXPECTED_SUBCOOLING_F.toFixed(2)})`);
+  ctx.step(
+    `readings saved: superheat ${typed.sh} °F (reference ${EXPECTED_SUPERHEAT_F.toFixed(2)}), subcooling ${typed.sc} °F (reference ${EXPECTED_SUBCOOLING_F.toFixed(2)})`,
+  );
   await ctx.screen(page, 'visit-readings');
 
   // ── A photo ──
@@ -218,7 +240,9 @@ export async function run(ctx: JourneyContext) {
   // ── A finding ──
   await page.getByLabel('Cause code').selectOption({ label: 'Component failure' });
   await page.getByLabel('Origin').selectOption({ label: 'Wear' });
-  await page.getByLabel('Notes', { exact: true }).fill('Condenser fan motor bearings worn; motor draws high amps. Replacement motor to order.');
+  await page
+    .getByLabel('Notes', { exact: true })
+    .fill('Condenser fan motor bearings worn; motor draws high amps. Replacement motor to order.');
   await page.getByRole('button', { name: 'Add finding' }).click();
   await notice(page, 'Finding saved: Component failure.').waitFor();
   const finding = page.getByRole('listitem').filter({ hasText: 'Component failure' }).filter({ hasText: 'Wear' });
@@ -231,8 +255,16 @@ export async function run(ctx: JourneyContext) {
   await page.getByRole('checkbox', { name: 'Parts', exact: true }).check();
   await page.getByLabel('Return visit notes (parts, who to bring)').fill('Condenser fan motor, 1/3 hp, 1075 rpm; bring the capacitor too.');
   // One finding: it is the call's root cause, already chosen.
-  assert.ok(await page.getByRole('group', { name: 'Root cause' }).getByRole('radio', { name: /Component failure/ }).isChecked(), 'the one finding is the root cause');
-  await page.getByLabel('Visit notes', { exact: true }).fill('Unit running on one condenser fan; return visit booked to replace the motor.');
+  assert.ok(
+    await page
+      .getByRole('group', { name: 'Root cause' })
+      .getByRole('radio', { name: /Component failure/ })
+      .isChecked(),
+    'the one finding is the root cause',
+  );
+  await page
+    .getByLabel('Visit notes', { exact: true })
+    .fill('Unit running on one condenser fan; return visit booked to replace the motor.');
   await page.getByRole('radio', { name: 'For the customer' }).check();
   // The customer's on-site contact signs on the phone: printed name, then a stroke drawn on the pad with the mouse.
   await page.getByRole('radio', { name: 'Customer signs' }).check();
@@ -266,7 +298,10 @@ export async function run(ctx: JourneyContext) {
   await created.waitFor();
   const returnNumber = Number(/WO-(\d+)/.exec(await created.innerText())![1]);
   assert.notEqual(returnNumber, originNumber, 'the return visit is a new work order');
-  await notice(page, new RegExp(`^Visit closed as needs return\\. Return visit WO-${returnNumber} created\\. Summary sent to .+\\.$`)).waitFor();
+  await notice(
+    page,
+    new RegExp(`^Visit closed as needs return\\. Return visit WO-${returnNumber} created\\. Summary sent to .+\\.$`),
+  ).waitFor();
   const closeOut = await page.locator('#close-out').innerText();
   assert.match(closeOut, /Closed .* as Needs return — needs parts\./, 'the close-out says how the visit closed');
   assert.match(closeOut, /Service summary \(with PDF\) sent to \S+@\S+\./, 'the service summary was sent to the site contact');
@@ -281,7 +316,10 @@ export async function run(ctx: JourneyContext) {
     return img.naturalWidth;
   });
   assert.ok(signatureWidth > 0, 'the stored signature loads as an image');
-  writeHandoff({ returnVisit: { number: returnNumber, siteName, originNumber }, signedSummary: { workOrderNumber: originNumber, signerName: SIGNER } });
+  writeHandoff({
+    returnVisit: { number: returnNumber, siteName, originNumber },
+    signedSummary: { workOrderNumber: originNumber, signerName: SIGNER },
+  });
   ctx.step(`closed WO-${originNumber} as needs return (parts): return visit WO-${returnNumber} created, summary sent`);
   await ctx.screen(page, 'visit-closed');
 
@@ -289,7 +327,10 @@ export async function run(ctx: JourneyContext) {
   await page.getByRole('link', { name: 'Back to Route' }).click();
   await page.getByRole('heading', { level: 1, name: 'Route' }).waitFor();
   if (date !== today) await dayWithStops(page, today);
-  const again = page.getByRole('list', { name: 'Stops in route order' }).locator(':scope > li').filter({ hasText: `WO-${originNumber}` });
+  const again = page
+    .getByRole('list', { name: 'Stops in route order' })
+    .locator(':scope > li')
+    .filter({ hasText: `WO-${originNumber}` });
   await again.getByText('Closed: Needs return').waitFor();
   ctx.step('Route shows the stop closed: needs return');
 

@@ -35,12 +35,20 @@ export async function run(ctx: JourneyContext): Promise<void> {
   };
   assert.equal(manifest.name, 'Coilpath');
   assert.equal(manifest.display, 'standalone');
-  for (const size of ['192x192', '512x512']) assert.ok(manifest.icons.some((i) => i.sizes === size), `an icon of ${size}`);
+  for (const size of ['192x192', '512x512'])
+    assert.ok(
+      manifest.icons.some((i) => i.sizes === size),
+      `an icon of ${size}`,
+    );
   for (const icon of manifest.icons) {
     const res = await page.request.get(new URL(icon.src, ctx.base).toString());
     assert.equal(res.status(), 200, `the icon ${icon.src} is served`);
   }
-  await page.waitForFunction(() => navigator.serviceWorker?.controller !== null && navigator.serviceWorker?.controller !== undefined, undefined, { timeout: 30_000 });
+  await page.waitForFunction(
+    () => navigator.serviceWorker?.controller !== null && navigator.serviceWorker?.controller !== undefined,
+    undefined,
+    { timeout: 30_000 },
+  );
   ctx.step(`installable: manifest "${manifest.name}" with ${manifest.icons.length} icons; a service worker controls the page`);
 
   // The first day with stops from today (as the technician journey finds it), opened online.
@@ -55,8 +63,10 @@ export async function run(ctx: JourneyContext): Promise<void> {
     assert.ok(i < 14, 'the demo books the technician within two weeks');
     date = addDays(date, 1);
   }
-  const firstSite = (await stops.locator(':scope > li').first().getByRole('heading', { level: 2 }).innerText()).replace(/^Stop 1:\s*/, '').trim();
-// The phone writes what it keeps a moment after each answer (throttled): wait for the route and its briefings.
+  const firstSite = (await stops.locator(':scope > li').first().getByRole('heading', { level: 2 }).innerText())
+    .replace(/^Stop 1:\s*/, '')
+    .trim();
+  // The phone writes what it keeps a moment after each answer (throttled): wait for the route and its briefings.
   const kept = (keys: string) => keys.includes(`["day","${date}"]`) && keys.includes('"unit-briefing"');
   for (let i = 0; !kept(await page.evaluate(keptKeys)); i++) {
     assert.ok(i < 60, `the phone keeps the route of ${date} and its briefings (IndexedDB)`);
@@ -69,7 +79,10 @@ export async function run(ctx: JourneyContext): Promise<void> {
   await page.reload();
   await routeHeading(page).waitFor();
   await page.getByText('Offline.', { exact: false }).first().waitFor();
-  await stops.getByRole('heading', { level: 2, name: new RegExp(firstSite.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')) }).first().waitFor();
+  await stops
+    .getByRole('heading', { level: 2, name: new RegExp(firstSite.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')) })
+    .first()
+    .waitFor();
   const firstStop = stops.locator(':scope > li').first();
   const briefing = firstStop.locator('details').first();
   if ((await briefing.count()) > 0) {

@@ -44,12 +44,26 @@ async function until<T>(page: Page, read: () => Promise<T>, done: (v: T) => bool
 }
 
 const weekdayNames = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
-const monthNames = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+const monthNames = [
+  'January',
+  'February',
+  'March',
+  'April',
+  'May',
+  'June',
+  'July',
+  'August',
+  'September',
+  'October',
+  'November',
+  'December',
+];
 /** "Tuesday 1 December", as the board names a day. */
 const dayLong = (d: string) => `${weekdayNames[weekdayOf(d)]} ${Number(d.slice(8))} ${monthNames[Number(d.slice(5, 7)) - 1]}`;
 
 /** "Tue 1 Dec", as the notices name a day. */
-const shortDay = (d: string) => `${weekdayNames[weekdayOf(d)]!.slice(0, 3)} ${Number(d.slice(8))} ${monthNames[Number(d.slice(5, 7)) - 1]!.slice(0, 3)}`;
+const shortDay = (d: string) =>
+  `${weekdayNames[weekdayOf(d)]!.slice(0, 3)} ${Number(d.slice(8))} ${monthNames[Number(d.slice(5, 7)) - 1]!.slice(0, 3)}`;
 
 /** The technicians the "Show" list offers: id and name. */
 async function technicians(page: Page): Promise<{ id: string; name: string }[]> {
@@ -114,7 +128,11 @@ async function bookAgainstARule(ctx: JourneyContext, page: Page, today: string, 
   await form.getByRole('button', { name: 'Book', exact: true }).click();
   await dialog.waitFor({ state: 'hidden' });
 
-  await page.getByRole('status').filter({ hasText: new RegExp(`^Booked WO-${job.number} with ${tech.name}`) }).first().waitFor();
+  await page
+    .getByRole('status')
+    .filter({ hasText: new RegExp(`^Booked WO-${job.number} with ${tech.name}`) })
+    .first()
+    .waitFor();
 
   // The chip on the board (every technician) says so.
   await page.getByRole('button', { name: 'Board', exact: true }).click();
@@ -123,7 +141,9 @@ async function bookAgainstARule(ctx: JourneyContext, page: Page, today: string, 
   const badge = cellOf(tech.id, day).getByTestId('chip-override');
   await badge.waitFor();
   assert.match(await badge.innerText(), /Override: .*required skill/, 'the chip names the overridden rule');
-  const chip = cellOf(tech.id, day).locator('[data-chip]').filter({ has: page.getByTestId('chip-override') });
+  const chip = cellOf(tech.id, day)
+    .locator('[data-chip]')
+    .filter({ has: page.getByTestId('chip-override') });
   assert.ok((await chip.innerText()).includes(reason), 'the chip shows the reason');
   ctx.step(`booked against the required skill with a reason; the chip says "${(await badge.innerText()).trim()}"`);
   await ctx.screen(page, 'roster-override-chip');
@@ -135,7 +155,12 @@ async function showWeekOf(page: Page, has: () => Promise<boolean>) {
   for (let i = 0; i < 3 && !(await has()); i++) {
     const before = await title.innerText();
     await page.getByRole('button', { name: 'Next week' }).click();
-    await until(page, () => title.innerText(), (t) => t !== before, 5000);
+    await until(
+      page,
+      () => title.innerText(),
+      (t) => t !== before,
+      5000,
+    );
   }
   assert.ok(await has(), 'the week is reachable with "Next week"');
 }
@@ -154,11 +179,19 @@ export async function run(ctx: JourneyContext) {
   // ── The technician board: the default week presentation ──
   const board = page.getByRole('table', { name: /^Technician board/ });
   await board.waitFor();
-  assert.equal(await page.getByRole('button', { name: 'Board', exact: true }).getAttribute('aria-pressed'), 'true', 'the Board view is the default');
+  assert.equal(
+    await page.getByRole('button', { name: 'Board', exact: true }).getAttribute('aria-pressed'),
+    'true',
+    'the Board view is the default',
+  );
   const techs = await technicians(page);
   assert.ok(techs.length >= 5, `the demo branch has five or more technicians (${techs.length})`);
   const rowNames = (await board.getByRole('rowheader').allInnerTexts()).map((t) => t.split('\n')[0]!.trim());
-  assert.deepEqual(rowNames, techs.map((t) => t.name), 'one row per technician, in the Show list’s order');
+  assert.deepEqual(
+    rowNames,
+    techs.map((t) => t.name),
+    'one row per technician, in the Show list’s order',
+  );
   const columns = await board.getByRole('columnheader').allInnerTexts();
   assert.equal(columns.length, 8, 'a technician column and seven days');
   const today = dateInZone(ctx.now(), BRANCH_ZONE);
@@ -169,9 +202,13 @@ export async function run(ctx: JourneyContext) {
   await chips.first().waitFor();
   const narrowest = Math.min(...(await chips.evaluateAll((els) => els.map((e) => e.getBoundingClientRect().width))));
   assert.ok(narrowest >= 80, `every booking chip is readable (narrowest ${narrowest.toFixed(0)} px)`);
-  const firstCell = board.getByRole('button', { name: new RegExp(`^${techs[0]!.name}, ${dayLong(today)} \\(today\\): (no bookings|\\d+ bookings?), `) });
+  const firstCell = board.getByRole('button', {
+    name: new RegExp(`^${techs[0]!.name}, ${dayLong(today)} \\(today\\): (no bookings|\\d+ bookings?), `),
+  });
   assert.equal(await firstCell.count(), 1, `the cell of ${techs[0]!.name} today is named with its bookings and load`);
-  ctx.step(`board: ${techs.length} technicians × 7 days, ${await chips.count()} chips, narrowest ${narrowest.toFixed(0)} px; "${await firstCell.getAttribute('aria-label')}"`);
+  ctx.step(
+    `board: ${techs.length} technicians × 7 days, ${await chips.count()} chips, narrowest ${narrowest.toFixed(0)} px; "${await firstCell.getAttribute('aria-label')}"`,
+  );
   await ctx.screen(page, 'roster');
 
   // ── The return visit in the unplaced queue ──
@@ -194,7 +231,9 @@ export async function run(ctx: JourneyContext) {
     assert.match(itemText, new RegExp(`from WO-${handoff.originNumber}\\b`), 'the queue names the visit it came from');
     assert.ok(itemText.includes(handoff.siteName), `the queue names the site (${handoff.siteName})`);
   }
-  ctx.step(`found WO-${number} in the unplaced queue${handoff ? ` (from the technician's WO-${handoff.originNumber} at ${handoff.siteName})` : ''}`);
+  ctx.step(
+    `found WO-${number} in the unplaced queue${handoff ? ` (from the technician's WO-${handoff.originNumber} at ${handoff.siteName})` : ''}`,
+  );
 
   // ── Drag it onto a technician's day on the board ──
   // The demo week is well booked, so the dispatcher tries the coming days until a technician has a
@@ -211,7 +250,11 @@ export async function run(ctx: JourneyContext) {
   await handle.dragTo(cellOf(techs[0]!.id, firstDay));
   const dialog = page.getByRole('dialog', { name: new RegExp(`^Book WO-${number}\\b`) });
   await dialog.waitFor();
-  assert.equal(await dialog.getByLabel('Technician', { exact: true }).inputValue(), techs[0]!.id, `the form is for ${techs[0]!.name}, the row it was dropped on`);
+  assert.equal(
+    await dialog.getByLabel('Technician', { exact: true }).inputValue(),
+    techs[0]!.id,
+    `the form is for ${techs[0]!.name}, the row it was dropped on`,
+  );
   assert.equal(await dialog.getByLabel('Date').inputValue(), firstDay, `the form is for ${firstDay}, the column it was dropped on`);
   await dialog.getByRole('heading', { name: `Suggested technicians for ${firstDay}` }).waitFor();
   await dialog.getByText('Ranking technicians…').waitFor({ state: 'hidden' });
@@ -221,22 +264,41 @@ export async function run(ctx: JourneyContext) {
   if ((await chosenOffer.count()) > 0) {
     const at = /at (\d\d:\d\d)$/.exec(await chosenOffer.innerText())![1]!;
     const start = dialog.getByLabel(/^Start/);
-    await until(page, () => start.inputValue(), (v) => v === at, 5000);
+    await until(
+      page,
+      () => start.inputValue(),
+      (v) => v === at,
+      5000,
+    );
     assert.equal(await start.inputValue(), at, `the start is the server’s proposal for ${techs[0]!.name} (${at})`);
     ctx.step(`dropped on ${techs[0]!.name}, ${firstDay}: the form proposes ${at}`);
   } else {
     // Too little free time, or a booking rule (skill, certification, due time): the form says which.
-    const why = dialog.getByRole('status').filter({ hasText: /has no free time for this job that day|is not proposed for this job that day/ });
+    const why = dialog
+      .getByRole('status')
+      .filter({ hasText: /has no free time for this job that day|is not proposed for this job that day/ });
     await why.waitFor();
     ctx.step(`dropped on ${techs[0]!.name}, ${firstDay}: not proposed, and the form says why: "${(await why.innerText()).trim()}"`);
     // Choosing a suggested technician instead: the start follows that technician's proposal.
-    const offer = dialog.locator('ol > li').getByRole('button', { name: /^Book \S+ at \d\d:\d\d$/ }).first();
+    const offer = dialog
+      .locator('ol > li')
+      .getByRole('button', { name: /^Book \S+ at \d\d:\d\d$/ })
+      .first();
     if ((await offer.count()) > 0) {
       const [, first, at] = /^Book (\S+) at (\d\d:\d\d)$/.exec((await offer.innerText()).trim())!;
       const other = techs.find((t) => t.name.split(' ')[0] === first)!;
       await dialog.getByLabel('Technician', { exact: true }).selectOption(other.id);
       const start = dialog.getByLabel(/^Start/);
-      assert.equal(await until(page, () => start.inputValue(), (v) => v === at, 5000), at, `choosing ${other.name} proposes ${at}`);
+      assert.equal(
+        await until(
+          page,
+          () => start.inputValue(),
+          (v) => v === at,
+          5000,
+        ),
+        at,
+        `choosing ${other.name} proposes ${at}`,
+      );
       ctx.step(`chose ${other.name} in the form: the start follows to ${at}`);
     }
   }
@@ -250,19 +312,35 @@ export async function run(ctx: JourneyContext) {
     if (day !== firstDay) await dialog.getByLabel('Date').fill(day);
     await dialog.getByRole('heading', { name: `Suggested technicians for ${day}` }).waitFor();
     // Every candidate's reasons name the day ranked ("… free on <day>", "No free slot … on <day>", "Not working on <day>").
-    await dialog.getByRole('listitem').filter({ hasText: new RegExp(`on ${day}\\b`) }).first().waitFor();
+    await dialog
+      .getByRole('listitem')
+      .filter({ hasText: new RegExp(`on ${day}\\b`) })
+      .first()
+      .waitFor();
     await dialog.getByText('Ranking technicians…').waitFor({ state: 'hidden' });
     if ((await proposal.count()) > 0) break;
     tried.push(day);
   }
-  assert.ok((await proposal.count()) > 0, `a technician is free for WO-${number} on one of the coming weekdays (none on ${tried.join(', ')})`);
+  assert.ok(
+    (await proposal.count()) > 0,
+    `a technician is free for WO-${number} on one of the coming weekdays (none on ${tried.join(', ')})`,
+  );
   if (tried.length) ctx.step(`no free technician on ${tried.join(', ')}: every candidate says why (no free slot / not working)`);
   // The first candidate with a one-click proposal: its reasons are the list under its name.
-  const candidate = dialog.locator('ol > li').filter({ has: page.getByRole('button', { name: proposalName }) }).first();
+  const candidate = dialog
+    .locator('ol > li')
+    .filter({ has: page.getByRole('button', { name: proposalName }) })
+    .first();
   const reasons = (await candidate.locator('ul > li').allInnerTexts()).map((r) => r.trim());
   assert.ok(reasons.length > 0, 'the proposed technician comes with reasons');
-  assert.ok(reasons.some((r) => new RegExp(`free on ${day}$`).test(r)), `a reason names the free time on ${day}: ${reasons.join(' | ')}`);
-  assert.ok(reasons.some((r) => /drive from the previous stop$/.test(r)), `a reason names the drive: ${reasons.join(' | ')}`);
+  assert.ok(
+    reasons.some((r) => new RegExp(`free on ${day}$`).test(r)),
+    `a reason names the free time on ${day}: ${reasons.join(' | ')}`,
+  );
+  assert.ok(
+    reasons.some((r) => /drive from the previous stop$/.test(r)),
+    `a reason names the drive: ${reasons.join(' | ')}`,
+  );
   const minutes = Number(await dialog.getByLabel('Length in minutes').inputValue());
   assert.ok(minutes >= 15, 'the form proposes the work order’s estimated length');
   const proposalText = (await proposal.innerText()).trim();
@@ -302,7 +380,11 @@ export async function run(ctx: JourneyContext) {
   await page.keyboard.press('Enter');
   const details = page.getByRole('dialog', { name: `WO-${number} · Return visit` });
   await details.waitFor();
-  assert.match(await details.innerText(), new RegExp(`${techName}, \\w{3} \\d{1,2} \\w{3}, ${from}–${to}`), 'the booking’s details open from the chip');
+  assert.match(
+    await details.innerText(),
+    new RegExp(`${techName}, \\w{3} \\d{1,2} \\w{3}, ${from}–${to}`),
+    'the booking’s details open from the chip',
+  );
   await details.getByRole('button', { name: 'Save changes' }).waitFor(); // move, reassign…
   await details.getByRole('button', { name: 'Unbook' }).waitFor(); // …or unbook
   await page.keyboard.press('Escape');
@@ -310,7 +392,10 @@ export async function run(ctx: JourneyContext) {
   assert.equal(await chip.evaluate((el) => el === document.activeElement), true, 'focus returns to the chip');
   const focused = async () => (await page.evaluate(() => document.activeElement?.getAttribute('aria-label'))) ?? '';
   await page.keyboard.press('ArrowRight');
-  assert.ok((await focused()).startsWith(`${techName}, ${dayLong(addDays(day, 1))}`), `ArrowRight moves to the next day: "${await focused()}"`);
+  assert.ok(
+    (await focused()).startsWith(`${techName}, ${dayLong(addDays(day, 1))}`),
+    `ArrowRight moves to the next day: "${await focused()}"`,
+  );
   const [away, back] = techs.findIndex((t) => t.id === techId) > 0 ? ['ArrowUp', 'ArrowDown'] : ['ArrowDown', 'ArrowUp'];
   await page.keyboard.press(away);
   assert.ok(!(await focused()).startsWith(techName), `${away} moves to another technician: "${await focused()}"`);
@@ -348,15 +433,29 @@ export async function run(ctx: JourneyContext) {
   await page.locator('.fc-timegrid-event-harness').first().waitFor();
   assert.match(new URL(page.url()).search, /view=week/, 'the view is in the URL');
   const shared = await page.locator('.fc-timegrid-event-harness').count();
-  await page.getByRole('note').filter({ hasText: /technicians share each day here/ }).waitFor();
-  const slimmest = Math.min(...(await page.locator('.fc-timegrid-event-harness').evaluateAll((els) => els.map((e) => e.getBoundingClientRect().width))));
+  await page
+    .getByRole('note')
+    .filter({ hasText: /technicians share each day here/ })
+    .waitFor();
+  const slimmest = Math.min(
+    ...(await page.locator('.fc-timegrid-event-harness').evaluateAll((els) => els.map((e) => e.getBoundingClientRect().width))),
+  );
   assert.ok(slimmest >= 40, `no event on the shared week grid is a sliver (narrowest ${slimmest.toFixed(0)} px)`);
   ctx.step(`week time grid with every technician: ${shared} events drawn, narrowest ${slimmest.toFixed(0)} px, the rest behind "+ more"`);
 
   // ── Show only that technician, in the week of the booking ──
   const show = page.getByRole('combobox', { name: 'Show' });
   await show.selectOption({ label: `Only ${techName}` });
-  assert.equal(await until(page, () => show.inputValue(), (v) => v === techId, 5000), techId, `only ${techName} is shown`);
+  assert.equal(
+    await until(
+      page,
+      () => show.inputValue(),
+      (v) => v === techId,
+      5000,
+    ),
+    techId,
+    `only ${techName} is shown`,
+  );
   assert.match(new URL(page.url()).search, new RegExp(`tech=${techId}`), 'the technician is in the URL');
   await showWeekOf(page, async () => (await page.locator(`td.fc-timegrid-col[data-date="${day}"]`).count()) > 0);
   const event = page.locator(`.fc-event[aria-label^="WO-${number} with "]`);
@@ -434,7 +533,13 @@ export async function run(ctx: JourneyContext) {
     await page.mouse.move(p.grab.x + 6, p.grab.y + 6, { steps: 3 }); // past FullCalendar's drag threshold
     await page.mouse.move(p.drop.x, p.drop.y, { steps: 15 });
     await page.mouse.up();
-    moved = (await until(page, () => columnOf(event), (d) => d === targetDate, 5000)) === targetDate;
+    moved =
+      (await until(
+        page,
+        () => columnOf(event),
+        (d) => d === targetDate,
+        5000,
+      )) === targetDate;
     if (!moved) ctx.step(`drag attempt ${attempt} did not land; retrying`);
   }
   assert.ok(moved, `WO-${number} was dragged from ${day} to ${targetDate}`);
@@ -456,7 +561,9 @@ export async function run(ctx: JourneyContext) {
   );
   assert.equal(after.source, before.source - minutes, `${day}: ${before.source} min − ${minutes} min booked`);
   assert.equal(after.target, before.target + minutes, `${targetDate}: ${before.target} min + ${minutes} min booked`);
-  ctx.step(`dragged to ${targetDate}: load ${day} ${before.source}→${after.source} min, ${targetDate} ${before.target}→${after.target} min`);
+  ctx.step(
+    `dragged to ${targetDate}: load ${day} ${before.source}→${after.source} min, ${targetDate} ${before.target}→${after.target} min`,
+  );
   await page.waitForFunction(() => !document.querySelector('[aria-busy="true"]'));
   await ctx.screen(page, 'roster-moved');
 
@@ -471,7 +578,9 @@ export async function run(ctx: JourneyContext) {
   await pager.waitFor();
   const dayButtons = mobile.getByRole('group', { name: 'Day of the week' }).getByRole('button');
   assert.equal(await dayButtons.count(), 7, 'a button per day of the week');
-  const todayButton = mobile.getByRole('button', { name: new RegExp(`^${dayLong(today).slice(0, 3)} ${Number(today.slice(8))} ${monthNames[Number(today.slice(5, 7)) - 1]}, today`) });
+  const todayButton = mobile.getByRole('button', {
+    name: new RegExp(`^${dayLong(today).slice(0, 3)} ${Number(today.slice(8))} ${monthNames[Number(today.slice(5, 7)) - 1]}, today`),
+  });
   assert.equal(await todayButton.getAttribute('aria-pressed'), 'true', 'the phone opens on today');
   const stacked = mobile.getByRole('list', { name: `Technicians on ${dayLong(today)}` }).locator('> li');
   assert.equal(await stacked.count(), techs.length, 'every technician stacked under the day');
@@ -483,11 +592,17 @@ export async function run(ctx: JourneyContext) {
   const job = mobile.getByRole('list', { name: 'Unplaced work, sorted' }).getByRole('listitem').first();
   const jobNumber = /WO-(\d+)/.exec(await job.innerText())![1]!;
   await job.getByRole('button', { name: /^Place WO-\d+ .+ on the board$/ }).click();
-  const place = mobile.getByRole('button', { name: new RegExp(`^Book here: WO-${jobNumber} .+ for ${techs[1]!.name} on ${dayLong(next)}\\.`) });
+  const place = mobile.getByRole('button', {
+    name: new RegExp(`^Book here: WO-${jobNumber} .+ for ${techs[1]!.name} on ${dayLong(next)}\\.`),
+  });
   await place.click();
   const phoneDialog = mobile.getByRole('dialog', { name: new RegExp(`^Book WO-${jobNumber}\\b`) });
   await phoneDialog.waitFor();
-  assert.equal(await phoneDialog.getByLabel('Technician', { exact: true }).inputValue(), techs[1]!.id, 'the form is for the technician tapped');
+  assert.equal(
+    await phoneDialog.getByLabel('Technician', { exact: true }).inputValue(),
+    techs[1]!.id,
+    'the form is for the technician tapped',
+  );
   assert.equal(await phoneDialog.getByLabel('Date').inputValue(), next, 'and the day shown');
   await phoneDialog.getByText('Ranking technicians…').waitFor({ state: 'hidden' });
   await ctx.screen(mobile, 'roster-phone-book');

@@ -22,7 +22,8 @@ const SECOND_DISPATCHER = 'dispatch2@coilpath.example';
 /** The technician the technician journeys use (tech@): set off with someone else's stop when there is one. */
 const TECHNICIANS_JOURNEY = 'Luis Ferreira';
 /** A demo technician's sign-in: tech@ for Luis Ferreira, first.last@ for the other Chicago technicians (catalogue.ts). */
-const emailOf = (name: string) => (name === TECHNICIANS_JOURNEY ? 'tech@coilpath.example' : `${name.toLowerCase().split(' ').join('.')}@coilpath.example`);
+const emailOf = (name: string) =>
+  name === TECHNICIANS_JOURNEY ? 'tech@coilpath.example' : `${name.toLowerCase().split(' ').join('.')}@coilpath.example`;
 
 async function signIn(ctx: JourneyContext, page: Page, email: string, home = '/roster') {
   await page.goto(`${ctx.base}/sign-in`);
@@ -44,7 +45,10 @@ async function showCell(page: Page, testId: string) {
   const target = testId.slice(-10);
   const shownDays = () =>
     page.locator('[data-testid^="board-"]').evaluateAll((els) =>
-      els.map((e) => e.getAttribute('data-testid')!.slice(-10)).filter((d) => /^\d{4}-\d{2}-\d{2}$/.test(d)).sort(),
+      els
+        .map((e) => e.getAttribute('data-testid')!.slice(-10))
+        .filter((d) => /^\d{4}-\d{2}-\d{2}$/.test(d))
+        .sort(),
     );
   for (let i = 0; i < 8 && (await page.getByTestId(testId).count()) === 0; i++) {
     await page.locator('[data-testid^="board-"]').first().waitFor();
@@ -75,14 +79,23 @@ type DayLoad = { techId: string; day: string; bookedMinutes: number; capacityMin
  * Tuesday before free and worked by that technician (so the move there breaks no rule).
  */
 async function findMove(ctx: JourneyContext, page: Page, today: string) {
-  const jobs = ((await (await page.request.get(`${ctx.base}/api/work-orders`, { params: { state: 'unplaced' } })).json()) as { workOrders: Job[] }).workOrders;
+  const jobs = (
+    (await (await page.request.get(`${ctx.base}/api/work-orders`, { params: { state: 'unplaced' } })).json()) as { workOrders: Job[] }
+  ).workOrders;
   let wednesday = addDays(today, 8);
   while (weekdayOf(wednesday) !== 3) wednesday = addDays(wednesday, 1);
   for (let week = 0; week < 3; week++, wednesday = addDays(wednesday, 7)) {
     const tuesday = addDays(wednesday, -1);
-    const load = ((await (await page.request.get(`${ctx.base}/api/roster/load`, { params: { from: tuesday, to: tuesday } })).json()) as { load: DayLoad[] }).load;
+    const load = (
+      (await (await page.request.get(`${ctx.base}/api/roster/load`, { params: { from: tuesday, to: tuesday } })).json()) as {
+        load: DayLoad[];
+      }
+    ).load;
     for (const job of jobs.slice(0, 6)) {
-      const res = await page.request.post(`${ctx.base}/api/roster/suggest`, { data: { workOrderId: job.id, day: wednesday }, headers: { Origin: ctx.base } });
+      const res = await page.request.post(`${ctx.base}/api/roster/suggest`, {
+        data: { workOrderId: job.id, day: wednesday },
+        headers: { Origin: ctx.base },
+      });
       const { candidates } = (await res.json()) as { candidates: Candidate[] };
       const pick = candidates.find((c) => {
         const l = load.find((x) => x.techId === c.techId && x.day === tuesday);
@@ -118,7 +131,11 @@ export async function run(ctx: JourneyContext) {
   await showCell(second, `board-${tech.techId}-${wednesday}`);
   await chip(first, wednesday).waitFor();
   await chip(second, wednesday).waitFor();
-  assert.equal(await chip(second, wednesday).getByTestId('chip-changed-by').count(), 0, 'one’s own booking says nothing about who changed it');
+  assert.equal(
+    await chip(second, wednesday).getByTestId('chip-changed-by').count(),
+    0,
+    'one’s own booking says nothing about who changed it',
+  );
 
   // ── The first dispatcher drags it to the Tuesday ──
   await chip(first, wednesday).dragTo(cell(first, tuesday).locator('[data-nav-head]'));
@@ -132,8 +149,16 @@ export async function run(ctx: JourneyContext) {
   assert.equal(await chip(second, wednesday).count(), 0, `WO-${job.number} left ${wednesday} on the second board`);
   const mark = chip(second, tuesday).getByTestId('chip-changed-by');
   await mark.waitFor();
-  assert.equal((await mark.innerText()).trim(), 'Changed by Priya just now', 'the chip says who moved it (the demo dispatcher Priya Venkatesh)');
-  assert.equal(await chip(first, tuesday).getByTestId('chip-changed-by').count(), 0, 'the one who moved it is not told about their own move');
+  assert.equal(
+    (await mark.innerText()).trim(),
+    'Changed by Priya just now',
+    'the chip says who moved it (the demo dispatcher Priya Venkatesh)',
+  );
+  assert.equal(
+    await chip(first, tuesday).getByTestId('chip-changed-by').count(),
+    0,
+    'the one who moved it is not told about their own move',
+  );
   ctx.step(`the second board shows WO-${job.number} on ${tuesday}: "${(await mark.innerText()).trim()}", without a reload`);
   await ctx.screen(second, 'roster-changed-by-another');
 
@@ -141,11 +166,17 @@ export async function run(ctx: JourneyContext) {
   // The next stop ahead of a Chicago technician other than the one the technician journeys use; when the demo
   // has none in the coming two weeks (a holiday season), the job just moved.
   type Row = { id: string; techId: string; startAt: string; visitId: string | null; workOrder: { number: number; state: string } };
-  const techs = ((await (await first.request.get(`${ctx.base}/api/roster/technicians`)).json()) as { technicians: { id: string; name: string }[] }).technicians;
+  const techs = (
+    (await (await first.request.get(`${ctx.base}/api/roster/technicians`)).json()) as { technicians: { id: string; name: string }[] }
+  ).technicians;
   const now = ctx.now();
-  const rows = ((await (await first.request.get(`${ctx.base}/api/bookings`, {
-    params: { from: now.toISOString(), to: new Date(now.getTime() + 14 * 86_400_000).toISOString() },
-  })).json()) as { bookings: Row[] }).bookings;
+  const rows = (
+    (await (
+      await first.request.get(`${ctx.base}/api/bookings`, {
+        params: { from: now.toISOString(), to: new Date(now.getTime() + 14 * 86_400_000).toISOString() },
+      })
+    ).json()) as { bookings: Row[] }
+  ).bookings;
   const nameOf = (techId: string) => techs.find((t) => t.id === techId)!.name;
   const other = rows
     .filter((b) => b.workOrder.state === 'booked' && b.visitId && b.id !== booking.id && nameOf(b.techId) !== TECHNICIANS_JOURNEY)
@@ -169,7 +200,10 @@ export async function run(ctx: JourneyContext) {
   }
   const technician = await ctx.launch(phone);
   await signIn(ctx, technician, emailOf(technicianName), '/day');
-  const enRoute = await technician.request.patch(`${ctx.base}/api/visits/${stop.visitId}`, { data: { state: 'en_route' }, headers: { Origin: ctx.base } });
+  const enRoute = await technician.request.patch(`${ctx.base}/api/visits/${stop.visitId}`, {
+    data: { state: 'en_route' },
+    headers: { Origin: ctx.base },
+  });
   assert.equal(enRoute.status(), 200, `${technicianName} sets off to WO-${stop.workOrder.number}: ${await enRoute.text()}`);
   for (const page of [first, second]) {
     await page.getByTestId(stopCell).locator(`[data-chip="${stop.id}"]`).filter({ hasText: 'En route' }).waitFor({ timeout: 10_000 });

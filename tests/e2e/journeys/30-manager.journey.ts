@@ -37,9 +37,7 @@ async function noticeText(page: Page, pattern: RegExp): Promise<string> {
 }
 
 async function bookTheLeakRepair(ctx: JourneyContext, page: Page): Promise<number> {
-  const card = page
-    .getByRole('listitem')
-    .filter({ has: page.getByRole('heading', { level: 3, name: /^CH-1\b.*Marlow Tower/ }) });
+  const card = page.getByRole('listitem').filter({ has: page.getByRole('heading', { level: 3, name: /^CH-1\b.*Marlow Tower/ }) });
   await card.first().waitFor();
   assert.equal(await card.count(), 1, 'one open leak case on CH-1 at Marlow Tower');
 
@@ -60,7 +58,11 @@ async function bookTheLeakRepair(ctx: JourneyContext, page: Page): Promise<numbe
   const said = await noticeText(page, /Repair visit WO-\d+ is in the Roster queue/);
   const number = Number(/WO-(\d+)/.exec(said)![1]);
   assert.ok(number > 0, `the notice names the work order (${said})`);
-  assert.match(said, /to be booked by \d{1,2} [A-Z][a-z]{2} \d{4} with an EPA 608 .+ technician\./, 'the notice gives the deadline and the certification');
+  assert.match(
+    said,
+    /to be booked by \d{1,2} [A-Z][a-z]{2} \d{4} with an EPA 608 .+ technician\./,
+    'the notice gives the deadline and the certification',
+  );
   // The card now names the repair visit instead of offering to book it again.
   await card.getByText(`Repair visit WO-${number}: in the Roster queue, not booked yet`).waitFor();
   assert.equal(await book.count(), 0, 'the case cannot be booked twice');
@@ -135,14 +137,18 @@ async function buildQuarterlyAgreement(ctx: JourneyContext, page: Page) {
   await form.getByLabel('SLA response (hours)').fill('8');
   await form.getByLabel('Minutes per visit').fill('90');
   await form.getByLabel('Price per term (USD)').fill('4,200');
-  await form.getByLabel('Tasks per visit (one a line)').fill('Replace filters\nClean condenser coil\nCheck belts and bearings\nTest safeties and controls');
+  await form
+    .getByLabel('Tasks per visit (one a line)')
+    .fill('Replace filters\nClean condenser coil\nCheck belts and bearings\nTest safeties and controls');
   assert.match(await form.innerText(), /every 3 months/i, 'the recurrence reads as every 3 months');
   await ctx.screen(page, 'agreement-form');
   await form.getByRole('button', { name: 'Save agreement' }).click();
 
   const saved = await noticeText(page, /Agreement “.+” for .+ saved\./);
   assert.equal(saved, `Agreement “${AGREEMENT_NAME}” for ${AGREEMENT_SITE} saved. Preview its visit plan next.`);
-  const panel = page.locator('section').filter({ has: page.getByRole('heading', { level: 2, name: `${AGREEMENT_NAME} — ${AGREEMENT_SITE}` }) });
+  const panel = page
+    .locator('section')
+    .filter({ has: page.getByRole('heading', { level: 2, name: `${AGREEMENT_NAME} — ${AGREEMENT_SITE}` }) });
   await panel.waitFor();
   const terms = await panel.innerText();
   assert.match(terms, /8 hours/, 'the SLA is saved');
@@ -150,7 +156,11 @@ async function buildQuarterlyAgreement(ctx: JourneyContext, page: Page) {
   // Dates in words as date-fns writes "d MMM yyyy" (the house style, DEVELOPERS.md "Dates on screen").
   const words = (d: string) => format(new Date(`${d}T12:00:00`), 'd MMM yyyy');
   assert.match(terms, new RegExp(`${words(termStart)} → ${words(termEnd)}`), 'the term is saved, its dates in words');
-  assert.match(terms, /Replace filters · Clean condenser coil · Check belts and bearings · Test safeties and controls/, 'the tasks are saved');
+  assert.match(
+    terms,
+    /Replace filters · Clean condenser coil · Check belts and bearings · Test safeties and controls/,
+    'the tasks are saved',
+  );
   assert.match(terms, /No visits planned yet/, 'no visits before the plan is applied');
   ctx.step(`saved “${AGREEMENT_NAME}” (${unitCount} unit(s), ${termStart} → ${termEnd})`);
 
@@ -202,7 +212,11 @@ export async function run(ctx: JourneyContext) {
   const page = await ctx.launch(desktop);
   await signInThroughForm(ctx, page, 'branch_manager');
   const labels = await navigationLabels(page);
-  assert.deepEqual(labels, expectedNavigation('branch_manager', 'desktop'), 'the manager sees Roster, Watchlist, Agreements, Fix Quality, Sites');
+  assert.deepEqual(
+    labels,
+    expectedNavigation('branch_manager', 'desktop'),
+    'the manager sees Roster, Watchlist, Agreements, Fix Quality, Sites',
+  );
   await page.getByRole('heading', { level: 1, name: 'Watchlist' }).waitFor();
   await ctx.screen(page, 'watchlist');
 

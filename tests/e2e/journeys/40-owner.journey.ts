@@ -92,7 +92,11 @@ async function createInspections(ctx: JourneyContext, page: Page) {
   const notice = page.locator('[aria-live="polite"] [role="status"]').filter({ hasText: /Created \d+ inspection work orders?/ });
   await notice.waitFor();
   const said = (await notice.innerText()).trim();
-  assert.match(said, new RegExp(`Created ${n} inspection work order${n === 1 ? '' : 's'} \\(.+ in .+\\)\\. They wait in each branch’s Roster queue\\.`), said);
+  assert.match(
+    said,
+    new RegExp(`Created ${n} inspection work order${n === 1 ? '' : 's'} \\(.+ in .+\\)\\. They wait in each branch’s Roster queue\\.`),
+    said,
+  );
   const perBranch = [...said.matchAll(/(\d+) in [^,)]+/g)].reduce((sum, x) => sum + Number(x[1]), 0);
   assert.equal(perBranch, n, `the branches' counts add up to ${n} (${said})`);
   ctx.step(said);
@@ -108,7 +112,11 @@ async function createInspections(ctx: JourneyContext, page: Page) {
   await page.getByRole('heading', { level: 1, name: 'Fix Quality' }).waitFor();
   const again = card(page, 'Model alerts').getByRole('article').filter({ hasText: MODEL });
   await again.getByText('All checked').waitFor();
-  assert.equal(await again.getByRole('button', { name: /^Create \d+ inspections?$/ }).count(), 0, 'after a reload there is still nothing to create');
+  assert.equal(
+    await again.getByRole('button', { name: /^Create \d+ inspections?$/ }).count(),
+    0,
+    'after a reload there is still nothing to create',
+  );
 }
 
 async function exportDefectCsv(ctx: JourneyContext, page: Page) {
@@ -151,7 +159,9 @@ async function signedSummaryInOutbox(ctx: JourneyContext, page: Page) {
   await page.getByRole('heading', { level: 1, name: 'Mail outbox' }).waitFor();
   const message = page.getByRole('button', { name: new RegExp(`^Service summary WO-${signed.workOrderNumber} `) }).first();
   await message.click();
-  const attachment = page.getByRole('list', { name: 'Attachments' }).getByRole('link', { name: new RegExp(`service-summary-WO-${signed.workOrderNumber}\\.pdf`) });
+  const attachment = page
+    .getByRole('list', { name: 'Attachments' })
+    .getByRole('link', { name: new RegExp(`service-summary-WO-${signed.workOrderNumber}\\.pdf`) });
   await attachment.waitFor();
   const [download] = await Promise.all([page.waitForEvent('download'), attachment.click()]);
   const path = await download.path();
@@ -160,13 +170,19 @@ async function signedSummaryInOutbox(ctx: JourneyContext, page: Page) {
   const pdf = await readPdf(bytes);
   assert.ok(pdf.flat.includes('Customer sign-off'), 'the PDF has the sign-off section');
   assert.ok(pdf.flat.includes(`Signed by ${signed.signerName}`), `the PDF names the signer (${signed.signerName})`);
-  assert.match(pdf.flat, /Signed \w{3} \d{1,2} \w{3} \d{4}, \d\d:\d\d C[SD]T/, 'the PDF gives the signing time in the branch’s zone (Chicago)');
+  assert.match(
+    pdf.flat,
+    /Signed \w{3} \d{1,2} \w{3} \d{4}, \d\d:\d\d C[SD]T/,
+    'the PDF gives the signing time in the branch’s zone (Chicago)',
+  );
   const images = await pdfImageCount(bytes);
   assert.equal(images, 1, 'the PDF draws the signature image');
   // The message is open and its PDF read: screenshot and axe now (a page with a downloaded attachment may not reach "network idle").
   await ctx.screenshot(page, 'mail-outbox-signed-summary');
   await ctx.axe(page, 'mail-outbox-signed-summary');
-  ctx.step(`Mail outbox: the summary of WO-${signed.workOrderNumber} carries ${signed.signerName}'s signature (${images} image, name and time in the text)`);
+  ctx.step(
+    `Mail outbox: the summary of WO-${signed.workOrderNumber} carries ${signed.signerName}'s signature (${images} image, name and time in the text)`,
+  );
 }
 
 export async function run(ctx: JourneyContext) {

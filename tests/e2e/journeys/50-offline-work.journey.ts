@@ -47,7 +47,9 @@ interface VisitDto {
 async function firstBooked(ctx: JourneyContext, page: Page, from: string): Promise<{ date: string; visitId: string }> {
   let date = from;
   for (let i = 0; i < 14; i++, date = addDays(date, 1)) {
-    const day = (await (await page.request.get(`${ctx.base}/api/day?date=${date}`)).json()) as { stops: { visitId: string; status: string }[] };
+    const day = (await (await page.request.get(`${ctx.base}/api/day?date=${date}`)).json()) as {
+      stops: { visitId: string; status: string }[];
+    };
     const stop = day.stops.find((s) => s.status === 'booked');
     if (stop) return { date, visitId: stop.visitId };
   }
@@ -58,7 +60,9 @@ async function firstBooked(ctx: JourneyContext, page: Page, from: string): Promi
 async function firstTwoBooked(ctx: JourneyContext, page: Page, from: string): Promise<{ date: string; visitIds: [string, string] }> {
   let date = from;
   for (let i = 0; i < 14; i++, date = addDays(date, 1)) {
-    const day = (await (await page.request.get(`${ctx.base}/api/day?date=${date}`)).json()) as { stops: { visitId: string; status: string }[] };
+    const day = (await (await page.request.get(`${ctx.base}/api/day?date=${date}`)).json()) as {
+      stops: { visitId: string; status: string }[];
+    };
     const booked = day.stops.filter((s) => s.status === 'booked');
     if (booked.length >= 2) return { date, visitIds: [booked[0]!.visitId, booked[1]!.visitId] };
   }
@@ -79,9 +83,13 @@ async function drawSignature(page: Page) {
   assert.ok(box && box.width > 300, `the pad spans the phone's width (${box?.width} px)`);
   await page.mouse.move(box.x + 20, box.y + box.height * 0.6);
   await page.mouse.down();
-  for (let i = 1; i <= 24; i++) await page.mouse.move(box.x + 20 + i * ((box.width - 40) / 24), box.y + box.height * (0.5 + 0.3 * Math.sin(i / 2)), { steps: 2 });
+  for (let i = 1; i <= 24; i++)
+    await page.mouse.move(box.x + 20 + i * ((box.width - 40) / 24), box.y + box.height * (0.5 + 0.3 * Math.sin(i / 2)), { steps: 2 });
   await page.mouse.up();
-  await page.getByRole('status').filter({ hasText: /^Signature drawn\.$/ }).waitFor();
+  await page
+    .getByRole('status')
+    .filter({ hasText: /^Signature drawn\.$/ })
+    .waitFor();
 }
 
 /** A small real PNG (16×16 RGB, two colours in squares) built byte by byte. */
@@ -114,14 +122,22 @@ function samplePng(): Buffer {
     rows.push(0);
     for (let x = 0; x < 16; x++) rows.push(...(((x >> 2) + (y >> 2)) % 2 ? [0xb8, 0x73, 0x33] : [0xe8, 0xf1, 0xf8]));
   }
-  return Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), chunk('IHDR', ihdr), chunk('IDAT', deflateSync(Buffer.from(rows))), chunk('IEND', Buffer.alloc(0))]);
+  return Buffer.concat([
+    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
+    chunk('IHDR', ihdr),
+    chunk('IDAT', deflateSync(Buffer.from(rows))),
+    chunk('IEND', Buffer.alloc(0)),
+  ]);
 }
 
 /** Opens Route on the date and waits for the stop's card with its "En route" button. */
 async function openStop(ctx: JourneyContext, page: Page, date: string, visitId: string) {
   await page.goto(`${ctx.base}/day?date=${date}`);
   await routeHeading(page).waitFor();
-  const card = page.getByRole('list', { name: 'Stops in route order' }).locator(':scope > li').filter({ has: page.locator(`a[href="/visits/${visitId}"]`) });
+  const card = page
+    .getByRole('list', { name: 'Stops in route order' })
+    .locator(':scope > li')
+    .filter({ has: page.locator(`a[href="/visits/${visitId}"]`) });
   await card.getByRole('button', { name: 'En route' }).waitFor();
   return card;
 }
@@ -169,11 +185,18 @@ export async function run(ctx: JourneyContext): Promise<void> {
     ctx.step(`offline: en route at ${otherSite}; meanwhile the dispatcher unbooks that visit`);
 
     await page.context().setOffline(false);
-    const refused = page.getByRole('list', { name: 'Changes the server did not accept' }).getByRole('listitem').filter({ hasText: otherSite });
+    const refused = page
+      .getByRole('list', { name: 'Changes the server did not accept' })
+      .getByRole('listitem')
+      .filter({ hasText: otherSite });
     await refused.waitFor({ timeout: 30_000 });
     const words = await refused.innerText();
     assert.match(words, /Not sent — the visit changed at the office: En route/, 'the conflict names the change');
-    assert.match(words, /The office moved this visit to another technician or unbooked it while this phone was offline/, 'the conflict is told in words');
+    assert.match(
+      words,
+      /The office moved this visit to another technician or unbooked it while this phone was offline/,
+      'the conflict is told in words',
+    );
     await page.getByText('1 change not accepted by the server', { exact: false }).first().waitFor();
     await ctx.screen(page, 'route-conflict');
     assert.equal((await office.get(`/api/visits/${otherId}`)).status(), 404, 'the unbooked visit stays unbooked: nothing was sent over it');
@@ -184,12 +207,20 @@ export async function run(ctx: JourneyContext): Promise<void> {
 
     // The office books the work order again as it was (overriding, with a reason, any rule the demo's booking broke):
     // the stop is booked again, for the rest of this journey and the ones after it.
-    const again = { workOrderId: otherStop.workOrder.id, techId: dayAnswer.tech.id, startAt: otherStop.booking.startAt, endAt: otherStop.booking.endAt, fixed: otherStop.booking.fixed };
+    const again = {
+      workOrderId: otherStop.workOrder.id,
+      techId: dayAnswer.tech.id,
+      startAt: otherStop.booking.startAt,
+      endAt: otherStop.booking.endAt,
+      fixed: otherStop.booking.fixed,
+    };
     let rebooked = await office.post('/api/bookings', { data: again });
     if (rebooked.status() === 409) {
       const rules = ((await rebooked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
       assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await rebooked.text()})`);
-      rebooked = await office.post('/api/bookings', { data: { ...again, overrideRules: rules, overrideReason: 'Booked again as before after the offline conflict check.' } });
+      rebooked = await office.post('/api/bookings', {
+        data: { ...again, overrideRules: rules, overrideReason: 'Booked again as before after the offline conflict check.' },
+      });
     }
     assert.equal(rebooked.status(), 201, `the work order is booked again (${await rebooked.text()})`);
   } finally {
@@ -227,8 +258,22 @@ export async function run(ctx: JourneyContext): Promise<void> {
   ctx.step(`offline: ${await page.getByText(/^Kept on this phone, as of/).innerText()}`);
 
   const plan = [
-    { suction: '118', cause: 'Sensor fault', causeCode: 'sensor_fault', notes: 'Suction transducer reads 6 psi high against the reference gauge; recalibrated.', photo: 'stop1-transducer.png', signer: null },
-    { suction: '121', cause: 'Airflow', causeCode: 'airflow', notes: 'Condenser coil matted with cottonwood; washed and combed.', photo: 'stop2-coil.png', signer: SIGNER },
+    {
+      suction: '118',
+      cause: 'Sensor fault',
+      causeCode: 'sensor_fault',
+      notes: 'Suction transducer reads 6 psi high against the reference gauge; recalibrated.',
+      photo: 'stop1-transducer.png',
+      signer: null,
+    },
+    {
+      suction: '121',
+      cause: 'Airflow',
+      causeCode: 'airflow',
+      notes: 'Condenser coil matted with cottonwood; washed and combed.',
+      photo: 'stop2-coil.png',
+      signer: SIGNER,
+    },
   ] as const;
   for (const [n, w] of work.entries()) {
     const p = plan[n]!;
@@ -243,7 +288,10 @@ export async function run(ctx: JourneyContext): Promise<void> {
     await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
     await card.getByRole('button', { name: 'On site' }).click();
     await notice(page, 'Marked on site on this phone; it is sent when the connection is back.').waitFor();
-    await page.getByText(`${waitingBefore + 2} changes waiting to send`, { exact: false }).first().waitFor();
+    await page
+      .getByText(`${waitingBefore + 2} changes waiting to send`, { exact: false })
+      .first()
+      .waitFor();
     if (n === 0) await ctx.screen(page, 'route-offline-waiting');
     await card.getByRole('link', { name: 'Record the visit' }).click();
     await page.getByRole('heading', { level: 1, name: /^Visit · / }).waitFor();
@@ -251,7 +299,10 @@ export async function run(ctx: JourneyContext): Promise<void> {
     // A reading on the first circuit (values only recorded: the technician journey checks the computation).
     const suction = page.getByLabel(/^Suction pressure, .*circuit 1 \(psig\)$/).first();
     await suction.fill(p.suction);
-    await page.getByLabel(/^Suction line temperature, .*circuit 1 \(°F\)$/).first().fill('52');
+    await page
+      .getByLabel(/^Suction line temperature, .*circuit 1 \(°F\)$/)
+      .first()
+      .fill('52');
     await page.getByRole('button', { name: 'Save readings' }).click();
     await notice(page, /^Readings for 1 circuit kept on this phone/).waitFor();
     assert.equal(await suction.inputValue(), p.suction, 'the kept reading shows in the form');
@@ -284,9 +335,19 @@ export async function run(ctx: JourneyContext): Promise<void> {
     await page.getByRole('button', { name: 'Close visit' }).click();
     await notice(page, 'Visit closed on this phone; the close-out is sent when the connection is back.').waitFor();
     await page.getByText(/The close-out is kept on this phone and waits to send/).waitFor();
-    await page.getByText(`${waitingBefore + 6} changes waiting to send`, { exact: false }).first().waitFor();
-    if (p.signer) assert.match(await page.locator('#close-out').innerText(), new RegExp(`Signed by ${p.signer}, `), 'the waiting close-out shows the signature');
-    ctx.step(`offline at ${w.site}: en route, on site, a reading, a finding, a photo and the close-out (${p.signer ? `signed by ${p.signer}` : 'customer not available'}); ${waitingBefore + 6} changes waiting`);
+    await page
+      .getByText(`${waitingBefore + 6} changes waiting to send`, { exact: false })
+      .first()
+      .waitFor();
+    if (p.signer)
+      assert.match(
+        await page.locator('#close-out').innerText(),
+        new RegExp(`Signed by ${p.signer}, `),
+        'the waiting close-out shows the signature',
+      );
+    ctx.step(
+      `offline at ${w.site}: en route, on site, a reading, a finding, a photo and the close-out (${p.signer ? `signed by ${p.signer}` : 'customer not available'}); ${waitingBefore + 6} changes waiting`,
+    );
 
     if (n === 0) {
       // The app reloaded while still offline: the outbox is kept on the phone, the count stays, the photo waits.
@@ -306,8 +367,14 @@ export async function run(ctx: JourneyContext): Promise<void> {
 
   // ── The connection is back: everything arrives, in order, once ──
   await page.context().setOffline(false);
-  await page.getByText(/changes? waiting to send/).first().waitFor({ state: 'detached', timeout: 60_000 });
-  await page.getByText(/Service summary \(with PDF\) sent to \S+@\S+\.|Service summary not sent/).first().waitFor({ timeout: 30_000 });
+  await page
+    .getByText(/changes? waiting to send/)
+    .first()
+    .waitFor({ state: 'detached', timeout: 60_000 });
+  await page
+    .getByText(/Service summary \(with PDF\) sent to \S+@\S+\.|Service summary not sent/)
+    .first()
+    .waitFor({ timeout: 30_000 });
   assert.match(await page.locator('#close-out').innerText(), /Closed .* as Resolved/, 'the close-out shows the server’s close');
   ctx.step('back online: the outbox emptied; the close-out shows the server’s answer');
 
@@ -316,12 +383,24 @@ export async function run(ctx: JourneyContext): Promise<void> {
     const after = (await (await page.request.get(`${ctx.base}/api/visits/${w.visitId}`)).json()) as VisitDto;
     assert.equal(after.status, 'closed', `${w.site} is closed`);
     assert.equal(after.outcome, 'resolved');
-    assert.equal(after.readings.filter((r) => r.suctionPressure === Number(p.suction)).length, 1, `one reading of ${p.suction} psig arrived at ${w.site} (${after.readings.length} in all)`);
+    assert.equal(
+      after.readings.filter((r) => r.suctionPressure === Number(p.suction)).length,
+      1,
+      `one reading of ${p.suction} psig arrived at ${w.site} (${after.readings.length} in all)`,
+    );
     assert.ok(after.readings.length - w.before.readings.length <= 1, 'no reading was doubled');
-    assert.equal(after.findings.filter((f) => f.causeCode === p.causeCode && f.notes === p.notes).length, 1, `one finding arrived at ${w.site}`);
+    assert.equal(
+      after.findings.filter((f) => f.causeCode === p.causeCode && f.notes === p.notes).length,
+      1,
+      `one finding arrived at ${w.site}`,
+    );
     assert.equal(after.findings.length, w.before.findings.length + 1, 'no finding was doubled');
     assert.equal(after.attachments.length, w.before.attachments.length + 1, `one photo arrived at ${w.site}`);
-    assert.equal(after.attachments.filter((a) => a.displayName.includes(p.photo.replace(/\.png$/, ''))).length, 1, `the photo ${p.photo} arrived once`);
+    assert.equal(
+      after.attachments.filter((a) => a.displayName.includes(p.photo.replace(/\.png$/, ''))).length,
+      1,
+      `the photo ${p.photo} arrived once`,
+    );
     assert.equal(after.events.filter((e) => e.state === 'en_route').length, 1, 'en route recorded once');
     assert.equal(after.events.filter((e) => e.state === 'on_site').length, 1, 'on site recorded once');
     assert.equal(after.events.filter((e) => e.state === 'closed').length, 1, 'closed once');
@@ -335,7 +414,9 @@ export async function run(ctx: JourneyContext): Promise<void> {
       assert.equal(after.signature?.kind, 'customer_not_available');
     }
   }
-  ctx.step('the API holds, per stop, one reading, one finding, one photo, one en-route, on-site and close event, the sign-off; both closed as resolved');
+  ctx.step(
+    'the API holds, per stop, one reading, one finding, one photo, one en-route, on-site and close event, the sign-off; both closed as resolved',
+  );
 
   // On Route both stops show closed, from the server.
   await page.goto(`${ctx.base}/day?date=${date}`);

@@ -38,7 +38,12 @@ function linkSignature(secret: Uint8Array, purpose: string, token: string): stri
 
 /** The refusals of a link (invitation, password reset, first-owner setup), the same words for each. */
 export const linkErrors = {
-  invalid: (what: string) => new HttpError(400, 'link_invalid', `This ${what} link is not valid (it may be incomplete or altered). Copy the whole link from the e-mail, or ask for a new one.`),
+  invalid: (what: string) =>
+    new HttpError(
+      400,
+      'link_invalid',
+      `This ${what} link is not valid (it may be incomplete or altered). Copy the whole link from the e-mail, or ask for a new one.`,
+    ),
   used: (what: string, next: string) => new HttpError(410, 'link_used', `This ${what} link has already been used. ${next}`),
   expired: (what: string, next: string) => new HttpError(410, 'link_expired', `This ${what} link has expired. ${next}`),
 };

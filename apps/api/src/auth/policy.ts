@@ -13,8 +13,7 @@ import type { Role, SessionUser } from '@coilpath/contract';
 import { HttpError } from '../lib/errors';
 
 export type Refusal =
-  | { ok: false; status: 404; code: 'not_found'; message: string }
-  | { ok: false; status: 403; code: 'forbidden'; message: string };
+  { ok: false; status: 404; code: 'not_found'; message: string } | { ok: false; status: 403; code: 'forbidden'; message: string };
 export type Decision = { ok: true } | Refusal;
 
 const ALLOWED: Decision = { ok: true };

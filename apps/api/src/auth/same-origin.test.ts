@@ -33,7 +33,10 @@ describe('state-changing requests come from the same origin only', () => {
     // A form post (not JSON) from elsewhere, and a sign-in from elsewhere (login CSRF), are refused the same way.
     const form = await request(t.app).post('/api/auth/sign-out').set('Origin', 'https://evil.example').type('form').send('a=1');
     expect(form.body.error.code).toBe('cross_origin');
-    const signIn = await request(t.app).post('/api/auth/sign-in').set('Origin', 'null').send({ email: f.owner.email, password: TEST_PASSWORD });
+    const signIn = await request(t.app)
+      .post('/api/auth/sign-in')
+      .set('Origin', 'null')
+      .send({ email: f.owner.email, password: TEST_PASSWORD });
     expect(signIn.status).toBe(403);
   });
 
@@ -55,7 +58,10 @@ describe('state-changing requests come from the same origin only', () => {
   it('exempts only the listed machine-to-machine routes (a controller’s signed alarm) and compares origins by host', async () => {
     expect(MACHINE_ROUTES.map((r) => `${r.method} ${r.path}`)).toEqual(['POST /api/ingest/alarms/:sourceId']);
     // From another site, the alarm ingest is not refused as cross-origin (its signature decides: 401 here).
-    const ingest = await request(t.app).post('/api/ingest/alarms/5b0e5c2e-0000-4000-8000-000000000000').set('Origin', 'https://controls.example').send({});
+    const ingest = await request(t.app)
+      .post('/api/ingest/alarms/5b0e5c2e-0000-4000-8000-000000000000')
+      .set('Origin', 'https://controls.example')
+      .send({});
     expect(ingest.status).not.toBe(403);
     expect(ingest.body.error?.code).not.toBe('cross_origin');
     // A look-alike path is not exempt.

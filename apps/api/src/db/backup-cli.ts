@@ -35,7 +35,8 @@ function countLines(tables: Record<string, number>): string[] {
   return lines;
 }
 
-const bucketAt = (s: { bucket: string; endpoint: string | null; region: string }) => `S3 bucket ${s.bucket} ${s.endpoint ? `at ${s.endpoint}` : `in ${s.region}`}`;
+const bucketAt = (s: { bucket: string; endpoint: string | null; region: string }) =>
+  `S3 bucket ${s.bucket} ${s.endpoint ? `at ${s.endpoint}` : `in ${s.region}`}`;
 
 function describeRestore(r: RestoreReport, secretFromEnvironment: boolean, s3Now: S3Settings | null): string[] {
   const rows = Object.values(r.tables).reduce((s, n) => s + n, 0);
@@ -48,19 +49,31 @@ function describeRestore(r: RestoreReport, secretFromEnvironment: boolean, s3Now
     const m = r.manifest;
     out.push(`Verified ${r.file} (made ${m.createdAt}): every entry matches its SHA-256 in the manifest.`);
     out.push(`Restored into ${r.dataDir}:`);
-    out.push(`  database (${m.database.kind}, schema ${m.schemaVersion ?? 'empty'}): ${plural(Object.keys(r.tables).length, 'table')}, ${plural(rows, 'row')} — the counts match the manifest:`);
+    out.push(
+      `  database (${m.database.kind}, schema ${m.schemaVersion ?? 'empty'}): ${plural(Object.keys(r.tables).length, 'table')}, ${plural(rows, 'row')} — the counts match the manifest:`,
+    );
     out.push(...countLines(r.tables));
     if (r.objectStore) {
       const o = r.objectStore;
-      out.push(`  files: not in this backup — the database refers to ${plural(o.referencedObjects, 'object')} in the ${bucketAt(o)}; they were not touched.`);
+      out.push(
+        `  files: not in this backup — the database refers to ${plural(o.referencedObjects, 'object')} in the ${bucketAt(o)}; they were not touched.`,
+      );
       const same = s3Now && s3Now.bucket === o.bucket && s3Now.endpoint === o.endpoint;
-      if (!same) out.push(`  Point S3_URL${o.endpoint ? `=${o.endpoint}` : ' (unset: Amazon S3)'}, S3_BUCKET=${o.bucket} and S3_REGION=${o.region} at that bucket (with its credentials) before starting the server.`);
+      if (!same)
+        out.push(
+          `  Point S3_URL${o.endpoint ? `=${o.endpoint}` : ' (unset: Amazon S3)'}, S3_BUCKET=${o.bucket} and S3_REGION=${o.region} at that bucket (with its credentials) before starting the server.`,
+        );
     } else {
       out.push(`  files: ${plural(r.files.count, 'file')}, ${mib(r.files.totalBytes)}`);
-      if (s3Now) out.push(`  note: the files were restored into ${r.dataDir}/files, but S3_BUCKET is set: the server reads files from the ${bucketAt(s3Now)}.`);
+      if (s3Now)
+        out.push(
+          `  note: the files were restored into ${r.dataDir}/files, but S3_BUCKET is set: the server reads files from the ${bucketAt(s3Now)}.`,
+        );
     }
     if (m.files.missing.length > 0) {
-      out.push(`  note: ${plural(m.files.missing.length, 'file')} the database refers to were already missing when the backup was made; they answer 410.`);
+      out.push(
+        `  note: ${plural(m.files.missing.length, 'file')} the database refers to were already missing when the backup was made; they answer 410.`,
+      );
     }
     if (m.secret.included) {
       out.push(
@@ -75,7 +88,10 @@ function describeRestore(r: RestoreReport, secretFromEnvironment: boolean, s3Now
           : '  session secret: none in the backup; the server makes a new one and everyone signs in again.',
       );
     }
-    if (r.pendingMigrations.length > 0) out.push(`  The server applies ${plural(r.pendingMigrations.length, 'newer migration')} when it starts (${r.pendingMigrations.join(', ')}).`);
+    if (r.pendingMigrations.length > 0)
+      out.push(
+        `  The server applies ${plural(r.pendingMigrations.length, 'newer migration')} when it starts (${r.pendingMigrations.join(', ')}).`,
+      );
   }
   if (r.movedAside) out.push(`The data it replaced was moved to ${r.movedAside}.`);
   return out;
@@ -102,10 +118,14 @@ async function main(argv: string[]): Promise<number> {
     const { bytes, manifest: m } = await createBackup(target, file, { secretFromEnvironment, objectStore });
     const rows = Object.values(m.tables).reduce((s, n) => s + n, 0);
     console.log(`Backed up ${target.kind === 'postgres' ? 'the PostgreSQL database' : dataDir} to ${file} (${mib(bytes)}):`);
-    console.log(`  database (${m.database.kind}, schema ${m.schemaVersion ?? 'empty'}): ${plural(Object.keys(m.tables).length, 'table')}, ${plural(rows, 'row')}`);
+    console.log(
+      `  database (${m.database.kind}, schema ${m.schemaVersion ?? 'empty'}): ${plural(Object.keys(m.tables).length, 'table')}, ${plural(rows, 'row')}`,
+    );
     if (m.storage?.kind === 's3') {
-      console.log(`  files: not copied — they stay in the ${bucketAt(m.storage)} (${plural(m.storage.referencedObjects, 'object')} the database refers to); the manifest records where.`);
-      console.log('  Back the bucket up with the object store\'s own means (versioning, replication): this file does not hold its objects.');
+      console.log(
+        `  files: not copied — they stay in the ${bucketAt(m.storage)} (${plural(m.storage.referencedObjects, 'object')} the database refers to); the manifest records where.`,
+      );
+      console.log("  Back the bucket up with the object store's own means (versioning, replication): this file does not hold its objects.");
     } else {
       console.log(`  files: ${plural(m.files.count, 'file')}, ${mib(m.files.totalBytes)}`);
     }
@@ -113,9 +133,13 @@ async function main(argv: string[]): Promise<number> {
       `  session secret: ${m.secret.included ? 'included' : 'none in the data directory'}${secretFromEnvironment ? ' (the server signs with COILPATH_SECRET: keep that with the backup)' : ''}`,
     );
     if (m.files.missing.length > 0) {
-      console.warn(`Warning: ${plural(m.files.missing.length, 'file')} the database refers to are missing from storage: ${m.files.missing.slice(0, 5).join(', ')}${m.files.missing.length > 5 ? ', …' : ''}`);
+      console.warn(
+        `Warning: ${plural(m.files.missing.length, 'file')} the database refers to are missing from storage: ${m.files.missing.slice(0, 5).join(', ')}${m.files.missing.length > 5 ? ', …' : ''}`,
+      );
     }
-    console.log(`The backup holds the session secret${m.storage?.kind === 's3' ? '' : ' and every stored file'}: keep it as safe as the server.`);
+    console.log(
+      `The backup holds the session secret${m.storage?.kind === 's3' ? '' : ' and every stored file'}: keep it as safe as the server.`,
+    );
   } else {
     const report = await restoreBackup(target, file, { force });
     for (const line of describeRestore(report, secretFromEnvironment, s3)) console.log(line);

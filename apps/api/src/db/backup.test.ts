@@ -65,7 +65,15 @@ async function populate(database: Database, dataDir: string): Promise<Scenario> 
     const key = await ctx.storage.put(bytes, { contentType: 'image/jpeg' });
     const [a] = await db
       .insert(attachments)
-      .values({ visitId: visit!.id, unitId: unit.id, kind: 'photo', storageKey: key, displayName: name, contentType: 'image/jpeg', sizeBytes: bytes.length })
+      .values({
+        visitId: visit!.id,
+        unitId: unit.id,
+        kind: 'photo',
+        storageKey: key,
+        displayName: name,
+        contentType: 'image/jpeg',
+        sizeBytes: bytes.length,
+      })
       .returning();
     files.push({ path: `/api/attachments/${a!.id}`, bytes, key });
   }
@@ -73,7 +81,12 @@ async function populate(database: Database, dataDir: string): Promise<Scenario> 
   const pdfKey = await ctx.storage.put(pdf, { contentType: 'application/pdf' });
   const [m] = await db
     .insert(mailOutbox)
-    .values({ from: 'a@test.example', to: 'b@test.example', subject: 'Service summary', attachments: [{ filename: 'summary.pdf', contentType: 'application/pdf', size: pdf.length, storageKey: pdfKey }] })
+    .values({
+      from: 'a@test.example',
+      to: 'b@test.example',
+      subject: 'Service summary',
+      attachments: [{ filename: 'summary.pdf', contentType: 'application/pdf', size: pdf.length, storageKey: pdfKey }],
+    })
     .returning();
   files.push({ path: `/api/outbox/${m!.id}/attachments/0`, bytes: pdf, key: pdfKey });
   return { branchId: branch.id, ownerEmail: owner.email, files };
@@ -91,11 +104,15 @@ async function expectServed(database: Database, dataDir: string, s: Scenario, co
   const me = await request(app).get('/api/auth/me').set('Cookie', cookie);
   expect(me.status, 'the session cookie from before the backup').toBe(200);
   for (const f of s.files) {
-    const res = await request(app).get(f.path).set('Cookie', cookie).buffer(true).parse((r, cb) => {
-      const parts: Buffer[] = [];
-      r.on('data', (c: Buffer) => parts.push(c));
-      r.on('end', () => cb(null, Buffer.concat(parts)));
-    });
+    const res = await request(app)
+      .get(f.path)
+      .set('Cookie', cookie)
+      .buffer(true)
+      .parse((r, cb) => {
+        const parts: Buffer[] = [];
+        r.on('data', (c: Buffer) => parts.push(c));
+        r.on('end', () => cb(null, Buffer.concat(parts)));
+      });
     expect(res.status, f.path).toBe(200);
     expect(sha256(res.body as Buffer), f.path).toBe(sha256(f.bytes));
   }
@@ -129,15 +146,23 @@ function cli(args: string[], dataDir: string) {
   delete env.DATABASE_URL;
   delete env.COILPATH_SECRET;
   delete env.NODE_OPTIONS;
-  const r = spawnSync(process.execPath, ['--import', 'tsx', 'apps/api/src/db/backup-cli.ts', ...args], { cwd: repoRoot, env, encoding: 'utf8' });
+  const r = spawnSync(process.execPath, ['--import', 'tsx', 'apps/api/src/db/backup-cli.ts', ...args], {
+    cwd: repoRoot,
+    env,
+    encoding: 'utf8',
+  });
   return { code: r.status, out: `${r.stdout}${r.stderr}` };
 }
 
 /** The data directory's state, to show a refused restore replaced nothing. */
 function listing(dataDir: string): string[] {
   const walk = (d: string, rel = ''): string[] =>
-    readdirSync(d, { withFileTypes: true }).flatMap((e) => (e.isDirectory() && (rel + e.name === 'pg' || rel === '') ? walk(join(d, e.name), `${rel}${e.name}/`) : [`${rel}${e.name}`]));
-  return walk(dataDir).filter((p) => !p.startsWith('pg/')).sort();
+    readdirSync(d, { withFileTypes: true }).flatMap((e) =>
+      e.isDirectory() && (rel + e.name === 'pg' || rel === '') ? walk(join(d, e.name), `${rel}${e.name}/`) : [`${rel}${e.name}`],
+    );
+  return walk(dataDir)
+    .filter((p) => !p.startsWith('pg/'))
+    .sort();
 }
 
 // The PostgreSQL pass of .ci/run tests the pg_dump path below; PGlite's is tested on the default pass.
@@ -171,7 +196,9 @@ describe.runIf(!process.env.DATABASE_URL)('backups of the embedded database, fil
     expect(manifest.tables.users).toBe(2);
     expect(manifest.files.count).toBe(3);
     expect(manifest.files.totalBytes).toBe(s.files.reduce((n, f) => n + f.bytes.length, 0));
-    expect(Object.fromEntries(manifest.files.entries.map((e) => [e.key, e.sha256]))).toEqual(Object.fromEntries(s.files.map((f) => [f.key, sha256(f.bytes)])));
+    expect(Object.fromEntries(manifest.files.entries.map((e) => [e.key, e.sha256]))).toEqual(
+      Object.fromEntries(s.files.map((f) => [f.key, sha256(f.bytes)])),
+    );
     expect(manifest.files.missing).toEqual([]);
     expect(manifest.secret).toMatchObject({ included: true, sha256: sha256(readFileSync(join(dataDir, 'session-secret'))) });
 
@@ -256,7 +283,9 @@ describe.runIf(!process.env.DATABASE_URL)('backups of the embedded database, fil
       m.tables.users = (m.tables.users ?? 0) + 1;
       return Buffer.from(JSON.stringify(m));
     });
-    await expect(restoreBackup(target, recounted, { force: true })).rejects.toThrow(/does not hold the rows its manifest counts \(users: 2 rows, the manifest says 3\)/);
+    await expect(restoreBackup(target, recounted, { force: true })).rejects.toThrow(
+      /does not hold the rows its manifest counts \(users: 2 rows, the manifest says 3\)/,
+    );
 
     // Cut off half-way.
     const truncated = join(tmp, 'truncated.tar.gz');
@@ -283,7 +312,13 @@ describe.runIf(!process.env.DATABASE_URL)('backups of the embedded database, fil
   it('refuses to back up or restore while another process holds the data directory, naming it', async () => {
     writeFileSync(
       join(dataDir, LOCK_FILE),
-      JSON.stringify({ pid: process.ppid, host: (await import('node:os')).hostname(), purpose: 'server', startedAt: '2026-03-01T10:00:00.000Z', token: 'live' }),
+      JSON.stringify({
+        pid: process.ppid,
+        host: (await import('node:os')).hostname(),
+        purpose: 'server',
+        startedAt: '2026-03-01T10:00:00.000Z',
+        token: 'live',
+      }),
     );
     try {
       const err = await createBackup(target, join(tmp, 'while-running.tar.gz')).catch((e: unknown) => e);
@@ -294,7 +329,9 @@ describe.runIf(!process.env.DATABASE_URL)('backups of the embedded database, fil
     } finally {
       unlinkSync(join(dataDir, LOCK_FILE));
     }
-    await expect(createBackup({ kind: 'pglite', dataDir: join(tmp, 'nothing-here') }, join(tmp, 'x.tar.gz'))).rejects.toThrow(/no database/);
+    await expect(createBackup({ kind: 'pglite', dataDir: join(tmp, 'nothing-here') }, join(tmp, 'x.tar.gz'))).rejects.toThrow(
+      /no database/,
+    );
   });
 
   it('restores a database-only backup from before manifests, saying so and leaving files alone', async () => {
@@ -318,53 +355,59 @@ describe.runIf(!process.env.DATABASE_URL)('backups of the embedded database, fil
 
 const pgTools = await hasPgTools();
 
-describe.runIf(Boolean(process.env.DATABASE_URL) && pgTools)('PostgreSQL backups with pg_dump, files and secret', { timeout: 240_000 }, () => {
-  it('round-trips, and a recounted backup rolls back leaving the database as it was', async () => {
-    const database = await openTestDatabase();
-    const url = (database.pool as unknown as { options: { connectionString: string } }).options.connectionString;
-    const dataDir = join(tmp, 'pg-data');
-    const file = join(tmp, 'pg-backup.tar.gz');
-    const target: BackupTarget = { kind: 'postgres', url, dataDir };
-    try {
-      const s = await populate(database, dataDir);
-      const cookie = await signIn(database, dataDir, s.ownerEmail);
-      const { manifest } = await createBackup(target, file);
-      expect(manifest.database.kind).toBe('postgres');
-      expect(manifest.tables.attachments).toBe(2);
-      expect(manifest.files.count).toBe(3);
+describe.runIf(Boolean(process.env.DATABASE_URL) && pgTools)(
+  'PostgreSQL backups with pg_dump, files and secret',
+  { timeout: 240_000 },
+  () => {
+    it('round-trips, and a recounted backup rolls back leaving the database as it was', async () => {
+      const database = await openTestDatabase();
+      const url = (database.pool as unknown as { options: { connectionString: string } }).options.connectionString;
+      const dataDir = join(tmp, 'pg-data');
+      const file = join(tmp, 'pg-backup.tar.gz');
+      const target: BackupTarget = { kind: 'postgres', url, dataDir };
+      try {
+        const s = await populate(database, dataDir);
+        const cookie = await signIn(database, dataDir, s.ownerEmail);
+        const { manifest } = await createBackup(target, file);
+        expect(manifest.database.kind).toBe('postgres');
+        expect(manifest.tables.attachments).toBe(2);
+        expect(manifest.files.count).toBe(3);
 
-      await database.db.update(branches).set({ name: 'Renamed after backup' }).where(eq(branches.id, s.branchId));
-      await database.db.delete(mailOutbox);
-      unlinkSync(join(dataDir, 'files', s.files[2]!.key));
-      unlinkSync(join(dataDir, 'session-secret'));
+        await database.db.update(branches).set({ name: 'Renamed after backup' }).where(eq(branches.id, s.branchId));
+        await database.db.delete(mailOutbox);
+        unlinkSync(join(dataDir, 'files', s.files[2]!.key));
+        unlinkSync(join(dataDir, 'session-secret'));
 
-      await expect(restoreBackup(target, file)).rejects.toThrow(/--force/);
-      const r = await restoreBackup(target, file, { force: true });
-      expect(r.tables).toEqual(manifest.tables);
-      expect(await branchName(database, s.branchId)).toBe('Before backup');
-      await expectServed(database, dataDir, s, cookie);
+        await expect(restoreBackup(target, file)).rejects.toThrow(/--force/);
+        const r = await restoreBackup(target, file, { force: true });
+        expect(r.tables).toEqual(manifest.tables);
+        expect(await branchName(database, s.branchId)).toBe('Before backup');
+        await expectServed(database, dataDir, s, cookie);
 
-      await database.db.update(branches).set({ name: 'Current' }).where(eq(branches.id, s.branchId));
-      const recounted = join(tmp, 'pg-recounted.tar.gz');
-      await rewrite(file, recounted, (name, data) => {
-        if (name !== 'manifest.json') return data;
-        const m = JSON.parse(data.toString()) as BackupManifest;
-        m.tables.branches = (m.tables.branches ?? 0) + 1;
-        return Buffer.from(JSON.stringify(m));
-      });
-      await expect(restoreBackup(target, recounted, { force: true })).rejects.toThrow(/coilpath restore: table branches holds 1 rows, the manifest says 2/);
-      expect(await branchName(database, s.branchId), 'the failed restore was rolled back').toBe('Current');
+        await database.db.update(branches).set({ name: 'Current' }).where(eq(branches.id, s.branchId));
+        const recounted = join(tmp, 'pg-recounted.tar.gz');
+        await rewrite(file, recounted, (name, data) => {
+          if (name !== 'manifest.json') return data;
+          const m = JSON.parse(data.toString()) as BackupManifest;
+          m.tables.branches = (m.tables.branches ?? 0) + 1;
+          return Buffer.from(JSON.stringify(m));
+        });
+        await expect(restoreBackup(target, recounted, { force: true })).rejects.toThrow(
+          /coilpath restore: table branches holds 1 rows, the manifest says 2/,
+        );
+        expect(await branchName(database, s.branchId), 'the failed restore was rolled back').toBe('Current');
 
-      // What `db:backup` wrote before on PostgreSQL: a bare pg_dump file. It restores, database only.
-      const legacy = join(tmp, 'pg-legacy.dump');
-      expect(spawnSync('pg_dump', ['--format=custom', `--file=${legacy}`, `--dbname=${url}`]).status).toBe(0);
-      await database.db.update(branches).set({ name: 'After the old dump' }).where(eq(branches.id, s.branchId));
-      const old = await restoreBackup(target, legacy, { force: true });
-      expect(old.manifest).toBeNull();
-      expect(old.tables.branches).toBe(1);
-      expect(await branchName(database, s.branchId)).toBe('Current');
-    } finally {
-      await database.close();
-    }
-  });
-});
+        // What `db:backup` wrote before on PostgreSQL: a bare pg_dump file. It restores, database only.
+        const legacy = join(tmp, 'pg-legacy.dump');
+        expect(spawnSync('pg_dump', ['--format=custom', `--file=${legacy}`, `--dbname=${url}`]).status).toBe(0);
+        await database.db.update(branches).set({ name: 'After the old dump' }).where(eq(branches.id, s.branchId));
+        const old = await restoreBackup(target, legacy, { force: true });
+        expect(old.manifest).toBeNull();
+        expect(old.tables.branches).toBe(1);
+        expect(await branchName(database, s.branchId)).toBe('Current');
+      } finally {
+        await database.close();
+      }
+    });
+  },
+);

@@ -249,7 +249,13 @@ async function runTool(cmd: string, args: string[]): Promise<void> {
 }
 
 /** One tar entry from chunks, counting and hashing what goes out; the size must be the header's. */
-async function* entry(name: string, size: number, chunks: AsyncIterable<Buffer | Uint8Array>, mtime: Date, record: (sha256: string) => void) {
+async function* entry(
+  name: string,
+  size: number,
+  chunks: AsyncIterable<Buffer | Uint8Array>,
+  mtime: Date,
+  record: (sha256: string) => void,
+) {
   yield tarHeader(name, size, mtime, name === SECRET_FILE ? 0o600 : 0o644);
   const hash = createHash('sha256');
   let written = 0;
@@ -260,7 +266,8 @@ async function* entry(name: string, size: number, chunks: AsyncIterable<Buffer |
     hash.update(chunk);
     yield chunk;
   }
-  if (written !== size) throw new BackupError(`${name} changed while it was being backed up (${size} bytes expected, ${written} read). Try again.`);
+  if (written !== size)
+    throw new BackupError(`${name} changed while it was being backed up (${size} bytes expected, ${written} read). Try again.`);
   yield tarPadding(size);
   record(hash.digest('hex'));
 }
@@ -337,7 +344,14 @@ export async function createBackup(
         tables = await tableCounts(query);
         version = await schemaVersion(query);
         referenced = await referencedKeys(query);
-        await runTool('pg_dump', ['--format=custom', '--no-owner', '--no-privileges', `--snapshot=${snapshot}`, `--file=${dumpFile}`, `--dbname=${target.url}`]);
+        await runTool('pg_dump', [
+          '--format=custom',
+          '--no-owner',
+          '--no-privileges',
+          `--snapshot=${snapshot}`,
+          `--file=${dumpFile}`,
+          `--dbname=${target.url}`,
+        ]);
         await client.query('COMMIT');
       } finally {
         await client.end();
@@ -371,7 +385,13 @@ export async function createBackup(
           missing: objectStore ? [] : [...referenced].filter((k) => !present.has(k)).sort(),
         },
         storage: objectStore
-          ? { kind: 's3', endpoint: objectStore.endpoint, bucket: objectStore.bucket, region: objectStore.region, referencedObjects: referenced.size }
+          ? {
+              kind: 's3',
+              endpoint: objectStore.endpoint,
+              bucket: objectStore.bucket,
+              region: objectStore.region,
+              referencedObjects: referenced.size,
+            }
           : { kind: 'files' },
         secret: secretIncluded
           ? { included: true, entry: SECRET_FILE, sha256: secretSha, fromEnvironment: Boolean(opts.secretFromEnvironment) }
@@ -397,7 +417,9 @@ export async function createBackup(
         const fh = await open(path, 'r');
         try {
           const bytes = (await fh.stat()).size;
-          yield* entry(`files/${key}`, bytes, fh.createReadStream({ autoClose: false }), now, (sha256) => fileEntries.push({ key, bytes, sha256 }));
+          yield* entry(`files/${key}`, bytes, fh.createReadStream({ autoClose: false }), now, (sha256) =>
+            fileEntries.push({ key, bytes, sha256 }),
+          );
         } finally {
           await fh.close();
         }
@@ -427,7 +449,11 @@ interface Unpacked {
 }
 
 const allowedEntry = (name: string) =>
-  name === MANIFEST || name === SECRET_FILE || name === DB_ENTRY.pglite || name === DB_ENTRY.postgres || (name.startsWith('files/') && keyPattern.test(name.slice(6)));
+  name === MANIFEST ||
+  name === SECRET_FILE ||
+  name === DB_ENTRY.pglite ||
+  name === DB_ENTRY.postgres ||
+  (name.startsWith('files/') && keyPattern.test(name.slice(6)));
 
 async function firstBytes(file: string, n: number): Promise<Buffer> {
   const fh = await open(file, 'r');
@@ -444,7 +470,8 @@ async function firstBytes(file: string, n: number): Promise<Buffer> {
 async function unpack(file: string, staging: string): Promise<Unpacked> {
   const head = await firstBytes(file, 5);
   if (head.toString('latin1') === 'PGDMP') return { manifest: null, got: new Map(), legacy: { kind: 'postgres', path: file } };
-  if (head.length < 2 || head[0] !== 0x1f || head[1] !== 0x8b) throw new BackupError(`${file} is not a Coilpath backup (expected a .tar.gz).`);
+  if (head.length < 2 || head[0] !== 0x1f || head[1] !== 0x8b)
+    throw new BackupError(`${file} is not a Coilpath backup (expected a .tar.gz).`);
 
   // A data-directory dump from before manifests is itself a .tar.gz whose entries are PostgreSQL's files.
   let legacy = false;
@@ -511,7 +538,10 @@ async function unpack(file: string, staging: string): Promise<Unpacked> {
     throw new BackupError(`The manifest of ${file} is not valid JSON. Nothing was restored.`);
   }
   const manifest = manifestSchema.safeParse(parsed);
-  if (!manifest.success) throw new BackupError(`The manifest of ${file} is not one Coilpath writes (${manifest.error.issues[0]?.path.join('.')}). Nothing was restored.`);
+  if (!manifest.success)
+    throw new BackupError(
+      `The manifest of ${file} is not one Coilpath writes (${manifest.error.issues[0]?.path.join('.')}). Nothing was restored.`,
+    );
   return { manifest: manifest.data, got };
 }
 
@@ -540,7 +570,8 @@ function verifyEntries(file: string, m: BackupManifest, got: Unpacked['got']): v
   if (m.files.count !== m.files.entries.length || m.files.totalBytes !== m.files.entries.reduce((s, f) => s + f.bytes, 0)) {
     problems.push('the file count or total size does not add up');
   }
-  if (m.database.entry !== DB_ENTRY[m.database.kind]) problems.push(`the database entry ${m.database.entry} does not fit a ${m.database.kind} backup`);
+  if (m.database.entry !== DB_ENTRY[m.database.kind])
+    problems.push(`the database entry ${m.database.entry} does not fit a ${m.database.kind} backup`);
   if (problems.length > 0) {
     const shown = problems.slice(0, 10).join('; ') + (problems.length > 10 ? `; and ${problems.length - 10} more` : '');
     throw new BackupError(`${file} does not match its manifest: ${shown}. Nothing was restored.`);
@@ -549,7 +580,9 @@ function verifyEntries(file: string, m: BackupManifest, got: Unpacked['got']): v
 
 function countsDiffer(want: Record<string, number>, got: Record<string, number>): string[] {
   const names = [...new Set([...Object.keys(want), ...Object.keys(got)])].sort();
-  return names.filter((t) => want[t] !== got[t]).map((t) => `${t}: ${got[t] ?? 'no table'} rows, the manifest says ${want[t] ?? 'no table'}`);
+  return names
+    .filter((t) => want[t] !== got[t])
+    .map((t) => `${t}: ${got[t] ?? 'no table'} rows, the manifest says ${want[t] ?? 'no table'}`);
 }
 
 function pendingAfter(version: string | null): string[] {
@@ -586,7 +619,11 @@ async function postgresCounts(url: string): Promise<Record<string, number>> {
  * data (a database, stored files or a secret) unless `force`: then those are moved to
  * `<data dir>/before-restore-<time>/` (PostgreSQL: the database's objects are dropped and recreated).
  */
-export async function restoreBackup(target: BackupTarget, file: string, opts: { force?: boolean; now?: Date } = {}): Promise<RestoreReport> {
+export async function restoreBackup(
+  target: BackupTarget,
+  file: string,
+  opts: { force?: boolean; now?: Date } = {},
+): Promise<RestoreReport> {
   const source = resolve(file);
   if (!existsSync(source)) throw new BackupError(`No backup file at ${source}.`);
   const dataDir = resolve(target.dataDir);
@@ -595,7 +632,9 @@ export async function restoreBackup(target: BackupTarget, file: string, opts: { 
   try {
     let replaced = target.kind === 'pglite' ? ['pg', 'files', SECRET_FILE] : ['files', SECRET_FILE];
     const hasData =
-      (target.kind === 'pglite' ? existsSync(join(dataDir, 'pg')) && readdirSync(join(dataDir, 'pg')).length > 0 : await postgresHasData(target.url)) ||
+      (target.kind === 'pglite'
+        ? existsSync(join(dataDir, 'pg')) && readdirSync(join(dataDir, 'pg')).length > 0
+        : await postgresHasData(target.url)) ||
       dirHasFiles(join(dataDir, 'files')) ||
       existsSync(join(dataDir, SECRET_FILE));
     if (hasData && !opts.force) {
@@ -612,7 +651,10 @@ export async function restoreBackup(target: BackupTarget, file: string, opts: { 
     let tables: Record<string, number>;
 
     if (unpacked.legacy) {
-      if (unpacked.legacy.kind !== target.kind) throw new BackupError(`${source} is a database-only ${unpacked.legacy.kind} backup; it cannot be restored into ${target.kind === 'pglite' ? 'the embedded database' : 'PostgreSQL'}.`);
+      if (unpacked.legacy.kind !== target.kind)
+        throw new BackupError(
+          `${source} is a database-only ${unpacked.legacy.kind} backup; it cannot be restored into ${target.kind === 'pglite' ? 'the embedded database' : 'PostgreSQL'}.`,
+        );
       if (target.kind === 'pglite') tables = await loadPglite(source, join(staging, 'pg'));
       else tables = {};
     } else {
@@ -627,12 +669,17 @@ export async function restoreBackup(target: BackupTarget, file: string, opts: { 
       }
       const known = journal().map((e) => e.tag);
       if (m.schemaVersion !== null && !known.includes(m.schemaVersion)) {
-        throw new BackupError(`${source} was made by a newer Coilpath (schema ${m.schemaVersion}, this one knows up to ${known.at(-1)}). Update Coilpath first. Nothing was restored.`);
+        throw new BackupError(
+          `${source} was made by a newer Coilpath (schema ${m.schemaVersion}, this one knows up to ${known.at(-1)}). Update Coilpath first. Nothing was restored.`,
+        );
       }
       if (target.kind === 'pglite') {
         tables = await loadPglite(join(staging, m.database.entry), join(staging, 'pg'));
         const wrong = countsDiffer(m.tables, tables);
-        if (wrong.length > 0) throw new BackupError(`The database in ${source} does not hold the rows its manifest counts (${wrong.slice(0, 5).join('; ')}). Nothing was restored.`);
+        if (wrong.length > 0)
+          throw new BackupError(
+            `The database in ${source} does not hold the rows its manifest counts (${wrong.slice(0, 5).join('; ')}). Nothing was restored.`,
+          );
       }
     }
 
@@ -682,7 +729,9 @@ export async function restoreBackup(target: BackupTarget, file: string, opts: { 
       manifest: m,
       tables: tables!,
       files: restoredFiles,
-      objectStore: store ? { endpoint: store.endpoint, bucket: store.bucket, region: store.region, referencedObjects: store.referencedObjects } : null,
+      objectStore: store
+        ? { endpoint: store.endpoint, bucket: store.bucket, region: store.region, referencedObjects: store.referencedObjects }
+        : null,
       secretRestored: Boolean(m?.secret.included),
       ...(movedAside ? { movedAside } : {}),
       pendingMigrations: m ? pendingAfter(m.schemaVersion) : [],

@@ -31,13 +31,32 @@ describe('migration 0010 (one open return visit per unit)', () => {
     const alpha = { id: inserted.rows[0]!.id };
     const f = { a: alpha, inA: { technician: await makeUser(db, 'technician', alpha.id) } };
     const [p, q, r] = [await makeSiteWithUnit(db, f.a.id), await makeSiteWithUnit(db, f.a.id), await makeSiteWithUnit(db, f.a.id)];
-    const origin = await makeWorkOrder(db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, state: 'closed', outcome: 'needs_return' });
+    const origin = await makeWorkOrder(db, {
+      branchId: f.a.id,
+      siteId: p.site.id,
+      unitId: p.unit.id,
+      state: 'closed',
+      outcome: 'needs_return',
+    });
     const ret = (unit: typeof p, v: Omit<Partial<typeof workOrders.$inferInsert>, 'unitId'>) =>
-      makeWorkOrder(db, { branchId: f.a.id, siteId: unit.site.id, unitId: unit.unit.id, kind: 'return_visit', originWorkOrderId: origin.id, ...v });
+      makeWorkOrder(db, {
+        branchId: f.a.id,
+        siteId: unit.site.id,
+        unitId: unit.unit.id,
+        kind: 'return_visit',
+        originWorkOrderId: origin.id,
+        ...v,
+      });
     const book = async (woId: string) => {
       const [b] = await db
         .insert(bookings)
-        .values({ branchId: f.a.id, workOrderId: woId, techId: f.inA.technician.id, startAt: new Date('2026-12-16T15:00:00Z'), endAt: new Date('2026-12-16T17:00:00Z') })
+        .values({
+          branchId: f.a.id,
+          workOrderId: woId,
+          techId: f.inA.technician.id,
+          startAt: new Date('2026-12-16T15:00:00Z'),
+          endAt: new Date('2026-12-16T17:00:00Z'),
+        })
         .returning();
       // The visit as the previous release's table has it (migration 0017 adds columns the schema file knows).
       const v = (
@@ -49,13 +68,46 @@ describe('migration 0010 (one open return visit per unit)', () => {
     };
 
     // Unit p: three open returns; the booked one is furthest along and stays.
-    const a = await ret(p, { state: 'unplaced', createdAt: new Date('2026-12-01T10:00:00Z'), returnNeeds: ['parts'], latestAt: new Date('2026-12-30T23:00:00Z'), priority: 'normal', complaint: 'Contactor on order' });
-    const b = await ret(p, { state: 'booked', createdAt: new Date('2026-12-02T10:00:00Z'), returnNeeds: ['leak_search'], latestAt: null, priority: 'low', estimatedMinutes: 90, complaint: 'Leak search' });
-    const c = await ret(p, { state: 'unplaced', createdAt: new Date('2026-12-03T10:00:00Z'), returnNeeds: ['parts', 'second_tech'], latestAt: new Date('2026-12-20T23:00:00Z'), priority: 'high', estimatedMinutes: 180, complaint: 'Two techs' });
+    const a = await ret(p, {
+      state: 'unplaced',
+      createdAt: new Date('2026-12-01T10:00:00Z'),
+      returnNeeds: ['parts'],
+      latestAt: new Date('2026-12-30T23:00:00Z'),
+      priority: 'normal',
+      complaint: 'Contactor on order',
+    });
+    const b = await ret(p, {
+      state: 'booked',
+      createdAt: new Date('2026-12-02T10:00:00Z'),
+      returnNeeds: ['leak_search'],
+      latestAt: null,
+      priority: 'low',
+      estimatedMinutes: 90,
+      complaint: 'Leak search',
+    });
+    const c = await ret(p, {
+      state: 'unplaced',
+      createdAt: new Date('2026-12-03T10:00:00Z'),
+      returnNeeds: ['parts', 'second_tech'],
+      latestAt: new Date('2026-12-20T23:00:00Z'),
+      priority: 'high',
+      estimatedMinutes: 180,
+      complaint: 'Two techs',
+    });
     const bBooked = await book(b.id);
     const [lc] = await db
       .insert(leakCases)
-      .values({ branchId: f.a.id, unitId: p.unit.id, openedOn: '2026-11-20', rule: '40 CFR 84.106', method: 'annualizing', thresholdPercent: 10, leakRatePercent: 30, repairDueDate: '2026-12-20', repairWorkOrderId: c.id })
+      .values({
+        branchId: f.a.id,
+        unitId: p.unit.id,
+        openedOn: '2026-11-20',
+        rule: '40 CFR 84.106',
+        method: 'annualizing',
+        thresholdPercent: 10,
+        leakRatePercent: 30,
+        repairDueDate: '2026-12-20',
+        repairWorkOrderId: c.id,
+      })
       .returning();
     await db.update(workOrders).set({ leakCaseId: lc!.id }).where(eq(workOrders.id, c.id));
     // Unit q: two booked returns; the older stays, the other is unbooked and cancelled.
@@ -90,8 +142,13 @@ describe('migration 0010 (one open return visit per unit)', () => {
 
     expect(await byId(r1.id)).toMatchObject({ state: 'unplaced', complaint: 'Alone' });
 
-    const open = await db.select({ unitId: workOrders.unitId }).from(workOrders).where(inArray(workOrders.state, ['unplaced', 'booked', 'en_route', 'on_site']));
+    const open = await db
+      .select({ unitId: workOrders.unitId })
+      .from(workOrders)
+      .where(inArray(workOrders.state, ['unplaced', 'booked', 'en_route', 'on_site']));
     expect(open.filter((w) => w.unitId === p.unit.id)).toHaveLength(1);
-    await expect(ret(r, { state: 'unplaced' })).rejects.toMatchObject({ cause: { code: '23505', constraint: 'work_orders_one_open_return_uq' } });
+    await expect(ret(r, { state: 'unplaced' })).rejects.toMatchObject({
+      cause: { code: '23505', constraint: 'work_orders_one_open_return_uq' },
+    });
   });
 });

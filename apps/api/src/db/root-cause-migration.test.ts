@@ -40,7 +40,9 @@ describe('migration 0017 (root cause, note audience, contractor details)', () =>
         )
       )[0]!.id;
     const finding = async (id: string, visitId: string, cause: string, origin: string, at: string) =>
-      one(sql`INSERT INTO findings (id, visit_id, unit_id, cause_code, origin, created_at, notes) VALUES (${id}, ${visitId}, ${p.unit.id}, ${cause}, ${origin}, ${at}::timestamptz, 'Warranty claim to file')`);
+      one(
+        sql`INSERT INTO findings (id, visit_id, unit_id, cause_code, origin, created_at, notes) VALUES (${id}, ${visitId}, ${p.unit.id}, ${cause}, ${origin}, ${at}::timestamptz, 'Warranty claim to file')`,
+      );
 
     // J1, closed: typed 09:30 (settings), then two at 09:00 — the smaller id (…0001, airflow) is the earliest.
     const j1 = await job('2026-03-01T08:00:00Z');
@@ -89,12 +91,16 @@ describe('migration 0017 (root cause, note audience, contractor details)', () =>
     expect(await sums()).toEqual(kept);
 
     // A root cause must be one of the visit's own findings.
-    await expect(db.execute(sql`UPDATE visits SET root_cause_finding_id = '00000000-0000-4000-8000-000000000004' WHERE id = ${v1}`)).rejects.toMatchObject({
+    await expect(
+      db.execute(sql`UPDATE visits SET root_cause_finding_id = '00000000-0000-4000-8000-000000000004' WHERE id = ${v1}`),
+    ).rejects.toMatchObject({
       cause: { code: '23503' },
     });
     // Re-marked on the wiring fault: the facts follow at once.
     await db.execute(sql`UPDATE visits SET root_cause_finding_id = '00000000-0000-4000-8000-000000000002' WHERE id = ${v1}`);
-    const [after] = await one<{ cause_code: string; origin: string }>(sql`SELECT cause_code, origin FROM service_call_facts WHERE job_id = ${j1.id}`);
+    const [after] = await one<{ cause_code: string; origin: string }>(
+      sql`SELECT cause_code, origin FROM service_call_facts WHERE job_id = ${j1.id}`,
+    );
     expect(after).toEqual({ cause_code: 'wiring_fault', origin: 'factory_defect' });
   });
 });

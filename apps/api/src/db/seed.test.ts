@@ -12,8 +12,26 @@ const TODAY = '2026-03-10'; // a Tuesday; the week spans the US spring-forward c
 const WEEKEND = '2026-12-05'; // a Saturday: stops go to the coming week
 
 const TABLES = [
-  s.branches, s.users, s.customers, s.sites, s.units, s.circuits, s.agreements, s.agreementUnits, s.workOrders, s.bookings, s.visits,
-  s.visitEvents, s.readings, s.findings, s.refrigerantEvents, s.leakCases, s.verificationTests, s.alarms, s.warrantyClaims, s.appMeta,
+  s.branches,
+  s.users,
+  s.customers,
+  s.sites,
+  s.units,
+  s.circuits,
+  s.agreements,
+  s.agreementUnits,
+  s.workOrders,
+  s.bookings,
+  s.visits,
+  s.visitEvents,
+  s.readings,
+  s.findings,
+  s.refrigerantEvents,
+  s.leakCases,
+  s.verificationTests,
+  s.alarms,
+  s.warrantyClaims,
+  s.appMeta,
 ] as const;
 
 async function counts(database: Database) {
@@ -92,7 +110,9 @@ describe('demo scenario', { timeout: 120_000 }, () => {
     }
     // Today's first stop for tech@ is a service call on a two-circuit R-410A rooftop unit with history.
     const tech = byEmail.get('tech@coilpath.example')!;
-    const first = bookings.filter((bk) => bk.techId === tech.id && localDay(bk.startAt, chicago.timeZone) === TODAY).sort((x, y) => +x.startAt - +y.startAt)[0]!;
+    const first = bookings
+      .filter((bk) => bk.techId === tech.id && localDay(bk.startAt, chicago.timeZone) === TODAY)
+      .sort((x, y) => +x.startAt - +y.startAt)[0]!;
     const [firstWo] = await db.select().from(s.workOrders).where(eq(s.workOrders.id, first.workOrderId));
     expect(firstWo).toMatchObject({ kind: 'service_call', state: 'booked' });
     const [firstUnit] = await db.select().from(s.units).where(eq(s.units.id, firstWo!.unitId!));
@@ -112,13 +132,22 @@ describe('demo scenario', { timeout: 120_000 }, () => {
       if (w.state === 'closed') expect(w.outcome && w.closedAt).toBeTruthy();
     }
     // No technician is double-booked.
-    const [overlap] = await db.execute<{ n: number }>(sql`select count(*)::int as n from bookings x join bookings y
-      on x.tech_id = y.tech_id and x.id < y.id and x.start_at < y.end_at and y.start_at < x.end_at`).then((r) => r.rows);
+    const [overlap] = await db
+      .execute<{ n: number }>(
+        sql`select count(*)::int as n from bookings x join bookings y
+      on x.tech_id = y.tech_id and x.id < y.id and x.start_at < y.end_at and y.start_at < x.end_at`,
+      )
+      .then((r) => r.rows);
     expect(overlap!.n).toBe(0);
 
     // Unplaced work this week in every branch, including a return visit whose origin closed needs_return.
     for (const br of branches) {
-      const unplaced = wos.filter((w) => w.branchId === br.id && w.state === 'unplaced' && (w.slaDueAt === null || w.slaDueAt <= new Date(`${addDays(TODAY, 5)}T12:00:00Z`)));
+      const unplaced = wos.filter(
+        (w) =>
+          w.branchId === br.id &&
+          w.state === 'unplaced' &&
+          (w.slaDueAt === null || w.slaDueAt <= new Date(`${addDays(TODAY, 5)}T12:00:00Z`)),
+      );
       expect(unplaced.length, br.code).toBeGreaterThanOrEqual(5);
       const rv = unplaced.find((w) => w.kind === 'return_visit');
       expect(rv).toBeDefined();
@@ -127,7 +156,9 @@ describe('demo scenario', { timeout: 120_000 }, () => {
     }
 
     // At most one open return visit per unit (the database refuses more, migration 0010; the scenario never tries).
-    const openReturnUnits = wos.filter((w) => w.kind === 'return_visit' && w.state !== 'closed' && w.state !== 'cancelled').map((w) => w.unitId);
+    const openReturnUnits = wos
+      .filter((w) => w.kind === 'return_visit' && w.state !== 'closed' && w.state !== 'cancelled')
+      .map((w) => w.unitId);
     expect(openReturnUnits.length).toBeGreaterThan(0);
     expect(new Set(openReturnUnits).size).toBe(openReturnUnits.length);
 
@@ -150,7 +181,14 @@ describe('demo scenario', { timeout: 120_000 }, () => {
       .from(s.findings)
       .innerJoin(s.visits, eq(s.visits.id, s.findings.visitId))
       .innerJoin(s.workOrders, eq(s.workOrders.id, s.visits.workOrderId))
-      .where(and(eq(s.findings.origin, 'factory_defect'), eq(s.findings.causeCode, 'wiring_fault'), eq(s.findings.reportedCircuit, 1), eq(s.findings.actualCircuit, 2)));
+      .where(
+        and(
+          eq(s.findings.origin, 'factory_defect'),
+          eq(s.findings.causeCode, 'wiring_fault'),
+          eq(s.findings.reportedCircuit, 1),
+          eq(s.findings.actualCircuit, 2),
+        ),
+      );
     expect(new Set(defects.map((d) => d.siteId)).size).toBeGreaterThanOrEqual(3);
     expect(new Set(defects.map((d) => d.branchId)).size).toBeGreaterThanOrEqual(2);
     expect(defects.every((d) => d.kind === 'callback')).toBe(true);
@@ -176,17 +214,33 @@ describe('demo scenario', { timeout: 120_000 }, () => {
     const tzOf = new Map(branches.map((x) => [x.id, x.timeZone]));
     const techs = await db.select().from(s.users).where(eq(s.users.role, 'technician'));
     const jobs = await db
-      .select({ techId: s.bookings.techId, branchId: s.bookings.branchId, startAt: s.bookings.startAt, state: s.workOrders.state, kind: s.workOrders.kind, closedAt: s.visits.closedAt })
+      .select({
+        techId: s.bookings.techId,
+        branchId: s.bookings.branchId,
+        startAt: s.bookings.startAt,
+        state: s.workOrders.state,
+        kind: s.workOrders.kind,
+        closedAt: s.visits.closedAt,
+      })
       .from(s.bookings)
       .innerJoin(s.workOrders, eq(s.workOrders.id, s.bookings.workOrderId))
       .innerJoin(s.visits, eq(s.visits.bookingId, s.bookings.id))
-      .where(and(gte(s.bookings.startAt, new Date(`${addDays(monday, -1)}T00:00:00Z`)), lt(s.bookings.startAt, new Date(`${addDays(TODAY, 1)}T12:00:00Z`))));
-    const on = (techId: string, day: string) => jobs.filter((j) => j.techId === techId && localDay(j.startAt, tzOf.get(j.branchId)!) === day);
+      .where(
+        and(
+          gte(s.bookings.startAt, new Date(`${addDays(monday, -1)}T00:00:00Z`)),
+          lt(s.bookings.startAt, new Date(`${addDays(TODAY, 1)}T12:00:00Z`)),
+        ),
+      );
+    const on = (techId: string, day: string) =>
+      jobs.filter((j) => j.techId === techId && localDay(j.startAt, tzOf.get(j.branchId)!) === day);
     for (const t of techs) {
       const mon = on(t.id, monday);
       // The coming days book 2–4 jobs per technician; Monday, already worked, has as many, all closed.
       expect(mon.length, t.email).toBeGreaterThanOrEqual(2);
-      expect(mon.every((j) => j.state === 'closed' && j.closedAt), t.email).toBe(true);
+      expect(
+        mon.every((j) => j.state === 'closed' && j.closedAt),
+        t.email,
+      ).toBe(true);
       expect(on(t.id, TODAY).length, t.email).toBeGreaterThanOrEqual(1);
     }
   });
@@ -202,10 +256,19 @@ describe('demo scenario', { timeout: 120_000 }, () => {
     expect(await seedDemo(b.db, { today: TODAY })).toEqual({ seeded: true });
     expect(await counts(b)).toEqual(await counts(a));
     const snapshot = async (database: Database) => ({
-      units: await database.db.select({ id: s.units.id, serial: s.units.serial, make: s.units.make }).from(s.units).orderBy(asc(s.units.serial)),
-      users: await database.db.select({ email: s.users.email, name: s.users.name, token: s.users.calendarToken }).from(s.users).orderBy(asc(s.users.email)),
+      units: await database.db
+        .select({ id: s.units.id, serial: s.units.serial, make: s.units.make })
+        .from(s.units)
+        .orderBy(asc(s.units.serial)),
+      users: await database.db
+        .select({ email: s.users.email, name: s.users.name, token: s.users.calendarToken })
+        .from(s.users)
+        .orderBy(asc(s.users.email)),
       sites: await database.db.select({ name: s.sites.name, lat: s.sites.lat }).from(s.sites).orderBy(asc(s.sites.name)),
-      workOrders: await database.db.select({ id: s.workOrders.id, number: s.workOrders.number, state: s.workOrders.state }).from(s.workOrders).orderBy(asc(s.workOrders.number)),
+      workOrders: await database.db
+        .select({ id: s.workOrders.id, number: s.workOrders.number, state: s.workOrders.state })
+        .from(s.workOrders)
+        .orderBy(asc(s.workOrders.number)),
       readings: await database.db.select({ id: s.readings.id, p: s.readings.suctionPressure }).from(s.readings).orderBy(asc(s.readings.id)),
     });
     expect(await snapshot(b)).toEqual(await snapshot(a));

@@ -65,7 +65,9 @@ export async function seedDemo(db: Db, opts: SeedOptions = {}): Promise<{ seeded
     const marks = new Map<string, string>();
     for (const f of rows.findings) if (f.id && !marks.has(f.visitId)) marks.set(f.visitId, f.id);
     const pairs = JSON.stringify([...marks].map(([v, f]) => ({ v, f })));
-    await tx.execute(sql`UPDATE visits SET root_cause_finding_id = m.f FROM jsonb_to_recordset(${pairs}::jsonb) AS m(v uuid, f uuid) WHERE visits.id = m.v AND visits.closed_at IS NOT NULL`);
+    await tx.execute(
+      sql`UPDATE visits SET root_cause_finding_id = m.f FROM jsonb_to_recordset(${pairs}::jsonb) AS m(v uuid, f uuid) WHERE visits.id = m.v AND visits.closed_at IS NOT NULL`,
+    );
     await tx.insert(schema.appMeta).values({ key: 'demo_seeded', value: { today } });
     return { seeded: true };
   });
@@ -103,7 +105,9 @@ function withDerivedValues(r: ReadingRow): ReadingRow {
  * sign-ins work. (The UTC date would put the Chicago technician's stops on tomorrow every evening.)
  */
 export function demoToday(now: Date): string {
-  return new Intl.DateTimeFormat('en-CA', { timeZone: BRANCHES[0]!.timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(now);
+  return new Intl.DateTimeFormat('en-CA', { timeZone: BRANCHES[0]!.timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).format(
+    now,
+  );
 }
 
 async function alreadySeeded(db: Tx): Promise<boolean> {

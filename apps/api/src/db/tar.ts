@@ -23,7 +23,8 @@ function writeOctal(block: Buffer, offset: number, width: number, value: number)
 export function tarHeader(name: string, size: number, mtime: Date, mode = 0o644): Buffer {
   const nameBytes = Buffer.from(name, 'utf8');
   if (nameBytes.length === 0 || nameBytes.length > 100) throw new TarError(`The name ${name} does not fit a tar header.`);
-  if (!Number.isSafeInteger(size) || size < 0 || size > MAX_SIZE) throw new TarError(`${name} is too large for a tar entry (${size} bytes).`);
+  if (!Number.isSafeInteger(size) || size < 0 || size > MAX_SIZE)
+    throw new TarError(`${name} is too large for a tar entry (${size} bytes).`);
   const h = Buffer.alloc(BLOCK);
   nameBytes.copy(h, 0);
   writeOctal(h, 100, 8, mode);

@@ -22,7 +22,9 @@ export function createJobQueue(logger?: Pick<Logger, 'error'>): JobQueue {
         // setImmediate: after the I/O that sends the answer, not in the same turn.
         .then(() => new Promise<void>((resolve) => setImmediate(resolve)))
         .then(fn)
-        .catch((err: unknown) => (logger ? logger.error({ err, job: name }, 'job failed') : console.error(`[coilpath] job ${name} failed`, err)));
+        .catch((err: unknown) =>
+          logger ? logger.error({ err, job: name }, 'job failed') : console.error(`[coilpath] job ${name} failed`, err),
+        );
     },
     idle: () => tail,
   };

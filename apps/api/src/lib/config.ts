@@ -4,7 +4,10 @@ import { shiftedClock, systemClock, type Clock } from './clock';
 const envSchema = z.object({
   PORT: z.coerce.number().int().min(0).max(65535).default(3000),
   HOST: z.string().default('0.0.0.0'),
-  DATABASE_URL: z.string().regex(/^postgres(ql)?:\/\//, 'DATABASE_URL must be a postgres:// URL').optional(),
+  DATABASE_URL: z
+    .string()
+    .regex(/^postgres(ql)?:\/\//, 'DATABASE_URL must be a postgres:// URL')
+    .optional(),
   COILPATH_DATA_DIR: z.string().default('./data'),
   COILPATH_SECRET: z.string().min(32, 'COILPATH_SECRET needs at least 32 characters').optional(),
   /** `smtp://host:port` of a real relay; empty = the local sink. */
@@ -20,16 +23,26 @@ const envSchema = z.object({
   /** Cron-like minute interval at which scheduled jobs check whether they are due. */
   COILPATH_JOBS_INTERVAL_SECONDS: z.coerce.number().int().min(5).default(300),
   COILPATH_JOBS: z.enum(['on', 'off']).default('on'),
-  SESSION_HOURS: z.coerce.number().min(1).max(24 * 30).default(12),
+  SESSION_HOURS: z.coerce
+    .number()
+    .min(1)
+    .max(24 * 30)
+    .default(12),
   NODE_ENV: z.string().default('development'),
   /**
    * Stored files in an S3-compatible bucket instead of `<data dir>/files` (several API processes share it):
    * set `S3_BUCKET`; `S3_URL` is the endpoint of a store other than Amazon S3 (MinIO, a local fake…).
    */
-  S3_URL: z.preprocess((v) => (v === '' ? undefined : v), z.url({ protocol: /^https?$/, message: 'S3_URL must be an http(s):// URL' }).optional()),
+  S3_URL: z.preprocess(
+    (v) => (v === '' ? undefined : v),
+    z.url({ protocol: /^https?$/, message: 'S3_URL must be an http(s):// URL' }).optional(),
+  ),
   S3_BUCKET: z.preprocess(
     (v) => (v === '' ? undefined : v),
-    z.string().regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, 'S3_BUCKET must be a bucket name: 3–63 lowercase letters, digits, dots or hyphens').optional(),
+    z
+      .string()
+      .regex(/^[a-z0-9][a-z0-9.-]{1,61}[a-z0-9]$/, 'S3_BUCKET must be a bucket name: 3–63 lowercase letters, digits, dots or hyphens')
+      .optional(),
   ),
   S3_REGION: z.string().min(1).default('us-east-1'),
   S3_ACCESS_KEY_ID: z.preprocess((v) => (v === '' ? undefined : v), z.string().optional()),
@@ -50,7 +63,9 @@ const envSchema = z.object({
   COILPATH_BENCH_ELD: z.enum(['0', '1']).default('0'),
   COILPATH_NOW: z.preprocess(
     (v) => (v === '' ? undefined : v),
-    z.iso.datetime({ offset: true, message: 'COILPATH_NOW must be an ISO 8601 instant with an offset, e.g. 2027-03-15T06:00:00-05:00' }).optional(),
+    z.iso
+      .datetime({ offset: true, message: 'COILPATH_NOW must be an ISO 8601 instant with an offset, e.g. 2027-03-15T06:00:00-05:00' })
+      .optional(),
   ),
 });
 

@@ -40,7 +40,9 @@ describe('endpoint() response checks', () => {
   });
 
   it('answers 500 response_mismatch naming the route and the fields when the answer breaks its schema', async () => {
-    const res = await request(appWith(endpoint({ response: answerSchema }, () => ({ count: 'two', at: 'noon' }) as never))).get('/things/1');
+    const res = await request(appWith(endpoint({ response: answerSchema }, () => ({ count: 'two', at: 'noon' }) as never))).get(
+      '/things/1',
+    );
     expect(res.status).toBe(500);
     expect(res.body.error.code).toBe('response_mismatch');
     expect(res.body.error.message).toContain('GET /things/:id');
@@ -48,7 +50,9 @@ describe('endpoint() response checks', () => {
   });
 
   it('checks a PreparedJson answer by its text', async () => {
-    const good = await request(appWith(endpoint({ response: answerSchema }, () => prepareJson({ count: 1, at: '2026-12-02T14:00:00Z' })))).get('/things/1');
+    const good = await request(
+      appWith(endpoint({ response: answerSchema }, () => prepareJson({ count: 1, at: '2026-12-02T14:00:00Z' }))),
+    ).get('/things/1');
     expect(good.status).toBe(200);
     expect(good.headers.etag).toBeTruthy();
     const bad = await request(appWith(endpoint({ response: answerSchema }, () => prepareJson({ count: 1 })))).get('/things/1');
@@ -82,10 +86,14 @@ describe('endpoint() response checks', () => {
 
 describe('endpoint() checks JSON a handler sends itself', () => {
   it('answers 500 when res.json() sends what the schema does not allow, and passes what it allows', async () => {
-    const bad = await request(appWith(endpoint({ response: answerSchema }, ({ res }) => void res.status(201).json({ count: 1 })))).get('/things/1');
+    const bad = await request(appWith(endpoint({ response: answerSchema }, ({ res }) => void res.status(201).json({ count: 1 })))).get(
+      '/things/1',
+    );
     expect(bad.status).toBe(500);
     expect(bad.body.error.code).toBe('response_mismatch');
-    const good = await request(appWith(endpoint({ response: answerSchema }, ({ res }) => void res.status(201).json({ count: 1, at: '2026-12-02T14:00:00Z' })))).get('/things/1');
+    const good = await request(
+      appWith(endpoint({ response: answerSchema }, ({ res }) => void res.status(201).json({ count: 1, at: '2026-12-02T14:00:00Z' }))),
+    ).get('/things/1');
     expect(good.status).toBe(201);
   });
 });

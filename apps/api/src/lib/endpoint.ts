@@ -43,7 +43,12 @@ const checksAnswers = () => process.env.NODE_ENV !== 'production';
 export class ResponseMismatch extends HttpError {
   constructor(route: string, issues: readonly z.core.$ZodIssue[] | string) {
     const said = typeof issues === 'string' ? issues : issues.map((i) => `${i.path.join('.') || '(answer)'}: ${i.message}`).join('; ');
-    super(500, 'response_mismatch', `${route} answered something its response schema does not allow: ${said}`, typeof issues === 'string' ? undefined : { issues });
+    super(
+      500,
+      'response_mismatch',
+      `${route} answered something its response schema does not allow: ${said}`,
+      typeof issues === 'string' ? undefined : { issues },
+    );
     this.name = 'ResponseMismatch';
   }
 }
@@ -100,7 +105,12 @@ export function endpoint<S extends Schemas, R extends ResponseDeclaration>(
     if (res.headersSent) return;
     if (checking) checkAnswer(req, response, result);
     if (result === undefined) res.status(204).end();
-    else if (result instanceof PreparedJson) res.status(schemas.status ?? 200).set('ETag', result.etag).type('json').send(result.text);
+    else if (result instanceof PreparedJson)
+      res
+        .status(schemas.status ?? 200)
+        .set('ETag', result.etag)
+        .type('json')
+        .send(result.text);
     else res.status(schemas.status ?? 200).json(result);
   };
   handle[endpointDeclaration] = { response };

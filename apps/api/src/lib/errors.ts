@@ -21,8 +21,7 @@ export const unauthorized = (message = 'Sign in to continue.') => new HttpError(
 export const forbidden = (message = 'Your role may not do this.') => new HttpError(403, 'forbidden', message);
 export const notFound = (what = 'record') => new HttpError(404, 'not_found', `No such ${what}.`);
 export const conflict = (code: string, message: string, details?: unknown) => new HttpError(409, code, message, details);
-export const unprocessable = (message: string, details?: unknown) =>
-  new HttpError(422, 'unprocessable', message, details);
+export const unprocessable = (message: string, details?: unknown) => new HttpError(422, 'unprocessable', message, details);
 
 /**
  * A record whose stored file is gone (410: it existed and will not come back by asking again). Said plainly,
@@ -36,7 +35,10 @@ export const fileMissing = (what: string) =>
   );
 
 const isErrorBody = (body: unknown): body is { error: Record<string, unknown> } =>
-  typeof body === 'object' && body !== null && typeof (body as { error?: unknown }).error === 'object' && (body as { error?: unknown }).error !== null;
+  typeof body === 'object' &&
+  body !== null &&
+  typeof (body as { error?: unknown }).error === 'object' &&
+  (body as { error?: unknown }).error !== null;
 
 /**
  * Every JSON error answer (status 400 and up with an `error` object — from the error handler, a rate limiter or a
@@ -46,6 +48,10 @@ const isErrorBody = (body: unknown): body is { error: Record<string, unknown> } 
 export function requestIdInErrors(req: Request, res: Response, next: NextFunction) {
   const json = res.json.bind(res);
   res.json = (body?: unknown) =>
-    json(res.statusCode >= 400 && isErrorBody(body) && req.id !== undefined ? { ...body, error: { ...body.error, requestId: String(req.id) } } : body);
+    json(
+      res.statusCode >= 400 && isErrorBody(body) && req.id !== undefined
+        ? { ...body, error: { ...body.error, requestId: String(req.id) } }
+        : body,
+    );
   next();
 }

@@ -56,7 +56,10 @@ export function escapeText(value: string): string {
 
 /** DATE-TIME in UTC (§3.3.5, form #2): 20261204T151500Z. */
 export function utcDateTime(d: Date): string {
-  return d.toISOString().replace(/[-:]/g, '').replace(/\.\d{3}Z$/, 'Z');
+  return d
+    .toISOString()
+    .replace(/[-:]/g, '')
+    .replace(/\.\d{3}Z$/, 'Z');
 }
 
 export interface CalendarEvent {
@@ -86,7 +89,13 @@ export function writeCalendar(cal: Calendar): string {
   const lines: string[] = ['BEGIN:VCALENDAR', 'VERSION:2.0', `PRODID:${cal.productId}`, 'CALSCALE:GREGORIAN', 'METHOD:PUBLISH'];
   if (cal.name) lines.push(`X-WR-CALNAME:${escapeText(cal.name)}`);
   for (const e of cal.events) {
-    lines.push('BEGIN:VEVENT', `UID:${e.uid}`, `DTSTAMP:${utcDateTime(cal.stamp)}`, `DTSTART:${utcDateTime(e.start)}`, `DTEND:${utcDateTime(e.end)}`);
+    lines.push(
+      'BEGIN:VEVENT',
+      `UID:${e.uid}`,
+      `DTSTAMP:${utcDateTime(cal.stamp)}`,
+      `DTSTART:${utcDateTime(e.start)}`,
+      `DTEND:${utcDateTime(e.end)}`,
+    );
     lines.push(`SUMMARY:${escapeText(e.summary)}`);
     if (e.description) lines.push(`DESCRIPTION:${escapeText(e.description)}`);
     if (e.location) lines.push(`LOCATION:${escapeText(e.location)}`);

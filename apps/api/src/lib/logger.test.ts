@@ -124,7 +124,15 @@ describe('a missing stored file', () => {
     await t.storage.remove(storageKey);
     const [a] = await t.ctx.db
       .insert(attachments)
-      .values({ visitId: v!.id, unitId: unit.id, kind: 'photo', storageKey, displayName: 'coil.png', contentType: 'image/png', sizeBytes: 4 })
+      .values({
+        visitId: v!.id,
+        unitId: unit.id,
+        kind: 'photo',
+        storageKey,
+        displayName: 'coil.png',
+        contentType: 'image/png',
+        sizeBytes: 4,
+      })
       .returning();
     const signIn = await request(t.app).post('/api/auth/sign-in').send({ email: f.owner.email, password: TEST_PASSWORD });
     const res = await request(t.app).get(`/api/attachments/${a!.id}`).set('Cookie', String(signIn.headers['set-cookie']).split(';')[0]!);
@@ -151,13 +159,24 @@ describe('no secrets in the log', () => {
     const session = setCookie.split(';')[0]!.slice(`${SESSION_COOKIE}=`.length);
     expect(session.length).toBeGreaterThan(20);
 
-    await request(t.app).get('/api/auth/me').set('Cookie', `${SESSION_COOKIE}=${session}`).set('Authorization', 'Bearer bearer-secret-51ab');
+    await request(t.app)
+      .get('/api/auth/me')
+      .set('Cookie', `${SESSION_COOKIE}=${session}`)
+      .set('Authorization', 'Bearer bearer-secret-51ab');
     await request(t.app).post('/api/auth/reset-password/check').send({ token: 'reset-token-in-body-3d9f' });
     await request(t.app).get('/api/health?token=query-token-8b2c&keep=yes');
     await request(t.app).get('/api/calendar/feed-token-77aa.ics');
 
     const text = written.join('');
-    for (const secret of [password, TEST_PASSWORD, session, 'bearer-secret-51ab', 'reset-token-in-body-3d9f', 'query-token-8b2c', 'feed-token-77aa']) {
+    for (const secret of [
+      password,
+      TEST_PASSWORD,
+      session,
+      'bearer-secret-51ab',
+      'reset-token-in-body-3d9f',
+      'query-token-8b2c',
+      'feed-token-77aa',
+    ]) {
       expect(text, secret).not.toContain(secret);
     }
     expect(text).not.toMatch(/set-cookie/i);
@@ -170,7 +189,14 @@ describe('no secrets in the log', () => {
   it('redacts secrets in anything else logged with a request or an object', () => {
     const out: string[] = [];
     const log = createLogger({ destination: { write: (s: string) => void out.push(s) } });
-    log.info({ req: { headers: { cookie: 'c=cookie-1', authorization: 'Basic auth-2' } }, body: { password: 'pw-3', token: 'tk-4' }, password: 'pw-5' }, 'x');
+    log.info(
+      {
+        req: { headers: { cookie: 'c=cookie-1', authorization: 'Basic auth-2' } },
+        body: { password: 'pw-3', token: 'tk-4' },
+        password: 'pw-5',
+      },
+      'x',
+    );
     log.info({ res: { headers: { 'set-cookie': 'c=cookie-6' } }, user: { profile: { password: 'pw-7' } } }, 'y');
     const text = out.join('');
     for (const s of ['cookie-1', 'auth-2', 'pw-3', 'tk-4', 'pw-5', 'cookie-6', 'pw-7']) expect(text, s).not.toContain(s);

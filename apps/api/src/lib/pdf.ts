@@ -57,7 +57,12 @@ export interface CoilpathPdf {
    * A table with a header row: `widths` are relative, `align` per column (default: first left,
    * others right). The header row is drawn again, as an artifact, at the top of each new page.
    */
-  table(headers: string[], widths: number[], rows: string[][], options?: { align?: ('left' | 'right')[]; size?: number; empty?: string }): void;
+  table(
+    headers: string[],
+    widths: number[],
+    rows: string[][],
+    options?: { align?: ('left' | 'right')[]; size?: number; empty?: string },
+  ): void;
   /** Starts a new page when less than `height` points are left. */
   ensureSpace(height: number): void;
   /** A picture (an image drawn by `draw`) tagged as a Figure with its alternate text for screen readers. */
@@ -170,7 +175,12 @@ export function createPdf(setup: PdfSetup): CoilpathPdf {
       root.add(table);
       const rule = () =>
         artifact(() => {
-          doc.moveTo(left, doc.y - 1.5).lineTo(left + width, doc.y - 1.5).lineWidth(0.4).strokeColor(ruleColour).stroke();
+          doc
+            .moveTo(left, doc.y - 1.5)
+            .lineTo(left + width, doc.y - 1.5)
+            .lineWidth(0.4)
+            .strokeColor(ruleColour)
+            .stroke();
         });
       /** Draws one row; `tr` null draws it as an artifact (the header repeated on a new page). */
       const drawRow = (cells: string[], header: boolean, tr: PDFKit.PDFStructureElement | null) => {
@@ -184,7 +194,8 @@ export function createPdf(setup: PdfSetup): CoilpathPdf {
             h = Math.max(h, doc.y - y);
           };
           // A header cell heads its column (pdfkit writes the Table attribute Scope).
-          if (tr) tr.add(doc.struct(header ? 'TH' : 'TD', (header ? { scope: 'Column' } : {}) as PDFKit.Mixins.StructureElementOptions, draw));
+          if (tr)
+            tr.add(doc.struct(header ? 'TH' : 'TD', (header ? { scope: 'Column' } : {}) as PDFKit.Mixins.StructureElementOptions, draw));
           else artifact(draw);
           x += cw;
         });

@@ -64,13 +64,18 @@ describe('the routes that send stored files', () => {
     const [v] = await t.ctx.db.insert(visits).values({ branchId: f.a.id, workOrderId: wo.id, techId: f.inA.technician.id }).returning();
     const row = async (kind: 'photo' | 'document', content: Buffer, contentType: string, displayName: string) => {
       const storageKey = await t.storage.put(content, { contentType });
-      const [a] = await t.ctx.db.insert(attachments).values({ visitId: v!.id, unitId, kind, storageKey, displayName, contentType, sizeBytes: content.length }).returning();
+      const [a] = await t.ctx.db
+        .insert(attachments)
+        .values({ visitId: v!.id, unitId, kind, storageKey, displayName, contentType, sizeBytes: content.length })
+        .returning();
       return a!.id;
     };
     photoId = await row('photo', png, 'image/png', 'Condenser coil.png');
     documentId = await row('document', pdf, 'application/pdf', 'Démarrage RTU-3 (rapport).pdf');
     const pdfKey = await t.storage.put(pdf, { contentType: 'application/pdf' });
-    const svgKey = await t.storage.put(Buffer.from('<svg xmlns="http://www.w3.org/2000/svg"><script>alert(1)</script></svg>'), { contentType: 'image/svg+xml' });
+    const svgKey = await t.storage.put(Buffer.from('<svg xmlns="http://www.w3.org/2000/svg"><script>alert(1)</script></svg>'), {
+      contentType: 'image/svg+xml',
+    });
     const [m] = await t.ctx.db
       .insert(mailOutbox)
       .values({

@@ -18,7 +18,10 @@ const encodeExtValue = (s: string) => encodeURIComponent(s).replace(/['()*]/g, (
  */
 export function contentDisposition(type: 'inline' | 'attachment', name: string): string {
   const clean = name.replace(/[\u0000-\u001f\u007f]/g, '').trim() || 'file';
-  const ascii = clean.normalize('NFKD').replace(/[\u0300-\u036f]/g, '').replace(/[^\x20-\x7e]|["\\]/g, '_');
+  const ascii = clean
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .replace(/[^\x20-\x7e]|["\\]/g, '_');
   return `${type}; filename="${ascii}"; filename*=UTF-8''${encodeExtValue(clean.normalize('NFC'))}`;
 }
 

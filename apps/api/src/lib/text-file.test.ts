@@ -29,7 +29,10 @@ describe('reading an uploaded CSV file’s bytes', () => {
     const text = csv('Nguyễn Thị Hương; Łukasz Żółć');
     expect(decodeTextFile(Buffer.from(text))).toEqual({ text, encoding: 'UTF-8' });
     expect(decodeTextFile(Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), Buffer.from(text)]))).toEqual({ text, encoding: 'UTF-8' });
-    expect(decodeTextFile(Buffer.concat([Buffer.from([0xff, 0xfe]), iconv.encode(text, 'utf-16le')]))).toEqual({ text, encoding: 'UTF-16LE' });
+    expect(decodeTextFile(Buffer.concat([Buffer.from([0xff, 0xfe]), iconv.encode(text, 'utf-16le')]))).toEqual({
+      text,
+      encoding: 'UTF-16LE',
+    });
     expect(decodeTextFile(Buffer.from('a,b\r\n1,2\r\n'))).toEqual({ text: 'a,b\r\n1,2\r\n', encoding: 'UTF-8' });
   });
 
@@ -44,7 +47,9 @@ describe('reading an uploaded CSV file’s bytes', () => {
       throw new Error('not refused');
     };
     expect(refusal(iconv.encode(csv('東京の屋上ユニット、北側の機械室の隣'), 'shift_jis'))).toMatch(/Shift_JIS.*CSV UTF-8/);
-    expect(refusal(Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), iconv.encode(csv('Łódź'), 'windows-1250')]))).toMatch(/byte-order mark.*CSV UTF-8/);
+    expect(refusal(Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), iconv.encode(csv('Łódź'), 'windows-1250')]))).toMatch(
+      /byte-order mark.*CSV UTF-8/,
+    );
     // A UTF-8 file that already carries replacement characters was mis-converted before.
     expect(refusal(Buffer.from(csv('Caf\uFFFD')))).toMatch(/could not be read/);
   });

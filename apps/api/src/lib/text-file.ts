@@ -38,9 +38,12 @@ function refuse(message: string): HttpError {
  */
 function assertClean(text: string, legacy: boolean) {
   if (text.includes('\uFFFD')) {
-    throw refuse(`The file contains characters that could not be read (shown as "\uFFFD"): it was not read as the encoding it was saved in. ${SAVE_AS_UTF8}`);
+    throw refuse(
+      `The file contains characters that could not be read (shown as "\uFFFD"): it was not read as the encoding it was saved in. ${SAVE_AS_UTF8}`,
+    );
   }
-  if (legacy && /[\u0080-\u009F]/.test(text)) throw refuse(`The file contains bytes that are not text in any encoding Coilpath could work out. ${SAVE_AS_UTF8}`);
+  if (legacy && /[\u0080-\u009F]/.test(text))
+    throw refuse(`The file contains bytes that are not text in any encoding Coilpath could work out. ${SAVE_AS_UTF8}`);
 }
 
 /** Decodes a text file's bytes, or refuses it (400 `not_utf8`) with a message that says what to do. */
@@ -55,13 +58,15 @@ export function decodeTextFile(bytes: Uint8Array): DecodedText {
     if (e instanceof HttpError) throw e;
     // Not UTF-8: a legacy export. chardet ranks candidates by the byte statistics of languages.
   }
-  if (body !== buf) throw refuse(`The file says it is UTF-8 (it starts with a byte-order mark) but holds bytes that are not UTF-8. ${SAVE_AS_UTF8}`);
+  if (body !== buf)
+    throw refuse(`The file says it is UTF-8 (it starts with a byte-order mark) but holds bytes that are not UTF-8. ${SAVE_AS_UTF8}`);
   const decoded = decodeLegacy(body);
   return checked(decoded.text, decoded.encoding, true);
 }
 
 /** Non-ASCII characters that are neither letters nor the punctuation and signs spreadsheets hold. */
-const ODD = /[^\p{L}\p{M}\u00A0\u00A7\u00A9\u00AB\u00AE\u00B0\u00B1\u00B5\u00B7\u00BB\u00D7\u00F7\u2013\u2014\u2018\u2019\u201A\u201C\u201D\u201E\u2022\u2026\u20AC\u2122\u00A1\u00BF]/u;
+const ODD =
+  /[^\p{L}\p{M}\u00A0\u00A7\u00A9\u00AB\u00AE\u00B0\u00B1\u00B5\u00B7\u00BB\u00D7\u00F7\u2013\u2014\u2018\u2019\u201A\u201C\u201D\u201E\u2022\u2026\u20AC\u2122\u00A1\u00BF]/u;
 
 /**
  * How unlikely a decoding is: the non-ASCII characters that are not letters (or usual signs), those

@@ -75,7 +75,10 @@ function expectBothParts(mail: ParsedMail, raw: string) {
   expect(html).toMatch(/style="/);
   // The HTML shows "Key: value" facts as a two-column table (no colon): compare without colons.
   const words = htmlWords(html).replace(/:/g, '');
-  for (const line of mail.text!.split('\n').map((l) => l.replace(/^- /, '').trim()).filter(Boolean)) {
+  for (const line of mail
+    .text!.split('\n')
+    .map((l) => l.replace(/^- /, '').trim())
+    .filter(Boolean)) {
     expect(words, `HTML part lacks: ${line}`).toContain(line.replace(/:/g, '').replace(/\s+/g, ' '));
   }
 }
@@ -85,7 +88,18 @@ describe('e-mail messages', () => {
     const owner = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD);
     const res = await owner.post('/api/invitations').send({
       email: 'new.tech@test.example',
-      profile: { name: polish, role: 'technician', branchId: f.a.id, skills: [], epa608Type: 'universal', epa608Number: 'EPA-1', workingHours: weekdayHours, startAddress: '1 Home St', startLat: 41.9, startLon: -87.6 },
+      profile: {
+        name: polish,
+        role: 'technician',
+        branchId: f.a.id,
+        skills: [],
+        epa608Type: 'universal',
+        epa608Number: 'EPA-1',
+        workingHours: weekdayHours,
+        startAddress: '1 Home St',
+        startLat: 41.9,
+        startLon: -87.6,
+      },
     });
     expect(res.status).toBe(201);
     const { mail, raw } = await lastParsed();
@@ -95,7 +109,7 @@ describe('e-mail messages', () => {
     // 72 hours after 07:05 CST on the 15th, read in Chicago.
     expect(mail.text).toContain('expires on Fri 18 Dec 2026, 07:05 CST');
     expect(mail.headers.get('auto-submitted')).toBeUndefined();
-    expect((mail.html as string)).toMatch(/<a href="http:\/\/coilpath\.test\/accept-invitation\?token=/);
+    expect(mail.html as string).toMatch(/<a href="http:\/\/coilpath\.test\/accept-invitation\?token=/);
   });
 
   it('password reset: both parts, the expiry in the person’s branch zone (Phoenix)', async () => {
@@ -112,9 +126,18 @@ describe('e-mail messages', () => {
 
   it('service summary: both parts and the PDF, arrival and close in the branch zone, names as written', async () => {
     const p = await makeSiteWithUnit(t.ctx.db, f.a.id);
-    await t.ctx.db.update(sites).set({ name: `${vietnamese} Bakery` }).where(eq(sites.id, p.site.id));
+    await t.ctx.db
+      .update(sites)
+      .set({ name: `${vietnamese} Bakery` })
+      .where(eq(sites.id, p.site.id));
     await t.ctx.db.update(users).set({ name: polish }).where(eq(users.id, f.inA.technician.id));
-    const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, techId: f.inA.technician.id, startAt: '2026-12-15T12:30:00Z' });
+    const { visit } = await makeBookedVisit(t.ctx.db, {
+      branchId: f.a.id,
+      siteId: p.site.id,
+      unitId: p.unit.id,
+      techId: f.inA.technician.id,
+      startAt: '2026-12-15T12:30:00Z',
+    });
     const tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
     expect((await tech.patch(`/api/visits/${visit.id}`).send({ state: 'on_site' })).status).toBe(200);
     const closed = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });

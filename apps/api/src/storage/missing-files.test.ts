@@ -43,7 +43,12 @@ async function outboxMessage(gone: boolean) {
   if (gone) await t.storage.remove(storageKey);
   const [m] = await t.ctx.db
     .insert(mailOutbox)
-    .values({ from: 'a@test.example', to: 'b@test.example', subject: 'Service summary', attachments: [{ filename: 'summary.pdf', contentType: 'application/pdf', size: 16, storageKey }] })
+    .values({
+      from: 'a@test.example',
+      to: 'b@test.example',
+      subject: 'Service summary',
+      attachments: [{ filename: 'summary.pdf', contentType: 'application/pdf', size: 16, storageKey }],
+    })
     .returning();
   return m!.id;
 }

@@ -132,7 +132,11 @@ describe('S3 settings from the environment', () => {
 
   it('uses the disk without S3_BUCKET, and the bucket with it (path-style by default behind S3_URL)', () => {
     expect(s3SettingsFromEnv(env({}))).toBeNull();
-    expect(s3SettingsFromEnv(env({ S3_BUCKET: 'coilpath-files', S3_URL: 'http://127.0.0.1:4568', S3_ACCESS_KEY_ID: 'k', S3_SECRET_ACCESS_KEY: 's' }))).toEqual({
+    expect(
+      s3SettingsFromEnv(
+        env({ S3_BUCKET: 'coilpath-files', S3_URL: 'http://127.0.0.1:4568', S3_ACCESS_KEY_ID: 'k', S3_SECRET_ACCESS_KEY: 's' }),
+      ),
+    ).toEqual({
       endpoint: 'http://127.0.0.1:4568',
       bucket: 'coilpath-files',
       region: 'us-east-1',
@@ -141,7 +145,9 @@ describe('S3 settings from the environment', () => {
     });
     const aws = s3SettingsFromEnv(env({ S3_BUCKET: 'coilpath-files', S3_REGION: 'eu-central-1' }));
     expect(aws).toMatchObject({ endpoint: null, region: 'eu-central-1', pathStyle: false, credentials: undefined });
-    expect(s3SettingsFromEnv(env({ S3_BUCKET: 'coilpath-files', S3_URL: 'https://s3.example', S3_PATH_STYLE: 'false' }))?.pathStyle).toBe(false);
+    expect(s3SettingsFromEnv(env({ S3_BUCKET: 'coilpath-files', S3_URL: 'https://s3.example', S3_PATH_STYLE: 'false' }))?.pathStyle).toBe(
+      false,
+    );
   });
 
   it('refuses half a configuration and a bad bucket name or address', () => {
@@ -183,7 +189,11 @@ describe.runIf(!process.env.DATABASE_URL)('backups of an S3 deployment', { timeo
     delete env.DATABASE_URL;
     delete env.COILPATH_SECRET;
     delete env.NODE_OPTIONS;
-    const r = spawnSync(process.execPath, ['--import', 'tsx', 'apps/api/src/db/backup-cli.ts', ...args], { cwd: repoRoot, env, encoding: 'utf8' });
+    const r = spawnSync(process.execPath, ['--import', 'tsx', 'apps/api/src/db/backup-cli.ts', ...args], {
+      cwd: repoRoot,
+      env,
+      encoding: 'utf8',
+    });
     return { code: r.status, out: `${r.stdout}${r.stderr}` };
   };
 
@@ -205,39 +215,64 @@ describe.runIf(!process.env.DATABASE_URL)('backups of an S3 deployment', { timeo
       const photoKey = await s3.put(photo, { contentType: 'image/jpeg' });
       const [a] = await db
         .insert(attachments)
-        .values({ visitId: visit!.id, unitId: unit.id, kind: 'photo', storageKey: photoKey, displayName: 'coil.jpg', contentType: 'image/jpeg', sizeBytes: photo.length })
+        .values({
+          visitId: visit!.id,
+          unitId: unit.id,
+          kind: 'photo',
+          storageKey: photoKey,
+          displayName: 'coil.jpg',
+          contentType: 'image/jpeg',
+          sizeBytes: photo.length,
+        })
         .returning();
       const pdf = Buffer.concat([Buffer.from('%PDF-1.4\n'), randomBytes(9_000)]);
       const pdfKey = await s3.put(pdf, { contentType: 'application/pdf' });
       const [m] = await db
         .insert(mailOutbox)
-        .values({ from: 'a@test.example', to: 'b@test.example', subject: 'Service summary', attachments: [{ filename: 'summary.pdf', contentType: 'application/pdf', size: pdf.length, storageKey: pdfKey }] })
+        .values({
+          from: 'a@test.example',
+          to: 'b@test.example',
+          subject: 'Service summary',
+          attachments: [{ filename: 'summary.pdf', contentType: 'application/pdf', size: pdf.length, storageKey: pdfKey }],
+        })
         .returning();
       const served = [
         { path: `/api/attachments/${a!.id}`, bytes: photo },
         { path: `/api/outbox/${m!.id}/attachments/0`, bytes: pdf },
       ];
-      const signIn = await request(appOn(database, dataDir)).post('/api/auth/sign-in').send({ email: owner.email, password: TEST_PASSWORD });
+      const signIn = await request(appOn(database, dataDir))
+        .post('/api/auth/sign-in')
+        .send({ email: owner.email, password: TEST_PASSWORD });
       expect(signIn.status).toBe(200);
       const cookie = String(signIn.headers['set-cookie']).split(';')[0]!;
       await database.close();
 
       const backup = cli(['backup', file], dataDir);
       expect(backup.code, backup.out).toBe(0);
-      expect(backup.out).toContain(`files: not copied — they stay in the S3 bucket ${BUCKET} at ${settings.endpoint} (2 objects the database refers to)`);
+      expect(backup.out).toContain(
+        `files: not copied — they stay in the S3 bucket ${BUCKET} at ${settings.endpoint} (2 objects the database refers to)`,
+      );
       expect(backup.out).not.toContain('and every stored file');
 
       const listed = spawnSync('tar', ['-tzf', file], { encoding: 'utf8' }).stdout.trim().split('\n');
       expect(listed).toEqual(['database/pglite.tar.gz', 'session-secret', 'manifest.json']);
       const manifest = JSON.parse(spawnSync('tar', ['-xzOf', file, 'manifest.json'], { encoding: 'utf8' }).stdout) as BackupManifest;
-      expect(manifest.storage).toEqual({ kind: 's3', endpoint: settings.endpoint, bucket: BUCKET, region: 'us-east-1', referencedObjects: 2 });
+      expect(manifest.storage).toEqual({
+        kind: 's3',
+        endpoint: settings.endpoint,
+        bucket: BUCKET,
+        region: 'us-east-1',
+        referencedObjects: 2,
+      });
       expect(manifest.files).toMatchObject({ count: 0, totalBytes: 0, entries: [], missing: [] });
       expect(JSON.stringify(manifest)).not.toContain('S3RVER');
 
       rmSync(dataDir, { recursive: true, force: true });
       const restore = cli(['restore', file], dataDir);
       expect(restore.code, restore.out).toBe(0);
-      expect(restore.out).toContain(`files: not in this backup — the database refers to 2 objects in the S3 bucket ${BUCKET} at ${settings.endpoint}; they were not touched.`);
+      expect(restore.out).toContain(
+        `files: not in this backup — the database refers to 2 objects in the S3 bucket ${BUCKET} at ${settings.endpoint}; they were not touched.`,
+      );
       // The same bucket is configured: nothing to point elsewhere.
       expect(restore.out).not.toContain('Point S3_URL');
       expect(existsSync(join(dataDir, 'files'))).toBe(false);
@@ -246,11 +281,15 @@ describe.runIf(!process.env.DATABASE_URL)('backups of an S3 deployment', { timeo
       try {
         const app = appOn(database, dataDir);
         for (const f of served) {
-          const res = await request(app).get(f.path).set('Cookie', cookie).buffer(true).parse((r, cb) => {
-            const parts: Buffer[] = [];
-            r.on('data', (c: Buffer) => parts.push(c));
-            r.on('end', () => cb(null, Buffer.concat(parts)));
-          });
+          const res = await request(app)
+            .get(f.path)
+            .set('Cookie', cookie)
+            .buffer(true)
+            .parse((r, cb) => {
+              const parts: Buffer[] = [];
+              r.on('data', (c: Buffer) => parts.push(c));
+              r.on('end', () => cb(null, Buffer.concat(parts)));
+            });
           expect(res.status, f.path).toBe(200);
           expect(sha256(res.body as Buffer), f.path).toBe(sha256(f.bytes));
         }

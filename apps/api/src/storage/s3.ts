@@ -1,5 +1,12 @@
 import { randomUUID } from 'node:crypto';
-import { DeleteObjectCommand, GetObjectCommand, HeadBucketCommand, PutObjectCommand, S3Client, S3ServiceException } from '@aws-sdk/client-s3';
+import {
+  DeleteObjectCommand,
+  GetObjectCommand,
+  HeadBucketCommand,
+  PutObjectCommand,
+  S3Client,
+  S3ServiceException,
+} from '@aws-sdk/client-s3';
 import { join } from 'node:path';
 import { createDiskStorage, keyPattern, StoredFileMissing, type Storage } from './storage';
 
@@ -49,14 +56,23 @@ export function createS3Storage(settings: S3Settings): Storage & { client: S3Cli
         await client.send(new HeadBucketCommand({ Bucket }));
       } catch (e) {
         const status = (e as S3ServiceException).$metadata?.httpStatusCode;
-        const why = status === 404 ? 'it does not exist' : status === 403 ? 'access was refused (check S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY)' : (e as Error).message;
-        throw new Error(`The S3 bucket ${Bucket}${settings.endpoint ? ` at ${settings.endpoint}` : ''} cannot be used: ${why}.`, { cause: e });
+        const why =
+          status === 404
+            ? 'it does not exist'
+            : status === 403
+              ? 'access was refused (check S3_ACCESS_KEY_ID and S3_SECRET_ACCESS_KEY)'
+              : (e as Error).message;
+        throw new Error(`The S3 bucket ${Bucket}${settings.endpoint ? ` at ${settings.endpoint}` : ''} cannot be used: ${why}.`, {
+          cause: e,
+        });
       }
     },
     async put(content, meta) {
       const id = randomUUID();
       const key = `${id.slice(0, 2)}/${id}`;
-      await client.send(new PutObjectCommand({ Bucket, Key: key, Body: content, ContentType: meta.contentType, ContentLength: content.length }));
+      await client.send(
+        new PutObjectCommand({ Bucket, Key: key, Body: content, ContentType: meta.contentType, ContentLength: content.length }),
+      );
       return key;
     },
     async get(key) {
@@ -88,18 +104,24 @@ export function s3SettingsFromEnv(env: {
   S3_PATH_STYLE?: 'true' | 'false' | undefined;
 }): S3Settings | null {
   if (!env.S3_BUCKET) {
-    if (env.S3_URL || env.S3_ACCESS_KEY_ID || env.S3_SECRET_ACCESS_KEY) throw new Error('Bad configuration:\nS3_BUCKET: set it too (S3_URL or S3 credentials are set without a bucket)');
+    if (env.S3_URL || env.S3_ACCESS_KEY_ID || env.S3_SECRET_ACCESS_KEY)
+      throw new Error('Bad configuration:\nS3_BUCKET: set it too (S3_URL or S3 credentials are set without a bucket)');
     return null;
   }
   if (Boolean(env.S3_ACCESS_KEY_ID) !== Boolean(env.S3_SECRET_ACCESS_KEY)) {
-    throw new Error('Bad configuration:\nS3_ACCESS_KEY_ID, S3_SECRET_ACCESS_KEY: set both, or neither (the SDK then finds credentials itself)');
+    throw new Error(
+      'Bad configuration:\nS3_ACCESS_KEY_ID, S3_SECRET_ACCESS_KEY: set both, or neither (the SDK then finds credentials itself)',
+    );
   }
   return {
     endpoint: env.S3_URL ?? null,
     bucket: env.S3_BUCKET,
     region: env.S3_REGION,
     pathStyle: env.S3_PATH_STYLE ? env.S3_PATH_STYLE === 'true' : Boolean(env.S3_URL),
-    credentials: env.S3_ACCESS_KEY_ID && env.S3_SECRET_ACCESS_KEY ? { accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY } : undefined,
+    credentials:
+      env.S3_ACCESS_KEY_ID && env.S3_SECRET_ACCESS_KEY
+        ? { accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY }
+        : undefined,
   };
 }
 
@@ -107,7 +129,10 @@ export function s3SettingsFromEnv(env: {
  * The storage a server (or a backup) uses: the bucket `S3_*` names, checked before the server answers, or
  * `<data dir>/files`. `where` says which, for the start-up message.
  */
-export async function openStorage(env: Parameters<typeof s3SettingsFromEnv>[0], dataDir: string): Promise<{ storage: Storage; where: string; s3: S3Settings | null }> {
+export async function openStorage(
+  env: Parameters<typeof s3SettingsFromEnv>[0],
+  dataDir: string,
+): Promise<{ storage: Storage; where: string; s3: S3Settings | null }> {
   const s3 = s3SettingsFromEnv(env);
   if (!s3) return { storage: createDiskStorage(join(dataDir, 'files')), where: join(dataDir, 'files'), s3 };
   const storage = createS3Storage(s3);

@@ -11,7 +11,9 @@ import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
 import { migrationsFolder, type Database } from '../db/client';
 import { openTestDatabase } from './harness';
 
-export async function databaseBefore(tagSuffix: string): Promise<{ database: Database; migrateRest(): Promise<void>; close(): Promise<void> }> {
+export async function databaseBefore(
+  tagSuffix: string,
+): Promise<{ database: Database; migrateRest(): Promise<void>; close(): Promise<void> }> {
   const before = mkdtempSync(join(tmpdir(), `coilpath-before${tagSuffix}-`));
   cpSync(migrationsFolder, before, { recursive: true });
   const journalPath = join(before, 'meta', '_journal.json');
@@ -22,7 +24,9 @@ export async function databaseBefore(tagSuffix: string): Promise<{ database: Dat
   writeFileSync(journalPath, JSON.stringify(journal));
   const database = await openTestDatabase({ migrate: false });
   const migrate = (folder: string) =>
-    database.kind === 'pglite' ? migratePglite(database.db, { migrationsFolder: folder }) : migratePg(database.db as never, { migrationsFolder: folder });
+    database.kind === 'pglite'
+      ? migratePglite(database.db, { migrationsFolder: folder })
+      : migratePg(database.db as never, { migrationsFolder: folder });
   await migrate(before);
   return {
     database,

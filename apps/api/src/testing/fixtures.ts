@@ -52,10 +52,21 @@ export async function makeUser(db: Db, role: Role, branchId: string | null, over
 /** A customer, a site and a two-circuit R-410A rooftop unit in the branch. */
 export async function makeSiteWithUnit(db: Db, branchId: string, over: { unit?: Partial<typeof units.$inferInsert> } = {}) {
   const i = next();
-  const [c] = await db.insert(customers).values({ branchId, name: `Customer ${i}` }).returning();
+  const [c] = await db
+    .insert(customers)
+    .values({ branchId, name: `Customer ${i}` })
+    .returning();
   const [s] = await db
     .insert(sites)
-    .values({ branchId, customerId: c!.id, name: `Site ${i}`, address: `${i} Test Street`, lat: 41.9, lon: -87.7, contactEmail: `site${i}@test.example` })
+    .values({
+      branchId,
+      customerId: c!.id,
+      name: `Site ${i}`,
+      address: `${i} Test Street`,
+      lat: 41.9,
+      lon: -87.7,
+      contactEmail: `site${i}@test.example`,
+    })
     .returning();
   const [u] = await db
     .insert(units)
@@ -80,8 +91,14 @@ export async function makeSiteWithUnit(db: Db, branchId: string, over: { unit?: 
   return { customer: c!, site: s!, unit: u! };
 }
 
-export async function makeWorkOrder(db: Db, v: { branchId: string; siteId: string; unitId?: string } & Partial<typeof workOrders.$inferInsert>) {
-  const [w] = await db.insert(workOrders).values({ kind: 'service_call', complaint: 'Unit not cooling', ...v }).returning();
+export async function makeWorkOrder(
+  db: Db,
+  v: { branchId: string; siteId: string; unitId?: string } & Partial<typeof workOrders.$inferInsert>,
+) {
+  const [w] = await db
+    .insert(workOrders)
+    .values({ kind: 'service_call', complaint: 'Unit not cooling', ...v })
+    .returning();
   return w!;
 }
 

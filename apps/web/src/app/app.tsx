@@ -22,7 +22,12 @@ function RequireSession() {
   const session = useSessionQuery();
   const location = useLocation();
   if (session.isPending) return <LoadingState label="Opening Coilpath…" />;
-  if (session.isError) return <div className="p-6"><ErrorState error={session.error} onRetry={() => session.refetch()} /></div>;
+  if (session.isError)
+    return (
+      <div className="p-6">
+        <ErrorState error={session.error} onRetry={() => session.refetch()} />
+      </div>
+    );
   if (!session.data) return <Navigate to="/sign-in" replace state={{ from: location.pathname + location.search }} />;
   return (
     <SessionProvider user={session.data}>
@@ -79,4 +84,3 @@ export function App() {
     <QueryClientProvider client={client}>{app}</QueryClientProvider>
   );
 }
-

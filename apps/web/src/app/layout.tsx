@@ -60,7 +60,10 @@ export function AppFrame() {
 
   return (
     <div className="min-h-dvh md:flex">
-      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:z-50 focus:rounded focus:bg-white focus:p-2">
+      <a
+        href="#main"
+        className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:z-50 focus:rounded focus:bg-white focus:p-2"
+      >
         Skip to content
       </a>
       {/* Desktop rail */}
@@ -111,7 +114,10 @@ export function AppFrame() {
             <BranchSwitcher />
           </div>
         )}
-        <main id="main" className={`mx-auto w-full max-w-content flex-1 px-3 pt-5 md:px-6 md:pb-5 ${isTech ? 'pb-[calc(6rem+var(--notice-space,0px))] md:pb-6' : 'pb-[calc(1.25rem+var(--notice-space,0px))]'}`}>
+        <main
+          id="main"
+          className={`mx-auto w-full max-w-content flex-1 px-3 pt-5 md:px-6 md:pb-5 ${isTech ? 'pb-[calc(6rem+var(--notice-space,0px))] md:pb-6' : 'pb-[calc(1.25rem+var(--notice-space,0px))]'}`}
+        >
           <RouteErrorBoundary>
             <Suspense fallback={<LoadingState />}>
               <Outlet />
@@ -119,7 +125,10 @@ export function AppFrame() {
           </RouteErrorBoundary>
         </main>
         {isTech && (
-          <nav aria-label="Screens" className="fixed inset-x-0 bottom-0 z-30 grid grid-cols-3 border-t border-slate-line bg-white pb-[env(safe-area-inset-bottom)] md:static md:hidden">
+          <nav
+            aria-label="Screens"
+            className="fixed inset-x-0 bottom-0 z-30 grid grid-cols-3 border-t border-slate-line bg-white pb-[env(safe-area-inset-bottom)] md:static md:hidden"
+          >
             {items.map((s) => (
               <NavLink
                 key={s.path}

@@ -26,19 +26,110 @@ const all = ['owner', 'branch_manager', 'dispatcher', 'technician'] as const;
 
 /** Screens inside the signed-in frame. */
 export const screenRoutes: RouteObject[] = [
-  { path: 'day', element: <RoleGate roles={['technician']}><DayPage /></RoleGate> },
-  { path: 'visits', element: <RoleGate roles={['technician']}><VisitPage /></RoleGate> },
-  { path: 'visits/:id', element: <RoleGate roles={all}><VisitPage /></RoleGate> },
-  { path: 'roster', element: <RoleGate roles={['dispatcher', 'branch_manager', 'owner']}><RosterPage /></RoleGate> },
-  { path: 'watchlist', element: <RoleGate roles={['branch_manager', 'owner']}><WatchlistPage /></RoleGate> },
-  { path: 'agreements', element: <RoleGate roles={['branch_manager', 'owner']}><AgreementsPage /></RoleGate> },
-  { path: 'units', element: <RoleGate roles={all}><UnitPage /></RoleGate> },
-  { path: 'units/:id', element: <RoleGate roles={all}><UnitPage /></RoleGate> },
-  { path: 'fix-quality', element: <RoleGate roles={['owner', 'branch_manager']}><FixQualityPage /></RoleGate> },
-  { path: 'sites', element: <RoleGate roles={['branch_manager', 'dispatcher', 'owner']}><SitesPage /></RoleGate> },
-  { path: 'sites/:siteId', element: <RoleGate roles={['branch_manager', 'dispatcher', 'owner']}><SitePage /></RoleGate> },
-  { path: 'team', element: <RoleGate roles={['owner']}><TeamPage /></RoleGate> },
-  { path: 'outbox', element: <RoleGate roles={['owner']}><OutboxPage /></RoleGate> },
+  {
+    path: 'day',
+    element: (
+      <RoleGate roles={['technician']}>
+        <DayPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'visits',
+    element: (
+      <RoleGate roles={['technician']}>
+        <VisitPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'visits/:id',
+    element: (
+      <RoleGate roles={all}>
+        <VisitPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'roster',
+    element: (
+      <RoleGate roles={['dispatcher', 'branch_manager', 'owner']}>
+        <RosterPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'watchlist',
+    element: (
+      <RoleGate roles={['branch_manager', 'owner']}>
+        <WatchlistPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'agreements',
+    element: (
+      <RoleGate roles={['branch_manager', 'owner']}>
+        <AgreementsPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'units',
+    element: (
+      <RoleGate roles={all}>
+        <UnitPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'units/:id',
+    element: (
+      <RoleGate roles={all}>
+        <UnitPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'fix-quality',
+    element: (
+      <RoleGate roles={['owner', 'branch_manager']}>
+        <FixQualityPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'sites',
+    element: (
+      <RoleGate roles={['branch_manager', 'dispatcher', 'owner']}>
+        <SitesPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'sites/:siteId',
+    element: (
+      <RoleGate roles={['branch_manager', 'dispatcher', 'owner']}>
+        <SitePage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'team',
+    element: (
+      <RoleGate roles={['owner']}>
+        <TeamPage />
+      </RoleGate>
+    ),
+  },
+  {
+    path: 'outbox',
+    element: (
+      <RoleGate roles={['owner']}>
+        <OutboxPage />
+      </RoleGate>
+    ),
+  },
 ];
 
 /** Pages reachable without a session (password reset, invitation sign-up). */

@@ -100,7 +100,10 @@ export function UserMenu({ user }: { user: SessionUser }) {
         <ChevronDown className="size-4 text-slate" aria-hidden="true" />
       </button>
       {open && (
-        <div id={panelId} className="absolute right-0 top-full z-40 mt-1 w-72 max-w-[calc(100vw-1.5rem)] rounded-lg border border-slate-line bg-white p-2 text-ink shadow-lg">
+        <div
+          id={panelId}
+          className="absolute right-0 top-full z-40 mt-1 w-72 max-w-[calc(100vw-1.5rem)] rounded-lg border border-slate-line bg-white p-2 text-ink shadow-lg"
+        >
           <div className="px-3 py-2">
             <p className="font-medium">{user.name}</p>
             <p className="break-all text-xs text-slate">{user.email}</p>

@@ -6,9 +6,18 @@ const viewable = (a: AttachmentDto) => ['image/jpeg', 'image/png', 'image/webp']
 
 export function AttachmentThumb({ a }: { a: AttachmentDto }) {
   return (
-    <a href={a.url} {...(viewable(a) ? { target: '_blank', rel: 'noreferrer' } : { download: a.displayName })} className="group flex w-28 flex-col gap-1 text-xs">
+    <a
+      href={a.url}
+      {...(viewable(a) ? { target: '_blank', rel: 'noreferrer' } : { download: a.displayName })}
+      className="group flex w-28 flex-col gap-1 text-xs"
+    >
       {viewable(a) ? (
-        <img src={a.thumbUrl} alt={`${a.kind === 'nameplate' ? 'Nameplate' : 'Photo'}: ${a.displayName}`} loading="lazy" className="size-28 rounded-md border border-slate-line object-cover" />
+        <img
+          src={a.thumbUrl}
+          alt={`${a.kind === 'nameplate' ? 'Nameplate' : 'Photo'}: ${a.displayName}`}
+          loading="lazy"
+          className="size-28 rounded-md border border-slate-line object-cover"
+        />
       ) : (
         <span className="flex size-28 items-center justify-center rounded-md border border-slate-line bg-frost">
           <FileText className="size-8 text-slate" aria-hidden="true" />

@@ -29,13 +29,21 @@ const wrap = (node: ReactNode, client = new QueryClient()) =>
       <NoticesProvider>{node}</NoticesProvider>
     </QueryClientProvider>,
   );
-const text = (html: string) => html.replace(/<[^>]+>/g, ' ').replace(/\s+/g, ' ').trim();
+const text = (html: string) =>
+  html
+    .replace(/<[^>]+>/g, ' ')
+    .replace(/\s+/g, ' ')
+    .trim();
 const said = 'Changed by Ana just now';
 
 /** A live event as the stream delivers it to this screen (signed in as ME). */
 let nextId = 1;
 const hear = (e: Partial<LiveEvent> & Pick<LiveEvent, 'kind'>, by = ANA) =>
-  applyLiveEvent({ id: nextId++, branchId: BRANCH, at: '2027-03-09T14:00:00.000Z', by, bookings: [], workOrders: [], revision: 1, ...e } as LiveEvent, ME.id, () => undefined);
+  applyLiveEvent(
+    { id: nextId++, branchId: BRANCH, at: '2027-03-09T14:00:00.000Z', by, bookings: [], workOrders: [], revision: 1, ...e } as LiveEvent,
+    ME.id,
+    () => undefined,
+  );
 
 function booking(id: string): Booking {
   return {
@@ -110,7 +118,8 @@ function workOrder(id: string): WorkOrder {
 }
 
 describe('the Roster’s calendar event', () => {
-  const render = (b: Booking) => renderToStaticMarkup(<EventBody booking={b} tech={undefined} showTech={false} timeZone={tz} today="2027-03-08" compact={false} />);
+  const render = (b: Booking) =>
+    renderToStaticMarkup(<EventBody booking={b} tech={undefined} showTech={false} timeZone={tz} today="2027-03-08" compact={false} />);
 
   it('says who else moved its booking, in the element its aria-describedby names', () => {
     const b = booking('00000000-0000-4000-8000-000000000b01');
@@ -148,7 +157,20 @@ describe('the unplaced queue', () => {
   it('says who else changed a queued work order', () => {
     const w = workOrder('00000000-0000-4000-9000-000000000c01');
     const render = () =>
-      text(renderToStaticMarkup(<QueueItem w={w} timeZone={tz} today="2027-03-09" now={Date.parse('2027-03-09T14:00:00Z')} onBook={() => undefined} mode="calendar" picked={false} onPick={() => undefined} />));
+      text(
+        renderToStaticMarkup(
+          <QueueItem
+            w={w}
+            timeZone={tz}
+            today="2027-03-09"
+            now={Date.parse('2027-03-09T14:00:00Z')}
+            onBook={() => undefined}
+            mode="calendar"
+            picked={false}
+            onPick={() => undefined}
+          />,
+        ),
+      );
     expect(render()).not.toContain('Changed by');
     hear({ kind: 'roster', workOrders: [w.id] });
     expect(render()).toContain(`WO-10202 Service call`);
@@ -164,7 +186,24 @@ describe('the Watchlist', () => {
       asOf: '2027-03-09T14:00:00.000Z',
       rules: [{ branchId: BRANCH, minCount: 2, windowDays: 30 }],
       units: [
-        { unitId, branchId: BRANCH, unitTag: 'RTU-7', make: 'Testmake', model: 'TM-1', serial: 'SN-7', siteId: 'site-1', siteName: 'Harbor Deli', code: 'HP-1', count: 2, first: '2027-03-01T10:00:00.000Z', last: '2027-03-09T10:00:00.000Z', circuits: [1], circuitMismatch: false, visits: [], findings: [] },
+        {
+          unitId,
+          branchId: BRANCH,
+          unitTag: 'RTU-7',
+          make: 'Testmake',
+          model: 'TM-1',
+          serial: 'SN-7',
+          siteId: 'site-1',
+          siteName: 'Harbor Deli',
+          code: 'HP-1',
+          count: 2,
+          first: '2027-03-01T10:00:00.000Z',
+          last: '2027-03-09T10:00:00.000Z',
+          circuits: [1],
+          circuitMismatch: false,
+          visits: [],
+          findings: [],
+        },
       ],
     };
     client.setQueryData(['watchlist', BRANCH, 'repeat-alarms'], data);
@@ -179,7 +218,21 @@ describe('the Watchlist', () => {
     const workOrderId = '00000000-0000-4000-9000-000000000f01';
     const client = new QueryClient();
     const rows: ReturnVisitRow[] = [
-      { workOrderId, number: 10303, branchId: BRANCH, siteName: 'Harbor Deli', unitId: null, unitTag: 'WIC-1', priority: 'normal', latestAt: null, createdAt: '2027-03-09T13:00:00.000Z', complaint: 'Parts', returnNeeds: ['parts'], returnNotes: null, origin: null },
+      {
+        workOrderId,
+        number: 10303,
+        branchId: BRANCH,
+        siteName: 'Harbor Deli',
+        unitId: null,
+        unitTag: 'WIC-1',
+        priority: 'normal',
+        latestAt: null,
+        createdAt: '2027-03-09T13:00:00.000Z',
+        complaint: 'Parts',
+        returnNeeds: ['parts'],
+        returnNotes: null,
+        origin: null,
+      },
     ];
     client.setQueryData(['watchlist', BRANCH, 'return-visits'], rows);
     const render = () => text(wrap(<ReturnVisitsSection branchId={BRANCH} timeZone={tz} />, client));

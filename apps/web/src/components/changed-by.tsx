@@ -9,7 +9,15 @@ import { useChangedBy, type ChangedRow } from '@/lib/live-events';
 /** The note's element id, for an `aria-describedby` of an element whose name is set by `aria-label`. */
 export const changedByNoteId = (row: ChangedRow, id: string) => `changed-by-${row}-${id}`;
 
-export function ChangedByNote({ row, id, className = 'text-xs font-medium text-copper-hover' }: { row: ChangedRow; id: string; className?: string }) {
+export function ChangedByNote({
+  row,
+  id,
+  className = 'text-xs font-medium text-copper-hover',
+}: {
+  row: ChangedRow;
+  id: string;
+  className?: string;
+}) {
   const name = useChangedBy(row, id);
   if (!name) return null;
   return (

@@ -88,7 +88,9 @@ export function OutboxPanel({ visitId }: { visitId?: string }) {
             <strong className="font-semibold">
               {waiting} change{waiting === 1 ? '' : 's'} waiting to send.
             </strong>{' '}
-            {online ? 'Sending now, in the order you made them.' : 'Kept on this phone; they are sent in order when the connection is back.'}
+            {online
+              ? 'Sending now, in the order you made them.'
+              : 'Kept on this phone; they are sent in order when the connection is back.'}
           </span>
         </p>
       )}

@@ -24,7 +24,10 @@ export function PublicShell({ title, children }: { title: string; children: Reac
 
 export function Alert({ tone, children }: { tone: 'ok' | 'alarm'; children: ReactNode }) {
   return (
-    <p role={tone === 'alarm' ? 'alert' : 'status'} className={`rounded-md px-3 py-2 text-sm ${tone === 'ok' ? 'bg-ok-tint text-ok' : 'bg-alarm-tint text-alarm'}`}>
+    <p
+      role={tone === 'alarm' ? 'alert' : 'status'}
+      className={`rounded-md px-3 py-2 text-sm ${tone === 'ok' ? 'bg-ok-tint text-ok' : 'bg-alarm-tint text-alarm'}`}
+    >
       {children}
     </p>
   );

@@ -8,7 +8,13 @@ import { errorMessage } from '@/lib/api-client';
 import { queueWrite } from '@/lib/visit-outbox';
 
 /** The visit's next step (En route, On site, Record / Go to close-out), on the technician's route and on the visit screen. */
-export function StateButton({ visit, where = 'visit' }: { visit: Pick<VisitDetail, 'id' | 'status' | 'canWrite'>; where?: 'visit' | 'day' }) {
+export function StateButton({
+  visit,
+  where = 'visit',
+}: {
+  visit: Pick<VisitDetail, 'id' | 'status' | 'canWrite'>;
+  where?: 'visit' | 'day';
+}) {
   const notify = useNotify();
   const qc = useQueryClient();
   if (!visit.canWrite) return null;

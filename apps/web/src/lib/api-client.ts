@@ -38,7 +38,9 @@ export function withQuery(path: string, query?: Query): string {
 }
 
 /** The name of a response schema in `@coilpath/contract/responses` (e.g. `'dayResponseSchema'`). */
-export type ResponseSchemaName = { [K in keyof typeof Responses]: (typeof Responses)[K] extends ZodType ? K : never }[keyof typeof Responses];
+export type ResponseSchemaName = {
+  [K in keyof typeof Responses]: (typeof Responses)[K] extends ZodType ? K : never;
+}[keyof typeof Responses];
 
 export interface RequestOptions {
   /**
@@ -54,7 +56,9 @@ async function checkAnswer(method: string, path: string, check: ResponseSchemaNa
   const parsed = (schemas[check] as ZodType).safeParse(data);
   if (parsed.success) return;
   const said = parsed.error.issues.map((i) => `${i.path.join('.') || '(answer)'}: ${i.message}`).join('; ');
-  throw new ApiError(0, 'response_mismatch', `${method} ${path} answered something ${check} does not allow: ${said}`, { issues: parsed.error.issues });
+  throw new ApiError(0, 'response_mismatch', `${method} ${path} answered something ${check} does not allow: ${said}`, {
+    issues: parsed.error.issues,
+  });
 }
 
 async function request<T>(method: string, path: string, body?: unknown, init?: RequestInit, options?: RequestOptions): Promise<T> {
@@ -89,7 +93,8 @@ async function request<T>(method: string, path: string, body?: unknown, init?: R
 }
 
 export const api = {
-  get: <T>(path: string, query?: Query, options?: RequestOptions) => request<T>('GET', withQuery(path, query), undefined, undefined, options),
+  get: <T>(path: string, query?: Query, options?: RequestOptions) =>
+    request<T>('GET', withQuery(path, query), undefined, undefined, options),
   post: <T>(path: string, body?: unknown) => request<T>('POST', path, body ?? {}),
   patch: <T>(path: string, body?: unknown) => request<T>('PATCH', path, body ?? {}),
   put: <T>(path: string, body?: unknown) => request<T>('PUT', path, body ?? {}),

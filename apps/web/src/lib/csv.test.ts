@@ -24,7 +24,12 @@ describe('browser CSV export', () => {
   it('saves UTF-8 with a BOM and CRLF, formulae neutralised, numbers and instants as written', async () => {
     const { caught, link } = catchDownload();
     downloadCsv('return-visits-to-book', [
-      { site: 'Łukasz Żółć Bakery', notes: '=HYPERLINK("http://x.example")', change: -0.02, closed_at: csvTimestamp('2026-12-04T15:15:00Z', 'America/Chicago') },
+      {
+        site: 'Łukasz Żółć Bakery',
+        notes: '=HYPERLINK("http://x.example")',
+        change: -0.02,
+        closed_at: csvTimestamp('2026-12-04T15:15:00Z', 'America/Chicago'),
+      },
       { site: 'Nguyễn Thị Hương', notes: '@SUM(A1)', change: '-0.02', closed_at: csvTimestamp(null, 'America/Chicago') },
     ]);
     expect(caught.clicked).toBe(true);

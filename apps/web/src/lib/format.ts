@@ -24,7 +24,9 @@ export function todayInZone(timeZone: string, now = appNow()): string {
 }
 
 export const formatNumber = (n: number | null | undefined, digits = 1) =>
-  n === null || n === undefined || Number.isNaN(n) ? '—' : n.toLocaleString('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits });
+  n === null || n === undefined || Number.isNaN(n)
+    ? '—'
+    : n.toLocaleString('en-US', { minimumFractionDigits: digits, maximumFractionDigits: digits });
 
 export const formatPercent = (f: number | null | undefined, digits = 1) =>
   f === null || f === undefined ? '—' : `${(f * 100).toFixed(digits)} %`;

@@ -2,13 +2,24 @@ import { describe, expect, it, vi } from 'vitest';
 import type { QueryKey } from '@tanstack/react-query';
 import type { LiveEvent } from '@coilpath/contract';
 import { rosterKeys } from '@/features/roster/api';
-import { applyLiveEvent, CHANGED_BY_MS, changedByOf, concerns, isLiveQuery, keepLiveStream, noteChangedBy, REOPEN_AFTER_MS, type LiveSource } from './live-events';
+import {
+  applyLiveEvent,
+  CHANGED_BY_MS,
+  changedByOf,
+  concerns,
+  isLiveQuery,
+  keepLiveStream,
+  noteChangedBy,
+  REOPEN_AFTER_MS,
+  type LiveSource,
+} from './live-events';
 import { appNowMs, noteServerNow } from './now';
 
 const A = '00000000-0000-4000-8000-00000000000a';
 const B = '00000000-0000-4000-8000-00000000000b';
 const base = { id: 1, at: '2027-03-01T12:00:00.000Z', by: null };
-const roster = (branchId: string, extra: Partial<LiveEvent> = {}) => ({ ...base, kind: 'roster', branchId, revision: 4, bookings: ['bk-1'], workOrders: [], ...extra }) as LiveEvent;
+const roster = (branchId: string, extra: Partial<LiveEvent> = {}) =>
+  ({ ...base, kind: 'roster', branchId, revision: 4, bookings: ['bk-1'], workOrders: [], ...extra }) as LiveEvent;
 
 /** The keys the screens use (from the features where they are exported, as written there otherwise). */
 const keys = {
@@ -32,7 +43,10 @@ const keys = {
   session: ['session'],
 } satisfies Record<string, QueryKey>;
 
-const hit = (e: LiveEvent) => Object.entries(keys).filter(([, k]) => concerns(e, k)).map(([name]) => name);
+const hit = (e: LiveEvent) =>
+  Object.entries(keys)
+    .filter(([, k]) => concerns(e, k))
+    .map(([name]) => name);
 
 describe('concerns: the queries each live event invalidates', () => {
   it('roster: the branch’s Roster queries, its unplaced queue and the Watchlist parts showing work orders, nothing of another branch or screen', () => {
@@ -40,7 +54,16 @@ describe('concerns: the queries each live event invalidates', () => {
   });
 
   it('visit: the branch’s bookings (the stop’s state on the chip) and that visit', () => {
-    const e = { ...base, kind: 'visit', branchId: A, visitId: 'v-1', bookingId: 'bk-1', workOrderId: 'wo-1', techId: 't-1', state: 'on_site' } as LiveEvent;
+    const e = {
+      ...base,
+      kind: 'visit',
+      branchId: A,
+      visitId: 'v-1',
+      bookingId: 'bk-1',
+      workOrderId: 'wo-1',
+      techId: 't-1',
+      state: 'on_site',
+    } as LiveEvent;
     expect(hit(e)).toEqual(['bookingsA', 'visitV1']);
   });
 
@@ -180,7 +203,9 @@ describe('keepLiveStream: the stream, its drops and reconnects', () => {
     expect(invalidated).toEqual([]);
     sources[0]!.opened();
     expect(invalidated).toHaveLength(1);
-    const refetched = Object.entries(keys).filter(([, k]) => invalidated[0]!(k)).map(([n]) => n);
+    const refetched = Object.entries(keys)
+      .filter(([, k]) => invalidated[0]!(k))
+      .map(([n]) => n);
     expect(refetched).toEqual(Object.keys(keys).filter((n) => n !== 'session'));
     expect(isLiveQuery(keys.session)).toBe(false);
     sources[0]!.opened();

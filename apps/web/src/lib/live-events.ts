@@ -12,7 +12,8 @@ import type { LiveEvent } from '@coilpath/contract';
 import { appNowMs } from './now';
 
 /** Query keys a branch-scoped screen uses: the branch's id, '' (none chosen yet) or 'all' (the owner's every branch). */
-const sameBranch = (keyBranch: unknown, branchId: string) => keyBranch === branchId || keyBranch === '' || keyBranch === 'all' || keyBranch === undefined;
+const sameBranch = (keyBranch: unknown, branchId: string) =>
+  keyBranch === branchId || keyBranch === '' || keyBranch === 'all' || keyBranch === undefined;
 
 const watchlistParts: Record<'roster' | 'alarm' | 'leak-case', readonly string[]> = {
   // Work orders and visits the Watchlist shows: a leak case's repair visit, the return visits to book, the

@@ -23,7 +23,14 @@ describe('offline when a request gets no answer, whatever the browser says', () 
 
   it('an answer of any status counts it online again', async () => {
     onlineManager.setOnline(false);
-    vi.stubGlobal('fetch', () => Promise.resolve(new Response(JSON.stringify({ error: { code: 'not_found', message: 'Gone' } }), { status: 404, headers: { 'content-type': 'application/json' } })));
+    vi.stubGlobal('fetch', () =>
+      Promise.resolve(
+        new Response(JSON.stringify({ error: { code: 'not_found', message: 'Gone' } }), {
+          status: 404,
+          headers: { 'content-type': 'application/json' },
+        }),
+      ),
+    );
     await expect(api.get('/api/visits/x')).rejects.toBeInstanceOf(ApiError);
     expect(onlineManager.isOnline()).toBe(true);
   });

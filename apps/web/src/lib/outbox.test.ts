@@ -8,7 +8,11 @@ import { classify, idbOutboxStore, memoryOutboxStore, Outbox, waitingText, type 
 // reason, conflicts told); the HTTP status meanings are RFC 9110 §15 (4xx client error, 5xx server error,
 // 408 Request Timeout, 429 from RFC 6585 §4).
 
-const finding = (visitId: string, id: string): OutboxWrite => ({ kind: 'finding', visitId, body: { id, causeCode: 'refrigerant_leak', origin: 'wear' } });
+const finding = (visitId: string, id: string): OutboxWrite => ({
+  kind: 'finding',
+  visitId,
+  body: { id, causeCode: 'refrigerant_leak', origin: 'wear' },
+});
 const state = (visitId: string, s: 'en_route' | 'on_site'): OutboxWrite => ({ kind: 'state', visitId, body: { state: s } });
 const close = (visitId: string): OutboxWrite => ({ kind: 'close', visitId, body: { outcome: 'resolved' } });
 
@@ -107,7 +111,13 @@ describe('the outbox', () => {
   it('stops a refused write (4xx) with the server’s reason; the visit’s later writes wait behind it, other visits go on; discarding lets them go', async () => {
     const server = fakeServer();
     const stopped: string[] = [];
-    const box = new Outbox({ store: memoryOutboxStore(), send: server.send, retryDelay: null, newId: ids, onStopped: (e) => stopped.push(e.problem!.message) });
+    const box = new Outbox({
+      store: memoryOutboxStore(),
+      send: server.send,
+      retryDelay: null,
+      newId: ids,
+      onStopped: (e) => stopped.push(e.problem!.message),
+    });
     server.setOnline(false);
     await box.add(finding('v1', 'f1'));
     await box.add(close('v1'));
@@ -219,7 +229,14 @@ describe('the outbox', () => {
     server.setOnline(false);
     const box = new Outbox({ store, send: server.send, retryDelay: null, newId: ids });
     await box.add(finding('v1', 'f1'));
-    await box.add({ kind: 'attachment', visitId: 'v1', id: 'a1', attachKind: 'photo', file: new Blob(['jpeg bytes'], { type: 'image/jpeg' }), fileName: 'coil.jpg' });
+    await box.add({
+      kind: 'attachment',
+      visitId: 'v1',
+      id: 'a1',
+      attachKind: 'photo',
+      file: new Blob(['jpeg bytes'], { type: 'image/jpeg' }),
+      fileName: 'coil.jpg',
+    });
     const kept = await store.read();
     expect(kept.map((e) => e.write.kind)).toEqual(['finding', 'attachment']);
     const photo = kept[1]!.write;

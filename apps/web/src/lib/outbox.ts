@@ -96,7 +96,8 @@ export function memoryOutboxStore(initial: OutboxEntry[] = []): OutboxStore {
   };
 }
 
-export type Outcome = { kind: 'retry'; problem: OutboxProblem } | { kind: 'sent' } | { kind: 'failed' | 'conflict'; problem: OutboxProblem };
+export type Outcome =
+  { kind: 'retry'; problem: OutboxProblem } | { kind: 'sent' } | { kind: 'failed' | 'conflict'; problem: OutboxProblem };
 
 const problemOf = (err: unknown): OutboxProblem =>
   err instanceof ApiError
@@ -115,7 +116,8 @@ export function classify(err: unknown, entry: Pick<OutboxEntry, 'write' | 'attem
       kind: 'conflict',
       problem: {
         ...problem,
-        message: 'The office moved this visit to another technician or unbooked it while this phone was offline, so this change was not sent. Call the office before doing more on this visit.',
+        message:
+          'The office moved this visit to another technician or unbooked it while this phone was offline, so this change was not sent. Call the office before doing more on this visit.',
       },
     };
   }
@@ -145,7 +147,9 @@ export interface OutboxOptions {
 }
 
 const webLock = (run: () => Promise<void>): Promise<void> =>
-  typeof navigator !== 'undefined' && navigator.locks ? navigator.locks.request('coilpath-outbox', () => run()).then(() => undefined) : run();
+  typeof navigator !== 'undefined' && navigator.locks
+    ? navigator.locks.request('coilpath-outbox', () => run()).then(() => undefined)
+    : run();
 
 export class Outbox {
   private entries: readonly OutboxEntry[] = [];

@@ -6,7 +6,8 @@ import { api } from '@/lib/api-client';
 export function useUnitChoices(branchId: string | undefined) {
   return useQuery({
     queryKey: ['unit-choices', branchId ?? 'all'],
-    queryFn: () => api.get<{ units: UnitChoice[] }>('/api/watchlist/units', { branchId }, { check: 'unitChoicesAnswerSchema' }).then((r) => r.units),
+    queryFn: () =>
+      api.get<{ units: UnitChoice[] }>('/api/watchlist/units', { branchId }, { check: 'unitChoicesAnswerSchema' }).then((r) => r.units),
     staleTime: 60_000,
   });
 }

@@ -9,7 +9,17 @@
 import { useSyncExternalStore } from 'react';
 import { onlineManager, useQueryClient, type QueryClient } from '@tanstack/react-query';
 import { recordingRefusal } from '@coilpath/contract/visit-status';
-import type { AttachmentDto, CloseVisit, CloseVisitResult, DayResponse, FindingDto, ReadingDto, RefrigerantEventResult, VisitDetail, VisitStatus } from '@coilpath/contract';
+import type {
+  AttachmentDto,
+  CloseVisit,
+  CloseVisitResult,
+  DayResponse,
+  FindingDto,
+  ReadingDto,
+  RefrigerantEventResult,
+  VisitDetail,
+  VisitStatus,
+} from '@coilpath/contract';
 import { api } from './api-client';
 import { idbOutboxStore, memoryOutboxStore, Outbox, type OutboxEntry, type OutboxWrite } from './outbox';
 import { appNow } from './now';
@@ -192,7 +202,8 @@ export interface WriteReport {
 
 let current: { qc: QueryClient; box: Outbox; reports: Map<string, WriteReport> } | null = null;
 
-const waitingOf = (box: Outbox, visitId?: string) => box.list().filter((e) => e.state === 'waiting' && (!visitId || e.write.visitId === visitId));
+const waitingOf = (box: Outbox, visitId?: string) =>
+  box.list().filter((e) => e.state === 'waiting' && (!visitId || e.write.visitId === visitId));
 
 /** Lays the waiting entries over the kept visit and route answers. */
 function overlay(qc: QueryClient, box: Outbox, only?: readonly unknown[]) {
@@ -229,7 +240,10 @@ export function connectOutbox(qc: QueryClient): Outbox {
       if ((w.kind === 'state' || w.kind === 'close') && answer) {
         const v = w.kind === 'close' ? (answer as CloseVisitResult).visit : (answer as VisitDetail);
         const later = waitingOf(box, w.visitId);
-        qc.setQueryData(['visit', w.visitId], later.reduce((x, e) => applyToVisit(x, e.write, e.queuedAt), v));
+        qc.setQueryData(
+          ['visit', w.visitId],
+          later.reduce((x, e) => applyToVisit(x, e.write, e.queuedAt), v),
+        );
       }
       reports.get(entry.id)?.sent?.(answer);
       reports.delete(entry.id);

@@ -12,25 +12,25 @@ export const dayRouteArrivalSchema = z.object({
   lateMinutes: z.number(),
   arriveAt: z.string(),
   departAt: z.string(),
-  legMinutes: z.number()
+  legMinutes: z.number(),
 });
 
 export const dayRouteSchema = z.object({
   start: z.object({
     lat: z.number(),
     lon: z.number(),
-    label: z.string()
+    label: z.string(),
   }),
   dayStart: z.string(),
   order: z.array(z.string()),
   arrivals: z.array(dayRouteArrivalSchema),
   totalMiles: z.number(),
   driveMinutes: z.number(),
-  lateStops: z.array(z.string())
+  lateStops: z.array(z.string()),
 });
 
 export const calendarTokenResultSchema = z.object({
-  url: z.string()
+  url: z.string(),
 });
 
 const visitStatusSchema = z.enum(['booked', 'en_route', 'on_site', 'closed']);
@@ -46,7 +46,7 @@ export const dayStopSchema = z.object({
     id: z.string(),
     startAt: z.string(),
     endAt: z.string(),
-    fixed: z.boolean()
+    fixed: z.boolean(),
   }),
   workOrder: z.object({
     id: z.string(),
@@ -57,7 +57,7 @@ export const dayStopSchema = z.object({
     complaint: z.string(),
     estimatedMinutes: z.number(),
     requestedFrom: z.string().nullable(),
-    requestedTo: z.string().nullable()
+    requestedTo: z.string().nullable(),
   }),
   site: z.object({
     id: z.string(),
@@ -68,26 +68,30 @@ export const dayStopSchema = z.object({
     lon: z.number(),
     accessNotes: z.string().nullable(),
     contactName: z.string().nullable(),
-    contactPhone: z.string().nullable()
+    contactPhone: z.string().nullable(),
   }),
-  units: z.array(z.object({
-    id: z.string(),
-    tag: z.string(),
-    kind: unitKindSchema,
-    make: z.string(),
-    model: z.string(),
-    refrigerant: z.string()
-  })),
+  units: z.array(
+    z.object({
+      id: z.string(),
+      tag: z.string(),
+      kind: unitKindSchema,
+      make: z.string(),
+      model: z.string(),
+      refrigerant: z.string(),
+    }),
+  ),
   routeStop: z.object({
     id: z.string(),
     lat: z.number(),
     lon: z.number(),
     serviceMinutes: z.number(),
-    window: z.object({
-      from: z.number(),
-      to: z.number()
-    }).optional()
-  })
+    window: z
+      .object({
+        from: z.number(),
+        to: z.number(),
+      })
+      .optional(),
+  }),
 });
 
 export const dayResponseSchema = z.object({
@@ -96,20 +100,19 @@ export const dayResponseSchema = z.object({
   timeZone: z.string(),
   branch: z.object({
     id: z.string(),
-    name: z.string()
+    name: z.string(),
   }),
   tech: z.object({
     id: z.string(),
-    name: z.string()
+    name: z.string(),
   }),
   stops: z.array(dayStopSchema),
   route: dayRouteSchema,
   calendarFeed: z.object({
     active: z.boolean(),
-    url: z.string().nullable()
-  })
+    url: z.string().nullable(),
+  }),
 });
-
 
 export type DayChecks = AllAgree<
   [

@@ -16,9 +16,21 @@ import type {
 } from '../visits';
 import type { Agree, AllAgree } from './agree';
 import { circuitTargetsSchema } from '../sites';
-import { applianceCategorySchema, epa608TypeSchema, attachmentKindSchema, causeCodeSchema, causeOriginSchema, noteAudienceSchema, prioritySchema, refrigerantEventReasonSchema, returnNeedSchema, unitKindSchema, visitOutcomeSchema, workOrderKindSchema, workOrderStateSchema } from '../vocabulary-schemas';
-
-
+import {
+  applianceCategorySchema,
+  epa608TypeSchema,
+  attachmentKindSchema,
+  causeCodeSchema,
+  causeOriginSchema,
+  noteAudienceSchema,
+  prioritySchema,
+  refrigerantEventReasonSchema,
+  returnNeedSchema,
+  unitKindSchema,
+  visitOutcomeSchema,
+  workOrderKindSchema,
+  workOrderStateSchema,
+} from '../vocabulary-schemas';
 
 export const leakCaseDtoSchema = z.object({
   id: z.string(),
@@ -30,7 +42,7 @@ export const leakCaseDtoSchema = z.object({
   leakRatePercent: z.number(),
   repairDueDate: z.string(),
   chronic: z.boolean(),
-  status: z.string()
+  status: z.string(),
 });
 
 export const leakCheckDtoSchema = z.object({
@@ -41,7 +53,7 @@ export const leakCheckDtoSchema = z.object({
   thresholdPercent: z.number().nullable(),
   exceeds: z.boolean(),
   repairDueDate: z.string().nullable(),
-  chronic: z.boolean()
+  chronic: z.boolean(),
 });
 
 export const visitCircuitDtoSchema = z.object({
@@ -49,34 +61,34 @@ export const visitCircuitDtoSchema = z.object({
   number: z.number(),
   compressorCount: z.number(),
   chargeLb: z.number().nullable(),
-  targets: circuitTargetsSchema
+  targets: circuitTargetsSchema,
 });
 
 export const visitStatusSchema = z.union([z.literal('booked'), z.literal('en_route'), z.literal('on_site'), z.literal('closed')]);
 
-export const visitSignatureDtoSchema = z.union([z.object({
+export const visitSignatureDtoSchema = z.union([
+  z.object({
     kind: z.literal('signed'),
     signerName: z.string(),
     signedAt: z.string(),
-    imageUrl: z.string()
-  }), z.object({
+    imageUrl: z.string(),
+  }),
+  z.object({
     kind: z.literal('customer_not_available'),
-    recordedAt: z.string()
-  })]);
+    recordedAt: z.string(),
+  }),
+]);
 
 export const summaryMailResultSchema = z.object({
   sent: z.boolean(),
   to: z.string().nullable(),
-  error: z.string().nullable()
+  error: z.string().nullable(),
 });
 
 export const currentVisitResultSchema = z.object({
   visitId: z.string().nullable(),
-  reason: z.union([z.literal('on_site'), z.literal('en_route'), z.literal('next_booked')]).nullable()
+  reason: z.union([z.literal('on_site'), z.literal('en_route'), z.literal('next_booked')]).nullable(),
 });
-
-
-
 
 export const readingDtoSchema = z.object({
   id: z.string(),
@@ -101,7 +113,7 @@ export const readingDtoSchema = z.object({
   subcooling: z.number().nullable(),
   elevationMeters: z.number(),
   notes: z.string().nullable(),
-  units: readingUnitsSchema
+  units: readingUnitsSchema,
 });
 
 export const findingDtoSchema = z.object({
@@ -115,7 +127,7 @@ export const findingDtoSchema = z.object({
   actualCircuit: z.number().nullable(),
   notes: z.string().nullable(),
   notesAudience: noteAudienceSchema,
-  createdAt: z.string()
+  createdAt: z.string(),
 });
 
 export const refrigerantEventDtoSchema = z.object({
@@ -130,14 +142,14 @@ export const refrigerantEventDtoSchema = z.object({
   circuit: z.number().nullable(),
   cylinderLot: z.string().nullable(),
   techId: z.string().nullable(),
-  createdAt: z.string()
+  createdAt: z.string(),
 });
 
 export const refrigerantEventResultSchema = z.object({
   event: refrigerantEventDtoSchema,
   leakCheck: leakCheckDtoSchema.nullable(),
   leakCase: leakCaseDtoSchema.nullable(),
-  leakCaseOpened: z.boolean()
+  leakCaseOpened: z.boolean(),
 });
 
 export const attachmentDtoSchema = z.object({
@@ -150,13 +162,13 @@ export const attachmentDtoSchema = z.object({
   sizeBytes: z.number(),
   createdAt: z.string(),
   url: z.string(),
-  thumbUrl: z.string()
+  thumbUrl: z.string(),
 });
 
 export const visitEventDtoSchema = z.object({
   state: workOrderStateSchema,
   at: z.string(),
-  byUserId: z.string().nullable()
+  byUserId: z.string().nullable(),
 });
 
 export const visitUnitDtoSchema = z.object({
@@ -169,7 +181,7 @@ export const visitUnitDtoSchema = z.object({
   refrigerant: z.string(),
   fullChargeLb: z.number(),
   applianceCategory: applianceCategorySchema,
-  circuits: z.array(visitCircuitDtoSchema)
+  circuits: z.array(visitCircuitDtoSchema),
 });
 
 export const visitDetailSchema = z.object({
@@ -187,19 +199,23 @@ export const visitDetailSchema = z.object({
   notes: z.string().nullable(),
   notesAudience: noteAudienceSchema,
   rootCauseFindingId: z.string().nullable(),
-  leakRepair: z.object({
-    leakCaseId: z.string(),
-    repairDueDate: z.string(),
-    verificationTests: z.number()
-  }).nullable(),
+  leakRepair: z
+    .object({
+      leakCaseId: z.string(),
+      repairDueDate: z.string(),
+      verificationTests: z.number(),
+    })
+    .nullable(),
   summarySentAt: z.string().nullable(),
   signature: visitSignatureDtoSchema.nullable(),
   version: z.number(),
-  booking: z.object({
-    id: z.string(),
-    startAt: z.string(),
-    endAt: z.string()
-  }).nullable(),
+  booking: z
+    .object({
+      id: z.string(),
+      startAt: z.string(),
+      endAt: z.string(),
+    })
+    .nullable(),
   workOrder: z.object({
     id: z.string(),
     number: z.number().nullable(),
@@ -209,7 +225,7 @@ export const visitDetailSchema = z.object({
     complaint: z.string(),
     requiredCertification: epa608TypeSchema.nullable(),
     latestAt: z.string().nullable(),
-    modelAlert: modelAlertRefSchema.nullable()
+    modelAlert: modelAlertRefSchema.nullable(),
   }),
   site: z.object({
     id: z.string(),
@@ -218,7 +234,7 @@ export const visitDetailSchema = z.object({
     city: z.string(),
     accessNotes: z.string().nullable(),
     contactName: z.string().nullable(),
-    contactPhone: z.string().nullable()
+    contactPhone: z.string().nullable(),
   }),
   branch: z.object({
     id: z.string(),
@@ -227,7 +243,7 @@ export const visitDetailSchema = z.object({
     unitSystem: unitSystemSchema,
     sensorTolerancePercent: z.number(),
     sensorToleranceAbsolute: z.number(),
-    elevationMeters: z.number()
+    elevationMeters: z.number(),
   }),
   units: z.array(visitUnitDtoSchema),
   readings: z.array(readingDtoSchema),
@@ -237,18 +253,20 @@ export const visitDetailSchema = z.object({
   events: z.array(visitEventDtoSchema),
   canWrite: z.boolean(),
   canRecord: z.boolean(),
-  recordRefusal: z.string().nullable()
+  recordRefusal: z.string().nullable(),
 });
 
 export const closeVisitResultSchema = z.object({
   visit: visitDetailSchema,
-  returnWorkOrder: z.object({
-    id: z.string(),
-    number: z.number().nullable(),
-    state: workOrderStateSchema,
-    joined: z.boolean()
-  }).nullable(),
-  summary: summaryMailResultSchema
+  returnWorkOrder: z
+    .object({
+      id: z.string(),
+      number: z.number().nullable(),
+      state: workOrderStateSchema,
+      joined: z.boolean(),
+    })
+    .nullable(),
+  summary: summaryMailResultSchema,
 });
 
 export const unitBriefingSchema = z.object({
@@ -263,18 +281,20 @@ export const unitBriefingSchema = z.object({
     fullChargeLb: z.number(),
     applianceCategory: applianceCategorySchema,
     siteId: z.string(),
-    siteName: z.string()
+    siteName: z.string(),
   }),
   circuits: z.array(visitCircuitDtoSchema),
-  lastVisit: z.object({
-    visitId: z.string(),
-    closedAt: z.string(),
-    outcome: visitOutcomeSchema.nullable(),
-    techName: z.string(),
-    workOrderKind: workOrderKindSchema,
-    notes: z.string().nullable(),
-    findings: z.array(findingDtoSchema)
-  }).nullable(),
+  lastVisit: z
+    .object({
+      visitId: z.string(),
+      closedAt: z.string(),
+      outcome: visitOutcomeSchema.nullable(),
+      techName: z.string(),
+      workOrderKind: workOrderKindSchema,
+      notes: z.string().nullable(),
+      findings: z.array(findingDtoSchema),
+    })
+    .nullable(),
   lastReadings: z.array(readingDtoSchema),
   units: readingUnitsSchema,
   openLeakCase: leakCaseDtoSchema.nullable(),
@@ -283,21 +303,22 @@ export const unitBriefingSchema = z.object({
     poundsAdded: z.number(),
     poundsRecovered: z.number(),
     fullChargeLb: z.number(),
-    percentOfFullCharge: z.number()
+    percentOfFullCharge: z.number(),
   }),
-  repeatAlarms: z.array(z.object({
-    code: z.string(),
-    circuit: z.number().nullable(),
-    count: z.number(),
-    lastRaisedAt: z.string()
-  })),
+  repeatAlarms: z.array(
+    z.object({
+      code: z.string(),
+      circuit: z.number().nullable(),
+      count: z.number(),
+      lastRaisedAt: z.string(),
+    }),
+  ),
   repeatAlarmWindow: z.object({
     days: z.number(),
-    minCount: z.number()
+    minCount: z.number(),
   }),
-  photos: z.array(attachmentDtoSchema)
+  photos: z.array(attachmentDtoSchema),
 });
-
 
 export const readingsAnswerSchema = z.object({ readings: z.array(readingDtoSchema) });
 export const attachmentAnswerSchema = z.object({ attachment: attachmentDtoSchema });

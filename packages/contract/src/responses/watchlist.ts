@@ -1,8 +1,26 @@
 /** Answers of `/api/alarms`, `/api/watchlist` and `/api/leak-cases` (the Watchlist). */
 import { z } from 'zod';
-import type { AlarmImportResult, AlarmRow, BookRepairResult, LeakCaseRow, RepeatAlarmResponse, ReturnVisitRow, UnitChoice } from '../watchlist';
+import type {
+  AlarmImportResult,
+  AlarmRow,
+  BookRepairResult,
+  LeakCaseRow,
+  RepeatAlarmResponse,
+  ReturnVisitRow,
+  UnitChoice,
+} from '../watchlist';
 import type { Agree, AllAgree } from './agree';
-import { causeCodeSchema, causeOriginSchema, leakCaseStatusSchema, leakObligationStateSchema, prioritySchema, returnNeedSchema, visitOutcomeSchema, workOrderKindSchema, workOrderStateSchema } from '../vocabulary-schemas';
+import {
+  causeCodeSchema,
+  causeOriginSchema,
+  leakCaseStatusSchema,
+  leakObligationStateSchema,
+  prioritySchema,
+  returnNeedSchema,
+  visitOutcomeSchema,
+  workOrderKindSchema,
+  workOrderStateSchema,
+} from '../vocabulary-schemas';
 
 export const alarmRowSchema = z.object({
   id: z.string(),
@@ -16,13 +34,13 @@ export const alarmRowSchema = z.object({
   description: z.string().nullable(),
   raisedAt: z.string(),
   clearedAt: z.string().nullable(),
-  source: z.union([z.literal('form'), z.literal('csv'), z.literal('api'), z.literal('controller')])
+  source: z.union([z.literal('form'), z.literal('csv'), z.literal('api'), z.literal('controller')]),
 });
 
 export const alarmImportErrorSchema = z.object({
   row: z.number(),
   field: z.string().nullable(),
-  message: z.string()
+  message: z.string(),
 });
 
 export const alarmImportRowSchema = z.object({
@@ -33,7 +51,7 @@ export const alarmImportRowSchema = z.object({
   circuit: z.number().nullable(),
   code: z.string(),
   raisedAt: z.string(),
-  duplicate: z.boolean()
+  duplicate: z.boolean(),
 });
 
 export const alarmImportResultSchema = z.object({
@@ -43,7 +61,7 @@ export const alarmImportResultSchema = z.object({
   rows: z.array(alarmImportRowSchema),
   errors: z.array(alarmImportErrorSchema),
   written: z.number(),
-  skipped: z.number()
+  skipped: z.number(),
 });
 
 export const repeatAlarmUnitSchema = z.object({
@@ -88,22 +106,30 @@ export const repeatAlarmUnitSchema = z.object({
 
 export const repeatAlarmResponseSchema = z.object({
   asOf: z.string(),
-  rules: z.array(z.object({
-    branchId: z.string(),
-    minCount: z.number(),
-    windowDays: z.number()
-  })),
-  units: z.array(repeatAlarmUnitSchema)
+  rules: z.array(
+    z.object({
+      branchId: z.string(),
+      minCount: z.number(),
+      windowDays: z.number(),
+    }),
+  ),
+  units: z.array(repeatAlarmUnitSchema),
 });
 
 export const deadlineStateSchema = z.union([z.literal('overdue'), z.literal('due_soon'), z.literal('ok'), z.literal('met')]);
 
 export const leakDeadlineSchema = z.object({
-  what: z.union([z.literal('repair'), z.literal('initial_verification'), z.literal('follow_up_verification'), z.literal('retrofit_retire_plan'), z.literal('retrofit_retire_complete')]),
+  what: z.union([
+    z.literal('repair'),
+    z.literal('initial_verification'),
+    z.literal('follow_up_verification'),
+    z.literal('retrofit_retire_plan'),
+    z.literal('retrofit_retire_complete'),
+  ]),
   due: z.string(),
   daysLeft: z.number(),
   state: deadlineStateSchema,
-  source: z.string()
+  source: z.string(),
 });
 
 export const verificationTestRowSchema = z.object({
@@ -111,7 +137,7 @@ export const verificationTestRowSchema = z.object({
   kind: z.union([z.literal('initial'), z.literal('follow_up')]),
   testedOn: z.string(),
   passed: z.boolean(),
-  notes: z.string().nullable()
+  notes: z.string().nullable(),
 });
 
 export const unitChoiceSchema = z.object({
@@ -123,9 +149,8 @@ export const unitChoiceSchema = z.object({
   serial: z.string(),
   refrigerant: z.string(),
   siteId: z.string(),
-  siteName: z.string()
+  siteName: z.string(),
 });
-
 
 export const leakCaseRowSchema = z.object({
   id: z.string(),
@@ -150,7 +175,9 @@ export const leakCaseRowSchema = z.object({
   planKind: z.enum(['retrofit', 'retire']).nullable(),
   planDueDate: z.string().nullable(),
   notes: z.string().nullable(),
-  repairWorkOrder: z.object({ id: z.string(), number: z.number().nullable(), state: workOrderStateSchema, visitId: z.string().nullable() }).nullable(),
+  repairWorkOrder: z
+    .object({ id: z.string(), number: z.number().nullable(), state: workOrderStateSchema, visitId: z.string().nullable() })
+    .nullable(),
   tests: z.array(verificationTestRowSchema),
   deadlines: z.array(leakDeadlineSchema),
   next: leakDeadlineSchema.nullable(),
@@ -173,7 +200,9 @@ export const returnVisitRowSchema = z.object({
   complaint: z.string(),
   returnNeeds: z.array(returnNeedSchema),
   returnNotes: z.string().nullable(),
-  origin: z.object({ workOrderId: z.string(), number: z.number().nullable(), closedAt: z.string().nullable(), techName: z.string().nullable() }).nullable(),
+  origin: z
+    .object({ workOrderId: z.string(), number: z.number().nullable(), closedAt: z.string().nullable(), techName: z.string().nullable() })
+    .nullable(),
 });
 
 export const alarmListAnswerSchema = z.object({ alarms: z.array(alarmRowSchema) });

@@ -56,7 +56,10 @@ export class Rng {
 
   hex(length: number): string {
     let s = '';
-    while (s.length < length) s += Math.floor(this.next() * 0x10000).toString(16).padStart(4, '0');
+    while (s.length < length)
+      s += Math.floor(this.next() * 0x10000)
+        .toString(16)
+        .padStart(4, '0');
     return s.slice(0, length);
   }
 

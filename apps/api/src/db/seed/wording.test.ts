@@ -1,15 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { causeCodes, unitKinds, type CauseCode, type UnitKind, type VisitOutcome } from '@coilpath/contract';
 import { buildScenario } from './scenario';
-import {
-  alarmText,
-  complaintChoices,
-  findingChoices,
-  pmFindingChoices,
-  renderNote,
-  returnFinding,
-  type UnitWords,
-} from './wording';
+import { alarmText, complaintChoices, findingChoices, pmFindingChoices, renderNote, returnFinding, type UnitWords } from './wording';
 
 const REFRIGERATION: UnitKind[] = ['walk_in_cooler', 'walk_in_freezer', 'reach_in', 'condensing_unit', 'ice_machine'];
 const COMFORT: UnitKind[] = ['rooftop_unit', 'split_system', 'heat_pump'];
@@ -17,8 +9,10 @@ const COMFORT: UnitKind[] = ['rooftop_unit', 'split_system', 'heat_pump'];
 /** The causes the scenario draws for a kind (scenario.ts: causesFor). */
 function causesOf(kind: UnitKind): CauseCode[] {
   if (kind === 'boiler') return ['component_failure', 'control_fault', 'settings', 'wiring_fault', 'no_fault_found'];
-  if (kind === 'chiller') return ['refrigerant_leak', 'sensor_fault', 'wiring_fault', 'control_fault', 'component_failure', 'no_fault_found'];
-  if (REFRIGERATION.includes(kind)) return ['refrigerant_leak', 'sensor_fault', 'control_fault', 'component_failure', 'airflow', 'settings', 'no_fault_found'];
+  if (kind === 'chiller')
+    return ['refrigerant_leak', 'sensor_fault', 'wiring_fault', 'control_fault', 'component_failure', 'no_fault_found'];
+  if (REFRIGERATION.includes(kind))
+    return ['refrigerant_leak', 'sensor_fault', 'control_fault', 'component_failure', 'airflow', 'settings', 'no_fault_found'];
   return [...causeCodes];
 }
 
@@ -51,8 +45,18 @@ function alarmsOf(kind: UnitKind, cause: CauseCode): (string | null)[] {
 
 const unitsOf = (kind: UnitKind): UnitWords[] =>
   kind === 'chiller'
-    ? [{ kind, waterCooled: false, circuits: 2, stages: 6 }, { kind, waterCooled: true, circuits: 2, stages: 2 }]
-    : [{ kind, waterCooled: false, circuits: kind === 'rooftop_unit' || kind === 'condensing_unit' ? 2 : kind === 'boiler' ? 0 : 1, stages: 2 }];
+    ? [
+        { kind, waterCooled: false, circuits: 2, stages: 6 },
+        { kind, waterCooled: true, circuits: 2, stages: 2 },
+      ]
+    : [
+        {
+          kind,
+          waterCooled: false,
+          circuits: kind === 'rooftop_unit' || kind === 'condensing_unit' ? 2 : kind === 'boiler' ? 0 : 1,
+          stages: 2,
+        },
+      ];
 
 const OUTCOMES: { outcome: VisitOutcome; leakSearch: boolean }[] = [
   { outcome: 'resolved', leakSearch: false },
@@ -70,7 +74,8 @@ function everyNote(kind: UnitKind): [CauseCode, string | null, VisitOutcome, str
         for (const { outcome, leakSearch } of OUTCOMES) {
           if (leakSearch && cause !== 'refrigerant_leak') continue;
           for (const toppedOff of cause === 'refrigerant_leak' ? [true, false] : [false]) {
-            for (const note of findingChoices(u, cause, code, { outcome, leakSearch, toppedOff })) out.push([cause, code, outcome, renderNote(note, 2, outcome)]);
+            for (const note of findingChoices(u, cause, code, { outcome, leakSearch, toppedOff }))
+              out.push([cause, code, outcome, renderNote(note, 2, outcome)]);
           }
         }
       }
@@ -91,9 +96,16 @@ describe('demo wording', () => {
         for (const cause of causesOf(kind)) {
           for (const code of alarmsOf(kind, cause)) {
             for (const { outcome, leakSearch } of OUTCOMES) {
-              const list = findingChoices(u, cause, code, { outcome, leakSearch: leakSearch && cause === 'refrigerant_leak', toppedOff: cause === 'refrigerant_leak' });
+              const list = findingChoices(u, cause, code, {
+                outcome,
+                leakSearch: leakSearch && cause === 'refrigerant_leak',
+                toppedOff: cause === 'refrigerant_leak',
+              });
               expect(list.length, `${kind} ${cause} ${code}`).toBeGreaterThan(0);
-              expect(list.every((x) => x.sides.length < 7), `${kind} ${cause} ${code} uses the catch-all`).toBe(true);
+              expect(
+                list.every((x) => x.sides.length < 7),
+                `${kind} ${cause} ${code} uses the catch-all`,
+              ).toBe(true);
             }
           }
         }
@@ -116,7 +128,8 @@ describe('demo wording', () => {
   it('keeps refrigeration words on refrigeration, and refrigerant words off boilers', () => {
     for (const kind of [...COMFORT, 'chiller', 'boiler'] as UnitKind[]) {
       for (const [cause, code, , text] of everyNote(kind)) expect(text, `${kind} ${cause} ${code}`).not.toMatch(REFRIGERATION_WORDS);
-      for (const u of unitsOf(kind)) for (const text of [...complaintChoices(u), ...pmFindingChoices(u)]) expect(text, kind).not.toMatch(REFRIGERATION_WORDS);
+      for (const u of unitsOf(kind))
+        for (const text of [...complaintChoices(u), ...pmFindingChoices(u)]) expect(text, kind).not.toMatch(REFRIGERATION_WORDS);
     }
     for (const [cause, , , text] of everyNote('boiler')) expect(text, cause).not.toMatch(REFRIGERANT_WORDS);
     const boiler = unitsOf('boiler')[0]!;
@@ -141,7 +154,13 @@ describe('demo wording', () => {
   it('never says "quoted" or "ordered" on a resolved visit, nor a leak search when the leak was fixed', () => {
     for (const kind of unitKinds) {
       for (const [cause, code, outcome, text] of everyNote(kind)) {
-        if (outcome === 'resolved' && !text.startsWith('Installed') && !text.startsWith('Replaced the damaged') && !text.startsWith('Pumped') && !text.startsWith('Recovered')) {
+        if (
+          outcome === 'resolved' &&
+          !text.startsWith('Installed') &&
+          !text.startsWith('Replaced the damaged') &&
+          !text.startsWith('Pumped') &&
+          !text.startsWith('Recovered')
+        ) {
           expect(text, `${kind} ${cause} ${code}`).not.toMatch(/quoted|ordered|leak search/);
         }
       }

@@ -19,7 +19,7 @@ export interface UnitWords {
 
 /** Which group of wording a kind of unit uses. A heat pump is worded like a split system. */
 export type WordGroup =
-  | 'rooftop' | 'split' | 'chiller' | 'boiler' | 'walk_in_cooler' | 'walk_in_freezer' | 'reach_in' | 'ice_machine' | 'condensing_unit';
+  'rooftop' | 'split' | 'chiller' | 'boiler' | 'walk_in_cooler' | 'walk_in_freezer' | 'reach_in' | 'ice_machine' | 'condensing_unit';
 
 export const WORD_GROUP: Record<UnitKind, WordGroup> = {
   rooftop_unit: 'rooftop',
@@ -45,7 +45,8 @@ export function alarmText(kind: UnitKind, code: string): string {
   const circuit = /^(LP|HP)(\d+)$/.exec(code);
   if (circuit) {
     const n = circuit[2];
-    if (kind === 'chiller') return circuit[1] === 'LP' ? `Low evaporator refrigerant temperature, circuit ${n}` : `High condenser pressure, circuit ${n}`;
+    if (kind === 'chiller')
+      return circuit[1] === 'LP' ? `Low evaporator refrigerant temperature, circuit ${n}` : `High condenser pressure, circuit ${n}`;
     return circuit[1] === 'LP' ? `Low suction pressure, circuit ${n}` : `High discharge pressure, circuit ${n}`;
   }
   switch (code) {
@@ -121,22 +122,46 @@ const ROOFTOP: NoteBook = {
   refrigerant_leak: [
     n('LP -', 'Leak at the Schrader core of the suction service port on circuit {c}; replaced core and cap.'),
     n('LP -', 'Leak at the flare connection of the circuit {c} low-pressure switch; replaced the flare gasket and tightened.'),
-    n('LP -', 'Liquid service valve on circuit {c} weeping at the stem packing, cap missing; tightened the packing nut and fitted a new cap.'),
+    n(
+      'LP -',
+      'Liquid service valve on circuit {c} weeping at the stem packing, cap missing; tightened the packing nut and fitted a new cap.',
+    ),
     n('LP -', 'Oil stain and bubbles at the braze joint on the TXV inlet, circuit {c}; topped off, re-braze {q}.', 'o t'),
-    n('LP -', 'Liquid line on circuit {c} rubbed through at the cabinet grommet, confirmed with the electronic detector; topped off, line repair {q}.', 'o t'),
+    n(
+      'LP -',
+      'Liquid line on circuit {c} rubbed through at the cabinet grommet, confirmed with the electronic detector; topped off, line repair {q}.',
+      'o t',
+    ),
     n('LP -', 'Pin-hole leak on an evaporator U-bend, circuit {c}; topped off, coil repair {q}.', 'o t'),
-    n('LP -', 'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.', 's t'),
-    n('LP -', 'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.', 's x'),
+    n(
+      'LP -',
+      'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.',
+      's t',
+    ),
+    n(
+      'LP -',
+      'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.',
+      's x',
+    ),
   ],
   sensor_fault: [
     n('-', 'Suction transducer on circuit {c} reading well above the reference gauge; replaced transducer.', 'd'),
     n('-', 'Supply-air sensor reading 6 °F low against a reference thermometer, cycling the compressors off early; replaced sensor.'),
     n('-', 'Suction transducer on circuit {c} reading well above the reference gauge; replacement {q}.', 'o d'),
-    n('LP', 'Suction transducer on circuit {c} dropping to zero when its harness is flexed (corroded pigtail), so the LP{c} trips were false; replaced transducer and pigtail.'),
+    n(
+      'LP',
+      'Suction transducer on circuit {c} dropping to zero when its harness is flexed (corroded pigtail), so the LP{c} trips were false; replaced transducer and pigtail.',
+    ),
     n('LP', 'Low-pressure switch on circuit {c} opening well above its rated cut-out (checked against the gauge); replaced switch.'),
     n('LP', 'Low-pressure switch on circuit {c} opening erratically (checked against the gauge); replacement {q}.', 'o'),
-    n('HP', 'High-pressure switch on circuit {c} opening well below its rated cut-out with head pressure normal on the gauge; replaced switch.'),
-    n('HP', 'Discharge pressure transducer on circuit {c} spiking to full scale when its harness moves, so the HP{c} trips were false; replaced transducer and pigtail.'),
+    n(
+      'HP',
+      'High-pressure switch on circuit {c} opening well below its rated cut-out with head pressure normal on the gauge; replaced switch.',
+    ),
+    n(
+      'HP',
+      'Discharge pressure transducer on circuit {c} spiking to full scale when its harness moves, so the HP{c} trips were false; replaced transducer and pigtail.',
+    ),
     n('HP', 'High-pressure switch on circuit {c} opening with head pressure normal on the gauge; replacement {q}.', 'o'),
   ],
   wiring_fault: [
@@ -146,7 +171,10 @@ const ROOFTOP: NoteBook = {
     n('COMM', 'Network cable to the building controller chafed through at the roof curb; repaired and re-shielded.'),
     n('COMM -', 'Control harness in the compressor compartment chafed in several places; harness replacement {q}.', 'o'),
     n('HP', 'Loose wire at the circuit {c} high-pressure switch opening the safety circuit, logged as high-pressure trips; re-terminated.'),
-    n('HP', 'Condenser fan motor lead burned at the terminal block on circuit {c}; the fans dropped out and head pressure climbed to the trip. Replaced lead and terminal.'),
+    n(
+      'HP',
+      'Condenser fan motor lead burned at the terminal block on circuit {c}; the fans dropped out and head pressure climbed to the trip. Replaced lead and terminal.',
+    ),
     n('HP', 'Condenser fan terminal block on circuit {c} heat-damaged, fans dropping out; replacement {q}.', 'o'),
   ],
   control_fault: [
@@ -198,7 +226,11 @@ const SPLIT: NoteBook = {
     n('LP -', 'Suction service valve weeping at the stem, cap missing; tightened the packing nut and fitted a new cap.'),
     n('LP -', 'Line set rubbed through where it enters the building; topped off, line set repair {q}.', 'o t'),
     n('LP -', 'Pin-hole leak on an indoor coil U-bend; topped off, coil replacement {q}.', 'o t'),
-    n('LP -', 'Short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.', 's t'),
+    n(
+      'LP -',
+      'Short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.',
+      's t',
+    ),
     n('LP -', 'Short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.', 's x'),
   ],
   sensor_fault: [
@@ -261,41 +293,69 @@ const CHILLER: NoteBook = {
     n('LP -', 'Leak at the circuit {c} liquid-line sight glass; topped off, sight glass replacement {q}.', 'o t'),
     n('LP -', 'Pin-hole leak where a condenser coil tube rubs the tube sheet, circuit {c}; topped off, coil repair {q}.', 'o t A'),
     n('LP -', 'Condenser relief valve on circuit {c} weeping at its seat; topped off, relief valve replacement {q}.', 'o t W'),
-    n('LP -', 'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.', 's t'),
-    n('LP -', 'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.', 's x'),
+    n(
+      'LP -',
+      'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.',
+      's t',
+    ),
+    n(
+      'LP -',
+      'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.',
+      's x',
+    ),
   ],
   sensor_fault: [
     n('-', 'Suction transducer on circuit {c} reading well above the reference gauge; replaced transducer.', 'd'),
     n('-', 'Leaving chilled-water sensor reading 4 °F high against a reference thermometer, over-staging the chiller; replaced sensor.'),
     n('-', 'Suction transducer on circuit {c} reading well above the reference gauge; replacement {q}.', 'o d'),
-    n('LP', 'Evaporator refrigerant temperature sensor on circuit {c} reading 6 °F low against a reference thermometer, tripping the low-temperature limit; replaced sensor.'),
+    n(
+      'LP',
+      'Evaporator refrigerant temperature sensor on circuit {c} reading 6 °F low against a reference thermometer, tripping the low-temperature limit; replaced sensor.',
+    ),
     n('LP', 'Evaporator refrigerant temperature sensor on circuit {c} reading low and erratic; replacement {q}.', 'o'),
-    n('HP', 'Condenser pressure transducer on circuit {c} spiking to full scale when its harness moves, so the HP{c} trips were false; replaced transducer.'),
+    n(
+      'HP',
+      'Condenser pressure transducer on circuit {c} spiking to full scale when its harness moves, so the HP{c} trips were false; replaced transducer.',
+    ),
     n('HP', 'Condenser pressure transducer on circuit {c} spiking to full scale; replacement {q}.', 'o'),
   ],
   wiring_fault: [
     n('COMM', 'Network cable to the building controller pulled loose at the chiller panel; re-terminated and strain-relieved.'),
     n('COMM -', 'Loose neutral at the chiller control transformer; tightened and torqued.'),
     n('COMM -', 'Network cable to the building controller damaged along the mechanical room tray; new cable run {q}.', 'o'),
-    n('HP', 'Loose wire at the circuit {c} high-pressure switch opening the safety circuit, logged as high condenser pressure; re-terminated.'),
+    n(
+      'HP',
+      'Loose wire at the circuit {c} high-pressure switch opening the safety circuit, logged as high condenser pressure; re-terminated.',
+    ),
     n('HP', 'Safety-circuit wiring of circuit {c} heat-damaged at the terminal strip; repair {q}.', 'o'),
     n('-', 'Loose spade terminal on the circuit {c} compressor contactor coil; re-terminated.'),
   ],
   control_fault: [
     n('COMM', 'Chiller controller lost its BACnet link after a power blip; restored the network address and schedule.'),
-    n('-', 'Chiller controller staging erratically after a corrupted program; reloaded the program and set points (44 °F leaving chilled water).'),
+    n(
+      '-',
+      'Chiller controller staging erratically after a corrupted program; reloaded the program and set points (44 °F leaving chilled water).',
+    ),
     n('-', 'Compressor output relay on the chiller I/O board stuck; replaced the board.'),
     n('COMM -', 'Chiller controller I/O board failing intermittently; replacement board {q}.', 'o'),
   ],
   component_failure: [
     n('LP', 'EXV on circuit {c} stuck partly closed, starving the evaporator; replaced the valve motor and checked superheat.'),
     n('LP', 'Liquid-line filter-drier on circuit {c} restricted (8 °F drop across it); replaced the cores.'),
-    n('LP', 'Chilled-water pump impeller worn, flow down to 60 % of design and the evaporator refrigerant temperature falling to the trip; pump repair {q}.', 'o'),
+    n(
+      'LP',
+      'Chilled-water pump impeller worn, flow down to 60 % of design and the evaporator refrigerant temperature falling to the trip; pump repair {q}.',
+      'o',
+    ),
     n('LP', 'EXV on circuit {c} sticking; replacement valve {q}.', 'o'),
     n('HP', 'Two condenser fan motors on circuit {c} failed and head pressure climbed to the trip; replaced both motors.', 'A'),
     n('HP -', 'Condenser fan contactor on circuit {c} burned open; replaced contactor.', 'A'),
     n('HP', 'Condenser fan motors on circuit {c} failing; replacement motors {q}.', 'o A'),
-    n('HP', 'Cooling tower fan motor failed; condenser water rose to 95 °F and circuit {c} tripped on high condenser pressure. Replaced motor.', 'W'),
+    n(
+      'HP',
+      'Cooling tower fan motor failed; condenser water rose to 95 °F and circuit {c} tripped on high condenser pressure. Replaced motor.',
+      'W',
+    ),
     n('HP -', 'Condenser water pump seal leaking and flow dropping; replaced the seal.', 'W'),
     n('HP', 'Cooling tower fan motor failing, condenser water running hot; replacement motor {q}.', 'o W'),
     n('-', 'Contactor points pitted on the circuit {c} compressor contactor; replaced contactor.'),
@@ -305,7 +365,10 @@ const CHILLER: NoteBook = {
   no_fault_found: [
     n('LP -', 'Could not reproduce; the chiller held 44 °F leaving chilled water at full load for an hour. Alarm history reviewed.'),
     n('LP', 'Alarm reset; evaporator and condenser pressures normal on every circuit. Asked the site to call if it returns.'),
-    n('-', 'Chiller running normally on arrival: 44 °F leaving chilled water, pressures normal on every circuit. Asked the site to call if it returns.'),
+    n(
+      '-',
+      'Chiller running normally on arrival: 44 °F leaving chilled water, pressures normal on every circuit. Asked the site to call if it returns.',
+    ),
   ],
 };
 
@@ -349,8 +412,16 @@ const WALK_IN_SHARED: NoteBook = {
     n('LP TEMP -', 'Oil stain and bubbles at the flare nut on the TXV inlet; re-flared and tightened.'),
     n('LP TEMP -', 'Pin-hole leak on an evaporator U-bend; topped off, coil repair {q}.', 'o t'),
     n('LP TEMP -', 'Liquid line rubbed through where it crosses the condensing unit frame; topped off, repair {q}.', 'o t'),
-    n('LP TEMP -', 'Short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.', 's t'),
-    n('LP TEMP -', 'Short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.', 's x'),
+    n(
+      'LP TEMP -',
+      'Short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.',
+      's t',
+    ),
+    n(
+      'LP TEMP -',
+      'Short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.',
+      's x',
+    ),
   ],
   sensor_fault: [
     n('TEMP', 'Box temperature probe out of its clip and hanging in the door draft, so the alarm was false; re-mounted it.'),
@@ -456,11 +527,22 @@ const ICE_MACHINE: NoteBook = {
     n('ICE -', 'Leak at the Schrader core of the suction access port; replaced core and cap.'),
     n('ICE -', 'Pin-hole leak on the evaporator serpentine; topped off, evaporator replacement {q}.', 'o t'),
     n('ICE -', 'Leak at the hot-gas valve braze joint; topped off, repair {q}.', 'o t'),
-    n('ICE -', 'Long freeze cycle, frost only on the lower evaporator: short of charge, no leak found with the electronic detector. Topped off; leak search with nitrogen needed.', 's t'),
-    n('ICE -', 'Long freeze cycle, frost only on the lower evaporator: short of charge, no leak found with the electronic detector. Leak search with nitrogen needed.', 's x'),
+    n(
+      'ICE -',
+      'Long freeze cycle, frost only on the lower evaporator: short of charge, no leak found with the electronic detector. Topped off; leak search with nitrogen needed.',
+      's t',
+    ),
+    n(
+      'ICE -',
+      'Long freeze cycle, frost only on the lower evaporator: short of charge, no leak found with the electronic detector. Leak search with nitrogen needed.',
+      's x',
+    ),
   ],
   sensor_fault: [
-    n('ICE -', 'Ice thickness probe scaled over, so harvest started late and the ice bridged; cleaned the probe and set the bridge to 1/8 in.'),
+    n(
+      'ICE -',
+      'Ice thickness probe scaled over, so harvest started late and the ice bridged; cleaned the probe and set the bridge to 1/8 in.',
+    ),
     n('ICE -', 'Water level probe scaled, machine short of water every cycle; cleaned the probe.'),
     n('-', 'Bin control reading full with the bin half empty; replaced the bin sensor.'),
     n('ICE -', 'Ice thickness probe cracked; replacement {q}.', 'o'),
@@ -499,12 +581,23 @@ const CONDENSING_UNIT: NoteBook = {
     n('LP TEMP -', 'Oil stain and bubbles at the flare nut on a unit cooler TXV inlet, circuit {c}; re-flared and tightened.'),
     n('LP TEMP -', 'Pin-hole leak on a unit cooler U-bend, circuit {c}; topped off, coil repair {q}.', 'o t'),
     n('LP TEMP -', 'Vibration crack at a braze joint on the circuit {c} discharge line; topped off, repair {q}.', 'o t'),
-    n('LP TEMP -', 'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.', 's t'),
-    n('LP TEMP -', 'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.', 's x'),
+    n(
+      'LP TEMP -',
+      'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Topped off; leak search with nitrogen needed.',
+      's t',
+    ),
+    n(
+      'LP TEMP -',
+      'Circuit {c} short of charge; no leak at the accessible joints with the electronic detector. Leak search with nitrogen needed.',
+      's x',
+    ),
   ],
   sensor_fault: [
     n('TEMP', 'Room temperature probe mounted in the dock door draft, so the alarm was false; moved it to the unit cooler return.'),
-    n('TEMP -', 'Defrost termination sensor on a unit cooler failed open; every defrost ran to its fail-safe time and the room warmed. Replaced sensor.'),
+    n(
+      'TEMP -',
+      'Defrost termination sensor on a unit cooler failed open; every defrost ran to its fail-safe time and the room warmed. Replaced sensor.',
+    ),
     n('TEMP -', 'Defrost termination sensor on a unit cooler reading erratically; replacement {q}.', 'o'),
     n('-', 'Suction transducer on circuit {c} reading well above the reference gauge; replaced transducer.', 'd'),
   ],
@@ -522,7 +615,10 @@ const CONDENSING_UNIT: NoteBook = {
     n('TEMP -', 'Compressor on circuit {c} drawing locked-rotor amps; circuit locked out, replacement {q}.', 'o'),
   ],
   airflow: [
-    n('TEMP -', 'Unit cooler coils iced near the dock door with the strip curtain torn down; defrosted and asked the site to re-hang the curtain.'),
+    n(
+      'TEMP -',
+      'Unit cooler coils iced near the dock door with the strip curtain torn down; defrosted and asked the site to re-hang the curtain.',
+    ),
     n('TEMP -', 'Condenser coil matted with cottonwood; washed coil.'),
     n('TEMP -', 'Pallets stacked against a unit cooler, blocking its air throw; cleared them with the warehouse lead.'),
     n('TEMP -', 'Dock door strip curtain torn and the coils frosting; replacement curtain {q}.', 'o'),
@@ -540,7 +636,8 @@ const CONDENSING_UNIT: NoteBook = {
 
 const merge = (...books: NoteBook[]): NoteBook => {
   const out: NoteBook = {};
-  for (const b of books) for (const [cause, notes] of Object.entries(b) as [CauseCode, Note[]][]) out[cause] = [...(out[cause] ?? []), ...notes];
+  for (const b of books)
+    for (const [cause, notes] of Object.entries(b) as [CauseCode, Note[]][]) out[cause] = [...(out[cause] ?? []), ...notes];
   return out;
 };
 
@@ -605,11 +702,16 @@ export function renderNote(note: Note, circuit: number, outcome: VisitOutcome): 
 export function returnFinding(u: UnitWords, cause: CauseCode): string {
   const group = WORD_GROUP[u.kind];
   const proof =
-    group === 'boiler' ? 'watched three good ignition cycles.'
-      : group === 'chiller' ? 'verified leaving chilled water at set point with every stage running.'
-        : group === 'ice_machine' ? 'verified a full freeze and harvest cycle.'
-          : group === 'condensing_unit' ? 'room pulling down to set point.'
-            : group === 'walk_in_cooler' || group === 'walk_in_freezer' || group === 'reach_in' ? 'box pulled down to set point.'
+    group === 'boiler'
+      ? 'watched three good ignition cycles.'
+      : group === 'chiller'
+        ? 'verified leaving chilled water at set point with every stage running.'
+        : group === 'ice_machine'
+          ? 'verified a full freeze and harvest cycle.'
+          : group === 'condensing_unit'
+            ? 'room pulling down to set point.'
+            : group === 'walk_in_cooler' || group === 'walk_in_freezer' || group === 'reach_in'
+              ? 'box pulled down to set point.'
               : 'verified operation through a full cooling cycle.';
   switch (cause) {
     case 'refrigerant_leak':
@@ -630,20 +732,43 @@ export function returnFinding(u: UnitWords, cause: CauseCode): string {
 
 /** Findings of planned maintenance (cause: airflow), by kind. */
 const PM_FINDINGS: Record<WordGroup, Note[]> = {
-  rooftop: [n('-', 'Belt worn and glazed; replaced.'), n('-', 'Filters loaded early; shortened the filter interval.'), n('-', 'Condenser coil dirty; washed.')],
-  split: [n('-', 'Filters loaded early; shortened the filter interval.'), n('-', 'Condenser coil dirty; washed.'), n('-', 'Blower wheel caked with dust; cleaned.')],
+  rooftop: [
+    n('-', 'Belt worn and glazed; replaced.'),
+    n('-', 'Filters loaded early; shortened the filter interval.'),
+    n('-', 'Condenser coil dirty; washed.'),
+  ],
+  split: [
+    n('-', 'Filters loaded early; shortened the filter interval.'),
+    n('-', 'Condenser coil dirty; washed.'),
+    n('-', 'Blower wheel caked with dust; cleaned.'),
+  ],
   chiller: [
     n('-', 'Condenser coil dirty; washed.', 'A'),
     n('-', 'Condenser coil fins flattened along one side; combed.', 'A'),
     n('-', 'Cooling tower fan belt worn and glazed; replaced.', 'W'),
     n('-', 'Cooling tower fill scaled and airflow through the tower reduced; fill cleaning quoted.', 'W'),
   ],
-  boiler: [n('-', 'Combustion air intake screen partly blocked with leaves; cleaned.'), n('-', 'Combustion blower wheel caked with lint; cleaned and re-checked combustion.')],
-  walk_in_cooler: [n('-', 'Condenser coil dirty; washed.'), n('-', 'Evaporator fan guard blocked by stacked product; cleared it with staff.')],
-  walk_in_freezer: [n('-', 'Condenser coil dirty; washed.'), n('-', 'Evaporator fan guard blocked by stacked product; cleared it with staff.')],
-  reach_in: [n('-', 'Condenser coil clogged with lint; cleaned.'), n('-', 'Product blocking the evaporator air return; rearranged the shelves with staff.')],
+  boiler: [
+    n('-', 'Combustion air intake screen partly blocked with leaves; cleaned.'),
+    n('-', 'Combustion blower wheel caked with lint; cleaned and re-checked combustion.'),
+  ],
+  walk_in_cooler: [
+    n('-', 'Condenser coil dirty; washed.'),
+    n('-', 'Evaporator fan guard blocked by stacked product; cleared it with staff.'),
+  ],
+  walk_in_freezer: [
+    n('-', 'Condenser coil dirty; washed.'),
+    n('-', 'Evaporator fan guard blocked by stacked product; cleared it with staff.'),
+  ],
+  reach_in: [
+    n('-', 'Condenser coil clogged with lint; cleaned.'),
+    n('-', 'Product blocking the evaporator air return; rearranged the shelves with staff.'),
+  ],
   ice_machine: [n('-', 'Condenser air filter clogged; cleaned.'), n('-', 'Condenser coil clogged with grease and lint; cleaned.')],
-  condensing_unit: [n('-', 'Condenser coil dirty; washed.'), n('-', 'Pallets stacked against a unit cooler; cleared them with the warehouse lead.')],
+  condensing_unit: [
+    n('-', 'Condenser coil dirty; washed.'),
+    n('-', 'Pallets stacked against a unit cooler; cleared them with the warehouse lead.'),
+  ],
 };
 
 export function pmFindingChoices(u: UnitWords): string[] {
@@ -665,7 +790,14 @@ const c = (text: string, causes?: CauseCode[], condenser?: 'air' | 'water'): Com
 const COMPLAINTS: Record<WordGroup, Complaint[]> = {
   rooftop: [
     c('Rooms on this unit running warm all afternoon'),
-    c('Unit short-cycling all afternoon', ['refrigerant_leak', 'sensor_fault', 'wiring_fault', 'control_fault', 'component_failure', 'no_fault_found']),
+    c('Unit short-cycling all afternoon', [
+      'refrigerant_leak',
+      'sensor_fault',
+      'wiring_fault',
+      'control_fault',
+      'component_failure',
+      'no_fault_found',
+    ]),
     c('Unit blowing warm air', ['refrigerant_leak', 'sensor_fault', 'wiring_fault', 'control_fault', 'component_failure', 'airflow']),
     c('Noisy condenser fan', ['component_failure', 'no_fault_found']),
     c('Supply fan squealing at start-up', ['airflow']),
@@ -675,14 +807,28 @@ const COMPLAINTS: Record<WordGroup, Complaint[]> = {
   ],
   split: [
     c('Rooms on the split system warm; outdoor unit running'),
-    c('Split system short-cycling', ['refrigerant_leak', 'sensor_fault', 'wiring_fault', 'control_fault', 'component_failure', 'no_fault_found']),
+    c('Split system short-cycling', [
+      'refrigerant_leak',
+      'sensor_fault',
+      'wiring_fault',
+      'control_fault',
+      'component_failure',
+      'no_fault_found',
+    ]),
     c('Outdoor unit humming, fan not turning', ['component_failure', 'wiring_fault']),
     c('Water dripping from the air handler into the ceiling', ['airflow', 'refrigerant_leak']),
     c('Thermostat blank, no cooling', ['wiring_fault', 'control_fault']),
     c('Room too cold all day', ['settings', 'control_fault', 'sensor_fault']),
   ],
   chiller: [
-    c('Chilled water supply at 52 °F, set point 44 °F', ['refrigerant_leak', 'sensor_fault', 'wiring_fault', 'control_fault', 'component_failure', 'no_fault_found']),
+    c('Chilled water supply at 52 °F, set point 44 °F', [
+      'refrigerant_leak',
+      'sensor_fault',
+      'wiring_fault',
+      'control_fault',
+      'component_failure',
+      'no_fault_found',
+    ]),
     c('Chiller tripped overnight; building warm at opening'),
     c('Building warm, chiller staging erratically', ['control_fault', 'sensor_fault', 'wiring_fault']),
     c('Chiller running on one circuit only', ['refrigerant_leak', 'component_failure', 'wiring_fault', 'sensor_fault']),
@@ -697,7 +843,14 @@ const COMPLAINTS: Record<WordGroup, Complaint[]> = {
     c('Boiler locked out with the low-water cutoff light on', ['component_failure', 'wiring_fault', 'no_fault_found']),
   ],
   walk_in_cooler: [
-    c('Walk-in at 46 °F, product at risk', ['refrigerant_leak', 'component_failure', 'airflow', 'control_fault', 'sensor_fault', 'no_fault_found']),
+    c('Walk-in at 46 °F, product at risk', [
+      'refrigerant_leak',
+      'component_failure',
+      'airflow',
+      'control_fault',
+      'sensor_fault',
+      'no_fault_found',
+    ]),
     c('Ice building up on the walk-in evaporator', ['airflow', 'control_fault', 'refrigerant_leak', 'component_failure']),
     c('Walk-in condensing unit running nonstop', ['refrigerant_leak', 'airflow', 'component_failure', 'sensor_fault']),
     c('Produce freezing in the walk-in cooler', ['settings', 'control_fault', 'sensor_fault']),
@@ -705,7 +858,14 @@ const COMPLAINTS: Record<WordGroup, Complaint[]> = {
     c('Walk-in evaporator fans not running', ['component_failure', 'control_fault']),
   ],
   walk_in_freezer: [
-    c('Walk-in freezer at 15 °F, ice cream softening', ['refrigerant_leak', 'component_failure', 'airflow', 'control_fault', 'sensor_fault', 'no_fault_found']),
+    c('Walk-in freezer at 15 °F, ice cream softening', [
+      'refrigerant_leak',
+      'component_failure',
+      'airflow',
+      'control_fault',
+      'sensor_fault',
+      'no_fault_found',
+    ]),
     c('Heavy frost on the freezer evaporator', ['airflow', 'control_fault', 'component_failure', 'refrigerant_leak']),
     c('Walk-in freezer stuck in defrost', ['control_fault', 'sensor_fault', 'component_failure']),
     c('Ice on the freezer floor under the evaporator', ['component_failure', 'control_fault', 'airflow']),
@@ -714,7 +874,14 @@ const COMPLAINTS: Record<WordGroup, Complaint[]> = {
   ],
   reach_in: [
     c('Reach-in not holding temperature'),
-    c('Reach-in at 48 °F, staff moving product out', ['refrigerant_leak', 'component_failure', 'airflow', 'control_fault', 'sensor_fault', 'no_fault_found']),
+    c('Reach-in at 48 °F, staff moving product out', [
+      'refrigerant_leak',
+      'component_failure',
+      'airflow',
+      'control_fault',
+      'sensor_fault',
+      'no_fault_found',
+    ]),
     c('Reach-in compressor running nonstop', ['refrigerant_leak', 'airflow', 'component_failure', 'sensor_fault']),
     c('Frost built up on the reach-in evaporator', ['airflow', 'control_fault', 'component_failure']),
     c('Reach-in freezing product on the top shelf', ['settings', 'sensor_fault', 'control_fault']),
@@ -728,7 +895,14 @@ const COMPLAINTS: Record<WordGroup, Complaint[]> = {
     c('Ice machine freezing up, ice bridged across the evaporator', ['sensor_fault', 'control_fault', 'settings']),
   ],
   condensing_unit: [
-    c('Freezer room at 5 °F, set point −10 °F', ['refrigerant_leak', 'component_failure', 'airflow', 'control_fault', 'sensor_fault', 'no_fault_found']),
+    c('Freezer room at 5 °F, set point −10 °F', [
+      'refrigerant_leak',
+      'component_failure',
+      'airflow',
+      'control_fault',
+      'sensor_fault',
+      'no_fault_found',
+    ]),
     c('Unit cooler coils frosting up near the dock doors', ['airflow', 'control_fault', 'component_failure']),
     c('Condensing unit running nonstop, room not pulling down', ['refrigerant_leak', 'airflow', 'component_failure', 'sensor_fault']),
     c('One unit cooler’s fans not running', ['component_failure', 'control_fault']),
@@ -789,9 +963,12 @@ export function visitNote(
   v: { alarmCode: string | null; toppedOff: boolean },
 ): string {
   if (outcome === 'declined') {
-    const left = u.kind === 'boiler' ? 'Boiler left firing; site aware of the risk.'
-      : u.stages > 1 ? 'Unit left running on its remaining stages.'
-        : 'Unit left running as found; site aware of the risk.';
+    const left =
+      u.kind === 'boiler'
+        ? 'Boiler left firing; site aware of the risk.'
+        : u.stages > 1
+          ? 'Unit left running on its remaining stages.'
+          : 'Unit left running as found; site aware of the risk.';
     return `Repair quoted; customer declined for now. ${left}`;
   }
   if (outcome === 'needs_return') {
@@ -799,7 +976,8 @@ export function visitNote(
       ? `Topped off to keep it running; return visit needed (${returnText(needs)}).`
       : `Temporary fix in place; return visit needed (${returnText(needs)}).`;
   }
-  if (cause === 'no_fault_found') return v.alarmCode ? 'Alarm reset; unit running normally on departure.' : 'No fault found; unit running normally on departure.';
+  if (cause === 'no_fault_found')
+    return v.alarmCode ? 'Alarm reset; unit running normally on departure.' : 'No fault found; unit running normally on departure.';
   if (cause === 'settings') return 'Settings corrected; unit running normally on departure.';
   if (cause === 'refrigerant_leak' && v.toppedOff) return 'Charge topped off; unit running normally on departure.';
   return 'Repaired and verified; unit running normally on departure.';

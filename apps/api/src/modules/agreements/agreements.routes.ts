@@ -10,12 +10,37 @@ export function agreementsRoutes(ctx: AppContext): Router {
   const r = Router();
   r.use(requireRole('branch_manager', 'owner'));
   // Declared before `/:id` (which also checks for a uuid) so the name is never read as an id.
-  r.get('/pm-completion', endpoint({ query: pmCompletionQuerySchema }, ({ user, query }) => pmCompletion(ctx, user, query)));
-  r.get('/', endpoint({ query: agreementListQuerySchema }, async ({ user, query }) => ({ agreements: await listAgreements(ctx, user, query) })));
-  r.post('/', endpoint({ body: agreementInputSchema, status: 201 }, async ({ user, body }) => ({ agreement: await createAgreement(ctx, user, body) })));
-  r.get('/:id', endpoint({ params: idParams }, async ({ user, params }) => ({ agreement: await getAgreement(ctx, user, params.id) })));
-  r.patch('/:id', endpoint({ params: idParams, body: agreementPatchSchema }, async ({ user, params, body }) => ({ agreement: await patchAgreement(ctx, user, params.id, body) })));
-  r.post('/:id/plan', endpoint({ params: idParams }, ({ user, params }) => previewPlan(ctx, user, params.id)));
-  r.post('/:id/plan/apply', endpoint({ params: idParams }, ({ user, params }) => applyPlan(ctx, user, params.id)));
+  r.get(
+    '/pm-completion',
+    endpoint({ query: pmCompletionQuerySchema }, ({ user, query }) => pmCompletion(ctx, user, query)),
+  );
+  r.get(
+    '/',
+    endpoint({ query: agreementListQuerySchema }, async ({ user, query }) => ({ agreements: await listAgreements(ctx, user, query) })),
+  );
+  r.post(
+    '/',
+    endpoint({ body: agreementInputSchema, status: 201 }, async ({ user, body }) => ({
+      agreement: await createAgreement(ctx, user, body),
+    })),
+  );
+  r.get(
+    '/:id',
+    endpoint({ params: idParams }, async ({ user, params }) => ({ agreement: await getAgreement(ctx, user, params.id) })),
+  );
+  r.patch(
+    '/:id',
+    endpoint({ params: idParams, body: agreementPatchSchema }, async ({ user, params, body }) => ({
+      agreement: await patchAgreement(ctx, user, params.id, body),
+    })),
+  );
+  r.post(
+    '/:id/plan',
+    endpoint({ params: idParams }, ({ user, params }) => previewPlan(ctx, user, params.id)),
+  );
+  r.post(
+    '/:id/plan/apply',
+    endpoint({ params: idParams }, ({ user, params }) => applyPlan(ctx, user, params.id)),
+  );
   return r;
 }

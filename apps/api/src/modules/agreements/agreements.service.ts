@@ -35,7 +35,12 @@ const ruleDateOf = (purpose: string | null) => (purpose?.startsWith('agreement-v
 
 /* ------------------------------------------------------------------ reading */
 
-export async function listAgreements(ctx: AppContext, user: SessionUser, q: { branchId?: string | undefined; status: string }, onlyIds?: string[]): Promise<AgreementRow[]> {
+export async function listAgreements(
+  ctx: AppContext,
+  user: SessionUser,
+  q: { branchId?: string | undefined; status: string },
+  onlyIds?: string[],
+): Promise<AgreementRow[]> {
   const rows = await ctx.db
     .select({ a: agreements, siteName: sites.name, customerName: customers.name })
     .from(agreements)
@@ -62,13 +67,19 @@ export async function listAgreements(ctx: AppContext, user: SessionUser, q: { br
       .select({ agreementId: workOrders.agreementId, plannedDate: workOrders.plannedDate, state: workOrders.state })
       .from(workOrders)
       .where(and(inArray(workOrders.agreementId, ids), eq(workOrders.kind, 'planned_maintenance'), ne(workOrders.state, 'cancelled'))),
-    branchesById(ctx.db, rows.map((r) => r.a.branchId)),
+    branchesById(
+      ctx.db,
+      rows.map((r) => r.a.branchId),
+    ),
   ]);
   const now = ctx.clock.now();
   return rows.map(({ a, siteName, customerName }) => {
     const today = todayIn(branchMap.get(a.branchId)?.timeZone ?? 'UTC', now);
     const mine = planned.filter((p) => p.agreementId === a.id);
-    const upcoming = mine.filter((p) => p.plannedDate && p.plannedDate >= today && p.state !== 'closed').map((p) => p.plannedDate!).sort();
+    const upcoming = mine
+      .filter((p) => p.plannedDate && p.plannedDate >= today && p.state !== 'closed')
+      .map((p) => p.plannedDate!)
+      .sort();
     return {
       id: a.id,
       branchId: a.branchId,
@@ -97,7 +108,13 @@ export async function getAgreement(ctx: AppContext, user: SessionUser, id: strin
   const [row] = await listAgreements(ctx, user, { status: 'all' }, [id]);
   if (!row) throw notFound('agreement');
   const visits = await ctx.db
-    .select({ workOrderId: workOrders.id, number: workOrders.number, plannedDate: workOrders.plannedDate, state: workOrders.state, closedAt: workOrders.closedAt })
+    .select({
+      workOrderId: workOrders.id,
+      number: workOrders.number,
+      plannedDate: workOrders.plannedDate,
+      state: workOrders.state,
+      closedAt: workOrders.closedAt,
+    })
     .from(workOrders)
     .where(and(eq(workOrders.agreementId, id), eq(workOrders.kind, 'planned_maintenance'), ne(workOrders.state, 'cancelled')))
     .orderBy(asc(workOrders.plannedDate));
@@ -107,12 +124,19 @@ export async function getAgreement(ctx: AppContext, user: SessionUser, id: strin
 /* ------------------------------------------------------------------ writing */
 
 async function checkUnits(tx: Tx, siteId: string, unitIds: string[]) {
-  const found = await tx.select({ id: units.id, siteId: units.siteId }).from(units).where(inArray(units.id, [...new Set(unitIds)]));
+  const found = await tx
+    .select({ id: units.id, siteId: units.siteId })
+    .from(units)
+    .where(inArray(units.id, [...new Set(unitIds)]));
   const elsewhere = unitIds.filter((id) => found.find((u) => u.id === id)?.siteId !== siteId);
-  if (elsewhere.length) throw unprocessable('Every covered unit must be at the agreement\'s site.', { unitIds: elsewhere });
+  if (elsewhere.length) throw unprocessable("Every covered unit must be at the agreement's site.", { unitIds: elsewhere });
 }
 
-export async function createAgreement(ctx: AppContext, user: SessionUser, input: z.infer<typeof agreementInputSchema>): Promise<AgreementDetail> {
+export async function createAgreement(
+  ctx: AppContext,
+  user: SessionUser,
+  input: z.infer<typeof agreementInputSchema>,
+): Promise<AgreementDetail> {
   const id = await ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
@@ -136,13 +160,20 @@ export async function createAgreement(ctx: AppContext, user: SessionUser, input:
       })
       .returning({ id: agreements.id });
     await tx.insert(agreementUnits).values([...new Set(input.unitIds)].map((unitId) => ({ agreementId: a!.id, unitId })));
-    await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.created', entity: 'agreement', entityId: a!.id, details: {} });
+    await tx
+      .insert(auditEvents)
+      .values({ actorId: user.id, action: 'agreement.created', entity: 'agreement', entityId: a!.id, details: {} });
     return a!.id;
   });
   return getAgreement(ctx, user, id);
 }
 
-export async function patchAgreement(ctx: AppContext, user: SessionUser, id: string, patch: z.infer<typeof agreementPatchSchema>): Promise<AgreementDetail> {
+export async function patchAgreement(
+  ctx: AppContext,
+  user: SessionUser,
+  id: string,
+  patch: z.infer<typeof agreementPatchSchema>,
+): Promise<AgreementDetail> {
   await ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const [a] = await tx.select().from(agreements).where(eq(agreements.id, id)).limit(1);
@@ -172,7 +203,15 @@ export async function patchAgreement(ctx: AppContext, user: SessionUser, id: str
         updatedAt: ctx.clock.now(),
       })
       .where(eq(agreements.id, id));
-    await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.updated', entity: 'agreement', entityId: id, details: { fields: Object.keys(patch) } });
+    await tx
+      .insert(auditEvents)
+      .values({
+        actorId: user.id,
+        action: 'agreement.updated',
+        entity: 'agreement',
+        entityId: id,
+        details: { fields: Object.keys(patch) },
+      });
   });
   return getAgreement(ctx, user, id);
 }
@@ -213,7 +252,9 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
     } catch (e) {
       throw unprocessable(`The agreement's recurrence cannot be expanded: ${(e as Error).message}`);
     }
-    dropped = expanded.dropped.filter((d) => d.originalDate >= today).map((d) => ({ ruleDate: d.originalDate, reason: `Not planned: ${d.reason}` }));
+    dropped = expanded.dropped
+      .filter((d) => d.originalDate >= today)
+      .map((d) => ({ ruleDate: d.originalDate, reason: `Not planned: ${d.reason}` }));
     const future = expanded.visits.filter((v) => v.date >= today);
     if (future.length) {
       const last = future[future.length - 1]!.date;
@@ -261,9 +302,15 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
             }[v.movedBecause],
           );
         }
-        if (l.date !== v.date) reasons.push(`moved to a later week: the week of ${recordDate(v.date)} already had ${maxPerWeek} planned visits`);
+        if (l.date !== v.date)
+          reasons.push(`moved to a later week: the week of ${recordDate(v.date)} already had ${maxPerWeek} planned visits`);
         const text = reasons.join('; ');
-        return { ruleDate: v.originalDate, workingDate: v.date, plannedDate: l.date, moved: text ? text[0]!.toUpperCase() + text.slice(1) : null };
+        return {
+          ruleDate: v.originalDate,
+          workingDate: v.date,
+          plannedDate: l.date,
+          moved: text ? text[0]!.toUpperCase() + text.slice(1) : null,
+        };
       });
     }
   }
@@ -289,7 +336,9 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
     const direct = byPurpose.get(p.ruleDate);
     if (direct && !used.has(direct.id)) return direct;
     for (const d of [p.ruleDate, p.workingDate, p.plannedDate]) {
-      const hit = (byDate.get(d) ?? []).filter((e) => !used.has(e.id)).sort((x, y) => Number(x.state === 'cancelled') - Number(y.state === 'cancelled'))[0];
+      const hit = (byDate.get(d) ?? [])
+        .filter((e) => !used.has(e.id))
+        .sort((x, y) => Number(x.state === 'cancelled') - Number(y.state === 'cancelled'))[0];
       if (hit) return hit;
     }
     return undefined;
@@ -301,7 +350,8 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
     const e = find({ ...p, workingDate: _w });
     if (e) used.add(e.id);
     if (!e || e.state === 'cancelled') visits.push({ ...p, action: 'new', workOrderId: e?.id ?? null, state: e?.state ?? null });
-    else if (e.state !== 'unplaced') visits.push({ ...p, plannedDate: e.plannedDate ?? p.plannedDate, moved: null, action: 'locked', workOrderId: e.id, state: e.state });
+    else if (e.state !== 'unplaced')
+      visits.push({ ...p, plannedDate: e.plannedDate ?? p.plannedDate, moved: null, action: 'locked', workOrderId: e.id, state: e.state });
     else {
       visits.push({ ...p, action: e.plannedDate === p.plannedDate ? 'keep' : 'move', workOrderId: e.id, state: e.state });
       if (e.purpose !== purposeOf(p.ruleDate)) adopt.push({ id: e.id, ruleDate: p.ruleDate });
@@ -372,17 +422,31 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
       if (!v.workOrderId) continue;
       // Each update re-checks the state it was planned from, so a visit booked meanwhile is left alone.
       if (v.action === 'new') {
-        await tx.update(workOrders).set({ ...values(v), state: 'unplaced' }).where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'cancelled')));
+        await tx
+          .update(workOrders)
+          .set({ ...values(v), state: 'unplaced' })
+          .where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'cancelled')));
       } else if (v.action === 'move') {
-        await tx.update(workOrders).set(values(v)).where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
+        await tx
+          .update(workOrders)
+          .set(values(v))
+          .where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
       } else if (v.action === 'cancel') {
-        await tx.update(workOrders).set({ state: 'cancelled', updatedAt: now }).where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
+        await tx
+          .update(workOrders)
+          .set({ state: 'cancelled', updatedAt: now })
+          .where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
       }
     }
     for (const x of adopt) {
-      await tx.update(workOrders).set({ purpose: purposeOf(x.ruleDate) }).where(and(eq(workOrders.id, x.id), eq(workOrders.state, 'unplaced')));
+      await tx
+        .update(workOrders)
+        .set({ purpose: purposeOf(x.ruleDate) })
+        .where(and(eq(workOrders.id, x.id), eq(workOrders.state, 'unplaced')));
     }
-    await tx.insert(auditEvents).values({ actorId: user.id, action: 'agreement.plan_applied', entity: 'agreement', entityId: id, details: counts });
+    await tx
+      .insert(auditEvents)
+      .values({ actorId: user.id, action: 'agreement.plan_applied', entity: 'agreement', entityId: id, details: counts });
     return { agreementId: id, visits, counts, dropped, applied: true as const };
   });
 }
@@ -397,17 +461,31 @@ const zero = (): PmCounts => ({ due: 0, onTime: 0, late: 0, missed: 0, open: 0 }
  * missed (not closed and past the grace days), open (not closed, still within them). Plus the
  * active agreements ending within RENEWAL_DAYS.
  */
-export async function pmCompletion(ctx: AppContext, user: SessionUser, q: { branchId?: string | undefined; from?: string | undefined }): Promise<PmCompletionResponse> {
+export async function pmCompletion(
+  ctx: AppContext,
+  user: SessionUser,
+  q: { branchId?: string | undefined; from?: string | undefined },
+): Promise<PmCompletionResponse> {
   const now = ctx.clock.now();
   const from = q.from ?? addDays(zonedDate(now, 'UTC'), -365);
   const scope = branchFilter(user, q.branchId, branches.id);
-  const branchRows = await ctx.db.select({ id: branches.id, name: branches.name, timeZone: branches.timeZone }).from(branches).where(scope).orderBy(asc(branches.name));
+  const branchRows = await ctx.db
+    .select({ id: branches.id, name: branches.name, timeZone: branches.timeZone })
+    .from(branches)
+    .where(scope)
+    .orderBy(asc(branches.name));
   const out: PmCompletionResponse = { from, graceDays: PM_GRACE_DAYS, branches: [], agreements: [], renewals: [] };
   if (branchRows.length === 0) return out;
   const branchIds = branchRows.map((b) => b.id);
   const [wos, ags] = await Promise.all([
     ctx.db
-      .select({ agreementId: workOrders.agreementId, branchId: workOrders.branchId, plannedDate: workOrders.plannedDate, state: workOrders.state, closedAt: workOrders.closedAt })
+      .select({
+        agreementId: workOrders.agreementId,
+        branchId: workOrders.branchId,
+        plannedDate: workOrders.plannedDate,
+        state: workOrders.state,
+        closedAt: workOrders.closedAt,
+      })
       .from(workOrders)
       .where(
         and(
@@ -435,7 +513,10 @@ export async function pmCompletion(ctx: AppContext, user: SessionUser, q: { bran
     const graceEnd = addDays(w.plannedDate, PM_GRACE_DAYS);
     const closed = w.state === 'closed' && w.closedAt ? zonedDate(w.closedAt, tzOf.get(w.branchId)!) : null;
     const kind: keyof PmCounts = closed ? (closed <= graceEnd ? 'onTime' : 'late') : today > graceEnd ? 'missed' : 'open';
-    for (const c of [byBranch.get(w.branchId)!, w.agreementId ? (byAgreement.get(w.agreementId) ?? byAgreement.set(w.agreementId, zero()).get(w.agreementId)!) : null]) {
+    for (const c of [
+      byBranch.get(w.branchId)!,
+      w.agreementId ? (byAgreement.get(w.agreementId) ?? byAgreement.set(w.agreementId, zero()).get(w.agreementId)!) : null,
+    ]) {
       if (!c) continue;
       c.due++;
       c[kind]++;
@@ -448,7 +529,16 @@ export async function pmCompletion(ctx: AppContext, user: SessionUser, q: { bran
     const today = todayOf.get(a.branchId)!;
     const daysLeft = daysFrom(today, a.termEnd);
     if (a.status === 'active' && daysLeft >= 0 && daysLeft <= RENEWAL_DAYS) {
-      out.renewals.push({ agreementId: a.id, branchId: a.branchId, name: a.name, siteName, customerName, termEnd: a.termEnd, daysLeft, priceCents: a.priceCents });
+      out.renewals.push({
+        agreementId: a.id,
+        branchId: a.branchId,
+        name: a.name,
+        siteName,
+        customerName,
+        termEnd: a.termEnd,
+        daysLeft,
+        priceCents: a.priceCents,
+      });
     }
   }
   out.renewals.sort((x, y) => x.daysLeft - y.daysLeft);

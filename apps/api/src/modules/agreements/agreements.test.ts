@@ -27,13 +27,19 @@ const quarterly = (siteId: string, unitIds: string[], over: Partial<AgreementInp
 });
 
 const pmRows = (agreementId: string) =>
-  t.ctx.db.select().from(workOrders).where(and(eq(workOrders.agreementId, agreementId), eq(workOrders.kind, 'planned_maintenance')));
+  t.ctx.db
+    .select()
+    .from(workOrders)
+    .where(and(eq(workOrders.agreementId, agreementId), eq(workOrders.kind, 'planned_maintenance')));
 
 beforeAll(async () => {
   t = await createTestApp({ now: NOW });
   f = await makeTwoBranches(t.ctx.db);
   // Thursday 15 April 2027 is a branch holiday.
-  await t.ctx.db.update(branches).set({ holidays: ['2027-04-15'] }).where(eq(branches.id, f.a.id));
+  await t.ctx.db
+    .update(branches)
+    .set({ holidays: ['2027-04-15'] })
+    .where(eq(branches.id, f.a.id));
   siteA = await makeSiteWithUnit(t.ctx.db, f.a.id);
 });
 afterAll(() => t.close());
@@ -49,7 +55,11 @@ describe('agreements: roles, routes and validation', () => {
 
     const created = await mgr.post('/api/agreements').send(quarterly(siteA.site.id, [siteA.unit.id]));
     expect(created.status).toBe(201);
-    expect(created.body.agreement).toMatchObject({ rrule: 'FREQ=YEARLY;BYMONTH=1,4,7,10;BYMONTHDAY=15', branchId: f.a.id, units: [{ id: siteA.unit.id }] });
+    expect(created.body.agreement).toMatchObject({
+      rrule: 'FREQ=YEARLY;BYMONTH=1,4,7,10;BYMONTHDAY=15',
+      branchId: f.a.id,
+      units: [{ id: siteA.unit.id }],
+    });
     expect(created.body.agreement.recurrence).toMatchObject({ preset: 'quarterly', startMonth: 1, dayOfMonth: 15 });
     const mgrB = await agent(f.inB.manager);
     expect((await mgrB.get(`/api/agreements/${created.body.agreement.id}`)).status).toBe(404);
@@ -65,7 +75,9 @@ describe('agreements: roles, routes and validation', () => {
     const backwards = await mgr.post('/api/agreements').send(quarterly(siteA.site.id, [siteA.unit.id], { termEnd: '2026-12-31' }));
     expect(backwards.status).toBe(400);
     expect(backwards.body.error.details.fields[0].path).toBe('termEnd');
-    const day31 = await mgr.post('/api/agreements').send(quarterly(siteA.site.id, [siteA.unit.id], { recurrence: { preset: 'monthly', dayOfMonth: 31 } }));
+    const day31 = await mgr
+      .post('/api/agreements')
+      .send(quarterly(siteA.site.id, [siteA.unit.id], { recurrence: { preset: 'monthly', dayOfMonth: 31 } }));
     expect(day31.status).toBe(400);
   });
 });
@@ -77,7 +89,12 @@ describe('visit plan', () => {
     const preview = await mgr.post(`/api/agreements/${a.id}/plan`);
     expect(preview.status).toBe(200);
     expect(preview.body.counts).toEqual({ new: 4, keep: 0, move: 0, locked: 0, cancel: 0 });
-    expect(preview.body.visits.map((v: { plannedDate: string }) => v.plannedDate)).toEqual(['2027-01-15', '2027-04-16', '2027-07-15', '2027-10-15']);
+    expect(preview.body.visits.map((v: { plannedDate: string }) => v.plannedDate)).toEqual([
+      '2027-01-15',
+      '2027-04-16',
+      '2027-07-15',
+      '2027-10-15',
+    ]);
     const april = preview.body.visits[1];
     expect(april).toMatchObject({ ruleDate: '2027-04-15', moved: 'Moved off the holiday 15 Apr 2027' });
     expect(await pmRows(a.id)).toHaveLength(0);
@@ -105,7 +122,10 @@ describe('visit plan', () => {
     const rows = await pmRows(a.id);
     const jan = rows.find((r) => r.plannedDate === '2027-01-15')!;
     const jul = rows.find((r) => r.plannedDate === '2027-07-15')!;
-    await t.ctx.db.update(workOrders).set({ state: 'closed', closedAt: new Date('2027-01-15T20:00:00Z') }).where(eq(workOrders.id, jan.id));
+    await t.ctx.db
+      .update(workOrders)
+      .set({ state: 'closed', closedAt: new Date('2027-01-15T20:00:00Z') })
+      .where(eq(workOrders.id, jan.id));
     await t.ctx.db.update(workOrders).set({ state: 'booked' }).where(eq(workOrders.id, jul.id));
     const [janBefore] = await t.ctx.db.select().from(workOrders).where(eq(workOrders.id, jan.id));
 
@@ -124,7 +144,15 @@ describe('visit plan', () => {
     const shorter = await mgr.post(`/api/agreements/${a.id}/plan/apply`);
     expect(shorter.body.counts).toMatchObject({ cancel: 5, locked: 2, new: 0 });
     live = (await pmRows(a.id)).filter((r) => r.state !== 'cancelled');
-    expect(live.map((r) => r.plannedDate).sort()).toEqual(['2027-01-15', '2027-02-15', '2027-03-15', '2027-04-16', '2027-05-17', '2027-06-15', '2027-07-15']);
+    expect(live.map((r) => r.plannedDate).sort()).toEqual([
+      '2027-01-15',
+      '2027-02-15',
+      '2027-03-15',
+      '2027-04-16',
+      '2027-05-17',
+      '2027-06-15',
+      '2027-07-15',
+    ]);
     expect(live.find((r) => r.id === jul.id)!.state).toBe('booked');
 
     // Back to a full year: the cancelled months come back as the same work orders, not new ones.
@@ -137,15 +165,34 @@ describe('visit plan', () => {
   it('recognises visits written before (no rule date recorded) by their working day, and never duplicates them', async () => {
     const mgr = await agent(f.inA.manager);
     const site = await makeSiteWithUnit(t.ctx.db, f.a.id);
-    const a = (await mgr.post('/api/agreements').send(quarterly(site.site.id, [site.unit.id], { name: 'Older visits', recurrence: { preset: 'quarterly', startMonth: 1, dayOfMonth: 16 } }))).body.agreement;
+    const a = (
+      await mgr
+        .post('/api/agreements')
+        .send(
+          quarterly(site.site.id, [site.unit.id], {
+            name: 'Older visits',
+            recurrence: { preset: 'quarterly', startMonth: 1, dayOfMonth: 16 },
+          }),
+        )
+    ).body.agreement;
     // 16 Jan 2027 is a Saturday: the visit was planned on Monday the 18th and is booked; April's (a Friday) is unplaced.
     const pm = (plannedDate: string, state: 'booked' | 'unplaced') =>
-      makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.site.id, kind: 'planned_maintenance', agreementId: a.id, plannedDate, state });
+      makeWorkOrder(t.ctx.db, {
+        branchId: f.a.id,
+        siteId: site.site.id,
+        kind: 'planned_maintenance',
+        agreementId: a.id,
+        plannedDate,
+        state,
+      });
     const jan = await pm('2027-01-18', 'booked');
     const apr = await pm('2027-04-16', 'unplaced');
     const preview = await mgr.post(`/api/agreements/${a.id}/plan`);
     expect(preview.body.counts).toEqual({ new: 2, keep: 1, move: 0, locked: 1, cancel: 0 });
-    expect(preview.body.visits.find((v: { workOrderId: string }) => v.workOrderId === jan.id)).toMatchObject({ action: 'locked', ruleDate: '2027-01-16' });
+    expect(preview.body.visits.find((v: { workOrderId: string }) => v.workOrderId === jan.id)).toMatchObject({
+      action: 'locked',
+      ruleDate: '2027-01-16',
+    });
     await mgr.post(`/api/agreements/${a.id}/plan/apply`);
     const rows = await pmRows(a.id);
     expect(rows).toHaveLength(4);
@@ -160,13 +207,20 @@ describe('visit plan', () => {
     const ids: string[] = [];
     for (let i = 0; i < 6; i++) {
       const s = await makeSiteWithUnit(t.ctx.db, f.b.id);
-      const a = (await mgrB.post('/api/agreements').send(quarterly(s.site.id, [s.unit.id], { name: `Levelling ${i}`, termEnd: '2027-03-31' }))).body.agreement;
+      const a = (
+        await mgrB.post('/api/agreements').send(quarterly(s.site.id, [s.unit.id], { name: `Levelling ${i}`, termEnd: '2027-03-31' }))
+      ).body.agreement;
       ids.push(a.id);
     }
     for (const id of ids.slice(0, 5)) await mgrB.post(`/api/agreements/${id}/plan/apply`);
     const sixth = await mgrB.post(`/api/agreements/${ids[5]}/plan`);
     expect(sixth.body.visits).toEqual([
-      expect.objectContaining({ ruleDate: '2027-01-15', plannedDate: '2027-01-22', action: 'new', moved: expect.stringContaining('later week') }),
+      expect.objectContaining({
+        ruleDate: '2027-01-15',
+        plannedDate: '2027-01-22',
+        action: 'new',
+        moved: expect.stringContaining('later week'),
+      }),
     ]);
     await mgrB.post(`/api/agreements/${ids[5]}/plan/apply`);
     const all = await t.ctx.db
@@ -183,10 +237,19 @@ describe('PM completion and renewals', () => {
     const mgr = await agent(f.inA.manager);
     const site = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const a = (
-      await mgr.post('/api/agreements').send(quarterly(site.site.id, [site.unit.id], { name: 'Ending soon', termStart: '2026-01-01', termEnd: '2027-02-15' }))
+      await mgr
+        .post('/api/agreements')
+        .send(quarterly(site.site.id, [site.unit.id], { name: 'Ending soon', termStart: '2026-01-01', termEnd: '2027-02-15' }))
     ).body.agreement;
     const pm = (plannedDate: string, over: Omit<Partial<typeof workOrders.$inferInsert>, 'unitId'> = {}) =>
-      makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.site.id, kind: 'planned_maintenance', agreementId: a.id, plannedDate, ...over });
+      makeWorkOrder(t.ctx.db, {
+        branchId: f.a.id,
+        siteId: site.site.id,
+        kind: 'planned_maintenance',
+        agreementId: a.id,
+        plannedDate,
+        ...over,
+      });
     await pm('2026-12-01', { state: 'closed', closedAt: new Date('2026-12-08T20:00:00Z') }); // 7 days after: on time
     await pm('2026-11-02', { state: 'closed', closedAt: new Date('2026-11-20T20:00:00Z') }); // late
     await pm('2026-10-01'); // never done: missed
@@ -197,7 +260,13 @@ describe('PM completion and renewals', () => {
     const res = await mgr.get('/api/agreements/pm-completion');
     expect(res.status).toBe(200);
     expect(res.body.graceDays).toBe(7);
-    expect(res.body.agreements.find((x: { agreementId: string }) => x.agreementId === a.id)).toMatchObject({ due: 4, onTime: 1, late: 1, missed: 1, open: 1 });
+    expect(res.body.agreements.find((x: { agreementId: string }) => x.agreementId === a.id)).toMatchObject({
+      due: 4,
+      onTime: 1,
+      late: 1,
+      missed: 1,
+      open: 1,
+    });
     expect(res.body.branches).toEqual([expect.objectContaining({ branchId: f.a.id, due: 4, onTime: 1, late: 1, missed: 1, open: 1 })]);
     expect(res.body.renewals).toEqual([expect.objectContaining({ agreementId: a.id, termEnd: '2027-02-15', daysLeft: 42 })]);
 
@@ -210,14 +279,26 @@ describe('PM completion and renewals', () => {
 describe('visit plan keeps what was contracted', () => {
   it('a weekly Saturday-and-Sunday rule keeps every visit (next free working day), and says when the term has no room', async () => {
     const mgr = await agent(f.inA.manager);
-    const a = (await mgr.post('/api/agreements').send(quarterly(siteA.site.id, [siteA.unit.id], { name: 'Weekend rule', termStart: '2027-01-04', termEnd: '2027-01-31' })))
-      .body.agreement;
+    const a = (
+      await mgr
+        .post('/api/agreements')
+        .send(quarterly(siteA.site.id, [siteA.unit.id], { name: 'Weekend rule', termStart: '2027-01-04', termEnd: '2027-01-31' }))
+    ).body.agreement;
     // A rule from an import: every Saturday and Sunday (Jan 9/10, 16/17, 23/24, 30/31 = 8 contracted visits).
     await t.ctx.db.update(agreements).set({ rrule: 'FREQ=WEEKLY;BYDAY=SA,SU' }).where(eq(agreements.id, a.id));
     const preview = await mgr.post(`/api/agreements/${a.id}/plan`);
     expect(preview.status).toBe(200);
     const rows = preview.body.visits as { ruleDate: string; plannedDate: string; moved: string | null }[];
-    expect(rows.map((v) => v.ruleDate).sort()).toEqual(['2027-01-09', '2027-01-10', '2027-01-16', '2027-01-17', '2027-01-23', '2027-01-24', '2027-01-30', '2027-01-31']);
+    expect(rows.map((v) => v.ruleDate).sort()).toEqual([
+      '2027-01-09',
+      '2027-01-10',
+      '2027-01-16',
+      '2027-01-17',
+      '2027-01-23',
+      '2027-01-24',
+      '2027-01-30',
+      '2027-01-31',
+    ]);
     expect(new Set(rows.map((v) => v.plannedDate)).size).toBe(8); // eight different working days
     expect(preview.body.dropped).toEqual([]);
     // Sat 9 → Mon 11; Sun 10 → Mon 11 is taken → Tue 12.

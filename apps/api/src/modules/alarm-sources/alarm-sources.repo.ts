@@ -9,7 +9,11 @@ export type DeliveryRecord = typeof alarmDeliveries.$inferSelect;
 export type BranchRecord = typeof branches.$inferSelect;
 
 export async function findSite(db: Q, siteId: string) {
-  const [s] = await db.select({ id: sites.id, branchId: sites.branchId, name: sites.name, archivedAt: sites.archivedAt }).from(sites).where(eq(sites.id, siteId)).limit(1);
+  const [s] = await db
+    .select({ id: sites.id, branchId: sites.branchId, name: sites.name, archivedAt: sites.archivedAt })
+    .from(sites)
+    .where(eq(sites.id, siteId))
+    .limit(1);
   return s;
 }
 
@@ -135,8 +139,14 @@ export async function findUnit(db: Q, unitId: string) {
   return u;
 }
 
-export async function insertAlarm(db: Q, v: { branchId: string; unitId: string; circuit: number | null; code: string; description: string | null; raisedAt: Date }): Promise<string> {
-  const [a] = await db.insert(alarms).values({ ...v, source: 'controller' }).returning({ id: alarms.id });
+export async function insertAlarm(
+  db: Q,
+  v: { branchId: string; unitId: string; circuit: number | null; code: string; description: string | null; raisedAt: Date },
+): Promise<string> {
+  const [a] = await db
+    .insert(alarms)
+    .values({ ...v, source: 'controller' })
+    .returning({ id: alarms.id });
   return a!.id;
 }
 

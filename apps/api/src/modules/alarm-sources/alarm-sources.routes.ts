@@ -19,11 +19,28 @@ const managers = requireRole('branch_manager', 'owner');
 export function alarmSourcesRoutes(ctx: AppContext): Router {
   const r = Router();
   r.use(managers);
-  r.get('/', endpoint({ query: alarmSourceListQuerySchema }, ({ user, query }) => listSources(ctx, user, query.branchId)));
-  r.post('/', endpoint({ body: alarmSourceCreateSchema, status: 201 }, ({ user, body }) => createSource(ctx, user, body)));
-  r.patch('/:id', endpoint({ params: idParams, body: alarmSourcePatchSchema }, async ({ user, params, body }) => ({ source: await patchSource(ctx, user, params.id, body) })));
-  r.post('/:id/rotate', endpoint({ params: idParams }, ({ user, params }) => rotateSource(ctx, user, params.id)));
-  r.post('/deliveries/:id/map', endpoint({ params: idParams, body: mapDeliverySchema }, ({ user, params, body }) => mapDelivery(ctx, user, params.id, body.unitId)));
+  r.get(
+    '/',
+    endpoint({ query: alarmSourceListQuerySchema }, ({ user, query }) => listSources(ctx, user, query.branchId)),
+  );
+  r.post(
+    '/',
+    endpoint({ body: alarmSourceCreateSchema, status: 201 }, ({ user, body }) => createSource(ctx, user, body)),
+  );
+  r.patch(
+    '/:id',
+    endpoint({ params: idParams, body: alarmSourcePatchSchema }, async ({ user, params, body }) => ({
+      source: await patchSource(ctx, user, params.id, body),
+    })),
+  );
+  r.post(
+    '/:id/rotate',
+    endpoint({ params: idParams }, ({ user, params }) => rotateSource(ctx, user, params.id)),
+  );
+  r.post(
+    '/deliveries/:id/map',
+    endpoint({ params: idParams, body: mapDeliverySchema }, ({ user, params, body }) => mapDelivery(ctx, user, params.id, body.unitId)),
+  );
   return r;
 }
 

@@ -42,7 +42,11 @@ async function ownSource(ctx: AppContext, user: SessionUser, id: string): Promis
   return s;
 }
 
-export async function createSource(ctx: AppContext, user: SessionUser, input: AlarmSourceCreate & { name: string }): Promise<AlarmSourceSecret> {
+export async function createSource(
+  ctx: AppContext,
+  user: SessionUser,
+  input: AlarmSourceCreate & { name: string },
+): Promise<AlarmSourceSecret> {
   const site = await repo.findSite(ctx.db, input.siteId);
   if (!site) throw notFound('site');
   assertBranch(user, site.branchId, 'site');
@@ -65,7 +69,12 @@ export async function rotateSource(ctx: AppContext, user: SessionUser, id: strin
   const now = ctx.clock.now();
   const secret = newSourceSecret();
   const previousValidUntil = new Date(now.getTime() + ALARM_PREVIOUS_SECRET_HOURS * HOUR_MS);
-  await repo.updateSource(ctx.db, s.id, { secretBox: sealSecret(ctx.secret, secret), previousSecretBox: s.secretBox, previousValidUntil, rotatedAt: now });
+  await repo.updateSource(ctx.db, s.id, {
+    secretBox: sealSecret(ctx.secret, secret),
+    previousSecretBox: s.secretBox,
+    previousValidUntil,
+    rotatedAt: now,
+  });
   return { id: s.id, secret, previousValidUntil: previousValidUntil.toISOString() };
 }
 
@@ -80,8 +89,15 @@ export async function patchSource(ctx: AppContext, user: SessionUser, id: string
 }
 
 /** The sources in scope with their health: last delivery, deliveries today, recent rejections, unmatched deliveries. */
-export async function listSources(ctx: AppContext, user: SessionUser, branchId: string | undefined, onlyId?: string): Promise<AlarmSourceList> {
-  const rows = (await repo.listSources(ctx.db, branchFilter(user, branchId, alarmSources.branchId))).filter((r) => !onlyId || r.source.id === onlyId);
+export async function listSources(
+  ctx: AppContext,
+  user: SessionUser,
+  branchId: string | undefined,
+  onlyId?: string,
+): Promise<AlarmSourceList> {
+  const rows = (await repo.listSources(ctx.db, branchFilter(user, branchId, alarmSources.branchId))).filter(
+    (r) => !onlyId || r.source.id === onlyId,
+  );
   const now = ctx.clock.now();
   // "Today" is the branch's local day: group the sources by time zone.
   const byZone = new Map<string, string[]>();
@@ -116,18 +132,37 @@ export async function listSources(ctx: AppContext, user: SessionUser, branchId: 
 }
 
 /** Maps an unmatched delivery to a unit of the source's site: the alarm is stored then, and the repeat-alarm rule runs. */
-export async function mapDelivery(ctx: AppContext, user: SessionUser, deliveryId: string, unitId: string): Promise<{ delivery: AlarmDeliveryRow; alarmId: string }> {
+export async function mapDelivery(
+  ctx: AppContext,
+  user: SessionUser,
+  deliveryId: string,
+  unitId: string,
+): Promise<{ delivery: AlarmDeliveryRow; alarmId: string }> {
   const found = await repo.findDelivery(ctx.db, deliveryId);
   if (!found) throw notFound('delivery');
   assertBranch(user, found.delivery.branchId, 'delivery');
   const d = found.delivery;
-  if (d.status !== 'unmatched') throw conflict('not_unmatched', d.status === 'mapped' ? 'This delivery is already mapped to a unit.' : 'Only a delivery whose unit tag matched no unit can be mapped.');
+  if (d.status !== 'unmatched')
+    throw conflict(
+      'not_unmatched',
+      d.status === 'mapped'
+        ? 'This delivery is already mapped to a unit.'
+        : 'Only a delivery whose unit tag matched no unit can be mapped.',
+    );
   const unit = await repo.findUnit(ctx.db, unitId);
   if (!unit || unit.branchId !== d.branchId) throw notFound('unit');
-  if (unit.siteId !== found.siteId) throw unprocessable(`Unit ${unit.tag} is at ${unit.siteName}, not at the alarm source's site; choose a unit of that site.`);
+  if (unit.siteId !== found.siteId)
+    throw unprocessable(`Unit ${unit.tag} is at ${unit.siteName}, not at the alarm source's site; choose a unit of that site.`);
   const alarmId = await ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
-    const id = await repo.insertAlarm(tx, { branchId: d.branchId, unitId: unit.id, circuit: d.circuit, code: d.code!, description: d.message, raisedAt: d.raisedAt! });
+    const id = await repo.insertAlarm(tx, {
+      branchId: d.branchId,
+      unitId: unit.id,
+      circuit: d.circuit,
+      code: d.code!,
+      description: d.message,
+      raisedAt: d.raisedAt!,
+    });
     if (!(await repo.markMapped(tx, d.id, id))) throw conflict('not_unmatched', 'This delivery was mapped meanwhile.');
     return id;
   });
@@ -146,19 +181,27 @@ export interface IngestRequest {
 }
 
 export type IngestAnswer =
-  | { status: 202; body: { accepted: true; alarmId: string; repeatAlarm: boolean } }
-  | { status: 200; body: { duplicate: true } };
+  { status: 202; body: { accepted: true; alarmId: string; repeatAlarm: boolean } } | { status: 200; body: { duplicate: true } };
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 const refusals: Record<AlarmRejectionReason, { status: number; message: string }> = {
-  missing_signature: { status: 401, message: 'Sign the request: the X-Coilpath-Timestamp (Unix seconds) and X-Coilpath-Signature (sha256=<hex>) headers are required.' },
-  bad_signature: { status: 401, message: "The signature does not match: sign '<timestamp>.<raw body>' with HMAC-SHA256 and the source's secret." },
-  timestamp_skew: { status: 401, message: `The timestamp is more than ${ALARM_MAX_SKEW_SECONDS / 60} minutes from Coilpath's clock; check the controller's clock.` },
+  missing_signature: {
+    status: 401,
+    message: 'Sign the request: the X-Coilpath-Timestamp (Unix seconds) and X-Coilpath-Signature (sha256=<hex>) headers are required.',
+  },
+  bad_signature: {
+    status: 401,
+    message: "The signature does not match: sign '<timestamp>.<raw body>' with HMAC-SHA256 and the source's secret.",
+  },
+  timestamp_skew: {
+    status: 401,
+    message: `The timestamp is more than ${ALARM_MAX_SKEW_SECONDS / 60} minutes from Coilpath's clock; check the controller's clock.`,
+  },
   source_disabled: { status: 401, message: 'This alarm source is disabled.' },
   malformed_body: { status: 400, message: 'The request body is not valid JSON.' },
   invalid_body: { status: 400, message: 'The alarm lacks a field or has a wrong one.' },
-  raised_in_future: { status: 422, message: 'The alarm is dated in the future; check the controller\'s clock.' },
+  raised_in_future: { status: 422, message: "The alarm is dated in the future; check the controller's clock." },
 };
 
 /**
@@ -181,8 +224,17 @@ export async function ingestAlarm(ctx: AppContext, req: IngestRequest): Promise<
   if (!given || !/^\d{1,12}$/.test(ts)) return refuse('missing_signature');
   if (Math.abs(now.getTime() - Number(ts) * 1000) > ALARM_MAX_SKEW_SECONDS * 1000) return refuse('timestamp_skew');
   const secrets = [openSecret(ctx.secret, source.secretBox)];
-  if (source.previousSecretBox && source.previousValidUntil && now.getTime() <= source.previousValidUntil.getTime()) secrets.push(openSecret(ctx.secret, source.previousSecretBox));
-  if (!signatureMatches(secrets.filter((s): s is string => s !== null), ts, req.rawBody, given)) return refuse('bad_signature');
+  if (source.previousSecretBox && source.previousValidUntil && now.getTime() <= source.previousValidUntil.getTime())
+    secrets.push(openSecret(ctx.secret, source.previousSecretBox));
+  if (
+    !signatureMatches(
+      secrets.filter((s): s is string => s !== null),
+      ts,
+      req.rawBody,
+      given,
+    )
+  )
+    return refuse('bad_signature');
 
   let json: unknown;
   try {
@@ -195,7 +247,8 @@ export async function ingestAlarm(ctx: AppContext, req: IngestRequest): Promise<
     const fields = parsed.error.issues.map((i) => ({ path: i.path.join('.') || '(body)', message: i.message }));
     return refuse('invalid_body', { fields });
   }
-  if (badText(parsed.data)) return refuse('invalid_body', { fields: [{ path: '(body)', message: 'Text may not contain U+0000 or unpaired surrogates.' }] });
+  if (badText(parsed.data))
+    return refuse('invalid_body', { fields: [{ path: '(body)', message: 'Text may not contain U+0000 or unpaired surrogates.' }] });
   const a = parsed.data;
   const raisedAt = new Date(a.raisedAt);
   if (raisedAt.getTime() > now.getTime() + FUTURE_SLACK_MS) return refuse('raised_in_future');
@@ -218,7 +271,14 @@ export async function ingestAlarm(ctx: AppContext, req: IngestRequest): Promise<
     });
     if (!deliveryRowId) return { duplicate: true as const };
     if (!unit) return { duplicate: false as const, alarmId: null, deliveryRowId };
-    const alarmId = await repo.insertAlarm(tx, { branchId: source.branchId, unitId: unit.id, circuit: a.circuit ?? null, code: a.code, description: a.message ?? null, raisedAt });
+    const alarmId = await repo.insertAlarm(tx, {
+      branchId: source.branchId,
+      unitId: unit.id,
+      circuit: a.circuit ?? null,
+      code: a.code,
+      description: a.message ?? null,
+      raisedAt,
+    });
     await repo.linkDeliveryAlarm(tx, deliveryRowId, alarmId);
     return { duplicate: false as const, alarmId, deliveryRowId };
   });
@@ -262,7 +322,9 @@ export async function afterAlarm(ctx: AppContext, unitId: string, raisedAt: Date
     const managers = await repo.branchManagers(ctx.db, branch.id);
     const subject = `Repeat alarm: ${unit.tag} at ${unit.siteName}, ${g.code} ${g.count} times in ${branch.repeatAlarmDays} days`;
     const message = composeMail(subject, [
-      mail.p(`Unit ${unit.tag} at ${unit.siteName} has raised alarm ${g.code} ${g.count} times in the last ${branch.repeatAlarmDays} days — the branch's rule is ${branch.repeatAlarmCount} or more. It is on the Watchlist.`),
+      mail.p(
+        `Unit ${unit.tag} at ${unit.siteName} has raised alarm ${g.code} ${g.count} times in the last ${branch.repeatAlarmDays} days — the branch's rule is ${branch.repeatAlarmCount} or more. It is on the Watchlist.`,
+      ),
       mail.facts([
         ['Unit', unit.tag],
         ['Site', unit.siteName],
@@ -272,9 +334,11 @@ export async function afterAlarm(ctx: AppContext, unitId: string, raisedAt: Date
         ['Last', mailTime(new Date(g.last), branch.timeZone)],
         ...(g.circuits.length ? ([['Circuits reported', g.circuits.join(', ')]] as [string, string][]) : []),
       ]),
-      ...(g.circuitsDiffer ? [mail.p('The controller reported more than one circuit: check which circuit is at fault before replacing parts.')] : []),
+      ...(g.circuitsDiffer
+        ? [mail.p('The controller reported more than one circuit: check which circuit is at fault before replacing parts.')]
+        : []),
       mail.link(`${ctx.config.publicUrl}/watchlist`, 'Open the Watchlist'),
-      mail.p('Sent automatically when a controller\'s alarm makes a unit a repeat-alarm unit; at most one message per unit per day.', true),
+      mail.p("Sent automatically when a controller's alarm makes a unit a repeat-alarm unit; at most one message per unit per day.", true),
     ]);
     for (const m of managers) await ctx.mailer.send({ to: m.email, ...message, headers: { ...autoGeneratedHeaders } });
   } catch (err) {

@@ -30,7 +30,15 @@ afterAll(() => t.close());
 
 const nowSec = () => String(Math.floor(nowMs / 1000));
 function body(over: Record<string, unknown> = {}) {
-  return JSON.stringify({ deliveryId: `d-${++seq}`, unitTag: 'RTU-7', code: 'LP1', circuit: 1, raisedAt: new Date(nowMs - 60_000).toISOString(), message: 'Low suction pressure', ...over });
+  return JSON.stringify({
+    deliveryId: `d-${++seq}`,
+    unitTag: 'RTU-7',
+    code: 'LP1',
+    circuit: 1,
+    raisedAt: new Date(nowMs - 60_000).toISOString(),
+    message: 'Low suction pressure',
+    ...over,
+  });
 }
 function post(sourceId: string, raw: string, opts: { secret?: string; ts?: string; sig?: string | null } = {}) {
   const ts = opts.ts ?? nowSec();
@@ -57,8 +65,11 @@ describe('the signing recipe', () => {
     );
     // The README's example, computed independently with OpenSSL 3 (2026-12-05):
     //   printf '%s.%s' "$TS" "$BODY" | openssl dgst -sha256 -hmac 'Jefe'
-    const body = '{"deliveryId":"bms-2026-000123","unitTag":"RTU-3","code":"LP1","circuit":1,"raisedAt":"2026-12-15T14:58:00Z","message":"Low suction pressure"}';
-    expect(signatureHeader('Jefe', '1797346680', Buffer.from(body))).toBe('sha256=84fe9e17e91a54331305a9fc1289df9cde76badfd3f3f3223768a781cb49c836');
+    const body =
+      '{"deliveryId":"bms-2026-000123","unitTag":"RTU-3","code":"LP1","circuit":1,"raisedAt":"2026-12-15T14:58:00Z","message":"Low suction pressure"}';
+    expect(signatureHeader('Jefe', '1797346680', Buffer.from(body))).toBe(
+      'sha256=84fe9e17e91a54331305a9fc1289df9cde76badfd3f3f3223768a781cb49c836',
+    );
   });
 
   it('the ingest route is listed as machine-to-machine', () => {
@@ -118,7 +129,10 @@ describe('POST /api/ingest/alarms/:sourceId', () => {
     const [a] = await t.ctx.db.select().from(alarms).where(eq(alarms.id, res.body.alarmId));
     expect(a).toMatchObject({ source: 'controller', code: 'LP1', circuit: 1, unitId: siteA.unit.id, branchId: f.a.id });
     const list = await (await agent(f.inA.manager)).get('/api/alarm-sources');
-    expect(list.body.sources.find((x: { id: string }) => x.id === s.id)).toMatchObject({ lastDeliveryAt: new Date(nowMs).toISOString(), deliveriesToday: 1 });
+    expect(list.body.sources.find((x: { id: string }) => x.id === s.id)).toMatchObject({
+      lastDeliveryAt: new Date(nowMs).toISOString(),
+      deliveriesToday: 1,
+    });
   });
 
   it('needs no session and ignores a session cookie', async () => {
@@ -150,7 +164,11 @@ describe('POST /api/ingest/alarms/:sourceId', () => {
     const list = await (await agent(f.inA.manager)).get('/api/alarm-sources');
     const mine = list.body.sources.find((x: { id: string }) => x.id === s.id);
     expect(mine.rejectedToday).toBe(3);
-    expect(mine.recentRejected.map((d: { reason: string }) => d.reason).sort()).toEqual(['bad_signature', 'bad_signature', 'missing_signature']);
+    expect(mine.recentRejected.map((d: { reason: string }) => d.reason).sort()).toEqual([
+      'bad_signature',
+      'bad_signature',
+      'missing_signature',
+    ]);
     expect(mine.deliveriesToday).toBe(0);
   });
 
@@ -231,7 +249,9 @@ describe('POST /api/ingest/alarms/:sourceId', () => {
     const d = list.body.sources.find((x: { id: string }) => x.id === s.id).unmatched[0];
     expect(d).toMatchObject({ unitTag: 'AHU-99', code: 'FAN', status: 'unmatched', reason: 'unknown_unit' });
     // Another branch's manager cannot map it; a unit of another site is refused.
-    expect((await (await agent(f.inB.manager)).post(`/api/alarm-sources/deliveries/${d.id}/map`).send({ unitId: siteA.unit.id })).status).toBe(404);
+    expect(
+      (await (await agent(f.inB.manager)).post(`/api/alarm-sources/deliveries/${d.id}/map`).send({ unitId: siteA.unit.id })).status,
+    ).toBe(404);
     const other = await makeSiteWithUnit(t.ctx.db, f.a.id);
     expect((await mgr.post(`/api/alarm-sources/deliveries/${d.id}/map`).send({ unitId: other.unit.id })).status).toBe(422);
     const before = await alarmCount(siteA.unit.id);
@@ -258,7 +278,8 @@ describe('the repeat-alarm rule at once', () => {
     const u = await makeSiteWithUnit(t.ctx.db, f.a.id, { unit: { tag: 'RTU-R' } });
     const s = await newSource(u.site.id);
     const mails = () => t.mailer.sent.filter((m) => m.subject.includes('RTU-R'));
-    const send = (code: string, agoMs: number) => post(s.id, body({ unitTag: 'RTU-R', code, raisedAt: new Date(nowMs - agoMs).toISOString() }), { secret: s.secret });
+    const send = (code: string, agoMs: number) =>
+      post(s.id, body({ unitTag: 'RTU-R', code, raisedAt: new Date(nowMs - agoMs).toISOString() }), { secret: s.secret });
 
     const first = await send('HP2', 10 * 24 * HOUR);
     expect(first.body.repeatAlarm).toBe(false);

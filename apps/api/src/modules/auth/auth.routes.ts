@@ -1,7 +1,14 @@
 import { Router } from 'express';
 import { ipKeyGenerator } from 'express-rate-limit';
 import { publicLimiter } from '../../auth/public-limiter';
-import { forgotPasswordAnswer, forgotPasswordSchema, linkCheckSchema, ownerSetupSchema, resetPasswordSchema, signInSchema } from '@coilpath/contract';
+import {
+  forgotPasswordAnswer,
+  forgotPasswordSchema,
+  linkCheckSchema,
+  ownerSetupSchema,
+  resetPasswordSchema,
+  signInSchema,
+} from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { clearSessionCookie, setSessionCookie } from '../../auth/cookies';
 import { HttpError, unauthorized } from '../../lib/errors';
@@ -20,7 +27,10 @@ export function authRoutes(ctx: AppContext): Router {
     const refusal = guard.check(address, input.email);
     if (refusal) {
       res.setHeader('Retry-After', String(refusal.retryAfterSeconds));
-      throw new HttpError(429, 'too_many_attempts', signInRefusalMessage(refusal), { retryAfterSeconds: refusal.retryAfterSeconds, scope: refusal.scope });
+      throw new HttpError(429, 'too_many_attempts', signInRefusalMessage(refusal), {
+        retryAfterSeconds: refusal.retryAfterSeconds,
+        scope: refusal.scope,
+      });
     }
     try {
       const { user, token } = await signIn(ctx, input);

@@ -27,10 +27,16 @@ const keepEndedMs = 60 * 60 * 1000;
 export async function signOut(ctx: AppContext, user: SessionUser, session: { id: string | null; expiresAt: Date }): Promise<void> {
   const now = ctx.clock.now();
   if (!session.id) {
-    await ctx.db.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1` }).where(eq(users.id, user.id));
+    await ctx.db
+      .update(users)
+      .set({ sessionVersion: sql`${users.sessionVersion} + 1` })
+      .where(eq(users.id, user.id));
     return;
   }
-  await ctx.db.insert(endedSessions).values({ sessionId: session.id, userId: user.id, expiresAt: session.expiresAt, endedAt: now }).onConflictDoNothing();
+  await ctx.db
+    .insert(endedSessions)
+    .values({ sessionId: session.id, userId: user.id, expiresAt: session.expiresAt, endedAt: now })
+    .onConflictDoNothing();
   await ctx.db.delete(endedSessions).where(lt(endedSessions.expiresAt, new Date(now.getTime() - keepEndedMs)));
 }
 
@@ -38,7 +44,10 @@ export async function signOut(ctx: AppContext, user: SessionUser, session: { id:
 export async function signOutEverywhere(ctx: AppContext, user: SessionUser): Promise<SignOutEverywhereAnswer> {
   const now = ctx.clock.now();
   await ctx.db.transaction(async (tx) => {
-    await tx.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1` }).where(eq(users.id, user.id));
+    await tx
+      .update(users)
+      .set({ sessionVersion: sql`${users.sessionVersion} + 1` })
+      .where(eq(users.id, user.id));
     // The raised version refuses them all: the user's single ended sessions need no row any more.
     await tx.delete(endedSessions).where(eq(endedSessions.userId, user.id));
   });

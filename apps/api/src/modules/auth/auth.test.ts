@@ -194,7 +194,9 @@ describe('signing out ends sessions on the server', () => {
     const token = cookie.slice(cookie.indexOf('=') + 1);
     const claims = JSON.parse(Buffer.from(token.split('.')[1]!, 'base64url').toString()) as { sid: string; exp: number };
     // Written straight to the table, as another process would: no route of this app is involved.
-    await t.ctx.db.insert(endedSessions).values({ sessionId: claims.sid, userId: f.inA.manager.id, expiresAt: new Date(claims.exp * 1000), endedAt: new Date() });
+    await t.ctx.db
+      .insert(endedSessions)
+      .values({ sessionId: claims.sid, userId: f.inA.manager.id, expiresAt: new Date(claims.exp * 1000), endedAt: new Date() });
     expect((await me(cookie)).status).toBe(401);
   });
 
@@ -284,7 +286,9 @@ describe('roles, branches and errors', () => {
 
     const unknown = await request(t.app).get('/api/no-such-thing');
     expect(unknown.status).toBe(404);
-    expect(unknown.body).toEqual({ error: { code: 'not_found', message: 'No such API route.', requestId: unknown.headers['x-request-id'] } });
+    expect(unknown.body).toEqual({
+      error: { code: 'not_found', message: 'No such API route.', requestId: unknown.headers['x-request-id'] },
+    });
   });
 
   it('health names the database', async () => {

@@ -79,7 +79,9 @@ export async function completeOwnerSetup(
       .values({ email: input.email, name: input.name, role: 'owner', branchId: null, passwordHash, lastSignInAt: now })
       .returning();
     await tx.delete(appMeta).where(eq(appMeta.key, SETUP_KEY));
-    await tx.insert(auditEvents).values({ actorId: created!.id, action: 'owner.setup', entity: 'user', entityId: created!.id, details: {}, at: now });
+    await tx
+      .insert(auditEvents)
+      .values({ actorId: created!.id, action: 'owner.setup', entity: 'user', entityId: created!.id, details: {}, at: now });
     return created!;
   });
   const token = await signSession(ctx.secret, { sub: u.id, sv: u.sessionVersion }, ctx.config.sessionHours, now);

@@ -6,7 +6,12 @@ import { createTestApp, type TestApp } from '../../testing/harness';
 import { appMeta, auditEvents } from '../../db/schema';
 import { issueOwnerSetup, SETUP_HOURS } from './owner-setup.service';
 
-const clock: Clock & { at: Date } = { at: new Date('2026-12-02T15:00:00Z'), now() { return new Date(this.at); } };
+const clock: Clock & { at: Date } = {
+  at: new Date('2026-12-02T15:00:00Z'),
+  now() {
+    return new Date(this.at);
+  },
+};
 
 // A new database: migrated, nobody in it (the test app loads no demo data).
 let t: TestApp;
@@ -19,7 +24,14 @@ const tokenOf = (link: string) => decodeURIComponent(new URL(link).searchParams.
 const setup = (token: string, over: Record<string, string> = {}) =>
   request(t.app)
     .post('/api/setup')
-    .send({ token, name: 'Morgan Reyes', email: 'morgan@acme-hvac.test', password: 'Kettle-Orbit-Fjord-47', confirm: 'Kettle-Orbit-Fjord-47', ...over });
+    .send({
+      token,
+      name: 'Morgan Reyes',
+      email: 'morgan@acme-hvac.test',
+      password: 'Kettle-Orbit-Fjord-47',
+      confirm: 'Kettle-Orbit-Fjord-47',
+      ...over,
+    });
 
 describe('first-owner setup link (production start)', () => {
   it('shows no demo password on a production start, whatever the database holds', async () => {
@@ -36,7 +48,13 @@ describe('first-owner setup link (production start)', () => {
     const first = await issueOwnerSetup(t.ctx);
     const link = await issueOwnerSetup(t.ctx); // a restart prints a new link; the older one stops working
     expect(link).toMatch(/^http:\/\/coilpath\.test\/setup\?token=/);
-    expect((await request(t.app).post('/api/setup/check').send({ token: tokenOf(first!) })).body.error.code).toBe('link_invalid');
+    expect(
+      (
+        await request(t.app)
+          .post('/api/setup/check')
+          .send({ token: tokenOf(first!) })
+      ).body.error.code,
+    ).toBe('link_invalid');
     const token = tokenOf(link!);
     expect((await request(t.app).post('/api/setup/check').send({ token })).body).toEqual({ ok: true });
 
@@ -48,7 +66,13 @@ describe('first-owner setup link (production start)', () => {
     const agent = request.agent(t.app);
     const res = await agent
       .post('/api/setup')
-      .send({ token, name: 'Morgan Reyes', email: 'Morgan@Acme-HVAC.test', password: 'Kettle-Orbit-Fjord-47', confirm: 'Kettle-Orbit-Fjord-47' });
+      .send({
+        token,
+        name: 'Morgan Reyes',
+        email: 'Morgan@Acme-HVAC.test',
+        password: 'Kettle-Orbit-Fjord-47',
+        confirm: 'Kettle-Orbit-Fjord-47',
+      });
     expect(res.status).toBe(201);
     expect(res.body.user).toMatchObject({ name: 'Morgan Reyes', email: 'morgan@acme-hvac.test', role: 'owner', branchId: null });
     expect((await agent.get('/api/auth/me')).body.user.role).toBe('owner');
@@ -60,7 +84,9 @@ describe('first-owner setup link (production start)', () => {
     expect(again.status).toBe(410);
     expect(again.body.error.code).toBe('setup_done');
     expect(await issueOwnerSetup(t.ctx)).toBeNull();
-    expect((await request(t.app).post('/api/auth/sign-in').send({ email: 'morgan@acme-hvac.test', password: 'Kettle-Orbit-Fjord-47' })).status).toBe(200);
+    expect(
+      (await request(t.app).post('/api/auth/sign-in').send({ email: 'morgan@acme-hvac.test', password: 'Kettle-Orbit-Fjord-47' })).status,
+    ).toBe(200);
   });
 
   it(`refuses a link older than ${SETUP_HOURS} hours`, async () => {

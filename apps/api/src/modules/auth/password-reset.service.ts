@@ -60,7 +60,10 @@ export async function sendPasswordReset(ctx: AppContext, email: string): Promise
       return false;
     }
     // Only the newest link works.
-    await tx.update(passwordResets).set({ usedAt: now }).where(and(eq(passwordResets.userId, u.id), isNull(passwordResets.usedAt)));
+    await tx
+      .update(passwordResets)
+      .set({ usedAt: now })
+      .where(and(eq(passwordResets.userId, u.id), isNull(passwordResets.usedAt)));
     await tx.insert(passwordResets).values({ userId: u.id, tokenHash: hash, expiresAt, createdAt: now });
     return true;
   });
@@ -79,7 +82,9 @@ export async function sendPasswordReset(ctx: AppContext, email: string): Promise
     mail.p('If you did not ask for this, ignore this message: your password stays as it is.', true),
   ]);
   // The answer went out long ago; a failure is logged for the operator.
-  await ctx.mailer.send({ to: email, ...message }).catch((err: unknown) => ctx.logger?.error({ err, userId: u.id }, 'password-reset mail failed'));
+  await ctx.mailer
+    .send({ to: email, ...message })
+    .catch((err: unknown) => ctx.logger?.error({ err, userId: u.id }, 'password-reset mail failed'));
   return 'sent';
 }
 
@@ -90,7 +95,15 @@ async function openReset(ctx: AppContext, signed: string) {
   const token = verifyLinkToken(ctx.secret, 'password-reset', signed);
   if (!token) throw linkErrors.invalid(RESET);
   const [r] = await ctx.db
-    .select({ id: passwordResets.id, userId: passwordResets.userId, usedAt: passwordResets.usedAt, expiresAt: passwordResets.expiresAt, email: users.email, name: users.name, active: users.active })
+    .select({
+      id: passwordResets.id,
+      userId: passwordResets.userId,
+      usedAt: passwordResets.usedAt,
+      expiresAt: passwordResets.expiresAt,
+      email: users.email,
+      name: users.name,
+      active: users.active,
+    })
     .from(passwordResets)
     .innerJoin(users, eq(users.id, passwordResets.userId))
     .where(eq(passwordResets.tokenHash, hashLinkToken(token)))

@@ -58,7 +58,14 @@ describe('sign-in limits', () => {
   it('limits one address across accounts (password spraying), whether or not the accounts exist', async () => {
     clock.advance(3600);
     const ip = '198.51.100.7';
-    const emails = [f.inA.technician.email, f.inB.technician.email, 'nobody-1@test.example', 'nobody-2@test.example', f.inB.manager.email, 'nobody-3@test.example'];
+    const emails = [
+      f.inA.technician.email,
+      f.inB.technician.email,
+      'nobody-1@test.example',
+      'nobody-2@test.example',
+      f.inB.manager.email,
+      'nobody-3@test.example',
+    ];
     for (const email of emails) expect((await signIn(email, 'Summer2026!', ip)).status).toBe(401);
     const refused = await signIn(f.owner.email, TEST_PASSWORD, ip);
     expect(refused.status).toBe(429);

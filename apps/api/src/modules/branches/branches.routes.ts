@@ -49,8 +49,21 @@ export function branchesRoutes(ctx: AppContext): Router {
     }),
   );
   /** Full settings; branch people may read their own branch, only the owner changes branches. */
-  r.get('/:id', endpoint({ params: idParams }, ({ user, params }) => getBranch(ctx, user, params.id)));
-  r.post('/', requireRole('owner'), endpoint({ body: branchInputSchema, status: 201 }, ({ user, body }) => createBranch(ctx, user, body)));
-  r.patch('/:id', requireRole('owner'), endpoint({ params: idParams, body: branchPatchSchema }, ({ user, params, body, req }) => updateBranch(ctx, user, params.id, onlySent(body, req.body))));
+  r.get(
+    '/:id',
+    endpoint({ params: idParams }, ({ user, params }) => getBranch(ctx, user, params.id)),
+  );
+  r.post(
+    '/',
+    requireRole('owner'),
+    endpoint({ body: branchInputSchema, status: 201 }, ({ user, body }) => createBranch(ctx, user, body)),
+  );
+  r.patch(
+    '/:id',
+    requireRole('owner'),
+    endpoint({ params: idParams, body: branchPatchSchema }, ({ user, params, body, req }) =>
+      updateBranch(ctx, user, params.id, onlySent(body, req.body)),
+    ),
+  );
   return r;
 }

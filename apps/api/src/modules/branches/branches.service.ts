@@ -56,11 +56,21 @@ export async function getBranch(ctx: AppContext, user: SessionUser, id: string):
 
 export async function createBranch(ctx: AppContext, user: SessionUser, v: BranchValues): Promise<BranchDetail> {
   await refuseTakenCode(ctx, v.code);
-  const [b] = await changeAs(ctx.db, user.id, (tx) => tx.insert(branches).values(columns(v) as typeof branches.$inferInsert).returning({ id: branches.id }));
+  const [b] = await changeAs(ctx.db, user.id, (tx) =>
+    tx
+      .insert(branches)
+      .values(columns(v) as typeof branches.$inferInsert)
+      .returning({ id: branches.id }),
+  );
   return getBranch(ctx, user, b!.id);
 }
 
-export async function updateBranch(ctx: AppContext, user: SessionUser, id: string, v: z.output<typeof branchPatchSchema>): Promise<BranchDetail> {
+export async function updateBranch(
+  ctx: AppContext,
+  user: SessionUser,
+  id: string,
+  v: z.output<typeof branchPatchSchema>,
+): Promise<BranchDetail> {
   await getBranch(ctx, user, id);
   await refuseTakenCode(ctx, v.code, id);
   const set = columns(v);

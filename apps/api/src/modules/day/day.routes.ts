@@ -15,7 +15,10 @@ export function dayRoutes(ctx: AppContext): Router {
   // roster revision stands (one entry per technician and date; room for a large branch's today and tomorrow).
   const days = createRevisionCache(512);
   r.use(requireRole('technician'));
-  r.get('/', endpoint({ query: dayQuerySchema, response: dayResponseSchema }, ({ user, query }) => technicianDay(ctx, user, query.date, days)));
+  r.get(
+    '/',
+    endpoint({ query: dayQuerySchema, response: dayResponseSchema }, ({ user, query }) => technicianDay(ctx, user, query.date, days)),
+  );
   return r;
 }
 
@@ -25,10 +28,18 @@ export function dayRoutes(ctx: AppContext): Router {
  */
 export function calendarRoutes(ctx: AppContext): Router {
   const r = Router();
-  r.post('/token', requireRole('technician'), endpoint({ status: 201, response: calendarTokenResultSchema }, ({ user }) => rotateCalendarToken(ctx, user.id)));
-  r.delete('/token', requireRole('technician'), endpoint({ response: 'empty' }, async ({ user }) => {
-    await revokeCalendarToken(ctx, user.id);
-  }));
+  r.post(
+    '/token',
+    requireRole('technician'),
+    endpoint({ status: 201, response: calendarTokenResultSchema }, ({ user }) => rotateCalendarToken(ctx, user.id)),
+  );
+  r.delete(
+    '/token',
+    requireRole('technician'),
+    endpoint({ response: 'empty' }, async ({ user }) => {
+      await revokeCalendarToken(ctx, user.id);
+    }),
+  );
   r.get('/:token.ics', async (req, res) => {
     const text = await calendarFeed(ctx, String(req.params.token));
     res.setHeader('Content-Type', 'text/calendar; charset=utf-8');

@@ -106,7 +106,15 @@ async function dayOf(ctx: AppContext, me: Technician, day: string): Promise<Omit
   const unitRows =
     unitIds.length || siteWide.length
       ? await ctx.db
-          .select({ id: units.id, siteId: units.siteId, tag: units.tag, kind: units.kind, make: units.make, model: units.model, refrigerant: units.refrigerant })
+          .select({
+            id: units.id,
+            siteId: units.siteId,
+            tag: units.tag,
+            kind: units.kind,
+            make: units.make,
+            model: units.model,
+            refrigerant: units.refrigerant,
+          })
           .from(units)
           .where(
             or(
@@ -164,9 +172,7 @@ async function dayOf(ctx: AppContext, me: Technician, day: string): Promise<Omit
         contactName: site.contactName,
         contactPhone: site.contactPhone,
       },
-      units: unitRows
-        .filter((u) => (wo.unitId ? u.id === wo.unitId : u.siteId === site.id))
-        .map(({ siteId: _s, ...u }) => u),
+      units: unitRows.filter((u) => (wo.unitId ? u.id === wo.unitId : u.siteId === site.id)).map(({ siteId: _s, ...u }) => u),
       routeStop: { id: v.id, lat: site.lat, lon: site.lon, serviceMinutes: service, window },
     };
   });

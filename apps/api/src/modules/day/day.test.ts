@@ -24,28 +24,80 @@ beforeAll(async () => {
   const db = t.ctx.db;
   const techId = f.inA.technician.id; // starts at 41.88, -87.63; works 07:00–15:30
   const near = await makeSiteWithUnit(db, f.a.id);
-  await db.update(sites).set({ lat: 41.89, lon: -87.64, accessNotes: 'Roof hatch key at the front desk' }).where(eq(sites.id, near.site.id));
+  await db
+    .update(sites)
+    .set({ lat: 41.89, lon: -87.64, accessNotes: 'Roof hatch key at the front desk' })
+    .where(eq(sites.id, near.site.id));
   const far = await makeSiteWithUnit(db, f.a.id);
   await db.update(sites).set({ lat: 42.05, lon: -87.9 }).where(eq(sites.id, far.site.id));
   const wide = await makeSiteWithUnit(db, f.a.id);
   await db.update(sites).set({ lat: 41.8, lon: -87.6 }).where(eq(sites.id, wide.site.id));
-  await db.insert(units).values({ branchId: f.a.id, siteId: wide.site.id, tag: 'WIC-1', kind: 'walk_in_cooler', make: 'Testmake', model: 'W1', serial: 'W-1', refrigerant: 'R-448A', fullChargeLb: 30, applianceCategory: 'commercial_refrigeration' });
+  await db
+    .insert(units)
+    .values({
+      branchId: f.a.id,
+      siteId: wide.site.id,
+      tag: 'WIC-1',
+      kind: 'walk_in_cooler',
+      make: 'Testmake',
+      model: 'W1',
+      serial: 'W-1',
+      refrigerant: 'R-448A',
+      fullChargeLb: 30,
+      applianceCategory: 'commercial_refrigeration',
+    });
 
   // The far site has a fixed 08:00 appointment; the near one a fixed 13:00: windows decide the order.
-  const a = await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId, startAt: '2026-03-10T18:00:00Z', fixed: true, minutes: 60 });
-  const b = await makeBookedVisit(db, { branchId: f.a.id, siteId: far.site.id, unitId: far.unit.id, techId, startAt: '2026-03-10T13:00:00Z', fixed: true, minutes: 60 });
-  const c = await makeBookedVisit(db, { branchId: f.a.id, siteId: wide.site.id, unitId: null, techId, startAt: '2026-03-10T15:30:00Z', minutes: 90, workOrder: { kind: 'planned_maintenance' } });
+  const a = await makeBookedVisit(db, {
+    branchId: f.a.id,
+    siteId: near.site.id,
+    unitId: near.unit.id,
+    techId,
+    startAt: '2026-03-10T18:00:00Z',
+    fixed: true,
+    minutes: 60,
+  });
+  const b = await makeBookedVisit(db, {
+    branchId: f.a.id,
+    siteId: far.site.id,
+    unitId: far.unit.id,
+    techId,
+    startAt: '2026-03-10T13:00:00Z',
+    fixed: true,
+    minutes: 60,
+  });
+  const c = await makeBookedVisit(db, {
+    branchId: f.a.id,
+    siteId: wide.site.id,
+    unitId: null,
+    techId,
+    startAt: '2026-03-10T15:30:00Z',
+    minutes: 90,
+    workOrder: { kind: 'planned_maintenance' },
+  });
   ids.near = a.visit.id;
   ids.nearWorkOrder = a.workOrder.id;
   ids.nearSite = near.site.id;
   ids.far = b.visit.id;
   ids.wide = c.visit.id;
   // Not on the day: a cancelled job, tomorrow's job, another technician's job.
-  const x = await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId, startAt: '2026-03-10T16:00:00Z' });
+  const x = await makeBookedVisit(db, {
+    branchId: f.a.id,
+    siteId: near.site.id,
+    unitId: near.unit.id,
+    techId,
+    startAt: '2026-03-10T16:00:00Z',
+  });
   await db.update(workOrders).set({ state: 'cancelled' }).where(eq(workOrders.id, x.workOrder.id));
   await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId, startAt: '2026-03-11T14:00:00Z' });
   const other = await makeUser(db, 'technician', f.a.id);
-  await makeBookedVisit(db, { branchId: f.a.id, siteId: near.site.id, unitId: near.unit.id, techId: other.id, startAt: '2026-03-10T14:00:00Z' });
+  await makeBookedVisit(db, {
+    branchId: f.a.id,
+    siteId: near.site.id,
+    unitId: near.unit.id,
+    techId: other.id,
+    startAt: '2026-03-10T14:00:00Z',
+  });
 
   tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
   manager = await signedInAgent(t.app, f.inA.manager.email, TEST_PASSWORD);
@@ -111,7 +163,9 @@ describe('GET /api/day', () => {
 
 describe('GET /api/day, kept while the roster revision stands', () => {
   const nearName = async () =>
-    ((await tech.get('/api/day?date=2026-03-10')).body.stops as { visitId: string; site: { name: string } }[]).find((s) => s.visitId === ids.near)!.site.name;
+    ((await tech.get('/api/day?date=2026-03-10')).body.stops as { visitId: string; site: { name: string } }[]).find(
+      (s) => s.visitId === ids.near,
+    )!.site.name;
 
   it('is reused until a change the day is made of commits, and then answers afresh', async () => {
     const before = await nearName();

@@ -7,7 +7,15 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq, gt, sql } from 'drizzle-orm';
-import { liveEventKinds, liveKindsFor, roles, unitImportColumns, unitImportExample, type LiveEvent, type SessionUser } from '@coilpath/contract';
+import {
+  liveEventKinds,
+  liveKindsFor,
+  roles,
+  unitImportColumns,
+  unitImportExample,
+  type LiveEvent,
+  type SessionUser,
+} from '@coilpath/contract';
 import { leakCases, liveEvents, visits } from '../../db/schema';
 import { createTestApp, signedInAgent, type TestApp } from '../../testing/harness';
 import { makeSiteWithUnit, makeTwoBranches, makeUser, makeWorkOrder, TEST_PASSWORD } from '../../testing/fixtures';
@@ -48,7 +56,11 @@ const newestId = async () => {
 async function eventsOf(change: () => Promise<unknown>): Promise<LiveEvent[]> {
   const from = await newestId();
   await change();
-  const rows = await t.ctx.db.select().from(liveEvents).where(and(gt(liveEvents.id, from), eq(liveEvents.branchId, f.a.id))).orderBy(liveEvents.id);
+  const rows = await t.ctx.db
+    .select()
+    .from(liveEvents)
+    .where(and(gt(liveEvents.id, from), eq(liveEvents.branchId, f.a.id)))
+    .orderBy(liveEvents.id);
   return rows.map(toLiveEvent);
 }
 
@@ -67,26 +79,38 @@ describe('by: who made the change', () => {
   it('work orders: created by one dispatcher, changed by another; the roster event names the work order', async () => {
     let id = '';
     const created = await eventsOf(async () => {
-      const body = ok(201)(await as.dispatcher!.post('/api/work-orders').send({ siteId: siteA.site.id, unitId: siteA.unit.id, kind: 'service_call', complaint: 'Walk-in cooler warm' }));
+      const body = ok(201)(
+        await as
+          .dispatcher!.post('/api/work-orders')
+          .send({ siteId: siteA.site.id, unitId: siteA.unit.id, kind: 'service_call', complaint: 'Walk-in cooler warm' }),
+      );
       id = (body as { workOrder: { id: string } }).workOrder.id;
     });
     const first = one(created, 'roster');
     expect(first.by).toEqual(who(f.inA.dispatcher));
     expect(first.kind === 'roster' && first.workOrders).toEqual([id]);
-    const changed = one(await eventsOf(async () => ok(200)(await as.ana!.patch(`/api/work-orders/${id}`).send({ priority: 'high' }))), 'roster');
+    const changed = one(
+      await eventsOf(async () => ok(200)(await as.ana!.patch(`/api/work-orders/${id}`).send({ priority: 'high' }))),
+      'roster',
+    );
     expect(changed.by).toEqual(who(ana));
     expect(changed.kind === 'roster' && changed.workOrders).toEqual([id]);
   });
 
   it('alarms: one recorded by a manager, an import committed by another; the event names the unit', async () => {
     const recorded = one(
-      await eventsOf(async () => ok(201)(await as.manager!.post('/api/alarms').send({ unitId: siteA.unit.id, code: 'HP-1', raisedAt: `${today}T10:00:00Z` }))),
+      await eventsOf(async () =>
+        ok(201)(await as.manager!.post('/api/alarms').send({ unitId: siteA.unit.id, code: 'HP-1', raisedAt: `${today}T10:00:00Z` })),
+      ),
       'alarm',
     );
     expect(recorded.by).toEqual(who(f.inA.manager));
     expect(recorded.kind === 'alarm' && recorded.units).toEqual([siteA.unit.id]);
     const csv = `unit_serial,circuit,code,raised_at\n${siteA.unit.serial},1,LP-2,${today}T09:00:00Z\n${siteA.unit.serial},1,LP-2,${today}T09:30:00Z\n`;
-    const imported = one(await eventsOf(async () => ok(200)(await as.priya!.post('/api/alarms/import').send({ branchId: f.a.id, mode: 'commit', csv }))), 'alarm');
+    const imported = one(
+      await eventsOf(async () => ok(200)(await as.priya!.post('/api/alarms/import').send({ branchId: f.a.id, mode: 'commit', csv }))),
+      'alarm',
+    );
     expect(imported.by).toEqual(who(priya));
     expect(imported.kind === 'alarm' && imported.units).toEqual([siteA.unit.id]);
   });
@@ -95,19 +119,36 @@ describe('by: who made the change', () => {
     const open = async () => {
       const [c] = await t.ctx.db
         .insert(leakCases)
-        .values({ branchId: f.a.id, unitId: siteA.unit.id, openedOn: addDays(today, -25), rule: 'comfort_cooling', method: 'annualizing', thresholdPercent: 10, leakRatePercent: 24, repairDueDate: addDays(today, 5) })
+        .values({
+          branchId: f.a.id,
+          unitId: siteA.unit.id,
+          openedOn: addDays(today, -25),
+          rule: 'comfort_cooling',
+          method: 'annualizing',
+          thresholdPercent: 10,
+          leakRatePercent: 24,
+          repairDueDate: addDays(today, 5),
+        })
         .returning();
       return c!;
     };
     const c1 = await open();
-    const repaired = await eventsOf(async () => ok(200)(await as.manager!.patch(`/api/leak-cases/${c1.id}`).send({ action: 'repaired', repairedOn: addDays(today, -1), notes: 'Brazed the return bend' })));
+    const repaired = await eventsOf(async () =>
+      ok(200)(
+        await as
+          .manager!.patch(`/api/leak-cases/${c1.id}`)
+          .send({ action: 'repaired', repairedOn: addDays(today, -1), notes: 'Brazed the return bend' }),
+      ),
+    );
     const lc = one(repaired, 'leak-case');
     expect(lc.by).toEqual(who(f.inA.manager));
     expect(lc.kind === 'leak-case' && lc.leakCases).toEqual([c1.id]);
     expect(one(repaired, 'roster').by).toEqual(who(f.inA.manager));
 
     const c2 = await open();
-    const booked = await eventsOf(async () => ok(201)(await as.priya!.post(`/api/leak-cases/${c2.id}/repair-visit`).send({ priority: 'high', notes: 'Bring nitrogen' })));
+    const booked = await eventsOf(async () =>
+      ok(201)(await as.priya!.post(`/api/leak-cases/${c2.id}/repair-visit`).send({ priority: 'high', notes: 'Bring nitrogen' })),
+    );
     expect(one(booked, 'leak-case').by).toEqual(who(priya));
     const roster = one(booked, 'roster');
     expect(roster.by).toEqual(who(priya));
@@ -118,9 +159,29 @@ describe('by: who made the change', () => {
   it('return visits: queued from the Watchlist by a manager', async () => {
     const { site, unit } = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const origin = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id, state: 'closed' });
-    await t.ctx.db.insert(visits).values({ branchId: f.a.id, workOrderId: origin.id, techId: f.inA.technician.id, closedAt: new Date(`${today}T08:00:00Z`), outcome: 'needs_return', returnNeeds: ['parts'] });
-    const wo = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id, kind: 'return_visit', originWorkOrderId: origin.id });
-    const e = one(await eventsOf(async () => ok(200)(await as.priya!.patch(`/api/watchlist/return-visits/${wo.id}`).send({ priority: 'high', latestDate: addDays(today, 7) }))), 'roster');
+    await t.ctx.db
+      .insert(visits)
+      .values({
+        branchId: f.a.id,
+        workOrderId: origin.id,
+        techId: f.inA.technician.id,
+        closedAt: new Date(`${today}T08:00:00Z`),
+        outcome: 'needs_return',
+        returnNeeds: ['parts'],
+      });
+    const wo = await makeWorkOrder(t.ctx.db, {
+      branchId: f.a.id,
+      siteId: site.id,
+      unitId: unit.id,
+      kind: 'return_visit',
+      originWorkOrderId: origin.id,
+    });
+    const e = one(
+      await eventsOf(async () =>
+        ok(200)(await as.priya!.patch(`/api/watchlist/return-visits/${wo.id}`).send({ priority: 'high', latestDate: addDays(today, 7) })),
+      ),
+      'roster',
+    );
     expect(e.by).toEqual(who(priya));
     expect(e.kind === 'roster' && e.workOrders).toEqual([wo.id]);
   });
@@ -140,16 +201,27 @@ describe('by: who made the change', () => {
         tasks: ['Replace filters'],
       }),
     ) as { agreement: { id: string } };
-    const e = one(await eventsOf(async () => ok(200)(await as.priya!.post(`/api/agreements/${agreement.agreement.id}/plan/apply`))), 'roster');
+    const e = one(
+      await eventsOf(async () => ok(200)(await as.priya!.post(`/api/agreements/${agreement.agreement.id}/plan/apply`))),
+      'roster',
+    );
     expect(e.by).toEqual(who(priya));
     expect(e.kind === 'roster' && (e.workOrders === null || e.workOrders.length > 0)).toBe(true);
   });
 
   it('branch settings and the team: changed by the owner', async () => {
-    const branch = one(await eventsOf(async () => ok(200)(await as.owner!.patch(`/api/branches/${f.a.id}`).send({ baseAddress: '2 Depot Road' }))), 'roster');
+    const branch = one(
+      await eventsOf(async () => ok(200)(await as.owner!.patch(`/api/branches/${f.a.id}`).send({ baseAddress: '2 Depot Road' }))),
+      'roster',
+    );
     expect(branch.by).toEqual(who(f.owner));
     const tech = await makeUser(t.ctx.db, 'technician', f.a.id);
-    const team = one(await eventsOf(async () => ok(200)(await as.owner!.patch(`/api/users/${tech.id}`).send({ name: 'Renamed Tech', role: 'technician', branchId: f.a.id }))), 'roster');
+    const team = one(
+      await eventsOf(async () =>
+        ok(200)(await as.owner!.patch(`/api/users/${tech.id}`).send({ name: 'Renamed Tech', role: 'technician', branchId: f.a.id })),
+      ),
+      'roster',
+    );
     expect(team.by).toEqual(who(f.owner));
   });
 
@@ -157,10 +229,16 @@ describe('by: who made the change', () => {
     const archived = one(await eventsOf(async () => ok(200)(await as.dispatcher!.post(`/api/units/${siteA.unit.id}/archive`))), 'roster');
     expect(archived.by).toEqual(who(f.inA.dispatcher));
     ok(200)(await as.dispatcher!.post(`/api/units/${siteA.unit.id}/unarchive`));
-    const renamed = one(await eventsOf(async () => ok(200)(await as.ana!.patch(`/api/sites/${siteA.site.id}`).send({ name: 'Harbour Cold Store' }))), 'roster');
+    const renamed = one(
+      await eventsOf(async () => ok(200)(await as.ana!.patch(`/api/sites/${siteA.site.id}`).send({ name: 'Harbour Cold Store' }))),
+      'roster',
+    );
     expect(renamed.by).toEqual(who(ana));
     const csv = `${unitImportColumns.join(',')}\n${unitImportColumns.map((c) => unitImportExample[c]).join(',')}\n`;
-    const imported = one(await eventsOf(async () => ok(200)(await as.ana!.post('/api/units/import').send({ siteId: siteA.site.id, mode: 'commit', csv }))), 'roster');
+    const imported = one(
+      await eventsOf(async () => ok(200)(await as.ana!.post('/api/units/import').send({ siteId: siteA.site.id, mode: 'commit', csv }))),
+      'roster',
+    );
     expect(imported.by).toEqual(who(ana));
   });
 
@@ -168,7 +246,10 @@ describe('by: who made the change', () => {
     const byJob = one(await eventsOf(() => makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: siteA.site.id })), 'roster');
     expect(byJob.by).toBeNull();
     // A controller's signed alarm (the source registered by a manager, the alarm sent by no one).
-    const source = ok(201)(await as.manager!.post('/api/alarm-sources').send({ siteId: siteA.site.id, name: 'Roof BMS' })) as { id: string; secret: string };
+    const source = ok(201)(await as.manager!.post('/api/alarm-sources').send({ siteId: siteA.site.id, name: 'Roof BMS' })) as {
+      id: string;
+      secret: string;
+    };
     const raw = JSON.stringify({ deliveryId: 'd-by-1', unitTag: siteA.unit.tag, code: 'LP1', raisedAt: `${today}T11:00:00Z` });
     const ts = String(Math.floor(t.ctx.clock.now().getTime() / 1000));
     const byController = one(
@@ -186,7 +267,10 @@ describe('by: who made the change', () => {
     );
     expect(byController.by).toBeNull();
     expect(byController.kind === 'alarm' && byController.units).toEqual([siteA.unit.id]);
-    const byPerson = one(await eventsOf(() => changeAs(t.ctx.db, ana.id, (tx) => makeWorkOrder(tx as never, { branchId: f.a.id, siteId: siteA.site.id }))), 'roster');
+    const byPerson = one(
+      await eventsOf(() => changeAs(t.ctx.db, ana.id, (tx) => makeWorkOrder(tx as never, { branchId: f.a.id, siteId: siteA.site.id }))),
+      'roster',
+    );
     expect(byPerson.by).toEqual(who(ana));
   });
 });
@@ -224,7 +308,9 @@ describe('mayHear: each kind within the person’s branches and role', () => {
       for (const role of roles) {
         if (role === 'owner') continue;
         expect(mayHear(person(role, f.b.id), { branchId: f.a.id, kind, userId: null }), `${role} of B hearing ${kind} of A`).toBe(false);
-        expect(mayHear(person(role, f.a.id), { branchId: f.a.id, kind, userId: null }), `${role} of A hearing ${kind} of A`).toBe(liveKindsFor(role).includes(kind));
+        expect(mayHear(person(role, f.a.id), { branchId: f.a.id, kind, userId: null }), `${role} of A hearing ${kind} of A`).toBe(
+          liveKindsFor(role).includes(kind),
+        );
       }
       expect(mayHear(person('owner', null), { branchId: f.a.id, kind, userId: null })).toBe(liveKindsFor('owner').includes(kind));
     }

@@ -42,7 +42,10 @@ export async function lastEventId(db: Db): Promise<number> {
  * database's `now()`, which an overridden application clock does not move). Answers how many.
  */
 export async function pruneEvents(db: Db, olderThan: string): Promise<number> {
-  const gone = await db.delete(liveEvents).where(sql`${liveEvents.at} < now() - ${olderThan}::interval`).returning({ id: liveEvents.id });
+  const gone = await db
+    .delete(liveEvents)
+    .where(sql`${liveEvents.at} < now() - ${olderThan}::interval`)
+    .returning({ id: liveEvents.id });
   return gone.length;
 }
 

@@ -112,7 +112,12 @@ export async function openLiveStream(
   // checked again.
   const opened = await sessionState(ctx.db, user.id, sessionId);
   const stillGood = (now: typeof opened) =>
-    !!now && now.active && !now.ended && now.sessionVersion === opened?.sessionVersion && now.role === user.role && now.branchId === user.branchId;
+    !!now &&
+    now.active &&
+    !now.ended &&
+    now.sessionVersion === opened?.sessionVersion &&
+    now.role === user.role &&
+    now.branchId === user.branchId;
   const recheck = async () => {
     if (!stillGood(await sessionState(ctx.db, user.id, sessionId).catch(() => undefined))) out.drop();
   };
@@ -151,4 +156,3 @@ export async function openLiveStream(
 export function pruneLiveEvents(ctx: AppContext): Promise<number> {
   return pruneEvents(ctx.db, '1 day');
 }
-

@@ -107,7 +107,8 @@ async function connect(base: string, cookie: string, lastEventId?: string): Prom
             }
           }
           if (fields.id !== undefined) s.lastId = fields.id;
-          if (fields.data !== undefined) s.events.push({ ...(JSON.parse(fields.data) as LiveEvent), sseId: fields.id ?? '', sseEvent: fields.event ?? 'message' });
+          if (fields.data !== undefined)
+            s.events.push({ ...(JSON.parse(fields.data) as LiveEvent), sseId: fields.id ?? '', sseEvent: fields.event ?? 'message' });
         }
         waiters.forEach((w) => w());
       });
@@ -133,7 +134,15 @@ beforeAll(async () => {
   siteB = await makeSiteWithUnit(t.ctx.db, f.b.id);
   otherTechA = await makeUser(t.ctx.db, 'technician', f.a.id, { name: 'Noor Haddad' });
   base = await serve(t.app);
-  const people = { techA: f.inA.technician, otherTechA, techB: f.inB.technician, dispatcherA: f.inA.dispatcher, dispatcherB: f.inB.dispatcher, managerA: f.inA.manager, owner: f.owner };
+  const people = {
+    techA: f.inA.technician,
+    otherTechA,
+    techB: f.inB.technician,
+    dispatcherA: f.inA.dispatcher,
+    dispatcherB: f.inB.dispatcher,
+    managerA: f.inA.manager,
+    owner: f.owner,
+  };
   for (const [k, u] of Object.entries(people)) cookies[k] = await cookieOf(t.app, u.email);
 });
 
@@ -152,7 +161,11 @@ async function bookInA(techId: string, startAt: string) {
 }
 
 const kinds = (s: Stream) => s.events.map((e) => e.kind);
-const maxId = async () => Number((await t.ctx.db.execute(sql`select coalesce(max(id), 0)::int as id from live_events`) as unknown as { rows: { id: number }[] }).rows[0]!.id);
+const maxId = async () =>
+  Number(
+    ((await t.ctx.db.execute(sql`select coalesce(max(id), 0)::int as id from live_events`)) as unknown as { rows: { id: number }[] })
+      .rows[0]!.id,
+  );
 
 describe('GET /api/events', () => {
   it('answers a stream of text/event-stream, and 401 without a session', async () => {
@@ -173,7 +186,10 @@ describe('GET /api/events', () => {
 
     // Dispatcher A books technician A: the Roster's people of A hear `roster` (with who and which booking), A's day changes.
     const booking = await bookInA(f.inA.technician.id, '2027-03-08T15:00:00Z');
-    await dispatcherA!.until(() => dispatcherA!.events.some((e) => e.kind === 'roster' && e.bookings?.includes(booking.id)), 'the roster event');
+    await dispatcherA!.until(
+      () => dispatcherA!.events.some((e) => e.kind === 'roster' && e.bookings?.includes(booking.id)),
+      'the roster event',
+    );
     const rosterEvent = dispatcherA!.events.slice(roster0).find((e) => e.kind === 'roster' && e.bookings?.includes(booking.id))!;
     expect(rosterEvent.branchId).toBe(f.a.id);
     expect(rosterEvent.by).toEqual({ id: f.inA.dispatcher.id, name: f.inA.dispatcher.name });
@@ -190,10 +206,20 @@ describe('GET /api/events', () => {
     expect(enRoute.status, JSON.stringify(enRoute.body)).toBe(200);
     await dispatcherA!.until(() => kinds(dispatcherA!).includes('visit'), 'the visit event');
     const visit = dispatcherA!.events.find((e) => e.kind === 'visit')!;
-    expect(visit).toMatchObject({ kind: 'visit', visitId: booking.visitId, bookingId: booking.id, techId: f.inA.technician.id, state: 'en_route', by: { id: f.inA.technician.id } });
+    expect(visit).toMatchObject({
+      kind: 'visit',
+      visitId: booking.visitId,
+      bookingId: booking.id,
+      techId: f.inA.technician.id,
+      state: 'en_route',
+      by: { id: f.inA.technician.id },
+    });
 
     // A manager records an alarm: the managers and the owner hear it, the dispatcher does not.
-    const alarm = await request(t.app).post('/api/alarms').set('Cookie', cookies.managerA!).send({ unitId: siteA.unit.id, code: 'HP-1', raisedAt: '2027-03-01T11:00:00Z' });
+    const alarm = await request(t.app)
+      .post('/api/alarms')
+      .set('Cookie', cookies.managerA!)
+      .send({ unitId: siteA.unit.id, code: 'HP-1', raisedAt: '2027-03-01T11:00:00Z' });
     expect(alarm.status, JSON.stringify(alarm.body)).toBe(201);
     await managerA!.until(() => kinds(managerA!).includes('alarm'), 'the manager’s alarm event');
     await owner!.until(() => kinds(owner!).includes('alarm'), 'the owner’s alarm event');
@@ -202,7 +228,10 @@ describe('GET /api/events', () => {
     const second = await bookInA(otherTechA.id, '2027-03-09T15:00:00Z');
     await otherTech!.until(() => kinds(otherTech!).includes('day'), 'the other technician’s own day event');
     expect(otherTech!.events.map((e) => [e.kind, e.kind === 'day' && e.techId])).toEqual([['day', otherTechA.id]]);
-    await dispatcherA!.until(() => dispatcherA!.events.some((e) => e.kind === 'roster' && e.bookings?.includes(second.id)), 'the second roster event');
+    await dispatcherA!.until(
+      () => dispatcherA!.events.some((e) => e.kind === 'roster' && e.bookings?.includes(second.id)),
+      'the second roster event',
+    );
 
     const w = await makeWorkOrder(t.ctx.db, { branchId: f.b.id, siteId: siteB.site.id });
     await dispatcherB!.until(() => kinds(dispatcherB!).includes('roster'), 'branch B’s roster event');
@@ -256,11 +285,20 @@ describe('GET /api/events', () => {
   it('never sends another branch’s alarms or leak cases (with the rows they name) to a manager', async () => {
     const managerB = await connect(base, await cookieOf(t.app, f.inB.manager.email));
     const owner = await connect(base, cookies.owner!);
-    const alarm = await request(t.app).post('/api/alarms').set('Cookie', cookies.managerA!).send({ unitId: siteA.unit.id, code: 'LP-4', raisedAt: '2027-03-01T11:30:00Z' });
+    const alarm = await request(t.app)
+      .post('/api/alarms')
+      .set('Cookie', cookies.managerA!)
+      .send({ unitId: siteA.unit.id, code: 'LP-4', raisedAt: '2027-03-01T11:30:00Z' });
     expect(alarm.status, JSON.stringify(alarm.body)).toBe(201);
-    await owner.until(() => owner.events.some((e) => e.kind === 'alarm' && e.branchId === f.a.id && e.units?.includes(siteA.unit.id)), 'the owner hears A’s alarm and its unit');
+    await owner.until(
+      () => owner.events.some((e) => e.kind === 'alarm' && e.branchId === f.a.id && e.units?.includes(siteA.unit.id)),
+      'the owner hears A’s alarm and its unit',
+    );
     // Then one in B: B's manager hears it, and nothing of A came before it.
-    const alarmB = await request(t.app).post('/api/alarms').set('Cookie', cookies.dispatcherB!).send({ unitId: siteB.unit.id, code: 'LP-4', raisedAt: '2027-03-01T11:30:00Z' });
+    const alarmB = await request(t.app)
+      .post('/api/alarms')
+      .set('Cookie', cookies.dispatcherB!)
+      .send({ unitId: siteB.unit.id, code: 'LP-4', raisedAt: '2027-03-01T11:30:00Z' });
     expect(alarmB.status, JSON.stringify(alarmB.body)).toBe(201);
     await managerB.until(() => managerB.events.some((e) => e.kind === 'alarm'), 'branch B’s alarm');
     expect(managerB.events.every((e) => e.branchId === f.b.id)).toBe(true);
@@ -300,8 +338,14 @@ describe('GET /api/events', () => {
   });
 
   it('prunes rows older than a day and keeps the rest', async () => {
-    const [old] = await t.ctx.db.insert(liveEvents).values({ branchId: f.a.id, kind: 'alarm', at: sql`now() - interval '25 hours'` as unknown as Date }).returning();
-    const [recent] = await t.ctx.db.insert(liveEvents).values({ branchId: f.a.id, kind: 'alarm', at: sql`now() - interval '23 hours'` as unknown as Date }).returning();
+    const [old] = await t.ctx.db
+      .insert(liveEvents)
+      .values({ branchId: f.a.id, kind: 'alarm', at: sql`now() - interval '25 hours'` as unknown as Date })
+      .returning();
+    const [recent] = await t.ctx.db
+      .insert(liveEvents)
+      .values({ branchId: f.a.id, kind: 'alarm', at: sql`now() - interval '23 hours'` as unknown as Date })
+      .returning();
     expect(await pruneLiveEvents(t.ctx)).toBeGreaterThanOrEqual(1);
     const left = (await t.ctx.db.select({ id: liveEvents.id }).from(liveEvents)).map((r) => r.id);
     expect(left).not.toContain(old!.id);
@@ -329,6 +373,10 @@ describe('two API processes on one database', () => {
     const before = there.events.length;
     const res = await here.post('/api/bookings').send({ workOrderId: w.id, techId: f.inA.technician.id, startAt: '2027-03-11T15:00:00Z' });
     expect(res.status, JSON.stringify(res.body)).toBe(201);
-    await there.until(() => there.events.slice(before).some((e) => e.kind === 'roster' && e.bookings?.includes(res.body.booking.id)), 'the booking made through the other process', 3000);
+    await there.until(
+      () => there.events.slice(before).some((e) => e.kind === 'roster' && e.bookings?.includes(res.body.booking.id)),
+      'the booking made through the other process',
+      3000,
+    );
   });
 });

@@ -15,7 +15,10 @@ import type { Period } from './periods';
  * The factory-defect cases (`factoryDefectCaseRows`): service calls, callbacks and return visits opened in the
  * period whose root cause is of origin `factory_defect`, or the one work order asked for, each costed.
  */
-export async function factoryDefectCases(db: Tx, opts: { period?: Period; branchId?: string | undefined; workOrderId?: string }): Promise<FactoryDefectCase[]> {
+export async function factoryDefectCases(
+  db: Tx,
+  opts: { period?: Period; branchId?: string | undefined; workOrderId?: string },
+): Promise<FactoryDefectCase[]> {
   return (await repo.factoryDefectCaseRows(db, opts)).map(presentCase);
 }
 
@@ -24,14 +27,22 @@ export async function factoryDefectReview(db: Db, period: Period, branchId: stri
 }
 
 /** Records a warranty claim's status, amount and reference for one factory-defect case. */
-export async function updateWarrantyClaim(db: Db, clock: Clock, user: SessionUser, workOrderId: string, body: WarrantyClaimUpdate): Promise<WarrantyClaim> {
+export async function updateWarrantyClaim(
+  db: Db,
+  clock: Clock,
+  user: SessionUser,
+  workOrderId: string,
+  body: WarrantyClaimUpdate,
+): Promise<WarrantyClaim> {
   return db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const wo = await repo.findWorkOrder(tx, workOrderId);
     if (!wo || (user.role !== 'owner' && wo.branchId !== user.branchId)) throw notFound('work order');
     const [isCase] = await factoryDefectCases(tx, { workOrderId });
     if (!isCase) {
-      throw unprocessable('A warranty claim belongs to a service call, callback or return visit whose root cause is a factory defect; this work order has none.');
+      throw unprocessable(
+        'A warranty claim belongs to a service call, callback or return visit whose root cause is a factory defect; this work order has none.',
+      );
     }
     const existing = await repo.findWarrantyClaim(tx, workOrderId);
     // The amount defaults to the job's computed cost once the claim is claimed or paid.

@@ -55,8 +55,17 @@ async function expectSumsAgree() {
 }
 
 /** The row of one dimension of one branch and month (the 'origin' rows add up to every job once). */
-const rowOf = (rows: Awaited<ReturnType<typeof snapshot>>, branchId: string, month: string, dim: string, key: Partial<(typeof rows)[number]> = {}) =>
-  rows.filter((r) => r.branchId === branchId && r.month === month && r.dim === dim && Object.entries(key).every(([k, v]) => r[k as keyof typeof r] === v));
+const rowOf = (
+  rows: Awaited<ReturnType<typeof snapshot>>,
+  branchId: string,
+  month: string,
+  dim: string,
+  key: Partial<(typeof rows)[number]> = {},
+) =>
+  rows.filter(
+    (r) =>
+      r.branchId === branchId && r.month === month && r.dim === dim && Object.entries(key).every(([k, v]) => r[k as keyof typeof r] === v),
+  );
 
 describe('splitByMonths', () => {
   const z = (d: string) => `${d}T00:00:00.000Z`;
@@ -64,13 +73,19 @@ describe('splitByMonths', () => {
     // The benchmark's year: 28–30 November, December to October whole, 1–27 November.
     expect(splitByMonths(z('2025-11-28'), z('2026-11-28'))).toEqual({
       months: ['2025-12-01', '2026-11-01'],
-      edges: [[z('2025-11-28'), z('2025-12-01')], [z('2026-11-01'), z('2026-11-28')]],
+      edges: [
+        [z('2025-11-28'), z('2025-12-01')],
+        [z('2026-11-01'), z('2026-11-28')],
+      ],
     });
     // Whole months only (1–31 March); a period inside one month has no whole month.
     expect(splitByMonths(z('2026-03-01'), z('2026-04-01'))).toEqual({ months: ['2026-03-01', '2026-04-01'], edges: [] });
     expect(splitByMonths(z('2026-02-15'), z('2026-03-15'))).toEqual({ months: null, edges: [[z('2026-02-15'), z('2026-03-15')]] });
     // Across a year end, starting on the first of a month.
-    expect(splitByMonths(z('2025-12-01'), z('2026-01-10'))).toEqual({ months: ['2025-12-01', '2026-01-01'], edges: [[z('2026-01-01'), z('2026-01-10')]] });
+    expect(splitByMonths(z('2025-12-01'), z('2026-01-10'))).toEqual({
+      months: ['2025-12-01', '2026-01-01'],
+      edges: [[z('2026-01-01'), z('2026-01-10')]],
+    });
     // Sums only for months that end by `sumsUntil` (now minus the longest callback window): with now
     // 2026-11-20 and a 30-day window, sumsUntil is 10-21; October ends after it and is counted job by job.
     expect(splitByMonths(z('2026-01-01'), z('2026-11-21'), '2026-10-21T00:00:00.000Z')).toEqual({
@@ -82,7 +97,10 @@ describe('splitByMonths', () => {
       months: ['2026-01-01', '2026-10-01'],
       edges: [[z('2026-10-01'), z('2026-11-21')]],
     });
-    expect(splitByMonths(z('2026-03-01'), z('2026-04-01'), z('2026-02-10'))).toEqual({ months: null, edges: [[z('2026-03-01'), z('2026-04-01')]] });
+    expect(splitByMonths(z('2026-03-01'), z('2026-04-01'), z('2026-02-10'))).toEqual({
+      months: null,
+      edges: [[z('2026-03-01'), z('2026-04-01')]],
+    });
   });
 });
 
@@ -100,11 +118,21 @@ describe('fix_quality_sums', () => {
 
     // The first visit closes, resolved, 26 hours after opening: one job in March, fixed the first time.
     const [v1] = await db.insert(visits).values({ branchId: a.id, workOrderId: job.id, techId: ta.id }).returning();
-    await db.update(visits).set({ closedAt: new Date('2026-03-02T10:00:00Z'), outcome: 'resolved' }).where(eq(visits.id, v1!.id));
+    await db
+      .update(visits)
+      .set({ closedAt: new Date('2026-03-02T10:00:00Z'), outcome: 'resolved' })
+      .where(eq(visits.id, v1!.id));
     let rows = await expectSumsAgree();
     expect(rows).toHaveLength(4); // one row per dimension
     expect(rowOf(rows, a.id, '2026-03-01', 'origin', { origin: null })[0]).toMatchObject({
-      jobs: 1, eligible: 1, firstTimeFixed: 1, resolvedFirstVisits: 1, callbacks: 0, returnVisits: 0, resolvedJobs: 1, resolveUs: 26 * HOUR * US_PER_MS,
+      jobs: 1,
+      eligible: 1,
+      firstTimeFixed: 1,
+      resolvedFirstVisits: 1,
+      callbacks: 0,
+      returnVisits: 0,
+      resolvedJobs: 1,
+      resolveUs: 26 * HOUR * US_PER_MS,
     });
     expect(rowOf(rows, a.id, '2026-03-01', 'technician', { techId: ta.id })).toHaveLength(1);
     expect(rowOf(rows, a.id, '2026-03-01', 'model', { make: 'Testmake', model: 'TM-10' })).toHaveLength(1);
@@ -116,7 +144,10 @@ describe('fix_quality_sums', () => {
     expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })[0]).toMatchObject({ jobs: 1 });
     expect(rowOf(rows, a.id, '2026-03-01', 'origin', { origin: 'wear' })[0]).toMatchObject({ jobs: 1 });
     // A second finding, then the technician marks it as the root cause: the job moves to the marked finding's cause.
-    const [marked] = await db.insert(findings).values({ visitId: v1!.id, unitId: unit.id, causeCode: 'refrigerant_leak', origin: 'factory_defect' }).returning();
+    const [marked] = await db
+      .insert(findings)
+      .values({ visitId: v1!.id, unitId: unit.id, causeCode: 'refrigerant_leak', origin: 'factory_defect' })
+      .returning();
     await db.update(visits).set({ rootCauseFindingId: marked!.id }).where(eq(visits.id, v1!.id));
     rows = await expectSumsAgree();
     expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })).toEqual([]);
@@ -128,7 +159,14 @@ describe('fix_quality_sums', () => {
     expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })[0]).toMatchObject({ jobs: 1 });
 
     // A callback opened 18 days after the close: inside the 30-day window.
-    const cb = await makeWorkOrder(db, { branchId: a.id, siteId: site.id, unitId: unit.id, kind: 'callback', originWorkOrderId: job.id, createdAt: new Date('2026-03-20T10:00:00Z') });
+    const cb = await makeWorkOrder(db, {
+      branchId: a.id,
+      siteId: site.id,
+      unitId: unit.id,
+      kind: 'callback',
+      originWorkOrderId: job.id,
+      createdAt: new Date('2026-03-20T10:00:00Z'),
+    });
     rows = await expectSumsAgree();
     expect(rowOf(rows, a.id, '2026-03-01', 'origin')[0]).toMatchObject({ callbacks: 1, firstTimeFixed: 0 });
 
@@ -141,10 +179,23 @@ describe('fix_quality_sums', () => {
     expect(rowOf(rows, a.id, '2026-03-01', 'technician')[0]).toMatchObject({ callbacks: 1, firstTimeFixed: 0 });
 
     // A return visit booked off the job; its visit closes resolved on 03-25: the job now took 24 days.
-    const rv = await makeWorkOrder(db, { branchId: a.id, siteId: site.id, unitId: unit.id, kind: 'return_visit', originWorkOrderId: job.id, createdAt: new Date('2026-03-22T08:00:00Z') });
-    await db.insert(visits).values({ branchId: a.id, workOrderId: rv.id, techId: ta.id, closedAt: new Date('2026-03-25T08:00:00Z'), outcome: 'resolved' });
+    const rv = await makeWorkOrder(db, {
+      branchId: a.id,
+      siteId: site.id,
+      unitId: unit.id,
+      kind: 'return_visit',
+      originWorkOrderId: job.id,
+      createdAt: new Date('2026-03-22T08:00:00Z'),
+    });
+    await db
+      .insert(visits)
+      .values({ branchId: a.id, workOrderId: rv.id, techId: ta.id, closedAt: new Date('2026-03-25T08:00:00Z'), outcome: 'resolved' });
     rows = await expectSumsAgree();
-    expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })[0]).toMatchObject({ returnVisits: 1, resolvedJobs: 1, resolveUs: 24 * DAY * US_PER_MS });
+    expect(rowOf(rows, a.id, '2026-03-01', 'cause', { causeCode: 'airflow' })[0]).toMatchObject({
+      returnVisits: 1,
+      resolvedJobs: 1,
+      resolveUs: 24 * DAY * US_PER_MS,
+    });
 
     // The unit's model is corrected: the job moves to the new model.
     await db.update(units).set({ model: 'TM-12' }).where(eq(units.id, unit.id));
@@ -153,10 +204,19 @@ describe('fix_quality_sums', () => {
     expect(rowOf(rows, a.id, '2026-03-01', 'model', { make: 'Testmake', model: 'TM-12' })[0]).toMatchObject({ jobs: 1 });
 
     // An earlier visit closed in February becomes the first visit, declined: the job moves to February, not eligible.
-    await db.insert(visits).values({ branchId: a.id, workOrderId: job.id, techId: ta.id, closedAt: new Date('2026-02-28T23:30:00Z'), outcome: 'declined' });
+    await db
+      .insert(visits)
+      .values({ branchId: a.id, workOrderId: job.id, techId: ta.id, closedAt: new Date('2026-02-28T23:30:00Z'), outcome: 'declined' });
     rows = await expectSumsAgree();
     expect(rows.every((r) => r.month === '2026-02-01')).toBe(true);
-    expect(rowOf(rows, a.id, '2026-02-01', 'origin')[0]).toMatchObject({ jobs: 1, eligible: 0, callbacks: 0, returnVisits: 0, resolvedJobs: 0, resolveUs: 0 });
+    expect(rowOf(rows, a.id, '2026-02-01', 'origin')[0]).toMatchObject({
+      jobs: 1,
+      eligible: 0,
+      callbacks: 0,
+      returnVisits: 0,
+      resolvedJobs: 0,
+      resolveUs: 0,
+    });
 
     // The job moves to branch B (window 14 days).
     await db.update(workOrders).set({ branchId: b.id }).where(eq(workOrders.id, job.id));
@@ -180,8 +240,16 @@ describe('fix_quality_sums', () => {
     const before = await expectSumsAgree();
     await expect(
       db.transaction(async (tx) => {
-        const job = await makeWorkOrder(tx as unknown as Db, { branchId: a.id, siteId: site.id, unitId: unit.id, kind: 'service_call', createdAt: new Date('2026-04-01T08:00:00Z') });
-        await tx.insert(visits).values({ branchId: a.id, workOrderId: job.id, techId: t.id, closedAt: new Date('2026-04-01T12:00:00Z'), outcome: 'resolved' });
+        const job = await makeWorkOrder(tx as unknown as Db, {
+          branchId: a.id,
+          siteId: site.id,
+          unitId: unit.id,
+          kind: 'service_call',
+          createdAt: new Date('2026-04-01T08:00:00Z'),
+        });
+        await tx
+          .insert(visits)
+          .values({ branchId: a.id, workOrderId: job.id, techId: t.id, closedAt: new Date('2026-04-01T12:00:00Z'), outcome: 'resolved' });
         throw new Error('roll back');
       }),
     ).rejects.toThrow('roll back');
@@ -190,7 +258,13 @@ describe('fix_quality_sums', () => {
     // Two jobs in one transaction: both counted once the transaction commits.
     await db.transaction(async (tx) => {
       for (const at of ['2026-04-02T12:00:00Z', '2026-04-03T12:00:00Z']) {
-        const job = await makeWorkOrder(tx as unknown as Db, { branchId: a.id, siteId: site.id, unitId: unit.id, kind: 'service_call', createdAt: new Date('2026-04-01T08:00:00Z') });
+        const job = await makeWorkOrder(tx as unknown as Db, {
+          branchId: a.id,
+          siteId: site.id,
+          unitId: unit.id,
+          kind: 'service_call',
+          createdAt: new Date('2026-04-01T08:00:00Z'),
+        });
         await tx.insert(visits).values({ branchId: a.id, workOrderId: job.id, techId: t.id, closedAt: new Date(at), outcome: 'resolved' });
       }
     });
@@ -208,8 +282,16 @@ describe('fix_quality_sums', () => {
         db.transaction(async (tx) => {
           const months = i % 2 ? ['2026-06-10T12:00:00Z', '2026-05-10T12:00:00Z'] : ['2026-05-10T12:00:00Z', '2026-06-10T12:00:00Z'];
           for (const closed of months) {
-            const job = await makeWorkOrder(tx as unknown as Db, { branchId: a.id, siteId: site.id, unitId: unit.id, kind: 'service_call', createdAt: new Date('2026-05-01T08:00:00Z') });
-            await tx.insert(visits).values({ branchId: a.id, workOrderId: job.id, techId: t.id, closedAt: new Date(closed), outcome: 'resolved' });
+            const job = await makeWorkOrder(tx as unknown as Db, {
+              branchId: a.id,
+              siteId: site.id,
+              unitId: unit.id,
+              kind: 'service_call',
+              createdAt: new Date('2026-05-01T08:00:00Z'),
+            });
+            await tx
+              .insert(visits)
+              .values({ branchId: a.id, workOrderId: job.id, techId: t.id, closedAt: new Date(closed), outcome: 'resolved' });
           }
         }),
       ),
@@ -236,12 +318,32 @@ const pick = fc.nat({ max: 1000 });
 const outcome = fc.constantFrom<VisitOutcome | null>('resolved', 'resolved', 'needs_return', 'declined', null);
 const op = fc.oneof(
   { arbitrary: fc.record({ t: fc.constant('job' as const), branch: pick, unit: fc.option(pick), at: minute }), weight: 4 },
-  { arbitrary: fc.record({ t: fc.constant('visit' as const), wo: pick, tech: pick, hours: fc.option(later, { freq: 5 }), outcome }), weight: 6 },
+  {
+    arbitrary: fc.record({ t: fc.constant('visit' as const), wo: pick, tech: pick, hours: fc.option(later, { freq: 5 }), outcome }),
+    weight: 6,
+  },
   { arbitrary: fc.record({ t: fc.constant('close' as const), visit: pick, hours: fc.option(later, { freq: 5 }), outcome }), weight: 2 },
-  { arbitrary: fc.record({ t: fc.constant('finding' as const), visit: pick, cause: fc.constantFrom(...causeCodes), origin: fc.constantFrom(...causeOrigins), at: minute }), weight: 3 },
+  {
+    arbitrary: fc.record({
+      t: fc.constant('finding' as const),
+      visit: pick,
+      cause: fc.constantFrom(...causeCodes),
+      origin: fc.constantFrom(...causeOrigins),
+      at: minute,
+    }),
+    weight: 3,
+  },
   { arbitrary: fc.record({ t: fc.constant('dropFinding' as const), finding: pick }), weight: 1 },
   { arbitrary: fc.record({ t: fc.constant('markRootCause' as const), finding: fc.option(pick) }), weight: 2 },
-  { arbitrary: fc.record({ t: fc.constant('followUp' as const), job: pick, kind: fc.constantFrom('callback' as const, 'return_visit' as const), hours: later }), weight: 3 },
+  {
+    arbitrary: fc.record({
+      t: fc.constant('followUp' as const),
+      job: pick,
+      kind: fc.constantFrom('callback' as const, 'return_visit' as const),
+      hours: later,
+    }),
+    weight: 3,
+  },
   { arbitrary: fc.record({ t: fc.constant('delete' as const), wo: pick }), weight: 1 },
   { arbitrary: fc.record({ t: fc.constant('move' as const), wo: pick, branch: pick }), weight: 1 },
   { arbitrary: fc.record({ t: fc.constant('window' as const), branch: pick, days: fc.integer({ min: 0, max: 45 }) }), weight: 1 },
@@ -258,7 +360,9 @@ const seedJob = fc.record({
   hours: fc.integer({ min: 0, max: 72 }),
   outcome,
   finding: fc.option(fc.record({ cause: fc.constantFrom(...causeCodes), origin: fc.constantFrom(...causeOrigins) })),
-  followUp: fc.option(fc.record({ kind: fc.constantFrom('callback' as const, 'return_visit' as const), hours: later, visitHours: fc.option(later), outcome })),
+  followUp: fc.option(
+    fc.record({ kind: fc.constantFrom('callback' as const, 'return_visit' as const), hours: later, visitHours: fc.option(later), outcome }),
+  ),
 });
 type Op = (typeof op extends fc.Arbitrary<infer T> ? T : never) | (typeof seedJob extends fc.Arbitrary<infer T> ? T : never);
 
@@ -271,24 +375,50 @@ interface World {
 const of = <T>(list: T[], i: number): T | undefined => (list.length ? list[i % list.length] : undefined);
 
 async function apply(w: World, o: Op) {
-  const wos = await db.select({ id: workOrders.id, kind: workOrders.kind, branchId: workOrders.branchId, createdAt: workOrders.createdAt }).from(workOrders).orderBy(workOrders.id);
+  const wos = await db
+    .select({ id: workOrders.id, kind: workOrders.kind, branchId: workOrders.branchId, createdAt: workOrders.createdAt })
+    .from(workOrders)
+    .orderBy(workOrders.id);
   const after = (t: Date, hours: number) => new Date(t.getTime() + hours * HOUR);
   const jobs = wos.filter((x) => x.kind === 'service_call');
   switch (o.t) {
     case 'seed': {
       const branchId = of(w.branches, o.branch)!;
       const u = o.unit === null ? undefined : of(w.units, o.unit);
-      const job = await makeWorkOrder(db, { branchId, siteId: u?.siteId ?? w.units[0]!.siteId, unitId: u?.id, kind: 'service_call', createdAt: at(o.at) });
+      const job = await makeWorkOrder(db, {
+        branchId,
+        siteId: u?.siteId ?? w.units[0]!.siteId,
+        unitId: u?.id,
+        kind: 'service_call',
+        createdAt: at(o.at),
+      });
       const [v] = await db
         .insert(visits)
         .values({ branchId, workOrderId: job.id, techId: of(w.techs, o.tech)!, closedAt: at(o.at + o.hours * 60), outcome: o.outcome })
         .returning();
-      if (o.finding) await db.insert(findings).values({ visitId: v!.id, causeCode: o.finding.cause, origin: o.finding.origin, createdAt: at(o.at + o.hours * 60) });
+      if (o.finding)
+        await db
+          .insert(findings)
+          .values({ visitId: v!.id, causeCode: o.finding.cause, origin: o.finding.origin, createdAt: at(o.at + o.hours * 60) });
       if (o.followUp) {
         const f = o.followUp;
-        const fu = await makeWorkOrder(db, { branchId, siteId: w.units[0]!.siteId, kind: f.kind, originWorkOrderId: job.id, createdAt: after(job.createdAt, f.hours) });
+        const fu = await makeWorkOrder(db, {
+          branchId,
+          siteId: w.units[0]!.siteId,
+          kind: f.kind,
+          originWorkOrderId: job.id,
+          createdAt: after(job.createdAt, f.hours),
+        });
         if (f.visitHours !== null) {
-          await db.insert(visits).values({ branchId, workOrderId: fu.id, techId: of(w.techs, o.tech + 1)!, closedAt: after(fu.createdAt, f.visitHours), outcome: f.outcome });
+          await db
+            .insert(visits)
+            .values({
+              branchId,
+              workOrderId: fu.id,
+              techId: of(w.techs, o.tech + 1)!,
+              closedAt: after(fu.createdAt, f.visitHours),
+              outcome: f.outcome,
+            });
         }
       }
       return;
@@ -296,19 +426,44 @@ async function apply(w: World, o: Op) {
     case 'job': {
       const branchId = of(w.branches, o.branch)!;
       const u = o.unit === null ? undefined : of(w.units, o.unit);
-      await makeWorkOrder(db, { branchId, siteId: u?.siteId ?? w.units[0]!.siteId, unitId: u?.id, kind: 'service_call', createdAt: at(o.at) });
+      await makeWorkOrder(db, {
+        branchId,
+        siteId: u?.siteId ?? w.units[0]!.siteId,
+        unitId: u?.id,
+        kind: 'service_call',
+        createdAt: at(o.at),
+      });
       return;
     }
     case 'visit': {
       const wo = of(wos, o.wo);
       if (!wo) return;
       const closedAt = o.hours === null ? null : after(wo.createdAt, o.hours);
-      await db.insert(visits).values({ branchId: wo.branchId, workOrderId: wo.id, techId: of(w.techs, o.tech)!, closedAt, outcome: closedAt ? o.outcome : null });
+      await db
+        .insert(visits)
+        .values({
+          branchId: wo.branchId,
+          workOrderId: wo.id,
+          techId: of(w.techs, o.tech)!,
+          closedAt,
+          outcome: closedAt ? o.outcome : null,
+        });
       return;
     }
     case 'close': {
-      const v = of(await db.select({ id: visits.id, opened: workOrders.createdAt }).from(visits).innerJoin(workOrders, eq(workOrders.id, visits.workOrderId)).orderBy(visits.id), o.visit);
-      if (v) await db.update(visits).set({ closedAt: o.hours === null ? null : after(v.opened, o.hours), outcome: o.outcome }).where(eq(visits.id, v.id));
+      const v = of(
+        await db
+          .select({ id: visits.id, opened: workOrders.createdAt })
+          .from(visits)
+          .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
+          .orderBy(visits.id),
+        o.visit,
+      );
+      if (v)
+        await db
+          .update(visits)
+          .set({ closedAt: o.hours === null ? null : after(v.opened, o.hours), outcome: o.outcome })
+          .where(eq(visits.id, v.id));
       return;
     }
     case 'finding': {
@@ -327,13 +482,23 @@ async function apply(w: World, o: Op) {
     case 'markRootCause': {
       // The technician marks a finding as its visit's root cause (none: the mark is taken off the finding's visit).
       const f = of(await db.select({ id: findings.id, visitId: findings.visitId }).from(findings).orderBy(findings.id), o.finding ?? 0);
-      if (f) await db.update(visits).set({ rootCauseFindingId: o.finding === null ? null : f.id }).where(eq(visits.id, f.visitId));
+      if (f)
+        await db
+          .update(visits)
+          .set({ rootCauseFindingId: o.finding === null ? null : f.id })
+          .where(eq(visits.id, f.visitId));
       return;
     }
     case 'followUp': {
       const job = of(jobs, o.job);
       if (!job) return;
-      await makeWorkOrder(db, { branchId: job.branchId, siteId: w.units[0]!.siteId, kind: o.kind, originWorkOrderId: job.id, createdAt: after(job.createdAt, o.hours) });
+      await makeWorkOrder(db, {
+        branchId: job.branchId,
+        siteId: w.units[0]!.siteId,
+        kind: o.kind,
+        originWorkOrderId: job.id,
+        createdAt: after(job.createdAt, o.hours),
+      });
       return;
     }
     case 'delete': {
@@ -351,18 +516,32 @@ async function apply(w: World, o: Op) {
     }
     case 'move': {
       const wo = of(wos, o.wo);
-      if (wo) await db.update(workOrders).set({ branchId: of(w.branches, o.branch)! }).where(eq(workOrders.id, wo.id));
+      if (wo)
+        await db
+          .update(workOrders)
+          .set({ branchId: of(w.branches, o.branch)! })
+          .where(eq(workOrders.id, wo.id));
       return;
     }
     case 'window':
-      await db.update(branches).set({ callbackWindowDays: o.days }).where(eq(branches.id, of(w.branches, o.branch)!));
+      await db
+        .update(branches)
+        .set({ callbackWindowDays: o.days })
+        .where(eq(branches.id, of(w.branches, o.branch)!));
       return;
     case 'model':
-      await db.update(units).set({ model: o.model }).where(eq(units.id, of(w.units, o.unit)!.id));
+      await db
+        .update(units)
+        .set({ model: o.model })
+        .where(eq(units.id, of(w.units, o.unit)!.id));
       return;
     case 'kind': {
       const wo = of(wos, o.wo);
-      if (wo) await db.update(workOrders).set({ kind: wo.kind === 'service_call' ? 'planned_maintenance' : 'service_call' }).where(eq(workOrders.id, wo.id));
+      if (wo)
+        await db
+          .update(workOrders)
+          .set({ kind: wo.kind === 'service_call' ? 'planned_maintenance' : 'service_call' })
+          .where(eq(workOrders.id, wo.id));
       return;
     }
   }
@@ -395,10 +574,21 @@ async function plainCounts(from: string, to: string, now: Date, branchId?: strin
   const start = Date.parse(`${from}T00:00:00Z`);
   const end = Date.parse(`${to}T00:00:00Z`) + DAY;
   const byKey = (a: { t: number; id: string }, b: { t: number; id: string }) => a.t - b.t || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0);
-  const closedOf = (woId: string) => vs.filter((v) => v.workOrderId === woId && v.closedAt).map((v) => ({ ...v, t: v.closedAt!.getTime() }));
+  const closedOf = (woId: string) =>
+    vs.filter((v) => v.workOrderId === woId && v.closedAt).map((v) => ({ ...v, t: v.closedAt!.getTime() }));
   const groups = new Map<string, Counts>();
   const add = (key: string, c: Omit<Counts, 'jobs'>) => {
-    const g = groups.get(key) ?? { jobs: 0, eligible: 0, firstTimeFixed: 0, resolvedFirstVisits: 0, callbacks: 0, returnVisits: 0, resolvedJobs: 0, days: 0, pending: 0 };
+    const g = groups.get(key) ?? {
+      jobs: 0,
+      eligible: 0,
+      firstTimeFixed: 0,
+      resolvedFirstVisits: 0,
+      callbacks: 0,
+      returnVisits: 0,
+      resolvedJobs: 0,
+      days: 0,
+      pending: 0,
+    };
     g.jobs++;
     for (const k of Object.keys(c) as (keyof typeof c)[]) g[k] += c[k];
     groups.set(key, g);
@@ -411,7 +601,10 @@ async function plainCounts(from: string, to: string, now: Date, branchId?: strin
     const own = fs.filter((f) => f.visitId === first.id);
     const finding = first.rootCauseFindingId ? own.find((f) => f.id === first.rootCauseFindingId) : own.length === 1 ? own[0] : undefined;
     const followUps = wos.filter((f) => f.originWorkOrderId === job.id && (f.kind === 'callback' || f.kind === 'return_visit'));
-    const last = [job, ...followUps].flatMap((x) => closedOf(x.id)).sort(byKey).at(-1)!;
+    const last = [job, ...followUps]
+      .flatMap((x) => closedOf(x.id))
+      .sort(byKey)
+      .at(-1)!;
     // First-time fix, callbacks and maturity by the pure definition (calc's `fixQuality`, kept as this
     // test's oracle): the SQL of the migrations is the product's, and must count the same job by job.
     const o = fixQuality(
@@ -468,7 +661,8 @@ function reportCounts(r: FixQualityReport) {
     });
   };
   put('all', r);
-  for (const table of ['byBranch', 'byTechnician', 'byMonth', 'byModel', 'byCause', 'byOrigin'] as const) for (const g of r[table]) put(`${table}:${g.key}`, g);
+  for (const table of ['byBranch', 'byTechnician', 'byMonth', 'byModel', 'byCause', 'byOrigin'] as const)
+    for (const g of r[table]) put(`${table}:${g.key}`, g);
   return out;
 }
 
@@ -494,7 +688,10 @@ describe('fix_quality_sums under random changes', () => {
       const b = await makeBranch(db);
       w.branches.push(b.id);
       w.techs.push((await makeUser(db, 'technician', b.id)).id, (await makeUser(db, 'technician', b.id)).id);
-      for (const [make, model] of [['Testmake', 'TM-10'], ['Acme', 'AX-1']] as const) {
+      for (const [make, model] of [
+        ['Testmake', 'TM-10'],
+        ['Acme', 'AX-1'],
+      ] as const) {
         const { site, unit } = await makeSiteWithUnit(db, b.id, { unit: { make, model } });
         w.units.push({ id: unit.id, siteId: site.id, branchId: b.id });
       }
@@ -507,26 +704,33 @@ describe('fix_quality_sums under random changes', () => {
       });
     await fc.assert(
       // "Now" from inside the jobs' span to well after it: some or all callback windows still open.
-      fc.asyncProperty(fc.array(seedJob, { minLength: 3, maxLength: 20, size: 'max' }), fc.array(op, { maxLength: 40, size: 'max' }), period, fc.boolean(), fc.integer({ min: 20 * 24, max: 200 * 24 }), async (seeds, changes, p, oneBranch, nowHours) => {
-        // A clean start: no work from the previous run (and no sums left behind by its deletion).
-        await db.update(workOrders).set({ originWorkOrderId: null });
-        await db.update(visits).set({ rootCauseFindingId: null });
-        await db.delete(findings);
-        await db.delete(visits);
-        await db.delete(workOrders);
-        expect(await expectSumsAgree()).toEqual([]);
-        for (const o of [...seeds, ...changes]) await apply(w, o);
-        await expectSumsAgree();
-        const branchId = oneBranch ? w.branches[0] : undefined;
-        const now = new Date(T0 + nowHours * HOUR);
-        const report = await fixQualityReport(db, p, branchId, now);
-        expectSameCounts(report, await plainCounts(p.from, p.to, now, branchId));
-        const prev = await plainCounts(report.previousPeriod.from, report.previousPeriod.to, now, branchId);
-        expect(report.previous.eligible).toBe(prev.get('all')?.eligible ?? 0);
-        expect(report.previous.firstTimeFixed).toBe(prev.get('all')?.firstTimeFixed ?? 0);
-        expect(report.previous.callbacks).toBe(prev.get('all')?.callbacks ?? 0);
-        expect(report.previous.pending).toBe(prev.get('all')?.pending ?? 0);
-      }),
+      fc.asyncProperty(
+        fc.array(seedJob, { minLength: 3, maxLength: 20, size: 'max' }),
+        fc.array(op, { maxLength: 40, size: 'max' }),
+        period,
+        fc.boolean(),
+        fc.integer({ min: 20 * 24, max: 200 * 24 }),
+        async (seeds, changes, p, oneBranch, nowHours) => {
+          // A clean start: no work from the previous run (and no sums left behind by its deletion).
+          await db.update(workOrders).set({ originWorkOrderId: null });
+          await db.update(visits).set({ rootCauseFindingId: null });
+          await db.delete(findings);
+          await db.delete(visits);
+          await db.delete(workOrders);
+          expect(await expectSumsAgree()).toEqual([]);
+          for (const o of [...seeds, ...changes]) await apply(w, o);
+          await expectSumsAgree();
+          const branchId = oneBranch ? w.branches[0] : undefined;
+          const now = new Date(T0 + nowHours * HOUR);
+          const report = await fixQualityReport(db, p, branchId, now);
+          expectSameCounts(report, await plainCounts(p.from, p.to, now, branchId));
+          const prev = await plainCounts(report.previousPeriod.from, report.previousPeriod.to, now, branchId);
+          expect(report.previous.eligible).toBe(prev.get('all')?.eligible ?? 0);
+          expect(report.previous.firstTimeFixed).toBe(prev.get('all')?.firstTimeFixed ?? 0);
+          expect(report.previous.callbacks).toBe(prev.get('all')?.callbacks ?? 0);
+          expect(report.previous.pending).toBe(prev.get('all')?.pending ?? 0);
+        },
+      ),
       // Shrinking a failure re-runs whole scenarios: bounded, so a failure is reported in good time.
       { numRuns: 25, interruptAfterTimeLimit: 90_000 },
     );

@@ -70,7 +70,18 @@ const caseColumns = [
   'claim_reference',
 ] as const;
 
-const alertColumns = ['make', 'model', 'cause', 'sites_with_defect', 'branch', 'site', 'unit', 'serial', 'install_date', 'warranty_end'] as const;
+const alertColumns = [
+  'make',
+  'model',
+  'cause',
+  'sites_with_defect',
+  'branch',
+  'site',
+  'unit',
+  'serial',
+  'install_date',
+  'warranty_end',
+] as const;
 
 export interface CsvSources {
   report?: FixQualityReport;
@@ -208,15 +219,17 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
     pdf.table(
       ['', 'Calls', 'First-time fix', 'Callbacks', 'Callback rate', 'Return visits / call', 'Days to resolve'],
       [4, 1.2, 1.8, 1.4, 1.6, 1.8, 1.6],
-      groups.slice(0, limit).map((g) => [
-        g.label,
-        String(g.eligible),
-        pct(g.firstTimeFixRate),
-        String(g.callbacks),
-        pct(g.callbackRate),
-        g.returnVisitsPerServiceCall?.toFixed(2) ?? '—',
-        g.avgDaysToResolve?.toFixed(1) ?? '—',
-      ]),
+      groups
+        .slice(0, limit)
+        .map((g) => [
+          g.label,
+          String(g.eligible),
+          pct(g.firstTimeFixRate),
+          String(g.callbacks),
+          pct(g.callbackRate),
+          g.returnVisitsPerServiceCall?.toFixed(2) ?? '—',
+          g.avgDaysToResolve?.toFixed(1) ?? '—',
+        ]),
       { empty: 'Nothing in this period.' },
     );
     if (groups.length > limit) pdf.paragraph(`… and ${groups.length - limit} more (see the CSV export).`, { size: 8, color: pdfSlate });
@@ -246,10 +259,13 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
   );
   const byStatus = Object.fromEntries(warrantyClaimStatuses.map((s) => [s, defects.cases.filter((c) => c.claim.status === s).length]));
   pdf.doc.moveDown(0.3);
-  pdf.paragraph(`Warranty claims: ${byStatus.to_claim} to claim, ${byStatus.claimed} claimed, ${byStatus.paid} paid, ${byStatus.denied} denied.`, {
-    size: 8.5,
-    color: pdfSlate,
-  });
+  pdf.paragraph(
+    `Warranty claims: ${byStatus.to_claim} to claim, ${byStatus.claimed} claimed, ${byStatus.paid} paid, ${byStatus.denied} denied.`,
+    {
+      size: 8.5,
+      color: pdfSlate,
+    },
+  );
 
   pdf.heading('Model alerts');
   pdf.table(
@@ -268,5 +284,4 @@ export function reportPdf({ report, defects, alerts, branchName, generatedAt }: 
   return pdf.finish();
 }
 
-export const csvFileName = (table: FixQualityTable, from: string, to: string) =>
-  `coilpath-fix-quality-${table}-${from}-to-${to}.csv`;
+export const csvFileName = (table: FixQualityTable, from: string, to: string) => `coilpath-fix-quality-${table}-${from}-to-${to}.csv`;

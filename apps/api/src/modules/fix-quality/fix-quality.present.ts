@@ -20,7 +20,15 @@ import {
   type SessionUser,
   type WarrantyClaim,
 } from '@coilpath/contract';
-import { GROUPED, type AlertInspectionRow, type AlertRow, type AlertUnitRow, type CaseRow, type CountRow, type WarrantyClaimRecord } from './fix-quality.repo';
+import {
+  GROUPED,
+  type AlertInspectionRow,
+  type AlertRow,
+  type AlertUnitRow,
+  type CaseRow,
+  type CountRow,
+  type WarrantyClaimRecord,
+} from './fix-quality.repo';
 import { monthsOf, type Period } from './periods';
 
 export const iso = (v: Date | string) => (v instanceof Date ? v : new Date(v)).toISOString();
@@ -88,7 +96,11 @@ export function presentReport({ period, prev, branchId, counted, branchRows, tec
 
   const head = figuresOf(current.find((r) => Number(r.g) === GROUPED.all)) ?? EMPTY;
   const before = figuresOf(counted.find((r) => !r.cur && Number(r.g) === GROUPED.all));
-  const byMonth = groups(GROUPED.month, (r) => r.month!, (k) => k);
+  const byMonth = groups(
+    GROUPED.month,
+    (r) => r.month!,
+    (k) => k,
+  );
   const months = new Set(byMonth.map((m) => m.key));
   for (const key of monthsOf(period)) if (!months.has(key)) byMonth.push({ key, label: key, ...EMPTY });
   return {
@@ -105,14 +117,32 @@ export function presentReport({ period, prev, branchId, counted, branchRows, tec
       avgDaysToResolve: diff(head.avgDaysToResolve, before.avgDaysToResolve),
       eligible: head.eligible - before.eligible,
     },
-    byBranch: groups(GROUPED.branch, (r) => r.branch_id!, (k) => branchNames.get(k) ?? 'Unknown branch').sort((a, b) => a.label.localeCompare(b.label)),
-    byTechnician: groups(GROUPED.tech, (r) => r.tech_id!, (k) => techNames.get(k) ?? 'Unknown technician').sort(byEligibleDesc),
+    byBranch: groups(
+      GROUPED.branch,
+      (r) => r.branch_id!,
+      (k) => branchNames.get(k) ?? 'Unknown branch',
+    ).sort((a, b) => a.label.localeCompare(b.label)),
+    byTechnician: groups(
+      GROUPED.tech,
+      (r) => r.tech_id!,
+      (k) => techNames.get(k) ?? 'Unknown technician',
+    ).sort(byEligibleDesc),
     byMonth: byMonth.sort((a, b) => a.key.localeCompare(b.key)),
-    byModel: groups(GROUPED.model, (r) => (r.make === null ? NONE : `${r.make}|${r.model}`), (k) => (k === NONE ? 'No unit recorded' : k.replace('|', ' '))).sort(
-      byEligibleDesc,
-    ),
-    byCause: groups(GROUPED.cause, (r) => r.cause_code ?? NONE, (k) => causeCodeLabels[k as CauseCode] ?? 'No finding recorded').sort(byEligibleDesc),
-    byOrigin: groups(GROUPED.origin, (r) => r.origin ?? NONE, (k) => causeOriginLabels[k as CauseOrigin] ?? 'No finding recorded').sort(byEligibleDesc),
+    byModel: groups(
+      GROUPED.model,
+      (r) => (r.make === null ? NONE : `${r.make}|${r.model}`),
+      (k) => (k === NONE ? 'No unit recorded' : k.replace('|', ' ')),
+    ).sort(byEligibleDesc),
+    byCause: groups(
+      GROUPED.cause,
+      (r) => r.cause_code ?? NONE,
+      (k) => causeCodeLabels[k as CauseCode] ?? 'No finding recorded',
+    ).sort(byEligibleDesc),
+    byOrigin: groups(
+      GROUPED.origin,
+      (r) => r.origin ?? NONE,
+      (k) => causeOriginLabels[k as CauseOrigin] ?? 'No finding recorded',
+    ).sort(byEligibleDesc),
   };
 }
 

@@ -48,7 +48,15 @@ export interface CountRow {
 }
 
 /** The kinds of group the report answers (`g` of a counted row; the bits of the former GROUPING SETS query). */
-export const GROUPED = { all: 0b111111, branch: 0b011111, tech: 0b101111, month: 0b110111, model: 0b111011, cause: 0b111101, origin: 0b111110 } as const;
+export const GROUPED = {
+  all: 0b111111,
+  branch: 0b011111,
+  tech: 0b101111,
+  month: 0b110111,
+  model: 0b111011,
+  cause: 0b111101,
+  origin: 0b111110,
+} as const;
 
 /** The branches a report covers (one, or all) with their callback windows. */
 export function reportBranches(db: Tx, branchId: string | undefined) {
@@ -201,7 +209,10 @@ export interface CaseRow {
  * (a return visit whose origin is the callback; a service call's follow-ups are cases of their own): their
  * closed visits, labour minutes (recorded, else on-site to close) and the refrigerant added on them.
  */
-export function factoryDefectCaseRows(db: Tx, opts: { period?: Period; branchId?: string | undefined; workOrderId?: string }): Promise<CaseRow[]> {
+export function factoryDefectCaseRows(
+  db: Tx,
+  opts: { period?: Period; branchId?: string | undefined; workOrderId?: string },
+): Promise<CaseRow[]> {
   const range = opts.period ? bounds(opts.period) : null;
   const filters = [
     range ? sql`AND w.created_at >= ${range.start}::timestamptz AND w.created_at < ${range.end}::timestamptz` : sql``,
@@ -260,7 +271,11 @@ export function factoryDefectCaseRows(db: Tx, opts: { period?: Period; branchId?
 
 /** A work order's branch, if it exists. */
 export async function findWorkOrder(db: Tx, workOrderId: string) {
-  const [wo] = await db.select({ id: workOrders.id, branchId: workOrders.branchId }).from(workOrders).where(eq(workOrders.id, workOrderId)).limit(1);
+  const [wo] = await db
+    .select({ id: workOrders.id, branchId: workOrders.branchId })
+    .from(workOrders)
+    .where(eq(workOrders.id, workOrderId))
+    .limit(1);
   return wo;
 }
 
@@ -343,9 +358,7 @@ export interface AlertInspectionRow {
  * first finding at the second site). With `filter`, that one alert only.
  */
 export function alertRows(db: Tx, filter?: { make: string; model: string; causeCode: CauseCode }): Promise<AlertRow[]> {
-  const only = filter
-    ? sql`AND u.make = ${filter.make} AND u.model = ${filter.model} AND fd.cause_code = ${filter.causeCode}`
-    : sql``;
+  const only = filter ? sql`AND u.make = ${filter.make} AND u.model = ${filter.model} AND fd.cause_code = ${filter.causeCode}` : sql``;
   return rows<AlertRow>(
     db,
     sql`
@@ -427,7 +440,10 @@ export function alertInspectionRows(db: Tx, purposes: string[]): Promise<AlertIn
     JOIN units u ON u.id = w.unit_id
     JOIN sites s ON s.id = w.site_id
     JOIN branches b ON b.id = w.branch_id
-    WHERE w.purpose IN (${sql.join(purposes.map((p) => sql`${p}`), sql`, `)})
+    WHERE w.purpose IN (${sql.join(
+      purposes.map((p) => sql`${p}`),
+      sql`, `,
+    )})
     ORDER BY w.latest_at NULLS LAST, w.number
   `,
   );

@@ -31,7 +31,10 @@ export async function fixQualityReport(db: Db, period: Period, branchId: string 
   const branchRows = await repo.reportBranches(db, branchId);
   const longestWindow = Math.max(0, ...branchRows.map((b) => b.windowDays));
   const sumsUntil = new Date(at.getTime() - longestWindow * DAY_MS).toISOString();
-  const counted = await repo.reportGroups(db, { start: bounds(prev).start, curStart: cur.start, end: cur.end }, branchId, { at, sumsUntil });
+  const counted = await repo.reportGroups(db, { start: bounds(prev).start, curStart: cur.start, end: cur.end }, branchId, {
+    at,
+    sumsUntil,
+  });
   const techs = await repo.userNames(db, reportTechIds(counted));
   return presentReport({ period, prev, branchId, counted, branchRows, techNames: new Map(techs.map((t) => [t.id, t.name])) });
 }

@@ -102,7 +102,16 @@ async function visit(v: {
 /** A service call with its first visit (and optional finding). */
 async function job(
   name: string,
-  v: { branchId: string; siteId: string; unitId: string; techId: string; openedAt: string; closedAt: string; outcome: VisitOutcome; finding?: [CauseCode, CauseOrigin] },
+  v: {
+    branchId: string;
+    siteId: string;
+    unitId: string;
+    techId: string;
+    openedAt: string;
+    closedAt: string;
+    outcome: VisitOutcome;
+    finding?: [CauseCode, CauseOrigin];
+  },
 ) {
   const w = await workOrder({ ...v, kind: 'service_call' });
   ids[name] = w.id;
@@ -130,8 +139,14 @@ beforeAll(async () => {
   t = await createTestApp({ now: '2026-07-01T12:00:00Z' });
   const db = t.ctx.db;
   f = await makeTwoBranches(db);
-  await db.update(branches).set({ callbackWindowDays: 30, labourRateCents: 9000, refrigerantPriceCentsPerLb: 5000 }).where(eq(branches.id, f.a.id));
-  await db.update(branches).set({ callbackWindowDays: 14, labourRateCents: 12000, refrigerantPriceCentsPerLb: 4000 }).where(eq(branches.id, f.b.id));
+  await db
+    .update(branches)
+    .set({ callbackWindowDays: 30, labourRateCents: 9000, refrigerantPriceCentsPerLb: 5000 })
+    .where(eq(branches.id, f.a.id));
+  await db
+    .update(branches)
+    .set({ callbackWindowDays: 14, labourRateCents: 12000, refrigerantPriceCentsPerLb: 4000 })
+    .where(eq(branches.id, f.b.id));
   const A = f.a.id;
   const B = f.b.id;
   fx = {
@@ -145,44 +160,198 @@ beforeAll(async () => {
   const { ta1, ta2, tb1, u1, u2, u3 } = fx;
   const at = (u: typeof u1) => ({ siteId: u.site.id, unitId: u.unit.id });
 
-  await job('J1', { branchId: A, ...at(u1), techId: ta1.id, openedAt: '2026-03-01T08:00:00Z', closedAt: '2026-03-02T10:00:00Z', outcome: 'resolved', finding: ['airflow', 'wear'] });
+  await job('J1', {
+    branchId: A,
+    ...at(u1),
+    techId: ta1.id,
+    openedAt: '2026-03-01T08:00:00Z',
+    closedAt: '2026-03-02T10:00:00Z',
+    outcome: 'resolved',
+    finding: ['airflow', 'wear'],
+  });
 
-  const j2 = await job('J2', { branchId: A, ...at(u1), techId: ta1.id, openedAt: '2026-03-03T08:00:00Z', closedAt: '2026-03-03T12:00:00Z', outcome: 'resolved', finding: ['sensor_fault', 'prior_service'] });
+  const j2 = await job('J2', {
+    branchId: A,
+    ...at(u1),
+    techId: ta1.id,
+    openedAt: '2026-03-03T08:00:00Z',
+    closedAt: '2026-03-03T12:00:00Z',
+    outcome: 'resolved',
+    finding: ['sensor_fault', 'prior_service'],
+  });
   const j2cb = await workOrder({ branchId: A, ...at(u1), kind: 'callback', openedAt: '2026-03-20T09:00:00Z', originWorkOrderId: j2.id });
   ids.J2cb = j2cb.id;
-  const j2cbVisit = await visit({ branchId: A, workOrderId: j2cb.id, techId: ta2.id, closedAt: '2026-03-21T12:00:00Z', outcome: 'resolved', labourMinutes: 90, finding: { unitId: u1.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect' } });
-  await db.insert(refrigerantEvents).values({ unitId: u1.unit.id, visitId: j2cbVisit.id, date: '2026-03-21', refrigerant: 'R-410A', poundsAdded: 2.5, reason: 'leak_top_off' });
+  const j2cbVisit = await visit({
+    branchId: A,
+    workOrderId: j2cb.id,
+    techId: ta2.id,
+    closedAt: '2026-03-21T12:00:00Z',
+    outcome: 'resolved',
+    labourMinutes: 90,
+    finding: { unitId: u1.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect' },
+  });
+  await db
+    .insert(refrigerantEvents)
+    .values({
+      unitId: u1.unit.id,
+      visitId: j2cbVisit.id,
+      date: '2026-03-21',
+      refrigerant: 'R-410A',
+      poundsAdded: 2.5,
+      reason: 'leak_top_off',
+    });
 
-  const j3 = await job('J3', { branchId: A, ...at(u2), techId: ta1.id, openedAt: '2026-03-05T08:00:00Z', closedAt: '2026-03-05T16:00:00Z', outcome: 'needs_return', finding: ['refrigerant_leak', 'wear'] });
-  const j3rv = await workOrder({ branchId: A, ...at(u2), kind: 'return_visit', openedAt: '2026-03-06T08:00:00Z', originWorkOrderId: j3.id });
+  const j3 = await job('J3', {
+    branchId: A,
+    ...at(u2),
+    techId: ta1.id,
+    openedAt: '2026-03-05T08:00:00Z',
+    closedAt: '2026-03-05T16:00:00Z',
+    outcome: 'needs_return',
+    finding: ['refrigerant_leak', 'wear'],
+  });
+  const j3rv = await workOrder({
+    branchId: A,
+    ...at(u2),
+    kind: 'return_visit',
+    openedAt: '2026-03-06T08:00:00Z',
+    originWorkOrderId: j3.id,
+  });
   ids.J3rv = j3rv.id;
-  await visit({ branchId: A, workOrderId: j3rv.id, techId: ta1.id, closedAt: '2026-03-08T16:00:00Z', outcome: 'resolved', labourMinutes: 60, finding: { unitId: u2.unit.id, causeCode: 'component_failure', origin: 'factory_defect' } });
+  await visit({
+    branchId: A,
+    workOrderId: j3rv.id,
+    techId: ta1.id,
+    closedAt: '2026-03-08T16:00:00Z',
+    outcome: 'resolved',
+    labourMinutes: 60,
+    finding: { unitId: u2.unit.id, causeCode: 'component_failure', origin: 'factory_defect' },
+  });
 
-  await job('J4', { branchId: A, ...at(u2), techId: ta2.id, openedAt: '2026-03-10T08:00:00Z', closedAt: '2026-03-10T12:00:00Z', outcome: 'declined' });
+  await job('J4', {
+    branchId: A,
+    ...at(u2),
+    techId: ta2.id,
+    openedAt: '2026-03-10T08:00:00Z',
+    closedAt: '2026-03-10T12:00:00Z',
+    outcome: 'declined',
+  });
 
-  const j5 = await job('J5', { branchId: A, ...at(u2), techId: ta2.id, openedAt: '2026-03-12T08:00:00Z', closedAt: '2026-03-12T12:00:00Z', outcome: 'resolved' });
-  await workOrder({ branchId: A, ...at(u2), kind: 'callback', openedAt: '2026-04-20T12:00:00Z', originWorkOrderId: j5.id, state: 'unplaced' });
+  const j5 = await job('J5', {
+    branchId: A,
+    ...at(u2),
+    techId: ta2.id,
+    openedAt: '2026-03-12T08:00:00Z',
+    closedAt: '2026-03-12T12:00:00Z',
+    outcome: 'resolved',
+  });
+  await workOrder({
+    branchId: A,
+    ...at(u2),
+    kind: 'callback',
+    openedAt: '2026-04-20T12:00:00Z',
+    originWorkOrderId: j5.id,
+    state: 'unplaced',
+  });
 
-  const j6 = await job('J6', { branchId: B, ...at(u3), techId: tb1.id, openedAt: '2026-03-15T08:00:00Z', closedAt: '2026-03-15T12:00:00Z', outcome: 'resolved', finding: ['settings', 'external'] });
+  const j6 = await job('J6', {
+    branchId: B,
+    ...at(u3),
+    techId: tb1.id,
+    openedAt: '2026-03-15T08:00:00Z',
+    closedAt: '2026-03-15T12:00:00Z',
+    outcome: 'resolved',
+    finding: ['settings', 'external'],
+  });
   const j6cb = await workOrder({ branchId: B, ...at(u3), kind: 'callback', openedAt: '2026-03-25T12:00:00Z', originWorkOrderId: j6.id });
   ids.J6cb = j6cb.id;
-  await visit({ branchId: B, workOrderId: j6cb.id, techId: tb1.id, onSiteAt: '2026-03-26T10:00:00Z', closedAt: '2026-03-26T12:00:00Z', outcome: 'resolved', finding: { unitId: u3.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect' } });
+  await visit({
+    branchId: B,
+    workOrderId: j6cb.id,
+    techId: tb1.id,
+    onSiteAt: '2026-03-26T10:00:00Z',
+    closedAt: '2026-03-26T12:00:00Z',
+    outcome: 'resolved',
+    finding: { unitId: u3.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect' },
+  });
 
   // A return visit booked off J6's callback (origin = the callback, so not a follow-up of J6 itself): 30 labour minutes.
-  const j6rv = await workOrder({ branchId: B, ...at(u3), kind: 'return_visit', openedAt: '2026-03-27T08:00:00Z', originWorkOrderId: j6cb.id });
-  await visit({ branchId: B, workOrderId: j6rv.id, techId: tb1.id, closedAt: '2026-03-28T12:00:00Z', outcome: 'resolved', labourMinutes: 30 });
+  const j6rv = await workOrder({
+    branchId: B,
+    ...at(u3),
+    kind: 'return_visit',
+    openedAt: '2026-03-27T08:00:00Z',
+    originWorkOrderId: j6cb.id,
+  });
+  await visit({
+    branchId: B,
+    workOrderId: j6rv.id,
+    techId: tb1.id,
+    closedAt: '2026-03-28T12:00:00Z',
+    outcome: 'resolved',
+    labourMinutes: 30,
+  });
 
-  const j7 = await job('J7', { branchId: B, ...at(u3), techId: tb1.id, openedAt: '2026-03-16T08:00:00Z', closedAt: '2026-03-16T12:00:00Z', outcome: 'resolved' });
-  await workOrder({ branchId: B, ...at(u3), kind: 'callback', openedAt: '2026-04-05T12:00:00Z', originWorkOrderId: j7.id, state: 'unplaced' });
+  const j7 = await job('J7', {
+    branchId: B,
+    ...at(u3),
+    techId: tb1.id,
+    openedAt: '2026-03-16T08:00:00Z',
+    closedAt: '2026-03-16T12:00:00Z',
+    outcome: 'resolved',
+  });
+  await workOrder({
+    branchId: B,
+    ...at(u3),
+    kind: 'callback',
+    openedAt: '2026-04-05T12:00:00Z',
+    originWorkOrderId: j7.id,
+    state: 'unplaced',
+  });
 
-  await job('J10', { branchId: A, ...at(u1), techId: ta2.id, openedAt: '2026-03-31T20:00:00Z', closedAt: '2026-03-31T23:30:00Z', outcome: 'resolved' });
-  await job('J11', { branchId: A, ...at(u1), techId: ta2.id, openedAt: '2026-03-31T22:00:00Z', closedAt: '2026-04-01T00:10:00Z', outcome: 'resolved' });
+  await job('J10', {
+    branchId: A,
+    ...at(u1),
+    techId: ta2.id,
+    openedAt: '2026-03-31T20:00:00Z',
+    closedAt: '2026-03-31T23:30:00Z',
+    outcome: 'resolved',
+  });
+  await job('J11', {
+    branchId: A,
+    ...at(u1),
+    techId: ta2.id,
+    openedAt: '2026-03-31T22:00:00Z',
+    closedAt: '2026-04-01T00:10:00Z',
+    outcome: 'resolved',
+  });
   const pm = await workOrder({ branchId: A, ...at(u1), kind: 'planned_maintenance', openedAt: '2026-03-01T00:00:00Z' });
   await visit({ branchId: A, workOrderId: pm.id, techId: ta1.id, closedAt: '2026-03-10T12:00:00Z', outcome: 'resolved' });
 
-  await job('J8', { branchId: A, ...at(u1), techId: ta1.id, openedAt: '2026-02-10T08:00:00Z', closedAt: '2026-02-10T12:00:00Z', outcome: 'resolved' });
-  const j9 = await job('J9', { branchId: A, ...at(u1), techId: ta1.id, openedAt: '2026-02-20T08:00:00Z', closedAt: '2026-02-20T12:00:00Z', outcome: 'resolved' });
-  await workOrder({ branchId: A, ...at(u1), kind: 'callback', openedAt: '2026-02-25T08:00:00Z', originWorkOrderId: j9.id, state: 'unplaced' });
+  await job('J8', {
+    branchId: A,
+    ...at(u1),
+    techId: ta1.id,
+    openedAt: '2026-02-10T08:00:00Z',
+    closedAt: '2026-02-10T12:00:00Z',
+    outcome: 'resolved',
+  });
+  const j9 = await job('J9', {
+    branchId: A,
+    ...at(u1),
+    techId: ta1.id,
+    openedAt: '2026-02-20T08:00:00Z',
+    closedAt: '2026-02-20T12:00:00Z',
+    outcome: 'resolved',
+  });
+  await workOrder({
+    branchId: A,
+    ...at(u1),
+    kind: 'callback',
+    openedAt: '2026-02-25T08:00:00Z',
+    originWorkOrderId: j9.id,
+    state: 'unplaced',
+  });
 });
 afterAll(() => t.close());
 
@@ -314,7 +483,13 @@ describe('factory-defect review and warranty claims', () => {
   it('lists callbacks and return visits with a factory-defect finding, costed at branch rates', async () => {
     const res = await (await owner()).get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31');
     expect(res.status).toBe(200);
-    const cases = res.body.cases as { workOrderId: string; labourCostCents: number; refrigerantCostCents: number; costCents: number; claim: { status: string } }[];
+    const cases = res.body.cases as {
+      workOrderId: string;
+      labourCostCents: number;
+      refrigerantCostCents: number;
+      costCents: number;
+      claim: { status: string };
+    }[];
     expect(cases.map((c) => c.workOrderId).sort()).toEqual([ids.J2cb, ids.J3rv, ids.J6cb].sort());
     const j2cb = cases.find((c) => c.workOrderId === ids.J2cb)!;
     // 90 min × $90/h = $135.00; 2.5 lb × $50 = $125.00.
@@ -323,9 +498,17 @@ describe('factory-defect review and warranty claims', () => {
     // No labour minutes recorded: on site 10:00 → closed 12:00 = 120 min, plus the 30 min return visit booked off
     // the callback = 150 min = 2.5 h × $120/h = $300.00 (branch B).
     expect(cases.find((c) => c.workOrderId === ids.J6cb)!.costCents).toBe(30_000);
-    const tm = (res.body.models as { key: string; cases: number; callbacks: number; unitsAffected: number; sitesAffected: number; labourHours: number; costCents: number }[]).find(
-      (m) => m.key === 'Testmake|TM-10',
-    )!;
+    const tm = (
+      res.body.models as {
+        key: string;
+        cases: number;
+        callbacks: number;
+        unitsAffected: number;
+        sitesAffected: number;
+        labourHours: number;
+        costCents: number;
+      }[]
+    ).find((m) => m.key === 'Testmake|TM-10')!;
     // 1.5 h + 2.5 h = 4 h; $260 + $300 = $560.
     expect([tm.cases, tm.callbacks, tm.unitsAffected, tm.sitesAffected, tm.labourHours, tm.costCents]).toEqual([2, 2, 2, 2, 4, 56_000]);
   });
@@ -369,16 +552,68 @@ describe('factory defects found on the first visit', () => {
     // added, finding component_failure/factory_defect → $90.00 + $60.00 = $150.00. A callback booked off it
     // (05-10, 30 min, no finding) is not part of the case: a service call's follow-ups are cases of their own.
     const A = f.a.id;
-    const w = await workOrder({ branchId: A, siteId: fx.u2.site.id, unitId: fx.u2.unit.id, kind: 'service_call', openedAt: '2026-05-04T08:00:00Z' });
-    const v = await visit({ branchId: A, workOrderId: w.id, techId: fx.ta1.id, closedAt: '2026-05-04T12:00:00Z', outcome: 'resolved', labourMinutes: 60, finding: { unitId: fx.u2.unit.id, causeCode: 'component_failure', origin: 'factory_defect' } });
-    await t.ctx.db.insert(refrigerantEvents).values({ unitId: fx.u2.unit.id, visitId: v.id, date: '2026-05-04', refrigerant: 'R-410A', poundsAdded: 1.2, poundsRecovered: 0, reason: 'leak_top_off' });
-    const cb = await workOrder({ branchId: A, siteId: fx.u2.site.id, unitId: fx.u2.unit.id, kind: 'callback', openedAt: '2026-05-10T08:00:00Z', originWorkOrderId: w.id });
-    await visit({ branchId: A, workOrderId: cb.id, techId: fx.ta1.id, closedAt: '2026-05-10T12:00:00Z', outcome: 'resolved', labourMinutes: 30 });
+    const w = await workOrder({
+      branchId: A,
+      siteId: fx.u2.site.id,
+      unitId: fx.u2.unit.id,
+      kind: 'service_call',
+      openedAt: '2026-05-04T08:00:00Z',
+    });
+    const v = await visit({
+      branchId: A,
+      workOrderId: w.id,
+      techId: fx.ta1.id,
+      closedAt: '2026-05-04T12:00:00Z',
+      outcome: 'resolved',
+      labourMinutes: 60,
+      finding: { unitId: fx.u2.unit.id, causeCode: 'component_failure', origin: 'factory_defect' },
+    });
+    await t.ctx.db
+      .insert(refrigerantEvents)
+      .values({
+        unitId: fx.u2.unit.id,
+        visitId: v.id,
+        date: '2026-05-04',
+        refrigerant: 'R-410A',
+        poundsAdded: 1.2,
+        poundsRecovered: 0,
+        reason: 'leak_top_off',
+      });
+    const cb = await workOrder({
+      branchId: A,
+      siteId: fx.u2.site.id,
+      unitId: fx.u2.unit.id,
+      kind: 'callback',
+      openedAt: '2026-05-10T08:00:00Z',
+      originWorkOrderId: w.id,
+    });
+    await visit({
+      branchId: A,
+      workOrderId: cb.id,
+      techId: fx.ta1.id,
+      closedAt: '2026-05-10T12:00:00Z',
+      outcome: 'resolved',
+      labourMinutes: 30,
+    });
     const o = await owner();
     const review = (await o.get('/api/reports/fix-quality/factory-defects?from=2026-05-01&to=2026-05-31')).body;
     expect(review.cases.map((c: { workOrderId: string }) => c.workOrderId)).toEqual([w.id]);
-    expect(review.cases[0]).toMatchObject({ kind: 'service_call', visits: 1, labourCostCents: 9_000, refrigerantCostCents: 6_000, costCents: 15_000, amountDifferenceCents: null });
-    expect(review.models[0]).toMatchObject({ key: 'Acme|AX-1', cases: 1, firstVisits: 1, callbacks: 0, returnVisits: 0, toClaimCents: 15_000 });
+    expect(review.cases[0]).toMatchObject({
+      kind: 'service_call',
+      visits: 1,
+      labourCostCents: 9_000,
+      refrigerantCostCents: 6_000,
+      costCents: 15_000,
+      amountDifferenceCents: null,
+    });
+    expect(review.models[0]).toMatchObject({
+      key: 'Acme|AX-1',
+      cases: 1,
+      firstVisits: 1,
+      callbacks: 0,
+      returnVisits: 0,
+      toClaimCents: 15_000,
+    });
     // Claimable: paid without an amount records the computed cost.
     const paid = await o.patch(`/api/warranty-claims/${w.id}`).send({ status: 'paid' });
     expect(paid.status).toBe(200);
@@ -399,17 +634,41 @@ describe('model alerts', () => {
     const u8 = await makeSiteWithUnit(db, f.b.id, tm); // closed visit 03-22, before it was raised (03-26 12:00): unchecked
     const u12 = await makeSiteWithUnit(db, f.a.id, tm); // wiring fault (wear) found 04-12, after the alert: checked
     const u9 = await makeSiteWithUnit(db, f.a.id, tm); // archived: not listed
-    await db.update(units).set({ archivedAt: new Date('2026-01-01T00:00:00Z') }).where(eq(units.id, u9.unit.id));
+    await db
+      .update(units)
+      .set({ archivedAt: new Date('2026-01-01T00:00:00Z') })
+      .where(eq(units.id, u9.unit.id));
     const at = (u: typeof u4) => ({ siteId: u.site.id, unitId: u.unit.id });
     const w5 = await workOrder({ branchId: f.b.id, ...at(u5), kind: 'planned_maintenance', openedAt: '2025-10-01T08:00:00Z' });
-    await visit({ branchId: f.b.id, workOrderId: w5.id, techId: fx.tb1.id, closedAt: '2025-10-01T12:00:00Z', outcome: 'resolved', finding: { unitId: u5.unit.id, causeCode: 'wiring_fault', origin: 'installation' } });
-    await workOrder({ branchId: f.a.id, ...at(u6), kind: 'planned_maintenance', openedAt: '2026-04-01T08:00:00Z', purpose: 'model-alert:Testmake|TM-10|wiring_fault', state: 'unplaced' });
+    await visit({
+      branchId: f.b.id,
+      workOrderId: w5.id,
+      techId: fx.tb1.id,
+      closedAt: '2025-10-01T12:00:00Z',
+      outcome: 'resolved',
+      finding: { unitId: u5.unit.id, causeCode: 'wiring_fault', origin: 'installation' },
+    });
+    await workOrder({
+      branchId: f.a.id,
+      ...at(u6),
+      kind: 'planned_maintenance',
+      openedAt: '2026-04-01T08:00:00Z',
+      purpose: 'model-alert:Testmake|TM-10|wiring_fault',
+      state: 'unplaced',
+    });
     const w7 = await workOrder({ branchId: f.b.id, ...at(u7), kind: 'planned_maintenance', openedAt: '2026-04-10T08:00:00Z' });
     await visit({ branchId: f.b.id, workOrderId: w7.id, techId: fx.tb1.id, closedAt: '2026-04-10T12:00:00Z', outcome: 'resolved' });
     const w8 = await workOrder({ branchId: f.b.id, ...at(u8), kind: 'planned_maintenance', openedAt: '2026-03-22T08:00:00Z' });
     await visit({ branchId: f.b.id, workOrderId: w8.id, techId: fx.tb1.id, closedAt: '2026-03-22T12:00:00Z', outcome: 'resolved' });
     const w12 = await workOrder({ branchId: f.a.id, ...at(u12), kind: 'service_call', openedAt: '2026-04-12T08:00:00Z' });
-    await visit({ branchId: f.a.id, workOrderId: w12.id, techId: fx.ta1.id, closedAt: '2026-04-12T12:00:00Z', outcome: 'resolved', finding: { unitId: u12.unit.id, causeCode: 'wiring_fault', origin: 'wear' } });
+    await visit({
+      branchId: f.a.id,
+      workOrderId: w12.id,
+      techId: fx.ta1.id,
+      closedAt: '2026-04-12T12:00:00Z',
+      outcome: 'resolved',
+      finding: { unitId: u12.unit.id, causeCode: 'wiring_fault', origin: 'wear' },
+    });
     more = { u4: u4.unit.id, u5: u5.unit.id, u6: u6.unit.id, u7: u7.unit.id, u8: u8.unit.id, u9: u9.unit.id, u12: u12.unit.id };
   });
 
@@ -447,15 +706,21 @@ describe('model alerts', () => {
     const [a] = await alertsOf(mB);
     expect(a!.unchecked.map((u) => u.unitId).sort()).toEqual([more.u5, more.u7, more.u8].sort());
     expect(a!.inspections).toEqual([]); // U6's inspection is in branch A
-    const res = await mB.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
+    const res = await mB
+      .post('/api/reports/fix-quality/model-alerts/inspections')
+      .send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
     expect(res.status).toBe(403);
   });
 
   it('refuses an inspection for a unit that is already checked or for a cause without an alert', async () => {
     const o = await owner();
-    const checked = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault', unitIds: [more.u12] });
+    const checked = await o
+      .post('/api/reports/fix-quality/model-alerts/inspections')
+      .send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault', unitIds: [more.u12] });
     expect(checked.status).toBe(422);
-    const none = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Acme', model: 'AX-1', causeCode: 'component_failure' });
+    const none = await o
+      .post('/api/reports/fix-quality/model-alerts/inspections')
+      .send({ make: 'Acme', model: 'AX-1', causeCode: 'component_failure' });
     expect(none.status).toBe(404);
     const rows = await t.ctx.db.select().from(workOrders).where(eq(workOrders.purpose, 'model-alert:Testmake|TM-10|wiring_fault'));
     expect(rows).toHaveLength(1); // only U6's from the fixture
@@ -463,7 +728,9 @@ describe('model alerts', () => {
 
   it('creates one unplaced inspection per unchecked unit in the unit’s own branch, once', async () => {
     const o = await owner();
-    const res = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
+    const res = await o
+      .post('/api/reports/fix-quality/model-alerts/inspections')
+      .send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
     expect(res.status).toBe(201);
     expect(res.body.created).toBe(4);
     const created = await t.ctx.db
@@ -488,16 +755,36 @@ describe('model alerts', () => {
     expect(a!.inspections).toHaveLength(5);
     const listed = await o.get('/api/work-orders').query({ branchId: f.a.id, state: 'unplaced' });
     const inspection = (listed.body.workOrders as { unitId: string; modelAlert: unknown }[]).find((w) => w.unitId === more.u4);
-    expect(inspection?.modelAlert).toEqual({ title: 'Wiring fault on Testmake TM-10', make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
-    const again = await o.post('/api/reports/fix-quality/model-alerts/inspections').send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
+    expect(inspection?.modelAlert).toEqual({
+      title: 'Wiring fault on Testmake TM-10',
+      make: 'Testmake',
+      model: 'TM-10',
+      causeCode: 'wiring_fault',
+    });
+    const again = await o
+      .post('/api/reports/fix-quality/model-alerts/inspections')
+      .send({ make: 'Testmake', model: 'TM-10', causeCode: 'wiring_fault' });
     expect(again.body.created).toBe(0);
   });
 
   it('raises the Acme alert once the defect shows up at a second site', async () => {
     const u10 = await makeSiteWithUnit(t.ctx.db, f.b.id, { unit: { make: 'Acme', model: 'AX-1' } });
     const u11 = await makeSiteWithUnit(t.ctx.db, f.b.id, { unit: { make: 'Acme', model: 'AX-1' } });
-    const w = await workOrder({ branchId: f.b.id, siteId: u10.site.id, unitId: u10.unit.id, kind: 'service_call', openedAt: '2026-05-01T08:00:00Z' });
-    await visit({ branchId: f.b.id, workOrderId: w.id, techId: fx.tb1.id, closedAt: '2026-05-01T12:00:00Z', outcome: 'resolved', finding: { unitId: u10.unit.id, causeCode: 'component_failure', origin: 'factory_defect' } });
+    const w = await workOrder({
+      branchId: f.b.id,
+      siteId: u10.site.id,
+      unitId: u10.unit.id,
+      kind: 'service_call',
+      openedAt: '2026-05-01T08:00:00Z',
+    });
+    await visit({
+      branchId: f.b.id,
+      workOrderId: w.id,
+      techId: fx.tb1.id,
+      closedAt: '2026-05-01T12:00:00Z',
+      outcome: 'resolved',
+      finding: { unitId: u10.unit.id, causeCode: 'component_failure', origin: 'factory_defect' },
+    });
     const alerts = await alertsOf(await owner());
     const acme = alerts.find((a) => a.make === 'Acme')!;
     expect(acme.sites).toBe(2);
@@ -526,7 +813,10 @@ describe('exports', () => {
     expect(res.status).toBe(200);
     expect(res.headers['content-type']).toMatch(/text\/csv/);
     expect(res.headers['content-disposition']).toContain('coilpath-fix-quality-byTechnician-2026-03-01-to-2026-03-31.csv');
-    const lines = res.text.replace(/^\uFEFF/, '').trim().split(/\r\n/);
+    const lines = res.text
+      .replace(/^\uFEFF/, '')
+      .trim()
+      .split(/\r\n/);
     expect(lines[0]).toBe(
       'group,service_calls_eligible,first_time_fixed,first_time_fix_rate_pct,resolved_first_visits,callbacks,callback_rate_pct,return_visits,return_visits_per_service_call,jobs_resolved,avg_days_to_resolve,pending_in_callback_window',
     );
@@ -539,7 +829,9 @@ describe('exports', () => {
     await db.update(users).set({ name: 'Nguyễn Thị Hương' }).where(eq(users.id, fx.tb1.id));
     const agent = await owner();
     const report = (await agent.get(Q)).body as FixQualityReport;
-    const rows = readCsv((await bytes(agent.get('/api/reports/fix-quality.csv?from=2026-03-01&to=2026-03-31&table=byTechnician'))).body as Buffer);
+    const rows = readCsv(
+      (await bytes(agent.get('/api/reports/fix-quality.csv?from=2026-03-01&to=2026-03-31&table=byTechnician'))).body as Buffer,
+    );
     expect(rows.map((r) => r.group).sort()).toEqual(report.byTechnician.map((g) => g.label).sort());
     expect(rows.map((r) => r.group)).toEqual(expect.arrayContaining(['Łukasz Żółć', 'Nguyễn Thị Hương']));
     for (const g of report.byTechnician) {
@@ -559,14 +851,18 @@ describe('exports', () => {
     expect(lines[0]!.startsWith('work_order,kind,branch,site,unit,make,model,causes,opened_at,')).toBe(true);
     expect(lines).toHaveLength(1 + 3);
     const rows = readCsv(raw);
-    const review = (await agent.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31')).body as { cases: { number: number | null; openedAt: string; branchName: string; siteName: string }[] };
+    const review = (await agent.get('/api/reports/fix-quality/factory-defects?from=2026-03-01&to=2026-03-31')).body as {
+      cases: { number: number | null; openedAt: string; branchName: string; siteName: string }[];
+    };
     for (const c of review.cases) {
       const r = rows.find((x) => x.work_order === `WO-${c.number}`)!;
       const zone = c.branchName === 'Alpha' ? 'America/Chicago' : 'America/Phoenix';
       // The same instant, written in the branch's zone with its offset (CST −06:00 in March before the change, MST −07:00).
       expect(r.opened_at).toMatch(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}[+-]\d{2}:\d{2}$/);
       expect(new Date(r.opened_at!).toISOString()).toBe(new Date(c.openedAt).toISOString());
-      expect(r.opened_at!.slice(-6)).toBe(zone === 'America/Phoenix' ? '-07:00' : new Date(c.openedAt) < new Date('2026-03-08T08:00:00Z') ? '-06:00' : '-05:00');
+      expect(r.opened_at!.slice(-6)).toBe(
+        zone === 'America/Phoenix' ? '-07:00' : new Date(c.openedAt) < new Date('2026-03-08T08:00:00Z') ? '-06:00' : '-05:00',
+      );
       if (c.siteName.startsWith('=')) expect(r.site).toBe(`'${c.siteName}`);
       // The claim's difference from the computed cost: amount − cost, empty while no amount is recorded.
       const amount = r.claim_amount === '' ? null : Number(r.claim_amount);

@@ -4,7 +4,15 @@
  * owner creates for the unchecked ones.
  */
 import { addDays, zonedDate, zonedInstant } from '@coilpath/calc';
-import { causeCodeLabels, modelAlertPurpose, type CauseCode, type CreateInspections, type CreateInspectionsResult, type ModelAlert, type SessionUser } from '@coilpath/contract';
+import {
+  causeCodeLabels,
+  modelAlertPurpose,
+  type CauseCode,
+  type CreateInspections,
+  type CreateInspectionsResult,
+  type ModelAlert,
+  type SessionUser,
+} from '@coilpath/contract';
 import type { Db, Tx } from '../../db/client';
 import type { Clock } from '../../lib/clock';
 import { notFound, unprocessable } from '../../lib/errors';
@@ -34,7 +42,10 @@ export async function loadModelAlerts(db: Tx, filter?: { make: string; model: st
     raisedAt: iso(a.raised_at),
   }));
   const unitRows = await repo.alertUnitRows(db, keys);
-  const inspectionRows = await repo.alertInspectionRows(db, keys.map((k) => k.purpose));
+  const inspectionRows = await repo.alertInspectionRows(
+    db,
+    keys.map((k) => k.purpose),
+  );
   return alertRows.map((a) => {
     const purpose = modelAlertPurpose(a.make, a.model, a.cause_code);
     const units = unitRows.filter((u) => u.make === a.make && u.model === a.model && u.cause_code === a.cause_code);
@@ -52,7 +63,12 @@ export async function modelAlerts(db: Db, user: SessionUser): Promise<ModelAlert
  * alert, each in the unit's own branch and site, so it lands in that branch's Roster queue. Units checked in
  * the meantime are skipped; the same call twice creates nothing the second time.
  */
-export async function createInspections(db: Db, clock: Clock, user: SessionUser, body: CreateInspections): Promise<CreateInspectionsResult> {
+export async function createInspections(
+  db: Db,
+  clock: Clock,
+  user: SessionUser,
+  body: CreateInspections,
+): Promise<CreateInspectionsResult> {
   const purpose = modelAlertPurpose(body.make, body.model, body.causeCode);
   return db.transaction(async (tx) => {
     await actAs(tx, user.id);
@@ -66,9 +82,12 @@ export async function createInspections(db: Db, clock: Clock, user: SessionUser,
       const ids = new Set(unchecked.map((u) => u.unit_id));
       const bad = body.unitIds.filter((id) => !ids.has(id));
       if (bad.length) {
-        throw unprocessable(`${bad.length} of the chosen units are not unchecked units of this alert (already checked, archived or another model). Reload the alerts and choose again.`, {
-          unitIds: bad,
-        });
+        throw unprocessable(
+          `${bad.length} of the chosen units are not unchecked units of this alert (already checked, archived or another model). Reload the alerts and choose again.`,
+          {
+            unitIds: bad,
+          },
+        );
       }
       const want = new Set(body.unitIds);
       chosen = unchecked.filter((u) => want.has(u.unit_id));

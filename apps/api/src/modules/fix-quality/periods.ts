@@ -23,7 +23,11 @@ const MONTH_MS = (y: number, m: number) => Date.UTC(y, m, 1);
  * `sumsUntil`, only months that end at or before that instant come from the sums (the sums hold the counts
  * of mature jobs; see `fixQualityReport`), the days after them are counted job by job.
  */
-export function splitByMonths(start: string, end: string, sumsUntil?: string): { months: [string, string] | null; edges: [string, string][] } {
+export function splitByMonths(
+  start: string,
+  end: string,
+  sumsUntil?: string,
+): { months: [string, string] | null; edges: [string, string][] } {
   const s = new Date(start);
   const e = new Date(end);
   const firstFull = s.getUTCDate() === 1 ? s.getTime() : MONTH_MS(s.getUTCFullYear(), s.getUTCMonth() + 1);

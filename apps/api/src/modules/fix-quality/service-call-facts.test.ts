@@ -42,7 +42,13 @@ describe('service_call_facts', () => {
     const tech = await makeUser(db, 'technician', branch.id);
     const tech2 = await makeUser(db, 'technician', branch.id);
     const { site, unit } = await makeSiteWithUnit(db, branch.id);
-    const job = await makeWorkOrder(db, { branchId: branch.id, siteId: site.id, unitId: unit.id, kind: 'service_call', createdAt: new Date('2026-03-01T08:00:00Z') });
+    const job = await makeWorkOrder(db, {
+      branchId: branch.id,
+      siteId: site.id,
+      unitId: unit.id,
+      kind: 'service_call',
+      createdAt: new Date('2026-03-01T08:00:00Z'),
+    });
     const pm = await makeWorkOrder(db, { branchId: branch.id, siteId: site.id, unitId: unit.id, kind: 'planned_maintenance' });
 
     let facts = await expectRebuildAgrees();
@@ -50,11 +56,23 @@ describe('service_call_facts', () => {
     expect(facts[0]).toMatchObject({ jobId: job.id, firstVisitId: null, returnVisits: 0 });
 
     const [v1] = await db.insert(visits).values({ branchId: branch.id, workOrderId: job.id, techId: tech.id }).returning();
-    await db.update(visits).set({ closedAt: new Date('2026-03-02T10:00:00Z'), outcome: 'needs_return' }).where(eq(visits.id, v1!.id));
-    await db.insert(findings).values({ visitId: v1!.id, unitId: unit.id, causeCode: 'airflow', origin: 'wear', createdAt: new Date('2026-03-02T09:00:00Z') });
+    await db
+      .update(visits)
+      .set({ closedAt: new Date('2026-03-02T10:00:00Z'), outcome: 'needs_return' })
+      .where(eq(visits.id, v1!.id));
+    await db
+      .insert(findings)
+      .values({ visitId: v1!.id, unitId: unit.id, causeCode: 'airflow', origin: 'wear', createdAt: new Date('2026-03-02T09:00:00Z') });
     facts = await expectRebuildAgrees();
     // One finding: it is the root cause by default.
-    expect(facts[0]).toMatchObject({ firstVisitId: v1!.id, firstOutcome: 'needs_return', techId: tech.id, causeCode: 'airflow', origin: 'wear', lastOutcome: 'needs_return' });
+    expect(facts[0]).toMatchObject({
+      firstVisitId: v1!.id,
+      firstOutcome: 'needs_return',
+      techId: tech.id,
+      causeCode: 'airflow',
+      origin: 'wear',
+      lastOutcome: 'needs_return',
+    });
     const [second] = await db
       .insert(findings)
       .values({ visitId: v1!.id, unitId: unit.id, causeCode: 'settings', origin: 'external', createdAt: new Date('2026-03-02T09:30:00Z') })
@@ -75,14 +93,50 @@ describe('service_call_facts', () => {
     expect(facts[0]).toMatchObject({ causeCode: 'airflow', origin: 'wear' });
 
     // A return visit and a callback booked off the job; the return visit resolves it.
-    const rv = await makeWorkOrder(db, { branchId: branch.id, siteId: site.id, unitId: unit.id, kind: 'return_visit', originWorkOrderId: job.id, createdAt: new Date('2026-03-03T08:00:00Z') });
-    await db.insert(visits).values({ branchId: branch.id, workOrderId: rv.id, techId: tech2.id, closedAt: new Date('2026-03-04T12:00:00Z'), outcome: 'resolved' });
-    const cb = await makeWorkOrder(db, { branchId: branch.id, siteId: site.id, unitId: unit.id, kind: 'callback', originWorkOrderId: job.id, createdAt: new Date('2026-03-20T08:00:00Z') });
+    const rv = await makeWorkOrder(db, {
+      branchId: branch.id,
+      siteId: site.id,
+      unitId: unit.id,
+      kind: 'return_visit',
+      originWorkOrderId: job.id,
+      createdAt: new Date('2026-03-03T08:00:00Z'),
+    });
+    await db
+      .insert(visits)
+      .values({
+        branchId: branch.id,
+        workOrderId: rv.id,
+        techId: tech2.id,
+        closedAt: new Date('2026-03-04T12:00:00Z'),
+        outcome: 'resolved',
+      });
+    const cb = await makeWorkOrder(db, {
+      branchId: branch.id,
+      siteId: site.id,
+      unitId: unit.id,
+      kind: 'callback',
+      originWorkOrderId: job.id,
+      createdAt: new Date('2026-03-20T08:00:00Z'),
+    });
     facts = await expectRebuildAgrees();
-    expect(facts[0]).toMatchObject({ returnVisits: 1, firstReturnAt: '2026-03-03T08:00:00.000Z', firstCallbackAt: '2026-03-20T08:00:00.000Z', lastOutcome: 'resolved', lastClosedAt: '2026-03-04T12:00:00.000Z' });
+    expect(facts[0]).toMatchObject({
+      returnVisits: 1,
+      firstReturnAt: '2026-03-03T08:00:00.000Z',
+      firstCallbackAt: '2026-03-20T08:00:00.000Z',
+      lastOutcome: 'resolved',
+      lastClosedAt: '2026-03-04T12:00:00.000Z',
+    });
 
     // An earlier closed visit becomes the first visit; the first finding is deleted; the callback goes away.
-    await db.insert(visits).values({ branchId: branch.id, workOrderId: job.id, techId: tech2.id, closedAt: new Date('2026-03-01T15:00:00Z'), outcome: 'declined' });
+    await db
+      .insert(visits)
+      .values({
+        branchId: branch.id,
+        workOrderId: job.id,
+        techId: tech2.id,
+        closedAt: new Date('2026-03-01T15:00:00Z'),
+        outcome: 'declined',
+      });
     await db.delete(findings).where(eq(findings.causeCode, 'airflow'));
     await db.delete(workOrders).where(eq(workOrders.id, cb.id));
     facts = await expectRebuildAgrees();

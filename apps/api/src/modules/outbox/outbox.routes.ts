@@ -40,16 +40,13 @@ export function outboxRoutes(ctx: AppContext): Router {
   );
   r.get(
     '/:id/attachments/:index',
-    endpoint(
-      { params: idParams.extend({ index: z.coerce.number().int().min(0).max(100) }) },
-      async ({ params, res }) => {
-        const [m] = await ctx.db.select().from(mailOutbox).where(eq(mailOutbox.id, params.id)).limit(1);
-        const a = m?.attachments[params.index];
-        if (!m || !a?.storageKey) throw notFound('attachment');
-        const content = await readStoredFile(ctx.storage, a.storageKey, 'e-mail attachment');
-        sendStoredFile(res, { content, contentType: a.contentType, name: a.filename });
-      },
-    ),
+    endpoint({ params: idParams.extend({ index: z.coerce.number().int().min(0).max(100) }) }, async ({ params, res }) => {
+      const [m] = await ctx.db.select().from(mailOutbox).where(eq(mailOutbox.id, params.id)).limit(1);
+      const a = m?.attachments[params.index];
+      if (!m || !a?.storageKey) throw notFound('attachment');
+      const content = await readStoredFile(ctx.storage, a.storageKey, 'e-mail attachment');
+      sendStoredFile(res, { content, contentType: a.contentType, name: a.filename });
+    }),
   );
   return r;
 }

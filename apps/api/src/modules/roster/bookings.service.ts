@@ -20,10 +20,31 @@ import {
   requestedOverrides,
   workOrderLabel,
 } from '@coilpath/contract';
-import { bookingBreaches, unoverridden, workingWindow, workOrderDueAt, type BookingRule as CalcBookingRule, type RuleBreach, type RuleJob } from '@coilpath/calc';
+import {
+  bookingBreaches,
+  unoverridden,
+  workingWindow,
+  workOrderDueAt,
+  type BookingRule as CalcBookingRule,
+  type RuleBreach,
+  type RuleJob,
+} from '@coilpath/calc';
 import type { z } from 'zod';
 import type { Db, Tx } from '../../db/client';
-import { attachments, auditEvents, bookings, branches, findings, leakCases, readings, sites, units, users, visits, workOrders } from '../../db/schema';
+import {
+  attachments,
+  auditEvents,
+  bookings,
+  branches,
+  findings,
+  leakCases,
+  readings,
+  sites,
+  units,
+  users,
+  visits,
+  workOrders,
+} from '../../db/schema';
 import { assertBranch, branchScope, resolveBranch } from '../../auth/policy';
 import { conflict, notFound } from '../../lib/errors';
 import { localDay, localTime, toCalcTechnician } from './scheduling';
@@ -35,7 +56,9 @@ const rulesAgree: Same<CalcBookingRule, BookingRule> = true;
 void rulesAgree;
 
 /** What the booking rules read of a work order. */
-export function ruleJob(w: Pick<typeof workOrders.$inferSelect, 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>): RuleJob {
+export function ruleJob(
+  w: Pick<typeof workOrders.$inferSelect, 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>,
+): RuleJob {
   return { requiredSkill: w.requiredSkill, requiredCertification: w.requiredCertification, dueAt: workOrderDueAt(w) };
 }
 
@@ -137,7 +160,9 @@ export async function listBookings(db: Db, user: SessionUser, q: z.output<typeof
     overlapping(new Date(q.from), new Date(q.to)),
     q.techId ? eq(bookings.techId, q.techId) : undefined,
   ];
-  const rows = await selectBookings(db).where(and(...where)).orderBy(asc(bookings.startAt));
+  const rows = await selectBookings(db)
+    .where(and(...where))
+    .orderBy(asc(bookings.startAt));
   return rows.map(toBooking);
 }
 
@@ -155,7 +180,10 @@ interface Placement {
   overrideReason?: string | undefined;
 }
 
-type WorkOrderRow = Pick<typeof workOrders.$inferSelect, 'id' | 'number' | 'branchId' | 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>;
+type WorkOrderRow = Pick<
+  typeof workOrders.$inferSelect,
+  'id' | 'number' | 'branchId' | 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'
+>;
 
 /** "another technician", "another time", "another technician or time". */
 function whatElse(rules: readonly BookingRule[]): string {
@@ -183,7 +211,13 @@ function ruleRefusal(open: readonly RuleBreach[], extra: Record<string, unknown>
  * branch and a double booking; refuses a broken booking rule the request does not override. Returns the
  * rules the placement breaks (all of them overridden).
  */
-async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Placement, excludeBookingId?: string): Promise<{ overridden: RuleBreach[] }> {
+async function checkPlacement(
+  tx: Tx,
+  user: SessionUser,
+  wo: WorkOrderRow,
+  p: Placement,
+  excludeBookingId?: string,
+): Promise<{ overridden: RuleBreach[] }> {
   const [tech] = await tx
     .select({
       id: users.id,
@@ -205,9 +239,22 @@ async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Pl
   assertBranch(user, tech.branchId, 'technician');
   if (!tech.active) throw conflict('technician_inactive', `${tech.name} is no longer active. Pick another technician.`);
   if (tech.branchId !== wo.branchId) {
-    throw conflict('other_branch', `${tech.name} works in another branch than ${workOrderLabel(wo.number)}. Pick a technician of the work order's branch.`);
+    throw conflict(
+      'other_branch',
+      `${tech.name} works in another branch than ${workOrderLabel(wo.number)}. Pick a technician of the work order's branch.`,
+    );
   }
-  const [branch] = await tx.select({ id: branches.id, timeZone: branches.timeZone, baseLat: branches.baseLat, baseLon: branches.baseLon, holidays: branches.holidays }).from(branches).where(eq(branches.id, wo.branchId)).limit(1);
+  const [branch] = await tx
+    .select({
+      id: branches.id,
+      timeZone: branches.timeZone,
+      baseLat: branches.baseLat,
+      baseLon: branches.baseLon,
+      holidays: branches.holidays,
+    })
+    .from(branches)
+    .where(eq(branches.id, wo.branchId))
+    .limit(1);
   const tz = branch!.timeZone;
 
   // No overlap with another booking of the same technician (not overridable: checked first, so nobody
@@ -218,11 +265,7 @@ async function checkPlacement(tx: Tx, user: SessionUser, wo: WorkOrderRow, p: Pl
     .innerJoin(workOrders, eq(workOrders.id, bookings.workOrderId))
     .innerJoin(sites, eq(sites.id, workOrders.siteId))
     .where(
-      and(
-        eq(bookings.techId, tech.id),
-        overlapping(p.startAt, p.endAt),
-        excludeBookingId ? ne(bookings.id, excludeBookingId) : undefined,
-      ),
+      and(eq(bookings.techId, tech.id), overlapping(p.startAt, p.endAt), excludeBookingId ? ne(bookings.id, excludeBookingId) : undefined),
     )
     .orderBy(asc(bookings.startAt))
     .limit(1);
@@ -292,11 +335,20 @@ export async function createBooking(tx: Tx, user: SessionUser, input: z.output<t
   await actAs(tx, user.id);
   const wo = await lockWorkOrder(tx, user, input.workOrderId);
   if (wo.state !== 'unplaced') {
-    throw conflict('not_unplaced', `${workOrderLabel(wo.number)} is already ${wo.state.replace('_', ' ')}. Move its booking on the calendar instead.`);
+    throw conflict(
+      'not_unplaced',
+      `${workOrderLabel(wo.number)} is already ${wo.state.replace('_', ' ')}. Move its booking on the calendar instead.`,
+    );
   }
   const startAt = new Date(input.startAt);
   const endAt = input.endAt ? new Date(input.endAt) : new Date(startAt.getTime() + wo.estimatedMinutes * MINUTE);
-  const p: Placement = { techId: input.techId, startAt, endAt, overrideRules: requestedOverrides(input), overrideReason: input.overrideReason };
+  const p: Placement = {
+    techId: input.techId,
+    startAt,
+    endAt,
+    overrideRules: requestedOverrides(input),
+    overrideReason: input.overrideReason,
+  };
   const { overridden } = await checkPlacement(tx, user, wo, p);
   const [b] = await tx
     .insert(bookings)
@@ -313,7 +365,9 @@ export async function createBooking(tx: Tx, user: SessionUser, input: z.output<t
       updatedAt: now,
     })
     .returning({ id: bookings.id });
-  await tx.insert(visits).values({ branchId: wo.branchId, workOrderId: wo.id, bookingId: b!.id, techId: p.techId, createdAt: now, updatedAt: now });
+  await tx
+    .insert(visits)
+    .values({ branchId: wo.branchId, workOrderId: wo.id, bookingId: b!.id, techId: p.techId, createdAt: now, updatedAt: now });
   await tx.update(workOrders).set({ state: 'booked', updatedAt: now }).where(eq(workOrders.id, wo.id));
   if (overridden.length) await auditOverride(tx, user, b!.id, p, overridden);
   return (await getBooking(tx, b!.id))!;
@@ -321,7 +375,11 @@ export async function createBooking(tx: Tx, user: SessionUser, input: z.output<t
 
 /** Whether the visit of a booking has begun (the technician set off, or recorded anything). */
 async function visitStarted(tx: Tx, bookingId: string): Promise<{ visitId: string | null; started: boolean }> {
-  const [v] = await tx.select({ id: visits.id, enRouteAt: visits.enRouteAt, onSiteAt: visits.onSiteAt, closedAt: visits.closedAt }).from(visits).where(eq(visits.bookingId, bookingId)).limit(1);
+  const [v] = await tx
+    .select({ id: visits.id, enRouteAt: visits.enRouteAt, onSiteAt: visits.onSiteAt, closedAt: visits.closedAt })
+    .from(visits)
+    .where(eq(visits.bookingId, bookingId))
+    .limit(1);
   if (!v) return { visitId: null, started: false };
   if (v.enRouteAt || v.onSiteAt || v.closedAt) return { visitId: v.id, started: true };
   const recorded = await Promise.all([
@@ -340,17 +398,31 @@ async function lockBooking(tx: Tx, user: SessionUser, id: string) {
 }
 
 /** Moves, resizes or reassigns a booking based on the version the client saw. */
-export async function updateBooking(tx: Tx, user: SessionUser, id: string, input: z.output<typeof bookingUpdateSchema>, now: Date): Promise<Booking> {
+export async function updateBooking(
+  tx: Tx,
+  user: SessionUser,
+  id: string,
+  input: z.output<typeof bookingUpdateSchema>,
+  now: Date,
+): Promise<Booking> {
   await actAs(tx, user.id);
   const b = await lockBooking(tx, user, id);
   if (b.version !== input.version) {
     const current = await getBooking(tx, id);
-    throw conflict('stale_version', 'This booking was moved by someone else. It has been reloaded; make your change again if it is still needed.', { current });
+    throw conflict(
+      'stale_version',
+      'This booking was moved by someone else. It has been reloaded; make your change again if it is still needed.',
+      { current },
+    );
   }
   const [wo] = await tx.select().from(workOrders).where(eq(workOrders.id, b.workOrderId)).limit(1);
   const techId = input.techId ?? b.techId;
   const startAt = input.startAt ? new Date(input.startAt) : b.startAt;
-  const endAt = input.endAt ? new Date(input.endAt) : input.startAt ? new Date(startAt.getTime() + (b.endAt.getTime() - b.startAt.getTime())) : b.endAt;
+  const endAt = input.endAt
+    ? new Date(input.endAt)
+    : input.startAt
+      ? new Date(startAt.getTime() + (b.endAt.getTime() - b.startAt.getTime()))
+      : b.endAt;
   if (endAt <= startAt) throw conflict('bad_span', 'The booking must end after it starts.');
   const placementChanged = techId !== b.techId || startAt.getTime() !== b.startAt.getTime() || endAt.getTime() !== b.endAt.getTime();
   // An unchanged placement keeps its override; a new one is checked afresh against every rule.
@@ -359,10 +431,14 @@ export async function updateBooking(tx: Tx, user: SessionUser, id: string, input
   const p: Placement = { techId, startAt, endAt, overrideRules: requestedOverrides(input), overrideReason: input.overrideReason };
   if (placementChanged) {
     if (wo!.state !== 'booked') {
-      throw conflict('visit_started', `${workOrderLabel(wo!.number)} is already ${wo!.state.replace('_', ' ')}; its booking can no longer be moved.`);
+      throw conflict(
+        'visit_started',
+        `${workOrderLabel(wo!.number)} is already ${wo!.state.replace('_', ' ')}; its booking can no longer be moved.`,
+      );
     }
     const { started } = await visitStarted(tx, b.id);
-    if (started) throw conflict('visit_started', `The visit for ${workOrderLabel(wo!.number)} has started; its booking can no longer be moved.`);
+    if (started)
+      throw conflict('visit_started', `The visit for ${workOrderLabel(wo!.number)} has started; its booking can no longer be moved.`);
     overridden = (await checkPlacement(tx, user, wo!, p, b.id)).overridden;
     overrides = overrideColumns(user, overridden, p.overrideReason);
   }
@@ -373,7 +449,11 @@ export async function updateBooking(tx: Tx, user: SessionUser, id: string, input
     .returning({ id: bookings.id });
   if (updated.length === 0) {
     const current = await getBooking(tx, id);
-    throw conflict('stale_version', 'This booking was moved by someone else. It has been reloaded; make your change again if it is still needed.', { current });
+    throw conflict(
+      'stale_version',
+      'This booking was moved by someone else. It has been reloaded; make your change again if it is still needed.',
+      { current },
+    );
   }
   if (techId !== b.techId) await tx.update(visits).set({ techId, updatedAt: now }).where(eq(visits.bookingId, b.id));
   if (overridden.length) await auditOverride(tx, user, b.id, p, overridden);
@@ -384,7 +464,12 @@ export async function updateBooking(tx: Tx, user: SessionUser, id: string, input
 export async function deleteBooking(tx: Tx, user: SessionUser, id: string, now: Date): Promise<void> {
   await actAs(tx, user.id);
   const b = await lockBooking(tx, user, id);
-  const [wo] = await tx.select({ id: workOrders.id, number: workOrders.number, state: workOrders.state }).from(workOrders).where(eq(workOrders.id, b.workOrderId)).for('update').limit(1);
+  const [wo] = await tx
+    .select({ id: workOrders.id, number: workOrders.number, state: workOrders.state })
+    .from(workOrders)
+    .where(eq(workOrders.id, b.workOrderId))
+    .for('update')
+    .limit(1);
   const { visitId, started } = await visitStarted(tx, b.id);
   if (started || (wo && wo.state !== 'booked')) {
     throw conflict('visit_started', `The visit for ${workOrderLabel(wo?.number)} has started; it can no longer be unbooked.`);

@@ -45,7 +45,10 @@ describe('roster_revisions', () => {
         throw new Error('changed my mind');
       }),
     ).rejects.toThrow('changed my mind');
-    await t.ctx.db.update(users).set({ lastSignInAt: new Date('2027-03-01T12:00:00Z') }).where(eq(users.id, f.inA.technician.id));
+    await t.ctx.db
+      .update(users)
+      .set({ lastSignInAt: new Date('2027-03-01T12:00:00Z') })
+      .where(eq(users.id, f.inA.technician.id));
     expect(await revisions()).toEqual(before);
 
     await t.ctx.db.update(users).set({ workingHours: null }).where(eq(users.id, f.inA.technician.id));
@@ -91,7 +94,10 @@ describe('createRevisionCache', () => {
     expect(computed).toBe(1);
 
     await t.ctx.db.update(sites).set({ name: 'Renamed again' }).where(eq(sites.id, siteA.site.id));
-    const [x, y] = await Promise.all([cache.read(t.ctx.database, f.a.id, 'week 1', compute), cache.read(t.ctx.database, f.a.id, 'week 1', compute)]);
+    const [x, y] = await Promise.all([
+      cache.read(t.ctx.database, f.a.id, 'week 1', compute),
+      cache.read(t.ctx.database, f.a.id, 'week 1', compute),
+    ]);
     expect(x).toBe(y);
     expect(x).toEqual({ n: 2 });
     expect(computed).toBe(2);
@@ -111,7 +117,9 @@ describe('createRevisionCache', () => {
 
   it('keeps nothing when the computation fails', async () => {
     const cache = createRevisionCache();
-    await expect(cache.read(t.ctx.database, f.a.id, 'bad', () => Promise.reject(new Error('no such week')))).rejects.toThrow('no such week');
+    await expect(cache.read(t.ctx.database, f.a.id, 'bad', () => Promise.reject(new Error('no such week')))).rejects.toThrow(
+      'no such week',
+    );
     expect(cache.size).toBe(0);
     expect(await cache.read(t.ctx.database, f.a.id, 'bad', async () => 'fine now')).toBe('fine now');
   });
@@ -131,7 +139,8 @@ describe('the Roster week across two API processes on one database', () => {
     const techMonday = (res: { body: { load: { techId: string; day: string; bookedMinutes: number }[] } }) =>
       res.body.load.find((l) => l.techId === tech.id && l.day === '2027-03-08')?.bookedMinutes;
 
-    const ids = async () => ((await there.get('/api/bookings').query(week)).body.bookings as { workOrderId: string }[]).map((b) => b.workOrderId);
+    const ids = async () =>
+      ((await there.get('/api/bookings').query(week)).body.bookings as { workOrderId: string }[]).map((b) => b.workOrderId);
     expect(await ids()).not.toContain(w.id);
     expect(techMonday(await there.get('/api/roster/load').query(loadWeek))).toBe(0);
 
@@ -148,7 +157,10 @@ describe('the Roster week across two API processes on one database', () => {
 
     // A change written by neither API (another process, a migration, an administrator's SQL) shows too.
     await t.ctx.db.update(sites).set({ name: 'Harbour Point Annex' }).where(eq(sites.id, site.site.id));
-    const after = (await there.get('/api/bookings').query(week)).body.bookings as { workOrderId: string; workOrder: { siteName: string } }[];
+    const after = (await there.get('/api/bookings').query(week)).body.bookings as {
+      workOrderId: string;
+      workOrder: { siteName: string };
+    }[];
     expect(after.find((b) => b.workOrderId === w.id)?.workOrder.siteName).toBe('Harbour Point Annex');
     expect((await there.get('/api/bookings').query(week).set('If-None-Match', held.headers.etag!)).status).toBe(200);
 

@@ -16,7 +16,16 @@ import { endpoint, idParams } from '../../lib/endpoint';
 import { createRevisionCache } from '../../lib/revision-cache';
 import { createBooking, deleteBooking, listBookings, updateBooking } from './bookings.service';
 import { evenOutApply, evenOutPreview, listSites, listTechnicians, load, rosterBranch, suggest } from './roster.service';
-import { bookingAnswerSchema, bookingListSchema, evenOutApplyResultSchema, evenOutPreviewSchema, loadSchema, rosterSiteListSchema, suggestResultSchema, technicianListSchema } from '@coilpath/contract/responses';
+import {
+  bookingAnswerSchema,
+  bookingListSchema,
+  evenOutApplyResultSchema,
+  evenOutPreviewSchema,
+  loadSchema,
+  rosterSiteListSchema,
+  suggestResultSchema,
+  technicianListSchema,
+} from '@coilpath/contract/responses';
 
 const bookers = requireRole('owner', 'branch_manager', 'dispatcher');
 
@@ -69,7 +78,9 @@ export function rosterRoutes(ctx: AppContext): Router {
   );
   r.get(
     '/sites',
-    endpoint({ query: rosterBranchQuerySchema, response: rosterSiteListSchema }, async ({ user, query }) => ({ sites: await listSites(ctx.db, await rosterBranch(ctx.db, user, query.branchId)) })),
+    endpoint({ query: rosterBranchQuerySchema, response: rosterSiteListSchema }, async ({ user, query }) => ({
+      sites: await listSites(ctx.db, await rosterBranch(ctx.db, user, query.branchId)),
+    })),
   );
   r.get(
     '/load',
@@ -77,11 +88,21 @@ export function rosterRoutes(ctx: AppContext): Router {
       loads.json(ctx.database, resolveBranch(user, query.branchId), `${query.from} ${query.to}`, () => load(ctx.db, user, query)),
     ),
   );
-  r.post('/suggest', endpoint({ body: suggestSchema, response: suggestResultSchema }, ({ user, body }) => suggest(ctx.db, user, body, ctx.clock.now())));
-  r.post('/even-out', endpoint({ body: evenOutSchema, response: evenOutPreviewSchema }, ({ user, body }) => evenOutPreview(ctx.db, user, body, ctx.clock.now())));
+  r.post(
+    '/suggest',
+    endpoint({ body: suggestSchema, response: suggestResultSchema }, ({ user, body }) => suggest(ctx.db, user, body, ctx.clock.now())),
+  );
+  r.post(
+    '/even-out',
+    endpoint({ body: evenOutSchema, response: evenOutPreviewSchema }, ({ user, body }) =>
+      evenOutPreview(ctx.db, user, body, ctx.clock.now()),
+    ),
+  );
   r.post(
     '/even-out/apply',
-    endpoint({ body: evenOutApplySchema, response: evenOutApplyResultSchema }, async ({ user, body }) => ({ bookings: await evenOutApply(ctx.db, user, body, ctx.clock.now()) })),
+    endpoint({ body: evenOutApplySchema, response: evenOutApplyResultSchema }, async ({ user, body }) => ({
+      bookings: await evenOutApply(ctx.db, user, body, ctx.clock.now()),
+    })),
   );
   return r;
 }

@@ -27,7 +27,17 @@ import { actAs } from '../events/actor';
 export async function rosterBranch(db: Tx, user: SessionUser, requested: string | undefined): Promise<BranchRow> {
   const id = resolveBranch(user, requested);
   if (!id) throw badRequest('Choose a branch to see its roster.');
-  const [b] = await db.select({ id: branches.id, timeZone: branches.timeZone, baseLat: branches.baseLat, baseLon: branches.baseLon, holidays: branches.holidays }).from(branches).where(eq(branches.id, id)).limit(1);
+  const [b] = await db
+    .select({
+      id: branches.id,
+      timeZone: branches.timeZone,
+      baseLat: branches.baseLat,
+      baseLon: branches.baseLon,
+      holidays: branches.holidays,
+    })
+    .from(branches)
+    .where(eq(branches.id, id))
+    .limit(1);
   if (!b) throw notFound('branch');
   return b;
 }
@@ -57,7 +67,13 @@ export async function listTechnicians(db: Db, branch: BranchRow): Promise<Techni
 }
 
 /** Bookings of the branch overlapping [start, end), with the site's location and the unit. */
-async function branchBookings(db: Tx, branchId: string, start: Date, end: Date, extra?: { unitId?: string | null; excludeWorkOrderId?: string }) {
+async function branchBookings(
+  db: Tx,
+  branchId: string,
+  start: Date,
+  end: Date,
+  extra?: { unitId?: string | null; excludeWorkOrderId?: string },
+) {
   const rows = await db
     .select({
       id: bookings.id,
@@ -97,7 +113,13 @@ async function branchBookings(db: Tx, branchId: string, start: Date, end: Date, 
       .from(bookings)
       .innerJoin(workOrders, eq(workOrders.id, bookings.workOrderId))
       .innerJoin(sites, eq(sites.id, workOrders.siteId))
-      .where(and(eq(workOrders.unitId, extra.unitId), lt(bookings.endAt, start), extra.excludeWorkOrderId ? ne(bookings.workOrderId, extra.excludeWorkOrderId) : undefined))
+      .where(
+        and(
+          eq(workOrders.unitId, extra.unitId),
+          lt(bookings.endAt, start),
+          extra.excludeWorkOrderId ? ne(bookings.workOrderId, extra.excludeWorkOrderId) : undefined,
+        ),
+      )
       .limit(200);
     const seen = new Set(rows.map((r) => r.id));
     for (const h of history) if (!seen.has(h.id)) rows.push(h);
@@ -105,7 +127,11 @@ async function branchBookings(db: Tx, branchId: string, start: Date, end: Date, 
   return rows;
 }
 
-export async function load(db: Db, user: SessionUser, q: z.output<typeof loadQuerySchema>): Promise<{ timeZone: string; load: TechnicianDayLoad[] }> {
+export async function load(
+  db: Db,
+  user: SessionUser,
+  q: z.output<typeof loadQuerySchema>,
+): Promise<{ timeZone: string; load: TechnicianDayLoad[] }> {
   const branch = await rosterBranch(db, user, q.branchId);
   const techs = (await branchTechs(db, branch.id)).map((t) => toCalcTechnician(t, branch));
   const range = localRange(q.from, q.to, branch.timeZone);
@@ -157,10 +183,18 @@ function toJob(r: PlanningRow, now: Date): SchedulingJob {
   };
 }
 
-export async function suggest(db: Db, user: SessionUser, input: z.output<typeof suggestSchema>, now: Date): Promise<{ workOrderId: string; day: string; candidates: Candidate[] }> {
+export async function suggest(
+  db: Db,
+  user: SessionUser,
+  input: z.output<typeof suggestSchema>,
+  now: Date,
+): Promise<{ workOrderId: string; day: string; candidates: Candidate[] }> {
   const row = await workOrderForPlanning(db, user, input.workOrderId);
   if (row.wo.state !== 'unplaced' && row.wo.state !== 'booked') {
-    throw conflict('work_order_finished', `${workOrderLabel(row.wo.number)} is ${row.wo.state.replace('_', ' ')}; there is nothing to book.`);
+    throw conflict(
+      'work_order_finished',
+      `${workOrderLabel(row.wo.number)} is ${row.wo.state.replace('_', ' ')}; there is nothing to book.`,
+    );
   }
   const branch = await rosterBranch(db, user, row.wo.branchId);
   const techRows = await branchTechs(db, branch.id);
@@ -319,7 +353,10 @@ export async function evenOutApply(db: Db, user: SessionUser, input: z.output<ty
   if (new Set(moved).size !== moved.length) throw badRequest('A booking appears twice in the moves.');
   const numbers = new Map(
     ids.length
-      ? (await db.select({ id: workOrders.id, number: workOrders.number }).from(workOrders).where(inArray(workOrders.id, ids))).map((r) => [r.id, r.number])
+      ? (await db.select({ id: workOrders.id, number: workOrders.number }).from(workOrders).where(inArray(workOrders.id, ids))).map((r) => [
+          r.id,
+          r.number,
+        ])
       : [],
   );
   const refused = (e: unknown, label: string, details: Record<string, unknown>) => {
@@ -336,7 +373,9 @@ export async function evenOutApply(db: Db, user: SessionUser, input: z.output<ty
     const out: Booking[] = [];
     for (const m of input.moves) {
       try {
-        out.push(await updateBooking(tx, user, m.bookingId, { version: m.version, techId: m.techId, startAt: m.startAt, endAt: m.endAt }, now));
+        out.push(
+          await updateBooking(tx, user, m.bookingId, { version: m.version, techId: m.techId, startAt: m.startAt, endAt: m.endAt }, now),
+        );
       } catch (e) {
         const b = await getBookingLabel(tx, m.bookingId);
         throw refused(e, `Moving ${b}`, { bookingId: m.bookingId });
@@ -373,9 +412,24 @@ export async function listSites(db: Db, branch: BranchRow): Promise<RosterSite[]
     .orderBy(asc(sites.name));
   const unitRows = siteRows.length
     ? await db
-        .select({ id: units.id, siteId: units.siteId, tag: units.tag, make: units.make, model: units.model, refrigerant: units.refrigerant })
+        .select({
+          id: units.id,
+          siteId: units.siteId,
+          tag: units.tag,
+          make: units.make,
+          model: units.model,
+          refrigerant: units.refrigerant,
+        })
         .from(units)
-        .where(and(inArray(units.siteId, siteRows.map((s) => s.id)), isNull(units.archivedAt)))
+        .where(
+          and(
+            inArray(
+              units.siteId,
+              siteRows.map((s) => s.id),
+            ),
+            isNull(units.archivedAt),
+          ),
+        )
         .orderBy(asc(units.tag))
     : [];
   return siteRows.map((s) => ({

@@ -93,13 +93,22 @@ describe('POST /api/bookings', () => {
     const noReason = await book(dispatcherA, w.id, techA, '2027-03-10T21:00:00Z', { overrideHours: true });
     expect(noReason.status).toBe(400);
 
-    const ok = await book(dispatcherA, w.id, techA, '2027-03-10T21:00:00Z', { overrideHours: true, overrideReason: 'Store closes at 17:00; customer asked' });
+    const ok = await book(dispatcherA, w.id, techA, '2027-03-10T21:00:00Z', {
+      overrideHours: true,
+      overrideReason: 'Store closes at 17:00; customer asked',
+    });
     expect(ok.status).toBe(201);
     expect(ok.body.booking).toMatchObject({ hoursOverride: true, overrideReason: 'Store closes at 17:00; customer asked' });
     const [row] = await t.ctx.db.select().from(bookings).where(eq(bookings.id, ok.body.booking.id));
     expect(row!.overrideById).toBe(f.inA.dispatcher.id);
-    expect(ok.body.booking).toMatchObject({ overrideRules: ['working_hours'], overrideBy: { id: f.inA.dispatcher.id, name: f.inA.dispatcher.name } });
-    const audit = await t.ctx.db.select().from(auditEvents).where(and(eq(auditEvents.entityId, ok.body.booking.id), eq(auditEvents.action, 'booking.override')));
+    expect(ok.body.booking).toMatchObject({
+      overrideRules: ['working_hours'],
+      overrideBy: { id: f.inA.dispatcher.id, name: f.inA.dispatcher.name },
+    });
+    const audit = await t.ctx.db
+      .select()
+      .from(auditEvents)
+      .where(and(eq(auditEvents.entityId, ok.body.booking.id), eq(auditEvents.action, 'booking.override')));
     expect(audit).toHaveLength(1);
     expect(audit[0]!.actorId).toBe(f.inA.dispatcher.id);
     expect(audit[0]!.details).toMatchObject({ rules: ['working_hours'], reason: 'Store closes at 17:00; customer asked' });
@@ -227,7 +236,9 @@ describe('PATCH /api/bookings/:id', () => {
     const created = (await book(dispatcherA, w.id, techA, '2027-03-19T14:00:00Z')).body.booking;
     expect((await dispatcherB.patch(`/api/bookings/${created.id}`).send({ version: 1, startAt: '2027-03-19T15:00:00Z' })).status).toBe(404);
     expect((await dispatcherB.delete(`/api/bookings/${created.id}`)).status).toBe(404);
-    expect((await dispatcherB.get('/api/bookings').query({ branchId: f.a.id, from: '2027-03-15T00:00:00Z', to: '2027-03-22T00:00:00Z' })).status).toBe(404);
+    expect(
+      (await dispatcherB.get('/api/bookings').query({ branchId: f.a.id, from: '2027-03-15T00:00:00Z', to: '2027-03-22T00:00:00Z' })).status,
+    ).toBe(404);
   });
 });
 
@@ -246,7 +257,10 @@ describe('DELETE /api/bookings/:id', () => {
   it('refuses to unbook or move once the technician has set off', async () => {
     const w = await job();
     const created = (await book(dispatcherA, w.id, techA, '2027-03-23T14:00:00Z')).body.booking;
-    await t.ctx.db.update(visits).set({ enRouteAt: new Date('2027-03-23T13:40:00Z') }).where(eq(visits.bookingId, created.id));
+    await t.ctx.db
+      .update(visits)
+      .set({ enRouteAt: new Date('2027-03-23T13:40:00Z') })
+      .where(eq(visits.bookingId, created.id));
     const del = await dispatcherA.delete(`/api/bookings/${created.id}`);
     expect(del.status).toBe(409);
     expect(del.body.error.code).toBe('visit_started');
@@ -308,7 +322,11 @@ describe('GET /api/roster/load', () => {
     expect(mine).toHaveLength(7);
     const tue = mine.find((l: { day: string }) => l.day === '2027-03-09');
     expect(tue).toMatchObject({ bookedMinutes: 540, capacityMinutes: 510, overloaded: true });
-    expect(mine.find((l: { day: string }) => l.day === '2027-03-08')).toMatchObject({ bookedMinutes: 0, capacityMinutes: 510, overloaded: false });
+    expect(mine.find((l: { day: string }) => l.day === '2027-03-08')).toMatchObject({
+      bookedMinutes: 0,
+      capacityMinutes: 510,
+      overloaded: false,
+    });
     expect(mine.find((l: { day: string }) => l.day === '2027-03-14')).toMatchObject({ capacityMinutes: 0, ratio: null });
   });
 
@@ -316,7 +334,10 @@ describe('GET /api/roster/load', () => {
     // Sat 2027-03-13 22:00 CST (04:00Z on the 14th) to Sun 03:30 CDT (08:30Z): 4 h 30 min of real time.
     const tech = await makeUser(t.ctx.db, 'technician', f.a.id, { name: 'Night Shift' });
     const w = await job({ estimatedMinutes: 270, priority: 'emergency' });
-    const res = await book(dispatcherA, w.id, tech.id, '2027-03-14T04:00:00Z', { overrideHours: true, overrideReason: 'Walk-in freezer down overnight' });
+    const res = await book(dispatcherA, w.id, tech.id, '2027-03-14T04:00:00Z', {
+      overrideHours: true,
+      overrideReason: 'Walk-in freezer down overnight',
+    });
     expect(res.status).toBe(201);
     expect(res.body.booking.endAt).toBe('2027-03-14T08:30:00.000Z');
     const load = await dispatcherA.get('/api/roster/load').query({ from: '2027-03-13', to: '2027-03-14' });
@@ -405,10 +426,15 @@ describe('even out moves booked work', () => {
     const agent = await signedInAgent(t.app, disp.email, TEST_PASSWORD);
     // Wednesday 10 March 2027 (CST): Cal has four 2-hour jobs from 07:00, Dee nothing all week.
     const starts = ['13:00', '15:00', '17:00', '19:00'].map((hm) => `2027-03-10T${hm}:00Z`);
-    const jobs = await Promise.all(starts.map(() => makeWorkOrder(t.ctx.db, { branchId: branch.id, siteId: site.site.id, estimatedMinutes: 120 })));
+    const jobs = await Promise.all(
+      starts.map(() => makeWorkOrder(t.ctx.db, { branchId: branch.id, siteId: site.site.id, estimatedMinutes: 120 })),
+    );
     // The first needs a skill only Cal has; the second is fixed; the third is due by 13:00 CST that day.
     await t.ctx.db.update(workOrders).set({ requiredSkill: 'chillers' }).where(eq(workOrders.id, jobs[0]!.id));
-    await t.ctx.db.update(workOrders).set({ latestAt: new Date('2027-03-10T19:00:00Z') }).where(eq(workOrders.id, jobs[2]!.id));
+    await t.ctx.db
+      .update(workOrders)
+      .set({ latestAt: new Date('2027-03-10T19:00:00Z') })
+      .where(eq(workOrders.id, jobs[2]!.id));
     const booked: { id: string; version: number; workOrderId: string }[] = [];
     for (const [i, w] of jobs.entries()) {
       const res = await book(agent, w.id, cal.id, starts[i]!, i === 1 ? { fixed: true } : {});
@@ -418,7 +444,14 @@ describe('even out moves booked work', () => {
 
     const preview = await agent.post('/api/roster/even-out').send({ week: '2027-03-10' });
     expect(preview.status).toBe(200);
-    type Move = { bookingId: string; version: number; workOrderId: string; dueAt: string | null; from: { techId: string }; to: { techId: string; startAt: string; endAt: string } };
+    type Move = {
+      bookingId: string;
+      version: number;
+      workOrderId: string;
+      dueAt: string | null;
+      from: { techId: string };
+      to: { techId: string; startAt: string; endAt: string };
+    };
     const moves = preview.body.moves as Move[];
     expect(moves.length).toBeGreaterThan(0);
     // Never the fixed one; the chillers job never to Dee; nothing ends after its due time.
@@ -431,8 +464,16 @@ describe('even out moves booked work', () => {
     expect(preview.body.spread.after).toBeLessThan(preview.body.spread.before);
 
     // A stale version (someone moved it meanwhile) refuses the whole set and changes nothing.
-    const accept = (m: Move, version = m.version) => ({ bookingId: m.bookingId, version, techId: m.to.techId, startAt: m.to.startAt, endAt: m.to.endAt });
-    const stale = await agent.post('/api/roster/even-out/apply').send({ moves: moves.map((m, i) => accept(m, i === moves.length - 1 ? m.version + 5 : m.version)) });
+    const accept = (m: Move, version = m.version) => ({
+      bookingId: m.bookingId,
+      version,
+      techId: m.to.techId,
+      startAt: m.to.startAt,
+      endAt: m.to.endAt,
+    });
+    const stale = await agent
+      .post('/api/roster/even-out/apply')
+      .send({ moves: moves.map((m, i) => accept(m, i === moves.length - 1 ? m.version + 5 : m.version)) });
     expect(stale.status).toBe(409);
     expect(stale.body.error.message).toContain('Nothing was changed');
     const unchanged = await t.ctx.db.select().from(bookings).where(eq(bookings.techId, cal.id));

@@ -94,13 +94,17 @@ export function localRange(from: string, to: string, timeZone: string): { start:
 }
 
 export const localDay = (at: Date, timeZone: string) => zonedDate(at, timeZone);
-export const localTime = (at: Date | number, timeZone: string, pattern = 'HH:mm') => format(new TZDate(new Date(at).getTime(), timeZone), pattern);
+export const localTime = (at: Date | number, timeZone: string, pattern = 'HH:mm') =>
+  format(new TZDate(new Date(at).getTime(), timeZone), pattern);
 
 /**
  * Estimated drive minutes of each technician's days: from the day's start point through the stops
  * in time order (calc's drive-time estimate per leg). Used to compare before/after an even-out.
  */
-export function weekDriveMinutes(techs: readonly CalcTechnician[], stops: readonly { techId: string; start: Date; lat: number; lon: number }[]): number {
+export function weekDriveMinutes(
+  techs: readonly CalcTechnician[],
+  stops: readonly { techId: string; start: Date; lat: number; lon: number }[],
+): number {
   const byTechDay = new Map<string, { start: Date; lat: number; lon: number }[]>();
   const tz = new Map(techs.map((t) => [t.id, t]));
   for (const s of stops) {

@@ -20,13 +20,36 @@ const office = requireRole('owner', 'branch_manager', 'dispatcher');
 export function customersRoutes(ctx: AppContext): Router {
   const r = Router();
   r.use(office);
-  r.get('/', endpoint({ query: customersQuerySchema }, ({ user, query }) => svc.listCustomers(ctx, user, query)));
-  r.post('/', endpoint({ body: customerInputSchema, status: 201 }, ({ user, body }) => svc.createCustomer(ctx, user, body)));
-  r.get('/:id', endpoint({ params: idParams }, ({ user, params }) => svc.getCustomer(ctx.db, user, params.id)));
-  r.patch('/:id', endpoint({ params: idParams, body: customerPatchSchema }, ({ user, params, body, req }) => svc.updateCustomer(ctx, user, params.id, onlySent(body, req.body))));
-  r.post('/:id/archive', endpoint({ params: idParams }, ({ user, params }) => svc.setCustomerArchived(ctx, user, params.id, true)));
-  r.post('/:id/unarchive', endpoint({ params: idParams }, ({ user, params }) => svc.setCustomerArchived(ctx, user, params.id, false)));
-  r.delete('/:id', endpoint({ params: idParams }, ({ user, params }) => svc.deleteCustomer(ctx, user, params.id)));
+  r.get(
+    '/',
+    endpoint({ query: customersQuerySchema }, ({ user, query }) => svc.listCustomers(ctx, user, query)),
+  );
+  r.post(
+    '/',
+    endpoint({ body: customerInputSchema, status: 201 }, ({ user, body }) => svc.createCustomer(ctx, user, body)),
+  );
+  r.get(
+    '/:id',
+    endpoint({ params: idParams }, ({ user, params }) => svc.getCustomer(ctx.db, user, params.id)),
+  );
+  r.patch(
+    '/:id',
+    endpoint({ params: idParams, body: customerPatchSchema }, ({ user, params, body, req }) =>
+      svc.updateCustomer(ctx, user, params.id, onlySent(body, req.body)),
+    ),
+  );
+  r.post(
+    '/:id/archive',
+    endpoint({ params: idParams }, ({ user, params }) => svc.setCustomerArchived(ctx, user, params.id, true)),
+  );
+  r.post(
+    '/:id/unarchive',
+    endpoint({ params: idParams }, ({ user, params }) => svc.setCustomerArchived(ctx, user, params.id, false)),
+  );
+  r.delete(
+    '/:id',
+    endpoint({ params: idParams }, ({ user, params }) => svc.deleteCustomer(ctx, user, params.id)),
+  );
   return r;
 }
 
@@ -34,12 +57,35 @@ export function customersRoutes(ctx: AppContext): Router {
 export function sitesRoutes(ctx: AppContext): Router {
   const r = Router();
   r.use(office);
-  r.get('/', endpoint({ query: sitesQuerySchema }, ({ user, query }) => svc.listSites(ctx, user, query)));
-  r.post('/', endpoint({ body: siteInputSchema, status: 201 }, ({ user, body }) => svc.createSite(ctx, user, body)));
-  r.get('/:id', endpoint({ params: idParams }, ({ user, params }) => svc.getSite(ctx.db, user, params.id)));
-  r.patch('/:id', endpoint({ params: idParams, body: sitePatchSchema }, ({ user, params, body, req }) => svc.updateSite(ctx, user, params.id, onlySent(body, req.body))));
-  r.post('/:id/archive', endpoint({ params: idParams }, ({ user, params }) => svc.setSiteArchived(ctx, user, params.id, true)));
-  r.post('/:id/unarchive', endpoint({ params: idParams }, ({ user, params }) => svc.setSiteArchived(ctx, user, params.id, false)));
-  r.delete('/:id', endpoint({ params: idParams }, ({ user, params }) => svc.deleteSite(ctx, user, params.id)));
+  r.get(
+    '/',
+    endpoint({ query: sitesQuerySchema }, ({ user, query }) => svc.listSites(ctx, user, query)),
+  );
+  r.post(
+    '/',
+    endpoint({ body: siteInputSchema, status: 201 }, ({ user, body }) => svc.createSite(ctx, user, body)),
+  );
+  r.get(
+    '/:id',
+    endpoint({ params: idParams }, ({ user, params }) => svc.getSite(ctx.db, user, params.id)),
+  );
+  r.patch(
+    '/:id',
+    endpoint({ params: idParams, body: sitePatchSchema }, ({ user, params, body, req }) =>
+      svc.updateSite(ctx, user, params.id, onlySent(body, req.body)),
+    ),
+  );
+  r.post(
+    '/:id/archive',
+    endpoint({ params: idParams }, ({ user, params }) => svc.setSiteArchived(ctx, user, params.id, true)),
+  );
+  r.post(
+    '/:id/unarchive',
+    endpoint({ params: idParams }, ({ user, params }) => svc.setSiteArchived(ctx, user, params.id, false)),
+  );
+  r.delete(
+    '/:id',
+    endpoint({ params: idParams }, ({ user, params }) => svc.deleteSite(ctx, user, params.id)),
+  );
   return r;
 }

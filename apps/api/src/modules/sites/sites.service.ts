@@ -37,9 +37,8 @@ const iso = (d: Date | null) => (d ? d.toISOString() : null);
 // Customers
 // ---------------------------------------------------------------------------------------------
 
-const siteCount = sql<number>`(select count(*) from ${sites} where ${sites.customerId} = ${customers.id} and ${sites.archivedAt} is null)`.mapWith(
-  Number,
-);
+const siteCount =
+  sql<number>`(select count(*) from ${sites} where ${sites.customerId} = ${customers.id} and ${sites.archivedAt} is null)`.mapWith(Number);
 
 const customerColumns = {
   id: customers.id,
@@ -103,7 +102,8 @@ async function targetBranch(db: Tx, user: SessionUser, requested: string | null 
   const own = ownBranchForNew(user, requested);
   enforce(own);
   if (own.ok && own.branchId) return own.branchId;
-  if (!requested) throw badRequest('Choose the branch this customer belongs to.', { fields: [{ path: 'branchId', message: 'Choose the branch' }] });
+  if (!requested)
+    throw badRequest('Choose the branch this customer belongs to.', { fields: [{ path: 'branchId', message: 'Choose the branch' }] });
   const [b] = await db.select({ id: branches.id, archivedAt: branches.archivedAt }).from(branches).where(eq(branches.id, requested));
   if (!b) throw notFound('branch');
   if (b.archivedAt) throw conflict('branch_archived', 'That branch is archived; choose an active branch.');
@@ -113,7 +113,10 @@ async function targetBranch(db: Tx, user: SessionUser, requested: string | null 
 export async function createCustomer(ctx: AppContext, user: SessionUser, input: CustomerValues): Promise<CustomerRow> {
   const branchId = await targetBranch(ctx.db, user, input.branchId);
   const { branchId: _ignored, ...rest } = input;
-  const [c] = await ctx.db.insert(customers).values({ ...rest, branchId }).returning({ id: customers.id });
+  const [c] = await ctx.db
+    .insert(customers)
+    .values({ ...rest, branchId })
+    .returning({ id: customers.id });
   return getCustomer(ctx.db, user, c!.id);
 }
 
@@ -125,7 +128,10 @@ export async function updateCustomer(ctx: AppContext, user: SessionUser, id: str
 
 export async function setCustomerArchived(ctx: AppContext, user: SessionUser, id: string, archived: boolean) {
   await getCustomer(ctx.db, user, id);
-  await ctx.db.update(customers).set({ archivedAt: archived ? ctx.clock.now() : null }).where(eq(customers.id, id));
+  await ctx.db
+    .update(customers)
+    .set({ archivedAt: archived ? ctx.clock.now() : null })
+    .where(eq(customers.id, id));
   return getCustomer(ctx.db, user, id);
 }
 
@@ -148,7 +154,9 @@ export async function deleteCustomer(ctx: AppContext, user: SessionUser, id: str
 // Sites
 // ---------------------------------------------------------------------------------------------
 
-const unitCount = sql<number>`(select count(*) from ${units} where ${units.siteId} = ${sites.id} and ${units.archivedAt} is null)`.mapWith(Number);
+const unitCount = sql<number>`(select count(*) from ${units} where ${units.siteId} = ${sites.id} and ${units.archivedAt} is null)`.mapWith(
+  Number,
+);
 
 const siteColumns = {
   id: sites.id,
@@ -251,10 +259,16 @@ export async function setSiteArchived(ctx: AppContext, user: SessionUser, id: st
     if (archived && !site.archivedAt) {
       const now = ctx.clock.now();
       await tx.update(sites).set({ archivedAt: now }).where(eq(sites.id, id));
-      await tx.update(units).set({ archivedAt: now }).where(and(eq(units.siteId, id), isNull(units.archivedAt)));
+      await tx
+        .update(units)
+        .set({ archivedAt: now })
+        .where(and(eq(units.siteId, id), isNull(units.archivedAt)));
     } else if (!archived && site.archivedAt) {
       const at = new Date(site.archivedAt);
-      await tx.update(units).set({ archivedAt: null }).where(and(eq(units.siteId, id), eq(units.archivedAt, at)));
+      await tx
+        .update(units)
+        .set({ archivedAt: null })
+        .where(and(eq(units.siteId, id), eq(units.archivedAt, at)));
       await tx.update(sites).set({ archivedAt: null }).where(eq(sites.id, id));
     }
     return getSite(tx, user, id);

@@ -84,7 +84,9 @@ describe('authorization matrix', () => {
       ['get', '/api/sites?branchId=' + f.b.id],
     ];
     for (const [method, path, body] of cases) {
-      const req = (agents.dispatcherA as unknown as Record<string, (p: string) => { send(b: object): Promise<{ status: number }> }>)[method]!(path);
+      const req = (agents.dispatcherA as unknown as Record<string, (p: string) => { send(b: object): Promise<{ status: number }> }>)[
+        method
+      ]!(path);
       const res = await req.send(body ?? {});
       expect(res.status, `${method} ${path}`).toBe(404);
     }
@@ -92,16 +94,25 @@ describe('authorization matrix', () => {
     expect(still!.name).toBe(siteB.site.name);
     expect(still!.archivedAt).toBeNull();
     // Creating a site under another branch's customer is refused the same way.
-    const res = await agents.dispatcherA.post('/api/sites').send({ customerId: siteB.customer.id, name: 'X', address: '1 Road', lat: 40, lon: -100 });
+    const res = await agents.dispatcherA
+      .post('/api/sites')
+      .send({ customerId: siteB.customer.id, name: 'X', address: '1 Road', lat: 40, lon: -100 });
     expect(res.status).toBe(404);
   });
 });
 
 describe('customers, sites and units', () => {
   it('a dispatcher creates a customer, a site and a unit with circuits in their branch', async () => {
-    const c = await agents.dispatcherA.post('/api/customers').send({ name: 'Northgate Schools', contactEmail: 'FACILITIES@northgate.example' });
+    const c = await agents.dispatcherA
+      .post('/api/customers')
+      .send({ name: 'Northgate Schools', contactEmail: 'FACILITIES@northgate.example' });
     expect(c.status).toBe(201);
-    expect(c.body).toMatchObject({ branchId: f.a.id, name: 'Northgate Schools', contactEmail: 'facilities@northgate.example', siteCount: 0 });
+    expect(c.body).toMatchObject({
+      branchId: f.a.id,
+      name: 'Northgate Schools',
+      contactEmail: 'facilities@northgate.example',
+      siteCount: 0,
+    });
 
     const s = await agents.dispatcherA.post('/api/sites').send({
       customerId: c.body.id,
@@ -115,7 +126,12 @@ describe('customers, sites and units', () => {
       contactEmail: 'pat@northgate.example',
     });
     expect(s.status).toBe(201);
-    expect(s.body).toMatchObject({ branchId: f.a.id, customerName: 'Northgate Schools', unitCount: 0, accessNotes: 'Roof hatch key at the front desk' });
+    expect(s.body).toMatchObject({
+      branchId: f.a.id,
+      customerName: 'Northgate Schools',
+      unitCount: 0,
+      accessNotes: 'Roof hatch key at the front desk',
+    });
 
     const u = await agents.dispatcherA.post('/api/units').send(unitBody(s.body.id, { serial: 'NG-0001' }));
     expect(u.status).toBe(201);
@@ -145,7 +161,9 @@ describe('customers, sites and units', () => {
     expect(bad.body.error.details.fields[0]).toMatchObject({ path: 'refrigerant' });
     expect(bad.body.error.details.fields[0].message).toContain('Unknown refrigerant "R-999"');
 
-    const dates = await agents.managerA.post('/api/units').send(unitBody(siteA.site.id, { installDate: '2024-01-01', warrantyEnd: '2023-01-01' }));
+    const dates = await agents.managerA
+      .post('/api/units')
+      .send(unitBody(siteA.site.id, { installDate: '2024-01-01', warrantyEnd: '2023-01-01' }));
     expect(dates.status).toBe(400);
     expect(dates.body.error.details.fields[0].path).toBe('warrantyEnd');
 
@@ -157,7 +175,9 @@ describe('customers, sites and units', () => {
 
   it('sorts, filters and pages on the server', async () => {
     const c = await agents.managerA.post('/api/customers').send({ name: 'Paging Foods' });
-    const s = await agents.managerA.post('/api/sites').send({ customerId: c.body.id, name: 'Paging Foods DC', address: '9 Dock Rd', lat: 41, lon: -88 });
+    const s = await agents.managerA
+      .post('/api/sites')
+      .send({ customerId: c.body.id, name: 'Paging Foods DC', address: '9 Dock Rd', lat: 41, lon: -88 });
     for (const tag of ['WIC-3', 'WIC-1', 'WIC-2']) {
       expect((await agents.managerA.post('/api/units').send(unitBody(s.body.id, { tag, kind: 'walk_in_cooler' }))).status).toBe(201);
     }
@@ -176,7 +196,15 @@ describe('customers, sites and units', () => {
 
   it('editing a unit saves the whole unit and matches circuits by number', async () => {
     const u = await agents.managerA.post('/api/units').send(unitBody(siteA.site.id));
-    const edited = await agents.managerA.put(`/api/units/${u.body.id}`).send({ ...unitBody(siteA.site.id), serial: u.body.serial, siteId: undefined, model: 'EX-91', circuits: [{ number: 1, compressorCount: 3 }] });
+    const edited = await agents.managerA
+      .put(`/api/units/${u.body.id}`)
+      .send({
+        ...unitBody(siteA.site.id),
+        serial: u.body.serial,
+        siteId: undefined,
+        model: 'EX-91',
+        circuits: [{ number: 1, compressorCount: 3 }],
+      });
     expect(edited.status).toBe(200);
     expect(edited.body.model).toBe('EX-91');
     expect(edited.body.circuits).toHaveLength(1);
@@ -200,8 +228,12 @@ describe('archiving versus deleting', () => {
   it('refuses to delete a unit or site with history (409, naming it) and archives instead', async () => {
     const h = await makeSiteWithUnit(t.ctx.db, f.a.id);
     await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: h.site.id, unitId: h.unit.id });
-    await t.ctx.db.insert(alarms).values({ branchId: f.a.id, unitId: h.unit.id, code: 'LP1', raisedAt: new Date('2026-11-01T10:00:00Z'), source: 'form' });
-    await t.ctx.db.insert(refrigerantEvents).values({ unitId: h.unit.id, date: '2026-11-02', refrigerant: 'R-410A', poundsAdded: 2, reason: 'leak_top_off' });
+    await t.ctx.db
+      .insert(alarms)
+      .values({ branchId: f.a.id, unitId: h.unit.id, code: 'LP1', raisedAt: new Date('2026-11-01T10:00:00Z'), source: 'form' });
+    await t.ctx.db
+      .insert(refrigerantEvents)
+      .values({ unitId: h.unit.id, date: '2026-11-02', refrigerant: 'R-410A', poundsAdded: 2, reason: 'leak_top_off' });
 
     const delUnit = await agents.managerA.delete(`/api/units/${h.unit.id}`);
     expect(delUnit.status).toBe(409);
@@ -239,7 +271,10 @@ describe('archiving versus deleting', () => {
     const s = await makeSiteWithUnit(t.ctx.db, f.a.id);
     expect((await agents.managerA.post(`/api/units/${s.unit.id}/archive`)).status).toBe(200);
     // Archived on its own earlier than the site (the test clock is fixed, so set the earlier instant directly).
-    await t.ctx.db.update(units).set({ archivedAt: new Date('2026-11-30T00:00:00Z') }).where(eq(units.id, s.unit.id));
+    await t.ctx.db
+      .update(units)
+      .set({ archivedAt: new Date('2026-11-30T00:00:00Z') })
+      .where(eq(units.id, s.unit.id));
     await agents.managerA.post(`/api/sites/${s.site.id}/archive`);
     await agents.managerA.post(`/api/sites/${s.site.id}/unarchive`);
     const [u] = await t.ctx.db.select().from(units).where(eq(units.id, s.unit.id));

@@ -15,11 +15,31 @@ export function usersRoutes(ctx: AppContext): Router {
   const r = Router();
   const readers = requireRole('owner', 'branch_manager', 'dispatcher');
   const owner = requireRole('owner');
-  r.get('/', readers, endpoint({ query: usersQuerySchema }, ({ user, query }) => svc.listUsers(ctx, user, query)));
-  r.get('/:id', readers, endpoint({ params: idParams }, ({ user, params }) => svc.getUser(ctx.db, user, params.id)));
-  r.patch('/:id', owner, endpoint({ params: idParams, body: userProfileSchema }, ({ user, params, body }) => svc.updateUser(ctx, user, params.id, body)));
-  r.post('/:id/deactivate', owner, endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, false)));
-  r.post('/:id/reactivate', owner, endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, true)));
+  r.get(
+    '/',
+    readers,
+    endpoint({ query: usersQuerySchema }, ({ user, query }) => svc.listUsers(ctx, user, query)),
+  );
+  r.get(
+    '/:id',
+    readers,
+    endpoint({ params: idParams }, ({ user, params }) => svc.getUser(ctx.db, user, params.id)),
+  );
+  r.patch(
+    '/:id',
+    owner,
+    endpoint({ params: idParams, body: userProfileSchema }, ({ user, params, body }) => svc.updateUser(ctx, user, params.id, body)),
+  );
+  r.post(
+    '/:id/deactivate',
+    owner,
+    endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, false)),
+  );
+  r.post(
+    '/:id/reactivate',
+    owner,
+    endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, true)),
+  );
   return r;
 }
 
@@ -42,9 +62,25 @@ export function invitationsRoutes(ctx: AppContext): Router {
   });
 
   const owner = [requireAuth, requireRole('owner')];
-  r.get('/', ...owner, endpoint({}, async () => ({ invitations: await svc.listInvitations(ctx) })));
-  r.post('/', ...owner, endpoint({ body: invitationInputSchema, status: 201 }, ({ user, body }) => svc.createInvitation(ctx, user, body.email, body.profile)));
-  r.post('/:id/resend', ...owner, endpoint({ params: idParams }, ({ user, params }) => svc.resendInvitation(ctx, user, params.id)));
-  r.delete('/:id', ...owner, endpoint({ params: idParams }, ({ params }) => svc.revokeInvitation(ctx, params.id)));
+  r.get(
+    '/',
+    ...owner,
+    endpoint({}, async () => ({ invitations: await svc.listInvitations(ctx) })),
+  );
+  r.post(
+    '/',
+    ...owner,
+    endpoint({ body: invitationInputSchema, status: 201 }, ({ user, body }) => svc.createInvitation(ctx, user, body.email, body.profile)),
+  );
+  r.post(
+    '/:id/resend',
+    ...owner,
+    endpoint({ params: idParams }, ({ user, params }) => svc.resendInvitation(ctx, user, params.id)),
+  );
+  r.delete(
+    '/:id',
+    ...owner,
+    endpoint({ params: idParams }, ({ params }) => svc.revokeInvitation(ctx, params.id)),
+  );
   return r;
 }

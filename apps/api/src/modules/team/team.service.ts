@@ -82,14 +82,26 @@ export async function listUsers(ctx: AppContext, user: SessionUser, q: UsersQuer
   );
   const { limit, offset } = pageWindow(q.page, q.pageSize);
   const [rows, [total]] = await Promise.all([
-    ctx.db.select(userColumns).from(users).leftJoin(branches, eq(branches.id, users.branchId)).where(where).orderBy(...order).limit(limit).offset(offset),
+    ctx.db
+      .select(userColumns)
+      .from(users)
+      .leftJoin(branches, eq(branches.id, users.branchId))
+      .where(where)
+      .orderBy(...order)
+      .limit(limit)
+      .offset(offset),
     ctx.db.select({ n: count() }).from(users).where(where),
   ]);
   return { rows: rows.map(toUserRow), total: total?.n ?? 0, page: q.page, pageSize: q.pageSize };
 }
 
 export async function getUser(db: Tx, user: SessionUser, id: string): Promise<UserRow> {
-  const [row] = await db.select(userColumns).from(users).leftJoin(branches, eq(branches.id, users.branchId)).where(eq(users.id, id)).limit(1);
+  const [row] = await db
+    .select(userColumns)
+    .from(users)
+    .leftJoin(branches, eq(branches.id, users.branchId))
+    .where(eq(users.id, id))
+    .limit(1);
   if (!row) throw notFound('person');
   if (user.role !== 'owner') assertBranch(user, row.branchId, 'person');
   return toUserRow(row);
@@ -108,7 +120,14 @@ export async function leastUsedColour(db: Tx, branchId: string | null, exceptUse
   const rows = await db
     .select({ colorIndex: users.colorIndex, n: count() })
     .from(users)
-    .where(and(eq(users.branchId, branchId), eq(users.role, 'technician'), eq(users.active, true), exceptUserId ? ne(users.id, exceptUserId) : undefined))
+    .where(
+      and(
+        eq(users.branchId, branchId),
+        eq(users.role, 'technician'),
+        eq(users.active, true),
+        exceptUserId ? ne(users.id, exceptUserId) : undefined,
+      ),
+    )
     .groupBy(users.colorIndex);
   const used = new Map(rows.map((r) => [r.colorIndex, r.n]));
   let best = 0;
@@ -119,7 +138,10 @@ export async function leastUsedColour(db: Tx, branchId: string | null, exceptUse
 /** Coilpath always keeps one active owner; the last one can be neither demoted nor deactivated. */
 async function refuseLastOwner(db: Tx, target: { id: string; role: string; active: boolean }) {
   if (target.role !== 'owner' || !target.active) return;
-  const [o] = await db.select({ n: count() }).from(users).where(and(eq(users.role, 'owner'), eq(users.active, true), ne(users.id, target.id)));
+  const [o] = await db
+    .select({ n: count() })
+    .from(users)
+    .where(and(eq(users.role, 'owner'), eq(users.active, true), ne(users.id, target.id)));
   if ((o?.n ?? 0) === 0) {
     throw conflict('last_owner', 'This is the last active owner. Make someone else an owner first, so Coilpath always has one.');
   }
@@ -226,8 +248,16 @@ export async function listInvitations(ctx: AppContext): Promise<InvitationRow[]>
  * The invitation e-mail (text and HTML). The expiry is written in the invitee's branch time zone; an
  * owner belongs to no branch, so theirs is in UTC, labelled as such.
  */
-async function sendInvitationMail(ctx: AppContext, to: { email: string; name: string; role: UserProfile['role']; branchId: string | null }, link: string, expiresAt: Date, inviter: string) {
-  const [branch] = to.branchId ? await ctx.db.select({ name: branches.name, timeZone: branches.timeZone }).from(branches).where(eq(branches.id, to.branchId)) : [];
+async function sendInvitationMail(
+  ctx: AppContext,
+  to: { email: string; name: string; role: UserProfile['role']; branchId: string | null },
+  link: string,
+  expiresAt: Date,
+  inviter: string,
+) {
+  const [branch] = to.branchId
+    ? await ctx.db.select({ name: branches.name, timeZone: branches.timeZone }).from(branches).where(eq(branches.id, to.branchId))
+    : [];
   const where = branch ? ` at ${branch.name}` : '';
   const message = composeMail(`${inviter} invited you to Coilpath`, [
     mail.p(`Hello ${to.name},`),
@@ -291,11 +321,16 @@ export async function revokeInvitation(ctx: AppContext, id: string): Promise<Inv
 async function openInvitation(ctx: AppContext, db: Tx, signed: string) {
   const token = verifyLinkToken(ctx.secret, 'invitation', signed);
   if (!token) throw linkErrors.invalid('invitation');
-  const [inv] = await db.select().from(invitations).where(eq(invitations.tokenHash, hashLinkToken(token))).limit(1);
+  const [inv] = await db
+    .select()
+    .from(invitations)
+    .where(eq(invitations.tokenHash, hashLinkToken(token)))
+    .limit(1);
   if (!inv) throw linkErrors.invalid('invitation');
   if (inv.usedAt) throw linkErrors.used('invitation', 'Sign in with your e-mail and password.');
   if (inv.revokedAt) throw new HttpError(410, 'link_revoked', 'This invitation was withdrawn. Ask the owner for a new one.');
-  if (inv.expiresAt <= ctx.clock.now()) throw linkErrors.expired('invitation', 'Invitations last 72 hours; ask the owner to send a new one.');
+  if (inv.expiresAt <= ctx.clock.now())
+    throw linkErrors.expired('invitation', 'Invitations last 72 hours; ask the owner to send a new one.');
   return inv;
 }
 

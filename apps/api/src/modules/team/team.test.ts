@@ -203,29 +203,45 @@ describe('invitations', () => {
 
     const agent = request.agent(t.app);
     // The password rule (auth/password-rules.ts): not one containing the name, not a common one.
-    const withName = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'robin-field-2026', confirm: 'robin-field-2026' });
+    const withName = await agent
+      .post('/api/invitations/accept')
+      .send({ token, name: 'Robin Field', password: 'robin-field-2026', confirm: 'robin-field-2026' });
     expect(withName.status).toBe(400);
     expect(withName.body.error.code).toBe('weak_password');
     expect(withName.body.error.message).toContain('"robin');
     expect(withName.body.error.details.fields[0].path).toBe('password');
-    const common = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'password123', confirm: 'password123' });
+    const common = await agent
+      .post('/api/invitations/accept')
+      .send({ token, name: 'Robin Field', password: 'password123', confirm: 'password123' });
     expect(common.body.error.code).toBe('weak_password');
     expect(common.body.error.message).toContain('commonly used password');
-    const accepted = await agent.post('/api/invitations/accept').send({ token, name: 'Robin Field', password: 'a-long-password-1', confirm: 'a-long-password-1' });
+    const accepted = await agent
+      .post('/api/invitations/accept')
+      .send({ token, name: 'Robin Field', password: 'a-long-password-1', confirm: 'a-long-password-1' });
     expect(accepted.status).toBe(201);
     expect(accepted.body.user).toMatchObject({ email: 'robin.field@test.example', role: 'technician', branchId: den.body.id });
     expect((await agent.get('/api/auth/me')).body.user.email).toBe('robin.field@test.example');
 
     const [u] = await t.ctx.db.select().from(users).where(eq(users.email, 'robin.field@test.example'));
-    expect(u).toMatchObject({ epa608Type: 'universal', epa608Number: 'EPA-608-123456', skills: ['rooftop units', 'brazing'], colorIndex: 1, startLat: 39.7 });
+    expect(u).toMatchObject({
+      epa608Type: 'universal',
+      epa608Number: 'EPA-608-123456',
+      skills: ['rooftop units', 'brazing'],
+      colorIndex: 1,
+      startLat: 39.7,
+    });
     expect(u!.workingHours).toEqual(weekdayHours);
 
     // Reuse of the same link is refused with a clear message; the new person signs in normally.
-    const reuse = await request(t.app).post('/api/invitations/accept').send({ token, name: 'Someone', password: 'another-password-2', confirm: 'another-password-2' });
+    const reuse = await request(t.app)
+      .post('/api/invitations/accept')
+      .send({ token, name: 'Someone', password: 'another-password-2', confirm: 'another-password-2' });
     expect(reuse.status).toBe(410);
     expect(reuse.body.error.code).toBe('link_used');
     expect(reuse.body.error.message).toContain('already been used');
-    expect((await request(t.app).post('/api/auth/sign-in').send({ email: 'robin.field@test.example', password: 'a-long-password-1' })).status).toBe(200);
+    expect(
+      (await request(t.app).post('/api/auth/sign-in').send({ email: 'robin.field@test.example', password: 'a-long-password-1' })).status,
+    ).toBe(200);
 
     // The Roster's source lists the new technician for the branch's dispatcher.
     const list = await owner.get('/api/users').query({ branchId: den.body.id, role: 'technician' });
@@ -240,7 +256,9 @@ describe('invitations', () => {
     const token = tokenOf(linkIn('late@test.example'));
 
     const tampered = token.slice(0, 5) + (token[5] === 'A' ? 'B' : 'A') + token.slice(6);
-    const t1 = await request(t.app).post('/api/invitations/accept').send({ token: tampered, name: 'X', password: 'a-long-password-1', confirm: 'a-long-password-1' });
+    const t1 = await request(t.app)
+      .post('/api/invitations/accept')
+      .send({ token: tampered, name: 'X', password: 'a-long-password-1', confirm: 'a-long-password-1' });
     expect(t1.status).toBe(400);
     expect(t1.body.error.code).toBe('link_invalid');
     const unsigned = token.split('.')[0]!;
@@ -250,7 +268,9 @@ describe('invitations', () => {
     // Sessions last 12 hours: the owner signs in again three days later.
     const ownerLater = await signedInAgent(t.app, f.owner.email, TEST_PASSWORD);
     try {
-      const expired = await request(t.app).post('/api/invitations/accept').send({ token, name: 'Late Lee', password: 'a-long-password-1', confirm: 'a-long-password-1' });
+      const expired = await request(t.app)
+        .post('/api/invitations/accept')
+        .send({ token, name: 'Late Lee', password: 'a-long-password-1', confirm: 'a-long-password-1' });
       expect(expired.status).toBe(410);
       expect(expired.body.error.code).toBe('link_expired');
       expect(expired.body.error.message).toContain('expired');
@@ -298,7 +318,9 @@ describe('password reset', () => {
     const check = await request(t.app).post('/api/auth/reset-password/check').send({ token });
     expect(check.body).toEqual({ email: person.email });
 
-    const mismatch = await request(t.app).post('/api/auth/reset-password').send({ token, password: 'new-password-123', confirm: 'different-456' });
+    const mismatch = await request(t.app)
+      .post('/api/auth/reset-password')
+      .send({ token, password: 'new-password-123', confirm: 'different-456' });
     expect(mismatch.status).toBe(400);
 
     // Common passwords are refused, with the reason, and the link stays usable.
@@ -317,7 +339,9 @@ describe('password reset', () => {
     expect((await request(t.app).post('/api/auth/sign-in').send({ email: person.email, password: TEST_PASSWORD })).status).toBe(401);
     expect((await request(t.app).post('/api/auth/sign-in').send({ email: person.email, password: 'new-password-123' })).status).toBe(200);
 
-    const reuse = await request(t.app).post('/api/auth/reset-password').send({ token, password: 'third-password-789', confirm: 'third-password-789' });
+    const reuse = await request(t.app)
+      .post('/api/auth/reset-password')
+      .send({ token, password: 'third-password-789', confirm: 'third-password-789' });
     expect(reuse.status).toBe(410);
     expect(reuse.body.error.code).toBe('link_used');
   });
@@ -334,17 +358,23 @@ describe('password reset', () => {
 
     const [raw, sig] = second.split('.');
     const forged = `${raw}.${Buffer.from('forged-signature-forged-signature').toString('base64url')}`;
-    const bad = await request(t.app).post('/api/auth/reset-password').send({ token: forged, password: 'new-password-123', confirm: 'new-password-123' });
+    const bad = await request(t.app)
+      .post('/api/auth/reset-password')
+      .send({ token: forged, password: 'new-password-123', confirm: 'new-password-123' });
     expect(bad.status).toBe(400);
     expect(bad.body.error.code).toBe('link_invalid');
     // The same token signed for another purpose (an invitation) does not open a reset.
     expect(sig).toBeTruthy();
     const crossPurpose = signLinkToken(t.ctx.secret, 'invitation', raw!);
-    expect((await request(t.app).post('/api/auth/reset-password/check').send({ token: crossPurpose })).body.error.code).toBe('link_invalid');
+    expect((await request(t.app).post('/api/auth/reset-password/check').send({ token: crossPurpose })).body.error.code).toBe(
+      'link_invalid',
+    );
 
     clock.advance(1.01);
     try {
-      const expired = await request(t.app).post('/api/auth/reset-password').send({ token: second, password: 'new-password-123', confirm: 'new-password-123' });
+      const expired = await request(t.app)
+        .post('/api/auth/reset-password')
+        .send({ token: second, password: 'new-password-123', confirm: 'new-password-123' });
       expect(expired.status).toBe(410);
       expect(expired.body.error.code).toBe('link_expired');
     } finally {
@@ -357,7 +387,8 @@ describe('password reset', () => {
     const limited = await createTestApp({ signInLimit: 2 });
     try {
       const codes: number[] = [];
-      for (let i = 0; i < 3; i++) codes.push((await request(limited.app).post('/api/auth/forgot-password').send({ email: 'x@test.example' })).status);
+      for (let i = 0; i < 3; i++)
+        codes.push((await request(limited.app).post('/api/auth/forgot-password').send({ email: 'x@test.example' })).status);
       expect(codes).toEqual([202, 202, 429]);
     } finally {
       await limited.close();

@@ -58,11 +58,17 @@ export const recordCsvColumns = [
  * unit's tag, serial, refrigerant and full charge; `recorded_at` in the branch's zone with its offset.
  */
 export function recordCsv(r: RefrigerantRecord): string {
-  const unit = { unit_tag: r.appliance.tag, serial: r.appliance.serial, refrigerant: r.appliance.refrigerant, full_charge_lb: r.appliance.fullChargeLb };
+  const unit = {
+    unit_tag: r.appliance.tag,
+    serial: r.appliance.serial,
+    refrigerant: r.appliance.refrigerant,
+    full_charge_lb: r.appliance.fullChargeLb,
+  };
   const events = r.events.map((e) => ({
     record: 'event',
     date: e.date,
-    entry: e.kind === 'verification' ? `${refrigerantRecordEventKindLabels[e.kind]} (${e.stage})` : refrigerantRecordEventKindLabels[e.kind],
+    entry:
+      e.kind === 'verification' ? `${refrigerantRecordEventKindLabels[e.kind]} (${e.stage})` : refrigerantRecordEventKindLabels[e.kind],
     pounds_added: e.kind === 'addition' || e.kind === 'recovery' ? e.poundsAdded : null,
     pounds_recovered: e.kind === 'addition' || e.kind === 'recovery' ? e.poundsRecovered : null,
     reason: e.reason ? refrigerantEventReasonLabels[e.reason] : null,
@@ -107,13 +113,25 @@ export function recordFileName(r: RefrigerantRecord, ext: 'csv' | 'pdf'): string
 /** The auditor's PDF: identity, rule, every entry with its rate, the obligations, cautions and sources. */
 export async function recordPdf(r: RefrigerantRecord, generatedAt: Date): Promise<Buffer> {
   const a = r.appliance;
-  const pdf = createPdf({ title: `Refrigerant record — ${a.tag}, ${a.site.name}`, subject: 'Refrigerant leak-repair record', createdAt: generatedAt });
+  const pdf = createPdf({
+    title: `Refrigerant record — ${a.tag}, ${a.site.name}`,
+    subject: 'Refrigerant leak-repair record',
+    createdAt: generatedAt,
+  });
   pdf.heading(`Refrigerant record — ${a.tag}`, 1);
-  pdf.paragraph(`As of ${r.asOf} (${a.branch.name}, ${a.branch.timeZone}); generated ${csvTimestamp(r.generatedAt, a.branch.timeZone)}.`, { size: 9, color: pdfSlate });
+  pdf.paragraph(`As of ${r.asOf} (${a.branch.name}, ${a.branch.timeZone}); generated ${csvTimestamp(r.generatedAt, a.branch.timeZone)}.`, {
+    size: 9,
+    color: pdfSlate,
+  });
 
   pdf.heading('Appliance');
-  pdf.paragraph(`${a.site.name} — ${a.site.customerName}, ${[a.site.address, a.site.city, a.site.region].filter(Boolean).join(', ')}`, { lead: 'Site: ' });
-  pdf.paragraph(`${a.tag}, ${unitKindLabels[a.kind]}: ${a.make} ${a.model}, serial ${a.serial}${a.installDate ? `, installed ${recordDate(a.installDate)}` : ''}`, { lead: 'Unit: ' });
+  pdf.paragraph(`${a.site.name} — ${a.site.customerName}, ${[a.site.address, a.site.city, a.site.region].filter(Boolean).join(', ')}`, {
+    lead: 'Site: ',
+  });
+  pdf.paragraph(
+    `${a.tag}, ${unitKindLabels[a.kind]}: ${a.make} ${a.model}, serial ${a.serial}${a.installDate ? `, installed ${recordDate(a.installDate)}` : ''}`,
+    { lead: 'Unit: ' },
+  );
   pdf.paragraph(`${a.refrigerant}; ${applianceCategoryLabels[a.applianceCategory]}`, { lead: 'Refrigerant and category: ' });
   pdf.paragraph(`${a.fullChargeLb} lb. ${a.fullChargeBasis}`, { lead: 'Full charge: ' });
   if (a.circuits.length > 1) {
@@ -125,11 +143,22 @@ export async function recordPdf(r: RefrigerantRecord, generatedAt: Date): Promis
 
   pdf.heading('Rule and leak rate');
   if (r.computeError) pdf.paragraph(r.computeError);
-  else if (r.inScope) pdf.paragraph(`${r.rule}, threshold ${r.thresholdPercent} % per year (repair owed when the rate is over it).`, { lead: 'Rule in force: ' });
+  else if (r.inScope)
+    pdf.paragraph(`${r.rule}, threshold ${r.thresholdPercent} % per year (repair owed when the rate is over it).`, {
+      lead: 'Rule in force: ',
+    });
   else pdf.paragraph('No leak-repair rule applies to this refrigerant and full charge on this date.', { lead: 'Rule in force: ' });
-  pdf.paragraph(`${pct(r.leakRatePercent)} % per year at the latest counted addition (${leakRateMethodLabels[r.method]}).`, { lead: 'Leak rate: ' });
-  pdf.paragraph(r.industrialShutdown ? 'Industrial-process shutdown claimed (120 days).' : 'No industrial-process shutdown claimed: 30 days to repair.', { lead: 'Repair window: ' });
-  if (r.chronicYears.length) pdf.paragraph(`${r.chronicYears.join(', ')}: 125 % or more of full charge added; report to EPA by 1 March of the next year.`, { lead: 'Chronic leaker: ' });
+  pdf.paragraph(`${pct(r.leakRatePercent)} % per year at the latest counted addition (${leakRateMethodLabels[r.method]}).`, {
+    lead: 'Leak rate: ',
+  });
+  pdf.paragraph(
+    r.industrialShutdown ? 'Industrial-process shutdown claimed (120 days).' : 'No industrial-process shutdown claimed: 30 days to repair.',
+    { lead: 'Repair window: ' },
+  );
+  if (r.chronicYears.length)
+    pdf.paragraph(`${r.chronicYears.join(', ')}: 125 % or more of full charge added; report to EPA by 1 March of the next year.`, {
+      lead: 'Chronic leaker: ',
+    });
 
   pdf.heading('Refrigerant events, repairs and tests');
   pdf.table(
@@ -141,7 +170,11 @@ export async function recordPdf(r: RefrigerantRecord, generatedAt: Date): Promis
       e.kind === 'addition' ? lb(e.poundsAdded) : e.kind === 'recovery' ? `−${lb(e.poundsRecovered)}` : '',
       e.kind === 'addition' ? (e.exempt ? additionExemptionLabels[e.exempt] : 'Yes') : '',
       e.rate ? pct(e.rate.leakRatePercent) : '',
-      e.rate ? (e.rate.inScope ? `${e.rate.rule}, ${e.rate.thresholdPercent} %${e.rate.overThreshold ? ' (over)' : ''}` : 'No rule applies') : '',
+      e.rate
+        ? e.rate.inScope
+          ? `${e.rate.rule}, ${e.rate.thresholdPercent} %${e.rate.overThreshold ? ' (over)' : ''}`
+          : 'No rule applies'
+        : '',
       e.by ? `${e.by.name}${certText(e.by) ? `, ${certText(e.by)}` : ''}` : '',
     ]),
     { align: ['left', 'left', 'right', 'left', 'right', 'left', 'left'], empty: 'No refrigerant events are recorded for this unit.' },
@@ -161,7 +194,10 @@ export async function recordPdf(r: RefrigerantRecord, generatedAt: Date): Promis
       o.followUpTestDue ?? '',
       leakObligationStateLabels[o.state],
     ]),
-    { align: ['left', 'right', 'left', 'left', 'left', 'left', 'left', 'left'], empty: 'No repair obligation: no counted addition put the leak rate over the threshold.' },
+    {
+      align: ['left', 'right', 'left', 'left', 'left', 'left', 'left', 'left'],
+      empty: 'No repair obligation: no counted addition put the leak rate over the threshold.',
+    },
   );
 
   pdf.heading('Cautions');

@@ -37,13 +37,24 @@ beforeAll(async () => {
   const db = t.ctx.db;
   f = await makeTwoBranches(db);
   tech = await makeUser(db, 'technician', f.a.id, { name: 'Łukasz Żółć', epa608Type: 'universal', epa608Number: 'EPA-TEST-0042' });
-  u = await makeSiteWithUnit(db, f.a.id, { unit: { tag: 'CH-1', serial: 'RR-77', refrigerant: 'R-22', fullChargeLb: 100, applianceCategory: 'comfort_cooling' } });
+  u = await makeSiteWithUnit(db, f.a.id, {
+    unit: { tag: 'CH-1', serial: 'RR-77', refrigerant: 'R-22', fullChargeLb: 100, applianceCategory: 'comfort_cooling' },
+  });
   other = await makeSiteWithUnit(db, f.b.id);
   const ev = await db
     .insert(refrigerantEvents)
     .values([
       { unitId: u.unit.id, date: '2024-01-10', refrigerant: 'R-22', poundsAdded: 100, reason: 'initial_charge', techId: tech.id },
-      { unitId: u.unit.id, date: '2024-07-08', refrigerant: 'R-22', poundsAdded: 5, reason: 'leak_top_off', techId: tech.id, cylinderLot: '=HYPERLINK("x")', createdAt: new Date('2024-07-08T15:30:00Z') },
+      {
+        unitId: u.unit.id,
+        date: '2024-07-08',
+        refrigerant: 'R-22',
+        poundsAdded: 5,
+        reason: 'leak_top_off',
+        techId: tech.id,
+        cylinderLot: '=HYPERLINK("x")',
+        createdAt: new Date('2024-07-08T15:30:00Z'),
+      },
       { unitId: u.unit.id, date: '2025-07-08', refrigerant: 'R-22', poundsAdded: 10, reason: 'leak_top_off', techId: tech.id, circuit: 2 },
       { unitId: u.unit.id, date: '2025-09-06', refrigerant: 'R-22', poundsAdded: 12, reason: 'leak_top_off', techId: tech.id },
       { unitId: u.unit.id, date: '2025-10-01', refrigerant: 'R-22', poundsRecovered: 3, reason: 'recovery', techId: tech.id },
@@ -87,7 +98,14 @@ describe('GET /api/units/:id/refrigerant-record', () => {
     expect(res.status).toBe(200);
     const r = refrigerantRecordSchema.parse(res.body) as RefrigerantRecord;
     expect(r.asOf).toBe('2026-07-01');
-    expect(r.appliance).toMatchObject({ tag: 'CH-1', serial: 'RR-77', make: 'Testmake', model: 'TM-10', refrigerant: 'R-22', fullChargeLb: 100 });
+    expect(r.appliance).toMatchObject({
+      tag: 'CH-1',
+      serial: 'RR-77',
+      make: 'Testmake',
+      model: 'TM-10',
+      refrigerant: 'R-22',
+      fullChargeLb: 100,
+    });
     expect(r.appliance.fullChargeBasis).toMatch(/as recorded on the unit/i);
     // 82.157(a) [P] covers R-22 at 100 lb; (c)(2) [P]: comfort cooling 10 %.
     expect(r).toMatchObject({ inScope: true, rule: '40 CFR 82.157', thresholdPercent: 10, method: 'annualizing', computeError: null });
@@ -107,7 +125,12 @@ describe('GET /api/units/:id/refrigerant-record', () => {
     expect(charge).toMatchObject({ exempt: 'installation', counted: false, rate: null });
     // 82.152 annualizing [S]: 5/100 × 365/180 × 100 = 10.13888… %, over 10 → opens the first obligation.
     expect(first!.rate!.leakRatePercent).toBeCloseTo((5 / 100) * (365 / 180) * 100, 9);
-    expect(first).toMatchObject({ counted: true, opensObligation: true, leakCaseId: caseId, rate: { rule: '40 CFR 82.157', thresholdPercent: 10, overThreshold: true } });
+    expect(first).toMatchObject({
+      counted: true,
+      opensObligation: true,
+      leakCaseId: caseId,
+      rate: { rule: '40 CFR 82.157', thresholdPercent: 10, overThreshold: true },
+    });
     expect(first!.by).toEqual({ name: 'Łukasz Żółć', epa608Type: 'universal', epa608Number: 'EPA-TEST-0042' });
     expect(initial).toMatchObject({ stage: 'initial', passed: true, leakCaseId: caseId });
     // 82.157(c)(1) [P]: 10 lb in 365 days is exactly 10 %, not over.
@@ -130,8 +153,19 @@ describe('GET /api/units/:id/refrigerant-record', () => {
       state: 'verified',
       leakCaseId: caseId,
     });
-    expect(r.obligations[0]!.timeline.map((x) => `${x.date} ${x.kind}`)).toEqual(['2024-07-20 repair', '2024-07-22 verification', '2024-07-30 verification']);
-    expect(r.obligations[1]).toMatchObject({ triggeredOn: '2025-09-06', repairDueDate: '2025-10-06', repairedOn: null, state: 'overdue', leakCaseId: null, timeline: [] });
+    expect(r.obligations[0]!.timeline.map((x) => `${x.date} ${x.kind}`)).toEqual([
+      '2024-07-20 repair',
+      '2024-07-22 verification',
+      '2024-07-30 verification',
+    ]);
+    expect(r.obligations[1]).toMatchObject({
+      triggeredOn: '2025-09-06',
+      repairDueDate: '2025-10-06',
+      repairedOn: null,
+      state: 'overdue',
+      leakCaseId: null,
+      timeline: [],
+    });
     expect(r.openObligation?.triggeredOn).toBe('2025-09-06');
     expect(r.chronicYears).toEqual([]); // 2025: 22 lb of 100, under 125 % (82.157(j) [S])
     expect(r.cautions.join(' ')).toMatch(/manufacturer/);
@@ -162,7 +196,13 @@ describe('GET /api/units/:id/refrigerant-record', () => {
     expect(rows.filter((x) => x.record === 'event')).toHaveLength(8);
     const first = rows.find((x) => x.record === 'event' && x.date === '2024-07-08')!;
     expect(Number(first.leak_rate_pct_per_year)).toBeCloseTo(10.14, 2);
-    expect(first).toMatchObject({ technician: 'Łukasz Żółć', rule: '40 CFR 82.157', threshold_pct: '10', over_threshold: 'true', counted: 'true' });
+    expect(first).toMatchObject({
+      technician: 'Łukasz Żółć',
+      rule: '40 CFR 82.157',
+      threshold_pct: '10',
+      over_threshold: 'true',
+      counted: 'true',
+    });
     expect(first.epa608_certification).toContain('EPA-TEST-0042');
     // A cell that would run as a formula is neutralised.
     expect(first.cylinder_lot).toBe(`'=HYPERLINK("x")`);
@@ -185,7 +225,24 @@ describe('GET /api/units/:id/refrigerant-record', () => {
     const pdf = await readPdf(res.body as Buffer);
     expect(pdf.title).toContain('Refrigerant record — CH-1');
     expect(pdf.marked).toBe(true);
-    for (const s of ['RR-77', 'R-22', '100 lb', 'Łukasz Żółć', 'EPA-TEST-0042', '10.14', '73.00', '2025-10-06', 'Repair overdue', 'Repaired and verified', 'circuit 2', '40 CFR 82.157', '40 CFR 84 Subpart C', 'manufacturer', 'local codes', 'licensed practice']) {
+    for (const s of [
+      'RR-77',
+      'R-22',
+      '100 lb',
+      'Łukasz Żółć',
+      'EPA-TEST-0042',
+      '10.14',
+      '73.00',
+      '2025-10-06',
+      'Repair overdue',
+      'Repaired and verified',
+      'circuit 2',
+      '40 CFR 82.157',
+      '40 CFR 84 Subpart C',
+      'manufacturer',
+      'local codes',
+      'licensed practice',
+    ]) {
       expect(pdf.flat).toContain(s);
     }
     expect(pdf.roles).toEqual(expect.arrayContaining(['H1', 'H2', 'Table', 'TH', 'TD', 'L']));

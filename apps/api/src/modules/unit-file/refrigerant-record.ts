@@ -77,7 +77,10 @@ const EXEMPT_BY_REASON: Partial<Record<RefrigerantEventReason, AdditionExemption
  * with nothing added; an installation charge, retrofit or seasonal top-up is marked exempt
  * (40 CFR 82.157(b), 84.106(b)). The one mapping for the ledger and the check made at each entry.
  */
-export function additionOf(e: { date: string; poundsAdded: number; reason: RefrigerantEventReason }, leakId?: string): RefrigerantAddition | null {
+export function additionOf(
+  e: { date: string; poundsAdded: number; reason: RefrigerantEventReason },
+  leakId?: string,
+): RefrigerantAddition | null {
   if (e.reason === 'recovery' || e.poundsAdded <= 0) return null;
   const exempt = EXEMPT_BY_REASON[e.reason];
   return { date: e.date, pounds: e.poundsAdded, ...(leakId ? { leakId } : {}), ...(exempt ? { exempt } : {}) };
@@ -108,7 +111,16 @@ export interface LedgerSourceRows {
     planDueDate: string | null;
     createdAt: Date;
   }[];
-  tests: { id: string; leakCaseId: string; kind: 'initial' | 'follow_up'; testedOn: string; passed: boolean; notes: string | null; createdAt: Date; by: Person }[];
+  tests: {
+    id: string;
+    leakCaseId: string;
+    kind: 'initial' | 'follow_up';
+    testedOn: string;
+    passed: boolean;
+    notes: string | null;
+    createdAt: Date;
+    by: Person;
+  }[];
 }
 
 export interface Ledger {
@@ -134,20 +146,59 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
   const entries: RefrigerantRecordEvent[] = [];
   const ledgerEvents: LedgerEvent[] = [];
   const additions: RefrigerantAddition[] = [];
-  const blank = { poundsAdded: null, poundsRecovered: null, reason: null, exempt: null, circuit: null, counted: false, leakCaseId: null, cylinderLot: null, visitId: null, by: null, stage: null, passed: null, rate: null, opensObligation: false, note: null };
+  const blank = {
+    poundsAdded: null,
+    poundsRecovered: null,
+    reason: null,
+    exempt: null,
+    circuit: null,
+    counted: false,
+    leakCaseId: null,
+    cylinderLot: null,
+    visitId: null,
+    by: null,
+    stage: null,
+    passed: null,
+    rate: null,
+    opensObligation: false,
+    note: null,
+  };
 
   for (const e of src.events) {
-    const base = { ...blank, date: e.date, sourceId: e.id, recordedAt: e.createdAt.toISOString(), poundsAdded: e.poundsAdded, poundsRecovered: e.poundsRecovered, reason: e.reason, circuit: e.circuit, cylinderLot: e.cylinderLot, visitId: e.visitId, by: e.tech, leakCaseId: leakIdOf.get(e.id) ?? null };
+    const base = {
+      ...blank,
+      date: e.date,
+      sourceId: e.id,
+      recordedAt: e.createdAt.toISOString(),
+      poundsAdded: e.poundsAdded,
+      poundsRecovered: e.poundsRecovered,
+      reason: e.reason,
+      circuit: e.circuit,
+      cylinderLot: e.cylinderLot,
+      visitId: e.visitId,
+      by: e.tech,
+      leakCaseId: leakIdOf.get(e.id) ?? null,
+    };
     const leakId = leakIdOf.get(e.id);
     const a = additionOf(e, leakId);
     if (!a) {
-      entries.push({ ...base, kind: e.poundsAdded > 0 || e.poundsRecovered > 0 || e.reason === 'recovery' ? 'recovery' : 'addition', note: e.poundsAdded > 0 ? 'Recorded as a recovery: not counted toward the leak rate.' : null });
+      entries.push({
+        ...base,
+        kind: e.poundsAdded > 0 || e.poundsRecovered > 0 || e.reason === 'recovery' ? 'recovery' : 'addition',
+        note: e.poundsAdded > 0 ? 'Recorded as a recovery: not counted toward the leak rate.' : null,
+      });
       continue;
     }
     const exempt = a.exempt ?? null;
     additions.push(a);
     ledgerEvents.push({ kind: 'addition', ...a });
-    entries.push({ ...base, kind: 'addition', exempt, counted: exempt === null, note: exempt ? 'Not counted toward the leak rate (40 CFR 82.157(b)).' : null });
+    entries.push({
+      ...base,
+      kind: 'addition',
+      exempt,
+      counted: exempt === null,
+      note: exempt ? 'Not counted toward the leak rate (40 CFR 82.157(b)).' : null,
+    });
   }
   for (const c of src.cases) {
     if (c.repairedOn) {
@@ -157,13 +208,32 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
     if (c.planKind) {
       const date = c.planDueDate ? addDays(c.planDueDate, -PLAN_COMPLETE_DAYS) : c.openedOn;
       ledgerEvents.push({ kind: 'retrofit-or-retirement-plan', date });
-      entries.push({ ...blank, kind: 'retrofit-or-retirement-plan', date, sourceId: c.id, recordedAt: null, leakCaseId: c.id, note: c.planKind === 'retrofit' ? 'Retrofit plan' : 'Retirement plan' });
+      entries.push({
+        ...blank,
+        kind: 'retrofit-or-retirement-plan',
+        date,
+        sourceId: c.id,
+        recordedAt: null,
+        leakCaseId: c.id,
+        note: c.planKind === 'retrofit' ? 'Retrofit plan' : 'Retirement plan',
+      });
     }
   }
   for (const t of src.tests) {
     const stage = t.kind === 'initial' ? ('initial' as const) : ('follow-up' as const);
     ledgerEvents.push({ kind: 'verification', date: t.testedOn, stage, passed: t.passed });
-    entries.push({ ...blank, kind: 'verification', date: t.testedOn, sourceId: t.id, recordedAt: t.createdAt.toISOString(), leakCaseId: t.leakCaseId, by: t.by, stage, passed: t.passed, note: t.notes });
+    entries.push({
+      ...blank,
+      kind: 'verification',
+      date: t.testedOn,
+      sourceId: t.id,
+      recordedAt: t.createdAt.toISOString(),
+      leakCaseId: t.leakCaseId,
+      by: t.by,
+      stage,
+      passed: t.passed,
+      note: t.notes,
+    });
   }
   entries.sort(dateOrder);
 
@@ -180,7 +250,13 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
   for (const e of entries) {
     if (!e.counted || rateOn.has(e.date) || e.date > asOf) continue;
     const o = leakRepairObligation({ appliance, additions, asOf: e.date, method: RECORD_METHOD });
-    rateOn.set(e.date, { leakRatePercent: o.leakRate, inScope: o.inScope, rule: o.rule, thresholdPercent: o.thresholdPercent, overThreshold: o.exceeds });
+    rateOn.set(e.date, {
+      leakRatePercent: o.leakRate,
+      inScope: o.inScope,
+      rule: o.rule,
+      thresholdPercent: o.thresholdPercent,
+      overThreshold: o.exceeds,
+    });
   }
   const triggers = new Set(result.obligations.map((o) => o.triggeredOn));
   const opened = new Set<string>();
@@ -198,11 +274,19 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
     const rate = rateOn.get(o.triggeredOn) ?? null;
     const trigger = entries.find((e) => e.date === o.triggeredOn && e.opensObligation);
     const leakCase =
-      src.cases.find((c) => trigger && c.triggeringEventId === trigger.sourceId) ?? src.cases.find((c) => c.openedOn === o.triggeredOn) ?? null;
+      src.cases.find((c) => trigger && c.triggeringEventId === trigger.sourceId) ??
+      src.cases.find((c) => c.openedOn === o.triggeredOn) ??
+      null;
     const within = entries.filter((e) => e.kind !== 'addition' && e.kind !== 'recovery' && e.date >= o.triggeredOn && e.date < next);
-    const initialPassed = within.find((e) => e.kind === 'verification' && e.stage === 'initial' && e.passed && (o.repairedOn === null || e.date >= o.repairedOn));
+    const initialPassed = within.find(
+      (e) => e.kind === 'verification' && e.stage === 'initial' && e.passed && (o.repairedOn === null || e.date >= o.repairedOn),
+    );
     const rule = LEAK_RULES.find((r) => r.rule === rate?.rule);
-    const v = verificationDeadlines({ repairDueDate: o.repairDueDate, ...(initialPassed ? { initialTestDate: initialPassed.date } : {}), ...(rule ? { followUpDays: rule.followUpVerificationDays } : {}) });
+    const v = verificationDeadlines({
+      repairDueDate: o.repairDueDate,
+      ...(initialPassed ? { initialTestDate: initialPassed.date } : {}),
+      ...(rule ? { followUpDays: rule.followUpVerificationDays } : {}),
+    });
     return {
       triggeredOn: o.triggeredOn,
       leakRatePercent: o.leakRate,
@@ -247,7 +331,12 @@ export async function loadLedgerSource(db: Db | Tx, unit: LedgerSourceRows['unit
         .select({ t: verificationTests, name: users.name, epa608Type: users.epa608Type, epa608Number: users.epa608Number })
         .from(verificationTests)
         .leftJoin(users, eq(users.id, verificationTests.byUserId))
-        .where(inArray(verificationTests.leakCaseId, caseRows.map((c) => c.id)))
+        .where(
+          inArray(
+            verificationTests.leakCaseId,
+            caseRows.map((c) => c.id),
+          ),
+        )
         .orderBy(asc(verificationTests.testedOn), asc(verificationTests.createdAt))
     : [];
   return {
@@ -273,7 +362,16 @@ export async function loadLedgerSource(db: Db | Tx, unit: LedgerSourceRows['unit
       planDueDate: c.planDueDate,
       createdAt: c.createdAt,
     })),
-    tests: testRows.map(({ t, ...p }) => ({ id: t.id, leakCaseId: t.leakCaseId, kind: t.kind, testedOn: t.testedOn, passed: t.passed, notes: t.notes, createdAt: t.createdAt, by: person(p) })),
+    tests: testRows.map(({ t, ...p }) => ({
+      id: t.id,
+      leakCaseId: t.leakCaseId,
+      kind: t.kind,
+      testedOn: t.testedOn,
+      passed: t.passed,
+      notes: t.notes,
+      createdAt: t.createdAt,
+      by: person(p),
+    })),
   };
 }
 
@@ -287,7 +385,11 @@ export async function refrigerantRecord(db: Db, user: SessionUser, unitId: strin
       .innerJoin(customers, eq(customers.id, sites.customerId))
       .where(eq(sites.id, u.siteId)),
     db.select({ id: branches.id, name: branches.name, timeZone: branches.timeZone }).from(branches).where(eq(branches.id, u.branchId)),
-    db.select({ number: circuits.number, chargeLb: circuits.chargeLb }).from(circuits).where(and(eq(circuits.unitId, u.id))).orderBy(asc(circuits.number)),
+    db
+      .select({ number: circuits.number, chargeLb: circuits.chargeLb })
+      .from(circuits)
+      .where(and(eq(circuits.unitId, u.id)))
+      .orderBy(asc(circuits.number)),
   ]);
   const asOf = zonedDate(now, branch!.timeZone);
   const ledger = buildLedger(await loadLedgerSource(db, u), asOf);

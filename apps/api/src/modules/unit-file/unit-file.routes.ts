@@ -27,22 +27,25 @@ export function unitFileRoutes(ctx: AppContext): Router {
   );
   r.get(
     '/:id/refrigerant-record',
-    endpoint({ params: unitParams, query: refrigerantRecordQuerySchema, response: refrigerantRecordSchema }, async ({ params, query, user, res }) => {
-      const now = ctx.clock.now();
-      const record = await refrigerantRecord(ctx.db, user, params.id, now);
-      if (query.format === 'json') return record;
-      res.setHeader('Cache-Control', 'private, no-store');
-      if (query.format === 'csv') {
-        res.setHeader('Content-Type', 'text/csv; charset=utf-8');
-        res.setHeader('Content-Disposition', `attachment; filename="${recordFileName(record, 'csv')}"`);
-        res.send(recordCsv(record));
-        return;
-      }
-      const pdf = await recordPdf(record, now);
-      res.setHeader('Content-Type', 'application/pdf');
-      res.setHeader('Content-Disposition', `attachment; filename="${recordFileName(record, 'pdf')}"`);
-      res.send(pdf);
-    }),
+    endpoint(
+      { params: unitParams, query: refrigerantRecordQuerySchema, response: refrigerantRecordSchema },
+      async ({ params, query, user, res }) => {
+        const now = ctx.clock.now();
+        const record = await refrigerantRecord(ctx.db, user, params.id, now);
+        if (query.format === 'json') return record;
+        res.setHeader('Cache-Control', 'private, no-store');
+        if (query.format === 'csv') {
+          res.setHeader('Content-Type', 'text/csv; charset=utf-8');
+          res.setHeader('Content-Disposition', `attachment; filename="${recordFileName(record, 'csv')}"`);
+          res.send(recordCsv(record));
+          return;
+        }
+        const pdf = await recordPdf(record, now);
+        res.setHeader('Content-Type', 'application/pdf');
+        res.setHeader('Content-Disposition', `attachment; filename="${recordFileName(record, 'pdf')}"`);
+        res.send(pdf);
+      },
+    ),
   );
   r.get(
     '/:id/file/attachments/:attachmentId',
@@ -60,7 +63,9 @@ export function unitSearchRoutes(ctx: AppContext): Router {
   const r = Router();
   r.get(
     '/',
-    endpoint({ query: unitSearchQuerySchema, response: unitSearchResultSchema }, ({ query, user }) => searchUnits(ctx.db, user, query, resolveBranch(user, query.branchId))),
+    endpoint({ query: unitSearchQuerySchema, response: unitSearchResultSchema }, ({ query, user }) =>
+      searchUnits(ctx.db, user, query, resolveBranch(user, query.branchId)),
+    ),
   );
   return r;
 }

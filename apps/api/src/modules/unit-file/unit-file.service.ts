@@ -59,7 +59,11 @@ export async function readableUnit(db: Db, user: SessionUser, unitId: string) {
   if (!u) throw notFound('unit');
   let onAssignments = false;
   if (user.role === 'technician') {
-    const [ok] = await db.select({ id: units.id }).from(units).where(and(eq(units.id, unitId), techAssigned(db, user.id))).limit(1);
+    const [ok] = await db
+      .select({ id: units.id })
+      .from(units)
+      .where(and(eq(units.id, unitId), techAssigned(db, user.id)))
+      .limit(1);
     onAssignments = !!ok;
   }
   enforce(unitMayRead(user, u, onAssignments));
@@ -77,14 +81,33 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
   const [siteRows, branchRows, circuitRows, agreementRows, alarmRows, readingRows, findingRows, caseRows, attachmentRows, woRows] =
     await Promise.all([
       db
-        .select({ id: sites.id, name: sites.name, address: sites.address, city: sites.city, region: sites.region, accessNotes: sites.accessNotes, customerName: customers.name })
+        .select({
+          id: sites.id,
+          name: sites.name,
+          address: sites.address,
+          city: sites.city,
+          region: sites.region,
+          accessNotes: sites.accessNotes,
+          customerName: customers.name,
+        })
         .from(sites)
         .innerJoin(customers, eq(customers.id, sites.customerId))
         .where(eq(sites.id, u.siteId)),
-      db.select({ id: branches.id, name: branches.name, timeZone: branches.timeZone, unitSystem: branches.unitSystem }).from(branches).where(eq(branches.id, u.branchId)),
+      db
+        .select({ id: branches.id, name: branches.name, timeZone: branches.timeZone, unitSystem: branches.unitSystem })
+        .from(branches)
+        .where(eq(branches.id, u.branchId)),
       db.select().from(circuits).where(eq(circuits.unitId, unitId)).orderBy(asc(circuits.number)),
       db
-        .select({ id: agreements.id, name: agreements.name, status: agreements.status, termStart: agreements.termStart, termEnd: agreements.termEnd, slaHours: agreements.slaHours, rrule: agreements.rrule })
+        .select({
+          id: agreements.id,
+          name: agreements.name,
+          status: agreements.status,
+          termStart: agreements.termStart,
+          termEnd: agreements.termEnd,
+          slaHours: agreements.slaHours,
+          rrule: agreements.rrule,
+        })
         .from(agreementUnits)
         .innerJoin(agreements, eq(agreements.id, agreementUnits.agreementId))
         .where(eq(agreementUnits.unitId, unitId))
@@ -98,7 +121,13 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
         .orderBy(desc(readings.takenAt))
         .limit(READINGS_LIMIT),
       db
-        .select({ f: findings, workOrderId: visits.workOrderId, workOrderNumber: workOrders.number, techName: users.name, closedAt: visits.closedAt })
+        .select({
+          f: findings,
+          workOrderId: visits.workOrderId,
+          workOrderNumber: workOrders.number,
+          techName: users.name,
+          closedAt: visits.closedAt,
+        })
         .from(findings)
         .innerJoin(visits, eq(visits.id, findings.visitId))
         .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
@@ -116,14 +145,28 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
 
   const [tests, visitRows] = await Promise.all([
     caseRows.length
-      ? db.select().from(verificationTests).where(inArray(verificationTests.leakCaseId, caseRows.map((c) => c.id))).orderBy(asc(verificationTests.testedOn))
+      ? db
+          .select()
+          .from(verificationTests)
+          .where(
+            inArray(
+              verificationTests.leakCaseId,
+              caseRows.map((c) => c.id),
+            ),
+          )
+          .orderBy(asc(verificationTests.testedOn))
       : Promise.resolve([]),
     woRows.length
       ? db
           .select({ v: visits, techName: users.name })
           .from(visits)
           .innerJoin(users, eq(users.id, visits.techId))
-          .where(inArray(visits.workOrderId, woRows.map((w) => w.id)))
+          .where(
+            inArray(
+              visits.workOrderId,
+              woRows.map((w) => w.id),
+            ),
+          )
           .orderBy(asc(visits.createdAt))
       : Promise.resolve([]),
   ]);
@@ -163,7 +206,13 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
     site,
     branch,
     nameplate: nameplate ? toAttachment(nameplate) : null,
-    circuits: circuitRows.map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb, targets: circuitTargetsDto(c, branch.unitSystem) })),
+    circuits: circuitRows.map((c) => ({
+      id: c.id,
+      number: c.number,
+      compressorCount: c.compressorCount,
+      chargeLb: c.chargeLb,
+      targets: circuitTargetsDto(c, branch.unitSystem),
+    })),
     agreements: agreementRows,
     alarms: alarmRows.map((a) => ({
       id: a.id,
@@ -201,7 +250,9 @@ export async function unitFile(db: Db, user: SessionUser, unitId: string): Promi
       status: c.status,
       repairedOn: c.repairedOn,
       closedAt: iso(c.closedAt),
-      verificationTests: tests.filter((t) => t.leakCaseId === c.id).map((t) => ({ id: t.id, kind: t.kind, testedOn: t.testedOn, passed: t.passed })),
+      verificationTests: tests
+        .filter((t) => t.leakCaseId === c.id)
+        .map((t) => ({ id: t.id, kind: t.kind, testedOn: t.testedOn, passed: t.passed })),
     })),
     attachments: attachmentRows.map(toAttachment),
     workOrders: woRows.map((w) => ({
@@ -272,12 +323,20 @@ export async function searchUnits(db: Db, user: SessionUser, q: UnitSearchQuery,
         branchId ? eq(units.branchId, branchId) : undefined,
         user.role === 'technician' ? techAssigned(db, user.id) : undefined,
         term
-          ? or(ilike(units.tag, term), ilike(units.serial, term), ilike(units.make, term), ilike(units.model, term), ilike(sites.name, term))
+          ? or(
+              ilike(units.tag, term),
+              ilike(units.serial, term),
+              ilike(units.make, term),
+              ilike(units.model, term),
+              ilike(sites.name, term),
+            )
           : undefined,
       ),
     )
     .orderBy(asc(sites.name), asc(units.tag))
     .limit(q.limit + 1);
-  return { units: rowsFound.slice(0, q.limit).map((r) => ({ ...r, openWorkOrders: Number(r.openWorkOrders) })), more: rowsFound.length > q.limit };
+  return {
+    units: rowsFound.slice(0, q.limit).map((r) => ({ ...r, openWorkOrders: Number(r.openWorkOrders) })),
+    more: rowsFound.length > q.limit,
+  };
 }
-

@@ -25,11 +25,26 @@ beforeAll(async () => {
   const tech = f.inA.technician;
   const [w] = await db
     .insert(workOrders)
-    .values({ branchId: f.a.id, siteId: u1.site.id, unitId: u1.unit.id, kind: 'service_call', state: 'closed', createdAt: new Date('2026-03-20T08:00:00Z') })
+    .values({
+      branchId: f.a.id,
+      siteId: u1.site.id,
+      unitId: u1.unit.id,
+      kind: 'service_call',
+      state: 'closed',
+      createdAt: new Date('2026-03-20T08:00:00Z'),
+    })
     .returning();
   const [v] = await db
     .insert(visits)
-    .values({ branchId: f.a.id, workOrderId: w!.id, techId: tech.id, onSiteAt: new Date('2026-03-20T10:00:00Z'), closedAt: new Date('2026-03-20T12:00:00Z'), outcome: 'resolved', labourMinutes: 120 })
+    .values({
+      branchId: f.a.id,
+      workOrderId: w!.id,
+      techId: tech.id,
+      onSiteAt: new Date('2026-03-20T10:00:00Z'),
+      closedAt: new Date('2026-03-20T12:00:00Z'),
+      outcome: 'resolved',
+      labourMinutes: 120,
+    })
     .returning();
   const cs = await db.select().from(circuits).where(eq(circuits.unitId, u1.unit.id));
   for (const c of cs) {
@@ -44,23 +59,68 @@ beforeAll(async () => {
       subcooling: 9,
     });
   }
-  await db.insert(findings).values({ visitId: v!.id, unitId: u1.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect', alarmCode: 'LP2', reportedCircuit: 2, actualCircuit: 1 });
-  await db.insert(alarms).values({ branchId: f.a.id, unitId: u1.unit.id, circuit: 2, code: 'LP2', raisedAt: new Date('2026-03-19T22:00:00Z'), source: 'controller' });
+  await db
+    .insert(findings)
+    .values({
+      visitId: v!.id,
+      unitId: u1.unit.id,
+      causeCode: 'wiring_fault',
+      origin: 'factory_defect',
+      alarmCode: 'LP2',
+      reportedCircuit: 2,
+      actualCircuit: 1,
+    });
+  await db
+    .insert(alarms)
+    .values({
+      branchId: f.a.id,
+      unitId: u1.unit.id,
+      circuit: 2,
+      code: 'LP2',
+      raisedAt: new Date('2026-03-19T22:00:00Z'),
+      source: 'controller',
+    });
   // Refrigerant log (full charge 18 lb, R-410A, comfort cooling → 40 CFR 84.106 from 2026, threshold 10 %):
   await db.insert(refrigerantEvents).values([
     { unitId: u1.unit.id, date: '2025-06-01', refrigerant: 'R-410A', poundsAdded: 18, reason: 'initial_charge' },
-    { unitId: u1.unit.id, visitId: v!.id, date: '2026-03-20', refrigerant: 'R-410A', poundsAdded: 1.8, reason: 'leak_top_off', techId: tech.id },
+    {
+      unitId: u1.unit.id,
+      visitId: v!.id,
+      date: '2026-03-20',
+      refrigerant: 'R-410A',
+      poundsAdded: 1.8,
+      reason: 'leak_top_off',
+      techId: tech.id,
+    },
     { unitId: u1.unit.id, date: '2026-04-19', refrigerant: 'R-410A', poundsAdded: 0.9, reason: 'leak_top_off' },
   ]);
   const [photo] = await db
     .insert(attachments)
-    .values({ visitId: v!.id, kind: 'nameplate', storageKey: await t.storage.put(Buffer.from('fake-jpeg'), { contentType: 'image/jpeg' }), displayName: 'nameplate.jpg', contentType: 'image/jpeg', sizeBytes: 9 })
+    .values({
+      visitId: v!.id,
+      kind: 'nameplate',
+      storageKey: await t.storage.put(Buffer.from('fake-jpeg'), { contentType: 'image/jpeg' }),
+      displayName: 'nameplate.jpg',
+      contentType: 'image/jpeg',
+      sizeBytes: 9,
+    })
     .returning();
   photoId = photo!.id;
   await db.update(units).set({ nameplateAttachmentId: photoId }).where(eq(units.id, u1.unit.id));
   // A booking (no visit yet) gives A's technician access to U2.
-  const [w2] = await db.insert(workOrders).values({ branchId: f.a.id, siteId: u2.site.id, unitId: u2.unit.id, kind: 'service_call', state: 'booked' }).returning();
-  await db.insert(bookings).values({ branchId: f.a.id, workOrderId: w2!.id, techId: tech.id, startAt: new Date('2026-07-02T14:00:00Z'), endAt: new Date('2026-07-02T15:00:00Z') });
+  const [w2] = await db
+    .insert(workOrders)
+    .values({ branchId: f.a.id, siteId: u2.site.id, unitId: u2.unit.id, kind: 'service_call', state: 'booked' })
+    .returning();
+  await db
+    .insert(bookings)
+    .values({
+      branchId: f.a.id,
+      workOrderId: w2!.id,
+      techId: tech.id,
+      startAt: new Date('2026-07-02T14:00:00Z'),
+      endAt: new Date('2026-07-02T15:00:00Z'),
+    });
 });
 afterAll(() => t.close());
 

@@ -20,7 +20,13 @@ export interface CircuitTargetsResult {
  * its temperature unit (°F, or C for kelvin); the ranges are stored as °F differences, like readings. The
  * contract has checked both ends, min ≤ max and the plausible bounds; the table's checks hold the same.
  */
-export async function setCircuitTargets(ctx: AppContext, user: SessionUser, unitId: string, number: number, input: CircuitTargetsValues): Promise<CircuitTargetsResult> {
+export async function setCircuitTargets(
+  ctx: AppContext,
+  user: SessionUser,
+  unitId: string,
+  number: number,
+  input: CircuitTargetsValues,
+): Promise<CircuitTargetsResult> {
   const toF = (x: number | null) => (x === null ? null : convertTemperatureDifference(x, input.temperature, STORED_UNITS.temperature));
   return ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);

@@ -15,7 +15,13 @@ let f: Awaited<ReturnType<typeof makeTwoBranches>>;
 let u: Awaited<ReturnType<typeof makeSiteWithUnit>>;
 
 const as = (email: string) => signedInAgent(t.app, email, TEST_PASSWORD);
-const stored = async (unitId: string, number: number) => (await t.ctx.db.select().from(circuits).where(and(eq(circuits.unitId, unitId), eq(circuits.number, number))))[0]!;
+const stored = async (unitId: string, number: number) =>
+  (
+    await t.ctx.db
+      .select()
+      .from(circuits)
+      .where(and(eq(circuits.unitId, unitId), eq(circuits.number, number)))
+  )[0]!;
 const path = (unitId: string, n: number) => `/api/units/${unitId}/circuits/${n}/targets`;
 
 beforeAll(async () => {
@@ -28,23 +34,41 @@ afterAll(() => t.close());
 describe('circuit target ranges', () => {
   it('a manager sets both ranges in °F; the Unit file answers them, the other circuit keeps none', async () => {
     const manager = await as(f.inA.manager.email);
-    const res = await manager.put(path(u.unit.id, 1)).send({ temperature: 'F', superheatMin: 8, superheatMax: 12, subcoolingMin: '10', subcoolingMax: '15', source: 'Nameplate' });
+    const res = await manager
+      .put(path(u.unit.id, 1))
+      .send({ temperature: 'F', superheatMin: 8, superheatMax: 12, subcoolingMin: '10', subcoolingMax: '15', source: 'Nameplate' });
     expect(res.status).toBe(200);
-    expect(res.body).toEqual({ unitId: u.unit.id, circuit: 1, targets: { superheat: { min: 8, max: 12 }, subcooling: { min: 10, max: 15 }, source: 'Nameplate' } });
+    expect(res.body).toEqual({
+      unitId: u.unit.id,
+      circuit: 1,
+      targets: { superheat: { min: 8, max: 12 }, subcooling: { min: 10, max: 15 }, source: 'Nameplate' },
+    });
     const c = await stored(u.unit.id, 1);
-    expect([c.targetSuperheatMinF, c.targetSuperheatMaxF, c.targetSubcoolingMinF, c.targetSubcoolingMaxF, c.targetSource]).toEqual([8, 12, 10, 15, 'Nameplate']);
+    expect([c.targetSuperheatMinF, c.targetSuperheatMaxF, c.targetSubcoolingMinF, c.targetSubcoolingMaxF, c.targetSource]).toEqual([
+      8,
+      12,
+      10,
+      15,
+      'Nameplate',
+    ]);
     const file = (await manager.get(`/api/units/${u.unit.id}/file`)).body as UnitFile;
     expect(file.circuits.map((x) => [x.number, x.targets])).toEqual([
       [1, { superheat: { min: 8, max: 12 }, subcooling: { min: 10, max: 15 }, source: 'Nameplate' }],
       [2, { superheat: null, subcooling: null, source: null }],
     ]);
     const briefing = (await manager.get(`/api/units/${u.unit.id}/briefing`)).body as { circuits: { number: number; targets: unknown }[] };
-    expect(briefing.circuits[0]!.targets).toEqual({ superheat: { min: 8, max: 12 }, subcooling: { min: 10, max: 15 }, source: 'Nameplate' });
+    expect(briefing.circuits[0]!.targets).toEqual({
+      superheat: { min: 8, max: 12 },
+      subcooling: { min: 10, max: 15 },
+      source: 'Nameplate',
+    });
   });
 
   it('refuses min above max and a range with one end, naming the field, and changes nothing', async () => {
     const dispatcher = await as(f.inA.dispatcher.email);
-    const res = await dispatcher.put(path(u.unit.id, 1)).send({ temperature: 'F', superheatMin: 14, superheatMax: 12, subcoolingMin: 10, subcoolingMax: 15 });
+    const res = await dispatcher
+      .put(path(u.unit.id, 1))
+      .send({ temperature: 'F', superheatMin: 14, superheatMax: 12, subcoolingMin: 10, subcoolingMax: 15 });
     expect(res.status).toBe(400);
     expect(JSON.stringify(res.body.error)).toContain('superheatMax');
     expect(JSON.stringify(res.body.error)).toContain('cannot be below the lowest');
@@ -59,7 +83,16 @@ describe('circuit target ranges', () => {
 
   it('a dispatcher clears a range by sending it blank; the other range and the source stay as sent', async () => {
     const dispatcher = await as(f.inA.dispatcher.email);
-    const res = await dispatcher.put(path(u.unit.id, 1)).send({ temperature: 'F', superheatMin: '', superheatMax: '', subcoolingMin: 10, subcoolingMax: 15, source: 'Installation manual p. 14' });
+    const res = await dispatcher
+      .put(path(u.unit.id, 1))
+      .send({
+        temperature: 'F',
+        superheatMin: '',
+        superheatMax: '',
+        subcoolingMin: 10,
+        subcoolingMax: 15,
+        source: 'Installation manual p. 14',
+      });
     expect(res.status).toBe(200);
     expect(res.body.targets).toEqual({ superheat: null, subcooling: { min: 10, max: 15 }, source: 'Installation manual p. 14' });
     const c = await stored(u.unit.id, 1);

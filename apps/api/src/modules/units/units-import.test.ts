@@ -31,7 +31,12 @@ async function unitsAt(siteId: string) {
 describe('POST /api/units/import', () => {
   it('imports a clean file: dry run writes nothing, commit writes every unit and its circuits', async () => {
     const { site } = await makeSiteWithUnit(t.ctx.db, f.a.id);
-    const csv = [header, row(1), row(2, { circuits: '3', compressors_per_circuit: '2', refrigerant: 'r410a', kind: 'Rooftop unit' }), row(3, { install_date: '', warranty_end: '', tonnage: '' })].join('\n');
+    const csv = [
+      header,
+      row(1),
+      row(2, { circuits: '3', compressors_per_circuit: '2', refrigerant: 'r410a', kind: 'Rooftop unit' }),
+      row(3, { install_date: '', warranty_end: '', tonnage: '' }),
+    ].join('\n');
 
     const dry = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv });
     expect(dry.status).toBe(200);
@@ -43,7 +48,13 @@ describe('POST /api/units/import', () => {
     expect(commit.body).toMatchObject({ mode: 'commit', rowCount: 3, validCount: 3, created: 3 });
     expect(await unitsAt(site.id)).toBe(4);
     const [two] = await t.ctx.db.select().from(units).where(eq(units.serial, 'IMP-2'));
-    expect(two).toMatchObject({ refrigerant: 'R-410A', kind: 'rooftop_unit', fullChargeLb: 18.5, installDate: '2021-05-14', branchId: f.a.id });
+    expect(two).toMatchObject({
+      refrigerant: 'R-410A',
+      kind: 'rooftop_unit',
+      fullChargeLb: 18.5,
+      installDate: '2021-05-14',
+      branchId: f.a.id,
+    });
     const cs = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, two!.id));
     expect(cs.map((c) => [c.number, c.compressorCount]).sort()).toEqual([
       [1, 2],
@@ -94,14 +105,22 @@ describe('POST /api/units/import', () => {
     expect(commit.body.error.message).toContain('Nothing was imported');
     expect(commit.body.error.details.errors).toEqual(dry.body.errors);
     expect(await unitsAt(site.id)).toBe(1);
-    const written = await t.ctx.db.select().from(units).where(inArray(units.serial, ['IMP-101', 'IMP-103', 'IMP-109']));
+    const written = await t.ctx.db
+      .select()
+      .from(units)
+      .where(inArray(units.serial, ['IMP-101', 'IMP-103', 'IMP-109']));
     expect(written).toHaveLength(0);
   });
 
   it('refuses a file that is not a CSV of units', async () => {
     const { site } = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const png = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 0x0d]).toString('latin1');
-    const cases = [png, '{"units": [{"tag": "RTU-1"}]}', 'Dear team,\nplease add the new rooftop units.\nThanks', 'tag,make\nRTU-1,Examplemake'];
+    const cases = [
+      png,
+      '{"units": [{"tag": "RTU-1"}]}',
+      'Dear team,\nplease add the new rooftop units.\nThanks',
+      'tag,make\nRTU-1,Examplemake',
+    ];
     for (const csv of cases) {
       const res = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv });
       expect(res.status, csv.slice(0, 20)).toBe(400);
@@ -180,7 +199,10 @@ describe('POST /api/units/import: what the file is encoded in', () => {
       expect(res.status).toBe(200);
       expect(res.body).toMatchObject({ encoding: 'UTF-8', rowCount: 1, validCount: 1 });
     }
-    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: Buffer.from(text).toString('base64') })).status).toBe(200);
+    expect(
+      (await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: Buffer.from(text).toString('base64') }))
+        .status,
+    ).toBe(200);
     const [u] = await t.ctx.db.select().from(units).where(eq(units.serial, 'IMP-321'));
     expect(u!.notes).toBe('Nguyễn Thị Hương; Łukasz Żółć');
   });
@@ -196,18 +218,27 @@ describe('POST /api/units/import: what the file is encoded in', () => {
     expect(asText.body.error.code).toBe('not_utf8');
     expect(asText.body.error.message).toMatch(/could not be read.*CSV UTF-8/);
     // Japanese Shift_JIS: not a Latin code page Coilpath converts.
-    const sjis = iconv.encode([header, row(332, { notes: '東京の屋上ユニット、北側の機械室の隣にあります' })].join('\n'), 'shift_jis').toString('base64');
+    const sjis = iconv
+      .encode([header, row(332, { notes: '東京の屋上ユニット、北側の機械室の隣にあります' })].join('\n'), 'shift_jis')
+      .toString('base64');
     const japanese = await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: sjis });
     expect(japanese.status).toBe(400);
     expect(japanese.body.error.code).toBe('not_utf8');
     expect(japanese.body.error.message).toContain('Shift_JIS');
     expect(japanese.body.error.message).toContain('save it as "CSV UTF-8 (comma delimited)"');
     // Says UTF-8 (byte-order mark) but is not.
-    const lying = Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), iconv.encode([header, polishRow(333)].join('\n'), 'windows-1250')]).toString('base64');
-    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: lying })).body.error.code).toBe('not_utf8');
+    const lying = Buffer.concat([
+      Buffer.from([0xef, 0xbb, 0xbf]),
+      iconv.encode([header, polishRow(333)].join('\n'), 'windows-1250'),
+    ]).toString('base64');
+    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'commit', file: lying })).body.error.code).toBe(
+      'not_utf8',
+    );
     // Both or neither of csv and file; a file that is not base64.
     expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run' })).status).toBe(400);
-    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv: header, file: 'AAAA' })).status).toBe(400);
+    expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', csv: header, file: 'AAAA' })).status).toBe(
+      400,
+    );
     expect((await dispatcher.post('/api/units/import').send({ siteId: site.id, mode: 'dry-run', file: 'not base64!' })).status).toBe(400);
     expect(await unitsAt(site.id)).toBe(before);
     const stored = await t.ctx.db.select({ make: units.make, notes: units.notes }).from(units);

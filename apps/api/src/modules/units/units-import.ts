@@ -85,12 +85,16 @@ export function parseUnitCsv(text: string): { units: ImportedUnit[]; errors: Uni
     );
   }
   if (missing.length > 0) {
-    throw notACsv(`The header row lacks ${missing.length === 1 ? 'the column' : 'these columns'}: ${missing.join(', ')}. Download the template to see every column.`);
+    throw notACsv(
+      `The header row lacks ${missing.length === 1 ? 'the column' : 'these columns'}: ${missing.join(', ')}. Download the template to see every column.`,
+    );
   }
   const dupHeaders = fields.filter((f, i) => fields.indexOf(f) !== i);
   if (dupHeaders.length) throw notACsv(`The header row names ${[...new Set(dupHeaders)].join(', ')} more than once.`);
   if (parsed.data.length > unitImportLimits.maxRows) {
-    throw badRequest(`The file has ${parsed.data.length} rows; import at most ${unitImportLimits.maxRows.toLocaleString('en-US')} at a time.`);
+    throw badRequest(
+      `The file has ${parsed.data.length} rows; import at most ${unitImportLimits.maxRows.toLocaleString('en-US')} at a time.`,
+    );
   }
 
   const errors: UnitImportRowError[] = [];
@@ -129,7 +133,8 @@ export function parseUnitCsv(text: string): { units: ImportedUnit[]; errors: Uni
     if (v('kind') && !kind) fail('kind', `Unknown kind "${v('kind')}". Use one of ${unitKinds.join(', ')}.`);
 
     const refrigerant = v('refrigerant') ? matchRefrigerant(v('refrigerant')) : null;
-    if (v('refrigerant') && !refrigerant) fail('refrigerant', `Unknown refrigerant "${v('refrigerant')}". Use one of ${refrigerantIds.join(', ')}.`);
+    if (v('refrigerant') && !refrigerant)
+      fail('refrigerant', `Unknown refrigerant "${v('refrigerant')}". Use one of ${refrigerantIds.join(', ')}.`);
 
     const category = v('appliance_category') ? matchEnum(v('appliance_category'), applianceCategories, applianceCategoryLabels) : null;
     if (v('appliance_category') && !category)
@@ -172,14 +177,21 @@ export function parseUnitCsv(text: string): { units: ImportedUnit[]; errors: Uni
     const circuitCount = count('circuits', 'Circuits');
     const compressors = count('compressors_per_circuit', 'Compressors per circuit');
 
-    for (const [c, max] of [['tag', 40], ['make', 80], ['model', 80], ['serial', 80], ['notes', 4000]] as const) {
+    for (const [c, max] of [
+      ['tag', 40],
+      ['make', 80],
+      ['model', 80],
+      ['serial', 80],
+      ['notes', 4000],
+    ] as const) {
       if (v(c).length > max) fail(c, `${c} is longer than ${max} characters.`);
     }
 
     if (v('make') && v('serial')) {
       const key = `${squash(v('make'))}|${v('serial').toLowerCase()}`;
       const first = seen.get(key);
-      if (first !== undefined) fail('serial', `Duplicate serial "${v('serial')}" for make ${v('make')}: already on row ${first} of this file.`);
+      if (first !== undefined)
+        fail('serial', `Duplicate serial "${v('serial')}" for make ${v('make')}: already on row ${first} of this file.`);
       else seen.set(key, row);
     }
 
@@ -239,7 +251,12 @@ export async function importUnits(ctx: AppContext, user: SessionUser, input: Uni
   const good: ImportedUnit[] = [];
   for (const u of parsed.units) {
     const dup = existing.get(`${squash(u.make)}|${u.serial.toLowerCase()}`);
-    if (dup) errors.push({ row: u.row, column: 'serial', message: `Duplicate serial "${u.serial}": a ${u.make} unit with it already exists (${dup.tag} at ${dup.siteName}).` });
+    if (dup)
+      errors.push({
+        row: u.row,
+        column: 'serial',
+        message: `Duplicate serial "${u.serial}": a ${u.make} unit with it already exists (${dup.tag} at ${dup.siteName}).`,
+      });
     else good.push(u);
   }
   errors.sort(byRow);
@@ -297,8 +314,14 @@ export async function importUnits(ctx: AppContext, user: SessionUser, input: Uni
     });
   } catch (e) {
     // Someone saved one of these serials between the check and the write: nothing was written.
-    if ((e as { code?: string; cause?: { code?: string } })?.code === '23505' || (e as { cause?: { code?: string } })?.cause?.code === '23505') {
-      throw conflict('duplicate_serial', 'Nothing was imported: a unit with one of these serials was saved meanwhile. Check the file again.');
+    if (
+      (e as { code?: string; cause?: { code?: string } })?.code === '23505' ||
+      (e as { cause?: { code?: string } })?.cause?.code === '23505'
+    ) {
+      throw conflict(
+        'duplicate_serial',
+        'Nothing was imported: a unit with one of these serials was saved meanwhile. Check the file again.',
+      );
     }
     throw e;
   }

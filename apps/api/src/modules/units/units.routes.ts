@@ -17,18 +17,52 @@ const circuitParams = idParams.extend({ number: z.coerce.number().int().min(1).m
 export function unitsRoutes(ctx: AppContext): Router {
   const r = Router();
   const office = requireRole('owner', 'branch_manager', 'dispatcher');
-  r.get('/', office, endpoint({ query: unitsQuerySchema }, ({ user, query }) => svc.listUnits(ctx, user, query)));
-  r.post('/', office, endpoint({ body: unitInputSchema, status: 201 }, ({ user, body }) => svc.createUnit(ctx, user, body)));
-  r.post('/import', office, endpoint({ body: unitImportSchema }, ({ user, body }) => importUnits(ctx, user, body)));
-  r.get('/:id', office, endpoint({ params: idParams }, ({ user, params }) => svc.getUnit(ctx.db, user, params.id)));
-  r.put('/:id', office, endpoint({ params: idParams, body: unitUpdateSchema }, ({ user, params, body }) => svc.updateUnit(ctx, user, params.id, body)));
+  r.get(
+    '/',
+    office,
+    endpoint({ query: unitsQuerySchema }, ({ user, query }) => svc.listUnits(ctx, user, query)),
+  );
+  r.post(
+    '/',
+    office,
+    endpoint({ body: unitInputSchema, status: 201 }, ({ user, body }) => svc.createUnit(ctx, user, body)),
+  );
+  r.post(
+    '/import',
+    office,
+    endpoint({ body: unitImportSchema }, ({ user, body }) => importUnits(ctx, user, body)),
+  );
+  r.get(
+    '/:id',
+    office,
+    endpoint({ params: idParams }, ({ user, params }) => svc.getUnit(ctx.db, user, params.id)),
+  );
+  r.put(
+    '/:id',
+    office,
+    endpoint({ params: idParams, body: unitUpdateSchema }, ({ user, params, body }) => svc.updateUnit(ctx, user, params.id, body)),
+  );
   r.put(
     '/:id/circuits/:number/targets',
     office,
-    endpoint({ params: circuitParams, body: circuitTargetsInputSchema }, ({ user, params, body }) => setCircuitTargets(ctx, user, params.id, params.number, body)),
+    endpoint({ params: circuitParams, body: circuitTargetsInputSchema }, ({ user, params, body }) =>
+      setCircuitTargets(ctx, user, params.id, params.number, body),
+    ),
   );
-  r.post('/:id/archive', office, endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, true)));
-  r.post('/:id/unarchive', office, endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, false)));
-  r.delete('/:id', office, endpoint({ params: idParams }, ({ user, params }) => svc.deleteUnit(ctx, user, params.id)));
+  r.post(
+    '/:id/archive',
+    office,
+    endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, true)),
+  );
+  r.post(
+    '/:id/unarchive',
+    office,
+    endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, false)),
+  );
+  r.delete(
+    '/:id',
+    office,
+    endpoint({ params: idParams }, ({ user, params }) => svc.deleteUnit(ctx, user, params.id)),
+  );
   return r;
 }

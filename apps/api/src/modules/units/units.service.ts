@@ -47,7 +47,13 @@ async function circuitsOf(db: Tx, unitIds: string[]): Promise<Map<string, Circui
   const map = new Map<string, CircuitRow[]>();
   if (unitIds.length === 0) return map;
   const rows = await db
-    .select({ id: circuits.id, unitId: circuits.unitId, number: circuits.number, compressorCount: circuits.compressorCount, chargeLb: circuits.chargeLb })
+    .select({
+      id: circuits.id,
+      unitId: circuits.unitId,
+      number: circuits.number,
+      compressorCount: circuits.compressorCount,
+      chargeLb: circuits.chargeLb,
+    })
     .from(circuits)
     .where(inArray(circuits.unitId, unitIds))
     .orderBy(asc(circuits.unitId), asc(circuits.number));
@@ -87,10 +93,20 @@ export async function listUnits(ctx: AppContext, user: SessionUser, q: UnitsQuer
   );
   const { limit, offset } = pageWindow(q.page, q.pageSize);
   const [rows, [total]] = await Promise.all([
-    ctx.db.select(unitColumns).from(units).innerJoin(sites, eq(sites.id, units.siteId)).where(where).orderBy(...order).limit(limit).offset(offset),
+    ctx.db
+      .select(unitColumns)
+      .from(units)
+      .innerJoin(sites, eq(sites.id, units.siteId))
+      .where(where)
+      .orderBy(...order)
+      .limit(limit)
+      .offset(offset),
     ctx.db.select({ n: count() }).from(units).where(where),
   ]);
-  const cs = await circuitsOf(ctx.db, rows.map((r) => r.id));
+  const cs = await circuitsOf(
+    ctx.db,
+    rows.map((r) => r.id),
+  );
   return {
     rows: rows.map((r) => ({ ...r, archivedAt: r.archivedAt?.toISOString() ?? null, circuits: cs.get(r.id) ?? [] })),
     total: total?.n ?? 0,
@@ -152,18 +168,32 @@ export async function updateUnit(ctx: AppContext, user: SessionUser, id: string,
     const byNumber = new Map(current.circuits.map((c) => [c.number, c]));
     const removed = current.circuits.filter((c) => !wanted.some((w) => w.number === c.number));
     if (removed.length) {
-      const [used] = await tx.select({ n: count() }).from(readings).where(inArray(readings.circuitId, removed.map((c) => c.id)));
+      const [used] = await tx
+        .select({ n: count() })
+        .from(readings)
+        .where(
+          inArray(
+            readings.circuitId,
+            removed.map((c) => c.id),
+          ),
+        );
       if ((used?.n ?? 0) > 0) {
         throw conflict(
           'circuit_has_readings',
           `Circuit ${removed.map((c) => c.number).join(', ')} has readings recorded and cannot be removed. Keep the circuit; change its compressor count instead.`,
         );
       }
-      await tx.delete(circuits).where(inArray(circuits.id, removed.map((c) => c.id)));
+      await tx.delete(circuits).where(
+        inArray(
+          circuits.id,
+          removed.map((c) => c.id),
+        ),
+      );
     }
     for (const w of wanted) {
       const existing = byNumber.get(w.number);
-      if (existing) await tx.update(circuits).set({ compressorCount: w.compressorCount, chargeLb: w.chargeLb }).where(eq(circuits.id, existing.id));
+      if (existing)
+        await tx.update(circuits).set({ compressorCount: w.compressorCount, chargeLb: w.chargeLb }).where(eq(circuits.id, existing.id));
       else await tx.insert(circuits).values({ ...w, unitId: id });
     }
     return getUnit(tx, user, id);
@@ -176,7 +206,12 @@ export async function setUnitArchived(ctx: AppContext, user: SessionUser, id: st
     const [site] = await ctx.db.select({ archivedAt: sites.archivedAt, name: sites.name }).from(sites).where(eq(sites.id, unit.siteId));
     if (site?.archivedAt) throw conflict('site_archived', `${site.name} is archived. Unarchive the site to bring its units back.`);
   }
-  await changeAs(ctx.db, user.id, (tx) => tx.update(units).set({ archivedAt: archived ? ctx.clock.now() : null }).where(eq(units.id, id)));
+  await changeAs(ctx.db, user.id, (tx) =>
+    tx
+      .update(units)
+      .set({ archivedAt: archived ? ctx.clock.now() : null })
+      .where(eq(units.id, id)),
+  );
   return getUnit(ctx.db, user, id);
 }
 

@@ -64,10 +64,7 @@ export function unitOnAssignments(db: Tx, techId: string, unitId: string | AnyPg
       .from(visits)
       .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
       .where(
-        and(
-          eq(visits.techId, techId),
-          or(eq(workOrders.unitId, unitId), and(isNull(workOrders.unitId), eq(workOrders.siteId, siteId))),
-        ),
+        and(eq(visits.techId, techId), or(eq(workOrders.unitId, unitId), and(isNull(workOrders.unitId), eq(workOrders.siteId, siteId)))),
       ),
   );
 }
@@ -82,10 +79,7 @@ export async function loadReadableUnit(db: Tx, user: SessionUser, unitId: string
   const [row] = await db
     .select({
       unit: units,
-      assigned:
-        user.role === 'technician'
-          ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}`
-          : sql<boolean>`true`,
+      assigned: user.role === 'technician' ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}` : sql<boolean>`true`,
     })
     .from(units)
     .where(eq(units.id, unitId))

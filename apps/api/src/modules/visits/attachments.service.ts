@@ -59,7 +59,10 @@ export async function addAttachment(
       `Only photos (JPEG, PNG, WebP, HEIC) and PDF files can be attached; this file is ${detected ? `${detected.mime}` : 'not one of them'} by its content.`,
     );
   }
-  const [wo] = await ctx.db.select({ unitId: workOrders.unitId, siteId: workOrders.siteId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+  const [wo] = await ctx.db
+    .select({ unitId: workOrders.unitId, siteId: workOrders.siteId })
+    .from(workOrders)
+    .where(eq(workOrders.id, v.workOrderId));
   const us = await unitsOfWorkOrder(ctx.db, wo!);
   let unitId = fields.unitId ?? null;
   if (unitId && !us.some((u) => u.id === unitId)) {

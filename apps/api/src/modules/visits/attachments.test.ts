@@ -20,27 +20,52 @@ beforeAll(async () => {
   const other = await makeUser(t.ctx.db, 'technician', f.a.id);
   const p = await makeSiteWithUnit(t.ctx.db, f.a.id);
   unitId = p.unit.id;
-  ({ visit: { id: visitId } } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z' }));
+  ({
+    visit: { id: visitId },
+  } = await makeBookedVisit(t.ctx.db, {
+    branchId: f.a.id,
+    siteId: p.site.id,
+    unitId,
+    techId: f.inA.technician.id,
+    startAt: '2026-03-10T14:00:00Z',
+  }));
   const sign = (email: string) => signedInAgent(t.app, email, TEST_PASSWORD);
-  [tech, tech2, manager, managerB] = await Promise.all([sign(f.inA.technician.email), sign(other.email), sign(f.inA.manager.email), sign(f.inB.manager.email)]);
+  [tech, tech2, manager, managerB] = await Promise.all([
+    sign(f.inA.technician.email),
+    sign(other.email),
+    sign(f.inA.manager.email),
+    sign(f.inB.manager.email),
+  ]);
 });
 afterAll(() => t.close());
 
 describe('POST /api/visits/:id/attachments', () => {
   it('stores a photo under a generated name, typed by content, attached to the visit and the unit', async () => {
-    const res = await tech.post(`/api/visits/${visitId}/attachments`).attach('file', tinyPng, { filename: '../../etc/roof<1>  view.png', contentType: 'text/plain' });
+    const res = await tech
+      .post(`/api/visits/${visitId}/attachments`)
+      .attach('file', tinyPng, { filename: '../../etc/roof<1>  view.png', contentType: 'text/plain' });
     expect(res.status).toBe(201);
     const a = res.body.attachment;
-    expect(a).toMatchObject({ visitId, unitId, kind: 'photo', contentType: 'image/png', displayName: 'roof1 view.png', sizeBytes: tinyPng.length });
+    expect(a).toMatchObject({
+      visitId,
+      unitId,
+      kind: 'photo',
+      contentType: 'image/png',
+      displayName: 'roof1 view.png',
+      sizeBytes: tinyPng.length,
+    });
     const [row] = await t.ctx.db.select().from(attachments).where(eq(attachments.id, a.id));
     expect(row!.storageKey).not.toContain('roof');
     expect(row!.storageKey).toMatch(/^[0-9a-f]{2}\/[0-9a-f-]{36}$/);
 
-    const file = await tech.get(a.url).buffer(true).parse((r, cb) => {
-      const chunks: Buffer[] = [];
-      r.on('data', (c: Buffer) => chunks.push(c));
-      r.on('end', () => cb(null, Buffer.concat(chunks)));
-    });
+    const file = await tech
+      .get(a.url)
+      .buffer(true)
+      .parse((r, cb) => {
+        const chunks: Buffer[] = [];
+        r.on('data', (c: Buffer) => chunks.push(c));
+        r.on('end', () => cb(null, Buffer.concat(chunks)));
+      });
     expect(file.status).toBe(200);
     expect(file.headers['content-type']).toBe('image/png');
     expect(Buffer.compare(file.body as Buffer, tinyPng)).toBe(0);
@@ -100,7 +125,9 @@ describe('POST /api/visits/:id/attachments', () => {
     expect((await tech.post(`/api/visits/${visitId}/attachments`).field('kind', 'photo')).status).toBe(400);
     expect((await tech2.post(`/api/visits/${visitId}/attachments`).attach('file', tinyPng, 'a.png')).status).toBe(404);
     expect((await manager.post(`/api/visits/${visitId}/attachments`).attach('file', tinyPng, 'a.png')).status).toBe(403);
-    expect((await tech.post(`/api/visits/${visitId}/attachments`).field('kind', 'selfie').attach('file', tinyPng, 'a.png')).status).toBe(400);
+    expect((await tech.post(`/api/visits/${visitId}/attachments`).field('kind', 'selfie').attach('file', tinyPng, 'a.png')).status).toBe(
+      400,
+    );
   });
 });
 

@@ -8,7 +8,21 @@ import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { readingUnitsBySystem, type SessionUser, type UnitBriefing } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { alarms, attachments, branches, circuits, findings, leakCases, readings, refrigerantEvents, sites, units, users, visits, workOrders } from '../../db/schema';
+import {
+  alarms,
+  attachments,
+  branches,
+  circuits,
+  findings,
+  leakCases,
+  readings,
+  refrigerantEvents,
+  sites,
+  units,
+  users,
+  visits,
+  workOrders,
+} from '../../db/schema';
 import { notFound } from '../../lib/errors';
 import { enforce, unitMayRead } from '../../auth/policy';
 import { prepareJson, type PreparedJson } from '../../lib/prepared-json';
@@ -34,15 +48,19 @@ interface KeptBriefing {
  * technician's assignments); the answer itself is the same for everyone who may, and is reused from `cache`
  * when given.
  */
-export async function unitBriefing(ctx: AppContext, user: SessionUser, unitId: string, cache?: RevisionCache): Promise<UnitBriefing | PreparedJson> {
+export async function unitBriefing(
+  ctx: AppContext,
+  user: SessionUser,
+  unitId: string,
+  cache?: RevisionCache,
+): Promise<UnitBriefing | PreparedJson> {
   const db = ctx.db;
   const [row] = await db
     .select({
       siteId: units.siteId,
       branchId: units.branchId,
       timeZone: branches.timeZone,
-      assigned:
-        user.role === 'technician' ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}` : sql<boolean>`true`,
+      assigned: user.role === 'technician' ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}` : sql<boolean>`true`,
     })
     .from(units)
     .innerJoin(branches, eq(branches.id, units.branchId))
@@ -137,7 +155,10 @@ async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answe
       .orderBy(asc(leakCases.repairDueDate))
       .limit(1),
     db
-      .select({ added: sum(refrigerantEvents.poundsAdded).mapWith(Number), recovered: sum(refrigerantEvents.poundsRecovered).mapWith(Number) })
+      .select({
+        added: sum(refrigerantEvents.poundsAdded).mapWith(Number),
+        recovered: sum(refrigerantEvents.poundsRecovered).mapWith(Number),
+      })
       .from(refrigerantEvents)
       .where(and(eq(refrigerantEvents.unitId, u.id), gte(refrigerantEvents.date, `${year}-01-01`))),
     // The window's alarms one by one (a unit has a few a month): counted here, and the earliest tells how long
@@ -150,7 +171,8 @@ async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answe
   ]);
 
   const [unitVisit, siteVisit] = [unitVisitRows[0], siteVisitRows[0]];
-  const last = unitVisit && siteVisit ? (siteVisit.visit.closedAt! > unitVisit.visit.closedAt! ? siteVisit : unitVisit) : (unitVisit ?? siteVisit);
+  const last =
+    unitVisit && siteVisit ? (siteVisit.visit.closedAt! > unitVisit.visit.closedAt! ? siteVisit : unitVisit) : (unitVisit ?? siteVisit);
   const lastFindings = last
     ? await db
         .select()
@@ -184,7 +206,13 @@ async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answe
       siteId: u.siteId,
       siteName: row.siteName,
     },
-    circuits: circuitRows.map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb, targets: circuitTargetsDto(c, row.unitSystem) })),
+    circuits: circuitRows.map((c) => ({
+      id: c.id,
+      number: c.number,
+      compressorCount: c.compressorCount,
+      chargeLb: c.chargeLb,
+      targets: circuitTargetsDto(c, row.unitSystem),
+    })),
     lastVisit: last
       ? {
           visitId: last.visit.id,
@@ -196,7 +224,9 @@ async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answe
           findings: lastFindings.map(findingDto),
         }
       : null,
-    lastReadings: readingRows.map((x) => readingDto(x.latest, x.circuits.number, row.unitSystem)).sort((a, b) => a.circuitNumber - b.circuitNumber),
+    lastReadings: readingRows
+      .map((x) => readingDto(x.latest, x.circuits.number, row.unitSystem))
+      .sort((a, b) => a.circuitNumber - b.circuitNumber),
     units: readingUnitsBySystem[row.unitSystem],
     openLeakCase: caseRows[0] ? leakCaseDto(caseRows[0]) : null,
     refrigerantThisYear: {

@@ -4,7 +4,20 @@ import { closeVisitSchema, leakRepairCloseRefusal, returnNeedLabels, rootCauseCh
 import { requiredCertificationFor } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
-import { branches, customers, findings, leakCases, refrigerantEvents, sites, units, users, visitEvents, visitSignatures, visits, workOrders } from '../../db/schema';
+import {
+  branches,
+  customers,
+  findings,
+  leakCases,
+  refrigerantEvents,
+  sites,
+  units,
+  users,
+  visitEvents,
+  visitSignatures,
+  visits,
+  workOrders,
+} from '../../db/schema';
 import { conflict, HttpError } from '../../lib/errors';
 import { enforce, visitMayResendSummary } from '../../auth/policy';
 import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
@@ -37,19 +50,30 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
       // The root cause: required among several findings, the only one by default (`rootCauseChoice`).
       const findingIds = (await tx.select({ id: findings.id }).from(findings).where(eq(findings.visitId, id))).map((f) => f.id);
       const rootCause = rootCauseChoice(findingIds, input.rootCauseFindingId);
-      if (!rootCause.ok) throw new HttpError(422, rootCause.code, rootCause.message, { fields: [{ path: 'rootCauseFindingId', message: rootCause.message }] });
+      if (!rootCause.ok)
+        throw new HttpError(422, rootCause.code, rootCause.message, {
+          fields: [{ path: 'rootCauseFindingId', message: rootCause.message }],
+        });
       // A leak repair closed as resolved with nothing to show for it needs the technician's confirmation.
-      const [woRow] = await tx.select({ id: workOrders.id, leakCaseId: workOrders.leakCaseId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+      const [woRow] = await tx
+        .select({ id: workOrders.id, leakCaseId: workOrders.leakCaseId })
+        .from(workOrders)
+        .where(eq(workOrders.id, v.workOrderId));
       const unverified = leakRepairCloseRefusal({
         leakRepair: await leakRepairOf(tx, woRow!),
         outcome: input.outcome,
-        refrigerantEntries: (await tx.select({ id: refrigerantEvents.id }).from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id))).length,
+        refrigerantEntries: (await tx.select({ id: refrigerantEvents.id }).from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id)))
+          .length,
         confirmed: input.confirmedWithoutVerification,
       });
-      if (unverified) throw new HttpError(422, unverified.code, unverified.message, { fields: [{ path: 'confirmedWithoutVerification', message: unverified.message }] });
+      if (unverified)
+        throw new HttpError(422, unverified.code, unverified.message, {
+          fields: [{ path: 'confirmedWithoutVerification', message: unverified.message }],
+        });
       // The customer's sign-off: signed (a whole PNG, decoded here) or not available; one of the two is required.
       const unsigned = signatureChoiceRefusal(input.signature);
-      if (unsigned) throw new HttpError(422, unsigned.code, unsigned.message, { fields: [{ path: 'signature', message: unsigned.message }] });
+      if (unsigned)
+        throw new HttpError(422, unsigned.code, unsigned.message, { fields: [{ path: 'signature', message: unsigned.message }] });
       const signaturePng = input.signature?.kind === 'signed' ? decodeSignaturePng(input.signature.imagePng) : null;
       const now = ctx.clock.now();
       await tx
@@ -68,11 +92,19 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
         })
         .where(eq(visits.id, id));
       await tx.insert(visitEvents).values({ visitId: id, state: 'closed', at: now, byUserId: user.id });
-      await tx.insert(visitSignatures).values(
-        input.signature?.kind === 'signed'
-          ? { visitId: id, signerName: input.signature.signerName, signedAt: signedAtOf(input.signature.signedAt, v.onSiteAt, now), imagePng: signaturePng!, recordedAt: now }
-          : { visitId: id, recordedAt: now },
-      );
+      await tx
+        .insert(visitSignatures)
+        .values(
+          input.signature?.kind === 'signed'
+            ? {
+                visitId: id,
+                signerName: input.signature.signerName,
+                signedAt: signedAtOf(input.signature.signedAt, v.onSiteAt, now),
+                imagePng: signaturePng!,
+                recordedAt: now,
+              }
+            : { visitId: id, recordedAt: now },
+        );
       const [wo] = await tx
         .update(workOrders)
         .set({
@@ -103,7 +135,8 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
       // A case still waiting for its repair makes this return its repair visit: its deadline is the latest booking.
       const repairCase = openCase?.status === 'open' && unit ? openCase : undefined;
       const latestAt = repairCase ? leakRepairLatestAt(repairCase.repairDueDate, unit!.timeZone) : null;
-      const requiredCertification = wo!.requiredCertification ?? (repairCase ? (requiredCertificationFor({ fullChargeLb: unit!.fullChargeLb }) ?? 'II') : null);
+      const requiredCertification =
+        wo!.requiredCertification ?? (repairCase ? (requiredCertificationFor({ fullChargeLb: unit!.fullChargeLb }) ?? 'II') : null);
       const leakCaseId = openCase?.id ?? wo!.leakCaseId;
       const needs = input.returnNeeds.map((n) => returnNeedLabels[n].toLowerCase()).join(', ');
       const complaint = input.returnNotes?.trim() || `Return visit for WO-${wo!.number}: needs ${needs}.`;
@@ -186,14 +219,26 @@ async function summaryContext(ctx: AppContext, visitId: string, unitIds: string[
   const b = row!.branch;
   const cases = unitIds.length
     ? await ctx.db
-        .select({ unitTag: units.tag, openedOn: leakCases.openedOn, leakRatePercent: leakCases.leakRatePercent, thresholdPercent: leakCases.thresholdPercent, repairDueDate: leakCases.repairDueDate })
+        .select({
+          unitTag: units.tag,
+          openedOn: leakCases.openedOn,
+          leakRatePercent: leakCases.leakRatePercent,
+          thresholdPercent: leakCases.thresholdPercent,
+          repairDueDate: leakCases.repairDueDate,
+        })
         .from(leakCases)
         .innerJoin(units, eq(units.id, leakCases.unitId))
         .where(and(inArray(leakCases.unitId, unitIds), eq(leakCases.status, 'open')))
         .orderBy(leakCases.repairDueDate)
     : [];
   return {
-    contractor: { tradingName: b.tradingName, address: b.officeAddress, phone: b.officePhone, licenceNumber: b.licenceNumber, email: b.officeEmail },
+    contractor: {
+      tradingName: b.tradingName,
+      address: b.officeAddress,
+      phone: b.officePhone,
+      licenceNumber: b.licenceNumber,
+      email: b.officeEmail,
+    },
     technician: { name: row!.techName, epa608Number: row!.epa608Number },
     openLeakCases: cases,
   };
@@ -205,25 +250,39 @@ async function summaryContext(ctx: AppContext, visitId: string, unitIds: string[
  */
 export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: string): Promise<SummaryMailResult> {
   const to = await summaryAddress(ctx, visitId);
-  if (!to) return { sent: false, to: null, error: 'Neither the site nor the customer has a contact e-mail address, so no summary was sent.' };
+  if (!to)
+    return { sent: false, to: null, error: 'Neither the site nor the customer has a contact e-mail address, so no summary was sent.' };
   try {
     const detail = await visitDetail(ctx.db, user, visitId);
-    const c = await summaryContext(ctx, visitId, detail.units.map((u) => u.id));
-    const s = summarySections(detail, { ...c, signatureImage: detail.signature?.kind === 'signed' ? await signatureImage(ctx.db, visitId) : null });
+    const c = await summaryContext(
+      ctx,
+      visitId,
+      detail.units.map((u) => u.id),
+    );
+    const s = summarySections(detail, {
+      ...c,
+      signatureImage: detail.signature?.kind === 'signed' ? await signatureImage(ctx.db, visitId) : null,
+    });
     const pdf = await summaryPdf(s, ctx.clock.now());
     await ctx.mailer.send({
       to,
       // Replies go to the branch's office, not to Coilpath's sending address.
       ...(c.contractor.email.trim() ? { replyTo: c.contractor.email.trim() } : {}),
       ...summaryMail(s),
-      attachments: [{ filename: `service-summary-WO-${detail.workOrder.number ?? 'visit'}.pdf`, content: pdf, contentType: 'application/pdf' }],
+      attachments: [
+        { filename: `service-summary-WO-${detail.workOrder.number ?? 'visit'}.pdf`, content: pdf, contentType: 'application/pdf' },
+      ],
     });
     // The "sent" mark is the sender's change: the live screens name them, as for every change a person makes.
     await changeAs(ctx.db, user.id, (tx) => tx.update(visits).set({ summarySentAt: ctx.clock.now() }).where(eq(visits.id, visitId)));
     return { sent: true, to, error: null };
   } catch (err) {
     ctx.logger?.error({ err, visitId }, 'service summary mail failed');
-    return { sent: false, to, error: 'The mail server did not take the summary. The visit is closed; send the summary again from this screen.' };
+    return {
+      sent: false,
+      to,
+      error: 'The mail server did not take the summary. The visit is closed; send the summary again from this screen.',
+    };
   }
 }
 

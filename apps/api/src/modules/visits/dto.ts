@@ -1,5 +1,14 @@
 import { convertPressure, convertTemperature, convertTemperatureDifference } from '@coilpath/calc';
-import { readingUnitsBySystem, type AttachmentDto, type CircuitTargets, type FindingDto, type LeakCaseDto, type ReadingDto, type RefrigerantEventDto, type UnitSystem } from '@coilpath/contract';
+import {
+  readingUnitsBySystem,
+  type AttachmentDto,
+  type CircuitTargets,
+  type FindingDto,
+  type LeakCaseDto,
+  type ReadingDto,
+  type RefrigerantEventDto,
+  type UnitSystem,
+} from '@coilpath/contract';
 import type { attachments, circuits, findings, leakCases, readings, refrigerantEvents } from '../../db/schema';
 import { STORED_UNITS } from './reading-calc';
 
@@ -23,8 +32,10 @@ const computed = round(1);
 export function readingDto(r: typeof readings.$inferSelect, circuitNumber: number, system: UnitSystem): ReadingDto {
   const units = readingUnitsBySystem[system];
   const p = (x: number | null) => gauge(x === null ? null : convertPressure(x, STORED_UNITS.pressure, units.pressure));
-  const t = (x: number | null, round = gauge) => round(x === null ? null : convertTemperature(x, STORED_UNITS.temperature, units.temperature));
-  const dt = (x: number | null) => computed(x === null ? null : convertTemperatureDifference(x, STORED_UNITS.temperature, units.temperature));
+  const t = (x: number | null, round = gauge) =>
+    round(x === null ? null : convertTemperature(x, STORED_UNITS.temperature, units.temperature));
+  const dt = (x: number | null) =>
+    computed(x === null ? null : convertTemperatureDifference(x, STORED_UNITS.temperature, units.temperature));
   return {
     id: r.id,
     visitId: r.visitId,
@@ -120,7 +131,10 @@ export function attachmentDto(a: typeof attachments.$inferSelect): AttachmentDto
  * to 0.01 like the values typed on a gauge (a range typed in K comes back as typed).
  */
 export function circuitTargetsDto(
-  c: Pick<typeof circuits.$inferSelect, 'targetSuperheatMinF' | 'targetSuperheatMaxF' | 'targetSubcoolingMinF' | 'targetSubcoolingMaxF' | 'targetSource'>,
+  c: Pick<
+    typeof circuits.$inferSelect,
+    'targetSuperheatMinF' | 'targetSuperheatMaxF' | 'targetSubcoolingMinF' | 'targetSubcoolingMaxF' | 'targetSource'
+  >,
   system: UnitSystem,
 ): CircuitTargets {
   const to = readingUnitsBySystem[system].temperature;

@@ -37,10 +37,21 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-async function readAt(branchId: string, techEmail: string, techId: string): Promise<{ dto: ReadingDto; stored: typeof readings.$inferSelect }> {
+async function readAt(
+  branchId: string,
+  techEmail: string,
+  techId: string,
+): Promise<{ dto: ReadingDto; stored: typeof readings.$inferSelect }> {
   const place = await makeSiteWithUnit(t.ctx.db, branchId, { unit: { refrigerant: 'R-410A' } });
   const [c] = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, place.unit.id)).orderBy(circuits.number);
-  const { visit } = await makeBookedVisit(t.ctx.db, { branchId, siteId: place.site.id, unitId: place.unit.id, techId, startAt: '2026-03-10T14:00:00Z', onSite: true });
+  const { visit } = await makeBookedVisit(t.ctx.db, {
+    branchId,
+    siteId: place.site.id,
+    unitId: place.unit.id,
+    techId,
+    startAt: '2026-03-10T14:00:00Z',
+    onSite: true,
+  });
   const tech = await signedInAgent(t.app, techEmail, TEST_PASSWORD);
   const res = await tech.post(`/api/visits/${visit.id}/readings`).send({
     units: { pressure: 'psig', temperature: 'F' },

@@ -63,11 +63,18 @@ async function leakCheck(tx: Tx, unit: UnitRow, asOf: string): Promise<LeakCheck
  * `leakRepairObligation` and opens a leak case when the rate is over the threshold and no case is
  * open for the unit yet.
  */
-export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser, unitId: string, input: Input): Promise<RefrigerantEventResult & { created: boolean }> {
+export async function recordRefrigerantEvent(
+  ctx: AppContext,
+  user: SessionUser,
+  unitId: string,
+  input: Input,
+): Promise<RefrigerantEventResult & { created: boolean }> {
   const unit = await loadReadableUnit(ctx.db, user, unitId);
   enforce(mayRecordRefrigerant(user));
   if (!listRefrigerants().some((r) => r.id === input.refrigerant)) {
-    throw badRequest(`Unknown refrigerant ${input.refrigerant}.`, { fields: [{ path: 'refrigerant', message: 'Choose a refrigerant from the list' }] });
+    throw badRequest(`Unknown refrigerant ${input.refrigerant}.`, {
+      fields: [{ path: 'refrigerant', message: 'Choose a refrigerant from the list' }],
+    });
   }
   return ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
@@ -78,7 +85,11 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
       const [existing] = await tx.select().from(refrigerantEvents).where(eq(refrigerantEvents.id, input.id)).limit(1);
       if (existing) {
         if (existing.unitId !== unit.id) throw conflict('id_taken', 'That refrigerant entry id belongs to another unit.');
-        const [open] = await tx.select().from(leakCases).where(and(eq(leakCases.unitId, unit.id), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES]))).limit(1);
+        const [open] = await tx
+          .select()
+          .from(leakCases)
+          .where(and(eq(leakCases.unitId, unit.id), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
+          .limit(1);
         return {
           event: refrigerantEventDto(existing),
           leakCheck: await leakCheck(tx, unit, existing.date),
@@ -92,18 +103,32 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
     if (input.visitId) {
       const v = await loadVisit(tx, input.visitId, { lock: true });
       assertVisitRecordable(user, v);
-      const [wo] = await tx.select({ unitId: workOrders.unitId, siteId: workOrders.siteId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+      const [wo] = await tx
+        .select({ unitId: workOrders.unitId, siteId: workOrders.siteId })
+        .from(workOrders)
+        .where(eq(workOrders.id, v.workOrderId));
       const us = await unitsOfWorkOrder(tx, wo!);
       if (!us.some((u) => u.id === unit.id)) {
-        throw badRequest('That unit is not on this visit.', { fields: [{ path: 'visitId', message: 'The visit does not cover this unit' }] });
+        throw badRequest('That unit is not on this visit.', {
+          fields: [{ path: 'visitId', message: 'The visit does not cover this unit' }],
+        });
       }
     }
 
     if (input.circuit != null) {
-      const numbers = (await tx.select({ number: circuits.number }).from(circuits).where(eq(circuits.unitId, unit.id)).orderBy(asc(circuits.number))).map((c) => c.number);
+      const numbers = (
+        await tx.select({ number: circuits.number }).from(circuits).where(eq(circuits.unitId, unit.id)).orderBy(asc(circuits.number))
+      ).map((c) => c.number);
       if (!numbers.includes(input.circuit)) {
-        const has = numbers.length === 0 ? 'no circuits on record' : numbers.length === 1 ? `only circuit ${numbers[0]}` : `circuits ${andList(numbers)}`;
-        throw badRequest(`This unit has no circuit ${input.circuit}: it has ${has}.`, { fields: [{ path: 'circuit', message: 'Choose one of the unit’s circuits' }] });
+        const has =
+          numbers.length === 0
+            ? 'no circuits on record'
+            : numbers.length === 1
+              ? `only circuit ${numbers[0]}`
+              : `circuits ${andList(numbers)}`;
+        throw badRequest(`This unit has no circuit ${input.circuit}: it has ${has}.`, {
+          fields: [{ path: 'circuit', message: 'Choose one of the unit’s circuits' }],
+        });
       }
     }
 
@@ -157,6 +182,12 @@ export async function recordRefrigerantEvent(ctx: AppContext, user: SessionUser,
         .returning();
       return { event: refrigerantEventDto(event!), leakCheck: check, leakCase: leakCaseDto(created!), leakCaseOpened: true, created: true };
     }
-    return { event: refrigerantEventDto(event!), leakCheck: check, leakCase: open ? leakCaseDto(open) : null, leakCaseOpened: false, created: true };
+    return {
+      event: refrigerantEventDto(event!),
+      leakCheck: check,
+      leakCase: open ? leakCaseDto(open) : null,
+      leakCaseOpened: false,
+      created: true,
+    };
   });
 }

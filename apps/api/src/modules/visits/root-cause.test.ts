@@ -24,7 +24,10 @@ beforeAll(async () => {
   t = await createTestApp({ clock });
   f = await makeTwoBranches(t.ctx.db);
   place = await makeSiteWithUnit(t.ctx.db, f.a.id, { unit: { make: 'Testmake', model: 'RC-1' } });
-  [tech, owner] = await Promise.all([signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD), signedInAgent(t.app, f.owner.email, TEST_PASSWORD)]);
+  [tech, owner] = await Promise.all([
+    signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD),
+    signedInAgent(t.app, f.owner.email, TEST_PASSWORD),
+  ]);
 });
 afterAll(() => t.close());
 
@@ -66,10 +69,14 @@ describe('POST /api/visits/:id/close — root cause', () => {
     const b = await onSiteVisit();
     const own = await addFinding(a.visit.id, { causeCode: 'airflow', origin: 'wear' });
     const foreign = await addFinding(b.visit.id, { causeCode: 'settings', origin: 'external' });
-    const res = await tech.post(`/api/visits/${a.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: foreign });
+    const res = await tech
+      .post(`/api/visits/${a.visit.id}/close`)
+      .send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: foreign });
     expect(res.status).toBe(422);
     expect(res.body.error.code).toBe('root_cause_unknown');
-    const ok = await tech.post(`/api/visits/${a.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: own });
+    const ok = await tech
+      .post(`/api/visits/${a.visit.id}/close`)
+      .send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: own });
     expect(ok.status).toBe(200);
     expect(ok.body.visit.rootCauseFindingId).toBe(own);
   });
@@ -89,7 +96,9 @@ describe('POST /api/visits/:id/close — root cause', () => {
     const two = await onSiteVisit();
     await addFinding(two.visit.id, { causeCode: 'airflow', origin: 'wear' });
     const second = await addFinding(two.visit.id, { causeCode: 'wiring_fault', origin: 'factory_defect' });
-    const r2 = await tech.post(`/api/visits/${two.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: second });
+    const r2 = await tech
+      .post(`/api/visits/${two.visit.id}/close`)
+      .send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: second });
     expect(r2.status).toBe(200);
     const [facts] = await t.ctx.db.select().from(serviceCallFacts).where(eq(serviceCallFacts.jobId, two.workOrder.id));
     expect(facts).toMatchObject({ causeCode: 'wiring_fault', origin: 'factory_defect' });
@@ -101,7 +110,17 @@ describe('POST /api/visits/:id/close — a leak repair closed as resolved', () =
     const booked = await onSiteVisit();
     const [lc] = await t.ctx.db
       .insert(leakCases)
-      .values({ branchId: f.a.id, unitId: place.unit.id, openedOn: '2026-03-01', rule: '40 CFR 82.157', method: 'annualizing', thresholdPercent: 10, leakRatePercent: 25, repairDueDate: '2026-03-31', repairWorkOrderId: booked.workOrder.id })
+      .values({
+        branchId: f.a.id,
+        unitId: place.unit.id,
+        openedOn: '2026-03-01',
+        rule: '40 CFR 82.157',
+        method: 'annualizing',
+        thresholdPercent: 10,
+        leakRatePercent: 25,
+        repairDueDate: '2026-03-31',
+        repairWorkOrderId: booked.workOrder.id,
+      })
       .returning();
     return { ...booked, leakCase: lc! };
   }
@@ -118,15 +137,29 @@ describe('POST /api/visits/:id/close — a leak repair closed as resolved', () =
     expect(refused.body.error.message).toMatch(/neither a verification test nor a refrigerant entry/);
     expect((await t.ctx.db.select().from(visits).where(eq(visits.id, visit.id)))[0]!.closedAt).toBeNull();
     // `false` is no confirmation.
-    expect((await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', confirmedWithoutVerification: false })).status).toBe(422);
-    const ok = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', confirmedWithoutVerification: true });
+    expect(
+      (
+        await tech
+          .post(`/api/visits/${visit.id}/close`)
+          .send({ signature: NOT_AVAILABLE, outcome: 'resolved', confirmedWithoutVerification: false })
+      ).status,
+    ).toBe(422);
+    const ok = await tech
+      .post(`/api/visits/${visit.id}/close`)
+      .send({ signature: NOT_AVAILABLE, outcome: 'resolved', confirmedWithoutVerification: true });
     expect(ok.status).toBe(200);
   });
 
   it('needs no confirmation with a refrigerant entry, with a verification test, or when the repair is not closed as resolved', async () => {
     await clearCases();
     const a = await repairVisit();
-    expect((await tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ visitId: a.visit.id, refrigerant: 'R-410A', poundsAdded: 4, reason: 'repair_recharge' })).status).toBe(201);
+    expect(
+      (
+        await tech
+          .post(`/api/units/${place.unit.id}/refrigerant-events`)
+          .send({ visitId: a.visit.id, refrigerant: 'R-410A', poundsAdded: 4, reason: 'repair_recharge' })
+      ).status,
+    ).toBe(201);
     expect((await tech.post(`/api/visits/${a.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);
     await clearCases();
     const b = await repairVisit();
@@ -154,7 +187,15 @@ describe('Fix Quality follows the marked root cause', () => {
     const techB = await signedInAgent(t.app, f.inB.technician.email, TEST_PASSWORD);
     const placeB = await makeSiteWithUnit(t.ctx.db, b.id, { unit: { make: 'Testmake', model: 'RC-2' } });
     const visitB = () =>
-      makeBookedVisit(t.ctx.db, { branchId: b.id, siteId: placeB.site.id, unitId: placeB.unit.id, techId: f.inB.technician.id, startAt: '2026-04-06T13:00:00Z', onSite: true, workOrder: { createdAt: new Date('2026-04-06T12:00:00Z') } });
+      makeBookedVisit(t.ctx.db, {
+        branchId: b.id,
+        siteId: placeB.site.id,
+        unitId: placeB.unit.id,
+        techId: f.inB.technician.id,
+        startAt: '2026-04-06T13:00:00Z',
+        onSite: true,
+        workOrder: { createdAt: new Date('2026-04-06T12:00:00Z') },
+      });
     const find = async (visitId: string, causeCode: string, origin: string) => {
       const res = await techB.post(`/api/visits/${visitId}/findings`).send({ causeCode, origin });
       expect(res.status).toBe(201);
@@ -163,11 +204,23 @@ describe('Fix Quality follows the marked root cause', () => {
     const j1 = await visitB();
     await find(j1.visit.id, 'airflow', 'wear');
     const j1root = await find(j1.visit.id, 'component_failure', 'factory_defect');
-    expect((await techB.post(`/api/visits/${j1.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: j1root })).status).toBe(200);
+    expect(
+      (
+        await techB
+          .post(`/api/visits/${j1.visit.id}/close`)
+          .send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: j1root })
+      ).status,
+    ).toBe(200);
     const j2 = await visitB();
     await find(j2.visit.id, 'wiring_fault', 'factory_defect');
     const j2root = await find(j2.visit.id, 'settings', 'installation');
-    expect((await techB.post(`/api/visits/${j2.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: j2root })).status).toBe(200);
+    expect(
+      (
+        await techB
+          .post(`/api/visits/${j2.visit.id}/close`)
+          .send({ signature: NOT_AVAILABLE, outcome: 'resolved', rootCauseFindingId: j2root })
+      ).status,
+    ).toBe(200);
     const j3 = await visitB();
     await find(j3.visit.id, 'airflow', 'wear');
     expect((await techB.post(`/api/visits/${j3.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);
@@ -180,7 +233,9 @@ describe('Fix Quality follows the marked root cause', () => {
     expect(counts(res.body.byCause)).toEqual({ component_failure: 1, settings: 1, airflow: 1 });
     expect(counts(res.body.byOrigin)).toEqual({ factory_defect: 1, installation: 1, wear: 1 });
 
-    const review = await owner.get('/api/reports/fix-quality/factory-defects').query({ from: '2026-04-01', to: '2026-04-30', branchId: b.id });
+    const review = await owner
+      .get('/api/reports/fix-quality/factory-defects')
+      .query({ from: '2026-04-01', to: '2026-04-30', branchId: b.id });
     expect(review.status).toBe(200);
     expect(review.body.cases.map((c: { workOrderId: string }) => c.workOrderId)).toEqual([j1.workOrder.id]);
     expect(review.body.cases[0].causeCodes).toEqual(['component_failure']);

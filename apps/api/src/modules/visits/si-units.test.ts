@@ -38,7 +38,13 @@ afterAll(() => t.close());
 const setSystem = (unitSystem: 'imperial' | 'si') => t.ctx.db.update(branches).set({ unitSystem }).where(eq(branches.id, f.a.id));
 
 async function visitOnSite() {
-  const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: place.site.id, unitId: place.unit.id, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z' });
+  const { visit } = await makeBookedVisit(t.ctx.db, {
+    branchId: f.a.id,
+    siteId: place.site.id,
+    unitId: place.unit.id,
+    techId: f.inA.technician.id,
+    startAt: '2026-03-10T14:00:00Z',
+  });
   expect((await tech.patch(`/api/visits/${visit.id}`).send({ state: 'on_site' })).status).toBe(200);
   return visit;
 }
@@ -68,7 +74,14 @@ describe('readings on an SI branch', () => {
     const r = res.body.readings[0];
     expect(r.units).toEqual(KPA_G_C);
     // As entered, not 768.8000000001.
-    expect(r).toMatchObject({ suctionPressure: 768.8, suctionPressureController: 790, suctionLineTemp: 9.3, liquidPressure: 2412.5, liquidLineTemp: 35.8, outdoorTemp: -4.5 });
+    expect(r).toMatchObject({
+      suctionPressure: 768.8,
+      suctionPressureController: 790,
+      suctionLineTemp: 9.3,
+      liquidPressure: 2412.5,
+      liquidLineTemp: 35.8,
+      outdoorTemp: -4.5,
+    });
     expect(Math.abs(r.suctionSaturationTemp - 2.74)).toBeLessThanOrEqual(0.1);
     expect(Math.abs(r.superheat - (9.3 - 2.74))).toBeLessThanOrEqual(0.1);
     expect(Math.abs(r.liquidSaturationTemp - 41.48)).toBeLessThanOrEqual(0.1);
@@ -104,7 +117,15 @@ describe('readings on an SI branch', () => {
 
   it('round-trips what the technician typed, and the visit says which system it reads in', async () => {
     const visit = await visitOnSite();
-    const typed = { circuitId: circuitIds[1], suctionPressure: 765.3, liquidPressure: 2750, dischargePressure: 2801.7, suctionLineTemp: 4.4, liquidLineTemp: 38.1, outdoorTemp: 31.2 };
+    const typed = {
+      circuitId: circuitIds[1],
+      suctionPressure: 765.3,
+      liquidPressure: 2750,
+      dischargePressure: 2801.7,
+      suctionLineTemp: 4.4,
+      liquidLineTemp: 38.1,
+      outdoorTemp: 31.2,
+    };
     expect((await tech.post(`/api/visits/${visit.id}/readings`).send({ units: KPA_G_C, readings: [typed] })).status).toBe(200);
     const detail = (await tech.get(`/api/visits/${visit.id}`)).body;
     expect(detail.branch).toMatchObject({ unitSystem: 'si', sensorToleranceAbsolute: 5 });
@@ -113,9 +134,15 @@ describe('readings on an SI branch', () => {
 
   it('converts a body that states psig/°F on an SI branch (the body says what it is in)', async () => {
     const visit = await visitOnSite();
-    const res = await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 118, suctionLineTemp: 50 }] });
+    const res = await tech
+      .post(`/api/visits/${visit.id}/readings`)
+      .send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 118, suctionLineTemp: 50 }] });
     expect(res.status).toBe(200);
-    expect(res.body.readings[0]).toMatchObject({ units: KPA_G_C, suctionPressure: Math.round(118 * KPA_PER_PSI * 100) / 100, suctionLineTemp: 10 });
+    expect(res.body.readings[0]).toMatchObject({
+      units: KPA_G_C,
+      suctionPressure: Math.round(118 * KPA_PER_PSI * 100) / 100,
+      suctionLineTemp: 10,
+    });
     const [row] = await t.ctx.db.select().from(readings).where(eq(readings.id, res.body.readings[0].id));
     expect(row).toMatchObject({ suctionPressure: 118, suctionLineTemp: 50 });
   });
@@ -159,7 +186,9 @@ describe('readings on an SI branch', () => {
 describe('readings shown elsewhere on an SI branch', () => {
   it('the briefing and the Unit file answer in kPa(g)/°C with the units stated', async () => {
     const visit = await visitOnSite();
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: KPA_G_C, readings: [{ circuitId: circuitIds[0], suctionPressure: 768.8, suctionLineTemp: 9.3 }] });
+    await tech
+      .post(`/api/visits/${visit.id}/readings`)
+      .send({ units: KPA_G_C, readings: [{ circuitId: circuitIds[0], suctionPressure: 768.8, suctionLineTemp: 9.3 }] });
     const b = (await tech.get(`/api/units/${place.unit.id}/briefing`)).body;
     expect(b.units).toEqual(KPA_G_C);
     const c1 = b.lastReadings.find((r: { circuitNumber: number }) => r.circuitNumber === 1);
@@ -177,7 +206,16 @@ describe('readings shown elsewhere on an SI branch', () => {
     const visit = await visitOnSite();
     await tech.post(`/api/visits/${visit.id}/readings`).send({
       units: KPA_G_C,
-      readings: [{ circuitId: circuitIds[0], suctionPressure: 768.8, suctionPressureController: 790, suctionLineTemp: 9.3, liquidPressure: 2412.5, liquidLineTemp: 35.8 }],
+      readings: [
+        {
+          circuitId: circuitIds[0],
+          suctionPressure: 768.8,
+          suctionPressureController: 790,
+          suctionLineTemp: 9.3,
+          liquidPressure: 2412.5,
+          liquidLineTemp: 35.8,
+        },
+      ],
     });
     t.mailer.sent.length = 0;
     expect((await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' })).status).toBe(200);

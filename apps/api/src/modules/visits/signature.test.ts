@@ -58,7 +58,14 @@ afterAll(() => t?.close());
 /** A visit on site since 14:00 UTC (09:00 CDT) at a site with a contact e-mail. */
 async function visitOnSite() {
   const p = await makeSiteWithUnit(t.ctx.db, f.a.id);
-  const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z', onSite: true });
+  const { visit } = await makeBookedVisit(t.ctx.db, {
+    branchId: f.a.id,
+    siteId: p.site.id,
+    unitId: p.unit.id,
+    techId: f.inA.technician.id,
+    startAt: '2026-03-10T14:00:00Z',
+    onSite: true,
+  });
   return { visit, site: p.site };
 }
 
@@ -82,7 +89,12 @@ describe('POST /api/visits/:id/close — the customer’s sign-off', () => {
       .send({ outcome: 'resolved', signature: { kind: 'signed', signerName: `  ${SIGNER} `, imagePng: png.toString('base64') } });
     expect(res.status).toBe(200);
     // No time from the phone: signed when the close-out arrived (the server's clock).
-    expect(res.body.visit.signature).toEqual({ kind: 'signed', signerName: SIGNER, signedAt: new Date(NOW).toISOString(), imageUrl: `/api/visits/${visit.id}/signature` });
+    expect(res.body.visit.signature).toEqual({
+      kind: 'signed',
+      signerName: SIGNER,
+      signedAt: new Date(NOW).toISOString(),
+      imageUrl: `/api/visits/${visit.id}/signature`,
+    });
 
     // The image, byte for byte, to the technician and to the office (owner); not to another branch's manager.
     const img = await tech.get(`/api/visits/${visit.id}/signature`).buffer(true);
@@ -126,7 +138,10 @@ describe('POST /api/visits/:id/close — the customer’s sign-off', () => {
     const a = await visitOnSite();
     const r1 = await tech
       .post(`/api/visits/${a.visit.id}/close`)
-      .send({ outcome: 'resolved', signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: '2026-03-10T14:30:00Z' } });
+      .send({
+        outcome: 'resolved',
+        signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: '2026-03-10T14:30:00Z' },
+      });
     expect(r1.body.visit.signature.signedAt).toBe('2026-03-10T14:30:00.000Z');
     // 09:30 CDT (UTC−5, see NOW_IN_CHICAGO).
     expect(mailTo(a.site.contactEmail)[0]!.text).toContain('Signed Tue 10 Mar 2026, 09:30 CDT');
@@ -134,7 +149,10 @@ describe('POST /api/visits/:id/close — the customer’s sign-off', () => {
       const b = await visitOnSite();
       const r = await tech
         .post(`/api/visits/${b.visit.id}/close`)
-        .send({ outcome: 'resolved', signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: claimed } });
+        .send({
+          outcome: 'resolved',
+          signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: claimed },
+        });
       expect(r.body.visit.signature.signedAt).toBe(new Date(NOW).toISOString());
     }
   });
@@ -167,7 +185,12 @@ describe('POST /api/visits/:id/close — the customer’s sign-off', () => {
       ['a JPEG', { kind: 'signed', signerName: SIGNER, imagePng: jpegish.toString('base64') }, 400, /must be a PNG/],
       ['over 200 KB', { kind: 'signed', signerName: SIGNER, imagePng: over.toString('base64') }, 400, /larger than 200 KB/],
       ['a damaged PNG', { kind: 'signed', signerName: SIGNER, imagePng: damaged.toString('base64') }, 400, /does not decode as a PNG/],
-      ['a huge image', { kind: 'signed', signerName: SIGNER, imagePng: hugeHeader.toString('base64') }, 400, /at most 3000 × 1500 pixels; this one is 20000 × 200/],
+      [
+        'a huge image',
+        { kind: 'signed', signerName: SIGNER, imagePng: hugeHeader.toString('base64') },
+        400,
+        /at most 3000 × 1500 pixels; this one is 20000 × 200/,
+      ],
       ['an unknown choice', { kind: 'maybe' }, 400, /signature/],
       ['both at once', { kind: 'customer_not_available', signerName: SIGNER }, 400, /signature/],
     ];
@@ -186,7 +209,9 @@ describe('POST /api/visits/:id/close — the customer’s sign-off', () => {
     const body = { outcome: 'resolved', signature: { kind: 'signed', signerName: SIGNER, imagePng: signaturePng().toString('base64') } };
     expect((await tech.post(`/api/visits/${visit.id}/close`).send(body)).status).toBe(200);
     const [before] = await t.ctx.db.select().from(visitSignatures).where(eq(visitSignatures.visitId, visit.id));
-    const again = await tech.post(`/api/visits/${visit.id}/close`).send({ ...body, signature: { ...body.signature, signerName: 'Someone Else' } });
+    const again = await tech
+      .post(`/api/visits/${visit.id}/close`)
+      .send({ ...body, signature: { ...body.signature, signerName: 'Someone Else' } });
     expect(again.status).toBe(409);
     expect(again.body.error.code).toBe('visit_closed');
     const after = await t.ctx.db.select().from(visitSignatures).where(eq(visitSignatures.visitId, visit.id));

@@ -23,7 +23,8 @@ const refuse = (message: string) => new HttpError(400, 'signature_invalid', mess
  */
 export function decodeSignaturePng(base64: string): Buffer {
   const bytes = Buffer.from(base64, 'base64');
-  if (bytes.length > signatureMaxBytes) throw refuse(`The signature image is larger than ${signatureMaxBytes / 1024} KB; clear the pad and sign again.`);
+  if (bytes.length > signatureMaxBytes)
+    throw refuse(`The signature image is larger than ${signatureMaxBytes / 1024} KB; clear the pad and sign again.`);
   // PNG spec §5.2–5.3: the 8-byte signature, then the IHDR chunk (length 13) with width and height first.
   if (bytes.length < 33 || bytes.readUInt32BE(8) !== 13 || bytes.toString('latin1', 12, 16) !== 'IHDR') {
     throw refuse('The signature image is not a PNG. Clear the pad and sign again.');
@@ -31,7 +32,9 @@ export function decodeSignaturePng(base64: string): Buffer {
   const width = bytes.readUInt32BE(16);
   const height = bytes.readUInt32BE(20);
   if (width < 1 || height < 1 || width > SIGNATURE_MAX_WIDTH || height > SIGNATURE_MAX_HEIGHT) {
-    throw refuse(`The signature image must be at most ${SIGNATURE_MAX_WIDTH} × ${SIGNATURE_MAX_HEIGHT} pixels; this one is ${width} × ${height}.`);
+    throw refuse(
+      `The signature image must be at most ${SIGNATURE_MAX_WIDTH} × ${SIGNATURE_MAX_HEIGHT} pixels; this one is ${width} × ${height}.`,
+    );
   }
   try {
     PNG.sync.read(bytes);
@@ -66,6 +69,10 @@ export async function visitSignatureDto(db: Tx, visitId: string): Promise<VisitS
 
 /** The signature image of a visit, or null (not signed). */
 export async function signatureImage(db: Tx, visitId: string): Promise<Buffer | null> {
-  const [row] = await db.select({ imagePng: visitSignatures.imagePng }).from(visitSignatures).where(eq(visitSignatures.visitId, visitId)).limit(1);
+  const [row] = await db
+    .select({ imagePng: visitSignatures.imagePng })
+    .from(visitSignatures)
+    .where(eq(visitSignatures.visitId, visitId))
+    .limit(1);
   return row?.imagePng ?? null;
 }

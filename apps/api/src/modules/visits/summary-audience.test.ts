@@ -63,24 +63,51 @@ async function closeWithEverything(notesAudience: 'internal' | 'customer') {
     leakRatePercent: 23.4,
     repairDueDate: '2026-04-01',
   });
-  const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z', onSite: true });
+  const { visit } = await makeBookedVisit(t.ctx.db, {
+    branchId: f.a.id,
+    siteId: p.site.id,
+    unitId: p.unit.id,
+    techId: f.inA.technician.id,
+    startAt: '2026-03-10T14:00:00Z',
+    onSite: true,
+  });
   const tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
-  expect((await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7, notes: INTERNAL.reading }] })).status).toBe(200);
-  const a = await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'component_failure', origin: 'factory_defect', notes: INTERNAL.finding });
+  expect(
+    (
+      await tech
+        .post(`/api/visits/${visit.id}/readings`)
+        .send({ units: PSIG_F, readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7, notes: INTERNAL.reading }] })
+    ).status,
+  ).toBe(200);
+  const a = await tech
+    .post(`/api/visits/${visit.id}/findings`)
+    .send({ causeCode: 'component_failure', origin: 'factory_defect', notes: INTERNAL.finding });
   expect(a.status).toBe(201);
   expect(a.body.finding.notesAudience).toBe('internal'); // the default
-  const b = await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'airflow', origin: 'wear', notes: CUSTOMER.finding, notesAudience: 'customer' });
+  const b = await tech
+    .post(`/api/visits/${visit.id}/findings`)
+    .send({ causeCode: 'airflow', origin: 'wear', notes: CUSTOMER.finding, notesAudience: 'customer' });
   expect(b.status).toBe(201);
-  expect((await tech.post(`/api/units/${p.unit.id}/refrigerant-events`).send({ visitId: visit.id, refrigerant: 'R-410A', poundsAdded: 3.5, reason: 'leak_top_off' })).status).toBe(201);
+  expect(
+    (
+      await tech
+        .post(`/api/units/${p.unit.id}/refrigerant-events`)
+        .send({ visitId: visit.id, refrigerant: 'R-410A', poundsAdded: 3.5, reason: 'leak_top_off' })
+    ).status,
+  ).toBe(201);
   const notes = notesAudience === 'customer' ? 'Your unit is running normally again.' : INTERNAL.visit;
   mailer.raw.length = 0;
-  const res = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return',
-    returnNeeds: ['parts'],
-    returnNotes: INTERNAL.returnNotes,
-    notes,
-    notesAudience,
-    rootCauseFindingId: a.body.finding.id,
-  });
+  const res = await tech
+    .post(`/api/visits/${visit.id}/close`)
+    .send({
+      signature: NOT_AVAILABLE,
+      outcome: 'needs_return',
+      returnNeeds: ['parts'],
+      returnNotes: INTERNAL.returnNotes,
+      notes,
+      notesAudience,
+      rootCauseFindingId: a.body.finding.id,
+    });
   expect(res.status).toBe(200);
   expect(res.body.summary.sent).toBe(true);
   expect(mailer.raw).toHaveLength(1);
@@ -135,7 +162,9 @@ describe('the service summary', () => {
     expect(patched.status).toBe(200);
     expect(patched.body).toMatchObject({ ...details, officeEmail: 'office@cooling.example' });
     // A partial change leaves the contractor's details as they are.
-    expect((await owner.patch(`/api/branches/${f.a.id}`).send({ callbackWindowDays: 30 })).body).toMatchObject({ tradingName: details.tradingName });
+    expect((await owner.patch(`/api/branches/${f.a.id}`).send({ callbackWindowDays: 30 })).body).toMatchObject({
+      tradingName: details.tradingName,
+    });
     expect((await owner.patch(`/api/branches/${f.a.id}`).send({ officeEmail: 'not an address' })).status).toBe(400);
     await t.ctx.db.update(users).set({ epa608Number: 'EPA-608-77310' }).where(eq(users.id, f.inA.technician.id));
 

@@ -31,18 +31,38 @@ describe('service summary through the real SMTP sink', () => {
     const f = await makeTwoBranches(t.ctx.db);
     const p = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const [c1] = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, p.unit.id)).orderBy(circuits.number);
-    const { visit } = await makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z' });
+    const { visit } = await makeBookedVisit(t.ctx.db, {
+      branchId: f.a.id,
+      siteId: p.site.id,
+      unitId: p.unit.id,
+      techId: f.inA.technician.id,
+      startAt: '2026-03-10T14:00:00Z',
+    });
     const tech = await signedInAgent(t.app, f.inA.technician.email, TEST_PASSWORD);
     await tech.patch(`/api/visits/${visit.id}`).send({ state: 'on_site' });
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
-    await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'wiring_fault', origin: 'factory_defect', reportedCircuit: 1, actualCircuit: 2 });
+    await tech
+      .post(`/api/visits/${visit.id}/readings`)
+      .send({ units: PSIG_F, readings: [{ circuitId: c1!.id, suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
+    await tech
+      .post(`/api/visits/${visit.id}/findings`)
+      .send({ causeCode: 'wiring_fault', origin: 'factory_defect', reportedCircuit: 1, actualCircuit: 2 });
 
     const [newest] = await t.ctx.db.select({ id: sql<number>`coalesce(max(${liveEvents.id}), 0)::int` }).from(liveEvents);
-    const res = await tech.post(`/api/visits/${visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds: ['manufacturer'], returnNotes: 'Factory to confirm the wiring change' });
+    const res = await tech
+      .post(`/api/visits/${visit.id}/close`)
+      .send({
+        signature: NOT_AVAILABLE,
+        outcome: 'needs_return',
+        returnNeeds: ['manufacturer'],
+        returnNotes: 'Factory to confirm the wiring change',
+      });
     expect(res.status).toBe(200);
     expect(res.body.summary).toMatchObject({ sent: true, to: p.site.contactEmail });
     // Every change of the close, the summary's "sent" mark included, names the technician on the live screens.
-    const written = await t.ctx.db.select().from(liveEvents).where(and(gt(liveEvents.id, Number(newest!.id)), eq(liveEvents.branchId, f.a.id)));
+    const written = await t.ctx.db
+      .select()
+      .from(liveEvents)
+      .where(and(gt(liveEvents.id, Number(newest!.id)), eq(liveEvents.branchId, f.a.id)));
     expect(written.length).toBeGreaterThan(0);
     expect(written.map((e) => toLiveEvent(e).by)).toEqual(written.map(() => ({ id: f.inA.technician.id, name: f.inA.technician.name })));
 

@@ -31,10 +31,14 @@ function readingLines(r: ReadingDto, unitTag: string): string[] {
   const t = (n: number | null) => m(n, 'temperature');
   const d = (n: number | null) => m(n, 'temperatureDifference');
   const lines = [`${unitTag}, circuit ${r.circuitNumber} (${r.refrigerant})`];
-  lines.push(`  Suction pressure ${p(r.suctionPressure)} (controller ${p(r.suctionPressureController)}), saturation ${t(r.suctionSaturationTemp)}`);
+  lines.push(
+    `  Suction pressure ${p(r.suctionPressure)} (controller ${p(r.suctionPressureController)}), saturation ${t(r.suctionSaturationTemp)}`,
+  );
   lines.push(`  Suction line ${t(r.suctionLineTemp)}, superheat ${d(r.superheat)}`);
   if (r.liquidPressure !== null || r.liquidPressureController !== null)
-    lines.push(`  Liquid pressure ${p(r.liquidPressure)} (controller ${p(r.liquidPressureController)}), saturation ${t(r.liquidSaturationTemp)}`);
+    lines.push(
+      `  Liquid pressure ${p(r.liquidPressure)} (controller ${p(r.liquidPressureController)}), saturation ${t(r.liquidSaturationTemp)}`,
+    );
   if (r.dischargePressure !== null || r.dischargePressureController !== null)
     lines.push(`  Discharge pressure ${p(r.dischargePressure)} (controller ${p(r.dischargePressureController)})`);
   lines.push(`  Liquid line ${t(r.liquidLineTemp)}, subcooling ${d(r.subcooling)}`);
@@ -68,7 +72,6 @@ export interface SummarySections {
   signOff: { lines: string[]; image: Buffer | null };
 }
 
-
 export function summarySections(v: VisitDetail, c: SummaryContext): SummarySections {
   const tz = v.branch.timeZone;
   const tagOf = new Map(v.units.map((u) => [u.id, `${u.tag} (${u.make} ${u.model}, serial ${u.serial})`]));
@@ -84,7 +87,9 @@ export function summarySections(v: VisitDetail, c: SummaryContext): SummarySecti
     [c.contractor.phone.trim() && `Phone ${c.contractor.phone.trim()}`, c.contractor.email.trim()].filter(Boolean).join(' · '),
     c.contractor.licenceNumber.trim() && `Licence ${c.contractor.licenceNumber.trim()}`,
   ].filter((l): l is string => !!l);
-  const techLine = c.technician.epa608Number?.trim() ? `${c.technician.name} (EPA 608 certification ${c.technician.epa608Number.trim()})` : c.technician.name;
+  const techLine = c.technician.epa608Number?.trim()
+    ? `${c.technician.name} (EPA 608 certification ${c.technician.epa608Number.trim()})`
+    : c.technician.name;
   return {
     title: `Service summary ${wo} - ${v.site.name}`,
     contractor,
@@ -168,7 +173,12 @@ function signatureFigure(pdf: CoilpathPdf, png: Buffer, alt: string) {
   const y = pdf.doc.y + 4;
   pdf.figure(alt, () => void pdf.doc.image(png, pdf.left, y, size));
   pdf.artifact(() => {
-    pdf.doc.moveTo(pdf.left, y + size.height + 2).lineTo(pdf.left + SIGNATURE_BOX.width, y + size.height + 2).lineWidth(0.5).strokeColor(pdfSlate).stroke();
+    pdf.doc
+      .moveTo(pdf.left, y + size.height + 2)
+      .lineTo(pdf.left + SIGNATURE_BOX.width, y + size.height + 2)
+      .lineWidth(0.5)
+      .strokeColor(pdfSlate)
+      .stroke();
   });
   pdf.doc.x = pdf.left;
   pdf.doc.y = y + size.height + 6;

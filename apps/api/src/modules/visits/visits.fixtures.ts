@@ -45,7 +45,13 @@ export async function makeBookedVisit(
     .returning();
   const [visit] = await db
     .insert(visits)
-    .values({ branchId: v.branchId, workOrderId: wo!.id, bookingId: b!.id, techId: v.techId, ...(v.onSite ? { enRouteAt: startAt, onSiteAt: startAt } : {}) })
+    .values({
+      branchId: v.branchId,
+      workOrderId: wo!.id,
+      bookingId: b!.id,
+      techId: v.techId,
+      ...(v.onSite ? { enRouteAt: startAt, onSiteAt: startAt } : {}),
+    })
     .returning();
   return { workOrder: wo!, booking: b!, visit: visit! };
 }

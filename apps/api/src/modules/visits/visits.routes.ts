@@ -24,21 +24,45 @@ import { briefingRevisionOf, createRevisionCache } from '../../lib/revision-cach
 import { closeVisit, resendSummary } from './closeout.service';
 import { recordRefrigerantEvent } from './refrigerant.service';
 import { addFinding, changeState, currentVisit, saveReadings, visitDetail } from './visits.service';
-import { attachmentAnswerSchema, closeVisitResultSchema, currentVisitResultSchema, findingAnswerSchema, readingsAnswerSchema, refrigerantEventResultSchema, summaryAnswerSchema, unitBriefingSchema, visitDetailSchema } from '@coilpath/contract/responses';
+import {
+  attachmentAnswerSchema,
+  closeVisitResultSchema,
+  currentVisitResultSchema,
+  findingAnswerSchema,
+  readingsAnswerSchema,
+  refrigerantEventResultSchema,
+  summaryAnswerSchema,
+  unitBriefingSchema,
+  visitDetailSchema,
+} from '@coilpath/contract/responses';
 
 /** `/api/visits`: the Visit screen's reads and the assigned technician's writes. */
 export function visitsRoutes(ctx: AppContext): Router {
   const r = Router();
 
-  r.get('/current', requireRole('technician'), endpoint({ response: currentVisitResultSchema }, ({ user }) => currentVisit(ctx, user)));
+  r.get(
+    '/current',
+    requireRole('technician'),
+    endpoint({ response: currentVisitResultSchema }, ({ user }) => currentVisit(ctx, user)),
+  );
 
-  r.get('/:id', endpoint({ params: idParams, response: visitDetailSchema }, ({ user, params }) => visitDetail(ctx.db, user, params.id)));
+  r.get(
+    '/:id',
+    endpoint({ params: idParams, response: visitDetailSchema }, ({ user, params }) => visitDetail(ctx.db, user, params.id)),
+  );
 
-  r.patch('/:id', endpoint({ params: idParams, body: visitStateChangeSchema, response: visitDetailSchema }, ({ user, params, body }) => changeState(ctx, user, params.id, body)));
+  r.patch(
+    '/:id',
+    endpoint({ params: idParams, body: visitStateChangeSchema, response: visitDetailSchema }, ({ user, params, body }) =>
+      changeState(ctx, user, params.id, body),
+    ),
+  );
 
   r.post(
     '/:id/readings',
-    endpoint({ params: idParams, body: saveReadingsSchema, response: readingsAnswerSchema }, ({ user, params, body }) => saveReadings(ctx, user, params.id, body)),
+    endpoint({ params: idParams, body: saveReadingsSchema, response: readingsAnswerSchema }, ({ user, params, body }) =>
+      saveReadings(ctx, user, params.id, body),
+    ),
   );
 
   r.post(
@@ -50,7 +74,9 @@ export function visitsRoutes(ctx: AppContext): Router {
   );
 
   // The visit is checked before the upload is read, so a refused request never buffers 15 MB.
-  const multerUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: attachmentMaxBytes, files: 1, fields: 5 } }).single('file');
+  const multerUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: attachmentMaxBytes, files: 1, fields: 5 } }).single(
+    'file',
+  );
   // Multer's own limit errors (LIMIT_FILE_SIZE → 413) pass through; an unreadable body is the client's 400.
   const upload = (req: Request, res: Response, next: NextFunction) =>
     multerUpload(req, res, (err?: unknown) => {
@@ -70,7 +96,12 @@ export function visitsRoutes(ctx: AppContext): Router {
     },
     upload,
     endpoint(
-      { params: idParams, body: attachmentUploadFieldsSchema.extend({ unitId: idSchema.optional() }), status: 201, response: attachmentAnswerSchema },
+      {
+        params: idParams,
+        body: attachmentUploadFieldsSchema.extend({ unitId: idSchema.optional() }),
+        status: 201,
+        response: attachmentAnswerSchema,
+      },
       async ({ user, params, body, req }) => ({
         attachment: await addAttachment(ctx, user, params.id, req.file, { id: body.id, kind: body.kind, unitId: body.unitId }),
       }),
@@ -79,7 +110,9 @@ export function visitsRoutes(ctx: AppContext): Router {
 
   r.post(
     '/:id/close',
-    endpoint({ params: idParams, body: closeVisitSchema, response: closeVisitResultSchema }, ({ user, params, body }) => closeVisit(ctx, user, params.id, body)),
+    endpoint({ params: idParams, body: closeVisitSchema, response: closeVisitResultSchema }, ({ user, params, body }) =>
+      closeVisit(ctx, user, params.id, body),
+    ),
   );
 
   // The customer's signature image (PNG) of a closed, signed visit: whoever may read the visit; 404 when not signed.
@@ -93,7 +126,12 @@ export function visitsRoutes(ctx: AppContext): Router {
     }),
   );
 
-  r.post('/:id/summary', endpoint({ params: idParams, response: summaryAnswerSchema }, async ({ user, params }) => ({ summary: await resendSummary(ctx, user, params.id) })));
+  r.post(
+    '/:id/summary',
+    endpoint({ params: idParams, response: summaryAnswerSchema }, async ({ user, params }) => ({
+      summary: await resendSummary(ctx, user, params.id),
+    })),
+  );
 
   return r;
 }
@@ -117,13 +155,19 @@ export function briefingRoutes(ctx: AppContext): Router {
   // Each technician opens the briefing of every stop, often several times a day: the answer is kept per unit
   // while its site's briefing revision stands (migration 0021), for every unit a day's routes may hold.
   const briefings = createRevisionCache(4096, briefingRevisionOf);
-  r.get('/:id/briefing', endpoint({ params: idParams, response: unitBriefingSchema }, ({ user, params }) => unitBriefing(ctx, user, params.id, briefings)));
+  r.get(
+    '/:id/briefing',
+    endpoint({ params: idParams, response: unitBriefingSchema }, ({ user, params }) => unitBriefing(ctx, user, params.id, briefings)),
+  );
   r.post(
     '/:id/refrigerant-events',
-    endpoint({ params: idParams, body: refrigerantEventInputSchema, response: refrigerantEventResultSchema }, async ({ user, params, body, res }) => {
-      const { created, ...out } = await recordRefrigerantEvent(ctx, user, params.id, body);
-      res.status(created ? 201 : 200).json(out);
-    }),
+    endpoint(
+      { params: idParams, body: refrigerantEventInputSchema, response: refrigerantEventResultSchema },
+      async ({ user, params, body, res }) => {
+        const { created, ...out } = await recordRefrigerantEvent(ctx, user, params.id, body);
+        res.status(created ? 201 : 200).json(out);
+      },
+    ),
   );
   return r;
 }

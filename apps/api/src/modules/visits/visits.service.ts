@@ -50,7 +50,16 @@ export async function unitsOfWorkOrder(db: Tx, wo: { unitId: string | null; site
 async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: string }, unitSystem: UnitSystem): Promise<VisitUnitDto[]> {
   const us = await unitsOfWorkOrder(db, wo);
   const cs = us.length
-    ? await db.select().from(circuits).where(inArray(circuits.unitId, us.map((u) => u.id))).orderBy(asc(circuits.number))
+    ? await db
+        .select()
+        .from(circuits)
+        .where(
+          inArray(
+            circuits.unitId,
+            us.map((u) => u.id),
+          ),
+        )
+        .orderBy(asc(circuits.number))
     : [];
   return us.map((u) => ({
     id: u.id,
@@ -64,7 +73,13 @@ async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: st
     applianceCategory: u.applianceCategory,
     circuits: cs
       .filter((c) => c.unitId === u.id)
-      .map((c) => ({ id: c.id, number: c.number, compressorCount: c.compressorCount, chargeLb: c.chargeLb, targets: circuitTargetsDto(c, unitSystem) })),
+      .map((c) => ({
+        id: c.id,
+        number: c.number,
+        compressorCount: c.compressorCount,
+        chargeLb: c.chargeLb,
+        targets: circuitTargetsDto(c, unitSystem),
+      })),
   }));
 }
 
@@ -74,9 +89,20 @@ async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: st
  */
 export async function leakRepairOf(db: Tx, wo: { id: string; leakCaseId: string | null }) {
   const [c] = await db
-    .select({ leakCaseId: leakCases.id, repairDueDate: leakCases.repairDueDate, verificationTests: sql<number>`(SELECT count(*) FROM verification_tests vt WHERE vt.leak_case_id = "leak_cases"."id")::int` })
+    .select({
+      leakCaseId: leakCases.id,
+      repairDueDate: leakCases.repairDueDate,
+      verificationTests: sql<number>`(SELECT count(*) FROM verification_tests vt WHERE vt.leak_case_id = "leak_cases"."id")::int`,
+    })
     .from(leakCases)
-    .where(and(eq(leakCases.status, 'open'), wo.leakCaseId ? sql`(${leakCases.repairWorkOrderId} = ${wo.id} OR ${leakCases.id} = ${wo.leakCaseId})` : eq(leakCases.repairWorkOrderId, wo.id)))
+    .where(
+      and(
+        eq(leakCases.status, 'open'),
+        wo.leakCaseId
+          ? sql`(${leakCases.repairWorkOrderId} = ${wo.id} OR ${leakCases.id} = ${wo.leakCaseId})`
+          : eq(leakCases.repairWorkOrderId, wo.id),
+      ),
+    )
     .orderBy(asc(leakCases.repairDueDate))
     .limit(1);
   return c ?? null;
@@ -140,7 +166,9 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
     summarySentAt: v.summarySentAt?.toISOString() ?? null,
     signature,
     version: v.version,
-    booking: row!.booking ? { id: row!.booking.id, startAt: row!.booking.startAt.toISOString(), endAt: row!.booking.endAt.toISOString() } : null,
+    booking: row!.booking
+      ? { id: row!.booking.id, startAt: row!.booking.startAt.toISOString(), endAt: row!.booking.endAt.toISOString() }
+      : null,
     workOrder: {
       id: wo.id,
       number: wo.number,
@@ -212,10 +240,16 @@ export async function changeState(ctx: AppContext, user: SessionUser, id: string
     if (input.state === 'en_route') {
       if (v.onSiteAt) throw conflict('bad_state', 'You are already on site for this visit; it cannot go back to en route.');
       if (v.enRouteAt) return; // already en route: nothing to change (a retried tap)
-      await tx.update(visits).set({ enRouteAt: now, version: v.version + 1, updatedAt: now }).where(eq(visits.id, id));
+      await tx
+        .update(visits)
+        .set({ enRouteAt: now, version: v.version + 1, updatedAt: now })
+        .where(eq(visits.id, id));
     } else {
       if (v.onSiteAt) return;
-      await tx.update(visits).set({ onSiteAt: now, version: v.version + 1, updatedAt: now }).where(eq(visits.id, id));
+      await tx
+        .update(visits)
+        .set({ onSiteAt: now, version: v.version + 1, updatedAt: now })
+        .where(eq(visits.id, id));
     }
     await tx.insert(visitEvents).values({ visitId: id, state: input.state, at: now, byUserId: user.id });
     await tx.update(workOrders).set({ state: input.state, updatedAt: now }).where(eq(workOrders.id, v.workOrderId));
@@ -224,7 +258,10 @@ export async function changeState(ctx: AppContext, user: SessionUser, id: string
 }
 
 async function visitUnitIds(tx: Tx, v: VisitRow): Promise<Map<string, { refrigerant: string }>> {
-  const [wo] = await tx.select({ unitId: workOrders.unitId, siteId: workOrders.siteId }).from(workOrders).where(eq(workOrders.id, v.workOrderId));
+  const [wo] = await tx
+    .select({ unitId: workOrders.unitId, siteId: workOrders.siteId })
+    .from(workOrders)
+    .where(eq(workOrders.id, v.workOrderId));
   const us = await unitsOfWorkOrder(tx, wo!);
   return new Map(us.map((u) => [u.id, { refrigerant: u.refrigerant }]));
 }
@@ -235,7 +272,12 @@ async function visitUnitIds(tx: Tx, v: VisitRow): Promise<Map<string, { refriger
  * units the body states (psig/°F or kPa(g)/°C) and are stored in psig/°F; saturation temperatures,
  * superheat and subcooling are computed here with @coilpath/calc. The answer is in the branch's units.
  */
-export async function saveReadings(ctx: AppContext, user: SessionUser, id: string, input: SaveReadings): Promise<{ readings: ReadingDto[] }> {
+export async function saveReadings(
+  ctx: AppContext,
+  user: SessionUser,
+  id: string,
+  input: SaveReadings,
+): Promise<{ readings: ReadingDto[] }> {
   return ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const v = await loadVisit(tx, id, { lock: true });
@@ -244,11 +286,17 @@ export async function saveReadings(ctx: AppContext, user: SessionUser, id: strin
     const circuitIds = input.readings.map((r) => r.circuitId);
     const [cs, [branch]] = await Promise.all([
       tx.select().from(circuits).where(inArray(circuits.id, circuitIds)),
-      tx.select({ unitSystem: branches.unitSystem, elevationMeters: branches.elevationMeters }).from(branches).where(eq(branches.id, v.branchId)),
+      tx
+        .select({ unitSystem: branches.unitSystem, elevationMeters: branches.elevationMeters })
+        .from(branches)
+        .where(eq(branches.id, v.branchId)),
     ]);
     const byId = new Map(cs.map((c) => [c.id, c]));
     const bad = circuitIds.filter((c) => !byId.has(c) || !unitMap.has(byId.get(c)!.unitId));
-    if (bad.length) throw badRequest('A circuit is not on this visit’s units.', { fields: [{ path: 'readings.circuitId', message: 'Not a circuit of this visit' }] });
+    if (bad.length)
+      throw badRequest('A circuit is not on this visit’s units.', {
+        fields: [{ path: 'readings.circuitId', message: 'Not a circuit of this visit' }],
+      });
     const now = ctx.clock.now();
     // Gauges read against the air where they are: the branch's elevation, stored with the readings it computed them at.
     const elevationMeters = branch?.elevationMeters ?? 0;
@@ -275,12 +323,19 @@ export async function saveReadings(ctx: AppContext, user: SessionUser, id: strin
       )
       .returning();
     const system = branch?.unitSystem ?? 'imperial';
-    return { readings: rows.map((r) => readingDto(r, byId.get(r.circuitId)!.number, system)).sort((a, b) => a.circuitNumber - b.circuitNumber) };
+    return {
+      readings: rows.map((r) => readingDto(r, byId.get(r.circuitId)!.number, system)).sort((a, b) => a.circuitNumber - b.circuitNumber),
+    };
   });
 }
 
 /** Records a finding. A client-made `id` seen before answers the saved finding (a retried save). */
-export async function addFinding(ctx: AppContext, user: SessionUser, id: string, input: FindingInput): Promise<{ finding: FindingDto; created: boolean }> {
+export async function addFinding(
+  ctx: AppContext,
+  user: SessionUser,
+  id: string,
+  input: FindingInput,
+): Promise<{ finding: FindingDto; created: boolean }> {
   return ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const v = await loadVisit(tx, id, { lock: true });
@@ -317,4 +372,3 @@ export async function addFinding(ctx: AppContext, user: SessionUser, id: string,
     return { finding: findingDto(f!), created: true };
   });
 }
-

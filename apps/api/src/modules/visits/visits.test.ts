@@ -38,7 +38,14 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 const book = (over: Partial<Parameters<typeof makeBookedVisit>[1]> = {}) =>
-  makeBookedVisit(t.ctx.db, { branchId: f.a.id, siteId: place.site.id, unitId: place.unit.id, techId: f.inA.technician.id, startAt: '2026-03-10T14:00:00Z', ...over });
+  makeBookedVisit(t.ctx.db, {
+    branchId: f.a.id,
+    siteId: place.site.id,
+    unitId: place.unit.id,
+    techId: f.inA.technician.id,
+    startAt: '2026-03-10T14:00:00Z',
+    ...over,
+  });
 
 async function onSite(visitId: string) {
   expect((await tech.patch(`/api/visits/${visitId}`).send({ state: 'en_route' })).status).toBe(200);
@@ -141,8 +148,16 @@ describe('POST /api/visits/:id/readings', () => {
     const { visit } = await book({ onSite: true });
     const elsewhere = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const [foreign] = await t.ctx.db.select().from(circuits).where(eq(circuits.unitId, elsewhere.unit.id));
-    expect((await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: foreign!.id, suctionPressure: 100 }] })).status).toBe(400);
-    const bad = await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 'high' }] });
+    expect(
+      (
+        await tech
+          .post(`/api/visits/${visit.id}/readings`)
+          .send({ units: PSIG_F, readings: [{ circuitId: foreign!.id, suctionPressure: 100 }] })
+      ).status,
+    ).toBe(400);
+    const bad = await tech
+      .post(`/api/visits/${visit.id}/readings`)
+      .send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 'high' }] });
     expect(bad.status).toBe(400);
     expect(bad.body.error.details.fields[0].path).toBe('readings.0.suctionPressure');
     const ok = { units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 100 }] };
@@ -155,7 +170,15 @@ describe('POST /api/visits/:id/findings', () => {
   it('records cause, origin and reported vs actual circuit; a retried save with the same id is not doubled', async () => {
     const { visit } = await book({ onSite: true });
     const id = '7d3f0d6e-2b1c-4c55-9a7e-3f1f6f0c2a11';
-    const body = { id, causeCode: 'wiring_fault', origin: 'factory_defect', alarmCode: 'LP1', reportedCircuit: 1, actualCircuit: 2, notes: 'Transducer leads swapped at the board' };
+    const body = {
+      id,
+      causeCode: 'wiring_fault',
+      origin: 'factory_defect',
+      alarmCode: 'LP1',
+      reportedCircuit: 1,
+      actualCircuit: 2,
+      notes: 'Transducer leads swapped at the board',
+    };
     const a = await tech.post(`/api/visits/${visit.id}/findings`).send(body);
     expect(a.status).toBe(201);
     expect(a.body.finding).toMatchObject({ id, unitId: place.unit.id, reportedCircuit: 1, actualCircuit: 2 });
@@ -174,7 +197,9 @@ describe('POST /api/visits/:id/findings', () => {
 describe('POST /api/units/:id/refrigerant-events', () => {
   it('refuses negative pounds (400) and an entry with no pounds (400)', async () => {
     await book();
-    const neg = await tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', poundsAdded: -2, reason: 'leak_top_off' });
+    const neg = await tech
+      .post(`/api/units/${place.unit.id}/refrigerant-events`)
+      .send({ refrigerant: 'R-410A', poundsAdded: -2, reason: 'leak_top_off' });
     expect(neg.status).toBe(400);
     expect(neg.body.error.details.fields.map((x: { path: string }) => x.path)).toContain('poundsAdded');
     const none = await tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', reason: 'leak_top_off' });
@@ -183,9 +208,14 @@ describe('POST /api/units/:id/refrigerant-events', () => {
 
   it('opens a leak case with its repair due date when the leak rate passes the threshold, once', async () => {
     // A 100 lb R-410A comfort-cooling unit of its own, so earlier tests' entries do not count.
-    const leaky = await makeSiteWithUnit(t.ctx.db, f.a.id, { unit: { fullChargeLb: 100, refrigerant: 'R-410A', applianceCategory: 'comfort_cooling' } });
+    const leaky = await makeSiteWithUnit(t.ctx.db, f.a.id, {
+      unit: { fullChargeLb: 100, refrigerant: 'R-410A', applianceCategory: 'comfort_cooling' },
+    });
     const { visit } = await book({ siteId: leaky.site.id, unitId: leaky.unit.id, onSite: true });
-    const post = (body: object) => tech.post(`/api/units/${leaky.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', reason: 'leak_top_off', visitId: visit.id, ...body });
+    const post = (body: object) =>
+      tech
+        .post(`/api/units/${leaky.unit.id}/refrigerant-events`)
+        .send({ refrigerant: 'R-410A', reason: 'leak_top_off', visitId: visit.id, ...body });
 
     // First addition: annualizing over 365 days (40 CFR 82.152 "leak rate"): 2/100 × 365/365 = 2 % — under 10 %.
     const first = await post({ poundsAdded: 2, date: '2026-02-01', cylinderLot: 'LOT-1' });
@@ -216,9 +246,12 @@ describe('POST /api/units/:id/refrigerant-events', () => {
   it('does not count an installation charge toward the leak rate, as the unit’s refrigerant record does not', async () => {
     // 40 CFR 82.157(b) / 84.106(b): no leak rate is calculated at an addition made at installation.
     // Counted, 80 lb on a 100 lb comfort-cooling unit would read 80 % > 10 % and open a leak case.
-    const fresh = await makeSiteWithUnit(t.ctx.db, f.a.id, { unit: { fullChargeLb: 100, refrigerant: 'R-410A', applianceCategory: 'comfort_cooling' } });
+    const fresh = await makeSiteWithUnit(t.ctx.db, f.a.id, {
+      unit: { fullChargeLb: 100, refrigerant: 'R-410A', applianceCategory: 'comfort_cooling' },
+    });
     const { visit } = await book({ siteId: fresh.site.id, unitId: fresh.unit.id, onSite: true });
-    const post = (body: object) => tech.post(`/api/units/${fresh.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', visitId: visit.id, ...body });
+    const post = (body: object) =>
+      tech.post(`/api/units/${fresh.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', visitId: visit.id, ...body });
     const charge = await post({ poundsAdded: 80, reason: 'initial_charge', date: '2026-02-01' });
     expect(charge.status).toBe(201);
     expect(charge.body.leakCheck).toMatchObject({ exceeds: false, leakRatePercent: 0 });
@@ -237,12 +270,17 @@ describe('POST /api/units/:id/refrigerant-events', () => {
 
   it('records the circuit on a unit with several, refuses one the unit does not have, and shows it in the record', async () => {
     const { visit } = await book({ onSite: true });
-    const post = (body: object) => tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', reason: 'leak_top_off', visitId: visit.id, poundsAdded: 0.5, ...body });
+    const post = (body: object) =>
+      tech
+        .post(`/api/units/${place.unit.id}/refrigerant-events`)
+        .send({ refrigerant: 'R-410A', reason: 'leak_top_off', visitId: visit.id, poundsAdded: 0.5, ...body });
     const circuits = circuitIds.length;
     expect(circuits).toBeGreaterThan(1);
     const wrong = await post({ circuit: circuits + 3 });
     expect(wrong.status).toBe(400);
-    expect(wrong.body.error.message).toBe(`This unit has no circuit ${circuits + 3}: it has circuits ${Array.from({ length: circuits - 1 }, (_, i) => i + 1).join(', ')} and ${circuits}.`);
+    expect(wrong.body.error.message).toBe(
+      `This unit has no circuit ${circuits + 3}: it has circuits ${Array.from({ length: circuits - 1 }, (_, i) => i + 1).join(', ')} and ${circuits}.`,
+    );
     expect(wrong.body.error.details.fields.map((x: { path: string }) => x.path)).toEqual(['circuit']);
     const ok = await post({ circuit: 2 });
     expect(ok.status).toBe(201);
@@ -250,7 +288,10 @@ describe('POST /api/units/:id/refrigerant-events', () => {
     const stored = await t.ctx.db.select().from(refrigerantEvents).where(eq(refrigerantEvents.id, ok.body.event.id));
     expect(stored[0]!.circuit).toBe(2);
     const record = await manager.get(`/api/units/${place.unit.id}/refrigerant-record`);
-    expect(record.body.events.find((e: { sourceId: string }) => e.sourceId === ok.body.event.id)).toMatchObject({ circuit: 2, kind: 'addition' });
+    expect(record.body.events.find((e: { sourceId: string }) => e.sourceId === ok.body.event.id)).toMatchObject({
+      circuit: 2,
+      kind: 'addition',
+    });
   });
 
   it('is idempotent with a client id, and refuses units off the technician’s assignments (404) and the office (403)', async () => {
@@ -273,9 +314,13 @@ describe('POST /api/units/:id/refrigerant-events', () => {
 describe('recording only on site', () => {
   const reading = { units: PSIG_F, readings: [{ circuitId: '', suctionPressure: 111.5, suctionLineTemp: 48.7 }] };
   const record = (visitId: string) => ({
-    readings: () => tech.post(`/api/visits/${visitId}/readings`).send({ ...reading, readings: [{ ...reading.readings[0], circuitId: circuitIds[0] }] }),
+    readings: () =>
+      tech.post(`/api/visits/${visitId}/readings`).send({ ...reading, readings: [{ ...reading.readings[0], circuitId: circuitIds[0] }] }),
     finding: () => tech.post(`/api/visits/${visitId}/findings`).send({ causeCode: 'airflow', origin: 'wear' }),
-    refrigerant: () => tech.post(`/api/units/${place.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', poundsAdded: 1, reason: 'leak_top_off', visitId }),
+    refrigerant: () =>
+      tech
+        .post(`/api/units/${place.unit.id}/refrigerant-events`)
+        .send({ refrigerant: 'R-410A', poundsAdded: 1, reason: 'leak_top_off', visitId }),
   });
 
   it('refuses readings, findings and refrigerant on a booked visit (409 naming the state), and records nothing', async () => {
@@ -291,7 +336,11 @@ describe('recording only on site', () => {
     expect(await t.ctx.db.select().from(findings).where(eq(findings.visitId, visit.id))).toHaveLength(0);
     expect(await t.ctx.db.select().from(refrigerantEvents).where(eq(refrigerantEvents.visitId, visit.id))).toHaveLength(0);
     const detail = await tech.get(`/api/visits/${visit.id}`);
-    expect(detail.body).toMatchObject({ canWrite: true, canRecord: false, recordRefusal: expect.stringMatching(/^This visit is booked, not started\./) });
+    expect(detail.body).toMatchObject({
+      canWrite: true,
+      canRecord: false,
+      recordRefusal: expect.stringMatching(/^This visit is booked, not started\./),
+    });
   });
 
   it('refuses them en route, and takes them once on site', async () => {
@@ -337,13 +386,23 @@ describe('POST /api/visits/:id/close', () => {
   it('closes as needing a return: linked unplaced return visit, summary e-mail with the PDF', async () => {
     const { visit, workOrder } = await book({ workOrder: { requiredCertification: 'II', requiredSkill: 'rooftop' } });
     await onSite(visit.id);
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
-    await tech.post(`/api/visits/${visit.id}/findings`).send({ causeCode: 'refrigerant_leak', origin: 'wear', notes: 'Oil at the service valve' });
+    await tech
+      .post(`/api/visits/${visit.id}/readings`)
+      .send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 111.5, suctionLineTemp: 48.7 }] });
+    await tech
+      .post(`/api/visits/${visit.id}/findings`)
+      .send({ causeCode: 'refrigerant_leak', origin: 'wear', notes: 'Oil at the service valve' });
     t.mailer.sent.length = 0;
 
     const res = await tech
       .post(`/api/visits/${visit.id}/close`)
-      .send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds: ['leak_search', 'parts'], returnNotes: 'Leak search on circuit 1; bring a core', labourMinutes: 75 });
+      .send({
+        signature: NOT_AVAILABLE,
+        outcome: 'needs_return',
+        returnNeeds: ['leak_search', 'parts'],
+        returnNotes: 'Leak search on circuit 1; bring a core',
+        labourMinutes: 75,
+      });
     expect(res.status).toBe(200);
     expect(res.body.visit.status).toBe('closed');
     expect(res.body.visit.canWrite).toBe(false);
@@ -433,8 +492,12 @@ describe('GET /api/units/:id/briefing', () => {
         { circuitId: cs[1]!.id, suctionPressure: 111.5, suctionLineTemp: 50.7 },
       ],
     });
-    await tech.post(`/api/visits/${first.visit.id}/findings`).send({ causeCode: 'sensor_fault', origin: 'wear', reportedCircuit: 1, actualCircuit: 1 });
-    await tech.post(`/api/units/${u.unit.id}/refrigerant-events`).send({ refrigerant: 'R-410A', poundsAdded: 2.5, reason: 'leak_top_off', date: '2026-03-09' });
+    await tech
+      .post(`/api/visits/${first.visit.id}/findings`)
+      .send({ causeCode: 'sensor_fault', origin: 'wear', reportedCircuit: 1, actualCircuit: 1 });
+    await tech
+      .post(`/api/units/${u.unit.id}/refrigerant-events`)
+      .send({ refrigerant: 'R-410A', poundsAdded: 2.5, reason: 'leak_top_off', date: '2026-03-09' });
     await tech.post(`/api/visits/${first.visit.id}/close`).send({ signature: NOT_AVAILABLE, outcome: 'resolved' });
     await t.ctx.db.insert(alarms).values([
       { branchId: f.a.id, unitId: u.unit.id, circuit: 1, code: 'LP1', raisedAt: new Date('2026-03-01T10:00:00Z'), source: 'controller' },
@@ -475,7 +538,13 @@ describe('data stays whole', () => {
   it('leaves no reading behind a refused request (the same circuit twice)', async () => {
     const { visit } = await book({ onSite: true });
     const before = await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id));
-    await tech.post(`/api/visits/${visit.id}/readings`).send({ units: PSIG_F, readings: [{ circuitId: circuitIds[0], suctionPressure: 100 }, { circuitId: circuitIds[0], suctionPressure: 101 }] });
+    await tech.post(`/api/visits/${visit.id}/readings`).send({
+      units: PSIG_F,
+      readings: [
+        { circuitId: circuitIds[0], suctionPressure: 100 },
+        { circuitId: circuitIds[0], suctionPressure: 101 },
+      ],
+    });
     const after = await t.ctx.db.select().from(readings).where(eq(readings.visitId, visit.id));
     expect(after).toHaveLength(before.length);
   });

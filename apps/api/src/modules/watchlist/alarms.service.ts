@@ -63,7 +63,8 @@ export async function createAlarm(ctx: AppContext, user: SessionUser, input: z.i
   if (!unit) throw notFound('unit');
   assertBranch(user, unit.branchId, 'unit');
   const raisedAt = new Date(input.raisedAt);
-  if (raisedAt.getTime() > ctx.clock.now().getTime() + FUTURE_SLACK_MS) throw unprocessable('The alarm is dated in the future; check the date and time.');
+  if (raisedAt.getTime() > ctx.clock.now().getTime() + FUTURE_SLACK_MS)
+    throw unprocessable('The alarm is dated in the future; check the date and time.');
   const clearedAt = input.clearedAt ? new Date(input.clearedAt) : null;
   if (clearedAt && clearedAt < raisedAt) throw unprocessable('An alarm cannot clear before it was raised.');
   if (input.circuit !== null) {
@@ -111,7 +112,12 @@ const headerAliases: Record<string, 'serial' | 'circuit' | 'code' | 'raisedAt'> 
   time: 'raisedAt',
 };
 const required = ['serial', 'circuit', 'code', 'raisedAt'] as const;
-const fieldNames: Record<(typeof required)[number], string> = { serial: 'unit_serial', circuit: 'circuit', code: 'code', raisedAt: 'raised_at' };
+const fieldNames: Record<(typeof required)[number], string> = {
+  serial: 'unit_serial',
+  circuit: 'circuit',
+  code: 'code',
+  raisedAt: 'raised_at',
+};
 
 const WITH_OFFSET = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,3})?)?(Z|[+-]\d{2}:?\d{2})$/i;
 const LOCAL = /^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2})(:\d{2})?$/;
@@ -139,14 +145,22 @@ function readInstant(value: string, timeZone: string): Date | null {
  * Checks a CSV of alarms row by row and, on commit, writes all of it in one transaction — or, when
  * any row has an error, nothing (422 listing every error with its row). A dry run only reports.
  */
-export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.infer<typeof alarmImportSchema>): Promise<AlarmImportResult> {
+export async function importAlarms(
+  ctx: AppContext,
+  user: SessionUser,
+  input: z.infer<typeof alarmImportSchema>,
+): Promise<AlarmImportResult> {
   const branch = await oneBranch(ctx.db, user, input.branchId);
   const errors: AlarmImportError[] = [];
   const { text, encoding } = importText(input);
   const parsed = Papa.parse<Record<string, string>>(text, {
     header: true,
     skipEmptyLines: 'greedy',
-    transformHeader: (h) => h.trim().toLowerCase().replace(/[\s-]+/g, '_'),
+    transformHeader: (h) =>
+      h
+        .trim()
+        .toLowerCase()
+        .replace(/[\s-]+/g, '_'),
   });
   const headers = parsed.meta.fields ?? [];
   const columnOf = new Map<string, string>();
@@ -166,7 +180,8 @@ export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.
     // Papa's row index is 0-based over data rows; Coilpath numbers data rows from 1.
     errors.push({ row: e.row === undefined ? 0 : e.row + 1, field: null, message: `${e.message}.` });
   }
-  if (parsed.data.length > MAX_IMPORT_ROWS) errors.push({ row: 0, field: null, message: `At most ${MAX_IMPORT_ROWS} rows per file; this one has ${parsed.data.length}.` });
+  if (parsed.data.length > MAX_IMPORT_ROWS)
+    errors.push({ row: 0, field: null, message: `At most ${MAX_IMPORT_ROWS} rows per file; this one has ${parsed.data.length}.` });
   if (parsed.data.length === 0 && missing.length === 0) errors.push({ row: 0, field: null, message: 'The file has a header but no rows.' });
 
   const rows: AlarmImportRow[] = [];
@@ -182,7 +197,15 @@ export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.
     const bySerial = new Map<string, { id: string; tag: string; serial: string }[]>();
     for (const u of unitRows) bySerial.set(u.serial, [...(bySerial.get(u.serial) ?? []), u]);
     const circuitRows = unitRows.length
-      ? await ctx.db.select({ unitId: circuits.unitId, number: circuits.number }).from(circuits).where(inArray(circuits.unitId, unitRows.map((u) => u.id)))
+      ? await ctx.db
+          .select({ unitId: circuits.unitId, number: circuits.number })
+          .from(circuits)
+          .where(
+            inArray(
+              circuits.unitId,
+              unitRows.map((u) => u.id),
+            ),
+          )
       : [];
     const circuitSet = new Set(circuitRows.map((c) => `${c.unitId}:${c.number}`));
     const now = ctx.clock.now().getTime();
@@ -193,16 +216,24 @@ export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.
       const serial = cell(r, 'serial');
       const matches = bySerial.get(serial) ?? [];
       if (!serial) errors.push({ row, field: 'unit_serial', message: 'The unit serial is empty.' });
-      else if (matches.length === 0) errors.push({ row, field: 'unit_serial', message: `No unit with serial "${serial}" in ${branch.name}.` });
-      else if (matches.length > 1) errors.push({ row, field: 'unit_serial', message: `Serial "${serial}" matches ${matches.length} units in ${branch.name}; enter this alarm from the unit's file.` });
+      else if (matches.length === 0)
+        errors.push({ row, field: 'unit_serial', message: `No unit with serial "${serial}" in ${branch.name}.` });
+      else if (matches.length > 1)
+        errors.push({
+          row,
+          field: 'unit_serial',
+          message: `Serial "${serial}" matches ${matches.length} units in ${branch.name}; enter this alarm from the unit's file.`,
+        });
       const unit = matches.length === 1 ? matches[0]! : null;
 
       const circuitText = cell(r, 'circuit');
       let circuit: number | null = null;
       if (circuitText !== '') {
         const n = Number(circuitText);
-        if (!Number.isInteger(n) || n < 1 || n > 20) errors.push({ row, field: 'circuit', message: `The circuit "${circuitText}" is not a whole number from 1 to 20.` });
-        else if (unit && !circuitSet.has(`${unit.id}:${n}`)) errors.push({ row, field: 'circuit', message: `Unit ${unit.tag} has no circuit ${n}.` });
+        if (!Number.isInteger(n) || n < 1 || n > 20)
+          errors.push({ row, field: 'circuit', message: `The circuit "${circuitText}" is not a whole number from 1 to 20.` });
+        else if (unit && !circuitSet.has(`${unit.id}:${n}`))
+          errors.push({ row, field: 'circuit', message: `Unit ${unit.tag} has no circuit ${n}.` });
         else circuit = n;
       }
 
@@ -211,11 +242,26 @@ export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.
 
       const raisedText = cell(r, 'raisedAt');
       const raisedAt = readInstant(raisedText, branch.timeZone);
-      if (!raisedAt) errors.push({ row, field: 'raised_at', message: `"${raisedText}" is not a date and time; use 2026-12-02T14:05:00Z or 2026-12-02 08:05 (${branch.timeZone}).` });
-      else if (raisedAt.getTime() > now + FUTURE_SLACK_MS) errors.push({ row, field: 'raised_at', message: `${raisedText} is in the future.` });
+      if (!raisedAt)
+        errors.push({
+          row,
+          field: 'raised_at',
+          message: `"${raisedText}" is not a date and time; use 2026-12-02T14:05:00Z or 2026-12-02 08:05 (${branch.timeZone}).`,
+        });
+      else if (raisedAt.getTime() > now + FUTURE_SLACK_MS)
+        errors.push({ row, field: 'raised_at', message: `${raisedText} is in the future.` });
 
       if (errors.length === before && unit && code.success && raisedAt) {
-        rows.push({ row, unitId: unit.id, unitTag: unit.tag, serial, circuit, code: code.data, raisedAt: raisedAt.toISOString(), duplicate: false });
+        rows.push({
+          row,
+          unitId: unit.id,
+          unitTag: unit.tag,
+          serial,
+          circuit,
+          code: code.data,
+          raisedAt: raisedAt.toISOString(),
+          duplicate: false,
+        });
       }
     });
 
@@ -255,7 +301,12 @@ export async function importAlarms(ctx: AppContext, user: SessionUser, input: z.
   if (input.mode === 'dry_run') return result;
   if (errors.length > 0) {
     const rowsWithErrors = new Set(errors.map((e) => e.row)).size;
-    throw new HttpError(422, 'import_refused', `Nothing was imported: ${errors.length} error${errors.length === 1 ? '' : 's'} in ${rowsWithErrors} row${rowsWithErrors === 1 ? '' : 's'}. Fix the file and import it again.`, result);
+    throw new HttpError(
+      422,
+      'import_refused',
+      `Nothing was imported: ${errors.length} error${errors.length === 1 ? '' : 's'} in ${rowsWithErrors} row${rowsWithErrors === 1 ? '' : 's'}. Fix the file and import it again.`,
+      result,
+    );
   }
   await ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);

@@ -64,8 +64,13 @@ describe('leak cases read from the refrigerant record', () => {
     const m = await manager();
     // The repair on 07-20, then an initial test dated 07-15 (before it), then a follow-up on 07-25: the case's own rules accept these.
     expect((await m.patch(`/api/leak-cases/${caseId}`).send({ action: 'repaired', repairedOn: '2024-07-20' })).status).toBe(200);
-    expect((await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'initial', testedOn: '2024-07-15', passed: true })).status).toBe(201);
-    expect((await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'follow_up', testedOn: '2024-07-25', passed: true })).status).toBe(201);
+    expect(
+      (await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'initial', testedOn: '2024-07-15', passed: true })).status,
+    ).toBe(201);
+    expect(
+      (await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'follow_up', testedOn: '2024-07-25', passed: true }))
+        .status,
+    ).toBe(201);
     expect(await caseNow()).toMatchObject({ status: 'repaired', obligationState: 'repaired' });
 
     const refused = await m.patch(`/api/leak-cases/${caseId}`).send({ action: 'close' });
@@ -76,8 +81,13 @@ describe('leak cases read from the refrigerant record', () => {
 
   it('closes once a passed initial and follow-up test come after the repair; the record then says verified', async () => {
     const m = await manager();
-    expect((await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'initial', testedOn: '2024-07-26', passed: true })).status).toBe(201);
-    expect((await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'follow_up', testedOn: '2024-08-01', passed: true })).status).toBe(201);
+    expect(
+      (await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'initial', testedOn: '2024-07-26', passed: true })).status,
+    ).toBe(201);
+    expect(
+      (await m.post(`/api/leak-cases/${caseId}/verification-tests`).send({ kind: 'follow_up', testedOn: '2024-08-01', passed: true }))
+        .status,
+    ).toBe(201);
     expect((await m.patch(`/api/leak-cases/${caseId}`).send({ action: 'close' })).status).toBe(200);
     expect(await caseNow()).toMatchObject({ status: 'closed', obligationState: 'verified' });
   });

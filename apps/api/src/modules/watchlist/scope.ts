@@ -42,12 +42,14 @@ export async function oneBranch(db: Tx, user: SessionUser, requested: string | u
 
 export async function branchesById(db: Db | Tx, ids: string[]): Promise<Map<string, BranchInfo>> {
   if (ids.length === 0) return new Map();
-  const rows = await db.select().from(branches).where(inArray(branches.id, [...new Set(ids)]));
+  const rows = await db
+    .select()
+    .from(branches)
+    .where(inArray(branches.id, [...new Set(ids)]));
   return new Map(rows.map((b) => [b.id, b]));
 }
 
 /** Today's date in a branch's time zone. */
 export const todayIn = (timeZone: string, now: Date) => zonedDate(now, timeZone);
-
 
 export { sql };

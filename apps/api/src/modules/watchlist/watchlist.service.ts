@@ -20,7 +20,16 @@ import {
   leakObligationStateLabels,
   workOrderLabel,
 } from '@coilpath/contract';
-import { LEAK_RULES, addDays, daysFrom, repeatAlarms, requiredCertificationFor, sameCode, verificationDeadlines, zonedInstant } from '@coilpath/calc';
+import {
+  LEAK_RULES,
+  addDays,
+  daysFrom,
+  repeatAlarms,
+  requiredCertificationFor,
+  sameCode,
+  verificationDeadlines,
+  zonedInstant,
+} from '@coilpath/calc';
 import type { AppContext } from '../../context';
 import type { Db, Tx } from '../../db/client';
 import {
@@ -70,9 +79,26 @@ export async function repeatAlarmUnits(ctx: AppContext, scope: BranchInfo[], asO
   const rows = await ctx.db
     .select({ branchId: alarms.branchId, unitId: alarms.unitId, circuit: alarms.circuit, code: alarms.code, raisedAt: alarms.raisedAt })
     .from(alarms)
-    .where(and(inArray(alarms.branchId, scope.map((b) => b.id)), gte(alarms.raisedAt, since), sql`${alarms.raisedAt} <= ${asOf.toISOString()}`));
+    .where(
+      and(
+        inArray(
+          alarms.branchId,
+          scope.map((b) => b.id),
+        ),
+        gte(alarms.raisedAt, since),
+        sql`${alarms.raisedAt} <= ${asOf.toISOString()}`,
+      ),
+    );
 
-  const groups: { branchId: string; unitId: string; code: string; count: number; first: string; last: string; circuits: (string | number)[] }[] = [];
+  const groups: {
+    branchId: string;
+    unitId: string;
+    code: string;
+    count: number;
+    first: string;
+    last: string;
+    circuits: (string | number)[];
+  }[] = [];
   for (const b of scope) {
     const mine = rows.filter((r) => r.branchId === b.id);
     for (const g of repeatAlarms(mine, { windowDays: b.repeatAlarmDays, minCount: b.repeatAlarmCount, asOf })) {
@@ -85,7 +111,15 @@ export async function repeatAlarmUnits(ctx: AppContext, scope: BranchInfo[], asO
   const earliest = new Date(Math.min(...groups.map((g) => Date.parse(g.first))) - 86_400_000);
   const [unitRows, woRows, findingRows] = await Promise.all([
     ctx.db
-      .select({ id: units.id, tag: units.tag, make: units.make, model: units.model, serial: units.serial, siteId: units.siteId, siteName: sites.name })
+      .select({
+        id: units.id,
+        tag: units.tag,
+        make: units.make,
+        model: units.model,
+        serial: units.serial,
+        siteId: units.siteId,
+        siteName: sites.name,
+      })
       .from(units)
       .innerJoin(sites, eq(sites.id, units.siteId))
       .where(inArray(units.id, unitIds)),
@@ -143,7 +177,10 @@ export async function repeatAlarmUnits(ctx: AppContext, scope: BranchInfo[], asO
       });
     }
     const f = findingRows
-      .filter((x) => x.unitId === g.unitId && x.createdAt.getTime() >= from && (x.alarmCode === null || sameCode(x.alarmCode) === sameCode(g.code)))
+      .filter(
+        (x) =>
+          x.unitId === g.unitId && x.createdAt.getTime() >= from && (x.alarmCode === null || sameCode(x.alarmCode) === sameCode(g.code)),
+      )
       .map((x) => ({ ...x, createdAt: x.createdAt.toISOString() }));
     out.units.push({
       unitId: g.unitId,
@@ -208,7 +245,11 @@ interface CaseBase {
  * initial verification test are due by the repair due date; the follow-up test `followUpVerificationDays`
  * (10) after a passed initial test (calc `verificationDeadlines`). A retrofit/retire plan replaces them.
  */
-export function leakDeadlines(c: CaseBase, tests: { kind: 'initial' | 'follow_up'; testedOn: string; passed: boolean }[], today: string): LeakDeadline[] {
+export function leakDeadlines(
+  c: CaseBase,
+  tests: { kind: 'initial' | 'follow_up'; testedOn: string; passed: boolean }[],
+  today: string,
+): LeakDeadline[] {
   const mk = (what: LeakDeadline['what'], due: string, met: boolean): LeakDeadline => {
     const daysLeft = daysFrom(today, due);
     const state = met ? 'met' : daysLeft < 0 ? 'overdue' : daysLeft <= DUE_SOON_DAYS ? 'due_soon' : 'ok';
@@ -228,13 +269,22 @@ export function leakDeadlines(c: CaseBase, tests: { kind: 'initial' | 'follow_up
     followUpDays,
     ...(initialPassed ? { initialTestDate: initialPassed.testedOn } : {}),
   });
-  const list = [mk('repair', c.repairDueDate, c.repairedOn !== null), mk('initial_verification', v.initialTestDue, initialPassed !== undefined)];
+  const list = [
+    mk('repair', c.repairDueDate, c.repairedOn !== null),
+    mk('initial_verification', v.initialTestDue, initialPassed !== undefined),
+  ];
   if (v.followUpDue) list.push(mk('follow_up_verification', v.followUpDue, followUpPassed));
   return list;
 }
 
-export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { branchId?: string | undefined; status: 'active' | 'closed' | 'all' }, onlyIds?: string[]): Promise<LeakCaseRow[]> {
-  const statusCond = q.status === 'active' ? inArray(leakCases.status, ACTIVE) : q.status === 'closed' ? eq(leakCases.status, 'closed') : undefined;
+export async function listLeakCases(
+  ctx: AppContext,
+  user: SessionUser,
+  q: { branchId?: string | undefined; status: 'active' | 'closed' | 'all' },
+  onlyIds?: string[],
+): Promise<LeakCaseRow[]> {
+  const statusCond =
+    q.status === 'active' ? inArray(leakCases.status, ACTIVE) : q.status === 'closed' ? eq(leakCases.status, 'closed') : undefined;
   const rows = await ctx.db
     .select({
       c: leakCases,
@@ -261,11 +311,23 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
     ctx.db
       .select()
       .from(verificationTests)
-      .where(inArray(verificationTests.leakCaseId, rows.map((r) => r.c.id)))
+      .where(
+        inArray(
+          verificationTests.leakCaseId,
+          rows.map((r) => r.c.id),
+        ),
+      )
       .orderBy(asc(verificationTests.testedOn), asc(verificationTests.createdAt)),
-    branchesById(ctx.db, rows.map((r) => r.c.branchId)),
+    branchesById(
+      ctx.db,
+      rows.map((r) => r.c.branchId),
+    ),
     repairIds.length
-      ? ctx.db.select({ id: visits.id, workOrderId: visits.workOrderId }).from(visits).where(inArray(visits.workOrderId, repairIds)).orderBy(desc(visits.createdAt))
+      ? ctx.db
+          .select({ id: visits.id, workOrderId: visits.workOrderId })
+          .from(visits)
+          .where(inArray(visits.workOrderId, repairIds))
+          .orderBy(desc(visits.createdAt))
       : Promise.resolve([]),
   ]);
   // The latest visit of each repair work order (the list is newest first).
@@ -274,7 +336,13 @@ export async function listLeakCases(ctx: AppContext, user: SessionUser, q: { bra
   const now = ctx.clock.now();
   const states = await obligationStates(
     ctx.db,
-    rows.map((r) => ({ id: r.c.unitId, refrigerant: r.refrigerant, fullChargeLb: r.fullChargeLb, applianceCategory: r.applianceCategory, timeZone: branchMap.get(r.c.branchId)?.timeZone ?? 'UTC' })),
+    rows.map((r) => ({
+      id: r.c.unitId,
+      refrigerant: r.refrigerant,
+      fullChargeLb: r.fullChargeLb,
+      applianceCategory: r.applianceCategory,
+      timeZone: branchMap.get(r.c.branchId)?.timeZone ?? 'UTC',
+    })),
     now,
   );
   const list = rows.map((r): LeakCaseRow => {
@@ -362,7 +430,12 @@ async function audit(tx: Tx, user: SessionUser, action: string, entity: string, 
  * case links to it and it gains the leak search, the certification and the earlier deadline. While the case's
  * repair visit is open, a second request answers 409 `open_return_exists` naming it (`details.workOrderId`).
  */
-export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: string, input: { priority: BookRepair['priority'] & string; notes?: string | undefined }) {
+export async function bookLeakRepair(
+  ctx: AppContext,
+  user: SessionUser,
+  id: string,
+  input: { priority: BookRepair['priority'] & string; notes?: string | undefined },
+) {
   const booked = await withOneOpenReturn(ctx.db, () =>
     ctx.db.transaction(async (tx) => {
       await actAs(tx, user.id);
@@ -373,12 +446,24 @@ export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: str
           .from(workOrders)
           .where(eq(workOrders.id, c.repairWorkOrderId));
         if (wo && isOpenState(wo.state)) {
-          throw await openReturnExists(tx, wo, `The repair visit already exists: ${workOrderLabel(wo.number)} (${wo.state.replace('_', ' ')}).`);
+          throw await openReturnExists(
+            tx,
+            wo,
+            `The repair visit already exists: ${workOrderLabel(wo.number)} (${wo.state.replace('_', ' ')}).`,
+          );
         }
       }
-      if (c.status !== 'open') throw unprocessable(`Only an open leak case needs a repair visit; this one is ${c.status.replace('_', ' ')}.`);
+      if (c.status !== 'open')
+        throw unprocessable(`Only an open leak case needs a repair visit; this one is ${c.status.replace('_', ' ')}.`);
       const [u] = await tx
-        .select({ id: units.id, siteId: units.siteId, tag: units.tag, refrigerant: units.refrigerant, fullChargeLb: units.fullChargeLb, branchTz: branches.timeZone })
+        .select({
+          id: units.id,
+          siteId: units.siteId,
+          tag: units.tag,
+          refrigerant: units.refrigerant,
+          fullChargeLb: units.fullChargeLb,
+          branchTz: branches.timeZone,
+        })
         .from(units)
         .innerJoin(branches, eq(branches.id, units.branchId))
         .where(eq(units.id, c.unitId));
@@ -401,7 +486,15 @@ export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: str
         await joinOpenReturn(
           tx,
           open,
-          { needs: ['leak_search'], latestAt, priority: input.priority, complaint, estimatedMinutes: 180, requiredCertification, leakCaseId: c.id },
+          {
+            needs: ['leak_search'],
+            latestAt,
+            priority: input.priority,
+            complaint,
+            estimatedMinutes: 180,
+            requiredCertification,
+            leakCaseId: c.id,
+          },
           now,
         );
         workOrderId = open.id;
@@ -441,7 +534,12 @@ export async function bookLeakRepair(ctx: AppContext, user: SessionUser, id: str
       const linked = await tx
         .update(leakCases)
         .set({ repairWorkOrderId: workOrderId, updatedAt: now })
-        .where(and(eq(leakCases.id, c.id), c.repairWorkOrderId ? eq(leakCases.repairWorkOrderId, c.repairWorkOrderId) : isNull(leakCases.repairWorkOrderId)))
+        .where(
+          and(
+            eq(leakCases.id, c.id),
+            c.repairWorkOrderId ? eq(leakCases.repairWorkOrderId, c.repairWorkOrderId) : isNull(leakCases.repairWorkOrderId),
+          ),
+        )
         .returning({ id: leakCases.id });
       if (linked.length === 0) throw new OpenReturnChanged();
       await audit(tx, user, open ? 'leak_case.repair_joined' : 'leak_case.repair_booked', 'leak_case', c.id, { workOrderId });
@@ -479,7 +577,12 @@ export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: stri
       }
       // The unit's refrigerant record must agree: its obligation for this case verified (tests after the repair) or under a plan.
       const [u] = await tx
-        .select({ id: units.id, refrigerant: units.refrigerant, fullChargeLb: units.fullChargeLb, applianceCategory: units.applianceCategory })
+        .select({
+          id: units.id,
+          refrigerant: units.refrigerant,
+          fullChargeLb: units.fullChargeLb,
+          applianceCategory: units.applianceCategory,
+        })
         .from(units)
         .where(eq(units.id, c.unitId));
       const state = (await obligationStates(tx, [{ ...u!, timeZone: b?.timeZone ?? 'UTC' }], now)).get(c.id);
@@ -488,7 +591,10 @@ export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: stri
           `The unit’s refrigerant record shows this leak’s repair obligation as “${leakObligationStateLabels[state]}”: a passed initial and a passed follow-up verification test, both on or after the repair date, close it (40 CFR 82.157(e) [M], 84.106(e) [S]).`,
         );
       }
-      await tx.update(leakCases).set({ status: 'closed', closedAt: now, notes: patch.notes ?? c.notes, updatedAt: now }).where(eq(leakCases.id, id));
+      await tx
+        .update(leakCases)
+        .set({ status: 'closed', closedAt: now, notes: patch.notes ?? c.notes, updatedAt: now })
+        .where(eq(leakCases.id, id));
     } else {
       await tx
         .update(leakCases)
@@ -512,7 +618,12 @@ export async function patchLeakCase(ctx: AppContext, user: SessionUser, id: stri
  * before its date; a passed initial test marks an open case repaired (on the test date, unless a
  * repair date is already recorded); a failed one re-opens a repaired case.
  */
-export async function addVerificationTest(ctx: AppContext, user: SessionUser, id: string, input: VerificationTestInput): Promise<LeakCaseRow> {
+export async function addVerificationTest(
+  ctx: AppContext,
+  user: SessionUser,
+  id: string,
+  input: VerificationTestInput,
+): Promise<LeakCaseRow> {
   await ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const c = await loadCase(tx, user, id);
@@ -523,12 +634,26 @@ export async function addVerificationTest(ctx: AppContext, user: SessionUser, id
     if (input.testedOn < c.openedOn) throw unprocessable(`The test date is before the case opened (${recordDate(c.openedOn)}).`);
     const tests = await tx.select().from(verificationTests).where(eq(verificationTests.leakCaseId, id));
     if (input.kind === 'follow_up' && !tests.some((t) => t.kind === 'initial' && t.passed && t.testedOn <= input.testedOn)) {
-      throw unprocessable('Record a passed initial verification test first: the follow-up test comes after it (40 CFR 82.157(e) [M], 84.106(e) [S]).');
+      throw unprocessable(
+        'Record a passed initial verification test first: the follow-up test comes after it (40 CFR 82.157(e) [M], 84.106(e) [S]).',
+      );
     }
-    await tx.insert(verificationTests).values({ leakCaseId: id, kind: input.kind, testedOn: input.testedOn, passed: input.passed, notes: input.notes ?? null, byUserId: user.id });
+    await tx
+      .insert(verificationTests)
+      .values({
+        leakCaseId: id,
+        kind: input.kind,
+        testedOn: input.testedOn,
+        passed: input.passed,
+        notes: input.notes ?? null,
+        byUserId: user.id,
+      });
     const now = ctx.clock.now();
     if (input.kind === 'initial' && input.passed && c.status === 'open') {
-      await tx.update(leakCases).set({ status: 'repaired', repairedOn: c.repairedOn ?? input.testedOn, updatedAt: now }).where(eq(leakCases.id, id));
+      await tx
+        .update(leakCases)
+        .set({ status: 'repaired', repairedOn: c.repairedOn ?? input.testedOn, updatedAt: now })
+        .where(eq(leakCases.id, id));
     } else if (!input.passed && c.status === 'repaired') {
       await tx.update(leakCases).set({ status: 'open', updatedAt: now }).where(eq(leakCases.id, id));
     }
@@ -542,7 +667,12 @@ export async function addVerificationTest(ctx: AppContext, user: SessionUser, id
 const origin = alias(workOrders, 'origin');
 
 /** Return visits from close-outs (`needs_return`) still unplaced, oldest close-out first. */
-export async function listReturnVisits(ctx: AppContext, user: SessionUser, branchId: string | undefined, onlyId?: string): Promise<ReturnVisitRow[]> {
+export async function listReturnVisits(
+  ctx: AppContext,
+  user: SessionUser,
+  branchId: string | undefined,
+  onlyId?: string,
+): Promise<ReturnVisitRow[]> {
   const rows = await ctx.db
     .select({
       workOrderId: workOrders.id,
@@ -608,7 +738,8 @@ export async function queueReturnVisit(ctx: AppContext, user: SessionUser, id: s
     const [wo] = await tx.select().from(workOrders).where(eq(workOrders.id, id)).limit(1);
     if (!wo || wo.kind !== 'return_visit') throw notFound('return visit');
     assertBranch(user, wo.branchId, 'return visit');
-    if (wo.state !== 'unplaced') throw conflict('not_unplaced', `This return visit is already ${wo.state.replace('_', ' ')}; change it on the Roster.`);
+    if (wo.state !== 'unplaced')
+      throw conflict('not_unplaced', `This return visit is already ${wo.state.replace('_', ' ')}; change it on the Roster.`);
     const [b] = (await branchesById(tx, [wo.branchId])).values();
     const tz = b?.timeZone ?? 'UTC';
     if (input.latestDate < todayIn(tz, ctx.clock.now())) throw unprocessable('The latest date is in the past; pick today or later.');
@@ -626,7 +757,17 @@ export async function queueReturnVisit(ctx: AppContext, user: SessionUser, id: s
 /** Units of the branches in scope with their site (the alarm form's and agreement form's pickers). */
 export async function unitChoices(ctx: AppContext, user: SessionUser, branchId: string | undefined) {
   return ctx.db
-    .select({ id: units.id, branchId: units.branchId, tag: units.tag, make: units.make, model: units.model, serial: units.serial, refrigerant: units.refrigerant, siteId: sites.id, siteName: sites.name })
+    .select({
+      id: units.id,
+      branchId: units.branchId,
+      tag: units.tag,
+      make: units.make,
+      model: units.model,
+      serial: units.serial,
+      refrigerant: units.refrigerant,
+      siteId: sites.id,
+      siteName: sites.name,
+    })
     .from(units)
     .innerJoin(sites, eq(sites.id, units.siteId))
     .where(and(branchFilter(user, branchId, units.branchId), sql`${units.archivedAt} is null`))

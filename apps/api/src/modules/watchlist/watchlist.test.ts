@@ -55,7 +55,9 @@ describe('roles and branches', () => {
     const noCircuit = await mgr.post('/api/alarms').send({ unitId: unitA.unit.id, circuit: 3, code: 'X', raisedAt: ago(DAY) });
     expect(noCircuit.status).toBe(422);
     expect(noCircuit.body.error.message).toContain('circuit 3');
-    const future = await mgr.post('/api/alarms').send({ unitId: unitA.unit.id, circuit: 1, code: 'X', raisedAt: new Date(Date.parse(nowIso) + DAY).toISOString() });
+    const future = await mgr
+      .post('/api/alarms')
+      .send({ unitId: unitA.unit.id, circuit: 1, code: 'X', raisedAt: new Date(Date.parse(nowIso) + DAY).toISOString() });
     expect(future.status).toBe(422);
   });
 });
@@ -66,7 +68,14 @@ describe('repeat-alarm units', () => {
     const edge = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const outside = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const fewer = await makeSiteWithUnit(t.ctx.db, f.a.id);
-    const row = (unitId: string, at: string, circuit = 1) => ({ branchId: f.a.id, unitId, circuit, code: 'HP2', raisedAt: new Date(at), source: 'api' as const });
+    const row = (unitId: string, at: string, circuit = 1) => ({
+      branchId: f.a.id,
+      unitId,
+      circuit,
+      code: 'HP2',
+      raisedAt: new Date(at),
+      source: 'api' as const,
+    });
     await t.ctx.db.insert(alarms).values([
       row(edge.unit.id, ago(10 * DAY)), // exactly M days before now
       row(edge.unit.id, ago(5 * DAY), 2),
@@ -78,12 +87,29 @@ describe('repeat-alarm units', () => {
       row(fewer.unit.id, ago(2 * DAY)),
     ]);
     // A visit on the edge unit whose finding put the fault on circuit 2 while the controller said 1.
-    const wo = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: edge.site.id, unitId: edge.unit.id, createdAt: new Date(ago(4 * DAY)), state: 'closed' });
+    const wo = await makeWorkOrder(t.ctx.db, {
+      branchId: f.a.id,
+      siteId: edge.site.id,
+      unitId: edge.unit.id,
+      createdAt: new Date(ago(4 * DAY)),
+      state: 'closed',
+    });
     const [v] = await t.ctx.db
       .insert(visits)
       .values({ branchId: f.a.id, workOrderId: wo.id, techId: f.inA.technician.id, closedAt: new Date(ago(4 * DAY)), outcome: 'resolved' })
       .returning();
-    await t.ctx.db.insert(findings).values({ visitId: v!.id, unitId: edge.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect', alarmCode: 'HP2', reportedCircuit: 1, actualCircuit: 2, createdAt: new Date(ago(4 * DAY)) });
+    await t.ctx.db
+      .insert(findings)
+      .values({
+        visitId: v!.id,
+        unitId: edge.unit.id,
+        causeCode: 'wiring_fault',
+        origin: 'factory_defect',
+        alarmCode: 'HP2',
+        reportedCircuit: 1,
+        actualCircuit: 2,
+        createdAt: new Date(ago(4 * DAY)),
+      });
 
     const mgr = await agent(f.inA.manager);
     const res = await mgr.get('/api/watchlist/repeat-alarms');
@@ -128,7 +154,10 @@ describe('leak cases', () => {
     // The obligation for a 40 lb R-410A comfort-cooling unit topped off with 4 lb on 2026-11-20 after 40 days.
     const ob = leakRepairObligation({
       appliance: { category: 'comfort_cooling', fullCharge: 40, refrigerant: 'R-410A' },
-      additions: [{ date: '2026-10-11', pounds: 1 }, { date: '2026-11-20', pounds: 4 }],
+      additions: [
+        { date: '2026-10-11', pounds: 1 },
+        { date: '2026-11-20', pounds: 4 },
+      ],
       asOf: '2026-11-20',
     });
     expect(ob).toMatchObject({ rule: '40 CFR 84.106', thresholdPercent: 10, exceeds: true, repairDueDate: '2026-12-20' });
@@ -138,13 +167,21 @@ describe('leak cases', () => {
     const res = await mgr.get('/api/leak-cases');
     expect(res.status).toBe(200);
     const byId = new Map(res.body.leakCases.map((c: { id: string }) => [c.id, c]));
-    const n = byId.get(near.id) as { next: { what: string; due: string; daysLeft: number; state: string; source: string }; deadlines: { what: string; due: string }[]; requiredCertification: string; today: string };
+    const n = byId.get(near.id) as {
+      next: { what: string; due: string; daysLeft: number; state: string; source: string };
+      deadlines: { what: string; due: string }[];
+      requiredCertification: string;
+      today: string;
+    };
     expect(n.today).toBe('2026-12-15');
     expect(n.next).toMatchObject({ what: 'repair', due: '2026-12-20', daysLeft: 5, state: 'due_soon' });
     expect(n.next.source).toContain('84.106(d)');
     expect(n.next.source).toContain('[S]');
     // Initial verification within the same window (84.106(e) [S]); no follow-up until an initial test passes.
-    expect(n.deadlines.map((d) => [d.what, d.due])).toEqual([['repair', '2026-12-20'], ['initial_verification', '2026-12-20']]);
+    expect(n.deadlines.map((d) => [d.what, d.due])).toEqual([
+      ['repair', '2026-12-20'],
+      ['initial_verification', '2026-12-20'],
+    ]);
     expect(n.requiredCertification).toBe('II');
     const l = byId.get(late.id) as { next: { state: string; daysLeft: number; source: string } };
     expect(l.next).toMatchObject({ state: 'overdue', daysLeft: -26 });
@@ -160,22 +197,30 @@ describe('leak cases', () => {
   it('follow-up verification is due 10 days after a passed initial test (82.157(e) [M] / 84.106(e) [S]); closing needs it', async () => {
     const c = await makeCase();
     const mgr = await agent(f.inA.manager);
-    const early = await mgr.post(`/api/leak-cases/${c.id}/verification-tests`).send({ kind: 'follow_up', testedOn: '2026-12-10', passed: true });
+    const early = await mgr
+      .post(`/api/leak-cases/${c.id}/verification-tests`)
+      .send({ kind: 'follow_up', testedOn: '2026-12-10', passed: true });
     expect(early.status).toBe(422);
     expect(early.body.error.message).toContain('initial verification test first');
     const close1 = await mgr.patch(`/api/leak-cases/${c.id}`).send({ action: 'close' });
     expect(close1.status).toBe(422);
 
-    const init = await mgr.post(`/api/leak-cases/${c.id}/verification-tests`).send({ kind: 'initial', testedOn: '2026-12-08', passed: true });
+    const init = await mgr
+      .post(`/api/leak-cases/${c.id}/verification-tests`)
+      .send({ kind: 'initial', testedOn: '2026-12-08', passed: true });
     expect(init.status).toBe(201);
     expect(init.body.leakCase).toMatchObject({ status: 'repaired', repairedOn: '2026-12-08' });
     const fu = init.body.leakCase.deadlines.find((d: { what: string }) => d.what === 'follow_up_verification');
     expect(fu).toMatchObject({ due: '2026-12-18', daysLeft: 3, state: 'due_soon' });
     expect(init.body.leakCase.deadlines.find((d: { what: string }) => d.what === 'repair').state).toBe('met');
 
-    const future = await mgr.post(`/api/leak-cases/${c.id}/verification-tests`).send({ kind: 'follow_up', testedOn: '2026-12-16', passed: true });
+    const future = await mgr
+      .post(`/api/leak-cases/${c.id}/verification-tests`)
+      .send({ kind: 'follow_up', testedOn: '2026-12-16', passed: true });
     expect(future.status).toBe(422);
-    const done = await mgr.post(`/api/leak-cases/${c.id}/verification-tests`).send({ kind: 'follow_up', testedOn: '2026-12-15', passed: true });
+    const done = await mgr
+      .post(`/api/leak-cases/${c.id}/verification-tests`)
+      .send({ kind: 'follow_up', testedOn: '2026-12-15', passed: true });
     expect(done.status).toBe(201);
     expect(done.body.leakCase.next).toBeNull();
     const closed = await mgr.patch(`/api/leak-cases/${c.id}`).send({ action: 'close' });
@@ -201,7 +246,15 @@ describe('leak cases', () => {
     const res = await mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({});
     expect(res.status).toBe(201);
     const [wo] = await t.ctx.db.select().from(workOrders).where(eq(workOrders.id, res.body.workOrderId));
-    expect(wo).toMatchObject({ kind: 'return_visit', state: 'unplaced', priority: 'high', leakCaseId: c.id, requiredCertification: 'II', unitId: unitA.unit.id, branchId: f.a.id });
+    expect(wo).toMatchObject({
+      kind: 'return_visit',
+      state: 'unplaced',
+      priority: 'high',
+      leakCaseId: c.id,
+      requiredCertification: 'II',
+      unitId: unitA.unit.id,
+      branchId: f.a.id,
+    });
     // The repair due date is the booking deadline: the end of 2026-12-20 in Chicago (CST, UTC−6).
     expect(wo!.latestAt!.toISOString()).toBe('2026-12-21T05:59:00.000Z');
     expect(res.body.leakCase.repairWorkOrder).toMatchObject({ id: wo!.id, state: 'unplaced' });
@@ -211,7 +264,13 @@ describe('leak cases', () => {
     const again = await mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({});
     expect(again.status).toBe(409);
     expect(again.body.error.code).toBe('open_return_exists');
-    expect(again.body.error.details).toEqual({ workOrderId: wo!.id, number: wo!.number, state: 'unplaced', unitId: unitA.unit.id, visitId: null });
+    expect(again.body.error.details).toEqual({
+      workOrderId: wo!.id,
+      number: wo!.number,
+      state: 'unplaced',
+      unitId: unitA.unit.id,
+      visitId: null,
+    });
     const [{ n }] = (await t.ctx.db.select({ n: count() }).from(workOrders).where(eq(workOrders.leakCaseId, c.id))) as [{ n: number }];
     expect(n).toBe(1);
     expect((await (await agent(f.inB.manager)).post(`/api/leak-cases/${c.id}/repair-visit`).send({})).status).toBe(404);
@@ -223,7 +282,13 @@ describe('return visits to book', () => {
     // One open return visit per unit: each on a unit of its own.
     const mk = async (closedDaysAgo: number) => {
       const { site, unit } = await makeSiteWithUnit(t.ctx.db, f.a.id);
-      const origin = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id, state: 'closed', outcome: 'needs_return' });
+      const origin = await makeWorkOrder(t.ctx.db, {
+        branchId: f.a.id,
+        siteId: site.id,
+        unitId: unit.id,
+        state: 'closed',
+        outcome: 'needs_return',
+      });
       await t.ctx.db.insert(visits).values({
         branchId: f.a.id,
         workOrderId: origin.id,
@@ -233,7 +298,13 @@ describe('return visits to book', () => {
         returnNeeds: ['parts'],
         returnNotes: 'Contactor on order',
       });
-      return makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id, kind: 'return_visit', originWorkOrderId: origin.id });
+      return makeWorkOrder(t.ctx.db, {
+        branchId: f.a.id,
+        siteId: site.id,
+        unitId: unit.id,
+        kind: 'return_visit',
+        originWorkOrderId: origin.id,
+      });
     };
     const newer = await mk(1);
     const older = await mk(6);
@@ -244,20 +315,35 @@ describe('return visits to book', () => {
     const res = await mgr.get('/api/watchlist/return-visits');
     expect(res.status).toBe(200);
     expect(res.body.returnVisits.map((r: { workOrderId: string }) => r.workOrderId)).toEqual([older.id, newer.id]);
-    expect(res.body.returnVisits[0]).toMatchObject({ returnNeeds: ['parts'], returnNotes: 'Contactor on order', origin: { techName: f.inA.technician.name } });
+    expect(res.body.returnVisits[0]).toMatchObject({
+      returnNeeds: ['parts'],
+      returnNotes: 'Contactor on order',
+      origin: { techName: f.inA.technician.name },
+    });
 
     const past = await mgr.patch(`/api/watchlist/return-visits/${older.id}`).send({ priority: 'high', latestDate: '2026-12-14' });
     expect(past.status).toBe(422);
     const q = await mgr.patch(`/api/watchlist/return-visits/${older.id}`).send({ priority: 'high', latestDate: '2026-12-18' });
     expect(q.status).toBe(200);
     expect(q.body.returnVisit).toMatchObject({ priority: 'high', latestAt: '2026-12-19T05:59:00.000Z' });
-    expect((await mgr.patch(`/api/watchlist/return-visits/${booked.id}`).send({ priority: 'high', latestDate: '2026-12-18' })).status).toBe(409);
-    expect((await (await agent(f.inB.manager)).patch(`/api/watchlist/return-visits/${newer.id}`).send({ priority: 'low', latestDate: '2026-12-18' })).status).toBe(404);
+    expect((await mgr.patch(`/api/watchlist/return-visits/${booked.id}`).send({ priority: 'high', latestDate: '2026-12-18' })).status).toBe(
+      409,
+    );
+    expect(
+      (
+        await (
+          await agent(f.inB.manager)
+        )
+          .patch(`/api/watchlist/return-visits/${newer.id}`)
+          .send({ priority: 'low', latestDate: '2026-12-18' })
+      ).status,
+    ).toBe(404);
   });
 });
 
 describe('alarm CSV import', () => {
-  const csvCount = async () => ((await t.ctx.db.select({ n: count() }).from(alarms).where(eq(alarms.source, 'csv'))) as [{ n: number }])[0].n;
+  const csvCount = async () =>
+    ((await t.ctx.db.select({ n: count() }).from(alarms).where(eq(alarms.source, 'csv'))) as [{ n: number }])[0].n;
 
   it('a malformed file: every error listed, nothing written', async () => {
     const mgr = await agent(f.inA.manager);
@@ -278,7 +364,8 @@ describe('alarm CSV import', () => {
 
   it('reads a legacy Windows-1252 file sent as bytes, refuses one it cannot read, never stores U+FFFD', async () => {
     const mgr = await agent(f.inA.manager);
-    const text = 'unit_serial,circuit,code,raised_at\r\nWL-A-1,1,DRUCK-HÖCHST,2026-12-05T10:00:00Z\r\nWL-A-1,2,PRESSÃO-ALTA,2026-12-05T11:00:00Z\r\n';
+    const text =
+      'unit_serial,circuit,code,raised_at\r\nWL-A-1,1,DRUCK-HÖCHST,2026-12-05T10:00:00Z\r\nWL-A-1,2,PRESSÃO-ALTA,2026-12-05T11:00:00Z\r\n';
     const file = iconv.encode(text, 'windows-1252').toString('base64');
     const dry = await mgr.post('/api/alarms/import').send({ file, mode: 'dry_run' });
     expect(dry.status).toBe(200);
@@ -348,7 +435,11 @@ describe('daily digest', () => {
     expect(t.mailer.sent).toHaveLength(0);
 
     const first = await at('2026-12-15T13:05:00.000Z');
-    expect(first.find((r) => r.branchId === f.a.id)).toMatchObject({ status: 'sent', recipients: [f.inA.manager.email], runKey: `digest:${f.a.id}:2026-12-15` });
+    expect(first.find((r) => r.branchId === f.a.id)).toMatchObject({
+      status: 'sent',
+      recipients: [f.inA.manager.email],
+      runKey: `digest:${f.a.id}:2026-12-15`,
+    });
     expect(t.mailer.sent).toHaveLength(1);
     expect(t.mailer.sent[0]!.to).toBe(f.inA.manager.email);
     expect(t.mailer.sent[0]!.text).toContain(unitA.unit.tag);
@@ -359,7 +450,10 @@ describe('daily digest', () => {
     expect(again.find((r) => r.branchId === f.a.id)?.status).toBe('already_ran');
     await at('2026-12-16T03:00:00.000Z'); // 21:00 on the 15th in Chicago
     expect(t.mailer.sent).toHaveLength(1);
-    const rows = await t.ctx.db.select().from(jobRuns).where(eq(jobRuns.runKey, `digest:${f.a.id}:2026-12-15`));
+    const rows = await t.ctx.db
+      .select()
+      .from(jobRuns)
+      .where(eq(jobRuns.runKey, `digest:${f.a.id}:2026-12-15`));
     expect(rows).toHaveLength(1);
 
     await at('2026-12-16T13:05:00.000Z');
@@ -373,7 +467,12 @@ describe('daily digest', () => {
     t.ctx.mailer = { send: async () => Promise.reject(new Error('smtp down')) };
     nowIso = '2026-12-17T13:05:00.000Z';
     await expect(runDigest(t.ctx)).rejects.toThrow('smtp down');
-    expect(await t.ctx.db.select().from(jobRuns).where(eq(jobRuns.runKey, `digest:${f.a.id}:2026-12-17`))).toHaveLength(0);
+    expect(
+      await t.ctx.db
+        .select()
+        .from(jobRuns)
+        .where(eq(jobRuns.runKey, `digest:${f.a.id}:2026-12-17`)),
+    ).toHaveLength(0);
     t.ctx.mailer = original;
     const sentBefore = t.mailer.sent.length;
     await runDigest(t.ctx);

@@ -42,7 +42,10 @@ async function onSiteVisit(p: Place, workOrder: Partial<typeof workOrders.$infer
     startAt: '2026-12-15T14:00:00Z',
     workOrder: { state: 'on_site', ...workOrder },
   });
-  await t.ctx.db.update(visits).set({ enRouteAt: new Date('2026-12-15T13:40:00Z'), onSiteAt: new Date('2026-12-15T14:05:00Z') }).where(eq(visits.id, b.visit.id));
+  await t.ctx.db
+    .update(visits)
+    .set({ enRouteAt: new Date('2026-12-15T13:40:00Z'), onSiteAt: new Date('2026-12-15T14:05:00Z') })
+    .where(eq(visits.id, b.visit.id));
   return b;
 }
 
@@ -50,21 +53,38 @@ async function onSiteVisit(p: Place, workOrder: Partial<typeof workOrders.$infer
 async function leakCase(p: Place, repairDueDate = '2026-12-20') {
   const [c] = await t.ctx.db
     .insert(leakCases)
-    .values({ branchId: f.a.id, unitId: p.unit.id, openedOn: '2026-11-20', rule: '40 CFR 84.106', method: 'annualizing', thresholdPercent: 10, leakRatePercent: 36.5, repairDueDate })
+    .values({
+      branchId: f.a.id,
+      unitId: p.unit.id,
+      openedOn: '2026-11-20',
+      rule: '40 CFR 84.106',
+      method: 'annualizing',
+      thresholdPercent: 10,
+      leakRatePercent: 36.5,
+      repairDueDate,
+    })
     .returning();
   return c!;
 }
 
 const closeNeedingReturn = (visitId: string, returnNeeds: string[], returnNotes?: string) =>
-  tech.post(`/api/visits/${visitId}/close`).send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds, ...(returnNotes ? { returnNotes } : {}) });
+  tech
+    .post(`/api/visits/${visitId}/close`)
+    .send({ signature: NOT_AVAILABLE, outcome: 'needs_return', returnNeeds, ...(returnNotes ? { returnNotes } : {}) });
 
 /** The unit's return visits that are still open. */
 const openReturns = (p: Place) =>
   t.ctx.db
     .select()
     .from(workOrders)
-    .where(and(eq(workOrders.unitId, p.unit.id), eq(workOrders.kind, 'return_visit'), notInArray(workOrders.state, ['closed', 'cancelled'])));
-const returnsOf = (p: Place) => t.ctx.db.select().from(workOrders).where(and(eq(workOrders.unitId, p.unit.id), eq(workOrders.kind, 'return_visit')));
+    .where(
+      and(eq(workOrders.unitId, p.unit.id), eq(workOrders.kind, 'return_visit'), notInArray(workOrders.state, ['closed', 'cancelled'])),
+    );
+const returnsOf = (p: Place) =>
+  t.ctx.db
+    .select()
+    .from(workOrders)
+    .where(and(eq(workOrders.unitId, p.unit.id), eq(workOrders.kind, 'return_visit')));
 const caseRow = async (id: string) => (await t.ctx.db.select().from(leakCases).where(eq(leakCases.id, id)))[0]!;
 
 /** The end of 2026-12-20 in Chicago (CST, UTC−6): the repair deadline as a latest booking. */
@@ -79,7 +99,9 @@ describe('a leak repair and a close-out share one return visit', () => {
     const ret = closed.body.returnWorkOrder;
     expect(ret).toMatchObject({ state: 'unplaced', joined: false });
     // The office queued it for a later date than the repair will need.
-    expect((await mgr.patch(`/api/watchlist/return-visits/${ret.id}`).send({ priority: 'normal', latestDate: '2026-12-30' })).status).toBe(200);
+    expect((await mgr.patch(`/api/watchlist/return-visits/${ret.id}`).send({ priority: 'normal', latestDate: '2026-12-30' })).status).toBe(
+      200,
+    );
 
     const c = await leakCase(p, '2026-12-20');
     const res = await mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({ priority: 'high', notes: 'Bring nitrogen' });
@@ -107,9 +129,14 @@ describe('a leak repair and a close-out share one return visit', () => {
     const q = await newUnit();
     const v2 = await onSiteVisit(q);
     const r2 = (await closeNeedingReturn(v2.visit.id, ['parts'])).body.returnWorkOrder;
-    expect((await mgr.patch(`/api/watchlist/return-visits/${r2.id}`).send({ priority: 'high', latestDate: '2026-12-17' })).status).toBe(200);
+    expect((await mgr.patch(`/api/watchlist/return-visits/${r2.id}`).send({ priority: 'high', latestDate: '2026-12-17' })).status).toBe(
+      200,
+    );
     const c2 = await leakCase(q, '2026-12-20');
-    expect((await mgr.post(`/api/leak-cases/${c2.id}/repair-visit`).send({ priority: 'low' })).body).toMatchObject({ workOrderId: r2.id, joined: true });
+    expect((await mgr.post(`/api/leak-cases/${c2.id}/repair-visit`).send({ priority: 'low' })).body).toMatchObject({
+      workOrderId: r2.id,
+      joined: true,
+    });
     const [kept] = await openReturns(q);
     expect(kept!.latestAt!.toISOString()).toBe('2026-12-18T05:59:00.000Z');
     expect(kept!.priority).toBe('high');
@@ -132,15 +159,28 @@ describe('a leak repair and a close-out share one return visit', () => {
     // Booked (as the Roster books: a booking and its visit): the 409 names the visit, where the screen's "Open" link goes.
     const [bk] = await t.ctx.db
       .insert(bookings)
-      .values({ branchId: f.a.id, workOrderId: woId, techId: f.inA.technician.id, startAt: new Date('2026-12-16T15:00:00Z'), endAt: new Date('2026-12-16T18:00:00Z') })
+      .values({
+        branchId: f.a.id,
+        workOrderId: woId,
+        techId: f.inA.technician.id,
+        startAt: new Date('2026-12-16T15:00:00Z'),
+        endAt: new Date('2026-12-16T18:00:00Z'),
+      })
       .returning();
-    const [v] = await t.ctx.db.insert(visits).values({ branchId: f.a.id, workOrderId: woId, bookingId: bk!.id, techId: f.inA.technician.id }).returning();
+    const [v] = await t.ctx.db
+      .insert(visits)
+      .values({ branchId: f.a.id, workOrderId: woId, bookingId: bk!.id, techId: f.inA.technician.id })
+      .returning();
     await t.ctx.db.update(workOrders).set({ state: 'booked' }).where(eq(workOrders.id, woId));
     const booked = await mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({});
     expect(booked.status).toBe(409);
     expect(booked.body.error.details).toMatchObject({ workOrderId: woId, state: 'booked', visitId: v!.id });
     const listed = await mgr.get('/api/leak-cases');
-    expect(listed.body.leakCases.find((x: { id: string }) => x.id === c.id).repairWorkOrder).toMatchObject({ id: woId, state: 'booked', visitId: v!.id });
+    expect(listed.body.leakCases.find((x: { id: string }) => x.id === c.id).repairWorkOrder).toMatchObject({
+      id: woId,
+      state: 'booked',
+      visitId: v!.id,
+    });
 
     // Unbooked and cancelled: the case needs a repair visit again, and gets a new one.
     expect((await disp.delete(`/api/bookings/${bk!.id}`)).status).toBe(204);
@@ -161,13 +201,22 @@ describe('a leak repair and a close-out share one return visit', () => {
     expect(res.body.returnWorkOrder).toMatchObject({ state: 'unplaced', joined: false });
     const retId = res.body.returnWorkOrder.id;
     const [ret] = await returnsOf(p);
-    expect(ret).toMatchObject({ id: retId, originWorkOrderId: workOrder.id, leakCaseId: c.id, requiredCertification: 'II', returnNeeds: ['leak_search'] });
+    expect(ret).toMatchObject({
+      id: retId,
+      originWorkOrderId: workOrder.id,
+      leakCaseId: c.id,
+      requiredCertification: 'II',
+      returnNeeds: ['leak_search'],
+    });
     expect(ret!.latestAt!.toISOString()).toBe(DUE_1220);
     expect((await caseRow(c.id)).repairWorkOrderId).toBe(retId);
 
     // The Watchlist shows it as the case's repair visit, and booking the repair again is refused naming it.
     const listed = await mgr.get('/api/leak-cases');
-    expect(listed.body.leakCases.find((x: { id: string }) => x.id === c.id).repairWorkOrder).toMatchObject({ id: retId, state: 'unplaced' });
+    expect(listed.body.leakCases.find((x: { id: string }) => x.id === c.id).repairWorkOrder).toMatchObject({
+      id: retId,
+      state: 'unplaced',
+    });
     const again = await mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({});
     expect(again.status).toBe(409);
     expect(again.body.error).toMatchObject({ code: 'open_return_exists', details: { workOrderId: retId } });
@@ -184,7 +233,13 @@ describe('a leak repair and a close-out share one return visit', () => {
     expect(res.body.returnWorkOrder).toMatchObject({ id: r1.id, joined: true });
     const all = await returnsOf(p);
     expect(all).toHaveLength(1);
-    expect(all[0]).toMatchObject({ originWorkOrderId: first.workOrder.id, returnNeeds: ['parts', 'second_tech'], priority: 'high', estimatedMinutes: 120, requiredSkill: 'rooftop' });
+    expect(all[0]).toMatchObject({
+      originWorkOrderId: first.workOrder.id,
+      returnNeeds: ['parts', 'second_tech'],
+      priority: 'high',
+      estimatedMinutes: 120,
+      requiredSkill: 'rooftop',
+    });
     expect(all[0]!.complaint).toContain(`From WO-${second.workOrder.number}: Two techs for the compressor swap`);
     // Both work orders closed as needing the return.
     for (const id of [first.workOrder.id, second.workOrder.id]) {
@@ -199,11 +254,20 @@ describe('a leak repair and a close-out share one return visit', () => {
     const r = (await closeNeedingReturn(v.visit.id, ['parts'])).body.returnWorkOrder;
     const res = await disp
       .post('/api/work-orders')
-      .send({ siteId: p.site.id, unitId: p.unit.id, kind: 'return_visit', originWorkOrderId: v.workOrder.id, complaint: 'Back with the part' });
+      .send({
+        siteId: p.site.id,
+        unitId: p.unit.id,
+        kind: 'return_visit',
+        originWorkOrderId: v.workOrder.id,
+        complaint: 'Back with the part',
+      });
     expect(res.status).toBe(409);
     expect(res.body.error).toMatchObject({ code: 'open_return_exists', details: { workOrderId: r.id } });
     // Other kinds of work on the unit are not affected.
-    expect((await disp.post('/api/work-orders').send({ siteId: p.site.id, unitId: p.unit.id, kind: 'service_call', complaint: 'Noisy fan' })).status).toBe(201);
+    expect(
+      (await disp.post('/api/work-orders').send({ siteId: p.site.id, unitId: p.unit.id, kind: 'service_call', complaint: 'Noisy fan' }))
+        .status,
+    ).toBe(201);
   });
 });
 
@@ -211,9 +275,22 @@ describe('the database keeps the rule', () => {
   it(`refuses a second open return visit on a unit (${OPEN_RETURN_INDEX}); closed, cancelled and other units' are fine`, async () => {
     const p = await newUnit();
     const q = await newUnit();
-    const origin = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, unitId: p.unit.id, state: 'closed', outcome: 'needs_return' });
+    const origin = await makeWorkOrder(t.ctx.db, {
+      branchId: f.a.id,
+      siteId: p.site.id,
+      unitId: p.unit.id,
+      state: 'closed',
+      outcome: 'needs_return',
+    });
     const ret = (state: 'unplaced' | 'booked' | 'closed' | 'cancelled', unit = p) =>
-      makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: unit.site.id, unitId: unit.unit.id, kind: 'return_visit', originWorkOrderId: origin.id, state });
+      makeWorkOrder(t.ctx.db, {
+        branchId: f.a.id,
+        siteId: unit.site.id,
+        unitId: unit.unit.id,
+        kind: 'return_visit',
+        originWorkOrderId: origin.id,
+        state,
+      });
     await ret('closed');
     await ret('cancelled');
     const open = await ret('unplaced');
@@ -224,7 +301,10 @@ describe('the database keeps the rule', () => {
     await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, kind: 'return_visit', originWorkOrderId: origin.id });
     await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: p.site.id, kind: 'return_visit', originWorkOrderId: origin.id });
     // Re-opening a finished one next to an open one is refused too.
-    const [cancelled] = await t.ctx.db.select().from(workOrders).where(and(eq(workOrders.unitId, p.unit.id), eq(workOrders.state, 'cancelled')));
+    const [cancelled] = await t.ctx.db
+      .select()
+      .from(workOrders)
+      .where(and(eq(workOrders.unitId, p.unit.id), eq(workOrders.state, 'cancelled')));
     await expect(t.ctx.db.update(workOrders).set({ state: 'unplaced' }).where(eq(workOrders.id, cancelled!.id))).rejects.toThrow();
     expect((await openReturns(p)).map((w) => w.id)).toEqual([open.id]);
   });
@@ -234,7 +314,9 @@ describe('races: ten requests at once make one return visit', () => {
   it('ten parallel repair-visit requests for one case: one work order, nine 409 open_return_exists naming it', async () => {
     const p = await newUnit();
     const c = await leakCase(p);
-    const answers = await Promise.all(Array.from({ length: 10 }, () => mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({ priority: 'high' })));
+    const answers = await Promise.all(
+      Array.from({ length: 10 }, () => mgr.post(`/api/leak-cases/${c.id}/repair-visit`).send({ priority: 'high' })),
+    );
     const statuses = answers.map((a) => a.status).sort();
     expect(statuses).toEqual([201, 409, 409, 409, 409, 409, 409, 409, 409, 409]);
     const created = answers.find((a) => a.status === 201)!.body.workOrderId;
@@ -277,7 +359,10 @@ describe('races: ten requests at once make one return visit', () => {
     expect(all[0]!.leakCaseId).toBe(c.id);
     expect((await caseRow(c.id)).repairWorkOrderId).toBe(all[0]!.id);
     // Every visit closed; nothing half-done.
-    const closed = await t.ctx.db.select().from(visits).where(and(eq(visits.outcome, 'needs_return'), eq(visits.branchId, f.a.id)));
+    const closed = await t.ctx.db
+      .select()
+      .from(visits)
+      .where(and(eq(visits.outcome, 'needs_return'), eq(visits.branchId, f.a.id)));
     for (const v of vs) expect(closed.map((x) => x.id)).toContain(v.visit.id);
   });
 
@@ -293,7 +378,8 @@ describe('races: ten requests at once make one return visit', () => {
     for (const a of answers) expect([200, 201, 409]).toContain(a.status);
     const all = await returnsOf(p);
     expect(all).toHaveLength(1);
-    for (const a of answers.filter((x) => x.status === 409)) expect(a.body.error).toMatchObject({ code: 'open_return_exists', details: { workOrderId: all[0]!.id } });
+    for (const a of answers.filter((x) => x.status === 409))
+      expect(a.body.error).toMatchObject({ code: 'open_return_exists', details: { workOrderId: all[0]!.id } });
     expect((await caseRow(c.id)).repairWorkOrderId).toBe(all[0]!.id);
   });
 });

@@ -6,7 +6,14 @@
  * to it, and turns a collision into `409 open_return_exists` with the open work order in `details`.
  */
 import { and, desc, eq, notInArray } from 'drizzle-orm';
-import { priorities, workOrderLabel, type OpenReturnDetails, type Priority, type ReturnNeed, type WorkOrderState } from '@coilpath/contract';
+import {
+  priorities,
+  workOrderLabel,
+  type OpenReturnDetails,
+  type Priority,
+  type ReturnNeed,
+  type WorkOrderState,
+} from '@coilpath/contract';
 import { zonedInstant } from '@coilpath/calc';
 import type { Db, Tx } from '../../db/client';
 import { OPEN_RETURN_INDEX, visits, workOrders } from '../../db/schema';
@@ -80,11 +87,16 @@ export async function openReturnDetails(tx: Tx, wo: Pick<WorkOrderRow, 'id' | 'n
 }
 
 /** `409 open_return_exists` naming the open return visit. */
-export async function openReturnExists(tx: Tx, wo: Pick<WorkOrderRow, 'id' | 'number' | 'state' | 'unitId'>, message?: string): Promise<HttpError> {
+export async function openReturnExists(
+  tx: Tx,
+  wo: Pick<WorkOrderRow, 'id' | 'number' | 'state' | 'unitId'>,
+  message?: string,
+): Promise<HttpError> {
   const state = wo.state.replace('_', ' ');
   return conflict(
     'open_return_exists',
-    message ?? `This unit already has an open return visit, ${workOrderLabel(wo.number)} (${state}); add to it rather than sending a second one.`,
+    message ??
+      `This unit already has an open return visit, ${workOrderLabel(wo.number)} (${state}); add to it rather than sending a second one.`,
     await openReturnDetails(tx, wo),
   );
 }

@@ -12,12 +12,21 @@ export function workOrdersRoutes(ctx: AppContext): Router {
   r.use(requireRole('owner', 'branch_manager', 'dispatcher'));
   r.get(
     '/',
-    endpoint({ query: workOrderListQuerySchema, response: workOrderListSchema }, async ({ user, query }) => ({ workOrders: await listWorkOrders(ctx.db, user, query) })),
+    endpoint({ query: workOrderListQuerySchema, response: workOrderListSchema }, async ({ user, query }) => ({
+      workOrders: await listWorkOrders(ctx.db, user, query),
+    })),
   );
-  r.get('/:id', endpoint({ params: idParams, response: workOrderAnswerSchema }, async ({ user, params }) => ({ workOrder: await getWorkOrder(ctx.db, user, params.id) })));
+  r.get(
+    '/:id',
+    endpoint({ params: idParams, response: workOrderAnswerSchema }, async ({ user, params }) => ({
+      workOrder: await getWorkOrder(ctx.db, user, params.id),
+    })),
+  );
   r.post(
     '/',
-    endpoint({ body: workOrderCreateSchema, status: 201, response: workOrderAnswerSchema }, async ({ user, body }) => ({ workOrder: await createWorkOrder(ctx.db, user, body) })),
+    endpoint({ body: workOrderCreateSchema, status: 201, response: workOrderAnswerSchema }, async ({ user, body }) => ({
+      workOrder: await createWorkOrder(ctx.db, user, body),
+    })),
   );
   r.patch(
     '/:id',

@@ -73,9 +73,16 @@ function toWorkOrder(r: Row): WorkOrder {
     leakCaseId: w.leakCaseId,
     leakRepairDueDate: r.leakRepairDueDate,
     modelAlert: modelAlertRef(w.purpose),
-    booking: r.booking && r.booking.id
-      ? { id: r.booking.id, techId: r.booking.techId, startAt: r.booking.startAt.toISOString(), endAt: r.booking.endAt.toISOString(), version: r.booking.version }
-      : null,
+    booking:
+      r.booking && r.booking.id
+        ? {
+            id: r.booking.id,
+            techId: r.booking.techId,
+            startAt: r.booking.startAt.toISOString(),
+            endAt: r.booking.endAt.toISOString(),
+            version: r.booking.version,
+          }
+        : null,
     createdAt: w.createdAt.toISOString(),
     updatedAt: w.updatedAt.toISOString(),
   };
@@ -115,64 +122,83 @@ const instantOrNull = (v: string | null | undefined) => (v === undefined ? undef
  * naming it (one open return visit per unit; add the need to that one).
  */
 export async function createWorkOrder(db: Db, user: SessionUser, input: z.output<typeof workOrderCreateSchema>): Promise<WorkOrder> {
-  return withOneOpenReturn(db, () => db.transaction(async (tx) => {
-    await actAs(tx, user.id);
-    const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
-    if (!site) throw notFound('site');
-    assertBranch(user, site.branchId, 'site');
-    if (input.unitId) {
-      const [unit] = await tx.select({ siteId: units.siteId, branchId: units.branchId }).from(units).where(eq(units.id, input.unitId)).limit(1);
-      if (!unit) throw notFound('unit');
-      assertBranch(user, unit.branchId, 'unit');
-      if (unit.siteId !== site.id) throw badRequest('The unit is not at this site. Pick a unit of the site.', { fields: [{ path: 'unitId', message: 'Not a unit of this site' }] });
-    }
-    if (input.originWorkOrderId) {
-      const [o] = await tx.select({ branchId: workOrders.branchId, siteId: workOrders.siteId }).from(workOrders).where(eq(workOrders.id, input.originWorkOrderId)).limit(1);
-      if (!o) throw notFound('origin work order');
-      assertBranch(user, o.branchId, 'origin work order');
-      if (o.siteId !== site.id) {
-        throw badRequest('The origin work order is at another site. A return visit or callback goes back to the same site.', {
-          fields: [{ path: 'originWorkOrderId', message: 'Not a work order of this site' }],
-        });
+  return withOneOpenReturn(db, () =>
+    db.transaction(async (tx) => {
+      await actAs(tx, user.id);
+      const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
+      if (!site) throw notFound('site');
+      assertBranch(user, site.branchId, 'site');
+      if (input.unitId) {
+        const [unit] = await tx
+          .select({ siteId: units.siteId, branchId: units.branchId })
+          .from(units)
+          .where(eq(units.id, input.unitId))
+          .limit(1);
+        if (!unit) throw notFound('unit');
+        assertBranch(user, unit.branchId, 'unit');
+        if (unit.siteId !== site.id)
+          throw badRequest('The unit is not at this site. Pick a unit of the site.', {
+            fields: [{ path: 'unitId', message: 'Not a unit of this site' }],
+          });
       }
-    }
-    if (input.leakCaseId) {
-      const [lc] = await tx.select({ branchId: leakCases.branchId }).from(leakCases).where(eq(leakCases.id, input.leakCaseId)).limit(1);
-      if (!lc) throw notFound('leak case');
-      assertBranch(user, lc.branchId, 'leak case');
-    }
-    if (input.kind === 'return_visit' && input.unitId) {
-      const open = await findOpenReturn(tx, input.unitId);
-      if (open) throw await openReturnExists(tx, open);
-    }
-    const [w] = await tx
-      .insert(workOrders)
-      .values({
-        branchId: site.branchId,
-        siteId: site.id,
-        unitId: input.unitId ?? null,
-        kind: input.kind,
-        priority: input.priority,
-        complaint: input.complaint,
-        requestedFrom: instantOrNull(input.requestedFrom) ?? null,
-        requestedTo: instantOrNull(input.requestedTo) ?? null,
-        slaDueAt: instantOrNull(input.slaDueAt) ?? null,
-        latestAt: instantOrNull(input.latestAt) ?? null,
-        requiredSkill: input.requiredSkill ?? null,
-        requiredCertification: input.requiredCertification ?? null,
-        estimatedMinutes: input.estimatedMinutes,
-        originWorkOrderId: input.originWorkOrderId ?? null,
-        leakCaseId: input.leakCaseId ?? null,
-        createdById: user.id,
-      })
-      .returning({ id: workOrders.id });
-    return getWorkOrder(tx, user, w!.id);
-  }));
+      if (input.originWorkOrderId) {
+        const [o] = await tx
+          .select({ branchId: workOrders.branchId, siteId: workOrders.siteId })
+          .from(workOrders)
+          .where(eq(workOrders.id, input.originWorkOrderId))
+          .limit(1);
+        if (!o) throw notFound('origin work order');
+        assertBranch(user, o.branchId, 'origin work order');
+        if (o.siteId !== site.id) {
+          throw badRequest('The origin work order is at another site. A return visit or callback goes back to the same site.', {
+            fields: [{ path: 'originWorkOrderId', message: 'Not a work order of this site' }],
+          });
+        }
+      }
+      if (input.leakCaseId) {
+        const [lc] = await tx.select({ branchId: leakCases.branchId }).from(leakCases).where(eq(leakCases.id, input.leakCaseId)).limit(1);
+        if (!lc) throw notFound('leak case');
+        assertBranch(user, lc.branchId, 'leak case');
+      }
+      if (input.kind === 'return_visit' && input.unitId) {
+        const open = await findOpenReturn(tx, input.unitId);
+        if (open) throw await openReturnExists(tx, open);
+      }
+      const [w] = await tx
+        .insert(workOrders)
+        .values({
+          branchId: site.branchId,
+          siteId: site.id,
+          unitId: input.unitId ?? null,
+          kind: input.kind,
+          priority: input.priority,
+          complaint: input.complaint,
+          requestedFrom: instantOrNull(input.requestedFrom) ?? null,
+          requestedTo: instantOrNull(input.requestedTo) ?? null,
+          slaDueAt: instantOrNull(input.slaDueAt) ?? null,
+          latestAt: instantOrNull(input.latestAt) ?? null,
+          requiredSkill: input.requiredSkill ?? null,
+          requiredCertification: input.requiredCertification ?? null,
+          estimatedMinutes: input.estimatedMinutes,
+          originWorkOrderId: input.originWorkOrderId ?? null,
+          leakCaseId: input.leakCaseId ?? null,
+          createdById: user.id,
+        })
+        .returning({ id: workOrders.id });
+      return getWorkOrder(tx, user, w!.id);
+    }),
+  );
 }
 
 const finished: readonly WorkOrderState[] = ['closed', 'cancelled'];
 
-export async function updateWorkOrder(db: Db, user: SessionUser, id: string, input: z.output<typeof workOrderUpdateSchema>, now: Date): Promise<WorkOrder> {
+export async function updateWorkOrder(
+  db: Db,
+  user: SessionUser,
+  id: string,
+  input: z.output<typeof workOrderUpdateSchema>,
+  now: Date,
+): Promise<WorkOrder> {
   return db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const [w] = await tx.select().from(workOrders).where(eq(workOrders.id, id)).for('update').limit(1);
@@ -186,7 +212,9 @@ export async function updateWorkOrder(db: Db, user: SessionUser, id: string, inp
     const from = input.requestedFrom !== undefined ? input.requestedFrom : iso(w.requestedFrom);
     const to = input.requestedTo !== undefined ? input.requestedTo : iso(w.requestedTo);
     if (from && to && Date.parse(from) >= Date.parse(to)) {
-      throw badRequest('The requested window must end after it starts.', { fields: [{ path: 'requestedTo', message: 'Must be after the start' }] });
+      throw badRequest('The requested window must end after it starts.', {
+        fields: [{ path: 'requestedTo', message: 'Must be after the start' }],
+      });
     }
     await tx
       .update(workOrders)

@@ -57,7 +57,9 @@ describe('POST /api/work-orders', () => {
   });
 
   it('requires a return visit to name its origin, and joins the origin number and the leak-repair deadline', async () => {
-    const missing = await dispatcherA.post('/api/work-orders').send({ siteId: siteA.site.id, kind: 'return_visit', complaint: 'Braze the leak' });
+    const missing = await dispatcherA
+      .post('/api/work-orders')
+      .send({ siteId: siteA.site.id, kind: 'return_visit', complaint: 'Braze the leak' });
     expect(missing.status).toBe(400);
     expect(missing.body.error.details.fields.map((x: { path: string }) => x.path)).toContain('originWorkOrderId');
 
@@ -89,7 +91,9 @@ describe('POST /api/work-orders', () => {
   });
 
   it('refuses a unit of another site and an origin at another site', async () => {
-    const unitElsewhere = await dispatcherA.post('/api/work-orders').send({ siteId: siteA.site.id, unitId: siteA2.unit.id, kind: 'service_call', complaint: 'x' });
+    const unitElsewhere = await dispatcherA
+      .post('/api/work-orders')
+      .send({ siteId: siteA.site.id, unitId: siteA2.unit.id, kind: 'service_call', complaint: 'x' });
     expect(unitElsewhere.status).toBe(400);
     expect(unitElsewhere.body.error.message).toMatch(/not at this site/);
     const other = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: siteA2.site.id });
@@ -119,7 +123,9 @@ describe('GET /api/work-orders', () => {
     expect(ids).toContain(mineUnplaced.id);
     expect(ids).not.toContain(mineBooked.id);
     expect(ids).not.toContain(theirs.id);
-    expect(res.body.workOrders.every((w: { state: string; branchId: string }) => w.state === 'unplaced' && w.branchId === f.a.id)).toBe(true);
+    expect(res.body.workOrders.every((w: { state: string; branchId: string }) => w.state === 'unplaced' && w.branchId === f.a.id)).toBe(
+      true,
+    );
 
     const both = await dispatcherA.get('/api/work-orders').query({ state: 'unplaced,booked' });
     expect(both.body.workOrders.map((w: { id: string }) => w.id)).toEqual(expect.arrayContaining([mineUnplaced.id, mineBooked.id]));

@@ -41,7 +41,17 @@ export interface DataTableProps<T extends RowData> {
  * A dense, sortable table (@tanstack/react-table v9). Headers are buttons announcing their sort state;
  * on a phone the table scrolls sideways inside its card instead of squeezing.
  */
-export function DataTable<T extends RowData>({ columns, data, caption, sorting, onSortingChange, getRowId, rowClassName, empty, footer }: DataTableProps<T>) {
+export function DataTable<T extends RowData>({
+  columns,
+  data,
+  caption,
+  sorting,
+  onSortingChange,
+  getRowId,
+  rowClassName,
+  empty,
+  footer,
+}: DataTableProps<T>) {
   const [localSorting, setLocalSorting] = useState<SortingState>([]);
   const manual = sorting !== undefined;
   const state = manual ? sorting : localSorting;

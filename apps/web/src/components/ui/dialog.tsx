@@ -48,7 +48,12 @@ export function Dialog({
               </h2>
               {description && <div className="mt-1 text-sm text-slate">{description}</div>}
             </div>
-            <button type="button" onClick={onClose} className="-m-2 min-h-11 min-w-11 rounded-md p-2 hover:bg-slate-faint" aria-label="Close">
+            <button
+              type="button"
+              onClick={onClose}
+              className="-m-2 min-h-11 min-w-11 rounded-md p-2 hover:bg-slate-faint"
+              aria-label="Close"
+            >
               <X className="mx-auto size-5" aria-hidden="true" />
             </button>
           </div>

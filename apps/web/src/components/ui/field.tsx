@@ -16,7 +16,11 @@ function FieldShell({ id, label, error, hint, children }: FieldProps & { id: str
         {label}
       </label>
       {children}
-      {hint && !error && <p id={`${id}-hint`} className="text-xs text-slate">{hint}</p>}
+      {hint && !error && (
+        <p id={`${id}-hint`} className="text-xs text-slate">
+          {hint}
+        </p>
+      )}
       {error && (
         <p id={`${id}-error`} className="text-sm text-alarm">
           {error}

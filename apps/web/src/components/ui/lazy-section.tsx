@@ -18,7 +18,9 @@ export function lazySection<P extends object>(title: string, load: () => Promise
       load().then(
         (Section) => ({ default: Section }),
         (e: unknown) => {
-          throw new Error(`This part of the screen did not arrive (${e instanceof Error ? e.message : 'no answer'}). Try again when the connection is back.`);
+          throw new Error(
+            `This part of the screen did not arrive (${e instanceof Error ? e.message : 'no answer'}). Try again when the connection is back.`,
+          );
         },
       ),
     );

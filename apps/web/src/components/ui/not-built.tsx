@@ -7,8 +7,8 @@ export function NotBuiltYet({ title, purpose }: { title: string; purpose: string
     <>
       <PageHeader title={title} subtitle={purpose} />
       <EmptyState title={`${title} is not available yet`}>
-        This screen is part of Coilpath’s plan but has not been built in this version. Nothing here is hidden from you; there is
-        simply nothing to show yet.
+        This screen is part of Coilpath’s plan but has not been built in this version. Nothing here is hidden from you; there is simply
+        nothing to show yet.
       </EmptyState>
     </>
   );

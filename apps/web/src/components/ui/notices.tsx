@@ -44,7 +44,11 @@ function NoticeItem({ n, onDismiss }: { n: Notice; onDismiss(id: number): void }
       onBlur={() => setHeld(false)}
       className={`pointer-events-auto flex min-h-[57px] w-full items-center gap-2 py-1 pl-4 pr-1 text-sm text-white shadow-lg md:min-h-0 md:max-w-md md:rounded-md ${n.tone === 'ok' ? 'bg-ink' : 'bg-alarm'}`}
     >
-      {n.tone === 'ok' ? <CheckCircle2 className="size-4 shrink-0" aria-hidden="true" /> : <AlertTriangle className="size-4 shrink-0" aria-hidden="true" />}
+      {n.tone === 'ok' ? (
+        <CheckCircle2 className="size-4 shrink-0" aria-hidden="true" />
+      ) : (
+        <AlertTriangle className="size-4 shrink-0" aria-hidden="true" />
+      )}
       <span className="flex-1 py-2">{n.text}</span>
       {n.action && (
         <button

@@ -28,7 +28,8 @@ export function OfflineBanner() {
           <p className="flex items-center gap-2 border-b border-watch-base bg-watch-tint px-3 py-2 text-sm text-ink md:px-6">
             <CloudUpload className="size-4 shrink-0" aria-hidden="true" />
             <span>
-              <strong className="font-semibold">{sending ? 'Sending.' : 'Not sent.'}</strong> {waiting[0]!.toUpperCase() + waiting.slice(1)}.
+              <strong className="font-semibold">{sending ? 'Sending.' : 'Not sent.'}</strong> {waiting[0]!.toUpperCase() + waiting.slice(1)}
+              .
             </span>
           </p>
         )

@@ -25,7 +25,9 @@ export function Pager({
   return (
     <nav aria-label="Pages" className="flex flex-wrap items-center justify-between gap-2 text-sm">
       <p className="tabular text-slate" aria-live="polite">
-        {total === 0 ? `No ${noun}` : `${from.toLocaleString('en-US')}–${to.toLocaleString('en-US')} of ${total.toLocaleString('en-US')} ${noun}`}
+        {total === 0
+          ? `No ${noun}`
+          : `${from.toLocaleString('en-US')}–${to.toLocaleString('en-US')} of ${total.toLocaleString('en-US')} ${noun}`}
       </p>
       <div className="flex items-center gap-2">
         {onPageSize && (

@@ -23,7 +23,15 @@ export function EmptyState({ title, children, action }: { title: string; childre
   );
 }
 
-export function ErrorState({ error, onRetry, title = 'This could not be loaded' }: { error: unknown; onRetry?: () => void; title?: string }) {
+export function ErrorState({
+  error,
+  onRetry,
+  title = 'This could not be loaded',
+}: {
+  error: unknown;
+  onRetry?: () => void;
+  title?: string;
+}) {
   return (
     <div role="alert" className="flex flex-col items-start gap-2 rounded-lg border border-alarm/40 bg-alarm-tint p-5">
       <div className="flex items-center gap-2 font-semibold text-alarm">

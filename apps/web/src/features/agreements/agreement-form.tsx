@@ -2,7 +2,13 @@ import { useMemo, useState } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { addDays } from '@coilpath/calc';
-import { agreementInputSchema, buildAgreementRrule, describeAgreementRrule, recurrencePresetLabels, recurrencePresets } from '@coilpath/contract/agreements';
+import {
+  agreementInputSchema,
+  buildAgreementRrule,
+  describeAgreementRrule,
+  recurrencePresetLabels,
+  recurrencePresets,
+} from '@coilpath/contract/agreements';
 import type { AgreementDetail, UnitChoice } from '@coilpath/contract';
 import type { z } from 'zod';
 import { ApiError, errorMessage } from '@/lib/api-client';
@@ -18,10 +24,26 @@ type In = z.input<typeof agreementInputSchema>;
 type Out = z.output<typeof agreementInputSchema>;
 
 const months = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
-const defaultTasks = ['Replace filters', 'Check belts and bearings', 'Clean condenser coil', 'Check refrigerant pressures against the manufacturer’s chart', 'Test safeties and controls'];
+const defaultTasks = [
+  'Replace filters',
+  'Check belts and bearings',
+  'Clean condenser coil',
+  'Check refrigerant pressures against the manufacturer’s chart',
+  'Test safeties and controls',
+];
 
 /** New maintenance agreement: site, covered units, recurrence (built into an RFC 5545 rule), term, SLA, price, tasks. */
-export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { branchId: string | undefined; timeZone: string; onCreated: (a: AgreementDetail) => void; onCancel: () => void }) {
+export function AgreementForm({
+  branchId,
+  timeZone,
+  onCreated,
+  onCancel,
+}: {
+  branchId: string | undefined;
+  timeZone: string;
+  onCreated: (a: AgreementDetail) => void;
+  onCancel: () => void;
+}) {
   const notify = useNotify();
   const units = useUnitChoices(branchId);
   const create = useCreateAgreement();
@@ -59,7 +81,9 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
   const site = sites.find((s) => s.id === siteId);
   const rulePreview = (() => {
     try {
-      return recurrence?.preset ? buildAgreementRrule({ startMonth: 1, dayOfMonth: 15, springMonth: 4, autumnMonth: 10, ...recurrence } as Out['recurrence']) : '';
+      return recurrence?.preset
+        ? buildAgreementRrule({ startMonth: 1, dayOfMonth: 15, springMonth: 4, autumnMonth: 10, ...recurrence } as Out['recurrence'])
+        : '';
     } catch {
       return '';
     }
@@ -89,7 +113,9 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
           disabled={units.isPending}
           {...register('siteId', {
             onChange: (ev: React.ChangeEvent<HTMLSelectElement>) =>
-              setValue('unitIds', sites.find((s) => s.id === ev.target.value)?.units.map((u) => u.id) ?? [], { shouldValidate: formState.isSubmitted }),
+              setValue('unitIds', sites.find((s) => s.id === ev.target.value)?.units.map((u) => u.id) ?? [], {
+                shouldValidate: formState.isSubmitted,
+              }),
           })}
         >
           <option value="">{units.isPending ? 'Loading sites…' : 'Choose a site…'}</option>
@@ -113,7 +139,9 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
                     className="size-4"
                     checked={unitIds.includes(u.id)}
                     onChange={(ev) =>
-                      setValue('unitIds', ev.target.checked ? [...unitIds, u.id] : unitIds.filter((x) => x !== u.id), { shouldValidate: formState.isSubmitted })
+                      setValue('unitIds', ev.target.checked ? [...unitIds, u.id] : unitIds.filter((x) => x !== u.id), {
+                        shouldValidate: formState.isSubmitted,
+                      })
                     }
                   />
                   {u.tag} — {u.make} {u.model}
@@ -128,24 +156,49 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
           <legend className="px-1 text-sm font-medium">Visit recurrence</legend>
           <div className="md:col-span-2">
             <SelectField label="How often" {...register('recurrence.preset')}>
-              {recurrencePresets.map((p) => <option key={p} value={p}>{recurrencePresetLabels[p]}</option>)}
+              {recurrencePresets.map((p) => (
+                <option key={p} value={p}>
+                  {recurrencePresetLabels[p]}
+                </option>
+              ))}
             </SelectField>
           </div>
           {recurrence?.preset === 'spring_autumn' ? (
             <>
               <SelectField label="Spring cooling start-up" {...register('recurrence.springMonth', num)}>
-                {[3, 4, 5, 6].map((m) => <option key={m} value={m}>{months[m - 1]}</option>)}
+                {[3, 4, 5, 6].map((m) => (
+                  <option key={m} value={m}>
+                    {months[m - 1]}
+                  </option>
+                ))}
               </SelectField>
               <SelectField label="Autumn heating check" {...register('recurrence.autumnMonth', num)}>
-                {[9, 10, 11].map((m) => <option key={m} value={m}>{months[m - 1]}</option>)}
+                {[9, 10, 11].map((m) => (
+                  <option key={m} value={m}>
+                    {months[m - 1]}
+                  </option>
+                ))}
               </SelectField>
             </>
           ) : recurrence?.preset !== 'monthly' ? (
             <SelectField label="First visit month" {...register('recurrence.startMonth', num)}>
-              {months.map((m, i) => <option key={m} value={i + 1}>{m}</option>)}
+              {months.map((m, i) => (
+                <option key={m} value={i + 1}>
+                  {m}
+                </option>
+              ))}
             </SelectField>
           ) : null}
-          <TextField label="Day of the month" type="number" min={1} max={28} inputMode="numeric" error={e.recurrence?.dayOfMonth?.message} hint="1–28; weekends and holidays move to the next working day" {...register('recurrence.dayOfMonth', num)} />
+          <TextField
+            label="Day of the month"
+            type="number"
+            min={1}
+            max={28}
+            inputMode="numeric"
+            error={e.recurrence?.dayOfMonth?.message}
+            hint="1–28; weekends and holidays move to the next working day"
+            {...register('recurrence.dayOfMonth', num)}
+          />
           <p className="text-xs text-slate md:col-span-4">
             {rulePreview && (
               <>
@@ -154,14 +207,30 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
             )}
           </p>
           <div className="md:col-span-4">
-            <TextAreaField label="Season notes" hint="e.g. spring: start-up and coil cleaning before cooling season; autumn: heat exchanger and flue check" {...register('seasonNotes')} />
+            <TextAreaField
+              label="Season notes"
+              hint="e.g. spring: start-up and coil cleaning before cooling season; autumn: heat exchanger and flue check"
+              {...register('seasonNotes')}
+            />
           </div>
         </fieldset>
 
         <TextField label="Term starts" type="date" error={e.termStart?.message} {...register('termStart')} />
         <TextField label="Term ends" type="date" error={e.termEnd?.message} {...register('termEnd')} />
-        <TextField label="SLA response (hours)" type="number" inputMode="numeric" error={e.slaHours?.message} {...register('slaHours', num)} />
-        <TextField label="Minutes per visit" type="number" inputMode="numeric" error={e.visitMinutes?.message} {...register('visitMinutes', num)} />
+        <TextField
+          label="SLA response (hours)"
+          type="number"
+          inputMode="numeric"
+          error={e.slaHours?.message}
+          {...register('slaHours', num)}
+        />
+        <TextField
+          label="Minutes per visit"
+          type="number"
+          inputMode="numeric"
+          error={e.visitMinutes?.message}
+          {...register('visitMinutes', num)}
+        />
         <TextField
           label="Price per term (USD)"
           inputMode="decimal"
@@ -179,13 +248,27 @@ export function AgreementForm({ branchId, timeZone, onCreated, onCancel }: { bra
           error={e.tasks?.message ?? (Array.isArray(e.tasks) ? e.tasks.find(Boolean)?.message : undefined)}
           onChange={(ev) => {
             setTasksText(ev.target.value);
-            setValue('tasks', ev.target.value.split('\n').map((s) => s.trim()).filter(Boolean));
+            setValue(
+              'tasks',
+              ev.target.value
+                .split('\n')
+                .map((s) => s.trim())
+                .filter(Boolean),
+            );
           }}
         />
         <div className="flex flex-wrap items-center gap-2 md:col-span-2">
-          <Button type="submit" busy={formState.isSubmitting}>Save agreement</Button>
-          <Button variant="ghost" onClick={onCancel}>Cancel</Button>
-          {e.root && <p role="alert" className="text-sm text-alarm">{e.root.message}</p>}
+          <Button type="submit" busy={formState.isSubmitting}>
+            Save agreement
+          </Button>
+          <Button variant="ghost" onClick={onCancel}>
+            Cancel
+          </Button>
+          {e.root && (
+            <p role="alert" className="text-sm text-alarm">
+              {e.root.message}
+            </p>
+          )}
         </div>
       </form>
     </Card>

@@ -13,7 +13,16 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/states';
 import { useNotify } from '@/components/ui/notices';
 import { TableTools, downloadCsv, useTableFilter } from '@/components/ui/table-tools';
 import { AgreementForm } from './agreement-form';
-import { applyPlan, previewPlan, useAgreement, useAgreements, useApplyPlan, usePatchAgreement, usePmCompletion, useRefreshAgreements } from './api';
+import {
+  applyPlan,
+  previewPlan,
+  useAgreement,
+  useAgreements,
+  useApplyPlan,
+  usePatchAgreement,
+  usePmCompletion,
+  useRefreshAgreements,
+} from './api';
 import { appNow } from '@/lib/now';
 
 const VisitCalendar = lazy(() => import('./visit-calendar'));
@@ -41,7 +50,8 @@ export default function AgreementsPage() {
         title="Agreements"
         subtitle={
           <>
-            Maintenance agreements, their visit plans and PM completion — {branch ? branch.name : 'all branches'}, {formatInZone(appNow(), timeZone, 'EEEE d MMMM yyyy')} ({timeZone}).
+            Maintenance agreements, their visit plans and PM completion — {branch ? branch.name : 'all branches'},{' '}
+            {formatInZone(appNow(), timeZone, 'EEEE d MMMM yyyy')} ({timeZone}).
           </>
         }
         actions={
@@ -65,8 +75,12 @@ export default function AgreementsPage() {
         {selected && <AgreementPanel id={selected} timeZone={timeZone} onClose={() => setSelected(null)} />}
         <section aria-labelledby="agreements-h" className="flex flex-col gap-2">
           <div className="flex flex-wrap items-center justify-between gap-2">
-            <h2 id="agreements-h" className="text-lg font-semibold">Agreements</h2>
-            {list.data && list.data.some((a) => a.status === 'active') && <RegenerateAll agreements={list.data.filter((a) => a.status === 'active')} />}
+            <h2 id="agreements-h" className="text-lg font-semibold">
+              Agreements
+            </h2>
+            {list.data && list.data.some((a) => a.status === 'active') && (
+              <RegenerateAll agreements={list.data.filter((a) => a.status === 'active')} />
+            )}
           </div>
           {list.isPending ? (
             <LoadingState label="Loading agreements…" />
@@ -74,7 +88,8 @@ export default function AgreementsPage() {
             <ErrorState error={list.error} onRetry={() => list.refetch()} />
           ) : list.data.length === 0 ? (
             <EmptyState title="No maintenance agreements yet" action={<Button onClick={() => setCreating(true)}>New agreement</Button>}>
-              An agreement names a site's covered units, how often they are serviced, the term, the response time and the price. Its planned visits then go to the Roster queue.
+              An agreement names a site's covered units, how often they are serviced, the term, the response time and the price. Its planned
+              visits then go to the Roster queue.
             </EmptyState>
           ) : (
             <AgreementsTable rows={list.data} onOpen={setSelected} selected={selected} />
@@ -87,7 +102,10 @@ export default function AgreementsPage() {
 }
 
 function AgreementsTable({ rows, onOpen, selected }: { rows: AgreementRow[]; onOpen: (id: string) => void; selected: string | null }) {
-  const toText = useCallback((a: AgreementRow) => `${a.name} ${a.siteName} ${a.customerName} ${a.status} ${a.units.map((u) => u.tag).join(' ')}`, []);
+  const toText = useCallback(
+    (a: AgreementRow) => `${a.name} ${a.siteName} ${a.customerName} ${a.status} ${a.units.map((u) => u.tag).join(' ')}`,
+    [],
+  );
   const { q, setQ, filtered } = useTableFilter(rows, toText);
   const columns = useMemo<CoilpathColumn<AgreementRow>[]>(
     () => [
@@ -96,20 +114,55 @@ function AgreementsTable({ rows, onOpen, selected }: { rows: AgreementRow[]; onO
         header: 'Agreement',
         accessorFn: (a) => a.name,
         cell: ({ row: { original: a } }) => (
-          <button type="button" className="text-left font-medium text-coolant underline-offset-2 hover:underline" onClick={() => onOpen(a.id)} aria-pressed={selected === a.id}>
+          <button
+            type="button"
+            className="text-left font-medium text-coolant underline-offset-2 hover:underline"
+            onClick={() => onOpen(a.id)}
+            aria-pressed={selected === a.id}
+          >
             {a.name}
             <span className="block text-xs font-normal text-slate">{a.customerName}</span>
           </button>
         ),
       },
       { id: 'site', header: 'Site', accessorFn: (a) => a.siteName },
-      { id: 'units', header: 'Units', accessorFn: (a) => a.units.length, cell: ({ row: { original: a } }) => a.units.map((u) => u.tag).join(', ') },
-      { id: 'rule', header: 'Visits', enableSorting: false, cell: ({ row: { original: a } }) => <span className="text-xs">{describeAgreementRrule(a.rrule)}</span> },
-      { id: 'term', header: 'Term ends', accessorFn: (a) => a.termEnd, cell: ({ row: { original: a } }) => `${recordDate(a.termStart)} → ${recordDate(a.termEnd)}` },
+      {
+        id: 'units',
+        header: 'Units',
+        accessorFn: (a) => a.units.length,
+        cell: ({ row: { original: a } }) => a.units.map((u) => u.tag).join(', '),
+      },
+      {
+        id: 'rule',
+        header: 'Visits',
+        enableSorting: false,
+        cell: ({ row: { original: a } }) => <span className="text-xs">{describeAgreementRrule(a.rrule)}</span>,
+      },
+      {
+        id: 'term',
+        header: 'Term ends',
+        accessorFn: (a) => a.termEnd,
+        cell: ({ row: { original: a } }) => `${recordDate(a.termStart)} → ${recordDate(a.termEnd)}`,
+      },
       { id: 'sla', header: 'SLA', accessorFn: (a) => a.slaHours, cell: ({ row: { original: a } }) => `${a.slaHours} h` },
       { id: 'price', header: 'Price', accessorFn: (a) => a.priceCents, cell: ({ row: { original: a } }) => formatMoney(a.priceCents) },
-      { id: 'next', header: 'Next visit', accessorFn: (a) => a.nextPlannedDate ?? '', cell: ({ row: { original: a } }) => (a.nextPlannedDate ? recordDate(a.nextPlannedDate) : a.plannedCount ? 'None ahead' : 'Not planned') },
-      { id: 'status', header: 'Status', accessorFn: (a) => a.status, cell: ({ row: { original: a } }) => <Badge tone={a.status === 'active' ? 'ok' : 'neutral'}>{a.status === 'active' ? 'Active' : a.status === 'ended' ? 'Ended' : 'Cancelled'}</Badge> },
+      {
+        id: 'next',
+        header: 'Next visit',
+        accessorFn: (a) => a.nextPlannedDate ?? '',
+        cell: ({ row: { original: a } }) =>
+          a.nextPlannedDate ? recordDate(a.nextPlannedDate) : a.plannedCount ? 'None ahead' : 'Not planned',
+      },
+      {
+        id: 'status',
+        header: 'Status',
+        accessorFn: (a) => a.status,
+        cell: ({ row: { original: a } }) => (
+          <Badge tone={a.status === 'active' ? 'ok' : 'neutral'}>
+            {a.status === 'active' ? 'Active' : a.status === 'ended' ? 'Ended' : 'Cancelled'}
+          </Badge>
+        ),
+      },
     ],
     [onOpen, selected],
   );
@@ -135,7 +188,13 @@ function AgreementsTable({ rows, onOpen, selected }: { rows: AgreementRow[]; onO
   return (
     <>
       <TableTools label="agreements" q={q} setQ={setQ} shown={filtered.length} total={rows.length} onExport={exportCsv} />
-      <DataTable caption="Maintenance agreements" columns={columns} data={filtered} getRowId={(a) => a.id} rowClassName={(a) => (a.id === selected ? 'bg-coolant-tint' : '')} />
+      <DataTable
+        caption="Maintenance agreements"
+        columns={columns}
+        data={filtered}
+        getRowId={(a) => a.id}
+        rowClassName={(a) => (a.id === selected ? 'bg-coolant-tint' : '')}
+      />
     </>
   );
 }
@@ -186,18 +245,52 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
       }
     >
       <dl className="grid gap-x-6 gap-y-2 text-sm sm:grid-cols-2 lg:grid-cols-4">
-        <div><dt className="text-slate">Customer</dt><dd>{a.customerName}</dd></div>
-        <div><dt className="text-slate">Covered units</dt><dd>{a.units.map((u) => `${u.tag} (${u.make} ${u.model})`).join(', ')}</dd></div>
-        <div><dt className="text-slate">Visits</dt><dd>{describeAgreementRrule(a.rrule)}</dd></div>
-        <div><dt className="text-slate">Term</dt><dd className="tabular">{recordDate(a.termStart)} → {recordDate(a.termEnd)}</dd></div>
-        <div><dt className="text-slate">SLA response</dt><dd>{a.slaHours} hours</dd></div>
-        <div><dt className="text-slate">Price</dt><dd>{formatMoney(a.priceCents)}</dd></div>
-        <div><dt className="text-slate">Per visit</dt><dd>{a.visitMinutes} minutes</dd></div>
-        <div><dt className="text-slate">Status</dt><dd>{a.status === 'active' ? 'Active' : a.status === 'ended' ? 'Ended' : 'Cancelled'}</dd></div>
+        <div>
+          <dt className="text-slate">Customer</dt>
+          <dd>{a.customerName}</dd>
+        </div>
+        <div>
+          <dt className="text-slate">Covered units</dt>
+          <dd>{a.units.map((u) => `${u.tag} (${u.make} ${u.model})`).join(', ')}</dd>
+        </div>
+        <div>
+          <dt className="text-slate">Visits</dt>
+          <dd>{describeAgreementRrule(a.rrule)}</dd>
+        </div>
+        <div>
+          <dt className="text-slate">Term</dt>
+          <dd className="tabular">
+            {recordDate(a.termStart)} → {recordDate(a.termEnd)}
+          </dd>
+        </div>
+        <div>
+          <dt className="text-slate">SLA response</dt>
+          <dd>{a.slaHours} hours</dd>
+        </div>
+        <div>
+          <dt className="text-slate">Price</dt>
+          <dd>{formatMoney(a.priceCents)}</dd>
+        </div>
+        <div>
+          <dt className="text-slate">Per visit</dt>
+          <dd>{a.visitMinutes} minutes</dd>
+        </div>
+        <div>
+          <dt className="text-slate">Status</dt>
+          <dd>{a.status === 'active' ? 'Active' : a.status === 'ended' ? 'Ended' : 'Cancelled'}</dd>
+        </div>
         {a.tasks.length > 0 && (
-          <div className="sm:col-span-2 lg:col-span-4"><dt className="text-slate">Tasks per visit</dt><dd>{a.tasks.join(' · ')}</dd></div>
+          <div className="sm:col-span-2 lg:col-span-4">
+            <dt className="text-slate">Tasks per visit</dt>
+            <dd>{a.tasks.join(' · ')}</dd>
+          </div>
         )}
-        {a.seasonNotes && <div className="sm:col-span-2 lg:col-span-4"><dt className="text-slate">Season notes</dt><dd>{a.seasonNotes}</dd></div>}
+        {a.seasonNotes && (
+          <div className="sm:col-span-2 lg:col-span-4">
+            <dt className="text-slate">Season notes</dt>
+            <dd>{a.seasonNotes}</dd>
+          </div>
+        )}
       </dl>
 
       <div className="mt-4 flex flex-wrap items-center gap-2 border-t border-slate-line pt-3">
@@ -217,25 +310,34 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
             onClick={() =>
               patch.mutate(
                 { id: a.id, patch: { status: 'ended' } },
-                { onSuccess: () => notify(`“${a.name}” marked ended. Regenerate its plan to cancel visits not yet booked.`), onError: (e) => setError(errorMessage(e)) },
+                {
+                  onSuccess: () => notify(`“${a.name}” marked ended. Regenerate its plan to cancel visits not yet booked.`),
+                  onError: (e) => setError(errorMessage(e)),
+                },
               )
             }
           >
             Mark ended
           </Button>
         )}
-        {error && <p role="alert" className="basis-full text-sm text-alarm">{error}</p>}
+        {error && (
+          <p role="alert" className="basis-full text-sm text-alarm">
+            {error}
+          </p>
+        )}
       </div>
 
       {preview && (
         <div className="mt-3">
           <p className="text-sm" role="status">
-            Preview: {summary(preview.counts)}. Nothing is written until you apply. Visits avoid weekends and branch holidays and are spread so one week is not overloaded.
+            Preview: {summary(preview.counts)}. Nothing is written until you apply. Visits avoid weekends and branch holidays and are spread
+            so one week is not overloaded.
           </p>
           {preview.dropped.length > 0 && (
             <div role="alert" className="mt-2 rounded-md border border-alarm/30 bg-alarm-tint p-3 text-sm">
               <p className="font-semibold">
-                {preview.dropped.length} contracted visit{preview.dropped.length === 1 ? '' : 's'} cannot be placed in the term and will not be planned:
+                {preview.dropped.length} contracted visit{preview.dropped.length === 1 ? '' : 's'} cannot be placed in the term and will not
+                be planned:
               </p>
               <ul className="mt-1 list-disc pl-5">
                 {preview.dropped.map((d) => (
@@ -252,10 +354,18 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
               <caption className="sr-only">Visit plan preview</caption>
               <thead className="sticky top-0 bg-frost text-left text-xs uppercase text-slate">
                 <tr>
-                  <th scope="col" className="px-2 py-1">Planned date</th>
-                  <th scope="col" className="px-2 py-1">Rule date</th>
-                  <th scope="col" className="px-2 py-1">What happens</th>
-                  <th scope="col" className="px-2 py-1">Why moved</th>
+                  <th scope="col" className="px-2 py-1">
+                    Planned date
+                  </th>
+                  <th scope="col" className="px-2 py-1">
+                    Rule date
+                  </th>
+                  <th scope="col" className="px-2 py-1">
+                    What happens
+                  </th>
+                  <th scope="col" className="px-2 py-1">
+                    Why moved
+                  </th>
                 </tr>
               </thead>
               <tbody>
@@ -263,7 +373,9 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
                   <tr key={`${v.ruleDate}-${v.workOrderId ?? 'new'}`} className="border-t border-slate-line/70">
                     <td className="tabular px-2 py-1 whitespace-nowrap">{recordDate(v.plannedDate)}</td>
                     <td className="tabular px-2 py-1 whitespace-nowrap">{recordDate(v.ruleDate)}</td>
-                    <td className="px-2 py-1"><Badge tone={actionTone[v.action]}>{actionLabels[v.action]}</Badge></td>
+                    <td className="px-2 py-1">
+                      <Badge tone={actionTone[v.action]}>{actionLabels[v.action]}</Badge>
+                    </td>
                     <td className="px-2 py-1 text-xs">{v.moved ?? ''}</td>
                   </tr>
                 ))}
@@ -276,11 +388,14 @@ function AgreementPanel({ id, timeZone, onClose }: { id: string; timeZone: strin
       <div className="mt-4">
         <h3 className="mb-2 font-semibold">Planned visits on the calendar</h3>
         {a.visits.length === 0 ? (
-          <p className="text-sm text-slate">No visits planned yet: preview the plan and apply it. The visits then appear here and in the Roster's unplaced queue.</p>
+          <p className="text-sm text-slate">
+            No visits planned yet: preview the plan and apply it. The visits then appear here and in the Roster's unplaced queue.
+          </p>
         ) : (
           <>
             <p className="mb-2 text-sm text-slate">
-              {a.visits.length} planned visit{a.visits.length === 1 ? '' : 's'}; {upcoming.length} ahead, waiting in the Roster queue until booked.
+              {a.visits.length} planned visit{a.visits.length === 1 ? '' : 's'}; {upcoming.length} ahead, waiting in the Roster queue until
+              booked.
             </p>
             <Suspense fallback={<LoadingState label="Loading the calendar…" />}>
               <VisitCalendar visits={a.visits} name={a.name} initialDate={initialDate} today={today} />
@@ -333,7 +448,9 @@ function RegenerateAll({ agreements }: { agreements: AgreementRow[] }) {
             Regenerating {done} of {agreements.length}
           </label>
           <progress id="regen-progress" className="h-3 w-40 accent-copper" max={agreements.length} value={done ?? 0} />
-          <Button variant="ghost" size="sm" onClick={() => (stop.current = true)}>Stop</Button>
+          <Button variant="ghost" size="sm" onClick={() => (stop.current = true)}>
+            Stop
+          </Button>
         </>
       ) : (
         <Button variant="secondary" size="sm" onClick={() => void run()}>
@@ -342,7 +459,9 @@ function RegenerateAll({ agreements }: { agreements: AgreementRow[] }) {
       )}
       {failures.length > 0 && (
         <ul role="alert" className="basis-full text-sm text-alarm">
-          {failures.map((f) => <li key={f}>{f}</li>)}
+          {failures.map((f) => (
+            <li key={f}>{f}</li>
+          ))}
         </ul>
       )}
     </div>
@@ -371,16 +490,28 @@ function PmCompletionSection({ branchId, onOpen }: { branchId: string | undefine
         ),
       },
       { id: 'due', header: 'Due', accessorFn: (r) => r.due },
-      { id: 'onTime', header: 'On time', accessorFn: (r) => r.onTime, cell: ({ row: { original: r } }) => `${r.onTime} (${pct(r.onTime, r.due)})` },
+      {
+        id: 'onTime',
+        header: 'On time',
+        accessorFn: (r) => r.onTime,
+        cell: ({ row: { original: r } }) => `${r.onTime} (${pct(r.onTime, r.due)})`,
+      },
       { id: 'late', header: 'Late', accessorFn: (r) => r.late },
-      { id: 'missed', header: 'Missed', accessorFn: (r) => r.missed, cell: ({ row: { original: r } }) => (r.missed ? <Badge tone="alarm">{r.missed} missed</Badge> : '0') },
+      {
+        id: 'missed',
+        header: 'Missed',
+        accessorFn: (r) => r.missed,
+        cell: ({ row: { original: r } }) => (r.missed ? <Badge tone="alarm">{r.missed} missed</Badge> : '0'),
+      },
       { id: 'open', header: 'Still open', accessorFn: (r) => r.open },
     ],
     [onOpen],
   );
   return (
     <section aria-labelledby="pm-h" className="flex flex-col gap-3">
-      <h2 id="pm-h" className="text-lg font-semibold">PM completion</h2>
+      <h2 id="pm-h" className="text-lg font-semibold">
+        PM completion
+      </h2>
       {q.isPending ? (
         <LoadingState label="Counting planned visits…" />
       ) : q.isError ? (
@@ -388,7 +519,8 @@ function PmCompletionSection({ branchId, onOpen }: { branchId: string | undefine
       ) : (
         <>
           <p className="text-sm text-slate">
-            Planned visits due since {recordDate(q.data.from)}. On time: closed within {PM_GRACE_DAYS} days of the planned date; late: closed after that; missed: still not done {PM_GRACE_DAYS} days after it.
+            Planned visits due since {recordDate(q.data.from)}. On time: closed within {PM_GRACE_DAYS} days of the planned date; late:
+            closed after that; missed: still not done {PM_GRACE_DAYS} days after it.
           </p>
           <div className="grid gap-3 sm:grid-cols-2 lg:grid-cols-3">
             {q.data.branches.map((b) => (
@@ -396,7 +528,8 @@ function PmCompletionSection({ branchId, onOpen }: { branchId: string | undefine
                 <p className="tabular text-3xl font-semibold">{pct(b.onTime, b.due)}</p>
                 <p className="text-sm text-slate">done on time, of {b.due} due</p>
                 <p className="tabular mt-2 text-sm">
-                  {b.onTime} on time · {b.late} late · <span className={b.missed ? 'font-semibold text-alarm' : ''}>{b.missed} missed</span> · {b.open} still open
+                  {b.onTime} on time · {b.late} late · <span className={b.missed ? 'font-semibold text-alarm' : ''}>{b.missed} missed</span>{' '}
+                  · {b.open} still open
                 </p>
               </Card>
             ))}
@@ -431,7 +564,15 @@ function PmCompletionSection({ branchId, onOpen }: { branchId: string | undefine
                 onExport={() =>
                   downloadCsv(
                     'pm-completion',
-                    filtered.map((r) => ({ agreement: r.name, site: r.siteName, due: r.due, on_time: r.onTime, late: r.late, missed: r.missed, open: r.open })),
+                    filtered.map((r) => ({
+                      agreement: r.name,
+                      site: r.siteName,
+                      due: r.due,
+                      on_time: r.onTime,
+                      late: r.late,
+                      missed: r.missed,
+                      open: r.open,
+                    })),
                   )
                 }
               />

@@ -1,9 +1,20 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { AgreementDetail, AgreementInput, AgreementPatch, AgreementRow, PlanApplyResult, PlanPreview, PmCompletionResponse } from '@coilpath/contract';
+import type {
+  AgreementDetail,
+  AgreementInput,
+  AgreementPatch,
+  AgreementRow,
+  PlanApplyResult,
+  PlanPreview,
+  PmCompletionResponse,
+} from '@coilpath/contract';
 import { api } from '@/lib/api-client';
 
 export function useAgreements(branchId: string | undefined) {
-  return useQuery({ queryKey: ['agreements', branchId ?? 'all', 'list'], queryFn: () => api.get<{ agreements: AgreementRow[] }>('/api/agreements', { branchId }).then((r) => r.agreements) });
+  return useQuery({
+    queryKey: ['agreements', branchId ?? 'all', 'list'],
+    queryFn: () => api.get<{ agreements: AgreementRow[] }>('/api/agreements', { branchId }).then((r) => r.agreements),
+  });
 }
 export function useAgreement(id: string | null) {
   return useQuery({
@@ -13,7 +24,10 @@ export function useAgreement(id: string | null) {
   });
 }
 export function usePmCompletion(branchId: string | undefined) {
-  return useQuery({ queryKey: ['agreements', branchId ?? 'all', 'pm-completion'], queryFn: () => api.get<PmCompletionResponse>('/api/agreements/pm-completion', { branchId }) });
+  return useQuery({
+    queryKey: ['agreements', branchId ?? 'all', 'pm-completion'],
+    queryFn: () => api.get<PmCompletionResponse>('/api/agreements/pm-completion', { branchId }),
+  });
 }
 
 function useRefresh() {
@@ -26,12 +40,16 @@ function useRefresh() {
 
 export function useCreateAgreement() {
   const refresh = useRefresh();
-  return useMutation({ mutationFn: (body: AgreementInput) => api.post<{ agreement: AgreementDetail }>('/api/agreements', body).then((r) => r.agreement), onSuccess: refresh });
+  return useMutation({
+    mutationFn: (body: AgreementInput) => api.post<{ agreement: AgreementDetail }>('/api/agreements', body).then((r) => r.agreement),
+    onSuccess: refresh,
+  });
 }
 export function usePatchAgreement() {
   const refresh = useRefresh();
   return useMutation({
-    mutationFn: ({ id, patch }: { id: string; patch: AgreementPatch }) => api.patch<{ agreement: AgreementDetail }>(`/api/agreements/${id}`, patch).then((r) => r.agreement),
+    mutationFn: ({ id, patch }: { id: string; patch: AgreementPatch }) =>
+      api.patch<{ agreement: AgreementDetail }>(`/api/agreements/${id}`, patch).then((r) => r.agreement),
     onSuccess: refresh,
   });
 }

@@ -13,7 +13,17 @@ const stateColour: Record<string, string> = {
 };
 
 /** A month calendar of an agreement's planned visits (FullCalendar dayGrid; loaded lazily, it is heavy). */
-export default function VisitCalendar({ visits, name, initialDate, today }: { visits: PlannedVisitRow[]; name: string; initialDate: string; today: string }) {
+export default function VisitCalendar({
+  visits,
+  name,
+  initialDate,
+  today,
+}: {
+  visits: PlannedVisitRow[];
+  name: string;
+  initialDate: string;
+  today: string;
+}) {
   return (
     <div className="coilpath-calendar text-sm" role="group" aria-label={`Planned visits of ${name} on a month calendar`}>
       <FullCalendar

@@ -22,7 +22,10 @@ export default function OwnerSetupPage() {
     enabled: token.length > 0,
     retry: false,
   });
-  const form = useForm<OwnerSetup>({ resolver: zodResolver(ownerSetupSchema), defaultValues: { token, name: '', email: '', password: '', confirm: '' } });
+  const form = useForm<OwnerSetup>({
+    resolver: zodResolver(ownerSetupSchema),
+    defaultValues: { token, name: '', email: '', password: '', confirm: '' },
+  });
   const { onSubmit, error } = useLinkSignIn(form, '/api/setup');
 
   let body;
@@ -33,11 +36,17 @@ export default function OwnerSetupPage() {
     body = (
       <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
         <p className="text-sm text-slate">
-          This Coilpath has no one yet. You become its <strong className="text-ink">owner</strong>: you add branches and invite everyone else.
-          This link works once.
+          This Coilpath has no one yet. You become its <strong className="text-ink">owner</strong>: you add branches and invite everyone
+          else. This link works once.
         </p>
         <TextField label="Your name" autoComplete="name" {...form.register('name')} error={form.formState.errors.name?.message} />
-        <TextField label="E-mail" type="email" autoComplete="username" {...form.register('email')} error={form.formState.errors.email?.message} />
+        <TextField
+          label="E-mail"
+          type="email"
+          autoComplete="username"
+          {...form.register('email')}
+          error={form.formState.errors.email?.message}
+        />
         <NewPasswordFields form={form} />
         {error && <Alert tone="alarm">{error}</Alert>}
         <Button type="submit" size="lg" busy={form.formState.isSubmitting}>

@@ -14,7 +14,11 @@ export function CalendarFeedCard({ feed }: { feed: DayResponse['calendarFeed'] }
   const rotate = useMutation({
     mutationFn: () => api.post<CalendarTokenResult>('/api/calendar/token'),
     onSuccess: () => {
-      notify(feed.active ? 'New calendar link made; the old link no longer works.' : 'Calendar link made. Add it to your phone’s calendar as a subscription.');
+      notify(
+        feed.active
+          ? 'New calendar link made; the old link no longer works.'
+          : 'Calendar link made. Add it to your phone’s calendar as a subscription.',
+      );
       void done();
     },
     onError: (e) => notify(`No calendar link: ${errorMessage(e)}`, 'alarm'),
@@ -43,7 +47,12 @@ export function CalendarFeedCard({ feed }: { feed: DayResponse['calendarFeed'] }
           <p className="text-slate">A private link: anyone with it can read your bookings. Make a new one if it was shared by mistake.</p>
           <label className="flex flex-col gap-1">
             <span className="font-medium">Calendar link (iCalendar)</span>
-            <input readOnly value={feed.url} onFocus={(e) => e.currentTarget.select()} className="min-h-11 rounded-md border border-slate-line bg-frost px-3 font-mono text-xs" />
+            <input
+              readOnly
+              value={feed.url}
+              onFocus={(e) => e.currentTarget.select()}
+              className="min-h-11 rounded-md border border-slate-line bg-frost px-3 font-mono text-xs"
+            />
           </label>
           <div className="flex flex-wrap gap-2">
             <Button variant="secondary" onClick={copy}>
@@ -59,7 +68,9 @@ export function CalendarFeedCard({ feed }: { feed: DayResponse['calendarFeed'] }
         </div>
       ) : (
         <div className="flex flex-col items-start gap-3 text-sm">
-          <p className="text-slate">Subscribe your phone’s calendar to a private link and your bookings show there, updated as the office changes them.</p>
+          <p className="text-slate">
+            Subscribe your phone’s calendar to a private link and your bookings show there, updated as the office changes them.
+          </p>
           <Button variant="secondary" onClick={() => rotate.mutate()} busy={rotate.isPending}>
             <CalendarPlus className="size-4" aria-hidden="true" /> Make my calendar link
           </Button>

@@ -24,7 +24,11 @@ import { CalendarFeedCard } from './calendar-feed';
 
 // Opened online, Route always asks the server again (the office may have changed the day since the phone kept it).
 const dayQuery = (date: string | undefined) =>
-  queryOptions({ queryKey: ['day', date ?? 'today'], queryFn: () => api.get<DayResponse>('/api/day', { date }, { check: 'dayResponseSchema' }), refetchOnMount: 'always' });
+  queryOptions({
+    queryKey: ['day', date ?? 'today'],
+    queryFn: () => api.get<DayResponse>('/api/day', { date }, { check: 'dayResponseSchema' }),
+    refetchOnMount: 'always',
+  });
 
 const orderKey = (date: string) => `coilpath.day-order.${date}`;
 
@@ -107,18 +111,39 @@ function StopCard({
               {stop.site.city ? `, ${stop.site.city}` : ''}
             </p>
             <div className="mt-1 flex flex-wrap items-center gap-1">
-              <Badge tone={statusTone[stop.status]}>{visitStatusLabels[stop.status]}{done && stop.outcome ? `: ${visitOutcomeLabels[stop.outcome]}` : ''}</Badge>
+              <Badge tone={statusTone[stop.status]}>
+                {visitStatusLabels[stop.status]}
+                {done && stop.outcome ? `: ${visitOutcomeLabels[stop.outcome]}` : ''}
+              </Badge>
               <Badge>
                 WO-{wo.number} {workOrderKindLabels[wo.kind]}
               </Badge>
-              {wo.priority !== 'normal' && <Badge tone={wo.priority === 'emergency' ? 'alarm' : wo.priority === 'high' ? 'watch' : 'neutral'}>{priorityLabels[wo.priority]}</Badge>}
+              {wo.priority !== 'normal' && (
+                <Badge tone={wo.priority === 'emergency' ? 'alarm' : wo.priority === 'high' ? 'watch' : 'neutral'}>
+                  {priorityLabels[wo.priority]}
+                </Badge>
+              )}
             </div>
           </div>
           <div className="flex flex-col gap-1">
-            <Button size="sm" variant="ghost" aria-label={`Move ${stop.site.name} earlier`} disabled={index === 0} onClick={() => onMove(-1)} className="min-h-11 min-w-11">
+            <Button
+              size="sm"
+              variant="ghost"
+              aria-label={`Move ${stop.site.name} earlier`}
+              disabled={index === 0}
+              onClick={() => onMove(-1)}
+              className="min-h-11 min-w-11"
+            >
               <ArrowUp className="size-4" aria-hidden="true" />
             </Button>
-            <Button size="sm" variant="ghost" aria-label={`Move ${stop.site.name} later`} disabled={index === count - 1} onClick={() => onMove(1)} className="min-h-11 min-w-11">
+            <Button
+              size="sm"
+              variant="ghost"
+              aria-label={`Move ${stop.site.name} later`}
+              disabled={index === count - 1}
+              onClick={() => onMove(1)}
+              className="min-h-11 min-w-11"
+            >
               <ArrowDown className="size-4" aria-hidden="true" />
             </Button>
           </div>
@@ -164,7 +189,9 @@ function StopCard({
         )}
         <p className="mt-1 text-sm">
           <span className="text-slate">Units: </span>
-          {stop.units.length ? stop.units.map((u) => `${u.tag} (${unitKindLabels[u.kind]}, ${u.make} ${u.model}, ${u.refrigerant})`).join('; ') : 'none on file'}
+          {stop.units.length
+            ? stop.units.map((u) => `${u.tag} (${unitKindLabels[u.kind]}, ${u.make} ${u.model}, ${u.refrigerant})`).join('; ')
+            : 'none on file'}
         </p>
 
         <div className="mt-3 flex flex-wrap gap-2">
@@ -228,7 +255,12 @@ export default function DayPage() {
   const route = useMemo(() => {
     if (!day) return null;
     if (!manualOrder) return day.route;
-    const plan = planRoute({ start: day.route.start, stops: day.stops.map((s) => s.routeStop), dayStart: day.route.dayStart, order: manualOrder });
+    const plan = planRoute({
+      start: day.route.start,
+      stops: day.stops.map((s) => s.routeStop),
+      dayStart: day.route.dayStart,
+      order: manualOrder,
+    });
     let prev = 0;
     return {
       ...day.route,
@@ -282,15 +314,12 @@ export default function DayPage() {
             {viewerZoneDiffers(tz) ? ` · times in ${zoneAbbreviation(d.route.dayStart, tz)}` : ''}
           </>
         }
-        actions={
-          next ? (
-            <StateButton where="day" visit={{ id: next.visitId, status: next.status, canWrite: true }} />
-          ) : undefined
-        }
+        actions={next ? <StateButton where="day" visit={{ id: next.visitId, status: next.status, canWrite: true }} /> : undefined}
       />
       {!online && asOf && (
         <p role="status" className="mb-4 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm">
-          <strong className="font-semibold">Kept on this phone, as of {asOf}.</strong> Changes the office made since then show when the connection is back.
+          <strong className="font-semibold">Kept on this phone, as of {asOf}.</strong> Changes the office made since then show when the
+          connection is back.
         </p>
       )}
       <OutboxPanel />
@@ -336,19 +365,27 @@ export default function DayPage() {
             <Card title="Route">
               <RouteSketch
                 start={d.route.start}
-                stops={ordered.map((s) => ({ id: s.visitId, lat: s.site.lat, lon: s.site.lon, label: s.site.name, done: s.status === 'closed' }))}
+                stops={ordered.map((s) => ({
+                  id: s.visitId,
+                  lat: s.site.lat,
+                  lon: s.site.lon,
+                  label: s.site.name,
+                  done: s.status === 'closed',
+                }))}
               />
               <p className="mt-2 text-sm tabular-nums">
                 <MapPin className="mr-1 inline size-4 text-slate" aria-hidden="true" />
-                From {d.route.start.label}, leaving {formatInZone(d.route.dayStart, tz, 'HH:mm')}: {ordered.length} stop{ordered.length === 1 ? '' : 's'},{' '}
-                {formatMinutes(route!.driveMinutes)} driving, about {route!.totalMiles.toFixed(0)} mi.
+                From {d.route.start.label}, leaving {formatInZone(d.route.dayStart, tz, 'HH:mm')}: {ordered.length} stop
+                {ordered.length === 1 ? '' : 's'}, {formatMinutes(route!.driveMinutes)} driving, about {route!.totalMiles.toFixed(0)} mi.
               </p>
               {route!.lateStops.length > 0 && (
                 <p className="mt-1 text-sm font-medium text-alarm">
                   {route!.lateStops.length} stop{route!.lateStops.length === 1 ? '' : 's'} would be reached after the appointment window.
                 </p>
               )}
-              <p className="mt-1 text-xs text-slate">Drive times are estimates from straight-line distance; the order respects appointment windows.</p>
+              <p className="mt-1 text-xs text-slate">
+                Drive times are estimates from straight-line distance; the order respects appointment windows.
+              </p>
               {manualOrder && (
                 <Button
                   variant="ghost"

@@ -47,7 +47,12 @@ export function RouteSketch({ start, stops }: { start: { lat: number; lon: numbe
   const [sx, sy] = pt(start);
   const description = `Route sketch: from ${start.label}, ${stops.map((s, i) => `${i + 1}. ${s.label}`).join(', ')}.`;
   return (
-    <svg viewBox={`0 0 ${W} ${H}`} role="img" aria-label={description} className="h-auto w-full rounded-md border border-slate-line bg-frost">
+    <svg
+      viewBox={`0 0 ${W} ${H}`}
+      role="img"
+      aria-label={description}
+      className="h-auto w-full rounded-md border border-slate-line bg-frost"
+    >
       <defs>
         <marker id="route-arrow" viewBox="0 0 10 10" refX="9" refY="5" markerWidth="6" markerHeight="6" orient="auto-start-reverse">
           <path d="M0,0 L10,5 L0,10 z" fill="#5B6B7A" />
@@ -57,7 +62,9 @@ export function RouteSketch({ start, stops }: { start: { lat: number; lon: numbe
       {all.slice(1).map((p, i) => {
         const [x1, y1] = pt(all[i]!);
         const [x2, y2] = pt(p);
-        return <line key={`m${i}`} x1={x1} y1={y1} x2={(x1 + x2) / 2} y2={(y1 + y2) / 2} stroke="transparent" markerEnd="url(#route-arrow)" />;
+        return (
+          <line key={`m${i}`} x1={x1} y1={y1} x2={(x1 + x2) / 2} y2={(y1 + y2) / 2} stroke="transparent" markerEnd="url(#route-arrow)" />
+        );
       })}
       <rect x={sx - 8} y={sy - 8} width="16" height="16" rx="2" fill="#17212B" />
       <text x={sx} y={sy - 12} textAnchor="middle" fontSize="11" fill="#17212B">

@@ -15,7 +15,6 @@ import { briefingQuery } from '@/lib/visit-queries';
 import { TargetRangeList } from '@/components/target-range';
 import { targetLines } from '@/lib/target-range';
 
-
 /** A reading's value with its unit symbol (the reading states its units: the branch's system). */
 const m = (n: number | null, kind: MeasureKind, units: ReadingUnits) => (n === null ? '—' : formatMeasure(n, kind, units));
 
@@ -41,7 +40,8 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
           <AlertTriangle className="mt-0.5 size-4 shrink-0 text-alarm" aria-hidden="true" />
           <p>
             <strong className="text-alarm">Open leak case</strong>: leak rate {b.openLeakCase.leakRatePercent.toFixed(1)} % a year over the{' '}
-            {b.openLeakCase.thresholdPercent} % threshold ({b.openLeakCase.rule}); repair due <strong>{recordDate(b.openLeakCase.repairDueDate)}</strong>
+            {b.openLeakCase.thresholdPercent} % threshold ({b.openLeakCase.rule}); repair due{' '}
+            <strong>{recordDate(b.openLeakCase.repairDueDate)}</strong>
             {leakDaysLeft !== null && (leakDaysLeft < 0 ? ` — ${-leakDaysLeft} days overdue` : ` — in ${leakDaysLeft} days`)}
             {b.openLeakCase.chronic ? '; chronic leaker' : ''}.
           </p>
@@ -51,7 +51,8 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
       <div className="flex items-start gap-2">
         <Droplets className="mt-0.5 size-4 shrink-0 text-slate" aria-hidden="true" />
         <p className="tabular-nums">
-          Refrigerant added in {r.year}: <strong>{r.poundsAdded.toFixed(1)} lb</strong> of {r.fullChargeLb} lb full charge ({r.percentOfFullCharge.toFixed(1)} %)
+          Refrigerant added in {r.year}: <strong>{r.poundsAdded.toFixed(1)} lb</strong> of {r.fullChargeLb} lb full charge (
+          {r.percentOfFullCharge.toFixed(1)} %)
           {r.poundsRecovered > 0 ? `; recovered ${r.poundsRecovered.toFixed(1)} lb` : ''}.
         </p>
       </div>
@@ -59,14 +60,10 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
       <div className="flex items-start gap-2">
         <Siren className="mt-0.5 size-4 shrink-0 text-slate" aria-hidden="true" />
         {b.repeatAlarms.length === 0 ? (
-          <p>
-            No repeat alarms in the last {b.repeatAlarmWindow.days} days.
-          </p>
+          <p>No repeat alarms in the last {b.repeatAlarmWindow.days} days.</p>
         ) : (
           <div>
-            <p>
-              Repeat alarms in the last {b.repeatAlarmWindow.days} days:
-            </p>
+            <p>Repeat alarms in the last {b.repeatAlarmWindow.days} days:</p>
             <ul className="flex flex-wrap gap-1">
               {b.repeatAlarms.map((a) => (
                 <li key={`${a.code}-${a.circuit}`}>
@@ -95,8 +92,7 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
               <ul className="list-disc pl-5">
                 {b.lastVisit.findings.map((f) => (
                   <li key={f.id}>
-                    {causeCodeLabels[f.causeCode]} ({causeOriginLabels[f.origin]})
-                    {f.alarmCode ? `, alarm ${f.alarmCode}` : ''}
+                    {causeCodeLabels[f.causeCode]} ({causeOriginLabels[f.origin]}){f.alarmCode ? `, alarm ${f.alarmCode}` : ''}
                     {f.reportedCircuit !== null && f.actualCircuit !== null && f.reportedCircuit !== f.actualCircuit
                       ? ` — reported on circuit ${f.reportedCircuit}, really circuit ${f.actualCircuit}`
                       : ''}
@@ -117,9 +113,15 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
             <caption className="text-left text-slate">Last readings per circuit</caption>
             <thead>
               <tr className="text-xs text-slate">
-                <th scope="col" className="pr-3 font-medium">Circuit</th>
-                <th scope="col" className="pr-3 font-medium">Suction, superheat</th>
-                <th scope="col" className="font-medium">Liquid, subcooling</th>
+                <th scope="col" className="pr-3 font-medium">
+                  Circuit
+                </th>
+                <th scope="col" className="pr-3 font-medium">
+                  Suction, superheat
+                </th>
+                <th scope="col" className="font-medium">
+                  Liquid, subcooling
+                </th>
               </tr>
             </thead>
             <tbody className="[&_td]:pb-1.5 [&_td]:align-top [&_th]:pb-1.5 [&_th]:align-top">
@@ -157,11 +159,20 @@ export function UnitBriefingView({ unitId, timeZone, today }: { unitId: string; 
           <ul className="flex flex-col gap-1">
             {b.circuits.map((c) => {
               const last = b.lastReadings.find((x) => x.circuitId === c.id);
-              const lines = targetLines(c.targets, b.units.temperature, { superheat: last?.superheat ?? null, subcooling: last?.subcooling ?? null }, b.units);
+              const lines = targetLines(
+                c.targets,
+                b.units.temperature,
+                { superheat: last?.superheat ?? null, subcooling: last?.subcooling ?? null },
+                b.units,
+              );
               if (lines.length === 0) return null;
               return (
                 <li key={c.id}>
-                  <span className="text-xs text-slate">Circuit {c.number}{last ? ', last readings' : ''}{c.targets.source ? ` — from ${c.targets.source}` : ''}</span>
+                  <span className="text-xs text-slate">
+                    Circuit {c.number}
+                    {last ? ', last readings' : ''}
+                    {c.targets.source ? ` — from ${c.targets.source}` : ''}
+                  </span>
                   <TargetRangeList lines={lines} label={`Target ranges, circuit ${c.number}`} />
                 </li>
               );

@@ -19,8 +19,27 @@ export function MonthTrendChart({ months }: { months: FixQualityGroup[] }) {
           <YAxis domain={[0, 1]} tickFormatter={axisPct} tick={{ fontSize: 12 }} width={48} />
           <Tooltip formatter={(v) => pct(v as number)} />
           <Legend />
-          <Line isAnimationActive={false} type="monotone" dataKey="ftf" name="First-time fix" stroke="#2E7D4F" strokeWidth={2} dot={{ r: 3 }} connectNulls />
-          <Line isAnimationActive={false} type="monotone" dataKey="callbacks" name="Callback rate" stroke="#B3261E" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3, strokeDasharray: '' }} connectNulls />
+          <Line
+            isAnimationActive={false}
+            type="monotone"
+            dataKey="ftf"
+            name="First-time fix"
+            stroke="#2E7D4F"
+            strokeWidth={2}
+            dot={{ r: 3 }}
+            connectNulls
+          />
+          <Line
+            isAnimationActive={false}
+            type="monotone"
+            dataKey="callbacks"
+            name="Callback rate"
+            stroke="#B3261E"
+            strokeWidth={2}
+            strokeDasharray="6 3"
+            dot={{ r: 3, strokeDasharray: '' }}
+            connectNulls
+          />
         </LineChart>
       </ResponsiveContainer>
     </figure>
@@ -32,7 +51,11 @@ export function GroupRateChart({ groups, title, limit = 10 }: { groups: FixQuali
   const data = groups
     .filter((g) => g.eligible > 0)
     .slice(0, limit)
-    .map((g) => ({ label: g.label.length > 26 ? `${g.label.slice(0, 25)}…` : g.label, ftf: g.firstTimeFixRate, callbacks: g.callbackRate }));
+    .map((g) => ({
+      label: g.label.length > 26 ? `${g.label.slice(0, 25)}…` : g.label,
+      ftf: g.firstTimeFixRate,
+      callbacks: g.callbackRate,
+    }));
   if (data.length === 0) return null;
   return (
     <figure aria-label={title} className="w-full" style={{ height: 48 + data.length * 44 }}>

@@ -27,7 +27,11 @@ const claimTone = { to_claim: 'watch', claimed: 'info', paid: 'ok', denied: 'ala
 
 const mcol = createColumnHelper<CoilpathFeatures, FactoryDefectModel>();
 const modelColumns = [
-  mcol.accessor((m) => `${m.make} ${m.model}`, { id: 'model', header: 'Make and model', cell: (c) => <span className="font-medium">{c.getValue()}</span> }),
+  mcol.accessor((m) => `${m.make} ${m.model}`, {
+    id: 'model',
+    header: 'Make and model',
+    cell: (c) => <span className="font-medium">{c.getValue()}</span>,
+  }),
   mcol.accessor('cases', {
     header: 'Cases',
     cell: (c) =>
@@ -55,7 +59,9 @@ function ClaimEditor({ c, queryKey }: { c: FactoryDefectCase; queryKey: readonly
   const m = useMutation({
     mutationFn: (body: WarrantyClaimUpdate) => updateClaim(c.workOrderId, body),
     onSuccess: (claim) => {
-      notify(`Warranty claim for WO-${c.number} is now “${claimStatusLabels[claim.status]}”${claim.amountCents !== null ? ` at ${formatMoney(claim.amountCents, c.currency)}` : ''}.`);
+      notify(
+        `Warranty claim for WO-${c.number} is now “${claimStatusLabels[claim.status]}”${claim.amountCents !== null ? ` at ${formatMoney(claim.amountCents, c.currency)}` : ''}.`,
+      );
       void qc.invalidateQueries({ queryKey });
     },
     onError: (e) => notify(`The claim was not saved: ${errorMessage(e)}`, 'alarm'),
@@ -63,10 +69,18 @@ function ClaimEditor({ c, queryKey }: { c: FactoryDefectCase; queryKey: readonly
   const err = form.formState.errors;
   const id = c.workOrderId.slice(0, 8);
   return (
-    <form className="flex flex-wrap items-end gap-2" onSubmit={form.handleSubmit((v) => m.mutate(v))} aria-label={`Warranty claim for WO-${c.number}`}>
+    <form
+      className="flex flex-wrap items-end gap-2"
+      onSubmit={form.handleSubmit((v) => m.mutate(v))}
+      aria-label={`Warranty claim for WO-${c.number}`}
+    >
       <label className="flex flex-col text-xs text-slate" htmlFor={`st-${id}`}>
         Status
-        <select id={`st-${id}`} className="min-h-9 rounded-md border border-slate-line bg-white px-2 text-sm text-ink" {...form.register('status')}>
+        <select
+          id={`st-${id}`}
+          className="min-h-9 rounded-md border border-slate-line bg-white px-2 text-sm text-ink"
+          {...form.register('status')}
+        >
           {warrantyClaimStatuses.map((s) => (
             <option key={s} value={s}>
               {claimStatusLabels[s]}
@@ -82,17 +96,25 @@ function ClaimEditor({ c, queryKey }: { c: FactoryDefectCase; queryKey: readonly
           className="min-h-9 w-24 rounded-md border border-slate-line bg-white px-2 text-sm text-ink aria-[invalid=true]:border-alarm"
           aria-invalid={err.amountCents ? true : undefined}
           defaultValue={c.claim.amountCents !== null ? (c.claim.amountCents / 100).toFixed(2) : (c.costCents / 100).toFixed(2)}
-          {...form.register('amountCents', { setValueAs: (v: string) => (v === '' || v === null ? null : Math.round(Number(String(v).replace(/[$,\s]/g, '')) * 100)) })}
+          {...form.register('amountCents', {
+            setValueAs: (v: string) => (v === '' || v === null ? null : Math.round(Number(String(v).replace(/[$,\s]/g, '')) * 100)),
+          })}
         />
       </label>
       <label className="flex flex-col text-xs text-slate" htmlFor={`rf-${id}`}>
         Claim reference
-        <input id={`rf-${id}`} className="min-h-9 w-32 rounded-md border border-slate-line bg-white px-2 text-sm text-ink" {...form.register('reference')} />
+        <input
+          id={`rf-${id}`}
+          className="min-h-9 w-32 rounded-md border border-slate-line bg-white px-2 text-sm text-ink"
+          {...form.register('reference')}
+        />
       </label>
       <Button type="submit" size="sm" variant="secondary" busy={m.isPending}>
         Save claim
       </Button>
-      {(err.amountCents || err.reference) && <p className="w-full text-xs text-alarm">{err.amountCents?.message ?? err.reference?.message}</p>}
+      {(err.amountCents || err.reference) && (
+        <p className="w-full text-xs text-alarm">{err.amountCents?.message ?? err.reference?.message}</p>
+      )}
     </form>
   );
 }
@@ -162,14 +184,11 @@ export function FactoryDefectReviewSection({ query, timeZone }: { query: PeriodQ
   ] as CoilpathColumn<FactoryDefectCase>[];
 
   return (
-    <Card
-      title="Factory-defect review"
-      actions={<CsvLink href={csvUrl(query, 'factoryDefects')} label="CSV" />}
-    >
+    <Card title="Factory-defect review" actions={<CsvLink href={csvUrl(query, 'factoryDefects')} label="CSV" />}>
       <p className="mb-3 max-w-prose text-sm text-slate">
-        Service calls (first visits included), callbacks and return visits opened in this period whose finding was a <strong>factory defect</strong>: the labour and refrigerant
-        they cost at each branch’s rates (set on the Team screen) — the manufacturer’s to pay. Record each warranty claim as it moves from
-        to claim to claimed, then paid or denied.
+        Service calls (first visits included), callbacks and return visits opened in this period whose finding was a{' '}
+        <strong>factory defect</strong>: the labour and refrigerant they cost at each branch’s rates (set on the Team screen) — the
+        manufacturer’s to pay. Record each warranty claim as it moves from to claim to claimed, then paid or denied.
       </p>
       {q.isPending ? (
         <LoadingState label="Loading factory-defect cases…" />
@@ -177,16 +196,26 @@ export function FactoryDefectReviewSection({ query, timeZone }: { query: PeriodQ
         <ErrorState error={q.error} onRetry={() => q.refetch()} />
       ) : q.data.cases.length === 0 ? (
         <EmptyState title="No factory defects in this period">
-          When a technician records a finding with the origin “Factory defect” on a service call, callback or return visit, the case appears here with its cost.
+          When a technician records a finding with the origin “Factory defect” on a service call, callback or return visit, the case appears
+          here with its cost.
         </EmptyState>
       ) : (
         <div className="flex flex-col gap-4">
           <DefectCostChart
-            models={q.data.models.map((m) => ({ label: `${m.make} ${m.model}`, labour: m.labourCostCents, refrigerant: m.refrigerantCostCents }))}
+            models={q.data.models.map((m) => ({
+              label: `${m.make} ${m.model}`,
+              labour: m.labourCostCents,
+              refrigerant: m.refrigerantCostCents,
+            }))}
           />
           <DataTable caption="Factory-defect cost by make and model" columns={modelColumns} data={q.data.models} getRowId={(m) => m.key} />
           <h3 className="text-sm font-semibold">Cases ({q.data.cases.length})</h3>
-          <DataTable caption="Factory-defect cases and their warranty claims" columns={caseColumns} data={q.data.cases} getRowId={(c) => c.workOrderId} />
+          <DataTable
+            caption="Factory-defect cases and their warranty claims"
+            columns={caseColumns}
+            data={q.data.cases}
+            getRowId={(c) => c.workOrderId}
+          />
         </div>
       )}
     </Card>

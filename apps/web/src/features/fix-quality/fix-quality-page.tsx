@@ -45,8 +45,7 @@ function Headline({
   format: (v: number | null) => string;
   changeText: (d: number) => string;
 }) {
-  const tone =
-    change === null || Math.abs(change) < 1e-9 ? 'same' : (change > 0) === (better === 'up') ? 'better' : 'worse';
+  const tone = change === null || Math.abs(change) < 1e-9 ? 'same' : change > 0 === (better === 'up') ? 'better' : 'worse';
   const Icon = change === null || tone === 'same' ? Minus : change > 0 ? ArrowUpRight : ArrowDownRight;
   const toneClass = tone === 'better' ? 'text-ok' : tone === 'worse' ? 'text-alarm' : 'text-slate';
   return (
@@ -129,7 +128,8 @@ export default function FixQualityPage() {
   const prev = from <= to ? previousPeriod({ from, to }) : null;
   const query: PeriodQuery = { from, to, branchId };
   const q = useQuery(reportQuery(query));
-  const setPeriod = (f: string, t: string, preset?: ReportPresetKey) => setParams({ from: f, to: t, ...(preset ? { preset } : {}) }, { replace: true });
+  const setPeriod = (f: string, t: string, preset?: ReportPresetKey) =>
+    setParams({ from: f, to: t, ...(preset ? { preset } : {}) }, { replace: true });
   const branchName = branch?.name ?? 'All branches';
 
   return (
@@ -139,7 +139,8 @@ export default function FixQualityPage() {
         subtitle={
           <>
             Where service calls are fixed the first time, where they come back, and why — <strong>{branchName}</strong>, first visits closed{' '}
-            {recordDate(from)} to {recordDate(to)} (UTC dates), compared with {prev ? `${recordDate(prev.from)} to ${recordDate(prev.to)}` : 'the previous period'} (as many days, ending the day before).
+            {recordDate(from)} to {recordDate(to)} (UTC dates), compared with{' '}
+            {prev ? `${recordDate(prev.from)} to ${recordDate(prev.to)}` : 'the previous period'} (as many days, ending the day before).
           </>
         }
         actions={
@@ -204,19 +205,22 @@ export default function FixQualityPage() {
           <Headlines r={q.data} />
           <p className="rounded-md border border-slate-line bg-white p-3 text-sm" role="status">
             {q.data.pending === 0 ? (
-              <>No call of this period is still inside its {q.data.windowDays.join(' or ') || 30}-day callback window: every call is counted.</>
+              <>
+                No call of this period is still inside its {q.data.windowDays.join(' or ') || 30}-day callback window: every call is
+                counted.
+              </>
             ) : (
               <>
                 <strong className="tabular">{q.data.pending}</strong> {q.data.pending === 1 ? 'call is' : 'calls are'} still inside{' '}
-                {q.data.pending === 1 ? 'its' : 'their'} {q.data.windowDays.join(' or ') || 30}-day callback window: a callback may still come,
-                so {q.data.pending === 1 ? 'it is' : 'they are'} left out of the rates until the window closes.
+                {q.data.pending === 1 ? 'its' : 'their'} {q.data.windowDays.join(' or ') || 30}-day callback window: a callback may still
+                come, so {q.data.pending === 1 ? 'it is' : 'they are'} left out of the rates until the window closes.
               </>
             )}
           </p>
           {q.data.eligible === 0 && q.data.pending === 0 && (
             <p className="rounded-md border border-dashed border-slate-line bg-white p-4 text-sm text-slate">
-              No service call had its first visit closed in this period{branchId ? ' in this branch' : ''}. Choose a longer period; the figures
-              fill in as technicians close visits.
+              No service call had its first visit closed in this period{branchId ? ' in this branch' : ''}. Choose a longer period; the
+              figures fill in as technicians close visits.
             </p>
           )}
           <details className="rounded-lg border border-slate-line bg-white p-4 text-sm">
@@ -224,29 +228,28 @@ export default function FixQualityPage() {
             <ul className="mt-2 list-disc space-y-1 pl-5 text-slate">
               <li>Only service calls count, and only when their first visit was not declined by the customer.</li>
               <li>
-                A call counts only once its callback window has run out; until then it is <strong>pending</strong>, shown apart and left out of
-                every rate, so a recent period is not flattered by calls that have not had time to come back.
+                A call counts only once its callback window has run out; until then it is <strong>pending</strong>, shown apart and left out
+                of every rate, so a recent period is not flattered by calls that have not had time to come back.
               </li>
               <li>
                 A call is <strong>fixed the first time</strong> when its first visit closed as resolved and no return visit or callback was
                 opened within the branch’s callback window ({q.data.windowDays.join(' or ') || 30} days) after that visit closed.
               </li>
               <li>
-                The <strong>callback rate</strong> is the calls with a callback opened inside the window, out of the calls resolved on the first
-                visit.
+                The <strong>callback rate</strong> is the calls with a callback opened inside the window, out of the calls resolved on the
+                first visit.
               </li>
               <li>
-                <strong>Days to resolve</strong> run from the call being opened to the close of its last visit, follow-ups included, for calls
-                that ended resolved.
+                <strong>Days to resolve</strong> run from the call being opened to the close of its last visit, follow-ups included, for
+                calls that ended resolved.
               </li>
               <li>
-                A call belongs to the period in which its first visit closed (UTC dates); technician, month, cause and origin are those of that
-                first visit and its first finding.
+                A call belongs to the period in which its first visit closed (UTC dates); technician, month, cause and origin are those of
+                that first visit and its first finding.
               </li>
             </ul>
           </details>
 
-          
           <div className="flex flex-col gap-5">
             <GroupSection
               title="Trend by month"

@@ -65,7 +65,13 @@ export function GroupSection({
       {note && <p className="mb-2 text-sm text-slate">{note}</p>}
       <div className={chart ? 'grid items-start gap-4 xl:grid-cols-[minmax(0,1fr)_minmax(0,2fr)]' : ''}>
         {chart}
-        <DataTable caption={title} columns={groupColumns(first)} data={groups} getRowId={(g) => g.key} empty="No service calls in this period." />
+        <DataTable
+          caption={title}
+          columns={groupColumns(first)}
+          data={groups}
+          getRowId={(g) => g.key}
+          empty="No service calls in this period."
+        />
       </div>
     </Card>
   );

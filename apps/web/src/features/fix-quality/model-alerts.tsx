@@ -40,8 +40,10 @@ function AlertCard({ alert, canCreate, timeZone }: { alert: ModelAlert; canCreat
           </h3>
           <p className="mt-1 text-sm text-slate">
             Factory defect found on {alert.affectedUnits} unit{alert.affectedUnits === 1 ? '' : 's'} at {alert.sites} sites (
-            {alert.findings} finding{alert.findings === 1 ? '' : 's'}, first {formatInZone(alert.firstFoundAt, timeZone, 'd MMM yyyy')}, latest{' '}
-            {formatInZone(alert.lastFoundAt, timeZone, 'd MMM yyyy')}; alert raised {formatInZone(alert.raisedAt, timeZone, 'd MMM yyyy')}). {alert.checkedUnits} of {alert.unitsOfModel} units of this model are checked
+            {alert.findings} finding{alert.findings === 1 ? '' : 's'}, first {formatInZone(alert.firstFoundAt, timeZone, 'd MMM yyyy')},
+            latest {formatInZone(alert.lastFoundAt, timeZone, 'd MMM yyyy')}; alert raised{' '}
+            {formatInZone(alert.raisedAt, timeZone, 'd MMM yyyy')}). {alert.checkedUnits} of {alert.unitsOfModel} units of this model are
+            checked
             {alert.inspectionsOpen > 0 ? `, ${alert.inspectionsOpen} inspection${alert.inspectionsOpen === 1 ? '' : 's'} open` : ''}.
           </p>
         </div>
@@ -53,7 +55,8 @@ function AlertCard({ alert, canCreate, timeZone }: { alert: ModelAlert; canCreat
       </div>
       {n === 0 ? (
         <p className="mt-3 flex items-center gap-2 text-sm">
-          <Badge tone="ok">All checked</Badge> Every other unit of this model{canCreate ? '' : ' in your branch'} has been checked or has an inspection.
+          <Badge tone="ok">All checked</Badge> Every other unit of this model{canCreate ? '' : ' in your branch'} has been checked or has an
+          inspection.
         </p>
       ) : (
         <div className="mt-3 overflow-x-auto">
@@ -63,11 +66,21 @@ function AlertCard({ alert, canCreate, timeZone }: { alert: ModelAlert; canCreat
             </caption>
             <thead className="text-left text-xs uppercase tracking-wide text-slate">
               <tr>
-                <th scope="col" className="px-2 py-1">Unit</th>
-                <th scope="col" className="px-2 py-1">Serial</th>
-                <th scope="col" className="px-2 py-1">Site</th>
-                <th scope="col" className="px-2 py-1">Branch</th>
-                <th scope="col" className="px-2 py-1">Warranty until</th>
+                <th scope="col" className="px-2 py-1">
+                  Unit
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Serial
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Site
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Branch
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Warranty until
+                </th>
               </tr>
             </thead>
             <tbody>
@@ -89,7 +102,9 @@ function AlertCard({ alert, canCreate, timeZone }: { alert: ModelAlert; canCreat
         </div>
       )}
       {alert.inspections.length > 0 && <InspectionTable alert={alert} timeZone={timeZone} />}
-      {!canCreate && n > 0 && <p className="mt-2 text-xs text-slate">The owner creates inspections for a model alert, because it spans every branch.</p>}
+      {!canCreate && n > 0 && (
+        <p className="mt-2 text-xs text-slate">The owner creates inspections for a model alert, because it spans every branch.</p>
+      )}
     </article>
   );
 }
@@ -104,12 +119,24 @@ function InspectionTable({ alert, timeZone }: { alert: ModelAlert; timeZone: str
         </caption>
         <thead className="text-left text-xs uppercase tracking-wide text-slate">
           <tr>
-            <th scope="col" className="px-2 py-1">Work order</th>
-            <th scope="col" className="px-2 py-1">Unit</th>
-            <th scope="col" className="px-2 py-1">Site</th>
-            <th scope="col" className="px-2 py-1">Branch</th>
-            <th scope="col" className="px-2 py-1">State</th>
-            <th scope="col" className="px-2 py-1">Due</th>
+            <th scope="col" className="px-2 py-1">
+              Work order
+            </th>
+            <th scope="col" className="px-2 py-1">
+              Unit
+            </th>
+            <th scope="col" className="px-2 py-1">
+              Site
+            </th>
+            <th scope="col" className="px-2 py-1">
+              Branch
+            </th>
+            <th scope="col" className="px-2 py-1">
+              State
+            </th>
+            <th scope="col" className="px-2 py-1">
+              Due
+            </th>
           </tr>
         </thead>
         <tbody>
@@ -124,7 +151,9 @@ function InspectionTable({ alert, timeZone }: { alert: ModelAlert; timeZone: str
               <td className="px-2 py-1.5">{i.siteName}</td>
               <td className="px-2 py-1.5">{i.branchName}</td>
               <td className="px-2 py-1.5">
-                <Badge tone={i.state === 'closed' ? 'ok' : i.state === 'cancelled' ? 'neutral' : 'watch'}>{workOrderStateLabels[i.state]}</Badge>
+                <Badge tone={i.state === 'closed' ? 'ok' : i.state === 'cancelled' ? 'neutral' : 'watch'}>
+                  {workOrderStateLabels[i.state]}
+                </Badge>
               </td>
               <td className="tabular whitespace-nowrap px-2 py-1.5">{i.dueAt ? formatInZone(i.dueAt, timeZone, 'd MMM yyyy') : '—'}</td>
             </tr>
@@ -140,10 +169,10 @@ export function ModelAlertsSection({ isOwner, query, timeZone }: { isOwner: bool
   return (
     <Card title="Model alerts" actions={<CsvLink href={csvUrl(query, 'modelAlerts')} label="CSV" />}>
       <p className="mb-3 max-w-prose text-sm text-slate">
-        When the same factory-defect cause turns up on one make and model at two or more sites, every other unit of that model is at risk. An
-        alert is raised when the second site’s defect is recorded. From then on a unit counts as checked only by what is done on it for that
-        cause: a finding with that cause, or an inspection created from the alert (a visit for other work does not count). Units the defect
-        was found on count as checked. Alerts look at all history and every branch.
+        When the same factory-defect cause turns up on one make and model at two or more sites, every other unit of that model is at risk.
+        An alert is raised when the second site’s defect is recorded. From then on a unit counts as checked only by what is done on it for
+        that cause: a finding with that cause, or an inspection created from the alert (a visit for other work does not count). Units the
+        defect was found on count as checked. Alerts look at all history and every branch.
       </p>
       {q.isPending ? (
         <LoadingState label="Looking for model alerts…" />

@@ -22,7 +22,10 @@ interface OutboxMessage {
 export default function OutboxPage() {
   const { timeZone } = useBranch();
   const [open, setOpen] = useState<string | null>(null);
-  const q = useQuery({ queryKey: ['outbox'], queryFn: () => api.get<{ messages: OutboxMessage[] }>('/api/outbox').then((r) => r.messages) });
+  const q = useQuery({
+    queryKey: ['outbox'],
+    queryFn: () => api.get<{ messages: OutboxMessage[] }>('/api/outbox').then((r) => r.messages),
+  });
   return (
     <>
       <PageHeader
@@ -65,7 +68,10 @@ export default function OutboxPage() {
                       <section aria-label={`Plain-text part of ${m.subject}`}>
                         <h3 className="mb-1 text-sm font-semibold">Plain text</h3>
                         {/* Focusable so the scrolling text can be read with the keyboard. */}
-                        <pre tabIndex={0} className="max-h-96 overflow-auto whitespace-pre-wrap rounded border border-slate-line bg-frost p-3 font-sans text-sm">
+                        <pre
+                          tabIndex={0}
+                          className="max-h-96 overflow-auto whitespace-pre-wrap rounded border border-slate-line bg-frost p-3 font-sans text-sm"
+                        >
                           {m.text ?? 'This message has no plain-text part.'}
                         </pre>
                       </section>
@@ -73,7 +79,12 @@ export default function OutboxPage() {
                         <h3 className="mb-1 text-sm font-semibold">HTML</h3>
                         {m.html ? (
                           // Shown as sent, in a sandbox: no scripts, no forms, no access to Coilpath's page.
-                          <iframe title={`HTML part of ${m.subject}`} sandbox="" srcDoc={m.html} className="h-96 w-full rounded border border-slate-line bg-white" />
+                          <iframe
+                            title={`HTML part of ${m.subject}`}
+                            sandbox=""
+                            srcDoc={m.html}
+                            className="h-96 w-full rounded border border-slate-line bg-white"
+                          />
                         ) : (
                           <p className="text-sm text-slate">This message has no HTML part.</p>
                         )}

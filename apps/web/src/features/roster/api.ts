@@ -10,7 +10,9 @@ import type {
   Technician,
   TechnicianDayLoad,
   WorkOrder,
-  WorkOrderCreate, EvenOutMove } from '@coilpath/contract';
+  WorkOrderCreate,
+  EvenOutMove,
+} from '@coilpath/contract';
 import { api, ApiError } from '@/lib/api-client';
 
 export const rosterKeys = {
@@ -25,7 +27,8 @@ export const rosterKeys = {
 export function useTechnicians(branchId: string | undefined) {
   return useQuery({
     queryKey: rosterKeys.technicians(branchId ?? ''),
-    queryFn: () => api.get<{ timeZone: string; technicians: Technician[] }>('/api/roster/technicians', { branchId }, { check: 'technicianListSchema' }),
+    queryFn: () =>
+      api.get<{ timeZone: string; technicians: Technician[] }>('/api/roster/technicians', { branchId }, { check: 'technicianListSchema' }),
     enabled: !!branchId,
     staleTime: 60_000,
   });
@@ -34,7 +37,8 @@ export function useTechnicians(branchId: string | undefined) {
 export function useRosterSites(branchId: string | undefined, enabled: boolean) {
   return useQuery({
     queryKey: rosterKeys.sites(branchId ?? ''),
-    queryFn: () => api.get<{ sites: RosterSite[] }>('/api/roster/sites', { branchId }, { check: 'rosterSiteListSchema' }).then((r) => r.sites),
+    queryFn: () =>
+      api.get<{ sites: RosterSite[] }>('/api/roster/sites', { branchId }, { check: 'rosterSiteListSchema' }).then((r) => r.sites),
     enabled: !!branchId && enabled,
     staleTime: 60_000,
   });
@@ -43,7 +47,8 @@ export function useRosterSites(branchId: string | undefined, enabled: boolean) {
 export function useBookings(branchId: string | undefined, from: string, to: string) {
   return useQuery({
     queryKey: rosterKeys.bookings(branchId ?? '', from, to),
-    queryFn: () => api.get<{ bookings: Booking[] }>('/api/bookings', { branchId, from, to }, { check: 'bookingListSchema' }).then((r) => r.bookings),
+    queryFn: () =>
+      api.get<{ bookings: Booking[] }>('/api/bookings', { branchId, from, to }, { check: 'bookingListSchema' }).then((r) => r.bookings),
     enabled: !!branchId && !!from && !!to,
     placeholderData: keepPreviousData,
   });
@@ -52,7 +57,10 @@ export function useBookings(branchId: string | undefined, from: string, to: stri
 export function useLoad(branchId: string | undefined, from: string, to: string) {
   return useQuery({
     queryKey: rosterKeys.load(branchId ?? '', from, to),
-    queryFn: () => api.get<{ timeZone: string; load: TechnicianDayLoad[] }>('/api/roster/load', { branchId, from, to }, { check: 'loadSchema' }).then((r) => r.load),
+    queryFn: () =>
+      api
+        .get<{ timeZone: string; load: TechnicianDayLoad[] }>('/api/roster/load', { branchId, from, to }, { check: 'loadSchema' })
+        .then((r) => r.load),
     enabled: !!branchId && !!from && !!to,
     placeholderData: keepPreviousData,
   });
@@ -61,7 +69,10 @@ export function useLoad(branchId: string | undefined, from: string, to: string) 
 export function useUnplaced(branchId: string | undefined) {
   return useQuery({
     queryKey: rosterKeys.unplaced(branchId ?? ''),
-    queryFn: () => api.get<{ workOrders: WorkOrder[] }>('/api/work-orders', { branchId, state: 'unplaced' }, { check: 'workOrderListSchema' }).then((r) => r.workOrders),
+    queryFn: () =>
+      api
+        .get<{ workOrders: WorkOrder[] }>('/api/work-orders', { branchId, state: 'unplaced' }, { check: 'workOrderListSchema' })
+        .then((r) => r.workOrders),
     enabled: !!branchId,
   });
 }
@@ -70,7 +81,10 @@ export function useUnplaced(branchId: string | undefined) {
 export function useSiteWorkOrders(branchId: string | undefined, siteId: string | undefined) {
   return useQuery({
     queryKey: ['work-orders', { branchId, siteId }],
-    queryFn: () => api.get<{ workOrders: WorkOrder[] }>('/api/work-orders', { branchId, siteId, limit: 50 }, { check: 'workOrderListSchema' }).then((r) => r.workOrders),
+    queryFn: () =>
+      api
+        .get<{ workOrders: WorkOrder[] }>('/api/work-orders', { branchId, siteId, limit: 50 }, { check: 'workOrderListSchema' })
+        .then((r) => r.workOrders),
     enabled: !!branchId && !!siteId,
   });
 }
@@ -91,7 +105,8 @@ export function useCreateBooking() {
 export function useUpdateBooking() {
   const invalidate = useInvalidateRoster();
   return useMutation({
-    mutationFn: ({ id, ...body }: BookingUpdate & { id: string }) => api.patch<{ booking: Booking }>(`/api/bookings/${id}`, body).then((r) => r.booking),
+    mutationFn: ({ id, ...body }: BookingUpdate & { id: string }) =>
+      api.patch<{ booking: Booking }>(`/api/bookings/${id}`, body).then((r) => r.booking),
     onSettled: invalidate,
   });
 }
@@ -127,7 +142,8 @@ export function useEvenOutPreview() {
 export function useEvenOutApply() {
   const invalidate = useInvalidateRoster();
   return useMutation({
-    mutationFn: (body: { proposals: Proposal[]; moves: EvenOutMove[] }) => api.post<{ bookings: Booking[] }>('/api/roster/even-out/apply', body).then((r) => r.bookings),
+    mutationFn: (body: { proposals: Proposal[]; moves: EvenOutMove[] }) =>
+      api.post<{ bookings: Booking[] }>('/api/roster/even-out/apply', body).then((r) => r.bookings),
     onSettled: invalidate,
   });
 }

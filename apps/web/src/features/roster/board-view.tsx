@@ -7,14 +7,41 @@
  * a technician and day; drag a chip to another cell to move it there at the same local time. Every
  * chip opens the booking's details (move, reassign, unbook). Arrow keys move between cells.
  */
-import { useEffect, useEffectEvent, useLayoutEffect, useMemo, useRef, useState, type DragEvent, type KeyboardEvent, type ReactNode } from 'react';
+import {
+  useEffect,
+  useEffectEvent,
+  useLayoutEffect,
+  useMemo,
+  useRef,
+  useState,
+  type DragEvent,
+  type KeyboardEvent,
+  type ReactNode,
+} from 'react';
 import { AlertTriangle, CheckCircle2, ChevronLeft, ChevronRight, Droplet, Lock, Moon, Plus, ShieldAlert, Siren, X } from 'lucide-react';
 import type { Booking, Technician, TechnicianDayLoad, WorkOrder } from '@coilpath/contract';
 import { changedByLabel } from '@coilpath/contract/events';
 import { priorityLabels, workOrderKindLabels, workOrderStateLabels } from '@coilpath/contract/vocabulary';
 import { workOrderLabel } from '@coilpath/contract/work-orders';
 import { Button } from '@/components/ui/button';
-import { addDays, cellKey, DRAG_BOOKING, DRAG_WORK_ORDER, cellLabel, dayLong, dayShort, entryTime, gaugeText, loadState, offDayWord, monthName, tightMinutes, weekdayName, type BoardEntry, type LoadState } from './board';
+import {
+  addDays,
+  cellKey,
+  DRAG_BOOKING,
+  DRAG_WORK_ORDER,
+  cellLabel,
+  dayLong,
+  dayShort,
+  entryTime,
+  gaugeText,
+  loadState,
+  offDayWord,
+  monthName,
+  tightMinutes,
+  weekdayName,
+  type BoardEntry,
+  type LoadState,
+} from './board';
 import { formatMinutes } from '@/lib/format';
 import { useChangedBy } from '@/lib/live-events';
 import { colourOf, leakDeadline, TechSwatch } from './parts';
@@ -187,16 +214,20 @@ function Chip({
           {w.priority === 'emergency' && (
             <span className="inline-flex items-center gap-0.5 rounded bg-alarm px-1 font-semibold text-white">
               <Siren className="size-3" aria-hidden="true" />
-              <Sep />Emergency
+              <Sep />
+              Emergency
             </span>
           )}
           {w.priority === 'high' && (
             <span className="rounded bg-watch-tint px-1 font-medium text-watch">
-              <Sep />High priority
+              <Sep />
+              High priority
             </span>
           )}
           {leak && (
-            <span className={`inline-flex items-center gap-0.5 rounded px-1 font-medium ${leak.overdue ? 'bg-alarm-tint text-alarm' : 'bg-watch-tint text-watch'}`}>
+            <span
+              className={`inline-flex items-center gap-0.5 rounded px-1 font-medium ${leak.overdue ? 'bg-alarm-tint text-alarm' : 'bg-watch-tint text-watch'}`}
+            >
               <Droplet className="size-3" aria-hidden="true" />
               <Sep />
               {leakBadge(leak)}
@@ -209,7 +240,11 @@ function Chip({
             </span>
           )}
           {override && (
-            <span className="inline-flex items-center gap-0.5 rounded bg-watch-tint px-1 font-medium text-watch" data-testid="chip-override" title={override.sentence}>
+            <span
+              className="inline-flex items-center gap-0.5 rounded bg-watch-tint px-1 font-medium text-watch"
+              data-testid="chip-override"
+              title={override.sentence}
+            >
               <ShieldAlert className="size-3" aria-hidden="true" />
               <Sep />
               {override.badge}
@@ -218,7 +253,8 @@ function Chip({
           {b.fixed && (
             <span className="inline-flex items-center gap-0.5 rounded bg-slate-faint px-1">
               <Lock className="size-3" aria-hidden="true" />
-              <Sep />Fixed time
+              <Sep />
+              Fixed time
             </span>
           )}
         </span>
@@ -362,7 +398,10 @@ export function TechBoard(p: TechBoardProps) {
   );
 
   const placingBanner = p.placing && (
-    <div role="status" className="mb-2 flex flex-wrap items-center gap-2 rounded-md border border-coolant bg-coolant-tint px-3 py-2 text-sm">
+    <div
+      role="status"
+      className="mb-2 flex flex-wrap items-center gap-2 rounded-md border border-coolant bg-coolant-tint px-3 py-2 text-sm"
+    >
       <span className="flex-1">
         Booking <strong>{placingName}</strong> at {p.placing.siteName}: choose a technician’s day below.
       </span>
@@ -420,7 +459,12 @@ export function TechBoard(p: TechBoardProps) {
           {p.techs.map((t, r) => {
             const entries = p.cells.get(cellKey(t.id, day)) ?? [];
             return (
-              <li key={t.id} className="rounded-md border border-slate-line p-2" data-testid={`board-${t.id}-${day}`} {...dropProps(t.id, day)}>
+              <li
+                key={t.id}
+                className="rounded-md border border-slate-line p-2"
+                data-testid={`board-${t.id}-${day}`}
+                {...dropProps(t.id, day)}
+              >
                 <h4 className="flex items-center gap-2 px-1 text-sm font-semibold">
                   <TechSwatch tech={t} />
                   {t.name}
@@ -440,7 +484,9 @@ export function TechBoard(p: TechBoardProps) {
       {hint}
       {placingBanner}
       <table className="w-full table-fixed border-collapse text-sm">
-        <caption className="sr-only">Technician board: each technician’s load and bookings per day, {dayShort(p.days[0]!)} to {dayShort(p.days[6]!)}</caption>
+        <caption className="sr-only">
+          Technician board: each technician’s load and bookings per day, {dayShort(p.days[0]!)} to {dayShort(p.days[6]!)}
+        </caption>
         <colgroup>
           <col className="w-28" />
           {p.days.map((d) => (
@@ -449,7 +495,10 @@ export function TechBoard(p: TechBoardProps) {
         </colgroup>
         <thead>
           <tr>
-            <th scope="col" className="sticky top-14 z-10 bg-white px-1 pb-1 text-left text-xs font-semibold uppercase tracking-wide text-slate">
+            <th
+              scope="col"
+              className="sticky top-14 z-10 bg-white px-1 pb-1 text-left text-xs font-semibold uppercase tracking-wide text-slate"
+            >
               Technician
             </th>
             {p.days.map((d) => (
@@ -460,7 +509,11 @@ export function TechBoard(p: TechBoardProps) {
                 className={`sticky top-14 z-10 border-b-2 bg-white px-1 pb-1 pt-1 text-left text-xs font-semibold ${d === p.today ? 'border-coolant text-coolant' : 'border-transparent text-ink'}`}
               >
                 <span className="block">{quiet.has(d) ? weekdayName(d) : dayShort(d)}</span>
-                {d === p.today ? <span className="block font-medium">Today</span> : quiet.has(d) ? <span className="block font-normal text-slate">{Number(d.slice(8))}</span> : null}
+                {d === p.today ? (
+                  <span className="block font-medium">Today</span>
+                ) : quiet.has(d) ? (
+                  <span className="block font-normal text-slate">{Number(d.slice(8))}</span>
+                ) : null}
               </th>
             ))}
           </tr>
@@ -481,7 +534,11 @@ export function TechBoard(p: TechBoardProps) {
                       <span className="block leading-snug">{t.name}</span>
                       {p.load && (
                         // The week's total at a glance; kept out of the row's spoken name, which every cell repeats.
-                        <span aria-hidden="true" className="block text-xs font-normal text-slate tabular" title="Booked of working hours this week">
+                        <span
+                          aria-hidden="true"
+                          className="block text-xs font-normal text-slate tabular"
+                          title="Booked of working hours this week"
+                        >
                           {tightMinutes(booked)} / {tightMinutes(capacity)} week
                         </span>
                       )}
@@ -513,8 +570,8 @@ export function TechBoard(p: TechBoardProps) {
         </tbody>
       </table>
       <p className="mt-2 text-xs text-slate">
-        Drag a job from the unplaced work onto a technician’s day to book it, or a booking to another day or technician to move it. Arrow keys move between
-        days and technicians; a day’s heading opens it on the time grid.
+        Drag a job from the unplaced work onto a technician’s day to book it, or a booking to another day or technician to move it. Arrow
+        keys move between days and technicians; a day’s heading opens it on the time grid.
       </p>
     </div>
   );
@@ -524,7 +581,23 @@ export function TechBoard(p: TechBoardProps) {
  * The head of a day nobody works: "Off", or "Holiday" on the branch's holiday — a word of the cell's
  * spoken name ("…: no bookings, Day off" / "…, Holiday"), so what is seen is what is heard.
  */
-function QuietHead({ t, d, r, c, load, today, onOpenDay }: { t: Technician; d: string; r: number; c: number; load: TechnicianDayLoad | undefined; today: string; onOpenDay: (techId: string, day: string) => void }) {
+function QuietHead({
+  t,
+  d,
+  r,
+  c,
+  load,
+  today,
+  onOpenDay,
+}: {
+  t: Technician;
+  d: string;
+  r: number;
+  c: number;
+  load: TechnicianDayLoad | undefined;
+  today: string;
+  onOpenDay: (techId: string, day: string) => void;
+}) {
   const label = cellLabel(t.name, d, 0, load, today);
   return (
     <button
@@ -547,7 +620,10 @@ function LoadBar({ l }: { l: TechnicianDayLoad }) {
   const bar = state === 'over' ? 'bg-alarm' : state === 'near' ? 'bg-watch-base' : 'bg-coolant';
   return (
     <span className="block h-1.5 w-full overflow-hidden rounded bg-slate-faint" aria-hidden="true">
-      <span className={`block h-full ${bar}`} style={{ width: `${Math.min(100, Math.round((l.bookedMinutes / l.capacityMinutes) * 100))}%` }} />
+      <span
+        className={`block h-full ${bar}`}
+        style={{ width: `${Math.min(100, Math.round((l.bookedMinutes / l.capacityMinutes) * 100))}%` }}
+      />
     </span>
   );
 }

@@ -1,6 +1,19 @@
 import { describe, expect, it } from 'vitest';
 import type { Booking } from '@coilpath/contract';
-import { cellKey, cellLabel, daysRange, entryTime, gaugeText, groupBookings, localDaysOf, loadWords, stepDate, viewDays, viewTitle, weekOf } from './board';
+import {
+  cellKey,
+  cellLabel,
+  daysRange,
+  entryTime,
+  gaugeText,
+  groupBookings,
+  localDaysOf,
+  loadWords,
+  stepDate,
+  viewDays,
+  viewTitle,
+  weekOf,
+} from './board';
 
 /*
  * America/Chicago (CST = UTC−6, CDT = UTC−5) falls back on Sunday 2026-11-01 at 02:00 CDT (07:00Z) and
@@ -46,13 +59,30 @@ function booking(techId: string, startAt: string, endAt: string, number = 11000 
   };
 }
 
-const numbers = (cells: ReturnType<typeof groupBookings>, techId: string, day: string) => (cells.get(cellKey(techId, day)) ?? []).map((e) => e.booking.workOrder.number);
+const numbers = (cells: ReturnType<typeof groupBookings>, techId: string, day: string) =>
+  (cells.get(cellKey(techId, day)) ?? []).map((e) => e.booking.workOrder.number);
 
 describe('weeks and views', () => {
   it('runs a week from Monday to Sunday, across month and year ends', () => {
-    expect(weekOf('2026-12-01')).toEqual(['2026-11-30', '2026-12-01', '2026-12-02', '2026-12-03', '2026-12-04', '2026-12-05', '2026-12-06']);
+    expect(weekOf('2026-12-01')).toEqual([
+      '2026-11-30',
+      '2026-12-01',
+      '2026-12-02',
+      '2026-12-03',
+      '2026-12-04',
+      '2026-12-05',
+      '2026-12-06',
+    ]);
     expect(weekOf('2026-12-06')[0]).toBe('2026-11-30'); // a Sunday belongs to the week before it
-    expect(weekOf('2027-01-01')).toEqual(['2026-12-28', '2026-12-29', '2026-12-30', '2026-12-31', '2027-01-01', '2027-01-02', '2027-01-03']);
+    expect(weekOf('2027-01-01')).toEqual([
+      '2026-12-28',
+      '2026-12-29',
+      '2026-12-30',
+      '2026-12-31',
+      '2027-01-01',
+      '2027-01-02',
+      '2027-01-03',
+    ]);
   });
 
   it('steps by a day, a week or a month (keeping the day of the month where it exists)', () => {
@@ -162,8 +192,12 @@ describe('what a cell says', () => {
   });
 
   it('names the technician, the day, the bookings and the load', () => {
-    expect(cellLabel('Anneke Strand', '2026-12-01', 3, load(330, 510))).toBe('Anneke Strand, Tuesday 1 December: 3 bookings, 5 h 30 min of 8 h 30 min');
-    expect(cellLabel('Anneke Strand', '2026-12-01', 1, load(60, 510), '2026-12-01')).toBe('Anneke Strand, Tuesday 1 December (today): 1 booking, 1 h 00 min of 8 h 30 min');
+    expect(cellLabel('Anneke Strand', '2026-12-01', 3, load(330, 510))).toBe(
+      'Anneke Strand, Tuesday 1 December: 3 bookings, 5 h 30 min of 8 h 30 min',
+    );
+    expect(cellLabel('Anneke Strand', '2026-12-01', 1, load(60, 510), '2026-12-01')).toBe(
+      'Anneke Strand, Tuesday 1 December (today): 1 booking, 1 h 00 min of 8 h 30 min',
+    );
     expect(cellLabel('Sam Okafor', '2026-12-05', 0, load(0, 0))).toBe('Sam Okafor, Saturday 5 December: no bookings, Day off');
   });
 

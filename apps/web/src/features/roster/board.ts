@@ -22,7 +22,20 @@ export const rosterViews: readonly RosterView[] = ['board', 'day', 'week', 'mont
 
 const weekdayLong = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'] as const;
 const weekdayShort = ['Sun', 'Mon', 'Tue', 'Wed', 'Thu', 'Fri', 'Sat'] as const;
-const monthLong = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'] as const;
+const monthLong = [
+  'January',
+  'February',
+  'March',
+  'April',
+  'May',
+  'June',
+  'July',
+  'August',
+  'September',
+  'October',
+  'November',
+  'December',
+] as const;
 const monthShort = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'] as const;
 
 /** A calendar date 'YYYY-MM-DD' plus whole days (the calc's one definition). */
@@ -125,7 +138,8 @@ export function groupBookings(bookings: readonly Booking[], timeZone: string, da
   const shown = new Set(days);
   const cells = new Map<string, BoardEntry[]>();
   const sorted = [...bookings].sort(
-    (x, y) => Date.parse(x.startAt) - Date.parse(y.startAt) || Date.parse(x.endAt) - Date.parse(y.endAt) || x.workOrder.number - y.workOrder.number,
+    (x, y) =>
+      Date.parse(x.startAt) - Date.parse(y.startAt) || Date.parse(x.endAt) - Date.parse(y.endAt) || x.workOrder.number - y.workOrder.number,
   );
   for (const b of sorted) {
     const covered = localDaysOf(b, timeZone);
@@ -192,7 +206,10 @@ export function gaugeText(l: LoadFigures): string {
 export function loadWords(l: LoadFigures & Pick<TechnicianDayLoad, 'ratio' | 'overloaded'>): string {
   const base = gaugeText(l);
   const state = loadState(l);
-  if (state === 'over') return l.capacityMinutes === 0 ? `${base}. Over: booked on a ${offDayWord(l)}` : `${base}. Over by ${formatMinutes(l.bookedMinutes - l.capacityMinutes)}`;
+  if (state === 'over')
+    return l.capacityMinutes === 0
+      ? `${base}. Over: booked on a ${offDayWord(l)}`
+      : `${base}. Over by ${formatMinutes(l.bookedMinutes - l.capacityMinutes)}`;
   if (state === 'near') return `${base}. Nearly full`;
   return base;
 }

@@ -28,17 +28,27 @@ export const bookFormSchema = z
     techId: idSchema.or(z.literal('')).refine((v) => v !== '', 'Choose a technician'),
     date: isoDateSchema,
     time: z.string().regex(hhmmRe, 'Use 24-hour HH:MM'),
-    minutes: z.coerce.number({ message: 'Enter minutes' }).int('Use whole minutes').min(15, 'At least 15 minutes').max(maxBookingMinutes, 'At most 16 hours'),
+    minutes: z.coerce
+      .number({ message: 'Enter minutes' })
+      .int('Use whole minutes')
+      .min(15, 'At least 15 minutes')
+      .max(maxBookingMinutes, 'At most 16 hours'),
     /** The booking rules to book against anyway, with one reason. */
     overrideRules: z.array(bookingRuleSchema),
     overrideReason: z.string().trim().max(limits.shortText),
   })
-  .refine((v) => v.overrideRules.length === 0 || v.overrideReason.length > 0, { message: 'Say why this booking may break the rule', path: ['overrideReason'] });
+  .refine((v) => v.overrideRules.length === 0 || v.overrideReason.length > 0, {
+    message: 'Say why this booking may break the rule',
+    path: ['overrideReason'],
+  });
 type BookForm = z.input<typeof bookFormSchema>;
 type BookFormOut = z.output<typeof bookFormSchema>;
 
 /** The form's start and end as instants, or nulls while the date, time or length is not valid yet. */
-export function formSpan(v: { date: string; time: string; minutes: unknown }, timeZone: string): { startAt: string | null; endAt: string | null } {
+export function formSpan(
+  v: { date: string; time: string; minutes: unknown },
+  timeZone: string,
+): { startAt: string | null; endAt: string | null } {
   const minutes = Number(v.minutes);
   if (!/^\d{4}-\d{2}-\d{2}$/.test(v.date) || !hhmmRe.test(v.time) || !(minutes > 0)) return { startAt: null, endAt: null };
   try {
@@ -96,7 +106,19 @@ export function BookDialog({
   );
 }
 
-function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrder: WorkOrder; techs: Technician[]; timeZone: string; initial: BookInitial; onClose: () => void }) {
+function BookBody({
+  workOrder: w,
+  techs,
+  timeZone,
+  initial,
+  onClose,
+}: {
+  workOrder: WorkOrder;
+  techs: Technician[];
+  timeZone: string;
+  initial: BookInitial;
+  onClose: () => void;
+}) {
   const notify = useNotify();
   const create = useCreateBooking();
   const suggest = useSuggest();
@@ -104,7 +126,14 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
   const [refused, setRefused] = useState<BookingRule[]>(initial.refusedRules ?? []);
   const form = useForm<BookForm, unknown, BookFormOut>({
     resolver: zodResolver(bookFormSchema),
-    defaultValues: { techId: initial.techId ?? '', date: initial.date, time: initial.time, minutes: w.estimatedMinutes, overrideRules: [], overrideReason: '' },
+    defaultValues: {
+      techId: initial.techId ?? '',
+      date: initial.date,
+      time: initial.time,
+      minutes: w.estimatedMinutes,
+      overrideRules: [],
+      overrideReason: '',
+    },
   });
   const { register, handleSubmit, watch, formState, setValue, getFieldState } = form;
   const date = watch('date');
@@ -112,9 +141,17 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
   const ticked = watch('overrideRules');
   const span = formSpan({ date, time: watch('time'), minutes: watch('minutes') }, timeZone);
   // The rules the chosen technician and time break, said before the dispatcher confirms.
-  const warnings = placementBreaches(workRuleJob(w), techs.find((t) => t.id === techId), timeZone, span.startAt, span.endAt);
+  const warnings = placementBreaches(
+    workRuleJob(w),
+    techs.find((t) => t.id === techId),
+    timeZone,
+    span.startAt,
+    span.endAt,
+  );
   const toggle = (rule: BookingRule, on: boolean) =>
-    setValue('overrideRules', on ? [...ticked.filter((r) => r !== rule), rule] : ticked.filter((r) => r !== rule), { shouldValidate: formState.isSubmitted });
+    setValue('overrideRules', on ? [...ticked.filter((r) => r !== rule), rule] : ticked.filter((r) => r !== rule), {
+      shouldValidate: formState.isSubmitted,
+    });
 
   const { mutate: runSuggest } = suggest;
   useEffect(() => {
@@ -136,7 +173,9 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
       { workOrderId: w.id, ...body },
       {
         onSuccess: (b) => {
-          notify(`Booked ${workOrderLabel(w.number)} with ${techName(b.techId)}, ${formatInZone(b.startAt, timeZone, 'EEE d MMM, HH:mm')}–${formatInZone(b.endAt, timeZone, 'HH:mm')}.`);
+          notify(
+            `Booked ${workOrderLabel(w.number)} with ${techName(b.techId)}, ${formatInZone(b.startAt, timeZone, 'EEE d MMM, HH:mm')}–${formatInZone(b.endAt, timeZone, 'HH:mm')}.`,
+          );
           onClose();
         },
         onError: (e) => {
@@ -150,7 +189,12 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
   const onSubmit = handleSubmit((v) => {
     const startAt = localToInstant(v.date, v.time, timeZone);
     const endAt = new Date(Date.parse(startAt) + v.minutes * 60_000).toISOString();
-    book({ techId: v.techId, startAt, endAt, ...(v.overrideRules.length ? { overrideRules: v.overrideRules, overrideReason: v.overrideReason } : {}) });
+    book({
+      techId: v.techId,
+      startAt,
+      endAt,
+      ...(v.overrideRules.length ? { overrideRules: v.overrideRules, overrideReason: v.overrideReason } : {}),
+    });
   });
 
   return (
@@ -163,8 +207,8 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
         {w.requiredCertification && (
           <SafetyNote>
             This work opens the refrigerant circuit: only a technician holding EPA 608{' '}
-            {w.requiredCertification === 'universal' ? 'Universal' : `Type ${w.requiredCertification} or Universal`} may do it. Follow the manufacturer’s
-            data, local codes and licensed practice.
+            {w.requiredCertification === 'universal' ? 'Universal' : `Type ${w.requiredCertification} or Universal`} may do it. Follow the
+            manufacturer’s data, local codes and licensed practice.
           </SafetyNote>
         )}
         <SelectField label="Technician" error={formState.errors.techId?.message} {...register('techId')}>
@@ -186,7 +230,15 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
               : unproposedText(proposal)}
           </p>
         )}
-        <TextField label="Length in minutes" type="number" inputMode="numeric" min={15} step={15} error={formState.errors.minutes?.message} {...register('minutes')} />
+        <TextField
+          label="Length in minutes"
+          type="number"
+          inputMode="numeric"
+          min={15}
+          step={15}
+          error={formState.errors.minutes?.message}
+          {...register('minutes')}
+        />
         <RuleOverride
           warnings={warnings}
           refused={refused}
@@ -210,7 +262,9 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
         <h3 id="suggest-heading" className="flex items-center gap-2 text-base font-semibold">
           <Sparkles className="size-4 text-coolant" aria-hidden="true" /> Suggested technicians for {date}
         </h3>
-        <p className="text-xs text-slate">Ranked by skills, certification, free time, drive from the previous stop and earlier visits to this unit.</p>
+        <p className="text-xs text-slate">
+          Ranked by skills, certification, free time, drive from the previous stop and earlier visits to this unit.
+        </p>
         {suggest.isPending ? (
           <p role="status" className="text-sm text-slate">
             Ranking technicians…
@@ -242,7 +296,11 @@ function BookBody({ workOrder: w, techs, timeZone, initial, onClose }: { workOrd
                       )}
                     </span>
                     {c.eligible && c.proposedStart && c.proposedEnd && (
-                      <Button size="sm" busy={create.isPending} onClick={() => book({ techId: c.techId, startAt: c.proposedStart!, endAt: c.proposedEnd! })}>
+                      <Button
+                        size="sm"
+                        busy={create.isPending}
+                        onClick={() => book({ techId: c.techId, startAt: c.proposedStart!, endAt: c.proposedEnd! })}
+                      >
                         Book {c.name.split(' ')[0]} at {instantToLocal(c.proposedStart, timeZone).time}
                       </Button>
                     )}

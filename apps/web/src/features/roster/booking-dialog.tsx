@@ -28,10 +28,26 @@ export interface BookingEdit {
 }
 
 /** One booking: what it is, and move, reassign or unbook it. */
-export function BookingDialog({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit | null; techs: Technician[]; timeZone: string; today: string; onClose: () => void }) {
+export function BookingDialog({
+  edit,
+  techs,
+  timeZone,
+  today,
+  onClose,
+}: {
+  edit: BookingEdit | null;
+  techs: Technician[];
+  timeZone: string;
+  today: string;
+  onClose: () => void;
+}) {
   const b = edit?.booking;
   return (
-    <Modal open={!!edit} onClose={onClose} title={b ? `${workOrderLabel(b.workOrder.number)} · ${workOrderKindLabels[b.workOrder.kind]}` : ''}>
+    <Modal
+      open={!!edit}
+      onClose={onClose}
+      title={b ? `${workOrderLabel(b.workOrder.number)} · ${workOrderKindLabels[b.workOrder.kind]}` : ''}
+    >
       {edit && <Body edit={edit} techs={techs} timeZone={timeZone} today={today} onClose={onClose} />}
     </Modal>
   );
@@ -40,7 +56,19 @@ export function BookingDialog({ edit, techs, timeZone, today, onClose }: { edit:
 type Form = z.input<typeof bookFormSchema>;
 type FormOut = z.output<typeof bookFormSchema>;
 
-function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; techs: Technician[]; timeZone: string; today: string; onClose: () => void }) {
+function Body({
+  edit,
+  techs,
+  timeZone,
+  today,
+  onClose,
+}: {
+  edit: BookingEdit;
+  techs: Technician[];
+  timeZone: string;
+  today: string;
+  onClose: () => void;
+}) {
   const { booking: b } = edit;
   const notify = useNotify();
   const update = useUpdateBooking();
@@ -65,26 +93,48 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
   const ticked = watch('overrideRules');
   const span = formSpan({ date: watch('date'), time: watch('time'), minutes: watch('minutes') }, timeZone);
   // The rules the chosen technician and time break, said before the dispatcher saves.
-  const warnings = placementBreaches(bookingRuleJob(b), techs.find((t) => t.id === watch('techId')), timeZone, span.startAt, span.endAt);
+  const warnings = placementBreaches(
+    bookingRuleJob(b),
+    techs.find((t) => t.id === watch('techId')),
+    timeZone,
+    span.startAt,
+    span.endAt,
+  );
   const toggle = (rule: BookingRule, on: boolean) =>
-    setValue('overrideRules', on ? [...ticked.filter((r) => r !== rule), rule] : ticked.filter((r) => r !== rule), { shouldValidate: formState.isSubmitted });
+    setValue('overrideRules', on ? [...ticked.filter((r) => r !== rule), rule] : ticked.filter((r) => r !== rule), {
+      shouldValidate: formState.isSubmitted,
+    });
   const overridden = overrideSummary(b);
   const tech = techs.find((t) => t.id === b.techId);
   const movable = b.workOrder.state === 'booked';
   const w = b.workOrder;
   const leak = leakDeadline(w.leakRepairDueDate, today, instantToLocal(b.startAt, timeZone).date);
 
-  const staleNotice = () => notify('Moved by someone else. The calendar now shows this booking as it is; make your change again if it is still needed.', 'alarm');
+  const staleNotice = () =>
+    notify('Moved by someone else. The calendar now shows this booking as it is; make your change again if it is still needed.', 'alarm');
 
   const onSubmit = handleSubmit((v) => {
     setRefusal(undefined);
     const startAt = localToInstant(v.date, v.time, timeZone);
     const endAt = new Date(Date.parse(startAt) + v.minutes * 60_000).toISOString();
     update.mutate(
-      { id: b.id, version: b.version, techId: v.techId, startAt, endAt, ...(v.overrideRules.length ? { overrideRules: v.overrideRules, overrideReason: v.overrideReason } : {}) },
+      {
+        id: b.id,
+        version: b.version,
+        techId: v.techId,
+        startAt,
+        endAt,
+        ...(v.overrideRules.length ? { overrideRules: v.overrideRules, overrideReason: v.overrideReason } : {}),
+      },
       {
         onSuccess: (nb) => {
-          notify(`Saved: ${bookingSummary(nb, techs.find((t) => t.id === nb.techId), timeZone)}.`);
+          notify(
+            `Saved: ${bookingSummary(
+              nb,
+              techs.find((t) => t.id === nb.techId),
+              timeZone,
+            )}.`,
+          );
           onClose();
         },
         onError: (e) => {
@@ -164,7 +214,15 @@ function Body({ edit, techs, timeZone, today, onClose }: { edit: BookingEdit; te
           <div className="grid grid-cols-3 gap-3">
             <TextField label="Date" type="date" error={formState.errors.date?.message} {...register('date')} />
             <TextField label="Start" type="time" step={300} error={formState.errors.time?.message} {...register('time')} />
-            <TextField label="Minutes" type="number" inputMode="numeric" min={15} step={15} error={formState.errors.minutes?.message} {...register('minutes')} />
+            <TextField
+              label="Minutes"
+              type="number"
+              inputMode="numeric"
+              min={15}
+              step={15}
+              error={formState.errors.minutes?.message}
+              {...register('minutes')}
+            />
           </div>
           <RuleOverride
             warnings={warnings}

@@ -47,7 +47,18 @@ export interface CalendarViewProps {
   onDropWork: (workOrderId: string, wall: Date, allDay: boolean) => void;
 }
 
-export default function CalendarView({ view, date, timeZone: tz, today, bookings, techById, focusTech, onOpen, onMove, onDropWork }: CalendarViewProps) {
+export default function CalendarView({
+  view,
+  date,
+  timeZone: tz,
+  today,
+  bookings,
+  techById,
+  focusTech,
+  onOpen,
+  onMove,
+  onDropWork,
+}: CalendarViewProps) {
   const cal = useRef<FullCalendar>(null);
   const type = fcView[view];
 
@@ -146,7 +157,10 @@ export default function CalendarView({ view, date, timeZone: tz, today, bookings
           eventDidMount={(arg) => {
             const b = arg.event.extendedProps.booking as Booking | undefined;
             if (!b) return;
-            arg.el.setAttribute('aria-label', `${bookingSummary(b, techById.get(b.techId), tz)}, ${b.workOrder.siteName}.${eventNameExtras(b)} Open to move, reassign or unbook.`);
+            arg.el.setAttribute(
+              'aria-label',
+              `${bookingSummary(b, techById.get(b.techId), tz)}, ${b.workOrder.siteName}.${eventNameExtras(b)} Open to move, reassign or unbook.`,
+            );
             // "Changed by …" inside the event is not part of a name set by aria-label: it is its description.
             arg.el.setAttribute('aria-describedby', changedByNoteId('booking', b.id));
           }}

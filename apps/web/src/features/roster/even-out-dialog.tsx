@@ -40,7 +40,19 @@ export function EvenOutDialog({
   );
 }
 
-function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; week: string; techs: Technician[]; timeZone: string; onClose: () => void }) {
+function Body({
+  branchId,
+  week,
+  techs,
+  timeZone,
+  onClose,
+}: {
+  branchId: string;
+  week: string;
+  techs: Technician[];
+  timeZone: string;
+  onClose: () => void;
+}) {
   const notify = useNotify();
   const preview = useEvenOutPreview();
   const apply = useEvenOutApply();
@@ -68,7 +80,9 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
   const toggleMove = (id: string) => setChosenMoves((s) => flipped(s, id));
 
   function accept() {
-    const proposals = p.proposals.filter((x) => chosen.has(x.workOrderId)).map(({ workOrderId, techId, startAt, endAt }) => ({ workOrderId, techId, startAt, endAt }));
+    const proposals = p.proposals
+      .filter((x) => chosen.has(x.workOrderId))
+      .map(({ workOrderId, techId, startAt, endAt }) => ({ workOrderId, techId, startAt, endAt }));
     const moves = p.moves
       .filter((m) => chosenMoves.has(m.bookingId))
       .map((m) => ({ bookingId: m.bookingId, version: m.version, techId: m.to.techId, startAt: m.to.startAt, endAt: m.to.endAt }));
@@ -102,12 +116,15 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
   return (
     <div className="flex flex-col gap-4">
       <p className="text-sm text-slate">
-        Week of {p.week.from} to {p.week.to}. Coilpath proposes times for the unplaced work so that nobody goes over their working hours, the load is even
-        and the drive stays short. It may also move booked jobs that have not started (never a fixed one, never past its due time, never to a
-        technician without the skill or EPA 608 certification) where that evens out the load. Untick what you do not want.
+        Week of {p.week.from} to {p.week.to}. Coilpath proposes times for the unplaced work so that nobody goes over their working hours,
+        the load is even and the drive stays short. It may also move booked jobs that have not started (never a fixed one, never past its
+        due time, never to a technician without the skill or EPA 608 certification) where that evens out the load. Untick what you do not
+        want.
       </p>
       {p.proposals.length === 0 ? (
-        <p className="rounded-md border border-dashed border-slate-line p-4 text-sm">No new booking proposed: there is no unplaced work for this week, or none fits.</p>
+        <p className="rounded-md border border-dashed border-slate-line p-4 text-sm">
+          No new booking proposed: there is no unplaced work for this week, or none fits.
+        </p>
       ) : (
         <div className="overflow-x-auto">
           <table className="w-full text-sm">
@@ -117,10 +134,18 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
                 <th scope="col" className="px-2 py-1">
                   <span className="sr-only">Accept</span>
                 </th>
-                <th scope="col" className="px-2 py-1">Job</th>
-                <th scope="col" className="px-2 py-1">Technician</th>
-                <th scope="col" className="px-2 py-1">When ({timeZone})</th>
-                <th scope="col" className="px-2 py-1">Drive</th>
+                <th scope="col" className="px-2 py-1">
+                  Job
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Technician
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  When ({timeZone})
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Drive
+                </th>
               </tr>
             </thead>
             <tbody>
@@ -166,11 +191,21 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
                 <th scope="col" className="px-2 py-1">
                   <span className="sr-only">Accept</span>
                 </th>
-                <th scope="col" className="px-2 py-1">Job</th>
-                <th scope="col" className="px-2 py-1">Priority</th>
-                <th scope="col" className="px-2 py-1">Due</th>
-                <th scope="col" className="px-2 py-1">From</th>
-                <th scope="col" className="px-2 py-1">To</th>
+                <th scope="col" className="px-2 py-1">
+                  Job
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Priority
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  Due
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  From
+                </th>
+                <th scope="col" className="px-2 py-1">
+                  To
+                </th>
               </tr>
             </thead>
             <tbody>
@@ -189,13 +224,16 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
                     {workOrderLabel(m.number)} · {m.siteName}
                   </td>
                   <td className="px-2 py-1">{priorityLabels[m.priority]}</td>
-                  <td className="tabular px-2 py-1 whitespace-nowrap">{m.dueAt ? formatInZone(m.dueAt, timeZone, 'EEE d MMM, HH:mm') : '—'}</td>
+                  <td className="tabular px-2 py-1 whitespace-nowrap">
+                    {m.dueAt ? formatInZone(m.dueAt, timeZone, 'EEE d MMM, HH:mm') : '—'}
+                  </td>
                   <td className="px-2 py-1 whitespace-nowrap">
                     {techOf(m.from.techId)?.name}, {formatInZone(m.from.startAt, timeZone, 'EEE d MMM, HH:mm')}
                   </td>
                   <td className="px-2 py-1 whitespace-nowrap">
                     <span aria-hidden="true">→ </span>
-                    {techOf(m.to.techId)?.name}, {formatInZone(m.to.startAt, timeZone, 'EEE d MMM, HH:mm')}–{formatInZone(m.to.endAt, timeZone, 'HH:mm')}
+                    {techOf(m.to.techId)?.name}, {formatInZone(m.to.startAt, timeZone, 'EEE d MMM, HH:mm')}–
+                    {formatInZone(m.to.endAt, timeZone, 'HH:mm')}
                   </td>
                 </tr>
               ))}
@@ -220,10 +258,18 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
           <caption className="mb-1 text-left text-sm font-semibold">Week load per technician</caption>
           <thead className="text-left text-xs uppercase tracking-wide text-slate">
             <tr>
-              <th scope="col" className="px-2 py-1">Technician</th>
-              <th scope="col" className="px-2 py-1">Before</th>
-              <th scope="col" className="px-2 py-1">After (ticked)</th>
-              <th scope="col" className="px-2 py-1">Working hours</th>
+              <th scope="col" className="px-2 py-1">
+                Technician
+              </th>
+              <th scope="col" className="px-2 py-1">
+                Before
+              </th>
+              <th scope="col" className="px-2 py-1">
+                After (ticked)
+              </th>
+              <th scope="col" className="px-2 py-1">
+                Working hours
+              </th>
             </tr>
           </thead>
           <tbody>
@@ -259,7 +305,10 @@ function Body({ branchId, week, techs, timeZone, onClose }: { branchId: string; 
           Apply {picked} selected
         </Button>
         {p.proposals.length > 0 && (
-          <Button variant="secondary" onClick={() => setChosen(chosen.size === p.proposals.length ? new Set() : new Set(p.proposals.map((x) => x.workOrderId)))}>
+          <Button
+            variant="secondary"
+            onClick={() => setChosen(chosen.size === p.proposals.length ? new Set() : new Set(p.proposals.map((x) => x.workOrderId)))}
+          >
             {chosen.size === p.proposals.length ? 'Untick all' : 'Tick all'}
           </Button>
         )}

@@ -4,7 +4,8 @@ import { formatMinutes } from '@/lib/format';
 import { gaugeText, loadState, offDayWord } from './board';
 import { TechSwatch } from './parts';
 
-const dayHeading = (day: string) => new Date(`${day}T12:00:00Z`).toLocaleDateString('en-US', { weekday: 'short', day: 'numeric', timeZone: 'UTC' });
+const dayHeading = (day: string) =>
+  new Date(`${day}T12:00:00Z`).toLocaleDateString('en-US', { weekday: 'short', day: 'numeric', timeZone: 'UTC' });
 
 function Gauge({ l, techName }: { l: TechnicianDayLoad; techName: string }) {
   const offDay = l.capacityMinutes === 0;
@@ -82,7 +83,11 @@ export function LoadGauge({ techs, days, load }: { techs: Technician[]; days: st
               </th>
               {days.map((d) => {
                 const l = byKey.get(`${t.id}|${d}`);
-                return <td key={d} className="px-1 py-1 align-top">{l ? <Gauge l={l} techName={t.name} /> : <span className="text-slate">—</span>}</td>;
+                return (
+                  <td key={d} className="px-1 py-1 align-top">
+                    {l ? <Gauge l={l} techName={t.name} /> : <span className="text-slate">—</span>}
+                  </td>
+                );
               })}
             </tr>
           ))}

@@ -14,8 +14,8 @@ import { ChangedByNote } from '@/components/changed-by';
  */
 export const techHex = ['#3F5E8C', '#6B4E8E', '#0F6E6E', '#8A4B2D', '#4D6B2E', '#7A3E5D', '#35566B', '#6A5A2E'] as const;
 export const techBg = ['bg-tech-0', 'bg-tech-1', 'bg-tech-2', 'bg-tech-3', 'bg-tech-4', 'bg-tech-5', 'bg-tech-6', 'bg-tech-7'] as const;
-export const colourOf = (t: Pick<Technician, 'colorIndex'> | undefined) => techHex[((t?.colorIndex ?? 0) % 8 + 8) % 8]!;
-export const bgOf = (t: Pick<Technician, 'colorIndex'> | undefined) => techBg[((t?.colorIndex ?? 0) % 8 + 8) % 8]!;
+export const colourOf = (t: Pick<Technician, 'colorIndex'> | undefined) => techHex[(((t?.colorIndex ?? 0) % 8) + 8) % 8]!;
+export const bgOf = (t: Pick<Technician, 'colorIndex'> | undefined) => techBg[(((t?.colorIndex ?? 0) % 8) + 8) % 8]!;
 
 export function TechSwatch({ tech }: { tech: Pick<Technician, 'colorIndex'> | undefined }) {
   return <span aria-hidden="true" className={`inline-block size-3 shrink-0 rounded-sm ${bgOf(tech)}`} />;

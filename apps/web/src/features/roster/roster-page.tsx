@@ -12,7 +12,20 @@ import { useNotify } from '@/components/ui/notices';
 import { errorMessage } from '@/lib/api-client';
 import { todayInZone, viewerZoneDiffers, zoneAbbreviation } from '@/lib/format';
 import { isStale, useBookings, useCreateBooking, useLoad, useTechnicians, useUnplaced, useUpdateBooking } from './api';
-import { addDays, cellKey, daysRange, dayShort, groupBookings, mondayOf, rosterViews, stepDate, viewDays, viewTitle, weekOf, type RosterView } from './board';
+import {
+  addDays,
+  cellKey,
+  daysRange,
+  dayShort,
+  groupBookings,
+  mondayOf,
+  rosterViews,
+  stepDate,
+  viewDays,
+  viewTitle,
+  weekOf,
+  type RosterView,
+} from './board';
 import { TechBoard } from './board-view';
 import { BookDialog, type BookInitial } from './book-dialog';
 import { BookingDialog, type BookingEdit } from './booking-dialog';
@@ -101,7 +114,10 @@ export default function RosterPage() {
 
   const shown = useMemo(() => (bookingsQ.data ?? []).filter((b) => visibleIds.has(b.techId)), [bookingsQ.data, visibleIds]);
   const cells = useMemo(() => (view === 'board' ? groupBookings(shown, tz, days) : new Map()), [view, shown, tz, days]);
-  const loadByCell = useMemo(() => (loadQ.data ? new Map<string, TechnicianDayLoad>(loadQ.data.map((l) => [cellKey(l.techId, l.day), l])) : undefined), [loadQ.data]);
+  const loadByCell = useMemo(
+    () => (loadQ.data ? new Map<string, TechnicianDayLoad>(loadQ.data.map((l) => [cellKey(l.techId, l.day), l])) : undefined),
+    [loadQ.data],
+  );
 
   // Escape puts a picked job back.
   useEffect(() => {
@@ -124,7 +140,12 @@ export default function RosterPage() {
    * the board keeps the local start time, so a refusal there (overlap, hours…) opens the booking with
    * the attempted technician and day to pick another time.
    */
-  const saveTimes = (b: Booking, next: { techId?: string; startAt: string; endAt: string }, verb: string, opts: { revert?: () => void; adjustOnRefusal?: boolean } = {}) => {
+  const saveTimes = (
+    b: Booking,
+    next: { techId?: string; startAt: string; endAt: string },
+    verb: string,
+    opts: { revert?: () => void; adjustOnRefusal?: boolean } = {},
+  ) => {
     update.mutate(
       { id: b.id, version: b.version, ...next },
       {
@@ -133,7 +154,11 @@ export default function RosterPage() {
           opts.revert?.();
           const attempt = { techId: next.techId ?? b.techId, startAt: next.startAt, endAt: next.endAt };
           const rules = refusedRules(e);
-          if (isStale(e)) notify('Moved by someone else. The Roster now shows this booking as it is; make your change again if it is still needed.', 'alarm');
+          if (isStale(e))
+            notify(
+              'Moved by someone else. The Roster now shows this booking as it is; make your change again if it is still needed.',
+              'alarm',
+            );
           // A booking rule: the booking opens at the times tried, saying which rule, to book against it with a reason.
           else if (rules.length) setEdit({ booking: b, attempt, error: errorMessage(e), refusedRules: rules });
           else if (opts.adjustOnRefusal) setEdit({ booking: b, attempt, error: errorMessage(e) });
@@ -174,7 +199,8 @@ export default function RosterPage() {
         { workOrderId: wo.id, techId: focusTech.id, startAt: fromWallClock(wall, tz).toISOString() },
         {
           onSuccess: (b) => notify(`Booked ${bookingSummary(b, focusTech, tz)}.`),
-          onError: (e) => setBookFor({ wo, initial: { techId: focusTech.id, date: day, time, error: errorMessage(e), refusedRules: refusedRules(e) } }),
+          onError: (e) =>
+            setBookFor({ wo, initial: { techId: focusTech.id, date: day, time, error: errorMessage(e), refusedRules: refusedRules(e) } }),
         },
       );
     } else {
@@ -198,7 +224,9 @@ export default function RosterPage() {
     return (
       <>
         <PageHeader title="Roster" subtitle="Technician calendars, unplaced work and load for one branch." />
-        <EmptyState title="Choose a branch">Pick a branch in the switcher at the top; the Roster shows one branch’s technicians at a time.</EmptyState>
+        <EmptyState title="Choose a branch">
+          Pick a branch in the switcher at the top; the Roster shows one branch’s technicians at a time.
+        </EmptyState>
       </>
     );
   }
@@ -211,18 +239,22 @@ export default function RosterPage() {
 
   let board: ReactNode;
   if (view === 'board') {
-    if (techs.length === 0) board = null; // said above the board
+    if (techs.length === 0)
+      board = null; // said above the board
     else if (visible.length === 0)
-      board = <EmptyState title="Every technician is hidden">Show at least one technician with the buttons above to see their week.</EmptyState>;
+      board = (
+        <EmptyState title="Every technician is hidden">Show at least one technician with the buttons above to see their week.</EmptyState>
+      );
     else if (bookingsQ.isPending) board = <LoadingState label="Loading the week’s bookings…" />;
-    else if (!bookingsQ.data) board = null; // the error above says why
+    else if (!bookingsQ.data)
+      board = null; // the error above says why
     else
       board = (
         <>
           {shown.length === 0 && (
             <p className="mb-2 rounded-md border border-dashed border-slate-line p-3 text-sm text-slate">
-              Nothing is booked for {focusTech ? focusTech.name : 'these technicians'} from {dayShort(days[0]!)} to {dayShort(days[6]!)}. Drag a job from the
-              unplaced work onto a technician’s day, or use its Book… button.
+              Nothing is booked for {focusTech ? focusTech.name : 'these technicians'} from {dayShort(days[0]!)} to {dayShort(days[6]!)}.
+              Drag a job from the unplaced work onto a technician’s day, or use its Book… button.
             </p>
           )}
           {loadQ.isError && (
@@ -282,13 +314,23 @@ export default function RosterPage() {
             <Card>
               <div className="mb-3 flex flex-wrap items-center gap-2">
                 <div className="flex items-center gap-1">
-                  <Button variant="secondary" size="sm" aria-label={`Previous ${stepNames[view]}`} onClick={() => set({ date: stepDate(view, date, -1) })}>
+                  <Button
+                    variant="secondary"
+                    size="sm"
+                    aria-label={`Previous ${stepNames[view]}`}
+                    onClick={() => set({ date: stepDate(view, date, -1) })}
+                  >
                     <ChevronLeft className="size-4" aria-hidden="true" />
                   </Button>
                   <Button variant="secondary" size="sm" onClick={() => set({ date: today })}>
                     Today
                   </Button>
-                  <Button variant="secondary" size="sm" aria-label={`Next ${stepNames[view]}`} onClick={() => set({ date: stepDate(view, date, 1) })}>
+                  <Button
+                    variant="secondary"
+                    size="sm"
+                    aria-label={`Next ${stepNames[view]}`}
+                    onClick={() => set({ date: stepDate(view, date, 1) })}
+                  >
                     <ChevronRight className="size-4" aria-hidden="true" />
                   </Button>
                 </div>
@@ -311,7 +353,11 @@ export default function RosterPage() {
                 </div>
                 <label className="flex items-center gap-2 text-sm">
                   <span className="text-slate">Show</span>
-                  <select className="min-h-9 rounded-md border border-slate-line bg-white px-2 text-sm" value={focusTech?.id ?? 'all'} onChange={(e) => set({ tech: e.target.value })}>
+                  <select
+                    className="min-h-9 rounded-md border border-slate-line bg-white px-2 text-sm"
+                    value={focusTech?.id ?? 'all'}
+                    onChange={(e) => set({ tech: e.target.value })}
+                  >
                     <option value="all">All technicians</option>
                     {techs.map((t) => (
                       <option key={t.id} value={t.id}>
@@ -358,21 +404,28 @@ export default function RosterPage() {
                 </EmptyState>
               )}
               {view !== 'board' && focusTech && (
-                <p className="mb-2 text-sm text-slate">Drop a job from the unplaced work onto {focusTech.name}’s calendar to book it there. Shaded: outside working hours.</p>
+                <p className="mb-2 text-sm text-slate">
+                  Drop a job from the unplaced work onto {focusTech.name}’s calendar to book it there. Shaded: outside working hours.
+                </p>
               )}
               {view !== 'board' && !focusTech && (
-                <p className="mb-2 text-sm text-slate">Drop a job onto a time to choose the technician, or show one technician to book straight onto their calendar.</p>
+                <p className="mb-2 text-sm text-slate">
+                  Drop a job onto a time to choose the technician, or show one technician to book straight onto their calendar.
+                </p>
               )}
               {crowdedWeek && (
                 <p className="mb-2 rounded-md border border-slate-line bg-frost px-3 py-2 text-sm" role="note">
-                  {visible.length} technicians share each day here, so busy hours show two bookings and a “+ more” link. For every booking at a glance use the{' '}
+                  {visible.length} technicians share each day here, so busy hours show two bookings and a “+ more” link. For every booking
+                  at a glance use the{' '}
                   <button type="button" className="font-medium text-coolant underline" onClick={() => set({ view: 'board' })}>
                     Board
                   </button>
                   , or show one technician.
                 </p>
               )}
-              {bookingsQ.isError && <ErrorState error={bookingsQ.error} onRetry={() => bookingsQ.refetch()} title="The bookings could not be loaded" />}
+              {bookingsQ.isError && (
+                <ErrorState error={bookingsQ.error} onRetry={() => bookingsQ.refetch()} title="The bookings could not be loaded" />
+              )}
               <div aria-busy={busy || undefined}>
                 {view === 'board' ? (
                   board
@@ -396,8 +449,12 @@ export default function RosterPage() {
             </Card>
 
             {view !== 'board' && (
-              <Card title={`Load, ${gaugeDays.length === 1 ? dayShort(gaugeDays[0]!) : `${dayShort(gaugeDays[0]!)} to ${dayShort(gaugeDays[gaugeDays.length - 1]!)}`}`}>
-                <p className="mb-2 text-sm text-slate">Booked time against each technician’s working hours. Over capacity shows in red with the word “Over”.</p>
+              <Card
+                title={`Load, ${gaugeDays.length === 1 ? dayShort(gaugeDays[0]!) : `${dayShort(gaugeDays[0]!)} to ${dayShort(gaugeDays[gaugeDays.length - 1]!)}`}`}
+              >
+                <p className="mb-2 text-sm text-slate">
+                  Booked time against each technician’s working hours. Over capacity shows in red with the word “Over”.
+                </p>
                 {loadQ.isError ? (
                   <ErrorState error={loadQ.error} onRetry={() => loadQ.refetch()} />
                 ) : loadQ.data ? (
@@ -472,12 +529,22 @@ export default function RosterPage() {
         </div>
       )}
 
-      <BookDialog workOrder={bookFor?.wo ?? null} initial={bookFor?.initial ?? { date: today, time: '08:00' }} techs={techs} timeZone={tz} onClose={() => setBookFor(null)} />
+      <BookDialog
+        workOrder={bookFor?.wo ?? null}
+        initial={bookFor?.initial ?? { date: today, time: '08:00' }}
+        techs={techs}
+        timeZone={tz}
+        onClose={() => setBookFor(null)}
+      />
       <BookingDialog edit={edit} techs={techs} timeZone={tz} today={today} onClose={() => setEdit(null)} />
       <WorkOrderDialog open={newOpen} branchId={branchId} timeZone={tz} skills={skills} onClose={() => setNewOpen(false)} />
       <EvenOutDialog open={evenOpen} branchId={branchId} week={weekStart} techs={techs} timeZone={tz} onClose={() => setEvenOpen(false)} />
       <span className="sr-only" aria-live="polite">
-        {bookFor ? `Booking ${workOrderLabel(bookFor.wo.number)}` : placing ? `Picked ${workOrderLabel(placing.number)}: choose a technician’s day on the board` : ''}
+        {bookFor
+          ? `Booking ${workOrderLabel(bookFor.wo.number)}`
+          : placing
+            ? `Picked ${workOrderLabel(placing.number)}: choose a technician’s day on the board`
+            : ''}
       </span>
     </>
   );

@@ -46,7 +46,12 @@ export function RuleOverride({ warnings, refused, ticked, onToggle, reasonField,
           )}
           {offered.map((rule) => (
             <label key={rule} className="flex items-center gap-2 text-sm">
-              <input type="checkbox" className="size-5" checked={ticked.includes(rule)} onChange={(e) => onToggle(rule, e.currentTarget.checked)} />
+              <input
+                type="checkbox"
+                className="size-5"
+                checked={ticked.includes(rule)}
+                onChange={(e) => onToggle(rule, e.currentTarget.checked)}
+              />
               Book against the {bookingRuleLabels[rule]} anyway
             </label>
           ))}

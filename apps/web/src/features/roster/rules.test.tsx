@@ -172,14 +172,22 @@ describe('the override on a booking', () => {
   });
 
   it('shows on the calendar event and in its name', () => {
-    const full = text(renderToStaticMarkup(<EventBody booking={overridden} tech={ana} showTech timeZone={tz} today="2027-03-08" compact={false} />));
+    const full = text(
+      renderToStaticMarkup(<EventBody booking={overridden} tech={ana} showTech timeZone={tz} today="2027-03-08" compact={false} />),
+    );
     expect(full).toContain('override: required skill and due time');
     expect(full).toContain('“Only Ana can reach the site today”');
-    const compact = text(renderToStaticMarkup(<EventBody booking={overridden} tech={ana} showTech timeZone={tz} today="2027-03-08" compact />));
+    const compact = text(
+      renderToStaticMarkup(<EventBody booking={overridden} tech={ana} showTech timeZone={tz} today="2027-03-08" compact />),
+    );
     expect(compact).toContain('· override');
-    expect(eventNameExtras(overridden)).toBe(' Booked against the required skill and due time by Dana Pruitt: “Only Ana can reach the site today”.');
+    expect(eventNameExtras(overridden)).toBe(
+      ' Booked against the required skill and due time by Dana Pruitt: “Only Ana can reach the site today”.',
+    );
     expect(eventNameExtras(booking())).toBe('');
-    expect(chipSuffix(groupBookings([booking()], tz, ['2027-03-09']).get(`${ana.id}|2027-03-09`)![0]!, '2027-03-08', true)).not.toMatch(/Booked against/);
+    expect(chipSuffix(groupBookings([booking()], tz, ['2027-03-09']).get(`${ana.id}|2027-03-09`)![0]!, '2027-03-08', true)).not.toMatch(
+      /Booked against/,
+    );
   });
 
   it('shows in the booking’s details, with the work order’s due time, and its rules come ticked', () => {
@@ -200,7 +208,13 @@ describe('the override on a booking', () => {
 describe('the booking form warns before the dispatcher confirms', () => {
   it('names the due time a start after it breaks, and offers to book against it with a reason', () => {
     const html = wrap(
-      <BookDialog workOrder={workOrder()} techs={[ana]} timeZone={tz} initial={{ techId: ana.id, date: '2027-03-09', time: '11:30' }} onClose={() => {}} />,
+      <BookDialog
+        workOrder={workOrder()}
+        techs={[ana]}
+        timeZone={tz}
+        initial={{ techId: ana.id, date: '2027-03-09', time: '11:30' }}
+        onClose={() => {}}
+      />,
     );
     const t = text(html);
     expect(html).toContain('data-testid="rule-override"');
@@ -212,7 +226,13 @@ describe('the booking form warns before the dispatcher confirms', () => {
 
   it('says nothing when the chosen time keeps every rule', () => {
     const html = wrap(
-      <BookDialog workOrder={workOrder()} techs={[ana]} timeZone={tz} initial={{ techId: ana.id, date: '2027-03-09', time: '10:00' }} onClose={() => {}} />,
+      <BookDialog
+        workOrder={workOrder()}
+        techs={[ana]}
+        timeZone={tz}
+        initial={{ techId: ana.id, date: '2027-03-09', time: '10:00' }}
+        onClose={() => {}}
+      />,
     );
     expect(html).not.toContain('data-testid="rule-override"');
     expect(text(html)).not.toMatch(/Breaks the/);
@@ -222,7 +242,15 @@ describe('the booking form warns before the dispatcher confirms', () => {
     const w = workOrder({ slaDueAt: null, latestAt: '2027-03-10T05:59:00.000Z', requiredSkill: 'chiller', requiredCertification: 'II' });
     const breaches = placementBreaches(workRuleJob(w), ana, tz, '2027-03-10T22:00:00.000Z', '2027-03-10T23:00:00.000Z');
     expect(breaches.map((b) => b.rule)).toEqual(['skill', 'certification', 'working_hours', 'due_time']);
-    const html = wrap(<BookDialog workOrder={w} techs={[ana]} timeZone={tz} initial={{ techId: ana.id, date: '2027-03-10', time: '16:00' }} onClose={() => {}} />);
+    const html = wrap(
+      <BookDialog
+        workOrder={w}
+        techs={[ana]}
+        timeZone={tz}
+        initial={{ techId: ana.id, date: '2027-03-10', time: '16:00' }}
+        onClose={() => {}}
+      />,
+    );
     for (const b of breaches) expect(text(html)).toContain(b.message);
     expect(placementBreaches(workRuleJob(w), undefined, tz, '2027-03-10T22:00:00.000Z', '2027-03-10T23:00:00.000Z')).toEqual([]);
   });
@@ -247,11 +275,23 @@ describe('the booking form warns before the dispatcher confirms', () => {
   });
 
   it('says "no free time" only when free time is what is missing', () => {
-    expect(unproposedText({ name: 'Ana Ruiz', blockedBy: ['free_time'], reasons: ['No free slot of 1 h on 2027-03-09 (30 min free)', '30 min free'] })).toBe(
+    expect(
+      unproposedText({
+        name: 'Ana Ruiz',
+        blockedBy: ['free_time'],
+        reasons: ['No free slot of 1 h on 2027-03-09 (30 min free)', '30 min free'],
+      }),
+    ).toBe(
       'Ana Ruiz has no free time for this job that day: No free slot of 1 h on 2027-03-09 (30 min free). Pick another technician or day, or set a time.',
     );
-    const rule = unproposedText({ name: 'Ana Ruiz', blockedBy: ['skill'], reasons: ['Lacks the skill "chiller"', 'EPA 608 Universal covers the Type II refrigerant work'] });
-    expect(rule).toBe('Ana Ruiz is not proposed for this job that day: Lacks the skill "chiller". Pick another technician or day, or book against the rule with a reason.');
+    const rule = unproposedText({
+      name: 'Ana Ruiz',
+      blockedBy: ['skill'],
+      reasons: ['Lacks the skill "chiller"', 'EPA 608 Universal covers the Type II refrigerant work'],
+    });
+    expect(rule).toBe(
+      'Ana Ruiz is not proposed for this job that day: Lacks the skill "chiller". Pick another technician or day, or book against the rule with a reason.',
+    );
     expect(rule).not.toMatch(/free time/);
   });
 });
@@ -265,12 +305,29 @@ describe('a day nobody works on the board', () => {
       days.map((d, i) => {
         const holiday = d === '2027-03-12';
         const capacity = holiday || i >= 5 ? 0 : 510;
-        return [cellKey(ana.id, d), { techId: ana.id, day: d, bookedMinutes: 0, capacityMinutes: capacity, ratio: capacity ? 0 : null, overloaded: false, holiday }];
+        return [
+          cellKey(ana.id, d),
+          { techId: ana.id, day: d, bookedMinutes: 0, capacityMinutes: capacity, ratio: capacity ? 0 : null, overloaded: false, holiday },
+        ];
       }),
     );
     const html = wrap(
-      <TechBoard techs={[ana]} days={days} day="2027-03-09" today="2027-03-08" timeZone={tz} cells={groupBookings([], tz, days)} load={load} placing={null}
-        onOpen={() => {}} onOpenDay={() => {}} onPlace={() => {}} onMoveTo={() => {}} onPickDay={() => {}} onCancelPlacing={() => {}} />,
+      <TechBoard
+        techs={[ana]}
+        days={days}
+        day="2027-03-09"
+        today="2027-03-08"
+        timeZone={tz}
+        cells={groupBookings([], tz, days)}
+        load={load}
+        placing={null}
+        onOpen={() => {}}
+        onOpenDay={() => {}}
+        onPlace={() => {}}
+        onMoveTo={() => {}}
+        onPickDay={() => {}}
+        onCancelPlacing={() => {}}
+      />,
     );
     const head = (col: number) => {
       const m = new RegExp(`<button[^>]*data-nav-head="0:${col}"[^>]*>([\\s\\S]*?)</button>`).exec(html);

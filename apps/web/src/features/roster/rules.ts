@@ -11,7 +11,9 @@ import { bookingRuleLabels, bookingRules } from '@coilpath/contract/roster';
 import { ApiError } from '@/lib/api-client';
 
 /** What the rules read of a work order from the unplaced queue. */
-export const workRuleJob = (w: Pick<WorkOrder, 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>): RuleJob => ({
+export const workRuleJob = (
+  w: Pick<WorkOrder, 'priority' | 'requiredSkill' | 'requiredCertification' | 'slaDueAt' | 'latestAt'>,
+): RuleJob => ({
   requiredSkill: w.requiredSkill,
   requiredCertification: w.requiredCertification,
   dueAt: workOrderDueAt(w),
@@ -28,9 +30,20 @@ export const bookingRuleJob = (b: Booking): RuleJob => ({
  * The rules a placement would break, in rule order: what the API would refuse. Empty while the
  * technician or the times are not chosen yet.
  */
-export function placementBreaches(job: RuleJob, tech: Technician | undefined, timeZone: string, startAt: string | null, endAt: string | null): RuleBreach[] {
+export function placementBreaches(
+  job: RuleJob,
+  tech: Technician | undefined,
+  timeZone: string,
+  startAt: string | null,
+  endAt: string | null,
+): RuleBreach[] {
   if (!tech || !startAt || !endAt || !(Date.parse(endAt) > Date.parse(startAt))) return [];
-  return bookingBreaches({ name: tech.name, skills: tech.skills, epa608: tech.epa608Type, workingHours: tech.workingHours ?? {}, timeZone }, job, startAt, endAt);
+  return bookingBreaches(
+    { name: tech.name, skills: tech.skills, epa608: tech.epa608Type, workingHours: tech.workingHours ?? {}, timeZone },
+    job,
+    startAt,
+    endAt,
+  );
 }
 
 /** The rules an API refusal names (a 409 for the booking rules carries them in `details.rules`). */
@@ -41,7 +54,11 @@ export function refusedRules(e: unknown): BookingRule[] {
 }
 
 /** The rules a form offers to override: those broken now, those the API refused, and those already ticked. */
-export function offeredRules(warnings: readonly RuleBreach[], refused: readonly BookingRule[], ticked: readonly BookingRule[]): BookingRule[] {
+export function offeredRules(
+  warnings: readonly RuleBreach[],
+  refused: readonly BookingRule[],
+  ticked: readonly BookingRule[],
+): BookingRule[] {
   const all = new Set<BookingRule>([...warnings.map((w) => w.rule), ...refused, ...ticked]);
   return bookingRules.filter((r) => all.has(r));
 }
@@ -53,7 +70,9 @@ export const ruleNames = (rules: readonly BookingRule[]) => andList(rules.map((r
  * What a booking's chip says about an override: a short badge, the reason, and a sentence for screen
  * readers and the details. Null when the booking keeps every rule.
  */
-export function overrideSummary(b: Pick<Booking, 'overrideRules' | 'overrideReason' | 'overrideBy'>): { badge: string; reason: string; sentence: string } | null {
+export function overrideSummary(
+  b: Pick<Booking, 'overrideRules' | 'overrideReason' | 'overrideBy'>,
+): { badge: string; reason: string; sentence: string } | null {
   if (!b.overrideRules.length) return null;
   const names = ruleNames(b.overrideRules);
   const reason = b.overrideReason ?? '';

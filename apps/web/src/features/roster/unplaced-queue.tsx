@@ -18,10 +18,21 @@ import { ChangedByNote } from '@/components/changed-by';
 export type QueueMode = 'calendar' | 'board';
 
 const rank: Record<Priority, number> = { emergency: 0, high: 1, normal: 2, low: 3 };
-const tone: Record<Priority, 'alarm' | 'watch' | 'neutral' | 'info'> = { emergency: 'alarm', high: 'watch', normal: 'neutral', low: 'info' };
+const tone: Record<Priority, 'alarm' | 'watch' | 'neutral' | 'info'> = {
+  emergency: 'alarm',
+  high: 'watch',
+  normal: 'neutral',
+  low: 'info',
+};
 const col = createColumnHelper<CoilpathFeatures, WorkOrder>();
 type SortKey = 'priority' | 'age' | 'due' | 'skill' | 'kind';
-const sortLabels: Record<SortKey, string> = { priority: 'Priority', age: 'Oldest first', due: 'Due soonest', skill: 'Required skill', kind: 'Kind' };
+const sortLabels: Record<SortKey, string> = {
+  priority: 'Priority',
+  age: 'Oldest first',
+  due: 'Due soonest',
+  skill: 'Required skill',
+  kind: 'Kind',
+};
 
 export function QueueItem({
   w,
@@ -46,9 +57,14 @@ export function QueueItem({
   const leak = leakDeadline(w.leakRepairDueDate, today);
   const due = w.slaDueAt ?? w.latestAt;
   const late = due ? Date.parse(due) < now : false;
-  const needs = [w.requiredSkill, w.requiredCertification ? `EPA 608 ${w.requiredCertification === 'universal' ? 'Universal' : `Type ${w.requiredCertification}`}` : null].filter(Boolean);
+  const needs = [
+    w.requiredSkill,
+    w.requiredCertification ? `EPA 608 ${w.requiredCertification === 'universal' ? 'Universal' : `Type ${w.requiredCertification}`}` : null,
+  ].filter(Boolean);
   return (
-    <li className={`flex items-start gap-1 rounded-md border bg-white p-2 ${picked ? 'border-coolant ring-2 ring-coolant/40' : 'border-slate-line'}`}>
+    <li
+      className={`flex items-start gap-1 rounded-md border bg-white p-2 ${picked ? 'border-coolant ring-2 ring-coolant/40' : 'border-slate-line'}`}
+    >
       {mode === 'board' ? (
         <button
           type="button"
@@ -67,17 +83,17 @@ export function QueueItem({
           <GripVertical className="size-4" aria-hidden="true" />
         </button>
       ) : (
-      <button
-        type="button"
-        data-wo-id={w.id}
-        data-title={label}
-        data-minutes={w.estimatedMinutes}
-        aria-label={`Drag ${label} onto the calendar`}
-        title="Drag onto the calendar"
-        className="inline-flex min-h-touch min-w-8 shrink-0 cursor-grab touch-none items-center justify-center rounded text-slate hover:bg-slate-faint active:cursor-grabbing"
-      >
-        <GripVertical className="size-4" aria-hidden="true" />
-      </button>
+        <button
+          type="button"
+          data-wo-id={w.id}
+          data-title={label}
+          data-minutes={w.estimatedMinutes}
+          aria-label={`Drag ${label} onto the calendar`}
+          title="Drag onto the calendar"
+          className="inline-flex min-h-touch min-w-8 shrink-0 cursor-grab touch-none items-center justify-center rounded text-slate hover:bg-slate-faint active:cursor-grabbing"
+        >
+          <GripVertical className="size-4" aria-hidden="true" />
+        </button>
       )}
       <div className="min-w-0 flex-1 text-sm">
         <div className="flex flex-wrap items-center gap-x-2 gap-y-1">
@@ -167,7 +183,11 @@ export function UnplacedQueue({
       if (!live || !box.current) return;
       d = new Draggable(box.current, {
         itemSelector: '[data-wo-id]',
-        eventData: (el) => ({ title: el.getAttribute('data-title') ?? '', duration: { minutes: Number(el.getAttribute('data-minutes') ?? 60) }, create: false }),
+        eventData: (el) => ({
+          title: el.getAttribute('data-title') ?? '',
+          duration: { minutes: Number(el.getAttribute('data-minutes') ?? 60) },
+          create: false,
+        }),
       });
     });
     return () => {
@@ -179,7 +199,12 @@ export function UnplacedQueue({
   const skills = useMemo(() => [...new Set(workOrders.map((w) => w.requiredSkill).filter((s): s is string => !!s))].sort(), [workOrders]);
   const rows = useMemo(
     () =>
-      workOrders.filter((w) => (!kind || w.kind === kind) && (!priority || w.priority === priority) && (!skill || (skill === '-' ? !w.requiredSkill : w.requiredSkill === skill))),
+      workOrders.filter(
+        (w) =>
+          (!kind || w.kind === kind) &&
+          (!priority || w.priority === priority) &&
+          (!skill || (skill === '-' ? !w.requiredSkill : w.requiredSkill === skill)),
+      ),
     [workOrders, kind, priority, skill],
   );
 
@@ -187,16 +212,22 @@ export function UnplacedQueue({
   const columns = useMemo(
     () =>
       col.columns([
-      col.accessor((w) => rank[w.priority], { id: 'priority', header: 'Priority' }),
-      col.accessor((w) => Date.parse(w.createdAt), { id: 'age', header: 'Age' }),
-      col.accessor((w) => (w.slaDueAt ?? w.latestAt ? Date.parse((w.slaDueAt ?? w.latestAt)!) : Number.MAX_SAFE_INTEGER), { id: 'due', header: 'Due' }),
-      col.accessor((w) => w.requiredSkill ?? '~', { id: 'skill', header: 'Skill' }),
-      col.accessor((w) => w.kind, { id: 'kind', header: 'Kind' }),
+        col.accessor((w) => rank[w.priority], { id: 'priority', header: 'Priority' }),
+        col.accessor((w) => Date.parse(w.createdAt), { id: 'age', header: 'Age' }),
+        col.accessor((w) => ((w.slaDueAt ?? w.latestAt) ? Date.parse((w.slaDueAt ?? w.latestAt)!) : Number.MAX_SAFE_INTEGER), {
+          id: 'due',
+          header: 'Due',
+        }),
+        col.accessor((w) => w.requiredSkill ?? '~', { id: 'skill', header: 'Skill' }),
+        col.accessor((w) => w.kind, { id: 'kind', header: 'Kind' }),
       ]),
     [],
   );
   const [sortBy, setSortBy] = useState<SortKey>('priority');
-  const sorting: SortingState = [{ id: sortBy, desc: false }, ...(sortBy === 'priority' ? [{ id: 'due', desc: false }] : [{ id: 'priority', desc: false }])];
+  const sorting: SortingState = [
+    { id: sortBy, desc: false },
+    ...(sortBy === 'priority' ? [{ id: 'due', desc: false }] : [{ id: 'priority', desc: false }]),
+  ];
   const table = useTable({ features: coilpathTableFeatures, columns, data: rows, state: { sorting }, getRowId: (w: WorkOrder) => w.id });
   const sorted = table.getRowModel().rows.map((r) => r.original);
 
@@ -259,7 +290,17 @@ export function UnplacedQueue({
       ) : (
         <ul className="flex max-h-[1100px] flex-col gap-2 overflow-y-auto" aria-label="Unplaced work, sorted">
           {sorted.map((w) => (
-            <QueueItem key={w.id} w={w} timeZone={timeZone} today={today} now={now} onBook={onBook} mode={mode} picked={picked === w.id} onPick={onPick} />
+            <QueueItem
+              key={w.id}
+              w={w}
+              timeZone={timeZone}
+              today={today}
+              now={now}
+              onBook={onBook}
+              mode={mode}
+              picked={picked === w.id}
+              onPick={onPick}
+            />
           ))}
         </ul>
       )}

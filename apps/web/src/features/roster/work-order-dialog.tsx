@@ -22,7 +22,19 @@ const localInstant = (timeZone: string) => (v: unknown) => {
   return d && t ? localToInstant(d, t.slice(0, 5), timeZone) : v;
 };
 
-export function WorkOrderDialog({ open, branchId, timeZone, skills, onClose }: { open: boolean; branchId: string; timeZone: string; skills: string[]; onClose: () => void }) {
+export function WorkOrderDialog({
+  open,
+  branchId,
+  timeZone,
+  skills,
+  onClose,
+}: {
+  open: boolean;
+  branchId: string;
+  timeZone: string;
+  skills: string[];
+  onClose: () => void;
+}) {
   return (
     <Modal open={open} onClose={onClose} title="New work order">
       {open && <Body branchId={branchId} timeZone={timeZone} skills={skills} onClose={onClose} />}
@@ -37,7 +49,15 @@ function Body({ branchId, timeZone, skills, onClose }: { branchId: string; timeZ
   const [refusal, setRefusal] = useState<string>();
   const form = useForm<Form, unknown, FormOut>({
     resolver: zodResolver(workOrderCreateSchema),
-    defaultValues: { kind: 'service_call', priority: 'normal', complaint: '', estimatedMinutes: 60, siteId: '', unitId: null, originWorkOrderId: null },
+    defaultValues: {
+      kind: 'service_call',
+      priority: 'normal',
+      complaint: '',
+      estimatedMinutes: 60,
+      siteId: '',
+      unitId: null,
+      originWorkOrderId: null,
+    },
   });
   const { register, handleSubmit, watch, formState, setError } = form;
   const siteId = watch('siteId');
@@ -115,12 +135,35 @@ function Body({ branchId, timeZone, skills, onClose }: { branchId: string; timeZ
       )}
       <TextAreaField label="Complaint or purpose" error={err.complaint?.message} {...register('complaint')} />
       <div className="grid grid-cols-2 gap-3">
-        <TextField label={`Requested from (${timeZone})`} type="datetime-local" error={err.requestedFrom?.message} {...register('requestedFrom', { setValueAs: localInstant(timeZone) })} />
-        <TextField label={`Requested to (${timeZone})`} type="datetime-local" error={err.requestedTo?.message} {...register('requestedTo', { setValueAs: localInstant(timeZone) })} />
+        <TextField
+          label={`Requested from (${timeZone})`}
+          type="datetime-local"
+          error={err.requestedFrom?.message}
+          {...register('requestedFrom', { setValueAs: localInstant(timeZone) })}
+        />
+        <TextField
+          label={`Requested to (${timeZone})`}
+          type="datetime-local"
+          error={err.requestedTo?.message}
+          {...register('requestedTo', { setValueAs: localInstant(timeZone) })}
+        />
       </div>
       <div className="grid grid-cols-3 gap-3">
-        <TextField label="Estimated minutes" type="number" inputMode="numeric" min={15} step={15} error={err.estimatedMinutes?.message} {...register('estimatedMinutes')} />
-        <TextField label="Required skill" list="roster-skills" error={err.requiredSkill?.message} {...register('requiredSkill', optional)} />
+        <TextField
+          label="Estimated minutes"
+          type="number"
+          inputMode="numeric"
+          min={15}
+          step={15}
+          error={err.estimatedMinutes?.message}
+          {...register('estimatedMinutes')}
+        />
+        <TextField
+          label="Required skill"
+          list="roster-skills"
+          error={err.requiredSkill?.message}
+          {...register('requiredSkill', optional)}
+        />
         <SelectField label="EPA 608 needed" error={err.requiredCertification?.message} {...register('requiredCertification', optional)}>
           <option value="">None</option>
           <option value="I">Type I</option>

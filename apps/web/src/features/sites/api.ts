@@ -69,8 +69,15 @@ export function useInvalidateSites() {
 export function useRecordAction() {
   const invalidate = useInvalidateSites();
   return useMutation({
-    mutationFn: ({ kind, id, action }: { kind: 'customers' | 'sites' | 'units'; id: string; action: 'archive' | 'unarchive' | 'delete' }) =>
-      action === 'delete' ? api.delete<void>(`/api/${kind}/${id}`) : api.post<unknown>(`/api/${kind}/${id}/${action}`),
+    mutationFn: ({
+      kind,
+      id,
+      action,
+    }: {
+      kind: 'customers' | 'sites' | 'units';
+      id: string;
+      action: 'archive' | 'unarchive' | 'delete';
+    }) => (action === 'delete' ? api.delete<void>(`/api/${kind}/${id}`) : api.post<unknown>(`/api/${kind}/${id}/${action}`)),
     onSuccess: () => invalidate(),
   });
 }

@@ -5,7 +5,17 @@ import { Plus, Trash2 } from 'lucide-react';
 import { listRefrigerants } from '@coilpath/calc';
 import { applianceCategories, applianceCategoryLabels, unitKindLabels, unitKinds } from '@coilpath/contract/vocabulary';
 import { customerInputSchema, siteInputSchema, unitInputSchema } from '@coilpath/contract/sites';
-import type { CustomerInput, CustomerRow, CustomerValues, SiteInput, SiteRow, SiteValues, UnitInput, UnitRow, UnitValues } from '@coilpath/contract';
+import type {
+  CustomerInput,
+  CustomerRow,
+  CustomerValues,
+  SiteInput,
+  SiteRow,
+  SiteValues,
+  UnitInput,
+  UnitRow,
+  UnitValues,
+} from '@coilpath/contract';
 import { api } from '@/lib/api-client';
 import { applyServerErrors } from '@/lib/form-errors';
 import { Button } from '@/components/ui/button';
@@ -159,8 +169,20 @@ export function SiteForm({ site, onDone }: { site?: SiteRow; onDone: (s: SiteRow
         <TextField label="Postal code" {...form.register('postalCode')} error={e.postalCode?.message} />
       </div>
       <div className="grid gap-4 sm:grid-cols-2">
-        <TextField label="Latitude (°)" inputMode="decimal" {...form.register('lat', num)} error={e.lat?.message} hint="Decimal degrees, e.g. 39.7392" />
-        <TextField label="Longitude (°)" inputMode="decimal" {...form.register('lon', num)} error={e.lon?.message} hint="West is negative, e.g. -104.9903" />
+        <TextField
+          label="Latitude (°)"
+          inputMode="decimal"
+          {...form.register('lat', num)}
+          error={e.lat?.message}
+          hint="Decimal degrees, e.g. 39.7392"
+        />
+        <TextField
+          label="Longitude (°)"
+          inputMode="decimal"
+          {...form.register('lon', num)}
+          error={e.lon?.message}
+          hint="West is negative, e.g. -104.9903"
+        />
       </div>
       <TextAreaField
         label="Access notes"
@@ -265,28 +287,56 @@ export function UnitForm({ siteId, unit, onDone }: { siteId: string; unit?: Unit
         </SelectField>
         <TextField label="Full charge (lb)" inputMode="decimal" {...form.register('fullChargeLb', num)} error={e.fullChargeLb?.message} />
       </div>
-      <TextField label="Nominal tons (optional)" inputMode="decimal" className="sm:max-w-48" {...form.register('tonnage')} error={e.tonnage?.message} />
+      <TextField
+        label="Nominal tons (optional)"
+        inputMode="decimal"
+        className="sm:max-w-48"
+        {...form.register('tonnage')}
+        error={e.tonnage?.message}
+      />
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 text-sm font-semibold">Circuits</legend>
         {circuits.fields.map((c, i) => (
           <div key={c.id} className="grid grid-cols-[5rem_1fr_1fr_auto] items-end gap-2">
             <TextField label="Circuit" readOnly inputMode="numeric" {...form.register(`circuits.${i}.number`, num)} />
-            <TextField label="Compressors" inputMode="numeric" {...form.register(`circuits.${i}.compressorCount`, num)} error={e.circuits?.[i]?.compressorCount?.message} />
-            <TextField label="Charge (lb, optional)" inputMode="decimal" {...form.register(`circuits.${i}.chargeLb`)} error={e.circuits?.[i]?.chargeLb?.message} />
-            <Button variant="ghost" aria-label={`Remove circuit ${i + 1}`} disabled={circuits.fields.length === 1} onClick={() => circuits.remove(i)}>
+            <TextField
+              label="Compressors"
+              inputMode="numeric"
+              {...form.register(`circuits.${i}.compressorCount`, num)}
+              error={e.circuits?.[i]?.compressorCount?.message}
+            />
+            <TextField
+              label="Charge (lb, optional)"
+              inputMode="decimal"
+              {...form.register(`circuits.${i}.chargeLb`)}
+              error={e.circuits?.[i]?.chargeLb?.message}
+            />
+            <Button
+              variant="ghost"
+              aria-label={`Remove circuit ${i + 1}`}
+              disabled={circuits.fields.length === 1}
+              onClick={() => circuits.remove(i)}
+            >
               <Trash2 className="size-4" aria-hidden="true" />
             </Button>
           </div>
         ))}
         {e.circuits?.message && <p className="text-sm text-alarm">{e.circuits.message}</p>}
         <div>
-          <Button variant="secondary" size="sm" disabled={circuits.fields.length >= 8} onClick={() => circuits.append({ number: nextNumber(), compressorCount: 1, chargeLb: '' })}>
+          <Button
+            variant="secondary"
+            size="sm"
+            disabled={circuits.fields.length >= 8}
+            onClick={() => circuits.append({ number: nextNumber(), compressorCount: 1, chargeLb: '' })}
+          >
             <Plus className="size-4" aria-hidden="true" /> Add circuit
           </Button>
         </div>
       </fieldset>
       <TextAreaField label="Notes" {...form.register('notes')} error={e.notes?.message} />
-      <SafetyNote>Take the full charge from the unit’s nameplate or the manufacturer’s data; leak-rate deadlines are computed from it.</SafetyNote>
+      <SafetyNote>
+        Take the full charge from the unit’s nameplate or the manufacturer’s data; leak-rate deadlines are computed from it.
+      </SafetyNote>
       <FormError message={error} />
       <FormActions busy={form.formState.isSubmitting} label={unit ? 'Save unit' : 'Add unit'} onCancel={() => onDone(null)} />
     </form>

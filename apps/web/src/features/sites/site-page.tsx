@@ -45,7 +45,13 @@ export default function SitePage() {
       if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
       try {
         await mutateAsync({ kind, id, action: verb });
-        notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
+        notify(
+          verb === 'delete'
+            ? `Deleted ${name}.`
+            : verb === 'archive'
+              ? `Archived ${name}: hidden from booking, history kept.`
+              : `${name} is back in use.`,
+        );
         if (kind === 'sites' && verb === 'delete') navigate('/sites');
       } catch (e) {
         notify(errorMessage(e), 'alarm');
@@ -53,7 +59,6 @@ export default function SitePage() {
     },
     [mutateAsync, notify, navigate],
   );
-
 
   const columns = useMemo<CoilpathColumn<UnitRow>[]>(
     () => [
@@ -109,7 +114,11 @@ export default function SitePage() {
                 aria-label={u.archivedAt ? `Unarchive ${u.tag}` : `Archive ${u.tag}`}
                 onClick={() => run('units', u.id, u.archivedAt ? 'unarchive' : 'archive', u.tag)}
               >
-                {u.archivedAt ? <ArchiveRestore className="size-4" aria-hidden="true" /> : <Archive className="size-4" aria-hidden="true" />}
+                {u.archivedAt ? (
+                  <ArchiveRestore className="size-4" aria-hidden="true" />
+                ) : (
+                  <Archive className="size-4" aria-hidden="true" />
+                )}
               </Button>
               <Button variant="ghost" size="sm" aria-label={`Delete ${u.tag}`} onClick={() => run('units', u.id, 'delete', u.tag)}>
                 <Trash2 className="size-4" aria-hidden="true" />

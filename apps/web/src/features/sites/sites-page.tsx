@@ -22,7 +22,11 @@ export function StatusFilter({ value, onChange }: { value: string; onChange: (v:
   return (
     <label className="flex items-center gap-2 text-sm">
       <span className="text-slate">Show</span>
-      <select className="min-h-11 rounded-md border border-slate-line bg-white px-2" value={value} onChange={(e) => onChange(e.target.value)}>
+      <select
+        className="min-h-11 rounded-md border border-slate-line bg-white px-2"
+        value={value}
+        onChange={(e) => onChange(e.target.value)}
+      >
         <option value="active">In use</option>
         <option value="archived">Archived</option>
         <option value="all">All</option>
@@ -50,14 +54,19 @@ export default function SitesPage() {
       if (verb === 'delete' && !window.confirm(`Delete ${name}? This cannot be undone.`)) return;
       try {
         await mutateAsync({ kind, id, action: verb });
-        notify(verb === 'delete' ? `Deleted ${name}.` : verb === 'archive' ? `Archived ${name}: hidden from booking, history kept.` : `${name} is back in use.`);
+        notify(
+          verb === 'delete'
+            ? `Deleted ${name}.`
+            : verb === 'archive'
+              ? `Archived ${name}: hidden from booking, history kept.`
+              : `${name} is back in use.`,
+        );
       } catch (e) {
         notify(errorMessage(e), 'alarm');
       }
     },
     [mutateAsync, notify],
   );
-
 
   const siteColumns = useMemo<CoilpathColumn<SiteRow>[]>(
     () => [
@@ -79,7 +88,11 @@ export default function SitesPage() {
         ),
       },
       { accessorKey: 'customerName', header: 'Customer' },
-      { accessorKey: 'city', header: 'City', cell: ({ row }) => [row.original.city, row.original.region].filter(Boolean).join(', ') || '—' },
+      {
+        accessorKey: 'city',
+        header: 'City',
+        cell: ({ row }) => [row.original.city, row.original.region].filter(Boolean).join(', ') || '—',
+      },
       ...(branchId ? [] : [{ accessorKey: 'branchName', header: 'Branch' } as CoilpathColumn<SiteRow>]),
       { accessorKey: 'unitCount', header: 'Units', cell: ({ row }) => <span className="tabular">{row.original.unitCount}</span> },
       {
@@ -105,7 +118,11 @@ export default function SitesPage() {
                 aria-label={s.archivedAt ? `Unarchive ${s.name}` : `Archive ${s.name}`}
                 onClick={() => run('sites', s.id, s.archivedAt ? 'unarchive' : 'archive', s.name)}
               >
-                {s.archivedAt ? <ArchiveRestore className="size-4" aria-hidden="true" /> : <Archive className="size-4" aria-hidden="true" />}
+                {s.archivedAt ? (
+                  <ArchiveRestore className="size-4" aria-hidden="true" />
+                ) : (
+                  <Archive className="size-4" aria-hidden="true" />
+                )}
               </Button>
               <Button variant="ghost" size="sm" aria-label={`Delete ${s.name}`} onClick={() => run('sites', s.id, 'delete', s.name)}>
                 <Trash2 className="size-4" aria-hidden="true" />
@@ -159,7 +176,11 @@ export default function SitesPage() {
                 aria-label={c.archivedAt ? `Unarchive ${c.name}` : `Archive ${c.name}`}
                 onClick={() => run('customers', c.id, c.archivedAt ? 'unarchive' : 'archive', c.name)}
               >
-                {c.archivedAt ? <ArchiveRestore className="size-4" aria-hidden="true" /> : <Archive className="size-4" aria-hidden="true" />}
+                {c.archivedAt ? (
+                  <ArchiveRestore className="size-4" aria-hidden="true" />
+                ) : (
+                  <Archive className="size-4" aria-hidden="true" />
+                )}
               </Button>
               <Button variant="ghost" size="sm" aria-label={`Delete ${c.name}`} onClick={() => run('customers', c.id, 'delete', c.name)}>
                 <Trash2 className="size-4" aria-hidden="true" />
@@ -179,7 +200,16 @@ export default function SitesPage() {
       type="button"
       role="tab"
       aria-selected={tab === t}
-      onClick={() => list.set({ tab: t === 'sites' ? undefined : t, sort: undefined, dir: undefined, q: undefined, customer: undefined, status: undefined })}
+      onClick={() =>
+        list.set({
+          tab: t === 'sites' ? undefined : t,
+          sort: undefined,
+          dir: undefined,
+          q: undefined,
+          customer: undefined,
+          status: undefined,
+        })
+      }
       className={`min-h-11 border-b-2 px-4 text-sm font-medium ${tab === t ? 'border-copper text-ink' : 'border-transparent text-slate hover:text-ink'}`}
     >
       {label}
@@ -236,8 +266,8 @@ export default function SitesPage() {
               </Button>
             }
           >
-            Sites are the buildings you service. Add the customer, then its sites; then add units one by one or import them from a CSV file on the
-            site’s page.
+            Sites are the buildings you service. Add the customer, then its sites; then add units one by one or import them from a CSV file
+            on the site’s page.
           </EmptyState>
         ) : (
           <EmptyState

@@ -137,8 +137,8 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
   return (
     <div className="flex flex-col gap-4">
       <p className="text-sm text-slate">
-        One row per unit. Required columns: tag, kind, make, model, serial, refrigerant, full_charge_lb, appliance_category. Nothing is written until
-        every row is right; then all rows are imported together.
+        One row per unit. Required columns: tag, kind, make, model, serial, refrigerant, full_charge_lb, appliance_category. Nothing is
+        written until every row is right; then all rows are imported together.
       </p>
       <div className="flex flex-wrap items-center gap-2">
         <label className="inline-flex min-h-11 cursor-pointer items-center gap-2 rounded-md bg-copper px-4 text-sm font-medium text-white focus-within:outline-2 focus-within:outline-coolant hover:bg-copper-hover">
@@ -164,7 +164,13 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
 
       {phase.kind === 'reading' && <Progress label="Reading the file…" />}
       {phase.kind === 'checking' && (
-        <Progress label={phase.rows === null ? 'Checking the file on the server (nothing is written yet)…' : `Checking ${phase.rows.toLocaleString('en-US')} rows on the server (nothing is written yet)…`} />
+        <Progress
+          label={
+            phase.rows === null
+              ? 'Checking the file on the server (nothing is written yet)…'
+              : `Checking ${phase.rows.toLocaleString('en-US')} rows on the server (nothing is written yet)…`
+          }
+        />
       )}
       {phase.kind === 'importing' && <Progress label={`Importing ${phase.rows.toLocaleString('en-US')} units in one transaction…`} />}
       {phase.kind === 'failed' && (
@@ -187,8 +193,9 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
           ) : (
             <p role="alert" className="flex items-start gap-2 rounded-md bg-alarm-tint px-3 py-2 text-sm text-alarm">
               <AlertTriangle className="mt-0.5 size-4 shrink-0" aria-hidden="true" />
-              {errorsByRow.size.toLocaleString('en-US')} of {result.rowCount.toLocaleString('en-US')} rows have problems. Fix them in the file and choose
-              it again; nothing is imported until every row is right. Row numbers count data rows (row 1 is the first line under the header).
+              {errorsByRow.size.toLocaleString('en-US')} of {result.rowCount.toLocaleString('en-US')} rows have problems. Fix them in the
+              file and choose it again; nothing is imported until every row is right. Row numbers count data rows (row 1 is the first line
+              under the header).
             </p>
           )}
           {result.errors.length > 0 && (

@@ -19,17 +19,45 @@ import { applyServerErrors } from '@/lib/form-errors';
  * The branch's elevation, kept in metres (the schema's `elevationMeters`) and typed in feet for an
  * imperial branch: what is typed is kept as text while typing, and the field holds the metres.
  */
-function ElevationField({ control, imperial, error }: { control: Control<BranchInput, unknown, BranchValues>; imperial: boolean; error: string | undefined }) {
+function ElevationField({
+  control,
+  imperial,
+  error,
+}: {
+  control: Control<BranchInput, unknown, BranchValues>;
+  imperial: boolean;
+  error: string | undefined;
+}) {
   return (
     <Controller
       control={control}
       name="elevationMeters"
-      render={({ field }) => <ElevationInput metres={field.value as number | string | undefined} onChange={field.onChange} onBlur={field.onBlur} imperial={imperial} error={error} />}
+      render={({ field }) => (
+        <ElevationInput
+          metres={field.value as number | string | undefined}
+          onChange={field.onChange}
+          onBlur={field.onBlur}
+          imperial={imperial}
+          error={error}
+        />
+      )}
     />
   );
 }
 
-function ElevationInput({ metres, onChange, onBlur, imperial, error }: { metres: number | string | undefined; onChange: (v: number | string) => void; onBlur: () => void; imperial: boolean; error: string | undefined }) {
+function ElevationInput({
+  metres,
+  onChange,
+  onBlur,
+  imperial,
+  error,
+}: {
+  metres: number | string | undefined;
+  onChange: (v: number | string) => void;
+  onBlur: () => void;
+  imperial: boolean;
+  error: string | undefined;
+}) {
   const shown = (m: number | string | undefined) => {
     const n = Number(m ?? 0);
     return typeof m === 'string' || !Number.isFinite(n) ? String(m ?? '') : String(Math.round((imperial ? metresToFeet(n) : n) * 10) / 10);
@@ -65,7 +93,15 @@ function ElevationInput({ metres, onChange, onBlur, imperial, error }: { metres:
 }
 
 const num = { setValueAs: (v: unknown) => (v === '' || v === null || v === undefined ? undefined : Number(v)) };
-const dayNames: Record<(typeof weekdays)[number], string> = { sun: 'Sunday', mon: 'Monday', tue: 'Tuesday', wed: 'Wednesday', thu: 'Thursday', fri: 'Friday', sat: 'Saturday' };
+const dayNames: Record<(typeof weekdays)[number], string> = {
+  sun: 'Sunday',
+  mon: 'Monday',
+  tue: 'Tuesday',
+  wed: 'Wednesday',
+  thu: 'Thursday',
+  fri: 'Friday',
+  sat: 'Saturday',
+};
 
 export const standardHours: WorkingHours = {
   sun: null,
@@ -112,7 +148,12 @@ function WorkingHoursField({ control, errors }: { control: Control<PersonForm, u
           <fieldset className="flex flex-col gap-2">
             <legend className="mb-1 text-sm font-semibold">Working hours (branch time)</legend>
             <label className="flex items-center gap-2 text-sm">
-              <input type="checkbox" className="size-4" checked={value !== null} onChange={(e) => field.onChange(e.target.checked ? standardHours : null)} />
+              <input
+                type="checkbox"
+                className="size-4"
+                checked={value !== null}
+                onChange={(e) => field.onChange(e.target.checked ? standardHours : null)}
+              />
               Bookable on the Roster with these hours
             </label>
             {value !== null &&
@@ -122,13 +163,30 @@ function WorkingHoursField({ control, errors }: { control: Control<PersonForm, u
                   <div key={d} className="grid grid-cols-[7rem_auto_1fr_1fr] items-center gap-2 text-sm">
                     <span>{dayNames[d]}</span>
                     <label className="flex items-center gap-1">
-                      <input type="checkbox" className="size-4" checked={day !== null} onChange={(e) => setDay(d, e.target.checked ? { start: '07:00', end: '15:30' } : null)} />
+                      <input
+                        type="checkbox"
+                        className="size-4"
+                        checked={day !== null}
+                        onChange={(e) => setDay(d, e.target.checked ? { start: '07:00', end: '15:30' } : null)}
+                      />
                       <span className="sr-only">Works on {dayNames[d]}</span>
                     </label>
                     {day ? (
                       <>
-                        <input aria-label={`${dayNames[d]} start`} type="time" className="min-h-11 rounded-md border border-slate-line px-2" value={day.start} onChange={(e) => setDay(d, { ...day, start: e.target.value })} />
-                        <input aria-label={`${dayNames[d]} end`} type="time" className="min-h-11 rounded-md border border-slate-line px-2" value={day.end} onChange={(e) => setDay(d, { ...day, end: e.target.value })} />
+                        <input
+                          aria-label={`${dayNames[d]} start`}
+                          type="time"
+                          className="min-h-11 rounded-md border border-slate-line px-2"
+                          value={day.start}
+                          onChange={(e) => setDay(d, { ...day, start: e.target.value })}
+                        />
+                        <input
+                          aria-label={`${dayNames[d]} end`}
+                          type="time"
+                          className="min-h-11 rounded-md border border-slate-line px-2"
+                          value={day.end}
+                          onChange={(e) => setDay(d, { ...day, end: e.target.value })}
+                        />
                       </>
                     ) : (
                       <span className="col-span-2 text-slate">Day off</span>
@@ -197,13 +255,22 @@ export function PersonForm({ person, onDone }: { person?: UserRow; onDone: () =>
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-4">
       {!person && (
-        <TextField label="E-mail" type="email" inputMode="email" {...form.register('email')} error={form.formState.errors.email?.message} hint="The invitation link goes to this address." />
+        <TextField
+          label="E-mail"
+          type="email"
+          inputMode="email"
+          {...form.register('email')}
+          error={form.formState.errors.email?.message}
+          hint="The invitation link goes to this address."
+        />
       )}
       <div className="grid gap-4 sm:grid-cols-3">
         <TextField label="Name" {...form.register('profile.name')} error={e?.name?.message} />
         <SelectField
           label="Role"
-          {...form.register('profile.role', { onChange: (ev: { target: { value: string } }) => ev.target.value === 'owner' && form.setValue('profile.branchId', null) })}
+          {...form.register('profile.role', {
+            onChange: (ev: { target: { value: string } }) => ev.target.value === 'owner' && form.setValue('profile.branchId', null),
+          })}
           error={e?.role?.message}
         >
           {roles.map((r) => (
@@ -236,7 +303,12 @@ export function PersonForm({ person, onDone }: { person?: UserRow; onDone: () =>
             </option>
           ))}
         </SelectField>
-        <TextField label="Certification number" disabled={epa === 'none'} {...form.register('profile.epa608Number')} error={e?.epa608Number?.message} />
+        <TextField
+          label="Certification number"
+          disabled={epa === 'none'}
+          {...form.register('profile.epa608Number')}
+          error={e?.epa608Number?.message}
+        />
       </div>
       <Controller
         control={form.control}
@@ -338,7 +410,9 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
   const onSubmit = form.handleSubmit(async (values) => {
     setError(null);
     try {
-      const saved = branch ? await api.patch<BranchDetail>(`/api/branches/${branch.id}`, values) : await api.post<BranchDetail>('/api/branches', values);
+      const saved = branch
+        ? await api.patch<BranchDetail>(`/api/branches/${branch.id}`, values)
+        : await api.post<BranchDetail>('/api/branches', values);
       await qc.invalidateQueries({ queryKey: ['branches'] });
       notify(branch ? `Saved ${saved.name}.` : `Added branch ${saved.name} (${saved.timeZone}).`);
       onDone();
@@ -351,7 +425,13 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       <div className="grid gap-4 sm:grid-cols-3">
         <TextField label="Name" {...form.register('name')} error={e.name?.message} />
         <TextField label="Code" hint="2–8 letters, e.g. DEN" {...form.register('code')} error={e.code?.message} />
-        <TextField label="Time zone (IANA)" list="coilpath-zones" placeholder="America/Denver" {...form.register('timeZone')} error={e.timeZone?.message} />
+        <TextField
+          label="Time zone (IANA)"
+          list="coilpath-zones"
+          placeholder="America/Denver"
+          {...form.register('timeZone')}
+          error={e.timeZone?.message}
+        />
         <datalist id="coilpath-zones">
           {zones.map((z) => (
             <option key={z} value={z} />
@@ -381,13 +461,24 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       <Controller
         control={form.control}
         name="holidays"
-        render={({ field }) => <HolidaysField value={(field.value as string[] | undefined) ?? []} onChange={field.onChange} error={e.holidays?.message ?? e.holidays?.[0]?.message} />}
+        render={({ field }) => (
+          <HolidaysField
+            value={(field.value as string[] | undefined) ?? []}
+            onChange={field.onChange}
+            error={e.holidays?.message ?? e.holidays?.[0]?.message}
+          />
+        )}
       />
       <fieldset className="grid gap-4 sm:grid-cols-2">
         <legend className="mb-2 text-sm font-semibold">On the customer’s service summary</legend>
         <TextField label="Trading name" hint="Blank: the branch’s name" {...form.register('tradingName')} error={e.tradingName?.message} />
         <TextField label="Licence number" {...form.register('licenceNumber')} error={e.licenceNumber?.message} />
-        <TextField label="Office address" autoComplete="street-address" {...form.register('officeAddress')} error={e.officeAddress?.message} />
+        <TextField
+          label="Office address"
+          autoComplete="street-address"
+          {...form.register('officeAddress')}
+          error={e.officeAddress?.message}
+        />
         <TextField label="Office phone" type="tel" autoComplete="tel" {...form.register('officePhone')} error={e.officePhone?.message} />
         <TextField
           label="Office e-mail"
@@ -400,7 +491,13 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
       </fieldset>
       <fieldset className="grid gap-4 sm:grid-cols-3">
         <legend className="mb-2 text-sm font-semibold">Thresholds</legend>
-        <TextField label="Sensor check tolerance (%)" inputMode="decimal" {...form.register('sensorTolerancePercent', num)} error={e.sensorTolerancePercent?.message} hint="Controller vs reference gauge" />
+        <TextField
+          label="Sensor check tolerance (%)"
+          inputMode="decimal"
+          {...form.register('sensorTolerancePercent', num)}
+          error={e.sensorTolerancePercent?.message}
+          hint="Controller vs reference gauge"
+        />
         <TextField
           label="Sensor check tolerance (psi)"
           inputMode="decimal"
@@ -408,10 +505,30 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
           error={e.sensorToleranceAbsolute?.message}
           hint={siTolerance}
         />
-        <TextField label="Callback window (days)" inputMode="numeric" {...form.register('callbackWindowDays', num)} error={e.callbackWindowDays?.message} />
-        <TextField label="Model-alert inspections due within (days)" inputMode="numeric" {...form.register('inspectionDueDays', num)} error={e.inspectionDueDays?.message} />
-        <TextField label="Repeat alarm: same code N times" inputMode="numeric" {...form.register('repeatAlarmCount', num)} error={e.repeatAlarmCount?.message} />
-        <TextField label="…within M days" inputMode="numeric" {...form.register('repeatAlarmDays', num)} error={e.repeatAlarmDays?.message} />
+        <TextField
+          label="Callback window (days)"
+          inputMode="numeric"
+          {...form.register('callbackWindowDays', num)}
+          error={e.callbackWindowDays?.message}
+        />
+        <TextField
+          label="Model-alert inspections due within (days)"
+          inputMode="numeric"
+          {...form.register('inspectionDueDays', num)}
+          error={e.inspectionDueDays?.message}
+        />
+        <TextField
+          label="Repeat alarm: same code N times"
+          inputMode="numeric"
+          {...form.register('repeatAlarmCount', num)}
+          error={e.repeatAlarmCount?.message}
+        />
+        <TextField
+          label="…within M days"
+          inputMode="numeric"
+          {...form.register('repeatAlarmDays', num)}
+          error={e.repeatAlarmDays?.message}
+        />
       </fieldset>
       <FormFooter busy={form.formState.isSubmitting} label={branch ? 'Save branch' : 'Add branch'} onCancel={onDone} error={error} />
     </form>

@@ -60,7 +60,9 @@ export default function TeamPage() {
   const qc = useQueryClient();
   const list = useListParams({ sort: 'name', pageSize: 50 });
   const tab: Tab = (['invitations', 'branches'] as const).find((t) => t === list.searchParams.get('tab')) ?? 'people';
-  const [dialog, setDialog] = useState<{ kind: 'invite' } | { kind: 'person'; person: UserRow } | { kind: 'branch'; branch?: BranchDetail } | null>(null);
+  const [dialog, setDialog] = useState<
+    { kind: 'invite' } | { kind: 'person'; person: UserRow } | { kind: 'branch'; branch?: BranchDetail } | null
+  >(null);
   const where = branch ? branch.name : 'all branches';
   const status = (['inactive', 'all'] as const).find((s) => s === list.params.status) ?? 'active';
 
@@ -92,7 +94,8 @@ export default function TeamPage() {
   });
 
   const act = useMutation({
-    mutationFn: ({ path, method }: { path: string; method: 'post' | 'delete' }) => (method === 'post' ? api.post<unknown>(path) : api.delete<unknown>(path)),
+    mutationFn: ({ path, method }: { path: string; method: 'post' | 'delete' }) =>
+      method === 'post' ? api.post<unknown>(path) : api.delete<unknown>(path),
     onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: ['users'] }), qc.invalidateQueries({ queryKey: ['invitations'] })]),
   });
   const { mutateAsync } = act;
@@ -108,7 +111,6 @@ export default function TeamPage() {
     },
     [mutateAsync, notify],
   );
-
 
   const peopleColumns = useMemo<CoilpathColumn<UserRow>[]>(
     () => [
@@ -139,7 +141,15 @@ export default function TeamPage() {
         ),
       },
       { accessorKey: 'role', header: 'Role', cell: ({ row }) => roleLabels[row.original.role] },
-      ...(branchId ? [] : [{ accessorKey: 'branchName', header: 'Branch', cell: ({ row }) => row.original.branchName ?? 'Every branch' } as CoilpathColumn<UserRow>]),
+      ...(branchId
+        ? []
+        : [
+            {
+              accessorKey: 'branchName',
+              header: 'Branch',
+              cell: ({ row }) => row.original.branchName ?? 'Every branch',
+            } as CoilpathColumn<UserRow>,
+          ]),
       {
         id: 'epa',
         header: 'EPA 608',
@@ -187,7 +197,11 @@ export default function TeamPage() {
                     <UserX className="size-4" aria-hidden="true" /> Deactivate
                   </Button>
                 ) : (
-                  <Button variant="ghost" size="sm" onClick={() => run(`/api/users/${p.id}/reactivate`, 'post', `${p.name} can sign in again.`)}>
+                  <Button
+                    variant="ghost"
+                    size="sm"
+                    onClick={() => run(`/api/users/${p.id}/reactivate`, 'post', `${p.name} can sign in again.`)}
+                  >
                     <UserCheck className="size-4" aria-hidden="true" /> Reactivate
                   </Button>
                 ))}
@@ -239,7 +253,11 @@ export default function TeamPage() {
             <SearchBox value={list.params.q} onCommit={(text) => list.set({ q: text })} label="Search name or e-mail" />
             <label className="flex items-center gap-2 text-sm">
               <span className="text-slate">Show</span>
-              <select className="min-h-11 rounded-md border border-slate-line bg-white px-2" value={status} onChange={(e) => list.set({ status: e.target.value === 'active' ? undefined : e.target.value })}>
+              <select
+                className="min-h-11 rounded-md border border-slate-line bg-white px-2"
+                value={status}
+                onChange={(e) => list.set({ status: e.target.value === 'active' ? undefined : e.target.value })}
+              >
                 <option value="active">Active</option>
                 <option value="inactive">Deactivated</option>
                 <option value="all">All</option>
@@ -310,11 +328,21 @@ export default function TeamPage() {
                     </div>
                     {i.status !== 'used' && (
                       <div className="flex gap-1">
-                        <Button variant="secondary" size="sm" onClick={() => run(`/api/invitations/${i.id}/resend`, 'post', `Sent a new link to ${i.email}; the old one no longer works.`)}>
+                        <Button
+                          variant="secondary"
+                          size="sm"
+                          onClick={() =>
+                            run(`/api/invitations/${i.id}/resend`, 'post', `Sent a new link to ${i.email}; the old one no longer works.`)
+                          }
+                        >
                           <RotateCw className="size-4" aria-hidden="true" /> Send new link
                         </Button>
                         {i.status === 'pending' && (
-                          <Button variant="ghost" size="sm" onClick={() => run(`/api/invitations/${i.id}`, 'delete', `Withdrew the invitation to ${i.email}.`)}>
+                          <Button
+                            variant="ghost"
+                            size="sm"
+                            onClick={() => run(`/api/invitations/${i.id}`, 'delete', `Withdrew the invitation to ${i.email}.`)}
+                          >
                             <XCircle className="size-4" aria-hidden="true" /> Withdraw
                           </Button>
                         )}
@@ -380,10 +408,18 @@ export default function TeamPage() {
                   <dd>
                     {b.tradingName || b.name}
                     {b.licenceNumber ? `, licence ${b.licenceNumber}` : ''}
-                    {b.officeEmail ? <span className="block text-xs text-slate">Replies to {b.officeEmail}</span> : <span className="block text-xs text-slate">No office e-mail: replies go to the sending address</span>}
+                    {b.officeEmail ? (
+                      <span className="block text-xs text-slate">Replies to {b.officeEmail}</span>
+                    ) : (
+                      <span className="block text-xs text-slate">No office e-mail: replies go to the sending address</span>
+                    )}
                   </dd>
                   <dt className="text-slate">Holidays</dt>
-                  <dd>{b.holidays.length ? `${b.holidays.length} (next ${b.holidays.find((d) => d >= todayInZone(b.timeZone)) ?? '—'})` : 'None'}</dd>
+                  <dd>
+                    {b.holidays.length
+                      ? `${b.holidays.length} (next ${b.holidays.find((d) => d >= todayInZone(b.timeZone)) ?? '—'})`
+                      : 'None'}
+                  </dd>
                 </dl>
               </Card>
             ))}
@@ -404,10 +440,14 @@ export default function TeamPage() {
         {dialog?.kind === 'invite' && <PersonForm onDone={() => setDialog(null)} />}
         {dialog?.kind === 'person' && <PersonForm person={dialog.person} onDone={() => setDialog(null)} />}
       </Dialog>
-      <Dialog open={dialog?.kind === 'branch'} onClose={() => setDialog(null)} title={dialog?.kind === 'branch' && dialog.branch ? `Edit ${dialog.branch.name}` : 'Add branch'} wide>
+      <Dialog
+        open={dialog?.kind === 'branch'}
+        onClose={() => setDialog(null)}
+        title={dialog?.kind === 'branch' && dialog.branch ? `Edit ${dialog.branch.name}` : 'Add branch'}
+        wide
+      >
         {dialog?.kind === 'branch' && <BranchForm branch={dialog.branch} onDone={() => setDialog(null)} />}
       </Dialog>
     </>
   );
 }
-

@@ -128,7 +128,9 @@ export function CircuitTargetsList({ file, canEdit }: { file: UnitFile; canEdit:
                 </Button>
               </div>
             )}
-            {canEdit && editing === c.number && <TargetsForm unitId={file.unit.id} circuit={c} system={file.branch.unitSystem} onDone={() => setEditing(null)} />}
+            {canEdit && editing === c.number && (
+              <TargetsForm unitId={file.unit.id} circuit={c} system={file.branch.unitSystem} onDone={() => setEditing(null)} />
+            )}
           </li>
         ))}
       </ul>

@@ -8,7 +8,17 @@ import { formatInZone } from '@/lib/format';
  * Superheat/subcooling and suction/discharge pressure over time, in the units the readings state (the
  * unit branch's system): the axis, the caption and every tooltip value carry the unit symbol.
  */
-export function CircuitTrend({ readings, timeZone, circuit, units }: { readings: UnitFileReading[]; timeZone: string; circuit: number; units: ReadingUnits }) {
+export function CircuitTrend({
+  readings,
+  timeZone,
+  circuit,
+  units,
+}: {
+  readings: UnitFileReading[];
+  timeZone: string;
+  circuit: number;
+  units: ReadingUnits;
+}) {
   const data = readings.map((r) => ({
     t: new Date(r.takenAt).getTime(),
     superheat: r.superheat,
@@ -19,7 +29,13 @@ export function CircuitTrend({ readings, timeZone, circuit, units }: { readings:
   const tick = (v: number) => formatInZone(new Date(v), timeZone, 'd MMM yy');
   const dT = measureSymbol('temperatureDifference', units);
   const p = measureSymbol('pressure', units);
-  const axisLabel = (value: string) => ({ value, angle: -90, position: 'insideLeft' as const, offset: 10, style: { fontSize: 11, fill: '#5B6B7A', textAnchor: 'middle' as const } });
+  const axisLabel = (value: string) => ({
+    value,
+    angle: -90,
+    position: 'insideLeft' as const,
+    offset: 10,
+    style: { fontSize: 11, fill: '#5B6B7A', textAnchor: 'middle' as const },
+  });
   return (
     <div className="grid gap-4 lg:grid-cols-2">
       <figure aria-label={`Circuit ${circuit}: superheat and subcooling over time, in ${dT}`} className="h-56">
@@ -29,10 +45,30 @@ export function CircuitTrend({ readings, timeZone, circuit, units }: { readings:
             <CartesianGrid stroke="#D5DDE4" strokeDasharray="3 3" />
             <XAxis dataKey="t" type="number" scale="time" domain={['dataMin', 'dataMax']} tickFormatter={tick} tick={{ fontSize: 11 }} />
             <YAxis tick={{ fontSize: 11 }} width={52} label={axisLabel(dT)} />
-            <Tooltip labelFormatter={(v) => formatInZone(new Date(v as number), timeZone)} formatter={(v) => formatMeasure(v as number, 'temperatureDifference', units)} />
+            <Tooltip
+              labelFormatter={(v) => formatInZone(new Date(v as number), timeZone)}
+              formatter={(v) => formatMeasure(v as number, 'temperatureDifference', units)}
+            />
             <Legend />
-            <Line isAnimationActive={false} dataKey="superheat" name="Superheat" stroke="#1F7A8C" strokeWidth={2} dot={{ r: 3 }} connectNulls />
-            <Line isAnimationActive={false} dataKey="subcooling" name="Subcooling" stroke="#B5562B" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3 }} connectNulls />
+            <Line
+              isAnimationActive={false}
+              dataKey="superheat"
+              name="Superheat"
+              stroke="#1F7A8C"
+              strokeWidth={2}
+              dot={{ r: 3 }}
+              connectNulls
+            />
+            <Line
+              isAnimationActive={false}
+              dataKey="subcooling"
+              name="Subcooling"
+              stroke="#B5562B"
+              strokeWidth={2}
+              strokeDasharray="6 3"
+              dot={{ r: 3 }}
+              connectNulls
+            />
           </LineChart>
         </ResponsiveContainer>
       </figure>
@@ -49,7 +85,16 @@ export function CircuitTrend({ readings, timeZone, circuit, units }: { readings:
             />
             <Legend />
             <Line isAnimationActive={false} dataKey="suction" name="Suction" stroke="#3F5E8C" strokeWidth={2} dot={{ r: 3 }} connectNulls />
-            <Line isAnimationActive={false} dataKey="discharge" name="Discharge / liquid" stroke="#6B4E8E" strokeWidth={2} strokeDasharray="6 3" dot={{ r: 3 }} connectNulls />
+            <Line
+              isAnimationActive={false}
+              dataKey="discharge"
+              name="Discharge / liquid"
+              stroke="#6B4E8E"
+              strokeWidth={2}
+              strokeDasharray="6 3"
+              dot={{ r: 3 }}
+              connectNulls
+            />
           </LineChart>
         </ResponsiveContainer>
       </figure>

@@ -13,7 +13,17 @@ const SHOWN = 8;
  * state their units: the unit branch's system). The same data as the trend, for reading and for
  * screen readers.
  */
-export function ReadingsTable({ readings, timeZone, circuit, units }: { readings: UnitFileReading[]; timeZone: string; circuit: number; units: ReadingUnits }) {
+export function ReadingsTable({
+  readings,
+  timeZone,
+  circuit,
+  units,
+}: {
+  readings: UnitFileReading[];
+  timeZone: string;
+  circuit: number;
+  units: ReadingUnits;
+}) {
   const [all, setAll] = useState(false);
   const newest = [...readings].reverse();
   const rows = all ? newest : newest.slice(0, SHOWN);
@@ -39,7 +49,9 @@ export function ReadingsTable({ readings, timeZone, circuit, units }: { readings
               </th>
               <td>
                 {m(r.suctionPressure, 'pressure')}
-                {r.suctionPressureController !== null && <span className="block text-xs text-slate">controller {m(r.suctionPressureController, 'pressure')}</span>}
+                {r.suctionPressureController !== null && (
+                  <span className="block text-xs text-slate">controller {m(r.suctionPressureController, 'pressure')}</span>
+                )}
               </td>
               <td>{m(r.suctionLineTemp, 'temperature')}</td>
               <td className="font-medium">{m(r.superheat, 'temperatureDifference')}</td>

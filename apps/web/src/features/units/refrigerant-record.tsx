@@ -31,7 +31,6 @@ const stateTone: Record<LeakObligationState, 'alarm' | 'watch' | 'ok' | 'neutral
   plan: 'neutral',
 };
 
-
 function Rate({ e }: { e: RefrigerantRecordEvent }) {
   if (e.kind !== 'addition') return <>—</>;
   if (e.exempt) return <span className="text-xs text-slate">{additionExemptionLabels[e.exempt]}</span>;
@@ -42,7 +41,8 @@ function Rate({ e }: { e: RefrigerantRecordEvent }) {
     </span>
   ) : (
     <span>
-      <CheckCircle2 className="inline size-3.5 text-ok" aria-hidden="true" /> {formatNumber(e.rate.leakRatePercent, 2)} %/yr{e.rate.inScope ? ' — not over' : ''}
+      <CheckCircle2 className="inline size-3.5 text-ok" aria-hidden="true" /> {formatNumber(e.rate.leakRatePercent, 2)} %/yr
+      {e.rate.inScope ? ' — not over' : ''}
     </span>
   );
 }
@@ -56,20 +56,28 @@ export function RefrigerantRecordView({ record: r }: { record: RefrigerantRecord
           <span className="text-alarm">{r.computeError}</span>
         ) : r.inScope ? (
           <>
-            <strong>{r.rule}</strong>: a repair is owed when the leak rate is over <strong>{r.thresholdPercent} %</strong> per year. Latest rate{' '}
-            {formatNumber(r.leakRatePercent, 2)} %/yr ({leakRateMethodLabels[r.method].toLowerCase()}, full charge {formatNumber(r.appliance.fullChargeLb, 1)} lb).
+            <strong>{r.rule}</strong>: a repair is owed when the leak rate is over <strong>{r.thresholdPercent} %</strong> per year. Latest
+            rate {formatNumber(r.leakRatePercent, 2)} %/yr ({leakRateMethodLabels[r.method].toLowerCase()}, full charge{' '}
+            {formatNumber(r.appliance.fullChargeLb, 1)} lb).
           </>
         ) : (
           <>No leak-repair rule applies to this refrigerant and full charge today. Latest rate {formatNumber(r.leakRatePercent, 2)} %/yr.</>
         )}
-        {r.chronicYears.length > 0 && <span className="block text-alarm">Chronic leaker in {r.chronicYears.join(', ')}: 125 % or more of full charge added in the year.</span>}
+        {r.chronicYears.length > 0 && (
+          <span className="block text-alarm">
+            Chronic leaker in {r.chronicYears.join(', ')}: 125 % or more of full charge added in the year.
+          </span>
+        )}
       </p>
       <p className="text-xs text-slate">Full charge: {r.appliance.fullChargeBasis}</p>
 
       {r.events.length === 0 ? (
         <p className="text-sm text-slate">No refrigerant added or recovered, and no repairs or tests, on record.</p>
       ) : (
-        <UnitTable caption="Refrigerant record: every entry with the leak rate at that moment" head={['Date', 'Entry', 'Pounds', 'Leak rate', 'Rule, threshold', 'By']}>
+        <UnitTable
+          caption="Refrigerant record: every entry with the leak rate at that moment"
+          head={['Date', 'Entry', 'Pounds', 'Leak rate', 'Rule, threshold', 'By']}
+        >
           {r.events.map((e) => (
             <tr key={`${e.kind}-${e.sourceId}`}>
               <td className="whitespace-nowrap">{recordDate(e.date)}</td>
@@ -109,9 +117,9 @@ export function RefrigerantRecordView({ record: r }: { record: RefrigerantRecord
           <ol className="flex flex-col gap-2">
             {r.obligations.map((o) => (
               <li key={o.triggeredOn} className="rounded-md border border-slate-line p-3 text-sm">
-                <Badge tone={stateTone[o.state]}>{leakObligationStateLabels[o.state]}</Badge>{' '}
-                {recordDate(o.triggeredOn)}: {formatNumber(o.leakRatePercent, 2)} %/yr over {o.thresholdPercent} % ({o.rule}). Repair due {recordDate(o.repairDueDate)}; initial
-                verification test due {o.initialTestDue}
+                <Badge tone={stateTone[o.state]}>{leakObligationStateLabels[o.state]}</Badge> {recordDate(o.triggeredOn)}:{' '}
+                {formatNumber(o.leakRatePercent, 2)} %/yr over {o.thresholdPercent} % ({o.rule}). Repair due {recordDate(o.repairDueDate)};
+                initial verification test due {o.initialTestDue}
                 {o.followUpTestDue ? `; follow-up test due ${o.followUpTestDue}` : ''}.
                 {o.timeline.length > 0 && (
                   <ul className="mt-1 list-inside list-disc text-xs text-slate">
@@ -127,16 +135,15 @@ export function RefrigerantRecordView({ record: r }: { record: RefrigerantRecord
           </ol>
         )}
       </div>
-      <SafetyNote>
-        {r.cautions.join(' ')}
-      </SafetyNote>
+      <SafetyNote>{r.cautions.join(' ')}</SafetyNote>
     </div>
   );
 }
 
 export function RefrigerantRecordCard({ unitId }: { unitId: string }) {
   const q = useQuery(refrigerantRecordQuery(unitId));
-  const link = 'inline-flex min-h-11 items-center gap-2 rounded-md border border-slate-line px-3 text-sm font-medium text-ink hover:bg-frost';
+  const link =
+    'inline-flex min-h-11 items-center gap-2 rounded-md border border-slate-line px-3 text-sm font-medium text-ink hover:bg-frost';
   return (
     <Card
       title="Refrigerant record"

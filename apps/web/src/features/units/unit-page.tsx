@@ -3,7 +3,16 @@ import { Link, useParams, useSearchParams } from 'react-router-dom';
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import { AlertTriangle, FileText, Printer, Search } from 'lucide-react';
 import { recordDate } from '@coilpath/contract/date-words';
-import { applianceCategoryLabels, causeCodeLabels, causeOriginLabels, leakCaseStatusLabels, unitKindLabels, visitOutcomeLabels, workOrderKindLabels, workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import {
+  applianceCategoryLabels,
+  causeCodeLabels,
+  causeOriginLabels,
+  leakCaseStatusLabels,
+  unitKindLabels,
+  visitOutcomeLabels,
+  workOrderKindLabels,
+  workOrderStateLabels,
+} from '@coilpath/contract/vocabulary';
 import { measureSymbol, readingUnitsBySystem, readingsElevationNote } from '@coilpath/contract/measure';
 import type { UnitSearchResult } from '@coilpath/contract';
 import { useBranch } from '@/lib/branch';
@@ -23,8 +32,10 @@ import { appNow } from '@/lib/now';
 import { unitFileQuery } from '@/lib/visit-queries';
 
 const unitSearchQuery = (q: string, branchId: string | undefined) =>
-  queryOptions({ queryKey: ['units', 'search', q, branchId], queryFn: () => api.get<UnitSearchResult>('/api/unit-file', { q, branchId }, { check: 'unitSearchResultSchema' }) });
-
+  queryOptions({
+    queryKey: ['units', 'search', q, branchId],
+    queryFn: () => api.get<UnitSearchResult>('/api/unit-file', { q, branchId }, { check: 'unitSearchResultSchema' }),
+  });
 
 export default function UnitPage() {
   const { id } = useParams();
@@ -59,7 +70,14 @@ function UnitSearch() {
             : `Find a unit to see its circuits, alarms, readings, refrigerant log and work — ${branch?.name ?? 'all branches'}.`
         }
       />
-      <form role="search" className="mb-4 max-w-xl" onSubmit={(e) => { e.preventDefault(); setParams(text ? { q: text } : {}, { replace: true }); }}>
+      <form
+        role="search"
+        className="mb-4 max-w-xl"
+        onSubmit={(e) => {
+          e.preventDefault();
+          setParams(text ? { q: text } : {}, { replace: true });
+        }}
+      >
         <TextField
           label="Search units"
           placeholder="Tag, serial, make, model or site"
@@ -159,7 +177,11 @@ function UnitFileView({ id }: { id: string }) {
         subtitle={
           <>
             {u.make} {u.model} at {f.site.name} ({f.site.customerName}) — {f.branch.name}.{zoneNote}
-            {u.archivedAt && <Badge tone="neutral" className="ml-2">Archived</Badge>}
+            {u.archivedAt && (
+              <Badge tone="neutral" className="ml-2">
+                Archived
+              </Badge>
+            )}
           </>
         }
         actions={
@@ -193,7 +215,12 @@ function UnitFileView({ id }: { id: string }) {
               <figure className="sm:w-56">
                 {f.nameplate && f.nameplate.contentType.startsWith('image/') ? (
                   <a href={f.nameplate.url} target="_blank" rel="noreferrer">
-                    <img src={f.nameplate.url} alt={`Nameplate of ${u.tag}`} className="w-full rounded-md border border-slate-line object-cover" loading="lazy" />
+                    <img
+                      src={f.nameplate.url}
+                      alt={`Nameplate of ${u.tag}`}
+                      className="w-full rounded-md border border-slate-line object-cover"
+                      loading="lazy"
+                    />
                   </a>
                 ) : (
                   <div className="flex h-32 items-center justify-center rounded-md border border-dashed border-slate-line p-3 text-center text-xs text-slate">
@@ -231,21 +258,24 @@ function UnitFileView({ id }: { id: string }) {
         <Card title="Readings trend">
           <div className="mb-3">
             <SafetyNote>
-              Readings guide diagnosis alongside the manufacturer’s charging data, local codes and licensed practice. Pressures are reference-gauge
-              values in {measureSymbol('pressure', units)}; temperatures in {measureSymbol('temperature', units)}
-              {units.temperature === 'C' ? ', superheat and subcooling in K' : ''} ({f.branch.name}’s unit setting). Refrigerant work needs the
-              proper EPA 608 certification.
+              Readings guide diagnosis alongside the manufacturer’s charging data, local codes and licensed practice. Pressures are
+              reference-gauge values in {measureSymbol('pressure', units)}; temperatures in {measureSymbol('temperature', units)}
+              {units.temperature === 'C' ? ', superheat and subcooling in K' : ''} ({f.branch.name}’s unit setting). Refrigerant work needs
+              the proper EPA 608 certification.
               {readingsElevationNote(f.readings, f.branch.unitSystem) && <> {readingsElevationNote(f.readings, f.branch.unitSystem)}</>}
             </SafetyNote>
           </div>
           {circuitsWithReadings.length === 0 ? (
-            <EmptyState title="No readings yet">Readings recorded on visits (pressures and line temperatures per circuit) draw the trend here.</EmptyState>
+            <EmptyState title="No readings yet">
+              Readings recorded on visits (pressures and line temperatures per circuit) draw the trend here.
+            </EmptyState>
           ) : (
             <div className="flex flex-col gap-5">
               {circuitsWithReadings.map((c) => (
                 <section key={c.id} aria-label={`Circuit ${c.number}`}>
                   <h3 className="mb-2 text-sm font-semibold">
-                    Circuit {c.number} <span className="font-normal text-slate">({f.readings.filter((r) => r.circuitId === c.id).length} readings)</span>
+                    Circuit {c.number}{' '}
+                    <span className="font-normal text-slate">({f.readings.filter((r) => r.circuitId === c.id).length} readings)</span>
                   </h3>
                   <CircuitTrend readings={f.readings.filter((r) => r.circuitId === c.id)} timeZone={tz} circuit={c.number} units={units} />
                   <ReadingsTable readings={f.readings.filter((r) => r.circuitId === c.id)} timeZone={tz} circuit={c.number} units={units} />
@@ -300,13 +330,19 @@ function UnitFileView({ id }: { id: string }) {
                       {causeCodeLabels[x.causeCode]}
                       {x.notes && <span className="block text-xs text-slate">{x.notes}</span>}
                     </td>
-                    <td>{x.origin === 'factory_defect' ? <Badge tone="alarm">{causeOriginLabels[x.origin]}</Badge> : causeOriginLabels[x.origin]}</td>
+                    <td>
+                      {x.origin === 'factory_defect' ? (
+                        <Badge tone="alarm">{causeOriginLabels[x.origin]}</Badge>
+                      ) : (
+                        causeOriginLabels[x.origin]
+                      )}
+                    </td>
                     <td>
                       {x.alarmCode ?? '—'}
                       {x.reportedCircuit !== null && x.actualCircuit !== null && x.reportedCircuit !== x.actualCircuit ? (
                         <span className="block text-xs text-alarm">
-                          <AlertTriangle className="inline size-3" aria-hidden="true" /> Controller reported circuit {x.reportedCircuit}; fault was on
-                          circuit {x.actualCircuit}
+                          <AlertTriangle className="inline size-3" aria-hidden="true" /> Controller reported circuit {x.reportedCircuit};
+                          fault was on circuit {x.actualCircuit}
                         </span>
                       ) : x.actualCircuit !== null ? (
                         <span className="block text-xs text-slate">circuit {x.actualCircuit}</span>
@@ -328,14 +364,17 @@ function UnitFileView({ id }: { id: string }) {
               <ul className="flex flex-col gap-2">
                 {f.leakCases.map((c) => (
                   <li key={c.id} className="rounded-md border border-slate-line p-3 text-sm">
-                    <Badge tone={c.status === 'open' ? 'alarm' : 'ok'}>{leakCaseStatusLabels[c.status]}</Badge> Opened {recordDate(c.openedOn)} at{' '}
-                    {formatNumber(c.leakRatePercent, 1)} %/yr ({c.method}) over {c.thresholdPercent} % under {c.rule}. Repair due {recordDate(c.repairDueDate)}
+                    <Badge tone={c.status === 'open' ? 'alarm' : 'ok'}>{leakCaseStatusLabels[c.status]}</Badge> Opened{' '}
+                    {recordDate(c.openedOn)} at {formatNumber(c.leakRatePercent, 1)} %/yr ({c.method}) over {c.thresholdPercent} % under{' '}
+                    {c.rule}. Repair due {recordDate(c.repairDueDate)}
                     {c.repairedOn ? `, repaired ${recordDate(c.repairedOn)}` : ''}
                     {c.chronic ? ' · chronic leaker' : ''}.
                     {c.verificationTests.length > 0 && (
                       <span className="block text-xs text-slate">
                         Verification:{' '}
-                        {c.verificationTests.map((t) => `${t.kind === 'initial' ? 'initial' : 'follow-up'} ${t.testedOn} ${t.passed ? 'passed' : 'failed'}`).join('; ')}
+                        {c.verificationTests
+                          .map((t) => `${t.kind === 'initial' ? 'initial' : 'follow-up'} ${t.testedOn} ${t.passed ? 'passed' : 'failed'}`)
+                          .join('; ')}
                       </span>
                     )}
                   </li>

@@ -30,7 +30,9 @@ export function UnitTable({
             ))}
           </tr>
         </thead>
-        <tbody className={`${nowrap ? '[&_td]:whitespace-nowrap ' : ''}[&_td]:border-b [&_td]:border-slate-line/60 [&_td]:px-2 [&_td]:py-1.5 [&_td]:align-top`}>
+        <tbody
+          className={`${nowrap ? '[&_td]:whitespace-nowrap ' : ''}[&_td]:border-b [&_td]:border-slate-line/60 [&_td]:px-2 [&_td]:py-1.5 [&_td]:align-top`}
+        >
           {children}
         </tbody>
       </table>

@@ -49,7 +49,9 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
   return (
     <Card title="Photos and documents">
       {visit.attachments.length === 0 && waiting.length === 0 ? (
-        <p className="mb-3 text-sm text-slate">No photos yet. Photograph the nameplate, the wiring and what you found; PDFs (reports, quotes) can be attached too.</p>
+        <p className="mb-3 text-sm text-slate">
+          No photos yet. Photograph the nameplate, the wiring and what you found; PDFs (reports, quotes) can be attached too.
+        </p>
       ) : (
         <ul className="mb-3 flex flex-wrap gap-3">
           {visit.attachments.map((a) => (
@@ -82,7 +84,16 @@ export function AttachmentsSection({ visit }: { visit: VisitDetail }) {
               <Paperclip className="size-5" aria-hidden="true" /> Choose file
             </Button>
           </div>
-          <input ref={camera} type="file" accept="image/*" capture="environment" className="sr-only" tabIndex={-1} aria-hidden="true" onChange={onPick} />
+          <input
+            ref={camera}
+            type="file"
+            accept="image/*"
+            capture="environment"
+            className="sr-only"
+            tabIndex={-1}
+            aria-hidden="true"
+            onChange={onPick}
+          />
           <input
             ref={files}
             type="file"

@@ -18,7 +18,15 @@ const num = (s: string | undefined) => {
   return n === null || Number.isNaN(n) ? null : n;
 };
 
-function Figure({ label, name, side, pick, units, kind, live }: {
+function Figure({
+  label,
+  name,
+  side,
+  pick,
+  units,
+  kind,
+  live,
+}: {
   label: string;
   /** The accessible name ("Superheat, circuit 1"). */
   name: string;
@@ -34,7 +42,11 @@ function Figure({ label, name, side, pick, units, kind, live }: {
     <div className="min-w-0">
       <dt className="truncate text-xs text-slate">{label}</dt>
       <dd>
-        <output aria-label={name} aria-live={live ? undefined : 'off'} className={`block truncate text-base font-semibold tabular-nums ${side && !side.ok ? 'text-alarm' : 'text-ink'}`}>
+        <output
+          aria-label={name}
+          aria-live={live ? undefined : 'off'}
+          className={`block truncate text-base font-semibold tabular-nums ${side && !side.ok ? 'text-alarm' : 'text-ink'}`}
+        >
           {text}
         </output>
       </dd>
@@ -48,7 +60,16 @@ function Figure({ label, name, side, pick, units, kind, live }: {
  * the gauge (`sensorCheckView`, the branch's tolerance), and the circuit's target ranges with below / within /
  * above (`targetLines`, calc's `targetVerdict`). Nothing is computed here.
  */
-export function CircuitSummary({ title, where, refrigerant, values, units, branch, targets, targetsUnit }: {
+export function CircuitSummary({
+  title,
+  where,
+  refrigerant,
+  values,
+  units,
+  branch,
+  targets,
+  targetsUnit,
+}: {
   /** "RTU-1 · Circuit 2" */
   title: string;
   /** "RTU-1 circuit 2": names the figures for a screen reader. */
@@ -64,7 +85,12 @@ export function CircuitSummary({ title, where, refrigerant, values, units, branc
 }) {
   const live = liveValues(refrigerant, values, units, branch.elevationMeters);
   const value = (side: LiveValues['superheat']) => (side?.ok ? side.value : null);
-  const targetList = targetLines(targets, targetsUnit ?? units.temperature, { superheat: value(live.superheat), subcooling: value(live.subcooling) }, units);
+  const targetList = targetLines(
+    targets,
+    targetsUnit ?? units.temperature,
+    { superheat: value(live.superheat), subcooling: value(live.subcooling) },
+    units,
+  );
   const sensors = sensorPairs.flatMap(([key, label, controller, gauge]) => {
     const view = sensorCheckView(num(values[controller]), num(values[gauge]), units, branch);
     return view ? [{ key, label, view }] : [];
@@ -80,17 +106,53 @@ export function CircuitSummary({ title, where, refrigerant, values, units, branc
         {title} · {refrigerant}
       </p>
       <dl className="grid grid-cols-4 gap-2">
-        <Figure label="Dew point" name={`Suction saturation, ${where}`} side={live.superheat} pick="saturation" units={units} kind="temperature" live={false} />
-        <Figure label="Superheat" name={`Superheat, ${where}`} side={live.superheat} pick="value" units={units} kind="temperatureDifference" live />
-        <Figure label="Bubble point" name={`Liquid saturation, ${where}`} side={live.subcooling} pick="saturation" units={units} kind="temperature" live={false} />
-        <Figure label="Subcooling" name={`Subcooling, ${where}`} side={live.subcooling} pick="value" units={units} kind="temperatureDifference" live />
+        <Figure
+          label="Dew point"
+          name={`Suction saturation, ${where}`}
+          side={live.superheat}
+          pick="saturation"
+          units={units}
+          kind="temperature"
+          live={false}
+        />
+        <Figure
+          label="Superheat"
+          name={`Superheat, ${where}`}
+          side={live.superheat}
+          pick="value"
+          units={units}
+          kind="temperatureDifference"
+          live
+        />
+        <Figure
+          label="Bubble point"
+          name={`Liquid saturation, ${where}`}
+          side={live.subcooling}
+          pick="saturation"
+          units={units}
+          kind="temperature"
+          live={false}
+        />
+        <Figure
+          label="Subcooling"
+          name={`Subcooling, ${where}`}
+          side={live.subcooling}
+          pick="value"
+          units={units}
+          kind="temperatureDifference"
+          live
+        />
       </dl>
       <TargetRangeList lines={targetList} label={`Target ranges, ${where}`} className="mt-1" />
       {sensors.length > 0 && (
         <ul aria-label={`Controller against gauge, ${where}`} className="mt-1 flex flex-wrap gap-x-3 gap-y-0.5 text-xs tabular-nums">
           {sensors.map(({ key, label, view }) => (
             <li key={key} className={`inline-flex items-center gap-1 ${view.withinTolerance ? 'text-ok' : 'font-semibold text-alarm'}`}>
-              {view.withinTolerance ? <CheckCircle2 className="size-3.5 shrink-0" aria-hidden="true" /> : <AlertTriangle className="size-3.5 shrink-0" aria-hidden="true" />}
+              {view.withinTolerance ? (
+                <CheckCircle2 className="size-3.5 shrink-0" aria-hidden="true" />
+              ) : (
+                <AlertTriangle className="size-3.5 shrink-0" aria-hidden="true" />
+              )}
               {label} controller {view.difference} · {view.withinTolerance ? 'within' : 'outside'}
             </li>
           ))}

@@ -2,9 +2,30 @@ import { useState } from 'react';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import { AlertTriangle, CheckCircle2, MailWarning } from 'lucide-react';
-import { causeCodeLabels, causeOriginLabels, noteAudienceLabels, noteAudiences, returnNeedLabels, returnNeeds, signatureKindLabels, signatureKinds, visitOutcomeLabels, visitOutcomes, workOrderStateLabels } from '@coilpath/contract/vocabulary';
+import {
+  causeCodeLabels,
+  causeOriginLabels,
+  noteAudienceLabels,
+  noteAudiences,
+  returnNeedLabels,
+  returnNeeds,
+  signatureKindLabels,
+  signatureKinds,
+  visitOutcomeLabels,
+  visitOutcomes,
+  workOrderStateLabels,
+} from '@coilpath/contract/vocabulary';
 import { closeSignatureSchema, leakRepairCloseRefusal, rootCauseChoice, signatureChoiceRefusal } from '@coilpath/contract/visits';
-import type { CloseVisitResult, NoteAudience, ReturnNeed, CloseSignature, SignatureKind, SummaryMailResult, VisitDetail, VisitOutcome } from '@coilpath/contract';
+import type {
+  CloseVisitResult,
+  NoteAudience,
+  ReturnNeed,
+  CloseSignature,
+  SignatureKind,
+  SummaryMailResult,
+  VisitDetail,
+  VisitOutcome,
+} from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
 import { TextAreaField, TextField } from '@/components/ui/field';
 import { Card } from '@/components/ui/page';
@@ -28,7 +49,11 @@ function SignOff({ visit }: { visit: VisitDetail }) {
   if (sig.kind === 'customer_not_available') return <p>Customer not available to sign.</p>;
   return (
     <figure className="flex flex-col gap-1">
-      <img src={sig.imageUrl} alt={`Signature of ${sig.signerName}`} className="h-24 w-full max-w-xs rounded border border-slate-line bg-white object-contain" />
+      <img
+        src={sig.imageUrl}
+        alt={`Signature of ${sig.signerName}`}
+        className="h-24 w-full max-w-xs rounded border border-slate-line bg-white object-contain"
+      />
       <figcaption>
         Signed by <strong>{sig.signerName}</strong>, {formatInZone(sig.signedAt, visit.branch.timeZone)}
       </figcaption>
@@ -102,8 +127,12 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
       <Card title="Close-out">
         <div className="flex flex-col gap-2 text-sm">
           <p>
-            Closed {visit.closedAt ? formatInZone(visit.closedAt, visit.branch.timeZone) : ''} as <strong>{visit.outcome ? visitOutcomeLabels[visit.outcome] : '—'}</strong>
-            {visit.outcome === 'needs_return' && visit.returnNeeds.length > 0 && <> — needs {visit.returnNeeds.map((n) => returnNeedLabels[n].toLowerCase()).join(', ')}</>}.
+            Closed {visit.closedAt ? formatInZone(visit.closedAt, visit.branch.timeZone) : ''} as{' '}
+            <strong>{visit.outcome ? visitOutcomeLabels[visit.outcome] : '—'}</strong>
+            {visit.outcome === 'needs_return' && visit.returnNeeds.length > 0 && (
+              <> — needs {visit.returnNeeds.map((n) => returnNeedLabels[n].toLowerCase()).join(', ')}</>
+            )}
+            .
           </p>
           <SignOff visit={visit} />
           {result?.returnWorkOrder && (
@@ -116,17 +145,22 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           )}
           {closeWaiting ? (
             <p role="status" className="rounded-md border border-watch-base/40 bg-watch-tint p-3">
-              The close-out is kept on this phone and waits to send, after the changes made before it. The service summary goes to the site contact
-              once it arrives.
+              The close-out is kept on this phone and waits to send, after the changes made before it. The service summary goes to the site
+              contact once it arrives.
             </p>
           ) : s ? (
             <SummaryLine s={s} onResend={doResend} busy={resend.isPending} />
           ) : visit.summarySentAt ? (
             <p className="inline-flex items-center gap-1 text-ok">
-              <CheckCircle2 className="size-4" aria-hidden="true" /> Service summary sent {formatInZone(visit.summarySentAt, visit.branch.timeZone)}.
+              <CheckCircle2 className="size-4" aria-hidden="true" /> Service summary sent{' '}
+              {formatInZone(visit.summarySentAt, visit.branch.timeZone)}.
             </p>
           ) : (
-            <SummaryLine s={{ sent: false, to: 'the site contact', error: 'The service summary has not been sent.' }} onResend={doResend} busy={resend.isPending} />
+            <SummaryLine
+              s={{ sent: false, to: 'the site contact', error: 'The service summary has not been sent.' }}
+              onResend={doResend}
+              busy={resend.isPending}
+            />
           )}
           <p>
             <Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">
@@ -142,7 +176,12 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
   const notOnSite = visit.status !== 'on_site';
   // The server's rule: a leak repair closed as resolved with no verification test and no refrigerant entry is confirmed in words.
   const unverified = outcome
-    ? leakRepairCloseRefusal({ leakRepair: visit.leakRepair, outcome, refrigerantEntries: visit.refrigerantEvents.length, confirmed: false })
+    ? leakRepairCloseRefusal({
+        leakRepair: visit.leakRepair,
+        outcome,
+        refrigerantEntries: visit.refrigerantEvents.length,
+        confirmed: false,
+      })
     : null;
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
@@ -160,25 +199,31 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
     const unsigned = signatureChoiceRefusal(signOff ? { kind: signOff } : null);
     if (unsigned) return setError(unsigned.message);
     const asked: CloseSignature =
-      signOff === 'signed' ? { kind: 'signed', signerName, imagePng: drawn?.imagePng ?? '', ...(drawn ? { signedAt: drawn.signedAt } : {}) } : { kind: 'customer_not_available' };
+      signOff === 'signed'
+        ? { kind: 'signed', signerName, imagePng: drawn?.imagePng ?? '', ...(drawn ? { signedAt: drawn.signedAt } : {}) }
+        : { kind: 'customer_not_available' };
     const parsed = closeSignatureSchema.safeParse(asked);
     if (!parsed.success) return setError(parsed.error.issues[0]?.message ?? 'Check the signature.');
     const signature = parsed.data;
     // Through the outbox: closed on this phone at once, sent after the visit's earlier changes.
-    queueWrite(qc, {
-      kind: 'close',
-      visitId: visit.id,
-      body: {
-        outcome,
-        returnNeeds: outcome === 'needs_return' ? needs : [],
-        returnNotes: returnNotes.trim() || null,
-        notes: notes.trim() || null,
-        notesAudience,
-        rootCauseFindingId: choice.findingId,
-        ...(unverified ? { confirmedWithoutVerification: confirmedUnverified } : {}),
-        signature,
+    queueWrite(
+      qc,
+      {
+        kind: 'close',
+        visitId: visit.id,
+        body: {
+          outcome,
+          returnNeeds: outcome === 'needs_return' ? needs : [],
+          returnNotes: returnNotes.trim() || null,
+          notes: notes.trim() || null,
+          notesAudience,
+          rootCauseFindingId: choice.findingId,
+          ...(unverified ? { confirmedWithoutVerification: confirmedUnverified } : {}),
+          signature,
+        },
       },
-    }, { sent: arrived, stopped: (e) => notify(`Visit not closed: ${e.problem?.message ?? 'refused'}`, 'alarm') }).then(
+      { sent: arrived, stopped: (e) => notify(`Visit not closed: ${e.problem?.message ?? 'refused'}`, 'alarm') },
+    ).then(
       () => {
         if (!onlineManager.isOnline()) notify('Visit closed on this phone; the close-out is sent when the connection is back.');
       },
@@ -193,8 +238,18 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           <legend className="mb-2 text-sm font-medium">Outcome</legend>
           <div className="flex flex-col gap-2">
             {visitOutcomes.map((o) => (
-              <label key={o} className="flex min-h-12 cursor-pointer items-start gap-3 rounded-md border border-slate-line p-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint">
-                <input type="radio" name="outcome" value={o} checked={outcome === o} onChange={() => setOutcome(o)} className="mt-1 size-5" />
+              <label
+                key={o}
+                className="flex min-h-12 cursor-pointer items-start gap-3 rounded-md border border-slate-line p-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint"
+              >
+                <input
+                  type="radio"
+                  name="outcome"
+                  value={o}
+                  checked={outcome === o}
+                  onChange={() => setOutcome(o)}
+                  className="mt-1 size-5"
+                />
                 <span>
                   <span className="block font-medium">{visitOutcomeLabels[o]}</span>
                   <span className="block text-sm text-slate">{outcomeHelp[o]}</span>
@@ -220,7 +275,11 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
               ))}
             </div>
             <div className="mt-3">
-              <TextAreaField label="Return visit notes (parts, who to bring)" value={returnNotes} onChange={(e) => setReturnNotes(e.target.value)} />
+              <TextAreaField
+                label="Return visit notes (parts, who to bring)"
+                value={returnNotes}
+                onChange={(e) => setReturnNotes(e.target.value)}
+              />
             </div>
           </fieldset>
         )}
@@ -228,7 +287,9 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           <fieldset>
             <legend className="mb-1 text-sm font-medium">Root cause</legend>
             <p className="mb-2 text-sm text-slate">
-              {visit.findings.length > 1 ? 'Which finding caused the call? Fix Quality counts the call under this one.' : 'The one finding is the root cause.'}
+              {visit.findings.length > 1
+                ? 'Which finding caused the call? Fix Quality counts the call under this one.'
+                : 'The one finding is the root cause.'}
             </p>
             <div className="flex flex-col gap-2">
               {visit.findings.map((f) => (
@@ -261,13 +322,25 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           <legend className="mb-2 text-sm font-medium">Who the notes are for</legend>
           <div className="grid grid-cols-1 gap-2 sm:grid-cols-2">
             {noteAudiences.map((a) => (
-              <label key={a} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint">
-                <input type="radio" name="notesAudience" value={a} checked={notesAudience === a} onChange={() => setNotesAudience(a)} className="size-5" />
+              <label
+                key={a}
+                className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint"
+              >
+                <input
+                  type="radio"
+                  name="notesAudience"
+                  value={a}
+                  checked={notesAudience === a}
+                  onChange={() => setNotesAudience(a)}
+                  className="size-5"
+                />
                 {noteAudienceLabels[a]}
               </label>
             ))}
           </div>
-          <p className="mt-1 text-xs text-slate">Only notes for the customer go into the service summary; return needs, warranty and staffing stay internal.</p>
+          <p className="mt-1 text-xs text-slate">
+            Only notes for the customer go into the service summary; return needs, warranty and staffing stay internal.
+          </p>
         </fieldset>
         {unverified && (
           <div className="flex flex-col gap-2 rounded-md border border-watch-base/40 bg-watch-tint p-3 text-sm text-ink">
@@ -276,17 +349,27 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
               <span>{unverified.message}</span>
             </p>
             <label className="flex min-h-12 cursor-pointer items-center gap-3">
-              <input type="checkbox" className="size-5" checked={confirmedUnverified} onChange={(e) => setConfirmedUnverified(e.target.checked)} />
+              <input
+                type="checkbox"
+                className="size-5"
+                checked={confirmedUnverified}
+                onChange={(e) => setConfirmedUnverified(e.target.checked)}
+              />
               Yes, close the leak repair as resolved without a verification test or refrigerant entry
             </label>
           </div>
         )}
         <fieldset>
           <legend className="mb-1 text-sm font-medium">Customer sign-off</legend>
-          <p className="mb-2 text-sm text-slate">The customer’s on-site contact signs here; the signature and their name go on the service summary.</p>
+          <p className="mb-2 text-sm text-slate">
+            The customer’s on-site contact signs here; the signature and their name go on the service summary.
+          </p>
           <div className="grid grid-cols-1 gap-2 sm:grid-cols-2">
             {signatureKinds.map((k) => (
-              <label key={k} className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint">
+              <label
+                key={k}
+                className="flex min-h-12 cursor-pointer items-center gap-3 rounded-md border border-slate-line px-3 has-[:checked]:border-copper has-[:checked]:bg-copper-tint"
+              >
                 <input type="radio" name="signOff" value={k} checked={signOff === k} onChange={() => setSignOff(k)} className="size-5" />
                 {signatureKindLabels[k]}
               </label>
@@ -294,14 +377,21 @@ export function CloseSection({ visit, unsaved }: { visit: VisitDetail; unsaved: 
           </div>
           {signOff === 'signed' && (
             <div className="mt-3 flex flex-col gap-3">
-              <TextField label="Signer’s printed name" autoComplete="off" value={signerName} onChange={(e) => setSignerName(e.target.value)} maxLength={120} />
+              <TextField
+                label="Signer’s printed name"
+                autoComplete="off"
+                value={signerName}
+                onChange={(e) => setSignerName(e.target.value)}
+                maxLength={120}
+              />
               <SignaturePadField label="Signature" onChange={setDrawn} />
             </div>
           )}
         </fieldset>
         {unsaved && (
           <p className="inline-flex items-center gap-1 text-sm text-watch">
-            <AlertTriangle className="size-4" aria-hidden="true" /> Some entries are not saved yet; they will not be in the summary. Save them first.
+            <AlertTriangle className="size-4" aria-hidden="true" /> Some entries are not saved yet; they will not be in the summary. Save
+            them first.
           </p>
         )}
         {notOnSite && <p className="text-sm text-slate">Mark yourself on site before closing, so the visit’s times are right.</p>}

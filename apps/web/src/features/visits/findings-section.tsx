@@ -3,7 +3,14 @@ import { useForm } from 'react-hook-form';
 import { onlineManager, useQueryClient } from '@tanstack/react-query';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { z } from 'zod';
-import { causeCodeLabels, causeCodes, causeOriginLabels, causeOrigins, noteAudienceLabels, noteAudiences } from '@coilpath/contract/vocabulary';
+import {
+  causeCodeLabels,
+  causeCodes,
+  causeOriginLabels,
+  causeOrigins,
+  noteAudienceLabels,
+  noteAudiences,
+} from '@coilpath/contract/vocabulary';
 import { findingInputSchema } from '@coilpath/contract/visits';
 import type { FindingInput, VisitDetail } from '@coilpath/contract';
 import { Button } from '@/components/ui/button';
@@ -41,14 +48,31 @@ const toInput = (v: z.output<typeof formSchema>, id: string): FindingInput & { i
     notesAudience: v.notesAudience,
   }) as FindingInput & { id: string };
 
-export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; draft: VisitDraft; update(fn: (d: VisitDraft) => VisitDraft): void }) {
+export function FindingsSection({
+  visit,
+  draft,
+  update,
+}: {
+  visit: VisitDetail;
+  draft: VisitDraft;
+  update(fn: (d: VisitDraft) => VisitDraft): void;
+}) {
   const notify = useNotify();
   const qc = useQueryClient();
   const { entries } = useOutbox(visit.id);
   const circuits = [...new Set(visit.units.flatMap((u) => u.circuits.map((c) => c.number)))].sort((a, b) => a - b);
   const form = useForm<FormValues>({
     resolver: zodResolver(formSchema),
-    defaultValues: { unitId: visit.units.length === 1 ? visit.units[0]!.id : '', causeCode: undefined, origin: undefined, alarmCode: '', reportedCircuit: '', actualCircuit: '', notes: '', notesAudience: 'internal' },
+    defaultValues: {
+      unitId: visit.units.length === 1 ? visit.units[0]!.id : '',
+      causeCode: undefined,
+      origin: undefined,
+      alarmCode: '',
+      reportedCircuit: '',
+      actualCircuit: '',
+      notes: '',
+      notesAudience: 'internal',
+    },
   });
   const unitTag = (id: string | null | undefined) => visit.units.find((u) => u.id === id)?.tag;
 
@@ -63,7 +87,8 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
       },
     ).then(
       () => {
-        if (!onlineManager.isOnline()) notify(`Finding kept on this phone: ${causeCodeLabels[f.causeCode]}. It is sent when the connection is back.`);
+        if (!onlineManager.isOnline())
+          notify(`Finding kept on this phone: ${causeCodeLabels[f.causeCode]}. It is sent when the connection is back.`);
       },
       (e: unknown) => notify(`Finding not kept: ${errorMessage(e)}`, 'alarm'),
     );
@@ -90,7 +115,11 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
 
   // "Enter" in the alarm code moves on rather than adding the finding half filled.
   const { attach: enterGroup, onKeyDown: enterNext } = useEnterNext<HTMLFormElement>();
-  const waitingIds = new Set(entries.filter((e) => e.state === 'waiting' && e.write.kind === 'finding').map((e) => (e.write.kind === 'finding' ? e.write.body.id : '')));
+  const waitingIds = new Set(
+    entries
+      .filter((e) => e.state === 'waiting' && e.write.kind === 'finding')
+      .map((e) => (e.write.kind === 'finding' ? e.write.body.id : '')),
+  );
   const saved = visit.findings.filter((f) => !draft.findings.some((p) => p.id === f.id));
   const pending = draft.findings;
   return (
@@ -99,30 +128,32 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
         <p className="mb-3 text-sm text-slate">No findings yet. Record what caused the problem and where it came from.</p>
       ) : (
         <ul className="mb-4 flex flex-col gap-2">
-          {[...saved.map((f) => ({ f, isPending: waitingIds.has(f.id) })), ...pending.map((f) => ({ f, isPending: true }))].map(({ f, isPending }) => (
-            <li key={f.id} className="rounded-md border border-slate-line p-3 text-sm">
-              <div className="flex flex-wrap items-center gap-2">
-                <strong>{causeCodeLabels[f.causeCode]}</strong>
-                <Badge>{causeOriginLabels[f.origin]}</Badge>
-                {f.alarmCode && <Badge tone="info">Alarm {f.alarmCode}</Badge>}
-                {unitTag(f.unitId) && visit.units.length > 1 && <Badge>{unitTag(f.unitId)}</Badge>}
-                {isPending && <Badge tone="watch">Waiting to send</Badge>}
-              </div>
-              {(f.reportedCircuit != null || f.actualCircuit != null) && (
-                <p className="mt-1">
-                  Reported on circuit {f.reportedCircuit ?? '—'}, fault found on circuit {f.actualCircuit ?? '—'}
-                  {f.reportedCircuit != null && f.actualCircuit != null && f.reportedCircuit !== f.actualCircuit && (
-                    <strong className="text-alarm"> — circuits differ</strong>
-                  )}
-                </p>
-              )}
-              {f.notes && (
-                <p className="mt-1 text-slate">
-                  {f.notes} <span className="text-xs">({noteAudienceLabels[f.notesAudience ?? 'internal'].toLowerCase()})</span>
-                </p>
-              )}
-            </li>
-          ))}
+          {[...saved.map((f) => ({ f, isPending: waitingIds.has(f.id) })), ...pending.map((f) => ({ f, isPending: true }))].map(
+            ({ f, isPending }) => (
+              <li key={f.id} className="rounded-md border border-slate-line p-3 text-sm">
+                <div className="flex flex-wrap items-center gap-2">
+                  <strong>{causeCodeLabels[f.causeCode]}</strong>
+                  <Badge>{causeOriginLabels[f.origin]}</Badge>
+                  {f.alarmCode && <Badge tone="info">Alarm {f.alarmCode}</Badge>}
+                  {unitTag(f.unitId) && visit.units.length > 1 && <Badge>{unitTag(f.unitId)}</Badge>}
+                  {isPending && <Badge tone="watch">Waiting to send</Badge>}
+                </div>
+                {(f.reportedCircuit != null || f.actualCircuit != null) && (
+                  <p className="mt-1">
+                    Reported on circuit {f.reportedCircuit ?? '—'}, fault found on circuit {f.actualCircuit ?? '—'}
+                    {f.reportedCircuit != null && f.actualCircuit != null && f.reportedCircuit !== f.actualCircuit && (
+                      <strong className="text-alarm"> — circuits differ</strong>
+                    )}
+                  </p>
+                )}
+                {f.notes && (
+                  <p className="mt-1 text-slate">
+                    {f.notes} <span className="text-xs">({noteAudienceLabels[f.notesAudience ?? 'internal'].toLowerCase()})</span>
+                  </p>
+                )}
+              </li>
+            ),
+          )}
         </ul>
       )}
       {visit.canRecord && (
@@ -173,7 +204,11 @@ export function FindingsSection({ visit, draft, update }: { visit: VisitDetail; 
           <div className="sm:col-span-2">
             <TextAreaField label="Notes" {...form.register('notes')} />
           </div>
-          <SelectField label="Who the notes are for" hint="Only notes for the customer go into the service summary." {...form.register('notesAudience')}>
+          <SelectField
+            label="Who the notes are for"
+            hint="Only notes for the customer go into the service summary."
+            {...form.register('notesAudience')}
+          >
             {noteAudiences.map((a) => (
               <option key={a} value={a}>
                 {noteAudienceLabels[a]}

@@ -25,7 +25,11 @@ export function QueuedThumb({ file, fileName, kind }: { file: Blob; fileName: st
   return (
     <div className="flex w-28 flex-col gap-1 text-xs">
       {drawable(blob.type) ? (
-        <img ref={show} alt={`${kind === 'nameplate' ? 'Nameplate' : 'Photo'} waiting to send: ${fileName}`} className="size-28 rounded-md border border-slate-line object-cover" />
+        <img
+          ref={show}
+          alt={`${kind === 'nameplate' ? 'Nameplate' : 'Photo'} waiting to send: ${fileName}`}
+          className="size-28 rounded-md border border-slate-line object-cover"
+        />
       ) : (
         <span className="flex size-28 items-center justify-center rounded-md border border-slate-line bg-frost">
           <FileText className="size-8 text-slate" aria-hidden="true" />

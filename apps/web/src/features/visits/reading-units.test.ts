@@ -44,7 +44,11 @@ describe('typed values', () => {
   });
 
   it('moves a draft typed in psig/°F to kPa(g)/°C (1 psi = 6.894757293168 kPa, NIST SP 811; °C = (°F − 32) × 5/9)', () => {
-    const moved = convertEntries({ suctionPressure: '118', suctionLineTemp: '50', outdoorTemp: '14', notes: 'x', liquidPressure: 'abc' }, imperial, si);
+    const moved = convertEntries(
+      { suctionPressure: '118', suctionLineTemp: '50', outdoorTemp: '14', notes: 'x', liquidPressure: 'abc' },
+      imperial,
+      si,
+    );
     expect(moved).toEqual({ suctionPressure: '813.58', suctionLineTemp: '10', outdoorTemp: '-10', notes: 'x', liquidPressure: 'abc' });
     expect(convertEntries({ suctionPressure: '813.58' }, si, imperial)).toEqual({ suctionPressure: '118' });
     const same = { suctionPressure: '118' };
@@ -61,7 +65,11 @@ describe('live superheat and subcooling', () => {
   // Check values: tests/reference/data/refrigerant-saturation.json (CoolProp 8.0.0), R-410A:
   // 111.5 psig = 768.8 kPa(g): dew 36.93 °F = 2.74 °C; 349.9 psig = 2412.5 kPa(g): bubble 106.66 °F = 41.48 °C.
   it('computes in kPa(g)/°C and gives superheat and subcooling in K', () => {
-    const [sh, sc] = computeLive('R-410A', { suctionPressure: '768.8', suctionLineTemp: '9.3', liquidPressure: '2412.5', liquidLineTemp: '35.8' }, si);
+    const [sh, sc] = computeLive(
+      'R-410A',
+      { suctionPressure: '768.8', suctionLineTemp: '9.3', liquidPressure: '2412.5', liquidLineTemp: '35.8' },
+      si,
+    );
     expect(sh!.text).toMatch(/^Superheat \d+\.\d K$/);
     expect(Math.abs(figure(sh!.text) - (9.3 - 2.74))).toBeLessThanOrEqual(0.1);
     expect(sh!.detail).toMatch(/^line 9\.3 °C − dew 2\.7 °C$/);
@@ -74,7 +82,11 @@ describe('live superheat and subcooling', () => {
     const [shF] = computeLive('R-410A', { suctionPressure: '111.5', suctionLineTemp: '48.7' }, imperial);
     expect(shF!.text).toMatch(/^Superheat \d+\.\d °F$/);
     expect(Math.abs(figure(shF!.text) - (48.7 - 36.93))).toBeLessThanOrEqual(0.1);
-    const [shK] = computeLive('R-410A', { suctionPressure: String(111.5 * 6.894757293168), suctionLineTemp: String(((48.7 - 32) * 5) / 9) }, si);
+    const [shK] = computeLive(
+      'R-410A',
+      { suctionPressure: String(111.5 * 6.894757293168), suctionLineTemp: String(((48.7 - 32) * 5) / 9) },
+      si,
+    );
     expect(Math.abs(figure(shK!.text) - (figure(shF!.text) * 5) / 9)).toBeLessThanOrEqual(0.06);
   });
 
@@ -82,7 +94,7 @@ describe('live superheat and subcooling', () => {
     // ISA / ISO 2533 table [S] (tests/reference/atmosphere.test.ts): 1,600 m 83.5235 kPa, 2,000 m 79.4952 kPa,
     // log-linear to 1,609 m: 83.4306 kPa = 12.100 psia. 111.5 psig at 14.696 psia (126.196 psia) has dew 36.93 °F
     // (CoolProp reference above); on a gauge at 1,609 m that absolute pressure reads 111.5 + 14.696 − 12.100 psig.
-    const atm = 83.5235 * Math.exp((Math.log(79.4952 / 83.5235) * 9) / 400) / 6.894757293168;
+    const atm = (83.5235 * Math.exp((Math.log(79.4952 / 83.5235) * 9) / 400)) / 6.894757293168;
     const gauge = String(111.5 + 14.696 - atm);
     const [high] = computeLive('R-410A', { suctionPressure: gauge, suctionLineTemp: '48.7' }, imperial, 1609);
     expect(Math.abs(figure(high!.text) - (48.7 - 36.93))).toBeLessThanOrEqual(0.1);
@@ -110,11 +122,21 @@ describe('sensor check in the branch’s units', () => {
   });
 
   it('gives the same verdict as the same gauges read in psig', () => {
-    for (const [c, r] of [[330, 300], [260, 300], [2050, 2000], [2100, 2000], [-20, -10]] as const) {
+    for (const [c, r] of [
+      [330, 300],
+      [260, 300],
+      [2050, 2000],
+      [2100, 2000],
+      [-20, -10],
+    ] as const) {
       const k = 6.894757293168;
       expect(sensorCheckView(c, r, si, branch)!.withinTolerance).toBe(sensorCheckView(c / k, r / k, imperial, branch)!.withinTolerance);
     }
-    expect(sensorCheckView(104, 100, imperial, branch)).toMatchObject({ withinTolerance: true, difference: '+4.0 psi, 4.0 %', allowed: '5 psi or 3 %' });
+    expect(sensorCheckView(104, 100, imperial, branch)).toMatchObject({
+      withinTolerance: true,
+      difference: '+4.0 psi, 4.0 %',
+      allowed: '5 psi or 3 %',
+    });
     expect(sensorCheckView(null, 100, imperial, branch)).toBeNull();
   });
 });
@@ -123,7 +145,10 @@ describe('the body sent to the API', () => {
   it('states the units and carries what was typed', () => {
     const f = readingsForm([C1], () => ({ suctionPressure: '768.8', suctionLineTemp: '-4,5' }), si);
     expect(f.errors).toEqual({});
-    expect(f.body).toEqual({ units: { pressure: 'kPag', temperature: 'C' }, readings: [{ circuitId: C1, suctionPressure: 768.8, suctionLineTemp: -4.5 }] });
+    expect(f.body).toEqual({
+      units: { pressure: 'kPag', temperature: 'C' },
+      readings: [{ circuitId: C1, suctionPressure: 768.8, suctionLineTemp: -4.5 }],
+    });
   });
 
   it('marks values out of range in the stated units and sends nothing', () => {

@@ -3,7 +3,16 @@
  * typed as numbers, live superheat/subcooling in the branch's units (@coilpath/calc), the sensor check
  * with the branch's psi tolerance in the same units, and the body the API receives (units stated).
  */
-import { atmosphericPressureAt, convertPressure, convertTemperature, pressureRange, psiToKpa, sensorCheck, subcooling, superheat } from '@coilpath/calc';
+import {
+  atmosphericPressureAt,
+  convertPressure,
+  convertTemperature,
+  pressureRange,
+  psiToKpa,
+  sensorCheck,
+  subcooling,
+  superheat,
+} from '@coilpath/calc';
 import { formatMeasure, measureSymbol, readingRangeIssues } from '@coilpath/contract/measure';
 import type { ReadingDto, ReadingInput, ReadingUnits, SaveReadings } from '@coilpath/contract';
 
@@ -83,7 +92,9 @@ export function convertEntries(values: Record<string, string>, from: ReadingUnit
     const n = valueOf(values[f]);
     if (n === null) continue;
     out[f] = trim2(
-      fieldKind(f) === 'pressure' ? convertPressure(n, from.pressure, to.pressure) : convertTemperature(n, from.temperature, to.temperature),
+      fieldKind(f) === 'pressure'
+        ? convertPressure(n, from.pressure, to.pressure)
+        : convertTemperature(n, from.temperature, to.temperature),
     );
   }
   return out;
@@ -99,9 +110,7 @@ export interface ComputedLine {
 }
 
 /** One side of the live computation: the saturation temperature and the difference from the line, or why there is none. */
-export type LiveSide =
-  | { ok: true; saturation: number; line: number; value: number }
-  | { ok: false; why: string };
+export type LiveSide = { ok: true; saturation: number; line: number; value: number } | { ok: false; why: string };
 
 export interface LiveValues {
   /** Superheat from suction pressure (dew point) and suction line temperature; absent until both are typed. */
@@ -120,7 +129,11 @@ export function liveValues(refrigerant: string, v: Record<string, string>, units
   const lp = valueOf(v.liquidPressure);
   const high = lp ?? valueOf(v.dischargePressure);
   const lt = valueOf(v.liquidLineTemp);
-  const opts = { pressureUnit: units.pressure, temperatureUnit: units.temperature, atmosphericPressureKPa: atmosphericPressureAt(elevationMeters) } as const;
+  const opts = {
+    pressureUnit: units.pressure,
+    temperatureUnit: units.temperature,
+    atmosphericPressureKPa: atmosphericPressureAt(elevationMeters),
+  } as const;
   const outside = () => {
     try {
       const r = pressureRange(refrigerant, opts);
@@ -168,7 +181,11 @@ export function computeLive(refrigerant: string, v: Record<string, string>, unit
   if (sc) {
     out.push(
       sc.ok
-        ? { key: 'sc', text: `Subcooling ${d(sc.value)}`, detail: `bubble ${t(sc.saturation)} − line ${t(sc.line)}${sc.fromDischarge ? ' (from discharge pressure)' : ''}` }
+        ? {
+            key: 'sc',
+            text: `Subcooling ${d(sc.value)}`,
+            detail: `bubble ${t(sc.saturation)} − line ${t(sc.line)}${sc.fromDischarge ? ' (from discharge pressure)' : ''}`,
+          }
         : { key: 'sc', text: 'Subcooling cannot be computed', detail: sc.why, error: true },
     );
   }
@@ -223,7 +240,11 @@ export interface ReadingsForm {
  * with the range rule the route's schema applies (`readingRangeIssues`), so a value out of range is marked
  * before it is sent (without loading zod on the Visit screen).
  */
-export function readingsForm(circuitIds: string[], valuesOf: (circuitId: string) => Record<string, string>, units: ReadingUnits): ReadingsForm {
+export function readingsForm(
+  circuitIds: string[],
+  valuesOf: (circuitId: string) => Record<string, string>,
+  units: ReadingUnits,
+): ReadingsForm {
   const readings: ReadingInput[] = [];
   const errors: Record<string, string> = {};
   for (const circuitId of circuitIds) {

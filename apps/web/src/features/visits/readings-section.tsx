@@ -84,7 +84,17 @@ function NumberInput({
   );
 }
 
-function SensorMark({ controller, reference, units, branch }: { controller: string | undefined; reference: string | undefined; units: ReadingUnits; branch: VisitDetail['branch'] }) {
+function SensorMark({
+  controller,
+  reference,
+  units,
+  branch,
+}: {
+  controller: string | undefined;
+  reference: string | undefined;
+  units: ReadingUnits;
+  branch: VisitDetail['branch'];
+}) {
   const num = (s: string | undefined) => {
     const n = parseEntry(s);
     return n === null || Number.isNaN(n) ? null : n;
@@ -103,7 +113,17 @@ function SensorMark({ controller, reference, units, branch }: { controller: stri
 }
 
 /** How the live figures were reached ("line 48.0 °F − dew 36.9 °F"), or why one cannot be computed; the figures are in the circuit's summary bar. */
-function ComputedDetail({ refrigerant, v, units, elevationMeters }: { refrigerant: string; v: Record<string, string>; units: ReadingUnits; elevationMeters: number }) {
+function ComputedDetail({
+  refrigerant,
+  v,
+  units,
+  elevationMeters,
+}: {
+  refrigerant: string;
+  v: Record<string, string>;
+  units: ReadingUnits;
+  elevationMeters: number;
+}) {
   const out = computeLive(refrigerant, v, units, elevationMeters);
   if (!out.length) return <p className="text-sm text-slate">Enter a pressure and its line temperature to see superheat and subcooling.</p>;
   return (
@@ -156,7 +176,10 @@ export function ReadingsSection({
 
   const submit = () => {
     if (Object.keys(form.errors).length) {
-      notify(`Readings not saved: ${Object.keys(form.errors).length === 1 ? 'a value needs' : 'some values need'} correcting (marked in red).`, 'alarm');
+      notify(
+        `Readings not saved: ${Object.keys(form.errors).length === 1 ? 'a value needs' : 'some values need'} correcting (marked in red).`,
+        'alarm',
+      );
       return;
     }
     if (!form.body) {
@@ -169,7 +192,10 @@ export function ReadingsSection({
     queueWrite(
       qc,
       { kind: 'readings', visitId: visit.id, body },
-      { sent: () => notify(`Readings saved for ${count}.`), stopped: (e) => notify(`Readings not saved: ${e.problem?.message ?? 'refused'}`, 'alarm') },
+      {
+        sent: () => notify(`Readings saved for ${count}.`),
+        stopped: (e) => notify(`Readings not saved: ${e.problem?.message ?? 'refused'}`, 'alarm'),
+      },
     ).then(
       () => {
         update((d) => ({ ...d, readings: {}, readingsUnits: undefined, readingsDirty: false, savedAt: appNow().toISOString() }));
@@ -188,8 +214,8 @@ export function ReadingsSection({
       <div ref={enterGroup} onKeyDown={enterNext} className="flex flex-col gap-4">
         {hasTargets ? (
           <SafetyNote>
-            Readings guide diagnosis alongside the manufacturer’s charging data, local codes and licensed practice. {targetRangeCaution} Refrigerant work
-            needs the proper EPA 608 certification.
+            Readings guide diagnosis alongside the manufacturer’s charging data, local codes and licensed practice. {targetRangeCaution}{' '}
+            Refrigerant work needs the proper EPA 608 certification.
           </SafetyNote>
         ) : (
           <SafetyNote />
@@ -199,9 +225,15 @@ export function ReadingsSection({
             ? `Pressures in ${measureSymbol('pressure', units)}; temperatures in °C; superheat and subcooling in K`
             : `Pressures in ${measureSymbol('pressure', units)}; temperatures, superheat and subcooling in °F`}{' '}
           — {visit.branch.name}’s unit setting.
-          {elevationNote(visit.branch.elevationMeters, visit.branch.unitSystem) && <> {elevationNote(visit.branch.elevationMeters, visit.branch.unitSystem)}</>}
+          {elevationNote(visit.branch.elevationMeters, visit.branch.unitSystem) && (
+            <> {elevationNote(visit.branch.elevationMeters, visit.branch.unitSystem)}</>
+          )}
         </p>
-        {circuitsCount === 0 && <p className="text-sm text-slate">This visit’s units have no circuits on file, so there is nothing to read here. The office can add circuits in the Unit file.</p>}
+        {circuitsCount === 0 && (
+          <p className="text-sm text-slate">
+            This visit’s units have no circuits on file, so there is nothing to read here. The office can add circuits in the Unit file.
+          </p>
+        )}
         {visit.units.map((u: VisitUnitDto) =>
           u.circuits.map((c) => {
             const where = multi ? `${u.tag} circuit ${c.number}` : `circuit ${c.number}`;
@@ -238,7 +270,12 @@ export function ReadingsSection({
                     {input('suctionPressure')}
                     {input('suctionPressureController')}
                     <div className="col-span-2 lg:col-span-1">
-                      <SensorMark controller={v.suctionPressureController} reference={v.suctionPressure} units={units} branch={visit.branch} />
+                      <SensorMark
+                        controller={v.suctionPressureController}
+                        reference={v.suctionPressure}
+                        units={units}
+                        branch={visit.branch}
+                      />
                     </div>
                   </div>
                   <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">
@@ -249,7 +286,12 @@ export function ReadingsSection({
                     {input('liquidPressure')}
                     {input('liquidPressureController')}
                     <div className="col-span-2 lg:col-span-1">
-                      <SensorMark controller={v.liquidPressureController} reference={v.liquidPressure} units={units} branch={visit.branch} />
+                      <SensorMark
+                        controller={v.liquidPressureController}
+                        reference={v.liquidPressure}
+                        units={units}
+                        branch={visit.branch}
+                      />
                     </div>
                   </div>
                   <div className="grid grid-cols-2 items-end gap-3 lg:grid-cols-3">{input('liquidLineTemp')}</div>
@@ -257,7 +299,12 @@ export function ReadingsSection({
                     {input('dischargePressure')}
                     {input('dischargePressureController')}
                     <div className="col-span-2 lg:col-span-1">
-                      <SensorMark controller={v.dischargePressureController} reference={v.dischargePressure} units={units} branch={visit.branch} />
+                      <SensorMark
+                        controller={v.dischargePressureController}
+                        reference={v.dischargePressure}
+                        units={units}
+                        branch={visit.branch}
+                      />
                     </div>
                   </div>
                 </div>

@@ -16,7 +16,15 @@ import { useEnterNext } from '@/components/ui/enter-next';
 
 const refrigerants = listRefrigerants();
 
-export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetail; draft: VisitDraft; update(fn: (d: VisitDraft) => VisitDraft): void }) {
+export function RefrigerantSection({
+  visit,
+  draft,
+  update,
+}: {
+  visit: VisitDetail;
+  draft: VisitDraft;
+  update(fn: (d: VisitDraft) => VisitDraft): void;
+}) {
   const notify = useNotify();
   const first = visit.units[0];
   const [unitId, setUnitId] = useState(first?.id ?? '');
@@ -38,10 +46,13 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
   // What the server computed from the event once it arrived (leak rate, a leak case).
   const arrived = (answer: unknown) => {
     const r = answer as RefrigerantEventResult;
-    const rate = r.leakCheck ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.` : '';
-    const text = r.leakCaseOpened && r.leakCase
-      ? `Refrigerant saved.${rate} A leak case is open: repair due ${recordDate(r.leakCase.repairDueDate)}. The branch manager sees it on the Watchlist.`
-      : `Refrigerant saved.${rate}`;
+    const rate = r.leakCheck
+      ? ` Leak rate ${r.leakCheck.leakRatePercent.toFixed(1)} % a year (${r.leakCheck.method})${r.leakCheck.thresholdPercent !== null ? ` against ${r.leakCheck.thresholdPercent} % under ${r.leakCheck.rule}` : ', outside the leak-repair rules'}.`
+      : '';
+    const text =
+      r.leakCaseOpened && r.leakCase
+        ? `Refrigerant saved.${rate} A leak case is open: repair due ${recordDate(r.leakCase.repairDueDate)}. The branch manager sees it on the Watchlist.`
+        : `Refrigerant saved.${rate}`;
     setLastResult(text);
     notify(text, r.leakCaseOpened ? 'alarm' : 'ok');
   };
@@ -54,7 +65,8 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
       { sent: arrived, stopped: (e) => notify(`Refrigerant not saved: ${e.problem?.message ?? 'refused'}`, 'alarm') },
     ).then(
       () => {
-        if (!onlineManager.isOnline()) notify('Refrigerant kept on this phone; it is sent when the connection is back (the leak rate is computed then).');
+        if (!onlineManager.isOnline())
+          notify('Refrigerant kept on this phone; it is sent when the connection is back (the leak rate is computed then).');
       },
       (e: unknown) => notify(`Refrigerant not kept: ${errorMessage(e)}`, 'alarm'),
     );
@@ -104,20 +116,23 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
   };
 
   const pending = draft.refrigerant.filter((p) => !visit.refrigerantEvents.some((e) => e.id === p.body.id));
-  const waitingIds = new Set(entries.filter((e) => e.state === 'waiting').map((e) => (e.write.kind === 'refrigerant' ? e.write.body.id : '')));
+  const waitingIds = new Set(
+    entries.filter((e) => e.state === 'waiting').map((e) => (e.write.kind === 'refrigerant' ? e.write.body.id : '')),
+  );
   const mismatch = unit && refrigerant !== unit.refrigerant;
   return (
     <Card title="Refrigerant">
       <div className="flex flex-col gap-3">
         <SafetyNote>
-          Refrigerant may be added or recovered only under the proper EPA 608 certification, following the manufacturer’s charging data. Coilpath computes
-          the leak rate by the annualizing method of 40 CFR 82.152; check the current rules before relying on it.
+          Refrigerant may be added or recovered only under the proper EPA 608 certification, following the manufacturer’s charging data.
+          Coilpath computes the leak rate by the annualizing method of 40 CFR 82.152; check the current rules before relying on it.
         </SafetyNote>
         {visit.refrigerantEvents.length + pending.length > 0 && (
           <ul className="flex flex-col gap-1 text-sm">
             {visit.refrigerantEvents.map((ev) => (
               <li key={ev.id} className="tabular-nums">
-                {ev.refrigerant}: added {ev.poundsAdded.toFixed(1)} lb, recovered {ev.poundsRecovered.toFixed(1)} lb · {refrigerantEventReasonLabels[ev.reason]}
+                {ev.refrigerant}: added {ev.poundsAdded.toFixed(1)} lb, recovered {ev.poundsRecovered.toFixed(1)} lb ·{' '}
+                {refrigerantEventReasonLabels[ev.reason]}
                 {ev.circuit != null ? ` · circuit ${ev.circuit}` : ''}
                 {ev.cylinderLot ? ` · lot ${ev.cylinderLot}` : ''}
                 {waitingIds.has(ev.id) && (
@@ -130,7 +145,8 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
             ))}
             {pending.map((p) => (
               <li key={p.body.id} className="tabular-nums">
-                {p.body.refrigerant}: added {(p.body.poundsAdded ?? 0).toFixed(1)} lb, recovered {(p.body.poundsRecovered ?? 0).toFixed(1)} lb <Badge tone="watch">Not saved yet</Badge>
+                {p.body.refrigerant}: added {(p.body.poundsAdded ?? 0).toFixed(1)} lb, recovered {(p.body.poundsRecovered ?? 0).toFixed(1)}{' '}
+                lb <Badge tone="watch">Not saved yet</Badge>
               </li>
             ))}
           </ul>
@@ -180,9 +196,26 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
                 </SelectField>
               </div>
             )}
-            <TextField label="Pounds added (lb)" inputMode="decimal" value={added} onChange={(e) => setAdded(e.target.value)} error={errors.poundsAdded} />
-            <TextField label="Pounds recovered (lb)" inputMode="decimal" value={recovered} onChange={(e) => setRecovered(e.target.value)} error={errors.poundsRecovered} />
-            <SelectField label="Refrigerant" value={refrigerant} onChange={(e) => setRefrigerant(e.target.value)} error={errors.refrigerant}>
+            <TextField
+              label="Pounds added (lb)"
+              inputMode="decimal"
+              value={added}
+              onChange={(e) => setAdded(e.target.value)}
+              error={errors.poundsAdded}
+            />
+            <TextField
+              label="Pounds recovered (lb)"
+              inputMode="decimal"
+              value={recovered}
+              onChange={(e) => setRecovered(e.target.value)}
+              error={errors.poundsRecovered}
+            />
+            <SelectField
+              label="Refrigerant"
+              value={refrigerant}
+              onChange={(e) => setRefrigerant(e.target.value)}
+              error={errors.refrigerant}
+            >
               {refrigerants.map((r) => (
                 <option key={r.id} value={r.id}>
                   {r.id}
@@ -199,7 +232,8 @@ export function RefrigerantSection({ visit, draft, update }: { visit: VisitDetai
             <TextField label="Cylinder or lot number" value={lot} onChange={(e) => setLot(e.target.value)} autoComplete="off" />
             {mismatch && (
               <p className="col-span-2 inline-flex items-center gap-1 text-sm text-watch lg:col-span-3">
-                <AlertTriangle className="size-4" aria-hidden="true" /> The unit is on file with {unit.refrigerant}; check the nameplate before adding {refrigerant}.
+                <AlertTriangle className="size-4" aria-hidden="true" /> The unit is on file with {unit.refrigerant}; check the nameplate
+                before adding {refrigerant}.
               </p>
             )}
             <div className="col-span-2 lg:col-span-3">

@@ -27,13 +27,15 @@ export function SaveStatus({
   if (paused) {
     body = (
       <span className="inline-flex items-center gap-1 text-watch">
-        <CloudOff className="size-4" aria-hidden="true" /> Not saved yet — offline. Kept on this phone; it saves when the connection is back.
+        <CloudOff className="size-4" aria-hidden="true" /> Not saved yet — offline. Kept on this phone; it saves when the connection is
+        back.
       </span>
     );
   } else if (pending && failureCount > 0) {
     body = (
       <span className="inline-flex flex-wrap items-center gap-2 text-watch">
-        <LoaderCircle className="size-4 animate-spin" aria-hidden="true" /> Not saved yet — retrying (attempt {failureCount + 1}). Kept on this phone.
+        <LoaderCircle className="size-4 animate-spin" aria-hidden="true" /> Not saved yet — retrying (attempt {failureCount + 1}). Kept on
+        this phone.
       </span>
     );
   } else if (pending) {

@@ -19,7 +19,15 @@ const PNG_PREFIX = 'data:image/png;base64,';
  * "Clear" button. The canvas is labelled for screen readers and says it needs touch or a mouse; its state
  * (empty or signed) is announced. `onChange` hears the PNG after each stroke and null once cleared.
  */
-export function SignaturePadField({ label, onChange, error }: { label: string; onChange(s: DrawnSignature | null): void; error?: string | null }) {
+export function SignaturePadField({
+  label,
+  onChange,
+  error,
+}: {
+  label: string;
+  onChange(s: DrawnSignature | null): void;
+  error?: string | null;
+}) {
   const canvasRef = useRef<HTMLCanvasElement>(null);
   const padRef = useRef<SignaturePad | null>(null);
   const changeRef = useRef(onChange);
@@ -83,8 +91,8 @@ export function SignaturePadField({ label, onChange, error }: { label: string; o
       />
       <div className="flex items-start justify-between gap-3">
         <p id={`${id}-help`} className="text-xs text-slate">
-          The customer signs in the box with a finger, stylus or mouse; the pad cannot be used with a keyboard or screen reader. If the customer
-          cannot sign here, choose “Customer not available”.
+          The customer signs in the box with a finger, stylus or mouse; the pad cannot be used with a keyboard or screen reader. If the
+          customer cannot sign here, choose “Customer not available”.
         </p>
         <Button type="button" variant="secondary" size="lg" onClick={clear} disabled={empty} className="shrink-0">
           <Eraser className="size-4" aria-hidden="true" /> Clear

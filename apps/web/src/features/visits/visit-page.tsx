@@ -40,9 +40,16 @@ function CurrentVisit() {
   return (
     <>
       <PageHeader title="Visit" subtitle="Record readings, findings, refrigerant and photos, and close the visit." />
-      <EmptyState title="No current visit" action={<Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">Open Route</Link>}>
-        You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on Route; press “En route” there
-        to start it.
+      <EmptyState
+        title="No current visit"
+        action={
+          <Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">
+            Open Route
+          </Link>
+        }
+      >
+        You are not en route or on site, and no visit is booked for you from now on. When the office books one, it appears on Route; press
+        “En route” there to start it.
       </EmptyState>
     </>
   );
@@ -55,8 +62,16 @@ function VisitScreen({ id }: { id: string }) {
   // Offline with nothing kept for this visit: say so, rather than loading until the signal returns.
   if (q.isPending && q.fetchStatus === 'paused')
     return (
-      <EmptyState title="This visit is not kept on this device" action={<Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">Open Route</Link>}>
-        There is no connection, and this visit was not opened here (or on its Route) while there was one. It loads when the connection is back.
+      <EmptyState
+        title="This visit is not kept on this device"
+        action={
+          <Link to="/day" className="inline-flex min-h-11 items-center text-coolant underline">
+            Open Route
+          </Link>
+        }
+      >
+        There is no connection, and this visit was not opened here (or on its Route) while there was one. It loads when the connection is
+        back.
       </EmptyState>
     );
   if (q.isPending) return <LoadingState label="Loading the visit…" />;
@@ -77,7 +92,8 @@ function VisitScreen({ id }: { id: string }) {
         title={`Visit · WO-${v.workOrder.number ?? ''} ${workOrderKindLabels[v.workOrder.kind]}`}
         subtitle={
           <>
-            {v.site.name} · {v.branch.name} · {v.booking ? `${formatInZone(v.booking.startAt, tz)}–${formatInZone(v.booking.endAt, tz, 'HH:mm')}` : 'not booked'} ·{' '}
+            {v.site.name} · {v.branch.name} ·{' '}
+            {v.booking ? `${formatInZone(v.booking.startAt, tz)}–${formatInZone(v.booking.endAt, tz, 'HH:mm')}` : 'not booked'} ·{' '}
             {v.techName}
           </>
         }
@@ -96,8 +112,9 @@ function VisitScreen({ id }: { id: string }) {
       )}
       {v.workOrder.modelAlert && (
         <p className="mb-4 rounded-md border border-alarm/30 bg-alarm-tint p-3 text-sm">
-          <strong>Model-alert inspection: {v.workOrder.modelAlert.title}.</strong> A factory defect with this cause was found on this model at
-          other sites. Check this unit for it and record a finding with the cause “{causeCodeLabels[v.workOrder.modelAlert.causeCode]}” if you find it.
+          <strong>Model-alert inspection: {v.workOrder.modelAlert.title}.</strong> A factory defect with this cause was found on this model
+          at other sites. Check this unit for it and record a finding with the cause “{causeCodeLabels[v.workOrder.modelAlert.causeCode]}”
+          if you find it.
           {v.workOrder.latestAt ? ` Due by ${formatInZone(v.workOrder.latestAt, tz, 'EEE d MMM yyyy')}.` : ''}
         </p>
       )}
@@ -108,7 +125,9 @@ function VisitScreen({ id }: { id: string }) {
         </p>
       )}
       {!v.canWrite && v.status !== 'closed' && (
-        <p className="mb-4 rounded-md bg-slate-faint p-3 text-sm">Read only: only {v.techName}, the assigned technician, records this visit’s work.</p>
+        <p className="mb-4 rounded-md bg-slate-faint p-3 text-sm">
+          Read only: only {v.techName}, the assigned technician, records this visit’s work.
+        </p>
       )}
       <div className="grid grid-cols-1 gap-4 lg:grid-cols-[2fr_1fr]">
         <div className="flex flex-col gap-4 lg:col-start-2 lg:row-start-1">
@@ -153,7 +172,8 @@ function VisitScreen({ id }: { id: string }) {
                         <Link to={`/units/${u.id}`} className="inline-flex min-h-11 min-w-11 items-center text-coolant underline">
                           {u.tag}
                         </Link>{' '}
-                        {u.make} {u.model} · {u.refrigerant}, full charge {u.fullChargeLb} lb · {u.circuits.length} circuit{u.circuits.length === 1 ? '' : 's'}
+                        {u.make} {u.model} · {u.refrigerant}, full charge {u.fullChargeLb} lb · {u.circuits.length} circuit
+                        {u.circuits.length === 1 ? '' : 's'}
                       </li>
                     ))}
                   </ul>

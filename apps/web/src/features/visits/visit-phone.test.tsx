@@ -32,41 +32,66 @@ const unit = (n: number, circuits: number): VisitUnitDto => ({
   refrigerant: 'R-410A',
   fullChargeLb: 20,
   applianceCategory: 'comfort_cooling',
-  circuits: Array.from({ length: circuits }, (_, i) => ({ id: id(200 + n * 10 + i), number: i + 1, compressorCount: 1, chargeLb: 10, targets: { superheat: null, subcooling: null, source: null } })),
+  circuits: Array.from({ length: circuits }, (_, i) => ({
+    id: id(200 + n * 10 + i),
+    number: i + 1,
+    compressorCount: 1,
+    chargeLb: 10,
+    targets: { superheat: null, subcooling: null, source: null },
+  })),
 });
 
-const visitWith = (units: VisitUnitDto[]): VisitDetail => ({
-  id: id(1),
-  branchId: id(2),
-  status: 'on_site',
-  techId: id(3),
-  techName: 'Test Technician',
-  enRouteAt: null,
-  onSiteAt: '2026-12-01T15:00:00.000Z',
-  closedAt: null,
-  outcome: null,
-  returnNeeds: [],
-  returnNotes: null,
-  notes: null,
-  notesAudience: 'internal',
-  rootCauseFindingId: null,
-  leakRepair: null,
-  summarySentAt: null,
-  version: 1,
-  booking: null,
-  workOrder: { id: id(4), number: 1001, kind: 'service_call', state: 'in_progress', priority: 'normal', complaint: '', requiredCertification: null, latestAt: null, modelAlert: null },
-  site: { id: id(5), name: 'Test site', address: '1 Test Street', city: '', accessNotes: null, contactName: null, contactPhone: null },
-  branch: { id: id(2), name: 'Test branch', timeZone: 'America/Chicago', unitSystem: 'imperial', sensorTolerancePercent: 3, sensorToleranceAbsolute: 5, elevationMeters: 0 },
-  units,
-  readings: [],
-  findings: [],
-  refrigerantEvents: [],
-  attachments: [],
-  events: [],
-  canWrite: true,
-  canRecord: true,
-  recordRefusal: null,
-} as unknown as VisitDetail);
+const visitWith = (units: VisitUnitDto[]): VisitDetail =>
+  ({
+    id: id(1),
+    branchId: id(2),
+    status: 'on_site',
+    techId: id(3),
+    techName: 'Test Technician',
+    enRouteAt: null,
+    onSiteAt: '2026-12-01T15:00:00.000Z',
+    closedAt: null,
+    outcome: null,
+    returnNeeds: [],
+    returnNotes: null,
+    notes: null,
+    notesAudience: 'internal',
+    rootCauseFindingId: null,
+    leakRepair: null,
+    summarySentAt: null,
+    version: 1,
+    booking: null,
+    workOrder: {
+      id: id(4),
+      number: 1001,
+      kind: 'service_call',
+      state: 'in_progress',
+      priority: 'normal',
+      complaint: '',
+      requiredCertification: null,
+      latestAt: null,
+      modelAlert: null,
+    },
+    site: { id: id(5), name: 'Test site', address: '1 Test Street', city: '', accessNotes: null, contactName: null, contactPhone: null },
+    branch: {
+      id: id(2),
+      name: 'Test branch',
+      timeZone: 'America/Chicago',
+      unitSystem: 'imperial',
+      sensorTolerancePercent: 3,
+      sensorToleranceAbsolute: 5,
+      elevationMeters: 0,
+    },
+    units,
+    readings: [],
+    findings: [],
+    refrigerantEvents: [],
+    attachments: [],
+    events: [],
+    canWrite: true,
+    canRecord: true,
+    recordRefusal: null,
+  }) as unknown as VisitDetail;
 
 const emptyDraft: VisitDraft = { readings: {}, readingsDirty: false, findings: [], refrigerant: [], savedAt: null };
 
@@ -201,7 +226,16 @@ describe('a circuit’s sticky summary', () => {
   const branch = { sensorTolerancePercent: 3, sensorToleranceAbsolute: 5, elevationMeters: 0 };
 
   it('shows dew and bubble points, superheat and subcooling from what is typed', () => {
-    render(<CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={values} units={readingUnitsBySystem.imperial} branch={branch} />);
+    render(
+      <CircuitSummary
+        title="Circuit 1"
+        where="circuit 1"
+        refrigerant="R-410A"
+        values={values}
+        units={readingUnitsBySystem.imperial}
+        branch={branch}
+      />,
+    );
     expect(Math.abs(figure('Suction saturation, circuit 1') - 36.93)).toBeLessThanOrEqual(0.35);
     expect(Math.abs(figure('Superheat, circuit 1') - 11.07)).toBeLessThanOrEqual(0.35);
     expect(Math.abs(figure('Liquid saturation, circuit 1') - 93.33)).toBeLessThanOrEqual(0.35);
@@ -217,14 +251,21 @@ describe('a circuit’s sticky summary', () => {
         title="Circuit 1"
         where="circuit 1"
         refrigerant="R-410A"
-        values={{ suctionPressure: '111.5', suctionPressureController: '118', dischargePressure: '300', dischargePressureController: '300.5' }}
+        values={{
+          suctionPressure: '111.5',
+          suctionPressureController: '118',
+          dischargePressure: '300',
+          dischargePressureController: '300.5',
+        }}
         units={readingUnitsBySystem.imperial}
         branch={branch}
       />,
     );
     expect(screen.getByRole('status', { name: 'Superheat, circuit 1' }).textContent).toBe('—');
     expect(screen.getByRole('status', { name: 'Subcooling, circuit 1' }).textContent).toBe('—');
-    const sensors = within(screen.getByRole('list', { name: 'Controller against gauge, circuit 1' })).getAllByRole('listitem').map((li) => li.textContent);
+    const sensors = within(screen.getByRole('list', { name: 'Controller against gauge, circuit 1' }))
+      .getAllByRole('listitem')
+      .map((li) => li.textContent);
     expect(sensors).toEqual(['Suction controller +6.5 psi, 5.8 % · outside', 'Discharge controller +0.5 psi, 0.2 % · within']);
   });
 
@@ -232,23 +273,70 @@ describe('a circuit’s sticky summary', () => {
     // Superheat ≈ 11.1 °F against 8–12 °F: within; subcooling ≈ 10.3 °F against 12–15 °F: below.
     const targets = { superheat: { min: 8, max: 12 }, subcooling: { min: 12, max: 15 }, source: 'Nameplate' };
     const { unmount } = render(
-      <CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={values} units={readingUnitsBySystem.imperial} branch={branch} targets={targets} targetsUnit="F" />,
+      <CircuitSummary
+        title="Circuit 1"
+        where="circuit 1"
+        refrigerant="R-410A"
+        values={values}
+        units={readingUnitsBySystem.imperial}
+        branch={branch}
+        targets={targets}
+        targetsUnit="F"
+      />,
     );
-    const lines = () => within(screen.getByRole('list', { name: 'Target ranges, circuit 1' })).getAllByRole('listitem').map((li) => li.textContent);
+    const lines = () =>
+      within(screen.getByRole('list', { name: 'Target ranges, circuit 1' }))
+        .getAllByRole('listitem')
+        .map((li) => li.textContent);
     expect(lines()).toEqual(['Superheat target 8.0–12.0 °F · within target', 'Subcooling target 12.0–15.0 °F · below target']);
     unmount();
     // Nothing typed yet: the ranges alone, no verdict. An SI screen shows the °F ranges in kelvin (8–12 °F = 4.4–6.7 K).
-    render(<CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={{}} units={readingUnitsBySystem.si} branch={branch} targets={targets} targetsUnit="F" />);
+    render(
+      <CircuitSummary
+        title="Circuit 1"
+        where="circuit 1"
+        refrigerant="R-410A"
+        values={{}}
+        units={readingUnitsBySystem.si}
+        branch={branch}
+        targets={targets}
+        targetsUnit="F"
+      />,
+    );
     expect(lines()).toEqual(['Superheat target 4.4–6.7 K', 'Subcooling target 6.7–8.3 K']);
   });
 
   it('a superheat above its range says so; a circuit without ranges shows none', () => {
     const { unmount } = render(
-      <CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={values} units={readingUnitsBySystem.imperial} branch={branch} targets={{ superheat: { min: 5, max: 10 }, subcooling: null, source: null }} targetsUnit="F" />,
+      <CircuitSummary
+        title="Circuit 1"
+        where="circuit 1"
+        refrigerant="R-410A"
+        values={values}
+        units={readingUnitsBySystem.imperial}
+        branch={branch}
+        targets={{ superheat: { min: 5, max: 10 }, subcooling: null, source: null }}
+        targetsUnit="F"
+      />,
     );
-    expect(within(screen.getByRole('list', { name: 'Target ranges, circuit 1' })).getAllByRole('listitem').map((li) => li.textContent)).toEqual(['Superheat target 5.0–10.0 °F · above target']);
+    expect(
+      within(screen.getByRole('list', { name: 'Target ranges, circuit 1' }))
+        .getAllByRole('listitem')
+        .map((li) => li.textContent),
+    ).toEqual(['Superheat target 5.0–10.0 °F · above target']);
     unmount();
-    render(<CircuitSummary title="Circuit 1" where="circuit 1" refrigerant="R-410A" values={values} units={readingUnitsBySystem.imperial} branch={branch} targets={{ superheat: null, subcooling: null, source: null }} targetsUnit="F" />);
+    render(
+      <CircuitSummary
+        title="Circuit 1"
+        where="circuit 1"
+        refrigerant="R-410A"
+        values={values}
+        units={readingUnitsBySystem.imperial}
+        branch={branch}
+        targets={{ superheat: null, subcooling: null, source: null }}
+        targetsUnit="F"
+      />,
+    );
     expect(screen.queryByRole('list', { name: 'Target ranges, circuit 1' })).toBeNull();
   });
 
@@ -278,7 +366,9 @@ describe('photos waiting in the outbox', () => {
     expect(create).toHaveBeenCalledWith(png);
     expect(img.getAttribute('src')).toBe(made[made.length - 1]);
     // The outbox reads its entries back as new Blobs of the same bytes: the thumbnail keeps its URL.
-    rerender(<QueuedThumb file={new Blob([new Uint8Array([137, 80, 78, 71])], { type: 'image/png' })} fileName="wiring.png" kind="photo" />);
+    rerender(
+      <QueuedThumb file={new Blob([new Uint8Array([137, 80, 78, 71])], { type: 'image/png' })} fileName="wiring.png" kind="photo" />,
+    );
     expect(screen.getByRole('img').getAttribute('src')).toBe(img.getAttribute('src'));
     const live = made.filter((u) => !revoke.mock.calls.some(([r]) => r === u));
     expect(live).toEqual([img.getAttribute('src')]);

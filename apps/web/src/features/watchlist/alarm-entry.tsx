@@ -86,9 +86,17 @@ export function AlarmForm({ branchId, timeZone, onDone }: { branchId: string | u
           {...register('raisedAt', { setValueAs: (v: string) => localToIso(v, timeZone) })}
         />
         <div className="flex flex-wrap items-center gap-2 sm:col-span-2 lg:col-span-5">
-          <Button type="submit" busy={formState.isSubmitting}>Save alarm</Button>
-          <Button variant="ghost" onClick={onDone}>Cancel</Button>
-          {e.root && <p role="alert" className="text-sm text-alarm">{e.root.message}</p>}
+          <Button type="submit" busy={formState.isSubmitting}>
+            Save alarm
+          </Button>
+          <Button variant="ghost" onClick={onDone}>
+            Cancel
+          </Button>
+          {e.root && (
+            <p role="alert" className="text-sm text-alarm">
+              {e.root.message}
+            </p>
+          )}
         </div>
       </form>
     </Card>
@@ -126,11 +134,14 @@ export function AlarmImport({ branchId, onDone }: { branchId: string | undefined
       { file, mode: 'commit', branchId },
       {
         onSuccess: (r) => {
-          notify(`Imported ${r.written} alarm${r.written === 1 ? '' : 's'} from ${name}${r.skipped ? `; ${r.skipped} already in Coilpath were skipped` : ''}.`);
+          notify(
+            `Imported ${r.written} alarm${r.written === 1 ? '' : 's'} from ${name}${r.skipped ? `; ${r.skipped} already in Coilpath were skipped` : ''}.`,
+          );
           onDone();
         },
         onError: (err) => {
-          if (err instanceof ApiError && err.details && typeof err.details === 'object' && 'errors' in err.details) setPreview(err.details as AlarmImportResult);
+          if (err instanceof ApiError && err.details && typeof err.details === 'object' && 'errors' in err.details)
+            setPreview(err.details as AlarmImportResult);
           setError(errorMessage(err));
         },
       },
@@ -140,30 +151,68 @@ export function AlarmImport({ branchId, onDone }: { branchId: string | undefined
   return (
     <Card title="Import alarms from a CSV file">
       <p className="text-sm text-slate">
-        Columns: <code>unit_serial</code>, <code>circuit</code> (may be empty), <code>code</code>, <code>raised_at</code> (ISO-8601 such as 2026-12-02T14:05:00Z, or a local
-        “2026-12-02 08:05” in the branch's time zone). Nothing is written until the preview is clean and you import.
+        Columns: <code>unit_serial</code>, <code>circuit</code> (may be empty), <code>code</code>, <code>raised_at</code> (ISO-8601 such as
+        2026-12-02T14:05:00Z, or a local “2026-12-02 08:05” in the branch's time zone). Nothing is written until the preview is clean and
+        you import.
       </p>
       <div className="mt-3 flex flex-wrap items-center gap-2">
-        <input ref={input} type="file" accept=".csv,text/csv" className="sr-only" id="alarm-csv" onChange={(e) => e.target.files?.[0] && void check(e.target.files[0])} />
-        <label htmlFor="alarm-csv" className="inline-flex min-h-11 cursor-pointer items-center gap-2 rounded-md border border-slate-line bg-white px-4 text-sm font-medium hover:bg-slate-faint">
+        <input
+          ref={input}
+          type="file"
+          accept=".csv,text/csv"
+          className="sr-only"
+          id="alarm-csv"
+          onChange={(e) => e.target.files?.[0] && void check(e.target.files[0])}
+        />
+        <label
+          htmlFor="alarm-csv"
+          className="inline-flex min-h-11 cursor-pointer items-center gap-2 rounded-md border border-slate-line bg-white px-4 text-sm font-medium hover:bg-slate-faint"
+        >
           <FileUp className="size-4" aria-hidden="true" /> Choose CSV file
         </label>
         {name && <span className="text-sm">{name}</span>}
-        <Button variant="ghost" onClick={onDone}>Cancel</Button>
+        <Button variant="ghost" onClick={onDone}>
+          Cancel
+        </Button>
       </div>
-      {m.isPending && <p role="status" className="mt-2 text-sm text-slate">Checking…</p>}
-      {error && <p role="alert" className="mt-2 text-sm text-alarm">{error}</p>}
+      {m.isPending && (
+        <p role="status" className="mt-2 text-sm text-slate">
+          Checking…
+        </p>
+      )}
+      {error && (
+        <p role="alert" className="mt-2 text-sm text-alarm">
+          {error}
+        </p>
+      )}
       {preview && (
         <div className="mt-3 flex flex-col gap-3">
-          {convertedNote(preview.encoding) && <p role="status" className="rounded-md bg-watch-tint px-3 py-2 text-sm text-ink">{convertedNote(preview.encoding)}</p>}
+          {convertedNote(preview.encoding) && (
+            <p role="status" className="rounded-md bg-watch-tint px-3 py-2 text-sm text-ink">
+              {convertedNote(preview.encoding)}
+            </p>
+          )}
           <p className="text-sm" role="status">
-            {preview.total} row{preview.total === 1 ? '' : 's'}: {ready} ready to import, {preview.skipped} already in Coilpath, {preview.errors.length} error{preview.errors.length === 1 ? '' : 's'}.
+            {preview.total} row{preview.total === 1 ? '' : 's'}: {ready} ready to import, {preview.skipped} already in Coilpath,{' '}
+            {preview.errors.length} error{preview.errors.length === 1 ? '' : 's'}.
           </p>
           {preview.errors.length > 0 && (
             <table className="w-full text-sm">
-              <caption className="mb-1 text-left font-semibold text-alarm">Fix these rows and choose the file again; nothing has been written.</caption>
+              <caption className="mb-1 text-left font-semibold text-alarm">
+                Fix these rows and choose the file again; nothing has been written.
+              </caption>
               <thead className="text-left text-xs uppercase text-slate">
-                <tr><th scope="col" className="py-1 pr-2">Row</th><th scope="col" className="py-1 pr-2">Column</th><th scope="col" className="py-1">Problem</th></tr>
+                <tr>
+                  <th scope="col" className="py-1 pr-2">
+                    Row
+                  </th>
+                  <th scope="col" className="py-1 pr-2">
+                    Column
+                  </th>
+                  <th scope="col" className="py-1">
+                    Problem
+                  </th>
+                </tr>
               </thead>
               <tbody>
                 {preview.errors.map((er, i) => (

@@ -13,7 +13,13 @@ import { useAlarmSources, useCreateAlarmSource, useMapDelivery, usePatchAlarmSou
 import { useUnitChoices } from '@/lib/unit-choices';
 
 const reasonLabel = (d: AlarmDeliveryRow) =>
-  d.reason === 'unknown_unit' ? 'No unit with this tag at the site' : d.reason === 'ambiguous_unit' ? 'Several units carry this tag' : d.reason ? alarmRejectionReasonLabels[d.reason as AlarmRejectionReason] : alarmDeliveryStatusLabels[d.status];
+  d.reason === 'unknown_unit'
+    ? 'No unit with this tag at the site'
+    : d.reason === 'ambiguous_unit'
+      ? 'Several units carry this tag'
+      : d.reason
+        ? alarmRejectionReasonLabels[d.reason as AlarmRejectionReason]
+        : alarmDeliveryStatusLabels[d.status];
 
 /** The secret of a new or rotated source, shown once, with a copy button. */
 function SecretOnce({ shown, timeZone, onClose }: { shown: AlarmSourceSecret & { name: string }; timeZone: string; onClose: () => void }) {
@@ -29,13 +35,28 @@ function SecretOnce({ shown, timeZone, onClose }: { shown: AlarmSourceSecret & {
         <KeyRound className="mr-1 inline size-4" aria-hidden="true" />
         Secret of “{shown.name}” — shown this once. Copy it into the controller now: Coilpath cannot show it again.
       </p>
-      {shown.previousValidUntil && <p>The previous secret is accepted until {formatInZone(shown.previousValidUntil, timeZone)}; change the controller over before then.</p>}
+      {shown.previousValidUntil && (
+        <p>
+          The previous secret is accepted until {formatInZone(shown.previousValidUntil, timeZone)}; change the controller over before then.
+        </p>
+      )}
       <div className="flex flex-wrap items-center gap-2">
-        <code className="break-all rounded bg-white px-2 py-1 font-mono text-sm" aria-label="Secret">{shown.secret}</code>
-        <Button size="sm" variant="secondary" onClick={copy}><Copy className="size-4" aria-hidden="true" /> Copy</Button>
+        <code className="break-all rounded bg-white px-2 py-1 font-mono text-sm" aria-label="Secret">
+          {shown.secret}
+        </code>
+        <Button size="sm" variant="secondary" onClick={copy}>
+          <Copy className="size-4" aria-hidden="true" /> Copy
+        </Button>
       </div>
-      <p className="text-xs">Source id (the end of the URL the controller posts to): <code className="font-mono">{shown.id}</code>. The README's “Alarm sources” shows the signed request.</p>
-      <div><Button size="sm" onClick={onClose}>I have copied it</Button></div>
+      <p className="text-xs">
+        Source id (the end of the URL the controller posts to): <code className="font-mono">{shown.id}</code>. The README's “Alarm sources”
+        shows the signed request.
+      </p>
+      <div>
+        <Button size="sm" onClick={onClose}>
+          I have copied it
+        </Button>
+      </div>
     </div>
   );
 }
@@ -65,14 +86,30 @@ function MapForm({ d, siteId, branchId }: { d: AlarmDeliveryRow; siteId: string;
     >
       <SelectField label="Unit at this site" value={unitId} onChange={(e) => setUnitId(e.target.value)} disabled={units.isPending}>
         <option value="">{units.isPending ? 'Loading units…' : choices.length ? 'Choose a unit' : 'No units at this site'}</option>
-        {choices.map((u) => <option key={u.id} value={u.id}>{u.tag} — {u.make} {u.model}</option>)}
+        {choices.map((u) => (
+          <option key={u.id} value={u.id}>
+            {u.tag} — {u.make} {u.model}
+          </option>
+        ))}
       </SelectField>
-      <Button type="submit" size="sm" busy={m.isPending}>Map</Button>
+      <Button type="submit" size="sm" busy={m.isPending}>
+        Map
+      </Button>
     </form>
   );
 }
 
-function SourceCard({ s, timeZone, branchId, onSecret }: { s: AlarmSourceRow; timeZone: string; branchId: string | undefined; onSecret: (x: AlarmSourceSecret & { name: string }) => void }) {
+function SourceCard({
+  s,
+  timeZone,
+  branchId,
+  onSecret,
+}: {
+  s: AlarmSourceRow;
+  timeZone: string;
+  branchId: string | undefined;
+  onSecret: (x: AlarmSourceSecret & { name: string }) => void;
+}) {
   const notify = useNotify();
   const rotate = useRotateAlarmSource();
   const patch = usePatchAlarmSource();
@@ -80,25 +117,50 @@ function SourceCard({ s, timeZone, branchId, onSecret }: { s: AlarmSourceRow; ti
     <li className="flex flex-col gap-2 rounded-md border border-slate-line bg-white p-3">
       <div className="flex flex-wrap items-start justify-between gap-2">
         <div>
-          <p className="font-medium">{s.name} <span className="text-slate">· {s.siteName}</span></p>
-          <p className="text-xs text-slate">Source id <code className="font-mono">{s.id}</code></p>
+          <p className="font-medium">
+            {s.name} <span className="text-slate">· {s.siteName}</span>
+          </p>
+          <p className="text-xs text-slate">
+            Source id <code className="font-mono">{s.id}</code>
+          </p>
         </div>
         <div className="flex flex-wrap gap-2">
           {s.enabled ? <Badge tone="ok">Enabled</Badge> : <Badge tone="alarm">Disabled</Badge>}
-          {s.unmatched.length > 0 && <Badge tone="watch"><AlertTriangle className="size-3.5" aria-hidden="true" /> {s.unmatched.length} to map</Badge>}
+          {s.unmatched.length > 0 && (
+            <Badge tone="watch">
+              <AlertTriangle className="size-3.5" aria-hidden="true" /> {s.unmatched.length} to map
+            </Badge>
+          )}
         </div>
       </div>
       <dl className="grid grid-cols-1 gap-x-4 gap-y-1 text-sm sm:grid-cols-3">
-        <div><dt className="text-xs text-slate">Last delivery</dt><dd>{s.lastDeliveryAt ? formatInZone(s.lastDeliveryAt, timeZone) : 'None yet'}</dd></div>
-        <div><dt className="text-xs text-slate">Deliveries today</dt><dd>{s.deliveriesToday}</dd></div>
-        <div><dt className="text-xs text-slate">Rejected today</dt><dd className={s.rejectedToday ? 'text-alarm' : ''}>{s.rejectedToday}</dd></div>
+        <div>
+          <dt className="text-xs text-slate">Last delivery</dt>
+          <dd>{s.lastDeliveryAt ? formatInZone(s.lastDeliveryAt, timeZone) : 'None yet'}</dd>
+        </div>
+        <div>
+          <dt className="text-xs text-slate">Deliveries today</dt>
+          <dd>{s.deliveriesToday}</dd>
+        </div>
+        <div>
+          <dt className="text-xs text-slate">Rejected today</dt>
+          <dd className={s.rejectedToday ? 'text-alarm' : ''}>{s.rejectedToday}</dd>
+        </div>
       </dl>
-      {s.previousValidUntil && <p className="text-xs text-slate">After the last rotation the previous secret is accepted until {formatInZone(s.previousValidUntil, timeZone)}.</p>}
+      {s.previousValidUntil && (
+        <p className="text-xs text-slate">
+          After the last rotation the previous secret is accepted until {formatInZone(s.previousValidUntil, timeZone)}.
+        </p>
+      )}
       {s.recentRejected.length > 0 && (
         <div className="text-sm">
           <p className="text-xs font-medium text-slate">Latest rejected requests</p>
           <ul className="flex flex-col gap-0.5">
-            {s.recentRejected.map((d) => <li key={d.id}>{formatInZone(d.receivedAt, timeZone)} — {reasonLabel(d)}</li>)}
+            {s.recentRejected.map((d) => (
+              <li key={d.id}>
+                {formatInZone(d.receivedAt, timeZone)} — {reasonLabel(d)}
+              </li>
+            ))}
           </ul>
         </div>
       )}
@@ -110,7 +172,8 @@ function SourceCard({ s, timeZone, branchId, onSecret }: { s: AlarmSourceRow; ti
               <li key={d.id} className="flex flex-col gap-1 border-t border-slate-line pt-2">
                 <span>
                   Tag <strong className="font-mono">{d.unitTag}</strong>, alarm <span className="font-mono">{d.code}</span>
-                  {d.circuit ? `, circuit ${d.circuit}` : ''}, raised {d.raisedAt ? formatInZone(d.raisedAt, timeZone) : '—'} ({reasonLabel(d)})
+                  {d.circuit ? `, circuit ${d.circuit}` : ''}, raised {d.raisedAt ? formatInZone(d.raisedAt, timeZone) : '—'} (
+                  {reasonLabel(d)})
                 </span>
                 <MapForm d={d} siteId={s.siteId} branchId={branchId} />
               </li>
@@ -143,7 +206,8 @@ function SourceCard({ s, timeZone, branchId, onSecret }: { s: AlarmSourceRow; ti
             patch.mutate(
               { id: s.id, patch: { enabled: !s.enabled } },
               {
-                onSuccess: () => notify(s.enabled ? `${s.name} is disabled: its alarms are refused until it is enabled.` : `${s.name} is enabled again.`),
+                onSuccess: () =>
+                  notify(s.enabled ? `${s.name} is disabled: its alarms are refused until it is enabled.` : `${s.name} is enabled again.`),
                 onError: (err) => notify(errorMessage(err), 'alarm'),
               },
             )
@@ -156,11 +220,20 @@ function SourceCard({ s, timeZone, branchId, onSecret }: { s: AlarmSourceRow; ti
   );
 }
 
-function CreateSource({ branchId, onSecret }: { branchId: string | undefined; onSecret: (x: AlarmSourceSecret & { name: string }) => void }) {
+function CreateSource({
+  branchId,
+  onSecret,
+}: {
+  branchId: string | undefined;
+  onSecret: (x: AlarmSourceSecret & { name: string }) => void;
+}) {
   const notify = useNotify();
   const units = useUnitChoices(branchId);
   const m = useCreateAlarmSource();
-  const sites = useMemo(() => [...new Map((units.data ?? []).map((u) => [u.siteId, u.siteName])).entries()].sort((a, b) => a[1].localeCompare(b[1])), [units.data]);
+  const sites = useMemo(
+    () => [...new Map((units.data ?? []).map((u) => [u.siteId, u.siteName])).entries()].sort((a, b) => a[1].localeCompare(b[1])),
+    [units.data],
+  );
   const [siteId, setSiteId] = useState('');
   const [name, setName] = useState('');
   return (
@@ -183,12 +256,24 @@ function CreateSource({ branchId, onSecret }: { branchId: string | undefined; on
         );
       }}
     >
-      <SelectField label="Site" value={siteId} onChange={(e) => setSiteId(e.target.value)} disabled={units.isPending} error={units.isError ? 'The sites could not be loaded.' : undefined}>
+      <SelectField
+        label="Site"
+        value={siteId}
+        onChange={(e) => setSiteId(e.target.value)}
+        disabled={units.isPending}
+        error={units.isError ? 'The sites could not be loaded.' : undefined}
+      >
         <option value="">{units.isPending ? 'Loading sites…' : 'Choose a site'}</option>
-        {sites.map(([id, n]) => <option key={id} value={id}>{n}</option>)}
+        {sites.map(([id, n]) => (
+          <option key={id} value={id}>
+            {n}
+          </option>
+        ))}
       </SelectField>
       <TextField label="Controller name" value={name} onChange={(e) => setName(e.target.value)} placeholder="Roof BMS" maxLength={120} />
-      <Button type="submit" busy={m.isPending}><Plus className="size-4" aria-hidden="true" /> Register</Button>
+      <Button type="submit" busy={m.isPending}>
+        <Plus className="size-4" aria-hidden="true" /> Register
+      </Button>
     </form>
   );
 }
@@ -202,21 +287,40 @@ export function AlarmSourcesSection({ branchId, timeZone }: { branchId: string |
   return (
     <section aria-labelledby="alarm-sources-h" className="flex flex-col gap-2">
       <div className="flex flex-wrap items-center justify-between gap-2">
-        <h2 id="alarm-sources-h" className="text-lg font-semibold">Alarm sources</h2>
-        <Button size="sm" variant="secondary" onClick={() => setAdding(!adding)} aria-expanded={adding}><Plus className="size-4" aria-hidden="true" /> Register a controller</Button>
+        <h2 id="alarm-sources-h" className="text-lg font-semibold">
+          Alarm sources
+        </h2>
+        <Button size="sm" variant="secondary" onClick={() => setAdding(!adding)} aria-expanded={adding}>
+          <Plus className="size-4" aria-hidden="true" /> Register a controller
+        </Button>
       </div>
-      <p className="text-sm text-slate">Building controllers that post their alarms to Coilpath, each request signed with the controller's secret. An accepted alarm runs the repeat-alarm rule at once.</p>
+      <p className="text-sm text-slate">
+        Building controllers that post their alarms to Coilpath, each request signed with the controller's secret. An accepted alarm runs
+        the repeat-alarm rule at once.
+      </p>
       {secret && <SecretOnce shown={secret} timeZone={timeZone} onClose={() => setSecret(null)} />}
-      {adding && <CreateSource branchId={branchId} onSecret={(x) => { setSecret(x); setAdding(false); }} />}
+      {adding && (
+        <CreateSource
+          branchId={branchId}
+          onSecret={(x) => {
+            setSecret(x);
+            setAdding(false);
+          }}
+        />
+      )}
       {q.isPending ? (
         <LoadingState label="Loading alarm sources…" />
       ) : q.isError ? (
         <ErrorState error={q.error} onRetry={() => q.refetch()} />
       ) : rows.length === 0 ? (
-        <EmptyState title="No alarm sources yet">Register a site's controller to receive its alarms without anyone typing them in.</EmptyState>
+        <EmptyState title="No alarm sources yet">
+          Register a site's controller to receive its alarms without anyone typing them in.
+        </EmptyState>
       ) : (
         <ul className="flex flex-col gap-3">
-          {rows.map((s) => <SourceCard key={s.id} s={s} timeZone={timeZone} branchId={branchId} onSecret={setSecret} />)}
+          {rows.map((s) => (
+            <SourceCard key={s.id} s={s} timeZone={timeZone} branchId={branchId} onSecret={setSecret} />
+          ))}
         </ul>
       )}
     </section>

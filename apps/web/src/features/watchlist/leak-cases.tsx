@@ -26,14 +26,30 @@ export const woLabel = (n: number | null) => (n === null ? 'work order' : `WO-${
 const isFinished = (state: OpenReturnDetails['state']) => state === 'closed' || state === 'cancelled';
 
 export function DeadlineBadge({ d }: { d: LeakDeadline }) {
-  if (d.state === 'met') return <Badge tone="ok"><CheckCircle2 className="size-3.5" aria-hidden="true" /> Done</Badge>;
-  if (d.state === 'overdue') return <Badge tone="alarm"><AlertTriangle className="size-3.5" aria-hidden="true" /> Overdue by {-d.daysLeft} day{d.daysLeft === -1 ? '' : 's'}</Badge>;
+  if (d.state === 'met')
+    return (
+      <Badge tone="ok">
+        <CheckCircle2 className="size-3.5" aria-hidden="true" /> Done
+      </Badge>
+    );
+  if (d.state === 'overdue')
+    return (
+      <Badge tone="alarm">
+        <AlertTriangle className="size-3.5" aria-hidden="true" /> Overdue by {-d.daysLeft} day{d.daysLeft === -1 ? '' : 's'}
+      </Badge>
+    );
   if (d.state === 'due_soon')
-    return <Badge tone="watch"><Clock className="size-3.5" aria-hidden="true" /> {d.daysLeft === 0 ? 'Due today' : `Due in ${d.daysLeft} day${d.daysLeft === 1 ? '' : 's'}`}</Badge>;
+    return (
+      <Badge tone="watch">
+        <Clock className="size-3.5" aria-hidden="true" />{' '}
+        {d.daysLeft === 0 ? 'Due today' : `Due in ${d.daysLeft} day${d.daysLeft === 1 ? '' : 's'}`}
+      </Badge>
+    );
   return <Badge tone="neutral">{d.daysLeft} days left</Badge>;
 }
 
-const caseText = (c: LeakCaseRow) => `${c.unitTag} ${c.siteName} ${c.make} ${c.model} ${c.refrigerant} ${c.rule} ${leakCaseStatusLabels[c.status]} ${c.next ? whatLabels[c.next.what] : ''}`;
+const caseText = (c: LeakCaseRow) =>
+  `${c.unitTag} ${c.siteName} ${c.make} ${c.model} ${c.refrigerant} ${c.rule} ${leakCaseStatusLabels[c.status]} ${c.next ? whatLabels[c.next.what] : ''}`;
 
 export function LeakCasesSection({ branchId }: { branchId: string | undefined }) {
   const q = useLeakCases(branchId);
@@ -63,7 +79,9 @@ export function LeakCasesSection({ branchId }: { branchId: string | undefined })
     );
   return (
     <section aria-labelledby="leak-cases-h" className="flex flex-col gap-3">
-      <h2 id="leak-cases-h" className="text-lg font-semibold">Open leak cases</h2>
+      <h2 id="leak-cases-h" className="text-lg font-semibold">
+        Open leak cases
+      </h2>
       <SafetyNote>
         Deadlines follow Coilpath's extract of the US EPA leak-repair rules (40 CFR 82.157 and 84.106); items marked [S] or [M] come from
         secondary sources or memory. Check the current eCFR, the manufacturer's data and local codes before relying on them. Leak repairs
@@ -102,7 +120,8 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
   const [panel, setPanel] = useState<'none' | 'test' | 'plan'>('none');
   /** The open return visit a refused booking named (409 `open_return_exists`), offered to open. */
   const [openReturn, setOpenReturn] = useState<{ wo: OpenReturnDetails; message: string } | null>(null);
-  const urgent = c.next?.state === 'overdue' ? 'border-alarm border-l-4' : c.next?.state === 'due_soon' ? 'border-watch-base border-l-4' : '';
+  const urgent =
+    c.next?.state === 'overdue' ? 'border-alarm border-l-4' : c.next?.state === 'due_soon' ? 'border-watch-base border-l-4' : '';
 
   const onBook = () =>
     book.mutate(
@@ -125,7 +144,10 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
       },
     );
   const onClose = () =>
-    patch.mutate({ id: c.id, patch: { action: 'close' } }, { onSuccess: () => notify(`Leak case on ${c.unitTag} closed.`), onError: (e) => notify(errorMessage(e), 'alarm') });
+    patch.mutate(
+      { id: c.id, patch: { action: 'close' } },
+      { onSuccess: () => notify(`Leak case on ${c.unitTag} closed.`), onError: (e) => notify(errorMessage(e), 'alarm') },
+    );
 
   return (
     <Card className={urgent}>
@@ -142,7 +164,15 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
         <div className="flex flex-wrap gap-1">
           <Badge tone="neutral">{leakCaseStatusLabels[c.status]}</Badge>
           {c.obligationState && (
-            <Badge tone={c.obligationState === 'open' || c.obligationState === 'overdue' ? 'alarm' : c.obligationState === 'repaired' ? 'watch' : 'ok'}>
+            <Badge
+              tone={
+                c.obligationState === 'open' || c.obligationState === 'overdue'
+                  ? 'alarm'
+                  : c.obligationState === 'repaired'
+                    ? 'watch'
+                    : 'ok'
+              }
+            >
               Record: {leakObligationStateLabels[c.obligationState]}
             </Badge>
           )}
@@ -151,15 +181,22 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
         </div>
       </div>
       <p className="tabular mt-2 text-sm">
-        Leak rate <strong>{c.leakRatePercent.toFixed(1)} %/yr</strong> ({c.method}) over the <strong>{c.thresholdPercent} %</strong> threshold of {c.rule}.
+        Leak rate <strong>{c.leakRatePercent.toFixed(1)} %/yr</strong> ({c.method}) over the <strong>{c.thresholdPercent} %</strong>{' '}
+        threshold of {c.rule}.
       </p>
       <table className="mt-3 w-full text-sm">
         <caption className="sr-only">Deadlines of the leak case on {c.unitTag}</caption>
         <thead className="text-left text-xs uppercase tracking-wide text-slate">
           <tr>
-            <th scope="col" className="py-1 pr-2 font-semibold">Deadline</th>
-            <th scope="col" className="py-1 pr-2 font-semibold">Due</th>
-            <th scope="col" className="py-1 font-semibold">State</th>
+            <th scope="col" className="py-1 pr-2 font-semibold">
+              Deadline
+            </th>
+            <th scope="col" className="py-1 pr-2 font-semibold">
+              Due
+            </th>
+            <th scope="col" className="py-1 font-semibold">
+              State
+            </th>
           </tr>
         </thead>
         <tbody>
@@ -170,7 +207,9 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
                 <span className="block text-xs text-slate">{d.source}</span>
               </td>
               <td className="tabular py-1.5 pr-2 whitespace-nowrap">{recordDate(d.due)}</td>
-              <td className="py-1.5"><DeadlineBadge d={d} /></td>
+              <td className="py-1.5">
+                <DeadlineBadge d={d} />
+              </td>
             </tr>
           ))}
         </tbody>
@@ -178,7 +217,9 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
       {c.tests.length > 0 && (
         <p className="mt-2 text-sm">
           Tests:{' '}
-          {c.tests.map((t) => `${t.kind === 'initial' ? 'initial' : 'follow-up'} ${t.testedOn} ${t.passed ? 'passed' : 'failed'}`).join(' · ')}
+          {c.tests
+            .map((t) => `${t.kind === 'initial' ? 'initial' : 'follow-up'} ${t.testedOn} ${t.passed ? 'passed' : 'failed'}`)
+            .join(' · ')}
         </p>
       )}
       <div className="mt-3 flex flex-wrap items-end gap-2 border-t border-slate-line pt-3">
@@ -195,14 +236,19 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
           <>
             <div className="w-36">
               <SelectField label="Priority" value={priority} onChange={(e) => setPriority(e.target.value as Priority)}>
-                {priorities.map((p) => <option key={p} value={p}>{priorityLabels[p]}</option>)}
+                {priorities.map((p) => (
+                  <option key={p} value={p}>
+                    {priorityLabels[p]}
+                  </option>
+                ))}
               </SelectField>
             </div>
             <Button onClick={onBook} busy={book.isPending}>
               {c.repairWorkOrder ? 'Book another repair visit' : 'Book repair visit'}
             </Button>
             <p className="basis-full text-xs text-slate">
-              Creates a return visit in the Roster queue (or joins the one already open for this unit): needs EPA 608 {epa608Labels[c.requiredCertification]}, to be booked by {recordDate(c.repairDueDate)}.
+              Creates a return visit in the Roster queue (or joins the one already open for this unit): needs EPA 608{' '}
+              {epa608Labels[c.requiredCertification]}, to be booked by {recordDate(c.repairDueDate)}.
             </p>
           </>
         )}
@@ -210,7 +256,12 @@ export function LeakCaseCard({ c }: { c: LeakCaseRow }) {
           Record verification test
         </Button>
         {!c.planKind && (
-          <Button variant="secondary" size="sm" aria-expanded={panel === 'plan'} onClick={() => setPanel(panel === 'plan' ? 'none' : 'plan')}>
+          <Button
+            variant="secondary"
+            size="sm"
+            aria-expanded={panel === 'plan'}
+            onClick={() => setPanel(panel === 'plan' ? 'none' : 'plan')}
+          >
             Plan retrofit or retirement
           </Button>
         )}
@@ -239,7 +290,9 @@ function TestForm({ c, onDone }: { c: LeakCaseRow; onDone: () => void }) {
       { id: c.id, body: { kind, testedOn, passed: passed === 'yes' } },
       {
         onSuccess: () => {
-          notify(`${kind === 'initial' ? 'Initial' : 'Follow-up'} verification test on ${c.unitTag} recorded (${passed === 'yes' ? 'passed' : 'failed'}).`);
+          notify(
+            `${kind === 'initial' ? 'Initial' : 'Follow-up'} verification test on ${c.unitTag} recorded (${passed === 'yes' ? 'passed' : 'failed'}).`,
+          );
           onDone();
         },
         onError: (err) => setError(errorMessage(err)),
@@ -257,8 +310,14 @@ function TestForm({ c, onDone }: { c: LeakCaseRow; onDone: () => void }) {
         <option value="yes">Passed</option>
         <option value="no">Failed</option>
       </SelectField>
-      <Button type="submit" busy={add.isPending}>Save test</Button>
-      {error && <p role="alert" className="text-sm text-alarm sm:col-span-4">{error}</p>}
+      <Button type="submit" busy={add.isPending}>
+        Save test
+      </Button>
+      {error && (
+        <p role="alert" className="text-sm text-alarm sm:col-span-4">
+          {error}
+        </p>
+      )}
     </form>
   );
 }
@@ -274,7 +333,9 @@ function PlanForm({ c, onDone }: { c: LeakCaseRow; onDone: () => void }) {
       { id: c.id, patch: { action: 'plan', planKind } },
       {
         onSuccess: (r) => {
-          notify(`${planKind === 'retrofit' ? 'Retrofit' : 'Retirement'} plan for ${c.unitTag} recorded; it is due to be carried out by ${r.leakCase.planDueDate ? recordDate(r.leakCase.planDueDate) : 'its deadline'}.`);
+          notify(
+            `${planKind === 'retrofit' ? 'Retrofit' : 'Retirement'} plan for ${c.unitTag} recorded; it is due to be carried out by ${r.leakCase.planDueDate ? recordDate(r.leakCase.planDueDate) : 'its deadline'}.`,
+          );
           onDone();
         },
         onError: (err) => setError(errorMessage(err)),
@@ -283,12 +344,23 @@ function PlanForm({ c, onDone }: { c: LeakCaseRow; onDone: () => void }) {
   };
   return (
     <form onSubmit={submit} className="mt-3 grid gap-3 rounded-md bg-frost p-3 sm:grid-cols-3 sm:items-end">
-      <SelectField label="Plan" value={planKind} onChange={(e) => setPlanKind(e.target.value as 'retrofit' | 'retire')} hint="A plan within 30 days replaces the repair; it must be carried out within a year.">
+      <SelectField
+        label="Plan"
+        value={planKind}
+        onChange={(e) => setPlanKind(e.target.value as 'retrofit' | 'retire')}
+        hint="A plan within 30 days replaces the repair; it must be carried out within a year."
+      >
         <option value="retrofit">Retrofit the unit</option>
         <option value="retire">Retire the unit</option>
       </SelectField>
-      <Button type="submit" busy={patch.isPending}>Record plan</Button>
-      {error && <p role="alert" className="text-sm text-alarm sm:col-span-3">{error}</p>}
+      <Button type="submit" busy={patch.isPending}>
+        Record plan
+      </Button>
+      {error && (
+        <p role="alert" className="text-sm text-alarm sm:col-span-3">
+          {error}
+        </p>
+      )}
     </form>
   );
 }

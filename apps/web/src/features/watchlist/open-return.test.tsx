@@ -13,7 +13,8 @@ const WO = '5b0c7a52-8a1e-4a43-9a55-0f3c1d2e4b61';
 const UNIT = '0e6f2f61-4f0b-4c38-8f5a-6c1b9d7a2e10';
 const VISIT = '9d3e1c7b-2a4f-4e58-b6c9-1f0a8e7d5c32';
 const details: OpenReturnDetails = { workOrderId: WO, number: 10042, state: 'unplaced', unitId: UNIT, visitId: null };
-const refused = (d: unknown, code = 'open_return_exists', status = 409) => new ApiError(status, code, 'The repair visit already exists: WO-10042 (unplaced).', d);
+const refused = (d: unknown, code = 'open_return_exists', status = 409) =>
+  new ApiError(status, code, 'The repair visit already exists: WO-10042 (unplaced).', d);
 
 describe('openReturnOf', () => {
   it('reads the open work order from a 409 open_return_exists', () => {

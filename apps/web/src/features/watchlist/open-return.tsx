@@ -23,11 +23,20 @@ export function workOrderHref(wo: { visitId: string | null; unitId: string | nul
 }
 
 /** A link that opens a work order (see `workOrderHref`); nothing when there is nowhere to go. */
-export function OpenWorkOrderLink({ wo, className = '' }: { wo: { number: number | null; visitId: string | null; unitId: string | null }; className?: string }) {
+export function OpenWorkOrderLink({
+  wo,
+  className = '',
+}: {
+  wo: { number: number | null; visitId: string | null; unitId: string | null };
+  className?: string;
+}) {
   const href = workOrderHref(wo);
   if (!href) return null;
   return (
-    <Link to={href} className={`inline-flex min-h-11 items-center gap-1 font-medium text-coolant underline-offset-2 hover:underline ${className}`}>
+    <Link
+      to={href}
+      className={`inline-flex min-h-11 items-center gap-1 font-medium text-coolant underline-offset-2 hover:underline ${className}`}
+    >
       <ExternalLink className="size-4" aria-hidden="true" /> Open {workOrderLabel(wo.number)}
       <span className="sr-only">{wo.visitId ? ' (its visit)' : ' (in the Unit file)'}</span>
     </Link>
@@ -41,7 +50,10 @@ export const workOrderStateText = (state: OpenReturnDetails['state']) =>
 /** What the screen says after a 409 `open_return_exists`: no second visit, and the way to the open one. */
 export function OpenReturnOffer({ wo, message }: { wo: OpenReturnDetails; message: string }) {
   return (
-    <div role="alert" className="mt-3 flex flex-wrap items-center gap-x-3 gap-y-1 rounded-md border border-watch-base/40 bg-watch-tint px-3 py-2 text-sm text-ink">
+    <div
+      role="alert"
+      className="mt-3 flex flex-wrap items-center gap-x-3 gap-y-1 rounded-md border border-watch-base/40 bg-watch-tint px-3 py-2 text-sm text-ink"
+    >
       <p className="min-w-0 flex-1">
         {message} No second visit was created; {workOrderLabel(wo.number)} is {workOrderStateText(wo.state)}.
       </p>

@@ -1,6 +1,13 @@
 import { useCallback, useMemo, useState } from 'react';
 import { AlertTriangle, Send } from 'lucide-react';
-import { causeCodeLabels, priorities, priorityLabels, returnNeedLabels, visitOutcomeLabels, workOrderKindLabels } from '@coilpath/contract/vocabulary';
+import {
+  causeCodeLabels,
+  priorities,
+  priorityLabels,
+  returnNeedLabels,
+  visitOutcomeLabels,
+  workOrderKindLabels,
+} from '@coilpath/contract/vocabulary';
 import type { Priority, RepeatAlarmUnit, ReturnVisitRow } from '@coilpath/contract';
 import { addDays } from '@coilpath/calc';
 import { errorMessage } from '@/lib/api-client';
@@ -32,14 +39,23 @@ export function RepeatAlarmsSection({ branchId, timeZone }: { branchId: string |
         accessorFn: (u) => u.unitTag,
         cell: ({ row: { original: u } }) => (
           <div>
-            <a className="font-medium text-coolant underline-offset-2 hover:underline" href={`/units/${u.unitId}`}>{u.unitTag}</a>
-            <div className="text-xs text-slate">{u.make} {u.model} · {u.serial}</div>
+            <a className="font-medium text-coolant underline-offset-2 hover:underline" href={`/units/${u.unitId}`}>
+              {u.unitTag}
+            </a>
+            <div className="text-xs text-slate">
+              {u.make} {u.model} · {u.serial}
+            </div>
             <ChangedByNote row="unit" id={u.unitId} />
           </div>
         ),
       },
       { id: 'site', header: 'Site', accessorFn: (u) => u.siteName },
-      { id: 'code', header: 'Alarm', accessorFn: (u) => u.code, cell: ({ row: { original: u } }) => <span className="font-mono">{u.code}</span> },
+      {
+        id: 'code',
+        header: 'Alarm',
+        accessorFn: (u) => u.code,
+        cell: ({ row: { original: u } }) => <span className="font-mono">{u.code}</span>,
+      },
       { id: 'count', header: 'Times', accessorFn: (u) => u.count },
       { id: 'last', header: 'Last raised', accessorFn: (u) => u.last, cell: ({ row: { original: u } }) => formatInZone(u.last, timeZone) },
       {
@@ -68,7 +84,8 @@ export function RepeatAlarmsSection({ branchId, timeZone }: { branchId: string |
             <ul className="flex flex-col gap-0.5 text-xs">
               {u.visits.map((v) => (
                 <li key={v.workOrderId}>
-                  {woLabel(v.number)} {workOrderKindLabels[v.kind].toLowerCase()} · {v.outcome ? visitOutcomeLabels[v.outcome] : v.state.replace('_', ' ')}
+                  {woLabel(v.number)} {workOrderKindLabels[v.kind].toLowerCase()} ·{' '}
+                  {v.outcome ? visitOutcomeLabels[v.outcome] : v.state.replace('_', ' ')}
                   {v.closedAt ? ` ${formatInZone(v.closedAt, timeZone, 'd MMM')}` : ''}
                   {v.techName ? ` · ${v.techName}` : ''}
                 </li>
@@ -120,9 +137,14 @@ export function RepeatAlarmsSection({ branchId, timeZone }: { branchId: string |
     );
   return (
     <section aria-labelledby="repeat-h" className="flex flex-col gap-2">
-      <h2 id="repeat-h" className="text-lg font-semibold">Repeat-alarm units</h2>
+      <h2 id="repeat-h" className="text-lg font-semibold">
+        Repeat-alarm units
+      </h2>
       <p className="text-sm text-slate">
-        {rule ? `The same alarm code ${rule.minCount} or more times in ${rule.windowDays} days` : 'The same alarm code N or more times in M days (each branch sets N and M)'}, with the work done since.
+        {rule
+          ? `The same alarm code ${rule.minCount} or more times in ${rule.windowDays} days`
+          : 'The same alarm code N or more times in M days (each branch sets N and M)'}
+        , with the work done since.
       </p>
       {q.isPending ? (
         <LoadingState label="Looking for repeat alarms…" />
@@ -130,7 +152,8 @@ export function RepeatAlarmsSection({ branchId, timeZone }: { branchId: string |
         <ErrorState error={q.error} onRetry={() => q.refetch()} />
       ) : rows.length === 0 ? (
         <EmptyState title="No unit is alarming repeatedly">
-          Alarms come in from the form above, a CSV import or other systems through the API. A unit appears here once the same code repeats within the branch's window.
+          Alarms come in from the form above, a CSV import or other systems through the API. A unit appears here once the same code repeats
+          within the branch's window.
         </EmptyState>
       ) : (
         <>
@@ -147,7 +170,11 @@ export function RepeatAlarmsSection({ branchId, timeZone }: { branchId: string |
 export function ReturnVisitsSection({ branchId, timeZone }: { branchId: string | undefined; timeZone: string }) {
   const q = useReturnVisits(branchId);
   const rows = q.data ?? [];
-  const toText = useCallback((r: ReturnVisitRow) => `${woLabel(r.number)} ${r.siteName} ${r.unitTag ?? ''} ${r.returnNeeds.map((n) => returnNeedLabels[n]).join(' ')} ${r.returnNotes ?? ''}`, []);
+  const toText = useCallback(
+    (r: ReturnVisitRow) =>
+      `${woLabel(r.number)} ${r.siteName} ${r.unitTag ?? ''} ${r.returnNeeds.map((n) => returnNeedLabels[n]).join(' ')} ${r.returnNotes ?? ''}`,
+    [],
+  );
   const { q: filter, setQ, filtered } = useTableFilter(rows, toText);
   const columns = useMemo<CoilpathColumn<ReturnVisitRow>[]>(
     () => [
@@ -158,7 +185,9 @@ export function ReturnVisitsSection({ branchId, timeZone }: { branchId: string |
         cell: ({ row: { original: r } }) => (
           <div>
             {formatInZone(r.origin?.closedAt ?? r.createdAt, timeZone, 'EEE d MMM')}
-            <div className="text-xs text-slate">{r.origin ? `${woLabel(r.origin.number)}${r.origin.techName ? ` · ${r.origin.techName}` : ''}` : ''}</div>
+            <div className="text-xs text-slate">
+              {r.origin ? `${woLabel(r.origin.number)}${r.origin.techName ? ` · ${r.origin.techName}` : ''}` : ''}
+            </div>
           </div>
         ),
       },
@@ -169,7 +198,9 @@ export function ReturnVisitsSection({ branchId, timeZone }: { branchId: string |
         cell: ({ row: { original: r } }) => (
           <div>
             {r.siteName}
-            <div className="text-xs text-slate">{r.unitTag ?? 'Whole site'} · return {woLabel(r.number)}</div>
+            <div className="text-xs text-slate">
+              {r.unitTag ?? 'Whole site'} · return {woLabel(r.number)}
+            </div>
             <ChangedByNote row="workOrder" id={r.workOrderId} />
           </div>
         ),
@@ -180,7 +211,13 @@ export function ReturnVisitsSection({ branchId, timeZone }: { branchId: string |
         enableSorting: false,
         cell: ({ row: { original: r } }) => (
           <div className="flex max-w-xs flex-col gap-1">
-            <div className="flex flex-wrap gap-1">{r.returnNeeds.map((n) => <Badge key={n} tone="info">{returnNeedLabels[n]}</Badge>)}</div>
+            <div className="flex flex-wrap gap-1">
+              {r.returnNeeds.map((n) => (
+                <Badge key={n} tone="info">
+                  {returnNeedLabels[n]}
+                </Badge>
+              ))}
+            </div>
             {r.returnNotes && <span className="text-xs">{r.returnNotes}</span>}
           </div>
         ),
@@ -211,14 +248,21 @@ export function ReturnVisitsSection({ branchId, timeZone }: { branchId: string |
     );
   return (
     <section aria-labelledby="returns-h" className="flex flex-col gap-2">
-      <h2 id="returns-h" className="text-lg font-semibold">Return visits to book</h2>
-      <p className="text-sm text-slate">Visits closed as needing a return whose return visit is not booked yet, oldest first. Set a priority and the latest date to send it to the Roster queue.</p>
+      <h2 id="returns-h" className="text-lg font-semibold">
+        Return visits to book
+      </h2>
+      <p className="text-sm text-slate">
+        Visits closed as needing a return whose return visit is not booked yet, oldest first. Set a priority and the latest date to send it
+        to the Roster queue.
+      </p>
       {q.isPending ? (
         <LoadingState label="Loading return visits…" />
       ) : q.isError ? (
         <ErrorState error={q.error} onRetry={() => q.refetch()} />
       ) : rows.length === 0 ? (
-        <EmptyState title="No return visits waiting">When a technician closes a visit as needing a return, the return visit appears here until it is booked.</EmptyState>
+        <EmptyState title="No return visits waiting">
+          When a technician closes a visit as needing a return, the return visit appears here until it is booked.
+        </EmptyState>
       ) : (
         <>
           <TableTools label="return visits" q={filter} setQ={setQ} shown={filtered.length} total={rows.length} onExport={exportCsv} />
@@ -240,23 +284,49 @@ function QueueForm({ r, timeZone }: { r: ReturnVisitRow; timeZone: string }) {
     m.mutate(
       { id: r.workOrderId, body: { priority, latestDate } },
       {
-        onSuccess: () => notify(`Return visit ${woLabel(r.number)} is in the Roster queue: ${priorityLabels[priority].toLowerCase()} priority, book by ${latestDate}.`),
+        onSuccess: () =>
+          notify(
+            `Return visit ${woLabel(r.number)} is in the Roster queue: ${priorityLabels[priority].toLowerCase()} priority, book by ${latestDate}.`,
+          ),
         onError: (err) => notify(errorMessage(err), 'alarm'),
       },
     );
   };
   return (
     <form onSubmit={submit} className="flex flex-wrap items-center gap-2" aria-label={`Send ${woLabel(r.number)} to the Roster queue`}>
-      <label className="sr-only" htmlFor={`p-${r.workOrderId}`}>Priority</label>
-      <select id={`p-${r.workOrderId}`} value={priority} onChange={(e) => setPriority(e.target.value as Priority)} className="min-h-10 rounded-md border border-slate-line bg-white px-2 text-sm">
-        {priorities.map((p) => <option key={p} value={p}>{priorityLabels[p]}</option>)}
+      <label className="sr-only" htmlFor={`p-${r.workOrderId}`}>
+        Priority
+      </label>
+      <select
+        id={`p-${r.workOrderId}`}
+        value={priority}
+        onChange={(e) => setPriority(e.target.value as Priority)}
+        className="min-h-10 rounded-md border border-slate-line bg-white px-2 text-sm"
+      >
+        {priorities.map((p) => (
+          <option key={p} value={p}>
+            {priorityLabels[p]}
+          </option>
+        ))}
       </select>
-      <label className="sr-only" htmlFor={`d-${r.workOrderId}`}>Latest date</label>
-      <input id={`d-${r.workOrderId}`} type="date" min={today} value={latestDate} onChange={(e) => setLatestDate(e.target.value)} required className="min-h-10 rounded-md border border-slate-line bg-white px-2 text-sm" />
+      <label className="sr-only" htmlFor={`d-${r.workOrderId}`}>
+        Latest date
+      </label>
+      <input
+        id={`d-${r.workOrderId}`}
+        type="date"
+        min={today}
+        value={latestDate}
+        onChange={(e) => setLatestDate(e.target.value)}
+        required
+        className="min-h-10 rounded-md border border-slate-line bg-white px-2 text-sm"
+      />
       <Button type="submit" size="sm" busy={m.isPending}>
         <Send className="size-4" aria-hidden="true" /> {r.latestAt ? 'Update' : 'Send to Roster'}
       </Button>
-      {r.latestAt && <span className="basis-full text-xs text-ok">In the queue, book by {formatInZone(r.latestAt, timeZone, 'd MMM')}</span>}
+      {r.latestAt && (
+        <span className="basis-full text-xs text-ok">In the queue, book by {formatInZone(r.latestAt, timeZone, 'd MMM')}</span>
+      )}
     </form>
   );
 }
