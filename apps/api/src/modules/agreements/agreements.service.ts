@@ -203,15 +203,13 @@ export async function patchAgreement(
         updatedAt: ctx.clock.now(),
       })
       .where(eq(agreements.id, id));
-    await tx
-      .insert(auditEvents)
-      .values({
-        actorId: user.id,
-        action: 'agreement.updated',
-        entity: 'agreement',
-        entityId: id,
-        details: { fields: Object.keys(patch) },
-      });
+    await tx.insert(auditEvents).values({
+      actorId: user.id,
+      action: 'agreement.updated',
+      entity: 'agreement',
+      entityId: id,
+      details: { fields: Object.keys(patch) },
+    });
   });
   return getAgreement(ctx, user, id);
 }

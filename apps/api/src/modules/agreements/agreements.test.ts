@@ -166,14 +166,12 @@ describe('visit plan', () => {
     const mgr = await agent(f.inA.manager);
     const site = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const a = (
-      await mgr
-        .post('/api/agreements')
-        .send(
-          quarterly(site.site.id, [site.unit.id], {
-            name: 'Older visits',
-            recurrence: { preset: 'quarterly', startMonth: 1, dayOfMonth: 16 },
-          }),
-        )
+      await mgr.post('/api/agreements').send(
+        quarterly(site.site.id, [site.unit.id], {
+          name: 'Older visits',
+          recurrence: { preset: 'quarterly', startMonth: 1, dayOfMonth: 16 },
+        }),
+      )
     ).body.agreement;
     // 16 Jan 2027 is a Saturday: the visit was planned on Monday the 18th and is booked; April's (a Friday) is unplaced.
     const pm = (plannedDate: string, state: 'booked' | 'unplaced') =>

@@ -64,15 +64,13 @@ describe('first-owner setup link (production start)', () => {
     expect(weak.body.error.code).toBe('weak_password');
 
     const agent = request.agent(t.app);
-    const res = await agent
-      .post('/api/setup')
-      .send({
-        token,
-        name: 'Morgan Reyes',
-        email: 'Morgan@Acme-HVAC.test',
-        password: 'Kettle-Orbit-Fjord-47',
-        confirm: 'Kettle-Orbit-Fjord-47',
-      });
+    const res = await agent.post('/api/setup').send({
+      token,
+      name: 'Morgan Reyes',
+      email: 'Morgan@Acme-HVAC.test',
+      password: 'Kettle-Orbit-Fjord-47',
+      confirm: 'Kettle-Orbit-Fjord-47',
+    });
     expect(res.status).toBe(201);
     expect(res.body.user).toMatchObject({ name: 'Morgan Reyes', email: 'morgan@acme-hvac.test', role: 'owner', branchId: null });
     expect((await agent.get('/api/auth/me')).body.user.role).toBe('owner');

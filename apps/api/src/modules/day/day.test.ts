@@ -32,20 +32,18 @@ beforeAll(async () => {
   await db.update(sites).set({ lat: 42.05, lon: -87.9 }).where(eq(sites.id, far.site.id));
   const wide = await makeSiteWithUnit(db, f.a.id);
   await db.update(sites).set({ lat: 41.8, lon: -87.6 }).where(eq(sites.id, wide.site.id));
-  await db
-    .insert(units)
-    .values({
-      branchId: f.a.id,
-      siteId: wide.site.id,
-      tag: 'WIC-1',
-      kind: 'walk_in_cooler',
-      make: 'Testmake',
-      model: 'W1',
-      serial: 'W-1',
-      refrigerant: 'R-448A',
-      fullChargeLb: 30,
-      applianceCategory: 'commercial_refrigeration',
-    });
+  await db.insert(units).values({
+    branchId: f.a.id,
+    siteId: wide.site.id,
+    tag: 'WIC-1',
+    kind: 'walk_in_cooler',
+    make: 'Testmake',
+    model: 'W1',
+    serial: 'W-1',
+    refrigerant: 'R-448A',
+    fullChargeLb: 30,
+    applianceCategory: 'commercial_refrigeration',
+  });
 
   // The far site has a fixed 08:00 appointment; the near one a fixed 13:00: windows decide the order.
   const a = await makeBookedVisit(db, {

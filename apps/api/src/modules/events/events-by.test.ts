@@ -159,16 +159,14 @@ describe('by: who made the change', () => {
   it('return visits: queued from the Watchlist by a manager', async () => {
     const { site, unit } = await makeSiteWithUnit(t.ctx.db, f.a.id);
     const origin = await makeWorkOrder(t.ctx.db, { branchId: f.a.id, siteId: site.id, unitId: unit.id, state: 'closed' });
-    await t.ctx.db
-      .insert(visits)
-      .values({
-        branchId: f.a.id,
-        workOrderId: origin.id,
-        techId: f.inA.technician.id,
-        closedAt: new Date(`${today}T08:00:00Z`),
-        outcome: 'needs_return',
-        returnNeeds: ['parts'],
-      });
+    await t.ctx.db.insert(visits).values({
+      branchId: f.a.id,
+      workOrderId: origin.id,
+      techId: f.inA.technician.id,
+      closedAt: new Date(`${today}T08:00:00Z`),
+      outcome: 'needs_return',
+      returnNeeds: ['parts'],
+    });
     const wo = await makeWorkOrder(t.ctx.db, {
       branchId: f.a.id,
       siteId: site.id,

@@ -410,15 +410,13 @@ async function apply(w: World, o: Op) {
           createdAt: after(job.createdAt, f.hours),
         });
         if (f.visitHours !== null) {
-          await db
-            .insert(visits)
-            .values({
-              branchId,
-              workOrderId: fu.id,
-              techId: of(w.techs, o.tech + 1)!,
-              closedAt: after(fu.createdAt, f.visitHours),
-              outcome: f.outcome,
-            });
+          await db.insert(visits).values({
+            branchId,
+            workOrderId: fu.id,
+            techId: of(w.techs, o.tech + 1)!,
+            closedAt: after(fu.createdAt, f.visitHours),
+            outcome: f.outcome,
+          });
         }
       }
       return;
@@ -439,15 +437,13 @@ async function apply(w: World, o: Op) {
       const wo = of(wos, o.wo);
       if (!wo) return;
       const closedAt = o.hours === null ? null : after(wo.createdAt, o.hours);
-      await db
-        .insert(visits)
-        .values({
-          branchId: wo.branchId,
-          workOrderId: wo.id,
-          techId: of(w.techs, o.tech)!,
-          closedAt,
-          outcome: closedAt ? o.outcome : null,
-        });
+      await db.insert(visits).values({
+        branchId: wo.branchId,
+        workOrderId: wo.id,
+        techId: of(w.techs, o.tech)!,
+        closedAt,
+        outcome: closedAt ? o.outcome : null,
+      });
       return;
     }
     case 'close': {

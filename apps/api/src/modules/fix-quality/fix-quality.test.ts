@@ -190,16 +190,14 @@ beforeAll(async () => {
     labourMinutes: 90,
     finding: { unitId: u1.unit.id, causeCode: 'wiring_fault', origin: 'factory_defect' },
   });
-  await db
-    .insert(refrigerantEvents)
-    .values({
-      unitId: u1.unit.id,
-      visitId: j2cbVisit.id,
-      date: '2026-03-21',
-      refrigerant: 'R-410A',
-      poundsAdded: 2.5,
-      reason: 'leak_top_off',
-    });
+  await db.insert(refrigerantEvents).values({
+    unitId: u1.unit.id,
+    visitId: j2cbVisit.id,
+    date: '2026-03-21',
+    refrigerant: 'R-410A',
+    poundsAdded: 2.5,
+    reason: 'leak_top_off',
+  });
 
   const j3 = await job('J3', {
     branchId: A,
@@ -568,17 +566,15 @@ describe('factory defects found on the first visit', () => {
       labourMinutes: 60,
       finding: { unitId: fx.u2.unit.id, causeCode: 'component_failure', origin: 'factory_defect' },
     });
-    await t.ctx.db
-      .insert(refrigerantEvents)
-      .values({
-        unitId: fx.u2.unit.id,
-        visitId: v.id,
-        date: '2026-05-04',
-        refrigerant: 'R-410A',
-        poundsAdded: 1.2,
-        poundsRecovered: 0,
-        reason: 'leak_top_off',
-      });
+    await t.ctx.db.insert(refrigerantEvents).values({
+      unitId: fx.u2.unit.id,
+      visitId: v.id,
+      date: '2026-05-04',
+      refrigerant: 'R-410A',
+      poundsAdded: 1.2,
+      poundsRecovered: 0,
+      reason: 'leak_top_off',
+    });
     const cb = await workOrder({
       branchId: A,
       siteId: fx.u2.site.id,

@@ -101,15 +101,13 @@ describe('service_call_facts', () => {
       originWorkOrderId: job.id,
       createdAt: new Date('2026-03-03T08:00:00Z'),
     });
-    await db
-      .insert(visits)
-      .values({
-        branchId: branch.id,
-        workOrderId: rv.id,
-        techId: tech2.id,
-        closedAt: new Date('2026-03-04T12:00:00Z'),
-        outcome: 'resolved',
-      });
+    await db.insert(visits).values({
+      branchId: branch.id,
+      workOrderId: rv.id,
+      techId: tech2.id,
+      closedAt: new Date('2026-03-04T12:00:00Z'),
+      outcome: 'resolved',
+    });
     const cb = await makeWorkOrder(db, {
       branchId: branch.id,
       siteId: site.id,
@@ -128,15 +126,13 @@ describe('service_call_facts', () => {
     });
 
     // An earlier closed visit becomes the first visit; the first finding is deleted; the callback goes away.
-    await db
-      .insert(visits)
-      .values({
-        branchId: branch.id,
-        workOrderId: job.id,
-        techId: tech2.id,
-        closedAt: new Date('2026-03-01T15:00:00Z'),
-        outcome: 'declined',
-      });
+    await db.insert(visits).values({
+      branchId: branch.id,
+      workOrderId: job.id,
+      techId: tech2.id,
+      closedAt: new Date('2026-03-01T15:00:00Z'),
+      outcome: 'declined',
+    });
     await db.delete(findings).where(eq(findings.causeCode, 'airflow'));
     await db.delete(workOrders).where(eq(workOrders.id, cb.id));
     facts = await expectRebuildAgrees();

@@ -196,15 +196,13 @@ describe('customers, sites and units', () => {
 
   it('editing a unit saves the whole unit and matches circuits by number', async () => {
     const u = await agents.managerA.post('/api/units').send(unitBody(siteA.site.id));
-    const edited = await agents.managerA
-      .put(`/api/units/${u.body.id}`)
-      .send({
-        ...unitBody(siteA.site.id),
-        serial: u.body.serial,
-        siteId: undefined,
-        model: 'EX-91',
-        circuits: [{ number: 1, compressorCount: 3 }],
-      });
+    const edited = await agents.managerA.put(`/api/units/${u.body.id}`).send({
+      ...unitBody(siteA.site.id),
+      serial: u.body.serial,
+      siteId: undefined,
+      model: 'EX-91',
+      circuits: [{ number: 1, compressorCount: 3 }],
+    });
     expect(edited.status).toBe(200);
     expect(edited.body.model).toBe('EX-91');
     expect(edited.body.circuits).toHaveLength(1);

@@ -59,27 +59,23 @@ beforeAll(async () => {
       subcooling: 9,
     });
   }
-  await db
-    .insert(findings)
-    .values({
-      visitId: v!.id,
-      unitId: u1.unit.id,
-      causeCode: 'wiring_fault',
-      origin: 'factory_defect',
-      alarmCode: 'LP2',
-      reportedCircuit: 2,
-      actualCircuit: 1,
-    });
-  await db
-    .insert(alarms)
-    .values({
-      branchId: f.a.id,
-      unitId: u1.unit.id,
-      circuit: 2,
-      code: 'LP2',
-      raisedAt: new Date('2026-03-19T22:00:00Z'),
-      source: 'controller',
-    });
+  await db.insert(findings).values({
+    visitId: v!.id,
+    unitId: u1.unit.id,
+    causeCode: 'wiring_fault',
+    origin: 'factory_defect',
+    alarmCode: 'LP2',
+    reportedCircuit: 2,
+    actualCircuit: 1,
+  });
+  await db.insert(alarms).values({
+    branchId: f.a.id,
+    unitId: u1.unit.id,
+    circuit: 2,
+    code: 'LP2',
+    raisedAt: new Date('2026-03-19T22:00:00Z'),
+    source: 'controller',
+  });
   // Refrigerant log (full charge 18 lb, R-410A, comfort cooling → 40 CFR 84.106 from 2026, threshold 10 %):
   await db.insert(refrigerantEvents).values([
     { unitId: u1.unit.id, date: '2025-06-01', refrigerant: 'R-410A', poundsAdded: 18, reason: 'initial_charge' },
@@ -112,15 +108,13 @@ beforeAll(async () => {
     .insert(workOrders)
     .values({ branchId: f.a.id, siteId: u2.site.id, unitId: u2.unit.id, kind: 'service_call', state: 'booked' })
     .returning();
-  await db
-    .insert(bookings)
-    .values({
-      branchId: f.a.id,
-      workOrderId: w2!.id,
-      techId: tech.id,
-      startAt: new Date('2026-07-02T14:00:00Z'),
-      endAt: new Date('2026-07-02T15:00:00Z'),
-    });
+  await db.insert(bookings).values({
+    branchId: f.a.id,
+    workOrderId: w2!.id,
+    techId: tech.id,
+    startAt: new Date('2026-07-02T14:00:00Z'),
+    endAt: new Date('2026-07-02T15:00:00Z'),
+  });
 });
 afterAll(() => t.close());
 

@@ -83,16 +83,14 @@ describe('circuit target ranges', () => {
 
   it('a dispatcher clears a range by sending it blank; the other range and the source stay as sent', async () => {
     const dispatcher = await as(f.inA.dispatcher.email);
-    const res = await dispatcher
-      .put(path(u.unit.id, 1))
-      .send({
-        temperature: 'F',
-        superheatMin: '',
-        superheatMax: '',
-        subcoolingMin: 10,
-        subcoolingMax: 15,
-        source: 'Installation manual p. 14',
-      });
+    const res = await dispatcher.put(path(u.unit.id, 1)).send({
+      temperature: 'F',
+      superheatMin: '',
+      superheatMax: '',
+      subcoolingMin: 10,
+      subcoolingMax: 15,
+      source: 'Installation manual p. 14',
+    });
     expect(res.status).toBe(200);
     expect(res.body.targets).toEqual({ superheat: null, subcooling: { min: 10, max: 15 }, source: 'Installation manual p. 14' });
     const c = await stored(u.unit.id, 1);

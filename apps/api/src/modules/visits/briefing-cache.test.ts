@@ -208,16 +208,14 @@ describe('the unit briefing, kept by its site’s revision', () => {
     step(
       'a photo of the unit',
       () =>
-        t.ctx.db
-          .insert(attachments)
-          .values({
-            unitId: place.unit.id,
-            kind: 'photo',
-            storageKey: 'k1',
-            displayName: 'coil.jpg',
-            contentType: 'image/jpeg',
-            sizeBytes: 10,
-          }),
+        t.ctx.db.insert(attachments).values({
+          unitId: place.unit.id,
+          kind: 'photo',
+          storageKey: 'k1',
+          displayName: 'coil.jpg',
+          contentType: 'image/jpeg',
+          sizeBytes: 10,
+        }),
       (b) => expect(b.photos).toHaveLength(1),
     );
     step(

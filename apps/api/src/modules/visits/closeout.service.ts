@@ -92,19 +92,17 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
         })
         .where(eq(visits.id, id));
       await tx.insert(visitEvents).values({ visitId: id, state: 'closed', at: now, byUserId: user.id });
-      await tx
-        .insert(visitSignatures)
-        .values(
-          input.signature?.kind === 'signed'
-            ? {
-                visitId: id,
-                signerName: input.signature.signerName,
-                signedAt: signedAtOf(input.signature.signedAt, v.onSiteAt, now),
-                imagePng: signaturePng!,
-                recordedAt: now,
-              }
-            : { visitId: id, recordedAt: now },
-        );
+      await tx.insert(visitSignatures).values(
+        input.signature?.kind === 'signed'
+          ? {
+              visitId: id,
+              signerName: input.signature.signerName,
+              signedAt: signedAtOf(input.signature.signedAt, v.onSiteAt, now),
+              imagePng: signaturePng!,
+              recordedAt: now,
+            }
+          : { visitId: id, recordedAt: now },
+      );
       const [wo] = await tx
         .update(workOrders)
         .set({

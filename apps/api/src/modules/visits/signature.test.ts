@@ -136,23 +136,19 @@ describe('POST /api/visits/:id/close — the customer’s sign-off', () => {
 
   it('keeps the phone’s signing time when it lies between arriving on site and now, else uses the server’s', async () => {
     const a = await visitOnSite();
-    const r1 = await tech
-      .post(`/api/visits/${a.visit.id}/close`)
-      .send({
-        outcome: 'resolved',
-        signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: '2026-03-10T14:30:00Z' },
-      });
+    const r1 = await tech.post(`/api/visits/${a.visit.id}/close`).send({
+      outcome: 'resolved',
+      signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: '2026-03-10T14:30:00Z' },
+    });
     expect(r1.body.visit.signature.signedAt).toBe('2026-03-10T14:30:00.000Z');
     // 09:30 CDT (UTC−5, see NOW_IN_CHICAGO).
     expect(mailTo(a.site.contactEmail)[0]!.text).toContain('Signed Tue 10 Mar 2026, 09:30 CDT');
     for (const claimed of ['2026-03-10T16:00:00Z' /* after now */, '2026-03-10T13:00:00Z' /* before on site */]) {
       const b = await visitOnSite();
-      const r = await tech
-        .post(`/api/visits/${b.visit.id}/close`)
-        .send({
-          outcome: 'resolved',
-          signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: claimed },
-        });
+      const r = await tech.post(`/api/visits/${b.visit.id}/close`).send({
+        outcome: 'resolved',
+        signature: { kind: 'signed', signerName: 'Dana', imagePng: signaturePng().toString('base64'), signedAt: claimed },
+      });
       expect(r.body.visit.signature.signedAt).toBe(new Date(NOW).toISOString());
     }
   });

@@ -97,17 +97,15 @@ async function closeWithEverything(notesAudience: 'internal' | 'customer') {
   ).toBe(201);
   const notes = notesAudience === 'customer' ? 'Your unit is running normally again.' : INTERNAL.visit;
   mailer.raw.length = 0;
-  const res = await tech
-    .post(`/api/visits/${visit.id}/close`)
-    .send({
-      signature: NOT_AVAILABLE,
-      outcome: 'needs_return',
-      returnNeeds: ['parts'],
-      returnNotes: INTERNAL.returnNotes,
-      notes,
-      notesAudience,
-      rootCauseFindingId: a.body.finding.id,
-    });
+  const res = await tech.post(`/api/visits/${visit.id}/close`).send({
+    signature: NOT_AVAILABLE,
+    outcome: 'needs_return',
+    returnNeeds: ['parts'],
+    returnNotes: INTERNAL.returnNotes,
+    notes,
+    notesAudience,
+    rootCauseFindingId: a.body.finding.id,
+  });
   expect(res.status).toBe(200);
   expect(res.body.summary.sent).toBe(true);
   expect(mailer.raw).toHaveLength(1);

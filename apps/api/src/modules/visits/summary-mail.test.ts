@@ -48,14 +48,12 @@ describe('service summary through the real SMTP sink', () => {
       .send({ causeCode: 'wiring_fault', origin: 'factory_defect', reportedCircuit: 1, actualCircuit: 2 });
 
     const [newest] = await t.ctx.db.select({ id: sql<number>`coalesce(max(${liveEvents.id}), 0)::int` }).from(liveEvents);
-    const res = await tech
-      .post(`/api/visits/${visit.id}/close`)
-      .send({
-        signature: NOT_AVAILABLE,
-        outcome: 'needs_return',
-        returnNeeds: ['manufacturer'],
-        returnNotes: 'Factory to confirm the wiring change',
-      });
+    const res = await tech.post(`/api/visits/${visit.id}/close`).send({
+      signature: NOT_AVAILABLE,
+      outcome: 'needs_return',
+      returnNeeds: ['manufacturer'],
+      returnNotes: 'Factory to confirm the wiring change',
+    });
     expect(res.status).toBe(200);
     expect(res.body.summary).toMatchObject({ sent: true, to: p.site.contactEmail });
     // Every change of the close, the summary's "sent" mark included, names the technician on the live screens.

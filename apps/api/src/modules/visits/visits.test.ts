@@ -394,15 +394,13 @@ describe('POST /api/visits/:id/close', () => {
       .send({ causeCode: 'refrigerant_leak', origin: 'wear', notes: 'Oil at the service valve' });
     t.mailer.sent.length = 0;
 
-    const res = await tech
-      .post(`/api/visits/${visit.id}/close`)
-      .send({
-        signature: NOT_AVAILABLE,
-        outcome: 'needs_return',
-        returnNeeds: ['leak_search', 'parts'],
-        returnNotes: 'Leak search on circuit 1; bring a core',
-        labourMinutes: 75,
-      });
+    const res = await tech.post(`/api/visits/${visit.id}/close`).send({
+      signature: NOT_AVAILABLE,
+      outcome: 'needs_return',
+      returnNeeds: ['leak_search', 'parts'],
+      returnNotes: 'Leak search on circuit 1; bring a core',
+      labourMinutes: 75,
+    });
     expect(res.status).toBe(200);
     expect(res.body.visit.status).toBe('closed');
     expect(res.body.visit.canWrite).toBe(false);

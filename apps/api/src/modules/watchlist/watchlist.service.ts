@@ -638,16 +638,14 @@ export async function addVerificationTest(
         'Record a passed initial verification test first: the follow-up test comes after it (40 CFR 82.157(e) [M], 84.106(e) [S]).',
       );
     }
-    await tx
-      .insert(verificationTests)
-      .values({
-        leakCaseId: id,
-        kind: input.kind,
-        testedOn: input.testedOn,
-        passed: input.passed,
-        notes: input.notes ?? null,
-        byUserId: user.id,
-      });
+    await tx.insert(verificationTests).values({
+      leakCaseId: id,
+      kind: input.kind,
+      testedOn: input.testedOn,
+      passed: input.passed,
+      notes: input.notes ?? null,
+      byUserId: user.id,
+    });
     const now = ctx.clock.now();
     if (input.kind === 'initial' && input.passed && c.status === 'open') {
       await tx

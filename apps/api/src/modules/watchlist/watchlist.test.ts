@@ -98,18 +98,16 @@ describe('repeat-alarm units', () => {
       .insert(visits)
       .values({ branchId: f.a.id, workOrderId: wo.id, techId: f.inA.technician.id, closedAt: new Date(ago(4 * DAY)), outcome: 'resolved' })
       .returning();
-    await t.ctx.db
-      .insert(findings)
-      .values({
-        visitId: v!.id,
-        unitId: edge.unit.id,
-        causeCode: 'wiring_fault',
-        origin: 'factory_defect',
-        alarmCode: 'HP2',
-        reportedCircuit: 1,
-        actualCircuit: 2,
-        createdAt: new Date(ago(4 * DAY)),
-      });
+    await t.ctx.db.insert(findings).values({
+      visitId: v!.id,
+      unitId: edge.unit.id,
+      causeCode: 'wiring_fault',
+      origin: 'factory_defect',
+      alarmCode: 'HP2',
+      reportedCircuit: 1,
+      actualCircuit: 2,
+      createdAt: new Date(ago(4 * DAY)),
+    });
 
     const mgr = await agent(f.inA.manager);
     const res = await mgr.get('/api/watchlist/repeat-alarms');

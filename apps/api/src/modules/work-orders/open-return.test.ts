@@ -252,15 +252,13 @@ describe('a leak repair and a close-out share one return visit', () => {
     const p = await newUnit();
     const v = await onSiteVisit(p);
     const r = (await closeNeedingReturn(v.visit.id, ['parts'])).body.returnWorkOrder;
-    const res = await disp
-      .post('/api/work-orders')
-      .send({
-        siteId: p.site.id,
-        unitId: p.unit.id,
-        kind: 'return_visit',
-        originWorkOrderId: v.workOrder.id,
-        complaint: 'Back with the part',
-      });
+    const res = await disp.post('/api/work-orders').send({
+      siteId: p.site.id,
+      unitId: p.unit.id,
+      kind: 'return_visit',
+      originWorkOrderId: v.workOrder.id,
+      complaint: 'Back with the part',
+    });
     expect(res.status).toBe(409);
     expect(res.body.error).toMatchObject({ code: 'open_return_exists', details: { workOrderId: r.id } });
     // Other kinds of work on the unit are not affected.
