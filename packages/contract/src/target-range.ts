@@ -31,6 +31,13 @@ export interface CircuitTargets {
   source: string | null;
 }
 
+/** `PUT /api/units/:id/circuits/:number/targets` answers the circuit's ranges as saved. */
+export interface CircuitTargetsResult {
+  unitId: string;
+  circuit: number;
+  targets: CircuitTargets;
+}
+
 /** Where a computed superheat or subcooling lies against the circuit's target range (`targetVerdict` in @coilpath/calc). */
 export const targetVerdictLabels = { below: 'below target', within: 'within target', above: 'above target' } as const;
 /** The caution shown beside a target range. */

@@ -1,3 +1,8 @@
+-- An upgrade runs the migrations it lacks in one transaction: earlier ones (0017's backfill of visits, 0010's fold)
+-- queue the deferred triggers of roster_revisions and fix_quality_sums, and a table with pending trigger events
+-- cannot be altered; they run now (as in 0010), and are deferred again at the end.
+SET CONSTRAINTS ALL IMMEDIATE;
+--> statement-breakpoint
 CREATE TABLE "briefing_revisions" (
 	"site_id" uuid PRIMARY KEY NOT NULL,
 	"revision" bigint DEFAULT 0 NOT NULL
@@ -184,3 +189,5 @@ CREATE CONSTRAINT TRIGGER briefing_revision AFTER UPDATE OF time_zone, repeat_al
 --> statement-breakpoint
 CREATE CONSTRAINT TRIGGER briefing_revision AFTER UPDATE OF name ON users
   DEFERRABLE INITIALLY DEFERRED FOR EACH ROW EXECUTE FUNCTION briefing_revision_on_branch_wide();
+--> statement-breakpoint
+SET CONSTRAINTS ALL DEFERRED;

@@ -1,6 +1,6 @@
 import { and, eq } from 'drizzle-orm';
 import { convertTemperatureDifference } from '@coilpath/calc';
-import type { CircuitTargets, CircuitTargetsValues, SessionUser } from '@coilpath/contract';
+import type { CircuitTargetsResult, CircuitTargetsValues, SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import { branches, circuits } from '../../db/schema';
 import { notFound } from '../../lib/errors';
@@ -8,12 +8,6 @@ import { circuitTargetsDto } from '../visits/dto';
 import { STORED_UNITS } from '../visits/reading-calc';
 import { actAs } from '../events/actor';
 import { getUnit } from './units.service';
-
-export interface CircuitTargetsResult {
-  unitId: string;
-  circuit: number;
-  targets: CircuitTargets;
-}
 
 /**
  * Sets (or clears, with blank ranges) a circuit's target superheat and subcooling ranges. The body states

@@ -1,6 +1,7 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { circuitTargetsInputSchema, unitImportSchema, unitInputSchema, unitsQuerySchema, unitUpdateSchema } from '@coilpath/contract';
+import { circuitTargetsResultSchema } from '@coilpath/contract/responses';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
@@ -45,7 +46,7 @@ export function unitsRoutes(ctx: AppContext): Router {
   r.put(
     '/:id/circuits/:number/targets',
     office,
-    endpoint({ params: circuitParams, body: circuitTargetsInputSchema }, ({ user, params, body }) =>
+    endpoint({ params: circuitParams, body: circuitTargetsInputSchema, response: circuitTargetsResultSchema }, ({ user, params, body }) =>
       setCircuitTargets(ctx, user, params.id, params.number, body),
     ),
   );
