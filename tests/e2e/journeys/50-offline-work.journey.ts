@@ -152,6 +152,7 @@ export async function run(ctx: JourneyContext): Promise<void> {
   // ── A conflict: the office unbooks a stop while the phone, offline, marks it en route ──
   const today = dateInZone(ctx.now(), BRANCH_ZONE);
   const stops = page.getByRole('list', { name: 'Stops in route order' });
+  const stopOf = (visitId: string) => stops.locator(':scope > li').filter({ has: page.locator(`a[href="/visits/${visitId}"]`) });
   const conflictFound = await firstBooked(ctx, page, today);
   const conflictDate = conflictFound.date;
   const other = await openStop(ctx, page, conflictDate, conflictFound.visitId);
@@ -283,7 +284,8 @@ export async function run(ctx: JourneyContext): Promise<void> {
       await page.goto(`${ctx.base}/day?date=${date}`);
       await routeHeading(page).waitFor();
     }
-    const card = stops.locator(':scope > li').filter({ hasText: w.site }).first();
+    // The stop by its visit, not its site: a site can have two stops in a day (a return visit beside a booked one).
+    const card = stopOf(w.visitId);
     await card.getByRole('button', { name: 'En route' }).click();
     await notice(page, 'Marked en route on this phone; it is sent when the connection is back.').waitFor();
     await card.getByRole('button', { name: 'On site' }).click();
@@ -421,7 +423,7 @@ export async function run(ctx: JourneyContext): Promise<void> {
   // On Route both stops show closed, from the server.
   await page.goto(`${ctx.base}/day?date=${date}`);
   await routeHeading(page).waitFor();
-  for (const w of work) await stops.locator(':scope > li').filter({ hasText: w.site }).first().getByText('Closed: Resolved').waitFor();
+  for (const w of work) await stopOf(w.visitId).getByText('Closed: Resolved').waitFor();
   ctx.step(`Route shows ${work.map((w) => w.site).join(' and ')} closed: resolved`);
 
   ctx.expectNoConsoleErrors();
