@@ -56,8 +56,8 @@ async function firstBooked(ctx: JourneyContext, page: Page, from: string): Promi
   throw new Error(`the demo books the technician a stop within two weeks of ${from}`);
 }
 
-/** The first day from `from` with two stops still booked (the API's answer), and those two in route order. */
-async function firstTwoBooked(ctx: JourneyContext, page: Page, from: string): Promise<{ date: string; visitIds: [string, string] }> {
+/** The first day from `from` with two stops still booked (the API's answer), and those two in route order; null if none. */
+async function firstTwoBooked(ctx: JourneyContext, page: Page, from: string): Promise<{ date: string; visitIds: [string, string] } | null> {
   let date = from;
   for (let i = 0; i < 14; i++, date = addDays(date, 1)) {
     const day = (await (await page.request.get(`${ctx.base}/api/day?date=${date}`)).json()) as {
@@ -66,7 +66,61 @@ async function firstTwoBooked(ctx: JourneyContext, page: Page, from: string): Pr
     const booked = day.stops.filter((s) => s.status === 'booked');
     if (booked.length >= 2) return { date, visitIds: [booked[0]!.visitId, booked[1]!.visitId] };
   }
-  throw new Error(`the demo books the technician two stops on a day within two weeks of ${from}`);
+  return null;
+}
+
+/**
+ * Two booked stops on one day. The demo books the anchored week only (on a Friday: that day), and the journeys
+ * before this one work some of it; when no day has two left, the dispatcher books a second service call after the
+ * first booked stop of the first such day, at the same site and unit, as an office would.
+ */
+async function twoBookedStops(ctx: JourneyContext, page: Page, from: string): Promise<{ date: string; visitIds: [string, string] }> {
+  const found = await firstTwoBooked(ctx, page, from);
+  if (found) return found;
+  const one = await firstBooked(ctx, page, from);
+  const day = (await (await page.request.get(`${ctx.base}/api/day?date=${one.date}`)).json()) as {
+    tech: { id: string };
+    stops: { visitId: string; booking: { endAt: string }; site: { id: string }; units: { id: string }[] }[];
+  };
+  const stop = day.stops.find((s) => s.visitId === one.visitId)!;
+  const office = await request.newContext({ baseURL: ctx.base });
+  try {
+    const signedIn = await office.post('/api/auth/sign-in', { data: { email: demo.dispatcher, password: DEMO_PASSWORD } });
+    assert.equal(signedIn.status(), 200, 'the dispatcher signs in');
+    const created = await office.post('/api/work-orders', {
+      data: {
+        siteId: stop.site.id,
+        unitId: stop.units[0]?.id ?? null,
+        kind: 'service_call',
+        complaint: 'Tenant reports the east zone warm in the afternoon.',
+        estimatedMinutes: 60,
+      },
+    });
+    assert.equal(created.status(), 201, `the dispatcher opens a service call (${await created.text()})`);
+    const wo = ((await created.json()) as { workOrder: { id: string } }).workOrder;
+    const startAt = new Date(Date.parse(stop.booking.endAt) + 30 * 60_000);
+    const booking = {
+      workOrderId: wo.id,
+      techId: day.tech.id,
+      startAt: startAt.toISOString(),
+      endAt: new Date(startAt.getTime() + 60 * 60_000).toISOString(),
+    };
+    let booked = await office.post('/api/bookings', { data: booking });
+    if (booked.status() === 409) {
+      const rules = ((await booked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
+      assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await booked.text()})`);
+      booked = await office.post('/api/bookings', {
+        data: { ...booking, overrideRules: rules, overrideReason: 'Second stop of the day, agreed with the technician.' },
+      });
+    }
+    assert.equal(booked.status(), 201, `the service call is booked (${await booked.text()})`);
+  } finally {
+    await office.dispose();
+  }
+  const again = await firstTwoBooked(ctx, page, one.date);
+  assert.ok(again && again.date === one.date, `the technician has two stops booked on ${one.date}`);
+  ctx.step(`the dispatcher booked a second stop on ${one.date} (the demo left one)`);
+  return again;
 }
 
 /** The natural width of an image once loaded (runs in the page). */
@@ -229,7 +283,7 @@ export async function run(ctx: JourneyContext): Promise<void> {
   }
 
   // ── Working offline: the first day from today with two stops still booked, opened online ──
-  const { date, visitIds } = await firstTwoBooked(ctx, page, today);
+  const { date, visitIds } = await twoBookedStops(ctx, page, today);
   await page.goto(`${ctx.base}/day?date=${date}`);
   await routeHeading(page).waitFor();
   const work: { visitId: string; site: string; before: VisitDto }[] = [];
