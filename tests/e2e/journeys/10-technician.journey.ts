@@ -7,12 +7,11 @@
  * dispatcher journey, which books it. Then every screen in the navigation.
  */
 import assert from 'node:assert/strict';
-import { deflateSync } from 'node:zlib';
 import type { Locator, Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { phone } from '../harness';
 import { addDays, dateInZone, writeHandoff } from '../handoff';
-import { expectedNavigation, navigationLabels, signInThroughForm, visitEveryScreen } from '../support';
+import { expectedNavigation, navigationLabels, samplePng, signInThroughForm, visitEveryScreen } from '../support';
 
 export const title = 'Technician on a phone';
 
@@ -40,45 +39,6 @@ const dayLabel = (date: string) => {
   const part = (o: Intl.DateTimeFormatOptions) => new Intl.DateTimeFormat('en-GB', { ...o, timeZone: 'UTC' }).format(d);
   return `${part({ weekday: 'long' })} ${part({ day: 'numeric' })} ${part({ month: 'long' })} ${part({ year: 'numeric' })}`;
 };
-
-/** A small real PNG (16×16 RGB, a copper/frost checkerboard) built byte by byte. */
-function samplePng(): Buffer {
-  const crcTable = Array.from({ length: 256 }, (_, n) => {
-    let c = n;
-    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
-    return c >>> 0;
-  });
-  const crc32 = (buf: Buffer) => {
-    let c = 0xffffffff;
-    for (const b of buf) c = crcTable[(c ^ b) & 0xff]! ^ (c >>> 8);
-    return (c ^ 0xffffffff) >>> 0;
-  };
-  const chunk = (type: string, data: Buffer) => {
-    const body = Buffer.concat([Buffer.from(type, 'ascii'), data]);
-    const len = Buffer.alloc(4);
-    len.writeUInt32BE(data.length);
-    const crc = Buffer.alloc(4);
-    crc.writeUInt32BE(crc32(body));
-    return Buffer.concat([len, body, crc]);
-  };
-  const size = 16;
-  const ihdr = Buffer.alloc(13);
-  ihdr.writeUInt32BE(size, 0);
-  ihdr.writeUInt32BE(size, 4);
-  ihdr[8] = 8; // bit depth
-  ihdr[9] = 2; // colour type: RGB
-  const rows: number[] = [];
-  for (let y = 0; y < size; y++) {
-    rows.push(0); // filter: none
-    for (let x = 0; x < size; x++) rows.push(...(((x >> 2) + (y >> 2)) % 2 ? [0xb8, 0x73, 0x33] : [0xe8, 0xf1, 0xf8]));
-  }
-  return Buffer.concat([
-    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
-    chunk('IHDR', ihdr),
-    chunk('IDAT', deflateSync(Buffer.from(rows))),
-    chunk('IEND', Buffer.alloc(0)),
-  ]);
-}
 
 /** The number in an `<output>` such as "Superheat 11.1 °F". */
 async function degrees(output: Locator): Promise<number> {

@@ -16,12 +16,11 @@
  * stops of the week the dispatcher journey drags bookings in made its board drag refuse (seen, cause not found).
  */
 import assert from 'node:assert/strict';
-import { deflateSync } from 'node:zlib';
-import { request, type Page } from 'playwright-core';
+import { request, type APIRequestContext, type Page } from 'playwright-core';
 import type { JourneyContext } from '../harness';
 import { phone } from '../harness';
 import { addDays, dateInZone } from '../handoff';
-import { DEMO_PASSWORD, demo, signInThroughForm, keptKeys } from '../support';
+import { DEMO_PASSWORD, demo, samplePng, signInThroughForm, keptKeys } from '../support';
 
 export const title = 'Technician works two stops offline';
 
@@ -54,6 +53,20 @@ async function firstBooked(ctx: JourneyContext, page: Page, from: string): Promi
     if (stop) return { date, visitId: stop.visitId };
   }
   throw new Error(`the demo books the technician a stop within two weeks of ${from}`);
+}
+
+/**
+ * Books as the office does: a booking refused only for rules a dispatcher may book against (409 naming them) is
+ * made again overriding those rules with the reason given.
+ */
+async function bookOverriding(office: APIRequestContext, booking: Record<string, unknown>, reason: string, what: string): Promise<void> {
+  let booked = await office.post('/api/bookings', { data: booking });
+  if (booked.status() === 409) {
+    const rules = ((await booked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
+    assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await booked.text()})`);
+    booked = await office.post('/api/bookings', { data: { ...booking, overrideRules: rules, overrideReason: reason } });
+  }
+  assert.equal(booked.status(), 201, `${what} (${await booked.text()})`);
 }
 
 /** The first day from `from` with two stops still booked (the API's answer), and those two in route order; null if none. */
@@ -105,15 +118,7 @@ async function twoBookedStops(ctx: JourneyContext, page: Page, from: string): Pr
       startAt: startAt.toISOString(),
       endAt: new Date(startAt.getTime() + 60 * 60_000).toISOString(),
     };
-    let booked = await office.post('/api/bookings', { data: booking });
-    if (booked.status() === 409) {
-      const rules = ((await booked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
-      assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await booked.text()})`);
-      booked = await office.post('/api/bookings', {
-        data: { ...booking, overrideRules: rules, overrideReason: 'Second stop of the day, agreed with the technician.' },
-      });
-    }
-    assert.equal(booked.status(), 201, `the service call is booked (${await booked.text()})`);
+    await bookOverriding(office, booking, 'Second stop of the day, agreed with the technician.', 'the service call is booked');
   } finally {
     await office.dispose();
   }
@@ -144,44 +149,6 @@ async function drawSignature(page: Page) {
     .getByRole('status')
     .filter({ hasText: /^Signature drawn\.$/ })
     .waitFor();
-}
-
-/** A small real PNG (16×16 RGB, two colours in squares) built byte by byte. */
-function samplePng(): Buffer {
-  const crcTable = Array.from({ length: 256 }, (_, n) => {
-    let c = n;
-    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
-    return c >>> 0;
-  });
-  const crc32 = (buf: Buffer) => {
-    let c = 0xffffffff;
-    for (const b of buf) c = crcTable[(c ^ b) & 0xff]! ^ (c >>> 8);
-    return (c ^ 0xffffffff) >>> 0;
-  };
-  const chunk = (type: string, data: Buffer) => {
-    const body = Buffer.concat([Buffer.from(type, 'ascii'), data]);
-    const len = Buffer.alloc(4);
-    len.writeUInt32BE(data.length);
-    const crc = Buffer.alloc(4);
-    crc.writeUInt32BE(crc32(body));
-    return Buffer.concat([len, body, crc]);
-  };
-  const ihdr = Buffer.alloc(13);
-  ihdr.writeUInt32BE(16, 0);
-  ihdr.writeUInt32BE(16, 4);
-  ihdr[8] = 8;
-  ihdr[9] = 2;
-  const rows: number[] = [];
-  for (let y = 0; y < 16; y++) {
-    rows.push(0);
-    for (let x = 0; x < 16; x++) rows.push(...(((x >> 2) + (y >> 2)) % 2 ? [0xb8, 0x73, 0x33] : [0xe8, 0xf1, 0xf8]));
-  }
-  return Buffer.concat([
-    Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]),
-    chunk('IHDR', ihdr),
-    chunk('IDAT', deflateSync(Buffer.from(rows))),
-    chunk('IEND', Buffer.alloc(0)),
-  ]);
 }
 
 /** Opens Route on the date and waits for the stop's card with its "En route" button. */
@@ -269,15 +236,7 @@ export async function run(ctx: JourneyContext): Promise<void> {
       endAt: otherStop.booking.endAt,
       fixed: otherStop.booking.fixed,
     };
-    let rebooked = await office.post('/api/bookings', { data: again });
-    if (rebooked.status() === 409) {
-      const rules = ((await rebooked.json()) as { error: { details?: { rules?: string[] } } }).error.details?.rules;
-      assert.ok(rules?.length, `the booking is refused only for a rule that can be overridden (${await rebooked.text()})`);
-      rebooked = await office.post('/api/bookings', {
-        data: { ...again, overrideRules: rules, overrideReason: 'Booked again as before after the offline conflict check.' },
-      });
-    }
-    assert.equal(rebooked.status(), 201, `the work order is booked again (${await rebooked.text()})`);
+    await bookOverriding(office, again, 'Booked again as before after the offline conflict check.', 'the work order is booked again');
   } finally {
     await office.dispose();
   }
