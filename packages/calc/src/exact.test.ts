@@ -33,6 +33,23 @@ describe('fractions', () => {
     expect(toNumber(fraction(1, 3))).toBe(1 / 3);
   });
 
+  it('toNumber stays finite beyond the range of a number (numerator or denominator alone outside it)', () => {
+    // The decimal 5e-324 is 5 / 10^324; 10^324 alone is Infinity as a number.
+    expect(toNumber(exactDecimal(5e-324))).toBe(5e-324);
+    expect(toNumber(exactDecimal(2.2e-308))).toBe(2.2e-308);
+    expect(toNumber(fraction(10n ** 400n, 10n ** 399n))).toBe(10);
+    expect(toNumber(fraction(-(10n ** 330n), 3n))).toBe(-Infinity); // truly beyond the largest number
+    expect(toNumber(fraction(1n, 10n ** 400n))).toBe(0); // truly below the smallest
+  });
+
+  it('toNumber reads back every number the way exactDecimal read it (fast-check)', () => {
+    fc.assert(
+      fc.property(fc.double({ noNaN: true, noDefaultInfinity: true }), (x) => {
+        expect(toNumber(exactDecimal(x))).toBe(x === 0 ? 0 : x);
+      }),
+    );
+  });
+
   it('compare agrees with cross-multiplication in BigInt, and with the numbers when they are exact (fast-check)', () => {
     fc.assert(
       fc.property(fc.integer(), fc.integer({ min: 1 }), fc.integer(), fc.integer({ min: 1 }), (a, b, c, d) => {

@@ -64,11 +64,28 @@ function gcd(a: bigint, b: bigint): bigint {
   return x;
 }
 
+function bitLength(v: bigint): number {
+  return v === 0n ? 0 : v.toString(2).length;
+}
+
+const EXACT_LIMIT = 2n ** 53n;
+
 /**
  * The nearest number to the fraction when numerator and denominator (reduced) fit in 2^53, as for
- * every realistic leak rate; otherwise a close approximation.
+ * every realistic leak rate; otherwise a close approximation (128 significant bits, then rounded), which
+ * stays finite and non-zero wherever the value is, even when numerator or denominator alone lies outside
+ * the range of a number (a subnormal pound count read as 5/10^324).
  */
 export function toNumber(f: Fraction): number {
   const g = gcd(f.n, f.d) || 1n;
-  return Number(f.n / g) / Number(f.d / g);
+  const n = f.n / g;
+  const d = f.d / g;
+  const size = n < 0n ? -n : n;
+  if (size <= EXACT_LIMIT && d <= EXACT_LIMIT) return Number(n) / Number(d);
+  // q ≈ n / d × 2^k with about 128 significant bits; the result is q × 2^−k.
+  const k = 128 + bitLength(d) - bitLength(size);
+  const q = k >= 0 ? (n << BigInt(k)) / d : n / (d << BigInt(-k));
+  // 2^−k in two halves: either half alone may leave the range of a number when the product does not.
+  const half = Math.trunc(k / 2);
+  return Number(q) * 2 ** -half * 2 ** -(k - half);
 }

@@ -140,6 +140,23 @@ describe('leakObligations — exact comparison at the threshold', () => {
     expect(r.obligations).toHaveLength(1);
   });
 
+  it('a subnormal top-off beside a real one still gives a finite rate (a stored 5e-324 lb once answered NaN)', () => {
+    // 1.5 lb of 100 lb in a day with nothing before: 1.5 % × 365 ÷ 365 = 1.5 %/yr; 5e-324 lb changes nothing a number can show.
+    for (const tiny of [5e-324, 1e-310, 2.2e-308]) {
+      const r = leakObligations({ appliance: comfort, events: [add('2027-06-01', 1.5), add('2027-06-01', tiny)], asOf: '2027-06-01' });
+      expect(r.leakRate, `with ${tiny} lb`).toBe(1.5);
+      const o = leakRepairObligation({
+        appliance: comfort,
+        additions: [
+          { date: '2027-06-01', pounds: 1.5 },
+          { date: '2027-06-01', pounds: tiny },
+        ],
+        asOf: '2027-06-01',
+      });
+      expect(o.leakRate, `with ${tiny} lb`).toBe(1.5);
+    }
+  });
+
   it('is exact through the annualizing interval too: 3.24 lb of 54 lb after 73 days is exactly 30 %', () => {
     const appliance = r22('industrial_process', 54);
     expect((3.24 / 54) * (365 / 73) * 100).not.toBe(30);
