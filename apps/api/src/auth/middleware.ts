@@ -72,6 +72,3 @@ export function requireRole(...allowed: Role[]) {
     next();
   };
 }
-
-// Routes have long taken these from here; the rules live in `policy.ts`.
-export { assertBranch, branchScope, resolveBranch } from './policy';

@@ -8,7 +8,8 @@ import {
   warrantyClaimUpdateSchema,
 } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { requireRole, resolveBranch } from '../../auth/middleware';
+import { requireRole } from '../../auth/middleware';
+import { resolveBranch } from '../../auth/policy';
 import { endpoint } from '../../lib/endpoint';
 import { fixQualityReport, reportScopeName } from './fix-quality.service';
 import { factoryDefectReview, updateWarrantyClaim } from './factory-defects.service';
