@@ -5,7 +5,6 @@
  * partial unique index `OPEN_RETURN_INDEX`, migration 0010); this module finds the open return, adds a need
  * to it, and turns a collision into `409 open_return_exists` with the open work order in `details`.
  */
-import { and, desc, eq, notInArray } from 'drizzle-orm';
 import {
   priorities,
   workOrderLabel,
@@ -16,25 +15,20 @@ import {
 } from '@coilpath/contract';
 import { zonedInstant } from '@coilpath/calc';
 import type { Db, Tx } from '../../db/client';
-import { OPEN_RETURN_INDEX, visits, workOrders } from '../../db/schema';
+import { OPEN_RETURN_INDEX } from '../../db/schema';
 import { conflict, type HttpError } from '../../lib/errors';
+import { latestVisitId, selectOpenReturn, updateWorkOrderRow, type WorkOrderRecord } from './work-orders.repo';
 
 /** States in which a work order is finished; every other state is open. */
 export const FINISHED_STATES = ['closed', 'cancelled'] as const satisfies readonly WorkOrderState[];
 
 export const isOpenState = (s: WorkOrderState) => !(FINISHED_STATES as readonly string[]).includes(s);
 
-type WorkOrderRow = typeof workOrders.$inferSelect;
+type WorkOrderRow = WorkOrderRecord;
 
 /** The unit's open return visit, if any (at most one), locked for the rest of the transaction when asked. */
 export async function findOpenReturn(tx: Tx, unitId: string, opts: { lock?: boolean } = {}): Promise<WorkOrderRow | null> {
-  const q = tx
-    .select()
-    .from(workOrders)
-    .where(and(eq(workOrders.unitId, unitId), eq(workOrders.kind, 'return_visit'), notInArray(workOrders.state, [...FINISHED_STATES])))
-    .limit(1);
-  const [w] = opts.lock ? await q.for('update') : await q;
-  return w ?? null;
+  return (await selectOpenReturn(tx, unitId, [...FINISHED_STATES], opts.lock ?? false)) ?? null;
 }
 
 /** The end of a leak case's repair due date in the branch's zone: the latest its repair visit may be booked. */
@@ -65,25 +59,22 @@ const higher = (a: Priority, b: Priority) => (priorities.indexOf(a) <= prioritie
 export async function joinOpenReturn(tx: Tx, open: WorkOrderRow, add: ReturnNeedToAdd, now: Date): Promise<void> {
   const needs = [...open.returnNeeds];
   for (const n of add.needs) if (!needs.includes(n)) needs.push(n);
-  await tx
-    .update(workOrders)
-    .set({
-      returnNeeds: needs,
-      latestAt: earlier(open.latestAt, add.latestAt),
-      priority: higher(open.priority, add.priority),
-      complaint: [open.complaint.trim(), add.complaint.trim()].filter(Boolean).join(' '),
-      estimatedMinutes: Math.max(open.estimatedMinutes, add.estimatedMinutes),
-      requiredSkill: open.requiredSkill ?? add.requiredSkill ?? null,
-      requiredCertification: open.requiredCertification ?? add.requiredCertification ?? null,
-      leakCaseId: open.leakCaseId ?? add.leakCaseId ?? null,
-      updatedAt: now,
-    })
-    .where(eq(workOrders.id, open.id));
+  await updateWorkOrderRow(tx, open.id, {
+    returnNeeds: needs,
+    latestAt: earlier(open.latestAt, add.latestAt),
+    priority: higher(open.priority, add.priority),
+    complaint: [open.complaint.trim(), add.complaint.trim()].filter(Boolean).join(' '),
+    estimatedMinutes: Math.max(open.estimatedMinutes, add.estimatedMinutes),
+    requiredSkill: open.requiredSkill ?? add.requiredSkill ?? null,
+    requiredCertification: open.requiredCertification ?? add.requiredCertification ?? null,
+    leakCaseId: open.leakCaseId ?? add.leakCaseId ?? null,
+    updatedAt: now,
+  });
 }
 
 export async function openReturnDetails(tx: Tx, wo: Pick<WorkOrderRow, 'id' | 'number' | 'state' | 'unitId'>): Promise<OpenReturnDetails> {
-  const [v] = await tx.select({ id: visits.id }).from(visits).where(eq(visits.workOrderId, wo.id)).orderBy(desc(visits.createdAt)).limit(1);
-  return { workOrderId: wo.id, number: wo.number, state: wo.state, unitId: wo.unitId, visitId: v?.id ?? null };
+  const visitId = await latestVisitId(tx, wo.id);
+  return { workOrderId: wo.id, number: wo.number, state: wo.state, unitId: wo.unitId, visitId };
 }
 
 /** `409 open_return_exists` naming the open return visit. */
