@@ -3,13 +3,12 @@
  * rotating it ends the old URL, revoking it ends the feed.
  */
 import { randomBytes } from 'node:crypto';
-import { and, asc, eq, gte, lt, ne } from 'drizzle-orm';
 import { workOrderKindLabels } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { bookings, sites, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
 import { writeCalendar, type CalendarEvent } from '../../lib/ical';
 import { calendarFeedUrl } from './day.service';
+import { calendarBookings, findCalendarUser, setCalendarToken } from './day.repo';
 
 /** The feed covers bookings from this many days back to this many days ahead. */
 const PAST_DAYS = 14;
@@ -17,39 +16,21 @@ const AHEAD_DAYS = 60;
 
 export async function rotateCalendarToken(ctx: AppContext, userId: string): Promise<{ url: string }> {
   const token = randomBytes(24).toString('base64url');
-  await ctx.db.update(users).set({ calendarToken: token }).where(eq(users.id, userId));
+  await setCalendarToken(ctx.db, userId, token);
   return { url: calendarFeedUrl(ctx, token)! };
 }
 
 export async function revokeCalendarToken(ctx: AppContext, userId: string): Promise<void> {
-  await ctx.db.update(users).set({ calendarToken: null }).where(eq(users.id, userId));
+  await setCalendarToken(ctx.db, userId, null);
 }
 
 /** The .ics text for a feed token; 404 for an unknown or revoked token or an inactive user. */
 export async function calendarFeed(ctx: AppContext, token: string): Promise<string> {
   if (!/^[A-Za-z0-9_-]{20,100}$/.test(token)) throw notFound('calendar');
-  const [u] = await ctx.db
-    .select({ id: users.id, name: users.name, active: users.active })
-    .from(users)
-    .where(eq(users.calendarToken, token))
-    .limit(1);
+  const u = await findCalendarUser(ctx.db, token);
   if (!u || !u.active) throw notFound('calendar');
   const now = ctx.clock.now().getTime();
-  const rows = await ctx.db
-    .select({ booking: bookings, visitId: visits.id, wo: workOrders, site: sites })
-    .from(bookings)
-    .innerJoin(workOrders, eq(workOrders.id, bookings.workOrderId))
-    .innerJoin(sites, eq(sites.id, workOrders.siteId))
-    .leftJoin(visits, eq(visits.bookingId, bookings.id))
-    .where(
-      and(
-        eq(bookings.techId, u.id),
-        gte(bookings.startAt, new Date(now - PAST_DAYS * 86_400_000)),
-        lt(bookings.startAt, new Date(now + AHEAD_DAYS * 86_400_000)),
-        ne(workOrders.state, 'cancelled'),
-      ),
-    )
-    .orderBy(asc(bookings.startAt));
+  const rows = await calendarBookings(ctx.db, u.id, new Date(now - PAST_DAYS * 86_400_000), new Date(now + AHEAD_DAYS * 86_400_000));
   const base = ctx.config.publicUrl.replace(/\/$/, '');
   const events: CalendarEvent[] = rows.map(({ booking: b, visitId, wo, site }) => ({
     uid: `${b.id}@coilpath`,

@@ -1,13 +1,12 @@
-import { and, asc, eq, gte, inArray, isNull, lt, ne, or } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { addDays, planRoute } from '@coilpath/calc';
 import { weekdays, type DayResponse, type DayStop, type SessionUser, type WorkingHours } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { bookings, branches, sites, units, users, visits, workOrders } from '../../db/schema';
 import { notFound } from '../../lib/errors';
 import type { RevisionCache } from '../../lib/revision-cache';
 import { visitStatus } from '../visits/access';
+import { dayUnits, dayVisits, findTechnician } from './day.repo';
 
 /** Midnight of a `YYYY-MM-DD` date in a zone, as an instant. */
 export function startOfDayIn(date: string, timeZone: string, hh = 0, mm = 0): Date {
@@ -63,21 +62,7 @@ export async function technicianDay(
 }
 
 async function technician(ctx: AppContext, userId: string) {
-  const [me] = await ctx.db
-    .select({
-      id: users.id,
-      name: users.name,
-      startLat: users.startLat,
-      startLon: users.startLon,
-      startAddress: users.startAddress,
-      workingHours: users.workingHours,
-      calendarToken: users.calendarToken,
-      branch: branches,
-    })
-    .from(users)
-    .innerJoin(branches, eq(branches.id, users.branchId))
-    .where(eq(users.id, userId))
-    .limit(1);
+  const me = await findTechnician(ctx.db, userId);
   if (!me) throw notFound('branch');
   return me;
 }
@@ -92,38 +77,11 @@ async function dayOf(ctx: AppContext, me: Technician, day: string): Promise<Omit
   const from = startOfDayIn(day, tz);
   const to = startOfDayIn(addDays(day, 1), tz);
 
-  const rows = await ctx.db
-    .select({ visit: visits, booking: bookings, wo: workOrders, site: sites })
-    .from(visits)
-    .innerJoin(bookings, eq(bookings.id, visits.bookingId))
-    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-    .innerJoin(sites, eq(sites.id, workOrders.siteId))
-    .where(and(eq(visits.techId, me.id), gte(bookings.startAt, from), lt(bookings.startAt, to), ne(workOrders.state, 'cancelled')))
-    .orderBy(asc(bookings.startAt));
+  const rows = await dayVisits(ctx.db, me.id, from, to);
 
   const unitIds = [...new Set(rows.flatMap((r) => (r.wo.unitId ? [r.wo.unitId] : [])))];
   const siteWide = [...new Set(rows.filter((r) => !r.wo.unitId).map((r) => r.site.id))];
-  const unitRows =
-    unitIds.length || siteWide.length
-      ? await ctx.db
-          .select({
-            id: units.id,
-            siteId: units.siteId,
-            tag: units.tag,
-            kind: units.kind,
-            make: units.make,
-            model: units.model,
-            refrigerant: units.refrigerant,
-          })
-          .from(units)
-          .where(
-            or(
-              unitIds.length ? inArray(units.id, unitIds) : undefined,
-              siteWide.length ? and(inArray(units.siteId, siteWide), isNull(units.archivedAt)) : undefined,
-            ),
-          )
-          .orderBy(asc(units.tag))
-      : [];
+  const unitRows = unitIds.length || siteWide.length ? await dayUnits(ctx.db, unitIds, siteWide) : [];
 
   // The day starts when the technician's working hours do (07:00 when none are set).
   const weekday = weekdays[new TZDate(from.getTime(), tz).getDay()]!;
