@@ -1,10 +1,8 @@
 /** Maintenance agreements: covered units, recurrence, term, SLA, price, tasks; visit plans; PM completion. */
-import { and, asc, eq, gte, inArray, lte, ne, sql } from 'drizzle-orm';
 import {
   recordDate,
   PM_GRACE_DAYS,
   buildAgreementRrule,
-  parseAgreementRrule,
   type AgreementDetail,
   type AgreementRow,
   type PlanPreview,
@@ -19,11 +17,35 @@ import { addDays, daysFrom, levelVisitsAcrossWeeks, planAgreementVisits, zonedDa
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
-import { agreementUnits, agreements, auditEvents, branches, customers, sites, units, users, workOrders } from '../../db/schema';
 import { assertBranch } from '../../auth/policy';
 import { notFound, unprocessable } from '../../lib/errors';
-import { branchFilter, branchesById, todayIn } from '../watchlist/scope';
+import { branchesById, todayIn } from '../watchlist/scope';
 import { actAs } from '../events/actor';
+import {
+  agreementUnitRows,
+  agreementVisits,
+  branchAgreements,
+  countActiveTechnicians,
+  coveredUnits,
+  deleteAgreementUnits,
+  existingPlanVisits,
+  findAgreement,
+  findBranchRecord,
+  findSiteBranch,
+  insertAgreement,
+  insertAgreementUnits,
+  insertAudit,
+  insertWorkOrders,
+  listAgreementRecords,
+  otherPlannedVisits,
+  pmWorkOrders,
+  plannedVisitsOf,
+  scopedBranches,
+  unitSites,
+  updateAgreementRow,
+  updateWorkOrderIfState,
+} from './agreements.repo';
+import { presentAgreementRow } from './agreements.present';
 
 /** Planned-maintenance visits one technician can take in a week (one a working day): the levelling cap per technician. */
 export const PM_VISITS_PER_TECH_WEEK = 5;
@@ -41,32 +63,12 @@ export async function listAgreements(
   q: { branchId?: string | undefined; status: string },
   onlyIds?: string[],
 ): Promise<AgreementRow[]> {
-  const rows = await ctx.db
-    .select({ a: agreements, siteName: sites.name, customerName: customers.name })
-    .from(agreements)
-    .innerJoin(sites, eq(sites.id, agreements.siteId))
-    .innerJoin(customers, eq(customers.id, sites.customerId))
-    .where(
-      and(
-        branchFilter(user, q.branchId, agreements.branchId),
-        q.status !== 'all' ? eq(agreements.status, q.status as 'active') : undefined,
-        onlyIds ? inArray(agreements.id, onlyIds) : undefined,
-      ),
-    )
-    .orderBy(asc(sites.name), asc(agreements.name));
+  const rows = await listAgreementRecords(ctx.db, user, q.branchId, q.status, onlyIds);
   if (rows.length === 0) return [];
   const ids = rows.map((r) => r.a.id);
   const [unitRows, planned, branchMap] = await Promise.all([
-    ctx.db
-      .select({ agreementId: agreementUnits.agreementId, id: units.id, tag: units.tag, make: units.make, model: units.model })
-      .from(agreementUnits)
-      .innerJoin(units, eq(units.id, agreementUnits.unitId))
-      .where(inArray(agreementUnits.agreementId, ids))
-      .orderBy(asc(units.tag)),
-    ctx.db
-      .select({ agreementId: workOrders.agreementId, plannedDate: workOrders.plannedDate, state: workOrders.state })
-      .from(workOrders)
-      .where(and(inArray(workOrders.agreementId, ids), eq(workOrders.kind, 'planned_maintenance'), ne(workOrders.state, 'cancelled'))),
+    agreementUnitRows(ctx.db, ids),
+    plannedVisitsOf(ctx.db, ids),
     branchesById(
       ctx.db,
       rows.map((r) => r.a.branchId),
@@ -80,54 +82,25 @@ export async function listAgreements(
       .filter((p) => p.plannedDate && p.plannedDate >= today && p.state !== 'closed')
       .map((p) => p.plannedDate!)
       .sort();
-    return {
-      id: a.id,
-      branchId: a.branchId,
-      siteId: a.siteId,
-      siteName,
-      customerName,
-      name: a.name,
-      rrule: a.rrule,
-      recurrence: parseAgreementRrule(a.rrule),
-      seasonNotes: a.seasonNotes,
-      termStart: a.termStart,
-      termEnd: a.termEnd,
-      slaHours: a.slaHours,
-      priceCents: a.priceCents,
-      visitMinutes: a.visitMinutes,
-      tasks: a.tasks,
-      status: a.status,
+    return presentAgreementRow(a, siteName, customerName, {
       units: unitRows.filter((u) => u.agreementId === a.id).map(({ agreementId: _a, ...u }) => u),
       plannedCount: mine.length,
       nextPlannedDate: upcoming[0] ?? null,
-    };
+    });
   });
 }
 
 export async function getAgreement(ctx: AppContext, user: SessionUser, id: string): Promise<AgreementDetail> {
   const [row] = await listAgreements(ctx, user, { status: 'all' }, [id]);
   if (!row) throw notFound('agreement');
-  const visits = await ctx.db
-    .select({
-      workOrderId: workOrders.id,
-      number: workOrders.number,
-      plannedDate: workOrders.plannedDate,
-      state: workOrders.state,
-      closedAt: workOrders.closedAt,
-    })
-    .from(workOrders)
-    .where(and(eq(workOrders.agreementId, id), eq(workOrders.kind, 'planned_maintenance'), ne(workOrders.state, 'cancelled')))
-    .orderBy(asc(workOrders.plannedDate));
+  const visits = await agreementVisits(ctx.db, id);
   return { ...row, visits: visits.map((v) => ({ ...v, closedAt: v.closedAt?.toISOString() ?? null })) };
 }
 
 /* ------------------------------------------------------------------ writing */
 
 async function checkUnits(tx: Tx, siteId: string, unitIds: string[]) {
-  const found = await tx
-    .select({ id: units.id, siteId: units.siteId })
-    .from(units)
-    .where(inArray(units.id, [...new Set(unitIds)]));
+  const found = await unitSites(tx, unitIds);
   const elsewhere = unitIds.filter((id) => found.find((u) => u.id === id)?.siteId !== siteId);
   if (elsewhere.length) throw unprocessable("Every covered unit must be at the agreement's site.", { unitIds: elsewhere });
 }
@@ -139,31 +112,26 @@ export async function createAgreement(
 ): Promise<AgreementDetail> {
   const id = await ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
-    const [site] = await tx.select({ id: sites.id, branchId: sites.branchId }).from(sites).where(eq(sites.id, input.siteId)).limit(1);
+    const site = await findSiteBranch(tx, input.siteId);
     if (!site) throw notFound('site');
     assertBranch(user, site.branchId, 'site');
     await checkUnits(tx, site.id, input.unitIds);
-    const [a] = await tx
-      .insert(agreements)
-      .values({
-        branchId: site.branchId,
-        siteId: site.id,
-        name: input.name,
-        rrule: buildAgreementRrule(input.recurrence),
-        seasonNotes: input.seasonNotes || null,
-        termStart: input.termStart,
-        termEnd: input.termEnd,
-        slaHours: input.slaHours,
-        priceCents: input.priceCents,
-        visitMinutes: input.visitMinutes,
-        tasks: input.tasks,
-      })
-      .returning({ id: agreements.id });
-    await tx.insert(agreementUnits).values([...new Set(input.unitIds)].map((unitId) => ({ agreementId: a!.id, unitId })));
-    await tx
-      .insert(auditEvents)
-      .values({ actorId: user.id, action: 'agreement.created', entity: 'agreement', entityId: a!.id, details: {} });
-    return a!.id;
+    const a = await insertAgreement(tx, {
+      branchId: site.branchId,
+      siteId: site.id,
+      name: input.name,
+      rrule: buildAgreementRrule(input.recurrence),
+      seasonNotes: input.seasonNotes || null,
+      termStart: input.termStart,
+      termEnd: input.termEnd,
+      slaHours: input.slaHours,
+      priceCents: input.priceCents,
+      visitMinutes: input.visitMinutes,
+      tasks: input.tasks,
+    });
+    await insertAgreementUnits(tx, a.id, [...new Set(input.unitIds)]);
+    await insertAudit(tx, user.id, 'agreement.created', a.id, {});
+    return a.id;
   });
   return getAgreement(ctx, user, id);
 }
@@ -176,7 +144,7 @@ export async function patchAgreement(
 ): Promise<AgreementDetail> {
   await ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
-    const [a] = await tx.select().from(agreements).where(eq(agreements.id, id)).limit(1);
+    const a = await findAgreement(tx, id);
     if (!a) throw notFound('agreement');
     assertBranch(user, a.branchId, 'agreement');
     const termStart = patch.termStart ?? a.termStart;
@@ -184,32 +152,23 @@ export async function patchAgreement(
     if (termEnd <= termStart) throw unprocessable('The term must end after it starts.');
     if (patch.unitIds) {
       await checkUnits(tx, a.siteId, patch.unitIds);
-      await tx.delete(agreementUnits).where(eq(agreementUnits.agreementId, id));
-      await tx.insert(agreementUnits).values([...new Set(patch.unitIds)].map((unitId) => ({ agreementId: id, unitId })));
+      await deleteAgreementUnits(tx, id);
+      await insertAgreementUnits(tx, id, [...new Set(patch.unitIds)]);
     }
-    await tx
-      .update(agreements)
-      .set({
-        ...(patch.name !== undefined ? { name: patch.name } : {}),
-        ...(patch.recurrence ? { rrule: buildAgreementRrule(patch.recurrence) } : {}),
-        ...(patch.seasonNotes !== undefined ? { seasonNotes: patch.seasonNotes || null } : {}),
-        termStart,
-        termEnd,
-        ...(patch.slaHours !== undefined ? { slaHours: patch.slaHours } : {}),
-        ...(patch.priceCents !== undefined ? { priceCents: patch.priceCents } : {}),
-        ...(patch.visitMinutes !== undefined ? { visitMinutes: patch.visitMinutes } : {}),
-        ...(patch.tasks !== undefined ? { tasks: patch.tasks } : {}),
-        ...(patch.status !== undefined ? { status: patch.status } : {}),
-        updatedAt: ctx.clock.now(),
-      })
-      .where(eq(agreements.id, id));
-    await tx.insert(auditEvents).values({
-      actorId: user.id,
-      action: 'agreement.updated',
-      entity: 'agreement',
-      entityId: id,
-      details: { fields: Object.keys(patch) },
+    await updateAgreementRow(tx, id, {
+      ...(patch.name !== undefined ? { name: patch.name } : {}),
+      ...(patch.recurrence ? { rrule: buildAgreementRrule(patch.recurrence) } : {}),
+      ...(patch.seasonNotes !== undefined ? { seasonNotes: patch.seasonNotes || null } : {}),
+      termStart,
+      termEnd,
+      ...(patch.slaHours !== undefined ? { slaHours: patch.slaHours } : {}),
+      ...(patch.priceCents !== undefined ? { priceCents: patch.priceCents } : {}),
+      ...(patch.visitMinutes !== undefined ? { visitMinutes: patch.visitMinutes } : {}),
+      ...(patch.tasks !== undefined ? { tasks: patch.tasks } : {}),
+      ...(patch.status !== undefined ? { status: patch.status } : {}),
+      updatedAt: ctx.clock.now(),
     });
+    await insertAudit(tx, user.id, 'agreement.updated', id, { fields: Object.keys(patch) });
   });
   return getAgreement(ctx, user, id);
 }
@@ -233,11 +192,10 @@ interface Planned {
  * and never touches one that is booked, in progress or done.
  */
 async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: string, lock: boolean) {
-  const q = tx.select().from(agreements).where(eq(agreements.id, id)).limit(1);
-  const [a] = lock ? await q.for('update') : await q;
+  const a = await findAgreement(tx, id, lock);
   if (!a) throw notFound('agreement');
   assertBranch(user, a.branchId, 'agreement');
-  const [b] = await tx.select().from(branches).where(eq(branches.id, a.branchId));
+  const b = await findBranchRecord(tx, a.branchId);
   const tz = b!.timeZone;
   const today = todayIn(tz, ctx.clock.now());
 
@@ -256,24 +214,9 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
     const future = expanded.visits.filter((v) => v.date >= today);
     if (future.length) {
       const last = future[future.length - 1]!.date;
-      const [others, [techs]] = await Promise.all([
-        tx
-          .select({ id: workOrders.id, plannedDate: workOrders.plannedDate })
-          .from(workOrders)
-          .where(
-            and(
-              eq(workOrders.branchId, a.branchId),
-              eq(workOrders.kind, 'planned_maintenance'),
-              ne(workOrders.state, 'cancelled'),
-              sql`${workOrders.agreementId} is distinct from ${id}`,
-              gte(workOrders.plannedDate, addDays(future[0]!.date, -7)),
-              lte(workOrders.plannedDate, addDays(last, 7 * 9)),
-            ),
-          ),
-        tx
-          .select({ n: sql<number>`count(*)::int` })
-          .from(users)
-          .where(and(eq(users.branchId, a.branchId), eq(users.role, 'technician'), eq(users.active, true))),
+      const [others, techs] = await Promise.all([
+        otherPlannedVisits(tx, a.branchId, id, addDays(future[0]!.date, -7), addDays(last, 7 * 9)),
+        countActiveTechnicians(tx, a.branchId),
       ]);
       const maxPerWeek = Math.max(1, techs?.n ?? 1) * PM_VISITS_PER_TECH_WEEK;
       // Other agreements' visits already hold their weeks ('0:' sorts before this agreement's '1:' on a tie).
@@ -313,10 +256,7 @@ async function computePlan(tx: Tx, ctx: AppContext, user: SessionUser, id: strin
     }
   }
 
-  const existing = await tx
-    .select({ id: workOrders.id, state: workOrders.state, plannedDate: workOrders.plannedDate, purpose: workOrders.purpose })
-    .from(workOrders)
-    .where(and(eq(workOrders.agreementId, id), eq(workOrders.kind, 'planned_maintenance')));
+  const existing = await existingPlanVisits(tx, id);
   // Visits written by Coilpath carry their rule date in `purpose`; others (imported, demo data) are
   // matched by their planned date: the rule date, the working day it moved to, or the levelled day.
   type Existing = (typeof existing)[number];
@@ -378,12 +318,7 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
   return ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
     const { a, tz, visits, counts, adopt, dropped } = await computePlan(tx, ctx, user, id, true);
-    const unitRows = await tx
-      .select({ id: units.id, tag: units.tag })
-      .from(agreementUnits)
-      .innerJoin(units, eq(units.id, agreementUnits.unitId))
-      .where(eq(agreementUnits.agreementId, id))
-      .orderBy(asc(units.tag));
+    const unitRows = await coveredUnits(tx, id);
     const complaint = [
       `Planned maintenance: ${a.name}.`,
       unitRows.length ? `Units: ${unitRows.map((u) => u.tag).join(', ')}.` : '',
@@ -402,7 +337,8 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
     });
     const fresh = visits.filter((v) => v.action === 'new' && !v.workOrderId);
     if (fresh.length) {
-      await tx.insert(workOrders).values(
+      await insertWorkOrders(
+        tx,
         fresh.map((v) => ({
           branchId: a.branchId,
           siteId: a.siteId,
@@ -420,31 +356,17 @@ export async function applyPlan(ctx: AppContext, user: SessionUser, id: string):
       if (!v.workOrderId) continue;
       // Each update re-checks the state it was planned from, so a visit booked meanwhile is left alone.
       if (v.action === 'new') {
-        await tx
-          .update(workOrders)
-          .set({ ...values(v), state: 'unplaced' })
-          .where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'cancelled')));
+        await updateWorkOrderIfState(tx, v.workOrderId, 'cancelled', { ...values(v), state: 'unplaced' });
       } else if (v.action === 'move') {
-        await tx
-          .update(workOrders)
-          .set(values(v))
-          .where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
+        await updateWorkOrderIfState(tx, v.workOrderId, 'unplaced', values(v));
       } else if (v.action === 'cancel') {
-        await tx
-          .update(workOrders)
-          .set({ state: 'cancelled', updatedAt: now })
-          .where(and(eq(workOrders.id, v.workOrderId), eq(workOrders.state, 'unplaced')));
+        await updateWorkOrderIfState(tx, v.workOrderId, 'unplaced', { state: 'cancelled', updatedAt: now });
       }
     }
     for (const x of adopt) {
-      await tx
-        .update(workOrders)
-        .set({ purpose: purposeOf(x.ruleDate) })
-        .where(and(eq(workOrders.id, x.id), eq(workOrders.state, 'unplaced')));
+      await updateWorkOrderIfState(tx, x.id, 'unplaced', { purpose: purposeOf(x.ruleDate) });
     }
-    await tx
-      .insert(auditEvents)
-      .values({ actorId: user.id, action: 'agreement.plan_applied', entity: 'agreement', entityId: id, details: counts });
+    await insertAudit(tx, user.id, 'agreement.plan_applied', id, counts);
     return { agreementId: id, visits, counts, dropped, applied: true as const };
   });
 }
@@ -466,41 +388,11 @@ export async function pmCompletion(
 ): Promise<PmCompletionResponse> {
   const now = ctx.clock.now();
   const from = q.from ?? addDays(zonedDate(now, 'UTC'), -365);
-  const scope = branchFilter(user, q.branchId, branches.id);
-  const branchRows = await ctx.db
-    .select({ id: branches.id, name: branches.name, timeZone: branches.timeZone })
-    .from(branches)
-    .where(scope)
-    .orderBy(asc(branches.name));
+  const branchRows = await scopedBranches(ctx.db, user, q.branchId);
   const out: PmCompletionResponse = { from, graceDays: PM_GRACE_DAYS, branches: [], agreements: [], renewals: [] };
   if (branchRows.length === 0) return out;
   const branchIds = branchRows.map((b) => b.id);
-  const [wos, ags] = await Promise.all([
-    ctx.db
-      .select({
-        agreementId: workOrders.agreementId,
-        branchId: workOrders.branchId,
-        plannedDate: workOrders.plannedDate,
-        state: workOrders.state,
-        closedAt: workOrders.closedAt,
-      })
-      .from(workOrders)
-      .where(
-        and(
-          inArray(workOrders.branchId, branchIds),
-          eq(workOrders.kind, 'planned_maintenance'),
-          ne(workOrders.state, 'cancelled'),
-          gte(workOrders.plannedDate, from),
-        ),
-      ),
-    ctx.db
-      .select({ a: agreements, siteName: sites.name, customerName: customers.name })
-      .from(agreements)
-      .innerJoin(sites, eq(sites.id, agreements.siteId))
-      .innerJoin(customers, eq(customers.id, sites.customerId))
-      .where(inArray(agreements.branchId, branchIds))
-      .orderBy(asc(sites.name)),
-  ]);
+  const [wos, ags] = await Promise.all([pmWorkOrders(ctx.db, branchIds, from), branchAgreements(ctx.db, branchIds)]);
   const tzOf = new Map(branchRows.map((b) => [b.id, b.timeZone]));
   const todayOf = new Map(branchRows.map((b) => [b.id, todayIn(b.timeZone, now)]));
   const byBranch = new Map(branchRows.map((b) => [b.id, zero()]));
