@@ -14,6 +14,16 @@ import boundaries from 'eslint-plugin-boundaries';
 
 const resolver = fileURLToPath(new URL('./eslint.resolver.cjs', import.meta.url));
 
+/**
+ * API modules whose services and routes hold no query: their SQL is in `<area>.repo.ts` (routes → service → repo).
+ * alarm-sources is not listed yet: its service still takes a table's type from the schema.
+ */
+const layeredModules = ['agreements', 'branches', 'day', 'fix-quality', 'health', 'outbox', 'work-orders'];
+const noQueries = {
+  group: ['drizzle-orm', 'drizzle-orm/*', '**/db/schema'],
+  message: "a service or route never queries: Drizzle and the schema's tables belong to the module's <area>.repo.ts",
+};
+
 export default defineConfig(
   {
     ignores: [
@@ -145,6 +155,49 @@ export default defineConfig(
               group: ['**/*.routes'],
               message: 'a route file never imports another route file: move what both need down (auth/cookies.ts, a service)',
             },
+          ],
+        },
+      ],
+    },
+  },
+  {
+    // Modules split into routes → service → repo (DEVELOPERS.md, "Layers"): their services and routes never
+    // query the database themselves. A module joins this list once its *.service.ts and *.routes.ts are clean.
+    files: layeredModules.map((m) => `apps/api/src/modules/${m}/*.service.ts`),
+    ignores: ['**/*.test.ts'],
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            {
+              group: ['**/auth/middleware', '**/auth/cookies'],
+              message:
+                'services, repos and presenters never reach HTTP: who may act is auth/policy.ts; middleware and cookies belong to routes',
+            },
+            {
+              group: ['**/*.routes'],
+              message: 'a service never imports a route file: move what both need down (a service, a repo, or auth/)',
+            },
+            noQueries,
+          ],
+        },
+      ],
+    },
+  },
+  {
+    files: layeredModules.map((m) => `apps/api/src/modules/${m}/*.routes.ts`),
+    rules: {
+      'no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            { group: ['**/*.repo'], message: 'a route calls its service, never a repo (routes → service → repo)' },
+            {
+              group: ['**/*.routes'],
+              message: 'a route file never imports another route file: move what both need down (auth/cookies.ts, a service)',
+            },
+            noQueries,
           ],
         },
       ],
