@@ -130,15 +130,6 @@ export default function CalendarView({
           // A month cell is named by its date link alone, which hides the bookings inside it from its
           // name; without the label the cell is named by its content (date and bookings).
           dayCellDidMount={(arg) => arg.el.removeAttribute('aria-labelledby')}
-          // The time grid scrolls through the day's hours: a keyboard must be able to reach and scroll it even when
-          // it holds no booking to focus.
-          viewDidMount={(arg) => {
-            for (const el of Array.from(arg.el.querySelectorAll<HTMLElement>('.fc-scroller-liquid-absolute'))) {
-              el.tabIndex = 0;
-              el.setAttribute('role', 'region');
-              el.setAttribute('aria-label', 'Hours of the day (scrolls)');
-            }
-          }}
           firstDay={1}
           height={type === 'dayGridMonth' ? 'auto' : 720}
           allDaySlot={false}
