@@ -36,6 +36,8 @@ export interface JourneyContext {
 
 export interface Journey {
   title?: string;
+  /** A longer time limit than the runner's default (`E2E_JOURNEY_TIMEOUT_MS`, 240 s), for a journey that covers much. */
+  timeLimitMs?: number;
   run(ctx: JourneyContext): Promise<void>;
 }
 

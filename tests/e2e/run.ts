@@ -90,7 +90,7 @@ async function main(): Promise<number> {
       const started = Date.now();
       try {
         if (typeof mod.run !== 'function') throw new Error(`${file} does not export async function run(ctx)`);
-        await withTimeLimit(mod.run(ctx), JOURNEY_TIME_LIMIT_MS, name);
+        await withTimeLimit(mod.run(ctx), Math.max(JOURNEY_TIME_LIMIT_MS, mod.timeLimitMs ?? 0), name);
         ctx.expectNoConsoleErrors();
         passed++;
         log(`✓ ${name} (${((Date.now() - started) / 1000).toFixed(1)} s)`);

@@ -67,7 +67,8 @@ export function AppFrame() {
         Skip to content
       </a>
       {/* Desktop rail */}
-      <aside className="hidden w-60 shrink-0 flex-col bg-ink p-3 text-frost md:flex">
+      {/* Sticky, a screen high: the notices take its bottom (components/ui/notices.tsx), where no control of the page can be. */}
+      <aside className="hidden w-60 shrink-0 flex-col bg-ink p-3 text-frost md:sticky md:top-0 md:flex md:h-dvh md:overflow-y-auto">
         <div className="mb-6 px-2 pt-2 text-lg text-white">
           <Wordmark />
         </div>

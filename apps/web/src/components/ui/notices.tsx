@@ -42,7 +42,7 @@ function NoticeItem({ n, onDismiss }: { n: Notice; onDismiss(id: number): void }
       onPointerLeave={() => setHeld(false)}
       onFocus={() => setHeld(true)}
       onBlur={() => setHeld(false)}
-      className={`pointer-events-auto flex min-h-[57px] w-full items-center gap-2 py-1 pl-4 pr-1 text-sm text-white shadow-lg md:min-h-0 md:max-w-md md:rounded-md ${n.tone === 'ok' ? 'bg-ink' : 'bg-alarm'}`}
+      className={`pointer-events-auto flex min-h-[57px] w-full items-center gap-2 py-1 pl-4 pr-1 text-sm text-white shadow-lg md:min-h-0 md:rounded-md md:pl-3 md:ring-1 md:ring-frost/50 ${n.tone === 'ok' ? 'bg-ink' : 'bg-alarm'}`}
     >
       {n.tone === 'ok' ? (
         <CheckCircle2 className="size-4 shrink-0" aria-hidden="true" />
@@ -81,7 +81,9 @@ function NoticeItem({ n, onDismiss }: { n: Notice; onDismiss(id: number): void }
  * screen bar (navigation, not a form's control; a notice is at least its 57 px), never over the page's
  * inputs or buttons: the height
  * they take is reserved below the page (`NOTICE_SPACE_VAR`), and a focused field or button they would
- * cover is scrolled clear. From `md` they sit in the bottom-right corner.
+ * cover is scrolled clear. From `md` they sit at the bottom of the navigation rail (sticky and a screen high,
+ * `app/layout.tsx`), below its links, where no input or button of the page can be at any scroll: over the
+ * page's own corner they would hide its controls.
  */
 export function NoticesProvider({ children }: { children: ReactNode }) {
   const [items, setItems] = useState<Notice[]>([]);
@@ -116,7 +118,7 @@ export function NoticesProvider({ children }: { children: ReactNode }) {
       <div
         ref={stack}
         aria-live="polite"
-        className="pointer-events-none fixed inset-x-0 bottom-0 z-40 flex flex-col items-stretch pb-[env(safe-area-inset-bottom)] max-md:[&>*:not(:last-child)]:hidden md:bottom-6 md:items-end md:gap-2 md:pb-0 md:pr-6"
+        className="pointer-events-none fixed inset-x-0 bottom-0 z-40 flex flex-col items-stretch pb-[env(safe-area-inset-bottom)] max-md:[&>*:not(:last-child)]:hidden md:bottom-3 md:left-3 md:right-auto md:w-[13.5rem] md:gap-2 md:pb-0"
       >
         {items.map((n) => (
           <NoticeItem key={n.id} n={n} onDismiss={dismiss} />

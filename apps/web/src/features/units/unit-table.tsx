@@ -1,8 +1,9 @@
-import type { ReactNode } from 'react';
+import { useId, type ReactNode } from 'react';
 
 /**
  * The Unit file's tables: a scrolling wrapper, a caption (for screen readers only unless `showCaption`),
  * one header row, and the body's cell styling. `nowrap` keeps each cell on one line (numbers with units).
+ * The wrapper is a focusable region named by the caption, so a keyboard can scroll a table wider than the phone.
  */
 export function UnitTable({
   caption,
@@ -17,10 +18,13 @@ export function UnitTable({
   showCaption?: boolean;
   nowrap?: boolean;
 }) {
+  const captionId = useId();
   return (
-    <div className="overflow-x-auto">
+    <div className="overflow-x-auto" tabIndex={0} role="region" aria-labelledby={captionId}>
       <table className="w-full border-collapse text-sm tabular-nums">
-        <caption className={showCaption ? 'pb-1 text-left text-xs font-medium text-slate' : 'sr-only'}>{caption}</caption>
+        <caption id={captionId} className={showCaption ? 'pb-1 text-left text-xs font-medium text-slate' : 'sr-only'}>
+          {caption}
+        </caption>
         <thead className="bg-frost text-left text-xs uppercase tracking-wide text-slate">
           <tr>
             {head.map((h) => (
