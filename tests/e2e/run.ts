@@ -47,7 +47,8 @@ async function main(): Promise<number> {
   }
   const filters = process.argv.slice(2);
   const files = readdirSync(journeysDir)
-    .filter((f) => f.endsWith('.journey.ts'))
+    // An audit (`*.audit.ts`: every screen in every state, about 12 minutes) runs only when named.
+    .filter((f) => f.endsWith('.journey.ts') || (filters.length > 0 && f.endsWith('.audit.ts')))
     .filter((f) => filters.length === 0 || filters.some((x) => f.includes(x)))
     .sort();
   if (files.length === 0) {
@@ -83,7 +84,7 @@ async function main(): Promise<number> {
     log(`Coilpath is up at ${server.base}${at ? `, its clock started at ${at}` : ''}; ${files.length} journey(s).`);
 
     for (const file of files) {
-      const name = basename(file, '.journey.ts');
+      const name = basename(basename(file, '.journey.ts'), '.audit.ts');
       const mod = (await import(pathToFileURL(join(journeysDir, file)).href)) as Journey;
       log(`\n▶ ${name}${mod.title ? ` — ${mod.title}` : ''}`);
       const { ctx, close } = createJourneyContext({ base: server.base, name, outDir, log, clockOffsetMs });
