@@ -27,7 +27,7 @@ import {
 } from '../../db/schema';
 import { notFound } from '../../lib/errors';
 import { enforce, unitMayRead } from '../../auth/policy';
-import { circuitTargetsDto, readingDto } from '../visits/dto';
+import { circuitTargetsDto, readingDto } from '../visits/visits.present';
 
 /** Readings returned for the trend (the latest ones). */
 const READINGS_LIMIT = 1500;

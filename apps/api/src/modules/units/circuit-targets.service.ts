@@ -4,7 +4,7 @@ import type { CircuitTargetsResult, CircuitTargetsValues, SessionUser } from '@c
 import type { AppContext } from '../../context';
 import { branches, circuits } from '../../db/schema';
 import { notFound } from '../../lib/errors';
-import { circuitTargetsDto } from '../visits/dto';
+import { circuitTargetsDto } from '../visits/visits.present';
 import { STORED_UNITS } from '../visits/reading-calc';
 import { actAs } from '../events/actor';
 import { getUnit } from './units.service';

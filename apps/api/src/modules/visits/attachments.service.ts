@@ -4,7 +4,7 @@ import type { AppContext } from '../../context';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
 import { readStoredFile } from '../../storage/storage';
 import { assertVisitReadable, assertVisitWritable, loadReadableUnit, loadVisit } from './access';
-import { attachmentDto } from './dto';
+import { attachmentDto } from './visits.present';
 import * as repo from './visits.repo';
 import { actAs } from '../events/actor';
 

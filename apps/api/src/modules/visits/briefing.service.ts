@@ -12,7 +12,7 @@ import { enforce, unitMayRead } from '../../auth/policy';
 import { prepareJson, type PreparedJson } from '../../lib/prepared-json';
 import type { RevisionCache } from '../../lib/revision-cache';
 import * as repo from './briefing.repo';
-import { attachmentDto, circuitTargetsDto, findingDto, leakCaseDto, readingDto } from './dto';
+import { attachmentDto, circuitTargetsDto, findingDto, leakCaseDto, readingDto } from './visits.present';
 
 const PHOTO_LIMIT = 8;
 

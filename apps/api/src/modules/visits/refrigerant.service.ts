@@ -9,7 +9,7 @@ import type { Tx } from '../../db/client';
 import { badRequest, conflict, notFound } from '../../lib/errors';
 import { enforce, mayRecordRefrigerant } from '../../auth/policy';
 import { assertVisitRecordable, loadReadableUnit, loadVisit, type UnitRow } from './access';
-import { leakCaseDto, refrigerantEventDto } from './dto';
+import { leakCaseDto, refrigerantEventDto } from './visits.present';
 import * as repo from './visits.repo';
 import { additionOf } from '../unit-file/refrigerant-record';
 import { actAs } from '../events/actor';

@@ -16,7 +16,7 @@ import type { Tx } from '../../db/client';
 import { badRequest, conflict } from '../../lib/errors';
 import { modelAlertRef } from '@coilpath/contract';
 import { assertVisitReadable, assertVisitRecordable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
-import { attachmentDto, circuitTargetsDto, findingDto, readingDto, refrigerantEventDto } from './dto';
+import { attachmentDto, circuitTargetsDto, findingDto, readingDto, refrigerantEventDto } from './visits.present';
 import { computeReading, toStoredUnits } from './reading-calc';
 import { actAs } from '../events/actor';
 import { visitSignatureDto } from './signature';

@@ -1,3 +1,4 @@
+/** The visit's answers: readings in the branch's units, findings, refrigerant entries, leak cases, attachments, circuit targets. */
 import { convertPressure, convertTemperature, convertTemperatureDifference } from '@coilpath/calc';
 import {
   readingUnitsBySystem,
