@@ -150,4 +150,34 @@ export default defineConfig(
       ],
     },
   },
+  // ---- repo layering, branch `repob` (visits, unit-file, sites, units, team, auth, events) ----
+  // Issue 19 §2: in these modules all SQL is in `<area>.repo.ts` (visits also briefing.repo.ts and closeout.repo.ts);
+  // services, routes and the helpers that held queries before never import Drizzle or the schema's tables.
+  // `@typescript-eslint/no-restricted-imports` (not the core rule) so the core rule's patterns above still apply.
+  // Left out: `sites/list-query.ts` (the list helpers every repo builds its WHERE and ORDER BY with),
+  // `visits/visits.present.ts` (schema row types only), `visits/visits.fixtures.ts` (tests' data).
+  {
+    files: [
+      'apps/api/src/modules/{visits,unit-file,sites,units,team,auth,events}/*.service.ts',
+      'apps/api/src/modules/{visits,unit-file,sites,units,team,auth,events}/*.routes.ts',
+      'apps/api/src/modules/visits/{access,signature}.ts',
+      'apps/api/src/modules/unit-file/refrigerant-record.ts',
+      'apps/api/src/modules/units/units-import.ts',
+      'apps/api/src/modules/sites/history.ts',
+      'apps/api/src/modules/events/actor.ts',
+    ],
+    rules: {
+      '@typescript-eslint/no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            {
+              group: ['drizzle-orm', 'drizzle-orm/*', '**/db/schema'],
+              message: "SQL lives in the module's <area>.repo.ts (routes → service → repo): call a repo function instead",
+            },
+          ],
+        },
+      ],
+    },
+  },
 );
