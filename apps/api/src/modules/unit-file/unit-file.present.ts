@@ -1,6 +1,6 @@
 /** The unit file's answer (unit-file.service.ts). */
 import type { UnitFile } from '@coilpath/contract';
-import { circuitTargetsDto, readingDto } from '../visits/visits.present';
+import { circuitDto, readingDto } from '../visits/visits.present';
 import type { AttachmentRecord, UnitFileRows, UnitRecord } from './unit-file.repo';
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
@@ -57,13 +57,7 @@ export function presentUnitFile(u: UnitRecord, rows: UnitFileRows): UnitFile {
     site,
     branch,
     nameplate: nameplate ? toAttachment(nameplate) : null,
-    circuits: circuitRows.map((c) => ({
-      id: c.id,
-      number: c.number,
-      compressorCount: c.compressorCount,
-      chargeLb: c.chargeLb,
-      targets: circuitTargetsDto(c, branch.unitSystem),
-    })),
+    circuits: circuitRows.map((c) => circuitDto(c, branch.unitSystem)),
     agreements: agreementRows,
     alarms: alarmRows.map((a) => ({
       id: a.id,

@@ -12,7 +12,7 @@ import { enforce, unitMayRead } from '../../auth/policy';
 import { prepareJson, type PreparedJson } from '../../lib/prepared-json';
 import type { RevisionCache } from '../../lib/revision-cache';
 import * as repo from './briefing.repo';
-import { attachmentDto, circuitTargetsDto, findingDto, leakCaseDto, readingDto } from './visits.present';
+import { attachmentDto, circuitDto, findingDto, leakCaseDto, readingDto, unitSummaryDto } from './visits.present';
 
 const PHOTO_LIMIT = 8;
 
@@ -94,25 +94,11 @@ async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answe
   const added = refrigerantRows[0]?.added ?? 0;
   const answer: UnitBriefing = {
     unit: {
-      id: u.id,
-      tag: u.tag,
-      kind: u.kind,
-      make: u.make,
-      model: u.model,
-      serial: u.serial,
-      refrigerant: u.refrigerant,
-      fullChargeLb: u.fullChargeLb,
-      applianceCategory: u.applianceCategory,
+      ...unitSummaryDto(u),
       siteId: u.siteId,
       siteName: row.siteName,
     },
-    circuits: circuitRows.map((c) => ({
-      id: c.id,
-      number: c.number,
-      compressorCount: c.compressorCount,
-      chargeLb: c.chargeLb,
-      targets: circuitTargetsDto(c, row.unitSystem),
-    })),
+    circuits: circuitRows.map((c) => circuitDto(c, row.unitSystem)),
     lastVisit: last
       ? {
           visitId: last.visit.id,

@@ -16,7 +16,7 @@ import type { Tx } from '../../db/client';
 import { badRequest, conflict } from '../../lib/errors';
 import { modelAlertRef } from '@coilpath/contract';
 import { assertVisitReadable, assertVisitRecordable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
-import { attachmentDto, circuitTargetsDto, findingDto, readingDto, refrigerantEventDto } from './visits.present';
+import { attachmentDto, circuitDto, findingDto, unitSummaryDto, readingDto, refrigerantEventDto } from './visits.present';
 import { computeReading, toStoredUnits } from './reading-calc';
 import { actAs } from '../events/actor';
 import { visitSignatureDto } from './signature';
@@ -34,24 +34,8 @@ async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: st
       )
     : [];
   return us.map((u) => ({
-    id: u.id,
-    tag: u.tag,
-    kind: u.kind,
-    make: u.make,
-    model: u.model,
-    serial: u.serial,
-    refrigerant: u.refrigerant,
-    fullChargeLb: u.fullChargeLb,
-    applianceCategory: u.applianceCategory,
-    circuits: cs
-      .filter((c) => c.unitId === u.id)
-      .map((c) => ({
-        id: c.id,
-        number: c.number,
-        compressorCount: c.compressorCount,
-        chargeLb: c.chargeLb,
-        targets: circuitTargetsDto(c, unitSystem),
-      })),
+    ...unitSummaryDto(u),
+    circuits: cs.filter((c) => c.unitId === u.id).map((c) => circuitDto(c, unitSystem)),
   }));
 }
 
