@@ -1,17 +1,16 @@
-import { eq, lt, sql } from 'drizzle-orm';
 import type { SessionUser, SignIn, SignOutEverywhereAnswer } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { endedSessions, users } from '../../db/schema';
+import * as repo from './auth.repo';
 import { verifyPassword } from '../../auth/password';
 import { signSession } from '../../auth/session';
 import { unauthorized } from '../../lib/errors';
 
 /** Checks e-mail and password; the same answer, in about the same time, for an unknown e-mail. */
 export async function signIn(ctx: AppContext, input: SignIn): Promise<{ user: SessionUser; token: string }> {
-  const [u] = await ctx.db.select().from(users).where(eq(users.email, input.email)).limit(1);
+  const u = await repo.userByEmail(ctx.db, input.email);
   const ok = await verifyPassword(u?.active ? u.passwordHash : null, input.password);
   if (!u || !u.active || !ok) throw unauthorized('The e-mail or password is not right.');
-  await ctx.db.update(users).set({ lastSignInAt: ctx.clock.now() }).where(eq(users.id, u.id));
+  await repo.setLastSignIn(ctx.db, u.id, ctx.clock.now());
   const token = await signSession(ctx.secret, { sub: u.id, sv: u.sessionVersion }, ctx.config.sessionHours, ctx.clock.now());
   return { user: { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId }, token };
 }
@@ -27,29 +26,23 @@ const keepEndedMs = 60 * 60 * 1000;
 export async function signOut(ctx: AppContext, user: SessionUser, session: { id: string | null; expiresAt: Date }): Promise<void> {
   const now = ctx.clock.now();
   if (!session.id) {
-    await ctx.db
-      .update(users)
-      .set({ sessionVersion: sql`${users.sessionVersion} + 1` })
-      .where(eq(users.id, user.id));
+    await repo.raiseSessionVersion(ctx.db, user.id);
     return;
   }
-  await ctx.db
-    .insert(endedSessions)
-    .values({ sessionId: session.id, userId: user.id, expiresAt: session.expiresAt, endedAt: now })
-    .onConflictDoNothing();
-  await ctx.db.delete(endedSessions).where(lt(endedSessions.expiresAt, new Date(now.getTime() - keepEndedMs)));
+  await repo.endSession(
+    ctx.db,
+    { sessionId: session.id, userId: user.id, expiresAt: session.expiresAt, endedAt: now },
+    new Date(now.getTime() - keepEndedMs),
+  );
 }
 
 /** Ends every session of the user, this one included, on every device: the session version is raised. */
 export async function signOutEverywhere(ctx: AppContext, user: SessionUser): Promise<SignOutEverywhereAnswer> {
   const now = ctx.clock.now();
   await ctx.db.transaction(async (tx) => {
-    await tx
-      .update(users)
-      .set({ sessionVersion: sql`${users.sessionVersion} + 1` })
-      .where(eq(users.id, user.id));
+    await repo.raiseSessionVersion(tx, user.id);
     // The raised version refuses them all: the user's single ended sessions need no row any more.
-    await tx.delete(endedSessions).where(eq(endedSessions.userId, user.id));
+    await repo.forgetEndedSessionsOf(tx, user.id);
   });
   return { email: user.email, endedAt: now.toISOString() };
 }

@@ -1,8 +1,7 @@
-import { count, eq } from 'drizzle-orm';
 import type { SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import type { Db } from '../../db/client';
-import { appMeta, auditEvents, users } from '../../db/schema';
+import * as repo from './auth.repo';
 import { hashPassword } from '../../auth/password';
 import { assertPasswordAllowed } from '../../auth/password-rules';
 import { signSession } from '../../auth/session';
@@ -20,10 +19,7 @@ interface PendingSetup {
   expiresAt: string;
 }
 
-async function hasUsers(db: Pick<Db, 'select'>): Promise<boolean> {
-  const [r] = await db.select({ n: count() }).from(users);
-  return (r?.n ?? 0) > 0;
-}
+const hasUsers = repo.hasUsers;
 
 /**
  * On a start without demo data: when the database has nobody yet, makes a one-time link for the first owner
@@ -34,10 +30,7 @@ export async function issueOwnerSetup(ctx: Pick<AppContext, 'db' | 'secret' | 'c
   if (await hasUsers(ctx.db)) return null;
   const { token, hash } = newLinkToken();
   const value: PendingSetup = { tokenHash: hash, expiresAt: new Date(ctx.clock.now().getTime() + SETUP_HOURS * 3600_000).toISOString() };
-  await ctx.db
-    .insert(appMeta)
-    .values({ key: SETUP_KEY, value, updatedAt: ctx.clock.now() })
-    .onConflictDoUpdate({ target: appMeta.key, set: { value, updatedAt: ctx.clock.now() } });
+  await repo.putMeta(ctx.db, SETUP_KEY, value, ctx.clock.now());
   return `${ctx.config.publicUrl.replace(/\/$/, '')}/setup?token=${encodeURIComponent(signLinkToken(ctx.secret, 'owner-setup', token))}`;
 }
 
@@ -46,8 +39,7 @@ const setupDone = () => new HttpError(410, 'setup_done', 'This Coilpath already 
 async function openSetup(ctx: AppContext, db: Pick<Db, 'select'>, signed: string, lock = false): Promise<void> {
   const token = verifyLinkToken(ctx.secret, 'owner-setup', signed);
   if (!token) throw linkErrors.invalid(SETUP);
-  const q = db.select().from(appMeta).where(eq(appMeta.key, SETUP_KEY));
-  const [row] = lock ? await q.for('update') : await q;
+  const row = await repo.readMeta(db, SETUP_KEY, lock);
   if (await hasUsers(db)) throw setupDone();
   const pending = row?.value as PendingSetup | undefined;
   if (!pending || pending.tokenHash !== hashLinkToken(token)) throw linkErrors.invalid(SETUP);
@@ -74,15 +66,17 @@ export async function completeOwnerSetup(
   const now = ctx.clock.now();
   const u = await ctx.db.transaction(async (tx) => {
     await openSetup(ctx, tx, input.token, true);
-    const [created] = await tx
-      .insert(users)
-      .values({ email: input.email, name: input.name, role: 'owner', branchId: null, passwordHash, lastSignInAt: now })
-      .returning();
-    await tx.delete(appMeta).where(eq(appMeta.key, SETUP_KEY));
-    await tx
-      .insert(auditEvents)
-      .values({ actorId: created!.id, action: 'owner.setup', entity: 'user', entityId: created!.id, details: {}, at: now });
-    return created!;
+    const created = await repo.insertUser(tx, {
+      email: input.email,
+      name: input.name,
+      role: 'owner',
+      branchId: null,
+      passwordHash,
+      lastSignInAt: now,
+    });
+    await repo.deleteMeta(tx, SETUP_KEY);
+    await repo.insertAudit(tx, { actorId: created.id, action: 'owner.setup', entity: 'user', entityId: created.id, details: {}, at: now });
+    return created;
   });
   const token = await signSession(ctx.secret, { sub: u.id, sv: u.sessionVersion }, ctx.config.sessionHours, now);
   return { user: { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId }, token };

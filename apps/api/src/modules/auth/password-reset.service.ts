@@ -1,7 +1,6 @@
-import { and, count, eq, gt, isNull, sql } from 'drizzle-orm';
 import type { SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { auditEvents, branches, passwordResets, users } from '../../db/schema';
+import * as repo from './auth.repo';
 import { composeMail, mail, mailTime } from '../../mail/compose';
 import { hashPassword } from '../../auth/password';
 import { assertPasswordAllowed } from '../../auth/password-rules';
@@ -29,12 +28,7 @@ export function requestPasswordReset(ctx: AppContext, email: string): void {
  * that sends nothing, and is logged and recorded as `password_reset.throttled` in the audit events.
  */
 export async function sendPasswordReset(ctx: AppContext, email: string): Promise<'sent' | 'throttled' | 'no_account'> {
-  const [u] = await ctx.db
-    .select({ id: users.id, name: users.name, active: users.active, timeZone: branches.timeZone })
-    .from(users)
-    .leftJoin(branches, eq(branches.id, users.branchId))
-    .where(eq(users.email, email))
-    .limit(1);
+  const u = await repo.resetAccount(ctx.db, email);
   if (!u || !u.active) return 'no_account';
   const now = ctx.clock.now();
   const hourAgo = new Date(now.getTime() - 60 * 60_000);
@@ -42,14 +36,10 @@ export async function sendPasswordReset(ctx: AppContext, email: string): Promise
   const expiresAt = new Date(now.getTime() + RESET_MINUTES * 60_000);
   const made = await ctx.db.transaction(async (tx) => {
     // The user's row is locked so two processes count and add the links one after the other.
-    await tx.select({ id: users.id }).from(users).where(eq(users.id, u.id)).for('update');
-    const [recent] = await tx
-      .select({ n: count() })
-      .from(passwordResets)
-      .where(and(eq(passwordResets.userId, u.id), gt(passwordResets.createdAt, hourAgo)));
-    const sentInLastHour = recent?.n ?? 0;
+    await repo.lockUser(tx, u.id);
+    const sentInLastHour = await repo.resetsSince(tx, u.id, hourAgo);
     if (sentInLastHour >= RESET_MAILS_PER_HOUR) {
-      await tx.insert(auditEvents).values({
+      await repo.insertAudit(tx, {
         actorId: null,
         action: 'password_reset.throttled',
         entity: 'user',
@@ -60,11 +50,7 @@ export async function sendPasswordReset(ctx: AppContext, email: string): Promise
       return false;
     }
     // Only the newest link works.
-    await tx
-      .update(passwordResets)
-      .set({ usedAt: now })
-      .where(and(eq(passwordResets.userId, u.id), isNull(passwordResets.usedAt)));
-    await tx.insert(passwordResets).values({ userId: u.id, tokenHash: hash, expiresAt, createdAt: now });
+    await repo.replaceReset(tx, { userId: u.id, tokenHash: hash, expiresAt, createdAt: now });
     return true;
   });
   if (!made) {
@@ -94,20 +80,7 @@ const again = 'Ask for a new link from "Forgot your password?" on the sign-in pa
 async function openReset(ctx: AppContext, signed: string) {
   const token = verifyLinkToken(ctx.secret, 'password-reset', signed);
   if (!token) throw linkErrors.invalid(RESET);
-  const [r] = await ctx.db
-    .select({
-      id: passwordResets.id,
-      userId: passwordResets.userId,
-      usedAt: passwordResets.usedAt,
-      expiresAt: passwordResets.expiresAt,
-      email: users.email,
-      name: users.name,
-      active: users.active,
-    })
-    .from(passwordResets)
-    .innerJoin(users, eq(users.id, passwordResets.userId))
-    .where(eq(passwordResets.tokenHash, hashLinkToken(token)))
-    .limit(1);
+  const r = await repo.resetByTokenHash(ctx.db, hashLinkToken(token));
   if (!r || !r.active) throw linkErrors.invalid(RESET);
   if (r.usedAt) throw linkErrors.used(RESET, again);
   if (r.expiresAt <= ctx.clock.now()) throw linkErrors.expired(RESET, again);
@@ -129,18 +102,8 @@ export async function resetPassword(ctx: AppContext, signed: string, password: s
   const passwordHash = await hashPassword(password);
   const now = ctx.clock.now();
   const u = await ctx.db.transaction(async (tx) => {
-    const spent = await tx
-      .update(passwordResets)
-      .set({ usedAt: now })
-      .where(and(eq(passwordResets.id, r.id), isNull(passwordResets.usedAt)))
-      .returning({ id: passwordResets.id });
-    if (spent.length === 0) throw linkErrors.used(RESET, again);
-    const [updated] = await tx
-      .update(users)
-      .set({ passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, lastSignInAt: now })
-      .where(eq(users.id, r.userId))
-      .returning();
-    return updated!;
+    if (!(await repo.spendReset(tx, r.id, now))) throw linkErrors.used(RESET, again);
+    return repo.setPassword(tx, r.userId, passwordHash, now);
   });
   const token = await signSession(ctx.secret, { sub: u.id, sv: u.sessionVersion }, ctx.config.sessionHours, now);
   return { user: { id: u.id, name: u.name, email: u.email, role: u.role, branchId: u.branchId }, token };

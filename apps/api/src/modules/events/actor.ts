@@ -1,5 +1,5 @@
-import { sql } from 'drizzle-orm';
 import type { Db, Tx } from '../../db/client';
+import { setActor } from './events.repo';
 
 /**
  * Names who makes the changes of this transaction, for the live events the database triggers write
@@ -7,7 +7,7 @@ import type { Db, Tx } from '../../db/client';
  * inside the transaction, before the changes.
  */
 export async function actAs(tx: Tx, userId: string): Promise<void> {
-  await tx.execute(sql`select set_config('coilpath.actor', ${userId}, true)`);
+  await setActor(tx, userId);
 }
 
 /**

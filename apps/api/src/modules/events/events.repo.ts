@@ -1,7 +1,7 @@
 /** Every query of the live events (`live_events`, written by the triggers of migration 0016). */
 import { and, asc, eq, gt, inArray, isNull, or, sql } from 'drizzle-orm';
 import type { LiveEventKind } from '@coilpath/contract';
-import type { Db } from '../../db/client';
+import type { Db, Tx } from '../../db/client';
 import { endedSessions, liveEvents, users } from '../../db/schema';
 
 export type LiveEventRecord = typeof liveEvents.$inferSelect;
@@ -63,4 +63,9 @@ export async function sessionState(db: Db, userId: string, sessionId: string | n
     .where(eq(users.id, userId))
     .limit(1);
   return row;
+}
+
+/** Sets the transaction-local `coilpath.actor` the live-event triggers read (migration 0016); see `actAs` in actor.ts. */
+export async function setActor(tx: Tx, userId: string): Promise<void> {
+  await tx.execute(sql`select set_config('coilpath.actor', ${userId}, true)`);
 }

@@ -20,7 +20,6 @@
  * recorded on the unit; no industrial-process shutdown is claimed (30-day repair window); units are
  * not flagged residential/light-commercial; the leak-rate method is annualizing (as the leak cases).
  */
-import { and, asc, eq, inArray } from 'drizzle-orm';
 import {
   addDays,
   leakObligations,
@@ -42,7 +41,7 @@ import {
   type SessionUser,
 } from '@coilpath/contract';
 import type { Db, Tx } from '../../db/client';
-import { branches, circuits, customers, leakCases, refrigerantEvents, sites, users, verificationTests } from '../../db/schema';
+import * as repo from './unit-file.repo';
 import { readableUnit } from './unit-file.service';
 
 /** The leak-rate method Coilpath applies (82.152: annualizing or rolling average, one per facility [S]). */
@@ -317,28 +316,7 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
 export async function loadLedgerSource(db: Db | Tx, unit: LedgerSourceRows['unit'] & { id: string }): Promise<LedgerSourceRows> {
   const person = (r: { name: string | null; epa608Type: string | null; epa608Number: string | null }): Person =>
     r.name === null ? null : { name: r.name, epa608Type: r.epa608Type ?? 'none', epa608Number: r.epa608Number };
-  const [eventRows, caseRows] = await Promise.all([
-    db
-      .select({ e: refrigerantEvents, name: users.name, epa608Type: users.epa608Type, epa608Number: users.epa608Number })
-      .from(refrigerantEvents)
-      .leftJoin(users, eq(users.id, refrigerantEvents.techId))
-      .where(eq(refrigerantEvents.unitId, unit.id))
-      .orderBy(asc(refrigerantEvents.date), asc(refrigerantEvents.createdAt)),
-    db.select().from(leakCases).where(eq(leakCases.unitId, unit.id)).orderBy(asc(leakCases.openedOn), asc(leakCases.createdAt)),
-  ]);
-  const testRows = caseRows.length
-    ? await db
-        .select({ t: verificationTests, name: users.name, epa608Type: users.epa608Type, epa608Number: users.epa608Number })
-        .from(verificationTests)
-        .leftJoin(users, eq(users.id, verificationTests.byUserId))
-        .where(
-          inArray(
-            verificationTests.leakCaseId,
-            caseRows.map((c) => c.id),
-          ),
-        )
-        .orderBy(asc(verificationTests.testedOn), asc(verificationTests.createdAt))
-    : [];
+  const { eventRows, caseRows, testRows } = await repo.ledgerRows(db, unit.id);
   return {
     unit,
     events: eventRows.map(({ e, ...p }) => ({
@@ -378,19 +356,7 @@ export async function loadLedgerSource(db: Db | Tx, unit: LedgerSourceRows['unit
 /** The refrigerant record of a unit the user may read (404 otherwise, as the Unit file). */
 export async function refrigerantRecord(db: Db, user: SessionUser, unitId: string, now: Date): Promise<RefrigerantRecord> {
   const u = await readableUnit(db, user, unitId);
-  const [[site], [branch], circuitRows] = await Promise.all([
-    db
-      .select({ name: sites.name, address: sites.address, city: sites.city, region: sites.region, customerName: customers.name })
-      .from(sites)
-      .innerJoin(customers, eq(customers.id, sites.customerId))
-      .where(eq(sites.id, u.siteId)),
-    db.select({ id: branches.id, name: branches.name, timeZone: branches.timeZone }).from(branches).where(eq(branches.id, u.branchId)),
-    db
-      .select({ number: circuits.number, chargeLb: circuits.chargeLb })
-      .from(circuits)
-      .where(and(eq(circuits.unitId, u.id)))
-      .orderBy(asc(circuits.number)),
-  ]);
+  const [[site], [branch], circuitRows] = await repo.recordHeaderRows(db, u);
   const asOf = zonedDate(now, branch!.timeZone);
   const ledger = buildLedger(await loadLedgerSource(db, u), asOf);
   const r = ledger.result;

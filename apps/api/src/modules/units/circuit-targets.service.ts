@@ -1,13 +1,12 @@
-import { and, eq } from 'drizzle-orm';
 import { convertTemperatureDifference } from '@coilpath/calc';
 import type { CircuitTargetsResult, CircuitTargetsValues, SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { branches, circuits } from '../../db/schema';
 import { notFound } from '../../lib/errors';
-import { circuitTargetsDto } from '../visits/dto';
+import { circuitTargetsDto } from '../visits/visits.present';
 import { STORED_UNITS } from '../visits/reading-calc';
 import { actAs } from '../events/actor';
 import { getUnit } from './units.service';
+import * as repo from './units.repo';
 
 /**
  * Sets (or clears, with blank ranges) a circuit's target superheat and subcooling ranges. The body states
@@ -27,18 +26,14 @@ export async function setCircuitTargets(
     const unit = await getUnit(tx, user, unitId);
     const circuit = unit.circuits.find((c) => c.number === number);
     if (!circuit) throw notFound('circuit');
-    const [row] = await tx
-      .update(circuits)
-      .set({
-        targetSuperheatMinF: toF(input.superheatMin),
-        targetSuperheatMaxF: toF(input.superheatMax),
-        targetSubcoolingMinF: toF(input.subcoolingMin),
-        targetSubcoolingMaxF: toF(input.subcoolingMax),
-        targetSource: input.source,
-      })
-      .where(and(eq(circuits.id, circuit.id), eq(circuits.unitId, unitId)))
-      .returning();
-    const [branch] = await tx.select({ unitSystem: branches.unitSystem }).from(branches).where(eq(branches.id, unit.branchId));
+    const row = await repo.updateUnitCircuit(tx, unitId, circuit.id, {
+      targetSuperheatMinF: toF(input.superheatMin),
+      targetSuperheatMaxF: toF(input.superheatMax),
+      targetSubcoolingMinF: toF(input.subcoolingMin),
+      targetSubcoolingMaxF: toF(input.subcoolingMax),
+      targetSource: input.source,
+    });
+    const branch = await repo.branchUnitSystem(tx, unit.branchId);
     return { unitId, circuit: number, targets: circuitTargetsDto(row!, branch!.unitSystem) };
   });
 }

@@ -1,5 +1,4 @@
 import Papa from 'papaparse';
-import { eq, inArray } from 'drizzle-orm';
 import { refrigerantIds, type RefrigerantId } from '@coilpath/calc';
 import {
   applianceCategories,
@@ -19,7 +18,7 @@ import {
   type UnitKind,
 } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { circuits, sites, units } from '../../db/schema';
+import * as repo from './units.repo';
 import { badRequest, conflict, HttpError } from '../../lib/errors';
 import { getSite } from '../sites/sites.service';
 import { importText } from '../../lib/text-file';
@@ -223,11 +222,7 @@ async function existingSerials(db: AppContext['db'], candidates: ImportedUnit[])
   const found = new Map<string, { tag: string; siteName: string }>();
   const serials = [...new Set(candidates.map((u) => u.serial))];
   for (let i = 0; i < serials.length; i += 1000) {
-    const rows = await db
-      .select({ make: units.make, serial: units.serial, tag: units.tag, siteName: sites.name })
-      .from(units)
-      .innerJoin(sites, eq(sites.id, units.siteId))
-      .where(inArray(units.serial, serials.slice(i, i + 1000)));
+    const rows = await repo.unitsBySerials(db, serials.slice(i, i + 1000));
     for (const r of rows) found.set(`${squash(r.make)}|${r.serial.toLowerCase()}`, { tag: r.tag, siteName: r.siteName });
   }
   return found;
@@ -285,31 +280,29 @@ export async function importUnits(ctx: AppContext, user: SessionUser, input: Uni
       await actAs(tx, user.id);
       for (let i = 0; i < good.length; i += 500) {
         const batch = good.slice(i, i + 500);
-        const ids = await tx
-          .insert(units)
-          .values(
-            batch.map((u) => ({
-              branchId: site.branchId,
-              siteId: site.id,
-              tag: u.tag,
-              kind: u.kind,
-              make: u.make,
-              model: u.model,
-              serial: u.serial,
-              installDate: u.installDate,
-              warrantyEnd: u.warrantyEnd,
-              refrigerant: u.refrigerant,
-              fullChargeLb: u.fullChargeLb,
-              applianceCategory: u.applianceCategory,
-              tonnage: u.tonnage,
-              notes: u.notes,
-            })),
-          )
-          .returning({ id: units.id });
+        const ids = await repo.insertUnits(
+          tx,
+          batch.map((u) => ({
+            branchId: site.branchId,
+            siteId: site.id,
+            tag: u.tag,
+            kind: u.kind,
+            make: u.make,
+            model: u.model,
+            serial: u.serial,
+            installDate: u.installDate,
+            warrantyEnd: u.warrantyEnd,
+            refrigerant: u.refrigerant,
+            fullChargeLb: u.fullChargeLb,
+            applianceCategory: u.applianceCategory,
+            tonnage: u.tonnage,
+            notes: u.notes,
+          })),
+        );
         const cs = batch.flatMap((u, j) =>
           Array.from({ length: u.circuits }, (_, k) => ({ unitId: ids[j]!.id, number: k + 1, compressorCount: u.compressorsPerCircuit })),
         );
-        for (let k = 0; k < cs.length; k += 2000) await tx.insert(circuits).values(cs.slice(k, k + 2000));
+        for (let k = 0; k < cs.length; k += 2000) await repo.insertCircuits(tx, cs.slice(k, k + 2000));
       }
     });
   } catch (e) {

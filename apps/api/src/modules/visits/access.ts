@@ -10,22 +10,15 @@
  * - A technician reads the history of a unit only when it is on one of their assignments (a visit
  *   assigned to them whose work order names the unit, or names no unit at the unit's site); else 404.
  */
-import { and, eq, exists, isNull, or, sql } from 'drizzle-orm';
-import type { AnyPgColumn } from 'drizzle-orm/pg-core';
 import type { SessionUser } from '@coilpath/contract';
 import { recordingRefusal } from '@coilpath/contract';
 import type { Tx } from '../../db/client';
-import { units, visits, workOrders } from '../../db/schema';
 import { conflict, notFound } from '../../lib/errors';
 import { enforce, unitMayRead, visitMayRead, visitMayRecordWork } from '../../auth/policy';
 
-export type VisitRow = typeof visits.$inferSelect;
+import { unitWithAssignment, type UnitRow, type VisitRow } from './visits.repo';
 
-export async function loadVisit(db: Tx, id: string, opts: { lock?: boolean } = {}): Promise<VisitRow | undefined> {
-  const q = db.select().from(visits).where(eq(visits.id, id)).limit(1);
-  const [v] = opts.lock ? await q.for('update') : await q;
-  return v;
-}
+export { loadVisit, unitOnAssignments, type UnitRow, type VisitRow } from './visits.repo';
 
 /** Throws 404 when the signed-in person may not see the visit. */
 export function assertVisitReadable(user: SessionUser, v: VisitRow | undefined): asserts v is VisitRow {
@@ -56,34 +49,12 @@ export function visitStatus(v: Pick<VisitRow, 'enRouteAt' | 'onSiteAt' | 'closed
   return 'booked';
 }
 
-/** SQL condition: the unit (by id and site) is on one of the technician's assignments. */
-export function unitOnAssignments(db: Tx, techId: string, unitId: string | AnyPgColumn, siteId: string | AnyPgColumn) {
-  return exists(
-    db
-      .select({ one: sql`1` })
-      .from(visits)
-      .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-      .where(
-        and(eq(visits.techId, techId), or(eq(workOrders.unitId, unitId), and(isNull(workOrders.unitId), eq(workOrders.siteId, siteId)))),
-      ),
-  );
-}
-
-export type UnitRow = typeof units.$inferSelect;
-
 /**
  * Loads a unit the signed-in person may read, else 404: office roles within their branch scope,
  * technicians only for units on their assignments.
  */
 export async function loadReadableUnit(db: Tx, user: SessionUser, unitId: string): Promise<UnitRow> {
-  const [row] = await db
-    .select({
-      unit: units,
-      assigned: user.role === 'technician' ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}` : sql<boolean>`true`,
-    })
-    .from(units)
-    .where(eq(units.id, unitId))
-    .limit(1);
+  const row = await unitWithAssignment(db, user.role === 'technician' ? user.id : null, unitId);
   if (!row) throw notFound('unit');
   enforce(unitMayRead(user, row.unit, row.assigned));
   return row.unit;

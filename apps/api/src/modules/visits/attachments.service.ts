@@ -1,13 +1,11 @@
-import { eq } from 'drizzle-orm';
 import { fileTypeFromBuffer } from 'file-type';
 import { attachmentContentTypes, type AttachmentDto, type AttachmentKind, type SessionUser } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import { attachments, units, visits, workOrders } from '../../db/schema';
 import { badRequest, conflict, HttpError, notFound } from '../../lib/errors';
 import { readStoredFile } from '../../storage/storage';
 import { assertVisitReadable, assertVisitWritable, loadReadableUnit, loadVisit } from './access';
-import { attachmentDto } from './dto';
-import { unitsOfWorkOrder } from './visits.service';
+import { attachmentDto } from './visits.present';
+import * as repo from './visits.repo';
 import { actAs } from '../events/actor';
 
 /** A client's file name made safe to show: no path, no control characters, at most 120 characters. */
@@ -42,7 +40,7 @@ export async function addAttachment(
   assertVisitWritable(user, v);
   if (fields.id) {
     // A client-made id seen before answers the stored attachment (a retried upload), never a second copy.
-    const [existing] = await ctx.db.select().from(attachments).where(eq(attachments.id, fields.id)).limit(1);
+    const existing = await repo.findAttachment(ctx.db, fields.id);
     if (existing) {
       if (existing.visitId !== visitId) throw conflict('id_taken', 'That attachment id belongs to another visit.');
       return attachmentDto(existing);
@@ -59,11 +57,8 @@ export async function addAttachment(
       `Only photos (JPEG, PNG, WebP, HEIC) and PDF files can be attached; this file is ${detected ? `${detected.mime}` : 'not one of them'} by its content.`,
     );
   }
-  const [wo] = await ctx.db
-    .select({ unitId: workOrders.unitId, siteId: workOrders.siteId })
-    .from(workOrders)
-    .where(eq(workOrders.id, v.workOrderId));
-  const us = await unitsOfWorkOrder(ctx.db, wo!);
+  const wo = await repo.workOrderPlace(ctx.db, v.workOrderId);
+  const us = await repo.unitsOfWorkOrder(ctx.db, wo!);
   let unitId = fields.unitId ?? null;
   if (unitId && !us.some((u) => u.id === unitId)) {
     throw badRequest('That unit is not on this visit.', { fields: [{ path: 'unitId', message: 'Not a unit of this visit' }] });
@@ -75,22 +70,17 @@ export async function addAttachment(
   try {
     const row = await ctx.db.transaction(async (tx) => {
       await actAs(tx, user.id);
-      const [a] = await tx
-        .insert(attachments)
-        .values({
-          ...(fields.id ? { id: fields.id } : {}),
-          visitId,
-          unitId,
-          kind,
-          storageKey,
-          displayName: cleanDisplayName(file.originalname, kind === 'document' ? 'document.pdf' : 'photo'),
-          contentType: detected.mime,
-          sizeBytes: file.size,
-          uploadedById: user.id,
-        })
-        .returning();
-      if (kind === 'nameplate' && unitId) await tx.update(units).set({ nameplateAttachmentId: a!.id }).where(eq(units.id, unitId));
-      return a!;
+      return repo.insertAttachment(tx, {
+        ...(fields.id ? { id: fields.id } : {}),
+        visitId,
+        unitId,
+        kind,
+        storageKey,
+        displayName: cleanDisplayName(file.originalname, kind === 'document' ? 'document.pdf' : 'photo'),
+        contentType: detected.mime,
+        sizeBytes: file.size,
+        uploadedById: user.id,
+      });
     });
     return attachmentDto(row);
   } catch (err) {
@@ -101,11 +91,11 @@ export async function addAttachment(
 
 /** An attachment the signed-in person may see: through its visit, else through its unit. */
 export async function readAttachment(ctx: AppContext, user: SessionUser, id: string) {
-  const [a] = await ctx.db.select().from(attachments).where(eq(attachments.id, id)).limit(1);
+  const a = await repo.findAttachment(ctx.db, id);
   if (!a) throw notFound('attachment');
   let ok = false;
   if (a.visitId) {
-    const [v] = await ctx.db.select().from(visits).where(eq(visits.id, a.visitId)).limit(1);
+    const v = await repo.loadVisit(ctx.db, a.visitId);
     try {
       assertVisitReadable(user, v);
       ok = true;

@@ -3,33 +3,16 @@
  * readings per circuit, the open leak case, refrigerant added this year against full charge, repeat
  * alarms, photos. One query per section, run side by side.
  */
-import { and, asc, desc, eq, gte, inArray, isNotNull, isNull, or, sql, sum } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { readingUnitsBySystem, type SessionUser, type UnitBriefing } from '@coilpath/contract';
 import type { AppContext } from '../../context';
-import {
-  alarms,
-  attachments,
-  branches,
-  circuits,
-  findings,
-  leakCases,
-  readings,
-  refrigerantEvents,
-  sites,
-  units,
-  users,
-  visits,
-  workOrders,
-} from '../../db/schema';
 import { notFound } from '../../lib/errors';
 import { enforce, unitMayRead } from '../../auth/policy';
 import { prepareJson, type PreparedJson } from '../../lib/prepared-json';
 import type { RevisionCache } from '../../lib/revision-cache';
-import { unitOnAssignments } from './access';
-import { attachmentDto, circuitTargetsDto, findingDto, leakCaseDto, readingDto } from './dto';
-import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
+import * as repo from './briefing.repo';
+import { attachmentDto, circuitDto, findingDto, leakCaseDto, readingDto, unitSummaryDto } from './visits.present';
 
 const PHOTO_LIMIT = 8;
 
@@ -55,17 +38,7 @@ export async function unitBriefing(
   cache?: RevisionCache,
 ): Promise<UnitBriefing | PreparedJson> {
   const db = ctx.db;
-  const [row] = await db
-    .select({
-      siteId: units.siteId,
-      branchId: units.branchId,
-      timeZone: branches.timeZone,
-      assigned: user.role === 'technician' ? sql<boolean>`${unitOnAssignments(db, user.id, units.id, units.siteId)}` : sql<boolean>`true`,
-    })
-    .from(units)
-    .innerJoin(branches, eq(branches.id, units.branchId))
-    .where(eq(units.id, unitId))
-    .limit(1);
+  const row = await repo.briefingAccess(db, user.role === 'technician' ? user.id : null, unitId);
   if (!row) throw notFound('unit');
   enforce(unitMayRead(user, row, row.assigned));
   if (!cache) {
@@ -92,20 +65,7 @@ export async function unitBriefing(
 /** The briefing as the database holds it now, and until when its repeat alarms stand (null: no such unit). */
 async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answer: UnitBriefing; validUntil: number } | null> {
   const db = ctx.db;
-  const [row] = await db
-    .select({
-      unit: units,
-      siteName: sites.name,
-      timeZone: branches.timeZone,
-      repeatAlarmCount: branches.repeatAlarmCount,
-      repeatAlarmDays: branches.repeatAlarmDays,
-      unitSystem: branches.unitSystem,
-    })
-    .from(units)
-    .innerJoin(sites, eq(sites.id, units.siteId))
-    .innerJoin(branches, eq(branches.id, units.branchId))
-    .where(eq(units.id, unitId))
-    .limit(1);
+  const row = await repo.briefingUnit(db, unitId);
   if (!row) return null;
   const u = row.unit;
   const now = ctx.clock.now();
@@ -113,73 +73,13 @@ async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answe
   const windowMs = row.repeatAlarmDays * 86_400_000;
   const alarmSince = new Date(now.getTime() - windowMs);
 
-  const latest = db
-    .select()
-    .from(readings)
-    .where(eq(readings.circuitId, circuits.id))
-    .orderBy(desc(readings.takenAt))
-    .limit(1)
-    .as('latest');
-  const lastVisitColumns = { visit: visits, techName: users.name, kind: workOrders.kind };
-  const [circuitRows, unitVisitRows, siteVisitRows, readingRows, caseRows, refrigerantRows, alarmRows, photoRows] = await Promise.all([
-    db.select().from(circuits).where(eq(circuits.unitId, u.id)).orderBy(asc(circuits.number)),
-    // Visits that touched this unit: its own work orders' (one descent of visits_unit_closed_idx, the unit
-    // being on the visit since migration 0021), or site-wide ones' at its site (few).
-    db
-      .select(lastVisitColumns)
-      .from(visits)
-      .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-      .innerJoin(users, eq(users.id, visits.techId))
-      .where(and(eq(visits.unitId, u.id), isNotNull(visits.closedAt)))
-      .orderBy(desc(visits.closedAt))
-      .limit(1),
-    db
-      .select(lastVisitColumns)
-      .from(visits)
-      .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-      .innerJoin(users, eq(users.id, visits.techId))
-      .where(and(isNull(workOrders.unitId), eq(workOrders.siteId, u.siteId), isNotNull(visits.closedAt)))
-      .orderBy(desc(visits.closedAt))
-      .limit(1),
-    // Each circuit's latest reading: one descent of the (circuit, taken) index, instead of reading every
-    // reading the unit ever had (scattered over many pages). A circuit's readings are its unit's.
-    db
-      .select()
-      .from(circuits)
-      .innerJoinLateral(latest, sql`true`)
-      .where(eq(circuits.unitId, u.id)),
-    db
-      .select()
-      .from(leakCases)
-      .where(and(eq(leakCases.unitId, u.id), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
-      .orderBy(asc(leakCases.repairDueDate))
-      .limit(1),
-    db
-      .select({
-        added: sum(refrigerantEvents.poundsAdded).mapWith(Number),
-        recovered: sum(refrigerantEvents.poundsRecovered).mapWith(Number),
-      })
-      .from(refrigerantEvents)
-      .where(and(eq(refrigerantEvents.unitId, u.id), gte(refrigerantEvents.date, `${year}-01-01`))),
-    // The window's alarms one by one (a unit has a few a month): counted here, and the earliest tells how long
-    // the count stands.
-    db
-      .select({ code: alarms.code, circuit: alarms.circuit, raisedAt: alarms.raisedAt })
-      .from(alarms)
-      .where(and(eq(alarms.unitId, u.id), gte(alarms.raisedAt, alarmSince))),
-    db.select().from(attachments).where(eq(attachments.unitId, u.id)).orderBy(desc(attachments.createdAt)).limit(PHOTO_LIMIT),
-  ]);
+  const [circuitRows, unitVisitRows, siteVisitRows, readingRows, caseRows, refrigerantRows, alarmRows, photoRows] =
+    await repo.briefingSections(db, u, year, alarmSince, PHOTO_LIMIT);
 
   const [unitVisit, siteVisit] = [unitVisitRows[0], siteVisitRows[0]];
   const last =
     unitVisit && siteVisit ? (siteVisit.visit.closedAt! > unitVisit.visit.closedAt! ? siteVisit : unitVisit) : (unitVisit ?? siteVisit);
-  const lastFindings = last
-    ? await db
-        .select()
-        .from(findings)
-        .where(and(eq(findings.visitId, last.visit.id), or(eq(findings.unitId, u.id), isNull(findings.unitId))))
-        .orderBy(asc(findings.createdAt))
-    : [];
+  const lastFindings = last ? await repo.findingsOfVisitForUnit(db, last.visit.id, u.id) : [];
 
   const groups = new Map<string, { code: string; circuit: number | null; count: number; last: number }>();
   for (const a of alarmRows) {
@@ -194,25 +94,11 @@ async function computeBriefing(ctx: AppContext, unitId: string): Promise<{ answe
   const added = refrigerantRows[0]?.added ?? 0;
   const answer: UnitBriefing = {
     unit: {
-      id: u.id,
-      tag: u.tag,
-      kind: u.kind,
-      make: u.make,
-      model: u.model,
-      serial: u.serial,
-      refrigerant: u.refrigerant,
-      fullChargeLb: u.fullChargeLb,
-      applianceCategory: u.applianceCategory,
+      ...unitSummaryDto(u),
       siteId: u.siteId,
       siteName: row.siteName,
     },
-    circuits: circuitRows.map((c) => ({
-      id: c.id,
-      number: c.number,
-      compressorCount: c.compressorCount,
-      chargeLb: c.chargeLb,
-      targets: circuitTargetsDto(c, row.unitSystem),
-    })),
+    circuits: circuitRows.map((c) => circuitDto(c, row.unitSystem)),
     lastVisit: last
       ? {
           visitId: last.visit.id,

@@ -1,28 +1,14 @@
-import { and, eq, inArray } from 'drizzle-orm';
 import type { CloseVisitResult, SessionUser, SummaryMailResult, WorkOrderState } from '@coilpath/contract';
 import { closeVisitSchema, leakRepairCloseRefusal, returnNeedLabels, rootCauseChoice, signatureChoiceRefusal } from '@coilpath/contract';
 import { requiredCertificationFor } from '@coilpath/calc';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
-import {
-  branches,
-  customers,
-  findings,
-  leakCases,
-  refrigerantEvents,
-  sites,
-  units,
-  users,
-  visitEvents,
-  visitSignatures,
-  visits,
-  workOrders,
-} from '../../db/schema';
 import { conflict, HttpError } from '../../lib/errors';
 import { enforce, visitMayResendSummary } from '../../auth/policy';
 import { findOpenReturn, joinOpenReturn, leakRepairLatestAt, withOneOpenReturn } from '../work-orders/open-return';
 import { assertVisitReadable, assertVisitWritable, loadVisit } from './access';
-import { OPEN_LEAK_CASE_STATUSES } from './refrigerant.service';
+import * as repo from './closeout.repo';
+import { insertVisitEvent, updateVisit } from './visits.repo';
 import { summaryMail, summaryPdf, summarySections, type SummaryContext } from './summary';
 import { leakRepairOf, visitDetail } from './visits.service';
 import { actAs, changeAs } from '../events/actor';
@@ -48,22 +34,18 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
         throw conflict('not_on_site', 'Mark yourself on site before closing the visit, so its times are right.');
       }
       // The root cause: required among several findings, the only one by default (`rootCauseChoice`).
-      const findingIds = (await tx.select({ id: findings.id }).from(findings).where(eq(findings.visitId, id))).map((f) => f.id);
+      const findingIds = await repo.findingIdsOf(tx, id);
       const rootCause = rootCauseChoice(findingIds, input.rootCauseFindingId);
       if (!rootCause.ok)
         throw new HttpError(422, rootCause.code, rootCause.message, {
           fields: [{ path: 'rootCauseFindingId', message: rootCause.message }],
         });
       // A leak repair closed as resolved with nothing to show for it needs the technician's confirmation.
-      const [woRow] = await tx
-        .select({ id: workOrders.id, leakCaseId: workOrders.leakCaseId })
-        .from(workOrders)
-        .where(eq(workOrders.id, v.workOrderId));
+      const woRow = await repo.workOrderLeakCase(tx, v.workOrderId);
       const unverified = leakRepairCloseRefusal({
         leakRepair: await leakRepairOf(tx, woRow!),
         outcome: input.outcome,
-        refrigerantEntries: (await tx.select({ id: refrigerantEvents.id }).from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id)))
-          .length,
+        refrigerantEntries: await repo.refrigerantEntryCount(tx, id),
         confirmed: input.confirmedWithoutVerification,
       });
       if (unverified)
@@ -76,23 +58,21 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
         throw new HttpError(422, unsigned.code, unsigned.message, { fields: [{ path: 'signature', message: unsigned.message }] });
       const signaturePng = input.signature?.kind === 'signed' ? decodeSignaturePng(input.signature.imagePng) : null;
       const now = ctx.clock.now();
-      await tx
-        .update(visits)
-        .set({
-          closedAt: now,
-          outcome: input.outcome,
-          rootCauseFindingId: rootCause.findingId,
-          notesAudience: input.notes !== undefined ? input.notesAudience : v.notesAudience,
-          returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
-          returnNotes: input.outcome === 'needs_return' ? (input.returnNotes ?? null) : null,
-          notes: input.notes ?? v.notes,
-          labourMinutes: input.labourMinutes ?? null,
-          version: v.version + 1,
-          updatedAt: now,
-        })
-        .where(eq(visits.id, id));
-      await tx.insert(visitEvents).values({ visitId: id, state: 'closed', at: now, byUserId: user.id });
-      await tx.insert(visitSignatures).values(
+      await updateVisit(tx, id, {
+        closedAt: now,
+        outcome: input.outcome,
+        rootCauseFindingId: rootCause.findingId,
+        notesAudience: input.notes !== undefined ? input.notesAudience : v.notesAudience,
+        returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
+        returnNotes: input.outcome === 'needs_return' ? (input.returnNotes ?? null) : null,
+        notes: input.notes ?? v.notes,
+        labourMinutes: input.labourMinutes ?? null,
+        version: v.version + 1,
+        updatedAt: now,
+      });
+      await insertVisitEvent(tx, { visitId: id, state: 'closed', at: now, byUserId: user.id });
+      await repo.insertSignature(
+        tx,
         input.signature?.kind === 'signed'
           ? {
               visitId: id,
@@ -103,33 +83,17 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
             }
           : { visitId: id, recordedAt: now },
       );
-      const [wo] = await tx
-        .update(workOrders)
-        .set({
-          state: 'closed',
-          outcome: input.outcome,
-          closedAt: now,
-          updatedAt: now,
-          returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
-        })
-        .where(eq(workOrders.id, v.workOrderId))
-        .returning();
+      const wo = await repo.updateWorkOrder(tx, v.workOrderId, {
+        state: 'closed',
+        outcome: input.outcome,
+        closedAt: now,
+        updatedAt: now,
+        returnNeeds: input.outcome === 'needs_return' ? input.returnNeeds : [],
+      });
       if (input.outcome !== 'needs_return') return null;
 
-      const [unit] = wo!.unitId
-        ? await tx
-            .select({ fullChargeLb: units.fullChargeLb, timeZone: branches.timeZone })
-            .from(units)
-            .innerJoin(branches, eq(branches.id, units.branchId))
-            .where(eq(units.id, wo!.unitId))
-        : [];
-      const [openCase] = wo!.unitId
-        ? await tx
-            .select({ id: leakCases.id, status: leakCases.status, repairDueDate: leakCases.repairDueDate })
-            .from(leakCases)
-            .where(and(eq(leakCases.unitId, wo!.unitId), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
-            .limit(1)
-        : [];
+      const unit = wo!.unitId ? await repo.unitChargeAndZone(tx, wo!.unitId) : undefined;
+      const openCase = wo!.unitId ? await repo.standingLeakCaseOf(tx, wo!.unitId) : undefined;
       // A case still waiting for its repair makes this return its repair visit: its deadline is the latest booking.
       const repairCase = openCase?.status === 'open' && unit ? openCase : undefined;
       const latestAt = repairCase ? leakRepairLatestAt(repairCase.repairDueDate, unit!.timeZone) : null;
@@ -159,30 +123,27 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
         );
         ret = { id: open.id, number: open.number, state: open.state, joined: true };
       } else {
-        const [created] = await tx
-          .insert(workOrders)
-          .values({
-            branchId: wo!.branchId,
-            siteId: wo!.siteId,
-            unitId: wo!.unitId,
-            kind: 'return_visit',
-            state: 'unplaced',
-            priority: wo!.priority,
-            complaint,
-            originWorkOrderId: wo!.id,
-            requiredSkill: wo!.requiredSkill,
-            requiredCertification,
-            estimatedMinutes: wo!.estimatedMinutes,
-            returnNeeds: input.returnNeeds,
-            leakCaseId,
-            latestAt,
-            createdById: user.id,
-          })
-          .returning({ id: workOrders.id, number: workOrders.number, state: workOrders.state });
+        const created = await repo.insertWorkOrder(tx, {
+          branchId: wo!.branchId,
+          siteId: wo!.siteId,
+          unitId: wo!.unitId,
+          kind: 'return_visit',
+          state: 'unplaced',
+          priority: wo!.priority,
+          complaint,
+          originWorkOrderId: wo!.id,
+          requiredSkill: wo!.requiredSkill,
+          requiredCertification,
+          estimatedMinutes: wo!.estimatedMinutes,
+          returnNeeds: input.returnNeeds,
+          leakCaseId,
+          latestAt,
+          createdById: user.id,
+        });
         ret = { ...created!, joined: false };
       }
       if (repairCase) {
-        await tx.update(leakCases).set({ repairWorkOrderId: ret.id, updatedAt: now }).where(eq(leakCases.id, repairCase.id));
+        await repo.setRepairWorkOrder(tx, repairCase.id, ret.id, now);
       }
       return ret;
     }),
@@ -194,41 +155,15 @@ export async function closeVisit(ctx: AppContext, user: SessionUser, id: string,
 
 /** Where a visit's summary goes: the site's contact, else the customer's. */
 async function summaryAddress(ctx: AppContext, visitId: string): Promise<string | null> {
-  const [row] = await ctx.db
-    .select({ site: sites.contactEmail, customer: customers.contactEmail })
-    .from(visits)
-    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-    .innerJoin(sites, eq(sites.id, workOrders.siteId))
-    .innerJoin(customers, eq(customers.id, sites.customerId))
-    .where(eq(visits.id, visitId))
-    .limit(1);
+  const row = await repo.summaryAddresses(ctx.db, visitId);
   return row?.site?.trim() || row?.customer?.trim() || null;
 }
 
 /** Who the summary speaks for (the branch's contractor details, the technician) and the units' open leak cases. */
 async function summaryContext(ctx: AppContext, visitId: string, unitIds: string[]): Promise<SummaryContext> {
-  const [row] = await ctx.db
-    .select({ branch: branches, techName: users.name, epa608Number: users.epa608Number })
-    .from(visits)
-    .innerJoin(branches, eq(branches.id, visits.branchId))
-    .innerJoin(users, eq(users.id, visits.techId))
-    .where(eq(visits.id, visitId))
-    .limit(1);
+  const row = await repo.summarySpeaker(ctx.db, visitId);
   const b = row!.branch;
-  const cases = unitIds.length
-    ? await ctx.db
-        .select({
-          unitTag: units.tag,
-          openedOn: leakCases.openedOn,
-          leakRatePercent: leakCases.leakRatePercent,
-          thresholdPercent: leakCases.thresholdPercent,
-          repairDueDate: leakCases.repairDueDate,
-        })
-        .from(leakCases)
-        .innerJoin(units, eq(units.id, leakCases.unitId))
-        .where(and(inArray(leakCases.unitId, unitIds), eq(leakCases.status, 'open')))
-        .orderBy(leakCases.repairDueDate)
-    : [];
+  const cases = unitIds.length ? await repo.openLeakCasesOf(ctx.db, unitIds) : [];
   return {
     contractor: {
       tradingName: b.tradingName,
@@ -272,7 +207,7 @@ export async function sendSummary(ctx: AppContext, user: SessionUser, visitId: s
       ],
     });
     // The "sent" mark is the sender's change: the live screens name them, as for every change a person makes.
-    await changeAs(ctx.db, user.id, (tx) => tx.update(visits).set({ summarySentAt: ctx.clock.now() }).where(eq(visits.id, visitId)));
+    await changeAs(ctx.db, user.id, (tx) => updateVisit(tx, visitId, { summarySentAt: ctx.clock.now() }));
     return { sent: true, to, error: null };
   } catch (err) {
     ctx.logger?.error({ err, visitId }, 'service summary mail failed');

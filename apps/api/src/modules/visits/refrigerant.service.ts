@@ -1,4 +1,3 @@
-import { and, asc, eq, gt, inArray } from 'drizzle-orm';
 import { TZDate } from '@date-fns/tz';
 import { format } from 'date-fns';
 import { leakRepairObligation, listRefrigerants } from '@coilpath/calc';
@@ -7,18 +6,16 @@ import { andList, refrigerantEventInputSchema } from '@coilpath/contract';
 import type { z } from 'zod';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
-import { branches, circuits, leakCases, refrigerantEvents, units } from '../../db/schema';
 import { badRequest, conflict, notFound } from '../../lib/errors';
 import { enforce, mayRecordRefrigerant } from '../../auth/policy';
 import { assertVisitRecordable, loadReadableUnit, loadVisit, type UnitRow } from './access';
-import { leakCaseDto, refrigerantEventDto } from './dto';
-import { unitsOfWorkOrder } from './visits.service';
+import { leakCaseDto, refrigerantEventDto } from './visits.present';
+import * as repo from './visits.repo';
 import { additionOf } from '../unit-file/refrigerant-record';
-import { workOrders } from '../../db/schema';
 import { actAs } from '../events/actor';
 
 /** Leak cases in these states still stand: a new case is not opened beside one. */
-export const OPEN_LEAK_CASE_STATUSES = ['open', 'retrofit_planned', 'retire_planned'] as const;
+export { OPEN_LEAK_CASE_STATUSES } from './visits.repo';
 
 /** The leak-rate method Coilpath applies (40 CFR 82.152 allows annualizing or rolling average, one per facility). */
 const METHOD = 'annualizing' as const;
@@ -27,11 +24,7 @@ type Input = z.output<typeof refrigerantEventInputSchema>;
 
 /** The unit's leak rate and repair obligation as of a date, over every addition on record (exempt ones not counted). */
 async function leakCheck(tx: Tx, unit: UnitRow, asOf: string): Promise<LeakCheckDto | null> {
-  const rows = await tx
-    .select({ date: refrigerantEvents.date, poundsAdded: refrigerantEvents.poundsAdded, reason: refrigerantEvents.reason })
-    .from(refrigerantEvents)
-    .where(and(eq(refrigerantEvents.unitId, unit.id), gt(refrigerantEvents.poundsAdded, 0)))
-    .orderBy(asc(refrigerantEvents.date));
+  const rows = await repo.unitAdditions(tx, unit.id);
   // Counted and exempt additions as the unit's refrigerant record has them (one mapping for both).
   const additions = rows.map((r) => additionOf(r)).filter((a) => a !== null);
   try {
@@ -79,17 +72,13 @@ export async function recordRefrigerantEvent(
   return ctx.db.transaction(async (tx) => {
     await actAs(tx, user.id);
     // One writer per unit at a time, so two saves cannot open two leak cases.
-    await tx.select({ id: units.id }).from(units).where(eq(units.id, unit.id)).for('update');
+    await repo.lockUnit(tx, unit.id);
 
     if (input.id) {
-      const [existing] = await tx.select().from(refrigerantEvents).where(eq(refrigerantEvents.id, input.id)).limit(1);
+      const existing = await repo.findRefrigerantEvent(tx, input.id);
       if (existing) {
         if (existing.unitId !== unit.id) throw conflict('id_taken', 'That refrigerant entry id belongs to another unit.');
-        const [open] = await tx
-          .select()
-          .from(leakCases)
-          .where(and(eq(leakCases.unitId, unit.id), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
-          .limit(1);
+        const open = await repo.standingLeakCase(tx, unit.id);
         return {
           event: refrigerantEventDto(existing),
           leakCheck: await leakCheck(tx, unit, existing.date),
@@ -103,11 +92,8 @@ export async function recordRefrigerantEvent(
     if (input.visitId) {
       const v = await loadVisit(tx, input.visitId, { lock: true });
       assertVisitRecordable(user, v);
-      const [wo] = await tx
-        .select({ unitId: workOrders.unitId, siteId: workOrders.siteId })
-        .from(workOrders)
-        .where(eq(workOrders.id, v.workOrderId));
-      const us = await unitsOfWorkOrder(tx, wo!);
+      const wo = await repo.workOrderPlace(tx, v.workOrderId);
+      const us = await repo.unitsOfWorkOrder(tx, wo!);
       if (!us.some((u) => u.id === unit.id)) {
         throw badRequest('That unit is not on this visit.', {
           fields: [{ path: 'visitId', message: 'The visit does not cover this unit' }],
@@ -116,9 +102,7 @@ export async function recordRefrigerantEvent(
     }
 
     if (input.circuit != null) {
-      const numbers = (
-        await tx.select({ number: circuits.number }).from(circuits).where(eq(circuits.unitId, unit.id)).orderBy(asc(circuits.number))
-      ).map((c) => c.number);
+      const numbers = await repo.circuitNumbersOf(tx, unit.id);
       if (!numbers.includes(input.circuit)) {
         const has =
           numbers.length === 0
@@ -132,7 +116,7 @@ export async function recordRefrigerantEvent(
       }
     }
 
-    const [branch] = await tx.select({ timeZone: branches.timeZone }).from(branches).where(eq(branches.id, unit.branchId));
+    const branch = await repo.branchTimeZone(tx, unit.branchId);
     if (!branch) throw notFound('branch');
     const today = format(new TZDate(ctx.clock.now().getTime(), branch.timeZone), 'yyyy-MM-dd');
     const date = input.date ?? today;
@@ -140,46 +124,36 @@ export async function recordRefrigerantEvent(
       throw badRequest('The date is in the future.', { fields: [{ path: 'date', message: 'Use today or an earlier date' }] });
     }
 
-    const [event] = await tx
-      .insert(refrigerantEvents)
-      .values({
-        ...(input.id ? { id: input.id } : {}),
-        unitId: unit.id,
-        visitId: input.visitId ?? null,
-        date,
-        refrigerant: input.refrigerant,
-        poundsAdded: input.poundsAdded,
-        poundsRecovered: input.poundsRecovered,
-        reason: input.reason,
-        circuit: input.circuit ?? null,
-        cylinderLot: input.cylinderLot ?? null,
-        techId: user.id,
-      })
-      .returning();
+    const event = await repo.insertRefrigerantEvent(tx, {
+      ...(input.id ? { id: input.id } : {}),
+      unitId: unit.id,
+      visitId: input.visitId ?? null,
+      date,
+      refrigerant: input.refrigerant,
+      poundsAdded: input.poundsAdded,
+      poundsRecovered: input.poundsRecovered,
+      reason: input.reason,
+      circuit: input.circuit ?? null,
+      cylinderLot: input.cylinderLot ?? null,
+      techId: user.id,
+    });
 
     const check = input.poundsAdded > 0 ? await leakCheck(tx, unit, date) : null;
-    const [open] = await tx
-      .select()
-      .from(leakCases)
-      .where(and(eq(leakCases.unitId, unit.id), inArray(leakCases.status, [...OPEN_LEAK_CASE_STATUSES])))
-      .limit(1);
+    const open = await repo.standingLeakCase(tx, unit.id);
     if (check?.exceeds && check.rule && check.thresholdPercent !== null && check.repairDueDate && !open) {
-      const [created] = await tx
-        .insert(leakCases)
-        .values({
-          branchId: unit.branchId,
-          unitId: unit.id,
-          triggeringEventId: event!.id,
-          openedOn: date,
-          rule: check.rule,
-          method: check.method,
-          thresholdPercent: check.thresholdPercent,
-          leakRatePercent: check.leakRatePercent,
-          repairDueDate: check.repairDueDate,
-          chronic: check.chronic,
-          status: 'open',
-        })
-        .returning();
+      const created = await repo.insertLeakCase(tx, {
+        branchId: unit.branchId,
+        unitId: unit.id,
+        triggeringEventId: event!.id,
+        openedOn: date,
+        rule: check.rule,
+        method: check.method,
+        thresholdPercent: check.thresholdPercent,
+        leakRatePercent: check.leakRatePercent,
+        repairDueDate: check.repairDueDate,
+        chronic: check.chronic,
+        status: 'open',
+      });
       return { event: refrigerantEventDto(event!), leakCheck: check, leakCase: leakCaseDto(created!), leakCaseOpened: true, created: true };
     }
     return {

@@ -3,11 +3,10 @@
  * decoded in full here — a general-purpose PNG decoder (pngjs) reads every chunk and checks every CRC — so
  * nothing but a whole PNG of a bounded size is stored or drawn into the customer's PDF.
  */
-import { eq } from 'drizzle-orm';
 import { PNG } from 'pngjs';
 import { signatureMaxBytes, type VisitSignatureDto } from '@coilpath/contract';
 import type { Tx } from '../../db/client';
-import { visitSignatures } from '../../db/schema';
+import { signatureRow } from './visits.repo';
 import { HttpError } from '../../lib/errors';
 
 /** Largest canvas a signature may come from, in pixels: a phone at 3× density gives about 1,200 × 500. */
@@ -57,22 +56,11 @@ export function signedAtOf(claimed: string | undefined, onSiteAt: Date | null, n
 
 /** A visit's sign-off as the API answers it (without the image: that is at `imageUrl`). */
 export async function visitSignatureDto(db: Tx, visitId: string): Promise<VisitSignatureDto | null> {
-  const [row] = await db
-    .select({ signerName: visitSignatures.signerName, signedAt: visitSignatures.signedAt, recordedAt: visitSignatures.recordedAt })
-    .from(visitSignatures)
-    .where(eq(visitSignatures.visitId, visitId))
-    .limit(1);
+  const row = await signatureRow(db, visitId);
   if (!row) return null;
   if (row.signerName === null || row.signedAt === null) return { kind: 'customer_not_available', recordedAt: row.recordedAt.toISOString() };
   return { kind: 'signed', signerName: row.signerName, signedAt: row.signedAt.toISOString(), imageUrl: `/api/visits/${visitId}/signature` };
 }
 
 /** The signature image of a visit, or null (not signed). */
-export async function signatureImage(db: Tx, visitId: string): Promise<Buffer | null> {
-  const [row] = await db
-    .select({ imagePng: visitSignatures.imagePng })
-    .from(visitSignatures)
-    .where(eq(visitSignatures.visitId, visitId))
-    .limit(1);
-  return row?.imagePng ?? null;
-}
+export { signatureImage } from './visits.repo';

@@ -1,4 +1,3 @@
-import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type {
   CurrentVisitResult,
   FindingDto,
@@ -14,72 +13,29 @@ import type {
 import { recordingRefusal } from '@coilpath/contract';
 import type { AppContext } from '../../context';
 import type { Tx } from '../../db/client';
-import {
-  attachments,
-  bookings,
-  branches,
-  circuits,
-  findings,
-  leakCases,
-  readings,
-  refrigerantEvents,
-  sites,
-  units,
-  users,
-  visitEvents,
-  visits,
-  workOrders,
-} from '../../db/schema';
 import { badRequest, conflict } from '../../lib/errors';
 import { modelAlertRef } from '@coilpath/contract';
 import { assertVisitReadable, assertVisitRecordable, assertVisitWritable, loadVisit, visitStatus, type VisitRow } from './access';
-import { attachmentDto, circuitTargetsDto, findingDto, readingDto, refrigerantEventDto } from './dto';
+import { attachmentDto, circuitDto, findingDto, unitSummaryDto, readingDto, refrigerantEventDto } from './visits.present';
 import { computeReading, toStoredUnits } from './reading-calc';
 import { actAs } from '../events/actor';
 import { visitSignatureDto } from './signature';
+import * as repo from './visits.repo';
 
 /** The units a visit covers: the work order's unit, or every active unit at the site when it names none. */
-export async function unitsOfWorkOrder(db: Tx, wo: { unitId: string | null; siteId: string }) {
-  return db
-    .select()
-    .from(units)
-    .where(wo.unitId ? eq(units.id, wo.unitId) : and(eq(units.siteId, wo.siteId), isNull(units.archivedAt)))
-    .orderBy(asc(units.tag));
-}
+export const unitsOfWorkOrder = repo.unitsOfWorkOrder;
 
 async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: string }, unitSystem: UnitSystem): Promise<VisitUnitDto[]> {
   const us = await unitsOfWorkOrder(db, wo);
   const cs = us.length
-    ? await db
-        .select()
-        .from(circuits)
-        .where(
-          inArray(
-            circuits.unitId,
-            us.map((u) => u.id),
-          ),
-        )
-        .orderBy(asc(circuits.number))
+    ? await repo.circuitsOfUnits(
+        db,
+        us.map((u) => u.id),
+      )
     : [];
   return us.map((u) => ({
-    id: u.id,
-    tag: u.tag,
-    kind: u.kind,
-    make: u.make,
-    model: u.model,
-    serial: u.serial,
-    refrigerant: u.refrigerant,
-    fullChargeLb: u.fullChargeLb,
-    applianceCategory: u.applianceCategory,
-    circuits: cs
-      .filter((c) => c.unitId === u.id)
-      .map((c) => ({
-        id: c.id,
-        number: c.number,
-        compressorCount: c.compressorCount,
-        chargeLb: c.chargeLb,
-        targets: circuitTargetsDto(c, unitSystem),
-      })),
+    ...unitSummaryDto(u),
+    circuits: cs.filter((c) => c.unitId === u.id).map((c) => circuitDto(c, unitSystem)),
   }));
 }
 
@@ -88,61 +44,24 @@ async function unitsWithCircuits(db: Tx, wo: { unitId: string | null; siteId: st
  * of verification tests recorded on it; null when the work order repairs none.
  */
 export async function leakRepairOf(db: Tx, wo: { id: string; leakCaseId: string | null }) {
-  const [c] = await db
-    .select({
-      leakCaseId: leakCases.id,
-      repairDueDate: leakCases.repairDueDate,
-      verificationTests: sql<number>`(SELECT count(*) FROM verification_tests vt WHERE vt.leak_case_id = "leak_cases"."id")::int`,
-    })
-    .from(leakCases)
-    .where(
-      and(
-        eq(leakCases.status, 'open'),
-        wo.leakCaseId
-          ? sql`(${leakCases.repairWorkOrderId} = ${wo.id} OR ${leakCases.id} = ${wo.leakCaseId})`
-          : eq(leakCases.repairWorkOrderId, wo.id),
-      ),
-    )
-    .orderBy(asc(leakCases.repairDueDate))
-    .limit(1);
+  const c = await repo.openLeakRepair(db, wo);
   return c ?? null;
 }
 
 /** Everything the Visit screen shows, one query per section. */
 export async function visitDetail(db: Tx, user: SessionUser, id: string): Promise<VisitDetail> {
-  const [row] = await db
-    .select({
-      visit: visits,
-      wo: workOrders,
-      site: sites,
-      branch: branches,
-      techName: users.name,
-      booking: { id: bookings.id, startAt: bookings.startAt, endAt: bookings.endAt },
-    })
-    .from(visits)
-    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-    .innerJoin(sites, eq(sites.id, workOrders.siteId))
-    .innerJoin(branches, eq(branches.id, visits.branchId))
-    .innerJoin(users, eq(users.id, visits.techId))
-    .leftJoin(bookings, eq(bookings.id, visits.bookingId))
-    .where(eq(visits.id, id))
-    .limit(1);
+  const row = await repo.visitHead(db, id);
   assertVisitReadable(user, row?.visit);
   const { visit: v, wo, site, branch } = row!;
   const canWrite = user.role === 'technician' && v.techId === user.id && !v.closedAt;
 
   const [unitList, readingRows, findingRows, eventRows, attachmentRows, stateRows, leakRepair, signature] = await Promise.all([
     unitsWithCircuits(db, wo, branch.unitSystem),
-    db
-      .select({ r: readings, number: circuits.number })
-      .from(readings)
-      .innerJoin(circuits, eq(circuits.id, readings.circuitId))
-      .where(eq(readings.visitId, id))
-      .orderBy(asc(circuits.number)),
-    db.select().from(findings).where(eq(findings.visitId, id)).orderBy(asc(findings.createdAt), asc(findings.id)),
-    db.select().from(refrigerantEvents).where(eq(refrigerantEvents.visitId, id)).orderBy(asc(refrigerantEvents.createdAt)),
-    db.select().from(attachments).where(eq(attachments.visitId, id)).orderBy(asc(attachments.createdAt)),
-    db.select().from(visitEvents).where(eq(visitEvents.visitId, id)).orderBy(asc(visitEvents.at)),
+    repo.visitReadings(db, id),
+    repo.visitFindings(db, id),
+    repo.visitRefrigerantEvents(db, id),
+    repo.visitAttachments(db, id),
+    repo.visitStateEvents(db, id),
     leakRepairOf(db, wo),
     visitSignatureDto(db, id),
   ]);
@@ -212,13 +131,7 @@ export async function visitDetail(db: Tx, user: SessionUser, id: string): Promis
 
 /** The technician's current visit: on site, else en route, else the next booked one (today or later). */
 export async function currentVisit(ctx: AppContext, user: SessionUser): Promise<CurrentVisitResult> {
-  const open = await ctx.db
-    .select({ id: visits.id, enRouteAt: visits.enRouteAt, onSiteAt: visits.onSiteAt, startAt: bookings.startAt, endAt: bookings.endAt })
-    .from(visits)
-    .innerJoin(workOrders, eq(workOrders.id, visits.workOrderId))
-    .leftJoin(bookings, eq(bookings.id, visits.bookingId))
-    .where(and(eq(visits.techId, user.id), isNull(visits.closedAt), sql`${workOrders.state} <> 'cancelled'`))
-    .orderBy(asc(bookings.startAt));
+  const open = await repo.openVisitsOf(ctx.db, user.id);
   const onSite = open.filter((v) => v.onSiteAt).sort((a, b) => b.onSiteAt!.getTime() - a.onSiteAt!.getTime())[0];
   if (onSite) return { visitId: onSite.id, reason: 'on_site' };
   const enRoute = open.filter((v) => v.enRouteAt).sort((a, b) => b.enRouteAt!.getTime() - a.enRouteAt!.getTime())[0];
@@ -240,29 +153,20 @@ export async function changeState(ctx: AppContext, user: SessionUser, id: string
     if (input.state === 'en_route') {
       if (v.onSiteAt) throw conflict('bad_state', 'You are already on site for this visit; it cannot go back to en route.');
       if (v.enRouteAt) return; // already en route: nothing to change (a retried tap)
-      await tx
-        .update(visits)
-        .set({ enRouteAt: now, version: v.version + 1, updatedAt: now })
-        .where(eq(visits.id, id));
+      await repo.updateVisit(tx, id, { enRouteAt: now, version: v.version + 1, updatedAt: now });
     } else {
       if (v.onSiteAt) return;
-      await tx
-        .update(visits)
-        .set({ onSiteAt: now, version: v.version + 1, updatedAt: now })
-        .where(eq(visits.id, id));
+      await repo.updateVisit(tx, id, { onSiteAt: now, version: v.version + 1, updatedAt: now });
     }
-    await tx.insert(visitEvents).values({ visitId: id, state: input.state, at: now, byUserId: user.id });
-    await tx.update(workOrders).set({ state: input.state, updatedAt: now }).where(eq(workOrders.id, v.workOrderId));
+    await repo.insertVisitEvent(tx, { visitId: id, state: input.state, at: now, byUserId: user.id });
+    await repo.setWorkOrderState(tx, v.workOrderId, { state: input.state, updatedAt: now });
   });
   return visitDetail(ctx.db, user, id);
 }
 
 async function visitUnitIds(tx: Tx, v: VisitRow): Promise<Map<string, { refrigerant: string }>> {
-  const [wo] = await tx
-    .select({ unitId: workOrders.unitId, siteId: workOrders.siteId })
-    .from(workOrders)
-    .where(eq(workOrders.id, v.workOrderId));
-  const us = await unitsOfWorkOrder(tx, wo!);
+  const wo = await repo.workOrderPlace(tx, v.workOrderId);
+  const us = await repo.unitsOfWorkOrder(tx, wo!);
   return new Map(us.map((u) => [u.id, { refrigerant: u.refrigerant }]));
 }
 
@@ -284,13 +188,7 @@ export async function saveReadings(
     assertVisitRecordable(user, v);
     const unitMap = await visitUnitIds(tx, v);
     const circuitIds = input.readings.map((r) => r.circuitId);
-    const [cs, [branch]] = await Promise.all([
-      tx.select().from(circuits).where(inArray(circuits.id, circuitIds)),
-      tx
-        .select({ unitSystem: branches.unitSystem, elevationMeters: branches.elevationMeters })
-        .from(branches)
-        .where(eq(branches.id, v.branchId)),
-    ]);
+    const [cs, branch] = await Promise.all([repo.circuitsById(tx, circuitIds), repo.branchUnits(tx, v.branchId)]);
     const byId = new Map(cs.map((c) => [c.id, c]));
     const bad = circuitIds.filter((c) => !byId.has(c) || !unitMap.has(byId.get(c)!.unitId));
     if (bad.length)
@@ -300,28 +198,27 @@ export async function saveReadings(
     const now = ctx.clock.now();
     // Gauges read against the air where they are: the branch's elevation, stored with the readings it computed them at.
     const elevationMeters = branch?.elevationMeters ?? 0;
-    await tx.delete(readings).where(and(eq(readings.visitId, id), inArray(readings.circuitId, circuitIds)));
-    const rows = await tx
-      .insert(readings)
-      .values(
-        input.readings.map((r) => {
-          const c = byId.get(r.circuitId)!;
-          const refrigerant = unitMap.get(c.unitId)!.refrigerant;
-          const stored = toStoredUnits(r, input.units);
-          return {
-            visitId: id,
-            unitId: c.unitId,
-            circuitId: c.id,
-            takenAt: now,
-            refrigerant,
-            ...stored,
-            notes: r.notes ?? null,
-            elevationMeters,
-            ...computeReading(refrigerant, stored, { elevationMeters }),
-          };
-        }),
-      )
-      .returning();
+    const rows = await repo.replaceReadings(
+      tx,
+      id,
+      circuitIds,
+      input.readings.map((r) => {
+        const c = byId.get(r.circuitId)!;
+        const refrigerant = unitMap.get(c.unitId)!.refrigerant;
+        const stored = toStoredUnits(r, input.units);
+        return {
+          visitId: id,
+          unitId: c.unitId,
+          circuitId: c.id,
+          takenAt: now,
+          refrigerant,
+          ...stored,
+          notes: r.notes ?? null,
+          elevationMeters,
+          ...computeReading(refrigerant, stored, { elevationMeters }),
+        };
+      }),
+    );
     const system = branch?.unitSystem ?? 'imperial';
     return {
       readings: rows.map((r) => readingDto(r, byId.get(r.circuitId)!.number, system)).sort((a, b) => a.circuitNumber - b.circuitNumber),
@@ -341,7 +238,7 @@ export async function addFinding(
     const v = await loadVisit(tx, id, { lock: true });
     if (input.id) {
       assertVisitReadable(user, v);
-      const [existing] = await tx.select().from(findings).where(eq(findings.id, input.id)).limit(1);
+      const existing = await repo.findFinding(tx, input.id);
       if (existing) {
         if (existing.visitId !== id) throw conflict('id_taken', 'That finding id belongs to another visit.');
         return { finding: findingDto(existing), created: false };
@@ -354,21 +251,18 @@ export async function addFinding(
       throw badRequest('That unit is not on this visit.', { fields: [{ path: 'unitId', message: 'Not a unit of this visit' }] });
     }
     if (!unitId && unitMap.size === 1) unitId = [...unitMap.keys()][0]!;
-    const [f] = await tx
-      .insert(findings)
-      .values({
-        ...(input.id ? { id: input.id } : {}),
-        visitId: id,
-        unitId,
-        causeCode: input.causeCode,
-        origin: input.origin,
-        alarmCode: input.alarmCode ?? null,
-        reportedCircuit: input.reportedCircuit ?? null,
-        actualCircuit: input.actualCircuit ?? null,
-        notes: input.notes ?? null,
-        notesAudience: input.notesAudience,
-      })
-      .returning();
-    return { finding: findingDto(f!), created: true };
+    const f = await repo.insertFinding(tx, {
+      ...(input.id ? { id: input.id } : {}),
+      visitId: id,
+      unitId,
+      causeCode: input.causeCode,
+      origin: input.origin,
+      alarmCode: input.alarmCode ?? null,
+      reportedCircuit: input.reportedCircuit ?? null,
+      actualCircuit: input.actualCircuit ?? null,
+      notes: input.notes ?? null,
+      notesAudience: input.notesAudience,
+    });
+    return { finding: findingDto(f), created: true };
   });
 }

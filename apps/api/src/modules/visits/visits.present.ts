@@ -1,3 +1,4 @@
+/** The visit's answers: readings in the branch's units, findings, refrigerant entries, leak cases, attachments, circuit targets. */
 import { convertPressure, convertTemperature, convertTemperatureDifference } from '@coilpath/calc';
 import {
   readingUnitsBySystem,
@@ -9,7 +10,7 @@ import {
   type RefrigerantEventDto,
   type UnitSystem,
 } from '@coilpath/contract';
-import type { attachments, circuits, findings, leakCases, readings, refrigerantEvents } from '../../db/schema';
+import type { attachments, circuits, findings, leakCases, readings, refrigerantEvents, units } from '../../db/schema';
 import { STORED_UNITS } from './reading-calc';
 
 const iso = (d: Date) => d.toISOString();
@@ -144,5 +145,31 @@ export function circuitTargetsDto(
     superheat: range(c.targetSuperheatMinF, c.targetSuperheatMaxF),
     subcooling: range(c.targetSubcoolingMinF, c.targetSubcoolingMaxF),
     source: c.targetSource,
+  };
+}
+
+/** A circuit as the visit, the briefing and the Unit file answer it: its targets in the branch's system. */
+export function circuitDto(c: typeof circuits.$inferSelect, unitSystem: UnitSystem) {
+  return {
+    id: c.id,
+    number: c.number,
+    compressorCount: c.compressorCount,
+    chargeLb: c.chargeLb,
+    targets: circuitTargetsDto(c, unitSystem),
+  };
+}
+
+/** A unit's identity, refrigerant and charge as the visit and the briefing answer it. */
+export function unitSummaryDto(u: typeof units.$inferSelect) {
+  return {
+    id: u.id,
+    tag: u.tag,
+    kind: u.kind,
+    make: u.make,
+    model: u.model,
+    serial: u.serial,
+    refrigerant: u.refrigerant,
+    fullChargeLb: u.fullChargeLb,
+    applianceCategory: u.applianceCategory,
   };
 }
