@@ -1,6 +1,7 @@
 import { Router } from 'express';
 import { desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { outboxListSchema } from '@coilpath/contract/responses';
 import type { AppContext } from '../../context';
 import { mailOutbox } from '../../db/schema';
 import { requireRole } from '../../auth/middleware';
@@ -14,33 +15,37 @@ export function outboxRoutes(ctx: AppContext): Router {
   r.use(requireRole('owner'));
   r.get(
     '/',
-    endpoint({ query: z.object({ limit: z.coerce.number().int().min(1).max(500).default(100) }) }, async ({ query }) => {
-      const rows = await ctx.db
-        .select({
-          id: mailOutbox.id,
-          messageId: mailOutbox.messageId,
-          from: mailOutbox.from,
-          to: mailOutbox.to,
-          subject: mailOutbox.subject,
-          text: mailOutbox.text,
-          html: mailOutbox.html,
-          attachments: mailOutbox.attachments,
-          receivedAt: mailOutbox.receivedAt,
-        })
-        .from(mailOutbox)
-        .orderBy(desc(mailOutbox.receivedAt))
-        .limit(query.limit);
-      return {
-        messages: rows.map((m) => ({
-          ...m,
-          attachments: m.attachments.map((a, i) => ({ index: i, filename: a.filename, contentType: a.contentType, size: a.size })),
-        })),
-      };
-    }),
+    endpoint(
+      { query: z.object({ limit: z.coerce.number().int().min(1).max(500).default(100) }), response: outboxListSchema },
+      async ({ query }) => {
+        const rows = await ctx.db
+          .select({
+            id: mailOutbox.id,
+            messageId: mailOutbox.messageId,
+            from: mailOutbox.from,
+            to: mailOutbox.to,
+            subject: mailOutbox.subject,
+            text: mailOutbox.text,
+            html: mailOutbox.html,
+            attachments: mailOutbox.attachments,
+            receivedAt: mailOutbox.receivedAt,
+          })
+          .from(mailOutbox)
+          .orderBy(desc(mailOutbox.receivedAt))
+          .limit(query.limit);
+        return {
+          messages: rows.map((m) => ({
+            ...m,
+            receivedAt: m.receivedAt.toISOString(),
+            attachments: m.attachments.map((a, i) => ({ index: i, filename: a.filename, contentType: a.contentType, size: a.size })),
+          })),
+        };
+      },
+    ),
   );
   r.get(
     '/:id/attachments/:index',
-    endpoint({ params: idParams.extend({ index: z.coerce.number().int().min(0).max(100) }) }, async ({ params, res }) => {
+    endpoint({ params: idParams.extend({ index: z.coerce.number().int().min(0).max(100) }), response: 'file' }, async ({ params, res }) => {
       const [m] = await ctx.db.select().from(mailOutbox).where(eq(mailOutbox.id, params.id)).limit(1);
       const a = m?.attachments[params.index];
       if (!m || !a?.storageKey) throw notFound('attachment');
