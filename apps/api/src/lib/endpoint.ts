@@ -34,7 +34,7 @@ type Answer<R> = R extends z.ZodType ? z.input<R> | PreparedJson | void : R exte
 
 /** Marks a handler made by `endpoint()` with its declaration, for the test that every route declares its answer. */
 export const endpointDeclaration = Symbol('coilpath.endpoint');
-export type EndpointHandler = RequestHandler & { [endpointDeclaration]?: { response: ResponseDeclaration | undefined } };
+export type EndpointHandler = RequestHandler & { [endpointDeclaration]?: { response: ResponseDeclaration } };
 
 /** Outside production (development, tests, the browser journeys) every answer is checked against its schema. */
 const checksAnswers = () => process.env.NODE_ENV !== 'production';
@@ -53,8 +53,8 @@ export class ResponseMismatch extends HttpError {
   }
 }
 
-function checkAnswer(req: Request, response: ResponseDeclaration | undefined, result: unknown) {
-  if (response === undefined || response === 'file') return;
+function checkAnswer(req: Request, response: ResponseDeclaration, result: unknown) {
+  if (response === 'file') return;
   const route = `${req.method} ${req.baseUrl}${typeof req.route?.path === 'string' ? req.route.path : ''}`;
   if (response === 'empty') {
     if (result !== undefined) throw new ResponseMismatch(route, 'declared empty (204) but answered a body');
@@ -77,15 +77,15 @@ function checkAnswer(req: Request, response: ResponseDeclaration | undefined, re
  * answers JSON with the given status. Returning `undefined` answers 204; a `PreparedJson` is sent as
  * serialized, with its entity tag (304 when the client holds it).
  *
- * `response` declares the answer (`ResponseDeclaration`). Outside production the answer is parsed with
+ * `response` (required, so no route can leave its answer undeclared) declares the answer (`ResponseDeclaration`). Outside production the answer is parsed with
  * its schema and a mismatch answers 500 `response_mismatch` naming the route and the zod issues (logged
  * too), so every API test checks that its routes answer what their schemas say; production skips it.
  */
 export function endpoint<S extends Schemas, R extends ResponseDeclaration>(
-  schemas: S & { status?: number; response?: R },
+  schemas: S & { status?: number; response: R },
   handler: (input: Input<S>) => Promise<Answer<R>> | Answer<R>,
 ): EndpointHandler {
-  const response = schemas.response as ResponseDeclaration | undefined;
+  const response: ResponseDeclaration = schemas.response;
   const handle: EndpointHandler = async (req: Request, res: Response, _next: NextFunction) => {
     const user = req.user;
     if (!user) throw unauthorized();
@@ -93,7 +93,7 @@ export function endpoint<S extends Schemas, R extends ResponseDeclaration>(
     const query = schemas.query ? schemas.query.parse(req.query) : undefined;
     const params = schemas.params ? schemas.params.parse(req.params) : undefined;
     const checking = checksAnswers();
-    if (checking && response !== undefined && typeof response !== 'string') {
+    if (checking && typeof response !== 'string') {
       // A handler that sends its JSON itself (a status it chooses) is checked on the way out too; errors are not.
       const json = res.json.bind(res);
       res.json = (sent?: unknown) => {

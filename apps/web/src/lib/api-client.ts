@@ -95,11 +95,11 @@ async function request<T>(method: string, path: string, body?: unknown, init?: R
 export const api = {
   get: <T>(path: string, query?: Query, options?: RequestOptions) =>
     request<T>('GET', withQuery(path, query), undefined, undefined, options),
-  post: <T>(path: string, body?: unknown) => request<T>('POST', path, body ?? {}),
-  patch: <T>(path: string, body?: unknown) => request<T>('PATCH', path, body ?? {}),
-  put: <T>(path: string, body?: unknown) => request<T>('PUT', path, body ?? {}),
-  delete: <T>(path: string) => request<T>('DELETE', path),
-  upload: <T>(path: string, form: FormData) => request<T>('POST', path, form),
+  post: <T>(path: string, body?: unknown, options?: RequestOptions) => request<T>('POST', path, body ?? {}, undefined, options),
+  patch: <T>(path: string, body?: unknown, options?: RequestOptions) => request<T>('PATCH', path, body ?? {}, undefined, options),
+  put: <T>(path: string, body?: unknown, options?: RequestOptions) => request<T>('PUT', path, body ?? {}, undefined, options),
+  delete: <T>(path: string, options?: RequestOptions) => request<T>('DELETE', path, undefined, undefined, options),
+  upload: <T>(path: string, form: FormData, options?: RequestOptions) => request<T>('POST', path, form, undefined, options),
 };
 
 export function errorMessage(err: unknown): string {

@@ -20,7 +20,8 @@ export interface BranchSummary {
 
 export const branchesQuery = queryOptions({
   queryKey: ['branches', 'visible'],
-  queryFn: () => api.get<{ branches: BranchSummary[] }>('/api/branches').then((r) => r.branches),
+  queryFn: () =>
+    api.get<{ branches: BranchSummary[] }>('/api/branches', undefined, { check: 'branchListAnswerSchema' }).then((r) => r.branches),
   staleTime: 5 * 60_000,
 });
 

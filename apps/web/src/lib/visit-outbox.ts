@@ -28,22 +28,24 @@ import { appNow } from './now';
 export function sendWrite(w: OutboxWrite): Promise<unknown> {
   switch (w.kind) {
     case 'state':
-      return api.patch<VisitDetail>(`/api/visits/${w.visitId}`, w.body);
+      return api.patch<VisitDetail>(`/api/visits/${w.visitId}`, w.body, { check: 'visitDetailSchema' });
     case 'readings':
-      return api.post<{ readings: ReadingDto[] }>(`/api/visits/${w.visitId}/readings`, w.body);
+      return api.post<{ readings: ReadingDto[] }>(`/api/visits/${w.visitId}/readings`, w.body, { check: 'readingsAnswerSchema' });
     case 'finding':
-      return api.post<{ finding: FindingDto }>(`/api/visits/${w.visitId}/findings`, w.body);
+      return api.post<{ finding: FindingDto }>(`/api/visits/${w.visitId}/findings`, w.body, { check: 'findingAnswerSchema' });
     case 'refrigerant':
-      return api.post<RefrigerantEventResult>(`/api/units/${w.unitId}/refrigerant-events`, w.body);
+      return api.post<RefrigerantEventResult>(`/api/units/${w.unitId}/refrigerant-events`, w.body, {
+        check: 'refrigerantEventResultSchema',
+      });
     case 'attachment': {
       const form = new FormData();
       form.set('id', w.id);
       form.set('kind', w.attachKind);
       form.set('file', w.file, w.fileName);
-      return api.upload<{ attachment: AttachmentDto }>(`/api/visits/${w.visitId}/attachments`, form);
+      return api.upload<{ attachment: AttachmentDto }>(`/api/visits/${w.visitId}/attachments`, form, { check: 'attachmentAnswerSchema' });
     }
     case 'close':
-      return api.post<CloseVisitResult>(`/api/visits/${w.visitId}/close`, w.body);
+      return api.post<CloseVisitResult>(`/api/visits/${w.visitId}/close`, w.body, { check: 'closeVisitResultSchema' });
   }
 }
 

@@ -1,5 +1,12 @@
 import { Router } from 'express';
 import { agreementInputSchema, agreementListQuerySchema, agreementPatchSchema, pmCompletionQuerySchema } from '@coilpath/contract';
+import {
+  agreementAnswerSchema,
+  agreementListAnswerSchema,
+  planApplyResultSchema,
+  planPreviewSchema,
+  pmCompletionResponseSchema,
+} from '@coilpath/contract/responses';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
@@ -12,35 +19,39 @@ export function agreementsRoutes(ctx: AppContext): Router {
   // Declared before `/:id` (which also checks for a uuid) so the name is never read as an id.
   r.get(
     '/pm-completion',
-    endpoint({ query: pmCompletionQuerySchema }, ({ user, query }) => pmCompletion(ctx, user, query)),
+    endpoint({ query: pmCompletionQuerySchema, response: pmCompletionResponseSchema }, ({ user, query }) => pmCompletion(ctx, user, query)),
   );
   r.get(
     '/',
-    endpoint({ query: agreementListQuerySchema }, async ({ user, query }) => ({ agreements: await listAgreements(ctx, user, query) })),
+    endpoint({ query: agreementListQuerySchema, response: agreementListAnswerSchema }, async ({ user, query }) => ({
+      agreements: await listAgreements(ctx, user, query),
+    })),
   );
   r.post(
     '/',
-    endpoint({ body: agreementInputSchema, status: 201 }, async ({ user, body }) => ({
+    endpoint({ body: agreementInputSchema, status: 201, response: agreementAnswerSchema }, async ({ user, body }) => ({
       agreement: await createAgreement(ctx, user, body),
     })),
   );
   r.get(
     '/:id',
-    endpoint({ params: idParams }, async ({ user, params }) => ({ agreement: await getAgreement(ctx, user, params.id) })),
+    endpoint({ params: idParams, response: agreementAnswerSchema }, async ({ user, params }) => ({
+      agreement: await getAgreement(ctx, user, params.id),
+    })),
   );
   r.patch(
     '/:id',
-    endpoint({ params: idParams, body: agreementPatchSchema }, async ({ user, params, body }) => ({
+    endpoint({ params: idParams, body: agreementPatchSchema, response: agreementAnswerSchema }, async ({ user, params, body }) => ({
       agreement: await patchAgreement(ctx, user, params.id, body),
     })),
   );
   r.post(
     '/:id/plan',
-    endpoint({ params: idParams }, ({ user, params }) => previewPlan(ctx, user, params.id)),
+    endpoint({ params: idParams, response: planPreviewSchema }, ({ user, params }) => previewPlan(ctx, user, params.id)),
   );
   r.post(
     '/:id/plan/apply',
-    endpoint({ params: idParams }, ({ user, params }) => applyPlan(ctx, user, params.id)),
+    endpoint({ params: idParams, response: planApplyResultSchema }, ({ user, params }) => applyPlan(ctx, user, params.id)),
   );
   return r;
 }

@@ -8,6 +8,12 @@ import {
   alarmSourcePatchSchema,
   mapDeliverySchema,
 } from '@coilpath/contract';
+import {
+  alarmSourceAnswerSchema,
+  alarmSourceListSchema,
+  alarmSourceSecretSchema,
+  mappedDeliveryAnswerSchema,
+} from '@coilpath/contract/responses';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
@@ -21,25 +27,31 @@ export function alarmSourcesRoutes(ctx: AppContext): Router {
   r.use(managers);
   r.get(
     '/',
-    endpoint({ query: alarmSourceListQuerySchema }, ({ user, query }) => listSources(ctx, user, query.branchId)),
+    endpoint({ query: alarmSourceListQuerySchema, response: alarmSourceListSchema }, ({ user, query }) =>
+      listSources(ctx, user, query.branchId),
+    ),
   );
   r.post(
     '/',
-    endpoint({ body: alarmSourceCreateSchema, status: 201 }, ({ user, body }) => createSource(ctx, user, body)),
+    endpoint({ body: alarmSourceCreateSchema, status: 201, response: alarmSourceSecretSchema }, ({ user, body }) =>
+      createSource(ctx, user, body),
+    ),
   );
   r.patch(
     '/:id',
-    endpoint({ params: idParams, body: alarmSourcePatchSchema }, async ({ user, params, body }) => ({
+    endpoint({ params: idParams, body: alarmSourcePatchSchema, response: alarmSourceAnswerSchema }, async ({ user, params, body }) => ({
       source: await patchSource(ctx, user, params.id, body),
     })),
   );
   r.post(
     '/:id/rotate',
-    endpoint({ params: idParams }, ({ user, params }) => rotateSource(ctx, user, params.id)),
+    endpoint({ params: idParams, response: alarmSourceSecretSchema }, ({ user, params }) => rotateSource(ctx, user, params.id)),
   );
   r.post(
     '/deliveries/:id/map',
-    endpoint({ params: idParams, body: mapDeliverySchema }, ({ user, params, body }) => mapDelivery(ctx, user, params.id, body.unitId)),
+    endpoint({ params: idParams, body: mapDeliverySchema, response: mappedDeliveryAnswerSchema }, ({ user, params, body }) =>
+      mapDelivery(ctx, user, params.id, body.unitId),
+    ),
   );
   return r;
 }

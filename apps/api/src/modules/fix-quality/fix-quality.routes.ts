@@ -7,6 +7,13 @@ import {
   idSchema,
   warrantyClaimUpdateSchema,
 } from '@coilpath/contract';
+import {
+  createInspectionsResultSchema,
+  factoryDefectReviewSchema,
+  fixQualityReportSchema,
+  modelAlertsSchema,
+  warrantyClaimAnswerSchema,
+} from '@coilpath/contract/responses';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { resolveBranch } from '../../auth/policy';
@@ -27,7 +34,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
   r.get(
     '/fix-quality',
     readers,
-    endpoint({ query: fixQualityQuerySchema }, ({ query, user }) =>
+    endpoint({ query: fixQualityQuerySchema, response: fixQualityReportSchema }, ({ query, user }) =>
       fixQualityReport(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId), ctx.clock.now()),
     ),
   );
@@ -35,7 +42,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
   r.get(
     '/fix-quality/factory-defects',
     readers,
-    endpoint({ query: fixQualityQuerySchema }, ({ query, user }) =>
+    endpoint({ query: fixQualityQuerySchema, response: factoryDefectReviewSchema }, ({ query, user }) =>
       factoryDefectReview(ctx.db, { from: query.from, to: query.to }, resolveBranch(user, query.branchId)),
     ),
   );
@@ -43,19 +50,21 @@ export function fixQualityRoutes(ctx: AppContext): Router {
   r.get(
     '/fix-quality/model-alerts',
     readers,
-    endpoint({}, async ({ user }) => ({ alerts: await modelAlerts(ctx.db, user) })),
+    endpoint({ response: modelAlertsSchema }, async ({ user }) => ({ alerts: await modelAlerts(ctx.db, user) })),
   );
 
   r.post(
     '/fix-quality/model-alerts/inspections',
     requireRole('owner'),
-    endpoint({ body: createInspectionsSchema, status: 201 }, ({ body, user }) => createInspections(ctx.db, ctx.clock, user, body)),
+    endpoint({ body: createInspectionsSchema, status: 201, response: createInspectionsResultSchema }, ({ body, user }) =>
+      createInspections(ctx.db, ctx.clock, user, body),
+    ),
   );
 
   r.get(
     '/fix-quality.csv',
     readers,
-    endpoint({ query: fixQualityCsvQuerySchema }, async ({ query, user, res }) => {
+    endpoint({ query: fixQualityCsvQuerySchema, response: 'file' }, async ({ query, user, res }) => {
       const branchId = resolveBranch(user, query.branchId);
       const period = { from: query.from, to: query.to };
       const csv =
@@ -73,7 +82,7 @@ export function fixQualityRoutes(ctx: AppContext): Router {
   r.get(
     '/fix-quality.pdf',
     readers,
-    endpoint({ query: fixQualityQuerySchema }, async ({ query, user, res }) => {
+    endpoint({ query: fixQualityQuerySchema, response: 'file' }, async ({ query, user, res }) => {
       const branchId = resolveBranch(user, query.branchId);
       const period = { from: query.from, to: query.to };
       const now = ctx.clock.now();
@@ -99,9 +108,12 @@ export function warrantyClaimRoutes(ctx: AppContext): Router {
   r.patch(
     '/:workOrderId',
     requireRole('owner', 'branch_manager'),
-    endpoint({ params: z.object({ workOrderId: idSchema }), body: warrantyClaimUpdateSchema }, async ({ params, body, user }) => ({
-      claim: await updateWarrantyClaim(ctx.db, ctx.clock, user, params.workOrderId, body),
-    })),
+    endpoint(
+      { params: z.object({ workOrderId: idSchema }), body: warrantyClaimUpdateSchema, response: warrantyClaimAnswerSchema },
+      async ({ params, body, user }) => ({
+        claim: await updateWarrantyClaim(ctx.db, ctx.clock, user, params.workOrderId, body),
+      }),
+    ),
   );
   return r;
 }

@@ -9,6 +9,7 @@ export async function outboxMessages(ctx: AppContext, limit: number) {
   return {
     messages: rows.map((m) => ({
       ...m,
+      receivedAt: m.receivedAt.toISOString(),
       attachments: m.attachments.map((a, i) => ({ index: i, filename: a.filename, contentType: a.contentType, size: a.size })),
     })),
   };

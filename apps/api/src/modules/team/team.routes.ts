@@ -6,6 +6,7 @@ import { requireAuth, requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
 import { setSessionCookie } from '../../auth/cookies';
 import * as svc from './team.service';
+import { invitationListAnswerSchema, invitationRowSchema, userPageSchema, userRowSchema } from '@coilpath/contract/responses';
 
 /**
  * `/api/users` — the owner manages people; branch managers and dispatchers read their own
@@ -18,27 +19,29 @@ export function usersRoutes(ctx: AppContext): Router {
   r.get(
     '/',
     readers,
-    endpoint({ query: usersQuerySchema }, ({ user, query }) => svc.listUsers(ctx, user, query)),
+    endpoint({ query: usersQuerySchema, response: userPageSchema }, ({ user, query }) => svc.listUsers(ctx, user, query)),
   );
   r.get(
     '/:id',
     readers,
-    endpoint({ params: idParams }, ({ user, params }) => svc.getUser(ctx.db, user, params.id)),
+    endpoint({ params: idParams, response: userRowSchema }, ({ user, params }) => svc.getUser(ctx.db, user, params.id)),
   );
   r.patch(
     '/:id',
     owner,
-    endpoint({ params: idParams, body: userProfileSchema }, ({ user, params, body }) => svc.updateUser(ctx, user, params.id, body)),
+    endpoint({ params: idParams, body: userProfileSchema, response: userRowSchema }, ({ user, params, body }) =>
+      svc.updateUser(ctx, user, params.id, body),
+    ),
   );
   r.post(
     '/:id/deactivate',
     owner,
-    endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, false)),
+    endpoint({ params: idParams, response: userRowSchema }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, false)),
   );
   r.post(
     '/:id/reactivate',
     owner,
-    endpoint({ params: idParams }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, true)),
+    endpoint({ params: idParams, response: userRowSchema }, ({ user, params }) => svc.setUserActive(ctx, user, params.id, true)),
   );
   return r;
 }
@@ -65,22 +68,24 @@ export function invitationsRoutes(ctx: AppContext): Router {
   r.get(
     '/',
     ...owner,
-    endpoint({}, async () => ({ invitations: await svc.listInvitations(ctx) })),
+    endpoint({ response: invitationListAnswerSchema }, async () => ({ invitations: await svc.listInvitations(ctx) })),
   );
   r.post(
     '/',
     ...owner,
-    endpoint({ body: invitationInputSchema, status: 201 }, ({ user, body }) => svc.createInvitation(ctx, user, body.email, body.profile)),
+    endpoint({ body: invitationInputSchema, status: 201, response: invitationRowSchema }, ({ user, body }) =>
+      svc.createInvitation(ctx, user, body.email, body.profile),
+    ),
   );
   r.post(
     '/:id/resend',
     ...owner,
-    endpoint({ params: idParams }, ({ user, params }) => svc.resendInvitation(ctx, user, params.id)),
+    endpoint({ params: idParams, response: invitationRowSchema }, ({ user, params }) => svc.resendInvitation(ctx, user, params.id)),
   );
   r.delete(
     '/:id',
     ...owner,
-    endpoint({ params: idParams }, ({ params }) => svc.revokeInvitation(ctx, params.id)),
+    endpoint({ params: idParams, response: invitationRowSchema }, ({ params }) => svc.revokeInvitation(ctx, params.id)),
   );
   return r;
 }

@@ -1,7 +1,7 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { circuitTargetsInputSchema, unitImportSchema, unitInputSchema, unitsQuerySchema, unitUpdateSchema } from '@coilpath/contract';
-import { circuitTargetsResultSchema } from '@coilpath/contract/responses';
+import { circuitTargetsResultSchema, unitImportResultSchema, unitPageSchema, unitRowSchema } from '@coilpath/contract/responses';
 import type { AppContext } from '../../context';
 import { requireRole } from '../../auth/middleware';
 import { endpoint, idParams } from '../../lib/endpoint';
@@ -21,27 +21,29 @@ export function unitsRoutes(ctx: AppContext): Router {
   r.get(
     '/',
     office,
-    endpoint({ query: unitsQuerySchema }, ({ user, query }) => svc.listUnits(ctx, user, query)),
+    endpoint({ query: unitsQuerySchema, response: unitPageSchema }, ({ user, query }) => svc.listUnits(ctx, user, query)),
   );
   r.post(
     '/',
     office,
-    endpoint({ body: unitInputSchema, status: 201 }, ({ user, body }) => svc.createUnit(ctx, user, body)),
+    endpoint({ body: unitInputSchema, status: 201, response: unitRowSchema }, ({ user, body }) => svc.createUnit(ctx, user, body)),
   );
   r.post(
     '/import',
     office,
-    endpoint({ body: unitImportSchema }, ({ user, body }) => importUnits(ctx, user, body)),
+    endpoint({ body: unitImportSchema, response: unitImportResultSchema }, ({ user, body }) => importUnits(ctx, user, body)),
   );
   r.get(
     '/:id',
     office,
-    endpoint({ params: idParams }, ({ user, params }) => svc.getUnit(ctx.db, user, params.id)),
+    endpoint({ params: idParams, response: unitRowSchema }, ({ user, params }) => svc.getUnit(ctx.db, user, params.id)),
   );
   r.put(
     '/:id',
     office,
-    endpoint({ params: idParams, body: unitUpdateSchema }, ({ user, params, body }) => svc.updateUnit(ctx, user, params.id, body)),
+    endpoint({ params: idParams, body: unitUpdateSchema, response: unitRowSchema }, ({ user, params, body }) =>
+      svc.updateUnit(ctx, user, params.id, body),
+    ),
   );
   r.put(
     '/:id/circuits/:number/targets',
@@ -53,17 +55,17 @@ export function unitsRoutes(ctx: AppContext): Router {
   r.post(
     '/:id/archive',
     office,
-    endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, true)),
+    endpoint({ params: idParams, response: unitRowSchema }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, true)),
   );
   r.post(
     '/:id/unarchive',
     office,
-    endpoint({ params: idParams }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, false)),
+    endpoint({ params: idParams, response: unitRowSchema }, ({ user, params }) => svc.setUnitArchived(ctx, user, params.id, false)),
   );
   r.delete(
     '/:id',
     office,
-    endpoint({ params: idParams }, ({ user, params }) => svc.deleteUnit(ctx, user, params.id)),
+    endpoint({ params: idParams, response: 'empty' }, ({ user, params }) => svc.deleteUnit(ctx, user, params.id)),
   );
   return r;
 }

@@ -12,7 +12,7 @@ export function CalendarFeedCard({ feed }: { feed: DayResponse['calendarFeed'] }
   const qc = useQueryClient();
   const done = () => qc.invalidateQueries({ queryKey: ['day'] });
   const rotate = useMutation({
-    mutationFn: () => api.post<CalendarTokenResult>('/api/calendar/token'),
+    mutationFn: () => api.post<CalendarTokenResult>('/api/calendar/token', undefined, { check: 'calendarTokenResultSchema' }),
     onSuccess: () => {
       notify(
         feed.active

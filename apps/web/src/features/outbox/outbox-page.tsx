@@ -24,7 +24,7 @@ export default function OutboxPage() {
   const [open, setOpen] = useState<string | null>(null);
   const q = useQuery({
     queryKey: ['outbox'],
-    queryFn: () => api.get<{ messages: OutboxMessage[] }>('/api/outbox').then((r) => r.messages),
+    queryFn: () => api.get<{ messages: OutboxMessage[] }>('/api/outbox', undefined, { check: 'outboxListSchema' }).then((r) => r.messages),
   });
   return (
     <>

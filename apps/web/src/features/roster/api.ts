@@ -97,7 +97,8 @@ function useInvalidateRoster() {
 export function useCreateBooking() {
   const invalidate = useInvalidateRoster();
   return useMutation({
-    mutationFn: (body: BookingCreate) => api.post<{ booking: Booking }>('/api/bookings', body).then((r) => r.booking),
+    mutationFn: (body: BookingCreate) =>
+      api.post<{ booking: Booking }>('/api/bookings', body, { check: 'bookingAnswerSchema' }).then((r) => r.booking),
     onSettled: invalidate,
   });
 }
@@ -106,7 +107,7 @@ export function useUpdateBooking() {
   const invalidate = useInvalidateRoster();
   return useMutation({
     mutationFn: ({ id, ...body }: BookingUpdate & { id: string }) =>
-      api.patch<{ booking: Booking }>(`/api/bookings/${id}`, body).then((r) => r.booking),
+      api.patch<{ booking: Booking }>(`/api/bookings/${id}`, body, { check: 'bookingAnswerSchema' }).then((r) => r.booking),
     onSettled: invalidate,
   });
 }
@@ -122,20 +123,23 @@ export function useDeleteBooking() {
 export function useCreateWorkOrder() {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (body: WorkOrderCreate) => api.post<{ workOrder: WorkOrder }>('/api/work-orders', body).then((r) => r.workOrder),
+    mutationFn: (body: WorkOrderCreate) =>
+      api.post<{ workOrder: WorkOrder }>('/api/work-orders', body, { check: 'workOrderAnswerSchema' }).then((r) => r.workOrder),
     onSuccess: () => qc.invalidateQueries({ queryKey: ['work-orders'] }),
   });
 }
 
 export function useSuggest() {
   return useMutation({
-    mutationFn: (body: { workOrderId: string; day: string }) => api.post<SuggestResult>('/api/roster/suggest', body),
+    mutationFn: (body: { workOrderId: string; day: string }) =>
+      api.post<SuggestResult>('/api/roster/suggest', body, { check: 'suggestResultSchema' }),
   });
 }
 
 export function useEvenOutPreview() {
   return useMutation({
-    mutationFn: (body: { branchId: string; week: string }) => api.post<EvenOutPreview>('/api/roster/even-out', body),
+    mutationFn: (body: { branchId: string; week: string }) =>
+      api.post<EvenOutPreview>('/api/roster/even-out', body, { check: 'evenOutPreviewSchema' }),
   });
 }
 
@@ -143,7 +147,7 @@ export function useEvenOutApply() {
   const invalidate = useInvalidateRoster();
   return useMutation({
     mutationFn: (body: { proposals: Proposal[]; moves: EvenOutMove[] }) =>
-      api.post<{ bookings: Booking[] }>('/api/roster/even-out/apply', body).then((r) => r.bookings),
+      api.post<{ bookings: Booking[] }>('/api/roster/even-out/apply', body, { check: 'evenOutApplyResultSchema' }).then((r) => r.bookings),
     onSettled: invalidate,
   });
 }

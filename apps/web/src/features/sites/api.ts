@@ -27,7 +27,7 @@ export const keys = {
 export function useCustomers(f: Filter, enabled = true) {
   return useQuery({
     queryKey: keys.customers(f),
-    queryFn: () => api.get<Page<CustomerRow>>('/api/customers', clean(f)),
+    queryFn: () => api.get<Page<CustomerRow>>('/api/customers', clean(f), { check: 'customerPageSchema' }),
     placeholderData: keepPreviousData,
     enabled,
   });
@@ -36,20 +36,20 @@ export function useCustomers(f: Filter, enabled = true) {
 export function useSites(f: Filter, enabled = true) {
   return useQuery({
     queryKey: keys.sites(f),
-    queryFn: () => api.get<Page<SiteRow>>('/api/sites', clean(f)),
+    queryFn: () => api.get<Page<SiteRow>>('/api/sites', clean(f), { check: 'sitePageSchema' }),
     placeholderData: keepPreviousData,
     enabled,
   });
 }
 
 export function useSite(id: string) {
-  return useQuery({ queryKey: keys.site(id), queryFn: () => api.get<SiteRow>(`/api/sites/${id}`) });
+  return useQuery({ queryKey: keys.site(id), queryFn: () => api.get<SiteRow>(`/api/sites/${id}`, undefined, { check: 'siteRowSchema' }) });
 }
 
 export function useUnits(f: Filter) {
   return useQuery({
     queryKey: keys.units(f),
-    queryFn: () => api.get<Page<UnitRow>>('/api/units', clean(f)),
+    queryFn: () => api.get<Page<UnitRow>>('/api/units', clean(f), { check: 'unitPageSchema' }),
     placeholderData: keepPreviousData,
   });
 }
@@ -65,6 +65,9 @@ export function useInvalidateSites() {
     ]);
 }
 
+/** What archiving or unarchiving answers: the record as it now is. */
+const rowSchemaOf = { customers: 'customerRowSchema', sites: 'siteRowSchema', units: 'unitRowSchema' } as const;
+
 /** Archive, unarchive or delete a customer, site or unit. */
 export function useRecordAction() {
   const invalidate = useInvalidateSites();
@@ -77,7 +80,10 @@ export function useRecordAction() {
       kind: 'customers' | 'sites' | 'units';
       id: string;
       action: 'archive' | 'unarchive' | 'delete';
-    }) => (action === 'delete' ? api.delete<void>(`/api/${kind}/${id}`) : api.post<unknown>(`/api/${kind}/${id}/${action}`)),
+    }) =>
+      action === 'delete'
+        ? api.delete<void>(`/api/${kind}/${id}`)
+        : api.post<unknown>(`/api/${kind}/${id}/${action}`, undefined, { check: rowSchemaOf[kind] }),
     onSuccess: () => invalidate(),
   });
 }

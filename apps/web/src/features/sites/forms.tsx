@@ -73,8 +73,8 @@ export function CustomerForm({ customer, onDone }: { customer?: CustomerRow; onD
     setError(null);
     try {
       const saved = customer
-        ? await api.patch<CustomerRow>(`/api/customers/${customer.id}`, { ...values, branchId: undefined })
-        : await api.post<CustomerRow>('/api/customers', values);
+        ? await api.patch<CustomerRow>(`/api/customers/${customer.id}`, { ...values, branchId: undefined }, { check: 'customerRowSchema' })
+        : await api.post<CustomerRow>('/api/customers', values, { check: 'customerRowSchema' });
       await invalidate();
       notify(customer ? `Saved ${saved.name}.` : `Added customer ${saved.name}.`);
       onDone(saved);
@@ -137,7 +137,9 @@ export function SiteForm({ site, onDone }: { site?: SiteRow; onDone: (s: SiteRow
   const onSubmit = form.handleSubmit(async (values) => {
     setError(null);
     try {
-      const saved = site ? await api.patch<SiteRow>(`/api/sites/${site.id}`, values) : await api.post<SiteRow>('/api/sites', values);
+      const saved = site
+        ? await api.patch<SiteRow>(`/api/sites/${site.id}`, values, { check: 'siteRowSchema' })
+        : await api.post<SiteRow>('/api/sites', values, { check: 'siteRowSchema' });
       await invalidate();
       notify(site ? `Saved ${saved.name}.` : `Added site ${saved.name} for ${saved.customerName}.`);
       onDone(saved);
@@ -237,8 +239,8 @@ export function UnitForm({ siteId, unit, onDone }: { siteId: string; unit?: Unit
     setError(null);
     try {
       const saved = unit
-        ? await api.put<UnitRow>(`/api/units/${unit.id}`, { ...values, siteId: undefined })
-        : await api.post<UnitRow>('/api/units', values);
+        ? await api.put<UnitRow>(`/api/units/${unit.id}`, { ...values, siteId: undefined }, { check: 'unitRowSchema' })
+        : await api.post<UnitRow>('/api/units', values, { check: 'unitRowSchema' });
       await invalidate();
       notify(unit ? `Saved ${saved.tag}.` : `Added ${saved.tag} (${saved.make} ${saved.model}).`);
       onDone(saved);

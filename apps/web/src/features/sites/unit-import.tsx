@@ -85,7 +85,11 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
     setPhase({ kind: 'checking', rows: null });
     let result: UnitImportResult;
     try {
-      result = await api.post<UnitImportResult>('/api/units/import', { siteId: site.id, mode: 'dry-run', file: fileData.current });
+      result = await api.post<UnitImportResult>(
+        '/api/units/import',
+        { siteId: site.id, mode: 'dry-run', file: fileData.current },
+        { check: 'unitImportResultSchema' },
+      );
     } catch (e) {
       setPhase({ kind: 'failed', message: `${file.name}: ${errorMessage(e)}` });
       return;
@@ -110,7 +114,11 @@ export function UnitImport({ site, onDone }: { site: SiteRow; onDone: () => void
     if (phase.kind !== 'checked') return;
     setPhase({ kind: 'importing', rows: phase.result.rowCount });
     try {
-      const result = await api.post<UnitImportResult>('/api/units/import', { siteId: site.id, mode: 'commit', file: fileData.current });
+      const result = await api.post<UnitImportResult>(
+        '/api/units/import',
+        { siteId: site.id, mode: 'commit', file: fileData.current },
+        { check: 'unitImportResultSchema' },
+      );
       await invalidate();
       notify(`Imported ${result.created.toLocaleString('en-US')} units into ${site.name}.`);
       onDone();

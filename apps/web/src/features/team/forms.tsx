@@ -240,10 +240,10 @@ export function PersonForm({ person, onDone }: { person?: UserRow; onDone: () =>
     setError(null);
     try {
       if (person) {
-        const saved = await api.patch<UserRow>(`/api/users/${person.id}`, values.profile);
+        const saved = await api.patch<UserRow>(`/api/users/${person.id}`, values.profile, { check: 'userRowSchema' });
         notify(`Saved ${saved.name}.`);
       } else {
-        await api.post('/api/invitations', values);
+        await api.post('/api/invitations', values, { check: 'invitationRowSchema' });
         notify(`Invitation sent to ${values.email}. The link works once, for 72 hours.`);
       }
       await Promise.all([qc.invalidateQueries({ queryKey: ['users'] }), qc.invalidateQueries({ queryKey: ['invitations'] })]);
@@ -411,8 +411,8 @@ export function BranchForm({ branch, onDone }: { branch?: BranchDetail; onDone: 
     setError(null);
     try {
       const saved = branch
-        ? await api.patch<BranchDetail>(`/api/branches/${branch.id}`, values)
-        : await api.post<BranchDetail>('/api/branches', values);
+        ? await api.patch<BranchDetail>(`/api/branches/${branch.id}`, values, { check: 'branchDetailSchema' })
+        : await api.post<BranchDetail>('/api/branches', values, { check: 'branchDetailSchema' });
       await qc.invalidateQueries({ queryKey: ['branches'] });
       notify(branch ? `Saved ${saved.name}.` : `Added branch ${saved.name} (${saved.timeZone}).`);
       onDone();

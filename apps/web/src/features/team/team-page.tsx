@@ -69,33 +69,44 @@ export default function TeamPage() {
   const people = useQuery({
     queryKey: ['users', { ...list.params, status, branchId }],
     queryFn: () =>
-      api.get<Page<UserRow>>('/api/users', {
-        page: list.params.page,
-        pageSize: list.params.pageSize,
-        sort: list.params.sort,
-        dir: list.params.dir,
-        q: list.params.q || undefined,
-        status,
-        branchId,
-      }),
+      api.get<Page<UserRow>>(
+        '/api/users',
+        {
+          page: list.params.page,
+          pageSize: list.params.pageSize,
+          sort: list.params.sort,
+          dir: list.params.dir,
+          q: list.params.q || undefined,
+          status,
+          branchId,
+        },
+        { check: 'userPageSchema' },
+      ),
     placeholderData: keepPreviousData,
     enabled: tab === 'people',
   });
   // The same list as the branch switcher's, read with every setting (the API answers them all).
   const branchSettings = useQuery({
     queryKey: ['branches', 'settings'],
-    queryFn: () => api.get<{ branches: BranchDetail[] }>('/api/branches').then((r) => r.branches),
+    queryFn: () =>
+      api.get<{ branches: BranchDetail[] }>('/api/branches', undefined, { check: 'branchListAnswerSchema' }).then((r) => r.branches),
     enabled: tab === 'branches',
   });
   const invitations = useQuery({
     queryKey: ['invitations'],
-    queryFn: () => api.get<{ invitations: InvitationRow[] }>('/api/invitations').then((r) => r.invitations),
+    queryFn: () =>
+      api
+        .get<{ invitations: InvitationRow[] }>('/api/invitations', undefined, { check: 'invitationListAnswerSchema' })
+        .then((r) => r.invitations),
     enabled: tab === 'invitations',
   });
 
   const act = useMutation({
-    mutationFn: ({ path, method }: { path: string; method: 'post' | 'delete' }) =>
-      method === 'post' ? api.post<unknown>(path) : api.delete<unknown>(path),
+    mutationFn: ({ path, method }: { path: string; method: 'post' | 'delete' }) => {
+      // Every action answers the row it changed: a person (deactivate, reactivate) or an invitation (resend, withdraw).
+      const check = path.startsWith('/api/users/') ? ('userRowSchema' as const) : ('invitationRowSchema' as const);
+      return method === 'post' ? api.post<unknown>(path, undefined, { check }) : api.delete<unknown>(path, { check });
+    },
     onSuccess: () => Promise.all([qc.invalidateQueries({ queryKey: ['users'] }), qc.invalidateQueries({ queryKey: ['invitations'] })]),
   });
   const { mutateAsync } = act;

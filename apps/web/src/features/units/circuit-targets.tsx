@@ -44,7 +44,8 @@ function TargetsForm({ unitId, circuit, system, onDone }: { unitId: string; circ
   });
   const [errors, setErrors] = useState<Record<string, string>>({});
   const save = useMutation({
-    mutationFn: (body: unknown) => api.put(`/api/units/${unitId}/circuits/${circuit.number}/targets`, body),
+    mutationFn: (body: unknown) =>
+      api.put(`/api/units/${unitId}/circuits/${circuit.number}/targets`, body, { check: 'circuitTargetsResultSchema' }),
     onSuccess: async () => {
       notify(`Target ranges saved for circuit ${circuit.number}.`);
       await qc.invalidateQueries({ queryKey: ['units', 'file', unitId] });

@@ -14,7 +14,10 @@ export const currentVisitQuery = queryOptions({
 export function useResendSummary(id: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: () => api.post<{ summary: SummaryMailResult }>(`/api/visits/${id}/summary`).then((r) => r.summary),
+    mutationFn: () =>
+      api
+        .post<{ summary: SummaryMailResult }>(`/api/visits/${id}/summary`, undefined, { check: 'summaryAnswerSchema' })
+        .then((r) => r.summary),
     onSuccess: () => qc.invalidateQueries({ queryKey: ['visit', id] }),
   });
 }

@@ -66,7 +66,8 @@ function useRefresh() {
 export function useCreateAlarm() {
   const refresh = useRefresh();
   return useMutation({
-    mutationFn: (body: AlarmInput) => api.post<{ alarm: AlarmRow }>('/api/alarms', body).then((r) => r.alarm),
+    mutationFn: (body: AlarmInput) =>
+      api.post<{ alarm: AlarmRow }>('/api/alarms', body, { check: 'alarmAnswerSchema' }).then((r) => r.alarm),
     onSuccess: refresh,
   });
 }
@@ -74,7 +75,7 @@ export function useImportAlarms() {
   const refresh = useRefresh();
   return useMutation({
     mutationFn: (body: { file: string; mode: 'dry_run' | 'commit'; branchId?: string | undefined }) =>
-      api.post<AlarmImportResult>('/api/alarms/import', body),
+      api.post<AlarmImportResult>('/api/alarms/import', body, { check: 'alarmImportResultSchema' }),
     onSuccess: (r) => r.mode === 'commit' && refresh(),
   });
 }
@@ -82,7 +83,7 @@ export function usePatchLeakCase() {
   const refresh = useRefresh();
   return useMutation({
     mutationFn: ({ id, patch }: { id: string; patch: LeakCasePatch }) =>
-      api.patch<{ leakCase: LeakCaseRow }>(`/api/leak-cases/${id}`, patch),
+      api.patch<{ leakCase: LeakCaseRow }>(`/api/leak-cases/${id}`, patch, { check: 'leakCaseAnswerSchema' }),
     onSuccess: refresh,
   });
 }
@@ -90,14 +91,15 @@ export function useAddVerificationTest() {
   const refresh = useRefresh();
   return useMutation({
     mutationFn: ({ id, body }: { id: string; body: VerificationTestInput }) =>
-      api.post<{ leakCase: LeakCaseRow }>(`/api/leak-cases/${id}/verification-tests`, body),
+      api.post<{ leakCase: LeakCaseRow }>(`/api/leak-cases/${id}/verification-tests`, body, { check: 'leakCaseAnswerSchema' }),
     onSuccess: refresh,
   });
 }
 export function useBookRepair() {
   const refresh = useRefresh();
   return useMutation({
-    mutationFn: ({ id, body }: { id: string; body: BookRepair }) => api.post<BookRepairResult>(`/api/leak-cases/${id}/repair-visit`, body),
+    mutationFn: ({ id, body }: { id: string; body: BookRepair }) =>
+      api.post<BookRepairResult>(`/api/leak-cases/${id}/repair-visit`, body, { check: 'bookRepairResultSchema' }),
     onSettled: refresh,
   });
 }
@@ -105,7 +107,7 @@ export function useQueueReturnVisit() {
   const refresh = useRefresh();
   return useMutation({
     mutationFn: ({ id, body }: { id: string; body: QueueReturnVisit }) =>
-      api.patch<{ returnVisit: ReturnVisitRow }>(`/api/watchlist/return-visits/${id}`, body),
+      api.patch<{ returnVisit: ReturnVisitRow }>(`/api/watchlist/return-visits/${id}`, body, { check: 'returnVisitAnswerSchema' }),
     onSuccess: refresh,
   });
 }
@@ -115,20 +117,20 @@ export function useQueueReturnVisit() {
 export function useAlarmSources(branchId: string | undefined) {
   return useQuery({
     queryKey: [...key(branchId), 'alarm-sources'],
-    queryFn: () => api.get<AlarmSourceList>('/api/alarm-sources', { branchId }).then((r) => r.sources),
+    queryFn: () => api.get<AlarmSourceList>('/api/alarm-sources', { branchId }, { check: 'alarmSourceListSchema' }).then((r) => r.sources),
   });
 }
 export function useCreateAlarmSource() {
   const refresh = useRefresh();
   return useMutation({
-    mutationFn: (body: AlarmSourceCreate) => api.post<AlarmSourceSecret>('/api/alarm-sources', body),
+    mutationFn: (body: AlarmSourceCreate) => api.post<AlarmSourceSecret>('/api/alarm-sources', body, { check: 'alarmSourceSecretSchema' }),
     onSuccess: refresh,
   });
 }
 export function useRotateAlarmSource() {
   const refresh = useRefresh();
   return useMutation({
-    mutationFn: (id: string) => api.post<AlarmSourceSecret>(`/api/alarm-sources/${id}/rotate`, {}),
+    mutationFn: (id: string) => api.post<AlarmSourceSecret>(`/api/alarm-sources/${id}/rotate`, {}, { check: 'alarmSourceSecretSchema' }),
     onSuccess: refresh,
   });
 }
@@ -136,7 +138,7 @@ export function usePatchAlarmSource() {
   const refresh = useRefresh();
   return useMutation({
     mutationFn: ({ id, patch }: { id: string; patch: AlarmSourcePatch }) =>
-      api.patch<{ source: AlarmSourceRow }>(`/api/alarm-sources/${id}`, patch),
+      api.patch<{ source: AlarmSourceRow }>(`/api/alarm-sources/${id}`, patch, { check: 'alarmSourceAnswerSchema' }),
     onSuccess: refresh,
   });
 }
@@ -144,7 +146,11 @@ export function useMapDelivery() {
   const refresh = useRefresh();
   return useMutation({
     mutationFn: ({ id, unitId }: { id: string; unitId: string }) =>
-      api.post<{ delivery: AlarmDeliveryRow; alarmId: string }>(`/api/alarm-sources/deliveries/${id}/map`, { unitId }),
+      api.post<{ delivery: AlarmDeliveryRow; alarmId: string }>(
+        `/api/alarm-sources/deliveries/${id}/map`,
+        { unitId },
+        { check: 'mappedDeliveryAnswerSchema' },
+      ),
     onSettled: refresh,
   });
 }
