@@ -93,6 +93,14 @@ const bytes = (r: request.Test) =>
   });
 
 describe('GET /api/units/:id/refrigerant-record', () => {
+  it('says in words that a unit with no charge on record has no leak rate (not a computation error)', async () => {
+    const boiler = await makeSiteWithUnit(t.ctx.db, f.a.id, { unit: { tag: 'B-9', kind: 'boiler', refrigerant: '', fullChargeLb: 0 } });
+    const res = await (await as(f.inA.manager.email)).get(`/api/units/${boiler.unit.id}/refrigerant-record`);
+    expect(res.status).toBe(200);
+    expect(res.body.computeError).toMatch(/^No leak rate: the unit has no refrigerant and full charge on record/);
+    expect(res.body.computeError).not.toMatch(/finite number/);
+  });
+
   it('gives the ledger: every entry, the rate at each counted addition, the rule and the obligations with their states', async () => {
     const res = await (await as(f.inA.manager.email)).get(`/api/units/${u.unit.id}/refrigerant-record`);
     expect(res.status).toBe(200);

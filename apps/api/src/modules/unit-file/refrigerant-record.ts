@@ -237,6 +237,15 @@ export function buildLedger(src: LedgerSourceRows, asOf: string): Ledger {
   entries.sort(dateOrder);
 
   const appliance = { category: src.unit.applianceCategory, fullCharge: src.unit.fullChargeLb, refrigerant: src.unit.refrigerant };
+  if (!(src.unit.fullChargeLb > 0) || !src.unit.refrigerant.trim()) {
+    // A boiler or a unit whose charge was never entered: nothing to compute, which is not a failure.
+    return {
+      events: entries,
+      obligations: [],
+      result: null,
+      computeError: 'No leak rate: the unit has no refrigerant and full charge on record (enter them on the unit from its nameplate).',
+    };
+  }
   let result: LeakObligationsResult;
   try {
     result = leakObligations({ appliance, events: ledgerEvents, asOf, method: RECORD_METHOD });
